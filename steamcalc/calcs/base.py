@@ -1,0 +1,163 @@
+"""What every calculation kind shares: input fields, the Result, steps and checks.
+
+A calculation module declares a frozen ``Inputs`` dataclass whose fields are made
+with :func:`input_field`, so that forms, case files and records can treat every
+kind alike; its ``calculate(inputs, site)`` returns a :class:`Result`.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import math
+from dataclasses import dataclass, field
+
+from ..errors import InputError
+from ..quantities import RECORD_UNITS, from_record_unit, to_record_unit
+
+#: Quantity kinds an input field can have (besides ``fraction``, a plain number 0 to 1).
+INPUT_KINDS = ("pressure", "temperature", "temperature_difference", "mass_flow", "fraction")
+
+STATUSES = ("pass", "warn", "fail")
+
+
+def input_field(kind, label, help, *, example, section=None, default=None):
+    """A dataclass field for an ``Inputs`` class, with the metadata forms and parsers use.
+
+    Parameters
+    ----------
+    kind : str
+        One of :data:`INPUT_KINDS`; the value is held in the SI unit of that kind.
+    label : str
+        Short label for forms and reports.
+    help : str
+        One sentence for the form's tooltip and the case-file documentation.
+    example : str
+        A value as a user would type it in a case file (``"16 bar(g)"``).
+    section : str, optional
+        Sub-table of ``[inputs]`` the key lives in (``"desuperheater"``).
+    default : float, optional
+        Value used when the key is absent; None makes the input optional or required
+        as the calculation decides.
+    """
+    if kind not in INPUT_KINDS:
+        raise ValueError(f"unknown input kind {kind!r}")
+    return field(default=default, metadata={
+        "kind": kind, "label": label, "help": help, "example": example, "section": section,
+    })
+
+
+def input_fields(inputs_class):
+    """The fields of an Inputs class, in declaration order."""
+    return dataclasses.fields(inputs_class)
+
+
+def to_record_inputs(inputs, given):
+    """The record's ``inputs`` table: each set field in record units, with the user's text."""
+    table = {}
+    for f in input_fields(type(inputs)):
+        value = getattr(inputs, f.name)
+        if value is None:
+            continue
+        kind = f.metadata["kind"]
+        unit_kind = "dimensionless" if kind == "fraction" else kind
+        table[f.name] = {
+            "value": to_record_unit(value, unit_kind),
+            "unit": RECORD_UNITS[unit_kind],
+            "given": given.get(f.name, "(default)"),
+        }
+    return table
+
+
+def from_record_inputs(inputs_class, table):
+    """Rebuild an Inputs object from a record's ``inputs`` table (absolute values)."""
+    names = {f.name: f for f in input_fields(inputs_class)}
+    values = {}
+    for name, entry in table.items():
+        if name not in names:
+            raise InputError(f"record input '{name}' is not an input of this kind", field=name)
+        kind = names[name].metadata["kind"]
+        unit_kind = "dimensionless" if kind == "fraction" else kind
+        values[name] = from_record_unit(entry["value"], entry.get("unit", ""), unit_kind)
+    return inputs_class(**values)
+
+
+@dataclass(frozen=True)
+class Step:
+    """One worked step: what is found, the equation, the equation with numbers, the value."""
+
+    label: str
+    equation: str
+    substituted: str
+    value: float | str
+    unit: str = ""
+
+    def to_record(self):
+        return {"label": self.label, "equation": self.equation, "substituted": self.substituted,
+                "value": {"value": self.value, "unit": self.unit}}
+
+
+@dataclass(frozen=True)
+class Check:
+    """An engineering check on the result: ``pass``, ``warn`` or ``fail``, with its reason."""
+
+    name: str
+    status: str
+    detail: str
+
+    def __post_init__(self):
+        if self.status not in STATUSES:
+            raise ValueError(f"check status must be one of {STATUSES}")
+
+    def to_record(self):
+        return {"name": self.name, "status": self.status, "detail": self.detail}
+
+
+@dataclass(frozen=True)
+class ResultValue:
+    """A result: its label, value and unit string (pint-parsable; '' for none)."""
+
+    label: str
+    value: float | str
+    unit: str = ""
+
+    def to_record(self):
+        if self.unit or not isinstance(self.value, str):
+            return {"value": self.value, "unit": self.unit, "label": self.label}
+        return {"value": self.value, "label": self.label}
+
+
+@dataclass
+class Result:
+    """What a calculation returns. Built inside ``calculate()``; treated as read-only after."""
+
+    values: dict = field(default_factory=dict)
+    steps: list = field(default_factory=list)
+    checks: list = field(default_factory=list)
+    assumptions: list = field(default_factory=list)
+    references: list = field(default_factory=list)
+    warnings: list = field(default_factory=list)
+    cautions: list = field(default_factory=list)
+
+    def add(self, key, label, value, unit=""):
+        """Add a result value. A float must be finite: a NaN or infinity is a bug, not a result."""
+        if isinstance(value, float) and not math.isfinite(value):
+            raise ArithmeticError(f"result {key} is not finite ({value})")
+        self.values[key] = ResultValue(label, value, unit)
+        return value
+
+    def step(self, label, equation, substituted, value, unit=""):
+        self.steps.append(Step(label, equation, substituted, value, unit))
+
+    def check(self, name, status, detail):
+        self.checks.append(Check(name, status, detail))
+        if status == "warn":
+            self.warnings.append(f"{name}: {detail}")
+
+    @property
+    def status(self):
+        """Worst check status: ``fail`` over ``warn`` over ``pass``."""
+        statuses = {c.status for c in self.checks}
+        return "fail" if "fail" in statuses else "warn" if "warn" in statuses else "pass"
+
+    def value(self, key):
+        return self.values[key].value

@@ -1,0 +1,398 @@
+"""Pressure let-down station: isenthalpic throttling and an optional spray desuperheater.
+
+Steam at the inlet pressure is throttled through a control valve to the outlet
+pressure. With no heat, no work and negligible changes of kinetic and
+potential energy in steady flow, the first law for the valve reduces to
+:math:`h_2 = h_1`. A spray desuperheater then mixes water into the throttled
+steam to reach a target temperature; its mass and energy balances give the
+spray-water flow.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from ..errors import InputError
+from ..steam import REFERENCE as IF97_REFERENCE
+from ..steam import SteamState, saturation_temperature
+from .base import Result, input_field
+
+KIND = "letdown"
+TITLE = "Pressure let-down station"
+WORKBOOK = "letdown.ipynb"
+
+#: Smallest desuperheat margin above saturation that spray desuperheaters hold
+#: stably, K (common practice).
+MIN_DESUPERHEAT_MARGIN = 5.0
+#: Spray-water pressure margin above the steam below which atomisation is doubtful, Pa
+#: (common practice; the nozzle maker's required differential governs).
+MIN_SPRAY_PRESSURE_MARGIN = 3e5
+#: Relative tolerance to which the energy balances must close.
+BALANCE_TOLERANCE = 1e-9
+
+CAUTIONS = (
+    "Equipment downstream of the let-down valve must be protected against the valve, or its "
+    "bypass, failing open: a relief device sized for that flow, to the local pressure-equipment code.",
+    "Steam and flashing condensate cause severe burns; relief and drain discharges must go to a "
+    "safe place.",
+    "A desuperheater that stops spraying (water failure, stuck valve) lets superheated steam into "
+    "the downstream system: check its design temperature against the throttled temperature.",
+    "These results support design by a competent engineer; they do not replace the applicable "
+    "codes, the equipment makers' data or a licensed engineer's approval.",
+)
+
+
+@dataclass(frozen=True)
+class Inputs:
+    """Inputs of a let-down station; values in SI (Pa absolute, K, kg/s).
+
+    The inlet state takes exactly one of inlet_temperature, inlet_superheat and
+    inlet_dryness. The desuperheater is used when a target is given; it then needs
+    the spray water's temperature and pressure.
+    """
+
+    inlet_pressure: float = input_field(
+        "pressure", "Inlet pressure", "Steam pressure upstream of the let-down valve.",
+        example="16 bar(g)")
+    outlet_pressure: float = input_field(
+        "pressure", "Outlet pressure", "Pressure downstream of the station (a site header or a pressure).",
+        example="header:LP")
+    mass_flow: float = input_field(
+        "mass_flow", "Steam flow", "Steam flow through the let-down valve.", example="4.5 t/h")
+    inlet_temperature: float | None = input_field(
+        "temperature", "Inlet temperature", "Inlet steam temperature (superheated steam).",
+        example="230 degC")
+    inlet_superheat: float | None = input_field(
+        "temperature_difference", "Inlet superheat", "Inlet temperature above saturation.",
+        example="25 K")
+    inlet_dryness: float | None = input_field(
+        "fraction", "Inlet dryness fraction", "Vapour mass fraction of wet or saturated inlet steam.",
+        example="0.98")
+    target_superheat: float | None = input_field(
+        "temperature_difference", "Target superheat", "Desuperheated steam temperature above outlet saturation.",
+        example="10 K", section="desuperheater")
+    target_temperature: float | None = input_field(
+        "temperature", "Target temperature", "Desuperheated steam temperature.",
+        example="150 degC", section="desuperheater")
+    water_temperature: float | None = input_field(
+        "temperature", "Spray water temperature", "Temperature of the spray water at the nozzle.",
+        example="105 degC", section="desuperheater")
+    water_pressure: float | None = input_field(
+        "pressure", "Spray water pressure", "Pressure of the spray water at the nozzle.",
+        example="20 bar(g)", section="desuperheater")
+
+    def __post_init__(self):
+        for name in ("inlet_pressure", "outlet_pressure", "mass_flow"):
+            if getattr(self, name) is None:
+                raise InputError("is required", field=name,
+                                 fix=f"add {name} to [inputs]")
+        if self.mass_flow <= 0.0:
+            raise InputError(f"steam flow must be above zero, got {self.mass_flow * 3600:g} kg/h",
+                             field="mass_flow", value=self.mass_flow * 3600, fix="give a positive flow")
+        inlet_given = [n for n in ("inlet_temperature", "inlet_superheat", "inlet_dryness")
+                       if getattr(self, n) is not None]
+        if len(inlet_given) != 1:
+            raise InputError(
+                "the inlet state needs exactly one of inlet_temperature, inlet_superheat, inlet_dryness"
+                + (f"; given: {', '.join(inlet_given)}" if inlet_given else ""),
+                field=inlet_given[1] if len(inlet_given) > 1 else "inlet_temperature",
+                fix="keep one of them")
+        if self.inlet_superheat is not None and self.inlet_superheat <= 0.0:
+            raise InputError("inlet superheat must be above 0 K", field="inlet_superheat",
+                             value=self.inlet_superheat,
+                             fix="for saturated steam give inlet_dryness = 1.0 instead")
+        targets = [n for n in ("target_superheat", "target_temperature") if getattr(self, n) is not None]
+        if len(targets) > 1:
+            raise InputError("give target_superheat or target_temperature, not both",
+                             field="target_temperature", fix="keep one of them")
+        if targets:
+            for name in ("water_temperature", "water_pressure"):
+                if getattr(self, name) is None:
+                    raise InputError("the desuperheater needs the spray water's temperature and pressure",
+                                     field=f"desuperheater.{name}", fix=f"add {name} to [inputs.desuperheater]")
+        elif self.water_temperature is not None or self.water_pressure is not None:
+            raise InputError("spray water is given but no desuperheater target",
+                             field="desuperheater.target_superheat",
+                             fix="add target_superheat or target_temperature, or remove [inputs.desuperheater]")
+
+    @property
+    def desuperheating(self):
+        """True when a desuperheater target is given."""
+        return self.target_superheat is not None or self.target_temperature is not None
+
+
+def _bar(p):
+    return f"{p / 1e5:.4g} bar(a)"
+
+
+def _degc(t):
+    return f"{t - 273.15:.2f} °C"
+
+
+def _kj(h):
+    return f"{h / 1e3:.2f} kJ/kg"
+
+
+def _phase_word(state):
+    """The record's phase word: superheated, wet or saturated (design §3.4)."""
+    if state.phase == "superheated vapour":
+        return "superheated"
+    if state.phase == "wet":
+        return "wet"
+    if state.phase in ("saturated vapour", "saturated liquid"):
+        return "saturated"
+    return state.phase
+
+
+def _dryness(state):
+    # Steam-table convention: a superheated state is reported with dryness 1.
+    return 1.0 if state.dryness is None else state.dryness
+
+
+def _inlet_state(inputs, result):
+    p1 = inputs.inlet_pressure
+    t_sat = saturation_temperature(p1)
+    if inputs.inlet_temperature is not None:
+        if inputs.inlet_temperature < t_sat - 1e-6:
+            raise InputError(
+                f"inlet temperature {_degc(inputs.inlet_temperature)} is below saturation "
+                f"({_degc(t_sat)}) at {_bar(p1)}: that is liquid, not steam",
+                field="inlet_temperature", fix="check the pressure basis (bar(g)/bar(a)) and the temperature, "
+                "or give inlet_dryness for wet steam")
+        state = SteamState.from_pT(p1, inputs.inlet_temperature)
+        result.step("Inlet enthalpy", "h1 = h(p1, T1)  [IF97]",
+                    f"h1 = h({_bar(p1)}, {_degc(state.temperature)})", state.enthalpy / 1e3, "kJ/kg")
+    elif inputs.inlet_superheat is not None:
+        state = SteamState.from_pT(p1, t_sat + inputs.inlet_superheat)
+        result.step("Inlet temperature", "T1 = T_sat(p1) + ΔT_sh,1",
+                    f"T1 = {_degc(t_sat)} + {inputs.inlet_superheat:.2f} K", state.temperature - 273.15, "degC")
+        result.step("Inlet enthalpy", "h1 = h(p1, T1)  [IF97]",
+                    f"h1 = h({_bar(p1)}, {_degc(state.temperature)})", state.enthalpy / 1e3, "kJ/kg")
+    else:
+        state = SteamState.from_p_dryness(p1, inputs.inlet_dryness)
+        sat_liquid = SteamState.from_p_dryness(p1, 0.0)
+        sat_vapour = SteamState.from_p_dryness(p1, 1.0)
+        result.step("Inlet enthalpy", "h1 = h_f(p1) + x1·(h_g(p1) − h_f(p1))",
+                    f"h1 = {_kj(sat_liquid.enthalpy)} + {inputs.inlet_dryness:.4f} × "
+                    f"({_kj(sat_vapour.enthalpy)} − {_kj(sat_liquid.enthalpy)})",
+                    state.enthalpy / 1e3, "kJ/kg")
+    return state, t_sat
+
+
+def calculate(inputs, site):
+    """Outlet state of a let-down station, and the spray water of its desuperheater.
+
+    Parameters
+    ----------
+    inputs : Inputs
+        Inlet pressure (Pa), outlet pressure (Pa), steam flow (kg/s), one inlet
+        specification, and optionally a desuperheater target (K) with spray water
+        temperature (K) and pressure (Pa).
+    site : steamcalc.site.Site
+        Site data (the atmosphere has already been applied to gauge inputs).
+
+    Returns
+    -------
+    Result
+        Values ``outlet_temperature`` (degC), ``outlet_phase``, ``outlet_dryness``,
+        ``outlet_superheat`` (K), ``outlet_enthalpy`` (kJ/kg), ``outlet_mass_flow``
+        (kg/h), ``spray_water_flow`` (kg/h, when desuperheating), with the
+        throttled (valve outlet) state, steps, checks and cautions.
+
+    Notes
+    -----
+    Valve, steady flow energy equation with :math:`Q = 0`, :math:`W = 0` and
+    negligible kinetic and potential energy changes:
+
+    .. math:: h_2 = h_1
+
+    Desuperheater, mass and energy balances for adiabatic mixing:
+
+    .. math:: \\dot m_w = \\dot m_s \\frac{h_2 - h_3}{h_3 - h_w}, \\qquad
+              \\dot m_3 = \\dot m_s + \\dot m_w
+
+    References
+    ----------
+    IAPWS R7-97(2012), IAPWS-IF97, for every property. The steady-flow energy
+    equation as in any engineering-thermodynamics text (e.g. Rogers & Mayhew,
+    Engineering Thermodynamics: Work and Heat Transfer, ch. 4).
+
+    Examples
+    --------
+    >>> from steamcalc.site import Site
+    >>> r = calculate(Inputs(inlet_pressure=15e5, outlet_pressure=1e5, mass_flow=1.0,
+    ...                      inlet_temperature=623.15), Site())
+    >>> r.value("outlet_phase"), round(r.value("outlet_temperature"), 1)
+    ('superheated', 336.4)
+    """
+    result = Result()
+    result.references.extend([
+        IF97_REFERENCE,
+        "Steady-flow energy equation for a throttling device and for adiabatic mixing "
+        "(any engineering-thermodynamics text)",
+    ])
+    result.assumptions.extend([
+        "Adiabatic valve: Q = 0",
+        "No shaft work in the valve: W = 0",
+        "Changes of kinetic and potential energy across the station neglected",
+        "Steady state",
+        "Throttling is isenthalpic: h2 = h1",
+        f"Gauge pressures converted with the site atmosphere of {site.atmospheric_pressure / 1e5:.5g} bar(a)",
+    ])
+    result.cautions.extend(CAUTIONS)
+
+    p1, p2, flow = inputs.inlet_pressure, inputs.outlet_pressure, inputs.mass_flow
+    if p2 >= p1:
+        raise InputError(
+            f"outlet pressure {_bar(p2)} is not below the inlet pressure {_bar(p1)}",
+            field="outlet_pressure", fix="a let-down lowers the pressure: check the pressures and their basis")
+
+    inlet, t_sat1 = _inlet_state(inputs, result)
+    result.add("inlet_saturation_temperature", "Inlet saturation temperature", t_sat1 - 273.15, "degC")
+    result.add("inlet_temperature", "Inlet temperature", inlet.temperature - 273.15, "degC")
+    result.add("inlet_phase", "Inlet phase", _phase_word(inlet))
+    result.add("inlet_dryness", "Inlet dryness fraction", _dryness(inlet))
+    result.add("inlet_superheat", "Inlet superheat", inlet.superheat, "K")
+    result.add("inlet_enthalpy", "Inlet enthalpy", inlet.enthalpy / 1e3, "kJ/kg")
+    result.add("inlet_mass_flow", "Inlet steam flow", flow * 3600, "kg/h")
+    result.check("Outlet pressure below inlet", "pass",
+                 f"pressure drop {(p1 - p2) / 1e5:.4g} bar across the station")
+    if inlet.phase == "wet":
+        result.check("Inlet steam state", "warn",
+                     f"wet inlet steam (dryness {inlet.dryness:.3f}): erosion of the valve trim and "
+                     "water carried over downstream; fit a separator with a trap upstream (common practice)")
+    else:
+        result.check("Inlet steam state", "pass", f"inlet steam {_phase_word(inlet)}")
+
+    throttled = SteamState.from_ph(p2, inlet.enthalpy)
+    t_sat2 = saturation_temperature(p2)
+    result.step("Throttling", "h2 = h1  (Q = 0, W = 0, Δke = Δpe = 0)",
+                f"h2 = {_kj(inlet.enthalpy)}", throttled.enthalpy / 1e3, "kJ/kg")
+    result.step("Outlet saturation temperature", "T_sat,2 = T_sat(p2)  [IF97 region 4]",
+                f"T_sat({_bar(p2)})", t_sat2 - 273.15, "degC")
+    result.step("Throttled temperature", "T2 = T(p2, h2)  [IF97]",
+                f"T2 = T({_bar(p2)}, {_kj(throttled.enthalpy)})", throttled.temperature - 273.15, "degC")
+    if throttled.phase == "wet":
+        liquid, vapour = SteamState.from_p_dryness(p2, 0.0), SteamState.from_p_dryness(p2, 1.0)
+        result.step("Throttled dryness fraction", "x2 = (h2 − h_f(p2)) / (h_g(p2) − h_f(p2))",
+                    f"x2 = ({_kj(throttled.enthalpy)} − {_kj(liquid.enthalpy)}) / "
+                    f"({_kj(vapour.enthalpy)} − {_kj(liquid.enthalpy)})", throttled.dryness)
+    else:
+        result.step("Throttled superheat", "ΔT_sh,2 = T2 − T_sat,2",
+                    f"ΔT_sh,2 = {_degc(throttled.temperature)} − {_degc(t_sat2)}", throttled.superheat, "K")
+    result.add("outlet_saturation_temperature", "Outlet saturation temperature", t_sat2 - 273.15, "degC")
+    result.add("throttled_temperature", "Temperature after the valve", throttled.temperature - 273.15, "degC")
+    result.add("throttled_phase", "Phase after the valve", _phase_word(throttled))
+    result.add("throttled_dryness", "Dryness fraction after the valve", _dryness(throttled))
+    result.add("throttled_superheat", "Superheat after the valve", throttled.superheat, "K")
+
+    outlet, outlet_flow = throttled, flow
+    if inputs.desuperheating:
+        outlet, outlet_flow = _desuperheat(inputs, throttled, t_sat2, result)
+
+    result.add("outlet_temperature", "Outlet temperature", outlet.temperature - 273.15, "degC")
+    result.add("outlet_phase", "Outlet phase", _phase_word(outlet))
+    result.add("outlet_dryness", "Outlet dryness fraction", _dryness(outlet))
+    result.add("outlet_superheat", "Outlet superheat", outlet.superheat, "K")
+    result.add("outlet_enthalpy", "Outlet enthalpy", outlet.enthalpy / 1e3, "kJ/kg")
+    result.add("outlet_mass_flow", "Outlet steam flow", outlet_flow * 3600, "kg/h")
+
+    if outlet.phase == "wet":
+        result.check("Outlet steam state", "warn",
+                     f"wet steam leaves the station (dryness {outlet.dryness:.3f}): erosion and "
+                     "waterhammer risk; drain the outlet line with a trap (common practice)")
+    else:
+        result.check("Outlet steam state", "pass",
+                     f"outlet steam {_phase_word(outlet)}, {outlet.superheat:.1f} K superheat")
+    return result
+
+
+def _desuperheat(inputs, throttled, t_sat2, result):
+    p2, steam_flow = throttled.pressure, inputs.mass_flow
+    if inputs.target_superheat is not None:
+        target_t = t_sat2 + inputs.target_superheat
+        field = "desuperheater.target_superheat"
+        result.step("Desuperheat target temperature", "T3 = T_sat,2 + ΔT_sh,3",
+                    f"T3 = {_degc(t_sat2)} + {inputs.target_superheat:.2f} K", target_t - 273.15, "degC")
+    else:
+        target_t = inputs.target_temperature
+        field = "desuperheater.target_temperature"
+    margin = target_t - t_sat2
+    if margin <= 0.0:
+        raise InputError(
+            f"desuperheat target {_degc(target_t)} is not above saturation ({_degc(t_sat2)}) at {_bar(p2)}",
+            field=field, fix=f"set the target at least {MIN_DESUPERHEAT_MARGIN:g} K above saturation")
+    water_t, water_p = inputs.water_temperature, inputs.water_pressure
+    if water_t >= target_t:
+        raise InputError(
+            f"spray water at {_degc(water_t)} is not colder than the target {_degc(target_t)}",
+            field="desuperheater.water_temperature", fix="spray water must be colder than the target steam")
+    if water_p <= p2:
+        raise InputError(
+            f"spray water at {_bar(water_p)} is not above the steam pressure {_bar(p2)}: it cannot be injected",
+            field="desuperheater.water_pressure", fix="give the water pressure at the nozzle, above the steam")
+    if water_t >= saturation_temperature(water_p) - 1e-6:
+        raise InputError(
+            f"spray water at {_degc(water_t)} and {_bar(water_p)} is not liquid",
+            field="desuperheater.water_temperature", fix="spray water must be subcooled liquid at the nozzle")
+    target = SteamState.from_pT(p2, target_t)
+    water = SteamState.from_pT(water_p, water_t)
+    result.step("Desuperheated steam enthalpy", "h3 = h(p2, T3)  [IF97]",
+                f"h3 = h({_bar(p2)}, {_degc(target_t)})", target.enthalpy / 1e3, "kJ/kg")
+    result.step("Spray water enthalpy", "h_w = h(p_w, T_w)  [IF97 region 1]",
+                f"h_w = h({_bar(water_p)}, {_degc(water_t)})", water.enthalpy / 1e3, "kJ/kg")
+    result.assumptions.extend([
+        "Desuperheater: adiabatic mixing; the spray evaporates completely before the outlet",
+        "Spray water enthalpy at its stated temperature and pressure at the nozzle",
+    ])
+
+    if margin < MIN_DESUPERHEAT_MARGIN:
+        result.check("Desuperheat margin above saturation", "warn",
+                     f"target {margin:.1f} K above saturation, below {MIN_DESUPERHEAT_MARGIN:g} K: spray "
+                     "desuperheaters control poorly this close to saturation and water may not evaporate "
+                     "(common practice)")
+    else:
+        result.check("Desuperheat margin above saturation", "pass",
+                     f"target {margin:.1f} K above saturation (at least {MIN_DESUPERHEAT_MARGIN:g} K, "
+                     "common practice)")
+    result.check("Spray water colder than target", "pass",
+                 f"water {_degc(water_t)} below target {_degc(target_t)}")
+    pressure_margin = water_p - p2
+    if pressure_margin < MIN_SPRAY_PRESSURE_MARGIN:
+        result.check("Spray water pressure above steam", "warn",
+                     f"water only {pressure_margin / 1e5:.2f} bar above the steam: atomisation doubtful "
+                     f"below about {MIN_SPRAY_PRESSURE_MARGIN / 1e5:g} bar (common practice; the nozzle "
+                     "maker's required differential governs)")
+    else:
+        result.check("Spray water pressure above steam", "pass",
+                     f"water {pressure_margin / 1e5:.2f} bar above the steam")
+
+    result.add("desuperheat_target_temperature", "Desuperheat target temperature", target_t - 273.15, "degC")
+    result.add("spray_water_enthalpy", "Spray water enthalpy", water.enthalpy / 1e3, "kJ/kg")
+    if throttled.enthalpy <= target.enthalpy:
+        result.check("Desuperheat target reachable", "fail",
+                     f"steam after the valve ({_degc(throttled.temperature)}) is not hotter than the target "
+                     f"({_degc(target_t)}): spraying water cannot reach it; no spray flow is computed")
+        result.add("spray_water_flow", "Spray water flow", 0.0, "kg/h")
+        return throttled, steam_flow
+
+    spray = steam_flow * (throttled.enthalpy - target.enthalpy) / (target.enthalpy - water.enthalpy)
+    outlet_flow = steam_flow + spray
+    result.step("Spray water flow", "m_w = m_s·(h2 − h3) / (h3 − h_w)",
+                f"m_w = {steam_flow * 3600:.1f} kg/h × ({_kj(throttled.enthalpy)} − {_kj(target.enthalpy)}) / "
+                f"({_kj(target.enthalpy)} − {_kj(water.enthalpy)})", spray * 3600, "kg/h")
+    result.step("Outlet steam flow", "m_3 = m_s + m_w",
+                f"m_3 = {steam_flow * 3600:.1f} kg/h + {spray * 3600:.1f} kg/h", outlet_flow * 3600, "kg/h")
+    result.add("spray_water_flow", "Spray water flow", spray * 3600, "kg/h")
+    result.add("desuperheater_heat_absorbed", "Heat taken up by the spray water",
+               spray * (target.enthalpy - water.enthalpy) / 1e3, "kW")
+
+    energy_in = steam_flow * throttled.enthalpy + spray * water.enthalpy
+    energy_out = outlet_flow * target.enthalpy
+    residual = abs(energy_in - energy_out) / energy_out
+    result.check("Desuperheat target reachable", "pass",
+                 f"steam after the valve {_degc(throttled.temperature)} is above the target {_degc(target_t)}")
+    result.check("Desuperheater energy balance closes",
+                 "pass" if residual <= BALANCE_TOLERANCE else "fail",
+                 f"relative residual {residual:.1e} (tolerance {BALANCE_TOLERANCE:.0e})")
+    return target, outlet_flow

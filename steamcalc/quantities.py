@@ -1,0 +1,289 @@
+"""Quantity strings at the edges: parsing, the site atmosphere and record units.
+
+Inside a calculation every number is in one SI set: pressure in Pa (absolute),
+temperature in K, temperature difference in K, mass flow in kg/s, specific
+enthalpy in J/kg. Strings such as ``"16 bar(g)"`` are turned into those numbers
+once, here, with pint; records store values in the engineering units of
+:data:`RECORD_UNITS`, each with a unit string that pint can parse.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+
+import pint
+
+from .errors import UnitError
+
+ureg = pint.UnitRegistry()
+Q_ = ureg.Quantity
+
+#: Standard atmosphere at sea level, Pa (ISO 2533:1975).
+STANDARD_ATMOSPHERE = 101325.0
+
+#: Quantity kinds that inputs and results can have: SI unit used inside
+#: calculations, unit stored in records, and the pint dimensionality.
+SI_UNITS = {
+    "pressure": "Pa",
+    "temperature": "K",
+    "temperature_difference": "K",
+    "mass_flow": "kg/s",
+    "specific_enthalpy": "J/kg",
+    "specific_entropy": "J/(kg*K)",
+    "power": "W",
+    "length": "m",
+    "dimensionless": "",
+}
+
+RECORD_UNITS = {
+    "pressure": "bar",
+    "temperature": "degC",
+    "temperature_difference": "K",
+    "mass_flow": "kg/h",
+    "specific_enthalpy": "kJ/kg",
+    "specific_entropy": "kJ/(kg*K)",
+    "power": "kW",
+    "length": "m",
+    "dimensionless": "",
+}
+
+_EXAMPLES = {
+    "pressure": "'16 bar(g)' or '17 bar(a)'",
+    "temperature": "'230 degC'",
+    "temperature_difference": "'10 K'",
+    "mass_flow": "'4.5 t/h' or '1.25 kg/s'",
+    "length": "'180 m'",
+}
+
+_NUMBER = r"[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?"
+_SPLIT = re.compile(rf"^\s*({_NUMBER})\s*(.*?)\s*$")
+
+# Pressure units and their size in Pa. Each must be followed by its basis.
+_PRESSURE_UNITS = {"bar": 1e5, "mbar": 100.0, "Pa": 1.0, "kPa": 1e3, "MPa": 1e6, "psi": 6894.757293168361}
+# Basis written as a bare letter straight after the unit is accepted where the trade writes it so.
+_LETTER_BASIS = {"bar", "mbar", "psi"}
+_PRESSURE = re.compile(
+    rf"^\s*(?P<number>{_NUMBER})\s*(?P<unit>mbar|bar|kPa|MPa|Pa|psi)\s*"
+    r"(?:\((?P<paren>[aAgG])\)|(?P<letter>[aAgG]))?\s*$"
+)
+
+
+def standard_atmosphere_pressure(elevation):
+    """Atmospheric pressure at an elevation, from the standard atmosphere.
+
+    Parameters
+    ----------
+    elevation : float
+        Elevation above mean sea level, m. Valid from -500 m to 11 000 m (the troposphere).
+
+    Returns
+    -------
+    float
+        Atmospheric pressure, Pa (absolute).
+
+    Notes
+    -----
+    Troposphere of the standard atmosphere, with sea-level pressure
+    :math:`p_0` = 101 325 Pa, temperature 288.15 K and lapse rate 0.0065 K/m:
+
+    .. math:: p = p_0 \\left(1 - 2.25577\\times10^{-5}\\, z\\right)^{5.25588}
+
+    References
+    ----------
+    ISO 2533:1975, Standard Atmosphere (troposphere, equation for pressure).
+
+    Examples
+    --------
+    >>> round(standard_atmosphere_pressure(0.0))
+    101325
+    >>> round(standard_atmosphere_pressure(180.0) / 1e5, 4)
+    0.9918
+    """
+    from .errors import OutOfRangeError
+
+    if not (-500.0 <= elevation <= 11000.0) or math.isnan(elevation):
+        raise OutOfRangeError(
+            "elevation outside the troposphere of the standard atmosphere",
+            field="elevation", value=elevation, limits=(-500, 11000, "m"),
+            fix="give atmospheric_pressure in the site file instead",
+        )
+    return STANDARD_ATMOSPHERE * (1.0 - 2.25577e-5 * elevation) ** 5.25588
+
+
+def parse_pressure(text, field, atmospheric_pressure=STANDARD_ATMOSPHERE):
+    """Parse a pressure string that states its basis; return absolute pressure.
+
+    Parameters
+    ----------
+    text : str
+        e.g. ``"16 bar(g)"``, ``"17 bara"``, ``"250 kPa(a)"``, ``"35 psig"``.
+    field : str
+        Name of the input, used in error messages.
+    atmospheric_pressure : float
+        Site atmospheric pressure, Pa (absolute), used for gauge values.
+
+    Returns
+    -------
+    float
+        Absolute pressure, Pa.
+
+    Notes
+    -----
+    :math:`p_{abs} = p_{gauge} + p_{atm}`. A pressure without its basis is refused,
+    because the two readings differ by about one bar.
+
+    References
+    ----------
+    Common practice for pressure notation (bar(g), bar(a)).
+
+    Examples
+    --------
+    >>> parse_pressure("16 bar(g)", "inlet_pressure")
+    1701325.0
+    >>> parse_pressure("2 bara", "outlet_pressure")
+    200000.0
+    """
+    if not isinstance(text, str):
+        raise UnitError(
+            "a pressure needs a unit and its basis", field=field, value=text,
+            fix=f"write it as a string, e.g. {_EXAMPLES['pressure']}",
+        )
+    match = _PRESSURE.match(text)
+    if match is None:
+        split = _SPLIT.match(text)
+        unit = split.group(2) if split else ""
+        if split and _is_dimension(unit, "[pressure]"):
+            raise UnitError(
+                f"pressure unit '{unit}' is not one steamcalc reads with a basis",
+                field=field, value=text,
+                fix="use bar(a), bar(g), bara, barg, kPa(a), kPa(g), MPa(a), MPa(g), psia or psig",
+            )
+        raise UnitError(
+            f"'{text}' is not a pressure", field=field, value=text,
+            fix=f"give a number, a unit and its basis, e.g. {_EXAMPLES['pressure']}",
+        )
+    unit = match.group("unit")
+    basis = match.group("paren") or match.group("letter")
+    if match.group("letter") and unit not in _LETTER_BASIS:
+        basis = None
+    if basis is None:
+        raise UnitError(
+            f"'{text}' does not say whether it is absolute or gauge",
+            field=field, value=text,
+            fix=f"write '{match.group('number')} {unit}(a)' for absolute or "
+            f"'{match.group('number')} {unit}(g)' for gauge",
+        )
+    value = float(match.group("number")) * _PRESSURE_UNITS[unit]
+    if basis.lower() == "g":
+        value += atmospheric_pressure
+    if value <= 0.0:
+        raise UnitError(
+            f"'{text}' is an absolute pressure of {value / 1e5:.5g} bar(a), at or below zero",
+            field=field, value=text, fix="a vacuum is given as an absolute pressure above zero",
+        )
+    return value
+
+
+def _is_dimension(unit_text, dimension):
+    try:
+        return Q_(1.0, unit_text).dimensionality == ureg.parse_expression(_DIM_PROBE[dimension]).dimensionality
+    except Exception:
+        return False
+
+
+_DIM_PROBE = {"[pressure]": "Pa", "[temperature]": "K", "[mass_flow]": "kg/s", "[length]": "m"}
+_OFFSET_UNITS = {"degC", "°C", "degF", "°F", "celsius", "fahrenheit", "degree_Celsius", "degree_Fahrenheit"}
+
+
+def parse_quantity(text, field, kind):
+    """Parse a quantity string of a known kind into the SI unit of :data:`SI_UNITS`.
+
+    Parameters
+    ----------
+    text : str
+        e.g. ``"230 degC"``, ``"10 K"``, ``"4.5 t/h"``.
+    field : str
+        Name of the input, used in error messages.
+    kind : str
+        One of ``temperature``, ``temperature_difference``, ``mass_flow``, ``length``
+        (pressures go through :func:`parse_pressure`).
+
+    Returns
+    -------
+    float
+        The value in the SI unit of that kind (K, K, kg/s, m).
+
+    References
+    ----------
+    Unit definitions of pint's default registry (SI, ISO 80000).
+
+    Examples
+    --------
+    >>> parse_quantity("4.5 t/h", "mass_flow", "mass_flow")
+    1.25
+    >>> parse_quantity("230 degC", "inlet_temperature", "temperature")
+    503.15
+    """
+    example = _EXAMPLES.get(kind, "")
+    if not isinstance(text, str):
+        raise UnitError(
+            "a quantity needs a unit", field=field, value=text,
+            fix=f"write it as a string with its unit, e.g. {example}",
+        )
+    text = text.replace("°C", "degC").replace("°F", "degF").replace("℃", "degC")
+    split = _SPLIT.match(text)
+    if split is None:
+        raise UnitError(f"'{text}' is not a number followed by a unit", field=field, value=text,
+                        fix=f"e.g. {example}")
+    number, unit = float(split.group(1)), split.group(2)
+    if not unit:
+        raise UnitError(f"'{text}' has no unit", field=field, value=text, fix=f"e.g. {example}")
+    if kind == "temperature_difference" and unit in _OFFSET_UNITS:
+        raise UnitError(
+            f"'{text}' is a temperature, but {field} is a temperature difference",
+            field=field, value=text, fix=f"write '{split.group(1)} K' or '{split.group(1)} delta_degC'",
+        )
+    try:
+        quantity = Q_(number, unit)
+    except Exception:
+        raise UnitError(f"unit '{unit}' is not known", field=field, value=text, fix=f"e.g. {example}") from None
+    si_unit = SI_UNITS[kind]
+    try:
+        value = quantity.to(si_unit).magnitude
+    except pint.DimensionalityError:
+        raise UnitError(
+            f"'{text}' is not a {kind.replace('_', ' ')}", field=field, value=text,
+            fix=f"give a {kind.replace('_', ' ')}, e.g. {example}",
+        ) from None
+    if kind == "temperature" and value <= 0.0:
+        raise UnitError(f"'{text}' is at or below absolute zero", field=field, value=text)
+    return float(value)
+
+
+def to_record_unit(value_si, kind):
+    """Convert an SI value of a quantity kind to the unit stored in records.
+
+    Examples
+    --------
+    >>> round(to_record_unit(1701325.0, "pressure"), 6)
+    17.01325
+    >>> round(to_record_unit(503.15, "temperature"), 6)
+    230.0
+    """
+    if kind == "dimensionless":
+        return float(value_si)
+    return float(Q_(value_si, SI_UNITS[kind]).to(RECORD_UNITS[kind]).magnitude)
+
+
+def from_record_unit(value, unit, kind):
+    """Convert a record value with its unit string back to the SI unit of its kind.
+
+    Examples
+    --------
+    >>> from_record_unit(230.0, "degC", "temperature")
+    503.15
+    """
+    if kind == "dimensionless":
+        return float(value)
+    return float(Q_(value, unit).to(SI_UNITS[kind]).magnitude)

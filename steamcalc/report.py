@@ -1,0 +1,76 @@
+"""Render a record as a self-contained, printable HTML page and as Markdown.
+
+The HTML needs no network: styles are inline and there are no scripts. Every
+piece of user text is escaped (jinja2 autoescape), so a title with markup shows
+as text.
+"""
+
+from __future__ import annotations
+
+from importlib import resources
+
+import jinja2
+
+from .record import record_stem
+
+_UNIT_NAMES = {"degC": "°C", "kJ/(kg*K)": "kJ/(kg·K)", "": ""}
+
+
+def format_number(value):
+    """A result value as a report shows it: 5 significant digits, thousands kept whole.
+
+    Examples
+    --------
+    >>> format_number(196.23456), format_number(4500.0), format_number(0.987654)
+    ('196.23', '4500', '0.98765')
+    """
+    if value is None:
+        return "—"
+    if isinstance(value, bool) or not isinstance(value, (int, float)):
+        return str(value)
+    if abs(value) >= 1e5:
+        return f"{value:,.0f}"
+    return f"{value:.5g}"
+
+
+def format_unit(unit, absolute=False):
+    """A unit string for people: °C for degC; bar(a) for an absolute pressure in bar."""
+    if absolute and unit == "bar":
+        return "bar(a)"
+    return _UNIT_NAMES.get(unit, unit)
+
+
+def _md(text):
+    return str(text).replace("|", "\\|").replace("\n", " ")
+
+
+def _environment(autoescape):
+    env = jinja2.Environment(
+        loader=jinja2.FunctionLoader(
+            lambda name: resources.files("steamcalc").joinpath("templates", name).read_text("utf-8")),
+        autoescape=autoescape, undefined=jinja2.StrictUndefined, keep_trailing_newline=True,
+    )
+    env.filters["num"] = format_number
+    env.filters["unit"] = format_unit
+    env.filters["md"] = _md
+    return env
+
+
+def _context(record):
+    from .calcs import get_calculation
+
+    calc = get_calculation(record["kind"])
+    return {"r": record, "stem": record_stem(record), "kind_title": calc.TITLE}
+
+
+def render_html(record):
+    """The record as one self-contained HTML page (no scripts, no network)."""
+    return _environment(True).get_template("record.html.j2").render(**_context(record))
+
+
+def render_markdown(record):
+    """The record as Markdown."""
+    return _environment(False).get_template("record.md.j2").render(**_context(record))
+
+
+RENDERERS = {".html": render_html, ".md": render_markdown}

@@ -1,0 +1,382 @@
+"""Site data and case files (TOML, read with tomllib and never executed).
+
+A case file names its calculation kind, its identity (id, title, revision,
+preparer), an optional site file, its inputs and the engineer's own
+assumptions. :func:`load_case` reads and checks it; :func:`case_inputs` turns
+its ``[inputs]`` into the frozen ``Inputs`` of its kind, resolving headers
+(``"header:LP"``) and gauge pressures with the site's atmosphere.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+import tomllib
+from dataclasses import dataclass, field
+from pathlib import Path
+
+from .errors import CaseFileError, InputError, SteamcalcError, UnitError
+from .quantities import (
+    STANDARD_ATMOSPHERE, parse_pressure, parse_quantity, standard_atmosphere_pressure,
+)
+
+ID_PATTERN = re.compile(r"^[A-Za-z0-9._-]+$")
+CASE_KEYS = ("kind", "id", "title", "revision", "prepared_by", "site")
+SITE_KEYS = ("name", "elevation", "atmospheric_pressure", "operating_hours", "fuel_price",
+             "boiler_efficiency", "makeup_water_temperature", "power_price", "display_units")
+_PRICE = re.compile(r"^\s*([0-9.]+(?:[eE][+-]?\d+)?)\s*([A-Za-z]{1,5})\s*/\s*(MWh|kWh)\s*$")
+
+
+@dataclass(frozen=True)
+class Price:
+    """An energy price: amount per MWh in a currency that is only a label."""
+
+    per_mwh: float
+    currency: str
+
+    def __str__(self):
+        return f"{self.per_mwh:g} {self.currency}/MWh"
+
+
+@dataclass(frozen=True)
+class Site:
+    """Site data shared by a plant's cases. Pressures Pa (absolute), temperatures K."""
+
+    name: str = "unnamed site"
+    atmospheric_pressure: float = STANDARD_ATMOSPHERE
+    elevation: float | None = None
+    operating_hours: float | None = None
+    fuel_price: Price | None = None
+    boiler_efficiency: float | None = None
+    makeup_water_temperature: float | None = None
+    power_price: Price | None = None
+    display_units: str = "SI"
+    headers: dict = field(default_factory=dict)
+
+    def header_pressure(self, name, field_name):
+        """Absolute pressure of a named header, Pa."""
+        if name not in self.headers:
+            known = ", ".join(sorted(self.headers)) or "none (no site file, or it has no [headers])"
+            raise InputError(
+                f"header '{name}' is not in the site file", field=field_name, value=f"header:{name}",
+                fix=f"use one of the site's headers: {known}; or give a pressure such as '2.5 bar(g)'",
+            )
+        return self.headers[name]
+
+    def to_record(self):
+        """The record's ``site`` table, in record units."""
+        table = {"name": self.name,
+                 "atmospheric_pressure": {"value": self.atmospheric_pressure / 1e5, "unit": "bar"}}
+        if self.elevation is not None:
+            table["elevation"] = {"value": self.elevation, "unit": "m"}
+        if self.operating_hours is not None:
+            table["operating_hours"] = {"value": self.operating_hours, "unit": "h"}
+        for key in ("fuel_price", "power_price"):
+            price = getattr(self, key)
+            if price is not None:
+                table[key] = {"value": price.per_mwh, "unit": f"{price.currency}/MWh"}
+        if self.boiler_efficiency is not None:
+            table["boiler_efficiency"] = {"value": self.boiler_efficiency, "unit": ""}
+        if self.makeup_water_temperature is not None:
+            table["makeup_water_temperature"] = {"value": self.makeup_water_temperature - 273.15,
+                                                 "unit": "degC"}
+        table["display_units"] = self.display_units
+        table["headers"] = {k: {"value": v / 1e5, "unit": "bar"} for k, v in self.headers.items()}
+        return table
+
+    @classmethod
+    def from_record(cls, table):
+        """Rebuild a Site from a record's ``site`` table."""
+        def price(key):
+            entry = table.get(key)
+            return None if entry is None else Price(entry["value"], entry["unit"].split("/")[0])
+
+        def plain(key):
+            entry = table.get(key)
+            return None if entry is None else entry["value"]
+
+        makeup = plain("makeup_water_temperature")
+        return cls(
+            name=table.get("name", "unnamed site"),
+            atmospheric_pressure=table["atmospheric_pressure"]["value"] * 1e5,
+            elevation=plain("elevation"), operating_hours=plain("operating_hours"),
+            fuel_price=price("fuel_price"), boiler_efficiency=plain("boiler_efficiency"),
+            makeup_water_temperature=None if makeup is None else makeup + 273.15,
+            power_price=price("power_price"), display_units=table.get("display_units", "SI"),
+            headers={k: v["value"] * 1e5 for k, v in table.get("headers", {}).items()},
+        )
+
+
+def _read_toml(path, what):
+    path = Path(path)
+    try:
+        with path.open("rb") as handle:
+            return tomllib.load(handle)
+    except FileNotFoundError:
+        raise CaseFileError(f"{what} not found", source=path,
+                            fix="check the path (relative paths are from the current folder)") from None
+    except IsADirectoryError:
+        raise CaseFileError(f"{what} is a folder, not a file", source=path) from None
+    except tomllib.TOMLDecodeError as exc:
+        raise CaseFileError(f"not valid TOML: {exc}", source=path,
+                            fix="correct the TOML syntax at the line named") from None
+    except UnicodeDecodeError:
+        raise CaseFileError("not a text (UTF-8 TOML) file", source=path) from None
+
+
+def _unknown_keys(table, allowed, where, source):
+    for key in table:
+        if key not in allowed:
+            raise CaseFileError(
+                f"unknown key '{key}' in [{where}]", field=key, source=source,
+                fix=f"the keys [{where}] accepts are: {', '.join(allowed)}",
+            )
+
+
+def load_site(path):
+    """Read a site file.
+
+    Parameters
+    ----------
+    path : str or Path
+        The site TOML file (design §3.3).
+
+    Returns
+    -------
+    Site
+    """
+    data = _read_toml(path, "site file")
+    try:
+        _unknown_keys(data, ("site", "headers"), "top level", path)
+        table = data.get("site", {})
+        _unknown_keys(table, SITE_KEYS, "site", path)
+        if "elevation" in table and "atmospheric_pressure" in table:
+            raise CaseFileError("give elevation or atmospheric_pressure, not both", field="elevation")
+        elevation = None
+        atmosphere = STANDARD_ATMOSPHERE
+        if "elevation" in table:
+            elevation = parse_quantity(table["elevation"], "elevation", "length")
+            atmosphere = standard_atmosphere_pressure(elevation)
+        if "atmospheric_pressure" in table:
+            atmosphere = parse_pressure(table["atmospheric_pressure"], "atmospheric_pressure")
+        hours = None
+        if "operating_hours" in table:
+            hours = _parse_hours(table["operating_hours"])
+        efficiency = table.get("boiler_efficiency")
+        if efficiency is not None:
+            _fraction(efficiency, "boiler_efficiency", exclusive_zero=True)
+        makeup = table.get("makeup_water_temperature")
+        units = table.get("display_units", "SI")
+        if units not in ("SI", "US"):
+            raise CaseFileError("display_units must be 'SI' or 'US'", field="display_units", value=units)
+        headers = {}
+        for name, text in data.get("headers", {}).items():
+            headers[name] = parse_pressure(text, f"headers.{name}", atmosphere)
+        return Site(
+            name=str(table.get("name", Path(path).parent.name)), atmospheric_pressure=atmosphere,
+            elevation=elevation, operating_hours=hours,
+            fuel_price=_parse_price(table["fuel_price"], "fuel_price") if "fuel_price" in table else None,
+            boiler_efficiency=efficiency,
+            makeup_water_temperature=None if makeup is None else parse_quantity(
+                makeup, "makeup_water_temperature", "temperature"),
+            power_price=_parse_price(table["power_price"], "power_price") if "power_price" in table else None,
+            display_units=units, headers=headers,
+        )
+    except SteamcalcError as exc:
+        raise exc.with_source(path)
+
+
+def _parse_hours(text):
+    from .quantities import Q_
+    if not isinstance(text, str):
+        raise UnitError("operating_hours needs a unit", field="operating_hours", value=text,
+                        fix="e.g. '6000 h'")
+    try:
+        hours = Q_(text).to("h").magnitude
+    except Exception:
+        raise UnitError("not a time", field="operating_hours", value=text, fix="e.g. '6000 h'") from None
+    if not 0 < hours <= 8784:
+        raise InputError("operating hours per year must be above 0 and at most 8784",
+                         field="operating_hours", value=text)
+    return float(hours)
+
+
+def _parse_price(text, field_name):
+    match = _PRICE.match(text) if isinstance(text, str) else None
+    if match is None:
+        raise UnitError("a price is an amount, a currency and an energy unit", field=field_name,
+                        value=text, fix="e.g. '40 EUR/MWh' or '0.04 EUR/kWh'")
+    amount = float(match.group(1)) * (1000.0 if match.group(3) == "kWh" else 1.0)
+    return Price(amount, match.group(2))
+
+
+def _fraction(value, field_name, exclusive_zero=False):
+    if isinstance(value, bool) or not isinstance(value, (int, float)) or math.isnan(value):
+        raise InputError("must be a plain number from 0 to 1", field=field_name, value=value,
+                         fix="write it without quotes or units, e.g. 0.98")
+    if not (0.0 <= value <= 1.0) or (exclusive_zero and value == 0.0):
+        raise InputError("must lie from 0 to 1", field=field_name, value=value, limits=(0, 1, ""))
+    return float(value)
+
+
+@dataclass(frozen=True)
+class Case:
+    """A case file as read: identity, the raw ``[inputs]`` table and the engineer's notes."""
+
+    path: Path
+    kind: str
+    id: str
+    title: str
+    revision: str
+    prepared_by: str
+    site_path: Path | None
+    inputs: dict
+    notes: tuple = ()
+
+
+def load_case(path):
+    """Read and check a case file's structure (not yet its values).
+
+    Parameters
+    ----------
+    path : str or Path
+        The case TOML file (design §3.2).
+
+    Returns
+    -------
+    Case
+    """
+    from .calcs import get_calculation, kinds
+
+    path = Path(path)
+    data = _read_toml(path, "case file")
+    try:
+        _unknown_keys(data, ("case", "inputs", "assumptions"), "top level", path)
+        meta = data.get("case")
+        if meta is None:
+            raise CaseFileError("the file has no [case] table", fix="add [case] with kind and id")
+        _unknown_keys(meta, CASE_KEYS, "case", path)
+        kind = meta.get("kind")
+        if kind not in kinds():
+            raise CaseFileError(f"kind {kind!r} is not a calculation steamcalc knows", field="kind",
+                                fix=f"use one of: {', '.join(kinds())}")
+        case_id = meta.get("id")
+        if not isinstance(case_id, str) or not ID_PATTERN.match(case_id):
+            raise CaseFileError(
+                "the id becomes a file name, so it may hold only letters, digits, '.', '_' and '-'",
+                field="id", value=case_id, fix="e.g. id = \"LD-01\"")
+        if case_id in (".", "..") or case_id.startswith("."):
+            raise CaseFileError("the id may not start with '.'", field="id", value=case_id)
+        revision = str(meta.get("revision", "A"))
+        if not ID_PATTERN.match(revision) or revision.startswith("."):
+            raise CaseFileError("the revision may hold only letters, digits, '.', '_' and '-'",
+                                field="revision", value=revision)
+        assumptions = data.get("assumptions", {})
+        _unknown_keys(assumptions, ("notes",), "assumptions", path)
+        notes = assumptions.get("notes", [])
+        if not isinstance(notes, list) or not all(isinstance(n, str) for n in notes):
+            raise CaseFileError("notes must be a list of strings", field="assumptions.notes")
+        inputs = data.get("inputs")
+        if not isinstance(inputs, dict) or not inputs:
+            raise CaseFileError("the file has no [inputs] table", fix="add [inputs] with the case's inputs")
+        calc = get_calculation(kind)
+        check_input_keys(calc.Inputs, inputs)
+        site_path = meta.get("site")
+        return Case(
+            path=path, kind=kind, id=case_id, title=str(meta.get("title", case_id)), revision=revision,
+            prepared_by=str(meta.get("prepared_by", "")),
+            site_path=(path.parent / site_path) if site_path else None,
+            inputs=inputs, notes=tuple(notes),
+        )
+    except SteamcalcError as exc:
+        raise exc.with_source(path)
+
+
+def _sections(inputs_class):
+    from .calcs.base import input_fields
+    sections = {}
+    for f in input_fields(inputs_class):
+        sections.setdefault(f.metadata["section"], []).append(f.name)
+    return sections
+
+
+def check_input_keys(inputs_class, table):
+    """Refuse any key of ``[inputs]`` (or its sub-tables) that the kind does not accept."""
+    sections = _sections(inputs_class)
+    top = sections.get(None, [])
+    subtables = [s for s in sections if s is not None]
+    for key, value in table.items():
+        if key in subtables:
+            if not isinstance(value, dict):
+                raise CaseFileError(f"'{key}' must be a table [inputs.{key}]", field=key)
+            for sub in value:
+                if sub not in sections[key]:
+                    raise CaseFileError(
+                        f"unknown key '{sub}' in [inputs.{key}]", field=f"{key}.{sub}",
+                        fix=f"the keys [inputs.{key}] accepts are: {', '.join(sections[key])}")
+        elif key not in top:
+            raise CaseFileError(
+                f"unknown key '{key}' in [inputs]", field=key,
+                fix=f"the keys [inputs] accepts are: {', '.join(top + [f'[{s}]' for s in subtables])}")
+
+
+def flatten_inputs(inputs_class, table):
+    """The raw ``[inputs]`` table as one flat mapping of field name to the user's value."""
+    check_input_keys(inputs_class, table)
+    sections = _sections(inputs_class)
+    flat = {}
+    for key, value in table.items():
+        if key in sections and key is not None and isinstance(value, dict):
+            flat.update(value)
+        else:
+            flat[key] = value
+    return flat
+
+
+def parse_inputs(inputs_class, flat, site):
+    """Parse a flat mapping of the user's values into an Inputs object.
+
+    Returns
+    -------
+    tuple
+        ``(inputs, given)``: the frozen Inputs and the user's text for each field.
+    """
+    from .calcs.base import input_fields
+
+    values, given = {}, {}
+    for f in input_fields(inputs_class):
+        if f.name not in flat:
+            continue
+        raw = flat[f.name]
+        kind = f.metadata["kind"]
+        given[f.name] = raw if isinstance(raw, str) else repr(raw)
+        if kind == "pressure":
+            if isinstance(raw, str) and raw.strip().startswith("header:"):
+                values[f.name] = site.header_pressure(raw.split(":", 1)[1].strip(), f.name)
+            else:
+                values[f.name] = parse_pressure(raw, f.name, site.atmospheric_pressure)
+        elif kind == "fraction":
+            values[f.name] = _fraction(raw, f.name)
+        else:
+            values[f.name] = parse_quantity(raw, f.name, kind)
+    return inputs_class(**values), given
+
+
+def case_inputs(case, site):
+    """Inputs object and given texts of a loaded case, with its site."""
+    from .calcs import get_calculation
+
+    calc = get_calculation(case.kind)
+    try:
+        return parse_inputs(calc.Inputs, flatten_inputs(calc.Inputs, case.inputs), site)
+    except SteamcalcError as exc:
+        raise exc.with_source(case.path)
+
+
+def case_site(case, override=None):
+    """The Site a case runs against: the override, else the case's own site file, else defaults."""
+    if override is not None:
+        return load_site(override)
+    if case.site_path is not None:
+        return load_site(case.site_path)
+    return Site()
