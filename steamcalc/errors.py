@@ -37,6 +37,11 @@ class SteamcalcError(Exception):
         self.fix = fix
         self.source = source
 
+    def for_field(self, field):
+        """Return this error re-addressed to the input field that caused it."""
+        self.field = field
+        return self
+
     def with_source(self, source):
         """Return this error with the file it came from filled in (if not already)."""
         if self.source is None:
@@ -54,7 +59,7 @@ class SteamcalcError(Exception):
             parts.append(f"(given: {self.value!r})")
         if self.limits is not None:
             low, high, unit = self.limits
-            parts.append(f"Valid range: {low:g} to {high:g} {unit}.")
+            parts.append(f"Valid range: {low:g} to {high:g}{' ' + unit if unit else ''}.")
         if self.fix:
             parts.append(f"Fix: {self.fix}")
         return " ".join(parts)

@@ -44,8 +44,11 @@ REFERENCE = "IAPWS R7-97(2012), Revised Release on the IAPWS Industrial Formulat
 
 def _check(variable, value, low, high, unit, scale=1.0):
     if not (low <= value <= high) or math.isnan(value):
+        shown = f"{value / scale:.6g} {unit}".rstrip()
+        if unit == "K":
+            shown += f" ({value - 273.15:.6g} degC)"
         raise OutOfRangeError(
-            f"{variable} of {value / scale:.6g} {unit} is outside the range of IAPWS-IF97 used here",
+            f"{variable} of {shown} is outside the range of IAPWS-IF97 used here",
             field=variable, value=value / scale, limits=(low / scale, high / scale, unit),
         )
 

@@ -12,7 +12,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-from ..errors import InputError
+from ..errors import InputError, OutOfRangeError
 from ..steam import REFERENCE as IF97_REFERENCE
 from ..steam import SteamState, saturation_temperature
 from .base import Result, input_field
@@ -88,7 +88,7 @@ class Inputs:
                                  fix=f"add {name} to [inputs]")
         if self.mass_flow <= 0.0:
             raise InputError(f"steam flow must be above zero, got {self.mass_flow * 3600:g} kg/h",
-                             field="mass_flow", value=self.mass_flow * 3600, fix="give a positive flow")
+                             field="mass_flow", fix="give a positive flow")
         inlet_given = [n for n in ("inlet_temperature", "inlet_superheat", "inlet_dryness")
                        if getattr(self, n) is not None]
         if len(inlet_given) != 1:
@@ -150,6 +150,15 @@ def _dryness(state):
 
 
 def _inlet_state(inputs, result):
+    given = next(n for n in ("inlet_temperature", "inlet_superheat", "inlet_dryness")
+                 if getattr(inputs, n) is not None)
+    try:
+        return _inlet_state_from(inputs, result)
+    except OutOfRangeError as exc:
+        raise exc.for_field("inlet_pressure" if exc.field == "pressure" else given) from None
+
+
+def _inlet_state_from(inputs, result):
     p1 = inputs.inlet_pressure
     t_sat = saturation_temperature(p1)
     if inputs.inlet_temperature is not None:
@@ -264,8 +273,11 @@ def calculate(inputs, site):
     else:
         result.check("Inlet steam state", "pass", f"inlet steam {_phase_word(inlet)}")
 
-    throttled = SteamState.from_ph(p2, inlet.enthalpy)
-    t_sat2 = saturation_temperature(p2)
+    try:
+        throttled = SteamState.from_ph(p2, inlet.enthalpy)
+        t_sat2 = saturation_temperature(p2)
+    except OutOfRangeError as exc:
+        raise exc.for_field("outlet_pressure") from None
     result.step("Throttling", "h2 = h1  (Q = 0, W = 0, Δke = Δpe = 0)",
                 f"h2 = {_kj(inlet.enthalpy)}", throttled.enthalpy / 1e3, "kJ/kg")
     result.step("Outlet saturation temperature", "T_sat,2 = T_sat(p2)  [IF97 region 4]",
@@ -286,16 +298,18 @@ def calculate(inputs, site):
     result.add("throttled_dryness", "Dryness fraction after the valve", _dryness(throttled))
     result.add("throttled_superheat", "Superheat after the valve", throttled.superheat, "K")
 
-    outlet, outlet_flow = throttled, flow
+    outlet, spray = throttled, 0.0
     if inputs.desuperheating:
-        outlet, outlet_flow = _desuperheat(inputs, throttled, t_sat2, result)
+        outlet, spray = _desuperheat(inputs, throttled, t_sat2, result)
+    # Summed in the recorded unit so that the recorded mass balance closes exactly.
+    outlet_flow_kg_h = flow * 3600 + spray * 3600
 
     result.add("outlet_temperature", "Outlet temperature", outlet.temperature - 273.15, "degC")
     result.add("outlet_phase", "Outlet phase", _phase_word(outlet))
     result.add("outlet_dryness", "Outlet dryness fraction", _dryness(outlet))
     result.add("outlet_superheat", "Outlet superheat", outlet.superheat, "K")
     result.add("outlet_enthalpy", "Outlet enthalpy", outlet.enthalpy / 1e3, "kJ/kg")
-    result.add("outlet_mass_flow", "Outlet steam flow", outlet_flow * 3600, "kg/h")
+    result.add("outlet_mass_flow", "Outlet steam flow", outlet_flow_kg_h, "kg/h")
 
     if outlet.phase == "wet":
         result.check("Outlet steam state", "warn",
@@ -335,8 +349,15 @@ def _desuperheat(inputs, throttled, t_sat2, result):
         raise InputError(
             f"spray water at {_degc(water_t)} and {_bar(water_p)} is not liquid",
             field="desuperheater.water_temperature", fix="spray water must be subcooled liquid at the nozzle")
-    target = SteamState.from_pT(p2, target_t)
-    water = SteamState.from_pT(water_p, water_t)
+    try:
+        target = SteamState.from_pT(p2, target_t)
+    except OutOfRangeError as exc:
+        raise exc.for_field(field) from None
+    try:
+        water = SteamState.from_pT(water_p, water_t)
+    except OutOfRangeError as exc:
+        raise exc.for_field("desuperheater.water_pressure" if exc.field == "pressure"
+                            else "desuperheater.water_temperature") from None
     result.step("Desuperheated steam enthalpy", "h3 = h(p2, T3)  [IF97]",
                 f"h3 = h({_bar(p2)}, {_degc(target_t)})", target.enthalpy / 1e3, "kJ/kg")
     result.step("Spray water enthalpy", "h_w = h(p_w, T_w)  [IF97 region 1]",
@@ -374,7 +395,7 @@ def _desuperheat(inputs, throttled, t_sat2, result):
                      f"steam after the valve ({_degc(throttled.temperature)}) is not hotter than the target "
                      f"({_degc(target_t)}): spraying water cannot reach it; no spray flow is computed")
         result.add("spray_water_flow", "Spray water flow", 0.0, "kg/h")
-        return throttled, steam_flow
+        return throttled, 0.0
 
     spray = steam_flow * (throttled.enthalpy - target.enthalpy) / (target.enthalpy - water.enthalpy)
     outlet_flow = steam_flow + spray
@@ -395,4 +416,4 @@ def _desuperheat(inputs, throttled, t_sat2, result):
     result.check("Desuperheater energy balance closes",
                  "pass" if residual <= BALANCE_TOLERANCE else "fail",
                  f"relative residual {residual:.1e} (tolerance {BALANCE_TOLERANCE:.0e})")
-    return target, outlet_flow
+    return target, spray
