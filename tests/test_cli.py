@@ -126,7 +126,7 @@ BAD = {
     "negative flow": (_inputs_replaced('"4.5 t/h"', '"-4.5 t/h"'), "mass_flow"),
     "outlet above inlet": (_inputs_replaced('"header:LP"', '"20 bar(g)"'), "outlet_pressure"),
     "outlet equal inlet": (_inputs_replaced('"header:LP"', '"16 bar(g)"'), "outlet_pressure"),
-    "outside IF97": (_inputs_replaced('"230 degC"', '"1200 degC"'), "temperature"),
+    "outside IF97": (_inputs_replaced('"230 degC"', '"1200 degC"'), "inlet_temperature"),
     "unknown key": (_inputs_replaced("mass_flow =", "mass_flwo ="), "mass_flwo"),
     "unknown desuperheater key": (_inputs_replaced("water_pressure =", "water_presure ="), "water_presure"),
     "over-specified inlet": (_inputs_replaced('inlet_temperature = "230 degC"',
