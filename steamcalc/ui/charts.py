@@ -1,0 +1,90 @@
+"""Charts for the workbooks (plotly). Presentation only: states come from steamcalc.steam."""
+
+from __future__ import annotations
+
+from functools import lru_cache
+
+import numpy as np
+import plotly.graph_objects as go
+
+from ..steam import CRITICAL_PRESSURE, SteamState, saturation_temperature
+
+_COLOURS = {"saturation": "#5b6770", "inlet": "#b5442c", "outlet": "#2b6a99", "process": "#1d2327"}
+
+
+@lru_cache(maxsize=1)
+def saturation_dome():
+    """Saturated liquid and vapour lines on the h–s plane: (s, h) arrays in kJ/kg and kJ/(kg K)."""
+    pressures = np.concatenate([np.geomspace(0.01e5, 200e5, 70), [215e5, 220e5, CRITICAL_PRESSURE]])
+    liquid = [SteamState.from_p_dryness(p, 0.0) for p in pressures]
+    vapour = [SteamState.from_p_dryness(p, 1.0) for p in pressures]
+    states = liquid + vapour[::-1]
+    return np.array([s.entropy / 1e3 for s in states]), np.array([s.enthalpy / 1e3 for s in states])
+
+
+def isobar(pressure, entropy_low, entropy_high, points=40):
+    """An isobar on the h–s plane between two entropies (J/(kg K)): (s, h) arrays in kJ units."""
+    s_values = np.linspace(entropy_low, entropy_high, points)
+    states = [SteamState.from_ps(pressure, s) for s in s_values]
+    return np.array([s.entropy / 1e3 for s in states]), np.array([s.enthalpy / 1e3 for s in states])
+
+
+def letdown_chart(states, title="Let-down on the enthalpy–entropy chart"):
+    """The let-down process on an h–s chart.
+
+    Parameters
+    ----------
+    states : list of (label, SteamState)
+        Inlet, throttled and (when desuperheating) desuperheated states, in process order.
+    """
+    fig = go.Figure()
+    s_dome, h_dome = saturation_dome()
+    fig.add_trace(go.Scatter(x=s_dome, y=h_dome, mode="lines", name="saturation line",
+                             line=dict(color=_COLOURS["saturation"], width=1.5)))
+    entropies = [st.entropy for _, st in states]
+    s_low, s_high = min(entropies) - 400.0, max(entropies) + 400.0
+    seen = set()
+    for i, (label, state) in enumerate(states):
+        if round(state.pressure) in seen:
+            continue
+        seen.add(round(state.pressure))
+        s, h = isobar(state.pressure, s_low, s_high)
+        fig.add_trace(go.Scatter(
+            x=s, y=h, mode="lines", name=f"{state.pressure / 1e5:.3g} bar(a) isobar",
+            line=dict(color=_COLOURS["inlet"] if i == 0 else _COLOURS["outlet"], width=1, dash="dot")))
+    fig.add_trace(go.Scatter(
+        x=[st.entropy / 1e3 for _, st in states], y=[st.enthalpy / 1e3 for _, st in states],
+        mode="lines+markers+text", name="process", text=[label for label, _ in states],
+        textposition="top right", marker=dict(size=9, color=_COLOURS["process"]),
+        line=dict(color=_COLOURS["process"], width=2)))
+    h_all = [st.enthalpy / 1e3 for _, st in states]
+    fig.update_layout(
+        title=title, xaxis_title="specific entropy s, kJ/(kg·K)", yaxis_title="specific enthalpy h, kJ/kg",
+        xaxis_range=[s_low / 1e3, s_high / 1e3], yaxis_range=[min(h_all) - 250, max(h_all) + 200],
+        template="simple_white", height=460, margin=dict(l=60, r=20, t=50, b=50),
+        legend=dict(orientation="h", y=-0.2),
+    )
+    return fig
+
+
+def letdown_states(inputs, result):
+    """The states a let-down chart marks, rebuilt from its inputs and result values."""
+    p1, p2 = inputs.inlet_pressure, inputs.outlet_pressure
+    inlet = SteamState.from_ph(p1, result.value("inlet_enthalpy") * 1e3)
+    throttled = SteamState.from_ph(p2, inlet.enthalpy)
+    states = [("1 inlet", inlet), ("2 after valve", throttled)]
+    if "spray_water_flow" in result.values and result.value("spray_water_flow") > 0.0:
+        states.append(("3 desuperheated", SteamState.from_ph(p2, result.value("outlet_enthalpy") * 1e3)))
+    return states
+
+
+CHARTS = {"letdown": lambda inputs, result: letdown_chart(letdown_states(inputs, result))}
+
+
+def chart_for(kind, inputs, result):
+    """The chart of a calculation kind, or None when the kind has none."""
+    maker = CHARTS.get(kind)
+    return None if maker is None else maker(inputs, result)
+
+
+__all__ = ["chart_for", "letdown_chart", "saturation_dome", "isobar", "saturation_temperature"]

@@ -1,0 +1,186 @@
+"""The live workbook behind every calculation notebook, generic over calculation kinds.
+
+A notebook makes one :class:`Workbook` from its parameters and shows its parts:
+the form, the results and checks, the chart, the record preview and the save
+button. Every change in the form recomputes through the same path as
+``steamcalc run``; a bad input shows as a message beside the form, never a
+traceback. Run headless, :meth:`Workbook.summary` and :meth:`Workbook.save`
+work from the parameters alone.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import html
+import json
+from pathlib import Path
+
+import ipywidgets as widgets
+
+from ..calcs import get_calculation
+from ..errors import SteamcalcError
+from ..record import write_record
+from ..report import RENDERERS, format_number, format_unit, render_markdown
+from ..runner import record_for_case
+from ..site import ID_PATTERN, case_site, flatten_inputs, load_case, parse_inputs
+from .charts import chart_for
+from .forms import CaseForm
+
+_STATUS_COLOURS = {"pass": "#2f6b3a", "warn": "#8a5a00", "fail": "#a3201b"}
+
+
+class Workbook:
+    """One calculation case, live.
+
+    Parameters
+    ----------
+    case_file : str or Path
+        The case file the workbook starts from.
+    record_folder : str or Path
+        Where the save button writes records.
+    site_file : str or Path, optional
+        Site file to use instead of the case's own.
+    """
+
+    def __init__(self, case_file, record_folder, site_file=None):
+        self.case = load_case(case_file)
+        self.site = case_site(self.case, site_file)
+        self.calc = get_calculation(self.case.kind)
+        self.record_folder = Path(record_folder)
+        flat = flatten_inputs(self.calc.Inputs, self.case.inputs)
+        self.form = CaseForm(self.calc.Inputs, flat, headers=tuple(self.site.headers))
+        self.record = None
+        self.result = None
+        self.inputs = None
+        self.error = None
+        self._results_html = widgets.HTML()
+        self._results_html.add_class("steamcalc-results")
+        self._message = widgets.HTML()
+        self._message.add_class("steamcalc-message")
+        self._chart = widgets.Output()
+        self._preview = widgets.Output()
+        self._save_button = widgets.Button(description="Save record", icon="save", button_style="primary")
+        self._save_button.add_class("steamcalc-save")
+        self._save_status = widgets.HTML()
+        self._save_status.add_class("steamcalc-save-status")
+        self._save_button.on_click(lambda _: self._on_save())
+        self._revision = widgets.Text(value=self.case.revision, description="Revision",
+                                      continuous_update=False, style={"description_width": "15em"},
+                                      tooltip="Raise the revision to issue changed inputs as a new record")
+        self._revision.add_class("steamcalc-revision")
+        self._revision.observe(lambda change: self._set_revision(), names="value")
+        self.form.observe(self.update)
+        self.update()
+
+    # -- computing -------------------------------------------------------------------
+    def update(self):
+        """Recompute from the form; show the result, or the error beside the form."""
+        try:
+            inputs, given = parse_inputs(self.calc.Inputs, self.form.values(), self.site)
+            record, result = record_for_case(self.case, self.site, inputs=inputs, given=given)
+        except SteamcalcError as exc:
+            self.error = str(exc).replace(f"{self.case.path}: ", "")
+            self._message.value = (f"<div style='color:#a3201b'><b>Input not accepted:</b> "
+                                   f"{html.escape(self.error)}</div><div>Results below are for the last "
+                                   "accepted inputs.</div>")
+            return
+        self.error = None
+        self.inputs, self.record, self.result = inputs, record, result
+        self._message.value = ""
+        self._results_html.value = self._results_table()
+        self._draw_chart()
+        self._draw_preview()
+
+    def _set_revision(self):
+        revision = self._revision.value.strip()
+        if not ID_PATTERN.match(revision) or revision.startswith("."):
+            self._message.value = ("<div style='color:#a3201b'><b>Revision not accepted:</b> letters, digits, "
+                                   "'.', '_' and '-' only</div>")
+            return
+        self.case = dataclasses.replace(self.case, revision=revision)
+        self.update()
+
+    def _results_table(self):
+        r = self.record
+        colour = _STATUS_COLOURS[r["status"]]
+        rows = "".join(
+            f"<tr><td>{html.escape(v.get('label', k))}</td><td style='text-align:right'>"
+            f"<b>{html.escape(format_number(v['value']))}</b></td><td>{html.escape(format_unit(v.get('unit', '')))}"
+            f"</td></tr>" for k, v in r["results"].items())
+        checks = "".join(
+            f"<tr><td style='color:{_STATUS_COLOURS[c['status']]};font-weight:bold'>{c['status'].upper()}</td>"
+            f"<td>{html.escape(c['name'])}</td><td>{html.escape(c['detail'])}</td></tr>" for c in r["checks"])
+        return (f"<div style='font-weight:bold;color:{colour}'>Overall: {r['status'].upper()}</div>"
+                f"<table style='border-collapse:collapse'>{rows}</table>"
+                f"<h4>Checks</h4><table>{checks}</table>")
+
+    def _draw_chart(self):
+        # Output widgets are filled through their state, not by capturing display calls,
+        # so that headless runs (papermill, nbval) see no stray outputs in the cell.
+        figure = chart_for(self.case.kind, self.inputs, self.result)
+        if figure is None:
+            self._chart.outputs = ()
+            return
+        self._chart.outputs = ({"output_type": "display_data", "metadata": {},
+                                "data": {"application/vnd.plotly.v1+json": json.loads(figure.to_json()),
+                                         "text/plain": "enthalpy-entropy chart"}},)
+
+    def _draw_preview(self):
+        self._preview.outputs = ({"output_type": "display_data", "metadata": {},
+                                  "data": {"text/markdown": render_markdown(self.record),
+                                           "text/plain": "record preview"}},)
+
+    # -- views for the notebook's cells ---------------------------------------------
+    def form_view(self):
+        """The input form with its message line."""
+        return widgets.VBox([widgets.HTML(f"<b>{html.escape(self.case.id)}</b> {html.escape(self.case.title)}"),
+                             self._revision, self.form.view, self._message])
+
+    def results_view(self):
+        """Results and checks; they update when an input changes."""
+        return self._results_html
+
+    def chart_view(self):
+        return self._chart
+
+    def preview_view(self):
+        return self._preview
+
+    def save_view(self):
+        return widgets.HBox([self._save_button, self._save_status])
+
+    def summary(self):
+        """Plain-text results and checks (what headless runs print and nbval compares)."""
+        if self.record is None:
+            return f"no result: {self.error}"
+        r = self.record
+        lines = [f"{r['id']} rev {r['revision']} - {r['title']}", f"overall status: {r['status'].upper()}", ""]
+        width = max(len(v.get("label", k)) for k, v in r["results"].items())
+        for key, v in r["results"].items():
+            unit = format_unit(v.get("unit", ""))
+            lines.append(f"  {v.get('label', key):<{width}}  {format_number(v['value']):>10} {unit}")
+        lines.append("")
+        for c in r["checks"]:
+            lines.append(f"  [{c['status'].upper()}] {c['name']}: {c['detail']}")
+        return "\n".join(lines)
+
+    # -- saving ----------------------------------------------------------------------
+    def save(self):
+        """Write the record of the current inputs; return a one-line account of it.
+
+        Never replaces a different record of the same id and revision: that is
+        refused with the message to raise the revision.
+        """
+        if self.record is None or self.error is not None:
+            return f"not saved: the inputs are not accepted ({self.error})"
+        try:
+            paths, status = write_record(self.record, self.record_folder, RENDERERS)
+        except SteamcalcError as exc:
+            return f"not saved: {exc}"
+        note = "new file" if status == "written" else "same content as the existing record, kept"
+        return f"record {self.record['id']} rev {self.record['revision']} saved: {paths[0]} ({note})"
+
+    def _on_save(self):
+        text = self.save()
+        colour = "#a3201b" if text.startswith("not saved") else "#2f6b3a"
+        self._save_status.value = f"<span style='color:{colour}'>{html.escape(text)}</span>"
