@@ -58,6 +58,7 @@ class Workbook:
         self._message = widgets.HTML()
         self._message.add_class("steamcalc-message")
         self._chart = widgets.Output()
+        self._chart.add_class("steamcalc-chart")
         self._preview = widgets.Output()
         self._save_button = widgets.Button(description="Save record", icon="save", button_style="primary")
         self._save_button.add_class("steamcalc-save")
