@@ -24,6 +24,7 @@ import os
 import platform
 import tempfile
 from datetime import datetime, timezone
+from functools import lru_cache
 from importlib import metadata
 from pathlib import Path
 
@@ -34,8 +35,8 @@ _PROVENANCE_PACKAGES = ("steamcalc", "iapws", "pint", "numpy", "jinja2")
 _NOT_CONTENT = ("created", "provenance", "digest", "content_digest")
 
 
-def provenance():
-    """Versions of the software that computes a record."""
+@lru_cache(maxsize=1)
+def _versions():
     versions = {}
     for name in _PROVENANCE_PACKAGES:
         try:
@@ -46,6 +47,11 @@ def provenance():
                 versions[name] = __version__
     versions["python"] = platform.python_version()
     return versions
+
+
+def provenance():
+    """Versions of the software that computes a record (read once per process)."""
+    return dict(_versions())
 
 
 def canonical_json(data):

@@ -279,8 +279,8 @@ class SteamState:
         ('wet', 0.941)
         """
         _check("pressure", pressure, MIN_PRESSURE, MAX_PRESSURE, "bar(a)", 1e5)
-        low = cls.from_pT(pressure, MIN_TEMPERATURE).entropy
-        high = cls.from_pT(pressure, MAX_TEMPERATURE).entropy
+        low = _if97._Region1(MIN_TEMPERATURE, pressure / 1e6)["s"] * 1e3
+        high = _if97._Region2(MAX_TEMPERATURE, pressure / 1e6)["s"] * 1e3
         if not (low <= entropy <= high) or math.isnan(entropy):
             raise OutOfRangeError(
                 f"entropy {entropy / 1e3:.6g} kJ/(kg K) at {pressure / 1e5:.6g} bar(a) is outside "
@@ -363,8 +363,10 @@ class SteamState:
     # -- internals ---------------------------------------------------------------------
     @staticmethod
     def _check_enthalpy_range(pressure, enthalpy):
-        low = _IAPWS97(P=pressure / 1e6, T=MIN_TEMPERATURE).h * 1e3
-        high = _IAPWS97(P=pressure / 1e6, T=MAX_TEMPERATURE).h * 1e3
+        # The basic equations alone (not a full IAPWS97 state) give the range cheaply:
+        # region 1 at 273.15 K and region 2 at 1073.15 K bound every accepted state.
+        low = _if97._Region1(MIN_TEMPERATURE, pressure / 1e6)["h"] * 1e3
+        high = _if97._Region2(MAX_TEMPERATURE, pressure / 1e6)["h"] * 1e3
         if not (low <= enthalpy <= high) or math.isnan(enthalpy):
             raise OutOfRangeError(
                 f"enthalpy {enthalpy / 1e3:.6g} kJ/kg at {pressure / 1e5:.6g} bar(a) is outside "
