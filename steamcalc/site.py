@@ -52,6 +52,7 @@ class Site:
     power_price: Price | None = None
     display_units: str = "SI"
     headers: dict = field(default_factory=dict)
+    header_texts: dict = field(default_factory=dict)
 
     def header_pressure(self, name, field_name):
         """Absolute pressure of a named header, Pa."""
@@ -169,9 +170,10 @@ def load_site(path):
         units = table.get("display_units", "SI")
         if units not in ("SI", "US"):
             raise CaseFileError("display_units must be 'SI' or 'US'", field="display_units", value=units)
-        headers = {}
+        headers, header_texts = {}, {}
         for name, text in data.get("headers", {}).items():
             headers[name] = parse_pressure(text, f"headers.{name}", atmosphere)
+            header_texts[name] = text
         return Site(
             name=str(table.get("name", Path(path).parent.name)), atmospheric_pressure=atmosphere,
             elevation=elevation, operating_hours=hours,
@@ -180,7 +182,7 @@ def load_site(path):
             makeup_water_temperature=None if makeup is None else parse_quantity(
                 makeup, "makeup_water_temperature", "temperature"),
             power_price=_parse_price(table["power_price"], "power_price") if "power_price" in table else None,
-            display_units=units, headers=headers,
+            display_units=units, headers=headers, header_texts=header_texts,
         )
     except SteamcalcError as exc:
         raise exc.with_source(path)
@@ -352,7 +354,10 @@ def parse_inputs(inputs_class, flat, site):
         given[f.name] = raw if isinstance(raw, str) else repr(raw)
         if kind == "pressure":
             if isinstance(raw, str) and raw.strip().startswith("header:"):
-                values[f.name] = site.header_pressure(raw.split(":", 1)[1].strip(), f.name)
+                name = raw.split(":", 1)[1].strip()
+                values[f.name] = site.header_pressure(name, f.name)
+                if name in site.header_texts:
+                    given[f.name] = f"header:{name} = {site.header_texts[name]}"
             else:
                 values[f.name] = parse_pressure(raw, f.name, site.atmospheric_pressure)
         elif kind == "fraction":

@@ -232,7 +232,7 @@ def calculate(inputs, site):
     >>> r = calculate(Inputs(inlet_pressure=15e5, outlet_pressure=1e5, mass_flow=1.0,
     ...                      inlet_temperature=623.15), Site())
     >>> r.value("outlet_phase"), round(r.value("outlet_temperature"), 1)
-    ('superheated', 336.4)
+    ('superheated', 336.3)
     """
     result = Result()
     result.references.extend([
