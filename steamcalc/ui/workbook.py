@@ -29,6 +29,25 @@ from .forms import CaseForm
 _STATUS_COLOURS = {"pass": "#2f6b3a", "warn": "#8a5a00", "fail": "#a3201b"}
 
 
+def _show_input_error(shell, etype, value, tb, tb_offset=None):
+    # A user's bad input (a wrong case-file path, a misspelt key) is a message, not a traceback.
+    print(f"Input not accepted: {value}")
+    return None
+
+
+def _install_error_display():
+    try:
+        from IPython import get_ipython
+    except ImportError:
+        return
+    shell = get_ipython()
+    if shell is not None:
+        shell.set_custom_exc((SteamcalcError,), _show_input_error)
+
+
+_install_error_display()
+
+
 class Workbook:
     """One calculation case, live.
 
@@ -72,6 +91,15 @@ class Workbook:
         self._revision.observe(lambda change: self._set_revision(), names="value")
         self.form.observe(self.update)
         self.update()
+
+    @classmethod
+    def open(cls, case_file, record_folder, site_file=None):
+        """A Workbook for a case file; when the file cannot be used, a stand-in whose every view
+        shows why (so the notebook's later cells show the message too, not a traceback)."""
+        try:
+            return cls(case_file, record_folder, site_file)
+        except SteamcalcError as exc:
+            return UnavailableWorkbook(str(exc))
 
     # -- computing -------------------------------------------------------------------
     def update(self):
@@ -185,3 +213,22 @@ class Workbook:
         text = self.save()
         colour = "#a3201b" if text.startswith("not saved") else "#2f6b3a"
         self._save_status.value = f"<span style='color:{colour}'>{html.escape(text)}</span>"
+
+
+class UnavailableWorkbook:
+    """Stands in for a Workbook whose case file could not be used; every view shows why."""
+
+    def __init__(self, message):
+        self.message = message
+
+    def _view(self):
+        return widgets.HTML(f"<div style='color:#a3201b'><b>Input not accepted:</b> {html.escape(self.message)}"
+                            "</div><div>Correct the parameters cell and run all cells again.</div>")
+
+    form_view = results_view = chart_view = preview_view = save_view = _view
+
+    def summary(self):
+        return f"Input not accepted: {self.message}"
+
+    def save(self):
+        return f"not saved: {self.message}"
