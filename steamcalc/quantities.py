@@ -33,6 +33,8 @@ SI_UNITS = {
     "specific_entropy": "J/(kg*K)",
     "power": "W",
     "length": "m",
+    "velocity": "m/s",
+    "area": "m**2",
     "dimensionless": "",
 }
 
@@ -45,6 +47,8 @@ RECORD_UNITS = {
     "specific_entropy": "kJ/(kg*K)",
     "power": "kW",
     "length": "m",
+    "velocity": "m/s",
+    "area": "m**2",
     "dimensionless": "",
 }
 
@@ -54,6 +58,7 @@ _EXAMPLES = {
     "temperature_difference": "'10 K'",
     "mass_flow": "'4.5 t/h' or '1.25 kg/s'",
     "length": "'180 m'",
+    "velocity": "'0.07 m/s'",
 }
 
 _NUMBER = r"[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?"

@@ -23,7 +23,8 @@ from .quantities import (
 ID_PATTERN = re.compile(r"^[A-Za-z0-9._-]+$")
 CASE_KEYS = ("kind", "id", "title", "revision", "prepared_by", "site")
 SITE_KEYS = ("name", "elevation", "atmospheric_pressure", "operating_hours", "fuel_price",
-             "boiler_efficiency", "makeup_water_temperature", "power_price", "display_units")
+             "boiler_efficiency", "makeup_water_temperature", "power_price", "display_units",
+             "fuel_emission_factor", "ambient_temperature")
 _PRICE = re.compile(r"^\s*([0-9.]+(?:[eE][+-]?\d+)?)\s*([A-Za-z]{1,5})\s*/\s*(MWh|kWh)\s*$")
 
 
@@ -53,6 +54,8 @@ class Site:
     display_units: str = "SI"
     headers: dict = field(default_factory=dict)
     header_texts: dict = field(default_factory=dict)
+    fuel_emission_factor: float | None = None   # kg CO2 per MWh of fuel
+    ambient_temperature: float | None = None    # K; the dead state for exergy
 
     def header_pressure(self, name, field_name):
         """Absolute pressure of a named header, Pa."""
@@ -81,6 +84,10 @@ class Site:
         if self.makeup_water_temperature is not None:
             table["makeup_water_temperature"] = {"value": self.makeup_water_temperature - 273.15,
                                                  "unit": "degC"}
+        if self.fuel_emission_factor is not None:
+            table["fuel_emission_factor"] = {"value": self.fuel_emission_factor, "unit": "kg/MWh"}
+        if self.ambient_temperature is not None:
+            table["ambient_temperature"] = {"value": self.ambient_temperature - 273.15, "unit": "degC"}
         table["display_units"] = self.display_units
         table["headers"] = {k: {"value": v / 1e5, "unit": "bar"} for k, v in self.headers.items()}
         return table
@@ -97,7 +104,10 @@ class Site:
             return None if entry is None else entry["value"]
 
         makeup = plain("makeup_water_temperature")
+        ambient = plain("ambient_temperature")
         return cls(
+            fuel_emission_factor=plain("fuel_emission_factor"),
+            ambient_temperature=None if ambient is None else ambient + 273.15,
             name=table.get("name", "unnamed site"),
             atmospheric_pressure=table["atmospheric_pressure"]["value"] * 1e5,
             elevation=plain("elevation"), operating_hours=plain("operating_hours"),
@@ -183,6 +193,10 @@ def load_site(path):
                 makeup, "makeup_water_temperature", "temperature"),
             power_price=_parse_price(table["power_price"], "power_price") if "power_price" in table else None,
             display_units=units, headers=headers, header_texts=header_texts,
+            fuel_emission_factor=_parse_emission(table["fuel_emission_factor"])
+            if "fuel_emission_factor" in table else None,
+            ambient_temperature=parse_quantity(table["ambient_temperature"], "ambient_temperature", "temperature")
+            if "ambient_temperature" in table else None,
         )
     except SteamcalcError as exc:
         raise exc.with_source(path)
@@ -201,6 +215,15 @@ def _parse_hours(text):
         raise InputError("operating hours per year must be above 0 and at most 8784",
                          field="operating_hours", value=text)
     return float(hours)
+
+
+def _parse_emission(text):
+    from .quantities import Q_
+    try:
+        return float(Q_(text).to("kg/MWh").magnitude)
+    except Exception:
+        raise UnitError("an emission factor is a mass of CO2 per energy of fuel",
+                        field="fuel_emission_factor", value=text, fix="e.g. '0.202 kg/kWh'") from None
 
 
 def _parse_price(text, field_name):
@@ -353,18 +376,52 @@ def parse_inputs(inputs_class, flat, site):
         kind = f.metadata["kind"]
         given[f.name] = raw if isinstance(raw, str) else repr(raw)
         if kind == "pressure":
+            values[f.name] = _pressure_or_header(raw, f.name, site)
             if isinstance(raw, str) and raw.strip().startswith("header:"):
                 name = raw.split(":", 1)[1].strip()
-                values[f.name] = site.header_pressure(name, f.name)
                 if name in site.header_texts:
                     given[f.name] = f"header:{name} = {site.header_texts[name]}"
-            else:
-                values[f.name] = parse_pressure(raw, f.name, site.atmospheric_pressure)
         elif kind == "fraction":
             values[f.name] = _fraction(raw, f.name)
+        elif kind == "number":
+            values[f.name] = _positive_number(raw, f.name)
+        elif kind == "flag":
+            values[f.name] = _flag(raw, f.name)
+        elif kind == "nominal_size":
+            if not isinstance(raw, str):
+                raise InputError("a nominal size is text such as 'DN80' or '3 in'", field=f.name, value=raw)
+            values[f.name] = raw.strip()
+        elif kind == "pressure_list":
+            if isinstance(raw, str) or not isinstance(raw, (list, tuple)) or not raw:
+                raise InputError("must be a list of pressures", field=f.name, value=raw,
+                                 fix='e.g. ["8 bar(g)", "2.5 bar(g)"]')
+            values[f.name] = tuple(_pressure_or_header(item, f"{f.name}[{i}]", site)
+                                   for i, item in enumerate(raw))
+            given[f.name] = ", ".join(str(item) for item in raw)
         else:
             values[f.name] = parse_quantity(raw, f.name, kind)
     return inputs_class(**values), given
+
+
+def _pressure_or_header(raw, field_name, site):
+    if isinstance(raw, str) and raw.strip().startswith("header:"):
+        return site.header_pressure(raw.split(":", 1)[1].strip(), field_name)
+    return parse_pressure(raw, field_name, site.atmospheric_pressure)
+
+
+def _positive_number(value, field_name):
+    if isinstance(value, bool) or not isinstance(value, (int, float)) or math.isnan(value) or value <= 0:
+        raise InputError("must be a plain number above zero", field=field_name, value=value,
+                         fix="write it without quotes or units")
+    return float(value)
+
+
+def _flag(value, field_name):
+    if isinstance(value, bool):
+        return value
+    if isinstance(value, str) and value.strip().lower() in ("true", "false", "yes", "no"):
+        return value.strip().lower() in ("true", "yes")
+    raise InputError("must be true or false", field=field_name, value=value, fix="write true or false")
 
 
 def case_inputs(case, site):

@@ -14,8 +14,12 @@ from dataclasses import dataclass, field
 from ..errors import InputError
 from ..quantities import RECORD_UNITS, from_record_unit, to_record_unit
 
-#: Quantity kinds an input field can have (besides ``fraction``, a plain number 0 to 1).
-INPUT_KINDS = ("pressure", "temperature", "temperature_difference", "mass_flow", "fraction")
+#: Kinds an input field can have. ``fraction`` is a plain number from 0 to 1, ``number`` a
+#: plain positive number, ``flag`` true or false, ``nominal_size`` a pipe size such as "DN80",
+#: ``pressure_list`` a list of pressure strings.
+INPUT_KINDS = ("pressure", "temperature", "temperature_difference", "mass_flow", "velocity", "fraction",
+               "number", "flag", "nominal_size", "pressure_list")
+_PLAIN_KINDS = ("fraction", "number", "flag", "nominal_size")
 
 STATUSES = ("pass", "warn", "fail")
 
@@ -51,6 +55,12 @@ def input_fields(inputs_class):
     return dataclasses.fields(inputs_class)
 
 
+def _unit_kind(kind):
+    if kind in _PLAIN_KINDS:
+        return "dimensionless"
+    return "pressure" if kind == "pressure_list" else kind
+
+
 def to_record_inputs(inputs, given):
     """The record's ``inputs`` table: each set field in record units, with the user's text."""
     table = {}
@@ -59,12 +69,14 @@ def to_record_inputs(inputs, given):
         if value is None:
             continue
         kind = f.metadata["kind"]
-        unit_kind = "dimensionless" if kind == "fraction" else kind
-        table[f.name] = {
-            "value": to_record_unit(value, unit_kind),
-            "unit": RECORD_UNITS[unit_kind],
-            "given": given.get(f.name, "(default)"),
-        }
+        unit_kind = _unit_kind(kind)
+        if kind in ("flag", "nominal_size"):
+            stored = value
+        elif kind == "pressure_list":
+            stored = [to_record_unit(v, unit_kind) for v in value]
+        else:
+            stored = to_record_unit(value, unit_kind)
+        table[f.name] = {"value": stored, "unit": RECORD_UNITS[unit_kind], "given": given.get(f.name, "(default)")}
     return table
 
 
@@ -76,8 +88,13 @@ def from_record_inputs(inputs_class, table):
         if name not in names:
             raise InputError(f"record input '{name}' is not an input of this kind", field=name)
         kind = names[name].metadata["kind"]
-        unit_kind = "dimensionless" if kind == "fraction" else kind
-        values[name] = from_record_unit(entry["value"], entry.get("unit", ""), unit_kind)
+        unit_kind = _unit_kind(kind)
+        if kind in ("flag", "nominal_size"):
+            values[name] = entry["value"]
+        elif kind == "pressure_list":
+            values[name] = tuple(from_record_unit(v, entry.get("unit", ""), unit_kind) for v in entry["value"])
+        else:
+            values[name] = from_record_unit(entry["value"], entry.get("unit", ""), unit_kind)
     return inputs_class(**values)
 
 
