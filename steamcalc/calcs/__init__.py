@@ -10,9 +10,9 @@ find a kind only through :func:`get_calculation`.
 from __future__ import annotations
 
 from ..errors import CaseFileError
-from . import letdown
+from . import flash, letdown
 
-_REGISTRY = {module.KIND: module for module in (letdown,)}
+_REGISTRY = {module.KIND: module for module in (letdown, flash)}
 
 
 def kinds():

@@ -1,0 +1,419 @@
+"""Flash-steam recovery: hot condensate flashing to a lower pressure, single stage or cascade.
+
+Condensate at its pressure (saturated, or subcooled to a stated temperature) enters a
+vessel at a lower pressure. With no heat loss and no work, the mass and energy balances
+over the vessel give the part that flashes to steam:
+:math:`x = (h_{in} - h_f)/h_{fg}` at the flash pressure, zero when the condensate is
+already below the saturation temperature there.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+from ..equipment.piping import (
+    erosional_velocity, homogeneous_density, line_velocity, pipe_inner_diameter,
+)
+from ..errors import InputError, OutOfRangeError
+from ..steam import REFERENCE as IF97_REFERENCE
+from ..steam import SteamState, saturation_temperature
+from .base import Result, input_field
+from .economics import annual_fuel_energy, annual_value, missing_site_data
+
+KIND = "flash"
+TITLE = "Flash-steam recovery"
+WORKBOOK = "flash_recovery.ipynb"
+
+#: Souders–Brown K for a vertical flash vessel without a mist eliminator, m/s (common practice).
+DEFAULT_K_FACTOR = 0.06
+#: Minimum height of a vertical flash vessel as a multiple of its diameter (common practice).
+MIN_HEIGHT_TO_DIAMETER = 2.5
+#: Flash-steam outlet velocity above which carry-over and noise are likely, m/s (common practice).
+MAX_STEAM_NOZZLE_VELOCITY = 25.0
+#: Condensate outlet velocity above which the drain may not keep up, m/s (common practice).
+MAX_CONDENSATE_NOZZLE_VELOCITY = 1.5
+
+CAUTIONS = (
+    "Flash vessels and receivers are pressure vessels: their design, marking and inspection follow the "
+    "local pressure-equipment code, with a relief device sized for the worst inflow.",
+    "Steam and flashing condensate cause severe burns; vents and drains must discharge to a safe place.",
+    "Flashing two-phase flow causes erosion and waterhammer: keep inlet lines short, falling to the "
+    "vessel, and sized for the two-phase velocity.",
+    "These results support design by a competent engineer; they do not replace the applicable codes, "
+    "the equipment makers' data or a licensed engineer's approval.",
+)
+
+
+@dataclass(frozen=True)
+class Inputs:
+    """Inputs of a flash-steam calculation; values in SI (Pa absolute, K, kg/s, m/s).
+
+    Give either ``flash_pressure`` (one vessel) or ``stages`` (a cascade, falling pressures).
+    """
+
+    condensate_pressure: float = input_field(
+        "pressure", "Condensate pressure", "Pressure of the hot condensate before it flashes.",
+        example="header:MP")
+    condensate_flow: float = input_field(
+        "mass_flow", "Condensate flow", "Flow of hot condensate to the flash vessel.", example="3.2 t/h")
+    condensate_temperature: float | None = input_field(
+        "temperature", "Condensate temperature",
+        "Leave empty for condensate saturated at its pressure; give it when subcooled.", example="170 degC")
+    flash_pressure: float | None = input_field(
+        "pressure", "Flash pressure", "Pressure of the flash vessel (a header or a pressure).", example="header:LP")
+    stages: tuple | None = input_field(
+        "pressure_list", "Cascade stage pressures", "Falling pressures of a flash cascade, in place of "
+        "flash_pressure.", example='["8 bar(g)", "2.5 bar(g)"]')
+    lp_demand: float | None = input_field(
+        "mass_flow", "Low-pressure steam demand", "Steam the flash header can use; flash above it is vented.",
+        example="0.5 t/h")
+    vented: bool | None = input_field(
+        "flag", "Vented receiver", "true when the flash steam goes to atmosphere (the loss being incurred).",
+        example="false")
+    k_factor: float | None = input_field(
+        "velocity", "Souders–Brown K", "Allowable vapour load factor of the vessel.", example="0.06 m/s",
+        section="vessel")
+    vapour_velocity: float | None = input_field(
+        "velocity", "Allowable vapour velocity", "Up-flow velocity limit, in place of K.", example="2.5 m/s",
+        section="vessel")
+    inlet_nozzle: str | None = input_field(
+        "nominal_size", "Inlet line size", "Nominal size of the condensate inlet line.", example="DN50",
+        section="vessel")
+    steam_nozzle: str | None = input_field(
+        "nominal_size", "Steam outlet size", "Nominal size of the flash-steam outlet.", example="DN150",
+        section="vessel")
+    condensate_nozzle: str | None = input_field(
+        "nominal_size", "Condensate outlet size", "Nominal size of the residual-condensate outlet.",
+        example="DN40", section="vessel")
+
+    def __post_init__(self):
+        for name in ("condensate_pressure", "condensate_flow"):
+            if getattr(self, name) is None:
+                raise InputError("is required", field=name, fix=f"add {name} to [inputs]")
+        if self.condensate_flow <= 0.0:
+            raise InputError("condensate flow must be above zero", field="condensate_flow",
+                             fix="give a positive flow")
+        if (self.flash_pressure is None) == (self.stages is None):
+            raise InputError("give flash_pressure or stages (exactly one)",
+                             field="stages" if self.stages is not None else "flash_pressure",
+                             fix="one vessel: flash_pressure; a cascade: stages = [...]")
+        pressures = self.stage_pressures
+        previous = self.condensate_pressure
+        for i, p in enumerate(pressures):
+            name = "flash_pressure" if self.stages is None else f"stages[{i}]"
+            if p >= previous:
+                raise InputError(
+                    f"{p / 1e5:.4g} bar(a) is not below {previous / 1e5:.4g} bar(a): flash pressures must fall "
+                    "below the condensate pressure, stage by stage", field=name,
+                    fix="list the stage pressures from high to low, all below the condensate pressure")
+            previous = p
+        if self.stages is not None and not 1 <= len(self.stages) <= 3:
+            raise InputError("a cascade has one to three stages", field="stages")
+        if self.lp_demand is not None and self.lp_demand < 0.0:
+            raise InputError("steam demand cannot be negative", field="lp_demand")
+        if self.k_factor is not None and self.vapour_velocity is not None:
+            raise InputError("give k_factor or vapour_velocity, not both", field="vessel.vapour_velocity")
+        for name in ("k_factor", "vapour_velocity"):
+            value = getattr(self, name)
+            if value is not None and value <= 0.0:
+                raise InputError("must be above zero", field=f"vessel.{name}")
+
+    @property
+    def stage_pressures(self):
+        """The flash pressures in order, Pa: one for a single vessel."""
+        return tuple(self.stages) if self.stages is not None else (self.flash_pressure,)
+
+
+def _bar(p):
+    return f"{p / 1e5:.4g} bar(a)"
+
+
+def _kj(h):
+    return f"{h / 1e3:.2f} kJ/kg"
+
+
+def _inlet_state(inputs):
+    p = inputs.condensate_pressure
+    t_sat = saturation_temperature(p)
+    if inputs.condensate_temperature is None:
+        return SteamState.from_p_dryness(p, 0.0), t_sat
+    t = inputs.condensate_temperature
+    if t > t_sat + 1e-6:
+        raise InputError(
+            f"condensate at {t - 273.15:.2f} °C is above saturation ({t_sat - 273.15:.2f} °C) at {_bar(p)}: "
+            "that is steam, not condensate", field="condensate_temperature",
+            fix="check the temperature and the pressure basis, or leave the temperature empty for saturated")
+    if abs(t - t_sat) <= 1e-6:
+        return SteamState.from_p_dryness(p, 0.0), t_sat
+    try:
+        return SteamState.from_pT(p, t), t_sat
+    except OutOfRangeError as exc:
+        raise exc.for_field("condensate_temperature") from None
+
+
+def _flash_stage(index, pressure, enthalpy_in, flow_in, result, label):
+    liquid = SteamState.from_p_dryness(pressure, 0.0)
+    vapour = SteamState.from_p_dryness(pressure, 1.0)
+    h_fg = vapour.enthalpy - liquid.enthalpy
+    if enthalpy_in <= liquid.enthalpy:
+        fraction = 0.0
+        result.step(f"{label}: flash fraction", "x = 0 when h_in ≤ h_f(p_flash): no flash",
+                    f"h_in = {_kj(enthalpy_in)} ≤ h_f({_bar(pressure)}) = {_kj(liquid.enthalpy)}", 0.0)
+        residual = SteamState.from_ph(pressure, enthalpy_in)
+    else:
+        fraction = (enthalpy_in - liquid.enthalpy) / h_fg
+        result.step(f"{label}: flash fraction", "x = (h_in − h_f(p_flash)) / h_fg(p_flash)",
+                    f"x = ({_kj(enthalpy_in)} − {_kj(liquid.enthalpy)}) / {_kj(h_fg)}", fraction)
+        residual = liquid
+    steam_flow = flow_in * fraction
+    residual_flow = flow_in - steam_flow
+    result.step(f"{label}: flash steam flow", "m_flash = x · m_in",
+                f"m_flash = {fraction:.5f} × {flow_in * 3600:.1f} kg/h", steam_flow * 3600, "kg/h")
+    return {"index": index, "pressure": pressure, "fraction": fraction, "steam_flow": steam_flow,
+            "residual_flow": residual_flow, "residual": residual, "vapour": vapour, "liquid": liquid,
+            "enthalpy_in": enthalpy_in, "flow_in": flow_in}
+
+
+def calculate(inputs, site):
+    """Flash steam, residual condensate, recoverable heat, vessel size and yearly saving.
+
+    Parameters
+    ----------
+    inputs : Inputs
+        Condensate pressure (Pa), flow (kg/s), optional temperature (K), and the flash
+        pressure (Pa) or cascade stage pressures (Pa); optional demand (kg/s) and vessel data.
+    site : steamcalc.site.Site
+        Operating hours, boiler efficiency, fuel price and make-up water temperature give
+        the yearly figures; an emission factor adds the CO2.
+
+    Returns
+    -------
+    Result
+        ``flash_fraction``, ``flash_steam_flow`` (kg/h), ``residual_condensate_flow`` (kg/h),
+        ``recovered_heat_rate`` (kW), ``vessel_diameter`` (m), ``annual_fuel_energy_saved``
+        (MWh), ``annual_cost_saving``, with per-stage values for a cascade.
+
+    Notes
+    -----
+    Flash, mass and energy balances of an adiabatic vessel:
+
+    .. math:: x = \\frac{h_{in} - h_f(p)}{h_{fg}(p)}, \\quad
+              \\dot m_{flash} = x \\dot m, \\quad \\dot m_{res} = (1 - x) \\dot m
+
+    Recovered heat, flash steam above make-up water:
+    :math:`\\dot Q = \\dot m_{flash} (h_g(p) - h_{mw})`; fuel a year
+    :math:`E = \\dot Q t / \\eta_{boiler}`.
+
+    Vessel, Souders–Brown allowable vapour velocity
+    :math:`v = K \\sqrt{(\\rho_f - \\rho_g)/\\rho_g}` and
+    :math:`D = \\sqrt{4 \\dot V_g / (\\pi v)}`.
+
+    References
+    ----------
+    IAPWS R7-97(2012), IAPWS-IF97, for every property. Souders, M. and Brown, G. G. (1934),
+    "Design of Fractionating Columns I. Entrainment and Capacity", Ind. Eng. Chem. 26(1),
+    98–103 (through ``fluids.separator.v_Souders_Brown``). API RP 14E (2000), erosional velocity.
+
+    Examples
+    --------
+    >>> from steamcalc.site import Site
+    >>> r = calculate(Inputs(condensate_pressure=11.01325e5, condensate_flow=1.0,
+    ...                      flash_pressure=1.01325e5), Site())
+    >>> round(r.value("flash_fraction"), 3)
+    0.157
+    """
+    from fluids.separator import v_Souders_Brown
+
+    result = Result()
+    result.references.extend([
+        IF97_REFERENCE,
+        "Mass and energy balances of an adiabatic flash vessel (any engineering-thermodynamics text)",
+        "Souders, M. and Brown, G. G. (1934), Design of Fractionating Columns I. Entrainment and "
+        "Capacity, Ind. Eng. Chem. 26(1), 98-103",
+        "API RP 14E (2000), erosional velocity equation 2.14",
+    ])
+    result.assumptions.extend([
+        "Adiabatic flash vessel: no heat loss, no work",
+        "Steady state; kinetic and potential energy changes neglected",
+        "Flash steam leaves saturated and dry; residual condensate leaves saturated at the vessel pressure",
+        f"Gauge pressures converted with the site atmosphere of {site.atmospheric_pressure / 1e5:.5g} bar(a)",
+    ])
+    result.cautions.extend(CAUTIONS)
+
+    inlet, t_sat_in = _inlet_state(inputs)
+    flow = inputs.condensate_flow
+    result.add("condensate_saturation_temperature", "Condensate saturation temperature", t_sat_in - 273.15, "degC")
+    result.add("condensate_temperature", "Condensate temperature", inlet.temperature - 273.15, "degC")
+    result.add("condensate_subcooling", "Condensate subcooling", inlet.subcooling, "K")
+    result.add("condensate_enthalpy", "Condensate enthalpy", inlet.enthalpy / 1e3, "kJ/kg")
+    result.add("condensate_flow", "Condensate flow", flow * 3600, "kg/h")
+    result.step("Condensate enthalpy",
+                "h_in = h_f(p_c)  [saturated]" if inputs.condensate_temperature is None else "h_in = h(p_c, T_c)",
+                f"h_in at {_bar(inputs.condensate_pressure)}, {inlet.temperature - 273.15:.2f} °C",
+                inlet.enthalpy / 1e3, "kJ/kg")
+
+    stages = []
+    enthalpy, stage_flow = inlet.enthalpy, flow
+    cascade = inputs.stages is not None
+    for i, p in enumerate(inputs.stage_pressures, start=1):
+        label = f"Stage {i}" if cascade else "Flash"
+        try:
+            stage = _flash_stage(i, p, enthalpy, stage_flow, result, label)
+        except OutOfRangeError as exc:
+            raise exc.for_field(f"stages[{i - 1}]" if cascade else "flash_pressure") from None
+        stages.append(stage)
+        enthalpy, stage_flow = stage["residual"].enthalpy, stage["residual_flow"]
+        if cascade:
+            result.add(f"stage_{i}_pressure", f"Stage {i} pressure", p / 1e5, "bar")
+            result.add(f"stage_{i}_flash_fraction", f"Stage {i} flash fraction", stage["fraction"])
+            result.add(f"stage_{i}_flash_steam_flow", f"Stage {i} flash steam flow", stage["steam_flow"] * 3600, "kg/h")
+            result.add(f"stage_{i}_residual_condensate_flow", f"Stage {i} residual condensate flow",
+                       stage["residual_flow"] * 3600, "kg/h")
+
+    total_flash = sum(s["steam_flow"] for s in stages)
+    last = stages[-1]
+    # Summed in the recorded unit so that the recorded mass balance closes exactly.
+    flash_kg_h = sum(s["steam_flow"] * 3600 for s in stages)
+    residual_kg_h = flow * 3600 - flash_kg_h
+    result.add("flash_fraction", "Flash fraction (of the condensate)", total_flash / flow)
+    result.add("flash_steam_flow", "Flash steam flow", flash_kg_h, "kg/h")
+    result.add("residual_condensate_flow", "Residual condensate flow", residual_kg_h, "kg/h")
+    result.add("residual_condensate_temperature", "Residual condensate temperature",
+               last["residual"].temperature - 273.15, "degC")
+
+    if total_flash == 0.0:
+        result.check("Condensate flashes", "warn",
+                     f"the condensate at {inlet.temperature - 273.15:.2f} °C is below the saturation temperature "
+                     f"at the flash pressure ({last['liquid'].temperature - 273.15:.2f} °C): it does not flash, "
+                     "and there is no flash steam to recover")
+    else:
+        result.check("Condensate flashes", "pass",
+                     f"{100 * total_flash / flow:.2f} % of the condensate flashes ({flash_kg_h:.1f} kg/h)")
+
+    energy_in = flow * inlet.enthalpy
+    energy_out = sum(s["steam_flow"] * s["vapour"].enthalpy for s in stages) + \
+        last["residual_flow"] * last["residual"].enthalpy
+    residual = abs(energy_in - energy_out) / energy_in
+    result.check("Energy balance closes", "pass" if residual <= 1e-9 else "fail",
+                 f"relative residual {residual:.1e} (tolerance 1e-09)")
+
+    _recovered_heat(inputs, site, stages, total_flash, result)
+    _vessels(inputs, stages, result, v_Souders_Brown)
+    return result
+
+
+def _recovered_heat(inputs, site, stages, total_flash, result):
+    if site.makeup_water_temperature is None:
+        result.check("Site data for the heat recovered", "warn",
+                     "the site file has no makeup_water_temperature: recovered heat and savings not computed")
+        return
+    makeup = SteamState.from_pT(max(site.atmospheric_pressure, 1.01325e5), site.makeup_water_temperature)
+    heat = sum(s["steam_flow"] * (s["vapour"].enthalpy - makeup.enthalpy) for s in stages)
+    result.step("Heat in the flash steam", "Q = Σ m_flash · (h_g(p_flash) − h_makeup)",
+                f"h_makeup = {_kj(makeup.enthalpy)} at {site.makeup_water_temperature - 273.15:.1f} °C",
+                heat / 1e3, "kW")
+    label = "Heat in the flash steam, vented (the loss)" if inputs.vented else "Recoverable heat in the flash steam"
+    result.add("recovered_heat_rate", label, heat / 1e3, "kW")
+    result.assumptions.append("Recovered heat counted from make-up water temperature: each kg of flash steam "
+                              "used displaces a kg of boiler steam raised from make-up water")
+    if inputs.lp_demand is not None:
+        if total_flash > inputs.lp_demand:
+            result.check("Flash steam within the low-pressure demand", "warn",
+                         f"flash steam {total_flash * 3600:.1f} kg/h exceeds the demand {inputs.lp_demand * 3600:.1f} "
+                         f"kg/h: {(total_flash - inputs.lp_demand) * 3600:.1f} kg/h would be vented")
+        else:
+            result.check("Flash steam within the low-pressure demand", "pass",
+                         f"flash steam {total_flash * 3600:.1f} kg/h within the demand {inputs.lp_demand * 3600:.1f} kg/h")
+    missing = missing_site_data(site, ("operating_hours", "boiler_efficiency", "fuel_price"))
+    if missing:
+        result.check("Site data for yearly figures", "warn",
+                     f"the site file lacks {', '.join(missing)}: yearly energy and cost not computed")
+        return
+    fuel = annual_fuel_energy(heat, site.operating_hours, site.boiler_efficiency)
+    money = annual_value(fuel, site.fuel_price)
+    saving = "lost" if inputs.vented else "saved"
+    result.step(f"Fuel energy a year {saving}", "E = Q · t / η_boiler",
+                f"E = {heat / 1e3:.1f} kW × {site.operating_hours:g} h / {site.boiler_efficiency:g}", fuel, "MWh")
+    result.step(f"Fuel cost a year {saving}", "C = E · fuel price",
+                f"C = {fuel:.1f} MWh × {site.fuel_price}", money, site.fuel_price.currency)
+    result.add("annual_fuel_energy_saved", f"Fuel energy a year ({'lost while vented' if inputs.vented else 'saved'})",
+               fuel, "MWh")
+    result.add("annual_cost_saving", f"Fuel cost a year ({'lost while vented' if inputs.vented else 'saved'})",
+               money, site.fuel_price.currency)
+    if site.fuel_emission_factor is not None:
+        result.add("annual_co2_avoided", "CO2 a year (avoided by recovery)", fuel * site.fuel_emission_factor / 1e3,
+                   "t")
+    if inputs.vented:
+        result.check("Vented receiver", "warn",
+                     f"{total_flash * 3600:.1f} kg/h of flash steam vents to atmosphere: {heat / 1e3:.1f} kW, "
+                     f"{fuel:.0f} MWh of fuel and {money:,.0f} {site.fuel_price.currency} a year lost")
+
+
+def _vessels(inputs, stages, result, v_souders_brown):
+    k = inputs.k_factor
+    if inputs.vapour_velocity is None:
+        if k is None:
+            k = DEFAULT_K_FACTOR
+            result.assumptions.append(f"Souders–Brown K = {DEFAULT_K_FACTOR} m/s for a vertical flash vessel "
+                                      "without a mist eliminator (common practice; not given)")
+    biggest = 0.0
+    for s in stages:
+        vapour, liquid = s["vapour"], s["liquid"]
+        if inputs.vapour_velocity is not None:
+            allowed = inputs.vapour_velocity
+            equation, substituted = "v_allow = given", f"v_allow = {allowed:.3f} m/s"
+        else:
+            allowed = v_souders_brown(k, liquid.density, vapour.density)
+            equation = "v_allow = K·√((ρ_f − ρ_g)/ρ_g)"
+            substituted = f"v_allow = {k:.3f} m/s × √(({liquid.density:.1f} − {vapour.density:.4f}) / {vapour.density:.4f})"
+        prefix = f"stage_{s['index']}_" if inputs.stages is not None else ""
+        label = f"Stage {s['index']}" if inputs.stages is not None else "Vessel"
+        result.step(f"{label}: allowable vapour velocity", equation, substituted, allowed, "m/s")
+        if s["steam_flow"] == 0.0:
+            continue
+        volume_flow = s["steam_flow"] / vapour.density
+        diameter = math.sqrt(4.0 * volume_flow / (math.pi * allowed))
+        result.step(f"{label}: vessel diameter", "D = √(4·(m_flash/ρ_g) / (π·v_allow))",
+                    f"D = √(4 × {volume_flow:.4f} m³/s / (π × {allowed:.3f} m/s))", diameter, "m")
+        if prefix:
+            result.add(f"{prefix}vessel_diameter", f"{label} vessel diameter", diameter, "m")
+        biggest = max(biggest, diameter)
+    if biggest > 0.0:
+        result.add("vessel_diameter", "Flash vessel diameter" + (" (largest stage)" if inputs.stages else ""),
+                   biggest, "m")
+        result.add("vessel_minimum_height", "Flash vessel minimum height", MIN_HEIGHT_TO_DIAMETER * biggest, "m")
+        result.assumptions.append(f"Minimum vessel height {MIN_HEIGHT_TO_DIAMETER:g} × diameter for separation "
+                                  "(common practice)")
+    _nozzles(inputs, stages, result)
+
+
+def _nozzles(inputs, stages, result):
+    first, last = stages[0], stages[-1]
+    if inputs.inlet_nozzle is not None:
+        d = pipe_inner_diameter(inputs.inlet_nozzle, field="vessel.inlet_nozzle")
+        # After the inlet valve or trap the condensate has flashed: the line carries the
+        # first stage's mixture at its pressure (homogeneous model).
+        rho = homogeneous_density(first["fraction"], first["liquid"].density, first["vapour"].density)
+        velocity = line_velocity(first["flow_in"], rho, d)
+        limit = erosional_velocity(rho)
+        result.add("inlet_line_velocity", "Two-phase velocity in the inlet line", velocity, "m/s")
+        result.add("inlet_line_erosional_velocity", "Erosional velocity of the inlet line (API RP 14E)", limit, "m/s")
+        result.step("Inlet line two-phase velocity", "v = m / (ρ_h·A), 1/ρ_h = x/ρ_g + (1 − x)/ρ_f",
+                    f"ρ_h = {rho:.3f} kg/m³, d = {d * 1000:.1f} mm", velocity, "m/s")
+        status = "warn" if velocity > limit else "pass"
+        result.check("Inlet line velocity", status,
+                     f"two-phase {velocity:.1f} m/s against the API RP 14E erosional velocity {limit:.1f} m/s"
+                     + ("; a larger inlet line is needed" if status == "warn" else ""))
+    if inputs.steam_nozzle is not None and last["steam_flow"] > 0.0:
+        d = pipe_inner_diameter(inputs.steam_nozzle, field="vessel.steam_nozzle")
+        velocity = line_velocity(last["steam_flow"], last["vapour"].density, d)
+        result.add("steam_nozzle_velocity", "Flash-steam outlet velocity", velocity, "m/s")
+        result.check("Steam outlet velocity", "warn" if velocity > MAX_STEAM_NOZZLE_VELOCITY else "pass",
+                     f"{velocity:.1f} m/s (limit {MAX_STEAM_NOZZLE_VELOCITY:g} m/s, common practice)")
+    if inputs.condensate_nozzle is not None:
+        d = pipe_inner_diameter(inputs.condensate_nozzle, field="vessel.condensate_nozzle")
+        velocity = line_velocity(last["residual_flow"], last["liquid"].density, d)
+        result.add("condensate_nozzle_velocity", "Residual condensate outlet velocity", velocity, "m/s")
+        result.check("Condensate outlet velocity", "warn" if velocity > MAX_CONDENSATE_NOZZLE_VELOCITY else "pass",
+                     f"{velocity:.2f} m/s (limit {MAX_CONDENSATE_NOZZLE_VELOCITY:g} m/s, common practice)")

@@ -1,0 +1,161 @@
+"""Flash-steam recovery: trade figures, IAPWS-95 cross-check, balances, vessel sizing, bad input."""
+
+import math
+
+import pytest
+from CoolProp.CoolProp import PropsSI
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+from steamcalc.calcs.flash import Inputs, calculate
+from steamcalc.cli import main
+from steamcalc.errors import InputError
+from steamcalc.site import Price, Site
+
+ATM = 1.01325e5
+SITE = Site(operating_hours=6000.0, boiler_efficiency=0.86, fuel_price=Price(40.0, "EUR"),
+            makeup_water_temperature=288.15, fuel_emission_factor=202.0)
+
+
+def test_flash_from_10_barg_to_0_barg_is_about_16_percent():
+    # Common practice (flash-steam charts): saturated condensate from 10 bar(g) to 0 bar(g)
+    # flashes about 16 %.
+    r = calculate(Inputs(condensate_pressure=10e5 + ATM, condensate_flow=1.0, flash_pressure=ATM), SITE)
+    assert r.value("flash_fraction") == pytest.approx(0.16, abs=0.005)
+
+
+@pytest.mark.parametrize("p_in,p_flash", [(9e5, 3.5e5), (17e5, 1.1e5), (5e5, 1.5e5)])
+def test_flash_fraction_against_iapws95_coolprop(p_in, p_flash):
+    # IAPWS-95 through CoolProp (independent library): x = (h_f(p_in) - h_f(p)) / (h_g(p) - h_f(p)).
+    h_in = PropsSI("H", "P", p_in, "Q", 0, "Water")
+    h_f = PropsSI("H", "P", p_flash, "Q", 0, "Water")
+    h_g = PropsSI("H", "P", p_flash, "Q", 1, "Water")
+    reference = (h_in - h_f) / (h_g - h_f)
+    r = calculate(Inputs(condensate_pressure=p_in, condensate_flow=1.0, flash_pressure=p_flash), SITE)
+    # IF97 and IAPWS-95 enthalpies differ by up to about 0.2 kJ/kg (see test_steam), i.e. about 1e-4 in x.
+    assert r.value("flash_fraction") == pytest.approx(reference, abs=2e-4)
+
+
+def test_subcooled_condensate_does_not_flash_and_says_so():
+    r = calculate(Inputs(condensate_pressure=9e5, condensate_flow=1.0, condensate_temperature=393.15,
+                         flash_pressure=3.5e5), SITE)
+    assert r.value("flash_fraction") == 0.0
+    assert r.value("flash_steam_flow") == 0.0
+    check = next(c for c in r.checks if c.name == "Condensate flashes")
+    assert check.status == "warn" and "does not flash" in check.detail
+
+
+def test_cascade_stages_add_up():
+    one = calculate(Inputs(condensate_pressure=17e5, condensate_flow=1.0, flash_pressure=2e5), SITE)
+    two = calculate(Inputs(condensate_pressure=17e5, condensate_flow=1.0, stages=(9e5, 2e5)), SITE)
+    # Steam flashed at the higher stage leaves with more enthalpy per kg (h_g is higher there),
+    # so the cascade's total flash mass is a little below the single stage's to the same pressure.
+    assert 0.97 * one.value("flash_fraction") < two.value("flash_fraction") < one.value("flash_fraction")
+    assert next(c for c in two.checks if c.name == "Energy balance closes").status == "pass"
+    total = two.value("stage_1_flash_steam_flow") + two.value("stage_2_flash_steam_flow")
+    assert total == pytest.approx(two.value("flash_steam_flow"), rel=1e-12)
+
+
+def test_yearly_saving_by_hand():
+    r = calculate(Inputs(condensate_pressure=9e5, condensate_flow=1.0, flash_pressure=3.5e5), SITE)
+    heat_kw = r.value("recovered_heat_rate")
+    assert r.value("annual_fuel_energy_saved") == pytest.approx(heat_kw * 6000 / 0.86 / 1000, rel=1e-12)
+    assert r.value("annual_cost_saving") == pytest.approx(r.value("annual_fuel_energy_saved") * 40, rel=1e-12)
+    assert r.value("annual_co2_avoided") == pytest.approx(r.value("annual_fuel_energy_saved") * 0.202, rel=1e-12)
+
+
+def test_souders_brown_published_form():
+    # Souders & Brown (1934): v = K sqrt((rho_L - rho_V) / rho_V); D = sqrt(4 Q / (pi v)).
+    r = calculate(Inputs(condensate_pressure=9e5, condensate_flow=1.0, flash_pressure=3.5e5, k_factor=0.06), SITE)
+    rho_l = PropsSI("D", "P", 3.5e5, "Q", 0, "Water")
+    rho_v = PropsSI("D", "P", 3.5e5, "Q", 1, "Water")
+    v = 0.06 * math.sqrt((rho_l - rho_v) / rho_v)
+    q = r.value("flash_steam_flow") / 3600 / rho_v
+    assert r.value("vessel_diameter") == pytest.approx(math.sqrt(4 * q / (math.pi * v)), rel=1e-3)
+
+
+def test_vented_receiver_is_reported_as_a_loss():
+    r = calculate(Inputs(condensate_pressure=17e5, condensate_flow=0.3, flash_pressure=ATM + 0.1e5, vented=True),
+                  SITE)
+    check = next(c for c in r.checks if c.name == "Vented receiver")
+    assert check.status == "warn" and "lost" in check.detail
+
+
+def test_flash_above_demand_warns():
+    r = calculate(Inputs(condensate_pressure=17e5, condensate_flow=1.0, flash_pressure=3.5e5, lp_demand=0.01), SITE)
+    assert next(c for c in r.checks if c.name == "Flash steam within the low-pressure demand").status == "warn"
+
+
+@settings(max_examples=60, deadline=None)
+@given(p_in=st.floats(2e5, 80e5), r1=st.floats(0.2, 0.9), r2=st.floats(0.2, 0.9), flow=st.floats(0.01, 20.0),
+       subcool=st.floats(0.0, 30.0), cascade=st.booleans())
+def test_balances_close_over_random_inputs(p_in, r1, r2, flow, subcool, cascade):
+    from steamcalc.steam import saturation_temperature
+    t = saturation_temperature(p_in) - subcool
+    stages = (p_in * r1, p_in * r1 * r2)
+    inputs = Inputs(condensate_pressure=p_in, condensate_flow=flow, condensate_temperature=t if subcool else None,
+                    stages=stages if cascade else None, flash_pressure=None if cascade else stages[1])
+    r = calculate(inputs, SITE)
+    # Mass: flash plus residual is the condensate, exactly in the recorded unit.
+    assert r.value("flash_steam_flow") + r.value("residual_condensate_flow") == pytest.approx(flow * 3600, rel=1e-15)
+    assert 0.0 <= r.value("flash_fraction") < 1.0
+    assert next(c for c in r.checks if c.name == "Energy balance closes").status == "pass"
+
+
+@pytest.mark.parametrize("kwargs,field", [
+    (dict(flash_pressure=9e5), "flash_pressure"),
+    (dict(flash_pressure=10e5), "flash_pressure"),
+    (dict(stages=(3e5, 5e5)), "stages[1]"),
+    (dict(flash_pressure=3e5, condensate_flow=-1.0), "condensate_flow"),
+    (dict(), "flash_pressure"),
+    (dict(flash_pressure=3e5, stages=(3e5,)), "stages"),
+])
+def test_bad_inputs(kwargs, field):
+    base = dict(condensate_pressure=9e5, condensate_flow=1.0)
+    base.update(kwargs)
+    with pytest.raises(InputError) as info:
+        Inputs(**base)
+    assert info.value.field == field
+
+
+CASE = """
+[case]
+kind = "flash"
+id = "F-1"
+[inputs]
+condensate_pressure = "8 bar(g)"
+condensate_flow = "3.2 t/h"
+{extra}
+"""
+
+
+@pytest.mark.parametrize("extra,field", [
+    ('flash_pressure = "8 bar(g)"', "flash_pressure"),
+    ('stages = ["2 bar(g)", "5 bar(g)"]', "stages[1]"),
+    ('flash_pressure = "2 bar(g)"\ncondensate_temperature = "250 degC"', "condensate_temperature"),
+    ('flash_pressure = "2 bar(g)"\n[inputs.vessel]\ninlet_nozzle = "DN77"', "inlet_nozzle"),
+    ('flash_pressure = "2 bar(g)"\nlp_demand = "-1 t/h"', "lp_demand"),
+])
+def test_bad_flash_case_exits_2_with_field(tmp_path, capsys, extra, field):
+    case = tmp_path / "f.toml"
+    case.write_text(CASE.format(extra=extra))
+    assert main(["run", str(case), "--out", str(tmp_path / "out")]) == 2
+    err = capsys.readouterr().err
+    assert field in err and str(case) in err
+    assert not (tmp_path / "out").exists()
+
+
+def test_negative_flow_case_exits_2(tmp_path, capsys):
+    case = tmp_path / "f.toml"
+    case.write_text(CASE.format(extra='flash_pressure = "2 bar(g)"').replace('"3.2 t/h"', '"-3.2 t/h"'))
+    assert main(["run", str(case), "--out", str(tmp_path / "out")]) == 2
+    assert "condensate_flow" in capsys.readouterr().err
+
+
+def test_demo_flash_cases_run_and_verify(tmp_path, demo_site_dir):
+    import shutil
+    site = tmp_path / "site"
+    shutil.copytree(demo_site_dir, site, ignore=shutil.ignore_patterns("records"))
+    for case in ("FL-01", "FL-02"):
+        assert main(["run", str(site / "cases" / f"{case}.toml")]) == 0
+        assert main(["verify", str(site / "records" / f"{case}_revA.json")]) == 0
