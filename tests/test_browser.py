@@ -19,7 +19,8 @@ import pytest
 CHROMIUM = os.environ.get("STEAMCALC_CHROMIUM", "/usr/bin/chromium")
 ROOT = Path(__file__).resolve().parent.parent
 ARTIFACTS = ROOT / "tests" / "_artifacts" / "browser"
-WORKBOOKS = {"letdown.ipynb": ("mass_flow", "5.5 t/h", "LD-01_revB.json")}
+WORKBOOKS = {"letdown.ipynb": ("mass_flow", "5.5 t/h", "LD-01_revB.json"),
+             "flash_recovery.ipynb": ("condensate_flow", "4.0 t/h", "FL-01_revB.json")}
 
 
 def _missing():

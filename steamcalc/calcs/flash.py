@@ -221,7 +221,7 @@ def calculate(inputs, site):
     >>> r = calculate(Inputs(condensate_pressure=11.01325e5, condensate_flow=1.0,
     ...                      flash_pressure=1.01325e5), Site())
     >>> round(r.value("flash_fraction"), 3)
-    0.157
+    0.161
     """
     from fluids.separator import v_Souders_Brown
 

@@ -78,7 +78,62 @@ def letdown_states(inputs, result):
     return states
 
 
-CHARTS = {"letdown": lambda inputs, result: letdown_chart(letdown_states(inputs, result))}
+def flash_chart(inputs, result, points=60):
+    """Flash fraction of this condensate against flash pressure, with the chosen stage(s) marked."""
+    h_in = result.value("condensate_enthalpy") * 1e3
+    p_in = inputs.condensate_pressure
+    pressures = np.geomspace(max(0.2e5, p_in / 60.0), p_in * 0.999, points)
+    fractions = []
+    for p in pressures:
+        h_f = SteamState.from_p_dryness(p, 0.0).enthalpy
+        h_g = SteamState.from_p_dryness(p, 1.0).enthalpy
+        fractions.append(max(0.0, (h_in - h_f) / (h_g - h_f)) * 100.0)
+    fig = go.Figure()
+    fig.add_trace(go.Scatter(x=pressures / 1e5, y=fractions, mode="lines", name="single flash from the inlet",
+                             line=dict(color=_COLOURS["outlet"], width=2)))
+    stages = inputs.stage_pressures
+    if len(stages) == 1:
+        marks_x, marks_y = [stages[0] / 1e5], [result.value("flash_fraction") * 100.0]
+        names = ["chosen flash pressure"]
+    else:
+        marks_x = [p / 1e5 for p in stages]
+        marks_y = [result.value(f"stage_{i}_flash_fraction") * 100.0 for i in range(1, len(stages) + 1)]
+        names = [f"stage {i}" for i in range(1, len(stages) + 1)]
+    fig.add_trace(go.Scatter(x=marks_x, y=marks_y, mode="markers+text", text=names, textposition="top right",
+                             name="this case", marker=dict(size=11, color=_COLOURS["inlet"])))
+    fig.update_layout(
+        title="Flash fraction against flash pressure", xaxis_title="flash pressure, bar(a)",
+        yaxis_title="flash fraction, % of the condensate entering", xaxis_type="log",
+        template="simple_white", height=420, margin=dict(l=60, r=20, t=50, b=50),
+        legend=dict(orientation="h", y=-0.2),
+    )
+    return fig
+
+
+def flash_stage_rows(inputs, result):
+    """The cascade (or single flash) as rows for a table: one dict per stage."""
+    stages = inputs.stage_pressures
+    if len(stages) == 1:
+        return [{"stage": 1, "pressure, bar(a)": stages[0] / 1e5,
+                 "flash fraction, %": result.value("flash_fraction") * 100,
+                 "flash steam, kg/h": result.value("flash_steam_flow"),
+                 "residual condensate, kg/h": result.value("residual_condensate_flow")}]
+    return [{"stage": i, "pressure, bar(a)": result.value(f"stage_{i}_pressure"),
+             "flash fraction, %": result.value(f"stage_{i}_flash_fraction") * 100,
+             "flash steam, kg/h": result.value(f"stage_{i}_flash_steam_flow"),
+             "residual condensate, kg/h": result.value(f"stage_{i}_residual_condensate_flow")}
+            for i in range(1, len(stages) + 1)]
+
+
+CHARTS = {"letdown": lambda inputs, result: letdown_chart(letdown_states(inputs, result)),
+          "flash": flash_chart}
+TABLES = {"flash": flash_stage_rows}
+
+
+def table_for(kind, inputs, result):
+    """Rows of a calculation kind's table (e.g. the flash cascade), or None."""
+    maker = TABLES.get(kind)
+    return None if maker is None else maker(inputs, result)
 
 
 def chart_for(kind, inputs, result):

@@ -29,11 +29,14 @@ class CaseForm:
 
     def __init__(self, inputs_class, values, headers=()):
         self.boxes = {}
+        self.kinds = {f.name: f.metadata["kind"] for f in input_fields(inputs_class)}
         groups = {}
         header_note = f" Site headers: {', '.join('header:' + h for h in headers)}." if headers else ""
         for f in input_fields(inputs_class):
             meta = f.metadata
             raw = values.get(f.name, "")
+            if isinstance(raw, (list, tuple)):
+                raw = ", ".join(str(item) for item in raw)
             help_text = meta["help"] + (header_note if meta["kind"] == "pressure" else "")
             box = widgets.Text(
                 value="" if raw is None else str(raw), placeholder=f"e.g. {meta['example']}",
@@ -57,6 +60,14 @@ class CaseForm:
         for name, box in self.boxes.items():
             text = box.value.strip()
             if not text:
+                continue
+            if self.kinds[name] == "pressure_list":
+                # Typed as "8 bar(g), 2.5 bar(g)" (brackets and quotes as in TOML also accepted).
+                items = [item.strip().strip("'\"") for item in text.strip("[]").split(",")]
+                out[name] = [item for item in items if item]
+                continue
+            if self.kinds[name] in ("nominal_size", "flag"):
+                out[name] = text
                 continue
             try:
                 out[name] = float(text)

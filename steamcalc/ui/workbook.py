@@ -23,7 +23,7 @@ from ..record import write_record
 from ..report import RENDERERS, format_number, format_unit, render_markdown
 from ..runner import record_for_case
 from ..site import ID_PATTERN, case_site, flatten_inputs, load_case, parse_inputs
-from .charts import chart_for
+from .charts import chart_for, table_for
 from .forms import CaseForm
 
 _STATUS_COLOURS = {"pass": "#2f6b3a", "warn": "#8a5a00", "fail": "#a3201b"}
@@ -79,6 +79,8 @@ class Workbook:
         self._chart = widgets.Output()
         self._chart.add_class("steamcalc-chart")
         self._preview = widgets.Output()
+        self._table = widgets.HTML()
+        self._table.add_class("steamcalc-table")
         self._save_button = widgets.Button(description="Save record", icon="save", button_style="primary")
         self._save_button.add_class("steamcalc-save")
         self._save_status = widgets.HTML()
@@ -118,6 +120,7 @@ class Workbook:
         self._message.value = ""
         self._results_html.value = self._results_table()
         self._draw_chart()
+        self._draw_table()
         self._draw_preview()
 
     def _set_revision(self):
@@ -154,6 +157,17 @@ class Workbook:
                                 "data": {"application/vnd.plotly.v1+json": json.loads(figure.to_json()),
                                          "text/plain": "enthalpy-entropy chart"}},)
 
+    def _draw_table(self):
+        rows = table_for(self.case.kind, self.inputs, self.result)
+        if not rows:
+            self._table.value = ""
+            return
+        head = "".join(f"<th style='padding:2px 10px'>{html.escape(str(k))}</th>" for k in rows[0])
+        body = "".join("<tr>" + "".join(
+            f"<td style='text-align:right;padding:2px 10px'>{html.escape(format_number(v))}</td>" for v in row.values())
+            + "</tr>" for row in rows)
+        self._table.value = f"<table><tr>{head}</tr>{body}</table>"
+
     def _draw_preview(self):
         self._preview.outputs = ({"output_type": "display_data", "metadata": {},
                                   "data": {"text/markdown": render_markdown(self.record),
@@ -174,6 +188,10 @@ class Workbook:
 
     def preview_view(self):
         return self._preview
+
+    def table_view(self):
+        """The kind's table (the flash stages), updating with the inputs."""
+        return self._table
 
     def save_view(self):
         return widgets.HBox([self._save_button, self._save_status])
@@ -225,7 +243,7 @@ class UnavailableWorkbook:
         return widgets.HTML(f"<div style='color:#a3201b'><b>Input not accepted:</b> {html.escape(self.message)}"
                             "</div><div>Correct the parameters cell and run all cells again.</div>")
 
-    form_view = results_view = chart_view = preview_view = save_view = _view
+    form_view = results_view = chart_view = preview_view = save_view = table_view = _view
 
     def summary(self):
         return f"Input not accepted: {self.message}"
