@@ -35,6 +35,7 @@ SI_UNITS = {
     "length": "m",
     "velocity": "m/s",
     "area": "m**2",
+    "flow_coefficient": "m**3/h",
     "dimensionless": "",
 }
 
@@ -49,6 +50,7 @@ RECORD_UNITS = {
     "length": "m",
     "velocity": "m/s",
     "area": "m**2",
+    "flow_coefficient": "m**3/h",
     "dimensionless": "",
 }
 
@@ -59,6 +61,7 @@ _EXAMPLES = {
     "mass_flow": "'4.5 t/h' or '1.25 kg/s'",
     "length": "'180 m'",
     "velocity": "'0.07 m/s'",
+    "flow_coefficient": "'40 m^3/h'",
 }
 
 _NUMBER = r"[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?"

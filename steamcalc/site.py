@@ -387,9 +387,12 @@ def parse_inputs(inputs_class, flat, site):
             values[f.name] = _positive_number(raw, f.name)
         elif kind == "flag":
             values[f.name] = _flag(raw, f.name)
-        elif kind == "nominal_size":
+        elif kind in ("nominal_size", "text"):
+            if isinstance(raw, (int, float)) and not isinstance(raw, bool) and kind == "text":
+                raw = f"{raw:g}"
             if not isinstance(raw, str):
-                raise InputError("a nominal size is text such as 'DN80' or '3 in'", field=f.name, value=raw)
+                raise InputError("must be text" + (", such as 'DN80' or '3 in'" if kind == "nominal_size" else ""),
+                                 field=f.name, value=raw)
             values[f.name] = raw.strip()
         elif kind == "pressure_list":
             if isinstance(raw, str) or not isinstance(raw, (list, tuple)) or not raw:

@@ -195,6 +195,8 @@ class SteamState:
         IF97 region that gave the state (1, 2, 3 or 4).
     cp : float or None
         Isobaric specific heat, J/(kg K); None in the two-phase region.
+    cv : float or None
+        Isochoric specific heat, J/(kg K); None in the two-phase region.
     speed_of_sound : float or None
         m/s; None in the two-phase region.
     """
@@ -209,6 +211,7 @@ class SteamState:
     region: int
     cp: float | None
     speed_of_sound: float | None
+    cv: float | None = None
 
     # -- constructors -------------------------------------------------------------------
     @classmethod
@@ -356,6 +359,18 @@ class SteamState:
         return None
 
     @property
+    def isentropic_exponent(self):
+        """Isentropic exponent κ = w²ρ/p (dimensionless); None in the two-phase region.
+
+        References
+        ----------
+        Definition κ = −(v/p)(∂p/∂v)_s = w² ρ / p, e.g. IEC 60534-2-1 note on κ for real gases.
+        """
+        if self.speed_of_sound is None:
+            return None
+        return self.speed_of_sound ** 2 * self.density / self.pressure
+
+    @property
     def specific_volume(self):
         """Specific volume, m3/kg."""
         return 1.0 / self.density
@@ -385,11 +400,12 @@ class SteamState:
         if st.region == 4 or dryness is not None:
             dryness = float(st.x) if dryness is None else float(dryness)
             phase = "saturated liquid" if dryness == 0.0 else "saturated vapour" if dryness == 1.0 else "wet"
-            cp = None
+            cp = cv = None
             speed_of_sound = None
         else:
             dryness = None
             cp = float(st.cp) * 1e3
+            cv = float(st.cv) * 1e3
             speed_of_sound = float(st.w)
             if pressure > CRITICAL_PRESSURE:
                 phase = "supercritical" if temperature > CRITICAL_TEMPERATURE else "compressed liquid"
@@ -401,5 +417,5 @@ class SteamState:
             pressure=pressure, temperature=temperature, enthalpy=float(st.h) * 1e3,
             entropy=float(st.s) * 1e3, density=float(st.rho), dryness=dryness, phase=phase,
             region=4 if dryness is not None else int(st.region), cp=cp,
-            speed_of_sound=speed_of_sound,
+            speed_of_sound=speed_of_sound, cv=cv,
         )

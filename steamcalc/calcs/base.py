@@ -17,9 +17,10 @@ from ..quantities import RECORD_UNITS, from_record_unit, to_record_unit
 #: Kinds an input field can have. ``fraction`` is a plain number from 0 to 1, ``number`` a
 #: plain positive number, ``flag`` true or false, ``nominal_size`` a pipe size such as "DN80",
 #: ``pressure_list`` a list of pressure strings.
-INPUT_KINDS = ("pressure", "temperature", "temperature_difference", "mass_flow", "velocity", "fraction",
-               "number", "flag", "nominal_size", "pressure_list")
-_PLAIN_KINDS = ("fraction", "number", "flag", "nominal_size")
+INPUT_KINDS = ("pressure", "temperature", "temperature_difference", "mass_flow", "velocity",
+               "flow_coefficient", "fraction", "number", "flag", "nominal_size", "text", "pressure_list")
+_PLAIN_KINDS = ("fraction", "number", "flag", "nominal_size", "text")
+_RAW_KINDS = ("flag", "nominal_size", "text")
 
 STATUSES = ("pass", "warn", "fail")
 
@@ -70,7 +71,7 @@ def to_record_inputs(inputs, given):
             continue
         kind = f.metadata["kind"]
         unit_kind = _unit_kind(kind)
-        if kind in ("flag", "nominal_size"):
+        if kind in _RAW_KINDS:
             stored = value
         elif kind == "pressure_list":
             stored = [to_record_unit(v, unit_kind) for v in value]
@@ -89,7 +90,7 @@ def from_record_inputs(inputs_class, table):
             raise InputError(f"record input '{name}' is not an input of this kind", field=name)
         kind = names[name].metadata["kind"]
         unit_kind = _unit_kind(kind)
-        if kind in ("flag", "nominal_size"):
+        if kind in _RAW_KINDS:
             values[name] = entry["value"]
         elif kind == "pressure_list":
             values[name] = tuple(from_record_unit(v, entry.get("unit", ""), unit_kind) for v in entry["value"])

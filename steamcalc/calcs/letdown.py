@@ -16,6 +16,7 @@ from ..errors import InputError, OutOfRangeError
 from ..steam import REFERENCE as IF97_REFERENCE
 from ..steam import SteamState, saturation_temperature
 from .base import Result, input_field
+from .letdown_equipment import line_section, power_section, valve_section
 
 KIND = "letdown"
 TITLE = "Pressure let-down station"
@@ -81,7 +82,52 @@ class Inputs:
         "pressure", "Spray water pressure", "Pressure of the spray water at the nozzle.",
         example="20 bar(g)", section="desuperheater")
 
+    max_flow: float | None = input_field(
+        "mass_flow", "Maximum flow", "Largest flow the valve must pass (sizing case).", example="5.5 t/h",
+        section="valve")
+    min_flow: float | None = input_field(
+        "mass_flow", "Minimum flow", "Smallest controlled flow.", example="1.0 t/h", section="valve")
+    fl: float | None = input_field(
+        "fraction", "FL", "Liquid pressure recovery factor of the valve (maker's data).", example="0.90",
+        section="valve")
+    xt: float | None = input_field(
+        "fraction", "xT", "Pressure differential ratio factor at choked flow (maker's data).", example="0.70",
+        section="valve")
+    fd: float | None = input_field(
+        "number", "Fd", "Valve style modifier (maker's data).", example="1.0", section="valve")
+    rated_kv: float | None = input_field(
+        "flow_coefficient", "Rated Kv (Kvs)", "Kv of the selected valve at full travel.", example="40 m^3/h",
+        section="valve")
+    characteristic: str | None = input_field(
+        "text", "Characteristic", "Inherent characteristic: equal-percentage or linear.",
+        example="equal-percentage", section="valve")
+    rangeability: float | None = input_field(
+        "number", "Rangeability", "Inherent rangeability of an equal-percentage trim.", example="50",
+        section="valve")
+    relief_set_pressure: float | None = input_field(
+        "pressure", "Downstream relief set pressure", "Set pressure of the relief device protecting the "
+        "outlet side.", example="4.5 bar(g)", section="valve")
+    valve_size: str | None = input_field(
+        "nominal_size", "Valve size", "Nominal size of the valve body (for the piping factor with reducers).",
+        example="DN50", section="valve")
+    inlet_size: str | None = input_field(
+        "nominal_size", "Inlet line size", "Nominal size of the inlet line.", example="DN80", section="lines")
+    outlet_size: str | None = input_field(
+        "nominal_size", "Outlet line size", "Nominal size of the outlet line.", example="DN150", section="lines")
+    schedule: str | None = input_field(
+        "text", "Pipe schedule", "ASME B36.10M schedule of the lines.", example="40", section="lines")
+    max_velocity_wet: float | None = input_field(
+        "velocity", "Velocity limit, saturated/wet", "Line velocity limit for saturated or wet steam.",
+        example="30 m/s", section="lines")
+    max_velocity_superheated: float | None = input_field(
+        "velocity", "Velocity limit, superheated", "Line velocity limit for superheated steam.",
+        example="45 m/s", section="lines")
+    isentropic_efficiency: float | None = input_field(
+        "fraction", "Turbine isentropic efficiency", "Of a back-pressure turbine in place of the valve.",
+        example="0.55", section="turbine")
+
     def __post_init__(self):
+        self._check_valve_inputs()
         for name in ("inlet_pressure", "outlet_pressure", "mass_flow"):
             if getattr(self, name) is None:
                 raise InputError("is required", field=name,
@@ -114,6 +160,31 @@ class Inputs:
             raise InputError("spray water is given but no desuperheater target",
                              field="desuperheater.target_superheat",
                              fix="add target_superheat or target_temperature, or remove [inputs.desuperheater]")
+
+    def _check_valve_inputs(self):
+        if self.fl is not None and self.fl <= 0.0:
+            raise InputError("FL must lie above 0 and at most 1", field="valve.fl", value=self.fl, limits=(0, 1, ""))
+        if self.xt is not None and self.xt <= 0.0:
+            raise InputError("xT must lie above 0 and at most 1", field="valve.xt", value=self.xt, limits=(0, 1, ""))
+        if self.characteristic is not None and self.characteristic not in ("linear", "equal-percentage"):
+            raise InputError("the characteristic is 'linear' or 'equal-percentage'", field="valve.characteristic",
+                             value=self.characteristic)
+        if self.rangeability is not None and self.rangeability <= 1.0:
+            raise InputError("rangeability must be above 1", field="valve.rangeability", value=self.rangeability)
+        if self.rated_kv is not None and self.rated_kv <= 0.0:
+            raise InputError("the rated Kv must be above zero", field="valve.rated_kv")
+        if self.isentropic_efficiency is not None and self.isentropic_efficiency <= 0.0:
+            raise InputError("efficiency must lie above 0 and at most 1", field="turbine.isentropic_efficiency")
+        for name in ("max_velocity_wet", "max_velocity_superheated"):
+            if getattr(self, name) is not None and getattr(self, name) <= 0.0:
+                raise InputError("a velocity limit must be above zero", field=f"lines.{name}")
+        if self.mass_flow is not None:
+            if self.max_flow is not None and self.max_flow < self.mass_flow:
+                raise InputError("the maximum flow is below the normal flow", field="valve.max_flow",
+                                 fix="max_flow ≥ mass_flow ≥ min_flow")
+            if self.min_flow is not None and not 0.0 < self.min_flow <= self.mass_flow:
+                raise InputError("the minimum flow must be above zero and at most the normal flow",
+                                 field="valve.min_flow", fix="max_flow ≥ mass_flow ≥ min_flow > 0")
 
     @property
     def desuperheating(self):
@@ -239,6 +310,9 @@ def calculate(inputs, site):
         IF97_REFERENCE,
         "Steady-flow energy equation for a throttling device and for adiabatic mixing "
         "(any engineering-thermodynamics text)",
+        "IEC 60534-2-1:2011, control-valve sizing equations for compressible fluids",
+        "IEC 60534-2-4:2009, inherent flow characteristics",
+        "ASME B36.10M, welded and seamless wrought steel pipe (dimensions)",
     ])
     result.assumptions.extend([
         "Adiabatic valve: Q = 0",
@@ -310,6 +384,10 @@ def calculate(inputs, site):
     result.add("outlet_superheat", "Outlet superheat", outlet.superheat, "K")
     result.add("outlet_enthalpy", "Outlet enthalpy", outlet.enthalpy / 1e3, "kJ/kg")
     result.add("outlet_mass_flow", "Outlet steam flow", outlet_flow_kg_h, "kg/h")
+
+    valve_section(inputs, inlet, result)
+    line_section(inputs, inlet, throttled, outlet, result)
+    power_section(inputs, inlet, throttled, site, result)
 
     if outlet.phase == "wet":
         result.check("Outlet steam state", "warn",

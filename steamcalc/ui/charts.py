@@ -125,9 +125,68 @@ def flash_stage_rows(inputs, result):
             for i in range(1, len(stages) + 1)]
 
 
-CHARTS = {"letdown": lambda inputs, result: letdown_chart(letdown_states(inputs, result)),
+def valve_chart(inputs, result, points=40):
+    """Required Kv (and travel of the rated valve) against flow, over the flow cases."""
+    from plotly.subplots import make_subplots
+
+    from ..calcs.letdown_equipment import DEFAULT_RANGEABILITY, DEFAULT_XT, _diameters
+    from ..equipment.valve import size_steam_valve, valve_travel
+
+    inlet = SteamState.from_ph(inputs.inlet_pressure, result.value("inlet_enthalpy") * 1e3)
+    kappa = result.value("isentropic_exponent")
+    xt = inputs.xt if inputs.xt is not None else DEFAULT_XT
+    low = inputs.min_flow if inputs.min_flow is not None else inputs.mass_flow * 0.2
+    high = inputs.max_flow if inputs.max_flow is not None else inputs.mass_flow
+    flows = np.linspace(low * 0.8, high * 1.1, points)
+    sizes, _ = _diameters(inputs)
+    mm = {k: (None if v is None else v * 1000) for k, v in sizes.items()}
+    with_fittings = mm["valve_size"] is not None and (mm["inlet_size"] or mm["outlet_size"])
+    kvs = [size_steam_valve(w * 3600, inputs.inlet_pressure / 1e3, inputs.outlet_pressure / 1e3, inlet.density,
+                            kappa, xt, valve_d=mm["valve_size"] if with_fittings else None,
+                            inlet_d=mm["inlet_size"], outlet_d=mm["outlet_size"]).kv for w in flows]
+    fig = make_subplots(specs=[[{"secondary_y": True}]])
+    fig.add_trace(go.Scatter(x=flows * 3600, y=kvs, name="required Kv", line=dict(color=_COLOURS["outlet"], width=2)))
+    cases = [(n, w) for n, w in (("minimum", inputs.min_flow), ("normal", inputs.mass_flow),
+                                 ("maximum", inputs.max_flow)) if w is not None]
+    fig.add_trace(go.Scatter(x=[w * 3600 for _, w in cases], y=[result.value(f"valve_kv_{n}") for n, _ in cases],
+                             mode="markers+text", text=[n for n, _ in cases], textposition="bottom right",
+                             name="flow cases", marker=dict(size=10, color=_COLOURS["process"])))
+    if inputs.rated_kv is not None:
+        characteristic = inputs.characteristic or "equal-percentage"
+        rangeability = inputs.rangeability or DEFAULT_RANGEABILITY
+        travel = [100 * valve_travel(min(kv, inputs.rated_kv), inputs.rated_kv, characteristic, rangeability)
+                  for kv in kvs]
+        fig.add_trace(go.Scatter(x=flows * 3600, y=travel, name="travel of the rated valve",
+                                 line=dict(color=_COLOURS["inlet"], dash="dash")), secondary_y=True)
+        fig.add_shape(type="rect", xref="paper", x0=0, x1=1, yref="y2", y0=20, y1=80, fillcolor="#2f6b3a",
+                      opacity=0.07, line_width=0, layer="below")
+        fig.update_yaxes(title_text="travel, % (shaded: 20-80 %)", range=[0, 100], tickmode="linear", dtick=20,
+                         secondary_y=True)
+    fig.update_yaxes(title_text="required Kv, m³/h", secondary_y=False)
+    fig.update_layout(title="Control valve: required Kv and travel against flow", xaxis_title="steam flow, kg/h",
+                      template="simple_white", height=420, margin=dict(l=60, r=60, t=50, b=50),
+                      legend=dict(orientation="h", y=-0.2))
+    return fig
+
+
+def valve_case_rows(inputs, result):
+    """The let-down's flow cases as table rows."""
+    rows = []
+    for name, flow in (("minimum", inputs.min_flow), ("normal", inputs.mass_flow), ("maximum", inputs.max_flow)):
+        if flow is None:
+            continue
+        row = {"flow case": name, "flow, kg/h": flow * 3600, "required Kv, m³/h": result.value(f"valve_kv_{name}"),
+               "choked": "yes" if result.value(f"choked_{name}") else "no"}
+        if f"valve_travel_{name}" in result.values:
+            row["travel, %"] = result.value(f"valve_travel_{name}")
+        rows.append(row)
+    return rows
+
+
+CHARTS = {"letdown": lambda inputs, result: [letdown_chart(letdown_states(inputs, result)),
+                                             valve_chart(inputs, result)],
           "flash": flash_chart}
-TABLES = {"flash": flash_stage_rows}
+TABLES = {"flash": flash_stage_rows, "letdown": valve_case_rows}
 
 
 def table_for(kind, inputs, result):
@@ -137,9 +196,12 @@ def table_for(kind, inputs, result):
 
 
 def chart_for(kind, inputs, result):
-    """The chart of a calculation kind, or None when the kind has none."""
+    """The charts of a calculation kind, as a list (empty when the kind has none)."""
     maker = CHARTS.get(kind)
-    return None if maker is None else maker(inputs, result)
+    if maker is None:
+        return []
+    figures = maker(inputs, result)
+    return figures if isinstance(figures, list) else [figures]
 
 
 __all__ = ["chart_for", "letdown_chart", "saturation_dome", "isobar", "saturation_temperature"]

@@ -66,7 +66,7 @@ class CaseForm:
                 items = [item.strip().strip("'\"") for item in text.strip("[]").split(",")]
                 out[name] = [item for item in items if item]
                 continue
-            if self.kinds[name] in ("nominal_size", "flag"):
+            if self.kinds[name] in ("nominal_size", "flag", "text"):
                 out[name] = text
                 continue
             try:

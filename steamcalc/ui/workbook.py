@@ -149,13 +149,11 @@ class Workbook:
     def _draw_chart(self):
         # Output widgets are filled through their state, not by capturing display calls,
         # so that headless runs (papermill, nbval) see no stray outputs in the cell.
-        figure = chart_for(self.case.kind, self.inputs, self.result)
-        if figure is None:
-            self._chart.outputs = ()
-            return
-        self._chart.outputs = ({"output_type": "display_data", "metadata": {},
-                                "data": {"application/vnd.plotly.v1+json": json.loads(figure.to_json()),
-                                         "text/plain": "enthalpy-entropy chart"}},)
+        figures = chart_for(self.case.kind, self.inputs, self.result)
+        self._chart.outputs = tuple(
+            {"output_type": "display_data", "metadata": {},
+             "data": {"application/vnd.plotly.v1+json": json.loads(figure.to_json()), "text/plain": "chart"}}
+            for figure in figures)
 
     def _draw_table(self):
         rows = table_for(self.case.kind, self.inputs, self.result)
