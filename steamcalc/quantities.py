@@ -36,6 +36,11 @@ SI_UNITS = {
     "velocity": "m/s",
     "area": "m**2",
     "flow_coefficient": "m**3/h",
+    "specific_heat": "J/(kg*K)",
+    "heat_transfer_coefficient": "W/(m**2*K)",
+    "fouling_resistance": "m**2*K/W",
+    "volume_flow": "m**3/s",
+    "density": "kg/m**3",
     "dimensionless": "",
 }
 
@@ -51,6 +56,11 @@ RECORD_UNITS = {
     "velocity": "m/s",
     "area": "m**2",
     "flow_coefficient": "m**3/h",
+    "specific_heat": "kJ/(kg*K)",
+    "heat_transfer_coefficient": "kW/(m**2*K)",
+    "fouling_resistance": "m**2*K/kW",
+    "volume_flow": "m**3/h",
+    "density": "kg/m**3",
     "dimensionless": "",
 }
 
@@ -62,6 +72,12 @@ _EXAMPLES = {
     "length": "'180 m'",
     "velocity": "'0.07 m/s'",
     "flow_coefficient": "'40 m^3/h'",
+    "specific_heat": "'3.9 kJ/(kg K)'",
+    "heat_transfer_coefficient": "'1.8 kW/(m^2 K)'",
+    "fouling_resistance": "'0.1 m^2 K/kW'",
+    "area": "'2.6 m^2'",
+    "volume_flow": "'12 m^3/h'",
+    "density": "'1030 kg/m^3'",
 }
 
 _NUMBER = r"[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?"

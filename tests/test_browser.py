@@ -20,7 +20,8 @@ CHROMIUM = os.environ.get("STEAMCALC_CHROMIUM", "/usr/bin/chromium")
 ROOT = Path(__file__).resolve().parent.parent
 ARTIFACTS = ROOT / "tests" / "_artifacts" / "browser"
 WORKBOOKS = {"letdown.ipynb": ("mass_flow", "5.5 t/h", "LD-01_revB.json"),
-             "flash_recovery.ipynb": ("condensate_flow", "4.0 t/h", "FL-01_revB.json")}
+             "flash_recovery.ipynb": ("condensate_flow", "4.0 t/h", "FL-01_revB.json"),
+             "exchanger_duty.ipynb": ("process_flow", "10 t/h", "HX-01_revB.json")}
 
 
 def _missing():
@@ -95,8 +96,11 @@ def browser():
         b.close()
 
 
+PANEL = ".jp-NotebookPanel:not(.lm-mod-hidden)"
+
+
 def _results_text(page):
-    return page.locator(".steamcalc-results").first.inner_text()
+    return page.locator(f"{PANEL} .steamcalc-results").first.inner_text()
 
 
 @pytest.mark.parametrize("notebook", list(WORKBOOKS))
@@ -106,7 +110,7 @@ def test_workbook_in_browser(lab, browser, notebook):
     shots = ARTIFACTS / notebook.replace(".ipynb", "")
     shots.mkdir(parents=True, exist_ok=True)
     page = browser.new_page(viewport={"width": 1400, "height": 1000})
-    page.goto(f"{url}/lab/tree/workbooks/{notebook}", timeout=90_000)
+    page.goto(f"{url}/lab/tree/workbooks/{notebook}?reset", timeout=90_000)
     page.wait_for_selector(".jp-NotebookPanel", timeout=90_000)
     page.wait_for_function(
         "() => { const w = window.jupyterapp && window.jupyterapp.shell.currentWidget;"
@@ -114,38 +118,39 @@ def test_workbook_in_browser(lab, browser, notebook):
         " return k && k.status === 'idle'; }", timeout=90_000)
     page.evaluate("window.jupyterapp.commands.execute('notebook:run-all-cells')")
     try:
-        page.wait_for_selector(".steamcalc-results", timeout=90_000)
+        page.wait_for_selector(f"{PANEL} .steamcalc-results", timeout=90_000)
     except Exception:
         page.screenshot(path=str(shots / "0-no-results.png"), full_page=True)
         raise
-    page.wait_for_function("document.querySelector('.steamcalc-results').innerText.includes('Overall')",
+    page.wait_for_function(f"document.querySelector('{PANEL} .steamcalc-results').innerText.includes('Overall')",
                            timeout=60_000)
-    page.wait_for_selector(".steamcalc-save", timeout=60_000)
+    page.wait_for_selector(f"{PANEL} .steamcalc-save", timeout=60_000)
     before = _results_text(page)
     page.screenshot(path=str(shots / "1-after-run-all.png"), full_page=True)
-    chart = page.locator(".steamcalc-chart").first
+    chart = page.locator(f"{PANEL} .steamcalc-chart").first
     chart.scroll_into_view_if_needed()
-    page.wait_for_selector(".steamcalc-chart .js-plotly-plot", timeout=30_000)
+    page.wait_for_selector(f"{PANEL} .steamcalc-chart .js-plotly-plot", timeout=30_000)
     chart.screenshot(path=str(shots / "1-chart.png"))
 
     # Raise the revision first, so the changed inputs are a new record rather than a conflict.
-    revision = page.locator(".steamcalc-revision input").first
+    revision = page.locator(f"{PANEL} .steamcalc-revision input").first
     revision.fill("B")
     revision.press("Enter")
-    box = page.locator(f".steamcalc-input-{field} input").first
+    box = page.locator(f"{PANEL} .steamcalc-input-{field} input").first
     box.fill(new_value)
     box.press("Enter")
     page.wait_for_function(
-        "(before) => document.querySelector('.steamcalc-results').innerText !== before", arg=before,
+        f"(before) => document.querySelector('{PANEL} .steamcalc-results').innerText !== before", arg=before,
         timeout=30_000)
     assert _results_text(page) != before
     page.screenshot(path=str(shots / "2-after-input-change.png"), full_page=True)
 
-    page.locator(".steamcalc-save").first.scroll_into_view_if_needed()
-    page.locator(".steamcalc-save").first.click()
+    save = page.locator(f"{PANEL} .steamcalc-save").first
+    save.scroll_into_view_if_needed()
+    save.click()
     page.wait_for_function(
-        "document.querySelector('.steamcalc-save-status') && "
-        "document.querySelector('.steamcalc-save-status').innerText.includes('saved')", timeout=30_000)
+        f"document.querySelector('{PANEL} .steamcalc-save-status') && "
+        f"document.querySelector('{PANEL} .steamcalc-save-status').innerText.includes('saved')", timeout=30_000)
     page.screenshot(path=str(shots / "3-after-save.png"), full_page=True)
     body = page.locator("body").inner_text()
     assert "Error displaying widget" not in body

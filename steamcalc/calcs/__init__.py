@@ -10,9 +10,9 @@ find a kind only through :func:`get_calculation`.
 from __future__ import annotations
 
 from ..errors import CaseFileError
-from . import flash, letdown
+from . import exchanger, flash, letdown
 
-_REGISTRY = {module.KIND: module for module in (letdown, flash)}
+_REGISTRY = {module.KIND: module for module in (letdown, flash, exchanger)}
 
 
 def kinds():

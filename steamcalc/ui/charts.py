@@ -183,10 +183,48 @@ def valve_case_rows(inputs, result):
     return rows
 
 
+def stall_chart(inputs, result, points=60):
+    """Steam-side pressure the exchanger needs against load, with the condensate back pressure."""
+    loads = np.array([int(k.rsplit("_", 1)[1]) for k in result.values if k.startswith("required_steam_pressure_")])
+    pressures = [result.value(f"required_steam_pressure_{load}") for load in loads]
+    fig = go.Figure()
+    fig.add_trace(go.Scatter(x=loads, y=pressures, mode="lines+markers", name="steam-side pressure needed",
+                             line=dict(color=_COLOURS["outlet"], width=2)))
+    if inputs.condensate_back_pressure is not None:
+        back = inputs.condensate_back_pressure / 1e5
+        fig.add_trace(go.Scatter(x=[0, 100], y=[back, back], mode="lines",
+                                 name=f"condensate back pressure {back:.3g} bar(a)",
+                                 line=dict(color=_COLOURS["inlet"], dash="dash", width=2)))
+        stall = result.value("stall_load_fraction") * 100
+        if 0 < stall < 100:
+            fig.add_vrect(x0=0, x1=stall, fillcolor=_COLOURS["inlet"], opacity=0.08, line_width=0,
+                          annotation_text=f"stall below {stall:.0f} %", annotation_position="top right")
+    fig.update_layout(title="Turndown: steam-side pressure needed against load", xaxis_title="load, % of design",
+                      yaxis_title="pressure, bar(a)", xaxis_range=[0, 102], template="simple_white", height=420,
+                      margin=dict(l=60, r=20, t=50, b=50), legend=dict(orientation="h", y=-0.2))
+    return fig
+
+
+def turndown_rows(inputs, result):
+    """Turndown table: load, duty and the steam-side pressure needed."""
+    rows = []
+    back = None if inputs.condensate_back_pressure is None else inputs.condensate_back_pressure / 1e5
+    for key in result.values:
+        if not key.startswith("required_steam_pressure_"):
+            continue
+        load = int(key.rsplit("_", 1)[1])
+        pressure = result.value(key)
+        row = {"load, %": load, "duty, kW": result.value("duty") * load / 100, "steam-side pressure, bar(a)": pressure}
+        if back is not None:
+            row["drains by pressure"] = "yes" if pressure > back else "NO - stall"
+        rows.append(row)
+    return rows
+
+
 CHARTS = {"letdown": lambda inputs, result: [letdown_chart(letdown_states(inputs, result)),
                                              valve_chart(inputs, result)],
-          "flash": flash_chart}
-TABLES = {"flash": flash_stage_rows, "letdown": valve_case_rows}
+          "flash": flash_chart, "exchanger": stall_chart}
+TABLES = {"flash": flash_stage_rows, "letdown": valve_case_rows, "exchanger": turndown_rows}
 
 
 def table_for(kind, inputs, result):

@@ -1,0 +1,508 @@
+"""Steam-heated exchanger: duty, steam demand, zone LMTD, area, turndown and stall.
+
+A process liquid is heated by condensing steam. The duty comes from the process side;
+the steam flow from the steam's actual state (superheat and dryness count) down to
+condensate at its stated subcooling. A zone analysis gives the desuperheating,
+condensing and subcooling duties, each with its own LMTD. At part load, with a fixed
+area and service U, the steam-side pressure the exchanger needs falls; below the load
+where it falls under the condensate back pressure, condensate stops draining: stall.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+from ..errors import InputError, OutOfRangeError
+from ..steam import REFERENCE as IF97_REFERENCE
+from ..steam import SteamState, saturation_pressure, saturation_temperature
+from .base import Result, input_field
+
+KIND = "exchanger"
+TITLE = "Steam-heated exchanger: duty, area and stall"
+WORKBOOK = "exchanger_duty.ipynb"
+
+ARRANGEMENTS = {"counterflow": None, "1-2": 1, "2-4": 2}
+#: Smallest temperature approach (steam saturation to process outlet) held without a warning, K
+#: (common practice: below about 5 K control is sluggish and the area grows fast).
+MIN_APPROACH = 5.0
+#: Part loads evaluated for the turndown table and chart.
+LOADS = tuple(round(0.1 * i, 1) for i in range(1, 11))
+
+CAUTIONS = (
+    "Below the stall load condensate backs up into the exchanger: waterhammer, corrosion and loss of "
+    "temperature control follow. Provide for draining at part load (see the remedies in the record).",
+    "The steam space is a pressure vessel: design, relief and inspection follow the local pressure-equipment "
+    "code; the process side needs relief against thermal expansion when blocked in.",
+    "Steam, condensate and hot process liquid cause severe burns; drains and vents discharge to a safe place.",
+    "These results support design by a competent engineer; they do not replace the applicable codes, the "
+    "equipment makers' data or a licensed engineer's approval.",
+)
+
+STALL_REMEDIES = (
+    "Usual remedies for stall, in general terms: drain the condensate by gravity to a vented receiver and pump "
+    "it (a pump-trap or pressure-powered pump); fit a vacuum breaker so that the steam space can drain when its "
+    "pressure falls below atmospheric; lower the condensate back pressure (line lift, return-main pressure); "
+    "avoid oversized area; or control the process temperature on the condensate side (flooded control).",
+)
+
+
+@dataclass(frozen=True)
+class Inputs:
+    """Inputs of a steam-heated exchanger; values in SI."""
+
+    steam_pressure: float = input_field(
+        "pressure", "Steam pressure", "Steam pressure in the exchanger's steam space at design load.",
+        example="header:MP")
+    process_inlet_temperature: float = input_field(
+        "temperature", "Process inlet temperature", "Process liquid entering.", example="55 degC")
+    process_outlet_temperature: float = input_field(
+        "temperature", "Process outlet temperature", "Process liquid leaving.", example="85 degC")
+    process_flow: float | None = input_field(
+        "mass_flow", "Process flow", "Mass flow of the process liquid (or give process_volume_flow).",
+        example="12 t/h")
+    process_volume_flow: float | None = input_field(
+        "volume_flow", "Process volume flow", "Volume flow of the process liquid, in place of process_flow.",
+        example="12 m^3/h")
+    process_density: float | None = input_field(
+        "density", "Process density", "Density for a volume flow (water: from IF97 at the inlet).",
+        example="1030 kg/m^3")
+    process_fluid: str | None = input_field(
+        "text", "Process fluid", "'water' (IF97 properties) unless process_cp is given.", example="water")
+    process_cp: float | None = input_field(
+        "specific_heat", "Process specific heat", "Mean specific heat of a process liquid other than water.",
+        example="3.9 kJ/(kg K)")
+    process_pressure: float | None = input_field(
+        "pressure", "Process pressure", "Process-side pressure (for water properties; default well above "
+        "boiling).", example="4 bar(g)")
+    steam_temperature: float | None = input_field(
+        "temperature", "Steam temperature", "Superheated steam temperature (else saturated).", example="190 degC")
+    steam_dryness: float | None = input_field(
+        "fraction", "Steam dryness fraction", "Dryness of wet steam (else saturated).", example="0.97")
+    condensate_subcooling: float | None = input_field(
+        "temperature_difference", "Condensate subcooling", "Condensate leaves this far below saturation.",
+        example="0 K")
+    arrangement: str | None = input_field(
+        "text", "Arrangement", "'counterflow', or shell-and-tube '1-2' or '2-4'.", example="counterflow")
+    heat_loss: float | None = input_field(
+        "fraction", "Heat loss", "Heat lost from the exchanger, as a fraction of the duty.", example="0.02")
+    overall_u: float | None = input_field(
+        "heat_transfer_coefficient", "Overall U (clean)", "Overall heat-transfer coefficient, clean.",
+        example="1.8 kW/(m^2 K)")
+    fouling_resistance: float | None = input_field(
+        "fouling_resistance", "Fouling resistance", "Total fouling resistance added to 1/U.",
+        example="0.1 m^2 K/kW")
+    installed_area: float | None = input_field(
+        "area", "Installed area", "Heat-transfer area of the exchanger as installed.", example="2.6 m^2")
+    condensate_back_pressure: float | None = input_field(
+        "pressure", "Condensate back pressure", "Pressure the condensate drains against (trap outlet, lift, "
+        "return main).", example="0.8 bar(g)")
+
+    def __post_init__(self):
+        for name in ("steam_pressure", "process_inlet_temperature", "process_outlet_temperature"):
+            if getattr(self, name) is None:
+                raise InputError("is required", field=name, fix=f"add {name} to [inputs]")
+        if (self.process_flow is None) == (self.process_volume_flow is None):
+            raise InputError("give process_flow (mass) or process_volume_flow (volume), exactly one",
+                             field="process_flow", fix="e.g. process_flow = \"12 t/h\"")
+        for name in ("process_flow", "process_volume_flow", "process_density", "process_cp"):
+            value = getattr(self, name)
+            if value is not None and value <= 0.0:
+                raise InputError("must be above zero", field=name, value=value)
+        if self.process_outlet_temperature <= self.process_inlet_temperature:
+            raise InputError(
+                f"process outlet {self.process_outlet_temperature - 273.15:.2f} °C is not above the inlet "
+                f"{self.process_inlet_temperature - 273.15:.2f} °C: a heater raises the temperature",
+                field="process_outlet_temperature", fix="check the two process temperatures")
+        fluid = (self.process_fluid or "water")
+        if self.process_cp is None and fluid != "water":
+            raise InputError(f"process fluid '{fluid}' needs its specific heat", field="process_cp",
+                             fix="give process_cp, or process_fluid = \"water\"")
+        if self.process_cp is not None and self.process_fluid not in (None, "other"):
+            raise InputError("give process_fluid = \"water\" or process_cp, not both", field="process_cp")
+        if self.process_volume_flow is not None and self.process_density is None and self.process_cp is not None:
+            raise InputError("a volume flow of a liquid other than water needs its density", field="process_density")
+        if self.steam_temperature is not None and self.steam_dryness is not None:
+            raise InputError("give steam_temperature or steam_dryness, not both", field="steam_dryness")
+        if self.arrangement is not None and self.arrangement not in ARRANGEMENTS:
+            raise InputError(f"arrangement '{self.arrangement}' is not known", field="arrangement",
+                             fix=f"use one of: {', '.join(ARRANGEMENTS)}")
+        if self.heat_loss is not None and self.heat_loss >= 0.5:
+            raise InputError("a heat loss of half the duty or more is not an allowance", field="heat_loss",
+                             limits=(0, 0.5, ""))
+        for name in ("overall_u", "installed_area"):
+            value = getattr(self, name)
+            if value is not None and value <= 0.0:
+                raise InputError("must be above zero", field=name, value=value,
+                                 fix="a heat-transfer coefficient and an area are positive")
+        if self.fouling_resistance is not None and self.fouling_resistance < 0.0:
+            raise InputError("a fouling resistance cannot be negative", field="fouling_resistance")
+        if self.condensate_subcooling is not None and self.condensate_subcooling < 0.0:
+            raise InputError("subcooling cannot be negative", field="condensate_subcooling")
+
+
+def lmtd(hot_in, hot_out, cold_in, cold_out):
+    """Log-mean temperature difference of a counterflow exchanger, K.
+
+    Parameters
+    ----------
+    hot_in, hot_out, cold_in, cold_out : float
+        Terminal temperatures, K.
+
+    Notes
+    -----
+    :math:`\\Delta T_{lm} = (\\Delta T_1 - \\Delta T_2)/\\ln(\\Delta T_1/\\Delta T_2)` with
+    :math:`\\Delta T_1 = T_{h,in} - T_{c,out}` and :math:`\\Delta T_2 = T_{h,out} - T_{c,in}`;
+    the arithmetic mean when the two are equal.
+
+    References
+    ----------
+    Incropera & DeWitt, Fundamentals of Heat and Mass Transfer, eq. 11.15 (counterflow LMTD),
+    through ``ht.LMTD``.
+
+    Examples
+    --------
+    >>> round(lmtd(448.65, 448.65, 328.15, 358.15), 3)
+    104.786
+    """
+    d1, d2 = hot_in - cold_out, hot_out - cold_in
+    if d1 <= 0.0 or d2 <= 0.0:
+        raise InputError("temperature cross: the hot side is not hotter than the cold side at both ends",
+                         field="process_outlet_temperature")
+    if abs(d1 - d2) < 1e-12 * max(d1, d2):
+        return d1
+    return (d1 - d2) / math.log(d1 / d2)
+
+
+def _f_factor(arrangement, hot_in, hot_out, cold_in, cold_out):
+    shells = ARRANGEMENTS[arrangement]
+    if shells is None or abs(hot_in - hot_out) < 1e-9 or abs(cold_in - cold_out) < 1e-9:
+        return 1.0
+    from ht import F_LMTD_Fakheri
+    f = F_LMTD_Fakheri(Thi=hot_in, Tho=hot_out, Tci=cold_in, Tco=cold_out, shells=shells)
+    if not isinstance(f, float) or math.isnan(f) or f <= 0.0:
+        raise InputError(f"no {arrangement} shell-and-tube exchanger reaches these temperatures (temperature "
+                         "cross in the zone)", field="arrangement", fix="use counterflow, more shell passes, "
+                         "or a closer approach")
+    return float(f)
+
+
+def required_saturation_temperature(load_duty, ua, process_in, process_out):
+    """Steam saturation temperature a condensing exchanger needs to transfer a duty, K.
+
+    Parameters
+    ----------
+    load_duty : float
+        Duty at the load, W.
+    ua : float
+        Service U times area, W/K (fixed in turndown).
+    process_in, process_out : float
+        Process temperatures, K (held in turndown).
+
+    Notes
+    -----
+    With an isothermal hot side, :math:`Q = UA\\,(T_o - T_i)/\\ln((T_s - T_i)/(T_s - T_o))`,
+    so with :math:`k = \\exp(UA (T_o - T_i)/Q)`: :math:`T_s = (k T_o - T_i)/(k - 1)`.
+
+    References
+    ----------
+    The LMTD equation for a condensing hot side rearranged (any heat-transfer text).
+
+    Examples
+    --------
+    >>> round(required_saturation_temperature(419.0e3, 4680.0, 328.15, 358.15) - 273.15, 2)
+    150.31
+    """
+    exponent = ua * (process_out - process_in) / load_duty
+    if exponent > 700.0:
+        return process_out
+    k = math.exp(exponent)
+    return (k * process_out - process_in) / (k - 1.0)
+
+
+def stall_load(design_duty, ua, process_in, process_out, back_pressure):
+    """Load fraction below which the steam-side pressure falls under the back pressure.
+
+    Returns 0 when the back pressure's saturation temperature is at or below the process
+    outlet (the needed pressure never falls that low: no stall).
+
+    Notes
+    -----
+    At the stall point :math:`T_s = T_{sat}(p_{back})`:
+    :math:`Q_{stall} = UA (T_o - T_i)/\\ln((T_b - T_i)/(T_b - T_o))`; load = Q_stall/Q_design.
+
+    Examples
+    --------
+    >>> round(stall_load(419.0e3, 4680.0, 328.15, 358.15, 1.8e5), 3)
+    0.503
+    """
+    t_back = saturation_temperature(back_pressure)
+    if t_back <= process_out:
+        return 0.0
+    q_stall = ua * (process_out - process_in) / math.log((t_back - process_in) / (t_back - process_out))
+    return q_stall / design_duty
+
+
+def _process_side(inputs, result):
+    t_in, t_out = inputs.process_inlet_temperature, inputs.process_outlet_temperature
+    if inputs.process_cp is not None:
+        cp = inputs.process_cp
+        flow = inputs.process_flow if inputs.process_flow is not None else inputs.process_volume_flow * inputs.process_density
+        duty = flow * cp * (t_out - t_in)
+        result.step("Process duty", "Q = m·cp·(T_out − T_in)",
+                    f"Q = {flow:.4f} kg/s × {cp / 1e3:.3f} kJ/(kg·K) × {t_out - t_in:.2f} K", duty / 1e3, "kW")
+        return flow, duty, None
+    p = inputs.process_pressure
+    if p is None:
+        p = max(2e5, saturation_pressure(min(t_out, 640.0)) + 1e5)
+        result.assumptions.append(f"Process water at {p / 1e5:.3g} bar(a) (not given; liquid enthalpy barely "
+                                  "depends on pressure)")
+    try:
+        water_in = SteamState.from_pT(p, t_in)
+        water_out = SteamState.from_pT(p, t_out)
+    except OutOfRangeError as exc:
+        raise exc.for_field("process_outlet_temperature" if exc.field == "temperature" else "process_pressure") from None
+    if water_out.phase != "compressed liquid":
+        raise InputError(f"process water at {t_out - 273.15:.1f} °C boils at {p / 1e5:.3g} bar(a)",
+                         field="process_pressure", fix="give the process pressure, above saturation at the outlet")
+    if inputs.process_flow is not None:
+        flow = inputs.process_flow
+    else:
+        density = inputs.process_density or water_in.density
+        flow = inputs.process_volume_flow * density
+        result.step("Process mass flow", "m = V·ρ", f"m = {inputs.process_volume_flow * 3600:.3f} m³/h × "
+                    f"{density:.2f} kg/m³", flow * 3600, "kg/h")
+    duty = flow * (water_out.enthalpy - water_in.enthalpy)
+    result.step("Process duty (water, IF97)", "Q = m·(h(p, T_out) − h(p, T_in))",
+                f"Q = {flow:.4f} kg/s × ({water_out.enthalpy / 1e3:.2f} − {water_in.enthalpy / 1e3:.2f}) kJ/kg",
+                duty / 1e3, "kW")
+    return flow, duty, (water_in, water_out)
+
+
+def _steam_states(inputs):
+    p = inputs.steam_pressure
+    t_sat = saturation_temperature(p)
+    try:
+        if inputs.steam_temperature is not None:
+            if inputs.steam_temperature <= t_sat:
+                raise InputError(f"steam at {inputs.steam_temperature - 273.15:.2f} °C is not superheated at "
+                                 f"{p / 1e5:.4g} bar(a) (saturation {t_sat - 273.15:.2f} °C)",
+                                 field="steam_temperature", fix="leave it empty for saturated steam")
+            steam = SteamState.from_pT(p, inputs.steam_temperature)
+        else:
+            steam = SteamState.from_p_dryness(p, 1.0 if inputs.steam_dryness is None else inputs.steam_dryness)
+        subcooling = inputs.condensate_subcooling or 0.0
+        if subcooling > 0.0:
+            condensate = SteamState.from_pT(p, t_sat - subcooling)
+        else:
+            condensate = SteamState.from_p_dryness(p, 0.0)
+    except OutOfRangeError as exc:
+        raise exc.for_field("steam_pressure" if exc.field == "pressure" else "condensate_subcooling") from None
+    return steam, condensate, t_sat
+
+
+def calculate(inputs, site):
+    """Duty, steam demand, LMTD, UA, area and the stall load of a steam heater.
+
+    Parameters
+    ----------
+    inputs : Inputs
+        Steam pressure (Pa) and state; process flow (kg/s or m³/s) and temperatures (K);
+        optional subcooling (K), U (W/(m² K)), fouling (m² K/W), area (m²), back pressure (Pa).
+    site : steamcalc.site.Site
+        Site data (its atmosphere has been applied to gauge inputs).
+
+    Returns
+    -------
+    Result
+        ``duty`` (kW), ``steam_flow`` (kg/h), ``condensate_flow`` (kg/h), ``lmtd`` (K), ``ua``
+        (kW/K), ``required_area`` (m², with U), ``area_margin`` (with an installed area),
+        ``stall_load_fraction`` (with a back pressure), and the turndown table.
+
+    Notes
+    -----
+    .. math:: \\dot m_s = \\frac{Q (1 + f_{loss})}{h_s - h_c}, \\quad
+              UA = \\sum_i \\frac{Q_i}{F_i \\Delta T_{lm,i}}, \\quad
+              A = \\frac{UA}{U_s}, \\quad \\frac{1}{U_s} = \\frac{1}{U} + R_f
+
+    References
+    ----------
+    IAPWS R7-97(2012), IAPWS-IF97. Fakheri, A. (2003), "A General Expression for the
+    Determination of the Log Mean Temperature Correction Factor for Shell and Tube Heat
+    Exchangers", J. Heat Transfer 125(3), 527-530 (through ``ht.F_LMTD_Fakheri``).
+
+    Examples
+    --------
+    >>> from steamcalc.site import Site
+    >>> r = calculate(Inputs(steam_pressure=9e5, process_flow=1.0, process_inlet_temperature=328.15,
+    ...                      process_outlet_temperature=358.15), Site())
+    >>> round(r.value("duty"), 1), round(r.value("steam_flow"), 1)
+    (125.7, 223.7)
+    """
+    result = Result()
+    result.references.extend([
+        IF97_REFERENCE,
+        "LMTD method for heat exchangers (e.g. Incropera & DeWitt, Fundamentals of Heat and Mass Transfer, ch. 11)",
+        "Fakheri, A. (2003), A General Expression for the Determination of the Log Mean Temperature Correction "
+        "Factor for Shell and Tube Heat Exchangers, J. Heat Transfer 125(3), 527-530",
+    ])
+    result.assumptions.extend([
+        "Steady state; heat lost to surroundings only as the stated allowance",
+        "Steam side at uniform pressure; condensing at its saturation temperature",
+        f"Gauge pressures converted with the site atmosphere of {site.atmospheric_pressure / 1e5:.5g} bar(a)",
+    ])
+    result.cautions.extend(CAUTIONS)
+    arrangement = inputs.arrangement or "counterflow"
+    t_in, t_out = inputs.process_inlet_temperature, inputs.process_outlet_temperature
+
+    steam, condensate, t_sat = _steam_states(inputs)
+    if t_sat <= t_out:
+        raise InputError(
+            f"steam saturation temperature {t_sat - 273.15:.2f} °C at {inputs.steam_pressure / 1e5:.4g} bar(a) is "
+            f"not above the process outlet {t_out - 273.15:.2f} °C: the steam cannot heat the process that far",
+            field="steam_pressure", fix="raise the steam pressure or lower the process outlet temperature")
+    if condensate.temperature <= t_in:
+        raise InputError("the condensate would be subcooled below the process inlet temperature",
+                         field="condensate_subcooling", fix="reduce the subcooling")
+    flow, duty, water = _process_side(inputs, result)
+    loss = inputs.heat_loss or 0.0
+    steam_side = duty * (1.0 + loss)
+    if loss:
+        result.step("Steam-side heat", "Q_s = Q·(1 + f_loss)", f"Q_s = {duty / 1e3:.2f} kW × (1 + {loss:g})",
+                    steam_side / 1e3, "kW")
+    specific = steam.enthalpy - condensate.enthalpy
+    steam_flow = steam_side / specific
+    result.step("Steam flow", "m_s = Q_s / (h_steam − h_condensate)",
+                f"m_s = {steam_side / 1e3:.2f} kW / ({steam.enthalpy / 1e3:.2f} − {condensate.enthalpy / 1e3:.2f}) kJ/kg",
+                steam_flow * 3600, "kg/h")
+    result.add("duty", "Process duty", duty / 1e3, "kW")
+    result.add("steam_side_heat", "Heat from the steam (duty with heat loss)", steam_side / 1e3, "kW")
+    result.add("process_flow", "Process mass flow", flow * 3600, "kg/h")
+    result.add("steam_saturation_temperature", "Steam saturation temperature", t_sat - 273.15, "degC")
+    result.add("steam_enthalpy", "Steam enthalpy", steam.enthalpy / 1e3, "kJ/kg")
+    result.add("condensate_enthalpy", "Condensate enthalpy", condensate.enthalpy / 1e3, "kJ/kg")
+    result.add("steam_flow", "Steam flow", steam_flow * 3600, "kg/h")
+    result.add("condensate_flow", "Condensate flow", steam_flow * 3600, "kg/h")
+
+    ua, zones = _zones(inputs, steam, condensate, t_sat, flow, duty, steam_side, steam_flow, water, arrangement, result)
+    mean_dt = duty / ua
+    result.add("lmtd", "Mean temperature difference (effective LMTD)", mean_dt, "K")
+    result.add("ua", "UA required", ua / 1e3, "kW/K")
+    approach = t_sat - t_out
+    result.check("Temperature approach", "warn" if approach < MIN_APPROACH else "pass",
+                 f"steam saturation {approach:.1f} K above the process outlet (at least {MIN_APPROACH:g} K, common "
+                 "practice)")
+    result.check("Steam saturation above process outlet", "pass",
+                 f"{t_sat - 273.15:.2f} °C > {t_out - 273.15:.2f} °C")
+    result.check("No temperature cross", "pass", "every zone has the hot side above the cold side at both ends")
+
+    service_u = None
+    if inputs.overall_u is not None:
+        fouling = inputs.fouling_resistance or 0.0
+        service_u = 1.0 / (1.0 / inputs.overall_u + fouling)
+        area = ua / service_u
+        result.step("Service U", "1/U_s = 1/U + R_f",
+                    f"1/U_s = 1/{inputs.overall_u / 1e3:.3f} + {fouling * 1e3:.3f} m²·K/kW", service_u / 1e3, "kW/(m**2*K)")
+        result.step("Required area", "A = UA / U_s", f"A = {ua / 1e3:.3f} kW/K / {service_u / 1e3:.3f} kW/(m²·K)",
+                    area, "m**2")
+        result.add("service_u", "Service U (with fouling)", service_u / 1e3, "kW/(m**2*K)")
+        result.add("required_area", "Required area", area, "m**2")
+        if inputs.installed_area is not None:
+            margin = inputs.installed_area / area - 1.0
+            result.add("area_margin", "Area margin (installed over required, minus 1)", margin)
+            result.check("Installed area sufficient", "fail" if margin < 0 else "pass",
+                         f"installed {inputs.installed_area:.2f} m² against {area:.2f} m² required "
+                         f"({100 * margin:+.1f} %)")
+    _turndown(inputs, duty, ua, service_u, result)
+    return result
+
+
+def _zones(inputs, steam, condensate, t_sat, flow, duty, steam_side, steam_flow, water, arrangement, result):
+    t_in, t_out = inputs.process_inlet_temperature, inputs.process_outlet_temperature
+    saturated_vapour = SteamState.from_p_dryness(inputs.steam_pressure, 1.0)
+    saturated_liquid = SteamState.from_p_dryness(inputs.steam_pressure, 0.0)
+    # Steam-side zone heats; the process side takes each in proportion (counter-current order:
+    # the process meets the subcooled condensate first and the superheated steam last).
+    q_super = steam_flow * max(0.0, steam.enthalpy - saturated_vapour.enthalpy)
+    q_cond = steam_flow * (min(steam.enthalpy, saturated_vapour.enthalpy) - saturated_liquid.enthalpy)
+    q_sub = steam_flow * (saturated_liquid.enthalpy - condensate.enthalpy)
+    scale = duty / steam_side   # the heat loss is taken from each zone in proportion
+    span = t_out - t_in
+
+    def process_temperature(heat):
+        return t_in + span * heat / duty if water is None else _water_temperature(inputs, water, flow, heat)
+
+    t_a = process_temperature(q_sub * scale)
+    t_b = process_temperature((q_sub + q_cond) * scale)
+    zones = []
+    if q_sub > 0.0:
+        zones.append(("subcooling", q_sub * scale, t_sat, condensate.temperature, t_in, t_a))
+    zones.append(("condensing", q_cond * scale, t_sat, t_sat, t_a, t_b))
+    if q_super > 0.0:
+        zones.append(("desuperheating", q_super * scale, steam.temperature, t_sat, t_b, t_out))
+    ua = 0.0
+    for name, q, hot_in, hot_out, cold_in, cold_out in zones:
+        dt = lmtd(hot_in, hot_out, cold_in, cold_out)
+        f = _f_factor(arrangement, hot_in, hot_out, cold_in, cold_out)
+        ua_zone = q / (f * dt)
+        ua += ua_zone
+        result.step(f"{name.capitalize()} zone", "UA_i = Q_i / (F·ΔT_lm,i)",
+                    f"Q = {q / 1e3:.2f} kW; steam {hot_in - 273.15:.2f}→{hot_out - 273.15:.2f} °C, process "
+                    f"{cold_in - 273.15:.2f}→{cold_out - 273.15:.2f} °C; ΔT_lm = {dt:.3f} K; F = {f:.4f}",
+                    ua_zone / 1e3, "kW/K")
+        result.add(f"{name}_duty", f"{name.capitalize()} zone duty", q / 1e3, "kW")
+        result.add(f"{name}_lmtd", f"{name.capitalize()} zone LMTD", dt, "K")
+        if f < 0.75:
+            result.check(f"F factor, {name} zone", "warn",
+                         f"F = {f:.3f} below 0.75: the {arrangement} arrangement is poorly suited (common practice)")
+    if arrangement != "counterflow" and len(zones) == 1:
+        result.assumptions.append("Condensing at constant temperature: F = 1 for any arrangement")
+    return ua, zones
+
+
+def _water_temperature(inputs, water, flow, heat):
+    water_in, _ = water
+    return SteamState.from_ph(water_in.pressure, water_in.enthalpy + heat / flow).temperature
+
+
+def _turndown(inputs, duty, ua, service_u, result):
+    t_in, t_out = inputs.process_inlet_temperature, inputs.process_outlet_temperature
+    area = inputs.installed_area if inputs.installed_area is not None else (None if service_u is None else ua / service_u)
+    if service_u is None:
+        fixed_ua = ua
+        basis = "UA as required at design (no U given)"
+    else:
+        fixed_ua = service_u * area
+        basis = f"service U {service_u / 1e3:.3f} kW/(m²·K) and {'installed' if inputs.installed_area else 'required'} " \
+                f"area {area:.2f} m²"
+    result.assumptions.append(
+        "Turndown model: load varies with the process flow at the design inlet and outlet temperatures; the "
+        f"exchanger keeps its area and service U ({basis}); the steam-side pressure falls to what the load needs "
+        "(saturated steam, condensing only)")
+    for load in LOADS:
+        t_needed = required_saturation_temperature(load * duty, fixed_ua, t_in, t_out)
+        p_needed = saturation_pressure(t_needed) if t_needed > 273.16 else 611.213
+        result.add(f"required_steam_pressure_{int(round(load * 100))}", f"Steam-side pressure needed at "
+                   f"{load:.0%} load", p_needed / 1e5, "bar")
+    if inputs.condensate_back_pressure is None:
+        return
+    back = inputs.condensate_back_pressure
+    fraction = stall_load(duty, fixed_ua, t_in, t_out, back)
+    t_back = saturation_temperature(back)
+    result.step("Stall load", "Q_stall = UA·(T_o − T_i)/ln((T_b − T_i)/(T_b − T_o)), T_b = T_sat(p_back)",
+                f"T_b = {t_back - 273.15:.2f} °C at {back / 1e5:.4g} bar(a); UA = {fixed_ua / 1e3:.3f} kW/K",
+                fraction)
+    result.add("stall_load_fraction", "Stall load (fraction of design)", fraction)
+    if fraction >= 1.0:
+        result.check("Condensate drainage (stall)", "fail",
+                     f"the exchanger stalls even at design load: it needs less steam pressure than the "
+                     f"{back / 1e5:.4g} bar(a) back pressure; condensate cannot drain by pressure")
+    elif fraction > 0.0:
+        result.check("Condensate drainage (stall)", "warn",
+                     f"below {100 * fraction:.0f} % load the steam-side pressure falls under the condensate back "
+                     f"pressure ({back / 1e5:.4g} bar(a)): condensate backs up, with waterhammer and loss of "
+                     "temperature control")
+        result.warnings.append(STALL_REMEDIES[0])
+    else:
+        result.check("Condensate drainage (stall)", "pass",
+                     "the needed steam-side pressure stays above the back pressure at every load")
