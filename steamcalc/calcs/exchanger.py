@@ -292,7 +292,7 @@ def _steam_states(inputs):
         else:
             steam = SteamState.from_p_dryness(p, 1.0 if inputs.steam_dryness is None else inputs.steam_dryness)
         subcooling = inputs.condensate_subcooling or 0.0
-        if subcooling > 0.0:
+        if subcooling >= 0.01:  # below 0.01 K the condensate is saturated for every practical purpose
             condensate = SteamState.from_pT(p, t_sat - subcooling)
         else:
             condensate = SteamState.from_p_dryness(p, 0.0)
