@@ -1,7 +1,8 @@
 """The ``steamcalc`` command line.
 
-Exit codes: 0 all good; 1 a record failed a check or a verification; 2 bad input
-or usage, with a message naming the file, the field and the fix (no traceback).
+Exit codes: 0 all good; 1 a record failed a check or a verification (or a signature was
+refused for it); 2 bad input or usage, with a message naming the file, the field and the
+fix (no traceback).
 """
 
 from __future__ import annotations
@@ -13,11 +14,6 @@ from pathlib import Path
 
 from . import __version__
 from .errors import SteamcalcError
-from .record import load_record, write_record
-from .report import RENDERERS
-from .review import verify_record
-from .runner import default_out_dir, record_for_case
-from .site import case_site, load_case
 
 EXIT_OK, EXIT_FAILED, EXIT_BAD_INPUT = 0, 1, 2
 
@@ -38,53 +34,81 @@ def _parser():
     run.add_argument("cases", nargs="+", metavar="CASE", help="case files (.toml) or folders of them")
     run.add_argument("--site", metavar="SITE.toml", help="site file to use instead of each case's own")
     run.add_argument("--out", metavar="DIR", help="folder for the records (default: records/ beside the site file)")
+    run.add_argument("--notebook", action="store_true", help="also save the executed workbook beside each record")
+    run.add_argument("--pdf", action="store_true", help="also print each record to PDF (needs Chromium)")
+    run.add_argument("--quiet", action="store_true", help="no progress bar")
 
     verify = sub.add_parser("verify", help="check a record's digest and recompute its results")
     verify.add_argument("records", nargs="+", metavar="RECORD.json")
+
+    diff = sub.add_parser("diff", help="what changed between two records")
+    diff.add_argument("old", metavar="OLD.json")
+    diff.add_argument("new", metavar="NEW.json")
+    diff.add_argument("--html", metavar="FILE.html", help="also write the comparison as an HTML page")
+
+    sign = sub.add_parser("sign", help="the checker's sign-off, after a passing verification")
+    sign.add_argument("record", metavar="RECORD.json")
+    sign.add_argument("--by", required=True, metavar="NAME", help="the checker's name")
+
+    site = sub.add_parser("new-site", help="a new plant folder from a template site")
+    site.add_argument("folder", metavar="DIR")
+    site.add_argument("--from", dest="template", metavar="TEMPLATE", help="template site (default: the demo site)")
     return parser
 
 
-def _case_files(paths):
-    files = []
-    for raw in paths:
-        path = Path(raw)
-        if path.is_dir():
-            found = sorted(p for p in path.rglob("*.toml") if p.name != "site.toml" and "records" not in p.parts)
-            if not found:
-                raise SteamcalcError("no case files (*.toml) in this folder", source=path)
-            files.extend(found)
-        else:
-            files.append(path)
-    return files
-
-
 def _run(args):
+    from .batch import find_case_files, run_cases, write_index
+
+    paths = find_case_files(args.cases)
+    outcomes = run_cases(paths, args.site, args.out, progress=not args.quiet and len(paths) > 1)
     worst = EXIT_OK
-    for path in _case_files(args.cases):
-        try:
-            case = load_case(path)
-            site = case_site(case, args.site)
-            record, _ = record_for_case(case, site)
-            out = Path(args.out) if args.out else default_out_dir(case)
-            paths, status = write_record(record, out, RENDERERS)
-        except SteamcalcError as exc:
-            print(f"error: {exc.with_source(path)}", file=sys.stderr)
-            worst = EXIT_BAD_INPUT
+    failures = [o for o in outcomes if not o.ok]
+    for outcome in outcomes:
+        if not outcome.ok:
             continue
-        verdict = record["status"]
-        note = "written" if status == "written" else "unchanged (same content as the existing record, kept)"
-        print(f"{record['id']} rev {record['revision']}: {verdict.upper()} - {note}")
-        for p in paths:
+        note = "written" if outcome.write_status == "written" else "unchanged (same content as the existing record, kept)"
+        print(f"{outcome.record_id} rev {outcome.revision}: {outcome.status.upper()} - {note}")
+        for p in outcome.paths:
             print(f"  {p}")
-        for check in record["checks"]:
-            if check["status"] != "pass":
-                print(f"  {check['status']}: {check['name']}: {check['detail']}")
-        if verdict == "fail" and worst == EXIT_OK:
+        for check in outcome.checks:
+            print(f"  {check['status']}: {check['name']}: {check['detail']}")
+        if outcome.status == "fail" and worst == EXIT_OK:
             worst = EXIT_FAILED
+        worst = max(worst, _companions(args, outcome))
+    if len(paths) > 1:
+        for folder in sorted({o.out_dir for o in outcomes if o.ok}):
+            html_index, csv_index = write_index(folder, failures)
+            print(f"index: {html_index} and {csv_index}")
+    if failures:
+        print(f"\n{len(failures)} of {len(outcomes)} case(s) not run:", file=sys.stderr)
+        for outcome in failures:
+            print(f"error: {outcome.error}", file=sys.stderr)
+        worst = EXIT_BAD_INPUT
     return worst
 
 
+def _companions(args, outcome):
+    if not (args.notebook or args.pdf):
+        return EXIT_OK
+    from .companions import run_notebook, write_pdf
+    from .site import load_case
+
+    json_path = Path(outcome.paths[0])
+    try:
+        if args.notebook:
+            print(f"  {run_notebook(load_case(outcome.path), json_path.parent, json_path.stem)}")
+        if args.pdf:
+            print(f"  {write_pdf(json_path.with_suffix('.html'))}")
+    except SteamcalcError as exc:
+        print(f"error: {exc}", file=sys.stderr)
+        return EXIT_BAD_INPUT
+    return EXIT_OK
+
+
 def _verify(args):
+    from .record import load_record
+    from .review import verify_record
+
     worst = EXIT_OK
     for raw in args.records:
         try:
@@ -99,20 +123,33 @@ def _verify(args):
         if outcome.error:
             print(f"  reproduction: NOT POSSIBLE - {outcome.error}")
         else:
-            width = max((len(c.key) for c in outcome.comparisons), default=10)
-            print(f"  {'result':<{width}}  {'recorded':>14}  {'recomputed':>14}  {'rel. diff':>9}  verdict")
-            for c in outcome.comparisons:
-                rel = "" if c.rel_diff is None else f"{c.rel_diff:.1e}"
-                print(f"  {c.key:<{width}}  {_cell(c.recorded):>14}  {_cell(c.recomputed):>14}  {rel:>9}  {c.verdict}")
+            print(format_comparisons(outcome.comparisons))
             for change in outcome.check_changes:
                 print(f"  check changed: {change}")
             print(f"  reproduction: {'reproduced' if outcome.reproduced else 'NOT REPRODUCED'}")
         for name, (then, now) in outcome.version_changes.items():
             print(f"  version: {name} {then} in the record, {now} here")
         print(f"  verdict: {'VERIFIED' if outcome.ok else 'FAILED'}")
-        if not outcome.ok:
-            worst = max(worst, EXIT_FAILED) if worst != EXIT_BAD_INPUT else worst
+        if not outcome.ok and worst != EXIT_BAD_INPUT:
+            worst = EXIT_FAILED
     return worst
+
+
+def format_comparisons(comparisons):
+    """The per-result table of a verification, as text."""
+    from .review import ABSOLUTE_TOLERANCE, RELATIVE_TOLERANCE
+
+    width = max((len(c.key) for c in comparisons), default=10)
+    lines = [f"  {'result':<{width}}  {'recorded':>14}  {'recomputed':>14}  {'abs. diff':>9}  {'rel. diff':>9}  "
+             f"{'tolerance':>9}  verdict"]
+    for c in comparisons:
+        absolute = "" if c.abs_diff is None else f"{c.abs_diff:.1e}"
+        relative = "" if c.rel_diff is None else f"{c.rel_diff:.1e}"
+        tolerance = f"{RELATIVE_TOLERANCE:.0e}" if c.abs_diff is not None else "exact"
+        lines.append(f"  {c.key:<{width}}  {_cell(c.recorded):>14}  {_cell(c.recomputed):>14}  {absolute:>9}  "
+                     f"{relative:>9}  {tolerance:>9}  {c.verdict}")
+    lines.append(f"  (tolerance: relative {RELATIVE_TOLERANCE:.0e}, or {ABSOLUTE_TOLERANCE:.0e} absolute near zero)")
+    return "\n".join(lines)
 
 
 def _cell(value):
@@ -121,13 +158,67 @@ def _cell(value):
     return "-" if value is None else str(value)
 
 
+def _diff(args):
+    from .record import load_record
+    from .signoff import diff_records
+
+    old, new = load_record(args.old), load_record(args.new)
+    rows = diff_records(old, new)
+    print(f"{args.old} ({old['id']} rev {old['revision']}) -> {args.new} ({new['id']} rev {new['revision']})")
+    if not rows:
+        print("  no differences in inputs, assumptions, results or checks")
+    for row in rows:
+        change = row["change"]
+        change = f"{change:+.6g}" if isinstance(change, float) else change
+        print(f"  [{row['section']}] {row['key']}: {_cell(row['old'])} -> {_cell(row['new'])} {row['unit']}  ({change})")
+    if args.html:
+        from .report import render_diff_html
+        from .record import _atomic_write
+        _atomic_write(Path(args.html), render_diff_html(old, new, rows))
+        print(f"  written: {args.html}")
+    return EXIT_OK
+
+
+def _sign(args):
+    from .record import load_record
+    from .report import RENDERERS
+    from .record import _atomic_write
+    from .signoff import sign_record
+
+    record = load_record(args.record)
+    try:
+        signed = sign_record(args.record, record, args.by)
+    except SteamcalcError as exc:
+        print(f"refused: {exc}", file=sys.stderr)
+        return EXIT_FAILED if exc.field != "--by" else EXIT_BAD_INPUT
+    path = Path(args.record)
+    for suffix, render in RENDERERS.items():
+        _atomic_write(path.with_suffix(suffix), render(signed))
+    print(f"{signed['id']} rev {signed['revision']}: signed by {signed['checked_by']} on {signed['signoff']['date']}")
+    print(f"  {path} (new digest {signed['digest'][:23]}...), with its HTML and Markdown")
+    return EXIT_OK
+
+
+def _new_site(args):
+    from .newsite import new_site
+
+    files = new_site(args.folder, args.template)
+    print(f"new site folder {args.folder}: {len(files)} files")
+    for f in files:
+        print(f"  {f}")
+    print("next: edit site.toml (name, elevation, headers, prices) and the cases, then "
+          f"`steamcalc run {args.folder}/cases`")
+    return EXIT_OK
+
+
+_COMMANDS = {"run": _run, "verify": _verify, "diff": _diff, "sign": _sign, "new-site": _new_site}
+
+
 def main(argv=None):
     """Run the command line; return the exit code."""
     args = _parser().parse_args(argv)
     try:
-        if args.command == "run":
-            return _run(args)
-        return _verify(args)
+        return _COMMANDS[args.command](args)
     except SteamcalcError as exc:
         print(f"error: {exc}", file=sys.stderr)
         return EXIT_BAD_INPUT

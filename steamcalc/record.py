@@ -9,8 +9,8 @@ Two digests are kept:
     SHA-256 over the canonical JSON of every other key (``created`` included).
     Any edit to the file changes it: this is the tamper evidence.
 ``content_digest``
-    SHA-256 over the same JSON without ``created``, ``provenance``, ``digest``
-    and ``content_digest``: the engineering content alone. Re-running an
+    SHA-256 over the same JSON without ``created``, ``provenance``, the sign-off
+    (``checked_by``, ``signoff``) and the digests: the engineering content alone. Re-running an
     unchanged case gives the same content digest, so the existing record (and
     its original creation time) is kept rather than replaced.
 """
@@ -32,7 +32,8 @@ from .errors import RecordConflictError, RecordError
 
 SCHEMA = "steamcalc.record/1"
 _PROVENANCE_PACKAGES = ("steamcalc", "iapws", "pint", "numpy", "jinja2")
-_NOT_CONTENT = ("created", "provenance", "digest", "content_digest")
+# The checker's sign-off is not content: signing must leave the content digest as it was.
+_NOT_CONTENT = ("created", "provenance", "digest", "content_digest", "checked_by", "signoff")
 
 
 @lru_cache(maxsize=1)
@@ -141,6 +142,11 @@ def load_record(path):
         if key not in data:
             raise RecordError("the record has no '%s'" % key, field=key, source=path)
     return data
+
+
+def write_json(path, record):
+    """Write one record's JSON atomically (used when a record is signed)."""
+    _atomic_write(Path(path), json.dumps(record, indent=2, ensure_ascii=False, allow_nan=False) + "\n")
 
 
 def _atomic_write(path, text):

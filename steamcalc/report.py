@@ -35,9 +35,13 @@ def format_number(value):
 
 def format_unit(unit, absolute=False):
     """A unit string for people: °C for degC; bar(a) for an absolute pressure in bar."""
+    from .display import unit_label
+
     if absolute and unit == "bar":
         return "bar(a)"
-    return _UNIT_NAMES.get(unit, unit)
+    if unit == "percent":
+        return "%"
+    return _UNIT_NAMES.get(unit, unit_label(unit)).replace("**2", "²").replace("**3", "³").replace("*", "·")
 
 
 def _md(text):
@@ -59,8 +63,10 @@ def _environment(autoescape):
 def _context(record):
     from .calcs import get_calculation
 
+    from .display import display_record
+
     calc = get_calculation(record["kind"])
-    return {"r": record, "stem": record_stem(record), "kind_title": calc.TITLE}
+    return {"r": display_record(record), "stem": record_stem(record), "kind_title": calc.TITLE}
 
 
 def render_html(record):
@@ -71,6 +77,11 @@ def render_html(record):
 def render_markdown(record):
     """The record as Markdown."""
     return _environment(False).get_template("record.md.j2").render(**_context(record))
+
+
+def render_diff_html(old, new, rows):
+    """The changes between two records as one self-contained HTML page."""
+    return _environment(True).get_template("diff.html.j2").render(old=old, new=new, rows=rows)
 
 
 RENDERERS = {".html": render_html, ".md": render_markdown}
