@@ -1,0 +1,167 @@
+"""Review and reuse: diff, sign-off, batch with a broken case, new-site, headers, US units,
+the notebook companion, PDF, and escaping of user text in the HTML record."""
+
+import csv
+import json
+import shutil
+
+import pytest
+
+from steamcalc.cli import main
+from steamcalc.companions import find_chromium
+from steamcalc.display import convert
+from steamcalc.record import load_record
+from steamcalc.report import render_html
+from steamcalc.site import case_inputs, load_case, load_site
+
+
+@pytest.fixture
+def site(tmp_path, demo_site_dir):
+    folder = tmp_path / "demo_site"
+    shutil.copytree(demo_site_dir, folder, ignore=shutil.ignore_patterns("records"))
+    for notebook in demo_site_dir.parent.glob("*.ipynb"):
+        shutil.copy(notebook, tmp_path / notebook.name)
+    return folder
+
+
+def _bump(case, old, new, revision):
+    text = case.read_text().replace(old, new).replace('revision = "A"', f'revision = "{revision}"')
+    case.write_text(text)
+
+
+def test_diff_of_two_revisions(site, capsys, tmp_path):
+    case = site / "cases" / "LD-02.toml"
+    assert main(["run", str(case)]) == 0
+    _bump(case, '"2.0 t/h"', '"2.3 t/h"', "B")
+    assert main(["run", str(case)]) == 0
+    capsys.readouterr()
+    page = tmp_path / "diff.html"
+    assert main(["diff", str(site / "records" / "LD-02_revA.json"), str(site / "records" / "LD-02_revB.json"),
+                 "--html", str(page)]) == 0
+    out = capsys.readouterr().out
+    assert "[inputs] mass_flow: 2000 -> 2300 kg/h  (+300)" in out
+    assert "[results] valve_kv_normal" in out
+    assert "[record] revision: A -> B" in out
+    assert "mass_flow" in page.read_text()
+
+
+def test_sign_then_refuse_reissue(site, capsys):
+    case = site / "cases" / "LD-02.toml"
+    main(["run", str(case)])
+    record_path = site / "records" / "LD-02_revA.json"
+    assert main(["sign", str(record_path), "--by", "C. Checker"]) == 0
+    signed = load_record(record_path)
+    assert signed["checked_by"] == "C. Checker" and signed["signoff"]["verification"]["integrity"] == "intact"
+    assert "Checked and signed" in (site / "records" / "LD-02_revA.html").read_text()
+    assert main(["verify", str(record_path)]) == 0
+    # Same content again: the signed record is kept as it is.
+    assert main(["run", str(case)]) == 0
+    assert load_record(record_path)["checked_by"] == "C. Checker"
+    # Different content under the same revision: refused, the signed record untouched.
+    case.write_text(case.read_text().replace('"2.0 t/h"', '"2.2 t/h"'))
+    assert main(["run", str(case)]) == 2
+    assert load_record(record_path)["digest"] == signed["digest"]
+    assert main(["sign", str(record_path), "--by", "Someone Else"]) == 1
+    assert "already signed" in capsys.readouterr().err
+
+
+def test_sign_refused_on_an_edited_record(site, capsys):
+    main(["run", str(site / "cases" / "LD-02.toml")])
+    path = site / "records" / "LD-02_revA.json"
+    record = json.loads(path.read_text())
+    record["results"]["outlet_temperature"]["value"] += 5.0
+    path.write_text(json.dumps(record))
+    assert main(["sign", str(path), "--by", "C. Checker"]) == 1
+    assert "does not verify" in capsys.readouterr().err
+    assert json.loads(path.read_text())["checked_by"] is None
+
+
+def test_sign_refused_on_a_failing_record(site, capsys):
+    case = site / "cases" / "LD-02.toml"
+    case.write_text(case.read_text().replace('rated_kv = "32 m^3/h"', 'rated_kv = "5 m^3/h"'))
+    assert main(["run", str(case)]) == 1
+    assert main(["sign", str(site / "records" / "LD-02_revA.json"), "--by", "C. Checker"]) == 1
+    assert "failing checks" in capsys.readouterr().err
+
+
+def test_batch_keeps_going_past_a_broken_case(site, capsys):
+    broken = site / "cases" / "BAD-01.toml"
+    broken.write_text('[case]\nkind = "letdown"\nid = "BAD-01"\n[inputs]\ninlet_pressure = "16 bar"\n')
+    code = main(["run", str(site / "cases"), "--quiet"])
+    assert code == 2
+    err = capsys.readouterr().err
+    assert "1 of 6 case(s) not run" in err and "BAD-01.toml" in err and "inlet_pressure" in err
+    records = site / "records"
+    for case in ("LD-01", "LD-02", "FL-01", "FL-02", "HX-01"):
+        assert (records / f"{case}_revA.json").exists()
+    rows = list(csv.DictReader((records / "index.csv").open()))
+    assert sorted(r["id"] for r in rows) == ["FL-01", "FL-02", "HX-01", "LD-01", "LD-02"]
+    index = (records / "index.html").read_text()
+    assert "LD-01_revA.html" in index and "BAD-01.toml" in index
+
+
+def test_new_site_copies_and_refuses_an_existing_folder(site, tmp_path, capsys):
+    target = tmp_path / "plant2"
+    assert main(["new-site", str(target), "--from", str(site)]) == 0
+    assert (target / "site.toml").exists() and (target / "cases" / "LD-01.toml").exists()
+    notebook = json.loads((target / "letdown.ipynb").read_text())
+    params = next(c for c in notebook["cells"] if "parameters" in c["metadata"].get("tags", []))
+    assert 'case_file = "cases/LD-01.toml"' in "".join(params["source"])
+    assert not (target / "records").exists()
+    assert main(["new-site", str(target), "--from", str(site)]) == 2
+    assert "already exists" in capsys.readouterr().err
+    empty = tmp_path / "empty"
+    empty.mkdir()
+    assert main(["new-site", str(empty), "--from", str(site)]) == 2
+
+
+def test_headers_resolved_from_the_site(site):
+    case = load_case(site / "cases" / "LD-01.toml")
+    inputs, given = case_inputs(case, load_site(site / "site.toml"))
+    atmosphere = load_site(site / "site.toml").atmospheric_pressure
+    assert inputs.outlet_pressure == pytest.approx(2.5e5 + atmosphere)
+    assert given["outlet_pressure"] == "header:LP = 2.5 bar(g)"
+
+
+def test_us_display_units(site):
+    text = (site / "site.toml").read_text().replace('display_units = "SI"', 'display_units = "US"')
+    (site / "site.toml").write_text(text)
+    assert main(["run", str(site / "cases" / "LD-02.toml")]) == 0
+    record = load_record(site / "records" / "LD-02_revA.json")
+    assert record["results"]["outlet_temperature"]["unit"] == "degC"        # the JSON stays SI
+    page = (site / "records" / "LD-02_revA.html").read_text()
+    fahrenheit, _ = convert(record["results"]["outlet_temperature"]["value"], "degC", "US")
+    assert f"{fahrenheit:.5g}" in page and "°F" in page and "lb/h" in page and "psia" in page
+
+
+def test_notebook_companion(site):
+    assert main(["run", str(site / "cases" / "LD-02.toml"), "--notebook"]) == 0
+    executed = site / "records" / "LD-02_revA.ipynb"
+    assert executed.exists()
+    cells = json.loads(executed.read_text())["cells"]
+    printed = "".join("".join(o.get("text", "")) for c in cells for o in c.get("outputs", []))
+    assert "LD-02 rev A" in printed
+
+
+@pytest.mark.skipif(find_chromium() is None, reason="no Chromium: apt-get install chromium to test --pdf")
+def test_pdf(site):
+    assert main(["run", str(site / "cases" / "LD-02.toml"), "--pdf"]) == 0
+    pdf = site / "records" / "LD-02_revA.pdf"
+    assert pdf.read_bytes().startswith(b"%PDF")
+
+
+def test_pdf_without_chromium_says_how(site, monkeypatch, capsys):
+    monkeypatch.setattr("steamcalc.companions.find_chromium", lambda: None)
+    assert main(["run", str(site / "cases" / "LD-02.toml"), "--pdf"]) == 2
+    assert "no Chromium was found" in capsys.readouterr().err
+    assert (site / "records" / "LD-02_revA.json").exists()
+
+
+def test_html_record_escapes_user_text(site):
+    case = site / "cases" / "LD-02.toml"
+    case.write_text(case.read_text().replace('title = "HP to MP let-down, no desuperheating"',
+                                             'title = "<script>alert(1)</script> & <b>bold</b>"'))
+    assert main(["run", str(case)]) in (0, 1)
+    page = (site / "records" / "LD-02_revA.html").read_text()
+    assert "<script>alert(1)</script>" not in page and "&lt;script&gt;" in page
+    assert render_html(load_record(site / "records" / "LD-02_revA.json")).count("<script") == 0
