@@ -42,6 +42,31 @@ PHASES = (
 REFERENCE = "IAPWS R7-97(2012), Revised Release on the IAPWS Industrial Formulation 1997 (IAPWS-IF97)"
 
 
+def _fast():
+    from .steam_arrays import fast_enabled
+    return fast_enabled()
+
+
+def _if97_phase_region(pressure, temperature):
+    """Phase word and IF97 region (1, 2 or 3) of a single-phase state."""
+    if pressure > CRITICAL_PRESSURE:
+        phase = "supercritical" if temperature > CRITICAL_TEMPERATURE else "compressed liquid"
+    elif temperature > CRITICAL_TEMPERATURE:
+        phase = "superheated vapour"
+    else:
+        phase = "superheated vapour" if temperature > _if97._TSat_P(pressure / 1e6) else "compressed liquid"
+    if temperature <= 623.15:
+        region = 1 if phase == "compressed liquid" else 2
+    elif temperature > 863.15:
+        region = 2
+    else:
+        # Boundary between regions 2 and 3, IAPWS R7-97(2012) equation (5).
+        theta = temperature
+        p_b23 = (0.34805185628969e3 - 0.11671859879975e1 * theta + 0.10192970039326e-2 * theta ** 2) * 1e6
+        region = 2 if pressure <= p_b23 else 3
+    return phase, region
+
+
 def _check(variable, value, low, high, unit, scale=1.0):
     if not (low <= value <= high) or math.isnan(value):
         shown = f"{value / scale:.6g} {unit}".rstrip()
@@ -245,6 +270,9 @@ class SteamState:
             if temperature < t_sat and pressure < saturation_pressure(MIN_TEMPERATURE):
                 raise OutOfRangeError(
                     "liquid below the triple-point pressure", field="pressure", value=pressure)
+        if _fast():
+            from .steam_arrays import fast_from_pT
+            return fast_from_pT(cls, pressure, temperature)
         return cls._from_iapws(_IAPWS97(P=pressure / 1e6, T=temperature))
 
     @classmethod
@@ -264,6 +292,9 @@ class SteamState:
         """
         _check("pressure", pressure, MIN_PRESSURE, MAX_PRESSURE, "bar(a)", 1e5)
         cls._check_enthalpy_range(pressure, enthalpy)
+        if _fast():
+            from .steam_arrays import fast_from_ph
+            return fast_from_ph(cls, pressure, enthalpy)
         return cls._from_iapws(_IAPWS97(P=pressure / 1e6, h=enthalpy / 1e3))
 
     @classmethod
@@ -282,14 +313,16 @@ class SteamState:
         ('wet', 0.941)
         """
         _check("pressure", pressure, MIN_PRESSURE, MAX_PRESSURE, "bar(a)", 1e5)
-        low = _if97._Region1(MIN_TEMPERATURE, pressure / 1e6)["s"] * 1e3
-        high = _if97._Region2(MAX_TEMPERATURE, pressure / 1e6)["s"] * 1e3
+        low, high = cls._bounds(pressure, "s")
         if not (low <= entropy <= high) or math.isnan(entropy):
             raise OutOfRangeError(
                 f"entropy {entropy / 1e3:.6g} kJ/(kg K) at {pressure / 1e5:.6g} bar(a) is outside "
                 "IAPWS-IF97 (273.15 K to 1073.15 K)",
                 field="entropy", value=entropy / 1e3, limits=(low / 1e3, high / 1e3, "kJ/(kg K)"),
             )
+        if _fast():
+            from .steam_arrays import fast_from_ps
+            return fast_from_ps(cls, pressure, entropy)
         return cls._from_iapws(_IAPWS97(P=pressure / 1e6, s=entropy / 1e3))
 
     @classmethod
@@ -309,6 +342,9 @@ class SteamState:
         """
         _check("pressure", pressure, MIN_PRESSURE, CRITICAL_PRESSURE, "bar(a)", 1e5)
         _check("dryness", dryness, 0.0, 1.0, "")
+        if _fast():
+            from .steam_arrays import fast_from_p_dryness
+            return fast_from_p_dryness(cls, pressure, dryness)
         return cls._from_iapws(_IAPWS97(P=pressure / 1e6, x=dryness), dryness=dryness)
 
     @classmethod
@@ -328,6 +364,9 @@ class SteamState:
         """
         _check("temperature", temperature, MIN_TEMPERATURE, CRITICAL_TEMPERATURE, "K")
         _check("dryness", dryness, 0.0, 1.0, "")
+        if _fast():
+            from .steam_arrays import fast_from_T_dryness
+            return fast_from_T_dryness(cls, temperature, dryness)
         return cls._from_iapws(_IAPWS97(T=temperature, x=dryness), dryness=dryness)
 
     # -- derived -----------------------------------------------------------------------
@@ -377,11 +416,23 @@ class SteamState:
 
     # -- internals ---------------------------------------------------------------------
     @staticmethod
-    def _check_enthalpy_range(pressure, enthalpy):
-        # The basic equations alone (not a full IAPWS97 state) give the range cheaply:
+    def _bounds(pressure, key):
+        # The basic equations alone (not a full state) give the range cheaply:
         # region 1 at 273.15 K and region 2 at 1073.15 K bound every accepted state.
-        low = _if97._Region1(MIN_TEMPERATURE, pressure / 1e6)["h"] * 1e3
-        high = _if97._Region2(MAX_TEMPERATURE, pressure / 1e6)["h"] * 1e3
+        if _fast():
+            from .steam_arrays import _abstract_state
+            from CoolProp import CoolProp as _cp
+            st = _abstract_state()
+            st.update(_cp.PT_INPUTS, pressure, MIN_TEMPERATURE)
+            low = st.hmass() if key == "h" else st.smass()
+            st.update(_cp.PT_INPUTS, pressure, MAX_TEMPERATURE)
+            return low, (st.hmass() if key == "h" else st.smass())
+        return (_if97._Region1(MIN_TEMPERATURE, pressure / 1e6)[key] * 1e3,
+                _if97._Region2(MAX_TEMPERATURE, pressure / 1e6)[key] * 1e3)
+
+    @classmethod
+    def _check_enthalpy_range(cls, pressure, enthalpy):
+        low, high = cls._bounds(pressure, "h")
         if not (low <= enthalpy <= high) or math.isnan(enthalpy):
             raise OutOfRangeError(
                 f"enthalpy {enthalpy / 1e3:.6g} kJ/kg at {pressure / 1e5:.6g} bar(a) is outside "

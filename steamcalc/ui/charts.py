@@ -8,25 +8,25 @@ import numpy as np
 import plotly.graph_objects as go
 
 from ..steam import CRITICAL_PRESSURE, SteamState, saturation_temperature
+from ..steam_arrays import saturation_arrays, states_ps
 
 _COLOURS = {"saturation": "#5b6770", "inlet": "#b5442c", "outlet": "#2b6a99", "process": "#1d2327"}
 
 
 @lru_cache(maxsize=1)
 def saturation_dome():
-    """Saturated liquid and vapour lines on the h–s plane: (s, h) arrays in kJ/kg and kJ/(kg K)."""
-    pressures = np.concatenate([np.geomspace(0.01e5, 200e5, 70), [215e5, 220e5, CRITICAL_PRESSURE]])
-    liquid = [SteamState.from_p_dryness(p, 0.0) for p in pressures]
-    vapour = [SteamState.from_p_dryness(p, 1.0) for p in pressures]
-    states = liquid + vapour[::-1]
-    return np.array([s.entropy / 1e3 for s in states]), np.array([s.enthalpy / 1e3 for s in states])
+    """Saturated liquid and vapour lines on the h–s plane: (s, h) arrays in kJ/(kg K) and kJ/kg."""
+    pressures = np.concatenate([np.geomspace(0.01e5, 200e5, 70), [215e5, 220e5, CRITICAL_PRESSURE * 0.99999]])
+    sat = saturation_arrays(pressures)
+    s = np.concatenate([sat["s_f"], sat["s_g"][::-1]])
+    h = np.concatenate([sat["h_f"], sat["h_g"][::-1]])
+    return s / 1e3, h / 1e3
 
 
-def isobar(pressure, entropy_low, entropy_high, points=40):
+def isobar(pressure, entropy_low, entropy_high, points=60):
     """An isobar on the h–s plane between two entropies (J/(kg K)): (s, h) arrays in kJ units."""
-    s_values = np.linspace(entropy_low, entropy_high, points)
-    states = [SteamState.from_ps(pressure, s) for s in s_values]
-    return np.array([s.entropy / 1e3 for s in states]), np.array([s.enthalpy / 1e3 for s in states])
+    states = states_ps(np.full(points, pressure), np.linspace(entropy_low, entropy_high, points))
+    return states.entropy / 1e3, states.enthalpy / 1e3
 
 
 def letdown_chart(states, title="Let-down on the enthalpy–entropy chart"):
@@ -83,11 +83,8 @@ def flash_chart(inputs, result, points=60):
     h_in = result.value("condensate_enthalpy") * 1e3
     p_in = inputs.condensate_pressure
     pressures = np.geomspace(max(0.2e5, p_in / 60.0), p_in * 0.999, points)
-    fractions = []
-    for p in pressures:
-        h_f = SteamState.from_p_dryness(p, 0.0).enthalpy
-        h_g = SteamState.from_p_dryness(p, 1.0).enthalpy
-        fractions.append(max(0.0, (h_in - h_f) / (h_g - h_f)) * 100.0)
+    sat = saturation_arrays(pressures)
+    fractions = np.maximum(0.0, (h_in - sat["h_f"]) / (sat["h_g"] - sat["h_f"])) * 100.0
     fig = go.Figure()
     fig.add_trace(go.Scatter(x=pressures / 1e5, y=fractions, mode="lines", name="single flash from the inlet",
                              line=dict(color=_COLOURS["outlet"], width=2)))
