@@ -7,6 +7,7 @@ as text.
 
 from __future__ import annotations
 
+from functools import lru_cache
 from importlib import resources
 
 import jinja2
@@ -48,6 +49,7 @@ def _md(text):
     return str(text).replace("|", "\\|").replace("\n", " ")
 
 
+@lru_cache(maxsize=2)
 def _environment(autoescape):
     env = jinja2.Environment(
         loader=jinja2.FunctionLoader(

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import json
 from functools import lru_cache
 
 import numpy as np
@@ -61,7 +62,7 @@ def letdown_chart(states, title="Let-down on the enthalpy–entropy chart"):
     fig.update_layout(
         title=title, xaxis_title="specific entropy s, kJ/(kg·K)", yaxis_title="specific enthalpy h, kJ/kg",
         xaxis_range=[s_low / 1e3, s_high / 1e3], yaxis_range=[min(h_all) - 250, max(h_all) + 200],
-        template="simple_white", height=460, margin=dict(l=60, r=20, t=50, b=50),
+        height=460, margin=dict(l=60, r=20, t=50, b=50),
         legend=dict(orientation="h", y=-0.2),
     )
     return fig
@@ -101,7 +102,7 @@ def flash_chart(inputs, result, points=60):
     fig.update_layout(
         title="Flash fraction against flash pressure", xaxis_title="flash pressure, bar(a)",
         yaxis_title="flash fraction, % of the condensate entering", xaxis_type="log",
-        template="simple_white", height=420, margin=dict(l=60, r=20, t=50, b=50),
+        height=420, margin=dict(l=60, r=20, t=50, b=50),
         legend=dict(orientation="h", y=-0.2),
     )
     return fig
@@ -161,7 +162,7 @@ def valve_chart(inputs, result, points=40):
                          secondary_y=True)
     fig.update_yaxes(title_text="required Kv, m³/h", secondary_y=False)
     fig.update_layout(title="Control valve: required Kv and travel against flow", xaxis_title="steam flow, kg/h",
-                      template="simple_white", height=420, margin=dict(l=60, r=60, t=50, b=50),
+                      height=420, margin=dict(l=60, r=60, t=50, b=50),
                       legend=dict(orientation="h", y=-0.2))
     return fig
 
@@ -197,7 +198,7 @@ def stall_chart(inputs, result, points=60):
             fig.add_vrect(x0=0, x1=stall, fillcolor=_COLOURS["inlet"], opacity=0.08, line_width=0,
                           annotation_text=f"stall below {stall:.0f} %", annotation_position="top right")
     fig.update_layout(title="Turndown: steam-side pressure needed against load", xaxis_title="load, % of design",
-                      yaxis_title="pressure, bar(a)", xaxis_range=[0, 102], template="simple_white", height=420,
+                      yaxis_title="pressure, bar(a)", xaxis_range=[0, 102], height=420,
                       margin=dict(l=60, r=20, t=50, b=50), legend=dict(orientation="h", y=-0.2))
     return fig
 
@@ -228,6 +229,22 @@ def table_for(kind, inputs, result):
     """Rows of a calculation kind's table (e.g. the flash cascade), or None."""
     maker = TABLES.get(kind)
     return None if maker is None else maker(inputs, result)
+
+
+@lru_cache(maxsize=1)
+def _template_json():
+    return json.loads(go.Figure(layout=dict(template="simple_white")).to_json())["layout"]["template"]
+
+
+def figure_json(figure):
+    """A figure as the plotly JSON a notebook renders, with the chart style applied.
+
+    The style is added to the JSON rather than through plotly's validators, which would copy
+    the whole template on every redraw (most of a widget change's time otherwise).
+    """
+    data = json.loads(figure.to_json())
+    data["layout"]["template"] = _template_json()
+    return data
 
 
 def chart_for(kind, inputs, result):

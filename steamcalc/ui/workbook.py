@@ -23,7 +23,7 @@ from ..record import write_record
 from ..report import RENDERERS, format_number, format_unit, render_markdown
 from ..runner import record_for_case
 from ..site import ID_PATTERN, case_site, flatten_inputs, load_case, parse_inputs
-from .charts import chart_for, table_for
+from .charts import chart_for, figure_json, table_for
 from .forms import CaseForm
 
 _STATUS_COLOURS = {"pass": "#2f6b3a", "warn": "#8a5a00", "fail": "#a3201b"}
@@ -152,7 +152,7 @@ class Workbook:
         figures = chart_for(self.case.kind, self.inputs, self.result)
         self._chart.outputs = tuple(
             {"output_type": "display_data", "metadata": {},
-             "data": {"application/vnd.plotly.v1+json": json.loads(figure.to_json()), "text/plain": "chart"}}
+             "data": {"application/vnd.plotly.v1+json": figure_json(figure), "text/plain": "chart"}}
             for figure in figures)
 
     def _draw_table(self):

@@ -1,0 +1,51 @@
+"""Benchmark: a batch of 500 cases, one process against the worker pool.
+
+Writes 500 variants of the demo cases to a temporary folder and runs them with
+``steamcalc.batch.run_cases``: once in this process (the baseline), once in worker
+processes; prints the time per case and the ratio.
+
+    python tests/bench/bench_batch.py
+"""
+
+import os
+import shutil
+import tempfile
+import time
+from pathlib import Path
+
+from steamcalc.batch import run_one, run_cases
+
+DEMO = Path(__file__).resolve().parents[2] / "workbooks" / "demo_site"
+
+
+def make_cases(folder, count=500):
+    shutil.copy(DEMO / "site.toml", folder / "site.toml")
+    (folder / "cases").mkdir()
+    templates = sorted((DEMO / "cases").glob("*.toml"))
+    paths = []
+    for i in range(count):
+        template = templates[i % len(templates)]
+        text = template.read_text().replace('site = "../site.toml"', 'site = "../site.toml"')
+        case_id = f"{template.stem}-{i:03d}"
+        text = text.replace(f'id = "{template.stem}"', f'id = "{case_id}"')
+        path = folder / "cases" / f"{case_id}.toml"
+        path.write_text(text)
+        paths.append(path)
+    return paths
+
+
+if __name__ == "__main__":
+    with tempfile.TemporaryDirectory() as tmp:
+        paths = make_cases(Path(tmp))
+        start = time.perf_counter()
+        outcomes = [run_one(p, out_override=Path(tmp) / "serial") for p in paths]
+        serial = time.perf_counter() - start
+        start = time.perf_counter()
+        pooled = run_cases(paths, out_override=Path(tmp) / "pool", progress=False)
+        parallel = time.perf_counter() - start
+    ok = sum(o.ok for o in outcomes), sum(o.ok for o in pooled)
+    print(f"  {'500 cases':<34} {'total s':>9} {'ms/case':>9} {'ratio':>7}")
+    print(f"  {'baseline: one process':<34} {serial:>9.2f} {serial / len(paths) * 1e3:>9.2f} {1.0:>7.2f}")
+    print(f"  {f'worker pool ({os.cpu_count()} cores)':<34} {parallel:>9.2f} {parallel / len(paths) * 1e3:>9.2f} "
+          f"{parallel / serial:>7.2f}")
+    print(f"  records written: {ok[0]} and {ok[1]} of {len(paths)}")
