@@ -81,7 +81,7 @@ def compute_content_digest(record):
 
 
 def build_record(*, kind, case_id, revision, title, prepared_by, site, inputs_table, result,
-                 notes=(), created=None):
+                 notes=(), created=None, uncertainty=None):
     """Assemble a record dictionary from a calculation's result.
 
     Parameters
@@ -98,6 +98,8 @@ def build_record(*, kind, case_id, revision, title, prepared_by, site, inputs_ta
         The engineer's own assumptions, appended to the calculation's.
     created : str, optional
         ISO 8601 UTC time; now when not given.
+    uncertainty : dict, optional
+        The uncertainty section (:func:`steamcalc.uncertainty.run_uncertainty`).
     """
     record = {
         "schema": SCHEMA,
@@ -116,6 +118,8 @@ def build_record(*, kind, case_id, revision, title, prepared_by, site, inputs_ta
         "cautions": list(result.cautions),
         "provenance": provenance(),
     }
+    if uncertainty is not None:
+        record["uncertainty"] = uncertainty
     record["content_digest"] = compute_content_digest(record)
     record["digest"] = compute_digest(record)
     return record

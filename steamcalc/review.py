@@ -10,7 +10,7 @@ from dataclasses import dataclass, field
 
 from .errors import SteamcalcError
 from .record import compute_content_digest, compute_digest, provenance
-from .runner import recompute
+from .runner import recompute, recompute_uncertainty
 
 #: Relative tolerance on recomputed numbers; IF97 evaluations are deterministic, so
 #: this only absorbs floating-point differences between platforms and library builds.
@@ -98,9 +98,28 @@ def verify_record(record):
     old_results = record.get("results", {})
     for key in list(old_results) + [k for k in new_results if k not in old_results]:
         result.comparisons.append(_compare(key, old_results.get(key), new_results.get(key)))
+    if "uncertainty" in record:
+        _compare_uncertainty(record, result)
     old_checks = [(c.get("name"), c.get("status")) for c in record.get("checks", [])]
     new_checks = [(c.name, c.status) for c in fresh.checks]
     if old_checks != new_checks:
         result.check_changes = [f"recorded: {n} = {s}" for n, s in old_checks if (n, s) not in new_checks] + \
             [f"recomputed: {n} = {s}" for n, s in new_checks if (n, s) not in old_checks]
     return result
+
+
+def _compare_uncertainty(record, outcome):
+    try:
+        fresh = recompute_uncertainty(record)
+    except (SteamcalcError, KeyError, TypeError, ValueError) as exc:
+        outcome.error = f"the record's uncertainty section could not be recomputed: {exc}"
+        return
+    old_bands = record["uncertainty"].get("bands", {})
+    for key in list(old_bands) + [k for k in fresh["bands"] if k not in old_bands]:
+        for stat in ("p05", "p50", "p95"):
+            old = old_bands.get(key)
+            new = fresh["bands"].get(key)
+            outcome.comparisons.append(_compare(
+                f"uncertainty.{key}.{stat}",
+                None if old is None else {"value": old[stat], "unit": old["unit"]},
+                None if new is None else {"value": new[stat], "unit": new["unit"]}))

@@ -12,7 +12,7 @@ from .record import build_record
 from .site import Site, case_inputs, case_site, load_case
 
 
-def record_for_case(case, site, *, inputs=None, given=None, created=None):
+def record_for_case(case, site, *, inputs=None, given=None, created=None, with_uncertainty=True):
     """Compute a loaded case against a site and assemble its record.
 
     Parameters
@@ -25,15 +25,23 @@ def record_for_case(case, site, *, inputs=None, given=None, created=None):
         Inputs object and given texts when they come from a form rather than the file.
     created : str, optional
         Creation time to stamp (defaults to now).
+    with_uncertainty : bool
+        Run the case's ``[uncertainty]`` (Monte Carlo) too; a live form leaves it for a button.
     """
     calc = get_calculation(case.kind)
     if inputs is None:
         inputs, given = case_inputs(case, site)
     try:
         result = calc.calculate(inputs, site)
+        uncertainty = None
+        if case.uncertainty and with_uncertainty:
+            from .uncertainty import parse_tolerances, run_uncertainty
+            tolerances, samples, seed = parse_tolerances(calc.Inputs, case.uncertainty, inputs)
+            if tolerances:
+                uncertainty = run_uncertainty(calc, inputs, site, tolerances, samples, seed)
     except SteamcalcError as exc:
         raise exc.with_source(case.path)
-    return build_record(
+    return build_record(uncertainty=uncertainty,
         kind=case.kind, case_id=case.id, revision=case.revision, title=case.title,
         prepared_by=case.prepared_by, site=site, inputs_table=to_record_inputs(inputs, given),
         result=result, notes=case.notes, created=created,
@@ -59,6 +67,17 @@ def recompute(record):
     inputs = from_record_inputs(calc.Inputs, record["inputs"])
     site = Site.from_record(record["site"])
     return calc.calculate(inputs, site)
+
+
+def recompute_uncertainty(record):
+    """Re-run a record's uncertainty section from its inputs, tolerances, samples and seed."""
+    from .uncertainty import run_uncertainty, tolerances_from_record
+
+    calc = get_calculation(record["kind"])
+    section = record["uncertainty"]
+    inputs = from_record_inputs(calc.Inputs, record["inputs"])
+    return run_uncertainty(calc, inputs, Site.from_record(record["site"]),
+                           tolerances_from_record(calc.Inputs, section), section["samples"], section["seed"])
 
 
 def default_out_dir(case):

@@ -257,6 +257,7 @@ class Case:
     site_path: Path | None
     inputs: dict
     notes: tuple = ()
+    uncertainty: dict = field(default_factory=dict)
 
 
 def load_case(path):
@@ -276,7 +277,7 @@ def load_case(path):
     path = Path(path)
     data = _read_toml(path, "case file")
     try:
-        _unknown_keys(data, ("case", "inputs", "assumptions"), "top level", path)
+        _unknown_keys(data, ("case", "inputs", "assumptions", "uncertainty"), "top level", path)
         meta = data.get("case")
         if meta is None:
             raise CaseFileError("the file has no [case] table", fix="add [case] with kind and id")
@@ -311,10 +312,17 @@ def load_case(path):
             path=path, kind=kind, id=case_id, title=str(meta.get("title", case_id)), revision=revision,
             prepared_by=str(meta.get("prepared_by", "")),
             site_path=(path.parent / site_path) if site_path else None,
-            inputs=inputs, notes=tuple(notes),
+            inputs=inputs, notes=tuple(notes), uncertainty=_uncertainty_table(data),
         )
     except SteamcalcError as exc:
         raise exc.with_source(path)
+
+
+def _uncertainty_table(data):
+    table = data.get("uncertainty", {})
+    if not isinstance(table, dict):
+        raise CaseFileError("[uncertainty] must be a table of input = tolerance", field="uncertainty")
+    return table
 
 
 def _sections(inputs_class):
@@ -374,7 +382,7 @@ def parse_inputs(inputs_class, flat, site):
             continue
         raw = flat[f.name]
         kind = f.metadata["kind"]
-        given[f.name] = raw if isinstance(raw, str) else repr(raw)
+        given[f.name] = raw if isinstance(raw, str) else _number_text(raw)
         if kind == "pressure":
             values[f.name] = _pressure_or_header(raw, f.name, site)
             if isinstance(raw, str) and raw.strip().startswith("header:"):
@@ -404,6 +412,13 @@ def parse_inputs(inputs_class, flat, site):
         else:
             values[f.name] = parse_quantity(raw, f.name, kind)
     return inputs_class(**values), given
+
+
+def _number_text(raw):
+    # The same text whether a number came from TOML (50) or a form box ("50" read as 50.0).
+    if isinstance(raw, float) and raw.is_integer():
+        return str(int(raw))
+    return repr(raw)
 
 
 def _pressure_or_header(raw, field_name, site):

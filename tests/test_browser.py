@@ -145,6 +145,15 @@ def test_workbook_in_browser(lab, browser, notebook):
     assert _results_text(page) != before
     page.screenshot(path=str(shots / "2-after-input-change.png"), full_page=True)
 
+    if notebook == "letdown.ipynb":
+        bands = page.locator(f"{PANEL} .steamcalc-bands-button").first
+        bands.scroll_into_view_if_needed()
+        bands.click()
+        page.wait_for_function(
+            f"document.querySelector('{PANEL} .steamcalc-bands').innerText.includes('5th-95th percentile')",
+            timeout=60_000)
+        page.wait_for_selector(f"{PANEL} .steamcalc-bands ~ * .js-plotly-plot, {PANEL} .js-plotly-plot", timeout=30_000)
+        page.locator(f"{PANEL} .steamcalc-bands").first.screenshot(path=str(shots / "2b-bands.png"))
     save = page.locator(f"{PANEL} .steamcalc-save").first
     save.scroll_into_view_if_needed()
     save.click()
@@ -157,4 +166,36 @@ def test_workbook_in_browser(lab, browser, notebook):
     assert "Traceback" not in body
     record = root / "workbooks" / "demo_site" / "records" / record_name
     assert record.exists(), f"save did not write {record}"
+    page.close()
+
+
+def test_review_workbook_in_browser(lab, browser):
+    url, root = lab
+    shots = ARTIFACTS / "review"
+    shots.mkdir(parents=True, exist_ok=True)
+    page = browser.new_page(viewport={"width": 1400, "height": 1000})
+    page.goto(f"{url}/lab/tree/workbooks/review.ipynb?reset", timeout=90_000)
+    page.wait_for_selector(".jp-NotebookPanel", timeout=90_000)
+    page.wait_for_function(
+        "() => { const w = window.jupyterapp && window.jupyterapp.shell.currentWidget;"
+        " const k = w && w.sessionContext && w.sessionContext.session && w.sessionContext.session.kernel;"
+        " return k && k.status === 'idle'; }", timeout=90_000)
+    page.evaluate("window.jupyterapp.commands.execute('notebook:run-all-cells')")
+    page.wait_for_function(
+        f"document.querySelector('{PANEL} .steamcalc-review-table') && "
+        f"document.querySelector('{PANEL} .steamcalc-review-table').innerText.includes('VERIFIED')", timeout=120_000)
+    page.screenshot(path=str(shots / "1-after-run-all.png"), full_page=True)
+    name = page.locator(f"{PANEL} .widget-text input").last
+    name.fill("C. Checker")
+    name.press("Enter")
+    page.get_by_role("button", name="Sign as checked").click()
+    page.wait_for_function(
+        f"document.querySelector('{PANEL} .steamcalc-sign-status').innerText.includes('signed by C. Checker')",
+        timeout=60_000)
+    page.screenshot(path=str(shots / "2-after-sign.png"), full_page=True)
+    body = page.locator("body").inner_text()
+    assert "Error displaying widget" not in body and "Traceback" not in body
+    import json
+    record = json.loads((root / "workbooks" / "demo_site" / "records" / "LD-01_revA.json").read_text())
+    assert record["checked_by"] == "C. Checker"
     page.close()

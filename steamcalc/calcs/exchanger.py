@@ -21,6 +21,8 @@ from .base import Result, input_field
 KIND = "exchanger"
 TITLE = "Steam-heated exchanger: duty, area and stall"
 WORKBOOK = "exchanger_duty.ipynb"
+#: Results the uncertainty section gives bands and sensitivities for.
+UNCERTAINTY_RESULTS = ("duty", "steam_flow", "required_area", "area_margin", "stall_load_fraction")
 
 ARRANGEMENTS = {"counterflow": None, "1-2": 1, "2-4": 2}
 #: Smallest temperature approach (steam saturation to process outlet) held without a warning, K

@@ -24,6 +24,8 @@ from .economics import annual_fuel_energy, annual_value, missing_site_data
 KIND = "flash"
 TITLE = "Flash-steam recovery"
 WORKBOOK = "flash_recovery.ipynb"
+#: Results the uncertainty section gives bands and sensitivities for.
+UNCERTAINTY_RESULTS = ("flash_fraction", "flash_steam_flow", "recovered_heat_rate", "annual_cost_saving", "vessel_diameter")
 
 #: Souders–Brown K for a vertical flash vessel without a mist eliminator, m/s (common practice).
 DEFAULT_K_FACTOR = 0.06

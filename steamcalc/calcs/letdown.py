@@ -21,6 +21,8 @@ from .letdown_equipment import line_section, power_section, valve_section
 KIND = "letdown"
 TITLE = "Pressure let-down station"
 WORKBOOK = "letdown.ipynb"
+#: Results the uncertainty section gives bands and sensitivities for.
+UNCERTAINTY_RESULTS = ("outlet_temperature", "outlet_superheat", "throttled_temperature", "spray_water_flow", "valve_kv", "recoverable_power")
 
 #: Smallest desuperheat margin above saturation that spray desuperheaters hold
 #: stably, K (common practice).

@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import math
 import re
+from functools import lru_cache
 
 from fluids.piping import nearest_pipe
 
@@ -38,6 +39,7 @@ def _nps_value(text):
     return float(text)
 
 
+@lru_cache(maxsize=512)
 def pipe_inner_diameter(size, schedule="40", field="size"):
     """Inside diameter of a steel pipe of a nominal size and schedule.
 

@@ -231,6 +231,29 @@ def table_for(kind, inputs, result):
     return None if maker is None else maker(inputs, result)
 
 
+def tornado_chart(section, calc):
+    """One-at-a-time sensitivity of the first banded result: a bar per input from its low to high end."""
+    from ..calcs.base import input_fields
+
+    labels = {f.name: f.metadata["label"] for f in input_fields(calc.Inputs)}
+    key = next(iter(section["bands"]), None)
+    fig = go.Figure()
+    if key is None:
+        return fig
+    nominal = section["bands"][key]["nominal"]
+    rows = [r for r in section["sensitivity"].get(key, []) if r["low"] is not None and r["high"] is not None][::-1]
+    names = [labels.get(r["input"], r["input"]) for r in rows]
+    fig.add_trace(go.Bar(y=names, x=[r["low"] - nominal for r in rows], base=nominal, orientation="h",
+                         name="input at its low end", marker_color=_COLOURS["outlet"]))
+    fig.add_trace(go.Bar(y=names, x=[r["high"] - nominal for r in rows], base=nominal, orientation="h",
+                         name="input at its high end", marker_color=_COLOURS["inlet"]))
+    unit = section["bands"][key]["unit"]
+    fig.update_layout(title=f"Sensitivity of {key.replace('_', ' ')} (one input at a time, ± its tolerance)",
+                      barmode="overlay", xaxis_title=f"{key.replace('_', ' ')}, {unit}", height=360,
+                      margin=dict(l=180, r=20, t=50, b=50), legend=dict(orientation="h", y=-0.25))
+    return fig
+
+
 @lru_cache(maxsize=1)
 def _template_json():
     return json.loads(go.Figure(layout=dict(template="simple_white")).to_json())["layout"]["template"]

@@ -27,8 +27,12 @@ class CaseForm:
         Site header names, shown in the pressure boxes' help.
     """
 
-    def __init__(self, inputs_class, values, headers=()):
+    def __init__(self, inputs_class, values, headers=(), tolerances=None):
+        from ..uncertainty import _DIFFERENCE_UNITS
+
+        tolerances = tolerances or {}
         self.boxes = {}
+        self.tolerance_boxes = {}
         self.kinds = {f.name: f.metadata["kind"] for f in input_fields(inputs_class)}
         groups = {}
         header_note = f" Site headers: {', '.join('header:' + h for h in headers)}." if headers else ""
@@ -46,7 +50,16 @@ class CaseForm:
             box.add_class("steamcalc-input")
             box.add_class(f"steamcalc-input-{f.name}")
             self.boxes[f.name] = box
-            groups.setdefault(meta["section"], []).append(box)
+            row = box
+            if meta["kind"] in _DIFFERENCE_UNITS:
+                tol = tolerances.get(f.name, "")
+                tolerance = widgets.Text(value="" if tol is None else str(tol), placeholder="± tolerance",
+                                         continuous_update=False, layout=widgets.Layout(width="9em"),
+                                         tooltip="± tolerance for the uncertainty bands: e.g. '0.3 bar', '5 K', '5 %'")
+                tolerance.add_class(f"steamcalc-tol-{f.name}")
+                self.tolerance_boxes[f.name] = tolerance
+                row = widgets.HBox([box, tolerance])
+            groups.setdefault(meta["section"], []).append(row)
         children = []
         for section, boxes in groups.items():
             if section is not None:
@@ -75,7 +88,19 @@ class CaseForm:
                 out[name] = text
         return out
 
+    def tolerances(self):
+        """Field name → tolerance text, for the ± boxes that are not empty."""
+        out = {}
+        for name, box in self.tolerance_boxes.items():
+            text = box.value.strip()
+            if text:
+                try:
+                    out[name] = float(text)
+                except ValueError:
+                    out[name] = text
+        return out
+
     def observe(self, callback):
         """Call ``callback()`` whenever a box's value changes."""
-        for box in self.boxes.values():
+        for box in list(self.boxes.values()) + list(self.tolerance_boxes.values()):
             box.observe(lambda change: callback(), names="value")

@@ -23,7 +23,7 @@ from ..record import write_record
 from ..report import RENDERERS, format_number, format_unit, render_markdown
 from ..runner import record_for_case
 from ..site import ID_PATTERN, case_site, flatten_inputs, load_case, parse_inputs
-from .charts import chart_for, figure_json, table_for
+from .charts import chart_for, figure_json, table_for, tornado_chart
 from .forms import CaseForm
 
 _STATUS_COLOURS = {"pass": "#2f6b3a", "warn": "#8a5a00", "fail": "#a3201b"}
@@ -67,7 +67,16 @@ class Workbook:
         self.calc = get_calculation(self.case.kind)
         self.record_folder = Path(record_folder)
         flat = flatten_inputs(self.calc.Inputs, self.case.inputs)
-        self.form = CaseForm(self.calc.Inputs, flat, headers=tuple(self.site.headers))
+        self._settings = {k: v for k, v in self.case.uncertainty.items() if k in ("samples", "seed")}
+        self.form = CaseForm(self.calc.Inputs, flat, headers=tuple(self.site.headers),
+                             tolerances={k: v for k, v in self.case.uncertainty.items() if k not in self._settings})
+        self.uncertainty = None
+        self._bands = widgets.HTML()
+        self._bands.add_class("steamcalc-bands")
+        self._tornado = widgets.Output()
+        self._bands_button = widgets.Button(description="Compute bands", icon="random")
+        self._bands_button.add_class("steamcalc-bands-button")
+        self._bands_button.on_click(lambda _: self.compute_uncertainty())
         self.record = None
         self.result = None
         self.inputs = None
@@ -108,7 +117,11 @@ class Workbook:
         """Recompute from the form; show the result, or the error beside the form."""
         try:
             inputs, given = parse_inputs(self.calc.Inputs, self.form.values(), self.site)
-            record, result = record_for_case(self.case, self.site, inputs=inputs, given=given)
+            self.case = dataclasses.replace(self.case, uncertainty={**self.form.tolerances(), **self._settings})
+            record, result = record_for_case(self.case, self.site, inputs=inputs, given=given, with_uncertainty=False)
+            if self.case.uncertainty:
+                from ..uncertainty import parse_tolerances
+                parse_tolerances(self.calc.Inputs, self.case.uncertainty, inputs)
         except SteamcalcError as exc:
             self.error = str(exc).replace(f"{self.case.path}: ", "")
             self._message.value = (f"<div style='color:#a3201b'><b>Input not accepted:</b> "
@@ -117,6 +130,11 @@ class Workbook:
             return
         self.error = None
         self.inputs, self.record, self.result = inputs, record, result
+        self._given = given
+        self.uncertainty = None
+        self._bands.value = ("<i>Inputs changed: press <b>Compute bands</b> for the uncertainty bands.</i>"
+                             if self.case.uncertainty else "<i>No ± tolerances given.</i>")
+        self._tornado.outputs = ()
         self._message.value = ""
         self._results_html.value = self._results_table()
         self._draw_chart()
@@ -131,6 +149,36 @@ class Workbook:
             return
         self.case = dataclasses.replace(self.case, revision=revision)
         self.update()
+
+    def compute_uncertainty(self):
+        """Run the Monte Carlo bands and the sensitivity for the current inputs and tolerances."""
+        if self.error is not None or not self.case.uncertainty:
+            return None
+        from ..uncertainty import parse_tolerances, run_uncertainty
+
+        try:
+            tolerances, samples, seed = parse_tolerances(self.calc.Inputs, self.case.uncertainty, self.inputs)
+            self.uncertainty = run_uncertainty(self.calc, self.inputs, self.site, tolerances, samples, seed)
+            self.record, _ = record_for_case(self.case, self.site, inputs=self.inputs, given=self._given)
+        except SteamcalcError as exc:
+            self._bands.value = f"<div style='color:#a3201b'>{html.escape(str(exc))}</div>"
+            return None
+        u = self.uncertainty
+        rows = "".join(
+            f"<tr><td>{html.escape(k)}</td><td style='text-align:right'>{html.escape(format_number(b['nominal']))}</td>"
+            f"<td style='text-align:right'>{html.escape(format_number(b['p05']))}</td>"
+            f"<td style='text-align:right'>{html.escape(format_number(b['p95']))}</td>"
+            f"<td>{html.escape(format_unit(b['unit']))}</td></tr>" for k, b in u["bands"].items())
+        lines = "".join(f"<li>{html.escape(line)}</li>" for line in u["summary"])
+        self._bands.value = (f"<ul>{lines}</ul><table><tr><th>result</th><th>nominal</th><th>5th pct</th>"
+                             f"<th>95th pct</th><th>unit</th></tr>{rows}</table>"
+                             f"<div><small>{u['samples']} samples, seed {u['seed']}, {u['valid_samples']} valid</small></div>")
+        figure = tornado_chart(u, self.calc)
+        self._tornado.outputs = ({"output_type": "display_data", "metadata": {},
+                                  "data": {"application/vnd.plotly.v1+json": figure_json(figure),
+                                           "text/plain": "tornado chart"}},)
+        self._draw_preview()
+        return u
 
     def _results_table(self):
         r = self.record
@@ -191,6 +239,10 @@ class Workbook:
         """The kind's table (the flash stages), updating with the inputs."""
         return self._table
 
+    def uncertainty_view(self):
+        """Bands and the tornado chart; computed on the button (a Monte Carlo run takes about a second)."""
+        return widgets.VBox([self._bands_button, self._bands, self._tornado])
+
     def save_view(self):
         return widgets.HBox([self._save_button, self._save_status])
 
@@ -207,6 +259,13 @@ class Workbook:
         lines.append("")
         for c in r["checks"]:
             lines.append(f"  [{c['status'].upper()}] {c['name']}: {c['detail']}")
+        if self.case.uncertainty:
+            if self.uncertainty is None:
+                self.compute_uncertainty()
+            if self.uncertainty is not None:
+                lines.append("")
+                lines.append("  uncertainty:")
+                lines.extend(f"    {line}" for line in self.uncertainty["summary"])
         return "\n".join(lines)
 
     # -- saving ----------------------------------------------------------------------
@@ -218,6 +277,8 @@ class Workbook:
         """
         if self.record is None or self.error is not None:
             return f"not saved: the inputs are not accepted ({self.error})"
+        if self.case.uncertainty and self.uncertainty is None and self.compute_uncertainty() is None:
+            return "not saved: the uncertainty bands could not be computed"
         try:
             paths, status = write_record(self.record, self.record_folder, RENDERERS)
         except SteamcalcError as exc:
@@ -241,7 +302,7 @@ class UnavailableWorkbook:
         return widgets.HTML(f"<div style='color:#a3201b'><b>Input not accepted:</b> {html.escape(self.message)}"
                             "</div><div>Correct the parameters cell and run all cells again.</div>")
 
-    form_view = results_view = chart_view = preview_view = save_view = table_view = _view
+    form_view = results_view = chart_view = preview_view = save_view = table_view = uncertainty_view = _view
 
     def summary(self):
         return f"Input not accepted: {self.message}"

@@ -1,0 +1,260 @@
+"""Uncertainty: result bands from ± tolerances on the inputs, and a one-at-a-time sensitivity.
+
+Each toleranced input is sampled from a rectangular (uniform) distribution over its
+± tolerance — the distribution JCGM 100:2008 (GUM) §4.3.7 assigns when only bounds are
+known — with a seeded generator, so a run is reproducible and a record's bands re-verify.
+Every sample goes through the calculation's own ``calculate()`` (on the fast IF97
+engine). The sensitivity moves one input at a time to each end of its tolerance.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import re
+from dataclasses import dataclass
+
+import numpy as np
+
+from .calcs.base import input_fields
+from .errors import CaseFileError, InputError, SteamcalcError, UnitError
+from .quantities import Q_, RECORD_UNITS, SI_UNITS
+from .steam_arrays import fast_properties
+
+DEFAULT_SAMPLES = 2000
+DEFAULT_SEED = 1
+MAX_SAMPLES = 100_000
+SETTINGS = ("samples", "seed")
+#: Input kinds a tolerance can be put on, with the SI unit of their differences.
+_DIFFERENCE_UNITS = {"pressure": "Pa", "temperature": "K", "temperature_difference": "K", "mass_flow": "kg/s",
+                     "velocity": "m/s", "flow_coefficient": "m**3/h", "specific_heat": "J/(kg*K)",
+                     "heat_transfer_coefficient": "W/(m**2*K)", "fouling_resistance": "m**2*K/W", "area": "m**2",
+                     "volume_flow": "m**3/s", "density": "kg/m**3", "fraction": "", "number": ""}
+_RECORD_DIFFERENCE_UNITS = {"pressure": "bar", "temperature": "K", "temperature_difference": "K"}
+_PERCENT = re.compile(r"^\s*±?\s*([0-9.]+(?:[eE][+-]?\d+)?)\s*%\s*$")
+_NUMBER_UNIT = re.compile(r"^\s*±?\s*([0-9.]+(?:[eE][+-]?\d+)?)\s*(.*?)\s*$")
+
+
+@dataclass(frozen=True)
+class Tolerance:
+    """A ± tolerance on one input: absolute (in the input's SI unit) or relative (a fraction)."""
+
+    field: str
+    value: float
+    relative: bool
+    given: str
+
+    def half_width(self, nominal):
+        return abs(nominal) * self.value if self.relative else self.value
+
+    def to_record(self, kind):
+        if self.relative:
+            return {"value": self.value * 100.0, "unit": "percent", "given": self.given}
+        unit = _RECORD_DIFFERENCE_UNITS.get(kind, RECORD_UNITS.get(kind, ""))
+        si = _DIFFERENCE_UNITS[kind]
+        value = self.value if not si else float(Q_(self.value, si).to(unit).magnitude) if unit else self.value
+        return {"value": value, "unit": unit, "given": self.given}
+
+
+def parse_tolerances(inputs_class, table, inputs):
+    """Tolerances and settings from a case's ``[uncertainty]`` table.
+
+    Returns
+    -------
+    tuple
+        ``(tolerances, samples, seed)``.
+    """
+    fields = {f.name: f for f in input_fields(inputs_class)}
+    tolerances = []
+    for key, raw in table.items():
+        if key in SETTINGS:
+            continue
+        if key not in fields or fields[key].metadata["kind"] not in _DIFFERENCE_UNITS:
+            numeric = [n for n, f in fields.items() if f.metadata["kind"] in _DIFFERENCE_UNITS]
+            raise CaseFileError(f"'{key}' cannot take a tolerance", field=f"uncertainty.{key}",
+                                fix=f"tolerances go on numeric inputs: {', '.join(numeric)}")
+        if getattr(inputs, key) is None:
+            raise CaseFileError(f"a tolerance on '{key}', which the case does not give", field=f"uncertainty.{key}",
+                                fix="give the input in [inputs], or remove its tolerance")
+        tolerances.append(_parse_one(key, raw, fields[key].metadata["kind"]))
+    samples = table.get("samples", DEFAULT_SAMPLES)
+    seed = table.get("seed", DEFAULT_SEED)
+    if isinstance(samples, bool) or not isinstance(samples, int) or not 10 <= samples <= MAX_SAMPLES:
+        raise CaseFileError("samples must be a whole number from 10 to 100000", field="uncertainty.samples",
+                            value=samples)
+    if isinstance(seed, bool) or not isinstance(seed, int) or seed < 0:
+        raise CaseFileError("seed must be a whole number, 0 or more", field="uncertainty.seed", value=seed)
+    return tuple(tolerances), samples, seed
+
+
+def _parse_one(key, raw, kind):
+    name = f"uncertainty.{key}"
+    text = raw if isinstance(raw, str) else repr(raw)
+    if isinstance(raw, (int, float)) and not isinstance(raw, bool):
+        if _DIFFERENCE_UNITS[kind]:
+            raise UnitError("a tolerance needs a unit (or %)", field=name, value=raw, fix="e.g. '0.3 bar' or '5 %'")
+        value, relative = float(raw), False
+    else:
+        percent = _PERCENT.match(text)
+        if percent:
+            value, relative = float(percent.group(1)) / 100.0, True
+        else:
+            match = _NUMBER_UNIT.match(text)
+            if not match or not match.group(2):
+                raise UnitError(f"'{text}' is not a tolerance", field=name, value=text,
+                                fix="give a ± amount with its unit, e.g. '0.3 bar', '5 K', '5 %'")
+            unit = match.group(2)
+            if "(" in unit or unit in ("barg", "bara", "psig", "psia", "mbarg", "mbara"):
+                raise UnitError("a tolerance is a difference and has no gauge or absolute basis", field=name,
+                                value=text, fix=f"write '{match.group(1)} bar'")
+            if unit in ("degC", "°C", "degF", "°F"):
+                raise UnitError("a temperature tolerance is a difference", field=name, value=text,
+                                fix=f"write '{match.group(1)} K'")
+            try:
+                value = float(Q_(float(match.group(1)), unit).to(_DIFFERENCE_UNITS[kind]).magnitude)
+            except Exception:
+                raise UnitError(f"'{text}' is not a tolerance of {key.replace('_', ' ')}", field=name, value=text,
+                                fix="give it in the input's units, or as a percentage") from None
+            relative = False
+    if value <= 0.0:
+        raise InputError("a tolerance must be above zero", field=name, value=text)
+    return Tolerance(field=key, value=value, relative=relative, given=text)
+
+
+def _numeric(result):
+    return {k: v.value for k, v in result.values.items()
+            if isinstance(v.value, (int, float)) and not isinstance(v.value, bool)}
+
+
+def run_uncertainty(calc, inputs, site, tolerances, samples=DEFAULT_SAMPLES, seed=DEFAULT_SEED):
+    """Monte Carlo bands and one-at-a-time sensitivity of a calculation's headline results.
+
+    Parameters
+    ----------
+    calc : module
+        A registered calculation kind (with ``UNCERTAINTY_RESULTS``).
+    inputs : Inputs
+        The nominal inputs.
+    site : steamcalc.site.Site
+    tolerances : sequence of Tolerance
+    samples, seed : int
+        Monte Carlo size and generator seed (numpy PCG64).
+
+    Returns
+    -------
+    dict
+        The record's ``uncertainty`` section.
+
+    References
+    ----------
+    JCGM 101:2008, Evaluation of measurement data — Supplement 1 to the GUM: propagation of
+    distributions using a Monte Carlo method; JCGM 100:2008 §4.3.7 (rectangular distribution).
+    """
+    kinds = {f.name: f.metadata["kind"] for f in input_fields(type(inputs))}
+    # Draw in the Inputs' declaration order, so a case file and a form give the same samples.
+    order = list(kinds)
+    tolerances = sorted(tolerances, key=lambda t: order.index(t.field))
+    nominal = _numeric(calc.calculate(inputs, site))
+    keys = [k for k in calc.UNCERTAINTY_RESULTS if k in nominal]
+    rng = np.random.default_rng(seed)
+    draws = {t.field: rng.uniform(-1.0, 1.0, samples) * t.half_width(getattr(inputs, t.field)) +
+             getattr(inputs, t.field) for t in tolerances}
+    values = {k: [] for k in keys}
+    failures = {}
+    with fast_properties():
+        for i in range(samples):
+            try:
+                sample = dataclasses.replace(inputs, **{f: float(d[i]) for f, d in draws.items()})
+                numbers = _numeric(calc.calculate(sample, site))
+            except SteamcalcError as exc:
+                reason = exc.message.split(":")[0][:80]
+                failures[reason] = failures.get(reason, 0) + 1
+                continue
+            for k in keys:
+                values[k].append(numbers.get(k, np.nan))
+        sensitivity = _one_at_a_time(calc, inputs, site, tolerances, keys)
+    units = {k: calc.calculate(inputs, site).values[k].unit for k in keys}
+    bands = {}
+    for k in keys:
+        array = np.asarray(values[k], dtype=float)
+        array = array[np.isfinite(array)]
+        if array.size == 0:
+            continue
+        p05, p50, p95 = np.percentile(array, [5.0, 50.0, 95.0])
+        bands[k] = {"nominal": nominal[k], "p05": float(p05), "p50": float(p50), "p95": float(p95),
+                    "mean": float(array.mean()), "std": float(array.std(ddof=1)) if array.size > 1 else 0.0,
+                    "unit": units[k]}
+    valid = samples - sum(failures.values())
+    section = {
+        "method": "Monte Carlo (JCGM 101:2008) with rectangular distributions over each ± tolerance "
+                  "(JCGM 100:2008 4.3.7); one-at-a-time sensitivity to each end of each tolerance",
+        "samples": samples, "seed": seed, "generator": "numpy PCG64", "valid_samples": valid,
+        "failed_samples": failures,
+        "tolerances": {t.field: t.to_record(kinds[t.field]) for t in tolerances},
+        "bands": bands, "sensitivity": sensitivity,
+    }
+    section["summary"] = summary_lines(section, calc)
+    return section
+
+
+def _one_at_a_time(calc, inputs, site, tolerances, keys):
+    table = {k: [] for k in keys}
+    for t in tolerances:
+        nominal = getattr(inputs, t.field)
+        ends = {}
+        for side, sign in (("low", -1.0), ("high", 1.0)):
+            try:
+                result = _numeric(calc.calculate(
+                    dataclasses.replace(inputs, **{t.field: nominal + sign * t.half_width(nominal)}), site))
+            except SteamcalcError:
+                result = {}
+            ends[side] = result
+        for k in keys:
+            low, high = ends["low"].get(k), ends["high"].get(k)
+            swing = None if low is None or high is None else abs(high - low)
+            table[k].append({"input": t.field, "low": low, "high": high, "swing": swing})
+    for k in keys:
+        table[k].sort(key=lambda row: -(row["swing"] or 0.0))
+    return table
+
+
+def _label(calc, key):
+    field_labels = {f.name: f.metadata["label"] for f in input_fields(calc.Inputs)}
+    return field_labels.get(key, key.replace("_", " "))
+
+
+def summary_lines(section, calc):
+    """One plain sentence per band: nominal, 5th-95th percentile, the most sensitive input."""
+    from .report import format_number, format_unit
+
+    lines = []
+    for key, band in section["bands"].items():
+        unit = format_unit(band["unit"])
+        top = next((row for row in section["sensitivity"].get(key, []) if row["swing"]), None)
+        text = (f"{key.replace('_', ' ')} {format_number(band['nominal'])} {unit}, 5th-95th percentile "
+                f"{format_number(band['p05'])}-{format_number(band['p95'])} {unit}").replace("  ", " ")
+        if top:
+            text += f"; most sensitive to {_label(calc, top['input']).lower()}"
+        lines.append(text)
+    if section["failed_samples"]:
+        lines.append(f"{section['samples'] - section['valid_samples']} of {section['samples']} samples gave no result: "
+                     + "; ".join(f"{n} × {reason}" for reason, n in section["failed_samples"].items()))
+    return lines
+
+
+def tolerances_from_record(inputs_class, section):
+    """Tolerances back from a record's uncertainty section (for re-verification)."""
+    kinds = {f.name: f.metadata["kind"] for f in input_fields(inputs_class)}
+    tolerances = []
+    for field_name, entry in section.get("tolerances", {}).items():
+        kind = kinds[field_name]
+        if entry["unit"] == "percent":
+            tolerances.append(Tolerance(field_name, entry["value"] / 100.0, True, entry.get("given", "")))
+        else:
+            si = _DIFFERENCE_UNITS[kind]
+            value = float(Q_(entry["value"], entry["unit"]).to(si).magnitude) if si else float(entry["value"])
+            tolerances.append(Tolerance(field_name, value, False, entry.get("given", "")))
+    return tuple(tolerances)
+
+
+__all__ = ["Tolerance", "parse_tolerances", "run_uncertainty", "summary_lines", "tolerances_from_record",
+           "SI_UNITS"]
