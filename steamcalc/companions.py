@@ -34,7 +34,7 @@ def run_notebook(case, out_dir, stem):
 
     workbook = find_workbook(case)
     target = Path(out_dir) / f"{stem}.ipynb"
-    partial = target.with_name(f".{target.name}.part")
+    partial = target.with_name(f".{target.stem}.part.ipynb")
     try:
         papermill.execute_notebook(
             str(workbook), str(partial), cwd=str(workbook.parent), progress_bar=False, kernel_name="python3",

@@ -99,6 +99,19 @@ def browser():
 PANEL = ".jp-NotebookPanel:not(.lm-mod-hidden)"
 
 
+def _open_and_run_all(browser, url, notebook):
+    """Open a workbook in a fresh workspace, wait for its kernel, and run all cells."""
+    page = browser.new_page(viewport={"width": 1400, "height": 1000})
+    page.goto(f"{url}/lab/tree/workbooks/{notebook}?reset", timeout=90_000)
+    page.wait_for_selector(".jp-NotebookPanel", timeout=90_000)
+    page.wait_for_function(
+        "() => { const w = window.jupyterapp && window.jupyterapp.shell.currentWidget;"
+        " const k = w && w.sessionContext && w.sessionContext.session && w.sessionContext.session.kernel;"
+        " return k && k.status === 'idle'; }", timeout=90_000)
+    page.evaluate("window.jupyterapp.commands.execute('notebook:run-all-cells')")
+    return page
+
+
 def _results_text(page):
     return page.locator(f"{PANEL} .steamcalc-results").first.inner_text()
 
@@ -109,14 +122,7 @@ def test_workbook_in_browser(lab, browser, notebook):
     field, new_value, record_name = WORKBOOKS[notebook]
     shots = ARTIFACTS / notebook.replace(".ipynb", "")
     shots.mkdir(parents=True, exist_ok=True)
-    page = browser.new_page(viewport={"width": 1400, "height": 1000})
-    page.goto(f"{url}/lab/tree/workbooks/{notebook}?reset", timeout=90_000)
-    page.wait_for_selector(".jp-NotebookPanel", timeout=90_000)
-    page.wait_for_function(
-        "() => { const w = window.jupyterapp && window.jupyterapp.shell.currentWidget;"
-        " const k = w && w.sessionContext && w.sessionContext.session && w.sessionContext.session.kernel;"
-        " return k && k.status === 'idle'; }", timeout=90_000)
-    page.evaluate("window.jupyterapp.commands.execute('notebook:run-all-cells')")
+    page = _open_and_run_all(browser, url, notebook)
     try:
         page.wait_for_selector(f"{PANEL} .steamcalc-results", timeout=90_000)
     except Exception:
@@ -173,14 +179,7 @@ def test_review_workbook_in_browser(lab, browser):
     url, root = lab
     shots = ARTIFACTS / "review"
     shots.mkdir(parents=True, exist_ok=True)
-    page = browser.new_page(viewport={"width": 1400, "height": 1000})
-    page.goto(f"{url}/lab/tree/workbooks/review.ipynb?reset", timeout=90_000)
-    page.wait_for_selector(".jp-NotebookPanel", timeout=90_000)
-    page.wait_for_function(
-        "() => { const w = window.jupyterapp && window.jupyterapp.shell.currentWidget;"
-        " const k = w && w.sessionContext && w.sessionContext.session && w.sessionContext.session.kernel;"
-        " return k && k.status === 'idle'; }", timeout=90_000)
-    page.evaluate("window.jupyterapp.commands.execute('notebook:run-all-cells')")
+    page = _open_and_run_all(browser, url, "review.ipynb")
     page.wait_for_function(
         f"document.querySelector('{PANEL} .steamcalc-review-table') && "
         f"document.querySelector('{PANEL} .steamcalc-review-table').innerText.includes('VERIFIED')", timeout=120_000)
