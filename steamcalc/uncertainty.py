@@ -217,9 +217,18 @@ def _one_at_a_time(calc, inputs, site, tolerances, keys):
     return table
 
 
+_TRADE_WORDS = {"kv": "Kv", "cv": "Cv", "lmtd": "LMTD", "ua": "UA", "co2": "CO2"}
+
+
 def _label(calc, key):
     field_labels = {f.name: f.metadata["label"] for f in input_fields(calc.Inputs)}
-    return field_labels.get(key, key.replace("_", " "))
+    label = field_labels.get(key, key.replace("_", " "))
+    # Lower-case the first letter for use inside a sentence, unless it starts an acronym.
+    return label if len(label) > 1 and label[1].isupper() else label[:1].lower() + label[1:]
+
+
+def _result_words(key):
+    return " ".join(_TRADE_WORDS.get(word, word) for word in key.split("_"))
 
 
 def summary_lines(section, calc):
@@ -230,10 +239,11 @@ def summary_lines(section, calc):
     for key, band in section["bands"].items():
         unit = format_unit(band["unit"])
         top = next((row for row in section["sensitivity"].get(key, []) if row["swing"]), None)
-        text = (f"{key.replace('_', ' ')} {format_number(band['nominal'])} {unit}, 5th-95th percentile "
-                f"{format_number(band['p05'])}-{format_number(band['p95'])} {unit}").replace("  ", " ")
+        text = (f"{_result_words(key)} {format_number(band['nominal'])} {unit}, 5th-95th percentile "
+                f"{format_number(band['p05'])}-{format_number(band['p95'])} {unit}").replace("  ", " ").strip()
+        text = text.replace(" ,", ",")
         if top:
-            text += f"; most sensitive to {_label(calc, top['input']).lower()}"
+            text += f"; most sensitive to {_label(calc, top['input'])}"
         lines.append(text)
     if section["failed_samples"]:
         lines.append(f"{section['samples'] - section['valid_samples']} of {section['samples']} samples gave no result: "
