@@ -47,6 +47,11 @@ def _fast():
     return fast_enabled()
 
 
+def two_phase_word(dryness):
+    """Phase word of a saturated or wet state from its dryness fraction."""
+    return "saturated liquid" if dryness == 0.0 else "saturated vapour" if dryness == 1.0 else "wet"
+
+
 def _if97_phase_region(pressure, temperature):
     """Phase word and IF97 region (1, 2 or 3) of a single-phase state."""
     if pressure > CRITICAL_PRESSURE:
@@ -267,9 +272,6 @@ class SteamState:
                     field="temperature", value=temperature,
                     fix="give the dryness fraction (or a superheat above zero) instead",
                 )
-            if temperature < t_sat and pressure < saturation_pressure(MIN_TEMPERATURE):
-                raise OutOfRangeError(
-                    "liquid below the triple-point pressure", field="pressure", value=pressure)
         if _fast():
             from .steam_arrays import fast_from_pT
             return fast_from_pT(cls, pressure, temperature)
@@ -420,13 +422,8 @@ class SteamState:
         # The basic equations alone (not a full state) give the range cheaply:
         # region 1 at 273.15 K and region 2 at 1073.15 K bound every accepted state.
         if _fast():
-            from .steam_arrays import _abstract_state
-            from CoolProp import CoolProp as _cp
-            st = _abstract_state()
-            st.update(_cp.PT_INPUTS, pressure, MIN_TEMPERATURE)
-            low = st.hmass() if key == "h" else st.smass()
-            st.update(_cp.PT_INPUTS, pressure, MAX_TEMPERATURE)
-            return low, (st.hmass() if key == "h" else st.smass())
+            from .steam_arrays import fast_bounds
+            return fast_bounds(pressure, key, MIN_TEMPERATURE, MAX_TEMPERATURE)
         return (_if97._Region1(MIN_TEMPERATURE, pressure / 1e6)[key] * 1e3,
                 _if97._Region2(MAX_TEMPERATURE, pressure / 1e6)[key] * 1e3)
 
@@ -450,7 +447,7 @@ class SteamState:
         temperature = float(st.T)
         if st.region == 4 or dryness is not None:
             dryness = float(st.x) if dryness is None else float(dryness)
-            phase = "saturated liquid" if dryness == 0.0 else "saturated vapour" if dryness == 1.0 else "wet"
+            phase = two_phase_word(dryness)
             cp = cv = None
             speed_of_sound = None
         else:
@@ -458,12 +455,7 @@ class SteamState:
             cp = float(st.cp) * 1e3
             cv = float(st.cv) * 1e3
             speed_of_sound = float(st.w)
-            if pressure > CRITICAL_PRESSURE:
-                phase = "supercritical" if temperature > CRITICAL_TEMPERATURE else "compressed liquid"
-            elif temperature > CRITICAL_TEMPERATURE:
-                phase = "superheated vapour"
-            else:
-                phase = "superheated vapour" if temperature > _if97._TSat_P(st.P) else "compressed liquid"
+            phase, _ = _if97_phase_region(pressure, temperature)
         return cls(
             pressure=pressure, temperature=temperature, enthalpy=float(st.h) * 1e3,
             entropy=float(st.s) * 1e3, density=float(st.rho), dryness=dryness, phase=phase,

@@ -3,10 +3,10 @@
 The scalar :class:`~steamcalc.steam.SteamState` uses the ``iapws`` package, the reference.
 This module evaluates the same formulation, IAPWS-IF97, through CoolProp's IF97 backend
 (compiled code): :func:`states_ph` and friends take arrays, and :func:`fast_properties`
-switches the SteamState constructors to it for a block of code. CoolProp's IF97 backward
-equations are used as starting values and refined on the forward basic equations by
-Newton steps, so results agree with the iapws path to about 1e-9 relative (see
-``tests/test_steam_arrays.py``).
+switches the SteamState constructors to it for a block of code. Starting values (CoolProp's
+backward equations for one state, a table of the forward equations for arrays) are refined
+on the forward basic equations by Newton steps, so results agree with the iapws path to
+about 1e-9 relative (see ``tests/test_steam_arrays.py``).
 """
 
 from __future__ import annotations
@@ -64,13 +64,22 @@ def fast_enabled():
     return _FAST[0]
 
 
+def fast_bounds(pressure, key, low_temperature, high_temperature):
+    """Enthalpy (``key="h"``) or entropy (``"s"``) at a pressure at two temperatures, for range checks."""
+    st = _abstract_state()
+    values = []
+    for temperature in (low_temperature, high_temperature):
+        st.update(_cp.PT_INPUTS, pressure, temperature)
+        values.append(st.hmass() if key == "h" else st.smass())
+    return tuple(values)
+
+
 def _single_phase(cls, pressure, temperature):
-    from .steam import CRITICAL_PRESSURE, CRITICAL_TEMPERATURE, _if97_phase_region
+    from .steam import _if97_phase_region
 
     st = _abstract_state()
     st.update(_cp.PT_INPUTS, pressure, temperature)
     phase, region = _if97_phase_region(pressure, temperature)
-    del CRITICAL_PRESSURE, CRITICAL_TEMPERATURE
     return cls(pressure=pressure, temperature=temperature, enthalpy=st.hmass(), entropy=st.smass(),
                density=st.rhomass(), dryness=None, phase=phase, region=region, cp=st.cpmass(),
                speed_of_sound=st.speed_sound(), cv=st.cvmass())
@@ -82,7 +91,9 @@ def _saturated(cls, pressure=None, temperature=None, dryness=0.0):
         st.update(_cp.PQ_INPUTS, pressure, dryness)
     else:
         st.update(_cp.QT_INPUTS, dryness, temperature)
-    phase = "saturated liquid" if dryness == 0.0 else "saturated vapour" if dryness == 1.0 else "wet"
+    from .steam import two_phase_word
+
+    phase = two_phase_word(dryness)
     return cls(pressure=st.p(), temperature=st.T(), enthalpy=st.hmass(), entropy=st.smass(), density=st.rhomass(),
                dryness=float(dryness), phase=phase, region=4, cp=None, speed_of_sound=None, cv=None)
 
@@ -100,8 +111,9 @@ def fast_from_T_dryness(cls, temperature, dryness):
 
 
 def _from_p_and(cls, pressure, value, attribute, backward_inputs, slope):
-    from .steam import CRITICAL_PRESSURE
+    from .steam import CRITICAL_PRESSURE, two_phase_word
 
+    t_sat = None
     if pressure < CRITICAL_PRESSURE:
         liquid = _saturated(cls, pressure=pressure, dryness=0.0)
         vapour = _saturated(cls, pressure=pressure, dryness=1.0)
@@ -112,14 +124,19 @@ def _from_p_and(cls, pressure, value, attribute, backward_inputs, slope):
                        enthalpy=liquid.enthalpy + x * (vapour.enthalpy - liquid.enthalpy),
                        entropy=liquid.entropy + x * (vapour.entropy - liquid.entropy),
                        density=1.0 / (1.0 / liquid.density + x * (1.0 / vapour.density - 1.0 / liquid.density)),
-                       dryness=x, phase="saturated liquid" if x == 0.0 else "saturated vapour" if x == 1.0 else "wet",
-                       region=4, cp=None, speed_of_sound=None, cv=None)
+                       dryness=x, phase=two_phase_word(x), region=4, cp=None, speed_of_sound=None, cv=None)
+        t_sat = liquid.temperature
+        vapour_side = value > high
     st = _abstract_state()
     if backward_inputs == "ph":
         st.update(_cp.HmassP_INPUTS, value, pressure)
     else:
         st.update(_cp.PSmass_INPUTS, pressure, value)
     temperature = st.T()
+    if t_sat is not None:
+        # The backward equations are a few mK off: keep the start on its own side of saturation,
+        # so that the forward equations evaluated at it belong to the right region.
+        temperature = max(temperature, t_sat + 1e-6) if vapour_side else min(temperature, t_sat - 1e-6)
     for _ in range(_NEWTON_STEPS):
         state = _single_phase(cls, pressure, temperature)
         temperature += (value - getattr(state, attribute)) / slope(state)
@@ -152,22 +169,22 @@ class StateArrays:
     phase: np.ndarray
 
 
+def _refuse_outside(name, values, low, high, scale, unit, where=""):
+    """Raise for the first element outside [low, high] (NaN included), naming its index."""
+    bad = np.flatnonzero(~((values >= low) & (values <= high)))
+    if bad.size:
+        i = int(bad[0])
+        low_i, high_i = (np.broadcast_to(low, values.shape)[i], np.broadcast_to(high, values.shape)[i])
+        raise OutOfRangeError(f"{name}[{i}] of {values[i] / scale:.6g} {unit} is outside IAPWS-IF97{where}",
+                              field=name, value=float(values[i] / scale),
+                              limits=(float(low_i / scale), float(high_i / scale), unit))
+
+
 def _check_arrays(pressure, other, name, low_fn, high_fn, unit):
     from .steam import MAX_PRESSURE, MIN_PRESSURE
 
-    bad = np.flatnonzero(~((pressure >= MIN_PRESSURE) & (pressure <= MAX_PRESSURE)))
-    if bad.size:
-        i = int(bad[0])
-        raise OutOfRangeError(f"pressure[{i}] of {pressure[i] / 1e5:.6g} bar(a) is outside IAPWS-IF97",
-                              field="pressure", value=float(pressure[i] / 1e5),
-                              limits=(MIN_PRESSURE / 1e5, MAX_PRESSURE / 1e5, "bar(a)"))
-    low, high = low_fn(pressure), high_fn(pressure)
-    bad = np.flatnonzero(~((other >= low) & (other <= high)))
-    if bad.size:
-        i = int(bad[0])
-        raise OutOfRangeError(f"{name}[{i}] is outside IAPWS-IF97 at {pressure[i] / 1e5:.6g} bar(a)",
-                              field=name, value=float(other[i] / 1e3),
-                              limits=(float(low[i] / 1e3), float(high[i] / 1e3), unit))
+    _refuse_outside("pressure", pressure, MIN_PRESSURE, MAX_PRESSURE, 1e5, "bar(a)")
+    _refuse_outside(name, other, low_fn(pressure), high_fn(pressure), 1e3, unit)
 
 
 def _props(output, a, b, c, d):
@@ -200,7 +217,7 @@ def _states_from_p_and(pressure, value, key, name, unit):
     liquid_side = sub & (v < liquid_v)
     temperature[vapour_side] = np.maximum(temperature[vapour_side], t_sat[vapour_side] + 1e-6)
     temperature[liquid_side] = np.minimum(temperature[liquid_side], t_sat[liquid_side] - 1e-6)
-    # Newton steps on the forward equations remove the backward equations' few-mK error.
+    # Newton steps on the forward equations remove the table's interpolation error.
     for _ in range(_NEWTON_STEPS):
         if not single.any():
             break
@@ -335,11 +352,7 @@ def saturation_arrays(pressure):
     from .steam import CRITICAL_PRESSURE, MIN_PRESSURE
 
     p = np.atleast_1d(np.asarray(pressure, dtype=float))
-    bad = np.flatnonzero(~((p >= MIN_PRESSURE) & (p <= CRITICAL_PRESSURE)))
-    if bad.size:
-        i = int(bad[0])
-        raise OutOfRangeError(f"pressure[{i}] is outside the saturation range", field="pressure",
-                              value=float(p[i] / 1e5), limits=(MIN_PRESSURE / 1e5, CRITICAL_PRESSURE / 1e5, "bar(a)"))
+    _refuse_outside("pressure", p, MIN_PRESSURE, CRITICAL_PRESSURE, 1e5, "bar(a)", " saturation")
     zeros, ones = np.zeros_like(p), np.ones_like(p)
     return {"h_f": _props("H", "P", p, "Q", zeros), "h_g": _props("H", "P", p, "Q", ones),
             "s_f": _props("S", "P", p, "Q", zeros), "s_g": _props("S", "P", p, "Q", ones),

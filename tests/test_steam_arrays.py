@@ -85,3 +85,16 @@ def test_fast_engine_wet_states():
         sat = SteamState.from_p_dryness(3.5e5, 1.0)
     assert fast.phase == "wet" and fast.dryness == pytest.approx(ref.dryness, rel=1e-9)
     assert sat.enthalpy == pytest.approx(SteamState.from_p_dryness(3.5e5, 1.0).enthalpy, rel=1e-9)
+
+
+@pytest.mark.parametrize("offset", [1.0, -1.0])
+def test_fast_engine_just_off_the_saturation_line(offset):
+    # A start on the wrong side of saturation would put the Newton steps in the wrong region.
+    h_g = SteamState.from_p_dryness(3.5e5, 1.0).enthalpy
+    h_f = SteamState.from_p_dryness(3.5e5, 0.0).enthalpy
+    h = h_g + offset if offset > 0 else h_f + offset
+    ref = SteamState.from_ph(3.5e5, h)
+    with fast_properties():
+        fast = SteamState.from_ph(3.5e5, h)
+    assert fast.phase == ref.phase
+    assert fast.temperature == pytest.approx(ref.temperature, abs=1e-6)
