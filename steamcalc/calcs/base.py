@@ -26,7 +26,7 @@ _RAW_KINDS = ("flag", "nominal_size", "text")
 STATUSES = ("pass", "warn", "fail")
 
 
-def input_field(kind, label, help, *, example, section=None, default=None):
+def input_field(kind, label, help, *, example, section=None, default=None, required=False, positive=False):
     """A dataclass field for an ``Inputs`` class, with the metadata forms and parsers use.
 
     Parameters
@@ -42,19 +42,61 @@ def input_field(kind, label, help, *, example, section=None, default=None):
     section : str, optional
         Sub-table of ``[inputs]`` the key lives in (``"desuperheater"``).
     default : float, optional
-        Value used when the key is absent; None makes the input optional or required
-        as the calculation decides.
+        Value used when the key is absent.
+    required : bool
+        The input must be given (:func:`check_fields` refuses None).
+    positive : bool
+        When given, the value must be above zero.
     """
     if kind not in INPUT_KINDS:
         raise ValueError(f"unknown input kind {kind!r}")
     return field(default=default, metadata={
         "kind": kind, "label": label, "help": help, "example": example, "section": section,
+        "required": required, "positive": positive,
     })
 
 
 def input_fields(inputs_class):
     """The fields of an Inputs class, in declaration order."""
     return dataclasses.fields(inputs_class)
+
+
+def field_path(f):
+    """The case-file address of an input field: ``name``, or ``section.name`` in a sub-table."""
+    section = f.metadata["section"]
+    return f"{section}.{f.name}" if section else f.name
+
+
+def check_fields(inputs):
+    """The checks every Inputs class shares: required fields given, positive fields above zero.
+
+    Called first in each ``Inputs.__post_init__``; the kind's own checks follow.
+    """
+    for f in input_fields(type(inputs)):
+        value = getattr(inputs, f.name)
+        where = f"[inputs.{f.metadata['section']}]" if f.metadata["section"] else "[inputs]"
+        if value is None:
+            if f.metadata["required"]:
+                raise InputError("is required", field=field_path(f), fix=f"add {f.name} to {where}")
+            continue
+        if f.metadata["positive"] and value <= 0.0:
+            raise InputError(f"{f.metadata['label'].lower()} must be above zero", field=field_path(f),
+                             fix=f"give a {f.metadata['label'].lower()} above zero")
+
+
+def bar_a(pressure):
+    """Absolute pressure (Pa) as steps and checks show it."""
+    return f"{pressure / 1e5:.4g} bar(a)"
+
+
+def deg_c(temperature):
+    """Temperature (K) as steps and checks show it."""
+    return f"{temperature - 273.15:.2f} °C"
+
+
+def kj_kg(enthalpy):
+    """Specific enthalpy (J/kg) as steps and checks show it."""
+    return f"{enthalpy / 1e3:.2f} kJ/kg"
 
 
 def _unit_kind(kind):
@@ -147,7 +189,11 @@ class ResultValue:
 
 @dataclass
 class Result:
-    """What a calculation returns. Built inside ``calculate()``; treated as read-only after."""
+    """What a calculation returns. Built inside ``calculate()``; treated as read-only after.
+
+    ``states`` keeps the SteamStates the calculation found, by name, for charts; it is not
+    part of the record.
+    """
 
     values: dict = field(default_factory=dict)
     steps: list = field(default_factory=list)
@@ -156,6 +202,7 @@ class Result:
     references: list = field(default_factory=list)
     warnings: list = field(default_factory=list)
     cautions: list = field(default_factory=list)
+    states: dict = field(default_factory=dict)
 
     def add(self, key, label, value, unit=""):
         """Add a result value. A float must be finite: a NaN or infinity is a bug, not a result."""

@@ -16,7 +16,7 @@ from dataclasses import dataclass
 from ..errors import InputError, OutOfRangeError
 from ..steam import REFERENCE as IF97_REFERENCE
 from ..steam import SteamState, saturation_pressure, saturation_temperature
-from .base import Result, input_field
+from .base import Result, check_fields, input_field
 
 KIND = "exchanger"
 TITLE = "Steam-heated exchanger: duty, area and stall"
@@ -55,25 +55,27 @@ class Inputs:
 
     steam_pressure: float = input_field(
         "pressure", "Steam pressure", "Steam pressure in the exchanger's steam space at design load.",
-        example="header:MP")
+        example="header:MP", required=True)
     process_inlet_temperature: float = input_field(
-        "temperature", "Process inlet temperature", "Process liquid entering.", example="55 degC")
+        "temperature", "Process inlet temperature", "Process liquid entering.", example="55 degC",
+        required=True)
     process_outlet_temperature: float = input_field(
-        "temperature", "Process outlet temperature", "Process liquid leaving.", example="85 degC")
+        "temperature", "Process outlet temperature", "Process liquid leaving.", example="85 degC",
+        required=True)
     process_flow: float | None = input_field(
         "mass_flow", "Process flow", "Mass flow of the process liquid (or give process_volume_flow).",
-        example="12 t/h")
+        example="12 t/h", positive=True)
     process_volume_flow: float | None = input_field(
         "volume_flow", "Process volume flow", "Volume flow of the process liquid, in place of process_flow.",
-        example="12 m^3/h")
+        example="12 m^3/h", positive=True)
     process_density: float | None = input_field(
         "density", "Process density", "Density for a volume flow (water: from IF97 at the inlet).",
-        example="1030 kg/m^3")
+        example="1030 kg/m^3", positive=True)
     process_fluid: str | None = input_field(
         "text", "Process fluid", "'water' (IF97 properties) unless process_cp is given.", example="water")
     process_cp: float | None = input_field(
         "specific_heat", "Process specific heat", "Mean specific heat of a process liquid other than water.",
-        example="3.9 kJ/(kg K)")
+        example="3.9 kJ/(kg K)", positive=True)
     process_pressure: float | None = input_field(
         "pressure", "Process pressure", "Process-side pressure (for water properties; default well above "
         "boiling).", example="4 bar(g)")
@@ -90,27 +92,22 @@ class Inputs:
         "fraction", "Heat loss", "Heat lost from the exchanger, as a fraction of the duty.", example="0.02")
     overall_u: float | None = input_field(
         "heat_transfer_coefficient", "Overall U (clean)", "Overall heat-transfer coefficient, clean.",
-        example="1.8 kW/(m^2 K)")
+        example="1.8 kW/(m^2 K)", positive=True)
     fouling_resistance: float | None = input_field(
         "fouling_resistance", "Fouling resistance", "Total fouling resistance added to 1/U.",
         example="0.1 m^2 K/kW")
     installed_area: float | None = input_field(
-        "area", "Installed area", "Heat-transfer area of the exchanger as installed.", example="2.6 m^2")
+        "area", "Installed area", "Heat-transfer area of the exchanger as installed.", example="2.6 m^2",
+        positive=True)
     condensate_back_pressure: float | None = input_field(
         "pressure", "Condensate back pressure", "Pressure the condensate drains against (trap outlet, lift, "
         "return main).", example="0.8 bar(g)")
 
     def __post_init__(self):
-        for name in ("steam_pressure", "process_inlet_temperature", "process_outlet_temperature"):
-            if getattr(self, name) is None:
-                raise InputError("is required", field=name, fix=f"add {name} to [inputs]")
+        check_fields(self)
         if (self.process_flow is None) == (self.process_volume_flow is None):
             raise InputError("give process_flow (mass) or process_volume_flow (volume), exactly one",
                              field="process_flow", fix="e.g. process_flow = \"12 t/h\"")
-        for name in ("process_flow", "process_volume_flow", "process_density", "process_cp"):
-            value = getattr(self, name)
-            if value is not None and value <= 0.0:
-                raise InputError("must be above zero", field=name, value=value)
         if self.process_outlet_temperature <= self.process_inlet_temperature:
             raise InputError(
                 f"process outlet {self.process_outlet_temperature - 273.15:.2f} °C is not above the inlet "
@@ -132,11 +129,6 @@ class Inputs:
         if self.heat_loss is not None and self.heat_loss >= 0.5:
             raise InputError("a heat loss of half the duty or more is not an allowance", field="heat_loss",
                              limits=(0, 0.5, ""))
-        for name in ("overall_u", "installed_area"):
-            value = getattr(self, name)
-            if value is not None and value <= 0.0:
-                raise InputError("must be above zero", field=name, value=value,
-                                 fix="a heat-transfer coefficient and an area are positive")
         if self.fouling_resistance is not None and self.fouling_resistance < 0.0:
             raise InputError("a fouling resistance cannot be negative", field="fouling_resistance")
         if self.condensate_subcooling is not None and self.condensate_subcooling < 0.0:

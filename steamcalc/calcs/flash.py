@@ -18,7 +18,7 @@ from ..equipment.piping import (
 from ..errors import InputError, OutOfRangeError
 from ..steam import REFERENCE as IF97_REFERENCE
 from ..steam import SteamState, saturation_temperature
-from .base import Result, input_field
+from .base import Result, bar_a, check_fields, input_field, kj_kg
 from .economics import annual_fuel_energy, annual_value, missing_site_data
 
 KIND = "flash"
@@ -56,9 +56,10 @@ class Inputs:
 
     condensate_pressure: float = input_field(
         "pressure", "Condensate pressure", "Pressure of the hot condensate before it flashes.",
-        example="header:MP")
+        example="header:MP", required=True)
     condensate_flow: float = input_field(
-        "mass_flow", "Condensate flow", "Flow of hot condensate to the flash vessel.", example="3.2 t/h")
+        "mass_flow", "Condensate flow", "Flow of hot condensate to the flash vessel.", example="3.2 t/h",
+        required=True, positive=True)
     condensate_temperature: float | None = input_field(
         "temperature", "Condensate temperature",
         "Leave empty for condensate saturated at its pressure; give it when subcooled.", example="170 degC")
@@ -75,10 +76,10 @@ class Inputs:
         example="false")
     k_factor: float | None = input_field(
         "velocity", "Souders–Brown K", "Allowable vapour load factor of the vessel.", example="0.06 m/s",
-        section="vessel")
+        section="vessel", positive=True)
     vapour_velocity: float | None = input_field(
         "velocity", "Allowable vapour velocity", "Up-flow velocity limit, in place of K.", example="2.5 m/s",
-        section="vessel")
+        section="vessel", positive=True)
     inlet_nozzle: str | None = input_field(
         "nominal_size", "Inlet line size", "Nominal size of the condensate inlet line.", example="DN50",
         section="vessel")
@@ -90,12 +91,7 @@ class Inputs:
         example="DN40", section="vessel")
 
     def __post_init__(self):
-        for name in ("condensate_pressure", "condensate_flow"):
-            if getattr(self, name) is None:
-                raise InputError("is required", field=name, fix=f"add {name} to [inputs]")
-        if self.condensate_flow <= 0.0:
-            raise InputError("condensate flow must be above zero", field="condensate_flow",
-                             fix="give a positive flow")
+        check_fields(self)
         if (self.flash_pressure is None) == (self.stages is None):
             raise InputError("give flash_pressure or stages (exactly one)",
                              field="stages" if self.stages is not None else "flash_pressure",
@@ -116,10 +112,6 @@ class Inputs:
             raise InputError("steam demand cannot be negative", field="lp_demand")
         if self.k_factor is not None and self.vapour_velocity is not None:
             raise InputError("give k_factor or vapour_velocity, not both", field="vessel.vapour_velocity")
-        for name in ("k_factor", "vapour_velocity"):
-            value = getattr(self, name)
-            if value is not None and value <= 0.0:
-                raise InputError("must be above zero", field=f"vessel.{name}")
 
     @property
     def stage_pressures(self):
@@ -127,12 +119,6 @@ class Inputs:
         return tuple(self.stages) if self.stages is not None else (self.flash_pressure,)
 
 
-def _bar(p):
-    return f"{p / 1e5:.4g} bar(a)"
-
-
-def _kj(h):
-    return f"{h / 1e3:.2f} kJ/kg"
 
 
 def _inlet_state(inputs):
@@ -143,7 +129,7 @@ def _inlet_state(inputs):
     t = inputs.condensate_temperature
     if t > t_sat + 1e-6:
         raise InputError(
-            f"condensate at {t - 273.15:.2f} °C is above saturation ({t_sat - 273.15:.2f} °C) at {_bar(p)}: "
+            f"condensate at {t - 273.15:.2f} °C is above saturation ({t_sat - 273.15:.2f} °C) at {bar_a(p)}: "
             "that is steam, not condensate", field="condensate_temperature",
             fix="check the temperature and the pressure basis, or leave the temperature empty for saturated")
     if abs(t - t_sat) <= 1e-6:
@@ -161,12 +147,12 @@ def _flash_stage(index, pressure, enthalpy_in, flow_in, result, label):
     if enthalpy_in <= liquid.enthalpy:
         fraction = 0.0
         result.step(f"{label}: flash fraction", "x = 0 when h_in ≤ h_f(p_flash): no flash",
-                    f"h_in = {_kj(enthalpy_in)} ≤ h_f({_bar(pressure)}) = {_kj(liquid.enthalpy)}", 0.0)
+                    f"h_in = {kj_kg(enthalpy_in)} ≤ h_f({bar_a(pressure)}) = {kj_kg(liquid.enthalpy)}", 0.0)
         residual = SteamState.from_ph(pressure, enthalpy_in)
     else:
         fraction = (enthalpy_in - liquid.enthalpy) / h_fg
         result.step(f"{label}: flash fraction", "x = (h_in − h_f(p_flash)) / h_fg(p_flash)",
-                    f"x = ({_kj(enthalpy_in)} − {_kj(liquid.enthalpy)}) / {_kj(h_fg)}", fraction)
+                    f"x = ({kj_kg(enthalpy_in)} − {kj_kg(liquid.enthalpy)}) / {kj_kg(h_fg)}", fraction)
         residual = liquid
     steam_flow = flow_in * fraction
     residual_flow = flow_in - steam_flow
@@ -252,7 +238,7 @@ def calculate(inputs, site):
     result.add("condensate_flow", "Condensate flow", flow * 3600, "kg/h")
     result.step("Condensate enthalpy",
                 "h_in = h_f(p_c)  [saturated]" if inputs.condensate_temperature is None else "h_in = h(p_c, T_c)",
-                f"h_in at {_bar(inputs.condensate_pressure)}, {inlet.temperature - 273.15:.2f} °C",
+                f"h_in at {bar_a(inputs.condensate_pressure)}, {inlet.temperature - 273.15:.2f} °C",
                 inlet.enthalpy / 1e3, "kJ/kg")
 
     stages = []
@@ -313,7 +299,7 @@ def _recovered_heat(inputs, site, stages, total_flash, result):
     makeup = SteamState.from_pT(max(site.atmospheric_pressure, 1.01325e5), site.makeup_water_temperature)
     heat = sum(s["steam_flow"] * (s["vapour"].enthalpy - makeup.enthalpy) for s in stages)
     result.step("Heat in the flash steam", "Q = Σ m_flash · (h_g(p_flash) − h_makeup)",
-                f"h_makeup = {_kj(makeup.enthalpy)} at {site.makeup_water_temperature - 273.15:.1f} °C",
+                f"h_makeup = {kj_kg(makeup.enthalpy)} at {site.makeup_water_temperature - 273.15:.1f} °C",
                 heat / 1e3, "kW")
     label = "Heat in the flash steam, vented (the loss)" if inputs.vented else "Recoverable heat in the flash steam"
     result.add("recovered_heat_rate", label, heat / 1e3, "kW")

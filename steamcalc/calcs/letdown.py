@@ -15,7 +15,7 @@ from dataclasses import dataclass
 from ..errors import InputError, OutOfRangeError
 from ..steam import REFERENCE as IF97_REFERENCE
 from ..steam import SteamState, saturation_temperature
-from .base import Result, input_field
+from .base import Result, bar_a, check_fields, deg_c, input_field, kj_kg
 from .letdown_equipment import line_section, power_section, valve_section
 
 KIND = "letdown"
@@ -56,12 +56,13 @@ class Inputs:
 
     inlet_pressure: float = input_field(
         "pressure", "Inlet pressure", "Steam pressure upstream of the let-down valve.",
-        example="16 bar(g)")
+        example="16 bar(g)", required=True)
     outlet_pressure: float = input_field(
         "pressure", "Outlet pressure", "Pressure downstream of the station (a site header or a pressure).",
-        example="header:LP")
+        example="header:LP", required=True)
     mass_flow: float = input_field(
-        "mass_flow", "Steam flow", "Steam flow through the let-down valve.", example="4.5 t/h")
+        "mass_flow", "Steam flow", "Steam flow through the let-down valve.", example="4.5 t/h", required=True,
+        positive=True)
     inlet_temperature: float | None = input_field(
         "temperature", "Inlet temperature", "Inlet steam temperature (superheated steam).",
         example="230 degC")
@@ -88,18 +89,19 @@ class Inputs:
         "mass_flow", "Maximum flow", "Largest flow the valve must pass (sizing case).", example="5.5 t/h",
         section="valve")
     min_flow: float | None = input_field(
-        "mass_flow", "Minimum flow", "Smallest controlled flow.", example="1.0 t/h", section="valve")
+        "mass_flow", "Minimum flow", "Smallest controlled flow.", example="1.0 t/h", section="valve",
+        positive=True)
     fl: float | None = input_field(
         "fraction", "FL", "Liquid pressure recovery factor of the valve (maker's data).", example="0.90",
-        section="valve")
+        section="valve", positive=True)
     xt: float | None = input_field(
         "fraction", "xT", "Pressure differential ratio factor at choked flow (maker's data).", example="0.70",
-        section="valve")
+        section="valve", positive=True)
     fd: float | None = input_field(
         "number", "Fd", "Valve style modifier (maker's data).", example="1.0", section="valve")
     rated_kv: float | None = input_field(
         "flow_coefficient", "Rated Kv (Kvs)", "Kv of the selected valve at full travel.", example="40 m^3/h",
-        section="valve")
+        section="valve", positive=True)
     characteristic: str | None = input_field(
         "text", "Characteristic", "Inherent characteristic: equal-percentage or linear.",
         example="equal-percentage", section="valve")
@@ -120,23 +122,17 @@ class Inputs:
         "text", "Pipe schedule", "ASME B36.10M schedule of the lines.", example="40", section="lines")
     max_velocity_wet: float | None = input_field(
         "velocity", "Velocity limit, saturated/wet", "Line velocity limit for saturated or wet steam.",
-        example="30 m/s", section="lines")
+        example="30 m/s", section="lines", positive=True)
     max_velocity_superheated: float | None = input_field(
         "velocity", "Velocity limit, superheated", "Line velocity limit for superheated steam.",
-        example="45 m/s", section="lines")
+        example="45 m/s", section="lines", positive=True)
     isentropic_efficiency: float | None = input_field(
         "fraction", "Turbine isentropic efficiency", "Of a back-pressure turbine in place of the valve.",
-        example="0.55", section="turbine")
+        example="0.55", section="turbine", positive=True)
 
     def __post_init__(self):
+        check_fields(self)
         self._check_valve_inputs()
-        for name in ("inlet_pressure", "outlet_pressure", "mass_flow"):
-            if getattr(self, name) is None:
-                raise InputError("is required", field=name,
-                                 fix=f"add {name} to [inputs]")
-        if self.mass_flow <= 0.0:
-            raise InputError(f"steam flow must be above zero, got {self.mass_flow * 3600:g} kg/h",
-                             field="mass_flow", fix="give a positive flow")
         inlet_given = [n for n in ("inlet_temperature", "inlet_superheat", "inlet_dryness")
                        if getattr(self, n) is not None]
         if len(inlet_given) != 1:
@@ -164,29 +160,17 @@ class Inputs:
                              fix="add target_superheat or target_temperature, or remove [inputs.desuperheater]")
 
     def _check_valve_inputs(self):
-        if self.fl is not None and self.fl <= 0.0:
-            raise InputError("FL must lie above 0 and at most 1", field="valve.fl", value=self.fl, limits=(0, 1, ""))
-        if self.xt is not None and self.xt <= 0.0:
-            raise InputError("xT must lie above 0 and at most 1", field="valve.xt", value=self.xt, limits=(0, 1, ""))
         if self.characteristic is not None and self.characteristic not in ("linear", "equal-percentage"):
             raise InputError("the characteristic is 'linear' or 'equal-percentage'", field="valve.characteristic",
                              value=self.characteristic)
         if self.rangeability is not None and self.rangeability <= 1.0:
             raise InputError("rangeability must be above 1", field="valve.rangeability", value=self.rangeability)
-        if self.rated_kv is not None and self.rated_kv <= 0.0:
-            raise InputError("the rated Kv must be above zero", field="valve.rated_kv")
-        if self.isentropic_efficiency is not None and self.isentropic_efficiency <= 0.0:
-            raise InputError("efficiency must lie above 0 and at most 1", field="turbine.isentropic_efficiency")
-        for name in ("max_velocity_wet", "max_velocity_superheated"):
-            if getattr(self, name) is not None and getattr(self, name) <= 0.0:
-                raise InputError("a velocity limit must be above zero", field=f"lines.{name}")
-        if self.mass_flow is not None:
-            if self.max_flow is not None and self.max_flow < self.mass_flow:
-                raise InputError("the maximum flow is below the normal flow", field="valve.max_flow",
-                                 fix="max_flow ≥ mass_flow ≥ min_flow")
-            if self.min_flow is not None and not 0.0 < self.min_flow <= self.mass_flow:
-                raise InputError("the minimum flow must be above zero and at most the normal flow",
-                                 field="valve.min_flow", fix="max_flow ≥ mass_flow ≥ min_flow > 0")
+        if self.max_flow is not None and self.max_flow < self.mass_flow:
+            raise InputError("the maximum flow is below the normal flow", field="valve.max_flow",
+                             fix="max_flow ≥ mass_flow ≥ min_flow")
+        if self.min_flow is not None and self.min_flow > self.mass_flow:
+            raise InputError("the minimum flow is above the normal flow", field="valve.min_flow",
+                             fix="max_flow ≥ mass_flow ≥ min_flow > 0")
 
     @property
     def desuperheating(self):
@@ -194,16 +178,7 @@ class Inputs:
         return self.target_superheat is not None or self.target_temperature is not None
 
 
-def _bar(p):
-    return f"{p / 1e5:.4g} bar(a)"
 
-
-def _degc(t):
-    return f"{t - 273.15:.2f} °C"
-
-
-def _kj(h):
-    return f"{h / 1e3:.2f} kJ/kg"
 
 
 def _phase_word(state):
@@ -237,26 +212,26 @@ def _inlet_state_from(inputs, result):
     if inputs.inlet_temperature is not None:
         if inputs.inlet_temperature < t_sat - 1e-6:
             raise InputError(
-                f"inlet temperature {_degc(inputs.inlet_temperature)} is below saturation "
-                f"({_degc(t_sat)}) at {_bar(p1)}: that is liquid, not steam",
+                f"inlet temperature {deg_c(inputs.inlet_temperature)} is below saturation "
+                f"({deg_c(t_sat)}) at {bar_a(p1)}: that is liquid, not steam",
                 field="inlet_temperature", fix="check the pressure basis (bar(g)/bar(a)) and the temperature, "
                 "or give inlet_dryness for wet steam")
         state = SteamState.from_pT(p1, inputs.inlet_temperature)
         result.step("Inlet enthalpy", "h1 = h(p1, T1)  [IF97]",
-                    f"h1 = h({_bar(p1)}, {_degc(state.temperature)})", state.enthalpy / 1e3, "kJ/kg")
+                    f"h1 = h({bar_a(p1)}, {deg_c(state.temperature)})", state.enthalpy / 1e3, "kJ/kg")
     elif inputs.inlet_superheat is not None:
         state = SteamState.from_pT(p1, t_sat + inputs.inlet_superheat)
         result.step("Inlet temperature", "T1 = T_sat(p1) + ΔT_sh,1",
-                    f"T1 = {_degc(t_sat)} + {inputs.inlet_superheat:.2f} K", state.temperature - 273.15, "degC")
+                    f"T1 = {deg_c(t_sat)} + {inputs.inlet_superheat:.2f} K", state.temperature - 273.15, "degC")
         result.step("Inlet enthalpy", "h1 = h(p1, T1)  [IF97]",
-                    f"h1 = h({_bar(p1)}, {_degc(state.temperature)})", state.enthalpy / 1e3, "kJ/kg")
+                    f"h1 = h({bar_a(p1)}, {deg_c(state.temperature)})", state.enthalpy / 1e3, "kJ/kg")
     else:
         state = SteamState.from_p_dryness(p1, inputs.inlet_dryness)
         sat_liquid = SteamState.from_p_dryness(p1, 0.0)
         sat_vapour = SteamState.from_p_dryness(p1, 1.0)
         result.step("Inlet enthalpy", "h1 = h_f(p1) + x1·(h_g(p1) − h_f(p1))",
-                    f"h1 = {_kj(sat_liquid.enthalpy)} + {inputs.inlet_dryness:.4f} × "
-                    f"({_kj(sat_vapour.enthalpy)} − {_kj(sat_liquid.enthalpy)})",
+                    f"h1 = {kj_kg(sat_liquid.enthalpy)} + {inputs.inlet_dryness:.4f} × "
+                    f"({kj_kg(sat_vapour.enthalpy)} − {kj_kg(sat_liquid.enthalpy)})",
                     state.enthalpy / 1e3, "kJ/kg")
     return state, t_sat
 
@@ -329,7 +304,7 @@ def calculate(inputs, site):
     p1, p2, flow = inputs.inlet_pressure, inputs.outlet_pressure, inputs.mass_flow
     if p2 >= p1:
         raise InputError(
-            f"outlet pressure {_bar(p2)} is not below the inlet pressure {_bar(p1)}",
+            f"outlet pressure {bar_a(p2)} is not below the inlet pressure {bar_a(p1)}",
             field="outlet_pressure", fix="a let-down lowers the pressure: check the pressures and their basis")
 
     inlet, t_sat1 = _inlet_state(inputs, result)
@@ -355,19 +330,19 @@ def calculate(inputs, site):
     except OutOfRangeError as exc:
         raise exc.for_field("outlet_pressure") from None
     result.step("Throttling", "h2 = h1  (Q = 0, W = 0, Δke = Δpe = 0)",
-                f"h2 = {_kj(inlet.enthalpy)}", throttled.enthalpy / 1e3, "kJ/kg")
+                f"h2 = {kj_kg(inlet.enthalpy)}", throttled.enthalpy / 1e3, "kJ/kg")
     result.step("Outlet saturation temperature", "T_sat,2 = T_sat(p2)  [IF97 region 4]",
-                f"T_sat({_bar(p2)})", t_sat2 - 273.15, "degC")
+                f"T_sat({bar_a(p2)})", t_sat2 - 273.15, "degC")
     result.step("Throttled temperature", "T2 = T(p2, h2)  [IF97]",
-                f"T2 = T({_bar(p2)}, {_kj(throttled.enthalpy)})", throttled.temperature - 273.15, "degC")
+                f"T2 = T({bar_a(p2)}, {kj_kg(throttled.enthalpy)})", throttled.temperature - 273.15, "degC")
     if throttled.phase == "wet":
         liquid, vapour = SteamState.from_p_dryness(p2, 0.0), SteamState.from_p_dryness(p2, 1.0)
         result.step("Throttled dryness fraction", "x2 = (h2 − h_f(p2)) / (h_g(p2) − h_f(p2))",
-                    f"x2 = ({_kj(throttled.enthalpy)} − {_kj(liquid.enthalpy)}) / "
-                    f"({_kj(vapour.enthalpy)} − {_kj(liquid.enthalpy)})", throttled.dryness)
+                    f"x2 = ({kj_kg(throttled.enthalpy)} − {kj_kg(liquid.enthalpy)}) / "
+                    f"({kj_kg(vapour.enthalpy)} − {kj_kg(liquid.enthalpy)})", throttled.dryness)
     else:
         result.step("Throttled superheat", "ΔT_sh,2 = T2 − T_sat,2",
-                    f"ΔT_sh,2 = {_degc(throttled.temperature)} − {_degc(t_sat2)}", throttled.superheat, "K")
+                    f"ΔT_sh,2 = {deg_c(throttled.temperature)} − {deg_c(t_sat2)}", throttled.superheat, "K")
     result.add("outlet_saturation_temperature", "Outlet saturation temperature", t_sat2 - 273.15, "degC")
     result.add("throttled_temperature", "Temperature after the valve", throttled.temperature - 273.15, "degC")
     result.add("throttled_phase", "Phase after the valve", _phase_word(throttled))
@@ -407,27 +382,27 @@ def _desuperheat(inputs, throttled, t_sat2, result):
         target_t = t_sat2 + inputs.target_superheat
         field = "desuperheater.target_superheat"
         result.step("Desuperheat target temperature", "T3 = T_sat,2 + ΔT_sh,3",
-                    f"T3 = {_degc(t_sat2)} + {inputs.target_superheat:.2f} K", target_t - 273.15, "degC")
+                    f"T3 = {deg_c(t_sat2)} + {inputs.target_superheat:.2f} K", target_t - 273.15, "degC")
     else:
         target_t = inputs.target_temperature
         field = "desuperheater.target_temperature"
     margin = target_t - t_sat2
     if margin <= 0.0:
         raise InputError(
-            f"desuperheat target {_degc(target_t)} is not above saturation ({_degc(t_sat2)}) at {_bar(p2)}",
+            f"desuperheat target {deg_c(target_t)} is not above saturation ({deg_c(t_sat2)}) at {bar_a(p2)}",
             field=field, fix=f"set the target at least {MIN_DESUPERHEAT_MARGIN:g} K above saturation")
     water_t, water_p = inputs.water_temperature, inputs.water_pressure
     if water_t >= target_t:
         raise InputError(
-            f"spray water at {_degc(water_t)} is not colder than the target {_degc(target_t)}",
+            f"spray water at {deg_c(water_t)} is not colder than the target {deg_c(target_t)}",
             field="desuperheater.water_temperature", fix="spray water must be colder than the target steam")
     if water_p <= p2:
         raise InputError(
-            f"spray water at {_bar(water_p)} is not above the steam pressure {_bar(p2)}: it cannot be injected",
+            f"spray water at {bar_a(water_p)} is not above the steam pressure {bar_a(p2)}: it cannot be injected",
             field="desuperheater.water_pressure", fix="give the water pressure at the nozzle, above the steam")
     if water_t >= saturation_temperature(water_p) - 1e-6:
         raise InputError(
-            f"spray water at {_degc(water_t)} and {_bar(water_p)} is not liquid",
+            f"spray water at {deg_c(water_t)} and {bar_a(water_p)} is not liquid",
             field="desuperheater.water_temperature", fix="spray water must be subcooled liquid at the nozzle")
     try:
         target = SteamState.from_pT(p2, target_t)
@@ -439,9 +414,9 @@ def _desuperheat(inputs, throttled, t_sat2, result):
         raise exc.for_field("desuperheater.water_pressure" if exc.field == "pressure"
                             else "desuperheater.water_temperature") from None
     result.step("Desuperheated steam enthalpy", "h3 = h(p2, T3)  [IF97]",
-                f"h3 = h({_bar(p2)}, {_degc(target_t)})", target.enthalpy / 1e3, "kJ/kg")
+                f"h3 = h({bar_a(p2)}, {deg_c(target_t)})", target.enthalpy / 1e3, "kJ/kg")
     result.step("Spray water enthalpy", "h_w = h(p_w, T_w)  [IF97 region 1]",
-                f"h_w = h({_bar(water_p)}, {_degc(water_t)})", water.enthalpy / 1e3, "kJ/kg")
+                f"h_w = h({bar_a(water_p)}, {deg_c(water_t)})", water.enthalpy / 1e3, "kJ/kg")
     result.assumptions.extend([
         "Desuperheater: adiabatic mixing; the spray evaporates completely before the outlet",
         "Spray water enthalpy at its stated temperature and pressure at the nozzle",
@@ -457,7 +432,7 @@ def _desuperheat(inputs, throttled, t_sat2, result):
                      f"target {margin:.1f} K above saturation (at least {MIN_DESUPERHEAT_MARGIN:g} K, "
                      "common practice)")
     result.check("Spray water colder than target", "pass",
-                 f"water {_degc(water_t)} below target {_degc(target_t)}")
+                 f"water {deg_c(water_t)} below target {deg_c(target_t)}")
     pressure_margin = water_p - p2
     if pressure_margin < MIN_SPRAY_PRESSURE_MARGIN:
         result.check("Spray water pressure above steam", "warn",
@@ -472,16 +447,16 @@ def _desuperheat(inputs, throttled, t_sat2, result):
     result.add("spray_water_enthalpy", "Spray water enthalpy", water.enthalpy / 1e3, "kJ/kg")
     if throttled.enthalpy <= target.enthalpy:
         result.check("Desuperheat target reachable", "fail",
-                     f"steam after the valve ({_degc(throttled.temperature)}) is not hotter than the target "
-                     f"({_degc(target_t)}): spraying water cannot reach it; no spray flow is computed")
+                     f"steam after the valve ({deg_c(throttled.temperature)}) is not hotter than the target "
+                     f"({deg_c(target_t)}): spraying water cannot reach it; no spray flow is computed")
         result.add("spray_water_flow", "Spray water flow", 0.0, "kg/h")
         return throttled, 0.0
 
     spray = steam_flow * (throttled.enthalpy - target.enthalpy) / (target.enthalpy - water.enthalpy)
     outlet_flow = steam_flow + spray
     result.step("Spray water flow", "m_w = m_s·(h2 − h3) / (h3 − h_w)",
-                f"m_w = {steam_flow * 3600:.1f} kg/h × ({_kj(throttled.enthalpy)} − {_kj(target.enthalpy)}) / "
-                f"({_kj(target.enthalpy)} − {_kj(water.enthalpy)})", spray * 3600, "kg/h")
+                f"m_w = {steam_flow * 3600:.1f} kg/h × ({kj_kg(throttled.enthalpy)} − {kj_kg(target.enthalpy)}) / "
+                f"({kj_kg(target.enthalpy)} − {kj_kg(water.enthalpy)})", spray * 3600, "kg/h")
     result.step("Outlet steam flow", "m_3 = m_s + m_w",
                 f"m_3 = {steam_flow * 3600:.1f} kg/h + {spray * 3600:.1f} kg/h", outlet_flow * 3600, "kg/h")
     result.add("spray_water_flow", "Spray water flow", spray * 3600, "kg/h")
@@ -492,7 +467,7 @@ def _desuperheat(inputs, throttled, t_sat2, result):
     energy_out = outlet_flow * target.enthalpy
     residual = abs(energy_in - energy_out) / energy_out
     result.check("Desuperheat target reachable", "pass",
-                 f"steam after the valve {_degc(throttled.temperature)} is above the target {_degc(target_t)}")
+                 f"steam after the valve {deg_c(throttled.temperature)} is above the target {deg_c(target_t)}")
     result.check("Desuperheater energy balance closes",
                  "pass" if residual <= BALANCE_TOLERANCE else "fail",
                  f"relative residual {residual:.1e} (tolerance {BALANCE_TOLERANCE:.0e})")
