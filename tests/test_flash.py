@@ -159,3 +159,8 @@ def test_demo_flash_cases_run_and_verify(tmp_path, demo_site_dir):
     for case in ("FL-01", "FL-02"):
         assert main(["run", str(site / "cases" / f"{case}.toml")]) == 0
         assert main(["verify", str(site / "records" / f"{case}_revA.json")]) == 0
+
+
+def test_demand_check_needs_no_site_data():
+    r = calculate(Inputs(condensate_pressure=17e5, condensate_flow=1.0, flash_pressure=3.5e5, lp_demand=0.01), Site())
+    assert next(c for c in r.checks if c.name == "Flash steam within the low-pressure demand").status == "warn"

@@ -274,25 +274,30 @@ def _process_side(inputs, result):
 
 
 def _steam_states(inputs):
+    """Steam, condensate, saturated liquid and vapour at the steam pressure, and T_sat."""
     p = inputs.steam_pressure
     t_sat = saturation_temperature(p)
     try:
+        saturated_liquid = SteamState.from_p_dryness(p, 0.0)
+        saturated_vapour = SteamState.from_p_dryness(p, 1.0)
         if inputs.steam_temperature is not None:
             if inputs.steam_temperature <= t_sat:
                 raise InputError(f"steam at {inputs.steam_temperature - 273.15:.2f} °C is not superheated at "
                                  f"{p / 1e5:.4g} bar(a) (saturation {t_sat - 273.15:.2f} °C)",
                                  field="steam_temperature", fix="leave it empty for saturated steam")
             steam = SteamState.from_pT(p, inputs.steam_temperature)
+        elif inputs.steam_dryness is not None:
+            steam = SteamState.from_p_dryness(p, inputs.steam_dryness)
         else:
-            steam = SteamState.from_p_dryness(p, 1.0 if inputs.steam_dryness is None else inputs.steam_dryness)
+            steam = saturated_vapour
         subcooling = inputs.condensate_subcooling or 0.0
         if subcooling >= 0.01:  # below 0.01 K the condensate is saturated for every practical purpose
             condensate = SteamState.from_pT(p, t_sat - subcooling)
         else:
-            condensate = SteamState.from_p_dryness(p, 0.0)
+            condensate = saturated_liquid
     except OutOfRangeError as exc:
         raise exc.for_field("steam_pressure" if exc.field == "pressure" else "condensate_subcooling") from None
-    return steam, condensate, t_sat
+    return steam, condensate, saturated_liquid, saturated_vapour, t_sat
 
 
 def calculate(inputs, site):
@@ -349,7 +354,7 @@ def calculate(inputs, site):
     arrangement = inputs.arrangement or "counterflow"
     t_in, t_out = inputs.process_inlet_temperature, inputs.process_outlet_temperature
 
-    steam, condensate, t_sat = _steam_states(inputs)
+    steam, condensate, saturated_liquid, saturated_vapour, t_sat = _steam_states(inputs)
     if t_sat <= t_out:
         raise InputError(
             f"steam saturation temperature {t_sat - 273.15:.2f} °C at {inputs.steam_pressure / 1e5:.4g} bar(a) is "
@@ -378,7 +383,8 @@ def calculate(inputs, site):
     result.add("steam_flow", "Steam flow", steam_flow * 3600, "kg/h")
     result.add("condensate_flow", "Condensate flow", steam_flow * 3600, "kg/h")
 
-    ua, zones = _zones(inputs, steam, condensate, t_sat, flow, duty, steam_side, steam_flow, water, arrangement, result)
+    ua = _zones(inputs, (steam, condensate, saturated_liquid, saturated_vapour), t_sat, flow, duty, steam_side,
+                steam_flow, water, arrangement, result)
     mean_dt = duty / ua
     result.add("lmtd", "Mean temperature difference (effective LMTD)", mean_dt, "K")
     result.add("ua", "UA required", ua / 1e3, "kW/K")
@@ -411,10 +417,9 @@ def calculate(inputs, site):
     return result
 
 
-def _zones(inputs, steam, condensate, t_sat, flow, duty, steam_side, steam_flow, water, arrangement, result):
+def _zones(inputs, steam_states, t_sat, flow, duty, steam_side, steam_flow, water, arrangement, result):
     t_in, t_out = inputs.process_inlet_temperature, inputs.process_outlet_temperature
-    saturated_vapour = SteamState.from_p_dryness(inputs.steam_pressure, 1.0)
-    saturated_liquid = SteamState.from_p_dryness(inputs.steam_pressure, 0.0)
+    steam, condensate, saturated_liquid, saturated_vapour = steam_states
     # Steam-side zone heats; the process side takes each in proportion (counter-current order:
     # the process meets the subcooled condensate first and the superheated steam last).
     q_super = steam_flow * max(0.0, steam.enthalpy - saturated_vapour.enthalpy)
@@ -451,7 +456,7 @@ def _zones(inputs, steam, condensate, t_sat, flow, duty, steam_side, steam_flow,
                          f"F = {f:.3f} below 0.75: the {arrangement} arrangement is poorly suited (common practice)")
     if arrangement != "counterflow" and len(zones) == 1:
         result.assumptions.append("Condensing at constant temperature: F = 1 for any arrangement")
-    return ua, zones
+    return ua
 
 
 def _water_temperature(inputs, water, flow, heat):
@@ -474,10 +479,10 @@ def _turndown(inputs, duty, ua, service_u, result):
         f"exchanger keeps its area and service U ({basis}); the steam-side pressure falls to what the load needs "
         "(saturated steam, condensing only)")
     for load in LOADS:
+        # Never below the process outlet temperature, so always inside the saturation range.
         t_needed = required_saturation_temperature(load * duty, fixed_ua, t_in, t_out)
-        p_needed = saturation_pressure(t_needed) if t_needed > 273.16 else 611.213
         result.add(f"required_steam_pressure_{int(round(load * 100))}", f"Steam-side pressure needed at "
-                   f"{load:.0%} load", p_needed / 1e5, "bar")
+                   f"{load:.0%} load", saturation_pressure(t_needed) / 1e5, "bar")
     if inputs.condensate_back_pressure is None:
         return
     back = inputs.condensate_back_pressure
