@@ -8,6 +8,24 @@ def missing_site_data(site, keys):
     return [k for k in keys if getattr(site, k) is None]
 
 
+def annual_energy(rate, operating_hours):
+    """Energy a year of a steady rate, MWh: E = P·t.
+
+    Parameters
+    ----------
+    rate : float
+        W.
+    operating_hours : float
+        h a year.
+
+    Examples
+    --------
+    >>> annual_energy(100e3, 6000.0)
+    600.0
+    """
+    return rate * operating_hours / 1e6
+
+
 def annual_fuel_energy(heat_rate, operating_hours, boiler_efficiency):
     """Fuel energy a year that a steady heat rate stands for at the boiler, MWh.
 
@@ -34,7 +52,7 @@ def annual_fuel_energy(heat_rate, operating_hours, boiler_efficiency):
     >>> round(annual_fuel_energy(100e3, 6000.0, 0.86), 1)
     697.7
     """
-    return heat_rate * operating_hours / boiler_efficiency / 1e6
+    return annual_energy(heat_rate, operating_hours) / boiler_efficiency
 
 
 def annual_value(energy_mwh, price):

@@ -362,6 +362,7 @@ def calculate(inputs, site):
     result.add("outlet_enthalpy", "Outlet enthalpy", outlet.enthalpy / 1e3, "kJ/kg")
     result.add("outlet_mass_flow", "Outlet steam flow", outlet_flow_kg_h, "kg/h")
 
+    result.states.update(inlet=inlet, throttled=throttled, outlet=outlet)
     valve_section(inputs, inlet, result)
     line_section(inputs, inlet, throttled, outlet, result)
     power_section(inputs, inlet, throttled, site, result)

@@ -82,8 +82,27 @@ class ValveSizing:
     xtp: float
 
 
-def _piping_factors(kv, valve_d, inlet_d, outlet_d, xt):
-    """Fp and xTP for reducers at the valve, IEC 60534-2-1 equations (2), (4)-(6), (18)."""
+def piping_factors(kv, valve_d, inlet_d, outlet_d, xt):
+    """Fp and xTP of a valve of a given Kv between reducers.
+
+    Parameters
+    ----------
+    kv : float
+        The valve's Kv at the condition considered, m³/h.
+    valve_d, inlet_d, outlet_d : float
+        Valve size and the inside diameters of the adjoining pipes, mm (None for no reducer).
+    xt : float
+        xT of the valve without fittings.
+
+    References
+    ----------
+    IEC 60534-2-1:2011, equations (2), (4)-(6) and (18).
+
+    Examples
+    --------
+    >>> piping_factors(40.0, 80.0, 80.0, 80.0, 0.7)
+    (1.0, 0.7)
+    """
     k1 = 0.5 * (1.0 - (valve_d / inlet_d) ** 2) ** 2 if inlet_d else 0.0
     k2 = 1.0 * (1.0 - (valve_d / outlet_d) ** 2) ** 2 if outlet_d else 0.0
     kb1 = 1.0 - (valve_d / inlet_d) ** 4 if inlet_d else 0.0
@@ -157,7 +176,7 @@ def size_steam_valve(mass_flow, p1, p2, density1, kappa, xt, valve_d=None, inlet
             kv = new_kv
             break
         kv = new_kv
-        fp, xtp = _piping_factors(kv, valve_d, inlet_d, outlet_d, xt)
+        fp, xtp = piping_factors(kv, valve_d, inlet_d, outlet_d, xt)
     x_choked = f_gamma * xtp
     return ValveSizing(kv=kv, cv=kv_to_cv(kv), x=x, x_choked=x_choked, choked=x >= x_choked,
                        expansion_factor=1.0 - min(x, x_choked) / (3.0 * x_choked), piping_factor=fp, xtp=xtp)

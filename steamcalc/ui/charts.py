@@ -8,7 +8,7 @@ from functools import lru_cache
 import numpy as np
 import plotly.graph_objects as go
 
-from ..steam import CRITICAL_PRESSURE, SteamState, saturation_temperature
+from ..steam import CRITICAL_PRESSURE
 from ..steam_arrays import saturation_arrays, states_ps
 
 _COLOURS = {"saturation": "#5b6770", "inlet": "#b5442c", "outlet": "#2b6a99", "process": "#1d2327"}
@@ -69,13 +69,10 @@ def letdown_chart(states, title="Let-down on the enthalpy–entropy chart"):
 
 
 def letdown_states(inputs, result):
-    """The states a let-down chart marks, rebuilt from its inputs and result values."""
-    p1, p2 = inputs.inlet_pressure, inputs.outlet_pressure
-    inlet = SteamState.from_ph(p1, result.value("inlet_enthalpy") * 1e3)
-    throttled = SteamState.from_ph(p2, inlet.enthalpy)
-    states = [("1 inlet", inlet), ("2 after valve", throttled)]
-    if "spray_water_flow" in result.values and result.value("spray_water_flow") > 0.0:
-        states.append(("3 desuperheated", SteamState.from_ph(p2, result.value("outlet_enthalpy") * 1e3)))
+    """The states a let-down chart marks, as the calculation found them."""
+    states = [("1 inlet", result.states["inlet"]), ("2 after valve", result.states["throttled"])]
+    if result.states["outlet"] is not result.states["throttled"]:
+        states.append(("3 desuperheated", result.states["outlet"]))
     return states
 
 
@@ -127,33 +124,22 @@ def valve_chart(inputs, result, points=40):
     """Required Kv (and travel of the rated valve) against flow, over the flow cases."""
     from plotly.subplots import make_subplots
 
-    from ..calcs.letdown_equipment import DEFAULT_RANGEABILITY, DEFAULT_XT, _diameters
-    from ..equipment.valve import size_steam_valve, valve_travel
+    from ..calcs.letdown_equipment import flow_cases, rated_travel, required_kv
 
-    inlet = SteamState.from_ph(inputs.inlet_pressure, result.value("inlet_enthalpy") * 1e3)
+    inlet = result.states["inlet"]
     kappa = result.value("isentropic_exponent")
-    xt = inputs.xt if inputs.xt is not None else DEFAULT_XT
     low = inputs.min_flow if inputs.min_flow is not None else inputs.mass_flow * 0.2
     high = inputs.max_flow if inputs.max_flow is not None else inputs.mass_flow
     flows = np.linspace(low * 0.8, high * 1.1, points)
-    sizes, _ = _diameters(inputs)
-    mm = {k: (None if v is None else v * 1000) for k, v in sizes.items()}
-    with_fittings = mm["valve_size"] is not None and (mm["inlet_size"] or mm["outlet_size"])
-    kvs = [size_steam_valve(w * 3600, inputs.inlet_pressure / 1e3, inputs.outlet_pressure / 1e3, inlet.density,
-                            kappa, xt, valve_d=mm["valve_size"] if with_fittings else None,
-                            inlet_d=mm["inlet_size"], outlet_d=mm["outlet_size"]).kv for w in flows]
+    kvs = [required_kv(inputs, inlet, kappa, w).kv for w in flows]
     fig = make_subplots(specs=[[{"secondary_y": True}]])
     fig.add_trace(go.Scatter(x=flows * 3600, y=kvs, name="required Kv", line=dict(color=_COLOURS["outlet"], width=2)))
-    cases = [(n, w) for n, w in (("minimum", inputs.min_flow), ("normal", inputs.mass_flow),
-                                 ("maximum", inputs.max_flow)) if w is not None]
+    cases = flow_cases(inputs)
     fig.add_trace(go.Scatter(x=[w * 3600 for _, w in cases], y=[result.value(f"valve_kv_{n}") for n, _ in cases],
                              mode="markers+text", text=[n for n, _ in cases], textposition="bottom right",
                              name="flow cases", marker=dict(size=10, color=_COLOURS["process"])))
     if inputs.rated_kv is not None:
-        characteristic = inputs.characteristic or "equal-percentage"
-        rangeability = inputs.rangeability or DEFAULT_RANGEABILITY
-        travel = [100 * valve_travel(min(kv, inputs.rated_kv), inputs.rated_kv, characteristic, rangeability)
-                  for kv in kvs]
+        travel = [100 * rated_travel(inputs, kv) for kv in kvs]
         fig.add_trace(go.Scatter(x=flows * 3600, y=travel, name="travel of the rated valve",
                                  line=dict(color=_COLOURS["inlet"], dash="dash")), secondary_y=True)
         fig.add_shape(type="rect", xref="paper", x0=0, x1=1, yref="y2", y0=20, y1=80, fillcolor="#2f6b3a",
@@ -169,10 +155,10 @@ def valve_chart(inputs, result, points=40):
 
 def valve_case_rows(inputs, result):
     """The let-down's flow cases as table rows."""
+    from ..calcs.letdown_equipment import flow_cases
+
     rows = []
-    for name, flow in (("minimum", inputs.min_flow), ("normal", inputs.mass_flow), ("maximum", inputs.max_flow)):
-        if flow is None:
-            continue
+    for name, flow in flow_cases(inputs):
         row = {"flow case": name, "flow, kg/h": flow * 3600, "required Kv, m³/h": result.value(f"valve_kv_{name}"),
                "choked": "yes" if result.value(f"choked_{name}") else "no"}
         if f"valve_travel_{name}" in result.values:
@@ -279,4 +265,4 @@ def chart_for(kind, inputs, result):
     return figures if isinstance(figures, list) else [figures]
 
 
-__all__ = ["chart_for", "letdown_chart", "saturation_dome", "isobar", "saturation_temperature"]
+__all__ = ["chart_for", "table_for", "figure_json", "letdown_chart", "saturation_dome", "isobar"]
