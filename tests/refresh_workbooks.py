@@ -5,7 +5,7 @@ Run from the repository root after changing a calculation or a workbook:
     python tests/refresh_workbooks.py
 
 Cells tagged ``nbval-ignore-output`` (widgets, charts, previews) are stored
-without outputs, and the widget state is dropped, so that a fresh JupyterLab
+without outputs, execution timestamps and the widget state are dropped, so that a fresh JupyterLab
 shows no stale widgets and the diff stays small. Records the run writes go to
 each workbook's own record folder (git ignores it).
 """
@@ -24,6 +24,8 @@ def refresh(path):
     NotebookClient(notebook, timeout=600, kernel_name="python3",
                    resources={"metadata": {"path": str(path.parent)}}).execute()
     for cell in notebook.cells:
+        # Execution timestamps change on every run and say nothing a reviewer needs.
+        cell.metadata.pop("execution", None)
         if cell.cell_type == "code":
             if "nbval-ignore-output" in cell.metadata.get("tags", []):
                 cell.outputs = []
