@@ -26,6 +26,7 @@ STANDARD_ATMOSPHERE = 101325.0
 #: calculations, unit stored in records, and the pint dimensionality.
 SI_UNITS = {
     "pressure": "Pa",
+    "pressure_difference": "Pa",
     "temperature": "K",
     "temperature_difference": "K",
     "mass_flow": "kg/s",
@@ -46,6 +47,7 @@ SI_UNITS = {
 
 RECORD_UNITS = {
     "pressure": "bar",
+    "pressure_difference": "bar",
     "temperature": "degC",
     "temperature_difference": "K",
     "mass_flow": "kg/h",
@@ -66,6 +68,7 @@ RECORD_UNITS = {
 
 _EXAMPLES = {
     "pressure": "'16 bar(g)' or '17 bar(a)'",
+    "pressure_difference": "'0.3 bar'",
     "temperature": "'230 degC'",
     "temperature_difference": "'10 K'",
     "mass_flow": "'4.5 t/h' or '1.25 kg/s'",

@@ -21,6 +21,12 @@ from .quantities import (
 )
 
 ID_PATTERN = re.compile(r"^[A-Za-z0-9._-]+$")
+
+
+def is_file_name_part(text):
+    """True for an id or revision that can stand in a file name: letters, digits, '.', '_', '-',
+    not starting with '.'."""
+    return isinstance(text, str) and bool(ID_PATTERN.match(text)) and not text.startswith(".")
 CASE_KEYS = ("kind", "id", "title", "revision", "prepared_by", "site")
 SITE_KEYS = ("name", "elevation", "atmospheric_pressure", "operating_hours", "fuel_price",
              "boiler_efficiency", "makeup_water_temperature", "power_price", "display_units",
@@ -287,14 +293,12 @@ def load_case(path):
             raise CaseFileError(f"kind {kind!r} is not a calculation steamcalc knows", field="kind",
                                 fix=f"use one of: {', '.join(kinds())}")
         case_id = meta.get("id")
-        if not isinstance(case_id, str) or not ID_PATTERN.match(case_id):
+        if not is_file_name_part(case_id):
             raise CaseFileError(
-                "the id becomes a file name, so it may hold only letters, digits, '.', '_' and '-'",
-                field="id", value=case_id, fix="e.g. id = \"LD-01\"")
-        if case_id in (".", "..") or case_id.startswith("."):
-            raise CaseFileError("the id may not start with '.'", field="id", value=case_id)
+                "the id becomes a file name, so it may hold only letters, digits, '.', '_' and '-', and may "
+                "not start with '.'", field="id", value=case_id, fix="e.g. id = \"LD-01\"")
         revision = str(meta.get("revision", "A"))
-        if not ID_PATTERN.match(revision) or revision.startswith("."):
+        if not is_file_name_part(revision):
             raise CaseFileError("the revision may hold only letters, digits, '.', '_' and '-'",
                                 field="revision", value=revision)
         assumptions = data.get("assumptions", {})

@@ -58,8 +58,8 @@ def test_failed_samples_are_counted_not_hidden():
     ({"inlet_temperature": "5 degC"}, "difference"),
     ({"inlet_superheat": "5 K"}, "does not give"),
     ({"schedule": "1"}, "cannot take a tolerance"),
-    ({"mass_flow": "-5 %"}, "not a tolerance"),
-    ({"mass_flow": "5 m"}, "not a tolerance"),
+    ({"mass_flow": "-5 %"}, "must be above zero"),
+    ({"mass_flow": "5 m"}, "not a mass flow"),
     ({"mass_flow": "5 %", "samples": 5}, "samples"),
 ])
 def test_bad_tolerances(table, text):

@@ -28,7 +28,7 @@ class CaseForm:
     """
 
     def __init__(self, inputs_class, values, headers=(), tolerances=None):
-        from ..uncertainty import _DIFFERENCE_UNITS
+        from ..uncertainty import _DIFFERENCE_KINDS
 
         tolerances = tolerances or {}
         self.boxes = {}
@@ -51,7 +51,7 @@ class CaseForm:
             box.add_class(f"steamcalc-input-{f.name}")
             self.boxes[f.name] = box
             row = box
-            if meta["kind"] in _DIFFERENCE_UNITS:
+            if meta["kind"] in _DIFFERENCE_KINDS:
                 tol = tolerances.get(f.name, "")
                 tolerance = widgets.Text(value="" if tol is None else str(tol), placeholder="± tolerance",
                                          continuous_update=False, layout=widgets.Layout(width="9em"),

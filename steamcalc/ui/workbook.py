@@ -22,7 +22,8 @@ from ..errors import SteamcalcError
 from ..record import write_record
 from ..report import RENDERERS, format_number, format_unit, render_markdown
 from ..runner import record_for_case
-from ..site import ID_PATTERN, case_site, flatten_inputs, load_case, parse_inputs
+from ..site import case_site, flatten_inputs, is_file_name_part, load_case, parse_inputs
+from ..uncertainty import SETTINGS
 from .charts import chart_for, figure_json, table_for, tornado_chart
 from .forms import CaseForm
 
@@ -67,7 +68,7 @@ class Workbook:
         self.calc = get_calculation(self.case.kind)
         self.record_folder = Path(record_folder)
         flat = flatten_inputs(self.calc.Inputs, self.case.inputs)
-        self._settings = {k: v for k, v in self.case.uncertainty.items() if k in ("samples", "seed")}
+        self._settings = {k: v for k, v in self.case.uncertainty.items() if k in SETTINGS}
         self.form = CaseForm(self.calc.Inputs, flat, headers=tuple(self.site.headers),
                              tolerances={k: v for k, v in self.case.uncertainty.items() if k not in self._settings})
         self.uncertainty = None
@@ -143,7 +144,7 @@ class Workbook:
 
     def _set_revision(self):
         revision = self._revision.value.strip()
-        if not ID_PATTERN.match(revision) or revision.startswith("."):
+        if not is_file_name_part(revision):
             self._message.value = ("<div style='color:#a3201b'><b>Revision not accepted:</b> letters, digits, "
                                    "'.', '_' and '-' only</div>")
             return
@@ -154,16 +155,15 @@ class Workbook:
         """Run the Monte Carlo bands and the sensitivity for the current inputs and tolerances."""
         if self.error is not None or not self.case.uncertainty:
             return None
-        from ..uncertainty import parse_tolerances, run_uncertainty
-
         try:
-            tolerances, samples, seed = parse_tolerances(self.calc.Inputs, self.case.uncertainty, self.inputs)
-            self.uncertainty = run_uncertainty(self.calc, self.inputs, self.site, tolerances, samples, seed)
-            self.record, _ = record_for_case(self.case, self.site, inputs=self.inputs, given=self._given)
+            # The record runs the Monte Carlo once; its section is what the workbook shows.
+            self.record, self.result = record_for_case(self.case, self.site, inputs=self.inputs, given=self._given)
         except SteamcalcError as exc:
-            self._bands.value = f"<div style='color:#a3201b'>{html.escape(str(exc))}</div>"
+            self._bands.value = f"<div style='color:#a3201b'>{html.escape(str(exc).replace(f'{self.case.path}: ', ''))}</div>"
             return None
-        u = self.uncertainty
+        u = self.uncertainty = self.record.get("uncertainty")
+        if u is None:
+            return None
         rows = "".join(
             f"<tr><td>{html.escape(k)}</td><td style='text-align:right'>{html.escape(format_number(b['nominal']))}</td>"
             f"<td style='text-align:right'>{html.escape(format_number(b['p05']))}</td>"
