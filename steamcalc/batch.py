@@ -15,7 +15,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 from .errors import SteamcalcError
-from .record import _atomic_write, load_record, record_stem
+from .record import load_record, record_stem, write_text_atomic
 
 #: Below this many cases the start-up of worker processes costs more than it saves.
 PARALLEL_FROM = 4
@@ -122,7 +122,7 @@ def write_index(folder, failures=()):
     writer.writeheader()
     writer.writerows(rows)
     csv_path = folder / "index.csv"
-    _atomic_write(csv_path, buffer.getvalue())
+    write_text_atomic(csv_path, buffer.getvalue())
 
     colours = {"pass": "#2f6b3a", "warn": "#8a5a00", "fail": "#a3201b"}
     body = "".join(
@@ -144,5 +144,5 @@ th{{background:#eef1f3}}.fail{{color:#a3201b}}</style></head><body>
 </body></html>
 """
     html_path = folder / "index.html"
-    _atomic_write(html_path, page)
+    write_text_atomic(html_path, page)
     return html_path, csv_path

@@ -172,17 +172,15 @@ def _diff(args):
         change = f"{change:+.6g}" if isinstance(change, float) else change
         print(f"  [{row['section']}] {row['key']}: {_cell(row['old'])} -> {_cell(row['new'])} {row['unit']}  ({change})")
     if args.html:
+        from .record import write_text_atomic
         from .report import render_diff_html
-        from .record import _atomic_write
-        _atomic_write(Path(args.html), render_diff_html(old, new, rows))
+        write_text_atomic(args.html, render_diff_html(old, new, rows))
         print(f"  written: {args.html}")
     return EXIT_OK
 
 
 def _sign(args):
     from .record import load_record
-    from .report import RENDERERS
-    from .record import _atomic_write
     from .signoff import sign_record
 
     record = load_record(args.record)
@@ -192,8 +190,6 @@ def _sign(args):
         print(f"refused: {exc}", file=sys.stderr)
         return EXIT_FAILED if exc.field != "--by" else EXIT_BAD_INPUT
     path = Path(args.record)
-    for suffix, render in RENDERERS.items():
-        _atomic_write(path.with_suffix(suffix), render(signed))
     print(f"{signed['id']} rev {signed['revision']}: signed by {signed['checked_by']} on {signed['signoff']['date']}")
     print(f"  {path} (new digest {signed['digest'][:23]}...), with its HTML and Markdown")
     return EXIT_OK

@@ -148,12 +148,14 @@ def load_record(path):
     return data
 
 
-def write_json(path, record):
-    """Write one record's JSON atomically (used when a record is signed)."""
-    _atomic_write(Path(path), json.dumps(record, indent=2, ensure_ascii=False, allow_nan=False) + "\n")
+def record_text(record):
+    """A record as the JSON text of its file (indented, UTF-8, NaN refused)."""
+    return json.dumps(record, indent=2, ensure_ascii=False, allow_nan=False) + "\n"
 
 
-def _atomic_write(path, text):
+def write_text_atomic(path, text):
+    """Write a text file through a temporary file and a rename: never half-written."""
+    path = Path(path)
     path.parent.mkdir(parents=True, exist_ok=True)
     handle, temp = tempfile.mkstemp(dir=path.parent, prefix=f".{path.name}.", suffix=".part")
     try:
@@ -203,7 +205,7 @@ def write_record(record, out_dir, renderers=None):
             for suffix, render in (renderers or {}).items():
                 report = out_dir / f"{stem}{suffix}"
                 if not report.exists():
-                    _atomic_write(report, render(existing))
+                    write_text_atomic(report, render(existing))
             return paths, "unchanged"
         raise RecordConflictError(
             f"record {record['id']} revision {record['revision']} already exists with different content",
@@ -217,9 +219,9 @@ def write_record(record, out_dir, renderers=None):
     # Render everything before writing anything, and write the JSON last, so that a
     # failure leaves no half-issued record behind.
     texts = [(out_dir / f"{stem}{suffix}", render(record)) for suffix, render in (renderers or {}).items()]
-    texts.append((json_path, json.dumps(record, indent=2, ensure_ascii=False, allow_nan=False) + "\n"))
+    texts.append((json_path, record_text(record)))
     for path, text in texts:
-        _atomic_write(path, text)
+        write_text_atomic(path, text)
     return paths, "written"
 
 

@@ -5,7 +5,9 @@ from __future__ import annotations
 from datetime import datetime, timezone
 
 from .errors import RecordError
-from .record import compute_digest, write_json
+from pathlib import Path
+
+from .record import compute_digest, record_text, write_text_atomic
 from .review import verify_record
 
 
@@ -84,7 +86,7 @@ def _short(value):
 
 
 def sign_record(path, record, checker, now=None):
-    """Sign a record as checked, after a passing verification; write it back in place.
+    """Sign a record as checked, after a passing verification; write it and its reports back in place.
 
     Parameters
     ----------
@@ -137,5 +139,11 @@ def sign_record(path, record, checker, now=None):
         },
     }
     signed["digest"] = compute_digest(signed)
-    write_json(path, signed)
+    from .report import RENDERERS
+
+    # Reports first and the JSON last, as when a record is issued.
+    path = Path(path)
+    for suffix, render in RENDERERS.items():
+        write_text_atomic(path.with_suffix(suffix), render(signed))
+    write_text_atomic(path, record_text(signed))
     return signed

@@ -124,9 +124,6 @@ class ReviewBook:
             signed = sign_record(self.path, self.record, checker)
         except SteamcalcError as exc:
             return f"not signed: {exc}"
-        for suffix, render in RENDERERS.items():
-            from ..record import _atomic_write
-            _atomic_write(self.path.with_suffix(suffix), render(signed))
         self.record = signed
         self.outcome = verify_record(signed)
         self._show()

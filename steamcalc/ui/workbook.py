@@ -12,7 +12,6 @@ from __future__ import annotations
 
 import dataclasses
 import html
-import json
 from pathlib import Path
 
 import ipywidgets as widgets
