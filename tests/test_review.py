@@ -134,6 +134,18 @@ def test_us_display_units(site):
     assert f"{fahrenheit:.5g}" in page and "°F" in page and "lb/h" in page and "psia" in page
 
 
+def test_us_display_units_in_the_workbook(site, tmp_path):
+    from steamcalc.ui.workbook import Workbook
+
+    text = (site / "site.toml").read_text().replace('display_units = "SI"', 'display_units = "US"')
+    (site / "site.toml").write_text(text)
+    workbook = Workbook(site / "cases" / "LD-02.toml", tmp_path / "records")
+    shown = workbook.results_view().value
+    assert "°F" in shown and "lb/h" in shown
+    assert workbook.record["results"]["outlet_temperature"]["unit"] == "degC"   # the record stays SI
+    assert "°F" in workbook.summary()
+
+
 def test_notebook_companion(site):
     assert main(["run", str(site / "cases" / "LD-02.toml"), "--notebook"]) == 0
     executed = site / "records" / "LD-02_revA.ipynb"

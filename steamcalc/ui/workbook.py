@@ -17,6 +17,7 @@ from pathlib import Path
 import ipywidgets as widgets
 
 from ..calcs import get_calculation
+from ..display import display_record
 from ..errors import SteamcalcError
 from ..record import write_record
 from ..report import RENDERERS, format_number, format_unit, render_markdown
@@ -180,7 +181,7 @@ class Workbook:
         return u
 
     def _results_table(self):
-        r = self.record
+        r = display_record(self.record)
         colour = _STATUS_COLOURS[r["status"]]
         rows = "".join(
             f"<tr><td>{html.escape(v.get('label', k))}</td><td style='text-align:right'>"
@@ -249,7 +250,7 @@ class Workbook:
         """Plain-text results and checks (what headless runs print and nbval compares)."""
         if self.record is None:
             return f"no result: {self.error}"
-        r = self.record
+        r = display_record(self.record)
         lines = [f"{r['id']} rev {r['revision']} - {r['title']}", f"overall status: {r['status'].upper()}", ""]
         width = max(len(v.get("label", k)) for k, v in r["results"].items())
         for key, v in r["results"].items():
