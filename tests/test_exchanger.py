@@ -12,6 +12,7 @@ from steamcalc.calcs.exchanger import Inputs, calculate, lmtd, required_saturati
 from steamcalc.cli import main
 from steamcalc.errors import InputError
 from steamcalc.site import Site
+from tests.case_helpers import assert_refused
 from steamcalc.steam import saturation_pressure, saturation_temperature
 
 SITE = Site()
@@ -142,12 +143,7 @@ def test_bad_exchanger_case_exits_2(tmp_path, capsys, extra, old, new, field):
     text = CASE.format(extra=extra)
     if old:
         text = text.replace(old, new)
-    case = tmp_path / "h.toml"
-    case.write_text(text)
-    assert main(["run", str(case), "--out", str(tmp_path / "out")]) == 2
-    err = capsys.readouterr().err
-    assert field in err and str(case) in err
-    assert not (tmp_path / "out").exists()
+    assert_refused(tmp_path, capsys, text, field)
 
 
 def test_demo_hx01_runs_and_verifies(tmp_path, demo_site_dir):

@@ -7,25 +7,13 @@
     python tests/bench/bench_steam.py
 """
 
-import statistics
-import time
-
 import numpy as np
 from CoolProp.CoolProp import PropsSI
 from iapws import IAPWS97
 
 from steamcalc.steam import SteamState
 from steamcalc.steam_arrays import states_ph
-
-
-def median_s(fn, repeat=15):
-    fn()
-    runs = []
-    for _ in range(repeat):
-        start = time.perf_counter()
-        fn()
-        runs.append(time.perf_counter() - start)
-    return statistics.median(runs)
+from timing import median_seconds  # the script's own folder
 
 
 def row(name, seconds, baseline):
@@ -39,9 +27,9 @@ def wrapper_overhead():
              ("p,h wet", lambda: IAPWS97(P=0.35, h=2000.0), lambda: SteamState.from_ph(0.35e6, 2000e3)),
              ("p,dryness", lambda: IAPWS97(P=0.35, x=1.0), lambda: SteamState.from_p_dryness(0.35e6, 1.0))]
     for name, raw, wrapped in cases:
-        base = median_s(raw, 200)
+        base = median_seconds(raw, 200)
         row(f"baseline: iapws {name}", base, base)
-        row(f"SteamState {name}", median_s(wrapped, 200), base)
+        row(f"SteamState {name}", median_seconds(wrapped, 200), base)
 
 
 def sweeps(n=10_000, loop_points=300):
@@ -54,10 +42,10 @@ def sweeps(n=10_000, loop_points=300):
         for pi, hi in zip(p[:loop_points], h[:loop_points]):
             IAPWS97(P=pi / 1e6, h=hi / 1e3)
 
-    loop = median_s(iapws_loop, 3) * n / loop_points
-    coolprop = median_s(lambda: (PropsSI("T", "P", p, "H", h, "IF97::Water"),
+    loop = median_seconds(iapws_loop, 3) * n / loop_points
+    coolprop = median_seconds(lambda: (PropsSI("T", "P", p, "H", h, "IF97::Water"),
                                  PropsSI("Q", "P", p, "H", h, "IF97::Water")), 7)
-    ours = median_s(lambda: states_ph(p, h), 7)
+    ours = median_seconds(lambda: states_ph(p, h), 7)
     row(f"baseline: iapws loop (timed on {loop_points} points, scaled)", loop, loop)
     row("baseline: CoolProp IF97 backend, T and Q arrays", coolprop, loop)
     row("steamcalc states_ph (refined on the basic equations)", ours, loop)

@@ -6,26 +6,19 @@ preview. Printed beside the bare calculate() of the same case as the baseline.
     python tests/bench/bench_workbook.py
 """
 
-import statistics
 import tempfile
-import time
 from pathlib import Path
 
 from steamcalc.calcs import get_calculation
 from steamcalc.site import case_inputs, case_site, load_case
 from steamcalc.ui.workbook import Workbook
+from timing import median_seconds  # the script's own folder
 
 DEMO = Path(__file__).resolve().parents[2] / "workbooks" / "demo_site" / "cases"
 
 
 def median_ms(fn, repeat=25):
-    fn()
-    runs = []
-    for _ in range(repeat):
-        start = time.perf_counter()
-        fn()
-        runs.append(time.perf_counter() - start)
-    return statistics.median(runs) * 1e3
+    return median_seconds(fn, repeat) * 1e3
 
 
 if __name__ == "__main__":
