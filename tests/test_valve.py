@@ -106,8 +106,13 @@ def test_turbine_energy_balance_against_iapws95():
     # Energy balance of the turbine: P = m (h1 - h2) with h2 = h1 - eta (h1 - h2s).
     drop = r.value("isentropic_enthalpy_drop")
     assert r.value("recoverable_power") == pytest.approx(1.25 * 0.6 * drop, rel=1e-12)
-    assert r.value("annual_recoverable_energy") == pytest.approx(r.value("recoverable_power") * 6000 / 1000, rel=1e-12)
-    assert r.value("annual_recoverable_value") == pytest.approx(r.value("annual_recoverable_energy") * 120, rel=1e-12)
+    # Electrical energy: shaft power times the generator efficiency (default 0.95, common practice).
+    assert r.value("annual_recoverable_energy") == pytest.approx(
+        r.value("recoverable_power") * 0.95 * 6000 / 1000, rel=1e-12)
+    # No fuel price at this site: only the gross electricity value, and a warn saying so.
+    assert r.value("annual_electricity_value") == pytest.approx(r.value("annual_recoverable_energy") * 120, rel=1e-12)
+    assert "annual_recoverable_value" not in r.values
+    assert next(c for c in r.checks if c.name == "Net turbine value").status == "warn"
 
 
 def test_exergy_destroyed_gouy_stodola():

@@ -16,7 +16,8 @@ from ..errors import InputError, OutOfRangeError
 from ..steam import REFERENCE as IF97_REFERENCE
 from ..steam import SteamState, saturation_temperature
 from .base import Result, bar_a, check_fields, deg_c, input_field, kj_kg
-from .letdown_equipment import line_section, power_section, valve_section
+from .letdown_equipment import line_section, valve_section
+from .letdown_turbine import power_section
 
 KIND = "letdown"
 TITLE = "Pressure let-down station"
@@ -108,6 +109,16 @@ class Inputs:
     rangeability: float | None = input_field(
         "number", "Rangeability", "Inherent rangeability of an equal-percentage trim.", example="50",
         section="valve")
+    max_inlet_pressure: float | None = input_field(
+        "pressure", "Highest upstream pressure", "Highest pressure the inlet can reach (boiler or HP header "
+        "safety-valve setting): sets the fail-open flow and the minimum-flow sizing case.",
+        example="18 bar(g)", section="valve")
+    min_inlet_pressure: float | None = input_field(
+        "pressure", "Lowest upstream pressure", "Lowest pressure the inlet falls to in service: the maximum "
+        "flow is sized at it.", example="15 bar(g)", section="valve")
+    bypass_kv: float | None = input_field(
+        "flow_coefficient", "Bypass valve Kv", "Kv of the hand bypass valve wide open (for the relief load).",
+        example="25 m^3/h", section="valve", positive=True)
     relief_set_pressure: float | None = input_field(
         "pressure", "Downstream relief set pressure", "Set pressure of the relief device protecting the "
         "outlet side.", example="4.5 bar(g)", section="valve")
@@ -120,6 +131,9 @@ class Inputs:
         "nominal_size", "Outlet line size", "Nominal size of the outlet line.", example="DN150", section="lines")
     schedule: str | None = input_field(
         "text", "Pipe schedule", "ASME B36.10M schedule of the lines.", example="40", section="lines")
+    non_preferred_sizes: bool | None = input_field(
+        "flag", "Suggest non-preferred sizes", "Also suggest DN90, DN125 and other sizes that are hard to buy.",
+        example="false", section="lines")
     max_velocity_wet: float | None = input_field(
         "velocity", "Velocity limit, saturated/wet", "Line velocity limit for saturated or wet steam.",
         example="30 m/s", section="lines", positive=True)
@@ -129,6 +143,9 @@ class Inputs:
     isentropic_efficiency: float | None = input_field(
         "fraction", "Turbine isentropic efficiency", "Of a back-pressure turbine in place of the valve.",
         example="0.55", section="turbine", positive=True)
+    generator_efficiency: float | None = input_field(
+        "fraction", "Generator efficiency", "Electrical output over shaft power of the turbine-generator set.",
+        example="0.95", section="turbine", positive=True)
 
     def __post_init__(self):
         check_fields(self)
@@ -171,6 +188,22 @@ class Inputs:
         if self.min_flow is not None and self.min_flow > self.mass_flow:
             raise InputError("the minimum flow is above the normal flow", field="valve.min_flow",
                              fix="max_flow ≥ mass_flow ≥ min_flow > 0")
+        if self.max_inlet_pressure is not None and self.max_inlet_pressure < self.inlet_pressure:
+            raise InputError(
+                f"the highest upstream pressure {bar_a(self.max_inlet_pressure)} is below the inlet pressure "
+                f"{bar_a(self.inlet_pressure)}", field="valve.max_inlet_pressure", value=self.max_inlet_pressure,
+                fix="give the highest pressure the inlet can reach (at least the normal inlet pressure)")
+        if self.min_inlet_pressure is not None:
+            if self.min_inlet_pressure > self.inlet_pressure:
+                raise InputError(
+                    f"the lowest upstream pressure {bar_a(self.min_inlet_pressure)} is above the inlet pressure "
+                    f"{bar_a(self.inlet_pressure)}", field="valve.min_inlet_pressure", value=self.min_inlet_pressure,
+                    fix="give the lowest pressure the inlet falls to (at most the normal inlet pressure)")
+            if self.min_inlet_pressure <= self.outlet_pressure:
+                raise InputError(
+                    f"the lowest upstream pressure {bar_a(self.min_inlet_pressure)} is not above the outlet "
+                    f"pressure {bar_a(self.outlet_pressure)}: no flow at that case", field="valve.min_inlet_pressure",
+                    value=self.min_inlet_pressure, fix="check the pressure and its basis (bar(g)/bar(a))")
 
     @property
     def desuperheating(self):

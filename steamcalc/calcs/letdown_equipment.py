@@ -10,15 +10,13 @@ from __future__ import annotations
 from ..equipment.piping import DN_TO_NPS, line_velocity, pipe_inner_diameter
 from ..equipment.valve import kv_to_cv, piping_factors, size_steam_valve, valve_flow, valve_travel
 from ..errors import InputError, OutOfRangeError
-from ..steam import SteamState
-from .economics import annual_energy, annual_value, missing_site_data
+from ..steam import SteamState, saturation_temperature
 
 #: Defaults stated as assumptions when not given (common practice for globe control valves).
 DEFAULT_XT = 0.70
 DEFAULT_FL = 0.90
 DEFAULT_FD = 1.0
 DEFAULT_RANGEABILITY = 50.0
-DEFAULT_TURBINE_EFFICIENCY = 0.55
 #: Line velocity limits, m/s (common practice): saturated or wet steam 25-35, superheated 40-50.
 DEFAULT_MAX_VELOCITY_WET = 30.0
 DEFAULT_MAX_VELOCITY_SUPERHEATED = 45.0
@@ -26,17 +24,34 @@ DEFAULT_SCHEDULE = "40"
 #: Travel limits (common practice): fail outside 10-90 %, warn outside 20-80 %.
 TRAVEL_FAIL = (0.10, 0.90)
 TRAVEL_WARN = (0.20, 0.80)
-#: Dead state for exergy when the site gives no ambient temperature, K.
-DEFAULT_AMBIENT = 288.15
+#: Preferred nominal sizes for suggestions (common practice: DN90, DN125 and the like are
+#: hard to buy and to fit).
+NON_PREFERRED_DN = (90, 125)
 
 
-def _kappa(state, result):
-    """Isentropic exponent for sizing: κ = w²ρ/p from IF97, or Zeuner's rule for wet steam."""
+def sizing_kappa(state, result=None):
+    """Isentropic exponent for sizing at a valve inlet state.
+
+    Single-phase and dry saturated steam: κ = w²ρ/p from IF97; dry saturated vapour takes
+    the vapour-side value, so κ is continuous as the superheat falls to zero. Wet steam
+    (x < 1): Zeuner's rule κ = 1.035 + 0.1·x, so κ is discontinuous at x = 1.
+    """
     if state.isentropic_exponent is not None:
         return state.isentropic_exponent
+    if state.dryness == 1.0:
+        # The saturated-vapour end of region 4 carries no speed of sound; the vapour-side
+        # limit is region 2 on the saturation line, taken 1 mK above it.
+        vapour = SteamState.from_pT(state.pressure, state.temperature + 1e-3)
+        if result is not None:
+            result.assumptions.append(
+                "Dry saturated inlet: κ = w²ρ/p of the vapour on the saturation line (IF97 region 2); "
+                "for wet steam (x < 1) κ follows Zeuner's rule, so κ is discontinuous at x = 1")
+        return vapour.isentropic_exponent
     kappa = 1.035 + 0.1 * state.dryness
-    result.assumptions.append(f"Wet inlet steam: isentropic exponent κ = 1.035 + 0.1·x = {kappa:.4f} (Zeuner's "
-                              "rule, from memory); IEC 60534-2-1 compressible sizing is approximate for wet steam")
+    if result is not None:
+        result.assumptions.append(
+            f"Wet inlet steam: isentropic exponent κ = 1.035 + 0.1·x = {kappa:.4f} (Zeuner's rule, from memory); "
+            "IEC 60534-2-1 compressible sizing is approximate for wet steam, and κ is discontinuous at x = 1")
     return kappa
 
 
@@ -49,6 +64,43 @@ def flow_cases(inputs):
     if inputs.max_flow is not None:
         cases.append(("maximum", inputs.max_flow))
     return cases
+
+
+def case_inlet_pressure(inputs, case):
+    """Upstream pressure (Pa) a flow case is sized at: the maximum flow at the lowest upstream
+    pressure, the minimum flow at the highest, the normal flow at the normal pressure."""
+    if case == "maximum" and inputs.min_inlet_pressure is not None:
+        return inputs.min_inlet_pressure
+    if case in ("minimum", "fail-open") and inputs.max_inlet_pressure is not None:
+        return inputs.max_inlet_pressure
+    return inputs.inlet_pressure
+
+
+def inlet_state_at(inputs, pressure, normal_inlet):
+    """The inlet steam at another upstream pressure, with the same temperature, superheat or
+    dryness as the normal inlet is specified by."""
+    if pressure == inputs.inlet_pressure:
+        return normal_inlet
+    field = "valve.max_inlet_pressure" if pressure > inputs.inlet_pressure else "valve.min_inlet_pressure"
+    try:
+        if inputs.inlet_temperature is not None:
+            t_sat = saturation_temperature(pressure)
+            if inputs.inlet_temperature <= t_sat + 1e-6:
+                raise InputError(
+                    f"at {pressure / 1e5:.4g} bar(a) the inlet temperature {inputs.inlet_temperature - 273.15:.1f} °C "
+                    f"is not above saturation ({t_sat - 273.15:.1f} °C): the steam would be wet at that pressure",
+                    field=field, value=pressure, fix="check the pressure and its basis, or specify the inlet "
+                    "by its superheat or dryness")
+            return SteamState.from_pT(pressure, inputs.inlet_temperature)
+        if inputs.inlet_superheat is not None:
+            return SteamState.from_pT(pressure, saturation_temperature(pressure) + inputs.inlet_superheat)
+        return SteamState.from_p_dryness(pressure, inputs.inlet_dryness)
+    except OutOfRangeError as exc:
+        raise exc.for_field(field) from None
+
+
+def _pressure_pair(p1, p2):
+    return f"{p1 / 1e5:.4g} bar(a) → {p2 / 1e5:.4g} bar(a)"
 
 
 def _diameters(inputs):
@@ -71,14 +123,15 @@ def _valve_geometry(inputs):
 
 
 def required_kv(inputs, inlet, kappa, mass_flow):
-    """Sizing of the let-down valve at one flow (kg/s), with the case's xT and fittings.
+    """Sizing of the let-down valve at one flow (kg/s) from the given inlet state to the outlet
+    pressure, with the case's xT and fittings.
 
     Returns
     -------
     steamcalc.equipment.valve.ValveSizing
     """
     xt, (valve_d, inlet_d, outlet_d) = _valve_geometry(inputs)
-    return size_steam_valve(mass_flow * 3600, inputs.inlet_pressure / 1e3, inputs.outlet_pressure / 1e3,
+    return size_steam_valve(mass_flow * 3600, inlet.pressure / 1e3, inputs.outlet_pressure / 1e3,
                             inlet.density, kappa, xt, valve_d=valve_d, inlet_d=inlet_d, outlet_d=outlet_d)
 
 
@@ -90,14 +143,14 @@ def rated_travel(inputs, kv):
 
 
 def valve_section(inputs, inlet, result):
-    """Kv, Cv, choked flag and travel for each flow case; fail-open flow."""
+    """Kv, Cv, choked flag and travel for each flow case at its own pressure pair; relief load."""
     fl = inputs.fl if inputs.fl is not None else DEFAULT_FL
     fd = inputs.fd if inputs.fd is not None else DEFAULT_FD
     if inputs.xt is None:
         result.assumptions.append(f"Valve xT = {DEFAULT_XT} (globe valve, common practice; not given)")
     if inputs.fl is None:
         result.assumptions.append(f"Valve FL = {DEFAULT_FL} (globe valve, common practice; not given)")
-    kappa = _kappa(inlet, result)
+    kappa = sizing_kappa(inlet, result)
     if inlet.cp is not None:
         result.assumptions.append(
             f"Isentropic exponent κ = w²ρ/p = {kappa:.4f} from IF97 at the inlet (the specific-heat ratio "
@@ -105,27 +158,34 @@ def valve_section(inputs, inlet, result):
             "κ is the property the expansion of real steam follows)")
     result.assumptions.append(f"FL = {fl:g} and Fd = {fd:g} are recorded for the valve; for steam (compressible, "
                               "turbulent) the sizing uses xT, and FL, Fd matter only for liquid or laminar flow")
+    result.assumptions.append("Flow cases at their own upstream pressure: the maximum flow at the lowest upstream "
+                              "pressure (largest Kv), the minimum flow at the highest (smallest Kv), the normal flow "
+                              "at the normal pressure (common practice)")
     with_fittings = _valve_geometry(inputs)[1][0] is not None
-    p1_kpa, p2_kpa = inputs.inlet_pressure / 1e3, inputs.outlet_pressure / 1e3
     result.add("isentropic_exponent", "Isentropic exponent at the inlet", kappa)
-    sizing = {}
+    sizing, states = {}, {}
     for name, flow in flow_cases(inputs):
-        s = required_kv(inputs, inlet, kappa, flow)
-        sizing[name] = s
+        state = inlet_state_at(inputs, case_inlet_pressure(inputs, name), inlet)
+        s = required_kv(inputs, state, sizing_kappa(state), flow)
+        sizing[name], states[name] = s, state
         result.add(f"valve_kv_{name}", f"Required Kv, {name} flow", s.kv, "m**3/h")
         result.add(f"choked_{name}", f"Choked flow, {name} flow", s.choked)
+        result.add(f"valve_pressures_{name}", f"Pressures the {name} flow is sized at",
+                   _pressure_pair(state.pressure, inputs.outlet_pressure))
     design_case = "maximum" if "maximum" in sizing else "normal"
-    design = sizing[design_case]
-    result.step("Pressure differential ratio", "x = (p1 − p2) / p1",
+    design, state = sizing[design_case], states[design_case]
+    p1_kpa, p2_kpa = state.pressure / 1e3, inputs.outlet_pressure / 1e3
+    design_kappa = sizing_kappa(state)
+    result.step("Pressure differential ratio", f"x = (p1 − p2) / p1  ({design_case} flow)",
                 f"x = ({p1_kpa:.1f} − {p2_kpa:.1f}) kPa / {p1_kpa:.1f} kPa", design.x)
     result.step("Choked limit", "x_choked = Fγ·xT  (Fγ = κ/1.40)" + ("; xTP with fittings" if with_fittings else ""),
-                f"x_choked = ({kappa:.4f}/1.40) × {design.xtp:.4f}", design.x_choked)
+                f"x_choked = ({design_kappa:.4f}/1.40) × {design.xtp:.4f}", design.x_choked)
     result.step("Expansion factor", "Y = 1 − min(x, x_choked) / (3·x_choked)",
                 f"Y = 1 − {min(design.x, design.x_choked):.4f} / (3 × {design.x_choked:.4f})", design.expansion_factor)
     design_flow = dict(flow_cases(inputs))[design_case]
     result.step(f"Required Kv ({design_case} flow)", "Kv = W / (N6·Fp·Y·√(x_siz·p1·ρ1)), N6 = 3.16",
                 f"Kv = {design_flow * 3600:.1f} kg/h / (3.16 × {design.piping_factor:.4f} × {design.expansion_factor:.4f}"
-                f" × √({min(design.x, design.x_choked):.4f} × {p1_kpa:.1f} kPa × {inlet.density:.4f} kg/m³))",
+                f" × √({min(design.x, design.x_choked):.4f} × {p1_kpa:.1f} kPa × {state.density:.4f} kg/m³))",
                 design.kv, "m**3/h")
     result.add("valve_kv", f"Required Kv (sized on the {design_case} flow)", design.kv, "m**3/h")
     result.add("valve_cv", f"Required Cv (sized on the {design_case} flow)", kv_to_cv(design.kv), "")
@@ -138,11 +198,12 @@ def valve_section(inputs, inlet, result):
     else:
         result.check("Choked flow", "pass", f"x = {design.x:.3f} below the choked limit {design.x_choked:.3f}")
     if inputs.rated_kv is not None:
-        _rated_valve(inputs, inlet, kappa, sizing, design, result)
+        _rated_valve(inputs, sizing, design, result)
+    relief_load_section(inputs, inlet, result)
     return sizing
 
 
-def _rated_valve(inputs, inlet, kappa, sizing, design, result):
+def _rated_valve(inputs, sizing, design, result):
     kvs = inputs.rated_kv
     characteristic = inputs.characteristic or "equal-percentage"
     rangeability = inputs.rangeability if inputs.rangeability is not None else DEFAULT_RANGEABILITY
@@ -169,30 +230,67 @@ def _rated_valve(inputs, inlet, kappa, sizing, design, result):
                 "h = Kv/Kvs (linear) or h = 1 + ln(Kv/Kvs)/ln R (equal-percentage)",
                 f"Kv/Kvs = {sizing['normal'].kv:.3f} / {kvs:.3f}", result.value("valve_travel_normal"), "percent")
 
-    # Fail-open: the rated valve wide open at the inlet pressure against the downstream relief set pressure.
+
+def relief_load_section(inputs, inlet, result):
+    """Flow through the rated valve, and through the bypass, wide open at the highest upstream
+    pressure against the downstream relief set pressure; the relief device's design flow."""
+    if inputs.rated_kv is None and inputs.bypass_kv is None:
+        return
+    p_up = case_inlet_pressure(inputs, "fail-open")
+    if inputs.max_inlet_pressure is None:
+        result.check("Highest upstream pressure given", "warn",
+                     f"no highest upstream pressure: the fail-open flow is taken at the normal inlet pressure "
+                     f"{p_up / 1e5:.4g} bar(a), which understates the relief load if the inlet can rise (boiler or "
+                     "HP header safety-valve setting); give valve.max_inlet_pressure")
     if inputs.relief_set_pressure is not None:
         p_down = inputs.relief_set_pressure
-        where = "the relief set pressure"
+        where = f"the relief set pressure {p_down / 1e5:.4g} bar(a)"
     else:
         p_down = inputs.outlet_pressure
-        where = "the normal outlet pressure (no relief set pressure given; the flow at a higher set pressure is lower)"
-    if p_down >= inputs.inlet_pressure:
-        raise InputError("the relief set pressure must be below the inlet pressure", field="valve.relief_set_pressure")
-    # Wide open, the fittings act on the rated Kv, not on the Kv the design flow needs.
+        where = (f"the normal outlet pressure {p_down / 1e5:.4g} bar(a) (no relief set pressure given; at the set "
+                 "pressure the flow is the same when choked and lower when not)")
+    if p_down >= p_up:
+        raise InputError("the relief set pressure must be below the upstream pressure", field="valve.relief_set_pressure",
+                         value=p_down, fix="check the pressure and its basis (bar(g)/bar(a))")
+    state = inlet_state_at(inputs, p_up, inlet)
+    kappa = sizing_kappa(state)
+    result.assumptions.append(
+        f"Relief load: valve and bypass wide open at the highest upstream pressure {p_up / 1e5:.4g} bar(a) "
+        f"({state.temperature - 273.15:.1f} °C) against {where}; no credit for the low-pressure users' "
+        "consumption (common practice)")
     xt, (valve_d, inlet_d, outlet_d) = _valve_geometry(inputs)
-    fp, xtp = piping_factors(kvs, valve_d, inlet_d, outlet_d, xt) if valve_d is not None else (1.0, xt)
-    flow = valve_flow(kvs, inputs.inlet_pressure / 1e3, p_down / 1e3, inlet.density, kappa, xtp, fp)
-    result.add("fail_open_flow", "Fail-open flow of the rated valve (for the relief device check)", flow, "kg/h")
-    result.step("Fail-open flow", "W = N6·Fp·Kvs·Y·√(x_siz·p1·ρ1) at p2 = downstream relief set pressure",
-                f"Kvs = {kvs:.2f} m³/h, p1 = {inputs.inlet_pressure / 1e5:.4g} bar(a), p2 = {p_down / 1e5:.4g} bar(a)",
-                flow, "kg/h")
-    result.check("Fail-open flow for the relief designer", "warn",
-                 f"if the valve (or its bypass) fails open it passes about {flow:,.0f} kg/h against {where}: the "
-                 "downstream relief device must be checked against this flow, to the local pressure-equipment code")
+    flows = {}
+    if inputs.rated_kv is not None:
+        kvs = inputs.rated_kv
+        # Wide open, the fittings act on the rated Kv, not on the Kv the design flow needs.
+        fp, xtp = piping_factors(kvs, valve_d, inlet_d, outlet_d, xt) if valve_d is not None else (1.0, xt)
+        flows["fail_open_flow"] = valve_flow(kvs, p_up / 1e3, p_down / 1e3, state.density, kappa, xtp, fp)
+        result.add("fail_open_flow", "Fail-open flow of the rated valve", flows["fail_open_flow"], "kg/h")
+        result.step("Fail-open flow", "W = N6·Fp·Kvs·Y·√(x_siz·p1·ρ1), valve wide open",
+                    f"Kvs = {kvs:.2f} m³/h, p1 = {p_up / 1e5:.4g} bar(a) (highest upstream), "
+                    f"p2 = {p_down / 1e5:.4g} bar(a) ({'relief set pressure' if inputs.relief_set_pressure else 'normal outlet pressure, no relief set pressure given'}), "
+                    f"ρ1 = {state.density:.4f} kg/m³, κ = {kappa:.4f}", flows["fail_open_flow"], "kg/h")
+    if inputs.bypass_kv is not None:
+        flows["bypass_open_flow"] = valve_flow(inputs.bypass_kv, p_up / 1e3, p_down / 1e3, state.density, kappa, xt)
+        result.add("bypass_open_flow", "Flow through the bypass valve wide open", flows["bypass_open_flow"], "kg/h")
+        result.step("Bypass-open flow", "W = N6·Kv_bypass·Y·√(x_siz·p1·ρ1), Fp = 1",
+                    f"Kv = {inputs.bypass_kv:.2f} m³/h, xT = {xt:g} (the main valve's), p1 = {p_up / 1e5:.4g} bar(a), "
+                    f"p2 = {p_down / 1e5:.4g} bar(a)", flows["bypass_open_flow"], "kg/h")
+        result.assumptions.append(f"Bypass valve at the main valve's xT = {xt:g}, no reducers (a bypass with a lower "
+                                  "xT passes less when choked)")
+    governing = max(flows, key=flows.get)
+    design_flow = flows[governing]
+    what = "the control valve failing open" if governing == "fail_open_flow" else "the bypass valve wide open"
+    result.add("relief_design_flow", "Relief design flow (larger of fail-open and bypass-open)", design_flow, "kg/h")
+    result.check("Relief design flow for the relief designer", "warn",
+                 f"{what} passes about {design_flow:,.0f} kg/h from {p_up / 1e5:.4g} bar(a) against {where}: the "
+                 "downstream relief device must be sized for this flow, to the local pressure-equipment code")
 
 
-def _smallest_size(mass_flow, density, limit, schedule):
+def _smallest_size(mass_flow, density, limit, schedule, non_preferred=False):
     for dn, _ in sorted(DN_TO_NPS.items()):
+        if dn in NON_PREFERRED_DN and not non_preferred:
+            continue
         try:
             d = pipe_inner_diameter(f"DN{dn}", schedule)
         except InputError:
@@ -215,13 +313,22 @@ def line_section(inputs, inlet, throttled, outlet, result):
     result.assumptions.append(f"Line velocities at the {'maximum' if inputs.max_flow else 'normal'} flow, "
                               f"schedule {schedule} pipe (ASME B36.10M)")
 
+    if throttled is not outlet:
+        result.assumptions.append("Downstream of the desuperheater the saturated/wet steam velocity limit applies: "
+                                  "spray droplets may remain in the line (common practice)")
+    if not inputs.non_preferred_sizes:
+        result.assumptions.append("Suggested line sizes skip the non-preferred sizes "
+                                  + ", ".join(f"DN{dn}" for dn in NON_PREFERRED_DN) + " (common practice)")
+
     def limit(state):
+        if state is outlet and throttled is not outlet:
+            return wet_limit
         return hot_limit if state.phase == "superheated vapour" and (state.superheat or 0) > 5.0 else wet_limit
 
     for key, state, flow, size_key, label in (
             ("inlet", inlet, design_flow, "inlet_size", "Inlet line"),
             ("outlet", outlet, design_flow * spray_ratio, "outlet_size", "Outlet line")):
-        suggested = _smallest_size(flow, state.density, limit(state), schedule)
+        suggested = _smallest_size(flow, state.density, limit(state), schedule, bool(inputs.non_preferred_sizes))
         result.add(f"suggested_{key}_size", f"{label}: smallest size under {limit(state):g} m/s",
                    suggested or "larger than DN600")
         if sizes[size_key] is None:
@@ -238,45 +345,3 @@ def line_section(inputs, inlet, throttled, outlet, result):
     if throttled is not outlet and sizes["outlet_size"] is not None:
         velocity = line_velocity(design_flow, throttled.density, sizes["outlet_size"])
         result.add("valve_outlet_velocity", "Velocity after the valve, before the desuperheater", velocity, "m/s")
-
-
-def power_section(inputs, inlet, throttled, site, result):
-    """Isentropic drop, recoverable turbine power and its yearly value, exergy destroyed in the valve."""
-    try:
-        isentropic = SteamState.from_ps(inputs.outlet_pressure, inlet.entropy)
-    except OutOfRangeError as exc:
-        raise exc.for_field("outlet_pressure") from None
-    drop = inlet.enthalpy - isentropic.enthalpy
-    efficiency = inputs.isentropic_efficiency
-    if efficiency is None:
-        efficiency = DEFAULT_TURBINE_EFFICIENCY
-        result.assumptions.append(f"Back-pressure turbine isentropic efficiency {DEFAULT_TURBINE_EFFICIENCY} "
-                                  "(small single-stage machine, common practice; not given)")
-    power = inputs.mass_flow * efficiency * drop
-    result.step("Isentropic enthalpy drop", "Δh_s = h1 − h(p2, s1)",
-                f"Δh_s = {inlet.enthalpy / 1e3:.2f} − {isentropic.enthalpy / 1e3:.2f} kJ/kg", drop / 1e3, "kJ/kg")
-    result.step("Recoverable shaft power", "P = m·η_s·Δh_s",
-                f"P = {inputs.mass_flow:.4f} kg/s × {efficiency:g} × {drop / 1e3:.2f} kJ/kg", power / 1e3, "kW")
-    result.add("isentropic_enthalpy_drop", "Isentropic enthalpy drop, inlet to outlet pressure", drop / 1e3, "kJ/kg")
-    result.add("recoverable_power", "Shaft power a back-pressure turbine would recover", power / 1e3, "kW")
-    result.assumptions.append("Recoverable power at the normal flow; a turbine in place of the valve would deliver "
-                              "wetter or cooler steam (less heat per kg) to the low-pressure users")
-    if not missing_site_data(site, ("operating_hours", "power_price")):
-        energy = annual_energy(power, site.operating_hours)
-        value = annual_value(energy, site.power_price)
-        result.add("annual_recoverable_energy", "Electrical energy a year a turbine would recover (shaft)", energy, "MWh")
-        result.add("annual_recoverable_value", "Value a year at the site's power price", value, site.power_price.currency)
-        result.step("Value a year", "V = P·t·power price",
-                    f"V = {power / 1e3:.1f} kW × {site.operating_hours:g} h × {site.power_price}", value,
-                    site.power_price.currency)
-    ambient = site.ambient_temperature
-    if ambient is None:
-        ambient = DEFAULT_AMBIENT
-        result.assumptions.append(f"Dead state for exergy {DEFAULT_AMBIENT - 273.15:g} °C (site gives no ambient)")
-    destroyed = ambient * inputs.mass_flow * (throttled.entropy - inlet.entropy)
-    result.step("Exergy destroyed in the valve", "Ẋ_d = T0·m·(s2 − s1)  (Gouy–Stodola)",
-                f"Ẋ_d = {ambient:.2f} K × {inputs.mass_flow:.4f} kg/s × ({throttled.entropy / 1e3:.5f} − "
-                f"{inlet.entropy / 1e3:.5f}) kJ/(kg·K)", destroyed / 1e3, "kW")
-    result.add("exergy_destroyed", "Exergy destroyed in the valve", destroyed / 1e3, "kW")
-    result.check("Second-law check", "pass" if destroyed > 0 else "fail",
-                 f"entropy rises across the valve by {(throttled.entropy - inlet.entropy) / 1e3:.5f} kJ/(kg·K)")
