@@ -170,7 +170,7 @@ def _diff(args):
     for row in rows:
         change = row["change"]
         change = f"{change:+.6g}" if isinstance(change, float) else change
-        print(f"  [{row['section']}] {row['key']}: {_cell(row['old'])} -> {_cell(row['new'])} {row['unit']}  ({change})")
+        print(f"  [{row['section']}] {row['key']}: {_cell(row['old'])} -> {_cell(row['new'])} {row['unit_label']}  ({change})")
     if args.html:
         from .record import write_text_atomic
         from .report import render_diff_html

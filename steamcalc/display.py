@@ -41,9 +41,50 @@ def convert(value, unit, system):
     return float(Q_(value, unit).to(target).magnitude), target
 
 
-def unit_label(unit):
-    """A display unit as people write it."""
+#: Pressure units as stored in records and their display units.
+_PRESSURE_UNITS = {"bar": "bar", "psi": "psi", "kPa": "kPa", "MPa": "MPa", "Pa": "Pa"}
+
+
+def unit_label(unit, basis="absolute"):
+    """A display unit as people write it; a pressure always carries its basis.
+
+    Records hold absolute pressures (design §3.4), so a pressure unit reads ``bar(a)``
+    (``psia``) unless ``basis`` is ``"difference"``, when it reads ``bar difference``.
+
+    Examples
+    --------
+    >>> unit_label("bar"), unit_label("psi"), unit_label("bar", "difference")
+    ('bar(a)', 'psia', 'bar difference')
+    """
+    if unit in _PRESSURE_UNITS:
+        if basis == "difference":
+            return f"{unit} difference"
+        return "psia" if unit == "psi" else f"{unit}(a)"
     return _LABELS.get(unit, unit)
+
+
+def pressure_basis(record, section, key):
+    """``"difference"`` for a record entry that holds a pressure difference, else ``"absolute"``.
+
+    Inputs are looked up by their field kind; results by the calculation's
+    ``PRESSURE_DIFFERENCE_RESULTS``; tolerances are always differences.
+    """
+    if section == "tolerances":
+        return "difference"
+    from .calcs import get_calculation
+
+    try:
+        calc = get_calculation(record.get("kind"))
+    except Exception:   # an unknown kind is reported elsewhere; here it only labels units
+        return "absolute"
+    if section == "inputs":
+        from .calcs.base import input_fields
+
+        kinds = {f.name: f.metadata["kind"] for f in input_fields(calc.Inputs)}
+        return "difference" if kinds.get(key) == "pressure_difference" else "absolute"
+    if section == "results" and key in getattr(calc, "PRESSURE_DIFFERENCE_RESULTS", ()):
+        return "difference"
+    return "absolute"
 
 
 def display_record(record):

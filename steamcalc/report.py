@@ -34,15 +34,19 @@ def format_number(value):
     return f"{value:.5g}"
 
 
-def format_unit(unit, absolute=False):
-    """A unit string for people: °C for degC; bar(a) for an absolute pressure in bar."""
+def format_unit(unit, basis="absolute"):
+    """A unit string for people: °C for degC; a pressure with its basis, bar(a) or bar difference.
+
+    Examples
+    --------
+    >>> format_unit("bar"), format_unit("bar", "difference"), format_unit("m**3/h")
+    ('bar(a)', 'bar difference', 'm³/h')
+    """
     from .display import unit_label
 
-    if absolute and unit == "bar":
-        return "bar(a)"
     if unit == "percent":
         return "%"
-    return _UNIT_NAMES.get(unit, unit_label(unit)).replace("**2", "²").replace("**3", "³").replace("*", "·")
+    return _UNIT_NAMES.get(unit, unit_label(unit, basis)).replace("**2", "²").replace("**3", "³").replace("*", "·")
 
 
 def _md(text):
@@ -68,7 +72,12 @@ def _context(record):
     from .display import display_record
 
     calc = get_calculation(record["kind"])
-    return {"r": display_record(record), "stem": record_stem(record), "kind_title": calc.TITLE}
+    from .display import pressure_basis
+
+    def basis(section, key):
+        return pressure_basis(record, section, key)
+
+    return {"r": display_record(record), "stem": record_stem(record), "kind_title": calc.TITLE, "basis": basis}
 
 
 def render_html(record):

@@ -30,8 +30,20 @@ def diff_records(old, new):
     -------
     list of dict
         One row per change: ``section``, ``key``, ``old``, ``new``, ``unit``, ``change`` (the
-        numeric difference where both are numbers, else 'added', 'removed' or 'changed').
+        numeric difference where both are numbers, else 'added', 'removed' or 'changed'), and
+        ``unit_label``, the unit as people write it (pressures with their basis).
     """
+    rows = _diff_rows(old, new)
+    from .display import pressure_basis
+    from .report import format_unit
+
+    for row in rows:
+        row["unit_label"] = format_unit(row["unit"], pressure_basis(new, row["section"], row["key"])) \
+            if row["unit"] else ""
+    return rows
+
+
+def _diff_rows(old, new):
     rows = []
     for section in ("inputs", "results"):
         a, b = old.get(section, {}), new.get(section, {})
@@ -79,7 +91,11 @@ def diff_records(old, new):
 
 def _short(value):
     if isinstance(value, dict) and "value" in value:
-        return f"{value['value']:g} {value.get('unit', '')}".strip() if isinstance(value["value"], float) else value["value"]
+        if not isinstance(value["value"], float):
+            return value["value"]
+        from .report import format_unit
+
+        return f"{value['value']:g} {format_unit(value.get('unit', ''))}".strip()
     if isinstance(value, dict):
         return ", ".join(f"{k} {_short(v)}" for k, v in value.items())
     return value

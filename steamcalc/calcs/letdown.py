@@ -349,7 +349,7 @@ def calculate(inputs, site):
     result.add("inlet_enthalpy", "Inlet enthalpy", inlet.enthalpy / 1e3, "kJ/kg")
     result.add("inlet_mass_flow", "Inlet steam flow", flow * 3600, "kg/h")
     result.check("Outlet pressure below inlet", "pass",
-                 f"pressure drop {(p1 - p2) / 1e5:.4g} bar across the station")
+                 f"{bar_a(p1)} to {bar_a(p2)}: a drop of {(p1 - p2) / 1e5:.4g} bar difference across the station")
     if inlet.phase == "wet":
         result.check("Inlet steam state", "warn",
                      f"wet inlet steam (dryness {inlet.dryness:.3f}): erosion of the valve trim and "
@@ -470,12 +470,12 @@ def _desuperheat(inputs, throttled, t_sat2, result):
     pressure_margin = water_p - p2
     if pressure_margin < MIN_SPRAY_PRESSURE_MARGIN:
         result.check("Spray water pressure above steam", "warn",
-                     f"water only {pressure_margin / 1e5:.2f} bar above the steam: atomisation doubtful "
-                     f"below about {MIN_SPRAY_PRESSURE_MARGIN / 1e5:g} bar (common practice; the nozzle "
+                     f"water only {pressure_margin / 1e5:.2f} bar difference above the steam: atomisation doubtful "
+                     f"below about {MIN_SPRAY_PRESSURE_MARGIN / 1e5:g} bar difference (common practice; the nozzle "
                      "maker's required differential governs)")
     else:
         result.check("Spray water pressure above steam", "pass",
-                     f"water {pressure_margin / 1e5:.2f} bar above the steam")
+                     f"water {pressure_margin / 1e5:.2f} bar difference above the steam")
 
     result.add("desuperheat_target_temperature", "Desuperheat target temperature", target_t - 273.15, "degC")
     result.add("spray_water_enthalpy", "Spray water enthalpy", water.enthalpy / 1e3, "kJ/kg")

@@ -177,7 +177,7 @@ def valve_section(inputs, inlet, result):
     p1_kpa, p2_kpa = state.pressure / 1e3, inputs.outlet_pressure / 1e3
     design_kappa = sizing_kappa(state)
     result.step("Pressure differential ratio", f"x = (p1 − p2) / p1  ({design_case} flow)",
-                f"x = ({p1_kpa:.1f} − {p2_kpa:.1f}) kPa / {p1_kpa:.1f} kPa", design.x)
+                f"x = ({p1_kpa:.1f} − {p2_kpa:.1f}) kPa(a) / {p1_kpa:.1f} kPa(a)", design.x)
     result.step("Choked limit", "x_choked = Fγ·xT  (Fγ = κ/1.40)" + ("; xTP with fittings" if with_fittings else ""),
                 f"x_choked = ({design_kappa:.4f}/1.40) × {design.xtp:.4f}", design.x_choked)
     result.step("Expansion factor", "Y = 1 − min(x, x_choked) / (3·x_choked)",
@@ -185,7 +185,7 @@ def valve_section(inputs, inlet, result):
     design_flow = dict(flow_cases(inputs))[design_case]
     result.step(f"Required Kv ({design_case} flow)", "Kv = W / (N6·Fp·Y·√(x_siz·p1·ρ1)), N6 = 3.16",
                 f"Kv = {design_flow * 3600:.1f} kg/h / (3.16 × {design.piping_factor:.4f} × {design.expansion_factor:.4f}"
-                f" × √({min(design.x, design.x_choked):.4f} × {p1_kpa:.1f} kPa × {state.density:.4f} kg/m³))",
+                f" × √({min(design.x, design.x_choked):.4f} × {p1_kpa:.1f} kPa(a) × {state.density:.4f} kg/m³))",
                 design.kv, "m**3/h")
     result.add("valve_kv", f"Required Kv (sized on the {design_case} flow)", design.kv, "m**3/h")
     result.add("valve_cv", f"Required Cv (sized on the {design_case} flow)", kv_to_cv(design.kv), "")

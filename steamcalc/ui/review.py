@@ -109,7 +109,7 @@ class ReviewBook:
         rows = diff_records(earlier, self.record)
         body = "".join(f"<tr><td>{html.escape(r['section'])}</td><td>{html.escape(str(r['key']))}</td>"
                        f"<td>{html.escape(format_number(r['old']))}</td><td>{html.escape(format_number(r['new']))}</td>"
-                       f"<td>{html.escape(format_unit(r['unit']))}</td><td>{html.escape(format_number(r['change']))}</td></tr>"
+                       f"<td>{html.escape(r['unit_label'])}</td><td>{html.escape(format_number(r['change']))}</td></tr>"
                        for r in rows)
         self._diff.value = ("<p>No differences.</p>" if not rows else
                             f"<table><tr><th>section</th><th>item</th><th>{html.escape(self._earlier.value)}</th>"
