@@ -9,6 +9,7 @@ from __future__ import annotations
 
 from ..errors import OutOfRangeError
 from ..steam import SteamState
+from .balance import Stream, check_energy_balance
 from .economics import annual_energy, annual_fuel_energy, annual_value, missing_site_data
 
 #: Isentropic efficiency of a small single-stage back-pressure turbine (common practice).
@@ -125,6 +126,10 @@ def power_section(inputs, inlet, throttled, site, result):
     result.add("recoverable_electrical_power", "Electrical power a turbine-generator would recover",
                generator * power / 1e3, "kW")
     _exhaust(inputs, inlet, isentropic, efficiency, result)
+    # The valve's own balance, h2 = h1, re-worked from the two recorded states with the other engine.
+    check_energy_balance(result, "Throttling energy balance (independent)",
+                         [Stream.of("inlet steam", inputs.mass_flow, inlet)],
+                         [Stream.of("steam after the valve", inputs.mass_flow, throttled)], inputs.mass_flow * drop)
     result.assumptions.append("Turbine figures at the normal flow. The turbine exhaust carries less heat per kg "
                               "than the valve's outlet, so the boiler makes up the shaft work: the yearly value "
                               "is net of that make-up fuel (first-law balance, common practice)")
