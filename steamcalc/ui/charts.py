@@ -133,7 +133,7 @@ def valve_chart(inputs, result, points=40):
     flows = np.linspace(low * 0.8, high * 1.1, points)
     kvs = [required_kv(inputs, inlet, kappa, w).kv for w in flows]
     fig = make_subplots(specs=[[{"secondary_y": True}]])
-    fig.add_trace(go.Scatter(x=flows * 3600, y=kvs, name="required Kv", line=dict(color=_COLOURS["outlet"], width=2)))
+    fig.add_trace(go.Scatter(x=flows * 3600, y=kvs, name="required Kv at the normal inlet pressure", line=dict(color=_COLOURS["outlet"], width=2)))
     cases = flow_cases(inputs)
     fig.add_trace(go.Scatter(x=[w * 3600 for _, w in cases], y=[result.value(f"valve_kv_{n}") for n, _ in cases],
                              mode="markers+text", text=[n for n, _ in cases], textposition="bottom right",
@@ -159,7 +159,9 @@ def valve_case_rows(inputs, result):
 
     rows = []
     for name, flow in flow_cases(inputs):
-        row = {"flow case": name, "flow, kg/h": flow * 3600, "required Kv, m³/h": result.value(f"valve_kv_{name}"),
+        row = {"flow case": name, "flow, kg/h": flow * 3600,
+               "sized at": result.value(f"valve_pressures_{name}") if f"valve_pressures_{name}" in result.values else "",
+               "required Kv, m³/h": result.value(f"valve_kv_{name}"),
                "choked": "yes" if result.value(f"choked_{name}") else "no"}
         if f"valve_travel_{name}" in result.values:
             row["travel, %"] = result.value(f"valve_travel_{name}")
