@@ -72,7 +72,7 @@ def test_souders_brown_published_form():
     rho_v = PropsSI("D", "P", 3.5e5, "Q", 1, "Water")
     v = 0.06 * math.sqrt((rho_l - rho_v) / rho_v)
     q = r.value("flash_steam_flow") / 3600 / rho_v
-    assert r.value("vessel_diameter") == pytest.approx(math.sqrt(4 * q / (math.pi * v)), rel=1e-3)
+    assert r.value("vessel_vapour_diameter") == pytest.approx(math.sqrt(4 * q / (math.pi * v)), rel=1e-3)
 
 
 def test_vented_receiver_is_reported_as_a_loss():
