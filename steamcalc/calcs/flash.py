@@ -85,6 +85,10 @@ class Inputs:
         example="DN40", section="vessel")
 
     def __post_init__(self):
+        if self.residence_time is not None and not self.residence_time > 0.0:
+            raise InputError(f"a liquid residence time of {self.residence_time / 60:g} min cannot hold any liquid",
+                             field="vessel.residence_time", value=f"{self.residence_time:g} s",
+                             fix="give a time above zero, e.g. residence_time = \"1 min\" (or leave it out for 1 min)")
         check_fields(self)
         if (self.flash_pressure is None) == (self.stages is None):
             raise InputError("give flash_pressure or stages (exactly one)",
