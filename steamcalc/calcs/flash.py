@@ -171,14 +171,18 @@ def calculate(inputs, site):
         pressure (Pa) or cascade stage pressures (Pa); optional demand (kg/s) and vessel data.
     site : steamcalc.site.Site
         Operating hours, boiler efficiency, fuel price and make-up water temperature give
-        the yearly figures; an emission factor adds the CO2.
+        the yearly figures, on the site's ``fuel_basis``; an emission factor adds the CO2,
+        a ``water_cost`` the make-up water credit.
 
     Returns
     -------
     Result
         ``flash_fraction``, ``flash_steam_flow`` (kg/h), ``residual_condensate_flow`` (kg/h),
-        ``recovered_heat_rate`` (kW), ``vessel_diameter`` (m), ``annual_fuel_energy_saved``
-        (MWh), ``annual_cost_saving``, with per-stage values for a cascade.
+        ``recovered_heat_rate`` (kW), ``vessel_diameter`` and ``vessel_height`` (m) with the
+        criterion that governs, ``inlet_line_velocity`` (m/s, homogeneous) and ``inlet_momentum``
+        (Pa) when the inlet size is given, ``annual_fuel_energy_saved`` (MWh),
+        ``annual_cost_saving``, ``annual_water_cost_saving`` and ``annual_total_saving`` with a
+        water cost, and per-stage values for a cascade.
 
     Notes
     -----
@@ -191,15 +195,18 @@ def calculate(inputs, site):
     :math:`\\dot Q = \\dot m_{flash} (h_g(p) - h_{mw})`; fuel a year
     :math:`E = \\dot Q t / \\eta_{boiler}`.
 
-    Vessel, Souders–Brown allowable vapour velocity
-    :math:`v = K \\sqrt{(\\rho_f - \\rho_g)/\\rho_g}` and
-    :math:`D = \\sqrt{4 \\dot V_g / (\\pi v)}`.
+    Vessel, the largest of three diameters: Souders–Brown vapour area
+    :math:`D_v = \\sqrt{4 \\dot V_g / (\\pi v)}`, :math:`v = K \\sqrt{(\\rho_f - \\rho_g)/\\rho_g}`;
+    liquid hold-up :math:`D_L = (4 \\dot V_f t_{res} / \\pi)^{1/3}` (liquid no deeper than D);
+    nozzles :math:`D_N = 2 d_{max}` (see :mod:`steamcalc.calcs.flash_vessel`).
 
     References
     ----------
     IAPWS R7-97(2012), IAPWS-IF97, for every property. Souders, M. and Brown, G. G. (1934),
     "Design of Fractionating Columns I. Entrainment and Capacity", Ind. Eng. Chem. 26(1),
-    98–103 (through ``fluids.separator.v_Souders_Brown``). API RP 14E (2000), erosional velocity.
+    98–103 (through ``fluids.separator.v_Souders_Brown``). Svrcek, W. Y. and Monnery, W. D.
+    (1993), Chem. Eng. Prog. 89(10), 53–60 (vessel height). ASME BPVC VIII-1 UG-36(b)(1)
+    (nozzle openings). API RP 14E (2000), erosional velocity, for information only.
 
     Examples
     --------
@@ -313,11 +320,11 @@ def _recovered_heat(inputs, site, stages, total_flash, result):
     result.add("recovered_heat_rate", label, heat / 1e3, "kW")
     result.assumptions.append("Recovered heat counted from make-up water temperature: each kg of flash steam "
                               "used displaces a kg of boiler steam raised from make-up water")
-    _water_credit(inputs, site, total_flash, makeup, result)
     missing = missing_site_data(site, ("operating_hours", "boiler_efficiency", "fuel_price"))
     if missing:
         result.check("Site data for yearly figures", "warn",
                      f"the site file lacks {', '.join(missing)}: yearly energy and cost not computed")
+        _water_credit(inputs, site, total_flash, makeup, result)
         return
     basis = fuel_basis(site)
     result.assumptions.append(fuel_basis_assumption(site))
@@ -336,14 +343,15 @@ def _recovered_heat(inputs, site, stages, total_flash, result):
     if site.fuel_emission_factor is not None:
         result.add("annual_co2_avoided", "CO2 a year (avoided by recovery)", fuel * site.fuel_emission_factor / 1e3,
                    "t")
-    water = result.values.get("annual_water_cost_saving")
+    water = _water_credit(inputs, site, total_flash, makeup, result)
     if water is not None:
-        if water.unit == site.fuel_price.currency:
-            result.add("annual_total_saving", f"Fuel and water cost a year ({when})", money + water.value,
+        if site.water_cost.currency == site.fuel_price.currency:
+            result.add("annual_total_saving", f"Fuel and water cost a year ({when})", money + water,
                        site.fuel_price.currency)
         else:
             result.check("One currency for fuel and water", "warn",
-                         f"fuel is priced in {site.fuel_price.currency} and water in {water.unit}: no total given")
+                         f"fuel is priced in {site.fuel_price.currency} and water in {site.water_cost.currency}: "
+                         "no total given")
     if inputs.vented:
         result.check("Vented receiver", "warn",
                      f"{total_flash * 3600:.1f} kg/h of flash steam vents to atmosphere: {heat / 1e3:.1f} kW, "
@@ -354,7 +362,7 @@ def _water_credit(inputs, site, total_flash, makeup, result):
     # Vented, the flash steam's water is lost and made up; used, it stays in the system and
     # displaces boiler steam, so that much make-up water (and its treatment) is not bought.
     if site.water_cost is None or site.operating_hours is None:
-        return
+        return None
     volume, cost = annual_water_cost(total_flash, makeup.density, site.operating_hours, site.water_cost)
     when = "lost while vented" if inputs.vented else "saved"
     result.step(f"Make-up water a year {'lost' if inputs.vented else 'saved'}", "V = m_flash · t / ρ_makeup",
@@ -369,3 +377,4 @@ def _water_credit(inputs, site, total_flash, makeup, result):
         f"Water credit at the site's water_cost of {site.water_cost} (make-up water and treatment) on the flash "
         "steam's mass: vented it is lost and made up, used it displaces boiler steam; the residual condensate "
         "is taken as returned either way and earns no credit")
+    return cost

@@ -158,12 +158,14 @@ def erosional_velocity(density, c_factor=100.0):
     density : float
         Bulk (homogeneous) density, kg/m³.
     c_factor : float
-        API RP 14E C factor in its US units; 100 for continuous service (the
-        conservative value, used here for flashing condensate).
+        API RP 14E C factor in its US units; 100 for continuous service.
 
     Notes
     -----
     :math:`V_e = C / \\sqrt{\\rho_m}` in ft/s with ρ in lb/ft³ (through ``fluids``).
+    API RP 14E was written for offshore oil-and-gas production piping; for flashing steam
+    condensate it is outside its scope and is given for information only — judge such lines
+    with :func:`two_phase_velocity` against :data:`MAX_FLASHING_CONDENSATE_VELOCITY`.
 
     References
     ----------
