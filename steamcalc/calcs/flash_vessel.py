@@ -172,7 +172,7 @@ def nozzles(inputs, stages, bores, result):
         result.add("inlet_line_velocity", "Two-phase (homogeneous) velocity in the inlet line", velocity, "m/s")
         result.add("inlet_momentum", "Inlet nozzle momentum flux ρv²", momentum, "Pa")
         result.add("inlet_line_erosional_velocity",
-                   "API RP 14E erosional velocity of the inlet line (information only; outside its scope)",
+                   "API RP 14E erosional velocity (information only)",
                    erosional, "m/s")
         result.step("Inlet line two-phase velocity", "v_h = m / (ρ_h·A), 1/ρ_h = x/ρ_g + (1 − x)/ρ_f",
                     f"x = {x:.5f}, ρ_f = {rho_f:.1f}, ρ_g = {rho_g:.4f} → ρ_h = {rho:.3f} kg/m³, "
