@@ -42,6 +42,7 @@ SI_UNITS = {
     "fouling_resistance": "m**2*K/W",
     "volume_flow": "m**3/s",
     "density": "kg/m**3",
+    "time": "s",
     "dimensionless": "",
 }
 
@@ -63,6 +64,7 @@ RECORD_UNITS = {
     "fouling_resistance": "m**2*K/kW",
     "volume_flow": "m**3/h",
     "density": "kg/m**3",
+    "time": "min",
     "dimensionless": "",
 }
 
@@ -81,6 +83,7 @@ _EXAMPLES = {
     "area": "'2.6 m^2'",
     "volume_flow": "'12 m^3/h'",
     "density": "'1030 kg/m^3'",
+    "time": "'1 min' or '60 s'",
 }
 
 _NUMBER = r"[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?"

@@ -30,8 +30,9 @@ def is_file_name_part(text):
 CASE_KEYS = ("kind", "id", "title", "revision", "prepared_by", "site")
 SITE_KEYS = ("name", "elevation", "atmospheric_pressure", "operating_hours", "fuel_price",
              "boiler_efficiency", "makeup_water_temperature", "power_price", "display_units",
-             "fuel_emission_factor", "ambient_temperature")
+             "fuel_emission_factor", "ambient_temperature", "fuel_basis", "water_cost")
 _PRICE = re.compile(r"^\s*([0-9.]+(?:[eE][+-]?\d+)?)\s*([A-Za-z]{1,5})\s*/\s*(MWh|kWh)\s*$")
+_WATER_COST = re.compile(r"^\s*([0-9.]+(?:[eE][+-]?\d+)?)\s*([A-Za-z]{1,5})\s*/\s*(m3|m\^3|m\*\*3|m³|L|l)\s*$")
 
 
 @dataclass(frozen=True)
@@ -43,6 +44,17 @@ class Price:
 
     def __str__(self):
         return f"{self.per_mwh:g} {self.currency}/MWh"
+
+
+@dataclass(frozen=True)
+class WaterCost:
+    """Cost of make-up water with its treatment: amount per m³ in a currency that is only a label."""
+
+    per_m3: float
+    currency: str
+
+    def __str__(self):
+        return f"{self.per_m3:g} {self.currency}/m³"
 
 
 @dataclass(frozen=True)
@@ -62,6 +74,8 @@ class Site:
     header_texts: dict = field(default_factory=dict)
     fuel_emission_factor: float | None = None   # kg CO2 per MWh of fuel
     ambient_temperature: float | None = None    # K; the dead state for exergy
+    fuel_basis: str | None = None               # "gross" | "net" calorific value; None: not stated
+    water_cost: WaterCost | None = None         # make-up water and treatment, per m³
 
     def header_pressure(self, name, field_name):
         """Absolute pressure of a named header, Pa."""
@@ -94,6 +108,10 @@ class Site:
             table["fuel_emission_factor"] = {"value": self.fuel_emission_factor, "unit": "kg/MWh"}
         if self.ambient_temperature is not None:
             table["ambient_temperature"] = {"value": self.ambient_temperature - 273.15, "unit": "degC"}
+        if self.fuel_basis is not None:
+            table["fuel_basis"] = self.fuel_basis
+        if self.water_cost is not None:
+            table["water_cost"] = {"value": self.water_cost.per_m3, "unit": f"{self.water_cost.currency}/m**3"}
         table["display_units"] = self.display_units
         table["headers"] = {k: {"value": v / 1e5, "unit": "bar"} for k, v in self.headers.items()}
         return table
@@ -110,9 +128,12 @@ class Site:
             return None if entry is None else entry["value"]
 
         makeup = plain("makeup_water_temperature")
+        water = table.get("water_cost")
         ambient = plain("ambient_temperature")
         return cls(
             fuel_emission_factor=plain("fuel_emission_factor"),
+            fuel_basis=table.get("fuel_basis"),
+            water_cost=None if water is None else WaterCost(water["value"], water["unit"].split("/")[0]),
             ambient_temperature=None if ambient is None else ambient + 273.15,
             name=table.get("name", "unnamed site"),
             atmospheric_pressure=table["atmospheric_pressure"]["value"] * 1e5,
@@ -203,6 +224,8 @@ def load_site(path):
             if "fuel_emission_factor" in table else None,
             ambient_temperature=parse_quantity(table["ambient_temperature"], "ambient_temperature", "temperature")
             if "ambient_temperature" in table else None,
+            fuel_basis=_parse_fuel_basis(table["fuel_basis"]) if "fuel_basis" in table else None,
+            water_cost=_parse_water_cost(table["water_cost"]) if "water_cost" in table else None,
         )
     except SteamcalcError as exc:
         raise exc.with_source(path)
@@ -239,6 +262,24 @@ def _parse_price(text, field_name):
                         value=text, fix="e.g. '40 EUR/MWh' or '0.04 EUR/kWh'")
     amount = float(match.group(1)) * (1000.0 if match.group(3) == "kWh" else 1.0)
     return Price(amount, match.group(2))
+
+
+def _parse_fuel_basis(value):
+    if value not in ("gross", "net"):
+        raise InputError("the calorific-value basis of the fuel price, boiler efficiency and emission factor "
+                         "must be \"gross\" or \"net\"", field="fuel_basis", value=value,
+                         fix='write fuel_basis = "gross" (GCV, higher heating value) or "net" (NCV, lower '
+                             'heating value), the basis all three figures are quoted on')
+    return value
+
+
+def _parse_water_cost(text):
+    match = _WATER_COST.match(text) if isinstance(text, str) else None
+    if match is None:
+        raise UnitError("a water cost is an amount and a currency per volume of make-up water",
+                        field="water_cost", value=text, fix="e.g. '2.5 EUR/m3' (make-up water and its treatment)")
+    amount = float(match.group(1)) * (1000.0 if match.group(3) in ("L", "l") else 1.0)
+    return WaterCost(amount, match.group(2))
 
 
 def _fraction(value, field_name, exclusive_zero=False):

@@ -72,7 +72,7 @@ def test_souders_brown_published_form():
     rho_v = PropsSI("D", "P", 3.5e5, "Q", 1, "Water")
     v = 0.06 * math.sqrt((rho_l - rho_v) / rho_v)
     q = r.value("flash_steam_flow") / 3600 / rho_v
-    assert r.value("vessel_diameter") == pytest.approx(math.sqrt(4 * q / (math.pi * v)), rel=1e-3)
+    assert r.value("vessel_vapour_diameter") == pytest.approx(math.sqrt(4 * q / (math.pi * v)), rel=1e-3)
 
 
 def test_vented_receiver_is_reported_as_a_loss():
@@ -158,3 +158,141 @@ def test_demo_flash_cases_run_and_verify(tmp_path, demo_site_dir):
 def test_demand_check_needs_no_site_data():
     r = calculate(Inputs(condensate_pressure=17e5, condensate_flow=1.0, flash_pressure=3.5e5, lp_demand=0.01), Site())
     assert next(c for c in r.checks if c.name == "Flash steam within the low-pressure demand").status == "warn"
+
+
+# --- Vessel: vapour area, liquid hold-up, nozzle buildability, height -----------------------------
+
+def _coolprop_saturated(p):
+    """IAPWS-95 through CoolProp (independent library): rho_f, rho_g, h_f, h_g at p."""
+    return (PropsSI("D", "P", p, "Q", 0, "Water"), PropsSI("D", "P", p, "Q", 1, "Water"),
+            PropsSI("H", "P", p, "Q", 0, "Water"), PropsSI("H", "P", p, "Q", 1, "Water"))
+
+
+def _hand_vessel(p_in, p_flash, flow, k, residence, bores):
+    """The three diameters and the height worked by hand from IAPWS-95 (CoolProp) properties."""
+    rho_f, rho_g, h_f, h_g = _coolprop_saturated(p_flash)
+    x = (PropsSI("H", "P", p_in, "Q", 0, "Water") - h_f) / (h_g - h_f)
+    v_allow = k * math.sqrt((rho_f - rho_g) / rho_g)                   # Souders & Brown (1934)
+    d_vapour = math.sqrt(4 * (x * flow / rho_g) / (math.pi * v_allow))
+    holdup = (1 - x) * flow / rho_f * residence                         # V = V_f · t
+    d_holdup = (4 * holdup / math.pi) ** (1 / 3)                        # liquid depth = D
+    d_nozzles = 2 * max(bores) if bores else 0.0                        # ASME VIII-1 UG-36(b)(1): d ≤ D/2
+    return x, d_vapour, d_holdup, d_nozzles, holdup
+
+
+# ASME B36.10M schedule 40 inside diameters, m (6.065 in, 2.067 in, 3.068 in).
+DN150, DN50, DN80 = 0.15405, 0.0525, 0.07793
+
+
+@pytest.mark.parametrize("p_in,p_flash,flow,residence,nozzles,bores,governs,source", [
+    (9.0e5, 3.5e5, 0.889, 60.0, ("DN50", "DN150", "DN40"), (DN50, DN150), "liquid hold-up",
+     "hand: Souders–Brown, hold-up depth = D, 2 × bore; IAPWS-95 (CoolProp)"),
+    (9.0e5, 3.5e5, 0.889, 5.0, ("DN50", "DN150", None), (DN50, DN150), "nozzle buildability",
+     "hand, as above; 5 s hold-up"),
+    (17e5, 1.1e5, 1.0, 10.0, (None, None, None), (), "vapour area",
+     "hand, as above; no nozzles given"),
+    (17e5, 1.1e5, 0.3, 180.0, (None, "DN80", None), (DN80,), "liquid hold-up",
+     "hand, as above; 3 min hold-up"),
+])
+def test_vessel_diameter_is_the_largest_criterion_by_hand(p_in, p_flash, flow, residence, nozzles, bores,
+                                                          governs, source):
+    inlet, steam, drain = nozzles
+    r = calculate(Inputs(condensate_pressure=p_in, condensate_flow=flow, flash_pressure=p_flash, k_factor=0.06,
+                         residence_time=residence, inlet_nozzle=inlet, steam_nozzle=steam,
+                         condensate_nozzle=drain), SITE)
+    _, d_vapour, d_holdup, d_nozzles, holdup = _hand_vessel(p_in, p_flash, flow, 0.06, residence, bores)
+    # IF97 and IAPWS-95 saturated densities agree to about 1e-4 relative; B36.10M bores to 0.1 mm.
+    assert r.value("vessel_vapour_diameter") == pytest.approx(d_vapour, rel=1e-3)
+    assert r.value("vessel_holdup_diameter") == pytest.approx(d_holdup, rel=1e-3)
+    assert r.value("vessel_liquid_holdup") == pytest.approx(holdup, rel=1e-3)
+    if bores:
+        assert r.value("vessel_nozzle_diameter") == pytest.approx(d_nozzles, rel=1e-3)
+    assert r.value("vessel_governing_criterion") == governs
+    assert r.value("vessel_diameter") == pytest.approx(max(d_vapour, d_holdup, d_nozzles), rel=1e-3)
+
+
+@pytest.mark.parametrize("inlet,inlet_bore,source", [
+    ("DN50", DN50, "hand: Svrcek & Monnery (1993) stack, 0.3 m + d/2 and max(0.9 m + d/2, D/2)"),
+    (None, 0.0, "hand, as above, no inlet nozzle given"),
+])
+def test_vessel_height_stack_by_hand(inlet, inlet_bore, source):
+    r = calculate(Inputs(condensate_pressure=9e5, condensate_flow=0.889, flash_pressure=3.5e5, k_factor=0.06,
+                         inlet_nozzle=inlet), SITE)
+    d = r.value("vessel_diameter")
+    holdup_depth = r.value("vessel_liquid_holdup") / (math.pi * d ** 2 / 4)
+    stacked = holdup_depth + (0.3 + inlet_bore / 2) + max(0.9 + inlet_bore / 2, d / 2)
+    assert r.value("vessel_height") == pytest.approx(max(stacked, 2.5 * d), rel=1e-3)
+    assert r.value("vessel_minimum_height") == pytest.approx(2.5 * d, rel=1e-12)
+
+
+def test_holdup_diameter_scales_with_cube_root_of_residence_time():
+    # Consistency: V ∝ t and D_L ∝ V^(1/3).
+    base = dict(condensate_pressure=9e5, condensate_flow=0.889, flash_pressure=3.5e5)
+    one = calculate(Inputs(residence_time=60.0, **base), SITE).value("vessel_holdup_diameter")
+    eight = calculate(Inputs(residence_time=480.0, **base), SITE).value("vessel_holdup_diameter")
+    assert eight == pytest.approx(2 * one, rel=1e-12)
+
+
+def test_default_residence_time_is_stated():
+    r = calculate(Inputs(condensate_pressure=9e5, condensate_flow=0.889, flash_pressure=3.5e5), SITE)
+    assert r.value("vessel_residence_time") == 1.0
+    assert any("residence time 1 min" in a and "common practice" in a for a in r.assumptions)
+    given = calculate(Inputs(condensate_pressure=9e5, condensate_flow=0.889, flash_pressure=3.5e5,
+                             residence_time=120.0), SITE)
+    assert not any("residence time 1 min" in a for a in given.assumptions)
+
+
+def test_cascade_stage_vessels_have_heights():
+    r = calculate(Inputs(condensate_pressure=17e5, condensate_flow=1.0, stages=(9e5, 2e5)), SITE)
+    for i in (1, 2):
+        assert r.value(f"stage_{i}_vessel_height") >= 2.5 * r.value(f"stage_{i}_vessel_diameter")
+    assert r.value("vessel_diameter") == max(r.value("stage_1_vessel_diameter"), r.value("stage_2_vessel_diameter"))
+
+
+# --- Inlet line: two-phase velocity, momentum, API RP 14E for information only --------------------
+
+@pytest.mark.parametrize("p_in,p_flash,flow,inlet,bore,source", [
+    (9.0e5, 3.5e5, 0.889, "DN50", DN50, "fluids.two_phase_voidage.homogeneous void fraction; IAPWS-95 (CoolProp)"),
+    (9.0e5, 3.5e5, 0.889, "DN80", DN80, "as above"),
+    (17e5, 1.1e5, 0.3, "DN50", DN50, "as above"),
+])
+def test_inlet_two_phase_velocity_and_momentum_against_fluids(p_in, p_flash, flow, inlet, bore, source):
+    from fluids.two_phase_voidage import homogeneous
+
+    r = calculate(Inputs(condensate_pressure=p_in, condensate_flow=flow, flash_pressure=p_flash,
+                         inlet_nozzle=inlet), SITE)
+    rho_f, rho_g, h_f, h_g = _coolprop_saturated(p_flash)
+    x = (PropsSI("H", "P", p_in, "Q", 0, "Water") - h_f) / (h_g - h_f)
+    alpha = homogeneous(x, rho_f, rho_g)
+    rho = alpha * rho_g + (1 - alpha) * rho_f          # mixture density from the void fraction
+    velocity = flow / (rho * math.pi * bore ** 2 / 4)
+    assert r.value("inlet_line_velocity") == pytest.approx(velocity, rel=2e-3)
+    assert r.value("inlet_momentum") == pytest.approx(rho * velocity ** 2, rel=4e-3)
+
+
+@pytest.mark.parametrize("inlet,velocity_status,momentum_status", [
+    ("DN50", "warn", "warn"),     # about 16.3 m/s and 6.7 kPa
+    ("DN65", "pass", "warn"),     # about 11.4 m/s and 3.3 kPa
+    ("DN80", "pass", "pass"),     # about 7.4 m/s and 1.38 kPa, just under the 1.4 kPa limit
+    ("DN100", "pass", "pass"),
+])
+def test_inlet_checks_judge_two_phase_velocity_and_momentum(inlet, velocity_status, momentum_status):
+    r = calculate(Inputs(condensate_pressure=9e5, condensate_flow=0.889, flash_pressure=3.5e5,
+                         inlet_nozzle=inlet), SITE)
+    checks = {c.name: c for c in r.checks}
+    assert checks["Inlet line two-phase velocity"].status == velocity_status
+    assert checks["Inlet nozzle momentum"].status == momentum_status
+    assert (r.value("inlet_line_velocity") > 15.0) == (velocity_status == "warn")
+    assert (r.value("inlet_momentum") > 1400.0) == (momentum_status == "warn")
+
+
+def test_api_rp_14e_is_information_only():
+    # A line below the API RP 14E erosional velocity but above the two-phase limit still warns:
+    # the erosional figure no longer judges the line.
+    r = calculate(Inputs(condensate_pressure=9e5, condensate_flow=0.889, flash_pressure=3.5e5,
+                         inlet_nozzle="DN50"), SITE)
+    assert 15.0 < r.value("inlet_line_velocity") < r.value("inlet_line_erosional_velocity")
+    check = next(c for c in r.checks if c.name == "Inlet line two-phase velocity")
+    assert check.status == "warn" and "for information only" in check.detail
+    assert any("API RP 14E" in a and "outside its scope" in a for a in r.assumptions)
+    assert "information only" in r.values["inlet_line_erosional_velocity"].label

@@ -19,7 +19,7 @@ from ..quantities import RECORD_UNITS, from_record_unit, to_record_unit
 #: ``pressure_list`` a list of pressure strings.
 INPUT_KINDS = ("pressure", "temperature", "temperature_difference", "mass_flow", "velocity",
                "flow_coefficient", "specific_heat", "heat_transfer_coefficient", "fouling_resistance", "area",
-               "volume_flow", "density", "fraction", "number", "flag", "nominal_size", "text", "pressure_list")
+               "volume_flow", "density", "time", "fraction", "number", "flag", "nominal_size", "text", "pressure_list")
 _PLAIN_KINDS = ("fraction", "number", "flag", "nominal_size", "text")
 _RAW_KINDS = ("flag", "nominal_size", "text")
 

@@ -65,3 +65,96 @@ def annual_value(energy_mwh, price):
     27908.0
     """
     return energy_mwh * price.per_mwh
+
+
+#: The two calorific-value bases a fuel's energy can be counted on.
+FUEL_BASES = ("gross", "net")
+#: Basis taken when the site file does not state one.
+DEFAULT_FUEL_BASIS = "gross"
+_BASIS_NAMES = {"gross": "gross calorific value (GCV, higher heating value)",
+                "net": "net calorific value (NCV, lower heating value)"}
+
+
+def fuel_basis(site):
+    """The calorific-value basis a site's fuel figures are on: ``"gross"`` or ``"net"``.
+
+    Examples
+    --------
+    >>> from steamcalc.site import Site
+    >>> fuel_basis(Site()), fuel_basis(Site(fuel_basis="net"))
+    ('gross', 'net')
+    """
+    return site.fuel_basis or DEFAULT_FUEL_BASIS
+
+
+def fuel_basis_assumption(site):
+    """The one assumption line stating the energy basis of a site's fuel figures.
+
+    Any calculation that turns heat into fuel energy, money or CO2 with the site's
+    fuel price, boiler efficiency and emission factor adds this line to its record.
+
+    Parameters
+    ----------
+    site : steamcalc.site.Site
+
+    Returns
+    -------
+    str
+
+    Notes
+    -----
+    Fuel energy :math:`E = Q t / \\eta_{boiler}` is on the basis :math:`\\eta` is on; the price
+    and emission factor must be per MWh on the same basis, or the cost and CO2 are out by
+    the GCV/NCV ratio (about 1.11 for natural gas, 1.05–1.07 for oils; from memory).
+
+    References
+    ----------
+    Common practice: gas is sold and billed on gross calorific value in most markets, while
+    boiler efficiencies are often quoted on net; the figures must be put on one basis.
+
+    Examples
+    --------
+    >>> from steamcalc.site import Site
+    >>> fuel_basis_assumption(Site(fuel_basis="net"))[:60]
+    'Fuel energy on the net calorific value (NCV, lower heating v'
+    """
+    basis = fuel_basis(site)
+    stated = ("as the site file states (fuel_basis)" if site.fuel_basis else
+              f"the default, as the site file does not state fuel_basis; set fuel_basis = \"{basis}\" or "
+              "\"net\" to confirm")
+    return (f"Fuel energy on the {_BASIS_NAMES[basis]} basis, {stated}: the fuel price, the boiler efficiency "
+            "and the emission factor are all read as per MWh of fuel on that basis; a figure quoted on the "
+            "other basis must be converted first (natural gas GCV/NCV ≈ 1.11, from memory)")
+
+
+def annual_water_cost(mass_flow, density, operating_hours, water_cost):
+    """Volume a year of water and its cost, for make-up water (and its treatment) avoided.
+
+    Parameters
+    ----------
+    mass_flow : float
+        Water kept in the system, kg/s.
+    density : float
+        Density of the make-up water, kg/m³.
+    operating_hours : float
+        h a year.
+    water_cost : steamcalc.site.WaterCost
+        Cost per m³ of make-up water, treatment included.
+
+    Returns
+    -------
+    tuple
+        ``(volume, cost)``: m³ a year and money a year in the water cost's currency.
+
+    Notes
+    -----
+    :math:`V = \\dot m \\, t / \\rho`, :math:`C = V c_w`.
+
+    Examples
+    --------
+    >>> from steamcalc.site import WaterCost
+    >>> annual_water_cost(1.0, 1000.0, 1000.0, WaterCost(2.0, "EUR"))
+    (3600.0, 7200.0)
+    """
+    volume = mass_flow * operating_hours * 3600.0 / density
+    return volume, volume * water_cost.per_m3

@@ -9,32 +9,23 @@ already below the saturation temperature there.
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass
 
-from ..equipment.piping import (
-    erosional_velocity, homogeneous_density, line_velocity, pipe_inner_diameter,
-)
 from ..errors import InputError, OutOfRangeError
 from ..steam import REFERENCE as IF97_REFERENCE
 from ..steam import SteamState, saturation_temperature
 from .base import Result, bar_a, check_fields, input_field, kj_kg
-from .economics import annual_fuel_energy, annual_value, missing_site_data
+from .economics import (
+    annual_fuel_energy, annual_value, annual_water_cost, fuel_basis, fuel_basis_assumption, missing_site_data,
+)
+from .flash_vessel import REFERENCES as VESSEL_REFERENCES
+from .flash_vessel import vessel_assumptions, vessels
 
 KIND = "flash"
 TITLE = "Flash-steam recovery"
 WORKBOOK = "flash_recovery.ipynb"
 #: Results the uncertainty section gives bands and sensitivities for.
 UNCERTAINTY_RESULTS = ("flash_fraction", "flash_steam_flow", "recovered_heat_rate", "annual_cost_saving", "vessel_diameter")
-
-#: Souders–Brown K for a vertical flash vessel without a mist eliminator, m/s (common practice).
-DEFAULT_K_FACTOR = 0.06
-#: Minimum height of a vertical flash vessel as a multiple of its diameter (common practice).
-MIN_HEIGHT_TO_DIAMETER = 2.5
-#: Flash-steam outlet velocity above which carry-over and noise are likely, m/s (common practice).
-MAX_STEAM_NOZZLE_VELOCITY = 25.0
-#: Condensate outlet velocity above which the drain may not keep up, m/s (common practice).
-MAX_CONDENSATE_NOZZLE_VELOCITY = 1.5
 
 CAUTIONS = (
     "Flash vessels and receivers are pressure vessels: their design, marking and inspection follow the "
@@ -80,6 +71,9 @@ class Inputs:
     vapour_velocity: float | None = input_field(
         "velocity", "Allowable vapour velocity", "Up-flow velocity limit, in place of K.", example="2.5 m/s",
         section="vessel", positive=True)
+    residence_time: float | None = input_field(
+        "time", "Liquid residence time", "Hold-up time of the residual condensate in the vessel; "
+        "1 min when not given.", example="1 min", section="vessel", positive=True)
     inlet_nozzle: str | None = input_field(
         "nominal_size", "Inlet line size", "Nominal size of the condensate inlet line.", example="DN50",
         section="vessel")
@@ -91,6 +85,10 @@ class Inputs:
         example="DN40", section="vessel")
 
     def __post_init__(self):
+        if self.residence_time is not None and not self.residence_time > 0.0:
+            raise InputError(f"a liquid residence time of {self.residence_time / 60:g} min cannot hold any liquid",
+                             field="vessel.residence_time", value=f"{self.residence_time:g} s",
+                             fix="give a time above zero, e.g. residence_time = \"1 min\" (or leave it out for 1 min)")
         check_fields(self)
         if (self.flash_pressure is None) == (self.stages is None):
             raise InputError("give flash_pressure or stages (exactly one)",
@@ -173,14 +171,18 @@ def calculate(inputs, site):
         pressure (Pa) or cascade stage pressures (Pa); optional demand (kg/s) and vessel data.
     site : steamcalc.site.Site
         Operating hours, boiler efficiency, fuel price and make-up water temperature give
-        the yearly figures; an emission factor adds the CO2.
+        the yearly figures, on the site's ``fuel_basis``; an emission factor adds the CO2,
+        a ``water_cost`` the make-up water credit.
 
     Returns
     -------
     Result
         ``flash_fraction``, ``flash_steam_flow`` (kg/h), ``residual_condensate_flow`` (kg/h),
-        ``recovered_heat_rate`` (kW), ``vessel_diameter`` (m), ``annual_fuel_energy_saved``
-        (MWh), ``annual_cost_saving``, with per-stage values for a cascade.
+        ``recovered_heat_rate`` (kW), ``vessel_diameter`` and ``vessel_height`` (m) with the
+        criterion that governs, ``inlet_line_velocity`` (m/s, homogeneous) and ``inlet_momentum``
+        (Pa) when the inlet size is given, ``annual_fuel_energy_saved`` (MWh),
+        ``annual_cost_saving``, ``annual_water_cost_saving`` and ``annual_total_saving`` with a
+        water cost, and per-stage values for a cascade.
 
     Notes
     -----
@@ -193,15 +195,18 @@ def calculate(inputs, site):
     :math:`\\dot Q = \\dot m_{flash} (h_g(p) - h_{mw})`; fuel a year
     :math:`E = \\dot Q t / \\eta_{boiler}`.
 
-    Vessel, Souders–Brown allowable vapour velocity
-    :math:`v = K \\sqrt{(\\rho_f - \\rho_g)/\\rho_g}` and
-    :math:`D = \\sqrt{4 \\dot V_g / (\\pi v)}`.
+    Vessel, the largest of three diameters: Souders–Brown vapour area
+    :math:`D_v = \\sqrt{4 \\dot V_g / (\\pi v)}`, :math:`v = K \\sqrt{(\\rho_f - \\rho_g)/\\rho_g}`;
+    liquid hold-up :math:`D_L = (4 \\dot V_f t_{res} / \\pi)^{1/3}` (liquid no deeper than D);
+    nozzles :math:`D_N = 2 d_{max}` (see :mod:`steamcalc.calcs.flash_vessel`).
 
     References
     ----------
     IAPWS R7-97(2012), IAPWS-IF97, for every property. Souders, M. and Brown, G. G. (1934),
     "Design of Fractionating Columns I. Entrainment and Capacity", Ind. Eng. Chem. 26(1),
-    98–103 (through ``fluids.separator.v_Souders_Brown``). API RP 14E (2000), erosional velocity.
+    98–103 (through ``fluids.separator.v_Souders_Brown``). Svrcek, W. Y. and Monnery, W. D.
+    (1993), Chem. Eng. Prog. 89(10), 53–60 (vessel height). ASME BPVC VIII-1 UG-36(b)(1)
+    (nozzle openings). API RP 14E (2000), erosional velocity, for information only.
 
     Examples
     --------
@@ -210,6 +215,8 @@ def calculate(inputs, site):
     ...                      flash_pressure=1.01325e5), Site())
     >>> round(r.value("flash_fraction"), 3)
     0.161
+    >>> r.value("vessel_governing_criterion")
+    'liquid hold-up'
     """
     from fluids.separator import v_Souders_Brown
 
@@ -217,9 +224,7 @@ def calculate(inputs, site):
     result.references.extend([
         IF97_REFERENCE,
         "Mass and energy balances of an adiabatic flash vessel (any engineering-thermodynamics text)",
-        "Souders, M. and Brown, G. G. (1934), Design of Fractionating Columns I. Entrainment and "
-        "Capacity, Ind. Eng. Chem. 26(1), 98-103",
-        "API RP 14E (2000), erosional velocity equation 2.14",
+        *VESSEL_REFERENCES,
     ])
     result.assumptions.extend([
         "Adiabatic flash vessel: no heat loss, no work",
@@ -296,7 +301,8 @@ def calculate(inputs, site):
             result.check("Flash steam within the low-pressure demand", "pass",
                          f"flash steam {total_flash * 3600:.1f} kg/h within the demand {inputs.lp_demand * 3600:.1f} kg/h")
     _recovered_heat(inputs, site, stages, total_flash, result)
-    _vessels(inputs, stages, result, v_Souders_Brown)
+    result.assumptions.extend(vessel_assumptions(inputs))
+    vessels(inputs, stages, result, v_Souders_Brown)
     return result
 
 
@@ -318,91 +324,57 @@ def _recovered_heat(inputs, site, stages, total_flash, result):
     if missing:
         result.check("Site data for yearly figures", "warn",
                      f"the site file lacks {', '.join(missing)}: yearly energy and cost not computed")
+        _water_credit(inputs, site, total_flash, makeup, result)
         return
+    basis = fuel_basis(site)
+    result.assumptions.append(fuel_basis_assumption(site))
     fuel = annual_fuel_energy(heat, site.operating_hours, site.boiler_efficiency)
     money = annual_value(fuel, site.fuel_price)
     saving = "lost" if inputs.vented else "saved"
-    result.step(f"Fuel energy a year {saving}", "E = Q · t / η_boiler",
-                f"E = {heat / 1e3:.1f} kW × {site.operating_hours:g} h / {site.boiler_efficiency:g}", fuel, "MWh")
+    result.step(f"Fuel energy a year {saving} ({basis} calorific value)", "E = Q · t / η_boiler",
+                f"E = {heat / 1e3:.1f} kW × {site.operating_hours:g} h / {site.boiler_efficiency:g} ({basis})",
+                fuel, "MWh")
     result.step(f"Fuel cost a year {saving}", "C = E · fuel price",
-                f"C = {fuel:.1f} MWh × {site.fuel_price}", money, site.fuel_price.currency)
-    result.add("annual_fuel_energy_saved", f"Fuel energy a year ({'lost while vented' if inputs.vented else 'saved'})",
-               fuel, "MWh")
-    result.add("annual_cost_saving", f"Fuel cost a year ({'lost while vented' if inputs.vented else 'saved'})",
-               money, site.fuel_price.currency)
+                f"C = {fuel:.1f} MWh × {site.fuel_price} ({basis})", money, site.fuel_price.currency)
+    when = "lost while vented" if inputs.vented else "saved"
+    result.add("annual_fuel_energy_saved", f"Fuel energy a year ({when}; {basis} calorific value)", fuel, "MWh")
+    result.add("annual_cost_saving", f"Fuel cost a year ({when})", money, site.fuel_price.currency)
+    result.add("fuel_basis", "Calorific-value basis of the fuel figures", basis)
     if site.fuel_emission_factor is not None:
         result.add("annual_co2_avoided", "CO2 a year (avoided by recovery)", fuel * site.fuel_emission_factor / 1e3,
                    "t")
+    water = _water_credit(inputs, site, total_flash, makeup, result)
+    if water is not None:
+        if site.water_cost.currency == site.fuel_price.currency:
+            result.add("annual_total_saving", f"Fuel and water cost a year ({when})", money + water,
+                       site.fuel_price.currency)
+        else:
+            result.check("One currency for fuel and water", "warn",
+                         f"fuel is priced in {site.fuel_price.currency} and water in {site.water_cost.currency}: "
+                         "no total given")
     if inputs.vented:
         result.check("Vented receiver", "warn",
                      f"{total_flash * 3600:.1f} kg/h of flash steam vents to atmosphere: {heat / 1e3:.1f} kW, "
                      f"{fuel:.0f} MWh of fuel and {money:,.0f} {site.fuel_price.currency} a year lost")
 
 
-def _vessels(inputs, stages, result, v_souders_brown):
-    k = inputs.k_factor
-    if inputs.vapour_velocity is None:
-        if k is None:
-            k = DEFAULT_K_FACTOR
-            result.assumptions.append(f"Souders–Brown K = {DEFAULT_K_FACTOR} m/s for a vertical flash vessel "
-                                      "without a mist eliminator (common practice; not given)")
-    biggest = 0.0
-    for s in stages:
-        vapour, liquid = s["vapour"], s["liquid"]
-        if inputs.vapour_velocity is not None:
-            allowed = inputs.vapour_velocity
-            equation, substituted = "v_allow = given", f"v_allow = {allowed:.3f} m/s"
-        else:
-            allowed = v_souders_brown(k, liquid.density, vapour.density)
-            equation = "v_allow = K·√((ρ_f − ρ_g)/ρ_g)"
-            substituted = f"v_allow = {k:.3f} m/s × √(({liquid.density:.1f} − {vapour.density:.4f}) / {vapour.density:.4f})"
-        prefix = f"stage_{s['index']}_" if inputs.stages is not None else ""
-        label = f"Stage {s['index']}" if inputs.stages is not None else "Vessel"
-        result.step(f"{label}: allowable vapour velocity", equation, substituted, allowed, "m/s")
-        if s["steam_flow"] == 0.0:
-            continue
-        volume_flow = s["steam_flow"] / vapour.density
-        diameter = math.sqrt(4.0 * volume_flow / (math.pi * allowed))
-        result.step(f"{label}: vessel diameter", "D = √(4·(m_flash/ρ_g) / (π·v_allow))",
-                    f"D = √(4 × {volume_flow:.4f} m³/s / (π × {allowed:.3f} m/s))", diameter, "m")
-        if prefix:
-            result.add(f"{prefix}vessel_diameter", f"{label} vessel diameter", diameter, "m")
-        biggest = max(biggest, diameter)
-    if biggest > 0.0:
-        result.add("vessel_diameter", "Flash vessel diameter" + (" (largest stage)" if inputs.stages else ""),
-                   biggest, "m")
-        result.add("vessel_minimum_height", "Flash vessel minimum height", MIN_HEIGHT_TO_DIAMETER * biggest, "m")
-        result.assumptions.append(f"Minimum vessel height {MIN_HEIGHT_TO_DIAMETER:g} × diameter for separation "
-                                  "(common practice)")
-    _nozzles(inputs, stages, result)
-
-
-def _nozzles(inputs, stages, result):
-    first, last = stages[0], stages[-1]
-    if inputs.inlet_nozzle is not None:
-        d = pipe_inner_diameter(inputs.inlet_nozzle, field="vessel.inlet_nozzle")
-        # After the inlet valve or trap the condensate has flashed: the line carries the
-        # first stage's mixture at its pressure (homogeneous model).
-        rho = homogeneous_density(first["fraction"], first["liquid"].density, first["vapour"].density)
-        velocity = line_velocity(first["flow_in"], rho, d)
-        limit = erosional_velocity(rho)
-        result.add("inlet_line_velocity", "Two-phase velocity in the inlet line", velocity, "m/s")
-        result.add("inlet_line_erosional_velocity", "Erosional velocity of the inlet line (API RP 14E)", limit, "m/s")
-        result.step("Inlet line two-phase velocity", "v = m / (ρ_h·A), 1/ρ_h = x/ρ_g + (1 − x)/ρ_f",
-                    f"ρ_h = {rho:.3f} kg/m³, d = {d * 1000:.1f} mm", velocity, "m/s")
-        status = "warn" if velocity > limit else "pass"
-        result.check("Inlet line velocity", status,
-                     f"two-phase {velocity:.1f} m/s against the API RP 14E erosional velocity {limit:.1f} m/s"
-                     + ("; a larger inlet line is needed" if status == "warn" else ""))
-    if inputs.steam_nozzle is not None and last["steam_flow"] > 0.0:
-        d = pipe_inner_diameter(inputs.steam_nozzle, field="vessel.steam_nozzle")
-        velocity = line_velocity(last["steam_flow"], last["vapour"].density, d)
-        result.add("steam_nozzle_velocity", "Flash-steam outlet velocity", velocity, "m/s")
-        result.check("Steam outlet velocity", "warn" if velocity > MAX_STEAM_NOZZLE_VELOCITY else "pass",
-                     f"{velocity:.1f} m/s (limit {MAX_STEAM_NOZZLE_VELOCITY:g} m/s, common practice)")
-    if inputs.condensate_nozzle is not None:
-        d = pipe_inner_diameter(inputs.condensate_nozzle, field="vessel.condensate_nozzle")
-        velocity = line_velocity(last["residual_flow"], last["liquid"].density, d)
-        result.add("condensate_nozzle_velocity", "Residual condensate outlet velocity", velocity, "m/s")
-        result.check("Condensate outlet velocity", "warn" if velocity > MAX_CONDENSATE_NOZZLE_VELOCITY else "pass",
-                     f"{velocity:.2f} m/s (limit {MAX_CONDENSATE_NOZZLE_VELOCITY:g} m/s, common practice)")
+def _water_credit(inputs, site, total_flash, makeup, result):
+    # Vented, the flash steam's water is lost and made up; used, it stays in the system and
+    # displaces boiler steam, so that much make-up water (and its treatment) is not bought.
+    if site.water_cost is None or site.operating_hours is None:
+        return None
+    volume, cost = annual_water_cost(total_flash, makeup.density, site.operating_hours, site.water_cost)
+    when = "lost while vented" if inputs.vented else "saved"
+    result.step(f"Make-up water a year {'lost' if inputs.vented else 'saved'}", "V = m_flash · t / ρ_makeup",
+                f"V = {total_flash * 3600:.1f} kg/h × {site.operating_hours:g} h / {makeup.density:.1f} kg/m³",
+                volume, "m**3")
+    result.step(f"Water cost a year {'lost' if inputs.vented else 'saved'}", "C_w = V · water cost",
+                f"C_w = {volume:.1f} m³ × {site.water_cost}", cost, site.water_cost.currency)
+    result.add("annual_water_saved", f"Make-up water a year ({when})", volume, "m**3")
+    result.add("annual_water_cost_saving", f"Make-up water and treatment cost a year ({when})", cost,
+               site.water_cost.currency)
+    result.assumptions.append(
+        f"Water credit at the site's water_cost of {site.water_cost} (make-up water and treatment) on the flash "
+        "steam's mass: vented it is lost and made up, used it displaces boiler steam; the residual condensate "
+        "is taken as returned either way and earns no credit")
+    return cost

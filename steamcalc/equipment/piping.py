@@ -158,12 +158,14 @@ def erosional_velocity(density, c_factor=100.0):
     density : float
         Bulk (homogeneous) density, kg/m³.
     c_factor : float
-        API RP 14E C factor in its US units; 100 for continuous service (the
-        conservative value, used here for flashing condensate).
+        API RP 14E C factor in its US units; 100 for continuous service.
 
     Notes
     -----
     :math:`V_e = C / \\sqrt{\\rho_m}` in ft/s with ρ in lb/ft³ (through ``fluids``).
+    API RP 14E was written for offshore oil-and-gas production piping; for flashing steam
+    condensate it is outside its scope and is given for information only — judge such lines
+    with :func:`two_phase_velocity` against :data:`MAX_FLASHING_CONDENSATE_VELOCITY`.
 
     References
     ----------
@@ -178,3 +180,67 @@ def erosional_velocity(density, c_factor=100.0):
     from fluids import erosional_velocity as _api_rp_14e
 
     return float(_api_rp_14e(density, c_factor))
+
+
+#: Homogeneous two-phase velocity above which a flashing-condensate line erodes and
+#: hammers, m/s (common practice for condensate lines carrying flash steam; from memory).
+MAX_FLASHING_CONDENSATE_VELOCITY = 15.0
+
+
+def two_phase_velocity(mass_flow, dryness, liquid_density, vapour_density, inner_diameter):
+    """Homogeneous (no-slip) velocity of a steam–water mixture in a line, m/s.
+
+    Parameters
+    ----------
+    mass_flow : float
+        Total flow, kg/s.
+    dryness : float
+        Vapour mass fraction x, 0 to 1.
+    liquid_density, vapour_density : float
+        Saturated densities at the line pressure, kg/m³.
+    inner_diameter : float
+        m.
+
+    Notes
+    -----
+    :math:`v_h = \\dot m / (\\rho_h A)`, :math:`1/\\rho_h = x/\\rho_g + (1 - x)/\\rho_f`:
+    the mixture velocity when both phases move together, the basis for judging
+    flashing-condensate lines.
+
+    References
+    ----------
+    Homogeneous equilibrium model (e.g. Collier & Thome, Convective Boiling and
+    Condensation, ch. 2).
+
+    Examples
+    --------
+    >>> round(two_phase_velocity(1.0, 0.1, 950.0, 2.0, 0.1), 3)
+    6.487
+    """
+    rho = homogeneous_density(dryness, liquid_density, vapour_density)
+    return line_velocity(mass_flow, rho, inner_diameter)
+
+
+def momentum_flux(mass_flow, density, inner_diameter):
+    """Momentum flux ρv² of a stream in a nozzle, Pa.
+
+    Parameters
+    ----------
+    mass_flow : float
+        kg/s.
+    density : float
+        kg/m³ (homogeneous density for a two-phase stream).
+    inner_diameter : float
+        m.
+
+    Notes
+    -----
+    :math:`\\rho v^2 = G^2/\\rho`, :math:`G = \\dot m / A`.
+
+    Examples
+    --------
+    >>> round(momentum_flux(1.0, 2.0, 0.1), 1)
+    8105.7
+    """
+    velocity = line_velocity(mass_flow, density, inner_diameter)
+    return density * velocity ** 2
