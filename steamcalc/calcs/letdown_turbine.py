@@ -10,7 +10,7 @@ from __future__ import annotations
 from ..errors import OutOfRangeError
 from ..steam import SteamState
 from .balance import Stream, check_energy_balance
-from .economics import annual_energy, annual_fuel_energy, annual_value, missing_site_data
+from .economics import annual_energy, annual_fuel_energy, annual_value, fuel_basis_assumption, missing_site_data
 
 #: Isentropic efficiency of a small single-stage back-pressure turbine (common practice).
 DEFAULT_TURBINE_EFFICIENCY = 0.55
@@ -191,6 +191,7 @@ def _yearly_value(power, generator, site, result):
                      f"fuel is priced in {site.fuel_price.currency} and power in {site.power_price.currency}: the "
                      "net value is not computed; give both prices in one currency")
         return
+    result.assumptions.append(fuel_basis_assumption(site))
     _, _, fuel, fuel_cost, net = net_turbine_value(power, generator, site.boiler_efficiency, hours,
                                                    site.power_price, site.fuel_price)
     result.step("Make-up fuel cost a year", "C_f = P·t / η_b · fuel price",
