@@ -173,9 +173,8 @@ def add_turndown(inputs, duty, design_ua, required_area, condensate_density, res
     result.assumptions.append(
         "Turndown model: load varies with the process flow at the design inlet and outlet temperatures; the "
         "exchanger keeps its area and U; the steam-side pressure falls to what the load needs (saturated steam, "
-        f"condensing only). Pressures needed: required_steam_pressure_* on the {basis_fouled}"
-        + (f"; required_steam_pressure_clean_* on the {basis_clean}" if fouled_differs else " (no fouling: clean "
-           "and fouled are the same)"))
+        f"condensing only). The turndown table gives the steam-side pressure needed on the {basis_fouled}"
+        + (f", and on the {basis_clean}" if fouled_differs else " (no fouling: clean and fouled are the same)"))
     for load in LOADS:
         # Never below the process outlet temperature, so always inside the saturation range.
         percent = int(round(load * 100))
