@@ -150,13 +150,13 @@ class Inputs:
         head, differential = self.trap_static_head, self.trap_min_differential
         if head is not None and head < 0.0:
             raise InputError(
-                f"a static head of {head:g} m is negative: it is the height of condensate above the trap",
+                "a static head cannot be negative: it is the height of condensate standing above the trap",
                 field="drainage.trap_static_head", value=f"{head:g} m",
                 fix="give the trap's depth below the heater outlet (0 m or more); a trap above the outlet is a "
                     "lift: add its ρ·g·H to condensate_back_pressure instead")
         if differential is not None and differential < 0.0:
             raise InputError(
-                f"a minimum working differential of {differential / 1e5:g} bar is negative",
+                "a trap's minimum working differential cannot be negative",
                 field="drainage.trap_min_differential", value=f"{differential / 1e5:g} bar",
                 fix="give the trap maker's minimum differential, 0 bar or more, e.g. \"0.1 bar\"")
         if (head is not None or differential is not None) and self.condensate_back_pressure is None:
