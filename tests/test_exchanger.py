@@ -377,3 +377,13 @@ def test_drainage_case_runs_and_records_the_differential_as_a_difference(tmp_pat
     assert record["inputs"]["trap_static_head"]["unit"] == "m"
     assert "stall_load_fraction_fouled" in record["results"]
     assert main(["verify", str(tmp_path / "out" / "H-1_revA.json")]) == 0
+
+
+def test_very_large_static_head_warns_and_gives_no_negative_pressure():
+    from steamcalc.ui.charts import turndown_rows
+    inputs = Inputs(**BASE, overall_u=1800.0, installed_area=2.6, condensate_back_pressure=1.8e5,
+                    trap_static_head=100.0)
+    r = calculate(inputs, SITE)
+    assert r.value("stall_load_fraction") == 0.0 and "stall_pressure" not in r.values
+    assert next(c for c in r.checks if c.name == "Static head to the trap").status == "warn"
+    assert all(row["drains by pressure"] == "yes" for row in turndown_rows(inputs, r))

@@ -22,6 +22,9 @@ from .exchanger_zones import service_u
 STANDARD_GRAVITY = 9.80665
 #: Part loads evaluated for the turndown table and chart.
 LOADS = tuple(round(0.1 * i, 1) for i in range(1, 11))
+#: Static head to the trap above which the figure is questioned, m (common practice: a trap sits well
+#: under this below a heater's condensate outlet; more is possible but worth a second look).
+MAX_USUAL_STATIC_HEAD = 5.0
 #: Lowest pressure with a saturation temperature (the triple point), Pa (IAPWS R7-97(2012)).
 TRIPLE_POINT_PRESSURE = 611.657
 
@@ -214,7 +217,13 @@ def _stall(inputs, duty, ua_clean, ua_fouled, basis_clean, basis_fouled, condens
                                   "given); the trap maker's figure governs")
     result.add("trap_static_head_pressure", "Static head of condensate at the trap (ρ·g·H)", head_pressure / 1e3,
                "kPa")
-    result.add("stall_pressure", "Steam-side pressure below which condensate does not drain", drain / 1e5, "bar")
+    if drain > 0.0:
+        result.add("stall_pressure", "Steam-side pressure below which condensate does not drain", drain / 1e5, "bar")
+    if head > MAX_USUAL_STATIC_HEAD:
+        result.check("Static head to the trap", "warn",
+                     f"{head:g} m of condensate above the trap is more than the {MAX_USUAL_STATIC_HEAD:g} m usual "
+                     "below a heater (common practice): check the figure, and that the leg is full of condensate "
+                     "at part load")
     result.step("Steam-side pressure at which drainage stops", "p_stall = p_back + Δp_trap,min − ρ·g·H",
                 f"p_stall = {back / 1e5:.4g} bar(a) + {differential / 1e3:.4g} kPa − {condensate_density:.1f} kg/m³ × "
                 f"{STANDARD_GRAVITY} m/s² × {head:.3g} m", drain / 1e5, "bar")
@@ -234,9 +243,11 @@ def _stall(inputs, duty, ua_clean, ua_fouled, basis_clean, basis_fouled, condens
                 fouled)
     result.add("stall_load_fraction", "Stall load (fraction of design, clean U: governs)", clean)
     result.add("stall_load_fraction_fouled", "Stall load (fraction of design, fouled U)", fouled)
-    basis = f"the {back / 1e5:.4g} bar(a) back pressure" + (
-        f" with the trap's {differential / 1e3:.3g} kPa differential and {head:.3g} m static head "
-        f"(drainage stops below {drain / 1e5:.4g} bar(a))" if differential or head else "")
+    basis = f"the {back / 1e5:.4g} bar(a) back pressure"
+    if differential or head:
+        basis += f" with the trap's {differential / 1e3:.3g} kPa differential and {head:.3g} m static head " + (
+            f"(drainage stops below {drain / 1e5:.4g} bar(a))" if drain > 0.0 else
+            "(the static head alone drains it at any steam-side pressure)")
     if clean >= 1.0:
         result.check("Condensate drainage (stall)", "fail",
                      f"the clean exchanger stalls even at design load: it needs less steam pressure than {basis}; "

@@ -197,7 +197,7 @@ def stall_chart(inputs, result, points=60):
         fig.add_trace(go.Scatter(x=[0, 100], y=[back, back], mode="lines",
                                  name=f"condensate back pressure {back:.3g} bar(a)",
                                  line=dict(color=_COLOURS["inlet"], dash="dash", width=2)))
-        if "stall_pressure" in result.values and abs(result.value("stall_pressure") - back) > 1e-9:
+        if "stall_pressure" in result.values and abs(result.value("stall_pressure") - back) > 1e-9:  # drainage given
             drain = result.value("stall_pressure")
             fig.add_trace(go.Scatter(x=[0, 100], y=[drain, drain], mode="lines",
                                      name=f"drainage stops below {drain:.3g} bar(a) (trap differential, static head)",
@@ -216,7 +216,10 @@ def turndown_rows(inputs, result):
     """Turndown table: load, duty and the steam-side pressure needed, each column naming its U."""
     loads, pressures = _turndown_series(result)
     clean = dict(zip(*_turndown_series(result, clean=True)))
-    drain = result.value("stall_pressure") if "stall_pressure" in result.values else None
+    drain = None
+    if inputs.condensate_back_pressure is not None:
+        # No stall pressure: the static head alone drains the condensate at any steam-side pressure.
+        drain = result.value("stall_pressure") if "stall_pressure" in result.values else 0.0
     fouled_name = _u_label(result, "fouled") if clean else _u_label(result, "clean") + " = fouled"
     rows = []
     for load, pressure in zip(loads, pressures):
