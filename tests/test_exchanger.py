@@ -342,6 +342,8 @@ condensate_back_pressure = "0.8 bar(g)"
     ('trap_min_differential = "-0.1 bar"', "trap_min_differential"),
     ('trap_min_differential = "0.1 m"', "trap_min_differential"),
     ('trap_head = "0.5 m"', "trap_head"),
+    ('trap_static_head = "1e400 m"', "trap_static_head"),                # not finite
+    ('trap_min_differential = "1e30 bar"', "trap_min_differential"),     # beyond IF97's saturation range
 ])
 def test_bad_drainage_case_exits_2(tmp_path, capsys, drainage, field):
     assert_refused(tmp_path, capsys, DRAIN_CASE.format(extra="", drainage=drainage), field)

@@ -11,6 +11,7 @@ cannot push the condensate through the trap, condensate stops draining: stall
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 from ..errors import InputError, OutOfRangeError
@@ -148,6 +149,13 @@ class Inputs:
 
     def _check_drainage(self):
         head, differential = self.trap_static_head, self.trap_min_differential
+        for name, value, unit in (("desuperheating_u", self.desuperheating_u, "kW/(m^2 K)"),
+                                  ("subcooling_u", self.subcooling_u, "kW/(m^2 K)"),
+                                  ("drainage.trap_static_head", head, "m"),
+                                  ("drainage.trap_min_differential", differential, "bar")):
+            if value is not None and not math.isfinite(value):
+                raise InputError("is not a finite number", field=name, value=value,
+                                 fix=f"give a plain figure with its unit, in {unit}")
         if head is not None and head < 0.0:
             raise InputError(
                 "a static head cannot be negative: it is the height of condensate standing above the trap",

@@ -14,7 +14,7 @@ from __future__ import annotations
 
 import math
 
-from ..errors import OutOfRangeError
+from ..errors import InputError, OutOfRangeError
 from ..steam import saturation_pressure, saturation_temperature
 from .exchanger_zones import service_u
 
@@ -231,7 +231,10 @@ def _stall(inputs, duty, ua_clean, ua_fouled, basis_clean, basis_fouled, condens
         clean = stall_load(duty, ua_clean, t_in, t_out, drain)
         fouled = stall_load(duty, ua_fouled, t_in, t_out, drain)
     except OutOfRangeError as exc:
-        raise exc.for_field("condensate_back_pressure") from None
+        field = "drainage.trap_min_differential" if differential else "condensate_back_pressure"
+        raise InputError(f"drainage would stop below {drain / 1e5:.4g} bar(a) (back pressure + trap differential "
+                         f"− static head): {exc.message}", field=field, limits=exc.limits,
+                         fix="check condensate_back_pressure and the [inputs.drainage] figures") from None
     if drain > TRIPLE_POINT_PRESSURE:
         t_back = saturation_temperature(drain)
         where = f"T_b = T_sat(p_stall) = {t_back - 273.15:.2f} °C"
