@@ -243,7 +243,8 @@ def calculate(inputs, site):
     ----------
     inputs : Inputs
         Steam pressure (Pa) and state; process flow (kg/s or m³/s) and temperatures (K);
-        optional subcooling (K), U (W/(m² K)), fouling (m² K/W), area (m²), back pressure (Pa).
+        optional subcooling (K), U's (W/(m² K)), fouling (m² K/W), area (m²), back pressure (Pa),
+        static head to the trap (m) and the trap's minimum differential (Pa).
     site : steamcalc.site.Site
         Site data (its atmosphere has been applied to gauge inputs).
 
@@ -251,20 +252,25 @@ def calculate(inputs, site):
     -------
     Result
         ``duty`` (kW), ``steam_flow`` (kg/h), ``condensate_flow`` (kg/h), ``lmtd`` (K), ``ua``
-        (kW/K), ``required_area`` (m², with U), ``area_margin`` (with an installed area),
-        ``stall_load_fraction`` (with a back pressure), and the turndown table.
+        (kW/K), ``<zone>_duty``, ``<zone>_lmtd`` and ``<zone>_area`` for the zones present,
+        ``required_area`` (m², with U, the zones' sum), ``area_margin`` (with an installed area),
+        ``stall_load_fraction`` (clean U) and ``stall_load_fraction_fouled`` (with a back
+        pressure), and the turndown table (``required_steam_pressure_<load>`` on the fouled U,
+        ``required_steam_pressure_clean_<load>`` on the clean U when they differ).
 
     Notes
     -----
     .. math:: \\dot m_s = \\frac{Q (1 + f_{loss})}{h_s - h_c}, \\quad
               UA = \\sum_i \\frac{Q_i}{F_i \\Delta T_{lm,i}}, \\quad
-              A = \\frac{UA}{U_s}, \\quad \\frac{1}{U_s} = \\frac{1}{U} + R_f
+              A = \\sum_i \\frac{UA_i}{U_{s,i}}, \\quad \\frac{1}{U_{s,i}} = \\frac{1}{U_i} + R_f
 
     References
     ----------
     IAPWS R7-97(2012), IAPWS-IF97. Fakheri, A. (2003), "A General Expression for the
     Determination of the Log Mean Temperature Correction Factor for Shell and Tube Heat
-    Exchangers", J. Heat Transfer 125(3), 527-530 (through ``ht.F_LMTD_Fakheri``).
+    Exchangers", J. Heat Transfer 125(3), 527-530 (through ``ht.F_LMTD_Fakheri``). The
+    wet-wall desuperheating basis and the drainage balance are common practice (see the
+    zone and turndown modules).
 
     Examples
     --------

@@ -194,7 +194,11 @@ def _zone_assumptions(inputs, zones, arrangement, result):
             result.assumptions.append(
                 f"Desuperheating zone on the dry-wall basis at the given desuperheating U "
                 f"{inputs.desuperheating_u / 1e3:.4g} kW/(m²·K): the steam cools as a gas from its own temperature "
-                "to saturation (LMTD against the process)")
+                "to saturation (LMTD against the process); valid only where the wall stays above saturation")
+            if inputs.overall_u is not None and inputs.desuperheating_u > inputs.overall_u:
+                result.check("Desuperheating zone U", "warn",
+                             "the dry-wall desuperheating U is above the condensing U; a gas-cooling coefficient "
+                             "is normally far lower (common practice): check the figure")
     if "subcooling" in names and inputs.overall_u is not None:
         if inputs.subcooling_u is None:
             result.assumptions.append("Subcooling zone at the overall (condensing) U: no subcooling_u given")
