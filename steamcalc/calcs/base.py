@@ -16,9 +16,9 @@ from ..quantities import RECORD_UNITS, from_record_unit, to_record_unit
 
 #: Kinds an input field can have. ``fraction`` is a plain number from 0 to 1, ``number`` a
 #: plain positive number, ``flag`` true or false, ``nominal_size`` a pipe size such as "DN80",
-#: ``pressure_list`` a list of pressure strings.
-INPUT_KINDS = ("pressure", "temperature", "temperature_difference", "mass_flow", "velocity",
-               "flow_coefficient", "specific_heat", "heat_transfer_coefficient", "fouling_resistance", "area",
+#: ``pressure_list`` a list of pressure strings; ``pressure_difference`` has no basis ("0.1 bar").
+INPUT_KINDS = ("pressure", "pressure_difference", "length", "temperature", "temperature_difference", "mass_flow",
+               "velocity", "flow_coefficient", "specific_heat", "heat_transfer_coefficient", "fouling_resistance", "area",
                "volume_flow", "density", "time", "fraction", "number", "flag", "nominal_size", "text", "pressure_list")
 _PLAIN_KINDS = ("fraction", "number", "flag", "nominal_size", "text")
 _RAW_KINDS = ("flag", "nominal_size", "text")
@@ -120,6 +120,8 @@ def to_record_inputs(inputs, given):
             stored = [to_record_unit(v, unit_kind) for v in value]
         else:
             stored = to_record_unit(value, unit_kind)
+        # A pressure difference is stored in bar like a pressure; reports label it "bar difference"
+        # from the field's kind (steamcalc.display.pressure_basis).
         table[f.name] = {"value": stored, "unit": RECORD_UNITS[unit_kind], "given": given.get(f.name, "(default)")}
     return table
 

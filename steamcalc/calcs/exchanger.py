@@ -2,10 +2,11 @@
 
 A process liquid is heated by condensing steam. The duty comes from the process side;
 the steam flow from the steam's actual state (superheat and dryness count) down to
-condensate at its stated subcooling. A zone analysis gives the desuperheating,
-condensing and subcooling duties, each with its own LMTD. At part load, with a fixed
-area and service U, the steam-side pressure the exchanger needs falls; below the load
-where it falls under the condensate back pressure, condensate stops draining: stall.
+condensate at its stated subcooling. The zones (desuperheating, condensing, subcooling;
+:mod:`.exchanger_zones`) each have their own LMTD, U and area. At part load, with a fixed
+area and U, the steam-side pressure the exchanger needs falls; below the load where it
+cannot push the condensate through the trap, condensate stops draining: stall
+(:mod:`.exchanger_turndown`).
 """
 
 from __future__ import annotations
@@ -16,20 +17,25 @@ from dataclasses import dataclass
 from ..errors import InputError, OutOfRangeError
 from ..steam import REFERENCE as IF97_REFERENCE
 from ..steam import SteamState, saturation_pressure, saturation_temperature
+from .balance import Stream, check_energy_balance
 from .base import Result, check_fields, input_field
+from .exchanger_turndown import (LOADS, STALL_REMEDIES, add_turndown, required_saturation_temperature,  # noqa: F401
+                                 stall_load, stall_pressure)
+from .exchanger_zones import ARRANGEMENTS, add_zones, f_factor, lmtd, service_u  # noqa: F401
+
+_f_factor = f_factor  # the name v0.1 callers used
 
 KIND = "exchanger"
 TITLE = "Steam-heated exchanger: duty, area and stall"
 WORKBOOK = "exchanger_duty.ipynb"
 #: Results the uncertainty section gives bands and sensitivities for.
+#: Results in a pressure unit that are differences, not absolute pressures (labelled "difference").
+PRESSURE_DIFFERENCE_RESULTS = ("trap_static_head_pressure",)
 UNCERTAINTY_RESULTS = ("duty", "steam_flow", "required_area", "area_margin", "stall_load_fraction")
 
-ARRANGEMENTS = {"counterflow": None, "1-2": 1, "2-4": 2}
 #: Smallest temperature approach (steam saturation to process outlet) held without a warning, K
 #: (common practice: below about 5 K control is sluggish and the area grows fast).
 MIN_APPROACH = 5.0
-#: Part loads evaluated for the turndown table and chart.
-LOADS = tuple(round(0.1 * i, 1) for i in range(1, 11))
 
 CAUTIONS = (
     "Below the stall load condensate backs up into the exchanger: waterhammer, corrosion and loss of "
@@ -40,14 +46,6 @@ CAUTIONS = (
     "These results support design by a competent engineer; they do not replace the applicable codes, the "
     "equipment makers' data or a licensed engineer's approval.",
 )
-
-STALL_REMEDIES = (
-    "Usual remedies for stall, in general terms: drain the condensate by gravity to a vented receiver and pump "
-    "it (a pump-trap or pressure-powered pump); fit a vacuum breaker so that the steam space can drain when its "
-    "pressure falls below atmospheric; lower the condensate back pressure (line lift, return-main pressure); "
-    "avoid oversized area; or control the process temperature on the condensate side (flooded control).",
-)
-
 
 @dataclass(frozen=True)
 class Inputs:
@@ -102,6 +100,19 @@ class Inputs:
     condensate_back_pressure: float | None = input_field(
         "pressure", "Condensate back pressure", "Pressure the condensate drains against (trap outlet, lift, "
         "return main).", example="0.8 bar(g)")
+    desuperheating_u: float | None = input_field(
+        "heat_transfer_coefficient", "Desuperheating zone U (clean, dry wall)", "U of a dry-wall desuperheating "
+        "zone (steam cooling as a gas); leave empty for the wet-wall basis at the overall U.",
+        example="0.1 kW/(m^2 K)", positive=True)
+    subcooling_u: float | None = input_field(
+        "heat_transfer_coefficient", "Subcooling zone U (clean)", "U of the condensate-subcooling zone (else the "
+        "overall U).", example="0.6 kW/(m^2 K)", positive=True)
+    trap_static_head: float | None = input_field(
+        "length", "Static head to the trap", "Height of condensate between the heater outlet and the trap inlet "
+        "(trap below the outlet); adds ρ·g·H to the pressure that drains it.", example="0.5 m", section="drainage")
+    trap_min_differential: float | None = input_field(
+        "pressure_difference", "Trap minimum differential", "Smallest inlet-minus-outlet pressure difference the "
+        "trap works at (maker's data).", example="0.1 bar", section="drainage")
 
     def __post_init__(self):
         check_fields(self)
@@ -133,108 +144,36 @@ class Inputs:
             raise InputError("a fouling resistance cannot be negative", field="fouling_resistance")
         if self.condensate_subcooling is not None and self.condensate_subcooling < 0.0:
             raise InputError("subcooling cannot be negative", field="condensate_subcooling")
+        for name in ("desuperheating_u", "subcooling_u"):
+            if getattr(self, name) is not None and self.overall_u is None:
+                raise InputError(f"{name} is a zone's U; the condensing zone needs the overall U as well",
+                                 field=name, fix="give overall_u (the clean condensing U), or remove " + name)
+        self._check_drainage()
 
-
-def lmtd(hot_in, hot_out, cold_in, cold_out):
-    """Log-mean temperature difference of a counterflow exchanger, K.
-
-    Parameters
-    ----------
-    hot_in, hot_out, cold_in, cold_out : float
-        Terminal temperatures, K.
-
-    Notes
-    -----
-    :math:`\\Delta T_{lm} = (\\Delta T_1 - \\Delta T_2)/\\ln(\\Delta T_1/\\Delta T_2)` with
-    :math:`\\Delta T_1 = T_{h,in} - T_{c,out}` and :math:`\\Delta T_2 = T_{h,out} - T_{c,in}`;
-    the arithmetic mean when the two are equal.
-
-    References
-    ----------
-    Incropera & DeWitt, Fundamentals of Heat and Mass Transfer, eq. 11.15 (counterflow LMTD),
-    through ``ht.LMTD``.
-
-    Examples
-    --------
-    >>> round(lmtd(448.65, 448.65, 328.15, 358.15), 3)
-    104.785
-    """
-    d1, d2 = hot_in - cold_out, hot_out - cold_in
-    if d1 <= 0.0 or d2 <= 0.0:
-        raise InputError("temperature cross: the hot side is not hotter than the cold side at both ends",
-                         field="process_outlet_temperature")
-    if abs(d1 - d2) < 1e-12 * max(d1, d2):
-        return d1
-    return (d1 - d2) / math.log(d1 / d2)
-
-
-def _f_factor(arrangement, hot_in, hot_out, cold_in, cold_out):
-    shells = ARRANGEMENTS[arrangement]
-    if shells is None or abs(hot_in - hot_out) < 1e-9 or abs(cold_in - cold_out) < 1e-9:
-        return 1.0
-    from ht import F_LMTD_Fakheri
-    f = F_LMTD_Fakheri(Thi=hot_in, Tho=hot_out, Tci=cold_in, Tco=cold_out, shells=shells)
-    if not isinstance(f, float) or math.isnan(f) or f <= 0.0:
-        raise InputError(f"no {arrangement} shell-and-tube exchanger reaches these temperatures (temperature "
-                         "cross in the zone)", field="arrangement", fix="use counterflow, more shell passes, "
-                         "or a closer approach")
-    return float(f)
-
-
-def required_saturation_temperature(load_duty, ua, process_in, process_out):
-    """Steam saturation temperature a condensing exchanger needs to transfer a duty, K.
-
-    Parameters
-    ----------
-    load_duty : float
-        Duty at the load, W.
-    ua : float
-        Service U times area, W/K (fixed in turndown).
-    process_in, process_out : float
-        Process temperatures, K (held in turndown).
-
-    Notes
-    -----
-    With an isothermal hot side, :math:`Q = UA\\,(T_o - T_i)/\\ln((T_s - T_i)/(T_s - T_o))`,
-    so with :math:`k = \\exp(UA (T_o - T_i)/Q)`: :math:`T_s = (k T_o - T_i)/(k - 1)`.
-
-    References
-    ----------
-    The LMTD equation for a condensing hot side rearranged (any heat-transfer text).
-
-    Examples
-    --------
-    >>> round(required_saturation_temperature(419.0e3, 4680.0, 328.15, 358.15) - 273.15, 2)
-    160.37
-    """
-    exponent = ua * (process_out - process_in) / load_duty
-    if exponent > 700.0:
-        return process_out
-    k = math.exp(exponent)
-    return (k * process_out - process_in) / (k - 1.0)
-
-
-def stall_load(design_duty, ua, process_in, process_out, back_pressure):
-    """Load fraction below which the steam-side pressure falls under the back pressure.
-
-    Returns 0 when the back pressure's saturation temperature is at or below the process
-    outlet (the needed pressure never falls that low: no stall).
-
-    Notes
-    -----
-    At the stall point :math:`T_s = T_{sat}(p_{back})`:
-    :math:`Q_{stall} = UA (T_o - T_i)/\\ln((T_b - T_i)/(T_b - T_o))`; load = Q_stall/Q_design.
-
-    Examples
-    --------
-    >>> round(stall_load(419.0e3, 4680.0, 328.15, 358.15, 1.8e5), 3)
-    0.506
-    """
-    t_back = saturation_temperature(back_pressure)
-    if t_back <= process_out:
-        return 0.0
-    q_stall = ua * (process_out - process_in) / math.log((t_back - process_in) / (t_back - process_out))
-    return q_stall / design_duty
+    def _check_drainage(self):
+        head, differential = self.trap_static_head, self.trap_min_differential
+        for name, value, unit in (("desuperheating_u", self.desuperheating_u, "kW/(m^2 K)"),
+                                  ("subcooling_u", self.subcooling_u, "kW/(m^2 K)"),
+                                  ("drainage.trap_static_head", head, "m"),
+                                  ("drainage.trap_min_differential", differential, "bar")):
+            if value is not None and not math.isfinite(value):
+                raise InputError("is not a finite number", field=name, value=value,
+                                 fix=f"give a plain figure with its unit, in {unit}")
+        if head is not None and head < 0.0:
+            raise InputError(
+                "a static head cannot be negative: it is the height of condensate standing above the trap",
+                field="drainage.trap_static_head", value=f"{head:g} m",
+                fix="give the trap's depth below the heater outlet (0 m or more); a trap above the outlet is a "
+                    "lift: add its ρ·g·H to condensate_back_pressure instead")
+        if differential is not None and differential < 0.0:
+            raise InputError(
+                "a trap's minimum working differential cannot be negative",
+                field="drainage.trap_min_differential", value=f"{differential / 1e5:g} bar",
+                fix="give the trap maker's minimum differential, 0 bar or more, e.g. \"0.1 bar\"")
+        if (head is not None or differential is not None) and self.condensate_back_pressure is None:
+            field = "drainage.trap_static_head" if head is not None else "drainage.trap_min_differential"
+            raise InputError("the [inputs.drainage] figures set the stall load, which needs the condensate back "
+                             "pressure", field=field, fix="give condensate_back_pressure, e.g. \"0.8 bar(g)\"")
 
 
 def _process_side(inputs, result):
@@ -273,6 +212,21 @@ def _process_side(inputs, result):
     return flow, duty, (water_in, water_out)
 
 
+def _independent_balance(steam, condensate, steam_flow, flow, duty, steam_side, water, result):
+    """Steam side against process side, re-summed with the second IF97 implementation."""
+    steam_streams = ([Stream.of("steam", steam_flow, steam)], [Stream.of("condensate", steam_flow, condensate)])
+    if water is None:
+        # A process fluid given by its cp: only the steam side has IF97 states; its heat goes to the process.
+        check_energy_balance(result, "Steam-side energy balance (independent)", *steam_streams, duty,
+                             heat_in=-steam_side)
+        return
+    water_in, water_out = water
+    check_energy_balance(result, "Heater energy balance (independent)",
+                         steam_streams[0] + [Stream.of("process water in", flow, water_in)],
+                         steam_streams[1] + [Stream.of("process water out", flow, water_out)], duty,
+                         heat_in=-(steam_side - duty))
+
+
 def _steam_states(inputs):
     """Steam, condensate, saturated liquid and vapour at the steam pressure, and T_sat."""
     p = inputs.steam_pressure
@@ -307,7 +261,8 @@ def calculate(inputs, site):
     ----------
     inputs : Inputs
         Steam pressure (Pa) and state; process flow (kg/s or m³/s) and temperatures (K);
-        optional subcooling (K), U (W/(m² K)), fouling (m² K/W), area (m²), back pressure (Pa).
+        optional subcooling (K), U's (W/(m² K)), fouling (m² K/W), area (m²), back pressure (Pa),
+        static head to the trap (m) and the trap's minimum differential (Pa).
     site : steamcalc.site.Site
         Site data (its atmosphere has been applied to gauge inputs).
 
@@ -315,20 +270,25 @@ def calculate(inputs, site):
     -------
     Result
         ``duty`` (kW), ``steam_flow`` (kg/h), ``condensate_flow`` (kg/h), ``lmtd`` (K), ``ua``
-        (kW/K), ``required_area`` (m², with U), ``area_margin`` (with an installed area),
-        ``stall_load_fraction`` (with a back pressure), and the turndown table.
+        (kW/K), ``<zone>_duty``, ``<zone>_lmtd`` and ``<zone>_area`` for the zones present,
+        ``required_area`` (m², with U, the zones' sum), ``area_margin`` (with an installed area),
+        ``stall_load_fraction`` (clean U) and ``stall_load_fraction_fouled`` (with a back
+        pressure), and the turndown table (``required_steam_pressure_<load>`` on the fouled U,
+        ``required_steam_pressure_clean_<load>`` on the clean U when they differ).
 
     Notes
     -----
     .. math:: \\dot m_s = \\frac{Q (1 + f_{loss})}{h_s - h_c}, \\quad
               UA = \\sum_i \\frac{Q_i}{F_i \\Delta T_{lm,i}}, \\quad
-              A = \\frac{UA}{U_s}, \\quad \\frac{1}{U_s} = \\frac{1}{U} + R_f
+              A = \\sum_i \\frac{UA_i}{U_{s,i}}, \\quad \\frac{1}{U_{s,i}} = \\frac{1}{U_i} + R_f
 
     References
     ----------
     IAPWS R7-97(2012), IAPWS-IF97. Fakheri, A. (2003), "A General Expression for the
     Determination of the Log Mean Temperature Correction Factor for Shell and Tube Heat
-    Exchangers", J. Heat Transfer 125(3), 527-530 (through ``ht.F_LMTD_Fakheri``).
+    Exchangers", J. Heat Transfer 125(3), 527-530 (through ``ht.F_LMTD_Fakheri``). The
+    wet-wall desuperheating basis and the drainage balance are common practice (see the
+    zone and turndown modules).
 
     Examples
     --------
@@ -382,9 +342,10 @@ def calculate(inputs, site):
     result.add("condensate_enthalpy", "Condensate enthalpy", condensate.enthalpy / 1e3, "kJ/kg")
     result.add("steam_flow", "Steam flow", steam_flow * 3600, "kg/h")
     result.add("condensate_flow", "Condensate flow", steam_flow * 3600, "kg/h")
+    _independent_balance(steam, condensate, steam_flow, flow, duty, steam_side, water, result)
 
-    ua = _zones(inputs, (steam, condensate, saturated_liquid, saturated_vapour), t_sat, flow, duty, steam_side,
-                steam_flow, water, arrangement, result)
+    ua, area = add_zones(inputs, (steam, condensate, saturated_liquid, saturated_vapour), t_sat, flow, duty,
+                         steam_side, steam_flow, water, arrangement, result)
     mean_dt = duty / ua
     result.add("lmtd", "Mean temperature difference (effective LMTD)", mean_dt, "K")
     result.add("ua", "UA required", ua / 1e3, "kW/K")
@@ -396,16 +357,16 @@ def calculate(inputs, site):
                  f"{t_sat - 273.15:.2f} °C > {t_out - 273.15:.2f} °C")
     result.check("No temperature cross", "pass", "every zone has the hot side above the cold side at both ends")
 
-    service_u = None
-    if inputs.overall_u is not None:
+    if area is not None:
         fouling = inputs.fouling_resistance or 0.0
-        service_u = 1.0 / (1.0 / inputs.overall_u + fouling)
-        area = ua / service_u
+        u_service = service_u(inputs.overall_u, fouling)
         result.step("Service U", "1/U_s = 1/U + R_f",
-                    f"1/U_s = 1/{inputs.overall_u / 1e3:.3f} + {fouling * 1e3:.3f} m²·K/kW", service_u / 1e3, "kW/(m**2*K)")
-        result.step("Required area", "A = UA / U_s", f"A = {ua / 1e3:.3f} kW/K / {service_u / 1e3:.3f} kW/(m²·K)",
-                    area, "m**2")
-        result.add("service_u", "Service U (with fouling)", service_u / 1e3, "kW/(m**2*K)")
+                    f"1/U_s = 1/{inputs.overall_u / 1e3:.3f} + {fouling * 1e3:.3f} m²·K/kW", u_service / 1e3,
+                    "kW/(m**2*K)")
+        result.step("Required area", "A = Σ A_i (each zone's UA_i / U_s,i)",
+                    " + ".join(f"{result.value(name + '_area'):.4f}" for name in ("subcooling", "condensing",
+                               "desuperheating") if name + "_area" in result.values) + " m²", area, "m**2")
+        result.add("service_u", "Service U (with fouling)", u_service / 1e3, "kW/(m**2*K)")
         result.add("required_area", "Required area", area, "m**2")
         if inputs.installed_area is not None:
             margin = inputs.installed_area / area - 1.0
@@ -413,95 +374,5 @@ def calculate(inputs, site):
             result.check("Installed area sufficient", "fail" if margin < 0 else "pass",
                          f"installed {inputs.installed_area:.2f} m² against {area:.2f} m² required "
                          f"({100 * margin:+.1f} %)")
-    _turndown(inputs, duty, ua, service_u, result)
+    add_turndown(inputs, duty, ua, area, saturated_liquid.density, result)
     return result
-
-
-def _zones(inputs, steam_states, t_sat, flow, duty, steam_side, steam_flow, water, arrangement, result):
-    t_in, t_out = inputs.process_inlet_temperature, inputs.process_outlet_temperature
-    steam, condensate, saturated_liquid, saturated_vapour = steam_states
-    # Steam-side zone heats; the process side takes each in proportion (counter-current order:
-    # the process meets the subcooled condensate first and the superheated steam last).
-    q_super = steam_flow * max(0.0, steam.enthalpy - saturated_vapour.enthalpy)
-    q_cond = steam_flow * (min(steam.enthalpy, saturated_vapour.enthalpy) - saturated_liquid.enthalpy)
-    q_sub = steam_flow * (saturated_liquid.enthalpy - condensate.enthalpy)
-    scale = duty / steam_side   # the heat loss is taken from each zone in proportion
-    span = t_out - t_in
-
-    def process_temperature(heat):
-        return t_in + span * heat / duty if water is None else _water_temperature(inputs, water, flow, heat)
-
-    t_a = process_temperature(q_sub * scale)
-    t_b = process_temperature((q_sub + q_cond) * scale)
-    zones = []
-    if q_sub > 0.0:
-        zones.append(("subcooling", q_sub * scale, t_sat, condensate.temperature, t_in, t_a))
-    zones.append(("condensing", q_cond * scale, t_sat, t_sat, t_a, t_b))
-    if q_super > 0.0:
-        zones.append(("desuperheating", q_super * scale, steam.temperature, t_sat, t_b, t_out))
-    ua = 0.0
-    for name, q, hot_in, hot_out, cold_in, cold_out in zones:
-        dt = lmtd(hot_in, hot_out, cold_in, cold_out)
-        f = _f_factor(arrangement, hot_in, hot_out, cold_in, cold_out)
-        ua_zone = q / (f * dt)
-        ua += ua_zone
-        result.step(f"{name.capitalize()} zone", "UA_i = Q_i / (F·ΔT_lm,i)",
-                    f"Q = {q / 1e3:.2f} kW; steam {hot_in - 273.15:.2f}→{hot_out - 273.15:.2f} °C, process "
-                    f"{cold_in - 273.15:.2f}→{cold_out - 273.15:.2f} °C; ΔT_lm = {dt:.3f} K; F = {f:.4f}",
-                    ua_zone / 1e3, "kW/K")
-        result.add(f"{name}_duty", f"{name.capitalize()} zone duty", q / 1e3, "kW")
-        result.add(f"{name}_lmtd", f"{name.capitalize()} zone LMTD", dt, "K")
-        if f < 0.75:
-            result.check(f"F factor, {name} zone", "warn",
-                         f"F = {f:.3f} below 0.75: the {arrangement} arrangement is poorly suited (common practice)")
-    if arrangement != "counterflow" and len(zones) == 1:
-        result.assumptions.append("Condensing at constant temperature: F = 1 for any arrangement")
-    return ua
-
-
-def _water_temperature(inputs, water, flow, heat):
-    water_in, _ = water
-    return SteamState.from_ph(water_in.pressure, water_in.enthalpy + heat / flow).temperature
-
-
-def _turndown(inputs, duty, ua, service_u, result):
-    t_in, t_out = inputs.process_inlet_temperature, inputs.process_outlet_temperature
-    area = inputs.installed_area if inputs.installed_area is not None else (None if service_u is None else ua / service_u)
-    if service_u is None:
-        fixed_ua = ua
-        basis = "UA as required at design (no U given)"
-    else:
-        fixed_ua = service_u * area
-        basis = f"service U {service_u / 1e3:.3f} kW/(m²·K) and {'installed' if inputs.installed_area else 'required'} " \
-                f"area {area:.2f} m²"
-    result.assumptions.append(
-        "Turndown model: load varies with the process flow at the design inlet and outlet temperatures; the "
-        f"exchanger keeps its area and service U ({basis}); the steam-side pressure falls to what the load needs "
-        "(saturated steam, condensing only)")
-    for load in LOADS:
-        # Never below the process outlet temperature, so always inside the saturation range.
-        t_needed = required_saturation_temperature(load * duty, fixed_ua, t_in, t_out)
-        result.add(f"required_steam_pressure_{int(round(load * 100))}", f"Steam-side pressure needed at "
-                   f"{load:.0%} load", saturation_pressure(t_needed) / 1e5, "bar")
-    if inputs.condensate_back_pressure is None:
-        return
-    back = inputs.condensate_back_pressure
-    fraction = stall_load(duty, fixed_ua, t_in, t_out, back)
-    t_back = saturation_temperature(back)
-    result.step("Stall load", "Q_stall = UA·(T_o − T_i)/ln((T_b − T_i)/(T_b − T_o)), T_b = T_sat(p_back)",
-                f"T_b = {t_back - 273.15:.2f} °C at {back / 1e5:.4g} bar(a); UA = {fixed_ua / 1e3:.3f} kW/K",
-                fraction)
-    result.add("stall_load_fraction", "Stall load (fraction of design)", fraction)
-    if fraction >= 1.0:
-        result.check("Condensate drainage (stall)", "fail",
-                     f"the exchanger stalls even at design load: it needs less steam pressure than the "
-                     f"{back / 1e5:.4g} bar(a) back pressure; condensate cannot drain by pressure")
-    elif fraction > 0.0:
-        result.check("Condensate drainage (stall)", "warn",
-                     f"below {100 * fraction:.0f} % load the steam-side pressure falls under the condensate back "
-                     f"pressure ({back / 1e5:.4g} bar(a)): condensate backs up, with waterhammer and loss of "
-                     "temperature control")
-        result.warnings.append(STALL_REMEDIES[0])
-    else:
-        result.check("Condensate drainage (stall)", "pass",
-                     "the needed steam-side pressure stays above the back pressure at every load")

@@ -169,22 +169,45 @@ def valve_case_rows(inputs, result):
     return rows
 
 
+def _turndown_series(result, clean=False):
+    """(loads in %, pressures in bar(a)) of the turndown, on the fouled U or (when it differs) the clean U."""
+    prefix = "required_steam_pressure_clean_" if clean else "required_steam_pressure_"
+    loads = sorted(int(k[len(prefix):]) for k in result.values if k.startswith(prefix) and k[len(prefix):].isdigit())
+    return loads, [result.value(f"{prefix}{load}") for load in loads]
+
+
+def _u_label(result, which):
+    if f"turndown_u_{which}" in result.values:
+        return f"{which} U {result.value(f'turndown_u_{which}'):.3g} kW/(m²·K)"
+    return "UA as at design"
+
+
 def stall_chart(inputs, result, points=60):
-    """Steam-side pressure the exchanger needs against load, with the condensate back pressure."""
-    loads = np.array([int(k.rsplit("_", 1)[1]) for k in result.values if k.startswith("required_steam_pressure_")])
-    pressures = [result.value(f"required_steam_pressure_{load}") for load in loads]
+    """Steam-side pressure the exchanger needs against load (clean and fouled U), with the drainage limit."""
     fig = go.Figure()
-    fig.add_trace(go.Scatter(x=loads, y=pressures, mode="lines+markers", name="steam-side pressure needed",
+    loads, pressures = _turndown_series(result)
+    clean_loads, clean_pressures = _turndown_series(result, clean=True)
+    fouled_name = _u_label(result, "fouled") if clean_loads else _u_label(result, "clean") + " (no fouling)"
+    fig.add_trace(go.Scatter(x=loads, y=pressures, mode="lines+markers", name=f"pressure needed, {fouled_name}",
                              line=dict(color=_COLOURS["outlet"], width=2)))
+    if clean_loads:
+        fig.add_trace(go.Scatter(x=clean_loads, y=clean_pressures, mode="lines+markers",
+                                 name=f"pressure needed, {_u_label(result, 'clean')}",
+                                 line=dict(color=_COLOURS["process"], width=2, dash="dot")))
     if inputs.condensate_back_pressure is not None:
         back = inputs.condensate_back_pressure / 1e5
         fig.add_trace(go.Scatter(x=[0, 100], y=[back, back], mode="lines",
                                  name=f"condensate back pressure {back:.3g} bar(a)",
                                  line=dict(color=_COLOURS["inlet"], dash="dash", width=2)))
+        if "stall_pressure" in result.values and abs(result.value("stall_pressure") - back) > 1e-9:  # drainage given
+            drain = result.value("stall_pressure")
+            fig.add_trace(go.Scatter(x=[0, 100], y=[drain, drain], mode="lines",
+                                     name=f"drainage stops below {drain:.3g} bar(a) (trap differential, static head)",
+                                     line=dict(color=_COLOURS["inlet"], dash="dot", width=2)))
         stall = result.value("stall_load_fraction") * 100
         if 0 < stall < 100:
             fig.add_vrect(x0=0, x1=stall, fillcolor=_COLOURS["inlet"], opacity=0.08, line_width=0,
-                          annotation_text=f"stall below {stall:.0f} %", annotation_position="top right")
+                          annotation_text=f"stall below {stall:.0f} % (clean U)", annotation_position="top right")
     fig.update_layout(title="Turndown: steam-side pressure needed against load", xaxis_title="load, % of design",
                       yaxis_title="pressure, bar(a)", xaxis_range=[0, 102], height=420,
                       margin=dict(l=60, r=20, t=50, b=50), legend=dict(orientation="h", y=-0.2))
@@ -192,17 +215,26 @@ def stall_chart(inputs, result, points=60):
 
 
 def turndown_rows(inputs, result):
-    """Turndown table: load, duty and the steam-side pressure needed."""
+    """Turndown table: load, duty and the steam-side pressure needed, each column naming its U."""
+    loads, pressures = _turndown_series(result)
+    clean = dict(zip(*_turndown_series(result, clean=True)))
+    drain = None
+    if inputs.condensate_back_pressure is not None:
+        # No stall pressure: the static head alone drains the condensate at any steam-side pressure.
+        drain = result.value("stall_pressure") if "stall_pressure" in result.values else 0.0
+    fouled_name = _u_label(result, "fouled") if clean else _u_label(result, "clean") + " = fouled"
     rows = []
-    back = None if inputs.condensate_back_pressure is None else inputs.condensate_back_pressure / 1e5
-    for key in result.values:
-        if not key.startswith("required_steam_pressure_"):
-            continue
-        load = int(key.rsplit("_", 1)[1])
-        pressure = result.value(key)
-        row = {"load, %": load, "duty, kW": result.value("duty") * load / 100, "steam-side pressure, bar(a)": pressure}
-        if back is not None:
-            row["drains by pressure"] = "yes" if pressure > back else "NO - stall"
+    for load, pressure in zip(loads, pressures):
+        row = {"load, %": load, "duty, kW": result.value("duty") * load / 100,
+               f"steam-side pressure, {fouled_name}, bar(a)": pressure}
+        if clean:
+            row[f"steam-side pressure, {_u_label(result, 'clean')}, bar(a)"] = clean[load]
+        if drain is not None:
+            if clean:
+                row["drains, clean U"] = "yes" if clean[load] > drain else "NO - stall"
+                row["drains, fouled U"] = "yes" if pressure > drain else "NO - stall"
+            else:
+                row["drains by pressure"] = "yes" if pressure > drain else "NO - stall"
         rows.append(row)
     return rows
 
