@@ -42,11 +42,23 @@ class Verification:
     check_changes: list = field(default_factory=list)
     version_changes: dict = field(default_factory=dict)
     error: str | None = None
+    #: The overall status and failing checks as recomputed (never the record's own claim).
+    recomputed_status: str | None = None
+    recomputed_failing: list = field(default_factory=list)
+    #: What the record states that the calculation does not issue today: status, cautions,
+    #: references, the calculation's assumptions, its steps.
+    statement_changes: list = field(default_factory=list)
 
     @property
     def reproduced(self):
-        return self.error is None and not self.check_changes and all(
+        return self.error is None and not self.check_changes and not self.statement_changes and all(
             c.verdict == "same" for c in self.comparisons)
+
+    def differences(self):
+        """Every way the record differs from its recomputation, one line each."""
+        lines = [f"{c.key}: recorded {c.recorded}, recomputed {c.recomputed}" for c in self.comparisons
+                 if c.verdict != "same"]
+        return lines + [f"check changed: {c}" for c in self.check_changes] + list(self.statement_changes)
 
     @property
     def ok(self):
@@ -100,12 +112,89 @@ def verify_record(record):
         result.comparisons.append(_compare(key, old_results.get(key), new_results.get(key)))
     if "uncertainty" in record:
         _compare_uncertainty(record, result)
-    old_checks = [(c.get("name"), c.get("status")) for c in record.get("checks", [])]
-    new_checks = [(c.name, c.status) for c in fresh.checks]
+    old_checks = [(c.get("name"), c.get("status"), c.get("detail")) for c in record.get("checks", [])]
+    new_checks = [(c.name, c.status, c.detail) for c in fresh.checks]
     if old_checks != new_checks:
-        result.check_changes = [f"recorded: {n} = {s}" for n, s in old_checks if (n, s) not in new_checks] + \
-            [f"recomputed: {n} = {s}" for n, s in new_checks if (n, s) not in old_checks]
+        result.check_changes = [f"recorded: {n} = {s} ({d})" for n, s, d in old_checks if (n, s, d) not in new_checks] + \
+            [f"recomputed: {n} = {s} ({d})" for n, s, d in new_checks if (n, s, d) not in old_checks]
+    result.recomputed_status = fresh.status
+    result.recomputed_failing = [c.name for c in fresh.checks if c.status == "fail"]
+    result.statement_changes = _statement_changes(record, fresh)
     return result
+
+
+def _statement_changes(record, fresh):
+    """The record's status and statements against what the calculation issues today."""
+    changes = []
+    if record.get("status") != fresh.status:
+        changes.append(f"status: recorded {record.get('status')!r}, recomputed {fresh.status!r}")
+    own_assumptions = [a for a in record.get("assumptions", []) if not str(a).startswith("Engineer's note: ")]
+    for key, recorded, issued in (("cautions", record.get("cautions", []), list(fresh.cautions)),
+                                  ("references", record.get("references", []), list(fresh.references)),
+                                  ("warnings", record.get("warnings", []), list(fresh.warnings)),
+                                  ("assumptions", own_assumptions, list(fresh.assumptions))):
+        if recorded != issued:
+            missing = [t for t in issued if t not in recorded]
+            extra = [t for t in recorded if t not in issued]
+            what = "; ".join([f"missing {t!r}" for t in missing] + [f"not issued {t!r}" for t in extra]) or "reordered"
+            changes.append(f"{key}: {what}")
+    old_steps = record.get("steps", [])
+    new_steps = [s.to_record() for s in fresh.steps]
+    if len(old_steps) != len(new_steps):
+        changes.append(f"steps: {len(old_steps)} recorded, {len(new_steps)} recomputed")
+    for i, (a, b) in enumerate(zip(old_steps, new_steps), 1):
+        texts_differ = any(a.get(k) != b.get(k) for k in ("label", "equation", "substituted"))
+        value_differs = (a.get("value") is None) != (b.get("value") is None) or (
+            a.get("value") is not None and _compare("", a["value"], b["value"]).verdict != "same")
+        if texts_differ or value_differs:
+            changes.append(f"step {i} ({b.get('label')}): the record's text or value is not the calculation's")
+    return changes
+
+
+@dataclass
+class CompanionCheck:
+    """A report beside a record, against the same report rendered afresh from the JSON."""
+
+    path: object
+    verdict: str  # "match", "differs", "absent"
+
+
+def check_companions(json_path, record, repair=False):
+    """Re-render a record's HTML and Markdown and compare them with the files beside it.
+
+    Parameters
+    ----------
+    json_path : str or Path
+        The record's JSON file; the reports are beside it with the same stem.
+    record : dict
+        The record as read from it.
+    repair : bool
+        Re-write the reports that differ or are absent (only do this for a record that verifies).
+
+    Returns
+    -------
+    list of CompanionCheck
+    """
+    from pathlib import Path
+
+    from .record import write_text_atomic
+    from .report import RENDERERS
+
+    checks = []
+    for suffix, render in RENDERERS.items():
+        path = Path(json_path).with_suffix(suffix)
+        fresh = render(record)
+        try:
+            verdict = "match" if path.read_text(encoding="utf-8") == fresh else "differs"
+        except FileNotFoundError:
+            verdict = "absent"
+        except (OSError, UnicodeDecodeError):
+            verdict = "differs"
+        if repair and verdict != "match":
+            write_text_atomic(path, fresh)
+            verdict = "repaired"
+        checks.append(CompanionCheck(path, verdict))
+    return checks
 
 
 def _compare_uncertainty(record, outcome):

@@ -1,0 +1,542 @@
+"""Sign-offs with keys: Ed25519 key pairs, signing a record, and checking its signatures.
+
+A checker makes a key pair once (``steamcalc keys new``): a private key file ``*.key``
+(mode 0600, optionally protected by a passphrase) and a public key file ``*.pub`` that
+carries the checker's name and the key's fingerprint. A site trusts the public keys in the
+folder ``trusted_signers/`` beside its ``site.toml``.
+
+A signature covers the record's canonical content (everything but the ``signatures`` list
+and the ``digest``) together with its own entry (role, name, date, fingerprint, the
+verification summary), so neither the record nor the claims of the sign-off can be edited
+without the signature failing. The plain digests only catch accidental edits: anyone can
+recompute them.
+"""
+
+from __future__ import annotations
+
+import base64
+import hashlib
+import os
+import re
+import tempfile
+from dataclasses import dataclass
+from datetime import datetime, timezone
+from pathlib import Path
+
+from .errors import RecordError, SteamcalcError
+from .record import canonical_json, compute_digest
+
+SCHEME = "steamcalc.signature/1"
+ALGORITHM = "Ed25519"
+ROLES = ("checked", "approved")
+TRUSTED_FOLDER = "trusted_signers"
+_PRIVATE_HEADER = "steamcalc private signing key (Ed25519) - keep this file to yourself"
+_PUBLIC_HEADER = "steamcalc public signing key (Ed25519)"
+
+
+class SigningInputError(SteamcalcError):
+    """A key file, passphrase or trusted list that cannot be used (bad input: exit 2)."""
+
+
+@dataclass(frozen=True)
+class PublicKey:
+    """A public key as read from a ``.pub`` file or a signature entry."""
+
+    name: str
+    fingerprint: str
+    raw: bytes
+    path: Path | None = None
+
+
+def fingerprint(raw):
+    """Fingerprint of a raw 32-byte Ed25519 public key: ``sha256:`` and 64 hex digits.
+
+    Examples
+    --------
+    >>> fingerprint(bytes(32))[:19]
+    'sha256:66687aadf862'
+    """
+    return "sha256:" + hashlib.sha256(raw).hexdigest()
+
+
+def short_fingerprint(text):
+    """The first 12 hex digits of a fingerprint, as people quote it.
+
+    Examples
+    --------
+    >>> short_fingerprint("sha256:3f9a1c2b7d4e5f60718293a4b5c6d7e8")
+    '3f9a1c2b7d4e…'
+    """
+    return str(text).removeprefix("sha256:")[:12] + "…"
+
+
+def _slug(name):
+    return re.sub(r"[^A-Za-z0-9]+", "-", name).strip("-").lower() or "key"
+
+
+def _check_name(name, field="--name"):
+    name = (name or "").strip()
+    if not name or "\n" in name or "\r" in name:
+        raise SigningInputError("the signer's name is empty or spans lines", field=field, value=name or None,
+                                fix='give the name as it should appear on the record, e.g. --name "C. Checker"')
+    return name
+
+
+def read_passphrase(path):
+    """The passphrase in a file (its first line, without the line end)."""
+    try:
+        text = Path(path).read_bytes()
+    except OSError as exc:
+        raise SigningInputError(f"the passphrase file cannot be read ({exc.strerror})", source=path,
+                                field="--passphrase-file", fix="give a readable file holding the passphrase") from None
+    passphrase = text.splitlines()[0] if text.strip() else b""
+    if not passphrase:
+        raise SigningInputError("the passphrase file is empty", source=path, field="--passphrase-file",
+                                fix="write the passphrase on the file's first line")
+    return passphrase
+
+
+def _write_new(path, text, mode):
+    """Write a file that must not exist yet: a temporary file, then a link that fails if it does."""
+    handle, temp = tempfile.mkstemp(dir=path.parent, prefix=f".{path.name}.", suffix=".part")
+    try:
+        os.chmod(temp, mode)
+        with os.fdopen(handle, "w", encoding="utf-8", newline="\n") as out:
+            out.write(text)
+        os.link(temp, path)
+    except FileExistsError:
+        raise SigningInputError("the file exists already; a key is never overwritten", source=path,
+                                fix="choose another --out folder, or move the old key away") from None
+    finally:
+        Path(temp).unlink(missing_ok=True)
+
+
+def new_key_pair(name, out_dir=".", passphrase=None):
+    """Make an Ed25519 key pair for a signer.
+
+    Parameters
+    ----------
+    name : str
+        The signer's name, as it will appear on signed records.
+    out_dir : str or Path
+        Folder for the two files (created if absent).
+    passphrase : bytes, optional
+        Protects the private key file; without one it is protected by its file mode only.
+
+    Returns
+    -------
+    tuple of Path
+        ``(private_key_file, public_key_file)``: ``<name>.key`` (mode 0600) and ``<name>.pub``.
+    """
+    from cryptography.hazmat.primitives import serialization
+    from cryptography.hazmat.primitives.asymmetric.ed25519 import Ed25519PrivateKey
+
+    name = _check_name(name)
+    out_dir = Path(out_dir)
+    stem = _slug(name)
+    key_path, pub_path = out_dir / f"{stem}.key", out_dir / f"{stem}.pub"
+    for path in (key_path, pub_path):
+        if path.exists():
+            raise SigningInputError("the file exists already; a key is never overwritten", source=path,
+                                    fix="choose another --out folder, or move the old key away")
+    out_dir.mkdir(parents=True, exist_ok=True)
+    private = Ed25519PrivateKey.generate()
+    raw = private.public_key().public_bytes(serialization.Encoding.Raw, serialization.PublicFormat.Raw)
+    encryption = serialization.BestAvailableEncryption(passphrase) if passphrase else serialization.NoEncryption()
+    pem = private.private_bytes(serialization.Encoding.PEM, serialization.PrivateFormat.PKCS8, encryption).decode()
+    print_ = fingerprint(raw)
+    _write_new(key_path, f"{_PRIVATE_HEADER}\nname: {name}\nfingerprint: {print_}\n{pem}", 0o600)
+    try:
+        _write_new(pub_path, f"{_PUBLIC_HEADER}\nname: {name}\nfingerprint: {print_}\n"
+                             f"key: {base64.b64encode(raw).decode()}\n", 0o644)
+    except BaseException:
+        key_path.unlink(missing_ok=True)
+        raise
+    return key_path, pub_path
+
+
+def _fields(lines):
+    fields = {}
+    for line in lines:
+        key, sep, value = line.partition(":")
+        if sep:
+            fields.setdefault(key.strip(), value.strip())
+    return fields
+
+
+def load_private_key(path, passphrase=None):
+    """Read a private key file written by :func:`new_key_pair`.
+
+    Returns
+    -------
+    tuple
+        ``(private_key, name)``.
+
+    Raises
+    ------
+    SigningInputError
+        The file is missing, not a steamcalc key, not Ed25519, or the passphrase is wrong or missing.
+    """
+    from cryptography.hazmat.primitives import serialization
+    from cryptography.hazmat.primitives.asymmetric.ed25519 import Ed25519PrivateKey
+
+    path = Path(path)
+    make = 'make one with: steamcalc keys new --name "Your Name"'
+    try:
+        text = path.read_text(encoding="utf-8")
+    except (OSError, UnicodeDecodeError):
+        raise SigningInputError("the private key file cannot be read", source=path, field="--key", fix=make) from None
+    head, sep, pem = text.partition("-----BEGIN")
+    if not text.startswith(_PRIVATE_HEADER) or not sep:
+        what = "a public key file" if text.startswith(_PUBLIC_HEADER) else "not a steamcalc private key file"
+        raise SigningInputError(f"{what}; sign with your private key (*.key)", source=path, field="--key", fix=make)
+    name = _fields(head.splitlines()).get("name", "")
+    try:
+        key = serialization.load_pem_private_key((sep + pem).encode(), password=passphrase)
+    except TypeError:
+        if passphrase:
+            raise SigningInputError("this key is not protected by a passphrase", source=path,
+                                    field="--passphrase-file", fix="leave out --passphrase-file") from None
+        raise SigningInputError("this key is protected by a passphrase", source=path, field="--passphrase-file",
+                                fix="give --passphrase-file FILE with its passphrase") from None
+    except ValueError:
+        if passphrase:
+            raise SigningInputError("the passphrase is wrong (or the key file is damaged)", source=path,
+                                    field="--passphrase-file", fix="give the passphrase the key was made with") from None
+        raise SigningInputError("the key in the file cannot be read", source=path, field="--key", fix=make) from None
+    except Exception as exc:  # cryptography reports unsupported key types with its own classes
+        raise SigningInputError(f"the key in the file cannot be used ({type(exc).__name__})", source=path,
+                                field="--key", fix=make) from None
+    if not isinstance(key, Ed25519PrivateKey):
+        raise SigningInputError(f"the key is of the wrong type ({type(key).__name__.lstrip('_')}); steamcalc signs "
+                                "with Ed25519 keys only", source=path, field="--key", fix=make)
+    return key, _check_name(name, field="name")
+
+
+def load_public_key(path):
+    """Read a public key file (``*.pub``) written by :func:`new_key_pair`."""
+    from cryptography.hazmat.primitives.asymmetric.ed25519 import Ed25519PublicKey
+
+    path = Path(path)
+    fix = "a trusted signer's file is the .pub file that `steamcalc keys new` wrote; replace or remove this one"
+    try:
+        lines = path.read_text(encoding="utf-8").splitlines()
+    except FileNotFoundError:
+        raise SigningInputError("the public key file is missing (a broken link?)", source=path, fix=fix) from None
+    except (OSError, UnicodeDecodeError):
+        raise SigningInputError("the public key file cannot be read", source=path, fix=fix) from None
+    fields = _fields(lines[1:])
+    if not lines or lines[0] != _PUBLIC_HEADER or not {"name", "fingerprint", "key"} <= set(fields):
+        raise SigningInputError("not a steamcalc public key file", source=path, fix=fix)
+    try:
+        raw = base64.b64decode(fields["key"], validate=True)
+        Ed25519PublicKey.from_public_bytes(raw)
+    except ValueError:
+        raise SigningInputError("the key in the public key file is not an Ed25519 key", source=path, fix=fix) from None
+    if fingerprint(raw) != fields["fingerprint"]:
+        raise SigningInputError("the fingerprint written in the file is not its key's", source=path, fix=fix)
+    return PublicKey(_check_name(fields["name"], field="name"), fields["fingerprint"], raw, path)
+
+
+def site_folder_of(path):
+    """The site folder of a record (or records folder): the nearest folder above it holding a site.toml."""
+    path = Path(path).resolve()
+    for folder in [path] + list(path.parents)[:3]:
+        if (folder / "site.toml").is_file():
+            return folder
+    return None
+
+
+def trusted_folder_for(record_path):
+    """``trusted_signers/`` beside the site.toml above a record, or None when there is no site."""
+    site = site_folder_of(Path(record_path).parent)
+    return None if site is None else site / TRUSTED_FOLDER
+
+
+def load_trusted(folder, required=False):
+    """The public keys a site trusts: fingerprint -> :class:`PublicKey`.
+
+    Parameters
+    ----------
+    folder : str or Path or None
+        The ``trusted_signers/`` folder.
+    required : bool
+        True when the user named the folder: a missing one is then an error.
+
+    Raises
+    ------
+    SigningInputError
+        A named folder that does not exist, a ``.pub`` file that is not a public key, or one that
+        is a link to a missing file.
+    """
+    if folder is None:
+        return {}
+    folder = Path(folder)
+    if not folder.is_dir():
+        if required or folder.exists():
+            raise SigningInputError("the trusted signers folder does not exist", source=folder, field="--trusted",
+                                    fix="name the folder holding the trusted .pub files (trusted_signers/ beside site.toml)")
+        return {}
+    trusted = {}
+    for path in sorted(folder.glob("*.pub")):
+        key = load_public_key(path)
+        trusted[key.fingerprint] = key
+    return trusted
+
+
+def signed_message(record, entry):
+    """The bytes a signature is made over: the record's content and the entry's own claims."""
+    body = {k: v for k, v in record.items() if k not in ("signatures", "digest")}
+    claims = {k: v for k, v in entry.items() if k != "signature"}
+    return canonical_json({"scheme": SCHEME, "record": body, "signature": claims}).encode("utf-8")
+
+
+@dataclass
+class SignatureCheck:
+    """One signature as checked: valid (made by its key over this record) and trusted (key in the list)."""
+
+    role: str
+    name: str
+    date: str
+    fingerprint: str
+    valid: bool
+    trusted: bool
+    problem: str | None = None
+
+    @property
+    def ok(self):
+        return self.valid and self.trusted and self.problem is None
+
+    def describe(self):
+        trust = "trusted" if self.trusted else "UNKNOWN KEY (not in the trusted signers)"
+        text = (f"{self.role}: signed by {self.name} on {self.date}, key {short_fingerprint(self.fingerprint)}, "
+                f"{'valid' if self.valid else 'INVALID'}, {trust}")
+        return text + (f" - {self.problem}" if self.problem else "")
+
+
+def _check_one(record, entry, trusted):
+    from cryptography.exceptions import InvalidSignature
+    from cryptography.hazmat.primitives.asymmetric.ed25519 import Ed25519PublicKey
+
+    if not isinstance(entry, dict):
+        return SignatureCheck("?", "?", "?", "?", False, False, "the signature entry is not a table")
+    check = SignatureCheck(str(entry.get("role")), str(entry.get("name")), str(entry.get("date")),
+                           str(entry.get("fingerprint")), False, False)
+    try:
+        raw = base64.b64decode(str(entry.get("public_key")), validate=True)
+        signature = base64.b64decode(str(entry.get("signature")), validate=True)
+        key = Ed25519PublicKey.from_public_bytes(raw)
+    except ValueError:
+        check.problem = "the entry's key or signature is not readable"
+        return check
+    if fingerprint(raw) != check.fingerprint:
+        check.problem = "the fingerprint is not the entry's key's"
+        return check
+    try:
+        key.verify(signature, signed_message(record, entry))
+        check.valid = True
+    except InvalidSignature:
+        check.problem = "the signature is not over this record's content (edited after signing, or copied)"
+    known = trusted.get(check.fingerprint)
+    if known is not None:
+        check.trusted = True
+        if known.name != check.name:
+            check.problem = f"the trusted key belongs to {known.name}, not to {check.name}"
+    if check.role not in ROLES and check.problem is None:
+        check.problem = f"role {check.role!r} is not one of {', '.join(ROLES)}"
+    return check
+
+
+def check_signatures(record, trusted):
+    """Check every signature of a record against the trusted keys.
+
+    Returns
+    -------
+    list of SignatureCheck
+        One per signature, in the record's order (empty for an unsigned record).
+    """
+    entries = record.get("signatures") or []
+    if not isinstance(entries, list):
+        return [SignatureCheck("?", "?", "?", "?", False, False, "'signatures' is not a list")]
+    checks = [_check_one(record, entry, trusted) for entry in entries]
+    seen = set()
+    for check in checks:
+        if check.role in seen and check.problem is None:
+            check.problem = f"a second '{check.role}' signature"
+        seen.add(check.role)
+    if "approved" in seen and "checked" not in seen:
+        for check in checks:
+            if check.role == "approved" and check.problem is None:
+                check.problem = "approved without a 'checked' signature before it"
+    return checks
+
+
+def name_only_signoff(record, outcome=None):
+    """A v0.1 sign-off (a name, no key): its description and what in it does not hold, or None.
+
+    Parameters
+    ----------
+    record : dict
+    outcome : steamcalc.review.Verification, optional
+        The record's verification now: the sign-off's claims are compared with it.
+
+    Returns
+    -------
+    tuple or None
+        ``(text, problems)``.
+    """
+    signoff, checked_by = record.get("signoff"), record.get("checked_by")
+    if not signoff and not checked_by:
+        return None
+    signoff = signoff if isinstance(signoff, dict) else {}
+    problems = []
+    if signoff.get("by") != checked_by:
+        problems.append(f"checked_by ({checked_by}) is not the sign-off's name ({signoff.get('by')})")
+    claims = signoff.get("verification", {}) if isinstance(signoff.get("verification"), dict) else {}
+    if outcome is not None and not outcome.error:
+        same = sum(1 for c in outcome.comparisons if c.verdict == "same")
+        actual = f"{same} of {len(outcome.comparisons)}"
+        if claims.get("results_reproduced") != actual:
+            problems.append(f"it claims {claims.get('results_reproduced')} results reproduced; this record gives {actual}")
+    if str(signoff.get("date", "")) < str(record.get("created", "")):
+        problems.append("it is dated before the record was created (copied from another record?)")
+    text = f"signed without a key (name only): {checked_by or signoff.get('by')} on {signoff.get('date', '?')}"
+    return text, problems
+
+
+def verification_summary(outcome, companions=None):
+    """What the signer's verification found, as the signature entry states it."""
+    same = sum(1 for c in outcome.comparisons if c.verdict == "same")
+    summary = {
+        "integrity": "intact",
+        "results_reproduced": f"{same} of {len(outcome.comparisons)}",
+        "checks_reproduced": not outcome.check_changes,
+        "status_recomputed": outcome.recomputed_status,
+        "version_changes": {k: {"record": a, "checker": b} for k, (a, b) in outcome.version_changes.items()},
+    }
+    if companions is not None:
+        summary["companions"] = "match" if all(c.verdict != "differs" for c in companions) else "differ"
+    return summary
+
+
+def refusal(record, outcome, role, name, trusted, companions=()):
+    """Why a record must not be signed in this role, or None when it may be."""
+    if record.get("signoff") or record.get("checked_by"):
+        return ("it carries a sign-off without a key (name only); re-sign it with a key under a raised revision "
+                "(set [case] revision and run it again)")
+    if not (outcome.digest_ok and outcome.content_digest_ok):
+        return "its digest does not match (the file was edited)"
+    if outcome.error:
+        return outcome.error
+    if outcome.recomputed_status == "fail":
+        failing = "; ".join(outcome.recomputed_failing) or "see verify"
+        return f"its recomputed status is FAIL ({failing}); resolve the failing checks in a new revision"
+    if not outcome.ok:
+        return "what it states is not what its inputs give today: " + "; ".join(outcome.differences()[:4])
+    edited = [c.path.name for c in companions if c.verdict == "differs"]
+    if edited:
+        return (f"its companion files do not match the JSON ({', '.join(edited)}); "
+                "inspect them, then run steamcalc verify --repair")
+    checks = check_signatures(record, trusted)
+    bad = [c.describe() for c in checks if not c.valid or c.problem]
+    if bad:
+        return "it carries a signature that does not hold: " + "; ".join(bad)
+    if any(c.role == role for c in checks):
+        return f"it is already signed as {role}; a signed record stays as signed"
+    if role == "approved" and not any(c.role == "checked" for c in checks):
+        return "it has no 'checked' signature yet; it is checked before it is approved"
+    if any(c.name == name for c in checks):
+        return f"{name} has signed it already; checking and approving are done by different people"
+    if role == "checked" and name == record.get("prepared_by"):
+        return f"{name} prepared it; a record is checked by someone other than its preparer"
+    return None
+
+
+def add_signature(record, private_key, name, role, summary, now=None):
+    """A copy of the record with one more signature entry (and a new digest).
+
+    Parameters
+    ----------
+    record : dict
+    private_key : cryptography Ed25519PrivateKey
+    name, role : str
+    summary : dict
+        :func:`verification_summary` of the record.
+    now : str, optional
+        ISO 8601 UTC time of signing.
+    """
+    from cryptography.hazmat.primitives import serialization
+
+    raw = private_key.public_key().public_bytes(serialization.Encoding.Raw, serialization.PublicFormat.Raw)
+    entry = {
+        "role": role, "name": name,
+        "date": now or datetime.now(timezone.utc).strftime("%Y-%m-%dT%H:%M:%SZ"),
+        "algorithm": ALGORITHM, "fingerprint": fingerprint(raw),
+        "public_key": base64.b64encode(raw).decode(), "verification": summary,
+    }
+    signed = dict(record)
+    entry["signature"] = base64.b64encode(private_key.sign(signed_message(record, entry))).decode()
+    signed["signatures"] = list(record.get("signatures") or []) + [entry]
+    signed["digest"] = compute_digest(signed)
+    return signed
+
+
+def sign_with_key(path, key_file, role="checked", by=None, passphrase_file=None, trusted_dir=None, now=None):
+    """Verify a record as a checker would and sign it with a key; write it and its reports back.
+
+    Parameters
+    ----------
+    path : str or Path
+        The record's JSON file.
+    key_file : str or Path
+        The signer's private key file.
+    role : {'checked', 'approved'}
+    by : str, optional
+        The signer's name; when given it must be the key's.
+    passphrase_file : str or Path, optional
+    trusted_dir : str or Path, optional
+        The trusted signers folder (default: ``trusted_signers/`` beside the record's site.toml).
+
+    Returns
+    -------
+    dict
+        The signed record.
+
+    Raises
+    ------
+    SigningInputError
+        Bad input (key, passphrase, name, trusted list): nothing is written.
+    RecordError
+        The record may not be signed (it does not verify, its recomputed status is fail, ...).
+    """
+    from .record import load_record
+    from .review import check_companions, verify_record
+
+    if role not in ROLES:
+        raise SigningInputError(f"role {role!r} is not one of {', '.join(ROLES)}", field="--role", value=role)
+    passphrase = read_passphrase(passphrase_file) if passphrase_file else None
+    key, name = load_private_key(key_file, passphrase)
+    if by is not None and by.strip() != name:
+        raise SigningInputError(f"the key belongs to {name}, not to {by.strip()}", field="--by", value=by,
+                                fix="give the key's own name with --by, or leave --by out")
+    trusted = load_trusted(trusted_dir if trusted_dir else trusted_folder_for(path), required=bool(trusted_dir))
+    record = load_record(path)
+    outcome = verify_record(record)
+    companions = check_companions(path, record)
+    reason = refusal(record, outcome, role, name, trusted, companions)
+    if reason:
+        raise RecordError(f"not signed: {reason}", source=path)
+    signed = add_signature(record, key, name, role, verification_summary(outcome, companions), now)
+    write_signed(path, signed)
+    return signed
+
+
+def write_signed(path, signed):
+    """Write a signed record back: the reports first and the JSON last, each atomically."""
+    from .record import record_text, write_text_atomic
+    from .report import RENDERERS
+
+    path = Path(path)
+    texts = [(path.with_suffix(suffix), render(signed)) for suffix, render in RENDERERS.items()]
+    for target, text in texts + [(path, record_text(signed))]:
+        write_text_atomic(target, text)
