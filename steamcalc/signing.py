@@ -438,7 +438,7 @@ def refusal(record, outcome, role, name, trusted, companions=()):
         return (f"its companion files do not match the JSON ({', '.join(edited)}); "
                 "inspect them, then run steamcalc verify --repair")
     checks = check_signatures(record, trusted)
-    bad = [c.describe() for c in checks if not c.valid or c.problem]
+    bad = [c.describe() for c in checks if not c.ok]
     if bad:
         return "it carries a signature that does not hold: " + "; ".join(bad)
     if any(c.role == role for c in checks):
