@@ -300,7 +300,7 @@ def format_register(rows):
             lines.append(f"{'':<18}not valid: {r.verification}; signatures: {r.signatures}")
     current = sum(r.current for r in rows)
     valid = sum(r.valid for r in rows)
-    lines.append(f"{len(rows)} records: {current} current, {valid} valid")
+    lines.append(f"{len(rows)} record{'s' if len(rows) != 1 else ''}: {current} current, {valid} valid")
     return "\n".join(lines)
 
 
