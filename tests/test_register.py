@@ -130,3 +130,24 @@ def test_register_of_a_missing_folder(tmp_path, capsys):
 ])
 def test_revision_order(revisions, order):
     assert sorted(revisions, key=revision_order) == order
+
+
+def test_the_review_workbook_shows_the_register_with_a_filter(site, tmp_path):
+    from steamcalc.ui.review import ReviewBook
+
+    case = site / "cases" / "LD-02.toml"
+    case.write_text(case.read_text().replace('revision = "A"', 'revision = "B"').replace('"2.0 t/h"', '"2.3 t/h"'))
+    assert main(["run", str(case)]) == 0
+    book = ReviewBook(site / "records" / "LD-02_revB.json")
+    assert [r.revision for r in book.register()] == ["A", "B"]
+    assert [r.revision for r in book.register("not current or not valid")] == ["A"]
+    view = book.register_view()
+    build, show = view.children[0].children
+    build.click()
+    assert "superseded by revision B" in view.children[1].value and "2 of 2 records shown" in view.children[1].value
+    show.value = "current and valid"
+    assert "1 of 2 records shown" in view.children[1].value
+    # Signing with a key from the workbook.
+    assert main(["keys", "new", "--name", "C. Checker", "--out", str(tmp_path / "keys")]) == 0
+    said = book.sign("", key_file=tmp_path / "keys" / "c-checker.key")
+    assert said.startswith("checked, signed by C. Checker with key ") and "C. Checker (checked, key" in book.summary()
