@@ -151,3 +151,15 @@ def test_the_review_workbook_shows_the_register_with_a_filter(site, tmp_path):
     assert main(["keys", "new", "--name", "C. Checker", "--out", str(tmp_path / "keys")]) == 0
     said = book.sign("", key_file=tmp_path / "keys" / "c-checker.key")
     assert said.startswith("checked, signed by C. Checker with key ") and "C. Checker (checked, key" in book.summary()
+
+
+def test_the_run_index_carries_the_register_columns(site):
+    case = site / "cases" / "LD-02.toml"
+    shutil.copy(case, site / "cases" / "LD-03.toml")
+    (site / "cases" / "LD-03.toml").write_text(case.read_text().replace('id = "LD-02"', 'id = "LD-03"'))
+    case.write_text(case.read_text().replace('"2.0 t/h"', '"2.1 t/h"').replace('revision = "A"', 'revision = "B"'))
+    assert main(["run", "--quiet", str(site / "cases")]) == 0
+    rows = {r["json"]: r for r in csv.DictReader((site / "records" / "index.csv").open())}
+    assert rows["LD-02_revA.json"]["current"] == "no: superseded by revision B"
+    assert rows["LD-02_revB.json"]["current"] == "yes" and rows["LD-03_revA.json"]["signatures"] == "not signed"
+    assert "site data" in (site / "records" / "index.html").read_text()
