@@ -221,8 +221,12 @@ def _verify_trust(args, raw, record, outcome):
         ok = ok and c.verdict != "differs"
     if args.repair and not outcome.ok:
         print("  repair: not done - the JSON itself does not verify, so it is not rendered again")
-    trusted = load_trusted(args.trusted or trusted_folder_for(raw), required=bool(args.trusted))
+    folder = args.trusted or trusted_folder_for(raw)
+    trusted = load_trusted(folder, required=bool(args.trusted))
     signatures = check_signatures(record, trusted)
+    if signatures and not trusted:
+        print(f"  trusted signers: none found ({folder or 'no site.toml above the record'}); give --trusted DIR "
+              "or add the signers' .pub files to the site's trusted_signers/")
     legacy = name_only_signoff(record, outcome)
     if legacy:
         print(f"  signature: {legacy[0]} - proves nothing about who signed")

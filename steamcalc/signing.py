@@ -98,7 +98,11 @@ def read_passphrase(path):
 
 def _write_new(path, text, mode):
     """Write a file that must not exist yet: a temporary file, then a link that fails if it does."""
-    handle, temp = tempfile.mkstemp(dir=path.parent, prefix=f".{path.name}.", suffix=".part")
+    try:
+        handle, temp = tempfile.mkstemp(dir=path.parent, prefix=f".{path.name}.", suffix=".part")
+    except OSError as exc:
+        raise SigningInputError(f"the key file cannot be written ({exc.strerror})", source=path, field="--out",
+                                fix="give a folder you can write to") from None
     try:
         os.chmod(temp, mode)
         with os.fdopen(handle, "w", encoding="utf-8", newline="\n") as out:
@@ -133,13 +137,20 @@ def new_key_pair(name, out_dir=".", passphrase=None):
 
     name = _check_name(name)
     out_dir = Path(out_dir)
+    if out_dir.exists() and not out_dir.is_dir():
+        raise SigningInputError("--out names a file, not a folder", source=out_dir, field="--out",
+                                fix="give a folder for the two key files")
     stem = _slug(name)
     key_path, pub_path = out_dir / f"{stem}.key", out_dir / f"{stem}.pub"
     for path in (key_path, pub_path):
         if path.exists():
             raise SigningInputError("the file exists already; a key is never overwritten", source=path,
                                     fix="choose another --out folder, or move the old key away")
-    out_dir.mkdir(parents=True, exist_ok=True)
+    try:
+        out_dir.mkdir(parents=True, exist_ok=True)
+    except OSError as exc:
+        raise SigningInputError(f"the folder cannot be made ({exc.strerror})", source=out_dir, field="--out",
+                                fix="give a folder you can write to") from None
     private = Ed25519PrivateKey.generate()
     raw = private.public_key().public_bytes(serialization.Encoding.Raw, serialization.PublicFormat.Raw)
     encryption = serialization.BestAvailableEncryption(passphrase) if passphrase else serialization.NoEncryption()
@@ -527,16 +538,24 @@ def sign_with_key(path, key_file, role="checked", by=None, passphrase_file=None,
     if reason:
         raise RecordError(f"not signed: {reason}", source=path)
     signed = add_signature(record, key, name, role, verification_summary(outcome, companions), now)
-    write_signed(path, signed)
+    write_signed(path, signed, record["digest"])
     return signed
 
 
-def write_signed(path, signed):
-    """Write a signed record back: the reports first and the JSON last, each atomically."""
-    from .record import record_text, write_text_atomic
+def write_signed(path, signed, verified_digest):
+    """Write a signed record back: the reports first and the JSON last, each atomically.
+
+    The JSON is read again just before: if another writer changed it since it was verified,
+    nothing is written. (Where the record's lock of the issuing module is available, this
+    belongs under it, written as one set.)
+    """
+    from .record import load_record, record_text, write_text_atomic
     from .report import RENDERERS
 
     path = Path(path)
     texts = [(path.with_suffix(suffix), render(signed)) for suffix, render in RENDERERS.items()]
+    if load_record(path).get("digest") != verified_digest:
+        raise RecordError("not signed: the record changed while it was being verified and signed", source=path,
+                          fix="verify it again and sign the record as it is now")
     for target, text in texts + [(path, record_text(signed))]:
         write_text_atomic(target, text)

@@ -320,3 +320,24 @@ def test_new_site_copies_the_trusted_signers(site, tmp_path, capsys):
     target = tmp_path / "new_plant"
     assert main(["new-site", str(target), "--from", str(site)]) == 0
     assert sorted(p.name for p in (target / "trusted_signers").iterdir()) == ["c-checker.pub", "d-approver.pub"]
+
+
+@pytest.mark.parametrize("junk", [
+    "not a list", ["not a table"], [{}], [{"role": "checked", "name": "X", "public_key": "!!", "signature": "??"}],
+    [{"role": "checked", "name": "X", "fingerprint": "sha256:00", "public_key": "AAAA", "signature": "AAAA",
+      "verification": "nothing"}],
+], ids=["string", "list of strings", "empty entry", "bad base64", "short key"])
+def test_junk_signatures_fail_verify_without_a_traceback(site, capsys, junk):
+    path = site / "records" / "LD-02_revA.json"
+    _forge(path, lambda r: r.update(signatures=junk))
+    code, text = _run(["verify", path], capsys)
+    assert code == 1 and "verdict: FAILED" in text and "internal error" not in text, text
+
+
+def test_keys_new_into_a_file_is_refused(tmp_path, capsys):
+    target = tmp_path / "a-file"
+    target.write_text("x")
+    code, text = _run(["keys", "new", "--name", "C. Checker", "--out", target], capsys)
+    assert code == 2 and "not a folder" in text
+    code, text = _run(["keys", "new", "--name", "  ", "--out", tmp_path / "k"], capsys)
+    assert code == 2 and "name is empty" in text and not (tmp_path / "k").exists()
