@@ -531,7 +531,10 @@ def sign_with_key(path, key_file, role="checked", by=None, passphrase_file=None,
         raise SigningInputError(f"the key belongs to {name}, not to {by.strip()}", field="--by", value=by,
                                 fix="give the key's own name with --by, or leave --by out")
     trusted = load_trusted(trusted_dir if trusted_dir else trusted_folder_for(path), required=bool(trusted_dir))
-    record = load_record(path)
+    try:
+        record = load_record(path)
+    except RecordError as exc:  # no such file, or not a record: bad input, not a refusal
+        raise SigningInputError(exc.message, source=path, field=exc.field, fix=exc.fix) from None
     outcome = verify_record(record)
     companions = check_companions(path, record)
     reason = refusal(record, outcome, role, name, trusted, companions)

@@ -142,6 +142,8 @@ def _rewritten_step(record):
 
 FORGERIES = [
     # (what, record, how, what verify says)
+    ("overall status only, failing record", "LD-09_revA.json", lambda r: r.update(status="pass"),
+     "status: recorded 'pass', recomputed 'fail'"),
     ("edited status, failing record", "LD-09_revA.json", _edited_status, "status: recorded 'pass', recomputed 'fail'"),
     ("edited status, warning record", "LD-02_revA.json", _edited_status, "status: recorded 'pass', recomputed 'warn'"),
     ("removed cautions", "LD-02_revA.json", _removed_cautions, "cautions: missing"),
