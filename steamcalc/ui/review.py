@@ -196,7 +196,7 @@ class ReviewBook:
         return widgets.VBox([self._earlier, self._diff])
 
     def sign_view(self):
-        return widgets.VBox([widgets.HBox([self._checker, self._key_file, self._sign_button]), self._sign_status])
+        return widgets.VBox([self._key_file, widgets.HBox([self._checker, self._sign_button]), self._sign_status])
 
 
 def _signers(record):
