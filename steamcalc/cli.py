@@ -297,7 +297,11 @@ def _sign(args):
     if not args.by:
         raise SteamcalcError("give --key KEYFILE (or, for a sign-off without a key, --by NAME)", field="--key",
                              fix='make a key once with: steamcalc keys new --name "Your Name"')
+    from .signing import name_only_refusal
     record = load_record(args.record)
+    if name_only_refusal(record):
+        print(f"refused: {args.record}: {name_only_refusal(record)}", file=sys.stderr)
+        return EXIT_FAILED
     try:
         signed = sign_record(args.record, record, args.by)
     except SteamcalcError as exc:

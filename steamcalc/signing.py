@@ -18,6 +18,7 @@ import base64
 import hashlib
 import os
 import re
+import stat
 import tempfile
 from dataclasses import dataclass
 from datetime import datetime, timezone
@@ -202,6 +203,10 @@ def load_private_key(path, passphrase=None):
         what = "a public key file" if text.startswith(_PUBLIC_HEADER) else "not a steamcalc private key file"
         raise SigningInputError(f"{what}; sign with your private key (*.key)", source=path, field="--key", fix=make)
     name = _fields(head.splitlines()).get("name", "")
+    mode = stat.S_IMODE(path.stat().st_mode)
+    if os.name == "posix" and mode & 0o077:
+        raise SigningInputError(f"the private key file can be read by others (mode {mode:04o})", source=path,
+                                field="--key", fix=f"chmod 600 {path}; if others may have copied it, make a new key pair")
     try:
         key = serialization.load_pem_private_key((sep + pem).encode(), password=passphrase)
     except TypeError:
@@ -288,6 +293,11 @@ def load_trusted(folder, required=False):
             raise SigningInputError("the trusted signers folder does not exist", source=folder, field="--trusted",
                                     fix="name the folder holding the trusted .pub files (trusted_signers/ beside site.toml)")
         return {}
+    strays = sorted(folder.glob("*.key"))
+    if strays:
+        raise SigningInputError("a private key file is in the trusted signers folder, where the whole team can read it",
+                                source=strays[0], fix="move it back to its owner (only the .pub file belongs here); "
+                                "its owner should make a new key pair, since this one may have been copied")
     trusted = {}
     for path in sorted(folder.glob("*.pub")):
         key = load_public_key(path)
@@ -413,6 +423,17 @@ def name_only_signoff(record, outcome=None):
         problems.append("it is dated before the record was created (copied from another record?)")
     text = f"signed without a key (name only): {checked_by or signoff.get('by')} on {signoff.get('date', '?')}"
     return text, problems
+
+
+def name_only_refusal(record):
+    """Why a name-only sign-off must not be added to this record, or None.
+
+    A name-only sign-off edits ``checked_by`` and ``signoff``, which the keyed signatures cover:
+    it would break them.
+    """
+    if record.get("signatures"):
+        return "it carries signatures made with keys; add yours with --key (a sign-off by name only would break them)"
+    return None
 
 
 def verification_summary(outcome, companions=None):

@@ -259,6 +259,7 @@ def _rsa_key_file(path, header):
         serialization.Encoding.PEM, serialization.PrivateFormat.PKCS8, serialization.NoEncryption()).decode()
     path.write_text(("steamcalc private signing key (Ed25519) - keep this file to yourself\nname: R. Sa\n"
                      if header else "") + pem)
+    path.chmod(0o600)
     return path
 
 
@@ -343,3 +344,24 @@ def test_keys_new_into_a_file_is_refused(tmp_path, capsys):
     assert code == 2 and "not a folder" in text
     code, text = _run(["keys", "new", "--name", "  ", "--out", tmp_path / "k"], capsys)
     assert code == 2 and "name is empty" in text and not (tmp_path / "k").exists()
+
+
+def test_a_name_only_signoff_never_goes_over_keyed_signatures(site, keys, capsys):
+    path = site / "records" / "LD-02_revA.json"
+    assert main(["sign", str(path), "--key", str(keys / "c-checker.key")]) == 0
+    before = _snapshot(path)
+    code, text = _run(["sign", path, "--by", "D. Approver"], capsys)
+    assert code == 1 and "signatures made with keys" in text and _snapshot(path) == before
+    assert _run(["verify", path], capsys)[0] == 0
+
+
+def test_a_private_key_readable_by_others_or_left_in_the_trusted_folder(site, keys, tmp_path, capsys):
+    path = site / "records" / "LD-02_revA.json"
+    loose = tmp_path / "loose.key"
+    shutil.copy(keys / "c-checker.key", loose)
+    loose.chmod(0o644)
+    code, text = _run(["sign", path, "--key", loose], capsys)
+    assert code == 2 and "can be read by others" in text and "chmod 600" in text
+    shutil.copy(keys / "d-approver.key", site / "trusted_signers")
+    code, text = _run(["verify", path], capsys)
+    assert code == 2 and "d-approver.key" in text and "private key file is in the trusted signers folder" in text

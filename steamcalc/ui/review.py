@@ -177,6 +177,9 @@ class ReviewBook:
                 from ..signing import sign_with_key
                 signed = sign_with_key(self.path, key_file, role, checker or None, passphrase_file)
             else:
+                from ..signing import name_only_refusal
+                if name_only_refusal(self.record):
+                    return f"not signed: {name_only_refusal(self.record)}"
                 signed = sign_record(self.path, self.record, checker)
         except SteamcalcError as exc:
             return f"not signed: {exc}"
