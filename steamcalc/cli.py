@@ -206,7 +206,8 @@ def _diff(args):
 def _verify_trust(args, raw, record, outcome):
     """Status, statements, companions and signatures of a verification; True when all hold."""
     from .review import check_companions
-    from .signing import check_signatures, load_trusted, name_only_signoff, trusted_folder_for
+    from .keys import load_trusted, trusted_folder_for
+    from .signing import check_signatures, name_only_signoff
 
     for change in outcome.statement_changes:
         print(f"  statement changed: {change}")
@@ -242,7 +243,8 @@ def _verify_trust(args, raw, record, outcome):
 
 
 def _sign_with_key(args):
-    from .signing import SigningInputError, short_fingerprint, sign_with_key
+    from .keys import SigningInputError, short_fingerprint
+    from .signing import sign_with_key
 
     try:
         signed = sign_with_key(args.record, args.key, args.role, args.by, args.passphrase_file, args.trusted)
@@ -256,7 +258,7 @@ def _sign_with_key(args):
     print(f"{signed['id']} rev {signed['revision']}: {entry['role']} and signed by {entry['name']} on "
           f"{entry['date']}, key {short_fingerprint(entry['fingerprint'])}")
     print(f"  {args.record}, with its HTML and Markdown")
-    from .signing import load_trusted, trusted_folder_for
+    from .keys import load_trusted, trusted_folder_for
 
     folder = args.trusted or trusted_folder_for(args.record)
     if entry["fingerprint"] not in load_trusted(folder):
@@ -266,7 +268,7 @@ def _sign_with_key(args):
 
 
 def _keys(args):
-    from .signing import new_key_pair, read_passphrase, short_fingerprint, load_public_key
+    from .keys import load_public_key, new_key_pair, read_passphrase, short_fingerprint
 
     passphrase = read_passphrase(args.passphrase_file) if args.passphrase_file else None
     private, public = new_key_pair(args.name, args.out, passphrase)

@@ -74,7 +74,7 @@ def revision_order(revision):
 
 
 def _folders(folder):
-    from .signing import site_folder_of
+    from .keys import site_folder_of
 
     folder = Path(folder)
     if not folder.is_dir():
@@ -180,7 +180,8 @@ def register_row(path, record, *, trusted, case=None, site_path=None, later_revi
     """
     from .record import provenance
     from .review import check_companions, verify_record
-    from .signing import check_signatures, name_only_signoff, short_fingerprint
+    from .keys import short_fingerprint
+    from .signing import check_signatures, name_only_signoff
 
     row = RegisterRow(json=Path(path).name, id=record["id"], revision=str(record["revision"]), kind=record["kind"],
                       title=record.get("title", ""))
@@ -268,7 +269,7 @@ def build_register(folder, trusted_dir=None, recompute=True):
         Sorted by id, then revision.
     """
     from .record import load_record
-    from .signing import TRUSTED_FOLDER, load_trusted
+    from .keys import TRUSTED_FOLDER, load_trusted
 
     site_dir, records_dir = _folders(folder)
     trusted = load_trusted(trusted_dir or (site_dir / TRUSTED_FOLDER if site_dir else None), required=bool(trusted_dir))
