@@ -287,7 +287,7 @@ def _register(args):
         if target:
             write(target, rows)
             print(f"written: {target}")
-    return EXIT_OK if rows and all(r.ok for r in rows) else EXIT_FAILED
+    return EXIT_OK if all(r.ok for r in rows) else EXIT_FAILED
 
 
 def _sign(args):
