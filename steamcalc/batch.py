@@ -107,6 +107,8 @@ def write_index(folder, failures=()):
     """
     folder = Path(folder)
     rows = []
+    from .register import INDEX_COLUMNS, index_columns
+    currency = index_columns(folder)
     for path in sorted(folder.glob("*.json")):
         try:
             record = load_record(path)
@@ -116,9 +118,10 @@ def write_index(folder, failures=()):
         rows.append({"id": record["id"], "revision": record["revision"], "kind": record["kind"],
                      "title": record.get("title", ""), "status": record.get("status", ""),
                      "checked_by": record.get("checked_by") or "", "created": record.get("created", ""),
-                     "json": f"{stem}.json", "html": f"{stem}.html"})
+                     "json": f"{stem}.json", "html": f"{stem}.html",
+                     **{c: "" for c in INDEX_COLUMNS}, **currency.get("*", {}), **currency.get(path.name, {})})
     buffer = io.StringIO()
-    writer = csv.DictWriter(buffer, fieldnames=_INDEX_COLUMNS, lineterminator="\n")
+    writer = csv.DictWriter(buffer, fieldnames=_INDEX_COLUMNS + INDEX_COLUMNS, lineterminator="\n")
     writer.writeheader()
     writer.writerows(rows)
     csv_path = folder / "index.csv"
@@ -130,7 +133,8 @@ def write_index(folder, failures=()):
         f"</td><td>{html.escape(r['kind'])}</td><td>{html.escape(r['title'])}</td>"
         f"<td style='color:{colours.get(r['status'], '#000')};font-weight:bold'>{html.escape(r['status'].upper())}</td>"
         f"<td>{html.escape(r['checked_by'])}</td><td>{html.escape(r['created'])}</td>"
-        f"<td><a href='{html.escape(r['json'])}'>JSON</a></td></tr>" for r in rows)
+        f"<td><a href='{html.escape(r['json'])}'>JSON</a></td>"
+        + "".join(f"<td>{html.escape(r[c])}</td>" for c in INDEX_COLUMNS) + "</tr>" for r in rows)
     failed = "".join(f"<li><code>{html.escape(f.path)}</code>: {html.escape(f.error)}</li>" for f in failures)
     page = f"""<!DOCTYPE html>
 <html lang="en"><head><meta charset="utf-8"><title>steamcalc records index</title>
@@ -139,7 +143,7 @@ table{{border-collapse:collapse;width:100%}}th,td{{text-align:left;padding:.25em
 th{{background:#eef1f3}}.fail{{color:#a3201b}}</style></head><body>
 <h1>Calculation records</h1><p>{len(rows)} records in this folder.</p>
 <table><tr><th>Case</th><th>Rev</th><th>Kind</th><th>Title</th><th>Status</th><th>Checked by</th><th>Created</th>
-<th>Record</th></tr>{body}</table>
+<th>Record</th>{"".join(f"<th>{c.replace('_', ' ')}</th>" for c in INDEX_COLUMNS)}</tr>{body}</table>
 {f'<h2 class="fail">Cases not run in the last batch</h2><ul>{failed}</ul>' if failed else ''}
 </body></html>
 """

@@ -40,6 +40,10 @@ def _parser():
 
     verify = sub.add_parser("verify", help="check a record's digest and recompute its results")
     verify.add_argument("records", nargs="+", metavar="RECORD.json")
+    verify.add_argument("--repair", action="store_true",
+                        help="re-render the HTML and Markdown beside a record that verifies, where they differ")
+    verify.add_argument("--trusted", metavar="DIR", help="trusted signers folder (default: trusted_signers/ beside "
+                        "the record's site.toml)")
 
     diff = sub.add_parser("diff", help="what changed between two records")
     diff.add_argument("old", metavar="OLD.json")
@@ -48,7 +52,26 @@ def _parser():
 
     sign = sub.add_parser("sign", help="the checker's sign-off, after a passing verification")
     sign.add_argument("record", metavar="RECORD.json")
-    sign.add_argument("--by", required=True, metavar="NAME", help="the checker's name")
+    sign.add_argument("--by", metavar="NAME", help="the signer's name (with --key: must be the key's name; "
+                      "alone: a sign-off without a key, which proves nothing about who signed)")
+    sign.add_argument("--key", metavar="KEYFILE", help="your private key file (*.key, from `steamcalc keys new`)")
+    sign.add_argument("--role", choices=("checked", "approved"), default="checked", help="what the signature says")
+    sign.add_argument("--passphrase-file", metavar="FILE", help="file holding the key's passphrase")
+    sign.add_argument("--trusted", metavar="DIR", help="trusted signers folder (default: beside the site.toml)")
+
+    keys = sub.add_parser("keys", help="signing keys: make a key pair for a checker or approver")
+    keys_sub = keys.add_subparsers(dest="keys_command", required=True, parser_class=_Parser)
+    keys_new = keys_sub.add_parser("new", help="a new Ed25519 key pair: NAME.key (private, 0600) and NAME.pub")
+    keys_new.add_argument("--name", required=True, metavar="NAME", help="your name as it goes on signed records")
+    keys_new.add_argument("--out", default=".", metavar="DIR", help="folder for the two files (default: here)")
+    keys_new.add_argument("--passphrase-file", metavar="FILE", help="protect the private key with the passphrase "
+                          "in FILE (without it the key is protected by its file mode only)")
+
+    register = sub.add_parser("register", help="every record of a site or records folder: status, signatures, "
+                              "whether it is current")
+    register.add_argument("folder", metavar="DIR", help="a site folder (with site.toml) or a records folder")
+    register.add_argument("--html", metavar="FILE.html", help="also write the register as an HTML page")
+    register.add_argument("--csv", metavar="FILE.csv", help="also write the register as CSV")
 
     site = sub.add_parser("new-site", help="a new plant folder from a template site")
     site.add_argument("folder", metavar="DIR")
@@ -129,8 +152,9 @@ def _verify(args):
             print(f"  reproduction: {'reproduced' if outcome.reproduced else 'NOT REPRODUCED'}")
         for name, (then, now) in outcome.version_changes.items():
             print(f"  version: {name} {then} in the record, {now} here")
-        print(f"  verdict: {'VERIFIED' if outcome.ok else 'FAILED'}")
-        if not outcome.ok and worst != EXIT_BAD_INPUT:
+        trust_ok = _verify_trust(args, raw, record, outcome)
+        print(f"  verdict: {'VERIFIED' if outcome.ok and trust_ok else 'FAILED'}")
+        if not (outcome.ok and trust_ok) and worst != EXIT_BAD_INPUT:
             worst = EXIT_FAILED
     return worst
 
@@ -179,11 +203,107 @@ def _diff(args):
     return EXIT_OK
 
 
+def _verify_trust(args, raw, record, outcome):
+    """Status, statements, companions and signatures of a verification; True when all hold."""
+    from .review import check_companions
+    from .keys import load_trusted, trusted_folder_for
+    from .signing import check_signatures, name_only_signoff
+
+    for change in outcome.statement_changes:
+        print(f"  statement changed: {change}")
+    if outcome.recomputed_status:
+        print(f"  status: {record.get('status')} in the record, {outcome.recomputed_status} recomputed")
+    ok = True
+    companions = check_companions(raw, record, repair=args.repair and outcome.ok)
+    for c in companions:
+        print(f"  companion {c.path.name}: " + {"match": "matches the JSON", "absent": "absent",
+              "repaired": "re-rendered from the JSON (repaired)",
+              "differs": "DIFFERS from the JSON's rendering (edited by hand?)"}[c.verdict])
+        ok = ok and c.verdict != "differs"
+    if args.repair and not outcome.ok:
+        print("  repair: not done - the JSON itself does not verify, so it is not rendered again")
+    folder = args.trusted or trusted_folder_for(raw)
+    trusted = load_trusted(folder, required=bool(args.trusted))
+    signatures = check_signatures(record, trusted)
+    if signatures and not trusted:
+        print(f"  trusted signers: none found ({folder or 'no site.toml above the record'}); give --trusted DIR "
+              "or add the signers' .pub files to the site's trusted_signers/")
+    legacy = name_only_signoff(record, outcome)
+    if legacy:
+        print(f"  signature: {legacy[0]} - proves nothing about who signed")
+        for problem in legacy[1]:
+            print(f"  signature: the name-only sign-off does not hold: {problem}")
+        ok = ok and not legacy[1]
+    if not signatures and not legacy:
+        print("  signatures: not signed")
+    for check in signatures:
+        print(f"  signature: {check.describe()}")
+        ok = ok and check.ok
+    return ok
+
+
+def _sign_with_key(args):
+    from .keys import SigningInputError, short_fingerprint
+    from .signing import sign_with_key
+
+    try:
+        signed = sign_with_key(args.record, args.key, args.role, args.by, args.passphrase_file, args.trusted)
+    except SigningInputError as exc:
+        print(f"error: {exc}", file=sys.stderr)
+        return EXIT_BAD_INPUT
+    except SteamcalcError as exc:
+        print(f"refused: {exc}", file=sys.stderr)
+        return EXIT_FAILED
+    entry = signed["signatures"][-1]
+    print(f"{signed['id']} rev {signed['revision']}: {entry['role']} and signed by {entry['name']} on "
+          f"{entry['date']}, key {short_fingerprint(entry['fingerprint'])}")
+    print(f"  {args.record}, with its HTML and Markdown")
+    from .keys import load_trusted, trusted_folder_for
+
+    folder = args.trusted or trusted_folder_for(args.record)
+    if entry["fingerprint"] not in load_trusted(folder):
+        print(f"  note: this key is not in {folder or 'a trusted signers folder (no site.toml found above the record)'}; "
+              "verify reports it as unknown until its .pub file is added there")
+    return EXIT_OK
+
+
+def _keys(args):
+    from .keys import load_public_key, new_key_pair, read_passphrase, short_fingerprint
+
+    passphrase = read_passphrase(args.passphrase_file) if args.passphrase_file else None
+    private, public = new_key_pair(args.name, args.out, passphrase)
+    print(f"key pair for {args.name}, key {short_fingerprint(load_public_key(public).fingerprint)}")
+    print(f"  private: {private} (mode 0600{', passphrase-protected' if passphrase else ''}; keep it to yourself)")
+    print(f"  public:  {public} (give it to the site's trusted_signers/ folder)")
+    return EXIT_OK
+
+
+def _register(args):
+    from .register import build_register, format_register, write_register_csv, write_register_html
+
+    rows = build_register(args.folder)
+    print(format_register(rows))
+    for target, write in ((args.html, write_register_html), (args.csv, write_register_csv)):
+        if target:
+            write(target, rows)
+            print(f"written: {target}")
+    return EXIT_OK if all(r.ok for r in rows) else EXIT_FAILED
+
+
 def _sign(args):
     from .record import load_record
     from .signoff import sign_record
 
+    if args.key:
+        return _sign_with_key(args)
+    if not args.by:
+        raise SteamcalcError("give --key KEYFILE (or, for a sign-off without a key, --by NAME)", field="--key",
+                             fix='make a key once with: steamcalc keys new --name "Your Name"')
+    from .signing import name_only_refusal
     record = load_record(args.record)
+    if name_only_refusal(record):
+        print(f"refused: {args.record}: {name_only_refusal(record)}", file=sys.stderr)
+        return EXIT_FAILED
     try:
         signed = sign_record(args.record, record, args.by)
     except SteamcalcError as exc:
@@ -207,7 +327,8 @@ def _new_site(args):
     return EXIT_OK
 
 
-_COMMANDS = {"run": _run, "verify": _verify, "diff": _diff, "sign": _sign, "new-site": _new_site}
+_COMMANDS = {"run": _run, "verify": _verify, "diff": _diff, "sign": _sign, "new-site": _new_site,
+             "keys": _keys, "register": _register}
 
 
 def main(argv=None):

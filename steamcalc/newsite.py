@@ -25,7 +25,8 @@ def default_template():
 def new_site(destination, template=None):
     """Copy a template site to a new folder.
 
-    The new folder gets the template's ``site.toml``, its ``cases/`` and the workbooks that
+    The new folder gets the template's ``site.toml``, its ``cases/``, its ``trusted_signers/``
+    (the public keys of the people whose signatures it trusts) and the workbooks that
     sit beside the template (their parameters re-pointed at the new folder's cases and
     ``records/``). No records are copied.
 
@@ -48,6 +49,10 @@ def new_site(destination, template=None):
         shutil.copy2(template / "site.toml", staging / "site.toml")
         if (template / "cases").is_dir():
             shutil.copytree(template / "cases", staging / "cases")
+        if (template / "trusted_signers").is_dir():
+            # Public keys only: a private key that strayed into the folder is not carried on.
+            shutil.copytree(template / "trusted_signers", staging / "trusted_signers",
+                            ignore=shutil.ignore_patterns("*.key"))
         for notebook in sorted(template.parent.glob("*.ipynb")) + sorted(template.glob("*.ipynb")):
             _copy_workbook(notebook, staging / notebook.name, template.name)
         staging.rename(destination)

@@ -33,7 +33,7 @@ from .errors import RecordConflictError, RecordError
 SCHEMA = "steamcalc.record/1"
 _PROVENANCE_PACKAGES = ("steamcalc", "iapws", "pint", "numpy", "jinja2")
 # The checker's sign-off is not content: signing must leave the content digest as it was.
-_NOT_CONTENT = ("created", "provenance", "digest", "content_digest", "checked_by", "signoff")
+_NOT_CONTENT = ("created", "provenance", "digest", "content_digest", "checked_by", "signoff", "signatures")
 
 
 @lru_cache(maxsize=1)

@@ -6,6 +6,7 @@ newer library no longer reproduces is a different finding from an edited file.
 
 from __future__ import annotations
 
+import re
 from dataclasses import dataclass, field
 
 from .errors import SteamcalcError
@@ -42,11 +43,23 @@ class Verification:
     check_changes: list = field(default_factory=list)
     version_changes: dict = field(default_factory=dict)
     error: str | None = None
+    #: The overall status and failing checks as recomputed (never the record's own claim).
+    recomputed_status: str | None = None
+    recomputed_failing: list = field(default_factory=list)
+    #: What the record states that the calculation does not issue today: status, cautions,
+    #: references, the calculation's assumptions, its steps.
+    statement_changes: list = field(default_factory=list)
 
     @property
     def reproduced(self):
-        return self.error is None and not self.check_changes and all(
+        return self.error is None and not self.check_changes and not self.statement_changes and all(
             c.verdict == "same" for c in self.comparisons)
+
+    def differences(self):
+        """Every way the record differs from its recomputation, one line each."""
+        lines = [f"{c.key}: recorded {c.recorded}, recomputed {c.recomputed}" for c in self.comparisons
+                 if c.verdict != "same"]
+        return lines + [f"check changed: {c}" for c in self.check_changes] + list(self.statement_changes)
 
     @property
     def ok(self):
@@ -100,12 +113,131 @@ def verify_record(record):
         result.comparisons.append(_compare(key, old_results.get(key), new_results.get(key)))
     if "uncertainty" in record:
         _compare_uncertainty(record, result)
-    old_checks = [(c.get("name"), c.get("status")) for c in record.get("checks", [])]
-    new_checks = [(c.name, c.status) for c in fresh.checks]
+    old_checks = [(c.get("name"), c.get("status"), c.get("detail")) for c in record.get("checks", [])]
+    new_checks = [(c.name, c.status, c.detail) for c in fresh.checks]
+    if len(old_checks) == len(new_checks) and all(
+            a[:2] == b[:2] and same_text(a[2], b[2]) for a, b in zip(old_checks, new_checks)):
+        new_checks = old_checks  # the same checks, their numbers equal within the tolerance
     if old_checks != new_checks:
-        result.check_changes = [f"recorded: {n} = {s}" for n, s in old_checks if (n, s) not in new_checks] + \
-            [f"recomputed: {n} = {s}" for n, s in new_checks if (n, s) not in old_checks]
+        result.check_changes = [f"recorded: {n} = {s} ({d})" for n, s, d in old_checks if (n, s, d) not in new_checks] + \
+            [f"recomputed: {n} = {s} ({d})" for n, s, d in new_checks if (n, s, d) not in old_checks]
+    result.recomputed_status = fresh.status
+    result.recomputed_failing = [c.name for c in fresh.checks if c.status == "fail"]
+    result.statement_changes = _statement_changes(record, fresh)
     return result
+
+
+_NUMBER = re.compile(r"[-+]?(?:\d{1,3}(?:,\d{3})+|\d+)(?:\.\d*)?(?:[eE][-+]?\d+)?")
+
+
+def _last_place(text):
+    """One unit in the last printed digit of a number as written."""
+    mantissa, _, exponent = text.lower().partition("e")
+    decimals = len(mantissa.partition(".")[2])
+    return 10.0 ** (int(exponent or 0) - decimals)
+
+
+def same_text(a, b):
+    """Two texts alike but for their numbers, which agree within the tolerance or one unit in the last digit.
+
+    A record's details and substituted equations print numbers that a recomputation from the
+    record's own (rounded-trip) inputs may print a last digit apart.
+
+    Examples
+    --------
+    >>> same_text("residual 0.0e+00 (tolerance 1e-09)", "residual 1.8e-16 (tolerance 1e-09)")
+    True
+    >>> same_text("passes 5,694 kg/h", "passes 5,695 kg/h"), same_text("margin 12 %", "margin 31 %")
+    (True, False)
+    >>> same_text("pass", "fail")
+    False
+    """
+    if a == b:
+        return True
+    if not isinstance(a, str) or not isinstance(b, str):
+        return False
+    if _NUMBER.split(a) != _NUMBER.split(b):
+        return False
+    for x, y in zip(_NUMBER.findall(a), _NUMBER.findall(b)):
+        u, v = float(x.replace(",", "")), float(y.replace(",", ""))
+        slack = max(RELATIVE_TOLERANCE * abs(u), ABSOLUTE_TOLERANCE, 1.000001 * max(_last_place(x), _last_place(y)))
+        if abs(u - v) > slack:
+            return False
+    return True
+
+
+def _statement_changes(record, fresh):
+    """The record's status and statements against what the calculation issues today."""
+    changes = []
+    if record.get("status") != fresh.status:
+        changes.append(f"status: recorded {record.get('status')!r}, recomputed {fresh.status!r}")
+    own_assumptions = [a for a in record.get("assumptions", []) if not str(a).startswith("Engineer's note: ")]
+    for key, recorded, issued in (("cautions", record.get("cautions", []), list(fresh.cautions)),
+                                  ("references", record.get("references", []), list(fresh.references)),
+                                  ("warnings", record.get("warnings", []), list(fresh.warnings)),
+                                  ("assumptions", own_assumptions, list(fresh.assumptions))):
+        if recorded != issued:
+            missing = [t for t in issued if t not in recorded]
+            extra = [t for t in recorded if t not in issued]
+            what = "; ".join([f"missing {t!r}" for t in missing] + [f"not issued {t!r}" for t in extra]) or "reordered"
+            changes.append(f"{key}: {what}")
+    old_steps = record.get("steps", [])
+    new_steps = [s.to_record() for s in fresh.steps]
+    if len(old_steps) != len(new_steps):
+        changes.append(f"steps: {len(old_steps)} recorded, {len(new_steps)} recomputed")
+    for i, (a, b) in enumerate(zip(old_steps, new_steps), 1):
+        texts_differ = any(not same_text(a.get(k), b.get(k)) for k in ("label", "equation", "substituted"))
+        value_differs = (a.get("value") is None) != (b.get("value") is None) or (
+            a.get("value") is not None and _compare("", a["value"], b["value"]).verdict != "same")
+        if texts_differ or value_differs:
+            changes.append(f"step {i} ({b.get('label')}): the record's text or value is not the calculation's")
+    return changes
+
+
+@dataclass
+class CompanionCheck:
+    """A report beside a record, against the same report rendered afresh from the JSON."""
+
+    path: object
+    verdict: str  # "match", "differs", "absent"
+
+
+def check_companions(json_path, record, repair=False):
+    """Re-render a record's HTML and Markdown and compare them with the files beside it.
+
+    Parameters
+    ----------
+    json_path : str or Path
+        The record's JSON file; the reports are beside it with the same stem.
+    record : dict
+        The record as read from it.
+    repair : bool
+        Re-write the reports that differ or are absent (only do this for a record that verifies).
+
+    Returns
+    -------
+    list of CompanionCheck
+    """
+    from pathlib import Path
+
+    from .record import write_text_atomic
+    from .report import RENDERERS
+
+    checks = []
+    for suffix, render in RENDERERS.items():
+        path = Path(json_path).with_suffix(suffix)
+        fresh = render(record)
+        try:
+            verdict = "match" if path.read_text(encoding="utf-8") == fresh else "differs"
+        except FileNotFoundError:
+            verdict = "absent"
+        except (OSError, UnicodeDecodeError):
+            verdict = "differs"
+        if repair and verdict != "match":
+            write_text_atomic(path, fresh)
+            verdict = "repaired"
+        checks.append(CompanionCheck(path, verdict))
+    return checks
 
 
 def _compare_uncertainty(record, outcome):

@@ -1,4 +1,4 @@
-"""The review workbook: pick a record, re-run it, compare it with an earlier revision, sign it."""
+"""The review workbook: pick a record, re-run it, compare it with an earlier revision, sign it; the register."""
 
 from __future__ import annotations
 
@@ -45,6 +45,7 @@ class ReviewBook:
         self._earlier.observe(lambda change: self._compare(), names="value")
         self._diff = widgets.HTML()
         self._checker = widgets.Text(description="Checker", placeholder="your name")
+        self._key_file = widgets.Text(description="Key file", placeholder="path to your .key (recommended)")
         self._sign_button = widgets.Button(description="Sign as checked", icon="check", button_style="success")
         self._sign_button.on_click(lambda _: self._on_sign())
         self._sign_status = widgets.HTML()
@@ -93,13 +94,60 @@ class ReviewBook:
                  f"integrity: {'intact' if o.digest_ok and o.content_digest_ok else 'EDITED - digest does not match'}",
                  f"reproduction: {same} of {len(o.comparisons)} results reproduced"
                  + ("" if not o.check_changes else f"; {len(o.check_changes)} check changes"),
-                 f"record status: {r.get('status', '').upper()}; checked by: {r.get('checked_by') or 'not yet checked'}",
+                 f"record status: {r.get('status', '').upper()}; checked by: {_signers(r)}",
                  f"verdict: {'VERIFIED' if o.ok else 'FAILED'}"]
         if o.error:
             lines.insert(2, f"reproduction not possible: {o.error}")
         for name, (then, now) in o.version_changes.items():
             lines.append(f"version: {name} {then} in the record, {now} here")
         return "\n".join(lines)
+
+    # -- the register of the folder -------------------------------------------------------
+    #: Filter name -> which register rows it keeps.
+    REGISTER_FILTERS = {
+        "all records": lambda row: True,
+        "not current or not valid": lambda row: not row.ok,
+        "current and valid": lambda row: row.ok,
+        "not signed": lambda row: row.signatures == "not signed",
+    }
+
+    def register(self, show="all records"):
+        """The register of this record's folder (every record recomputed), filtered; a list of rows."""
+        from ..register import build_register
+
+        self._register_rows = build_register(self.folder)
+        return [row for row in self._register_rows if self.REGISTER_FILTERS[show](row)]
+
+    def register_view(self):
+        """The register as a table with a filter; built when asked (it recomputes every record)."""
+        from ..register import register_table_html
+
+        table = widgets.HTML()
+        table.add_class("steamcalc-register")
+        show = widgets.Dropdown(options=list(self.REGISTER_FILTERS), value="all records", description="Show")
+        build = widgets.Button(description="Build the register", icon="list")
+
+        def redraw(_=None):
+            rows = getattr(self, "_register_rows", None)
+            if rows is None:
+                table.value = "<p>Build the register to see every record of this folder.</p>"
+                return
+            kept = [row for row in rows if self.REGISTER_FILTERS[show.value](row)]
+            table.value = (f"<p>{len(kept)} of {len(rows)} records shown; {sum(r.current for r in rows)} current, "
+                           f"{sum(r.valid for r in rows)} valid.</p>" + register_table_html(kept))
+
+        def rebuild(_):
+            try:
+                self.register()
+            except SteamcalcError as exc:
+                table.value = f"<p>{html.escape(str(exc))}</p>"
+                return
+            redraw()
+
+        build.on_click(rebuild)
+        show.observe(redraw, names="value")
+        redraw()
+        return widgets.VBox([widgets.HBox([build, show]), table])
 
     def _compare(self):
         if self._earlier.value in (None, "(none)"):
@@ -116,17 +164,31 @@ class ReviewBook:
                             f"<th>{html.escape(self.path.name)}</th><th>unit</th><th>change</th></tr>{body}</table>")
 
     def _on_sign(self):
-        self._sign_status.value = html.escape(self.sign(self._checker.value))
+        self._sign_status.value = html.escape(self.sign(self._checker.value, self._key_file.value.strip() or None))
 
-    def sign(self, checker):
-        """Sign the record as checked (after a passing verification); return what happened."""
+    def sign(self, checker, key_file=None, role="checked", passphrase_file=None):
+        """Sign the record (after a passing verification); return what happened.
+
+        With ``key_file`` it is signed with the signer's key (:func:`steamcalc.signing.sign_with_key`);
+        without, it is the sign-off by name only, which proves nothing about who signed.
+        """
         try:
-            signed = sign_record(self.path, self.record, checker)
+            if key_file:
+                from ..signing import sign_with_key
+                signed = sign_with_key(self.path, key_file, role, checker or None, passphrase_file)
+            else:
+                from ..signing import name_only_refusal
+                if name_only_refusal(self.record):
+                    return f"not signed: {name_only_refusal(self.record)}"
+                signed = sign_record(self.path, self.record, checker)
         except SteamcalcError as exc:
             return f"not signed: {exc}"
         self.record = signed
         self.outcome = verify_record(signed)
         self._show()
+        if key_file:
+            entry = signed["signatures"][-1]
+            return f"{entry['role']}, signed by {entry['name']} with key {entry['fingerprint'][7:19]}… on {entry['date']}: {self.path}"
         return f"signed by {signed['checked_by']} on {signed['signoff']['date']}: {self.path}"
 
     # -- views -------------------------------------------------------------------------
@@ -137,4 +199,14 @@ class ReviewBook:
         return widgets.VBox([self._earlier, self._diff])
 
     def sign_view(self):
-        return widgets.VBox([widgets.HBox([self._checker, self._sign_button]), self._sign_status])
+        return widgets.VBox([self._key_file, widgets.HBox([self._checker, self._sign_button]), self._sign_status])
+
+
+def _signers(record):
+    """Who signed, as the summary says it: keyed signatures with their key, else the name-only sign-off."""
+    signatures = record.get("signatures") or []
+    if signatures:
+        return "; ".join(f"{s.get('name')} ({s.get('role')}, key {str(s.get('fingerprint'))[7:19]}…)" for s in signatures)
+    if record.get("checked_by"):
+        return f"{record['checked_by']} (name only, no key)"
+    return "not yet checked"
