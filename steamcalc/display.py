@@ -42,7 +42,8 @@ def convert(value, unit, system):
 
 
 #: Pressure units as stored in records and their display units.
-_PRESSURE_UNITS = {"bar": "bar", "psi": "psi", "kPa": "kPa", "MPa": "MPa", "Pa": "Pa"}
+#: ("Pa" is left out: results in Pa are momentum fluxes ρv², not pressures.)
+_PRESSURE_UNITS = {"bar": "bar", "psi": "psi", "kPa": "kPa", "MPa": "MPa"}
 
 
 def unit_label(unit, basis="absolute"):

@@ -227,3 +227,19 @@ def test_non_preferred_sizes_when_asked():
     default = calculate(Inputs(**{**BASE, "mass_flow": flow}), SITE)
     assert asked.value("suggested_inlet_size") == "DN90"
     assert default.value("suggested_inlet_size") == "DN100"
+
+
+def test_inlet_line_velocity_at_the_maximum_flow_uses_the_lowest_upstream_pressure():
+    # Independent: IAPWS-95 density at the lowest upstream pressure, ASME B36.10M DN80 sch 40 bore 77.92 mm.
+    r = calculate(Inputs(**BASE, max_flow=1.5, min_inlet_pressure=15e5, inlet_size="DN80"), SITE)
+    rho = PropsSI("D", "P", 15e5, "T", 503.15, "Water")
+    hand = 1.5 / rho / (math.pi / 4 * 0.07792 ** 2)
+    assert r.value("inlet_velocity") == pytest.approx(hand, rel=1e-3)
+
+
+def test_relief_load_states_the_saturated_steam_sensitivity():
+    r = calculate(Inputs(**BASE, rated_kv=63.0, max_inlet_pressure=19e5), SITE)
+    note = next(a for a in r.assumptions if "dry saturated steam at" in a)
+    rho, kappa = PropsSI("D", "P", 19e5, "Q", 1, "Water"), _kappa_iapws95(19e5, dryness=1.0)
+    hand = _iec_flow(63.0, 19e5, 3.5e5, rho, kappa, 0.70)
+    assert f"{hand:,.0f}"[:4] in note

@@ -13,7 +13,7 @@ from dataclasses import dataclass
 #: Residual, as a fraction of the heat transferred in the balance, above which the check
 #: fails. Two IF97 implementations agree to about 1e-8 in h; the iapws backward T(p, h)
 #: equations are consistent to 10-25 mK (IAPWS R7-97, tables 6, 21), which is ~1e-4 of a
-#: typical heat transfer; 1e-3 leaves room for that and catches a 0.1 % error in a flow.
+#: typical heat transfer; 1e-3 leaves room for that and catches a flow wrong by more than 0.1 %.
 RELATIVE_TOLERANCE = 1e-3
 
 

@@ -257,7 +257,8 @@ def relief_load_section(inputs, inlet, result):
     result.assumptions.append(
         f"Relief load: valve and bypass wide open at the highest upstream pressure {p_up / 1e5:.4g} bar(a) "
         f"({state.temperature - 273.15:.1f} °C) against {where}; no credit for the low-pressure users' "
-        "consumption (common practice)")
+        "consumption (common practice). The valve failing open and the bypass opened in error are taken as "
+        "separate single failures, not together (the single-jeopardy basis of API 521, from memory)")
     xt, (valve_d, inlet_d, outlet_d) = _valve_geometry(inputs)
     flows = {}
     if inputs.rated_kv is not None:
@@ -278,6 +279,17 @@ def relief_load_section(inputs, inlet, result):
                     f"p2 = {p_down / 1e5:.4g} bar(a)", flows["bypass_open_flow"], "kg/h")
         result.assumptions.append(f"Bypass valve at the main valve's xT = {xt:g}, no reducers (a bypass with a lower "
                                   "xT passes less when choked)")
+    if state.dryness is None and "fail_open_flow" in flows:
+        # Steam arriving colder (down to saturation) at the highest pressure is denser and passes more:
+        # the record states by how much, so the relief designer can choose the basis.
+        saturated = SteamState.from_p_dryness(p_up, 1.0)
+        fp, xtp = piping_factors(inputs.rated_kv, valve_d, inlet_d, outlet_d, xt) if valve_d is not None else (1.0, xt)
+        colder = valve_flow(inputs.rated_kv, p_up / 1e3, p_down / 1e3, saturated.density, sizing_kappa(saturated),
+                            xtp, fp)
+        result.assumptions.append(
+            f"Relief load at the inlet temperature {state.temperature - 273.15:.1f} °C: dry saturated steam at "
+            f"{p_up / 1e5:.4g} bar(a) would pass {colder:,.0f} kg/h through the failed-open valve "
+            f"({100 * (colder / flows['fail_open_flow'] - 1):+.1f} %); use that if the upstream superheat can be lost")
     governing = max(flows, key=flows.get)
     design_flow = flows[governing]
     what = "the control valve failing open" if governing == "fail_open_flow" else "the bypass valve wide open"
@@ -310,8 +322,12 @@ def line_section(inputs, inlet, throttled, outlet, result):
     if inputs.max_velocity_wet is None or inputs.max_velocity_superheated is None:
         result.assumptions.append(f"Line velocity limits {wet_limit:g} m/s for saturated or wet steam and "
                                   f"{hot_limit:g} m/s for superheated steam (common practice)")
-    result.assumptions.append(f"Line velocities at the {'maximum' if inputs.max_flow else 'normal'} flow, "
-                              f"schedule {schedule} pipe (ASME B36.10M)")
+    design_case = "maximum" if inputs.max_flow is not None else "normal"
+    # The inlet line carries the design flow at that case's upstream pressure (the lowest, for the
+    # maximum flow): the least dense steam and the highest velocity.
+    inlet = inlet_state_at(inputs, case_inlet_pressure(inputs, design_case), inlet)
+    result.assumptions.append(f"Line velocities at the {design_case} flow, the inlet line at "
+                              f"{inlet.pressure / 1e5:.4g} bar(a), schedule {schedule} pipe (ASME B36.10M)")
 
     if throttled is not outlet:
         result.assumptions.append("Downstream of the desuperheater the saturated/wet steam velocity limit applies: "
