@@ -40,6 +40,9 @@ def _parser():
 
     verify = sub.add_parser("verify", help="check a record's digest and recompute its results")
     verify.add_argument("records", nargs="+", metavar="RECORD.json")
+    verify.add_argument("--engine", choices=("iapws", "fast"), default="iapws",
+                        help="IF97 engine to recompute with: iapws (the records' own, default) or fast (seuif97, "
+                             "an independent second implementation)")
 
     diff = sub.add_parser("diff", help="what changed between two records")
     diff.add_argument("old", metavar="OLD.json")
@@ -117,13 +120,20 @@ def _verify(args):
             print(f"error: {exc}", file=sys.stderr)
             worst = EXIT_BAD_INPUT
             continue
-        outcome = verify_record(record)
+        outcome = verify_record(record, engine=args.engine)
         print(f"{raw}: {record['id']} rev {record['revision']}")
+        if args.engine != "iapws":
+            print(f"  recomputed on the {args.engine} IF97 engine (the record was computed on iapws)")
         print(f"  integrity: {'intact' if outcome.digest_ok and outcome.content_digest_ok else 'EDITED - digest does not match'}")
         if outcome.error:
             print(f"  reproduction: NOT POSSIBLE - {outcome.error}")
         else:
             print(format_comparisons(outcome.comparisons))
+            largest = outcome.largest_difference
+            if largest is not None:
+                print(f"  largest relative difference: {largest.rel_diff:.1e} ({largest.key})")
+            for note in outcome.notes:
+                print(f"  note: {note}")
             for change in outcome.check_changes:
                 print(f"  check changed: {change}")
             print(f"  reproduction: {'reproduced' if outcome.reproduced else 'NOT REPRODUCED'}")
