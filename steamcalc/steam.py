@@ -19,6 +19,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from functools import cached_property
 
 from .engines import (  # noqa: F401  (the engine choice is part of this interface)
     ENGINES, FAST_ENGINE, REFERENCE_ENGINE, current_engine, engine_module, other_engine, using_engine,
@@ -356,10 +357,10 @@ class SteamState:
         return cls._made(module.state_T_dryness(temperature, dryness), module)
 
     # -- derived -----------------------------------------------------------------------
-    @property
+    @cached_property
     def saturation_temperature(self):
         """Saturation temperature at this pressure, K (by this state's engine); None above the
-        critical pressure."""
+        critical pressure. Worked out once per state (superheat and subcooling use it)."""
         if self.pressure > CRITICAL_PRESSURE:
             return None
         return saturation_temperature(self.pressure, engine=self.engine)
