@@ -240,3 +240,14 @@ def test_verify_with_an_unknown_engine_is_a_usage_error(tmp_path, capsys):
     with pytest.raises(SystemExit) as info:
         main(["verify", "--engine", "other", str(tmp_path / "x.json")])
     assert info.value.code == 2
+
+
+def test_review_workbook_offers_the_fast_engine_cross_check(tmp_path, demo_site_dir):
+    from steamcalc.ui.review import ReviewBook
+    site = tmp_path / "site"
+    shutil.copytree(demo_site_dir, site, ignore=shutil.ignore_patterns("records"))
+    book = ReviewBook(site / "records" / "LD-02_revA.json", case_file=site / "cases" / "LD-02.toml")
+    text = book.cross_check()
+    assert "largest relative difference" in text and text.endswith("cross-check: AGREES")
+    book._cross_button.click()
+    assert "AGREES" in book._cross_status.value
