@@ -33,43 +33,43 @@ from .errors import AmbiguousStateError, OutOfRangeError
 #: Tolerance within which a temperature counts as on the saturation line, K.
 SATURATION_TOLERANCE = 1e-6
 
-#: The IF97 region each limit belongs to, as the range messages name it.
-_SINGLE_PHASE = "IF97 regions 1-3 (liquid, vapour and supercritical states)"
-_SATURATION = "IF97 region 4 (the saturation line, which ends at the critical point)"
+#: What each limit is and which IF97 region it bounds, as the range messages say it.
 _LIMITS = {
-    "pressure": ("the triple-point pressure 0.00611213 bar(a)", "the upper limit of IF97, 1000 bar(a) (100 MPa)"),
-    "temperature": ("0 degC (273.15 K), the lower limit of IF97",
-                    "800 degC (1073.15 K), the upper limit of IF97 region 2 (region 5 above it is not used here)"),
-    "saturation pressure": ("the triple-point pressure 0.00611213 bar(a)",
-                            "the critical pressure 220.64 bar(a): above it there is no saturation, boiling "
-                            "or wet steam"),
-    "saturation temperature": ("0 degC (273.15 K)",
-                               "the critical temperature 373.946 degC (647.096 K): above it there is no "
-                               "saturation, boiling or wet steam"),
-    "dryness": ("0 (saturated liquid)", "1 (saturated vapour)"),
+    "pressure": ("below the triple-point pressure 0.00611213 bar(a), the lowest pressure taken here for "
+                 "IF97 regions 1-3",
+                 "above 1000 bar(a) (100 MPa), the upper pressure limit of IF97 regions 1-3"),
+    "temperature": ("below 0 degC (273.15 K), the lower temperature limit of IF97 regions 1 and 2",
+                    "above 800 degC (1073.15 K), the upper temperature limit of IF97 region 2 (region 5, "
+                    "above it, is not used here)"),
+    "saturation pressure": ("below the triple-point pressure 0.00611213 bar(a), where IF97 region 4 (the "
+                            "saturation line) begins",
+                            "above the critical pressure 220.64 bar(a), where IF97 region 4 (the saturation "
+                            "line) ends: there is no saturation, boiling or wet steam above it"),
+    "saturation temperature": ("below 0 degC (273.15 K), where IF97 region 4 (the saturation line) begins",
+                               "above the critical temperature 373.946 degC (647.096 K), where IF97 region 4 "
+                               "(the saturation line) ends: there is no saturation, boiling or wet steam "
+                               "above it"),
+    "dryness": ("below 0 (saturated liquid), the lower limit of a dryness fraction in IF97 region 4",
+                "above 1 (saturated vapour), the upper limit of a dryness fraction in IF97 region 4"),
 }
 
 
-def _check(variable, value, low, high, unit, scale=1.0, limit="pressure", region=_SINGLE_PHASE):
-    """Refuse a value outside [low, high], naming the variable, the limit it crossed and the region."""
+def _check(variable, value, low, high, unit, scale=1.0, limit="pressure"):
+    """Refuse a value outside [low, high], naming the variable, the limit it crossed and the IF97 region."""
     if low <= value <= high:
         return
     shown = f"{value / scale:.6g} {unit}".rstrip()
     if unit == "K":
         shown += f" ({value - 273.15:.6g} degC)"
-    if math.isnan(value):
-        where = "is not a number"
-    else:
-        low_text, high_text = _LIMITS[limit]
-        where = f"is below {low_text}" if value < low else f"is above {high_text}"
-    raise OutOfRangeError(f"{variable} of {shown} {where}; {region} accepts {low / scale:.6g} to "
-                          f"{high / scale:.6g} {unit}".rstrip(),
-                          field=variable, value=value / scale, limits=(low / scale, high / scale, unit))
+    low_text, high_text = _LIMITS[limit]
+    where = "is not a number" if math.isnan(value) else f"is {low_text}" if value < low else f"is {high_text}"
+    raise OutOfRangeError(f"{variable} of {shown} {where}", field=variable, value=value / scale,
+                          limits=(low / scale, high / scale, unit))
 
 
-_SAT_P = dict(limit="saturation pressure", region=_SATURATION)
-_SAT_T = dict(limit="saturation temperature", region=_SATURATION)
-_DRYNESS = dict(limit="dryness", region=_SATURATION)
+_SAT_P = dict(limit="saturation pressure")
+_SAT_T = dict(limit="saturation temperature")
+_DRYNESS = dict(limit="dryness")
 
 
 def saturation_temperature(pressure, *, engine=None):
@@ -411,12 +411,11 @@ class SteamState:
             return
         name, unit, scale = ("enthalpy", "kJ/kg", 1e3) if key == "h" else ("entropy", "kJ/(kg K)", 1e3)
         where = "is not a number" if math.isnan(value) else (
-            f"is below that of water at 0 degC ({low / scale:.6g} {unit})" if value < low else
+            f"is below that of water at 0 degC ({low / scale:.6g} {unit}), the lower limit of IF97 region 1"
+            if value < low else
             f"is above that of steam at 800 degC ({high / scale:.6g} {unit}), the upper limit of IF97 region 2")
-        raise OutOfRangeError(
-            f"{name} {value / scale:.6g} {unit} at {pressure / 1e5:.6g} bar(a) {where}; IF97 regions 1-4 "
-            f"accept {low / scale:.6g} to {high / scale:.6g} {unit} at that pressure (0 degC to 800 degC)",
-            field=name, value=value / scale, limits=(low / scale, high / scale, unit))
+        raise OutOfRangeError(f"{name} of {value / scale:.6g} {unit} at {pressure / 1e5:.6g} bar(a) {where}",
+                              field=name, value=value / scale, limits=(low / scale, high / scale, unit))
 
     @classmethod
     def _made(cls, props, module):
