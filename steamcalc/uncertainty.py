@@ -158,7 +158,7 @@ def _sample_values(result, keys):
 
 
 def run_uncertainty(calc, inputs, site, tolerances, samples=DEFAULT_SAMPLES, seed=DEFAULT_SEED,
-                    coverage=DEFAULT_COVERAGE):
+                    coverage=DEFAULT_COVERAGE, engine=FAST_ENGINE):
     """Monte Carlo bands and one-at-a-time sensitivity of a calculation's headline results.
 
     Parameters
@@ -173,6 +173,9 @@ def run_uncertainty(calc, inputs, site, tolerances, samples=DEFAULT_SAMPLES, see
         Monte Carlo size and generator seed (numpy PCG64).
     coverage : float
         Coverage probability of each band, 0.5 to 0.99 (default 0.90).
+    engine : str
+        IF97 engine of the samples and the sensitivity: "fast" (seuif97, the default and what
+        records use) or "iapws" (for a cross-check of the bands, or a benchmark baseline).
 
     Returns
     -------
@@ -209,7 +212,7 @@ def run_uncertainty(calc, inputs, site, tolerances, samples=DEFAULT_SAMPLES, see
     table = np.full((samples, len(keys)), np.nan)
     failures = {}
     replace = dataclasses.replace
-    with using_engine(FAST_ENGINE):
+    with using_engine(engine):
         for i, row in enumerate(rows):
             try:
                 table[i] = _sample_values(calc.calculate(replace(inputs, **row), site), keys)
@@ -237,7 +240,7 @@ def run_uncertainty(calc, inputs, site, tolerances, samples=DEFAULT_SAMPLES, see
                   "(JCGM 101:2008 7.7); one-at-a-time sensitivity to each end of each tolerance",
         "samples": samples, "seed": seed, "generator": "numpy PCG64", "valid_samples": samples - failed,
         "failed_samples": failures, "failed_sample_count": failed, "coverage": coverage,
-        "property_engine": engine_description(FAST_ENGINE),
+        "property_engine": engine_description(engine),
         "tolerances": {t.field: t.to_record(kinds[t.field]) for t in tolerances},
         "bands": bands, "sensitivity": sensitivity,
     }

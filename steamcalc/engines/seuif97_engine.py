@@ -182,14 +182,14 @@ def state_T_dryness(temperature, dryness):
 def _state_p_and(pressure, value, key):
     t_sat = _saturation_temperature_or_none(pressure)
     vapour_side = None
+    p = pressure / 1e6
     if t_sat is not None:
-        liquid, vapour = _saturated_ends(pressure, t_sat, False)
-        index = 0 if key == "h" else 1
-        low, high = liquid[index], vapour[index]
+        oid = _H if key == "h" else _S
+        low, high = _if97.px(p, 0.0, oid) * 1e3, _if97.px(p, 1.0, oid) * 1e3
         if low <= value <= high:
+            liquid, vapour = _saturated_ends(pressure, t_sat, False)
             return _two_phase(pressure, t_sat, (value - low) / (high - low), liquid, vapour)
         vapour_side = value > high
-    p = pressure / 1e6
     start = _if97.ph2t(p, value / 1e3) if key == "h" else _if97.ps2t(p, value / 1e3)
     temperature = _value(start, "the backward temperature") + _TO_CELSIUS
     if vapour_side is not None:
