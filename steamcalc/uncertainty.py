@@ -211,11 +211,14 @@ def run_uncertainty(calc, inputs, site, tolerances, samples=DEFAULT_SAMPLES, see
         [{} for _ in range(samples)]
     table = np.full((samples, len(keys)), np.nan)
     failures = {}
-    replace = dataclasses.replace
+    # dataclasses.replace, with the unchanged fields read once rather than per sample; the
+    # constructor (and its input checks in __post_init__) still runs for every sample.
+    unchanged = {f.name: getattr(inputs, f.name) for f in dataclasses.fields(inputs) if f.init}
+    make = type(inputs)
     with using_engine(engine):
         for i, row in enumerate(rows):
             try:
-                table[i] = _sample_values(calc.calculate(replace(inputs, **row), site), keys)
+                table[i] = _sample_values(calc.calculate(make(**{**unchanged, **row}), site), keys)
             except SteamcalcError as exc:
                 reason = exc.message.split(":")[0][:80]
                 failures[reason] = failures.get(reason, 0) + 1
