@@ -251,3 +251,15 @@ def test_review_workbook_offers_the_fast_engine_cross_check(tmp_path, demo_site_
     assert "largest relative difference" in text and text.endswith("cross-check: AGREES")
     book._cross_button.click()
     assert "AGREES" in book._cross_status.value
+
+
+def test_one_case_run_and_fast_verify_import_only_what_they_use(tmp_path, demo_site_dir):
+    # A single record needs neither CoolProp (tests only) nor the fast engine; a fast-engine
+    # verification needs no iapws, so it is a check by a second implementation alone.
+    case = demo_site_dir / "cases" / "LD-02.toml"
+    run = _modules_after("from steamcalc.cli import main\n"
+                         f"assert main(['run', {str(case)!r}, '--out', {str(tmp_path)!r}]) in (0, 1)")
+    assert "CoolProp" not in run and "seuif97" not in run and "iapws" in run
+    record = str(tmp_path / "LD-02_revA.json")
+    fast = _modules_after(f"from steamcalc.cli import main\nassert main(['verify', '--engine', 'fast', {record!r}]) == 0")
+    assert "seuif97" in fast and "iapws" not in fast and "CoolProp" not in fast
