@@ -37,9 +37,13 @@ def _parser():
     run.add_argument("--notebook", action="store_true", help="also save the executed workbook beside each record")
     run.add_argument("--pdf", action="store_true", help="also print each record to PDF (needs Chromium)")
     run.add_argument("--quiet", action="store_true", help="no progress bar")
+    run.add_argument("--scheduler", metavar="ADDRESS", help="hand the cases to the Dask scheduler at ADDRESS "
+                     "(needs the cluster extra; default: local worker processes)")
 
     verify = sub.add_parser("verify", help="check a record's digest and recompute its results")
-    verify.add_argument("records", nargs="+", metavar="RECORD.json")
+    verify.add_argument("records", nargs="+", metavar="RECORD.json", help="record files, or folders of them")
+    verify.add_argument("--scheduler", metavar="ADDRESS", help="verify the records as tasks on the Dask scheduler "
+                        "at ADDRESS (needs the cluster extra)")
     verify.add_argument("--engine", choices=("iapws", "fast"), default="iapws",
                         help="IF97 engine to recompute with: iapws (the records' own, default) or fast (seuif97, "
                              "an independent second implementation)")
@@ -63,7 +67,8 @@ def _run(args):
     from .batch import find_case_files, run_cases, write_index
 
     paths = find_case_files(args.cases)
-    outcomes = run_cases(paths, args.site, args.out, progress=not args.quiet and len(paths) > 1)
+    outcomes = run_cases(paths, args.site, args.out, progress=not args.quiet and len(paths) > 1,
+                         scheduler=args.scheduler)
     worst = EXIT_OK
     failures = [o for o in outcomes if not o.ok]
     for outcome in outcomes:
@@ -108,19 +113,30 @@ def _companions(args, outcome):
     return EXIT_OK
 
 
+def _record_files(paths):
+    """Record files named, and every record (*.json) in named folders."""
+    files = []
+    for raw in paths:
+        path = Path(raw)
+        files.extend(sorted(str(p) for p in path.glob("*.json")) if path.is_dir() else [raw])
+    return files
+
+
 def _verify(args):
-    from .record import load_record
-    from .review import verify_record
+    from .review import verify_file
 
     worst = EXIT_OK
-    for raw in args.records:
-        try:
-            record = load_record(raw)
-        except SteamcalcError as exc:
-            print(f"error: {exc}", file=sys.stderr)
+    files = _record_files(args.records)
+    if args.scheduler:
+        from .cluster import verify_on_cluster
+        checked = verify_on_cluster(files, args.engine, args.scheduler, progress=len(files) > 1)
+    else:
+        checked = (verify_file(raw, args.engine) for raw in files)
+    for raw, record, outcome, error in checked:
+        if error is not None:
+            print(f"error: {error}", file=sys.stderr)
             worst = EXIT_BAD_INPUT
             continue
-        outcome = verify_record(record, engine=args.engine)
         print(f"{raw}: {record['id']} rev {record['revision']}")
         if args.engine != "iapws":
             print(f"  recomputed on the {args.engine} IF97 engine (the record was computed on iapws)")

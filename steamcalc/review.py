@@ -136,6 +136,18 @@ def verify_record(record, engine=REFERENCE_ENGINE):
     return result
 
 
+def verify_file(path, engine=REFERENCE_ENGINE):
+    """Load and verify one record file: ``(path, record, verification, error)``. A file that cannot
+    be read gives its error text instead of raising (one bad file never stops a batch)."""
+    from .record import load_record
+
+    try:
+        record = load_record(path)
+    except SteamcalcError as exc:
+        return path, None, None, str(exc)
+    return path, record, verify_record(record, engine=engine), None
+
+
 def _compare_uncertainty(record, outcome):
     try:
         fresh = recompute_uncertainty(record)
