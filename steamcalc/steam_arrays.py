@@ -206,8 +206,9 @@ def saturation_arrays(pressure):
 
     References
     ----------
-    IAPWS R7-97(2012), region 4 equations (30)-(31) with regions 1 and 2 at saturation (region 3,
-    refined, above 623.15 K). Through seuif97.
+    IAPWS R7-97(2012), region 4 equations (30)-(31) with regions 1 and 2 at saturation (above
+    623.15 K region 3 through the backward equations v'(p), v''(p) of IAPWS SR5-05, as the scalar
+    engines' wet states). Through seuif97.
 
     Examples
     --------
@@ -222,9 +223,4 @@ def saturation_arrays(pressure):
     out = {"t_sat": _each(_if97.px2t, p_mpa, 0.0) + 273.15,
            "h_f": _each(_if97.px, p_mpa, 0.0, _H) * 1e3, "h_g": _each(_if97.px, p_mpa, 1.0, _H) * 1e3,
            "s_f": _each(_if97.px, p_mpa, 0.0, _S) * 1e3, "s_g": _each(_if97.px, p_mpa, 1.0, _S) * 1e3}
-    for i in np.flatnonzero(p > SATURATION_PRESSURE_623):
-        liquid = _fast.state_p_dryness(float(p[i]), 0.0)
-        vapour = _fast.state_p_dryness(float(p[i]), 1.0)
-        out["h_f"][i], out["h_g"][i] = liquid.enthalpy, vapour.enthalpy
-        out["s_f"][i], out["s_g"][i] = liquid.entropy, vapour.entropy
     return out
