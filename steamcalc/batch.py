@@ -73,8 +73,12 @@ def run_one(path, site_override=None, out_override=None):
                        checks=[c for c in record["checks"] if c["status"] != "pass"], out_dir=str(out))
 
 
-def run_cases(paths, site_override=None, out_override=None, progress=True, workers=None):
-    """Run case files, in worker processes when there are several; outcomes in the order given."""
+def run_cases(paths, site_override=None, out_override=None, progress=True, workers=None, scheduler=None):
+    """Run case files, in worker processes when there are several (or as tasks on the Dask scheduler
+    at ``scheduler``, see :mod:`steamcalc.cluster`); outcomes in the order given."""
+    if scheduler:
+        from .cluster import run_cases_on_cluster
+        return run_cases_on_cluster(paths, site_override, out_override, scheduler, progress)
     if len(paths) < PARALLEL_FROM:
         iterator = (run_one(p, site_override, out_override) for p in paths)
         return list(_progress(iterator, len(paths), progress))

@@ -37,13 +37,20 @@ def _parser():
     run.add_argument("--notebook", action="store_true", help="also save the executed workbook beside each record")
     run.add_argument("--pdf", action="store_true", help="also print each record to PDF (needs Chromium)")
     run.add_argument("--quiet", action="store_true", help="no progress bar")
+    run.add_argument("--scheduler", metavar="ADDRESS", help="hand the cases to the Dask scheduler at ADDRESS "
+                     "(needs the cluster extra; default: local worker processes)")
 
     verify = sub.add_parser("verify", help="check a record's digest and recompute its results")
-    verify.add_argument("records", nargs="+", metavar="RECORD.json")
+    verify.add_argument("records", nargs="+", metavar="RECORD.json", help="record files, or folders of them")
     verify.add_argument("--repair", action="store_true",
                         help="re-render the HTML and Markdown beside a record that verifies, where they differ")
     verify.add_argument("--trusted", metavar="DIR", help="trusted signers folder (default: trusted_signers/ beside "
                         "the record's site.toml)")
+    verify.add_argument("--scheduler", metavar="ADDRESS", help="verify the records as tasks on the Dask scheduler "
+                        "at ADDRESS (needs the cluster extra)")
+    verify.add_argument("--engine", choices=("iapws", "fast"), default="iapws",
+                        help="IF97 engine to recompute with: iapws (the records' own, default) or fast (seuif97, "
+                             "an independent second implementation)")
 
     diff = sub.add_parser("diff", help="what changed between two records")
     diff.add_argument("old", metavar="OLD.json")
@@ -83,7 +90,8 @@ def _run(args):
     from .batch import find_case_files, run_cases, write_index
 
     paths = find_case_files(args.cases)
-    outcomes = run_cases(paths, args.site, args.out, progress=not args.quiet and len(paths) > 1)
+    outcomes = run_cases(paths, args.site, args.out, progress=not args.quiet and len(paths) > 1,
+                         scheduler=args.scheduler)
     worst = EXIT_OK
     failures = [o for o in outcomes if not o.ok]
     for outcome in outcomes:
@@ -128,25 +136,43 @@ def _companions(args, outcome):
     return EXIT_OK
 
 
+def _record_files(paths):
+    """Record files named, and every record (*.json) in named folders."""
+    files = []
+    for raw in paths:
+        path = Path(raw)
+        files.extend(sorted(str(p) for p in path.glob("*.json")) if path.is_dir() else [raw])
+    return files
+
+
 def _verify(args):
-    from .record import load_record
-    from .review import verify_record
+    from .review import verify_file
 
     worst = EXIT_OK
-    for raw in args.records:
-        try:
-            record = load_record(raw)
-        except SteamcalcError as exc:
-            print(f"error: {exc}", file=sys.stderr)
+    files = _record_files(args.records)
+    if args.scheduler:
+        from .cluster import verify_on_cluster
+        checked = verify_on_cluster(files, args.engine, args.scheduler, progress=len(files) > 1)
+    else:
+        checked = (verify_file(raw, args.engine) for raw in files)
+    for raw, record, outcome, error in checked:
+        if error is not None:
+            print(f"error: {error}", file=sys.stderr)
             worst = EXIT_BAD_INPUT
             continue
-        outcome = verify_record(record)
         print(f"{raw}: {record['id']} rev {record['revision']}")
+        if args.engine != "iapws":
+            print(f"  recomputed on the {args.engine} IF97 engine (the record was computed on iapws)")
         print(f"  integrity: {'intact' if outcome.digest_ok and outcome.content_digest_ok else 'EDITED - digest does not match'}")
         if outcome.error:
             print(f"  reproduction: NOT POSSIBLE - {outcome.error}")
         else:
             print(format_comparisons(outcome.comparisons))
+            largest = outcome.largest_difference
+            if largest is not None:
+                print(f"  largest relative difference: {largest.rel_diff:.1e} ({largest.key})")
+            for note in outcome.notes:
+                print(f"  note: {note}")
             for change in outcome.check_changes:
                 print(f"  check changed: {change}")
             print(f"  reproduction: {'reproduced' if outcome.reproduced else 'NOT REPRODUCED'}")

@@ -31,7 +31,7 @@ from pathlib import Path
 from .errors import RecordConflictError, RecordError
 
 SCHEMA = "steamcalc.record/1"
-_PROVENANCE_PACKAGES = ("steamcalc", "iapws", "pint", "numpy", "jinja2")
+_PROVENANCE_PACKAGES = ("steamcalc", "iapws", "seuif97", "pint", "numpy", "jinja2")
 # The checker's sign-off is not content: signing must leave the content digest as it was.
 _NOT_CONTENT = ("created", "provenance", "digest", "content_digest", "checked_by", "signoff", "signatures")
 

@@ -2,6 +2,12 @@
 
 Integrity and reproduction are reported apart: an intact record whose numbers a
 newer library no longer reproduces is a different finding from an edited file.
+
+Reproduction runs on the engine of issued records (iapws) by default. With
+``engine="fast"`` the record is recomputed on the second, independent IF97
+implementation (seuif97) instead: a cross-check that no bug of one implementation can
+pass. Its uncertainty bands are then not recomputed (their samples run on the fast
+engine already); the ordinary verification reproduces them.
 """
 
 from __future__ import annotations
@@ -9,6 +15,7 @@ from __future__ import annotations
 import re
 from dataclasses import dataclass, field
 
+from .engines import REFERENCE_ENGINE, check_engine
 from .errors import SteamcalcError
 from .record import compute_content_digest, compute_digest, provenance
 from .runner import recompute, recompute_uncertainty
@@ -49,6 +56,14 @@ class Verification:
     #: What the record states that the calculation does not issue today: status, cautions,
     #: references, the calculation's assumptions, its steps.
     statement_changes: list = field(default_factory=list)
+    engine: str = REFERENCE_ENGINE
+    notes: list = field(default_factory=list)
+
+    @property
+    def largest_difference(self):
+        """The compared result with the largest relative difference, or None."""
+        numeric = [c for c in self.comparisons if c.rel_diff is not None]
+        return max(numeric, key=lambda c: c.rel_diff, default=None)
 
     @property
     def reproduced(self):
@@ -83,13 +98,16 @@ def _compare(key, recorded, recomputed):
     return Comparison(key, a, b, unit, None, None, "same" if a == b else "differs")
 
 
-def verify_record(record):
+def verify_record(record, engine=REFERENCE_ENGINE):
     """Verify a record: its digests, then its results recomputed from its inputs.
 
     Parameters
     ----------
     record : dict
         A record as read by :func:`steamcalc.record.load_record`.
+    engine : str
+        IF97 engine of the recomputation: "iapws" (the record's own) or "fast" (seuif97,
+        the independent cross-check).
 
     Returns
     -------
@@ -98,12 +116,13 @@ def verify_record(record):
     result = Verification(
         digest_ok=compute_digest(record) == record.get("digest"),
         content_digest_ok=compute_content_digest(record) == record.get("content_digest"),
+        engine=check_engine(engine),
     )
     now = provenance()
     then = record.get("provenance", {})
     result.version_changes = {k: (then.get(k), v) for k, v in now.items() if then.get(k) != v}
     try:
-        fresh = recompute(record)
+        fresh = recompute(record, engine=engine)
     except (SteamcalcError, KeyError, TypeError, ValueError) as exc:
         result.error = f"the record's inputs could not be recomputed: {exc}"
         return result
@@ -111,10 +130,18 @@ def verify_record(record):
     old_results = record.get("results", {})
     for key in list(old_results) + [k for k in new_results if k not in old_results]:
         result.comparisons.append(_compare(key, old_results.get(key), new_results.get(key)))
-    if "uncertainty" in record:
-        _compare_uncertainty(record, result)
-    old_checks = [(c.get("name"), c.get("status"), c.get("detail")) for c in record.get("checks", [])]
     new_checks = [(c.name, c.status, c.detail) for c in fresh.checks]
+    if "uncertainty" in record:
+        if engine == REFERENCE_ENGINE:
+            section = _compare_uncertainty(record, result)
+        else:
+            section = record["uncertainty"]
+            result.notes.append("uncertainty bands not recomputed on this engine (their samples run on the fast "
+                                "engine already); the ordinary verification reproduces them")
+        if section is not None and "failed_sample_count" in section:
+            from .uncertainty import sample_check
+            new_checks.append(tuple(sample_check(section)))
+    old_checks = [(c.get("name"), c.get("status"), c.get("detail")) for c in record.get("checks", [])]
     if len(old_checks) == len(new_checks) and all(
             a[:2] == b[:2] and same_text(a[2], b[2]) for a, b in zip(old_checks, new_checks)):
         new_checks = old_checks  # the same checks, their numbers equal within the tolerance
@@ -176,6 +203,8 @@ def _statement_changes(record, fresh):
                                   ("references", record.get("references", []), list(fresh.references)),
                                   ("warnings", record.get("warnings", []), list(fresh.warnings)),
                                   ("assumptions", own_assumptions, list(fresh.assumptions))):
+        if len(recorded) == len(issued) and all(same_text(a, b) for a, b in zip(recorded, issued)):
+            continue
         if recorded != issued:
             missing = [t for t in issued if t not in recorded]
             extra = [t for t in recorded if t not in issued]
@@ -240,18 +269,33 @@ def check_companions(json_path, record, repair=False):
     return checks
 
 
+def verify_file(path, engine=REFERENCE_ENGINE):
+    """Load and verify one record file: ``(path, record, verification, error)``. A file that cannot
+    be read gives its error text instead of raising (one bad file never stops a batch)."""
+    from .record import load_record
+
+    try:
+        record = load_record(path)
+    except SteamcalcError as exc:
+        return path, None, None, str(exc)
+    return path, record, verify_record(record, engine=engine), None
+
+
 def _compare_uncertainty(record, outcome):
     try:
         fresh = recompute_uncertainty(record)
     except (SteamcalcError, KeyError, TypeError, ValueError) as exc:
         outcome.error = f"the record's uncertainty section could not be recomputed: {exc}"
-        return
+        return None
     old_bands = record["uncertainty"].get("bands", {})
     for key in list(old_bands) + [k for k in fresh["bands"] if k not in old_bands]:
-        for stat in ("p05", "p50", "p95"):
-            old = old_bands.get(key)
-            new = fresh["bands"].get(key)
+        old = old_bands.get(key)
+        new = fresh["bands"].get(key)
+        # Records made before the coverage interval was kept carry only the percentiles.
+        stats = ("p05", "p50", "p95") + (("low", "high") if old is None or "low" in old else ())
+        for stat in stats:
             outcome.comparisons.append(_compare(
                 f"uncertainty.{key}.{stat}",
                 None if old is None else {"value": old[stat], "unit": old["unit"]},
                 None if new is None else {"value": new[stat], "unit": new["unit"]}))
+    return fresh

@@ -5,6 +5,8 @@ from __future__ import annotations
 import os
 from pathlib import Path
 
+from .engines import REFERENCE_ENGINE, using_engine
+
 from .calcs import get_calculation
 from .calcs.base import from_record_inputs, to_record_inputs
 from .errors import SteamcalcError
@@ -35,10 +37,12 @@ def record_for_case(case, site, *, inputs=None, given=None, created=None, with_u
         result = calc.calculate(inputs, site)
         uncertainty = None
         if case.uncertainty and with_uncertainty:
-            from .uncertainty import parse_tolerances, run_uncertainty
+            from .uncertainty import parse_coverage, parse_tolerances, run_uncertainty, sample_check
             tolerances, samples, seed = parse_tolerances(calc.Inputs, case.uncertainty, inputs)
             if tolerances:
-                uncertainty = run_uncertainty(calc, inputs, site, tolerances, samples, seed)
+                uncertainty = run_uncertainty(calc, inputs, site, tolerances, samples, seed,
+                                              coverage=parse_coverage(case.uncertainty))
+                result.check(*sample_check(uncertainty))
     except SteamcalcError as exc:
         raise exc.with_source(case.path)
     return build_record(uncertainty=uncertainty,
@@ -56,8 +60,15 @@ def record_for_case_file(path, site_path=None):
     return record
 
 
-def recompute(record):
+def recompute(record, engine=REFERENCE_ENGINE):
     """Re-run a record's calculation from its stored inputs and site.
+
+    Parameters
+    ----------
+    record : dict
+    engine : str
+        The IF97 engine to recompute with: "iapws" (the engine of issued records) or "fast"
+        (the independent second implementation).
 
     Returns
     -------
@@ -66,18 +77,21 @@ def recompute(record):
     calc = get_calculation(record["kind"])
     inputs = from_record_inputs(calc.Inputs, record["inputs"])
     site = Site.from_record(record["site"])
-    return calc.calculate(inputs, site)
+    with using_engine(engine):
+        return calc.calculate(inputs, site)
 
 
 def recompute_uncertainty(record):
-    """Re-run a record's uncertainty section from its inputs, tolerances, samples and seed."""
-    from .uncertainty import run_uncertainty, tolerances_from_record
+    """Re-run a record's uncertainty section from its inputs, tolerances, samples, seed and coverage."""
+    from .uncertainty import DEFAULT_COVERAGE, run_uncertainty, tolerances_from_record
 
     calc = get_calculation(record["kind"])
     section = record["uncertainty"]
     inputs = from_record_inputs(calc.Inputs, record["inputs"])
-    return run_uncertainty(calc, inputs, Site.from_record(record["site"]),
-                           tolerances_from_record(calc.Inputs, section), section["samples"], section["seed"])
+    with using_engine(REFERENCE_ENGINE):
+        return run_uncertainty(calc, inputs, Site.from_record(record["site"]),
+                               tolerances_from_record(calc.Inputs, section), section["samples"], section["seed"],
+                               coverage=section.get("coverage", DEFAULT_COVERAGE))
 
 
 def default_out_dir(case):

@@ -1,95 +1,86 @@
-"""Water and steam properties over IAPWS-IF97, the industrial formulation.
+"""Water and steam properties over IAPWS-IF97, the industrial formulation: the one interface.
 
-This is the only module that calls the ``iapws`` package. A :class:`SteamState`
-is made by one of its explicit constructors (:meth:`SteamState.from_pT`,
-:meth:`~SteamState.from_ph`, :meth:`~SteamState.from_ps`,
-:meth:`~SteamState.from_p_dryness`, :meth:`~SteamState.from_T_dryness`); every
-value is SI: pressure Pa (absolute), temperature K, specific enthalpy J/kg,
-specific entropy J/(kg K), density kg/m3. Input outside the range this module
-accepts raises :class:`~steamcalc.errors.OutOfRangeError`; a pressure and
-temperature on the saturation line raise
+A :class:`SteamState` is made by one of its explicit constructors (:meth:`SteamState.from_pT`,
+:meth:`~SteamState.from_ph`, :meth:`~SteamState.from_ps`, :meth:`~SteamState.from_p_dryness`,
+:meth:`~SteamState.from_T_dryness`); every value is SI: pressure Pa (absolute), temperature K,
+specific enthalpy J/kg, specific entropy J/(kg K), density kg/m3. Input outside the range this
+module accepts raises :class:`~steamcalc.errors.OutOfRangeError` naming the variable, the limit
+and the IF97 region it belongs to; a pressure and temperature on the saturation line raise
 :class:`~steamcalc.errors.AmbiguousStateError`. Nothing is clamped.
+
+Two engines evaluate IF97 behind this interface (:mod:`steamcalc.engines`): ``"iapws"``, the
+engine of issued records and the default, and ``"fast"`` (seuif97) for sweeps, charts and
+samples. Every constructor and function takes ``engine=`` ("iapws", "fast", or None for the
+current context's choice, see :func:`using_engine`); a state remembers the engine that made it.
+The range checks here are the same whichever engine evaluates.
 """
 
 from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from functools import cached_property
 
-from iapws import iapws97 as _if97
-from iapws.iapws97 import IAPWS97 as _IAPWS97
-
+from .engines import (  # noqa: F401  (the engine choice is part of this interface)
+    ENGINES, FAST_ENGINE, REFERENCE_ENGINE, current_engine, engine_module, other_engine, using_engine,
+)
+from .engines.common import (  # noqa: F401  (constants of the interface)
+    CRITICAL_PRESSURE, CRITICAL_TEMPERATURE, MAX_PRESSURE, MAX_TEMPERATURE, MIN_PRESSURE, MIN_TEMPERATURE, PHASES,
+    REFERENCE, two_phase_word,
+)
 from .errors import AmbiguousStateError, OutOfRangeError
-
-#: Critical point, IAPWS R7-97(2012) equations (1)-(3).
-CRITICAL_PRESSURE = 22.064e6
-CRITICAL_TEMPERATURE = 647.096
-#: Range accepted here: IF97 regions 1 to 4 and the region-3 states between them.
-MIN_TEMPERATURE = 273.15
-MAX_TEMPERATURE = 1073.15
-MAX_PRESSURE = 100e6
-#: Saturation pressure at 273.15 K, Pa (IAPWS R7-97(2012) equation (30)); below it no liquid exists.
-MIN_PRESSURE = 611.213
 
 #: Tolerance within which a temperature counts as on the saturation line, K.
 SATURATION_TOLERANCE = 1e-6
 
-PHASES = (
-    "compressed liquid", "saturated liquid", "wet", "saturated vapour",
-    "superheated vapour", "supercritical",
-)
-
-REFERENCE = "IAPWS R7-97(2012), Revised Release on the IAPWS Industrial Formulation 1997 (IAPWS-IF97)"
-
-
-def _fast():
-    from .steam_arrays import fast_enabled
-    return fast_enabled()
-
-
-def two_phase_word(dryness):
-    """Phase word of a saturated or wet state from its dryness fraction."""
-    return "saturated liquid" if dryness == 0.0 else "saturated vapour" if dryness == 1.0 else "wet"
-
-
-def _if97_phase_region(pressure, temperature):
-    """Phase word and IF97 region (1, 2 or 3) of a single-phase state."""
-    if pressure > CRITICAL_PRESSURE:
-        phase = "supercritical" if temperature > CRITICAL_TEMPERATURE else "compressed liquid"
-    elif temperature > CRITICAL_TEMPERATURE:
-        phase = "superheated vapour"
-    else:
-        phase = "superheated vapour" if temperature > _if97._TSat_P(pressure / 1e6) else "compressed liquid"
-    if temperature <= 623.15:
-        region = 1 if phase == "compressed liquid" else 2
-    elif temperature > 863.15:
-        region = 2
-    else:
-        # Boundary between regions 2 and 3, IAPWS R7-97(2012) equation (5).
-        theta = temperature
-        p_b23 = (0.34805185628969e3 - 0.11671859879975e1 * theta + 0.10192970039326e-2 * theta ** 2) * 1e6
-        region = 2 if pressure <= p_b23 else 3
-    return phase, region
+#: What each limit is and which IF97 region it bounds, as the range messages say it.
+_LIMITS = {
+    "pressure": ("below the triple-point pressure 0.00611213 bar(a), the lowest pressure taken here for "
+                 "IF97 regions 1-3",
+                 "above 1000 bar(a) (100 MPa), the upper pressure limit of IF97 regions 1-3"),
+    "temperature": ("below 0 degC (273.15 K), the lower temperature limit of IF97 regions 1 and 2",
+                    "above 800 degC (1073.15 K), the upper temperature limit of IF97 region 2 (region 5, "
+                    "above it, is not used here)"),
+    "saturation pressure": ("below the triple-point pressure 0.00611213 bar(a), where IF97 region 4 (the "
+                            "saturation line) begins",
+                            "above the critical pressure 220.64 bar(a), where IF97 region 4 (the saturation "
+                            "line) ends: there is no saturation, boiling or wet steam above it"),
+    "saturation temperature": ("below 0 degC (273.15 K), where IF97 region 4 (the saturation line) begins",
+                               "above the critical temperature 373.946 degC (647.096 K), where IF97 region 4 "
+                               "(the saturation line) ends: there is no saturation, boiling or wet steam "
+                               "above it"),
+    "dryness": ("below 0 (saturated liquid), the lower limit of a dryness fraction in IF97 region 4",
+                "above 1 (saturated vapour), the upper limit of a dryness fraction in IF97 region 4"),
+}
 
 
-def _check(variable, value, low, high, unit, scale=1.0):
-    if not (low <= value <= high) or math.isnan(value):
-        shown = f"{value / scale:.6g} {unit}".rstrip()
-        if unit == "K":
-            shown += f" ({value - 273.15:.6g} degC)"
-        raise OutOfRangeError(
-            f"{variable} of {shown} is outside the range of IAPWS-IF97 used here",
-            field=variable, value=value / scale, limits=(low / scale, high / scale, unit),
-        )
+def _check(variable, value, low, high, unit, scale=1.0, limit="pressure"):
+    """Refuse a value outside [low, high], naming the variable, the limit it crossed and the IF97 region."""
+    if low <= value <= high:
+        return
+    shown = f"{value / scale:.6g} {unit}".rstrip()
+    if unit == "K":
+        shown += f" ({value - 273.15:.6g} degC)"
+    low_text, high_text = _LIMITS[limit]
+    where = "is not a number" if math.isnan(value) else f"is {low_text}" if value < low else f"is {high_text}"
+    raise OutOfRangeError(f"{variable} of {shown} {where}", field=variable, value=value / scale,
+                          limits=(low / scale, high / scale, unit))
 
 
-def saturation_temperature(pressure):
+_SAT_P = dict(limit="saturation pressure")
+_SAT_T = dict(limit="saturation temperature")
+_DRYNESS = dict(limit="dryness")
+
+
+def saturation_temperature(pressure, *, engine=None):
     """Saturation temperature at a pressure.
 
     Parameters
     ----------
     pressure : float
         Absolute pressure, Pa; from 611.213 Pa to the critical pressure 22.064 MPa.
+    engine : str, optional
+        "iapws" or "fast"; default the current context's engine.
 
     Returns
     -------
@@ -109,18 +100,22 @@ def saturation_temperature(pressure):
     --------
     >>> round(saturation_temperature(0.1e6), 6)
     372.755919
+    >>> round(saturation_temperature(0.1e6, engine="fast"), 6)
+    372.755919
     """
-    _check("pressure", pressure, MIN_PRESSURE, CRITICAL_PRESSURE, "bar(a)", 1e5)
-    return float(_if97._TSat_P(pressure / 1e6))
+    _check("pressure", pressure, MIN_PRESSURE, CRITICAL_PRESSURE, "bar(a)", 1e5, **_SAT_P)
+    return engine_module(engine).saturation_temperature(pressure)
 
 
-def saturation_pressure(temperature):
+def saturation_pressure(temperature, *, engine=None):
     """Saturation pressure at a temperature.
 
     Parameters
     ----------
     temperature : float
         Temperature, K; from 273.15 K to the critical temperature 647.096 K.
+    engine : str, optional
+        "iapws" or "fast"; default the current context's engine.
 
     Returns
     -------
@@ -141,12 +136,12 @@ def saturation_pressure(temperature):
     >>> round(saturation_pressure(500.0) / 1e6, 8)
     2.63889776
     """
-    _check("temperature", temperature, MIN_TEMPERATURE, CRITICAL_TEMPERATURE, "K")
-    return float(_if97._PSat_T(temperature)) * 1e6
+    _check("temperature", temperature, MIN_TEMPERATURE, CRITICAL_TEMPERATURE, "K", **_SAT_T)
+    return engine_module(engine).saturation_pressure(temperature)
 
 
 def backward_temperature_region1(pressure, enthalpy):
-    """IF97 backward equation T(p, h) of region 1 (compressed liquid).
+    """IF97 backward equation T(p, h) of region 1 (compressed liquid), reference engine.
 
     Parameters
     ----------
@@ -169,11 +164,11 @@ def backward_temperature_region1(pressure, enthalpy):
     >>> round(backward_temperature_region1(3e6, 500e3), 6)
     391.798509
     """
-    return float(_if97._Backward1_T_Ph(pressure / 1e6, enthalpy / 1e3))
+    return engine_module(REFERENCE_ENGINE).backward_temperature_ph(pressure, enthalpy, 1)
 
 
 def backward_temperature_region2(pressure, enthalpy):
-    """IF97 backward equations T(p, h) of region 2 (sub-regions 2a, 2b, 2c).
+    """IF97 backward equations T(p, h) of region 2 (sub-regions 2a, 2b, 2c), reference engine.
 
     Parameters
     ----------
@@ -197,7 +192,7 @@ def backward_temperature_region2(pressure, enthalpy):
     >>> round(backward_temperature_region2(3e6, 3000e3), 6)
     575.37337
     """
-    return float(_if97._Backward2_T_Ph(pressure / 1e6, enthalpy / 1e3))
+    return engine_module(REFERENCE_ENGINE).backward_temperature_ph(pressure, enthalpy, 2)
 
 
 @dataclass(frozen=True)
@@ -229,6 +224,8 @@ class SteamState:
         Isochoric specific heat, J/(kg K); None in the two-phase region.
     speed_of_sound : float or None
         m/s; None in the two-phase region.
+    engine : str
+        The engine that evaluated it: "iapws" or "fast".
     """
 
     pressure: float
@@ -242,10 +239,11 @@ class SteamState:
     cp: float | None
     speed_of_sound: float | None
     cv: float | None = None
+    engine: str = REFERENCE_ENGINE
 
     # -- constructors -------------------------------------------------------------------
     @classmethod
-    def from_pT(cls, pressure, temperature):
+    def from_pT(cls, pressure, temperature, *, engine=None):
         """State from absolute pressure (Pa) and temperature (K).
 
         A temperature within 1e-6 K of saturation at a subcritical pressure does
@@ -260,11 +258,14 @@ class SteamState:
         >>> s = SteamState.from_pT(1.0e6, 473.15)
         >>> s.phase, round(s.enthalpy / 1e3, 2)
         ('superheated vapour', 2828.27)
+        >>> SteamState.from_pT(250e5, 873.15).phase
+        'supercritical'
         """
         _check("pressure", pressure, MIN_PRESSURE, MAX_PRESSURE, "bar(a)", 1e5)
-        _check("temperature", temperature, MIN_TEMPERATURE, MAX_TEMPERATURE, "K")
+        _check("temperature", temperature, MIN_TEMPERATURE, MAX_TEMPERATURE, "K", limit="temperature")
+        module = engine_module(engine)
         if pressure <= CRITICAL_PRESSURE:
-            t_sat = saturation_temperature(pressure)
+            t_sat = module.saturation_temperature(pressure)
             if abs(temperature - t_sat) < SATURATION_TOLERANCE:
                 raise AmbiguousStateError(
                     f"{temperature - 273.15:.6g} degC is the saturation temperature at "
@@ -272,19 +273,16 @@ class SteamState:
                     field="temperature", value=temperature,
                     fix="give the dryness fraction (or a superheat above zero) instead",
                 )
-        if _fast():
-            from .steam_arrays import fast_from_pT
-            return fast_from_pT(cls, pressure, temperature)
-        return cls._from_iapws(_IAPWS97(P=pressure / 1e6, T=temperature))
+        return cls._made(module.state_pT(pressure, temperature), module)
 
     @classmethod
-    def from_ph(cls, pressure, enthalpy):
+    def from_ph(cls, pressure, enthalpy, *, engine=None):
         """State from absolute pressure (Pa) and specific enthalpy (J/kg).
 
         References
         ----------
         IAPWS R7-97(2012), backward equations T(p, h) (11), (22)-(24), refined on the
-        basic equations by the iapws package; region 4 by the lever rule.
+        basic equations; region 4 by the lever rule.
 
         Examples
         --------
@@ -293,20 +291,18 @@ class SteamState:
         ('wet', 0.701)
         """
         _check("pressure", pressure, MIN_PRESSURE, MAX_PRESSURE, "bar(a)", 1e5)
-        cls._check_enthalpy_range(pressure, enthalpy)
-        if _fast():
-            from .steam_arrays import fast_from_ph
-            return fast_from_ph(cls, pressure, enthalpy)
-        return cls._from_iapws(_IAPWS97(P=pressure / 1e6, h=enthalpy / 1e3))
+        module = engine_module(engine)
+        cls._check_property_range(module, pressure, enthalpy, "h")
+        return cls._made(module.state_ph(pressure, enthalpy), module)
 
     @classmethod
-    def from_ps(cls, pressure, entropy):
+    def from_ps(cls, pressure, entropy, *, engine=None):
         """State from absolute pressure (Pa) and specific entropy (J/(kg K)).
 
         References
         ----------
-        IAPWS R7-97(2012), backward equations T(p, s) (13), (25)-(27), refined by the
-        iapws package; region 4 by the lever rule.
+        IAPWS R7-97(2012), backward equations T(p, s) (13), (25)-(27), refined on the
+        basic equations; region 4 by the lever rule.
 
         Examples
         --------
@@ -315,26 +311,19 @@ class SteamState:
         ('wet', 0.941)
         """
         _check("pressure", pressure, MIN_PRESSURE, MAX_PRESSURE, "bar(a)", 1e5)
-        low, high = cls._bounds(pressure, "s")
-        if not (low <= entropy <= high) or math.isnan(entropy):
-            raise OutOfRangeError(
-                f"entropy {entropy / 1e3:.6g} kJ/(kg K) at {pressure / 1e5:.6g} bar(a) is outside "
-                "IAPWS-IF97 (273.15 K to 1073.15 K)",
-                field="entropy", value=entropy / 1e3, limits=(low / 1e3, high / 1e3, "kJ/(kg K)"),
-            )
-        if _fast():
-            from .steam_arrays import fast_from_ps
-            return fast_from_ps(cls, pressure, entropy)
-        return cls._from_iapws(_IAPWS97(P=pressure / 1e6, s=entropy / 1e3))
+        module = engine_module(engine)
+        cls._check_property_range(module, pressure, entropy, "s")
+        return cls._made(module.state_ps(pressure, entropy), module)
 
     @classmethod
-    def from_p_dryness(cls, pressure, dryness):
+    def from_p_dryness(cls, pressure, dryness, *, engine=None):
         """Saturated or wet state from absolute pressure (Pa) and dryness fraction (0 to 1).
 
         References
         ----------
         IAPWS R7-97(2012), equation (31) for the saturation temperature; saturated
-        liquid and vapour from regions 1 and 2; :math:`h = h' + x (h'' - h')`.
+        liquid and vapour from regions 1 and 2 (region 3 above 623.15 K);
+        :math:`h = h' + x (h'' - h')`.
 
         Examples
         --------
@@ -342,21 +331,19 @@ class SteamState:
         >>> s.phase, round(s.enthalpy / 1e3, 1)
         ('saturated vapour', 2674.9)
         """
-        _check("pressure", pressure, MIN_PRESSURE, CRITICAL_PRESSURE, "bar(a)", 1e5)
-        _check("dryness", dryness, 0.0, 1.0, "")
-        if _fast():
-            from .steam_arrays import fast_from_p_dryness
-            return fast_from_p_dryness(cls, pressure, dryness)
-        return cls._from_iapws(_IAPWS97(P=pressure / 1e6, x=dryness), dryness=dryness)
+        _check("pressure", pressure, MIN_PRESSURE, CRITICAL_PRESSURE, "bar(a)", 1e5, **_SAT_P)
+        _check("dryness", dryness, 0.0, 1.0, "", **_DRYNESS)
+        module = engine_module(engine)
+        return cls._made(module.state_p_dryness(pressure, dryness), module)
 
     @classmethod
-    def from_T_dryness(cls, temperature, dryness):
+    def from_T_dryness(cls, temperature, dryness, *, engine=None):
         """Saturated or wet state from temperature (K) and dryness fraction (0 to 1).
 
         References
         ----------
         IAPWS R7-97(2012), equation (30) for the saturation pressure; saturated
-        liquid and vapour from regions 1 and 2.
+        liquid and vapour from regions 1 and 2 (region 3 above 623.15 K).
 
         Examples
         --------
@@ -364,20 +351,19 @@ class SteamState:
         >>> s.phase, round(s.enthalpy / 1e3, 2)
         ('saturated liquid', 419.1)
         """
-        _check("temperature", temperature, MIN_TEMPERATURE, CRITICAL_TEMPERATURE, "K")
-        _check("dryness", dryness, 0.0, 1.0, "")
-        if _fast():
-            from .steam_arrays import fast_from_T_dryness
-            return fast_from_T_dryness(cls, temperature, dryness)
-        return cls._from_iapws(_IAPWS97(T=temperature, x=dryness), dryness=dryness)
+        _check("temperature", temperature, MIN_TEMPERATURE, CRITICAL_TEMPERATURE, "K", **_SAT_T)
+        _check("dryness", dryness, 0.0, 1.0, "", **_DRYNESS)
+        module = engine_module(engine)
+        return cls._made(module.state_T_dryness(temperature, dryness), module)
 
     # -- derived -----------------------------------------------------------------------
-    @property
+    @cached_property
     def saturation_temperature(self):
-        """Saturation temperature at this pressure, K; None above the critical pressure."""
+        """Saturation temperature at this pressure, K (by this state's engine); None above the
+        critical pressure. Worked out once per state (superheat and subcooling use it)."""
         if self.pressure > CRITICAL_PRESSURE:
             return None
-        return saturation_temperature(self.pressure)
+        return saturation_temperature(self.pressure, engine=self.engine)
 
     @property
     def superheat(self):
@@ -418,47 +404,22 @@ class SteamState:
 
     # -- internals ---------------------------------------------------------------------
     @staticmethod
-    def _bounds(pressure, key):
-        # The basic equations alone (not a full state) give the range cheaply:
-        # region 1 at 273.15 K and region 2 at 1073.15 K bound every accepted state.
-        if _fast():
-            from .steam_arrays import fast_bounds
-            return fast_bounds(pressure, key, MIN_TEMPERATURE, MAX_TEMPERATURE)
-        return (_if97._Region1(MIN_TEMPERATURE, pressure / 1e6)[key] * 1e3,
-                _if97._Region2(MAX_TEMPERATURE, pressure / 1e6)[key] * 1e3)
+    def _check_property_range(module, pressure, value, key):
+        # Region 1 at 273.15 K and region 2 at 1073.15 K bound every accepted state at a pressure.
+        low, high = module.bounds(pressure, key)
+        if low <= value <= high:
+            return
+        name, unit, scale = ("enthalpy", "kJ/kg", 1e3) if key == "h" else ("entropy", "kJ/(kg K)", 1e3)
+        where = "is not a number" if math.isnan(value) else (
+            f"is below that of water at 0 degC ({low / scale:.6g} {unit}), the lower limit of IF97 region 1"
+            if value < low else
+            f"is above that of steam at 800 degC ({high / scale:.6g} {unit}), the upper limit of IF97 region 2")
+        raise OutOfRangeError(f"{name} of {value / scale:.6g} {unit} at {pressure / 1e5:.6g} bar(a) {where}",
+                              field=name, value=value / scale, limits=(low / scale, high / scale, unit))
 
     @classmethod
-    def _check_enthalpy_range(cls, pressure, enthalpy):
-        low, high = cls._bounds(pressure, "h")
-        if not (low <= enthalpy <= high) or math.isnan(enthalpy):
-            raise OutOfRangeError(
-                f"enthalpy {enthalpy / 1e3:.6g} kJ/kg at {pressure / 1e5:.6g} bar(a) is outside "
-                "IAPWS-IF97 (273.15 K to 1073.15 K)",
-                field="enthalpy", value=enthalpy / 1e3, limits=(low / 1e3, high / 1e3, "kJ/kg"),
-            )
-
-    @classmethod
-    def _from_iapws(cls, st, dryness=None):
-        # iapws returns the saturated ends (x = 0 and 1) through regions 1 and 2, so the
-        # dryness a constructor was given decides the phase there, not the region.
-        if not st.status:
-            raise OutOfRangeError(f"IAPWS-IF97 gave no state: {st.msg}")
-        pressure = float(st.P) * 1e6
-        temperature = float(st.T)
-        if st.region == 4 or dryness is not None:
-            dryness = float(st.x) if dryness is None else float(dryness)
-            phase = two_phase_word(dryness)
-            cp = cv = None
-            speed_of_sound = None
-        else:
-            dryness = None
-            cp = float(st.cp) * 1e3
-            cv = float(st.cv) * 1e3
-            speed_of_sound = float(st.w)
-            phase, _ = _if97_phase_region(pressure, temperature)
-        return cls(
-            pressure=pressure, temperature=temperature, enthalpy=float(st.h) * 1e3,
-            entropy=float(st.s) * 1e3, density=float(st.rho), dryness=dryness, phase=phase,
-            region=4 if dryness is not None else int(st.region), cp=cp,
-            speed_of_sound=speed_of_sound, cv=cv,
-        )
+    def _made(cls, props, module):
+        return cls(pressure=props.pressure, temperature=props.temperature, enthalpy=props.enthalpy,
+                   entropy=props.entropy, density=props.density, dryness=props.dryness, phase=props.phase,
+                   region=props.region, cp=props.cp, speed_of_sound=props.speed_of_sound, cv=props.cv,
+                   engine=module.NAME)

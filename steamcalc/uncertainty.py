@@ -3,8 +3,12 @@
 Each toleranced input is sampled from a rectangular (uniform) distribution over its
 ± tolerance — the distribution JCGM 100:2008 (GUM) §4.3.7 assigns when only bounds are
 known — with a seeded generator, so a run is reproducible and a record's bands re-verify.
-Every sample goes through the calculation's own ``calculate()`` (on the fast IF97
-engine). The sensitivity moves one input at a time to each end of its tolerance.
+Every sample goes through the calculation's own ``calculate()`` on the fast IF97 engine
+(seuif97, chosen for this run's context only, so a record computed alongside in another
+thread keeps the reference engine). The sensitivity moves one input at a time to each end of
+its tolerance. Each band is the probabilistically symmetric coverage interval of JCGM 101:2008
+§7.7 — 90 % unless the case chooses another coverage — and samples that gave no result are
+counted in the record; more than 1 % of them is a warn.
 """
 
 from __future__ import annotations
@@ -18,12 +22,19 @@ import numpy as np
 from .calcs.base import input_fields
 from .errors import CaseFileError, InputError, SteamcalcError, UnitError
 from .quantities import RECORD_UNITS, from_record_unit, parse_quantity, to_record_unit
-from .steam_arrays import fast_properties
+from .calcs.balance import without_balance_checks
+from .engines import FAST_ENGINE, engine_description, using_engine
 
 DEFAULT_SAMPLES = 2000
 DEFAULT_SEED = 1
 MAX_SAMPLES = 100_000
-SETTINGS = ("samples", "seed")
+#: Coverage probability of the bands unless the case chooses one (JCGM 101:2008 §7.7).
+DEFAULT_COVERAGE = 0.90
+COVERAGE_RANGE = (0.50, 0.99)
+#: Above this fraction of samples without a result the bands are a warn: they describe only
+#: the inputs that could be computed.
+FAILED_SAMPLES_WARN = 0.01
+SETTINGS = ("samples", "seed", "coverage")
 #: Input kinds a tolerance can be put on, and the quantity kind of the tolerance itself: a
 #: difference (a pressure tolerance has no gauge or absolute basis, a temperature one is in K);
 #: None for plain numbers.
@@ -63,7 +74,7 @@ def parse_tolerances(inputs_class, table, inputs):
     Returns
     -------
     tuple
-        ``(tolerances, samples, seed)``.
+        ``(tolerances, samples, seed)``; the coverage is read by :func:`parse_coverage`.
     """
     fields = {f.name: f for f in input_fields(inputs_class)}
     tolerances = []
@@ -85,7 +96,34 @@ def parse_tolerances(inputs_class, table, inputs):
                             value=samples)
     if isinstance(seed, bool) or not isinstance(seed, int) or seed < 0:
         raise CaseFileError("seed must be a whole number, 0 or more", field="uncertainty.seed", value=seed)
+    parse_coverage(table)
     return tuple(tolerances), samples, seed
+
+
+def parse_coverage(table):
+    """Coverage probability of the bands from a case's ``[uncertainty]`` table: ``coverage = 0.95``
+    or ``"95 %"``; 0.90 when not given.
+
+    Examples
+    --------
+    >>> parse_coverage({}), parse_coverage({"coverage": "95 %"}), parse_coverage({"coverage": 0.8})
+    (0.9, 0.95, 0.8)
+    """
+    raw = table.get("coverage", DEFAULT_COVERAGE)
+    percent = _PERCENT.match(raw) if isinstance(raw, str) else None
+    if percent:
+        value = float(percent.group(1)) / 100.0
+    elif isinstance(raw, (int, float)) and not isinstance(raw, bool):
+        value = float(raw)
+    else:
+        raise CaseFileError("coverage is a fraction such as 0.95, or a percentage such as \"95 %\"",
+                            field="uncertainty.coverage", value=raw)
+    low, high = COVERAGE_RANGE
+    if not low <= value <= high:
+        raise CaseFileError(f"coverage must be from {low:g} to {high:g} (50 % to 99 %)",
+                            field="uncertainty.coverage", value=raw, limits=(low, high, ""),
+                            fix="0.90 (the default) or 0.95 are usual")
+    return value
 
 
 def _parse_one(key, raw, kind):
@@ -114,7 +152,14 @@ def _numeric(result):
             if isinstance(v.value, (int, float)) and not isinstance(v.value, bool)}
 
 
-def run_uncertainty(calc, inputs, site, tolerances, samples=DEFAULT_SAMPLES, seed=DEFAULT_SEED):
+def _sample_values(result, keys):
+    """The banded numbers of one sample (NaN where the sample has no such result)."""
+    values = result.values
+    return [values[k].value if k in values else np.nan for k in keys]
+
+
+def run_uncertainty(calc, inputs, site, tolerances, samples=DEFAULT_SAMPLES, seed=DEFAULT_SEED,
+                    coverage=DEFAULT_COVERAGE, engine=FAST_ENGINE):
     """Monte Carlo bands and one-at-a-time sensitivity of a calculation's headline results.
 
     Parameters
@@ -127,16 +172,30 @@ def run_uncertainty(calc, inputs, site, tolerances, samples=DEFAULT_SAMPLES, see
     tolerances : sequence of Tolerance
     samples, seed : int
         Monte Carlo size and generator seed (numpy PCG64).
+    coverage : float
+        Coverage probability of each band, 0.5 to 0.99 (default 0.90).
+    engine : str
+        IF97 engine of the samples and the sensitivity: "fast" (seuif97, the default and what
+        records use) or "iapws" (for a cross-check of the bands, or a benchmark baseline).
 
     Returns
     -------
     dict
-        The record's ``uncertainty`` section.
+        The record's ``uncertainty`` section: per band the nominal value, the 5th, 50th and
+        95th percentiles, ``low`` and ``high`` (the ends of the coverage interval: the
+        (1 - coverage)/2 and (1 + coverage)/2 quantiles), mean, standard deviation and the number
+        of samples behind it; the count and reasons of samples that gave no result.
+
+    Notes
+    -----
+    The nominal case runs on the reference engine (it is the record's own result); samples
+    and the sensitivity run on the fast engine, in this context only.
 
     References
     ----------
     JCGM 101:2008, Evaluation of measurement data — Supplement 1 to the GUM: propagation of
-    distributions using a Monte Carlo method; JCGM 100:2008 §4.3.7 (rectangular distribution).
+    distributions using a Monte Carlo method, §7.7 (probabilistically symmetric coverage
+    interval); JCGM 100:2008 §4.3.7 (rectangular distribution).
     """
     kinds = {f.name: f.metadata["kind"] for f in input_fields(type(inputs))}
     # Draw in the Inputs' declaration order, so a case file and a form give the same samples.
@@ -148,42 +207,73 @@ def run_uncertainty(calc, inputs, site, tolerances, samples=DEFAULT_SAMPLES, see
     rng = np.random.default_rng(seed)
     draws = {t.field: rng.uniform(-1.0, 1.0, samples) * t.half_width(getattr(inputs, t.field)) +
              getattr(inputs, t.field) for t in tolerances}
-    values = {k: [] for k in keys}
+    # One row per sample, converted once: numpy scalars would slow every property call.
+    rows = [dict(zip(draws, row)) for row in np.column_stack(list(draws.values())).tolist()] if draws else \
+        [{} for _ in range(samples)]
+    table = np.full((samples, len(keys)), np.nan)
     failures = {}
-    with fast_properties():
-        for i in range(samples):
+    # dataclasses.replace, with the unchanged fields read once rather than per sample; the
+    # constructor (and its input checks in __post_init__) still runs for every sample.
+    unchanged = {f.name: getattr(inputs, f.name) for f in dataclasses.fields(inputs) if f.init}
+    make = type(inputs)
+    with using_engine(engine), without_balance_checks():
+        for i, row in enumerate(rows):
             try:
-                sample = dataclasses.replace(inputs, **{f: float(d[i]) for f, d in draws.items()})
-                numbers = _numeric(calc.calculate(sample, site))
+                table[i] = _sample_values(calc.calculate(make(**{**unchanged, **row}), site), keys)
             except SteamcalcError as exc:
                 reason = exc.message.split(":")[0][:80]
                 failures[reason] = failures.get(reason, 0) + 1
-                continue
-            for k in keys:
-                values[k].append(numbers.get(k, np.nan))
         sensitivity = _one_at_a_time(calc, inputs, site, tolerances, keys)
     units = {k: nominal_result.values[k].unit for k in keys}
+    tail = round((1.0 - coverage) / 2.0 * 100.0, 9)
     bands = {}
-    for k in keys:
-        array = np.asarray(values[k], dtype=float)
+    for j, k in enumerate(keys):
+        array = table[:, j]
         array = array[np.isfinite(array)]
         if array.size == 0:
             continue
-        p05, p50, p95 = np.percentile(array, [5.0, 50.0, 95.0])
+        p05, p50, p95, low, high = np.percentile(array, [5.0, 50.0, 95.0, tail, 100.0 - tail])
         bands[k] = {"nominal": nominal[k], "p05": float(p05), "p50": float(p50), "p95": float(p95),
+                    "low": float(low), "high": float(high),
                     "mean": float(array.mean()), "std": float(array.std(ddof=1)) if array.size > 1 else 0.0,
-                    "unit": units[k]}
-    valid = samples - sum(failures.values())
+                    "samples": int(array.size), "unit": units[k]}
+    failed = sum(failures.values())
     section = {
         "method": "Monte Carlo (JCGM 101:2008) with rectangular distributions over each ± tolerance "
-                  "(JCGM 100:2008 4.3.7); one-at-a-time sensitivity to each end of each tolerance",
-        "samples": samples, "seed": seed, "generator": "numpy PCG64", "valid_samples": valid,
-        "failed_samples": failures,
+                  "(JCGM 100:2008 4.3.7); bands are probabilistically symmetric coverage intervals "
+                  "(JCGM 101:2008 7.7); one-at-a-time sensitivity to each end of each tolerance",
+        "samples": samples, "seed": seed, "generator": "numpy PCG64", "valid_samples": samples - failed,
+        "failed_samples": failures, "failed_sample_count": failed, "coverage": coverage,
+        "property_engine": engine_description(engine),
         "tolerances": {t.field: t.to_record(kinds[t.field]) for t in tolerances},
         "bands": bands, "sensitivity": sensitivity,
     }
     section["summary"] = summary_lines(section, calc)
     return section
+
+
+def sample_check(section):
+    """The record's check on the samples that gave no result: ``(name, status, detail)``.
+
+    More than 1 % of the samples without a result is a warn: the bands then describe only the
+    inputs that could be computed (common practice; JCGM 101:2008 assumes every draw gives a value).
+
+    Examples
+    --------
+    >>> sample_check({"samples": 2000, "failed_sample_count": 30, "failed_samples": {"x": 30}})[1]
+    'warn'
+    """
+    samples, failed = section["samples"], section.get("failed_sample_count", 0)
+    share = failed / samples
+    reasons = "; ".join(f"{n} × {reason}" for reason, n in section.get("failed_samples", {}).items())
+    if failed == 0:
+        return "Uncertainty samples", "pass", f"all {samples} samples gave a result"
+    detail = f"{failed} of {samples} samples ({share * 100:.3g} %) gave no result: {reasons}"
+    if share > FAILED_SAMPLES_WARN:
+        return ("Uncertainty samples", "warn",
+                detail + f"; above {FAILED_SAMPLES_WARN * 100:g} % the bands describe only the inputs that could be "
+                "computed: narrow the tolerances or check the inputs near the limits")
+    return "Uncertainty samples", "pass", detail
 
 
 def _one_at_a_time(calc, inputs, site, tolerances, keys):
@@ -222,15 +312,17 @@ def _result_words(key):
 
 
 def summary_lines(section, calc):
-    """One plain sentence per band: nominal, 5th-95th percentile, the most sensitive input."""
+    """One plain sentence per band: nominal, the coverage interval, the most sensitive input."""
     from .report import format_number, format_unit
 
     lines = []
+    coverage = section.get("coverage", DEFAULT_COVERAGE)
     for key, band in section["bands"].items():
         unit = format_unit(band["unit"])
         top = next((row for row in section["sensitivity"].get(key, []) if row["swing"]), None)
-        text = (f"{_result_words(key)} {format_number(band['nominal'])} {unit}, 5th-95th percentile "
-                f"{format_number(band['p05'])}-{format_number(band['p95'])} {unit}").replace("  ", " ").strip()
+        low, high = band.get("low", band["p05"]), band.get("high", band["p95"])
+        text = (f"{_result_words(key)} {format_number(band['nominal'])} {unit}, {coverage * 100:g} % coverage interval "
+                f"{format_number(low)}-{format_number(high)} {unit}").replace("  ", " ").strip()
         text = text.replace(" ,", ",")
         if top:
             text += f"; most sensitive to {_label(calc, top['input'])}"
@@ -255,4 +347,5 @@ def tolerances_from_record(inputs_class, section):
     return tuple(tolerances)
 
 
-__all__ = ["Tolerance", "parse_tolerances", "run_uncertainty", "summary_lines", "tolerances_from_record"]
+__all__ = ["Tolerance", "parse_coverage", "parse_tolerances", "run_uncertainty", "sample_check", "summary_lines",
+           "tolerances_from_record"]

@@ -243,3 +243,19 @@ def test_relief_load_states_the_saturated_steam_sensitivity():
     rho, kappa = PropsSI("D", "P", 19e5, "Q", 1, "Water"), _kappa_iapws95(19e5, dryness=1.0)
     hand = _iec_flow(63.0, 19e5, 3.5e5, rho, kappa, 0.70)
     assert f"{hand:,.0f}"[:4] in note
+
+
+def test_supercritical_inlet_inside_if97_runs():
+    # IAPWS-IF97 covers 1000 bar(a) to 800 degC; 250 bar(a), 600 degC is region 2 above the critical
+    # pressure. Independent: IAPWS-95 through CoolProp for the throttled temperature.
+    r = calculate(Inputs(inlet_pressure=250e5, outlet_pressure=100e5, mass_flow=5.0, inlet_temperature=873.15), SITE)
+    h1 = PropsSI("H", "P", 250e5, "T", 873.15, "Water")
+    assert r.value("outlet_temperature") == pytest.approx(PropsSI("T", "P", 100e5, "H", h1, "Water") - 273.15,
+                                                           abs=0.1)
+    assert "inlet_saturation_temperature" not in r.values
+
+
+def test_supercritical_pressure_liquid_is_refused():
+    with pytest.raises(InputError) as info:
+        calculate(Inputs(inlet_pressure=250e5, outlet_pressure=100e5, mass_flow=5.0, inlet_temperature=573.15), SITE)
+    assert info.value.field == "inlet_temperature" and "critical temperature" in str(info.value)

@@ -130,3 +130,34 @@ def test_out_of_range_names_variable_and_limits(call, variable):
     assert info.value.field == variable
     assert info.value.limits is not None
     assert "Valid range" in str(info.value)
+
+
+@pytest.mark.parametrize("engine", ["iapws", "fast"])
+def test_250_bar_600_degc_is_inside_if97(engine):
+    # IF97 region 2 reaches 100 MPa at 600 degC (IAPWS R7-97(2012), figure 1): a supercritical-pressure
+    # let-down inlet is a valid state, not a saturation error. h from IF97 equation (15).
+    state = SteamState.from_pT(250e5, 873.15, engine=engine)
+    assert state.phase == "supercritical" and state.region == 2
+    assert state.superheat is None and state.saturation_temperature is None
+    assert state.enthalpy / 1e3 == pytest.approx(3493.69, abs=0.01)
+
+
+@pytest.mark.parametrize("call,words", [
+    # Each message names the variable, the real limit and the IF97 region it bounds.
+    (lambda: saturation_temperature(250e5), ("pressure of 250 bar(a)", "critical pressure 220.64 bar(a)",
+                                             "region 4")),
+    (lambda: SteamState.from_p_dryness(250e5, 1.0), ("pressure of 250 bar(a)", "220.64 bar(a)", "region 4")),
+    (lambda: SteamState.from_T_dryness(700.0, 0.5), ("temperature of 700 K", "critical temperature", "region 4")),
+    (lambda: SteamState.from_pT(1001e5, 700.0), ("pressure of 1001 bar(a)", "1000 bar(a)", "regions 1-3")),
+    (lambda: SteamState.from_pT(1e5, 1100.0), ("temperature of 1100 K", "800 degC", "region 2", "region 5")),
+    (lambda: SteamState.from_pT(1e5, 270.0), ("temperature of 270 K", "0 degC", "regions 1 and 2")),
+    (lambda: SteamState.from_ph(10e5, 5000e3), ("enthalpy of 5000 kJ/kg at 10 bar(a)", "800 degC", "region 2")),
+    (lambda: SteamState.from_ph(10e5, -10e3), ("enthalpy of -10 kJ/kg", "0 degC", "region 1")),
+    (lambda: SteamState.from_p_dryness(1e5, 1.2), ("dryness of 1.2", "above 1", "region 4")),
+])
+def test_range_messages_name_the_limit_and_the_region(call, words):
+    with pytest.raises(OutOfRangeError) as info:
+        call()
+    text = str(info.value)
+    assert all(w in text for w in words), text
+    assert "IAPWS-IF97 used here" not in text

@@ -11,7 +11,7 @@ from steamcalc.cli import main
 from steamcalc.errors import SteamcalcError
 from steamcalc.record import load_record
 from steamcalc.site import Site
-from steamcalc.uncertainty import Tolerance, parse_tolerances, run_uncertainty
+from steamcalc.uncertainty import Tolerance, parse_coverage, parse_tolerances, run_uncertainty, sample_check
 
 SITE = Site()
 INPUTS = letdown.Inputs(inlet_pressure=17e5, outlet_pressure=3.5e5, mass_flow=1.25, inlet_temperature=503.15)
@@ -50,7 +50,64 @@ def test_failed_samples_are_counted_not_hidden():
                               samples=200)
     assert 0 < section["valid_samples"] < 200
     assert sum(section["failed_samples"].values()) == 200 - section["valid_samples"]
+    assert section["failed_sample_count"] == 200 - section["valid_samples"]
     assert "samples gave no result" in section["summary"][-1]
+    # More than 1 % of the samples without a result is a warn, naming how many and why.
+    name, status, detail = sample_check(section)
+    assert status == "warn" and f"{section['failed_sample_count']} of 200" in detail
+
+
+@pytest.mark.parametrize("failed,status", [(0, "pass"), (20, "pass"), (21, "warn")])
+def test_sample_check_warns_above_one_percent(failed, status):
+    section = {"samples": 2000, "failed_sample_count": failed, "failed_samples": {"outlet above inlet": failed}}
+    assert sample_check(section)[1] == status
+
+
+def test_band_is_the_90_percent_coverage_interval_by_default():
+    tolerances = (Tolerance("inlet_temperature", 5.0, False, "5 K"),)
+    section = run_uncertainty(letdown, INPUTS, SITE, tolerances, samples=400, seed=3)
+    band = section["bands"]["throttled_temperature"]
+    assert section["coverage"] == 0.90 and band["samples"] == 400
+    assert band["low"] == band["p05"] and band["high"] == band["p95"]
+    assert "90 % coverage interval" in section["summary"][0]
+    assert section["property_engine"]["library"] == "seuif97"
+
+
+def test_case_chosen_coverage_widens_the_band():
+    tolerances = (Tolerance("inlet_temperature", 5.0, False, "5 K"),)
+    narrow = run_uncertainty(letdown, INPUTS, SITE, tolerances, samples=400, seed=3)
+    wide = run_uncertainty(letdown, INPUTS, SITE, tolerances, samples=400, seed=3, coverage=0.95)
+    a, b = narrow["bands"]["throttled_temperature"], wide["bands"]["throttled_temperature"]
+    assert b["low"] < a["low"] and b["high"] > a["high"] and b["p05"] == a["p05"]
+    assert "95 % coverage interval" in wide["summary"][0]
+
+
+@pytest.mark.parametrize("raw,value", [(0.95, 0.95), ("95 %", 0.95), ("80%", 0.8)])
+def test_coverage_setting(raw, value):
+    assert parse_coverage({"coverage": raw}) == pytest.approx(value)
+
+
+@pytest.mark.parametrize("raw", [1.0, 0.2, "high", True])
+def test_bad_coverage_is_refused(raw):
+    with pytest.raises(SteamcalcError) as info:
+        parse_tolerances(letdown.Inputs, {"mass_flow": "5 %", "coverage": raw}, INPUTS)
+    assert info.value.field == "uncertainty.coverage"
+
+
+def test_samples_run_on_the_fast_engine_and_the_nominal_on_the_reference():
+    from steamcalc.engines import current_engine
+    seen = []
+    real = letdown.calculate
+
+    def spy(inputs, site):
+        seen.append(current_engine())
+        return real(inputs, site)
+
+    class Calc:
+        Inputs, UNCERTAINTY_RESULTS, calculate = letdown.Inputs, letdown.UNCERTAINTY_RESULTS, staticmethod(spy)
+
+    run_uncertainty(Calc, INPUTS, SITE, (Tolerance("mass_flow", 0.05, True, "5 %"),), samples=20)
+    assert seen[0] == "iapws" and set(seen[1:]) == {"fast"} and current_engine() == "iapws"
 
 
 @pytest.mark.parametrize("table,text", [
@@ -76,6 +133,8 @@ def test_ld01_record_carries_uncertainty_and_reverifies(tmp_path, demo_site_dir,
     record = load_record(path)
     section = record["uncertainty"]
     assert section["samples"] == 2000 and section["valid_samples"] == 2000
+    assert {"name": "Uncertainty samples", "status": "pass", "detail": "all 2000 samples gave a result"} in \
+        record["checks"]
     assert any(line.startswith("outlet temperature") and "most sensitive to" in line for line in section["summary"])
     assert "Uncertainty" in (site / "records" / "LD-01_revA.html").read_text()
     capsys.readouterr()

@@ -14,7 +14,7 @@ from dataclasses import dataclass
 
 from ..errors import InputError, OutOfRangeError
 from ..steam import REFERENCE as IF97_REFERENCE
-from ..steam import SteamState, saturation_temperature
+from ..steam import CRITICAL_PRESSURE, CRITICAL_TEMPERATURE, SteamState, saturation_temperature
 from .balance import Stream, check_energy_balance
 from .base import Result, bar_a, check_fields, deg_c, input_field, kj_kg
 from .letdown_equipment import line_section, valve_section
@@ -240,9 +240,15 @@ def _inlet_state(inputs, result):
 
 def _inlet_state_from(inputs, result):
     p1 = inputs.inlet_pressure
-    t_sat = saturation_temperature(p1)
+    # Above the critical pressure there is no saturation: a temperature fixes the state (IF97 regions 2, 3).
+    t_sat = saturation_temperature(p1) if p1 <= CRITICAL_PRESSURE or inputs.inlet_temperature is None else None
     if inputs.inlet_temperature is not None:
-        if inputs.inlet_temperature < t_sat - 1e-6:
+        if t_sat is None and inputs.inlet_temperature < CRITICAL_TEMPERATURE:
+            raise InputError(
+                f"inlet temperature {deg_c(inputs.inlet_temperature)} at {bar_a(p1)} (above the critical pressure) "
+                f"is below the critical temperature {deg_c(CRITICAL_TEMPERATURE)}: that is compressed liquid, not steam",
+                field="inlet_temperature", fix="check the pressure basis and the temperature")
+        if t_sat is not None and inputs.inlet_temperature < t_sat - 1e-6:
             raise InputError(
                 f"inlet temperature {deg_c(inputs.inlet_temperature)} is below saturation "
                 f"({deg_c(t_sat)}) at {bar_a(p1)}: that is liquid, not steam",
@@ -340,7 +346,8 @@ def calculate(inputs, site):
             field="outlet_pressure", fix="a let-down lowers the pressure: check the pressures and their basis")
 
     inlet, t_sat1 = _inlet_state(inputs, result)
-    result.add("inlet_saturation_temperature", "Inlet saturation temperature", t_sat1 - 273.15, "degC")
+    if t_sat1 is not None:
+        result.add("inlet_saturation_temperature", "Inlet saturation temperature", t_sat1 - 273.15, "degC")
     result.add("inlet_temperature", "Inlet temperature", inlet.temperature - 273.15, "degC")
     result.add("inlet_phase", "Inlet phase", _phase_word(inlet))
     result.add("inlet_dryness", "Inlet dryness fraction", _dryness(inlet))

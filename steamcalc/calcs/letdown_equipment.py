@@ -10,7 +10,7 @@ from __future__ import annotations
 from ..equipment.piping import DN_TO_NPS, line_velocity, pipe_inner_diameter
 from ..equipment.valve import kv_to_cv, piping_factors, size_steam_valve, valve_flow, valve_travel
 from ..errors import InputError, OutOfRangeError
-from ..steam import SteamState, saturation_temperature
+from ..steam import CRITICAL_PRESSURE, CRITICAL_TEMPERATURE, SteamState, saturation_temperature
 
 #: Defaults stated as assumptions when not given (common practice for globe control valves).
 DEFAULT_XT = 0.70
@@ -84,7 +84,7 @@ def inlet_state_at(inputs, pressure, normal_inlet):
     field = "valve.max_inlet_pressure" if pressure > inputs.inlet_pressure else "valve.min_inlet_pressure"
     try:
         if inputs.inlet_temperature is not None:
-            t_sat = saturation_temperature(pressure)
+            t_sat = saturation_temperature(pressure) if pressure <= CRITICAL_PRESSURE else CRITICAL_TEMPERATURE
             if inputs.inlet_temperature <= t_sat + 1e-6:
                 raise InputError(
                     f"at {pressure / 1e5:.4g} bar(a) the inlet temperature {inputs.inlet_temperature - 273.15:.1f} °C "
@@ -279,7 +279,7 @@ def relief_load_section(inputs, inlet, result):
                     f"p2 = {p_down / 1e5:.4g} bar(a)", flows["bypass_open_flow"], "kg/h")
         result.assumptions.append(f"Bypass valve at the main valve's xT = {xt:g}, no reducers (a bypass with a lower "
                                   "xT passes less when choked)")
-    if state.dryness is None and "fail_open_flow" in flows:
+    if state.dryness is None and "fail_open_flow" in flows and p_up <= CRITICAL_PRESSURE:
         # Steam arriving colder (down to saturation) at the highest pressure is denser and passes more:
         # the record states by how much, so the relief designer can choose the basis.
         saturated = SteamState.from_p_dryness(p_up, 1.0)

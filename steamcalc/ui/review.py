@@ -1,4 +1,5 @@
-"""The review workbook: pick a record, re-run it, compare it with an earlier revision, sign it; the register."""
+"""The review workbook: pick a record, re-run it (and cross-check it on the fast IF97 engine), compare it
+with an earlier revision, sign it; the register of its folder."""
 
 from __future__ import annotations
 
@@ -50,6 +51,13 @@ class ReviewBook:
         self._sign_button.on_click(lambda _: self._on_sign())
         self._sign_status = widgets.HTML()
         self._sign_status.add_class("steamcalc-sign-status")
+        self._cross_button = widgets.Button(description="Cross-check on the fast engine", icon="exchange",
+                                            layout=widgets.Layout(width="18em"),
+                                            tooltip="Recompute on seuif97, a second, independent IAPWS-IF97 "
+                                                    "implementation, and show the largest difference")
+        self._cross_button.on_click(lambda _: self._on_cross_check())
+        self._cross_status = widgets.HTML()
+        self._cross_status.add_class("steamcalc-cross-check")
         self._show()
 
     @classmethod
@@ -68,6 +76,7 @@ class ReviewBook:
         self.path = self.folder / name
         self.record = load_record(self.path)
         self.outcome = verify_record(self.record)
+        self._cross_status.value = ""
         self._show()
         self._compare()
 
@@ -149,6 +158,25 @@ class ReviewBook:
         redraw()
         return widgets.VBox([widgets.HBox([build, show]), table])
 
+    def cross_check(self):
+        """Recompute the record on the fast engine (seuif97); return the outcome in words."""
+        o = verify_record(self.record, engine="fast")
+        if o.error:
+            return f"cross-check on the fast engine not possible: {o.error}"
+        same = sum(1 for c in o.comparisons if c.verdict == "same")
+        largest = o.largest_difference
+        lines = [f"cross-check on the fast engine (seuif97): {same} of {len(o.comparisons)} results agree "
+                 "within the verification tolerance"
+                 + ("" if not o.check_changes else f"; {len(o.check_changes)} check changes")]
+        if largest is not None:
+            lines.append(f"largest relative difference: {largest.rel_diff:.1e} ({largest.key})")
+        lines.extend(o.notes)
+        lines.append(f"cross-check: {'AGREES' if o.reproduced else 'DISAGREES'}")
+        return "\n".join(lines)
+
+    def _on_cross_check(self):
+        self._cross_status.value = f"<p>{html.escape(self.cross_check()).replace(chr(10), '<br>')}</p>"
+
     def _compare(self):
         if self._earlier.value in (None, "(none)"):
             self._diff.value = ""
@@ -193,7 +221,7 @@ class ReviewBook:
 
     # -- views -------------------------------------------------------------------------
     def verification_view(self):
-        return widgets.VBox([self._picker, self._table])
+        return widgets.VBox([self._picker, self._table, self._cross_button, self._cross_status])
 
     def comparison_view(self):
         return widgets.VBox([self._earlier, self._diff])
