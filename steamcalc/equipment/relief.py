@@ -113,14 +113,15 @@ def isentrope_point(pressure, entropy, temperature_guess):
     for _ in range(30):
         state = SteamState.from_pT(pressure, temperature)
         step = (entropy - state.entropy) * temperature / state.cp
+        if abs(step) < 1e-6:
+            # |Δs| < 1e-6·cp/T: the density and enthalpy are those of the isentrope to ~1e-9.
+            return state.density, state.enthalpy, None
         temperature = max(temperature + step, vapour.temperature + 1e-3)
-        if abs(step) < 1e-7 * temperature:
-            break
     state = SteamState.from_pT(pressure, temperature)
     return state.density, state.enthalpy, None
 
 
-def direct_integration_flux(relieving_state, back_pressure, evaluations=24):
+def direct_integration_flux(relieving_state, back_pressure, evaluations=18):
     """Mass flux of ideal isentropic nozzle flow from a stagnation state, on IF97.
 
     Parameters
@@ -163,6 +164,7 @@ def direct_integration_flux(relieving_state, back_pressure, evaluations=24):
                       relieving_state.temperature)
 
     def flux(p):
+        # Along the isentrope of steam T ∝ p^((κ-1)/κ), κ ≈ 1.3: a start within a few kelvin.
         rho, h, x = isentrope_point(p, s0, t0 * (p / p0) ** 0.23)
         return rho * math.sqrt(max(2.0 * (h0 - h), 0.0)), x
 
