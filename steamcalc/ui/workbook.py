@@ -204,15 +204,15 @@ class Workbook:
             for figure in figures)
 
     def _draw_table(self):
-        rows = table_for(self.case.kind, self.inputs, self.result)
-        if not rows:
+        tables = table_for(self.case.kind, self.inputs, self.result)
+        if not tables:
             self._table.value = ""
             return
-        head = "".join(f"<th style='padding:2px 10px'>{html.escape(str(k))}</th>" for k in rows[0])
-        body = "".join("<tr>" + "".join(
-            f"<td style='text-align:right;padding:2px 10px'>{html.escape(format_number(v))}</td>" for v in row.values())
-            + "</tr>" for row in rows)
-        self._table.value = f"<table><tr>{head}</tr>{body}</table>"
+        if not isinstance(tables, dict):
+            self._table.value = _html_table(tables)
+            return
+        self._table.value = "".join(f"<h4>{html.escape(heading)}</h4>{_html_table(rows)}"
+                                    for heading, rows in tables.items() if rows)
 
     def _draw_preview(self):
         self._preview.outputs = ({"output_type": "display_data", "metadata": {},
@@ -290,6 +290,14 @@ class Workbook:
         text = self.save()
         colour = "#a3201b" if text.startswith("not saved") else "#2f6b3a"
         self._save_status.value = f"<span style='color:{colour}'>{html.escape(text)}</span>"
+
+
+def _html_table(rows):
+    head = "".join(f"<th style='padding:2px 10px'>{html.escape(str(k))}</th>" for k in rows[0])
+    body = "".join("<tr>" + "".join(
+        f"<td style='text-align:right;padding:2px 10px'>{html.escape(format_number(v))}</td>" for v in row.values())
+        + "</tr>" for row in rows)
+    return f"<table><tr>{head}</tr>{body}</table>"
 
 
 class UnavailableWorkbook:
