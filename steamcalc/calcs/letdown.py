@@ -27,6 +27,11 @@ WORKBOOK = "letdown.ipynb"
 #: Results the uncertainty section gives bands and sensitivities for.
 UNCERTAINTY_RESULTS = ("outlet_temperature", "outlet_superheat", "throttled_temperature", "spray_water_flow", "valve_kv", "recoverable_power")
 
+#: Results that hold a pressure difference (shown as "bar difference", not bar(a)).
+PRESSURE_DIFFERENCE_RESULTS = tuple(
+    f"{line}_line_pressure_drop{suffix}" for line in ("inlet", "outlet")
+    for suffix in ("", "_per_100m", "_minimum", "_normal", "_maximum"))
+
 #: Smallest desuperheat margin above saturation that spray desuperheaters hold
 #: stably, K (common practice).
 MIN_DESUPERHEAT_MARGIN = 5.0

@@ -112,7 +112,7 @@ def noise_section(inputs, result):
         inlet = result.states[f"valve_inlet_{name}"]
         _, level, outlet = _stage_noise(inputs, inlet, inputs.outlet_pressure, flow, geometry)
         levels[name] = level
-        result.add(f"valve_noise_{name}", f"Valve noise at 1 m, {name} flow", level, "dB")
+        result.add(f"valve_noise_{name}", f"Valve noise at 1 m, A-weighted, {name} flow", level, "dB")
         if outlet.speed_of_sound is not None:
             machs[name] = outlet_mach(flow, outlet, geometry[1])
             result.add(f"valve_outlet_mach_{name}", f"Valve outlet Mach number, {name} flow", machs[name])
@@ -157,8 +157,8 @@ def _two_stage(inputs, noise, limit, geometry, result):
                p_mid / 1e5, "bar")
     result.add("two_stage_kv_first", "Two-stage let-down: first-stage Kv", kv1, "m**3/h")
     result.add("two_stage_kv_second", "Two-stage let-down: second-stage Kv", kv2, "m**3/h")
-    result.add("two_stage_noise_first", "Two-stage let-down: first-stage noise at 1 m", noise1, "dB")
-    result.add("two_stage_noise_second", "Two-stage let-down: second-stage noise at 1 m", noise2, "dB")
+    result.add("two_stage_noise_first", "Two-stage let-down: first-stage noise at 1 m, A-weighted", noise1, "dB")
+    result.add("two_stage_noise_second", "Two-stage let-down: second-stage noise at 1 m, A-weighted", noise2, "dB")
     result.check("Two-stage let-down proposed", "warn",
                  f"{why} at the {case} flow: two valves in series with equal pressure ratios {math.sqrt(ratio):.2f} "
                  f"each, intermediate {bar_a(p_mid)}; Kv {kv1:.1f} and {kv2:.1f} m³/h, noise {noise1:.1f} and "

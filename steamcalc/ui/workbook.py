@@ -17,7 +17,7 @@ from pathlib import Path
 import ipywidgets as widgets
 
 from ..calcs import get_calculation
-from ..display import display_record
+from ..display import display_record, pressure_basis
 from ..errors import SteamcalcError
 from ..record import write_record
 from ..report import RENDERERS, format_number, format_unit, render_markdown
@@ -185,7 +185,8 @@ class Workbook:
         colour = _STATUS_COLOURS[r["status"]]
         rows = "".join(
             f"<tr><td>{html.escape(v.get('label', k))}</td><td style='text-align:right'>"
-            f"<b>{html.escape(format_number(v['value']))}</b></td><td>{html.escape(format_unit(v.get('unit', '')))}"
+            f"<b>{html.escape(format_number(v['value']))}</b></td><td>"
+            f"{html.escape(format_unit(v.get('unit', ''), pressure_basis(r, 'results', k)))}"
             f"</td></tr>" for k, v in r["results"].items())
         checks = "".join(
             f"<tr><td style='color:{_STATUS_COLOURS[c['status']]};font-weight:bold'>{c['status'].upper()}</td>"
@@ -254,7 +255,7 @@ class Workbook:
         lines = [f"{r['id']} rev {r['revision']} - {r['title']}", f"overall status: {r['status'].upper()}", ""]
         width = max(len(v.get("label", k)) for k, v in r["results"].items())
         for key, v in r["results"].items():
-            unit = format_unit(v.get("unit", ""))
+            unit = format_unit(v.get("unit", ""), pressure_basis(r, "results", key))
             lines.append(f"  {v.get('label', key):<{width}}  {format_number(v['value']):>10} {unit}")
         lines.append("")
         for c in r["checks"]:
