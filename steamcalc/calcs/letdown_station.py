@@ -46,7 +46,7 @@ def line_loss_section(inputs, result):
         return
     result.assumptions.append(f"Line pressure drops at the {case} flow: Darcy–Weisbach with the Colebrook friction "
                               "factor, steel roughness 0.045 mm (common practice), density at the line inlet; "
-                              f"limit {DROP_LIMIT_PER_100M / 1e5:g} bar per 100 m (common practice)")
+                              f"limit {DROP_LIMIT_PER_100M / 1e5:g} bar difference per 100 m (common practice)")
     for key, label, state, mass_flow, size, length, k in lines:
         loss = line_drop(state, mass_flow, size, schedule, length, k, f"lines.{key}_size")
         per_100m = loss.pressure_drop * 100.0 / length
@@ -61,11 +61,11 @@ def line_loss_section(inputs, result):
                          f"{bar_a(state.pressure)}: the incompressible Darcy–Weisbach form understates it; enlarge the line")
         elif per_100m > DROP_LIMIT_PER_100M:
             result.check(f"{label} pressure drop", "warn",
-                         f"{per_100m / 1e5:.2f} bar per 100 m in {size} exceeds {DROP_LIMIT_PER_100M / 1e5:g} bar per "
-                         "100 m (common practice): consider the next size up")
+                         f"{per_100m / 1e5:.2f} bar difference per 100 m in {size} exceeds "
+                         f"{DROP_LIMIT_PER_100M / 1e5:g} (common practice): consider the next size up")
         else:
             result.check(f"{label} pressure drop", "pass",
-                         f"{loss.pressure_drop / 1e5:.3f} bar difference, {per_100m / 1e5:.2f} bar per 100 m "
+                         f"{loss.pressure_drop / 1e5:.3f} bar difference, {per_100m / 1e5:.2f} bar difference per 100 m "
                          f"(limit {DROP_LIMIT_PER_100M / 1e5:g}, common practice)")
 
 

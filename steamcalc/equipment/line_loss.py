@@ -12,7 +12,7 @@ from dataclasses import dataclass
 #: Absolute roughness of commercial steel pipe, m (Moody's chart value, 0.045 mm; common practice).
 STEEL_ROUGHNESS = 4.5e-5
 #: Line drop above which the caller should warn, Pa per 100 m (common practice for steam
-#: mains and let-down station lines: about 0.5 bar per 100 m).
+#: mains and let-down station lines: about 0.5 bar difference per 100 m).
 DROP_LIMIT_PER_100M = 0.5e5
 #: Above this fraction of the line's pressure the incompressible form is not good enough.
 COMPRESSIBLE_FRACTION = 0.10
