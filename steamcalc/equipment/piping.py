@@ -82,7 +82,7 @@ def pipe_dimensions(size, schedule="40", field="size"):
     Examples
     --------
     >>> [round(v * 1000, 2) for v in pipe_dimensions("DN200", "40")]
-    [202.72, 8.18]
+    [202.74, 8.18]
     """
     match = _DN.match(size) if isinstance(size, str) else None
     if match:
