@@ -52,7 +52,8 @@ def input_field(kind, label, help, *, example, section=None, default=None, requi
     key : str, optional
         The case-file key inside its section when it differs from the field name (field
         names are unique over all sections; keys only within their section), e.g. the field
-        ``relief_inlet_size`` is ``inlet_size`` in ``[inputs.relief]``.
+        ``relief_inlet_size`` is ``inlet_size`` in ``[inputs.relief]``. A field given a key
+        (even its own name) is named in parse errors by its case-file address, ``relief.kd``.
     """
     if kind not in INPUT_KINDS:
         raise ValueError(f"unknown input kind {kind!r}")

@@ -96,8 +96,8 @@ def noise_section(inputs, result):
     """IEC 60534-8-3 noise at each flow case, the valve outlet Mach number, a two-stage proposal."""
     limit = parse_sound_level(inputs.noise_limit) if inputs.noise_limit is not None else DEFAULT_NOISE_LIMIT
     if inputs.outlet_size is None or (inputs.valve_size is None and inputs.valve_outlet_size is None):
-        result.check("Valve noise", "warn", "no valve size or outlet line size given: the noise (IEC 60534-8-3) and the "
-                     "outlet Mach number are not predicted; give valve.valve_size and lines.outlet_size")
+        result.assumptions.append("Valve noise (IEC 60534-8-3) and outlet Mach number not predicted: they need "
+                                  "valve.valve_size and lines.outlet_size")
         return
     geometry = _noise_geometry(inputs)
     port, _, pipe_d, wall = geometry
