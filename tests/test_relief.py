@@ -78,6 +78,24 @@ def test_direct_integration_against_ideal_gas_nozzle():
     assert flow.throat_pressure / state.pressure == pytest.approx((2 / (k + 1)) ** (k / (k - 1)), rel=0.02)
 
 
+@pytest.mark.parametrize("state", [SteamState.from_pT(10e5, 473.15), SteamState.from_p_dryness(11e5, 0.95),
+                                   SteamState.from_pT(150e5, 773.15)], ids=["superheated", "wet", "high pressure"])
+def test_parabolic_throat_search_agrees_with_golden_section(state):
+    """Consistency: the quick search near the critical ratio finds the same largest flux as a
+    40-step golden-section search over the whole range."""
+    from steamcalc.equipment.relief import _golden_max, _parabolic_max, isentrope_point
+
+    p0, h0, s0 = state.pressure, state.enthalpy, state.entropy
+
+    def flux(p):
+        rho, h, x = isentrope_point(p, s0, state.temperature * (p / p0) ** 0.23)
+        return rho * math.sqrt(2 * (h0 - h)), x
+
+    quick = _parabolic_max(flux, p0, 1e5, 0.999 * p0)
+    thorough = _golden_max(flux, 1e5, 0.999 * p0, 40)
+    assert flux(quick)[0] == pytest.approx(flux(thorough)[0], rel=1e-8)
+
+
 def test_direct_integration_subcritical_back_pressure():
     """Consistency: with the back pressure above the critical pressure the flow is not choked and
     the flux is the isentropic flux at the back pressure (less than the choked flux)."""

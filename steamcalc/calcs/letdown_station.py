@@ -78,18 +78,20 @@ def _noise_geometry(inputs):
     return port, port_d, pipe_d, wall
 
 
-def _stage_noise(inputs, inlet, p2, flow, geometry):
-    """Kv, noise (dB(A)) and outlet state of one stage from an inlet state to p2."""
-    xt, (valve_d, inlet_d, outlet_d) = _valve_geometry(inputs)
+def _stage_noise(inputs, inlet, p2, flow, geometry, kv=None):
+    """Kv, noise (dB(A)) and outlet state of one stage from an inlet state to p2 (the Kv sized
+    here unless given)."""
     kappa = sizing_kappa(inlet)
-    sizing = size_steam_valve(flow * 3600, inlet.pressure / 1e3, p2 / 1e3, inlet.density, kappa, xt,
-                              valve_d=valve_d, inlet_d=inlet_d, outlet_d=outlet_d)
+    if kv is None:
+        xt, (valve_d, inlet_d, outlet_d) = _valve_geometry(inputs)
+        kv = size_steam_valve(flow * 3600, inlet.pressure / 1e3, p2 / 1e3, inlet.density, kappa, xt,
+                              valve_d=valve_d, inlet_d=inlet_d, outlet_d=outlet_d).kv
     outlet = SteamState.from_ph(p2, inlet.enthalpy)
     _, port_d, pipe_d, wall = geometry
-    level = valve_noise(flow, inlet, outlet, kappa, sizing.kv, port_d, pipe_d, wall,
+    level = valve_noise(flow, inlet, outlet, kappa, kv, port_d, pipe_d, wall,
                         inputs.fd if inputs.fd is not None else DEFAULT_FD,
                         inputs.fl if inputs.fl is not None else DEFAULT_FL)
-    return sizing.kv, level, outlet
+    return kv, level, outlet
 
 
 def noise_section(inputs, result):
@@ -110,7 +112,9 @@ def noise_section(inputs, result):
     levels, machs = {}, {}
     for name, flow in flow_cases(inputs):
         inlet = result.states[f"valve_inlet_{name}"]
-        _, level, outlet = _stage_noise(inputs, inlet, inputs.outlet_pressure, flow, geometry)
+        _, level, outlet = _stage_noise(inputs, inlet, inputs.outlet_pressure, flow, geometry,
+                                        kv=result.value(f"valve_kv_{name}"))
+        result.states[f"valve_outlet_{name}"] = outlet
         levels[name] = level
         result.add(f"valve_noise_{name}", f"Valve noise at 1 m, A-weighted, {name} flow", level, "dB")
         if outlet.speed_of_sound is not None:
@@ -173,8 +177,9 @@ def downstream_section(inputs, result):
     downstream design conditions."""
     temperatures = {}
     for name, _ in flow_cases(inputs):
-        inlet = result.states[f"valve_inlet_{name}"]
-        temperatures[name] = SteamState.from_ph(inputs.outlet_pressure, inlet.enthalpy).temperature
+        throttled = result.states.get(f"valve_outlet_{name}") or SteamState.from_ph(
+            inputs.outlet_pressure, result.states[f"valve_inlet_{name}"].enthalpy)
+        temperatures[name] = throttled.temperature
     worst = max(temperatures, key=temperatures.get)
     hottest = temperatures[worst]
     result.add("spray_failure_temperature", "Throttled temperature with the spray failed (hottest flow case)",

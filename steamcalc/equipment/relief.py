@@ -121,7 +121,7 @@ def isentrope_point(pressure, entropy, temperature_guess):
     return state.density, state.enthalpy, None
 
 
-def direct_integration_flux(relieving_state, back_pressure, evaluations=18):
+def direct_integration_flux(relieving_state, back_pressure, evaluations=20):
     """Mass flux of ideal isentropic nozzle flow from a stagnation state, on IF97.
 
     Parameters
@@ -131,7 +131,8 @@ def direct_integration_flux(relieving_state, back_pressure, evaluations=18):
     back_pressure : float
         Pa (absolute), the lowest pressure the nozzle can expand to.
     evaluations : int
-        Golden-section evaluations of the flux along the isentrope.
+        Golden-section evaluations of the flux along the isentrope, when the maximum is not
+        found near the critical pressure ratio by parabolic interpolation.
 
     Returns
     -------
@@ -169,6 +170,38 @@ def direct_integration_flux(relieving_state, back_pressure, evaluations=18):
         return rho * math.sqrt(max(2.0 * (h0 - h), 0.0)), x
 
     low, high = max(back_pressure, 0.05 * p0), 0.999 * p0
+    p_throat = _parabolic_max(flux, p0, low, high)
+    if p_throat is None:
+        p_throat = _golden_max(flux, low, high, evaluations)
+    g_back, x_back = flux(low)
+    g_max, x_throat = flux(p_throat)
+    if g_back >= g_max or p_throat - low < 1e-3 * p0:
+        return NozzleFlow(g_back, low, False, x_back)
+    return NozzleFlow(g_max, p_throat, True, x_throat)
+
+
+def _parabolic_max(flux, p0, low, high):
+    """Pressure of the largest flux by two rounds of parabolic interpolation around the critical
+    pressure ratio of steam (0.53-0.61 for κ from 1.4 to 1.0); None when the maximum is not
+    bracketed there (then the caller searches the whole range)."""
+    centre, spacing = 0.565 * p0, 0.05 * p0
+    for _ in range(2):
+        points = [centre - spacing, centre, centre + spacing]
+        if points[0] <= low or points[2] >= high:
+            return None
+        g = [flux(p)[0] for p in points]
+        curvature = g[0] - 2.0 * g[1] + g[2]
+        if curvature >= 0.0 or not (g[1] >= g[0] or g[1] >= g[2]):
+            return None
+        vertex = centre + 0.5 * spacing * (g[0] - g[2]) / curvature
+        if abs(vertex - centre) > 1.5 * spacing:
+            return None
+        centre, spacing = vertex, spacing / 5.0
+    return centre
+
+
+def _golden_max(flux, low, high, evaluations):
+    """Pressure of the largest flux on [low, high] by golden-section search."""
     ratio = (math.sqrt(5.0) - 1.0) / 2.0
     a, b = low, high
     c, d = b - ratio * (b - a), a + ratio * (b - a)
@@ -182,12 +215,7 @@ def direct_integration_flux(relieving_state, back_pressure, evaluations=18):
             a, c, fc = c, d, fd
             d = a + ratio * (b - a)
             fd = flux(d)[0]
-    p_throat = 0.5 * (a + b)
-    g_back, x_back = flux(low)
-    g_max, x_throat = flux(p_throat)
-    if g_back >= g_max or p_throat - low < 1e-3 * p0:
-        return NozzleFlow(g_back, low, False, x_back)
-    return NozzleFlow(g_max, p_throat, True, x_throat)
+    return 0.5 * (a + b)
 
 
 def direct_integration_area(mass_flow_kg_h, flow, kd, kb=1.0, kc=1.0):
