@@ -75,6 +75,7 @@ _EXAMPLES = {
     "temperature_difference": "'10 K'",
     "mass_flow": "'4.5 t/h' or '1.25 kg/s'",
     "length": "'180 m'",
+    "dimensionless": "'10 %'",
     "velocity": "'0.07 m/s'",
     "flow_coefficient": "'40 m^3/h'",
     "specific_heat": "'3.9 kJ/(kg K)'",

@@ -371,11 +371,18 @@ def _uncertainty_table(data):
 
 
 def _sections(inputs_class):
-    from .calcs.base import input_fields
+    """Case-file keys by section (a field's key may differ from its name: ``field_key``)."""
+    from .calcs.base import field_key, input_fields
     sections = {}
     for f in input_fields(inputs_class):
-        sections.setdefault(f.metadata["section"], []).append(f.name)
+        sections.setdefault(f.metadata["section"], []).append(field_key(f))
     return sections
+
+
+def _field_names(inputs_class):
+    """(section, case-file key) -> field name."""
+    from .calcs.base import field_key, input_fields
+    return {(f.metadata["section"], field_key(f)): f.name for f in input_fields(inputs_class)}
 
 
 def check_input_keys(inputs_class, table):
@@ -402,10 +409,11 @@ def flatten_inputs(inputs_class, table):
     """The raw ``[inputs]`` table as one flat mapping of field name to the user's value."""
     check_input_keys(inputs_class, table)
     sections = _sections(inputs_class)
+    names = _field_names(inputs_class)
     flat = {}
     for key, value in table.items():
         if key in sections and key is not None and isinstance(value, dict):
-            flat.update(value)
+            flat.update({names[(key, sub)]: v for sub, v in value.items()})
         else:
             flat[key] = value
     return flat
@@ -419,43 +427,45 @@ def parse_inputs(inputs_class, flat, site):
     tuple
         ``(inputs, given)``: the frozen Inputs and the user's text for each field.
     """
-    from .calcs.base import input_fields
+    from .calcs.base import field_path, input_fields
 
     values, given = {}, {}
     for f in input_fields(inputs_class):
         if f.name not in flat:
             continue
         raw = flat[f.name]
+        # An aliased field is named by its case-file address, others by their name as before.
+        where = field_path(f) if f.metadata.get("key") else f.name
         kind = f.metadata["kind"]
         given[f.name] = raw if isinstance(raw, str) else _number_text(raw)
         if kind == "pressure":
-            values[f.name] = _pressure_or_header(raw, f.name, site)
+            values[f.name] = _pressure_or_header(raw, where, site)
             if isinstance(raw, str) and raw.strip().startswith("header:"):
                 name = raw.split(":", 1)[1].strip()
                 if name in site.header_texts:
                     given[f.name] = f"header:{name} = {site.header_texts[name]}"
         elif kind == "fraction":
-            values[f.name] = _fraction(raw, f.name)
+            values[f.name] = _fraction(raw, where)
         elif kind == "number":
-            values[f.name] = _positive_number(raw, f.name)
+            values[f.name] = _positive_number(raw, where)
         elif kind == "flag":
-            values[f.name] = _flag(raw, f.name)
+            values[f.name] = _flag(raw, where)
         elif kind in ("nominal_size", "text"):
             if isinstance(raw, (int, float)) and not isinstance(raw, bool) and kind == "text":
                 raw = f"{raw:g}"
             if not isinstance(raw, str):
                 raise InputError("must be text" + (", such as 'DN80' or '3 in'" if kind == "nominal_size" else ""),
-                                 field=f.name, value=raw)
+                                 field=where, value=raw)
             values[f.name] = raw.strip()
         elif kind == "pressure_list":
             if isinstance(raw, str) or not isinstance(raw, (list, tuple)) or not raw:
-                raise InputError("must be a list of pressures", field=f.name, value=raw,
+                raise InputError("must be a list of pressures", field=where, value=raw,
                                  fix='e.g. ["8 bar(g)", "2.5 bar(g)"]')
-            values[f.name] = tuple(_pressure_or_header(item, f"{f.name}[{i}]", site)
+            values[f.name] = tuple(_pressure_or_header(item, f"{where}[{i}]", site)
                                    for i, item in enumerate(raw))
             given[f.name] = ", ".join(str(item) for item in raw)
         else:
-            values[f.name] = parse_quantity(raw, f.name, kind)
+            values[f.name] = parse_quantity(raw, where, kind)
     return inputs_class(**values), given
 
 

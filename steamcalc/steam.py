@@ -140,6 +140,25 @@ def saturation_pressure(temperature, *, engine=None):
     return engine_module(engine).saturation_pressure(temperature)
 
 
+def dynamic_viscosity(temperature, density):
+    """Dynamic viscosity of water or steam, Pa·s, from temperature (K) and density (kg/m³).
+
+    References
+    ----------
+    IAPWS R12-08, Release on the IAPWS Formulation 2008 for the Viscosity of Ordinary Water
+    Substance, equation (10) without the critical enhancement (industrial use, through iapws).
+
+    Examples
+    --------
+    >>> round(dynamic_viscosity(473.15, 5.0) * 1e6, 3)
+    15.866
+    """
+    from iapws._iapws import _Viscosity
+
+    _check("temperature", temperature, 273.15, 1173.15, "K")
+    return float(_Viscosity(density, temperature))
+
+
 def backward_temperature_region1(pressure, enthalpy):
     """IF97 backward equation T(p, h) of region 1 (compressed liquid), reference engine.
 

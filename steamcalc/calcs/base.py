@@ -19,14 +19,16 @@ from ..quantities import RECORD_UNITS, from_record_unit, to_record_unit
 #: ``pressure_list`` a list of pressure strings; ``pressure_difference`` has no basis ("0.1 bar").
 INPUT_KINDS = ("pressure", "pressure_difference", "length", "temperature", "temperature_difference", "mass_flow",
                "velocity", "flow_coefficient", "specific_heat", "heat_transfer_coefficient", "fouling_resistance", "area",
-               "volume_flow", "density", "time", "fraction", "number", "flag", "nominal_size", "text", "pressure_list")
+               "volume_flow", "density", "time", "fraction", "number", "flag", "nominal_size", "text", "pressure_list",
+               "dimensionless")
 _PLAIN_KINDS = ("fraction", "number", "flag", "nominal_size", "text")
 _RAW_KINDS = ("flag", "nominal_size", "text")
 
 STATUSES = ("pass", "warn", "fail")
 
 
-def input_field(kind, label, help, *, example, section=None, default=None, required=False, positive=False):
+def input_field(kind, label, help, *, example, section=None, default=None, required=False, positive=False,
+                key=None):
     """A dataclass field for an ``Inputs`` class, with the metadata forms and parsers use.
 
     Parameters
@@ -47,12 +49,17 @@ def input_field(kind, label, help, *, example, section=None, default=None, requi
         The input must be given (:func:`check_fields` refuses None).
     positive : bool
         When given, the value must be above zero.
+    key : str, optional
+        The case-file key inside its section when it differs from the field name (field
+        names are unique over all sections; keys only within their section), e.g. the field
+        ``relief_inlet_size`` is ``inlet_size`` in ``[inputs.relief]``. A field given a key
+        (even its own name) is named in parse errors by its case-file address, ``relief.kd``.
     """
     if kind not in INPUT_KINDS:
         raise ValueError(f"unknown input kind {kind!r}")
     return field(default=default, metadata={
         "kind": kind, "label": label, "help": help, "example": example, "section": section,
-        "required": required, "positive": positive,
+        "required": required, "positive": positive, "key": key or None,
     })
 
 
@@ -61,10 +68,15 @@ def input_fields(inputs_class):
     return dataclasses.fields(inputs_class)
 
 
+def field_key(f):
+    """The case-file key of an input field inside its section (the field name unless aliased)."""
+    return f.metadata.get("key") or f.name
+
+
 def field_path(f):
-    """The case-file address of an input field: ``name``, or ``section.name`` in a sub-table."""
+    """The case-file address of an input field: ``key``, or ``section.key`` in a sub-table."""
     section = f.metadata["section"]
-    return f"{section}.{f.name}" if section else f.name
+    return f"{section}.{field_key(f)}" if section else field_key(f)
 
 
 def check_fields(inputs):
@@ -77,7 +89,7 @@ def check_fields(inputs):
         where = f"[inputs.{f.metadata['section']}]" if f.metadata["section"] else "[inputs]"
         if value is None:
             if f.metadata["required"]:
-                raise InputError("is required", field=field_path(f), fix=f"add {f.name} to {where}")
+                raise InputError("is required", field=field_path(f), fix=f"add {field_key(f)} to {where}")
             continue
         if f.metadata["positive"] and value <= 0.0:
             raise InputError(f"{f.metadata['label'].lower()} must be above zero", field=field_path(f),

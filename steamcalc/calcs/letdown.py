@@ -18,6 +18,8 @@ from ..steam import CRITICAL_PRESSURE, CRITICAL_TEMPERATURE, SteamState, saturat
 from .balance import Stream, check_energy_balance
 from .base import Result, bar_a, check_fields, deg_c, input_field, kj_kg
 from .letdown_equipment import line_section, valve_section
+from .letdown_relief import relief_section
+from .letdown_station import downstream_section, line_loss_section, noise_section
 from .letdown_turbine import power_section
 
 KIND = "letdown"
@@ -25,6 +27,11 @@ TITLE = "Pressure let-down station"
 WORKBOOK = "letdown.ipynb"
 #: Results the uncertainty section gives bands and sensitivities for.
 UNCERTAINTY_RESULTS = ("outlet_temperature", "outlet_superheat", "throttled_temperature", "spray_water_flow", "valve_kv", "recoverable_power")
+
+#: Results that hold a pressure difference (shown as "bar difference", not bar(a)).
+PRESSURE_DIFFERENCE_RESULTS = tuple(
+    f"{line}_line_pressure_drop{suffix}" for line in ("inlet", "outlet")
+    for suffix in ("", "_per_100m", "_minimum", "_normal", "_maximum"))
 
 #: Smallest desuperheat margin above saturation that spray desuperheaters hold
 #: stably, K (common practice).
@@ -119,11 +126,17 @@ class Inputs:
         "flow_coefficient", "Bypass valve Kv", "Kv of the hand bypass valve wide open (for the relief load).",
         example="25 m^3/h", section="valve", positive=True)
     relief_set_pressure: float | None = input_field(
-        "pressure", "Downstream relief set pressure", "Set pressure of the relief device protecting the "
-        "outlet side.", example="4.5 bar(g)", section="valve")
+        "pressure", "Downstream relief set pressure (superseded)", "Superseded by [inputs.relief] set_pressure; "
+        "still read, with a warning.", example="4.5 bar(g)", section="valve")
     valve_size: str | None = input_field(
         "nominal_size", "Valve size", "Nominal size of the valve body (for the piping factor with reducers).",
         example="DN50", section="valve")
+    valve_outlet_size: str | None = input_field(
+        "nominal_size", "Valve outlet port size", "Nominal size of the valve's outlet port, for the outlet Mach "
+        "number and the noise (default: the valve size).", example="DN80", section="valve", key="valve_outlet_size")
+    noise_limit: str | None = input_field(
+        "text", "Noise limit at 1 m", "A-weighted sound pressure limit 1 m from the pipe (default 85 dB(A)).",
+        example="85 dB(A)", section="valve", key="noise_limit")
     inlet_size: str | None = input_field(
         "nominal_size", "Inlet line size", "Nominal size of the inlet line.", example="DN80", section="lines")
     outlet_size: str | None = input_field(
@@ -139,6 +152,54 @@ class Inputs:
     max_velocity_superheated: float | None = input_field(
         "velocity", "Velocity limit, superheated", "Line velocity limit for superheated steam.",
         example="45 m/s", section="lines", positive=True)
+    inlet_length: float | None = input_field(
+        "length", "Inlet line length", "Straight length of the inlet line, for its pressure drop.", example="25 m",
+        section="lines", positive=True, key="inlet_length")
+    outlet_length: float | None = input_field(
+        "length", "Outlet line length", "Straight length of the outlet line, for its pressure drop.",
+        example="40 m", section="lines", positive=True, key="outlet_length")
+    inlet_fittings_k: float | None = input_field(
+        "number", "Inlet line fittings K", "Sum of the inlet line's fittings loss coefficients.", example="2.0",
+        section="lines", key="inlet_fittings_k")
+    outlet_fittings_k: float | None = input_field(
+        "number", "Outlet line fittings K", "Sum of the outlet line's fittings loss coefficients.", example="3.0",
+        section="lines", key="outlet_fittings_k")
+    set_pressure: float | None = input_field(
+        "pressure", "Relief set pressure", "Set pressure of the relief valve protecting the outlet side.",
+        example="4.5 bar(g)", section="relief", key="set_pressure")
+    overpressure: float | None = input_field(
+        "dimensionless", "Relief overpressure", "Allowable overpressure, of the gauge set pressure (default 10 %).",
+        example="10 %", section="relief", positive=True, key="overpressure")
+    back_pressure: float | None = input_field(
+        "pressure", "Relief back pressure", "Superimposed plus built-up back pressure at the relief valve outlet "
+        "(default atmospheric).", example="0 bar(g)", section="relief", key="back_pressure")
+    relief_kd: float | None = input_field(
+        "fraction", "Relief Kd", "Effective coefficient of discharge (default 0.975, API 520 Part I).",
+        example="0.975", section="relief", positive=True, key="kd")
+    relief_kc: float | None = input_field(
+        "fraction", "Relief Kc", "Combination correction: 1.0, or 0.9 with a rupture disk upstream.",
+        example="1.0", section="relief", positive=True, key="kc")
+    relief_valve_type: str | None = input_field(
+        "text", "Relief valve type", "conventional, balanced-bellows or pilot (default conventional).",
+        example="conventional", section="relief", key="valve_type")
+    relief_inlet_size: str | None = input_field(
+        "nominal_size", "Relief inlet line size", "Nominal size of the relief valve's inlet line.", example="DN100",
+        section="relief", key="inlet_size")
+    relief_inlet_length: float | None = input_field(
+        "length", "Relief inlet line length", "Length of the relief valve's inlet line.", example="1.5 m",
+        section="relief", positive=True, key="inlet_length")
+    relief_inlet_fittings_k: float | None = input_field(
+        "number", "Relief inlet fittings K", "Sum of the loss coefficients of the relief inlet line (entry, "
+        "fittings).", example="0.5", section="relief", key="inlet_fittings_k")
+    relief_discharge_size: str | None = input_field(
+        "nominal_size", "Relief discharge size", "Nominal size of the open discharge pipe, for the reaction force "
+        "(default: the API 526 outlet of the orifice).", example="DN100", section="relief", key="discharge_size")
+    design_pressure: float | None = input_field(
+        "pressure", "Downstream design pressure", "Design pressure of the downstream system.", example="6 bar(g)",
+        section="downstream", key="design_pressure")
+    design_temperature: float | None = input_field(
+        "temperature", "Downstream design temperature", "Design temperature of the downstream system.",
+        example="180 degC", section="downstream", key="design_temperature")
     isentropic_efficiency: float | None = input_field(
         "fraction", "Turbine isentropic efficiency", "Of a back-pressure turbine in place of the valve.",
         example="0.55", section="turbine", positive=True)
@@ -149,6 +210,7 @@ class Inputs:
     def __post_init__(self):
         check_fields(self)
         self._check_valve_inputs()
+        self._check_relief_inputs()
         inlet_given = [n for n in ("inlet_temperature", "inlet_superheat", "inlet_dryness")
                        if getattr(self, n) is not None]
         if len(inlet_given) != 1:
@@ -174,6 +236,51 @@ class Inputs:
             raise InputError("spray water is given but no desuperheater target",
                              field="desuperheater.target_superheat",
                              fix="add target_superheat or target_temperature, or remove [inputs.desuperheater]")
+
+    def _check_relief_inputs(self):
+        from ..equipment.noise import parse_sound_level
+        from ..equipment.relief import VALVE_TYPES
+
+        if self.noise_limit is not None:
+            parse_sound_level(self.noise_limit)
+        if self.set_pressure is not None and self.relief_set_pressure is not None \
+                and abs(self.set_pressure - self.relief_set_pressure) > 1.0:
+            raise InputError("two different relief set pressures are given", field="relief.set_pressure",
+                             fix="remove valve.relief_set_pressure (superseded by [inputs.relief] set_pressure)")
+        set_pressure = self.set_pressure if self.set_pressure is not None else self.relief_set_pressure
+        field = "relief.set_pressure" if self.set_pressure is not None else "valve.relief_set_pressure"
+        if set_pressure is not None and set_pressure <= self.outlet_pressure:
+            raise InputError(
+                f"the relief set pressure {bar_a(set_pressure)} is not above the outlet pressure "
+                f"{bar_a(self.outlet_pressure)}: the valve would lift in normal service", field=field,
+                value=set_pressure, fix="set it above the operating pressure (check the basis, bar(g)/bar(a))")
+        if self.back_pressure is not None:
+            if set_pressure is None:
+                raise InputError("a relief back pressure is given without a set pressure", field="relief.back_pressure",
+                                 fix="add set_pressure to [inputs.relief]")
+            if self.back_pressure >= set_pressure:
+                raise InputError(
+                    f"the back pressure {bar_a(self.back_pressure)} is not below the set pressure {bar_a(set_pressure)}",
+                    field="relief.back_pressure", value=self.back_pressure,
+                    fix="give the superimposed plus built-up pressure at the valve outlet, below the set pressure")
+        if self.overpressure is not None and not 0.03 <= self.overpressure <= 0.21:
+            raise InputError(f"overpressure {100 * self.overpressure:g} % is outside 3-21 % of the set pressure",
+                             field="relief.overpressure", value=self.overpressure, limits=(3, 21, "%"),
+                             fix="10 % for a single valve, 16 % for several, 21 % for fire (API 520 Part I)")
+        if self.relief_valve_type is not None and self.relief_valve_type not in VALVE_TYPES:
+            raise InputError(f"unknown relief valve type '{self.relief_valve_type}'", field="relief.valve_type",
+                             value=self.relief_valve_type, fix=f"use one of {', '.join(VALVE_TYPES)}")
+        for name in ("inlet_fittings_k", "outlet_fittings_k", "relief_inlet_fittings_k"):
+            value = getattr(self, name)
+            if value is not None and value < 0.0:
+                where = "relief.inlet_fittings_k" if name.startswith("relief") else f"lines.{name}"
+                raise InputError("a loss coefficient cannot be negative", field=where, value=value,
+                                 fix="give the sum of the fittings' K values, zero or more")
+        if self.design_pressure is not None and self.design_pressure <= self.outlet_pressure:
+            raise InputError(
+                f"the downstream design pressure {bar_a(self.design_pressure)} is not above the outlet pressure "
+                f"{bar_a(self.outlet_pressure)}", field="downstream.design_pressure", value=self.design_pressure,
+                fix="give the design pressure of the downstream system (check the basis, bar(g)/bar(a))")
 
     def _check_valve_inputs(self):
         if self.characteristic is not None and self.characteristic not in ("linear", "equal-percentage"):
@@ -328,6 +435,11 @@ def calculate(inputs, site):
         "IEC 60534-2-1:2011, control-valve sizing equations for compressible fluids",
         "IEC 60534-2-4:2009, inherent flow characteristics",
         "ASME B36.10M, welded and seamless wrought steel pipe (dimensions)",
+        "IEC 60534-8-3:2010, control valve aerodynamic noise prediction (through fluids)",
+        "API Standard 520 Part I (10th ed., 2020), relief device sizing: steam equation and annex B direct integration",
+        "API Standard 520 Part II (7th ed., 2020), relief installation: inlet loss, reaction force",
+        "API Standard 526 (7th ed., 2017), flanged steel pressure-relief valves: orifice letters and areas",
+        "Darcy–Weisbach with the Colebrook (1939) friction factor (through fluids)",
     ])
     result.assumptions.extend([
         "Adiabatic valve: Q = 0",
@@ -404,6 +516,10 @@ def calculate(inputs, site):
     result.states.update(inlet=inlet, throttled=throttled, outlet=outlet)
     valve_section(inputs, inlet, result)
     line_section(inputs, inlet, throttled, outlet, result)
+    line_loss_section(inputs, result)
+    noise_section(inputs, result)
+    relief_section(inputs, inlet, site, result)
+    downstream_section(inputs, result)
     power_section(inputs, inlet, throttled, site, result)
 
     if outlet.phase == "wet":

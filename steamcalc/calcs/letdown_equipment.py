@@ -7,10 +7,11 @@ its values, steps and checks to the same Result.
 
 from __future__ import annotations
 
+from ..equipment.line_loss import line_pressure_drop
 from ..equipment.piping import DN_TO_NPS, line_velocity, pipe_inner_diameter
 from ..equipment.valve import kv_to_cv, piping_factors, size_steam_valve, valve_flow, valve_travel
 from ..errors import InputError, OutOfRangeError
-from ..steam import CRITICAL_PRESSURE, CRITICAL_TEMPERATURE, SteamState, saturation_temperature
+from ..steam import CRITICAL_PRESSURE, CRITICAL_TEMPERATURE, SteamState, dynamic_viscosity, saturation_temperature
 
 #: Defaults stated as assumptions when not given (common practice for globe control valves).
 DEFAULT_XT = 0.70
@@ -99,6 +100,51 @@ def inlet_state_at(inputs, pressure, normal_inlet):
         raise exc.for_field(field) from None
 
 
+def relief_set_pressure(inputs):
+    """The downstream relief set pressure (Pa): [inputs.relief] set_pressure, else the superseded
+    valve.relief_set_pressure; None when neither is given."""
+    return inputs.set_pressure if inputs.set_pressure is not None else inputs.relief_set_pressure
+
+
+def steam_viscosity(state):
+    """Dynamic viscosity (Pa·s) of the steam of a state; for wet steam, that of its vapour."""
+    if state.dryness is not None:
+        vapour = SteamState.from_p_dryness(state.pressure, 1.0)
+        return dynamic_viscosity(vapour.temperature, vapour.density)
+    return dynamic_viscosity(state.temperature, state.density)
+
+
+def line_drop(state, mass_flow, size, schedule, length, fittings_k, field):
+    """Darcy–Weisbach loss of a line (steamcalc.equipment.line_loss.LineLoss) at a state and flow."""
+    diameter = pipe_inner_diameter(size, schedule, field=field)
+    return line_pressure_drop(mass_flow, state.density, steam_viscosity(state), diameter, length, fittings_k or 0.0)
+
+
+def valve_inlet_state(inputs, case, flow, normal_inlet):
+    """Steam at the valve inlet for a flow case: the upstream (header) state of that case, less
+    the inlet line's pressure drop when the line's length is given (adiabatic line: h kept).
+
+    Returns
+    -------
+    tuple
+        ``(state at the valve inlet, inlet line pressure drop Pa)``.
+    """
+    upstream = inlet_state_at(inputs, case_inlet_pressure(inputs, case), normal_inlet)
+    if inputs.inlet_length is None or inputs.inlet_size is None:
+        return upstream, 0.0
+    loss = line_drop(upstream, flow, inputs.inlet_size, inputs.schedule or DEFAULT_SCHEDULE, inputs.inlet_length,
+                     inputs.inlet_fittings_k, "lines.inlet_size")
+    if loss.pressure_drop >= 0.5 * (upstream.pressure - inputs.outlet_pressure):
+        raise InputError(
+            f"the inlet line loses {loss.pressure_drop / 1e5:.3g} bar difference at the {case} flow, half or more of "
+            "the drop available to the valve", field="lines.inlet_size", value=inputs.inlet_size,
+            fix="choose a larger inlet line or check its length")
+    try:
+        return SteamState.from_ph(upstream.pressure - loss.pressure_drop, upstream.enthalpy), loss.pressure_drop
+    except OutOfRangeError as exc:
+        raise exc.for_field("lines.inlet_length") from None
+
+
 def _pressure_pair(p1, p2):
     return f"{p1 / 1e5:.4g} bar(a) → {p2 / 1e5:.4g} bar(a)"
 
@@ -165,9 +211,12 @@ def valve_section(inputs, inlet, result):
     result.add("isentropic_exponent", "Isentropic exponent at the inlet", kappa)
     sizing, states = {}, {}
     for name, flow in flow_cases(inputs):
-        state = inlet_state_at(inputs, case_inlet_pressure(inputs, name), inlet)
+        state, drop = valve_inlet_state(inputs, name, flow, inlet)
         s = required_kv(inputs, state, sizing_kappa(state), flow)
         sizing[name], states[name] = s, state
+        result.states[f"valve_inlet_{name}"] = state
+        if drop:
+            result.add(f"inlet_line_pressure_drop_{name}", f"Inlet line pressure drop, {name} flow", drop / 1e5, "bar")
         result.add(f"valve_kv_{name}", f"Required Kv, {name} flow", s.kv, "m**3/h")
         result.add(f"choked_{name}", f"Choked flow, {name} flow", s.choked)
         result.add(f"valve_pressures_{name}", f"Pressures the {name} flow is sized at",
@@ -176,6 +225,11 @@ def valve_section(inputs, inlet, result):
     design, state = sizing[design_case], states[design_case]
     p1_kpa, p2_kpa = state.pressure / 1e3, inputs.outlet_pressure / 1e3
     design_kappa = sizing_kappa(state)
+    if f"inlet_line_pressure_drop_{design_case}" in result.values:
+        header = case_inlet_pressure(inputs, design_case)
+        result.step("Valve inlet pressure", f"p1 = p_header − Δp_inlet line  ({design_case} flow; Darcy–Weisbach)",
+                    f"p1 = {header / 1e5:.4g} bar(a) − {(header - state.pressure) / 1e5:.4f} bar difference",
+                    state.pressure / 1e5, "bar")
     result.step("Pressure differential ratio", f"x = (p1 − p2) / p1  ({design_case} flow)",
                 f"x = ({p1_kpa:.1f} − {p2_kpa:.1f}) kPa(a) / {p1_kpa:.1f} kPa(a)", design.x)
     result.step("Choked limit", "x_choked = Fγ·xT  (Fγ = κ/1.40)" + ("; xTP with fittings" if with_fittings else ""),
@@ -242,15 +296,17 @@ def relief_load_section(inputs, inlet, result):
                      f"no highest upstream pressure: the fail-open flow is taken at the normal inlet pressure "
                      f"{p_up / 1e5:.4g} bar(a), which understates the relief load if the inlet can rise (boiler or "
                      "HP header safety-valve setting); give valve.max_inlet_pressure")
-    if inputs.relief_set_pressure is not None:
-        p_down = inputs.relief_set_pressure
+    set_pressure = relief_set_pressure(inputs)
+    if set_pressure is not None:
+        p_down = set_pressure
         where = f"the relief set pressure {p_down / 1e5:.4g} bar(a)"
     else:
         p_down = inputs.outlet_pressure
         where = (f"the normal outlet pressure {p_down / 1e5:.4g} bar(a) (no relief set pressure given; at the set "
                  "pressure the flow is the same when choked and lower when not)")
     if p_down >= p_up:
-        raise InputError("the relief set pressure must be below the upstream pressure", field="valve.relief_set_pressure",
+        raise InputError("the relief set pressure must be below the upstream pressure",
+                         field="relief.set_pressure" if inputs.set_pressure is not None else "valve.relief_set_pressure",
                          value=p_down, fix="check the pressure and its basis (bar(g)/bar(a))")
     state = inlet_state_at(inputs, p_up, inlet)
     kappa = sizing_kappa(state)
@@ -269,7 +325,7 @@ def relief_load_section(inputs, inlet, result):
         result.add("fail_open_flow", "Fail-open flow of the rated valve", flows["fail_open_flow"], "kg/h")
         result.step("Fail-open flow", "W = N6·Fp·Kvs·Y·√(x_siz·p1·ρ1), valve wide open",
                     f"Kvs = {kvs:.2f} m³/h, p1 = {p_up / 1e5:.4g} bar(a) (highest upstream), "
-                    f"p2 = {p_down / 1e5:.4g} bar(a) ({'relief set pressure' if inputs.relief_set_pressure else 'normal outlet pressure, no relief set pressure given'}), "
+                    f"p2 = {p_down / 1e5:.4g} bar(a) ({'relief set pressure' if set_pressure else 'normal outlet pressure, no relief set pressure given'}), "
                     f"ρ1 = {state.density:.4f} kg/m³, κ = {kappa:.4f}", flows["fail_open_flow"], "kg/h")
     if inputs.bypass_kv is not None:
         flows["bypass_open_flow"] = valve_flow(inputs.bypass_kv, p_up / 1e3, p_down / 1e3, state.density, kappa, xt)

@@ -39,7 +39,6 @@ def _nps_value(text):
     return float(text)
 
 
-@lru_cache(maxsize=512)
 def pipe_inner_diameter(size, schedule="40", field="size"):
     """Inside diameter of a steel pipe of a nominal size and schedule.
 
@@ -69,6 +68,22 @@ def pipe_inner_diameter(size, schedule="40", field="size"):
     >>> round(pipe_inner_diameter("6 in", "40") * 1000, 2)
     154.08
     """
+    return pipe_dimensions(size, schedule, field)[0]
+
+
+@lru_cache(maxsize=512)
+def pipe_dimensions(size, schedule="40", field="size"):
+    """Inside diameter and wall thickness of a steel pipe, m, by nominal size and schedule.
+
+    References
+    ----------
+    ASME B36.10M dimension tables (through ``fluids.piping.nearest_pipe``).
+
+    Examples
+    --------
+    >>> [round(v * 1000, 2) for v in pipe_dimensions("DN200", "40")]
+    [202.74, 8.18]
+    """
     match = _DN.match(size) if isinstance(size, str) else None
     if match:
         dn = int(match.group(1))
@@ -87,14 +102,14 @@ def pipe_inner_diameter(size, schedule="40", field="size"):
         raise InputError(f"schedule '{schedule}' is not an ASME B36.10M schedule", field="schedule",
                          value=schedule, fix=f"use one of {', '.join(SCHEDULES)}")
     try:
-        found_nps, inner, _outer, _wall = nearest_pipe(NPS=nps, schedule=schedule)
+        found_nps, inner, _outer, wall = nearest_pipe(NPS=nps, schedule=schedule)
     except Exception:
         raise InputError(f"no ASME B36.10M pipe of size {size} in schedule {schedule}", field=field,
                          value=size, fix="choose another schedule or size") from None
     if abs(found_nps - nps) > 1e-9:
         raise InputError(f"'{size}' is not a size of schedule {schedule}", field=field, value=size,
                          fix="choose a standard nominal size")
-    return float(inner)
+    return float(inner), float(wall)
 
 
 def flow_area(inner_diameter):

@@ -165,6 +165,10 @@ def valve_case_rows(inputs, result):
                "choked": "yes" if result.value(f"choked_{name}") else "no"}
         if f"valve_travel_{name}" in result.values:
             row["travel, %"] = result.value(f"valve_travel_{name}")
+        if f"valve_noise_{name}" in result.values:
+            row["noise at 1 m, dB(A)"] = result.value(f"valve_noise_{name}")
+        if f"valve_outlet_mach_{name}" in result.values:
+            row["outlet Mach"] = result.value(f"valve_outlet_mach_{name}")
         rows.append(row)
     return rows
 
@@ -180,6 +184,72 @@ def _u_label(result, which):
     if f"turndown_u_{which}" in result.values:
         return f"{which} U {result.value(f'turndown_u_{which}'):.3g} kW/(m²·K)"
     return "UA as at design"
+
+
+def noise_chart(inputs, result, points=16):
+    """Valve noise at 1 m against flow (IEC 60534-8-3), the flow cases marked, with the limit line."""
+    from ..calcs.letdown_equipment import flow_cases, required_kv, sizing_kappa
+    from ..calcs.letdown_station import _noise_geometry
+    from ..equipment.noise import DEFAULT_NOISE_LIMIT, parse_sound_level, valve_noise
+    from ..steam import SteamState
+
+    cases = [(n, w) for n, w in flow_cases(inputs) if f"valve_noise_{n}" in result.values]
+    if not cases:
+        return None
+    limit = parse_sound_level(inputs.noise_limit) if inputs.noise_limit is not None else DEFAULT_NOISE_LIMIT
+    geometry = _noise_geometry(inputs)
+    inlet = result.states["valve_inlet_normal"]
+    outlet = SteamState.from_ph(inputs.outlet_pressure, inlet.enthalpy)
+    kappa = sizing_kappa(inlet)
+    fd = inputs.fd if inputs.fd is not None else 1.0
+    fl = inputs.fl if inputs.fl is not None else 0.9
+    flows = np.linspace(cases[0][1] * 0.8, cases[-1][1] * 1.1, points)
+    levels = [valve_noise(w, inlet, outlet, kappa, required_kv(inputs, inlet, kappa, w).kv, geometry[1], geometry[2],
+                          geometry[3], fd, fl) for w in flows]
+    fig = go.Figure()
+    fig.add_trace(go.Scatter(x=flows * 3600, y=levels, name="at the normal pressures",
+                             line=dict(color=_COLOURS["outlet"], width=2)))
+    fig.add_trace(go.Scatter(x=[w * 3600 for _, w in cases], y=[result.value(f"valve_noise_{n}") for n, _ in cases],
+                             mode="markers+text", text=[n for n, _ in cases], textposition="bottom right",
+                             name="flow cases (own pressures)", marker=dict(size=10, color=_COLOURS["process"])))
+    fig.add_trace(go.Scatter(x=[flows[0] * 3600, flows[-1] * 3600], y=[limit, limit], mode="lines",
+                             name=f"limit {limit:g} dB(A)", line=dict(color=_COLOURS["inlet"], dash="dash", width=2)))
+    fig.update_layout(title="Control valve noise at 1 m from the pipe (IEC 60534-8-3)", xaxis_title="steam flow, kg/h",
+                      yaxis_title="sound pressure level, dB(A)", height=420, margin=dict(l=60, r=20, t=50, b=50),
+                      legend=dict(orientation="h", y=-0.2))
+    return fig
+
+
+def letdown_sections(inputs, result):
+    """The let-down workbook's tables by heading: flow cases with noise, lines, relief device,
+    and the two-stage proposal when made."""
+    sections = {"Flow cases": valve_case_rows(inputs, result)}
+    lines = []
+    for key, label, size in (("inlet", "inlet line", inputs.inlet_size), ("outlet", "outlet line", inputs.outlet_size)):
+        if size is None:
+            continue
+        row = {"line": label, "size": size}
+        for name, heading, unit in (("velocity", "velocity", "m/s"), ("line_pressure_drop", "pressure drop", "bar"),
+                                    ("line_pressure_drop_per_100m", "per 100 m", "bar")):
+            if f"{key}_{name}" in result.values:
+                row[f"{heading}, {unit}"] = result.value(f"{key}_{name}")
+        lines.append(row)
+    if lines:
+        sections["Lines"] = lines
+    relief = [(k, result.values[k]) for k in (
+        "relief_design_flow", "relief_relieving_pressure", "relief_relieving_temperature",
+        "relief_required_area_direct_integration", "relief_required_area_steam_equation", "relief_required_area",
+        "relief_orifice", "relief_orifice_area", "relief_capacity_margin", "relief_inlet_loss_fraction",
+        "relief_reaction_force") if k in result.values]
+    if any(k == "relief_orifice" for k, _ in relief):
+        sections["Relief device (preliminary; the engineer of record and the maker's certified capacity govern)"] = [
+            {"quantity": v.label, "value": v.value, "unit": v.unit.replace("**2", "²")} for _, v in relief]
+    if "two_stage_intermediate_pressure" in result.values:
+        sections["Noise: two-stage let-down proposal"] = [
+            {"stage": stage, "Kv, m³/h": result.value(f"two_stage_kv_{key}"),
+             "noise at 1 m, dB(A)": result.value(f"two_stage_noise_{key}")}
+            for stage, key in (("first", "first"), ("second", "second"))]
+    return sections
 
 
 def stall_chart(inputs, result, points=60):
@@ -239,14 +309,16 @@ def turndown_rows(inputs, result):
     return rows
 
 
-CHARTS = {"letdown": lambda inputs, result: [letdown_chart(letdown_states(inputs, result)),
-                                             valve_chart(inputs, result)],
+CHARTS = {"letdown": lambda inputs, result: [f for f in (letdown_chart(letdown_states(inputs, result)),
+                                                          valve_chart(inputs, result), noise_chart(inputs, result))
+                                             if f is not None],
           "flash": flash_chart, "exchanger": stall_chart}
-TABLES = {"flash": flash_stage_rows, "letdown": valve_case_rows, "exchanger": turndown_rows}
+#: A kind's table: rows (a list of dicts), or tables by heading (a dict of heading -> rows).
+TABLES = {"flash": flash_stage_rows, "letdown": letdown_sections, "exchanger": turndown_rows}
 
 
 def table_for(kind, inputs, result):
-    """Rows of a calculation kind's table (e.g. the flash cascade), or None."""
+    """Rows of a calculation kind's table (e.g. the flash cascade), tables by heading, or None."""
     maker = TABLES.get(kind)
     return None if maker is None else maker(inputs, result)
 

@@ -17,7 +17,7 @@ from pathlib import Path
 import ipywidgets as widgets
 
 from ..calcs import get_calculation
-from ..display import display_record
+from ..display import display_record, pressure_basis
 from ..errors import SteamcalcError
 from ..record import write_record
 from ..report import RENDERERS, format_number, format_unit, render_markdown
@@ -185,7 +185,8 @@ class Workbook:
         colour = _STATUS_COLOURS[r["status"]]
         rows = "".join(
             f"<tr><td>{html.escape(v.get('label', k))}</td><td style='text-align:right'>"
-            f"<b>{html.escape(format_number(v['value']))}</b></td><td>{html.escape(format_unit(v.get('unit', '')))}"
+            f"<b>{html.escape(format_number(v['value']))}</b></td><td>"
+            f"{html.escape(format_unit(v.get('unit', ''), pressure_basis(r, 'results', k)))}"
             f"</td></tr>" for k, v in r["results"].items())
         checks = "".join(
             f"<tr><td style='color:{_STATUS_COLOURS[c['status']]};font-weight:bold'>{c['status'].upper()}</td>"
@@ -204,15 +205,15 @@ class Workbook:
             for figure in figures)
 
     def _draw_table(self):
-        rows = table_for(self.case.kind, self.inputs, self.result)
-        if not rows:
+        tables = table_for(self.case.kind, self.inputs, self.result)
+        if not tables:
             self._table.value = ""
             return
-        head = "".join(f"<th style='padding:2px 10px'>{html.escape(str(k))}</th>" for k in rows[0])
-        body = "".join("<tr>" + "".join(
-            f"<td style='text-align:right;padding:2px 10px'>{html.escape(format_number(v))}</td>" for v in row.values())
-            + "</tr>" for row in rows)
-        self._table.value = f"<table><tr>{head}</tr>{body}</table>"
+        if not isinstance(tables, dict):
+            self._table.value = _html_table(tables)
+            return
+        self._table.value = "".join(f"<h4>{html.escape(heading)}</h4>{_html_table(rows)}"
+                                    for heading, rows in tables.items() if rows)
 
     def _draw_preview(self):
         self._preview.outputs = ({"output_type": "display_data", "metadata": {},
@@ -254,7 +255,7 @@ class Workbook:
         lines = [f"{r['id']} rev {r['revision']} - {r['title']}", f"overall status: {r['status'].upper()}", ""]
         width = max(len(v.get("label", k)) for k, v in r["results"].items())
         for key, v in r["results"].items():
-            unit = format_unit(v.get("unit", ""))
+            unit = format_unit(v.get("unit", ""), pressure_basis(r, "results", key))
             lines.append(f"  {v.get('label', key):<{width}}  {format_number(v['value']):>10} {unit}")
         lines.append("")
         for c in r["checks"]:
@@ -290,6 +291,14 @@ class Workbook:
         text = self.save()
         colour = "#a3201b" if text.startswith("not saved") else "#2f6b3a"
         self._save_status.value = f"<span style='color:{colour}'>{html.escape(text)}</span>"
+
+
+def _html_table(rows):
+    head = "".join(f"<th style='padding:2px 10px'>{html.escape(str(k))}</th>" for k in rows[0])
+    body = "".join("<tr>" + "".join(
+        f"<td style='text-align:right;padding:2px 10px'>{html.escape(format_number(v))}</td>" for v in row.values())
+        + "</tr>" for row in rows)
+    return f"<table><tr>{head}</tr>{body}</table>"
 
 
 class UnavailableWorkbook:
