@@ -22,7 +22,7 @@ import numpy as np
 from .calcs.base import input_fields
 from .errors import CaseFileError, InputError, SteamcalcError, UnitError
 from .quantities import RECORD_UNITS, from_record_unit, parse_quantity, to_record_unit
-from .calcs.balance import without_balance_checks
+from .calcs.base import numbers_only
 from .engines import FAST_ENGINE, engine_description, using_engine
 
 DEFAULT_SAMPLES = 2000
@@ -216,7 +216,7 @@ def run_uncertainty(calc, inputs, site, tolerances, samples=DEFAULT_SAMPLES, see
     # constructor (and its input checks in __post_init__) still runs for every sample.
     unchanged = {f.name: getattr(inputs, f.name) for f in dataclasses.fields(inputs) if f.init}
     make = type(inputs)
-    with using_engine(engine), without_balance_checks():
+    with using_engine(engine), numbers_only():
         for i, row in enumerate(rows):
             try:
                 table[i] = _sample_values(calc.calculate(make(**{**unchanged, **row}), site), keys)

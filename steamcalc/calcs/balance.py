@@ -8,32 +8,16 @@ again. A wrong flow, a wrong state or a bug in either property engine shows as a
 
 from __future__ import annotations
 
-import contextlib
-from contextvars import ContextVar
 from dataclasses import dataclass
 
 from ..engines import other_engine
+from .base import full_record_wanted
 
 #: Residual, as a fraction of the heat transferred in the balance, above which the check
 #: fails. Two IF97 implementations agree to about 1e-8 in h; the iapws backward T(p, h)
 #: equations are consistent to 10-25 mK (IAPWS R7-97, tables 6, 21), which is ~1e-4 of a
 #: typical heat transfer; 1e-3 leaves room for that and catches a flow wrong by more than 0.1 %.
 RELATIVE_TOLERANCE = 1e-3
-
-#: Whether balances are re-summed in this context: Monte Carlo samples, which keep only numbers,
-#: skip them (each would cost several evaluations on the slower engine).
-_RESUMMING = ContextVar("steamcalc_resum_balances", default=True)
-
-
-@contextlib.contextmanager
-def without_balance_checks():
-    """Within this block, in this context only, the independent balance checks are not made."""
-    token = _RESUMMING.set(False)
-    try:
-        yield
-    finally:
-        _RESUMMING.reset(token)
-
 
 @dataclass(frozen=True)
 class Stream:
@@ -104,7 +88,7 @@ def energy_balance_residual(inflows, outflows, heat_transferred, heat_in=0.0):
 
 def check_energy_balance(result, name, inflows, outflows, heat_transferred, heat_in=0.0):
     """Add the check ``name``: the balance re-summed with the second engine's enthalpies."""
-    if not _RESUMMING.get():
+    if not full_record_wanted():   # a Monte Carlo sample keeps only numbers
         return None
     residual = energy_balance_residual(inflows, outflows, heat_transferred, heat_in)
     streams = ", ".join(s.name for s in (*inflows, *outflows))

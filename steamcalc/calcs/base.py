@@ -7,12 +7,34 @@ kind alike; its ``calculate(inputs, site)`` returns a :class:`Result`.
 
 from __future__ import annotations
 
+import contextlib
+from contextvars import ContextVar
+
 import dataclasses
 import math
 from dataclasses import dataclass, field
 
 from ..errors import InputError
 from ..quantities import RECORD_UNITS, from_record_unit, to_record_unit
+
+#: Whether this context wants the full record (steps, checks and the equipment sections that feed
+#: no banded result) or numbers only: Monte Carlo samples keep only the banded results.
+_NUMBERS_ONLY = ContextVar("steamcalc_numbers_only", default=False)
+
+
+@contextlib.contextmanager
+def numbers_only():
+    """Within this block, in this context only, calculations skip what feeds no banded result."""
+    token = _NUMBERS_ONLY.set(True)
+    try:
+        yield
+    finally:
+        _NUMBERS_ONLY.reset(token)
+
+
+def full_record_wanted():
+    """False inside :func:`numbers_only` (a Monte Carlo sample), True otherwise."""
+    return not _NUMBERS_ONLY.get()
 
 #: Kinds an input field can have. ``fraction`` is a plain number from 0 to 1, ``number`` a
 #: plain positive number, ``flag`` true or false, ``nominal_size`` a pipe size such as "DN80",

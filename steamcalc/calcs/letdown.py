@@ -16,7 +16,7 @@ from ..errors import InputError, OutOfRangeError
 from ..steam import REFERENCE as IF97_REFERENCE
 from ..steam import CRITICAL_PRESSURE, CRITICAL_TEMPERATURE, SteamState, saturation_temperature
 from .balance import Stream, check_energy_balance
-from .base import Result, bar_a, check_fields, deg_c, input_field, kj_kg
+from .base import Result, bar_a, check_fields, deg_c, full_record_wanted, input_field, kj_kg
 from .letdown_equipment import line_section, valve_section
 from .letdown_relief import relief_section
 from .letdown_station import downstream_section, line_loss_section, noise_section
@@ -515,11 +515,12 @@ def calculate(inputs, site):
 
     result.states.update(inlet=inlet, throttled=throttled, outlet=outlet)
     valve_section(inputs, inlet, result)
-    line_section(inputs, inlet, throttled, outlet, result)
-    line_loss_section(inputs, result)
-    noise_section(inputs, result)
-    relief_section(inputs, inlet, site, result)
-    downstream_section(inputs, result)
+    if full_record_wanted():   # a Monte Carlo sample needs none of these for its banded results
+        line_section(inputs, inlet, throttled, outlet, result)
+        line_loss_section(inputs, result)
+        noise_section(inputs, result)
+        relief_section(inputs, inlet, site, result)
+        downstream_section(inputs, result)
     power_section(inputs, inlet, throttled, site, result)
 
     if outlet.phase == "wet":
