@@ -156,7 +156,7 @@ def test_workbook_in_browser(lab, browser, notebook):
         bands.scroll_into_view_if_needed()
         bands.click()
         page.wait_for_function(
-            f"document.querySelector('{PANEL} .steamcalc-bands').innerText.includes('5th-95th percentile')",
+            f"document.querySelector('{PANEL} .steamcalc-bands').innerText.includes('coverage interval')",
             timeout=60_000)
         page.wait_for_selector(f"{PANEL} .steamcalc-bands ~ * .js-plotly-plot, {PANEL} .js-plotly-plot", timeout=30_000)
         page.locator(f"{PANEL} .steamcalc-bands").first.screenshot(path=str(shots / "2b-bands.png"))

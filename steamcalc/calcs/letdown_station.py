@@ -180,7 +180,10 @@ def downstream_section(inputs, result):
         throttled = result.states.get(f"valve_outlet_{name}") or SteamState.from_ph(
             inputs.outlet_pressure, result.states[f"valve_inlet_{name}"].enthalpy)
         temperatures[name] = throttled.temperature
-    worst = max(temperatures, key=temperatures.get)
+    # Cases within 1 mK are the same temperature: the first of them is named, so the choice does
+    # not turn on the last digits of one property engine or the other.
+    hottest_t = max(temperatures.values())
+    worst = next(name for name, t in temperatures.items() if t >= hottest_t - 1e-3)
     hottest = temperatures[worst]
     result.add("spray_failure_temperature", "Throttled temperature with the spray failed (hottest flow case)",
                hottest - 273.15, "degC")

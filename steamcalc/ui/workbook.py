@@ -166,12 +166,13 @@ class Workbook:
             return None
         rows = "".join(
             f"<tr><td>{html.escape(k)}</td><td style='text-align:right'>{html.escape(format_number(b['nominal']))}</td>"
-            f"<td style='text-align:right'>{html.escape(format_number(b['p05']))}</td>"
-            f"<td style='text-align:right'>{html.escape(format_number(b['p95']))}</td>"
-            f"<td>{html.escape(format_unit(b['unit']))}</td></tr>" for k, b in u["bands"].items())
+            f"<td style='text-align:right'>{html.escape(format_number(b.get('low', b['p05'])))}</td>"
+            f"<td style='text-align:right'>{html.escape(format_number(b.get('high', b['p95'])))}</td>"
+            f"<td>{html.escape(format_unit(b['unit'], pressure_basis(self.record, 'results', k)))}</td></tr>" for k, b in u["bands"].items())
         lines = "".join(f"<li>{html.escape(line)}</li>" for line in u["summary"])
-        self._bands.value = (f"<ul>{lines}</ul><table><tr><th>result</th><th>nominal</th><th>5th pct</th>"
-                             f"<th>95th pct</th><th>unit</th></tr>{rows}</table>"
+        coverage = f"{100 * u.get('coverage', 0.9):g} % coverage"
+        self._bands.value = (f"<ul>{lines}</ul><table><tr><th>result</th><th>nominal</th><th>low end, {coverage}</th>"
+                             f"<th>high end, {coverage}</th><th>unit</th></tr>{rows}</table>"
                              f"<div><small>{u['samples']} samples, seed {u['seed']}, {u['valid_samples']} valid</small></div>")
         figure = tornado_chart(u, self.calc)
         self._tornado.outputs = ({"output_type": "display_data", "metadata": {},
