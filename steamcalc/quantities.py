@@ -86,6 +86,13 @@ _EXAMPLES = {
 _NUMBER = r"[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?"
 _SPLIT = re.compile(rf"^\s*({_NUMBER})\s*(.*?)\s*$")
 
+#: Longest quantity string read; no real one comes near it.
+MAX_QUANTITY_TEXT = 100
+# A unit is names joined by '*', '/', '·' or spaces, with small whole exponents and brackets:
+# enough for 'kJ/(kg*K)' or 'm^3/h', and nothing that pint would evaluate as arithmetic.
+_UNIT_TOKEN = re.compile(r"\s*(?:(?P<name>[A-Za-z_°µ%][A-Za-z0-9_°µ]*)|(?P<power>(?:\^|\*\*)\s*-?[1-4](?![0-9]))"
+                         r"|(?P<op>[*/·])|(?P<open>\()|(?P<close>\)))")
+
 # Pressure units and their size in Pa. Each must be followed by its basis.
 _PRESSURE_UNITS = {"bar": 1e5, "mbar": 100.0, "Pa": 1.0, "kPa": 1e3, "MPa": 1e6, "psi": 6894.757293168361}
 # Basis written as a bare letter straight after the unit is accepted where the trade writes it so.
@@ -176,11 +183,11 @@ def parse_pressure(text, field, atmospheric_pressure=STANDARD_ATMOSPHERE):
             "a pressure needs a unit and its basis", field=field, value=text,
             fix=f"write it as a string, e.g. {_EXAMPLES['pressure']}",
         )
-    match = _PRESSURE.match(text)
+    match = _PRESSURE.match(text) if len(text) <= MAX_QUANTITY_TEXT else None
     if match is None:
-        split = _SPLIT.match(text)
+        split = _SPLIT.match(text) if len(text) <= MAX_QUANTITY_TEXT else None
         unit = split.group(2) if split else ""
-        if split and _is_dimension(unit, "[pressure]"):
+        if split and is_plain_unit(unit) and _is_dimension(unit, "[pressure]"):
             raise UnitError(
                 f"pressure unit '{unit}' is not one steamcalc reads with a basis",
                 field=field, value=text,
@@ -201,7 +208,7 @@ def parse_pressure(text, field, atmospheric_pressure=STANDARD_ATMOSPHERE):
             fix=f"write '{match.group('number')} {unit}(a)' for absolute or "
             f"'{match.group('number')} {unit}(g)' for gauge",
         )
-    value = float(match.group("number")) * _PRESSURE_UNITS[unit]
+    value = _finite_number(match.group("number"), text, field) * _PRESSURE_UNITS[unit]
     if basis.lower() == "g":
         value += atmospheric_pressure
     if value <= 0.0:
@@ -210,6 +217,94 @@ def parse_pressure(text, field, atmospheric_pressure=STANDARD_ATMOSPHERE):
             field=field, value=text, fix="a vacuum is given as an absolute pressure above zero",
         )
     return value
+
+
+def is_plain_unit(unit):
+    """True for a unit written as names, '*', '/', brackets and small whole exponents only.
+
+    Such a unit is read by pint without evaluating any arithmetic: no numbers but exponents
+    from 1 to 4, no chained powers.
+
+    Examples
+    --------
+    >>> is_plain_unit("kJ/(kg*K)"), is_plain_unit("m^3/h"), is_plain_unit("")
+    (True, True, True)
+    >>> is_plain_unit("t/h*9**9**9"), is_plain_unit("h*1e6")
+    (False, False)
+    """
+    if not isinstance(unit, str) or len(unit) > MAX_QUANTITY_TEXT:
+        return False
+    position, depth, previous = 0, 0, "start"
+    while position < len(unit):
+        if unit[position:].strip() == "":
+            break
+        match = _UNIT_TOKEN.match(unit, position)
+        if match is None:
+            return False
+        kind = match.lastgroup
+        if kind == "power" and previous not in ("name", "close"):
+            return False
+        if kind == "open":
+            depth += 1
+            if depth > 3:
+                return False
+        elif kind == "close":
+            depth -= 1
+            if depth < 0 or previous in ("op", "open", "start"):
+                return False
+        elif kind == "op" and previous in ("op", "open", "start"):
+            return False
+        position, previous = match.end(), kind
+    return depth == 0 and previous not in ("op", "open")
+
+
+def _finite_number(number_text, text, field):
+    value = float(number_text)
+    if not math.isfinite(value):
+        raise UnitError(f"'{text}' is not a finite number", field=field, value=text,
+                        fix="give an ordinary number, e.g. 4.5 or 1.2e3")
+    return value
+
+
+def _literal_split(text, field, example):
+    # The one place a quantity string is split: a number, then a plain unit; no arithmetic.
+    if len(text) > MAX_QUANTITY_TEXT:
+        raise UnitError(f"the text is {len(text)} characters long; a quantity is a number and a unit",
+                        field=field, value=text[:40] + "...", fix=f"e.g. {example}")
+    split = _SPLIT.match(text)
+    if split is None:
+        raise UnitError(f"'{text}' is not a number followed by a unit", field=field, value=text,
+                        fix=f"e.g. {example}")
+    number, unit = _finite_number(split.group(1), text, field), split.group(2)
+    if unit and not is_plain_unit(unit):
+        raise UnitError(f"'{text}' is not a number followed by a unit (no arithmetic or powers of numbers)",
+                        field=field, value=text, fix=f"write the value worked out, e.g. {example}")
+    return number, unit, split.group(1)
+
+
+def parse_amount(text, field, unit, example):
+    """A number followed by a unit, converted to ``unit`` (for site data such as hours).
+
+    Examples
+    --------
+    >>> parse_amount("0.202 kg/kWh", "fuel_emission_factor", "kg/MWh", "'202 kg/MWh'")
+    202.0
+    """
+    if not isinstance(text, str):
+        raise UnitError("needs a number and a unit, as text", field=field, value=text, fix=f"e.g. {example}")
+    number, unit_text, _ = _literal_split(text, field, example)
+    if not unit_text:
+        raise UnitError(f"'{text}' has no unit", field=field, value=text, fix=f"e.g. {example}")
+    try:
+        value = Q_(number, unit_text).to(unit).magnitude
+    except pint.DimensionalityError:
+        raise UnitError(f"'{text}' is not in units of {unit}", field=field, value=text,
+                        fix=f"e.g. {example}") from None
+    except Exception:
+        raise UnitError(f"unit '{unit_text}' is not known", field=field, value=text, fix=f"e.g. {example}") from None
+    if not math.isfinite(value):
+        raise UnitError(f"'{text}' is not a finite number", field=field, value=text, fix=f"e.g. {example}")
+    return float(value)
 
 
 def _is_dimension(unit_text, dimension):
@@ -259,17 +354,13 @@ def parse_quantity(text, field, kind):
             fix=f"write it as a string with its unit, e.g. {example}",
         )
     text = text.replace("°C", "degC").replace("°F", "degF").replace("℃", "degC")
-    split = _SPLIT.match(text)
-    if split is None:
-        raise UnitError(f"'{text}' is not a number followed by a unit", field=field, value=text,
-                        fix=f"e.g. {example}")
-    number, unit = float(split.group(1)), split.group(2)
+    number, unit, number_text = _literal_split(text, field, example)
     if not unit:
         raise UnitError(f"'{text}' has no unit", field=field, value=text, fix=f"e.g. {example}")
     if kind == "temperature_difference" and unit in _OFFSET_UNITS:
         raise UnitError(
             f"'{text}' is a temperature, but {field} is a temperature difference",
-            field=field, value=text, fix=f"write '{split.group(1)} K' or '{split.group(1)} delta_degC'",
+            field=field, value=text, fix=f"write '{number_text} K' or '{number_text} delta_degC'",
         )
     try:
         quantity = Q_(number, unit)
@@ -283,6 +374,8 @@ def parse_quantity(text, field, kind):
             f"'{text}' is not a {kind.replace('_', ' ')}", field=field, value=text,
             fix=f"give a {kind.replace('_', ' ')}, e.g. {example}",
         ) from None
+    if not math.isfinite(value):
+        raise UnitError(f"'{text}' is not a finite number", field=field, value=text, fix=f"e.g. {example}")
     if kind == "temperature" and value <= 0.0:
         raise UnitError(f"'{text}' is at or below absolute zero", field=field, value=text)
     return float(value)
@@ -311,6 +404,14 @@ def from_record_unit(value, unit, kind):
     >>> from_record_unit(230.0, "degC", "temperature")
     503.15
     """
+    if isinstance(value, bool) or not isinstance(value, (int, float)) or not math.isfinite(value):
+        raise UnitError("a record value must be a finite number", field=kind, value=value)
     if kind == "dimensionless":
         return float(value)
-    return float(Q_(value, unit).to(SI_UNITS[kind]).magnitude)
+    if not is_plain_unit(unit):
+        raise UnitError("a record unit must be a plain unit name", field=kind, value=unit)
+    try:
+        return float(Q_(value, unit).to(SI_UNITS[kind]).magnitude)
+    except Exception:
+        raise UnitError(f"the record unit '{unit}' is not a unit of {kind.replace('_', ' ')}", field=kind,
+                        value=unit) from None
