@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import argparse
 import os
+import re
 import sys
 from pathlib import Path
 
@@ -16,6 +17,26 @@ from . import __version__
 from .errors import SteamcalcError
 
 EXIT_OK, EXIT_FAILED, EXIT_BAD_INPUT = 0, 1, 2
+EXIT_INTERRUPTED = 130  # 128 + SIGINT, as shells report a Ctrl-C
+
+# Control characters (C0 but newline and tab, DEL, C1) and the bidirectional overrides: text from a
+# record or a case file must not move the cursor, recolour the terminal or reorder what it shows.
+_CONTROL = re.compile("[\x00-\x08\x0b-\x1f\x7f-\x9f\u202a-\u202e\u2066-\u2069]")
+
+
+def plain_text(text):
+    """Text for the terminal: control characters and escape sequences removed.
+
+    Examples
+    --------
+    >>> plain_text("\x1b[32mVERIFIED\x1b[0m ok")
+    '[32mVERIFIED[0m ok'
+    """
+    return _CONTROL.sub("", str(text))
+
+
+def _say(text="", file=None):
+    print(plain_text(text), file=file or sys.stdout)
 
 
 class _Parser(argparse.ArgumentParser):
@@ -37,6 +58,8 @@ def _parser():
     run.add_argument("--notebook", action="store_true", help="also save the executed workbook beside each record")
     run.add_argument("--pdf", action="store_true", help="also print each record to PDF (needs Chromium)")
     run.add_argument("--quiet", action="store_true", help="no progress bar")
+    run.add_argument("--force", action="store_true",
+                     help="replace report, index and companion files of the records' names that steamcalc did not write")
 
     verify = sub.add_parser("verify", help="check a record's digest and recompute its results")
     verify.add_argument("records", nargs="+", metavar="RECORD.json")
@@ -45,6 +68,7 @@ def _parser():
     diff.add_argument("old", metavar="OLD.json")
     diff.add_argument("new", metavar="NEW.json")
     diff.add_argument("--html", metavar="FILE.html", help="also write the comparison as an HTML page")
+    diff.add_argument("--force", action="store_true", help="replace an existing FILE.html that steamcalc did not write")
 
     sign = sub.add_parser("sign", help="the checker's sign-off, after a passing verification")
     sign.add_argument("record", metavar="RECORD.json")
@@ -60,30 +84,46 @@ def _run(args):
     from .batch import find_case_files, run_cases, write_index
 
     paths = find_case_files(args.cases)
-    outcomes = run_cases(paths, args.site, args.out, progress=not args.quiet and len(paths) > 1)
+    if args.out and Path(args.out).exists() and not Path(args.out).is_dir():
+        raise SteamcalcError("--out names a file, not a folder", source=args.out,
+                             fix="give --out a folder for the records (it is created if absent)")
+    outcomes = run_cases(paths, args.site, args.out, progress=not args.quiet and len(paths) > 1, force=args.force)
     worst = EXIT_OK
     failures = [o for o in outcomes if not o.ok]
     for outcome in outcomes:
         if not outcome.ok:
             continue
         note = "written" if outcome.write_status == "written" else "unchanged (same content as the existing record, kept)"
-        print(f"{outcome.record_id} rev {outcome.revision}: {outcome.status.upper()} - {note}")
+        _say(f"{outcome.record_id} rev {outcome.revision}: {outcome.status.upper()} - {note}")
         for p in outcome.paths:
-            print(f"  {p}")
+            _say(f"  {p}")
         for check in outcome.checks:
-            print(f"  {check['status']}: {check['name']}: {check['detail']}")
+            _say(f"  {check['status']}: {check['name']}: {check['detail']}")
         if outcome.status == "fail" and worst == EXIT_OK:
             worst = EXIT_FAILED
         worst = max(worst, _companions(args, outcome))
     if len(paths) > 1:
-        for folder in sorted({o.out_dir for o in outcomes if o.ok}):
-            html_index, csv_index = write_index(folder, failures)
-            print(f"index: {html_index} and {csv_index}")
-    if failures:
-        print(f"\n{len(failures)} of {len(outcomes)} case(s) not run:", file=sys.stderr)
-        for outcome in failures:
-            print(f"error: {outcome.error}", file=sys.stderr)
+        # The index is written even when cases failed or the batch was stopped: it lists what is there.
+        for folder in sorted({o.out_dir for o in outcomes if o.out_dir}):
+            try:
+                html_index, csv_index = write_index(folder, failures, force=args.force)
+            except SteamcalcError as exc:
+                _say(f"error: no index written: {exc}", file=sys.stderr)
+                worst = EXIT_BAD_INPUT
+                continue
+            _say(f"index: {html_index} and {csv_index}")
+    stopped = [o for o in failures if o.interrupted]
+    failed = [o for o in failures if not o.interrupted]
+    if failed:
+        _say(f"\n{len(failed)} of {len(outcomes)} case(s) not run:", file=sys.stderr)
+        for outcome in failed:
+            _say(f"error: {outcome.error}", file=sys.stderr)
         worst = EXIT_BAD_INPUT
+    if stopped:
+        _say(f"\nstopped (Ctrl-C): {len(stopped)} of {len(outcomes)} case(s) did not run:", file=sys.stderr)
+        for outcome in stopped:
+            _say(f"  not run: {outcome.path}", file=sys.stderr)
+        return EXIT_INTERRUPTED
     return worst
 
 
@@ -96,11 +136,11 @@ def _companions(args, outcome):
     json_path = Path(outcome.paths[0])
     try:
         if args.notebook:
-            print(f"  {run_notebook(load_case(outcome.path), json_path.parent, json_path.stem)}")
+            _say(f"  {run_notebook(load_case(outcome.path), json_path.parent, json_path.stem, force=args.force)}")
         if args.pdf:
-            print(f"  {write_pdf(json_path.with_suffix('.html'))}")
+            _say(f"  {write_pdf(json_path.with_suffix('.html'), force=args.force)}")
     except SteamcalcError as exc:
-        print(f"error: {exc}", file=sys.stderr)
+        _say(f"error: {exc}", file=sys.stderr)
         return EXIT_BAD_INPUT
     return EXIT_OK
 
@@ -111,25 +151,33 @@ def _verify(args):
 
     worst = EXIT_OK
     for raw in args.records:
+        # Each file is verified and reported on its own: a bad one never hides the others.
         try:
             record = load_record(raw)
+            outcome = verify_record(record)
         except SteamcalcError as exc:
-            print(f"error: {exc}", file=sys.stderr)
+            _say(f"{raw}: NOT VERIFIED - {exc}", file=sys.stderr)
             worst = EXIT_BAD_INPUT
             continue
-        outcome = verify_record(record)
-        print(f"{raw}: {record['id']} rev {record['revision']}")
-        print(f"  integrity: {'intact' if outcome.digest_ok and outcome.content_digest_ok else 'EDITED - digest does not match'}")
+        except Exception as exc:  # a bug: say so for this file and go on to the next
+            if os.environ.get("STEAMCALC_DEBUG"):
+                raise
+            _say(f"{raw}: NOT VERIFIED - unexpected error {type(exc).__name__}: {exc}. Please report it.",
+                 file=sys.stderr)
+            worst = EXIT_BAD_INPUT
+            continue
+        _say(f"{raw}: {record['id']} rev {record['revision']}")
+        _say(f"  integrity: {'intact' if outcome.digest_ok and outcome.content_digest_ok else 'EDITED - digest does not match'}")
         if outcome.error:
-            print(f"  reproduction: NOT POSSIBLE - {outcome.error}")
+            _say(f"  reproduction: NOT POSSIBLE - {outcome.error}")
         else:
-            print(format_comparisons(outcome.comparisons))
+            _say(format_comparisons(outcome.comparisons))
             for change in outcome.check_changes:
-                print(f"  check changed: {change}")
-            print(f"  reproduction: {'reproduced' if outcome.reproduced else 'NOT REPRODUCED'}")
+                _say(f"  check changed: {change}")
+            _say(f"  reproduction: {'reproduced' if outcome.reproduced else 'NOT REPRODUCED'}")
         for name, (then, now) in outcome.version_changes.items():
-            print(f"  version: {name} {then} in the record, {now} here")
-        print(f"  verdict: {'VERIFIED' if outcome.ok else 'FAILED'}")
+            _say(f"  version: {name} {then} in the record, {now} here")
+        _say(f"  verdict: {'VERIFIED' if outcome.ok else 'FAILED'}")
         if not outcome.ok and worst != EXIT_BAD_INPUT:
             worst = EXIT_FAILED
     return worst
@@ -162,21 +210,39 @@ def _diff(args):
     from .record import load_record
     from .signoff import diff_records
 
+    if args.html:
+        _check_diff_target(args)
     old, new = load_record(args.old), load_record(args.new)
     rows = diff_records(old, new)
-    print(f"{args.old} ({old['id']} rev {old['revision']}) -> {args.new} ({new['id']} rev {new['revision']})")
+    _say(f"{args.old} ({old['id']} rev {old['revision']}) -> {args.new} ({new['id']} rev {new['revision']})")
     if not rows:
-        print("  no differences in inputs, assumptions, results or checks")
+        _say("  no differences in inputs, assumptions, results or checks")
     for row in rows:
         change = row["change"]
         change = f"{change:+.6g}" if isinstance(change, float) else change
-        print(f"  [{row['section']}] {row['key']}: {_cell(row['old'])} -> {_cell(row['new'])} {row['unit']}  ({change})")
+        _say(f"  [{row['section']}] {row['key']}: {_cell(row['old'])} -> {_cell(row['new'])} {row['unit']}  ({change})")
     if args.html:
         from .record import write_text_atomic
         from .report import render_diff_html
         write_text_atomic(args.html, render_diff_html(old, new, rows))
-        print(f"  written: {args.html}")
+        _say(f"  written: {args.html}")
     return EXIT_OK
+
+
+def _check_diff_target(args):
+    from .issuing import is_own_output
+
+    target = Path(args.html)
+    if target.exists() and not target.is_file():
+        raise SteamcalcError("--html names a folder or device, not a file", source=args.html,
+                             fix="give --html a file name such as changes.html")
+    for record in (args.old, args.new):
+        if Path(record).exists() and target.exists() and os.path.samefile(record, target):
+            raise SteamcalcError("--html names one of the records being compared", source=args.html,
+                                 fix="give --html a new file name such as changes.html")
+    if target.exists() and not args.force and (target.suffix == ".json" or not is_own_output(target, ".html")):
+        raise SteamcalcError("a file of this name exists and is not a comparison steamcalc wrote", source=args.html,
+                             fix="give --html a new file name (or --force to replace it)")
 
 
 def _sign(args):
@@ -187,11 +253,11 @@ def _sign(args):
     try:
         signed = sign_record(args.record, record, args.by)
     except SteamcalcError as exc:
-        print(f"refused: {exc}", file=sys.stderr)
+        _say(f"refused: {exc}", file=sys.stderr)
         return EXIT_FAILED if exc.field != "--by" else EXIT_BAD_INPUT
     path = Path(args.record)
-    print(f"{signed['id']} rev {signed['revision']}: signed by {signed['checked_by']} on {signed['signoff']['date']}")
-    print(f"  {path} (new digest {signed['digest'][:23]}...), with its HTML and Markdown")
+    _say(f"{signed['id']} rev {signed['revision']}: signed by {signed['checked_by']} on {signed['signoff']['date']}")
+    _say(f"  {path} (new digest {signed['digest'][:23]}...), with its HTML and Markdown")
     return EXIT_OK
 
 
@@ -199,10 +265,10 @@ def _new_site(args):
     from .newsite import new_site
 
     files = new_site(args.folder, args.template)
-    print(f"new site folder {args.folder}: {len(files)} files")
+    _say(f"new site folder {args.folder}: {len(files)} files")
     for f in files:
-        print(f"  {f}")
-    print("next: edit site.toml (name, elevation, headers, prices) and the cases, then "
+        _say(f"  {f}")
+    _say("next: edit site.toml (name, elevation, headers, prices) and the cases, then "
           f"`steamcalc run {args.folder}/cases`")
     return EXIT_OK
 
@@ -216,14 +282,22 @@ def main(argv=None):
     try:
         return _COMMANDS[args.command](args)
     except SteamcalcError as exc:
-        print(f"error: {exc}", file=sys.stderr)
+        _say(f"error: {exc}", file=sys.stderr)
         return EXIT_BAD_INPUT
     except KeyboardInterrupt:
-        return 130
+        return EXIT_INTERRUPTED
+    except BrokenPipeError:
+        # The reader went away (`steamcalc diff ... | head`): stop quietly, as other tools do.
+        try:
+            devnull = os.open(os.devnull, os.O_WRONLY)
+            os.dup2(devnull, sys.stdout.fileno())
+        except (OSError, ValueError):
+            pass
+        return EXIT_FAILED
     except Exception as exc:  # a bug, not bad input: say so briefly, full trace on request
         if os.environ.get("STEAMCALC_DEBUG"):
             raise
-        print(f"internal error: {type(exc).__name__}: {exc}. Please report it; set STEAMCALC_DEBUG=1 "
+        _say(f"internal error: {type(exc).__name__}: {exc}. Please report it; set STEAMCALC_DEBUG=1 "
               "for the full trace.", file=sys.stderr)
         return EXIT_BAD_INPUT
 
