@@ -3,11 +3,13 @@
 from __future__ import annotations
 
 import json
+import os
 import shutil
 import tempfile
 from pathlib import Path
 
 from .errors import SteamcalcError
+from .issuing import folder_mode
 
 
 def default_template():
@@ -45,6 +47,8 @@ def new_site(destination, template=None):
     destination.parent.mkdir(parents=True, exist_ok=True)
     staging = Path(tempfile.mkdtemp(prefix=f".{destination.name}.", dir=destination.parent))
     try:
+        # mkdtemp makes a private (0700) folder; the new site is shared like any folder the user makes.
+        os.chmod(staging, folder_mode())
         shutil.copy2(template / "site.toml", staging / "site.toml")
         if (template / "cases").is_dir():
             shutil.copytree(template / "cases", staging / "cases")
