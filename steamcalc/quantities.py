@@ -66,6 +66,30 @@ RECORD_UNITS = {
     "dimensionless": "",
 }
 
+#: Stated bounds of a quantity given as input, in the SI unit of its kind: ``(smallest, largest)``
+#: magnitude of a value that is not zero. They are far outside any steam plant (0.0036 kg/h to
+#: 36 000 t/h of flow, say) and only stop a slip of the exponent from reaching a calculation; the
+#: calculations and IAPWS-IF97 apply their own, tighter ranges.
+QUANTITY_BOUNDS = {
+    "pressure_difference": (1e-3, 1e9),
+    "temperature_difference": (1e-6, 1e3),
+    "mass_flow": (1e-6, 1e4),
+    "specific_enthalpy": (1e-3, 1e8),
+    "specific_entropy": (1e-6, 1e6),
+    "power": (1e-3, 1e10),
+    "length": (1e-6, 1e5),
+    "velocity": (1e-6, 1e3),
+    "area": (1e-6, 1e6),
+    "flow_coefficient": (1e-6, 1e6),
+    "specific_heat": (1.0, 1e5),
+    "heat_transfer_coefficient": (1e-3, 1e6),
+    "fouling_resistance": (1e-9, 1.0),
+    "volume_flow": (1e-9, 1e3),
+    "density": (1e-3, 1e5),
+    "dimensionless": (1e-12, 1e6),
+    "temperature": (1e-3, 1e4),
+}
+
 _EXAMPLES = {
     "pressure": "'16 bar(g)' or '17 bar(a)'",
     "pressure_difference": "'0.3 bar'",
@@ -378,7 +402,34 @@ def parse_quantity(text, field, kind):
         raise UnitError(f"'{text}' is not a finite number", field=field, value=text, fix=f"e.g. {example}")
     if kind == "temperature" and value <= 0.0:
         raise UnitError(f"'{text}' is at or below absolute zero", field=field, value=text)
+    check_bounds(value, field, kind, text)
     return float(value)
+
+
+def check_bounds(value, field, kind, given=None):
+    """Refuse a value (SI unit of its kind) outside :data:`QUANTITY_BOUNDS`; zero is left to the caller.
+
+    Examples
+    --------
+    >>> check_bounds(1.25, "mass_flow", "mass_flow")
+    >>> check_bounds(1e300, "mass_flow", "mass_flow")  # doctest: +ELLIPSIS
+    Traceback (most recent call last):
+    ...
+    steamcalc.errors.OutOfRangeError: field 'mass_flow': ... Valid range: 0.0036 to 3.6e+07 kg/h. ...
+    """
+    from .errors import OutOfRangeError
+
+    bounds = QUANTITY_BOUNDS.get(kind)
+    if bounds is None or value == 0.0:
+        return
+    low, high = bounds
+    if not low <= abs(value) <= high:
+        shown = [to_record_unit(b, kind) for b in bounds] if kind != "temperature" else [low, high]
+        unit = RECORD_UNITS[kind] if kind != "temperature" else "K"
+        raise OutOfRangeError(
+            f"{abs(value):g} {SI_UNITS[kind]} is outside the bounds steamcalc accepts for a "
+            f"{kind.replace('_', ' ')}", field=field, value=given if given is not None else value,
+            limits=(shown[0], shown[1], unit), fix="check the number and its unit")
 
 
 def to_record_unit(value_si, kind):
