@@ -349,46 +349,52 @@ PAYLOADS = ['=HYPERLINK("http://example.invalid","x")', "+cmd|' /C calc'!A0", "-
             "\u001b[32mVERIFIED\u001b[0m", "| fake | row |", "line\n# heading", "`code` *bold* _it_"]
 
 
-def _payload_case(site_dir, number, payload):
+def _payload_case(site_dir, revision, title, prepared_by):
     source = (site_dir / "cases" / "LD-02.toml").read_text()
-    text = source.replace('id = "LD-02"', f'id = "INJ-{number:02d}"')
-    text = re.sub(r"(?m)^title = .*$", lambda _: f"title = {toml_string(payload)}", text)
-    text = re.sub(r"(?m)^prepared_by = .*$", lambda _: f"prepared_by = {toml_string(payload)}", text)
-    text += f"\n[assumptions]\nnotes = [{toml_string(payload)}]\n" if "[assumptions]" not in text else ""
-    path = site_dir / "cases" / f"INJ-{number:02d}.toml"
+    text = source.replace('id = "LD-02"', 'id = "INJ"').replace('revision = "A"', f'revision = "{revision}"')
+    text = re.sub(r"(?m)^title = .*$", lambda _: f"title = {toml_string(title)}", text)
+    text = re.sub(r"(?m)^prepared_by = .*$", lambda _: f"prepared_by = {toml_string(prepared_by)}", text)
+    notes = PAYLOADS if revision == "A" else [f"{p} (rev B)" for p in PAYLOADS]
+    text += "\n[assumptions]\nnotes = [" + ", ".join(toml_string(n) for n in notes) + "]\n"
+    path = site_dir / "cases" / f"INJ-{revision}.toml"
     path.write_text(text)
     return path
 
 
 def test_injection_payloads_against_every_output(site_dir, tmp_path, capsys):
     out = tmp_path / "out"
-    cases = [_payload_case(site_dir, n, p) for n, p in enumerate(PAYLOADS)]
+    cases = [_payload_case(site_dir, "A", PAYLOADS[5], PAYLOADS[8]), _payload_case(site_dir, "B", PAYLOADS[6], PAYLOADS[0])]
     assert _run("run", *cases, "--out", out, "--quiet") == 0
     run_output = capsys.readouterr()
-    for n, payload in enumerate(PAYLOADS):
-        stem = out / f"INJ-{n:02d}_revA"
+    for stem in (out / "INJ_revA", out / "INJ_revB"):
         page = stem.with_suffix(".html").read_text()
-        assert "<script>" not in page and "javascript:alert" not in page.replace("[click](javascript:alert(1))", "")
+        assert "<script>" not in page and "href='javascript" not in page and 'href="javascript' not in page
         md = stem.with_suffix(".md").read_text()
         # Markdown characters of user text come escaped: no raw HTML, link or image survives.
         assert not re.search(r"(?<!\\)<script", md) and not re.search(r"(?<!\\)\]\(javascript:", md)
-        assert "![img](" not in md
-        assert "\u001b" not in md and "\n# heading" not in md and "| fake | row |" not in md
-    # The CSV index: no cell a spreadsheet would read as a formula.
-    rows = (out / "index.csv").read_text().splitlines()[1:]
-    import csv
-    for row in csv.reader(rows):
-        for cell in row:
-            assert cell[:1] not in ("=", "+", "-", "@", "\t", "\r"), cell
-    index = (out / "index.html").read_text()
-    assert all(href.startswith("./") for href in re.findall(r"href='([^']*)'", index))
-    assert "<script>" not in index
+        assert "![img](" not in md and "\u001b" not in md and "\n# heading" not in md and "| fake | row |" not in md
     # Terminal output of run, verify and diff: no control characters from user text.
-    assert _run("verify", *sorted(out.glob("INJ-*.json"))) == 0
-    assert _run("diff", out / "INJ-00_revA.json", out / "INJ-08_revA.json") == 0
+    assert _run("verify", out / "INJ_revA.json", out / "INJ_revB.json") == 0
+    assert _run("diff", out / "INJ_revA.json", out / "INJ_revB.json") == 0
     terminal = capsys.readouterr()
+    assert "\u001b[32m" in "".join(PAYLOADS) and "[32mVERIFIED" in terminal.out  # the payload reached it, cleaned
     for text in (run_output.out, run_output.err, terminal.out, terminal.err):
         assert "\u001b" not in text
+    # The indexes, with every payload as a title and a checker's name.
+    record = load_record(out / "INJ_revA.json")
+    for n, payload in enumerate(PAYLOADS):
+        copy = dict(record, id=f"INJ-{n:02d}", title=payload, checked_by=payload)
+        (out / f"INJ-{n:02d}_revA.json").write_text(json.dumps(copy))
+    html_index, csv_index = write_index(out)
+    import csv
+    rows = list(csv.reader(csv_index.read_text().splitlines()[1:]))
+    assert len(rows) == len(PAYLOADS) + 2
+    for row in rows:
+        for cell in row:
+            assert cell[:1] not in ("=", "+", "-", "@", "\t", "\r"), cell
+    index = html_index.read_text()
+    assert all(href.startswith("./") for href in re.findall(r"href='([^']*)'", index))
+    assert "<script>" not in index
 
 
 def test_a_crafted_record_gives_no_script_link_in_the_index(site_dir, tmp_path):
