@@ -15,7 +15,6 @@ import io
 import os
 import signal
 import time
-from concurrent.futures import ProcessPoolExecutor, wait
 from dataclasses import dataclass, field
 from pathlib import Path
 from urllib.parse import quote
@@ -92,16 +91,12 @@ def run_one(path, site_override=None, out_override=None, force=False):
                        checks=[c for c in record["checks"] if c["status"] != "pass"], out_dir=str(out))
 
 
-#: Seconds a Ctrl-C waits for cases already being written before their workers are stopped.
-STOP_GRACE = 1.5
-
-
 def run_cases(paths, site_override=None, out_override=None, progress=True, workers=None, force=False):
     """Run case files, in worker processes when there are several; outcomes in the order given.
 
-    On Ctrl-C the batch stops: cases not finished come back as outcomes with ``interrupted``
-    set (their records were not issued; an issue cut short is finished or undone by the next
-    run, see :mod:`steamcalc.issuing`).
+    On Ctrl-C the batch stops at once: cases not finished come back as outcomes with
+    ``interrupted`` set. A worker stopped in the middle of issuing a record leaves the old set
+    or a commit the next run completes (see :mod:`steamcalc.issuing`), never a half-written file.
     """
     bar = _progress(len(paths), progress)
     outcomes = {}
@@ -123,43 +118,29 @@ def run_cases(paths, site_override=None, out_override=None, progress=True, worke
 
 
 def _ignore_interrupt():
-    # Workers leave Ctrl-C to the main process, which stops them in order.
+    # Workers leave Ctrl-C to the main process, which stops them all at once.
     signal.signal(signal.SIGINT, signal.SIG_IGN)
 
 
 def _run_parallel(paths, site_override, out_override, force, workers, outcomes, bar):
+    import multiprocessing
+
     workers = workers or min(len(paths), os.cpu_count() or 1)
-    pool = ProcessPoolExecutor(max_workers=workers, initializer=_ignore_interrupt)
-    futures = {}
+    pool = multiprocessing.get_context().Pool(workers, initializer=_ignore_interrupt)
     try:
-        futures = {pool.submit(run_one, p, site_override, out_override, force): n for n, p in enumerate(paths)}
-        pending = set(futures)
+        pending = {n: pool.apply_async(run_one, (p, site_override, out_override, force)) for n, p in enumerate(paths)}
         while pending:
-            done, pending = wait(pending, timeout=0.2, return_when="FIRST_COMPLETED")
-            for future in done:
-                outcomes[futures[future]] = future.result()
+            for number in [n for n, r in pending.items() if r.ready()]:
+                outcomes[number] = pending.pop(number).get()
                 bar.update(1)
-    except KeyboardInterrupt:
-        for future in futures:
-            future.cancel()
-        running = [f for f in futures if not f.done()]
-        wait(running, timeout=STOP_GRACE)
-        for future in futures:
-            if future.done() and not future.cancelled() and future.exception() is None:
-                outcomes[futures[future]] = future.result()
-        _stop_workers(pool)
+            if pending:
+                time.sleep(0.05)
+        pool.close()
+    except BaseException:
+        pool.terminate()   # Ctrl-C: stop the workers now rather than when their cases end
         raise
     finally:
-        pool.shutdown(wait=False, cancel_futures=True)
-
-
-def _stop_workers(pool):
-    processes = list(getattr(pool, "_processes", {}).values())
-    for process in processes:
-        process.terminate()
-    deadline = time.monotonic() + 0.5
-    for process in processes:
-        process.join(max(0.0, deadline - time.monotonic()))
+        pool.join()
 
 
 class _NoBar:

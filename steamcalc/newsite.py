@@ -54,11 +54,20 @@ def new_site(destination, template=None):
             shutil.copytree(template / "cases", staging / "cases")
         for notebook in sorted(template.parent.glob("*.ipynb")) + sorted(template.glob("*.ipynb")):
             _copy_workbook(notebook, staging / notebook.name, template.name)
+        _follow_umask(staging)
         staging.rename(destination)
     except BaseException:
         shutil.rmtree(staging, ignore_errors=True)
         raise
     return sorted(p for p in destination.rglob("*") if p.is_file())
+
+
+def _follow_umask(folder):
+    # Copies keep the template's modes; a new folder's files should have the user's own, as `cp` gives.
+    from .issuing import file_mode
+
+    for path in folder.rglob("*"):
+        os.chmod(path, folder_mode() if path.is_dir() else file_mode())
 
 
 def _copy_workbook(source, target, template_name):
