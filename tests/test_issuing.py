@@ -205,7 +205,7 @@ def test_two_concurrent_signoffs_one_wins_none_lost(site, tmp_path):
 def test_second_writer_waits_then_fails_clearly(site, tmp_path, capsys, monkeypatch):
     case, out = site / "cases" / "LD-02.toml", tmp_path / "out"
     monkeypatch.setenv("STEAMCALC_LOCK_TIMEOUT", "0.3")
-    holder = FORK.Process(target=_hold_lock, args=(out, "LD-02_revA", 5.0))
+    holder = FORK.Process(target=_hold_lock, args=(out, "LD-02_revA", 300.0))  # until terminated below
     holder.start()
     deadline = time.monotonic() + 20
     while not (out / WORK_FOLDER / "held").exists() and time.monotonic() < deadline:
