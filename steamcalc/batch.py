@@ -137,7 +137,11 @@ def _run_parallel(paths, site_override, out_override, force, workers, outcomes, 
                 time.sleep(0.05)
         pool.close()
     except BaseException:
-        pool.terminate()   # Ctrl-C: stop the workers now rather than when their cases end
+        # Ctrl-C: stop the workers now rather than when their cases end. Signalling them first
+        # spares the pool's own shutdown waiting on workers that are deep in a calculation.
+        for process in getattr(pool, "_pool", ()):
+            process.terminate()
+        pool.terminate()
         raise
     finally:
         pool.join()
