@@ -108,7 +108,8 @@ def complete(out, stem):
 
 
 def clean_refusal(code, err, *names):
-    return code == 2 and "internal error" not in err and "Traceback" not in err and all(n in err for n in names)
+    return code == 2 and "internal error" not in err and "unexpected error" not in err and "Traceback" not in err \
+        and all(n in err for n in names)
 
 
 POINTS = ["staged:0", "staged:1", "staged:2", "listed", "moved:0", "moved:1", "moved:2"]
