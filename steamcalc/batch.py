@@ -1,7 +1,10 @@
 """Many cases to records: parallel worker processes, an index of the records, and every failure listed.
 
-One bad case never stops the others: each case's outcome is collected and reported at the
-end with its file and error.
+One bad case never stops the others: each case runs inside its own error boundary, and its
+outcome is collected and reported at the end with its file and error. An unexpected error (a
+bug) becomes that case's failure, with a request to report it. Ctrl-C stops the batch within
+about two seconds; the cases that finished keep their records and the others are listed as not
+run.
 """
 
 from __future__ import annotations
@@ -10,12 +13,14 @@ import csv
 import html
 import io
 import os
-from concurrent.futures import ProcessPoolExecutor
+import signal
+import time
 from dataclasses import dataclass, field
 from pathlib import Path
+from urllib.parse import quote
 
 from .errors import SteamcalcError
-from .record import load_record, record_stem, write_text_atomic
+from .record import load_record, write_text_atomic
 
 #: Below this many cases the start-up of worker processes costs more than it saves.
 PARALLEL_FROM = 4
@@ -35,6 +40,7 @@ class CaseOutcome:
     checks: list = field(default_factory=list)
     error: str = ""
     out_dir: str = ""
+    interrupted: bool = False   # not run: the batch was stopped (Ctrl-C) before this case finished
 
 
 def find_case_files(paths):
@@ -53,63 +59,160 @@ def find_case_files(paths):
     return files
 
 
-def run_one(path, site_override=None, out_override=None):
-    """Compute one case and write its record; never raises for a user's error."""
+def run_one(path, site_override=None, out_override=None, force=False):
+    """Compute one case and write its record; never raises but for Ctrl-C.
+
+    A user's error is the case's failure with its message; any other exception (a bug) is the
+    case's failure too, saying so and asking for a report, so the rest of the batch runs on.
+    """
     from .record import write_record
     from .report import RENDERERS
     from .runner import default_out_dir, record_for_case
     from .site import case_site, load_case
 
+    out = Path(out_override) if out_override else None
     try:
         case = load_case(path)
+        out = out or default_out_dir(case)
         site = case_site(case, site_override)
         record, _ = record_for_case(case, site)
-        out = Path(out_override) if out_override else default_out_dir(case)
-        paths, status = write_record(record, out, RENDERERS)
+        paths, status = write_record(record, out, RENDERERS, force=force)
     except SteamcalcError as exc:
-        return CaseOutcome(path=str(path), ok=False, error=str(exc.with_source(path)))
+        return CaseOutcome(path=str(path), ok=False, error=str(exc.with_source(path)),
+                           out_dir=str(out) if out else "")
+    except Exception as exc:  # a bug, not bad input: this case fails, the batch goes on
+        if os.environ.get("STEAMCALC_DEBUG"):
+            raise
+        return CaseOutcome(path=str(path), ok=False, out_dir=str(out) if out else "",
+                           error=f"{path}: unexpected error {type(exc).__name__}: {exc}. This is a fault in "
+                                 "steamcalc, not in the case: please report it (STEAMCALC_DEBUG=1 shows the trace).")
     return CaseOutcome(path=str(path), ok=True, record_id=record["id"], revision=record["revision"],
                        status=record["status"], write_status=status, paths=[str(p) for p in paths],
                        checks=[c for c in record["checks"] if c["status"] != "pass"], out_dir=str(out))
 
 
-def run_cases(paths, site_override=None, out_override=None, progress=True, workers=None, scheduler=None):
+def run_cases(paths, site_override=None, out_override=None, progress=True, workers=None, force=False,
+              scheduler=None):
     """Run case files, in worker processes when there are several (or as tasks on the Dask scheduler
-    at ``scheduler``, see :mod:`steamcalc.cluster`); outcomes in the order given."""
+    at ``scheduler``, see :mod:`steamcalc.cluster`); outcomes in the order given.
+
+    On Ctrl-C the batch stops at once: cases not finished come back as outcomes with
+    ``interrupted`` set. A worker stopped in the middle of issuing a record leaves the old set
+    or a commit the next run completes (see :mod:`steamcalc.issuing`), never a half-written file.
+    """
     if scheduler:
         from .cluster import run_cases_on_cluster
         return run_cases_on_cluster(paths, site_override, out_override, scheduler, progress)
-    if len(paths) < PARALLEL_FROM:
-        iterator = (run_one(p, site_override, out_override) for p in paths)
-        return list(_progress(iterator, len(paths), progress))
+    bar = _progress(len(paths), progress)
+    outcomes = {}
+    try:
+        if len(paths) < PARALLEL_FROM:
+            for number, path in enumerate(paths):
+                outcomes[number] = run_one(path, site_override, out_override, force)
+                bar.update(1)
+        else:
+            _run_parallel(paths, site_override, out_override, force, workers, outcomes, bar)
+    except KeyboardInterrupt:
+        pass
+    finally:
+        bar.close()
+    return [outcomes.get(number) or CaseOutcome(path=str(path), ok=False, interrupted=True,
+                                                error=f"{path}: not run (the batch was stopped)",
+                                                out_dir=str(out_override or ""))
+            for number, path in enumerate(paths)]
+
+
+def _ignore_interrupt():
+    # Workers leave Ctrl-C to the main process, which stops them all at once.
+    signal.signal(signal.SIGINT, signal.SIG_IGN)
+
+
+def _run_parallel(paths, site_override, out_override, force, workers, outcomes, bar):
+    import multiprocessing
+
     workers = workers or min(len(paths), os.cpu_count() or 1)
-    with ProcessPoolExecutor(max_workers=workers) as pool:
-        futures = [pool.submit(run_one, p, site_override, out_override) for p in paths]
-        return list(_progress((f.result() for f in futures), len(paths), progress))
+    pool = multiprocessing.get_context().Pool(workers, initializer=_ignore_interrupt)
+    try:
+        pending = {n: pool.apply_async(run_one, (p, site_override, out_override, force)) for n, p in enumerate(paths)}
+        while pending:
+            for number in [n for n, r in pending.items() if r.ready()]:
+                outcomes[number] = pending.pop(number).get()
+                bar.update(1)
+            if pending:
+                time.sleep(0.05)
+        pool.close()
+    except BaseException:
+        # Ctrl-C: stop the workers now rather than when their cases end. Signalling them first
+        # spares the pool's own shutdown waiting on workers that are deep in a calculation.
+        for process in getattr(pool, "_pool", ()):
+            process.terminate()
+        pool.terminate()
+        raise
+    finally:
+        pool.join()
 
 
-def _progress(iterator, total, enabled):
+class _NoBar:
+    def update(self, n):
+        pass
+
+    def close(self):
+        pass
+
+
+def _progress(total, enabled):
     if not enabled:
-        return iterator
+        return _NoBar()
     try:
         from tqdm import tqdm
     except ImportError:
-        return iterator
-    return tqdm(iterator, total=total, desc="cases", unit="case", leave=False)
+        return _NoBar()
+    return tqdm(total=total, desc="cases", unit="case", leave=False)
 
 
 _INDEX_COLUMNS = ("id", "revision", "kind", "title", "status", "checked_by", "created", "json", "html")
 
 
-def write_index(folder, failures=()):
+def csv_safe(text):
+    """A text cell as a spreadsheet should show it: never read as a formula.
+
+    Text starting with ``=``, ``+``, ``-``, ``@``, a tab or a carriage return gets a leading
+    quote, the usual defence against spreadsheet formula injection (OWASP, "CSV Injection").
+
+    Examples
+    --------
+    >>> csv_safe("=SUM(A1:A9)"), csv_safe("@cmd"), csv_safe("LD-01")
+    ("'=SUM(A1:A9)", "'@cmd", 'LD-01')
+    """
+    text = str(text)
+    return "'" + text if text[:1] in ("=", "+", "-", "@", "\t", "\r") else text
+
+
+def _link(name):
+    # Only a relative file name: "./" and percent-encoding stop any "scheme:" reading.
+    return "./" + quote(name)
+
+
+def write_index(folder, failures=(), force=False):
     """An index of every record in a folder (HTML with links, and CSV), plus this run's failures.
+
+    An existing ``index.html`` or ``index.csv`` that steamcalc did not write is not replaced
+    unless ``force``.
 
     Returns
     -------
     tuple of Path
         The HTML and CSV index files.
     """
-    folder = Path(folder)
+    from .errors import RecordConflictError
+    from .issuing import ensure_folder, is_own_output
+
+    folder = ensure_folder(folder)
+    csv_path, html_path = folder / "index.csv", folder / "index.html"
+    for path in (csv_path, html_path):
+        if path.exists() and not force and not is_own_output(path):
+            raise RecordConflictError("a file of this name exists and was not written by steamcalc", source=path,
+                                      fix="move it away (or give --force to replace it)")
     rows = []
     from .register import INDEX_COLUMNS, index_columns
     currency = index_columns(folder)
@@ -118,30 +221,30 @@ def write_index(folder, failures=()):
             record = load_record(path)
         except SteamcalcError:
             continue
-        stem = record_stem(record)
         rows.append({"id": record["id"], "revision": record["revision"], "kind": record["kind"],
-                     "title": record.get("title", ""), "status": record.get("status", ""),
-                     "checked_by": record.get("checked_by") or "", "created": record.get("created", ""),
-                     "json": f"{stem}.json", "html": f"{stem}.html",
+                     "title": _plain(record.get("title", "")), "status": _plain(record.get("status", "")),
+                     "checked_by": _plain(record.get("checked_by") or ""),
+                     "created": _plain(record.get("created", "")),
+                     "json": path.name, "html": path.with_suffix(".html").name,
                      **{c: "" for c in INDEX_COLUMNS}, **currency.get("*", {}), **currency.get(path.name, {})})
     buffer = io.StringIO()
     writer = csv.DictWriter(buffer, fieldnames=_INDEX_COLUMNS + INDEX_COLUMNS, lineterminator="\n")
     writer.writeheader()
-    writer.writerows(rows)
-    csv_path = folder / "index.csv"
+    writer.writerows({k: csv_safe(v) for k, v in row.items()} for row in rows)
     write_text_atomic(csv_path, buffer.getvalue())
 
     colours = {"pass": "#2f6b3a", "warn": "#8a5a00", "fail": "#a3201b"}
     body = "".join(
-        f"<tr><td><a href='{html.escape(r['html'])}'>{html.escape(r['id'])}</a></td><td>{html.escape(r['revision'])}"
+        f"<tr><td><a href='{html.escape(_link(r['html']))}'>{html.escape(r['id'])}</a></td><td>{html.escape(r['revision'])}"
         f"</td><td>{html.escape(r['kind'])}</td><td>{html.escape(r['title'])}</td>"
         f"<td style='color:{colours.get(r['status'], '#000')};font-weight:bold'>{html.escape(r['status'].upper())}</td>"
         f"<td>{html.escape(r['checked_by'])}</td><td>{html.escape(r['created'])}</td>"
-        f"<td><a href='{html.escape(r['json'])}'>JSON</a></td>"
-        + "".join(f"<td>{html.escape(r[c])}</td>" for c in INDEX_COLUMNS) + "</tr>" for r in rows)
+        f"<td><a href='{html.escape(_link(r['json']))}'>JSON</a></td>"
+        + "".join(f"<td>{html.escape(_plain(r[c]))}</td>" for c in INDEX_COLUMNS) + "</tr>" for r in rows)
     failed = "".join(f"<li><code>{html.escape(f.path)}</code>: {html.escape(f.error)}</li>" for f in failures)
     page = f"""<!DOCTYPE html>
-<html lang="en"><head><meta charset="utf-8"><title>steamcalc records index</title>
+<html lang="en"><head><meta charset="utf-8"><meta name="generator" content="steamcalc index">
+<title>steamcalc records index</title>
 <style>body{{font:10.5pt/1.4 "DejaVu Sans",Arial,sans-serif;margin:2em auto;max-width:64em;padding:0 1.5em}}
 table{{border-collapse:collapse;width:100%}}th,td{{text-align:left;padding:.25em .5em;border-bottom:1px solid #b9c2c9}}
 th{{background:#eef1f3}}.fail{{color:#a3201b}}</style></head><body>
@@ -151,6 +254,10 @@ th{{background:#eef1f3}}.fail{{color:#a3201b}}</style></head><body>
 {f'<h2 class="fail">Cases not run in the last batch</h2><ul>{failed}</ul>' if failed else ''}
 </body></html>
 """
-    html_path = folder / "index.html"
     write_text_atomic(html_path, page)
     return html_path, csv_path
+
+
+def _plain(value):
+    # Index cells are text: a crafted record's table or number is shown as text, not a crash.
+    return value if isinstance(value, str) else str(value)

@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import argparse
 import os
+import re
 import sys
 from pathlib import Path
 
@@ -16,6 +17,26 @@ from . import __version__
 from .errors import SteamcalcError
 
 EXIT_OK, EXIT_FAILED, EXIT_BAD_INPUT = 0, 1, 2
+EXIT_INTERRUPTED = 130  # 128 + SIGINT, as shells report a Ctrl-C
+
+# Control characters (C0 but newline and tab, DEL, C1) and the bidirectional overrides: text from a
+# record or a case file must not move the cursor, recolour the terminal or reorder what it shows.
+_CONTROL = re.compile("[\x00-\x08\x0b-\x1f\x7f-\x9f\u202a-\u202e\u2066-\u2069]")
+
+
+def plain_text(text):
+    """Text for the terminal: control characters and escape sequences removed.
+
+    Examples
+    --------
+    >>> plain_text("\x1b[32mVERIFIED\x1b[0m ok")
+    '[32mVERIFIED[0m ok'
+    """
+    return _CONTROL.sub("", str(text))
+
+
+def _say(text="", file=None):
+    print(plain_text(text), file=file or sys.stdout)
 
 
 class _Parser(argparse.ArgumentParser):
@@ -39,6 +60,8 @@ def _parser():
     run.add_argument("--quiet", action="store_true", help="no progress bar")
     run.add_argument("--scheduler", metavar="ADDRESS", help="hand the cases to the Dask scheduler at ADDRESS "
                      "(needs the cluster extra; default: local worker processes)")
+    run.add_argument("--force", action="store_true",
+                     help="replace report, index and companion files of the records' names that steamcalc did not write")
 
     verify = sub.add_parser("verify", help="check a record's digest and recompute its results")
     verify.add_argument("records", nargs="+", metavar="RECORD.json", help="record files, or folders of them")
@@ -56,6 +79,7 @@ def _parser():
     diff.add_argument("old", metavar="OLD.json")
     diff.add_argument("new", metavar="NEW.json")
     diff.add_argument("--html", metavar="FILE.html", help="also write the comparison as an HTML page")
+    diff.add_argument("--force", action="store_true", help="replace an existing FILE.html that steamcalc did not write")
 
     sign = sub.add_parser("sign", help="the checker's sign-off, after a passing verification")
     sign.add_argument("record", metavar="RECORD.json")
@@ -90,7 +114,10 @@ def _run(args):
     from .batch import find_case_files, run_cases, write_index
 
     paths = find_case_files(args.cases)
-    outcomes = run_cases(paths, args.site, args.out, progress=not args.quiet and len(paths) > 1,
+    if args.out and Path(args.out).exists() and not Path(args.out).is_dir():
+        raise SteamcalcError("--out names a file, not a folder", source=args.out,
+                             fix="give --out a folder for the records (it is created if absent)")
+    outcomes = run_cases(paths, args.site, args.out, progress=not args.quiet and len(paths) > 1, force=args.force,
                          scheduler=args.scheduler)
     worst = EXIT_OK
     failures = [o for o in outcomes if not o.ok]
@@ -98,23 +125,36 @@ def _run(args):
         if not outcome.ok:
             continue
         note = "written" if outcome.write_status == "written" else "unchanged (same content as the existing record, kept)"
-        print(f"{outcome.record_id} rev {outcome.revision}: {outcome.status.upper()} - {note}")
+        _say(f"{outcome.record_id} rev {outcome.revision}: {outcome.status.upper()} - {note}")
         for p in outcome.paths:
-            print(f"  {p}")
+            _say(f"  {p}")
         for check in outcome.checks:
-            print(f"  {check['status']}: {check['name']}: {check['detail']}")
+            _say(f"  {check['status']}: {check['name']}: {check['detail']}")
         if outcome.status == "fail" and worst == EXIT_OK:
             worst = EXIT_FAILED
         worst = max(worst, _companions(args, outcome))
     if len(paths) > 1:
-        for folder in sorted({o.out_dir for o in outcomes if o.ok}):
-            html_index, csv_index = write_index(folder, failures)
-            print(f"index: {html_index} and {csv_index}")
-    if failures:
-        print(f"\n{len(failures)} of {len(outcomes)} case(s) not run:", file=sys.stderr)
-        for outcome in failures:
-            print(f"error: {outcome.error}", file=sys.stderr)
+        # The index is written even when cases failed or the batch was stopped: it lists what is there.
+        for folder in sorted({o.out_dir for o in outcomes if o.out_dir}):
+            try:
+                html_index, csv_index = write_index(folder, failures, force=args.force)
+            except SteamcalcError as exc:
+                _say(f"error: no index written: {exc}", file=sys.stderr)
+                worst = EXIT_BAD_INPUT
+                continue
+            _say(f"index: {html_index} and {csv_index}")
+    stopped = [o for o in failures if o.interrupted]
+    failed = [o for o in failures if not o.interrupted]
+    if failed:
+        _say(f"\n{len(failed)} of {len(outcomes)} case(s) not run:", file=sys.stderr)
+        for outcome in failed:
+            _say(f"error: {outcome.error}", file=sys.stderr)
         worst = EXIT_BAD_INPUT
+    if stopped:
+        _say(f"\nstopped (Ctrl-C): {len(stopped)} of {len(outcomes)} case(s) did not run:", file=sys.stderr)
+        for outcome in stopped:
+            _say(f"  not run: {outcome.path}", file=sys.stderr)
+        return EXIT_INTERRUPTED
     return worst
 
 
@@ -127,11 +167,11 @@ def _companions(args, outcome):
     json_path = Path(outcome.paths[0])
     try:
         if args.notebook:
-            print(f"  {run_notebook(load_case(outcome.path), json_path.parent, json_path.stem)}")
+            _say(f"  {run_notebook(load_case(outcome.path), json_path.parent, json_path.stem, force=args.force)}")
         if args.pdf:
-            print(f"  {write_pdf(json_path.with_suffix('.html'))}")
+            _say(f"  {write_pdf(json_path.with_suffix('.html'), force=args.force)}")
     except SteamcalcError as exc:
-        print(f"error: {exc}", file=sys.stderr)
+        _say(f"error: {exc}", file=sys.stderr)
         return EXIT_BAD_INPUT
     return EXIT_OK
 
@@ -145,41 +185,54 @@ def _record_files(paths):
     return files
 
 
-def _verify(args):
+def _verify_one(raw, engine):
+    """``(path, record, verification, error)`` for one record file; never raises for a bad file."""
     from .review import verify_file
 
+    try:
+        return verify_file(raw, engine)
+    except SteamcalcError as exc:
+        return raw, None, None, str(exc)
+    except Exception as exc:  # a bug: say so for this file and go on to the next
+        if os.environ.get("STEAMCALC_DEBUG"):
+            raise
+        return raw, None, None, f"unexpected error {type(exc).__name__}: {exc}. Please report it."
+
+
+def _verify(args):
     worst = EXIT_OK
     files = _record_files(args.records)
     if args.scheduler:
         from .cluster import verify_on_cluster
         checked = verify_on_cluster(files, args.engine, args.scheduler, progress=len(files) > 1)
     else:
-        checked = (verify_file(raw, args.engine) for raw in files)
+        checked = (_verify_one(raw, args.engine) for raw in files)
     for raw, record, outcome, error in checked:
+        # Each file is verified and reported on its own: a bad one never hides the others.
         if error is not None:
-            print(f"error: {error}", file=sys.stderr)
+            _say(f"{raw}: NOT VERIFIED - {error}", file=sys.stderr)
             worst = EXIT_BAD_INPUT
             continue
-        print(f"{raw}: {record['id']} rev {record['revision']}")
+        _say(f"{raw}: {record['id']} rev {record['revision']}")
         if args.engine != "iapws":
-            print(f"  recomputed on the {args.engine} IF97 engine (the record was computed on iapws)")
-        print(f"  integrity: {'intact' if outcome.digest_ok and outcome.content_digest_ok else 'EDITED - digest does not match'}")
+            _say(f"  recomputed on the {args.engine} IF97 engine (the record was computed on iapws)")
+        _say(f"  integrity: {'intact' if outcome.digest_ok and outcome.content_digest_ok else 'EDITED - digest does not match'}")
         if outcome.error:
-            print(f"  reproduction: NOT POSSIBLE - {outcome.error}")
+            _say(f"  reproduction: NOT POSSIBLE - {outcome.error}")
         else:
-            print(format_comparisons(outcome.comparisons))
+            _say(format_comparisons(outcome.comparisons))
             largest = outcome.largest_difference
             if largest is not None:
-                print(f"  largest relative difference: {largest.rel_diff:.1e} ({largest.key})")
+                _say(f"  largest relative difference: {largest.rel_diff:.1e} ({largest.key})")
             for note in outcome.notes:
-                print(f"  note: {note}")
+                _say(f"  note: {note}")
             for change in outcome.check_changes:
-                print(f"  check changed: {change}")
-            print(f"  reproduction: {'reproduced' if outcome.reproduced else 'NOT REPRODUCED'}")
+                _say(f"  check changed: {change}")
+            _say(f"  reproduction: {'reproduced' if outcome.reproduced else 'NOT REPRODUCED'}")
         for name, (then, now) in outcome.version_changes.items():
-            print(f"  version: {name} {then} in the record, {now} here")
+            _say(f"  version: {name} {then} in the record, {now} here")
         trust_ok = _verify_trust(args, raw, record, outcome)
-        print(f"  verdict: {'VERIFIED' if outcome.ok and trust_ok else 'FAILED'}")
+        _say(f"  verdict: {'VERIFIED' if outcome.ok and trust_ok else 'FAILED'}")
         if not (outcome.ok and trust_ok) and worst != EXIT_BAD_INPUT:
             worst = EXIT_FAILED
     return worst
@@ -212,11 +265,13 @@ def _diff(args):
     from .record import load_record
     from .signoff import diff_records
 
+    if args.html:
+        _check_diff_target(args)
     old, new = load_record(args.old), load_record(args.new)
     rows = diff_records(old, new)
-    print(f"{args.old} ({old['id']} rev {old['revision']}) -> {args.new} ({new['id']} rev {new['revision']})")
+    _say(f"{args.old} ({old['id']} rev {old['revision']}) -> {args.new} ({new['id']} rev {new['revision']})")
     if not rows:
-        print("  no differences in inputs, assumptions, results or checks")
+        _say("  no differences in inputs, assumptions, results or checks")
     for row in rows:
         change = row["change"]
         change = f"{change:+.6g}" if isinstance(change, float) else change
@@ -225,7 +280,7 @@ def _diff(args):
         from .record import write_text_atomic
         from .report import render_diff_html
         write_text_atomic(args.html, render_diff_html(old, new, rows))
-        print(f"  written: {args.html}")
+        _say(f"  written: {args.html}")
     return EXIT_OK
 
 
@@ -236,34 +291,34 @@ def _verify_trust(args, raw, record, outcome):
     from .signing import check_signatures, name_only_signoff
 
     for change in outcome.statement_changes:
-        print(f"  statement changed: {change}")
+        _say(f"  statement changed: {change}")
     if outcome.recomputed_status:
-        print(f"  status: {record.get('status')} in the record, {outcome.recomputed_status} recomputed")
+        _say(f"  status: {record.get('status')} in the record, {outcome.recomputed_status} recomputed")
     ok = True
     companions = check_companions(raw, record, repair=args.repair and outcome.ok)
     for c in companions:
-        print(f"  companion {c.path.name}: " + {"match": "matches the JSON", "absent": "absent",
+        _say(f"  companion {c.path.name}: " + {"match": "matches the JSON", "absent": "absent",
               "repaired": "re-rendered from the JSON (repaired)",
               "differs": "DIFFERS from the JSON's rendering (edited by hand?)"}[c.verdict])
         ok = ok and c.verdict != "differs"
     if args.repair and not outcome.ok:
-        print("  repair: not done - the JSON itself does not verify, so it is not rendered again")
+        _say("  repair: not done - the JSON itself does not verify, so it is not rendered again")
     folder = args.trusted or trusted_folder_for(raw)
     trusted = load_trusted(folder, required=bool(args.trusted))
     signatures = check_signatures(record, trusted)
     if signatures and not trusted:
-        print(f"  trusted signers: none found ({folder or 'no site.toml above the record'}); give --trusted DIR "
+        _say(f"  trusted signers: none found ({folder or 'no site.toml above the record'}); give --trusted DIR "
               "or add the signers' .pub files to the site's trusted_signers/")
     legacy = name_only_signoff(record, outcome)
     if legacy:
-        print(f"  signature: {legacy[0]} - proves nothing about who signed")
+        _say(f"  signature: {legacy[0]} - proves nothing about who signed")
         for problem in legacy[1]:
-            print(f"  signature: the name-only sign-off does not hold: {problem}")
+            _say(f"  signature: the name-only sign-off does not hold: {problem}")
         ok = ok and not legacy[1]
     if not signatures and not legacy:
-        print("  signatures: not signed")
+        _say("  signatures: not signed")
     for check in signatures:
-        print(f"  signature: {check.describe()}")
+        _say(f"  signature: {check.describe()}")
         ok = ok and check.ok
     return ok
 
@@ -275,20 +330,20 @@ def _sign_with_key(args):
     try:
         signed = sign_with_key(args.record, args.key, args.role, args.by, args.passphrase_file, args.trusted)
     except SigningInputError as exc:
-        print(f"error: {exc}", file=sys.stderr)
+        _say(f"error: {exc}", file=sys.stderr)
         return EXIT_BAD_INPUT
     except SteamcalcError as exc:
-        print(f"refused: {exc}", file=sys.stderr)
+        _say(f"refused: {exc}", file=sys.stderr)
         return EXIT_FAILED
     entry = signed["signatures"][-1]
-    print(f"{signed['id']} rev {signed['revision']}: {entry['role']} and signed by {entry['name']} on "
-          f"{entry['date']}, key {short_fingerprint(entry['fingerprint'])}")
-    print(f"  {args.record}, with its HTML and Markdown")
+    _say(f"{signed['id']} rev {signed['revision']}: {entry['role']} and signed by {entry['name']} on "
+          f"{entry['date']}, key {short_finger_say(entry['fingerprint'])}")
+    _say(f"  {args.record}, with its HTML and Markdown")
     from .keys import load_trusted, trusted_folder_for
 
     folder = args.trusted or trusted_folder_for(args.record)
     if entry["fingerprint"] not in load_trusted(folder):
-        print(f"  note: this key is not in {folder or 'a trusted signers folder (no site.toml found above the record)'}; "
+        _say(f"  note: this key is not in {folder or 'a trusted signers folder (no site.toml found above the record)'}; "
               "verify reports it as unknown until its .pub file is added there")
     return EXIT_OK
 
@@ -298,9 +353,9 @@ def _keys(args):
 
     passphrase = read_passphrase(args.passphrase_file) if args.passphrase_file else None
     private, public = new_key_pair(args.name, args.out, passphrase)
-    print(f"key pair for {args.name}, key {short_fingerprint(load_public_key(public).fingerprint)}")
-    print(f"  private: {private} (mode 0600{', passphrase-protected' if passphrase else ''}; keep it to yourself)")
-    print(f"  public:  {public} (give it to the site's trusted_signers/ folder)")
+    _say(f"key pair for {args.name}, key {short_finger_say(load_public_key(public).fingerprint)}")
+    _say(f"  private: {private} (mode 0600{', passphrase-protected' if passphrase else ''}; keep it to yourself)")
+    _say(f"  public:  {public} (give it to the site's trusted_signers/ folder)")
     return EXIT_OK
 
 
@@ -308,12 +363,28 @@ def _register(args):
     from .register import build_register, format_register, write_register_csv, write_register_html
 
     rows = build_register(args.folder)
-    print(format_register(rows))
+    _say(format_register(rows))
     for target, write in ((args.html, write_register_html), (args.csv, write_register_csv)):
         if target:
             write(target, rows)
-            print(f"written: {target}")
+            _say(f"written: {target}")
     return EXIT_OK if all(r.ok for r in rows) else EXIT_FAILED
+
+
+def _check_diff_target(args):
+    from .issuing import is_own_output
+
+    target = Path(args.html)
+    if target.exists() and not target.is_file():
+        raise SteamcalcError("--html names a folder or device, not a file", source=args.html,
+                             fix="give --html a file name such as changes.html")
+    for record in (args.old, args.new):
+        if Path(record).exists() and target.exists() and os.path.samefile(record, target):
+            raise SteamcalcError("--html names one of the records being compared", source=args.html,
+                                 fix="give --html a new file name such as changes.html")
+    if target.exists() and not args.force and (target.suffix == ".json" or not is_own_output(target, ".html")):
+        raise SteamcalcError("a file of this name exists and is not a comparison steamcalc wrote", source=args.html,
+                             fix="give --html a new file name (or --force to replace it)")
 
 
 def _sign(args):
@@ -333,11 +404,11 @@ def _sign(args):
     try:
         signed = sign_record(args.record, record, args.by)
     except SteamcalcError as exc:
-        print(f"refused: {exc}", file=sys.stderr)
+        _say(f"refused: {exc}", file=sys.stderr)
         return EXIT_FAILED if exc.field != "--by" else EXIT_BAD_INPUT
     path = Path(args.record)
-    print(f"{signed['id']} rev {signed['revision']}: signed by {signed['checked_by']} on {signed['signoff']['date']}")
-    print(f"  {path} (new digest {signed['digest'][:23]}...), with its HTML and Markdown")
+    _say(f"{signed['id']} rev {signed['revision']}: signed by {signed['checked_by']} on {signed['signoff']['date']}")
+    _say(f"  {path} (new digest {signed['digest'][:23]}...), with its HTML and Markdown")
     return EXIT_OK
 
 
@@ -345,10 +416,10 @@ def _new_site(args):
     from .newsite import new_site
 
     files = new_site(args.folder, args.template)
-    print(f"new site folder {args.folder}: {len(files)} files")
+    _say(f"new site folder {args.folder}: {len(files)} files")
     for f in files:
-        print(f"  {f}")
-    print("next: edit site.toml (name, elevation, headers, prices) and the cases, then "
+        _say(f"  {f}")
+    _say("next: edit site.toml (name, elevation, headers, prices) and the cases, then "
           f"`steamcalc run {args.folder}/cases`")
     return EXIT_OK
 
@@ -363,14 +434,22 @@ def main(argv=None):
     try:
         return _COMMANDS[args.command](args)
     except SteamcalcError as exc:
-        print(f"error: {exc}", file=sys.stderr)
+        _say(f"error: {exc}", file=sys.stderr)
         return EXIT_BAD_INPUT
     except KeyboardInterrupt:
-        return 130
+        return EXIT_INTERRUPTED
+    except BrokenPipeError:
+        # The reader went away (`steamcalc diff ... | head`): stop quietly, as other tools do.
+        try:
+            devnull = os.open(os.devnull, os.O_WRONLY)
+            os.dup2(devnull, sys.stdout.fileno())
+        except (OSError, ValueError):
+            pass
+        return EXIT_FAILED
     except Exception as exc:  # a bug, not bad input: say so briefly, full trace on request
         if os.environ.get("STEAMCALC_DEBUG"):
             raise
-        print(f"internal error: {type(exc).__name__}: {exc}. Please report it; set STEAMCALC_DEBUG=1 "
+        _say(f"internal error: {type(exc).__name__}: {exc}. Please report it; set STEAMCALC_DEBUG=1 "
               "for the full trace.", file=sys.stderr)
         return EXIT_BAD_INPUT
 

@@ -28,12 +28,26 @@ def find_workbook(case):
                          source=case.path, fix=f"keep {name} beside the site folder (steamcalc new-site copies it)")
 
 
-def run_notebook(case, out_dir, stem):
-    """Execute the case's workbook headless with its parameters; save it beside the record."""
+def _refuse_foreign(target, force):
+    # What steamcalc did not write is never overwritten: a notebook or PDF of the record's name
+    # that is not its executed workbook or printed record stays as it is.
+    from .issuing import is_own_output
+
+    if target.exists() and not force and not is_own_output(target):
+        raise SteamcalcError("a file of this name exists and was not written by steamcalc", source=target,
+                             fix="move it away (or give --force to replace it)")
+
+
+def run_notebook(case, out_dir, stem, force=False):
+    """Execute the case's workbook headless with its parameters; save it beside the record.
+
+    An existing file of the target's name that steamcalc did not write is refused unless ``force``.
+    """
     import papermill
 
     workbook = find_workbook(case)
     target = Path(out_dir) / f"{stem}.ipynb"
+    _refuse_foreign(target, force)
     partial = target.with_name(f".{target.stem}.part.ipynb")
     try:
         papermill.execute_notebook(
@@ -59,8 +73,12 @@ def find_chromium():
     return None
 
 
-def write_pdf(html_path):
-    """Print a record's HTML to PDF with headless Chromium; the PDF lands beside it."""
+def write_pdf(html_path, force=False):
+    """Print a record's HTML to PDF with headless Chromium; the PDF lands beside it.
+
+    An existing PDF of that name that steamcalc did not print is refused unless ``force``.
+    """
+    _refuse_foreign(Path(html_path).with_suffix(".pdf"), force)
     chromium = find_chromium()
     if chromium is None:
         raise SteamcalcError(

@@ -91,3 +91,7 @@ class RecordError(SteamcalcError):
 
 class RecordConflictError(SteamcalcError):
     """Writing a record would replace a different record of the same id and revision."""
+
+
+class RecordBusyError(RecordError):
+    """Another writer holds the record's lock (a run, a workbook save or a sign-off)."""

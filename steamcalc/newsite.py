@@ -3,11 +3,13 @@
 from __future__ import annotations
 
 import json
+import os
 import shutil
 import tempfile
 from pathlib import Path
 
 from .errors import SteamcalcError
+from .issuing import folder_mode
 
 
 def default_template():
@@ -46,6 +48,8 @@ def new_site(destination, template=None):
     destination.parent.mkdir(parents=True, exist_ok=True)
     staging = Path(tempfile.mkdtemp(prefix=f".{destination.name}.", dir=destination.parent))
     try:
+        # mkdtemp makes a private (0700) folder; the new site is shared like any folder the user makes.
+        os.chmod(staging, folder_mode())
         shutil.copy2(template / "site.toml", staging / "site.toml")
         if (template / "cases").is_dir():
             shutil.copytree(template / "cases", staging / "cases")
@@ -55,11 +59,20 @@ def new_site(destination, template=None):
                             ignore=shutil.ignore_patterns("*.key"))
         for notebook in sorted(template.parent.glob("*.ipynb")) + sorted(template.glob("*.ipynb")):
             _copy_workbook(notebook, staging / notebook.name, template.name)
+        _follow_umask(staging)
         staging.rename(destination)
     except BaseException:
         shutil.rmtree(staging, ignore_errors=True)
         raise
     return sorted(p for p in destination.rglob("*") if p.is_file())
+
+
+def _follow_umask(folder):
+    # Copies keep the template's modes; a new folder's files should have the user's own, as `cp` gives.
+    from .issuing import file_mode
+
+    for path in folder.rglob("*"):
+        os.chmod(path, folder_mode() if path.is_dir() else file_mode())
 
 
 def _copy_workbook(source, target, template_name):

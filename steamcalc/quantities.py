@@ -68,6 +68,30 @@ RECORD_UNITS = {
     "dimensionless": "",
 }
 
+#: Stated bounds of a quantity given as input, in the SI unit of its kind: ``(smallest, largest)``
+#: magnitude of a value that is not zero. They are far outside any steam plant (0.0036 kg/h to
+#: 36 000 t/h of flow, say) and only stop a slip of the exponent from reaching a calculation; the
+#: calculations and IAPWS-IF97 apply their own, tighter ranges.
+QUANTITY_BOUNDS = {
+    "pressure_difference": (1e-3, 1e9),
+    "temperature_difference": (1e-6, 1e3),
+    "mass_flow": (1e-6, 1e4),
+    "specific_enthalpy": (1e-3, 1e8),
+    "specific_entropy": (1e-6, 1e6),
+    "power": (1e-3, 1e10),
+    "length": (1e-6, 1e5),
+    "velocity": (1e-6, 1e3),
+    "area": (1e-6, 1e6),
+    "flow_coefficient": (1e-6, 1e6),
+    "specific_heat": (1.0, 1e5),
+    "heat_transfer_coefficient": (1e-3, 1e6),
+    "fouling_resistance": (1e-9, 1.0),
+    "volume_flow": (1e-9, 1e3),
+    "density": (1e-3, 1e5),
+    "dimensionless": (1e-12, 1e6),
+    "temperature": (1e-3, 1e4),
+}
+
 _EXAMPLES = {
     "pressure": "'16 bar(g)' or '17 bar(a)'",
     "pressure_difference": "'0.3 bar'",
@@ -89,6 +113,13 @@ _EXAMPLES = {
 
 _NUMBER = r"[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?"
 _SPLIT = re.compile(rf"^\s*({_NUMBER})\s*(.*?)\s*$")
+
+#: Longest quantity string read; no real one comes near it.
+MAX_QUANTITY_TEXT = 100
+# A unit is names joined by '*', '/', '·' or spaces, with small whole exponents and brackets:
+# enough for 'kJ/(kg*K)' or 'm^3/h', and nothing that pint would evaluate as arithmetic.
+_UNIT_TOKEN = re.compile(r"\s*(?:(?P<name>[A-Za-z_°µ%][A-Za-z0-9_°µ]*)|(?P<power>(?:\^|\*\*)\s*-?[1-4](?![0-9]))"
+                         r"|(?P<op>[*/·])|(?P<open>\()|(?P<close>\)))")
 
 # Pressure units and their size in Pa. Each must be followed by its basis.
 _PRESSURE_UNITS = {"bar": 1e5, "mbar": 100.0, "Pa": 1.0, "kPa": 1e3, "MPa": 1e6, "psi": 6894.757293168361}
@@ -180,11 +211,11 @@ def parse_pressure(text, field, atmospheric_pressure=STANDARD_ATMOSPHERE):
             "a pressure needs a unit and its basis", field=field, value=text,
             fix=f"write it as a string, e.g. {_EXAMPLES['pressure']}",
         )
-    match = _PRESSURE.match(text)
+    match = _PRESSURE.match(text) if len(text) <= MAX_QUANTITY_TEXT else None
     if match is None:
-        split = _SPLIT.match(text)
+        split = _SPLIT.match(text) if len(text) <= MAX_QUANTITY_TEXT else None
         unit = split.group(2) if split else ""
-        if split and _is_dimension(unit, "[pressure]"):
+        if split and is_plain_unit(unit) and _is_dimension(unit, "[pressure]"):
             raise UnitError(
                 f"pressure unit '{unit}' is not one steamcalc reads with a basis",
                 field=field, value=text,
@@ -205,7 +236,7 @@ def parse_pressure(text, field, atmospheric_pressure=STANDARD_ATMOSPHERE):
             fix=f"write '{match.group('number')} {unit}(a)' for absolute or "
             f"'{match.group('number')} {unit}(g)' for gauge",
         )
-    value = float(match.group("number")) * _PRESSURE_UNITS[unit]
+    value = _finite_number(match.group("number"), text, field) * _PRESSURE_UNITS[unit]
     if basis.lower() == "g":
         value += atmospheric_pressure
     if value <= 0.0:
@@ -214,6 +245,94 @@ def parse_pressure(text, field, atmospheric_pressure=STANDARD_ATMOSPHERE):
             field=field, value=text, fix="a vacuum is given as an absolute pressure above zero",
         )
     return value
+
+
+def is_plain_unit(unit):
+    """True for a unit written as names, '*', '/', brackets and small whole exponents only.
+
+    Such a unit is read by pint without evaluating any arithmetic: no numbers but exponents
+    from 1 to 4, no chained powers.
+
+    Examples
+    --------
+    >>> is_plain_unit("kJ/(kg*K)"), is_plain_unit("m^3/h"), is_plain_unit("")
+    (True, True, True)
+    >>> is_plain_unit("t/h*9**9**9"), is_plain_unit("h*1e6")
+    (False, False)
+    """
+    if not isinstance(unit, str) or len(unit) > MAX_QUANTITY_TEXT:
+        return False
+    position, depth, previous = 0, 0, "start"
+    while position < len(unit):
+        if unit[position:].strip() == "":
+            break
+        match = _UNIT_TOKEN.match(unit, position)
+        if match is None:
+            return False
+        kind = match.lastgroup
+        if kind == "power" and previous not in ("name", "close"):
+            return False
+        if kind == "open":
+            depth += 1
+            if depth > 3:
+                return False
+        elif kind == "close":
+            depth -= 1
+            if depth < 0 or previous in ("op", "open", "start"):
+                return False
+        elif kind == "op" and previous in ("op", "open", "start"):
+            return False
+        position, previous = match.end(), kind
+    return depth == 0 and previous not in ("op", "open")
+
+
+def _finite_number(number_text, text, field):
+    value = float(number_text)
+    if not math.isfinite(value):
+        raise UnitError(f"'{text}' is not a finite number", field=field, value=text,
+                        fix="give an ordinary number, e.g. 4.5 or 1.2e3")
+    return value
+
+
+def _literal_split(text, field, example):
+    # The one place a quantity string is split: a number, then a plain unit; no arithmetic.
+    if len(text) > MAX_QUANTITY_TEXT:
+        raise UnitError(f"the text is {len(text)} characters long; a quantity is a number and a unit",
+                        field=field, value=text[:40] + "...", fix=f"e.g. {example}")
+    split = _SPLIT.match(text)
+    if split is None:
+        raise UnitError(f"'{text}' is not a number followed by a unit", field=field, value=text,
+                        fix=f"e.g. {example}")
+    number, unit = _finite_number(split.group(1), text, field), split.group(2)
+    if unit and not is_plain_unit(unit):
+        raise UnitError(f"'{text}' is not a number followed by a unit (no arithmetic or powers of numbers)",
+                        field=field, value=text, fix=f"write the value worked out, e.g. {example}")
+    return number, unit, split.group(1)
+
+
+def parse_amount(text, field, unit, example):
+    """A number followed by a unit, converted to ``unit`` (for site data such as hours).
+
+    Examples
+    --------
+    >>> parse_amount("0.202 kg/kWh", "fuel_emission_factor", "kg/MWh", "'202 kg/MWh'")
+    202.0
+    """
+    if not isinstance(text, str):
+        raise UnitError("needs a number and a unit, as text", field=field, value=text, fix=f"e.g. {example}")
+    number, unit_text, _ = _literal_split(text, field, example)
+    if not unit_text:
+        raise UnitError(f"'{text}' has no unit", field=field, value=text, fix=f"e.g. {example}")
+    try:
+        value = Q_(number, unit_text).to(unit).magnitude
+    except pint.DimensionalityError:
+        raise UnitError(f"'{text}' is not in units of {unit}", field=field, value=text,
+                        fix=f"e.g. {example}") from None
+    except Exception:
+        raise UnitError(f"unit '{unit_text}' is not known", field=field, value=text, fix=f"e.g. {example}") from None
+    if not math.isfinite(value):
+        raise UnitError(f"'{text}' is not a finite number", field=field, value=text, fix=f"e.g. {example}")
+    return float(value)
 
 
 def _is_dimension(unit_text, dimension):
@@ -263,17 +382,13 @@ def parse_quantity(text, field, kind):
             fix=f"write it as a string with its unit, e.g. {example}",
         )
     text = text.replace("°C", "degC").replace("°F", "degF").replace("℃", "degC")
-    split = _SPLIT.match(text)
-    if split is None:
-        raise UnitError(f"'{text}' is not a number followed by a unit", field=field, value=text,
-                        fix=f"e.g. {example}")
-    number, unit = float(split.group(1)), split.group(2)
+    number, unit, number_text = _literal_split(text, field, example)
     if not unit:
         raise UnitError(f"'{text}' has no unit", field=field, value=text, fix=f"e.g. {example}")
     if kind == "temperature_difference" and unit in _OFFSET_UNITS:
         raise UnitError(
             f"'{text}' is a temperature, but {field} is a temperature difference",
-            field=field, value=text, fix=f"write '{split.group(1)} K' or '{split.group(1)} delta_degC'",
+            field=field, value=text, fix=f"write '{number_text} K' or '{number_text} delta_degC'",
         )
     try:
         quantity = Q_(number, unit)
@@ -287,9 +402,38 @@ def parse_quantity(text, field, kind):
             f"'{text}' is not a {kind.replace('_', ' ')}", field=field, value=text,
             fix=f"give a {kind.replace('_', ' ')}, e.g. {example}",
         ) from None
+    if not math.isfinite(value):
+        raise UnitError(f"'{text}' is not a finite number", field=field, value=text, fix=f"e.g. {example}")
     if kind == "temperature" and value <= 0.0:
         raise UnitError(f"'{text}' is at or below absolute zero", field=field, value=text)
+    check_bounds(value, field, kind, text)
     return float(value)
+
+
+def check_bounds(value, field, kind, given=None):
+    """Refuse a value (SI unit of its kind) outside :data:`QUANTITY_BOUNDS`; zero is left to the caller.
+
+    Examples
+    --------
+    >>> check_bounds(1.25, "mass_flow", "mass_flow")
+    >>> check_bounds(1e300, "mass_flow", "mass_flow")  # doctest: +ELLIPSIS
+    Traceback (most recent call last):
+    ...
+    steamcalc.errors.OutOfRangeError: field 'mass_flow': ... Valid range: 0.0036 to 3.6e+07 kg/h. ...
+    """
+    from .errors import OutOfRangeError
+
+    bounds = QUANTITY_BOUNDS.get(kind)
+    if bounds is None or value == 0.0:
+        return
+    low, high = bounds
+    if not low <= abs(value) <= high:
+        shown = [to_record_unit(b, kind) for b in bounds] if kind != "temperature" else [low, high]
+        unit = RECORD_UNITS[kind] if kind != "temperature" else "K"
+        raise OutOfRangeError(
+            f"{abs(value):g} {SI_UNITS[kind]} is outside the bounds steamcalc accepts for a "
+            f"{kind.replace('_', ' ')}", field=field, value=given if given is not None else value,
+            limits=(shown[0], shown[1], unit), fix="check the number and its unit")
 
 
 def to_record_unit(value_si, kind):
@@ -315,6 +459,14 @@ def from_record_unit(value, unit, kind):
     >>> from_record_unit(230.0, "degC", "temperature")
     503.15
     """
+    if isinstance(value, bool) or not isinstance(value, (int, float)) or not math.isfinite(value):
+        raise UnitError("a record value must be a finite number", field=kind, value=value)
     if kind == "dimensionless":
         return float(value)
-    return float(Q_(value, unit).to(SI_UNITS[kind]).magnitude)
+    if not is_plain_unit(unit):
+        raise UnitError("a record unit must be a plain unit name", field=kind, value=unit)
+    try:
+        return float(Q_(value, unit).to(SI_UNITS[kind]).magnitude)
+    except Exception:
+        raise UnitError(f"the record unit '{unit}' is not a unit of {kind.replace('_', ' ')}", field=kind,
+                        value=unit) from None

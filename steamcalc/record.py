@@ -20,15 +20,14 @@ from __future__ import annotations
 import copy
 import hashlib
 import json
-import os
 import platform
-import tempfile
 from datetime import datetime, timezone
 from functools import lru_cache
 from importlib import metadata
 from pathlib import Path
 
 from .errors import RecordConflictError, RecordError
+from .issuing import write_text_atomic  # noqa: F401  (one atomic writer, re-exported)
 
 SCHEMA = "steamcalc.record/1"
 _PROVENANCE_PACKAGES = ("steamcalc", "iapws", "seuif97", "pint", "numpy", "jinja2")
@@ -131,13 +130,19 @@ def record_stem(record):
 
 
 def load_record(path):
-    """Read a record file and check it is a steamcalc record (not yet its digest)."""
+    """Read a record file and check it is a steamcalc record (not yet its digest).
+
+    The file is read within a size limit (:data:`steamcalc.inputfiles.MAX_RECORD_FILE`), and
+    the parts that later steps rely on are type-checked, so an edited or crafted record is
+    refused by name instead of failing somewhere later.
+    """
+    from .inputfiles import MAX_RECORD_FILE, read_text_file
+
     path = Path(path)
+    text = read_text_file(path, "record file", MAX_RECORD_FILE, RecordError)
     try:
-        data = json.loads(path.read_text(encoding="utf-8"))
-    except FileNotFoundError:
-        raise RecordError("record file not found", source=path) from None
-    except (json.JSONDecodeError, UnicodeDecodeError) as exc:
+        data = json.loads(text)
+    except (json.JSONDecodeError, RecursionError) as exc:
         raise RecordError(f"not a JSON file: {exc}", source=path) from None
     if not isinstance(data, dict) or data.get("schema") != SCHEMA:
         raise RecordError(f"not a steamcalc record (schema is not {SCHEMA!r})", source=path,
@@ -145,7 +150,49 @@ def load_record(path):
     for key in ("kind", "id", "revision", "inputs", "results", "checks", "site", "digest"):
         if key not in data:
             raise RecordError("the record has no '%s'" % key, field=key, source=path)
+    _check_record_shape(data, path)
     return data
+
+
+def _check_record_shape(data, path):
+    from .site import is_file_name_part
+
+    for key in ("id", "revision"):
+        if not is_file_name_part(data[key]):
+            raise RecordError("not a record steamcalc issued: its %s is not a plain name "
+                              "(letters, digits, '.', '_', '-')" % key, field=key, value=data[key], source=path)
+    for key in ("kind", "digest"):
+        if not isinstance(data[key], str):
+            raise RecordError(f"'{key}' must be text", field=key, value=data[key], source=path)
+    for key in ("inputs", "results", "site"):
+        if not isinstance(data[key], dict):
+            raise RecordError(f"'{key}' must be a table", field=key, source=path)
+    if not isinstance(data["checks"], list) or not all(isinstance(c, dict) for c in data["checks"]):
+        raise RecordError("'checks' must be a list of tables", field="checks", source=path)
+    for section in ("inputs", "results"):
+        for key, entry in data[section].items():
+            if not isinstance(entry, dict):
+                raise RecordError("each entry must be a table with value and unit", field=f"{section}.{key}",
+                                  source=path)
+            unit = entry.get("unit", "")
+            if not isinstance(unit, str) or not _plain_unit(unit):
+                raise RecordError("the unit is not a plain unit name", field=f"{section}.{key}.unit",
+                                  value=unit, source=path)
+    section = data.get("uncertainty")
+    if section is not None:
+        from .uncertainty import MAX_SAMPLES
+        samples = section.get("samples") if isinstance(section, dict) else None
+        # The same cap as a case file's [uncertainty] samples, so an edited record cannot
+        # make verify run for hours.
+        if isinstance(samples, bool) or not isinstance(samples, int) or not 10 <= samples <= MAX_SAMPLES:
+            raise RecordError(f"samples must be a whole number from 10 to {MAX_SAMPLES}",
+                              field="uncertainty.samples", value=samples, limits=(10, MAX_SAMPLES, ""),
+                              source=path)
+
+
+def _plain_unit(unit):
+    from .quantities import is_plain_unit
+    return is_plain_unit(unit)
 
 
 def record_text(record):
@@ -153,22 +200,14 @@ def record_text(record):
     return json.dumps(record, indent=2, ensure_ascii=False, allow_nan=False) + "\n"
 
 
-def write_text_atomic(path, text):
-    """Write a text file through a temporary file and a rename: never half-written."""
-    path = Path(path)
-    path.parent.mkdir(parents=True, exist_ok=True)
-    handle, temp = tempfile.mkstemp(dir=path.parent, prefix=f".{path.name}.", suffix=".part")
-    try:
-        with os.fdopen(handle, "w", encoding="utf-8", newline="\n") as out:
-            out.write(text)
-        os.replace(temp, path)
-    except BaseException:
-        Path(temp).unlink(missing_ok=True)
-        raise
+def write_record(record, out_dir, renderers=None, force=False):
+    """Issue a record's JSON and its reports as one set, never replacing different content.
 
-
-def write_record(record, out_dir, renderers=None):
-    """Write a record's JSON (and its reports) without ever replacing different content.
+    The set is written under the record's lock and staged before it is moved into place
+    (:mod:`steamcalc.issuing`), so two writers never interleave and a kill at any instant
+    leaves the old set or the new one. Reports left without their JSON by an interrupted
+    older writer are replaced; a file of a report's name that steamcalc did not write is
+    refused unless ``force``.
 
     Parameters
     ----------
@@ -178,51 +217,77 @@ def write_record(record, out_dir, renderers=None):
         Folder to write into; created if absent.
     renderers : dict, optional
         Suffix → function(record) → text, e.g. ``{".html": render_html}``.
+    force : bool
+        Replace report files of these names even when steamcalc did not write them.
 
     Returns
     -------
     tuple
         ``(paths, status)``: the paths of the record's files, and ``"written"`` or
-        ``"unchanged"`` (an existing record of the same content was kept as it was).
+        ``"unchanged"`` (an existing record of the same content was kept as it was; missing or
+        out-of-date reports of it are re-rendered).
 
     Raises
     ------
     RecordConflictError
         If a record of the same id and revision with different content exists.
+    RecordBusyError
+        If another writer holds the record's lock for too long.
     """
-    out_dir = Path(out_dir)
+    from .issuing import ensure_folder, is_own_output, issue_set, record_lock, recover
+
+    out_dir = ensure_folder(out_dir)
     stem = record_stem(record)
+    renderers = renderers or {}
     json_path = out_dir / f"{stem}.json"
-    paths = [json_path] + [out_dir / f"{stem}{suffix}" for suffix in (renderers or {})]
-    if json_path.exists():
-        try:
-            existing = load_record(json_path)
-        except RecordError:
-            raise RecordConflictError(
-                "a file of this name exists and is not a readable record", source=json_path,
-                fix="move it away, or raise the revision in the case file") from None
-        if existing.get("content_digest") == record["content_digest"]:
-            for suffix, render in (renderers or {}).items():
+    paths = [json_path] + [out_dir / f"{stem}{suffix}" for suffix in renderers]
+    with record_lock(out_dir, stem):
+        recover(out_dir, stem)
+        if json_path.exists():
+            try:
+                existing = load_record(json_path)
+            except RecordError:
+                raise RecordConflictError(
+                    "a file of this name exists and is not a readable record", source=json_path,
+                    fix="move it away, or raise the revision in the case file") from None
+            if existing.get("content_digest") != record["content_digest"]:
+                raise RecordConflictError(
+                    f"record {record['id']} revision {record['revision']} already exists with different content",
+                    source=json_path,
+                    fix="raise the revision in the case file ([case] revision) to issue a new record; "
+                        "the existing record is kept as it is")
+            stale = []
+            for suffix, render in renderers.items():
                 report = out_dir / f"{stem}{suffix}"
-                if not report.exists():
-                    write_text_atomic(report, render(existing))
+                text = render(existing)
+                if report.exists() and _same_text(report, text):
+                    continue
+                _refuse_foreign(report, force, is_own_output)
+                stale.append((report.name, text))
+            if stale:
+                issue_set(out_dir, stem, stale)
             return paths, "unchanged"
-        raise RecordConflictError(
-            f"record {record['id']} revision {record['revision']} already exists with different content",
-            source=json_path,
-            fix="raise the revision in the case file ([case] revision) to issue a new record; "
-                "the existing record is kept as it is")
-    for report in paths[1:]:
-        if report.exists():
-            raise RecordConflictError("a report of this name exists without its record", source=report,
-                                      fix="move it away, or raise the revision")
-    # Render everything before writing anything, and write the JSON last, so that a
-    # failure leaves no half-issued record behind.
-    texts = [(out_dir / f"{stem}{suffix}", render(record)) for suffix, render in (renderers or {}).items()]
-    texts.append((json_path, record_text(record)))
-    for path, text in texts:
-        write_text_atomic(path, text)
+        for report in paths[1:]:
+            _refuse_foreign(report, force, is_own_output)
+        # Render everything before writing anything; the JSON moves into place first.
+        files = [(json_path.name, record_text(record))]
+        files += [(f"{stem}{suffix}", render(record)) for suffix, render in renderers.items()]
+        issue_set(out_dir, stem, files)
     return paths, "written"
+
+
+def _same_text(path, text):
+    try:
+        return path.read_text(encoding="utf-8") == text
+    except (OSError, UnicodeDecodeError):
+        return False
+
+
+def _refuse_foreign(path, force, is_own_output):
+    if path.exists() and not force and not is_own_output(path):
+        raise RecordConflictError(
+            "a file of this name exists and was not written by steamcalc", source=path,
+            fix="move it away (or give --force to replace it)")
 
 
 def strip_for_recompute(record):

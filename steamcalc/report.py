@@ -7,6 +7,7 @@ as text.
 
 from __future__ import annotations
 
+import re
 from functools import lru_cache
 from importlib import resources
 
@@ -49,8 +50,31 @@ def format_unit(unit, basis="absolute"):
     return _UNIT_NAMES.get(unit, unit_label(unit, basis)).replace("**2", "²").replace("**3", "³").replace("*", "·")
 
 
+# Characters Markdown gives a meaning inline (emphasis, code, links, images, raw HTML, tables,
+# strike-through, maths in some viewers); user text in the Markdown record has them escaped.
+_MD_SPECIAL = re.compile(r"([\\`*_{}\[\]<>|~#!$&])")
+_CONTROL = re.compile("[\x00-\x08\x0b-\x1f\x7f-\x9f\u202a-\u202e\u2066-\u2069]")
+
+
 def _md(text):
-    return str(text).replace("|", "\\|").replace("\n", " ")
+    """Text for the Markdown record: one line, every Markdown character escaped.
+
+    Examples
+    --------
+    >>> _md("<b>x</b> [link](javascript:y) *a*|b")
+    '\\\\<b\\\\>x\\\\</b\\\\> \\\\[link\\\\](javascript:y) \\\\*a\\\\*\\\\|b'
+    """
+    text = _CONTROL.sub("", re.sub(r"[\r\n]+", " ", str(text).replace("\t", " ")))
+    return _MD_SPECIAL.sub(r"\\\1", text)
+
+
+def _code(text):
+    """Text as a Markdown code span: fenced with more backticks than it holds, on one line."""
+    text = _CONTROL.sub("", re.sub(r"[\r\n]+", " ", str(text).replace("\t", " ")))
+    longest = max((len(run) for run in re.findall(r"`+", text)), default=0)
+    fence = "`" * (longest + 1)
+    pad = " " if text.startswith("`") or text.endswith("`") else ""
+    return f"{fence}{pad}{text}{pad}{fence}"
 
 
 @lru_cache(maxsize=2)
@@ -63,6 +87,7 @@ def _environment(autoescape):
     env.filters["num"] = format_number
     env.filters["unit"] = format_unit
     env.filters["md"] = _md
+    env.filters["code"] = _code
     return env
 
 

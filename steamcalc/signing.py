@@ -290,19 +290,22 @@ def sign_with_key(path, key_file, role="checked", by=None, passphrase_file=None,
 
 
 def write_signed(path, signed, verified_digest):
-    """Write a signed record back: the reports first and the JSON last, each atomically.
+    """Write a signed record back with its reports, as one set under the record's lock.
 
-    The JSON is read again just before: if another writer changed it since it was verified,
-    nothing is written. (Where the record's lock of the issuing module is available, this
-    belongs under it, written as one set.)
+    The JSON is read again under the lock: if another writer changed it since it was verified,
+    nothing is written. A kill at any instant leaves the old set or the new one
+    (:mod:`steamcalc.issuing`).
     """
-    from .record import load_record, record_text, write_text_atomic
+    from .issuing import issue_set, record_lock, recover
+    from .record import load_record, record_text
     from .report import RENDERERS
 
     path = Path(path)
-    texts = [(path.with_suffix(suffix), render(signed)) for suffix, render in RENDERERS.items()]
-    if load_record(path).get("digest") != verified_digest:
-        raise RecordError("not signed: the record changed while it was being verified and signed", source=path,
-                          fix="verify it again and sign the record as it is now")
-    for target, text in texts + [(path, record_text(signed))]:
-        write_text_atomic(target, text)
+    folder, stem = path.parent, path.stem
+    reports = [(path.with_suffix(suffix).name, render(signed)) for suffix, render in RENDERERS.items()]
+    with record_lock(folder, stem):
+        recover(folder, stem)
+        if load_record(path).get("digest") != verified_digest:
+            raise RecordError("not signed: the record changed while it was being verified and signed", source=path,
+                              fix="verify it again and sign the record as it is now")
+        issue_set(folder, stem, [(path.name, record_text(signed))] + reports)

@@ -1,4 +1,4 @@
-"""Diff two records, and the checker's sign-off after a passing verification."""
+"""Diff two records, and the checker's sign-off after a passing verification (locked, issued as a set)."""
 
 from __future__ import annotations
 
@@ -7,7 +7,7 @@ from datetime import datetime, timezone
 from .errors import RecordError
 from pathlib import Path
 
-from .record import compute_digest, record_text, write_text_atomic
+from .record import compute_digest
 from .review import verify_record
 
 
@@ -104,6 +104,11 @@ def _short(value):
 def sign_record(path, record, checker, now=None):
     """Sign a record as checked, after a passing verification; write it and its reports back in place.
 
+    The sign-off holds the record's lock from reading to writing, and re-reads the file under
+    it: of two checkers signing at once, the second waits, finds the record signed, and is
+    refused (no sign-off is lost). The signed JSON and its reports are issued as one set
+    (:func:`steamcalc.issuing.issue_set`), so a kill leaves the unsigned set or the signed one.
+
     Parameters
     ----------
     path : str or Path
@@ -123,16 +128,46 @@ def sign_record(path, record, checker, now=None):
     Raises
     ------
     RecordError
-        If the record is already signed, has a failing check, or does not verify.
+        If the record is already signed, has a failing check, does not verify, or changed on
+        disk since it was read.
     """
+    from .issuing import issue_set, record_lock, recover
+    from .record import load_record
+
     checker = (checker or "").strip()
     if not checker:
         raise RecordError("the checker's name is empty", field="--by", fix="give --by \"Your Name\"")
+    if len(checker) > 200 or any(ch < " " or "\x7f" <= ch < "\xa0" for ch in checker):
+        raise RecordError("the checker's name must be one line of plain text (at most 200 characters)",
+                          field="--by", fix="give --by \"Your Name\"")
+    path = Path(path)
+    stem = path.stem  # the reports sit beside the JSON under its name, whatever it was renamed to
+    with record_lock(path.parent, stem):
+        recover(path.parent, stem)
+        on_disk = load_record(path)
+        if on_disk.get("digest") != record.get("digest"):
+            if on_disk.get("checked_by"):
+                raise RecordError(f"already signed by {on_disk['checked_by']} while you were checking it",
+                                  source=path, fix="a signed record stays as signed; reload it to see the sign-off")
+            raise RecordError("the record changed on disk since it was read", source=path,
+                              fix="read it again, verify it, then sign")
+        signed = _signed(path, on_disk, checker, now)
+        from .report import RENDERERS
+        from .record import record_text
+
+        # The JSON moves into place first: a report never says "signed" beside an unsigned JSON.
+        files = [(path.name, record_text(signed))]
+        files += [(f"{stem}{suffix}", render(signed)) for suffix, render in RENDERERS.items()]
+        issue_set(path.parent, stem, files)
+    return signed
+
+
+def _signed(path, record, checker, now):
     if record.get("checked_by"):
         raise RecordError(f"already signed by {record['checked_by']}", source=path,
                           fix="a signed record stays as signed; raise the revision to issue a new one")
     if record.get("status") == "fail":
-        failing = "; ".join(c["name"] for c in record.get("checks", []) if c.get("status") == "fail")
+        failing = "; ".join(str(c.get("name")) for c in record.get("checks", []) if c.get("status") == "fail")
         raise RecordError(f"the record has failing checks ({failing}) and cannot be signed", source=path,
                           fix="resolve the failing checks in a new revision")
     outcome = verify_record(record)
@@ -155,11 +190,4 @@ def sign_record(path, record, checker, now=None):
         },
     }
     signed["digest"] = compute_digest(signed)
-    from .report import RENDERERS
-
-    # Reports first and the JSON last, as when a record is issued.
-    path = Path(path)
-    for suffix, render in RENDERERS.items():
-        write_text_atomic(path.with_suffix(suffix), render(signed))
-    write_text_atomic(path, record_text(signed))
     return signed

@@ -31,6 +31,22 @@ CASE_KEYS = ("kind", "id", "title", "revision", "prepared_by", "site")
 SITE_KEYS = ("name", "elevation", "atmospheric_pressure", "operating_hours", "fuel_price",
              "boiler_efficiency", "makeup_water_temperature", "power_price", "display_units",
              "fuel_emission_factor", "ambient_temperature", "fuel_basis", "water_cost")
+#: Longest free text (title, names, notes) accepted from a case or site file.
+MAX_TEXT = 2000
+#: Elevations of inhabited places, m (the Dead Sea shore to the highest towns, with a margin).
+SITE_ELEVATIONS = (-500.0, 6000.0)
+#: Site atmospheric pressure, Pa (absolute): the standard atmosphere over SITE_ELEVATIONS, with
+#: 5 % for the weather.
+SITE_ATMOSPHERE = (0.45e5, 1.13e5)
+#: Make-up water temperature, K: liquid water at the atmosphere.
+MAKEUP_WATER_TEMPERATURE = (273.15, 373.15)
+#: Ambient (dead-state) temperature, K: the extremes measured on the earth's surface, rounded out.
+AMBIENT_TEMPERATURE = (273.15 - 90.0, 273.15 + 60.0)
+#: Energy price per MWh, in any currency (a label): not negative; the upper bound only catches a slip.
+PRICE_PER_MWH = (0.0, 1.0e7)
+#: CO2 per MWh of fuel, kg: pure carbon burnt gives about 400 (44/12 kg CO2 per kg at 32.8 MJ/kg
+#: higher heating value, from memory); nothing burnt as fuel gives much more.
+EMISSION_FACTOR = (0.0, 500.0)
 _PRICE = re.compile(r"^\s*([0-9.]+(?:[eE][+-]?\d+)?)\s*([A-Za-z]{1,5})\s*/\s*(MWh|kWh)\s*$")
 _WATER_COST = re.compile(r"^\s*([0-9.]+(?:[eE][+-]?\d+)?)\s*([A-Za-z]{1,5})\s*/\s*(m3|m\^3|m\*\*3|m³|L|l)\s*$")
 
@@ -146,20 +162,41 @@ class Site:
 
 
 def _read_toml(path, what):
+    from .inputfiles import read_text_file
+
     path = Path(path)
+    text = read_text_file(path, what)
     try:
-        with path.open("rb") as handle:
-            return tomllib.load(handle)
-    except FileNotFoundError:
-        raise CaseFileError(f"{what} not found", source=path,
-                            fix="check the path (relative paths are from the current folder)") from None
-    except IsADirectoryError:
-        raise CaseFileError(f"{what} is a folder, not a file", source=path) from None
+        return tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
         raise CaseFileError(f"not valid TOML: {exc}", source=path,
                             fix="correct the TOML syntax at the line named") from None
-    except UnicodeDecodeError:
-        raise CaseFileError("not a text (UTF-8 TOML) file", source=path) from None
+    except RecursionError:
+        raise CaseFileError("not valid TOML: nested too deeply", source=path) from None
+
+
+def _table(value, where):
+    # A TOML key where a table belongs ("site = 3" instead of "[site]") is named, not a crash.
+    if not isinstance(value, dict):
+        raise CaseFileError(f"[{where}] must be a table", field=where, value=_shown(value),
+                            fix=f"write it as a [{where}] section with its keys below it")
+    return value
+
+
+def _text(value, field_name, example):
+    if not isinstance(value, str):
+        raise CaseFileError("must be text in quotes", field=field_name, value=_shown(value),
+                            fix=f"e.g. {field_name} = {example}")
+    if len(value) > MAX_TEXT:
+        raise CaseFileError(f"is {len(value)} characters long; at most {MAX_TEXT}", field=field_name,
+                            value=value[:40] + "...")
+    return value
+
+
+def _shown(value):
+    # The value as the message shows it: tables and long lists cut short.
+    text = repr(value)
+    return value if len(text) <= 60 else text[:57] + "..."
 
 
 def _unknown_keys(table, allowed, where, source):
@@ -186,17 +223,21 @@ def load_site(path):
     data = _read_toml(path, "site file")
     try:
         _unknown_keys(data, ("site", "headers"), "top level", path)
-        table = data.get("site", {})
+        table = _table(data.get("site", {}), "site")
         _unknown_keys(table, SITE_KEYS, "site", path)
         if "elevation" in table and "atmospheric_pressure" in table:
             raise CaseFileError("give elevation or atmospheric_pressure, not both", field="elevation")
+        for key in ("name", "display_units"):
+            if key in table:
+                _text(table[key], key, '"SI"' if key == "display_units" else '"North Plant"')
         elevation = None
         atmosphere = STANDARD_ATMOSPHERE
         if "elevation" in table:
-            elevation = parse_quantity(table["elevation"], "elevation", "length")
+            elevation = _within(parse_quantity(table["elevation"], "elevation", "length"), "elevation",
+                                table["elevation"], SITE_ELEVATIONS, "m", "elevations of inhabited places")
             atmosphere = standard_atmosphere_pressure(elevation)
         if "atmospheric_pressure" in table:
-            atmosphere = parse_pressure(table["atmospheric_pressure"], "atmospheric_pressure")
+            atmosphere = _site_atmosphere(table["atmospheric_pressure"])
         hours = None
         if "operating_hours" in table:
             hours = _parse_hours(table["operating_hours"])
@@ -204,11 +245,21 @@ def load_site(path):
         if efficiency is not None:
             _fraction(efficiency, "boiler_efficiency", exclusive_zero=True)
         makeup = table.get("makeup_water_temperature")
+        if makeup is not None:
+            makeup = _site_temperature(makeup, "makeup_water_temperature", MAKEUP_WATER_TEMPERATURE,
+                                       "liquid water at the atmosphere")
+        ambient = table.get("ambient_temperature")
+        if ambient is not None:
+            ambient = _site_temperature(ambient, "ambient_temperature", AMBIENT_TEMPERATURE,
+                                        "temperatures measured outdoors on earth")
         units = table.get("display_units", "SI")
         if units not in ("SI", "US"):
             raise CaseFileError("display_units must be 'SI' or 'US'", field="display_units", value=units)
         headers, header_texts = {}, {}
-        for name, text in data.get("headers", {}).items():
+        for name, text in _table(data.get("headers", {}), "headers").items():
+            if not ID_PATTERN.match(name):
+                raise CaseFileError("a header name may hold only letters, digits, '.', '_' and '-'",
+                                    field=f"headers.{name}", fix='e.g. LP = "2.5 bar(g)"')
             headers[name] = parse_pressure(text, f"headers.{name}", atmosphere)
             header_texts[name] = text
         return Site(
@@ -216,14 +267,12 @@ def load_site(path):
             elevation=elevation, operating_hours=hours,
             fuel_price=_parse_price(table["fuel_price"], "fuel_price") if "fuel_price" in table else None,
             boiler_efficiency=efficiency,
-            makeup_water_temperature=None if makeup is None else parse_quantity(
-                makeup, "makeup_water_temperature", "temperature"),
+            makeup_water_temperature=makeup,
             power_price=_parse_price(table["power_price"], "power_price") if "power_price" in table else None,
             display_units=units, headers=headers, header_texts=header_texts,
             fuel_emission_factor=_parse_emission(table["fuel_emission_factor"])
             if "fuel_emission_factor" in table else None,
-            ambient_temperature=parse_quantity(table["ambient_temperature"], "ambient_temperature", "temperature")
-            if "ambient_temperature" in table else None,
+            ambient_temperature=ambient,
             fuel_basis=_parse_fuel_basis(table["fuel_basis"]) if "fuel_basis" in table else None,
             water_cost=_parse_water_cost(table["water_cost"]) if "water_cost" in table else None,
         )
@@ -231,36 +280,53 @@ def load_site(path):
         raise exc.with_source(path)
 
 
+def _within(value, field_name, given, limits, unit, what, to_unit=lambda v: v):
+    low, high = limits
+    if not low <= value <= high:
+        raise InputError(f"is outside the range of {what}", field=field_name, value=_shown(given),
+                         limits=(to_unit(low), to_unit(high), unit))
+    return value
+
+
+def _site_atmosphere(text):
+    if isinstance(text, str) and re.search(r"(\(\s*[gG]\s*\)|[0-9\s](bar|psi|mbar)[gG])\s*$", text.strip()):
+        raise UnitError("the atmospheric pressure is absolute by definition; a gauge value would shift "
+                        "every gauge pressure of the site", field="atmospheric_pressure", value=text,
+                        fix="write it as an absolute pressure, e.g. '0.992 bar(a)'")
+    atmosphere = parse_pressure(text, "atmospheric_pressure")
+    return _within(atmosphere, "atmospheric_pressure", text, SITE_ATMOSPHERE, "bar(a)",
+                   "the standard atmosphere from -500 m to 6000 m (with 5 % for the weather)",
+                   to_unit=lambda v: v / 1e5)
+
+
+def _site_temperature(text, field_name, limits, what):
+    value = parse_quantity(text, field_name, "temperature")
+    return _within(value, field_name, text, limits, "degC", what, to_unit=lambda v: v - 273.15)
+
+
 def _parse_hours(text):
-    from .quantities import Q_
-    if not isinstance(text, str):
-        raise UnitError("operating_hours needs a unit", field="operating_hours", value=text,
-                        fix="e.g. '6000 h'")
-    try:
-        hours = Q_(text).to("h").magnitude
-    except Exception:
-        raise UnitError("not a time", field="operating_hours", value=text, fix="e.g. '6000 h'") from None
+    from .quantities import parse_amount
+    hours = parse_amount(text, "operating_hours", "h", "'6000 h'")
     if not 0 < hours <= 8784:
         raise InputError("operating hours per year must be above 0 and at most 8784",
-                         field="operating_hours", value=text)
+                         field="operating_hours", value=text, limits=(0, 8784, "h"))
     return float(hours)
 
 
 def _parse_emission(text):
-    from .quantities import Q_
-    try:
-        return float(Q_(text).to("kg/MWh").magnitude)
-    except Exception:
-        raise UnitError("an emission factor is a mass of CO2 per energy of fuel",
-                        field="fuel_emission_factor", value=text, fix="e.g. '0.202 kg/kWh'") from None
+    from .quantities import parse_amount
+    factor = parse_amount(text, "fuel_emission_factor", "kg/MWh", "'0.202 kg/kWh'")
+    return _within(factor, "fuel_emission_factor", text, EMISSION_FACTOR, "kg/MWh",
+                   "CO2 emission factors of fuels")
 
 
 def _parse_price(text, field_name):
-    match = _PRICE.match(text) if isinstance(text, str) else None
+    match = _PRICE.match(text) if isinstance(text, str) and len(text) <= 100 else None
     if match is None:
         raise UnitError("a price is an amount, a currency and an energy unit", field=field_name,
-                        value=text, fix="e.g. '40 EUR/MWh' or '0.04 EUR/kWh'")
+                        value=_shown(text), fix="e.g. '40 EUR/MWh' or '0.04 EUR/kWh'")
     amount = float(match.group(1)) * (1000.0 if match.group(3) == "kWh" else 1.0)
+    _within(amount, field_name, text, PRICE_PER_MWH, "per MWh", "energy prices")
     return Price(amount, match.group(2))
 
 
@@ -283,8 +349,8 @@ def _parse_water_cost(text):
 
 
 def _fraction(value, field_name, exclusive_zero=False):
-    if isinstance(value, bool) or not isinstance(value, (int, float)) or math.isnan(value):
-        raise InputError("must be a plain number from 0 to 1", field=field_name, value=value,
+    if isinstance(value, bool) or not isinstance(value, (int, float)) or not math.isfinite(value):
+        raise InputError("must be a plain number from 0 to 1", field=field_name, value=_shown(value),
                          fix="write it without quotes or units, e.g. 0.98")
     if not (0.0 <= value <= 1.0) or (exclusive_zero and value == 0.0):
         raise InputError("must lie from 0 to 1", field=field_name, value=value, limits=(0, 1, ""))
@@ -328,25 +394,34 @@ def load_case(path):
         meta = data.get("case")
         if meta is None:
             raise CaseFileError("the file has no [case] table", fix="add [case] with kind and id")
+        _table(meta, "case")
         _unknown_keys(meta, CASE_KEYS, "case", path)
         kind = meta.get("kind")
-        if kind not in kinds():
-            raise CaseFileError(f"kind {kind!r} is not a calculation steamcalc knows", field="kind",
+        if not isinstance(kind, str) or kind not in kinds():
+            raise CaseFileError(f"kind {_shown(kind)!r} is not a calculation steamcalc knows", field="kind",
                                 fix=f"use one of: {', '.join(kinds())}")
         case_id = meta.get("id")
         if not is_file_name_part(case_id):
             raise CaseFileError(
                 "the id becomes a file name, so it may hold only letters, digits, '.', '_' and '-', and may "
                 "not start with '.'", field="id", value=case_id, fix="e.g. id = \"LD-01\"")
-        revision = str(meta.get("revision", "A"))
+        revision = meta.get("revision", "A")
+        if isinstance(revision, int) and not isinstance(revision, bool):
+            revision = str(revision)  # revision = 2 is as clear as revision = "2"
         if not is_file_name_part(revision):
-            raise CaseFileError("the revision may hold only letters, digits, '.', '_' and '-'",
-                                field="revision", value=revision)
-        assumptions = data.get("assumptions", {})
+            raise CaseFileError("the revision is text of letters, digits, '.', '_' and '-'",
+                                field="revision", value=_shown(revision), fix='e.g. revision = "B"')
+        for key, example in (("title", '"HP to LP let-down"'), ("prepared_by", '"A. Engineer"'),
+                             ("site", '"../site.toml"')):
+            if key in meta:
+                _text(meta[key], key, example)
+        assumptions = _table(data.get("assumptions", {}), "assumptions")
         _unknown_keys(assumptions, ("notes",), "assumptions", path)
         notes = assumptions.get("notes", [])
         if not isinstance(notes, list) or not all(isinstance(n, str) for n in notes):
             raise CaseFileError("notes must be a list of strings", field="assumptions.notes")
+        for number, note in enumerate(notes):
+            _text(note, f"assumptions.notes[{number}]", '["Valve body by others."]')
         inputs = data.get("inputs")
         if not isinstance(inputs, dict) or not inputs:
             raise CaseFileError("the file has no [inputs] table", fix="add [inputs] with the case's inputs")
@@ -483,8 +558,8 @@ def _pressure_or_header(raw, field_name, site):
 
 
 def _positive_number(value, field_name):
-    if isinstance(value, bool) or not isinstance(value, (int, float)) or math.isnan(value) or value <= 0:
-        raise InputError("must be a plain number above zero", field=field_name, value=value,
+    if isinstance(value, bool) or not isinstance(value, (int, float)) or not math.isfinite(value) or value <= 0:
+        raise InputError("must be a plain, finite number above zero", field=field_name, value=_shown(value),
                          fix="write it without quotes or units")
     return float(value)
 

@@ -59,8 +59,9 @@ def test_run_then_verify(workdir, capsys):
     case = write_case(workdir, GOOD_CASE)
     out = workdir / "out"
     assert run("run", case, "--out", out) == 0
-    files = sorted(p.name for p in out.iterdir())
+    files = sorted(p.name for p in out.iterdir() if not p.name.startswith("."))
     assert files == ["T-01_revA.html", "T-01_revA.json", "T-01_revA.md"]
+    assert sorted(p.name for p in (out / ".steamcalc").iterdir()) == ["T-01_revA.lock"]  # no staging left
     assert run("verify", out / "T-01_revA.json") == 0
     assert "VERIFIED" in capsys.readouterr().out
 

@@ -1,0 +1,530 @@
+"""Fault and bad-input campaign against the command line: prints a table of attempts per category.
+
+Not collected by pytest (its name does not start with test_). Run it from the repository root:
+
+    python tests/fault_campaign.py
+
+Each attempt runs the CLI in a forked child (stdout and stderr captured), so the kills are real
+SIGKILLs of a process in the middle of its work. An attempt is acceptable when the outcome is
+what a careful engineer expects: the set invariant holds and the next run is not blocked; a bad
+input is refused with exit 2 naming the file (and the field), without "internal error" or a
+traceback, within 10 s; nothing foreign is overwritten; output carries no injected markup,
+formulas or terminal escapes.
+"""
+
+import errno
+import json
+import os
+import random
+import re
+import shutil
+import signal
+import sys
+import tempfile
+import time
+from collections import OrderedDict
+from pathlib import Path
+
+ROOT = Path(__file__).resolve().parent.parent
+sys.path.insert(0, str(ROOT))
+
+from steamcalc.cli import main  # noqa: E402
+from steamcalc.record import load_record  # noqa: E402
+from steamcalc.report import RENDERERS  # noqa: E402
+
+DEMO = ROOT / "workbooks" / "demo_site"
+RESULTS = OrderedDict()
+
+
+def tally(category, ok, note=""):
+    row = RESULTS.setdefault(category, [0, 0, []])
+    row[0 if ok else 1] += 1
+    if not ok:
+        row[2].append(note)
+
+
+def cli(args, env=None, timeout=60, kill_after=None, umask=None):
+    """Run main(args) in a forked child; return (exit code or -signal, stdout, stderr, seconds)."""
+    out, err = tempfile.TemporaryFile(), tempfile.TemporaryFile()
+    started = time.monotonic()
+    pid = os.fork()
+    if pid == 0:
+        os.dup2(out.fileno(), 1)
+        os.dup2(err.fileno(), 2)
+        os.environ.update(env or {})
+        if umask is not None:
+            os.umask(umask)
+        try:
+            code = main([str(a) for a in args])
+        except BaseException:
+            code = 99
+        sys.stdout.flush()
+        sys.stderr.flush()
+        os._exit(code)
+    if kill_after is not None:
+        time.sleep(kill_after)
+        os.kill(pid, signal.SIGKILL)
+    deadline = started + timeout
+    while True:
+        done, status = os.waitpid(pid, os.WNOHANG)
+        if done:
+            break
+        if time.monotonic() > deadline:
+            os.kill(pid, signal.SIGKILL)
+            os.waitpid(pid, 0)
+            status = -1
+            break
+        time.sleep(0.01)
+    code = os.waitstatus_to_exitcode(status) if status != -1 else "timeout"
+    out.seek(0), err.seek(0)
+    return code, out.read().decode("utf-8", "replace"), err.read().decode("utf-8", "replace"), \
+        time.monotonic() - started
+
+
+def fresh_site(base):
+    site = Path(tempfile.mkdtemp(dir=base)) / "site"
+    shutil.copytree(DEMO, site, ignore=shutil.ignore_patterns("records"))
+    return site
+
+
+def set_ok(out, stem):
+    """The set invariant as a reader sees it."""
+    files = {p.suffix: p for p in out.glob(f"{stem}.*")} if out.exists() else {}
+    if ".json" not in files:
+        return not files
+    record = load_record(files[".json"])
+    if not record.get("checked_by"):
+        return all("Checked and signed" not in files[s].read_text() for s in files if s != ".json")
+    return True
+
+
+def complete(out, stem):
+    files = {p.suffix: p for p in out.glob(f"{stem}.*")}
+    if set(files) != {".json", *RENDERERS}:
+        return False
+    record = load_record(files[".json"])
+    return all(files[s].read_text() == r(record) for s, r in RENDERERS.items()) and \
+        not list(out.glob(".*.part")) and not list((out / ".steamcalc").glob("*.staged"))
+
+
+def clean_refusal(code, err, *names):
+    return code == 2 and "internal error" not in err and "unexpected error" not in err and "Traceback" not in err \
+        and all(n in err for n in names)
+
+
+POINTS = ["staged:0", "staged:1", "staged:2", "listed", "moved:0", "moved:1", "moved:2"]
+
+
+def kills(base, rng):
+    site = fresh_site(base)
+    case = site / "cases" / "LD-02.toml"
+    probe = base / "probe"
+    _, _, _, seconds = cli(["run", case, "--out", probe])
+    for n in range(32):
+        out = base / f"kill-run-{n}"
+        env = {"STEAMCALC_TEST_KILL_AT": POINTS[n % len(POINTS)]} if n < 14 else {}
+        code, _, _, _ = cli(["run", case, "--out", out], env=env,
+                            kill_after=None if env else rng.uniform(0, 1.3 * seconds))
+        ok = set_ok(out, "LD-02_revA")
+        code2, _, _, _ = cli(["run", case, "--out", out])
+        tally("kill -9 of run", ok and code2 == 0 and complete(out, "LD-02_revA"), f"attempt {n}")
+    for n in range(20):
+        out = base / f"kill-sign-{n}"
+        cli(["run", case, "--out", out])
+        env = {"STEAMCALC_TEST_KILL_AT": POINTS[n % len(POINTS)]} if n < 14 else {}
+        cli(["sign", out / "LD-02_revA.json", "--by", "C. Checker"], env=env,
+            kill_after=None if env else rng.uniform(0, 1.5 * seconds))
+        ok = set_ok(out, "LD-02_revA")
+        code2, _, _, _ = cli(["run", case, "--out", out])   # the next writer finishes or undoes it
+        record = load_record(out / "LD-02_revA.json")
+        signed_right = not record.get("checked_by") or "Checked and signed" in (out / "LD-02_revA.html").read_text()
+        tally("kill -9 of sign", ok and code2 == 0 and complete(out, "LD-02_revA") and signed_right, f"attempt {n}")
+
+
+def disk_full(base):
+    """ENOSPC from os.write once an allowance is spent (run and sign), in the child only."""
+    site = fresh_site(base)
+    case = site / "cases" / "LD-02.toml"
+    for n, allowance in enumerate([0, 2000, 8000, 20000, 40000, 0, 5000, 30000]):
+        out = base / f"full-{n}"
+        if n >= 5:
+            cli(["run", case, "--out", out])
+            before = {p.name: p.read_bytes() for p in out.glob("LD-02*")}
+        pid_args = (["sign", out / "LD-02_revA.json", "--by", "C. Checker"] if n >= 5 else ["run", case, "--out", out])
+        code, _, err = _with_full_disk(pid_args, allowance, base)
+        ok = code in (1, 2) and "No space left on device" in err and "internal error" not in err
+        ok = ok and set_ok(out, "LD-02_revA") and not list(out.glob(".*.part"))
+        if n >= 5:
+            ok = ok and before == {p.name: p.read_bytes() for p in out.glob("LD-02*")}
+        code2, _, _, _ = cli(["run", case, "--out", out])
+        tally("disk full", ok and code2 == 0 and complete(out, "LD-02_revA"), f"allowance {allowance}")
+
+
+def _with_full_disk(args, allowance, base):
+    import steamcalc.issuing as issuing
+    real = os.write
+    state = {"left": allowance}
+
+    def write(fd, data):
+        try:
+            target = os.readlink(f"/proc/self/fd/{fd}")
+        except OSError:
+            target = ""
+        if target.startswith(str(base)):
+            if state["left"] < len(data):
+                raise OSError(errno.ENOSPC, "No space left on device")
+            state["left"] -= len(data)
+        return real(fd, data)
+
+    issuing.os.write = write   # in this parent; the fork inherits it
+    try:
+        code, _, err, _ = cli(args)
+    finally:
+        issuing.os.write = real
+    return code, None, err
+
+
+def races(base):
+    site = fresh_site(base)
+    case = site / "cases" / "LD-02.toml"
+    other = site / "cases" / "LD-02b.toml"
+    other.write_text(case.read_text().replace('"2.0 t/h"', '"2.2 t/h"'))
+    for n in range(28):
+        out = base / f"race-{n}"
+        results = _pair(["run", case, "--out", out], ["run", other, "--out", out])
+        written = sum(1 for code, text in results if code in (0, 1) and "written" in text and "unchanged" not in text)
+        refused = sum(1 for code, text in results if code == 2 and "already exists with different content" in text)
+        tally("races: two runs, one id", written == 1 and refused == 1 and complete(out, "LD-02_revA"), f"pair {n}")
+    for n in range(6):
+        out = base / f"signrace-{n}"
+        cli(["run", case, "--out", out])
+        path = out / "LD-02_revA.json"
+        results = _pair(["sign", path, "--by", "A. One"], ["sign", path, "--by", "B. Two"])
+        signed = [text for code, text in results if code == 0]
+        record = load_record(path)
+        ok = len(signed) == 1 and record["checked_by"] in signed[0] and complete(out, "LD-02_revA")
+        tally("races: two sign-offs", ok, f"pair {n}")
+
+
+def _pair(a, b):
+    """Start two CLI runs as close together as fork allows; both are in flight at once."""
+    import multiprocessing
+    ctx = multiprocessing.get_context("fork")
+    queue, barrier = ctx.Queue(), ctx.Barrier(2)
+
+    def child(args):
+        import io
+        import contextlib
+        buffer = io.StringIO()
+        barrier.wait()
+        with contextlib.redirect_stdout(buffer), contextlib.redirect_stderr(buffer):
+            code = main([str(x) for x in args])
+        queue.put((code, buffer.getvalue()))
+
+    procs = [ctx.Process(target=child, args=(args,)) for args in (a, b)]
+    for p in procs:
+        p.start()
+    results = [queue.get(timeout=120) for _ in procs]
+    for p in procs:
+        p.join()
+    return results
+
+
+def overwrites(base):
+    site = fresh_site(base)
+    case = site / "cases" / "LD-02.toml"
+    out = base / "ow"
+    cli(["run", case, "--out", out])
+    a = out / "LD-02_revA.json"
+    before = a.read_bytes()
+    for extra in ([], ["--force"]):
+        code, _, err, _ = cli(["diff", a, a, "--html", a, *extra])
+        tally("overwrites", code == 2 and a.read_bytes() == before, f"diff --html onto the record {extra}")
+    foreign = base / "mine.html"
+    foreign.write_text("<html>mine</html>")
+    code, _, err, _ = cli(["diff", a, a, "--html", foreign])
+    tally("overwrites", code == 2 and foreign.read_text() == "<html>mine</html>", "diff --html onto a foreign page")
+    out2 = base / "ow2"
+    out2.mkdir()
+    (out2 / "LD-02_revA.md").write_text("my notes")
+    code, _, err, _ = cli(["run", case, "--out", out2])
+    tally("overwrites", code == 2 and (out2 / "LD-02_revA.md").read_text() == "my notes", "run onto a foreign .md")
+    (out2 / "index.csv").write_text("my,spreadsheet\n")
+    code, _, err, _ = cli(["run", case, site / "cases" / "FL-01.toml", "--out", out2, "--force"])
+    tally("overwrites", code == 0 and (out2 / "LD-02_revA.md").read_text() != "my notes", "run --force replaces")
+    out3 = base / "ow3"
+    out3.mkdir()
+    (out3 / "index.csv").write_text("my,spreadsheet\n")
+    code, _, err, _ = cli(["run", case, site / "cases" / "FL-01.toml", "--out", out3])
+    tally("overwrites", code == 2 and (out3 / "index.csv").read_text() == "my,spreadsheet\n", "foreign index.csv")
+    afile = base / "afile"
+    afile.write_text("x")
+    code, _, err, _ = cli(["run", case, "--out", afile])
+    tally("overwrites", clean_refusal(code, err, str(afile)) and afile.read_text() == "x", "--out is a file")
+
+
+def batch(base):
+    site = fresh_site(base)
+    cases = site / "cases"
+    (cases / "bad-site.toml").write_text((cases / "LD-02.toml").read_text().replace('site = "../site.toml"', "site = 123")
+                                         .replace('id = "LD-02"', 'id = "B1"'))
+    (cases / "dry0.toml").write_text((cases / "HX-01.toml").read_text().replace(
+        'steam_pressure = "header:MP"', 'steam_pressure = "header:MP"\nsteam_dryness = 0').replace('id = "HX-01"', 'id = "B2"'))
+    out = base / "batch"
+    code, so, err, _ = cli(["run", cases, "--out", out, "--quiet"])
+    index = (out / "index.html").read_text() if (out / "index.html").exists() else ""
+    tally("batch", code == 2 and "bad-site.toml" in index and (out / "LD-01_revA.json").exists()
+          and "field 'site'" in err, "site = 123 in a folder")
+    tally("batch", code == 2 and "dry0.toml" in index and (out / "FL-01_revA.json").exists()
+          and "internal error" not in err, "steam_dryness = 0 in a folder (a calculation fault, reported only there)")
+    heavy = (cases / "LD-01.toml").read_text()
+    folder = base / "heavy"
+    folder.mkdir()
+    (folder / "LD-02.toml").write_text((cases / "LD-02.toml").read_text().replace(
+        'site = "../site.toml"', f'site = "{site / "site.toml"}"'))
+    for n in range(6):
+        (folder / f"H{n}.toml").write_text(re.sub(r"(?m)^samples = .*$", "samples = 100000",
+                                                  heavy.replace('id = "LD-01"', f'id = "H{n}"'))
+                                           .replace('site = "../site.toml"', f'site = "{site / "site.toml"}"'))
+    out = base / "heavy-out"
+    env = dict(os.environ)
+    import subprocess
+    process = subprocess.Popen([sys.executable, "-m", "steamcalc", "run", str(folder), "--out", str(out), "--quiet"],
+                               stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True,
+                               env={**env, "PYTHONPATH": str(ROOT)})
+    time.sleep(6.0)   # past the imports: the workers are deep in their cases
+    process.send_signal(signal.SIGINT)
+    started = time.monotonic()
+    _, err = process.communicate(timeout=60)
+    stopped = time.monotonic() - started
+    RESULTS.setdefault("_ctrl_c_seconds", stopped)
+    tally("batch", process.returncode == 130 and (out / "index.html").exists() and "did not run" in err
+          and stopped < 5, f"Ctrl-C: exit {process.returncode}, {stopped:.1f} s")
+
+
+def hangs(base):
+    site = fresh_site(base)
+    case = site / "cases" / "LD-02.toml"
+    out = base / "hang"
+    text = case.read_text()
+    attempts = [
+        ("unit arithmetic", text.replace('"2.0 t/h"', '"4.5 t/h*9**9**9"'), ["case"], "mass_flow"),
+        ("huge exponent", text.replace('"2.0 t/h"', '"4.5e999999999 t/h"'), ["case"], "mass_flow"),
+    ]
+    for name, body, _, field in attempts:
+        path = site / "cases" / f"{name.replace(' ', '_')}.toml"
+        path.write_text(body)
+        code, _, err, seconds = cli(["run", path, "--out", out], timeout=20)
+        tally("hangs and memory", clean_refusal(code, err, field) and seconds < 10, name)
+    code, _, err, seconds = cli(["run", case, "--site", "/dev/zero", "--out", out], timeout=20)
+    tally("hangs and memory", clean_refusal(code, err, "/dev/zero") and seconds < 10, "--site /dev/zero")
+    fifo = base / "fifo.toml"
+    os.mkfifo(fifo)
+    code, _, err, seconds = cli(["run", fifo, "--out", out], timeout=20)
+    tally("hangs and memory", clean_refusal(code, err, str(fifo)) and seconds < 10, "a FIFO")
+    big = base / "big.toml"
+    big.write_text("#" * (50 * 1024 * 1024))
+    code, _, err, seconds = cli(["run", big, "--out", out], timeout=20)
+    tally("hangs and memory", clean_refusal(code, err, str(big)) and seconds < 10, "50 MB case file")
+    cli(["run", site / "cases" / "LD-01.toml", "--out", out])
+    record = json.loads((out / "LD-01_revA.json").read_text())
+    record["uncertainty"]["samples"] = 10_000_000
+    edited = out / "edited.json"
+    edited.write_text(json.dumps(record))
+    code, _, err, seconds = cli(["verify", edited], timeout=30)
+    tally("hangs and memory", code == 2 and "samples" in err and seconds < 10, "verify samples = 10000000")
+
+
+SILENT = [
+    ('atmospheric_pressure = "1 bar(g)"', "atmospheric_pressure"),
+    ('atmospheric_pressure = "50 bar(a)"', "atmospheric_pressure"),
+    ('makeup_water_temperature = "15 K"', "makeup_water_temperature"),
+    ('ambient_temperature = "5000 degC"', "ambient_temperature"),
+    ('fuel_emission_factor = "-0.2 kg/kWh"', "fuel_emission_factor"),
+    ('boiler_efficiency = 0', "boiler_efficiency"),
+    ('operating_hours = "9000 h"', "operating_hours"),
+    ('fuel_price = "-40 EUR/MWh"', "fuel_price"),
+]
+
+
+def silent(base):
+    for line, field in SILENT:
+        site = fresh_site(base)
+        text = (site / "site.toml").read_text()
+        key = line.split(" = ")[0]
+        text = re.sub(rf"(?m)^{key} = .*$", "", text)
+        if key == "atmospheric_pressure":
+            text = re.sub(r"(?m)^elevation = .*$", "", text)
+        (site / "site.toml").write_text(text.replace("[site]\n", f"[site]\n{line}\n", 1))
+        code, _, err, _ = cli(["run", site / "cases" / "FL-01.toml", "--out", base / "silent"])
+        tally("silent wrong results", clean_refusal(code, err, field, "site.toml"), line)
+
+
+PAYLOADS = ['=HYPERLINK("http://example.invalid","x")', "+cmd|' /C calc'!A0", "-2+3", "@SUM(A1)", "\tTAB",
+            "<script>alert(1)</script>", "[click](javascript:alert(1))", "![i](http://example.invalid/p.png)",
+            "\u001b[32mVERIFIED\u001b[0m", "| fake | row |", "line\n# heading", "\u202eevil"]
+
+
+def injection(base):
+    sys.path.insert(0, str(ROOT / "tests"))
+    from test_hostile_input import toml_string
+    site = fresh_site(base)
+    source = (site / "cases" / "LD-02.toml").read_text()
+    out = base / "inj"
+    cases = []
+    for n, payload in enumerate(PAYLOADS):
+        text = source.replace('id = "LD-02"', f'id = "I{n:02d}"')
+        text = re.sub(r"(?m)^title = .*$", lambda _: f"title = {toml_string(payload)}", text)
+        text = re.sub(r"(?m)^prepared_by = .*$", lambda _: f"prepared_by = {toml_string(payload)}", text)
+        text += f"\n[assumptions]\nnotes = [{toml_string(payload)}]\n"
+        path = site / "cases" / f"I{n:02d}.toml"
+        path.write_text(text)
+        cases.append(path)
+    code, run_out, run_err, _ = cli(["run", *cases, "--out", out, "--quiet"])
+    import csv
+    rows = {row[0]: row for row in csv.reader((out / "index.csv").read_text().splitlines()[1:])}
+    index = (out / "index.html").read_text()
+    for n, payload in enumerate(PAYLOADS):
+        stem = out / f"I{n:02d}_revA"
+        md = stem.with_suffix(".md").read_text()
+        page = stem.with_suffix(".html").read_text()
+        cell_ok = all(c[:1] not in ("=", "+", "-", "@", "\t", "\r") for c in rows[f"I{n:02d}"])
+        tally("injection", cell_ok, f"CSV {payload!r}")
+        md_ok = not re.search(r"(?<!\\)<script|(?<!\\)\]\(javascript:|!\[i\]\(|\u001b|\n# heading|\| fake \| row \|", md)
+        tally("injection", md_ok, f"Markdown {payload!r}")
+        tally("injection", "<script>" not in page and "href=\"javascript" not in page, f"HTML {payload!r}")
+        cli(["run", cases[n], "--out", out])  # unchanged
+        code, vout, verr, _ = cli(["verify", stem.with_suffix(".json")])
+        code2, dout, derr, _ = cli(["diff", out / "I00_revA.json", stem.with_suffix(".json")])
+        terminal = vout + verr + dout + derr
+        tally("injection", not re.search("[\u001b\u202e]", terminal), f"terminal {payload!r}")
+    hrefs = re.findall(r"href='([^']*)'", index)
+    tally("injection", all(h.startswith("./") for h in hrefs), "index links")
+    record = load_record(out / "I00_revA.json")
+    (out / "javascript:alert(1).json").write_text(json.dumps(record))
+    cli(["run", cases[0], cases[1], "--out", out])
+    hrefs = re.findall(r"href='([^']*)'", (out / "index.html").read_text())
+    tally("injection", all(h.startswith("./") and ":" not in h for h in hrefs), "crafted file name in the index")
+    (out / "crafted.json").write_text(json.dumps(dict(record, id="javascript:alert(1)")))
+    code, _, err, _ = cli(["verify", out / "crafted.json"])
+    tally("injection", code == 2 and "plain name" in err, "crafted record id")
+
+
+def unclear(base):
+    site = fresh_site(base)
+    case = site / "cases" / "LD-02.toml"
+    hx = site / "cases" / "HX-01.toml"
+    text, hx_text = case.read_text(), hx.read_text()
+    out = base / "unclear"
+    variants = [
+        ("inf flow", text.replace('"2.0 t/h"', '"inf t/h"'), "mass_flow"),
+        ("1e400 flow", text.replace('"2.0 t/h"', '"1e400 t/h"'), "mass_flow"),
+        ("nan pressure", text.replace('"header:HP"', '"nan bar(a)"'), "inlet_pressure"),
+        ("1e400 pressure", text.replace('"header:HP"', '"1e400 bar(a)"'), "inlet_pressure"),
+        ("inf dryness", text.replace('inlet_temperature = "230 degC"', "inlet_dryness = inf"), "inlet_dryness"),
+        ("table for a string", text.replace('"2.0 t/h"', "{value = 2}"), "mass_flow"),
+        ("list for a string", text.replace('"2.0 t/h"', '["2 t/h"]'), "mass_flow"),
+        ("date for a string", text.replace('"2.0 t/h"', "2024-01-01"), "mass_flow"),
+        ("bool for a string", text.replace('"2.0 t/h"', "true"), "mass_flow"),
+        ("revision true", text.replace('revision = "A"', "revision = true"), "revision"),
+        ("revision a table", text.replace('revision = "A"', "revision = {a = 1}"), "revision"),
+        ("title a table", re.sub(r'(?m)^title = .*$', "title = {a = 1}", text), "title"),
+        ("prepared_by a list", re.sub(r'(?m)^prepared_by = .*$', "prepared_by = [1]", text), "prepared_by"),
+        ("site a number", text.replace('site = "../site.toml"', "site = 123"), "site"),
+        ("kind a number", text.replace('kind = "letdown"', "kind = 3"), "kind"),
+        ("case a string", "case = 'x'\n" + text.split("[inputs]", 1)[1].join(["[inputs]", ""]), "case"),
+        ("inputs a string", text.split("[inputs]")[0] + 'inputs = "x"\n', "inputs"),
+        ("notes a string", text + '\n[assumptions]\nnotes = "x"\n' if "[assumptions]" not in text else text, "notes"),
+        ("desuperheater a string", text.replace("[inputs]", '[inputs]\ndesuperheater = "x"'), "desuperheater"),
+        ("zero flow", text.replace('"2.0 t/h"', '"0 t/h"'), "mass_flow"),
+        ("negative temperature K", text.replace('"230 degC"', '"-5 K"'), "inlet_temperature"),
+        ("unit arithmetic", text.replace('"2.0 t/h"', '"2 t/h/0"'), "mass_flow"),
+        ("tiny flow", text.replace('"2.0 t/h"', '"1e-300 t/h"'), "mass_flow"),
+        ("huge U", hx_text.replace('"1.8 kW/(m^2 K)"', '"1e300 kW/(m^2 K)"'), "overall_u"),
+        ("tiny U", hx_text.replace('"1.8 kW/(m^2 K)"', '"1e-300 kW/(m^2 K)"'), "overall_u"),
+        ("zero steam dryness", hx_text.replace('steam_pressure = "header:MP"',
+                                               'steam_pressure = "header:MP"\nsteam_dryness = 0'), "steam_dryness"),
+        ("near-zero xT", re.sub(r"(?m)^xt = .*$", "xt = 1e-300", text), "xt"),
+    ]
+    for name, body, field in variants:
+        path = site / "cases" / f"u_{re.sub('[^a-z0-9]', '_', name)}.toml"
+        path.write_text(body)
+        code, _, err, _ = cli(["run", path, "--out", out])
+        tally("unclear errors", clean_refusal(code, err, str(path), field), f"{name}: {err.strip()[-160:]}")
+    bom = site / "cases" / "bom.toml"
+    bom.write_bytes(b"\xef\xbb\xbf" + text.replace('id = "LD-02"', 'id = "BOM"').encode())
+    code, _, err, _ = cli(["run", bom, "--out", out])
+    tally("unclear errors", code == 0, "a UTF-8 BOM")
+    loop = base / "loop.toml"
+    loop.symlink_to(loop)
+    code, _, err, _ = cli(["run", loop, "--out", out])
+    tally("unclear errors", clean_refusal(code, err, str(loop)), "a symlink loop")
+    folder_as_site = base / "adir"
+    folder_as_site.mkdir()
+    code, _, err, _ = cli(["run", case, "--site", folder_as_site, "--out", out])
+    tally("unclear errors", clean_refusal(code, err, str(folder_as_site)), "--site a folder")
+    cli(["run", case, "--out", out])
+    bad = base / "bad.json"
+    bad.write_text("{")
+    code, vout, verr, _ = cli(["verify", bad, out / "LD-02_revA.json"])
+    tally("unclear errors", code == 2 and "VERIFIED" in vout and str(bad) in verr, "verify BAD GOOD")
+    import subprocess
+    done = subprocess.run(f"{sys.executable} -m steamcalc diff {out / 'LD-02_revA.json'} {out / 'BOM_revA.json'} | head -c 5",
+                          shell=True, capture_output=True, text=True, env={**os.environ, "PYTHONPATH": str(ROOT)})
+    tally("unclear errors", "Error" not in done.stderr and "internal" not in done.stderr, "diff ... | head")
+
+
+def permissions(base):
+    site = fresh_site(base)
+    out = base / "perm"
+    cli(["run", site / "cases" / "LD-02.toml", site / "cases" / "FL-01.toml", "--out", out], umask=0o022)
+    for name in ("LD-02_revA.json", "LD-02_revA.html", "LD-02_revA.md", "index.html", "index.csv"):
+        tally("permissions", (out / name).stat().st_mode & 0o777 == 0o644, name)
+    tally("permissions", out.stat().st_mode & 0o777 == 0o755, "records folder")
+    cli(["sign", out / "LD-02_revA.json", "--by", "C. Checker"], umask=0o022)
+    tally("permissions", (out / "LD-02_revA.json").stat().st_mode & 0o777 == 0o644, "signed record")
+    cli(["new-site", base / "plant2", "--from", site], umask=0o022)
+    tally("permissions", (base / "plant2").stat().st_mode & 0o777 == 0o755, "new site folder")
+    tally("permissions", (base / "plant2" / "site.toml").stat().st_mode & 0o777 == 0o644, "new site file")
+
+
+def _warm_up(base):
+    # Import and run once in this process, so each forked attempt starts warm, as a user's
+    # second command would not, but the attempt measures steamcalc's work rather than imports.
+    import io
+    import contextlib
+    import steamcalc.batch, steamcalc.review, steamcalc.runner, steamcalc.signoff, steamcalc.ui.workbook  # noqa: F401
+    site = fresh_site(base)
+    with contextlib.redirect_stdout(io.StringIO()), contextlib.redirect_stderr(io.StringIO()):
+        for name in ("LD-01", "LD-02", "FL-01", "HX-01"):
+            main(["run", str(site / "cases" / f"{name}.toml"), "--out", str(base / "warm")])
+        main(["verify", str(base / "warm" / "LD-02_revA.json")])
+
+
+def main_campaign():
+    rng = random.Random(405)
+    base = Path(tempfile.mkdtemp(prefix="steamcalc-campaign-"))
+    _warm_up(base)
+    started = time.monotonic()
+    for step in (kills, disk_full, races, overwrites, batch, hangs, silent, injection, unclear, permissions):
+        t = time.monotonic()
+        (step(base, rng) if step is kills else step(base))
+        print(f"# {step.__name__}: {time.monotonic() - t:.0f} s", file=sys.stderr)
+    ctrl_c = RESULTS.pop("_ctrl_c_seconds", None)
+    print("| category | attempts | acceptable | not acceptable |")
+    print("|---|---:|---:|---:|")
+    total = [0, 0]
+    for category, (good, bad, notes) in RESULTS.items():
+        print(f"| {category} | {good + bad} | {good} | {bad} |")
+        total[0] += good
+        total[1] += bad
+    print(f"| **all** | {sum(total)} | {total[0]} | {total[1]} |")
+    for category, (_, _, notes) in RESULTS.items():
+        for note in notes:
+            print(f"not acceptable - {category}: {note}")
+    print(f"Ctrl-C stop time: {ctrl_c:.1f} s; campaign took {time.monotonic() - started:.0f} s")
+    shutil.rmtree(base, ignore_errors=True)
+
+
+if __name__ == "__main__":
+    main_campaign()
