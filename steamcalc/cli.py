@@ -275,7 +275,7 @@ def _diff(args):
     for row in rows:
         change = row["change"]
         change = f"{change:+.6g}" if isinstance(change, float) else change
-        print(f"  [{row['section']}] {row['key']}: {_cell(row['old'])} -> {_cell(row['new'])} {row['unit_label']}  ({change})")
+        _say(f"  [{row['section']}] {row['key']}: {_cell(row['old'])} -> {_cell(row['new'])} {row['unit_label']}  ({change})")
     if args.html:
         from .record import write_text_atomic
         from .report import render_diff_html
@@ -337,7 +337,7 @@ def _sign_with_key(args):
         return EXIT_FAILED
     entry = signed["signatures"][-1]
     _say(f"{signed['id']} rev {signed['revision']}: {entry['role']} and signed by {entry['name']} on "
-          f"{entry['date']}, key {short_finger_say(entry['fingerprint'])}")
+          f"{entry['date']}, key {short_fingerprint(entry['fingerprint'])}")
     _say(f"  {args.record}, with its HTML and Markdown")
     from .keys import load_trusted, trusted_folder_for
 
@@ -353,7 +353,7 @@ def _keys(args):
 
     passphrase = read_passphrase(args.passphrase_file) if args.passphrase_file else None
     private, public = new_key_pair(args.name, args.out, passphrase)
-    _say(f"key pair for {args.name}, key {short_finger_say(load_public_key(public).fingerprint)}")
+    _say(f"key pair for {args.name}, key {short_fingerprint(load_public_key(public).fingerprint)}")
     _say(f"  private: {private} (mode 0600{', passphrase-protected' if passphrase else ''}; keep it to yourself)")
     _say(f"  public:  {public} (give it to the site's trusted_signers/ folder)")
     return EXIT_OK
@@ -399,7 +399,7 @@ def _sign(args):
     from .signing import name_only_refusal
     record = load_record(args.record)
     if name_only_refusal(record):
-        print(f"refused: {args.record}: {name_only_refusal(record)}", file=sys.stderr)
+        _say(f"refused: {args.record}: {name_only_refusal(record)}", file=sys.stderr)
         return EXIT_FAILED
     try:
         signed = sign_record(args.record, record, args.by)

@@ -41,8 +41,12 @@ def _gather(client, futures, total, progress):
 
     from .batch import _progress
 
-    for _ in _progress(as_completed(futures), total, progress):
-        pass
+    bar = _progress(total, progress)
+    try:
+        for _ in as_completed(futures):
+            bar.update(1)
+    finally:
+        bar.close()
     return [future.result() for future in futures]
 
 
