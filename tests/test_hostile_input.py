@@ -150,11 +150,10 @@ def _outcome(folder, case_data, site_data, key, value):
 def known_calculation_fault(key, value):
     """Values that reach a calculation and fail inside it (not in the reading of the files).
 
-    They belong to the calculations' own range checks and are reported to their owners; each has
-    an xfail test below, so they stay visible until fixed.
+    Any found belong to the calculations' own range checks; each gets a test below until fixed
+    (the last two, steam_dryness = 0 and xT near 0, are now refused by those checks).
     """
-    small = isinstance(value, (int, float)) and not isinstance(value, bool) and 0 <= value < 1e-3
-    return small and key in ("steam_dryness", "xt")
+    return False   # none known: steam_dryness and xt now have their own range checks
 
 
 FUZZ = settings(max_examples=60, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture,
@@ -174,16 +173,12 @@ def test_random_values_for_every_input_key(kind, data, tmp_path):
     _outcome(tmp_path, case, _site_data(), key, value)
 
 
-@pytest.mark.xfail(reason="calcs/exchanger.py divides by the latent heat given up: steam_dryness = 0 needs "
-                          "a range check there (reported)", raises=ZeroDivisionError)
 def test_zero_steam_dryness_is_refused_by_the_exchanger(tmp_path):
     case = _case_data("exchanger")
     case["inputs"]["steam_dryness"] = 0.0
     _outcome(tmp_path, case, _site_data(), "steam_dryness", 0.0)
 
 
-@pytest.mark.xfail(reason="equipment/valve.py: a pressure differential ratio factor xT near zero gives a complex "
-                          "number in the sizing loop; needs a range check there (reported)", raises=TypeError)
 def test_tiny_xt_is_refused_by_the_valve_sizing(tmp_path):
     case = _case_data("letdown")
     case["inputs"].setdefault("valve", {})["xt"] = 1e-300

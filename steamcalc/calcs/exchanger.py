@@ -80,7 +80,8 @@ class Inputs:
     steam_temperature: float | None = input_field(
         "temperature", "Steam temperature", "Superheated steam temperature (else saturated).", example="190 degC")
     steam_dryness: float | None = input_field(
-        "fraction", "Steam dryness fraction", "Dryness of wet steam (else saturated).", example="0.97")
+        "fraction", "Steam dryness fraction", "Dryness of wet steam (else saturated).", example="0.97",
+        positive=True)
     condensate_subcooling: float | None = input_field(
         "temperature_difference", "Condensate subcooling", "Condensate leaves this far below saturation.",
         example="0 K")
@@ -330,6 +331,10 @@ def calculate(inputs, site):
         result.step("Steam-side heat", "Q_s = Q·(1 + f_loss)", f"Q_s = {duty / 1e3:.2f} kW × (1 + {loss:g})",
                     steam_side / 1e3, "kW")
     specific = steam.enthalpy - condensate.enthalpy
+    if specific <= 0.0:
+        raise InputError(f"the steam ({steam.enthalpy / 1e3:.2f} kJ/kg) gives up no heat down to the condensate "
+                         f"({condensate.enthalpy / 1e3:.2f} kJ/kg)", field="steam_dryness", value=inputs.steam_dryness,
+                         fix="check the steam's dryness (a heating-steam supply is usually above 0.9)")
     steam_flow = steam_side / specific
     result.step("Steam flow", "m_s = Q_s / (h_steam − h_condensate)",
                 f"m_s = {steam_side / 1e3:.2f} kW / ({steam.enthalpy / 1e3:.2f} − {condensate.enthalpy / 1e3:.2f}) kJ/kg",

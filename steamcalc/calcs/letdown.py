@@ -283,6 +283,11 @@ class Inputs:
                 fix="give the design pressure of the downstream system (check the basis, bar(g)/bar(a))")
 
     def _check_valve_inputs(self):
+        # Control valves have xT from about 0.1 (ball, butterfly) to 0.9 (globe): outside 0.05-1 is a
+        # slip, and xT near zero makes the choked limit vanish (common practice; makers' data govern).
+        if self.xt is not None and not 0.05 <= self.xt <= 1.0:
+            raise InputError("xT must lie between 0.05 and 1", field="valve.xt", value=self.xt,
+                             limits=(0.05, 1.0, ""), fix="take xT from the valve maker's data (globe valves 0.6-0.8)")
         if self.characteristic is not None and self.characteristic not in ("linear", "equal-percentage"):
             raise InputError("the characteristic is 'linear' or 'equal-percentage'", field="valve.characteristic",
                              value=self.characteristic)
