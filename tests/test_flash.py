@@ -296,3 +296,12 @@ def test_api_rp_14e_is_information_only():
     assert check.status == "warn" and "for information only" in check.detail
     assert any("API RP 14E" in a and "outside its scope" in a for a in r.assumptions)
     assert "information only" in r.values["inlet_line_erosional_velocity"].label
+
+
+def test_vessel_without_nozzle_sizes_warns_that_buildability_was_not_checked():
+    bare = calculate(Inputs(condensate_pressure=9e5, condensate_flow=0.9, flash_pressure=3.5e5), SITE)
+    check = next(c for c in bare.checks if c.name == "Vessel diameter")
+    assert check.status == "warn" and "no nozzle sizes given" in check.detail
+    sized = calculate(Inputs(condensate_pressure=9e5, condensate_flow=0.9, flash_pressure=3.5e5,
+                             inlet_nozzle="DN80", steam_nozzle="DN150", condensate_nozzle="DN50"), SITE)
+    assert next(c for c in sized.checks if c.name == "Vessel diameter").status == "pass"

@@ -151,9 +151,16 @@ def vessels(inputs, stages, result, v_souders_brown):
     result.add("vessel_residence_time", "Liquid residence time", residence / 60.0, "min")
     if bores:
         result.add("vessel_nozzle_diameter", "Least diameter for the nozzles", d_build, "m")
-    result.check("Vessel diameter", "pass",
-                 f"{diameter:.3f} m, set by the {governs} (vapour area {d_vapour:.3f} m, liquid hold-up "
-                 f"{d_holdup:.3f} m" + (f", nozzles {d_build:.3f} m" if bores else ", no nozzle sizes given") + ")")
+    detail = (f"{diameter:.3f} m, set by the {governs} (vapour area {d_vapour:.3f} m, liquid hold-up "
+              f"{d_holdup:.3f} m" + (f", nozzles {d_build:.3f} m)" if bores else ")"))
+    if bores:
+        result.check("Vessel diameter", "pass", detail)
+    else:
+        # Without the nozzle sizes the buildability criterion cannot be applied: the vessel may be too
+        # narrow for its own steam outlet.
+        result.check("Vessel diameter", "warn",
+                     detail + ": no nozzle sizes given, so the vessel is not checked against its nozzles (a "
+                     "nozzle above half the shell diameter is no ordinary opening); give the nozzle sizes")
     nozzles(inputs, stages, bores, result)
 
 
