@@ -509,8 +509,8 @@ def parse_inputs(inputs_class, flat, site):
         if f.name not in flat:
             continue
         raw = flat[f.name]
-        # An aliased field is named by its case-file address, others by their name as before.
-        where = field_path(f) if f.metadata.get("key") else f.name
+        # Errors name the field by its case-file address ("valve.fl", "relief.inlet_size").
+        where = field_path(f)
         kind = f.metadata["kind"]
         given[f.name] = raw if isinstance(raw, str) else _number_text(raw)
         if kind == "pressure":

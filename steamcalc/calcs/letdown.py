@@ -133,7 +133,7 @@ class Inputs:
         example="DN50", section="valve")
     valve_outlet_size: str | None = input_field(
         "nominal_size", "Valve outlet port size", "Nominal size of the valve's outlet port, for the outlet Mach "
-        "number and the noise (default: the valve size).", example="DN80", section="valve", key="valve_outlet_size")
+        "number and the noise (default: the valve size).", example="DN80", section="valve")
     noise_limit: str | None = input_field(
         "text", "Noise limit at 1 m", "A-weighted sound pressure limit 1 m from the pipe (default 85 dB(A)).",
         example="85 dB(A)", section="valve", key="noise_limit")
@@ -154,25 +154,25 @@ class Inputs:
         example="45 m/s", section="lines", positive=True)
     inlet_length: float | None = input_field(
         "length", "Inlet line length", "Straight length of the inlet line, for its pressure drop.", example="25 m",
-        section="lines", positive=True, key="inlet_length")
+        section="lines", positive=True)
     outlet_length: float | None = input_field(
         "length", "Outlet line length", "Straight length of the outlet line, for its pressure drop.",
-        example="40 m", section="lines", positive=True, key="outlet_length")
+        example="40 m", section="lines", positive=True)
     inlet_fittings_k: float | None = input_field(
         "number", "Inlet line fittings K", "Sum of the inlet line's fittings loss coefficients.", example="2.0",
-        section="lines", key="inlet_fittings_k")
+        section="lines")
     outlet_fittings_k: float | None = input_field(
         "number", "Outlet line fittings K", "Sum of the outlet line's fittings loss coefficients.", example="3.0",
-        section="lines", key="outlet_fittings_k")
+        section="lines")
     set_pressure: float | None = input_field(
         "pressure", "Relief set pressure", "Set pressure of the relief valve protecting the outlet side.",
-        example="4.5 bar(g)", section="relief", key="set_pressure")
+        example="4.5 bar(g)", section="relief")
     overpressure: float | None = input_field(
         "dimensionless", "Relief overpressure", "Allowable overpressure, of the gauge set pressure (default 10 %).",
-        example="10 %", section="relief", positive=True, key="overpressure")
+        example="10 %", section="relief", positive=True)
     back_pressure: float | None = input_field(
         "pressure", "Relief back pressure", "Superimposed plus built-up back pressure at the relief valve outlet "
-        "(default atmospheric).", example="0 bar(g)", section="relief", key="back_pressure")
+        "(default atmospheric).", example="0 bar(g)", section="relief")
     relief_kd: float | None = input_field(
         "fraction", "Relief Kd", "Effective coefficient of discharge (default 0.975, API 520 Part I).",
         example="0.975", section="relief", positive=True, key="kd")
@@ -196,10 +196,10 @@ class Inputs:
         "(default: the API 526 outlet of the orifice).", example="DN100", section="relief", key="discharge_size")
     design_pressure: float | None = input_field(
         "pressure", "Downstream design pressure", "Design pressure of the downstream system.", example="6 bar(g)",
-        section="downstream", key="design_pressure")
+        section="downstream")
     design_temperature: float | None = input_field(
         "temperature", "Downstream design temperature", "Design temperature of the downstream system.",
-        example="180 degC", section="downstream", key="design_temperature")
+        example="180 degC", section="downstream")
     isentropic_efficiency: float | None = input_field(
         "fraction", "Turbine isentropic efficiency", "Of a back-pressure turbine in place of the valve.",
         example="0.55", section="turbine", positive=True)
