@@ -73,6 +73,7 @@ RECORD_UNITS = {
 #: 36 000 t/h of flow, say) and only stop a slip of the exponent from reaching a calculation; the
 #: calculations and IAPWS-IF97 apply their own, tighter ranges.
 QUANTITY_BOUNDS = {
+    "pressure": (1.0, 1e9),
     "pressure_difference": (1e-3, 1e9),
     "temperature_difference": (1e-6, 1e3),
     "mass_flow": (1e-6, 1e4),
@@ -90,6 +91,7 @@ QUANTITY_BOUNDS = {
     "density": (1e-3, 1e5),
     "dimensionless": (1e-12, 1e6),
     "temperature": (1e-3, 1e4),
+    "time": (1e-3, 1e7),
 }
 
 _EXAMPLES = {
@@ -244,6 +246,7 @@ def parse_pressure(text, field, atmospheric_pressure=STANDARD_ATMOSPHERE):
             f"'{text}' is an absolute pressure of {value / 1e5:.5g} bar(a), at or below zero",
             field=field, value=text, fix="a vacuum is given as an absolute pressure above zero",
         )
+    check_bounds(value, field, "pressure", text)
     return value
 
 
@@ -429,9 +432,10 @@ def check_bounds(value, field, kind, given=None):
     low, high = bounds
     if not low <= abs(value) <= high:
         shown = [to_record_unit(b, kind) for b in bounds] if kind != "temperature" else [low, high]
-        unit = RECORD_UNITS[kind] if kind != "temperature" else "K"
+        unit = {"temperature": "K", "pressure": "bar(a)", "pressure_difference": "bar difference"}.get(
+            kind, RECORD_UNITS[kind])
         raise OutOfRangeError(
-            f"{abs(value):g} {SI_UNITS[kind]} is outside the bounds steamcalc accepts for a "
+            f"{abs(value):g} {SI_UNITS[kind]}{'(a)' if kind == 'pressure' else ''} is outside the bounds steamcalc accepts for a "
             f"{kind.replace('_', ' ')}", field=field, value=given if given is not None else value,
             limits=(shown[0], shown[1], unit), fix="check the number and its unit")
 

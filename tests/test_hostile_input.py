@@ -404,3 +404,15 @@ def test_a_crafted_record_gives_no_script_link_in_the_index(site_dir, tmp_path):
     assert hrefs and all(h.startswith("./") and ":" not in h for h in hrefs), hrefs
     with pytest.raises(SteamcalcError, match="plain name"):
         load_record(out / "crafted.json")
+
+
+@pytest.mark.parametrize("section,key,text", [
+    ("vessel", "residence_time", "1e300 min"),       # a time had no bounds: a 4e96 m vessel was issued
+    ("", "condensate_pressure", "1e300 bar(g)"),     # absolute pressures are bounded too
+])
+def test_absurd_times_and_pressures_are_refused(tmp_path, section, key, text):
+    case = _case_data("flash")
+    (case["inputs"].setdefault(section, {}) if section else case["inputs"])[key] = text
+    with pytest.raises(SteamcalcError) as info:
+        _issue(tmp_path, case, _site_data())
+    assert key in str(info.value) and not re.search(r"\bbar\b(?!\()", str(info.value))
