@@ -210,10 +210,11 @@ def valve_section(inputs, inlet, result):
                               "at the normal pressure (common practice)")
     with_fittings = _valve_geometry(inputs)[1][0] is not None
     result.add("isentropic_exponent", "Isentropic exponent at the inlet", kappa)
-    sizing, states = {}, {}
+    sizing, states, kappas = {}, {}, {}
     for name, flow in flow_cases(inputs):
         state, drop = valve_inlet_state(inputs, name, flow, inlet)
-        s = required_kv(inputs, state, sizing_kappa(state), flow)
+        kappas[name] = sizing_kappa(state)
+        s = required_kv(inputs, state, kappas[name], flow)
         sizing[name], states[name] = s, state
         result.states[f"valve_inlet_{name}"] = state
         if drop:
@@ -225,7 +226,7 @@ def valve_section(inputs, inlet, result):
     design_case = "maximum" if "maximum" in sizing else "normal"
     design, state = sizing[design_case], states[design_case]
     p1_kpa, p2_kpa = state.pressure / 1e3, inputs.outlet_pressure / 1e3
-    design_kappa = sizing_kappa(state)
+    design_kappa = kappas[design_case]
     if f"inlet_line_pressure_drop_{design_case}" in result.values:
         header = case_inlet_pressure(inputs, design_case)
         result.step("Valve inlet pressure", f"p1 = p_header − Δp_inlet line  ({design_case} flow; Darcy–Weisbach)",
@@ -341,7 +342,6 @@ def relief_load_section(inputs, inlet, result):
         # Steam arriving colder (down to saturation) at the highest pressure is denser and passes more:
         # the record states by how much, so the relief designer can choose the basis.
         saturated = SteamState.from_p_dryness(p_up, 1.0)
-        fp, xtp = piping_factors(inputs.rated_kv, valve_d, inlet_d, outlet_d, xt) if valve_d is not None else (1.0, xt)
         colder = valve_flow(inputs.rated_kv, p_up / 1e3, p_down / 1e3, saturated.density, sizing_kappa(saturated),
                             xtp, fp)
         result.assumptions.append(
@@ -381,9 +381,9 @@ def line_section(inputs, inlet, throttled, outlet, result):
         result.assumptions.append(f"Line velocity limits {wet_limit:g} m/s for saturated or wet steam and "
                                   f"{hot_limit:g} m/s for superheated steam (common practice)")
     design_case = "maximum" if inputs.max_flow is not None else "normal"
-    # The inlet line carries the design flow at that case's upstream pressure (the lowest, for the
-    # maximum flow): the least dense steam and the highest velocity.
-    inlet = inlet_state_at(inputs, case_inlet_pressure(inputs, design_case), inlet)
+    # The inlet line carries the design flow at that case's valve inlet state (the lowest upstream
+    # pressure, less the line's drop, for the maximum flow): the least dense steam, the highest velocity.
+    inlet = result.states[f"valve_inlet_{design_case}"]   # found by valve_section
     result.assumptions.append(f"Line velocities at the {design_case} flow, the inlet line at "
                               f"{inlet.pressure / 1e5:.4g} bar(a), schedule {schedule} pipe (ASME B36.10M)")
 
