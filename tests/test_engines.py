@@ -1,5 +1,5 @@
 """The two IF97 engines behind steamcalc.steam: the fast engine (seuif97) against the IAPWS-IF97
-verification tables and against the reference engine (iapws); the engine choice is explicit and
+verification tables (in tests/test_if97_verification.py) and against the reference engine (iapws); the engine choice is explicit and
 context-local; each engine imports neither the other nor the calculations; ``verify --engine fast``
 reproduces every demo record."""
 
@@ -16,49 +16,12 @@ import pytest
 from steamcalc.cli import main
 from steamcalc.engines import FAST_ENGINE, REFERENCE_ENGINE, current_engine, other_engine, using_engine
 from steamcalc.errors import InputError
-from steamcalc.steam import SteamState, saturation_pressure, saturation_temperature
-from tests.reference_data import ids, rows, significant
+from steamcalc.steam import SteamState, saturation_temperature
 
 PACKAGE = Path(__file__).resolve().parent.parent / "steamcalc"
 
-TABLE5 = rows("if97_table5_region1")
-TABLE15 = rows("if97_table15_region2")
-TABLE35 = rows("if97_table35_saturation_pressure")
-TABLE36 = rows("if97_table36_saturation_temperature")
-TABLE7 = rows("if97_table7_backward_region1")
-TABLE24 = rows("if97_table24_backward_region2")
 
-
-# -- the fast engine against IAPWS R7-97(2012)'s own verification tables (source column in each CSV) --------
-@pytest.mark.parametrize("row", TABLE5 + TABLE15, ids=ids(TABLE5) + ids(TABLE15))
-def test_fast_engine_if97_tables_5_and_15_forward(row):
-    state = SteamState.from_pT(float(row["pressure_MPa"]) * 1e6, float(row["temperature_K"]), engine=FAST_ENGINE)
-    assert state.engine == FAST_ENGINE
-    assert significant(state.specific_volume) == significant(float(row["v_m3_per_kg"]))
-    assert significant(state.enthalpy / 1e3) == significant(float(row["h_kJ_per_kg"]))
-    assert significant(state.entropy / 1e3) == significant(float(row["s_kJ_per_kgK"]))
-    assert significant(state.cp / 1e3) == significant(float(row["cp_kJ_per_kgK"]))
-    assert significant(state.speed_of_sound) == significant(float(row["w_m_per_s"]))
-
-
-@pytest.mark.parametrize("row", TABLE35, ids=ids(TABLE35))
-def test_fast_engine_if97_table35_saturation_pressure(row):
-    value = saturation_pressure(float(row["temperature_K"]), engine=FAST_ENGINE) / 1e6
-    assert significant(value) == significant(float(row["saturation_pressure_MPa"]))
-
-
-@pytest.mark.parametrize("row", TABLE36, ids=ids(TABLE36))
-def test_fast_engine_if97_table36_saturation_temperature(row):
-    value = saturation_temperature(float(row["pressure_MPa"]) * 1e6, engine=FAST_ENGINE)
-    assert significant(value) == significant(float(row["saturation_temperature_K"]))
-
-
-@pytest.mark.parametrize("row", TABLE7 + TABLE24, ids=ids(TABLE7) + ids(TABLE24))
-def test_fast_engine_if97_tables_7_and_24_backward(row):
-    from steamcalc.engines import engine_module
-    value = engine_module(FAST_ENGINE).backward_temperature_ph(float(row["pressure_MPa"]) * 1e6,
-                                                               float(row["h_kJ_per_kg"]) * 1e3)
-    assert significant(value) == significant(float(row["temperature_K"]))
+# The fast engine against IAPWS R7-97(2012)'s own verification tables: tests/test_if97_verification.py.
 
 
 # -- the fast engine against the reference engine: both evaluate IF97, so they agree far more ---------------

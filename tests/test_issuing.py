@@ -6,7 +6,6 @@ interrupted commit) the new set; nothing left behind blocks the next run.
 """
 
 import errno
-import json
 import multiprocessing
 import os
 import random
@@ -20,7 +19,7 @@ from pathlib import Path
 import pytest
 
 from steamcalc.cli import main
-from steamcalc.errors import RecordBusyError, RecordConflictError, RecordError
+from steamcalc.errors import RecordConflictError, RecordError
 from steamcalc.issuing import WORK_FOLDER, record_lock, recover
 from steamcalc.record import load_record, write_record
 from steamcalc.report import RENDERERS
