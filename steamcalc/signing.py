@@ -264,6 +264,7 @@ def sign_with_key(path, key_file, role="checked", by=None, passphrase_file=None,
     RecordError
         The record may not be signed (it does not verify, its recomputed status is fail, ...).
     """
+    from .issuing import record_lock, recover
     from .record import load_record
     from .review import check_companions, verify_record
 
@@ -275,37 +276,37 @@ def sign_with_key(path, key_file, role="checked", by=None, passphrase_file=None,
         raise SigningInputError(f"the key belongs to {name}, not to {by.strip()}", field="--by", value=by,
                                 fix="give the key's own name with --by, or leave --by out")
     trusted = load_trusted(trusted_dir if trusted_dir else trusted_folder_for(path), required=bool(trusted_dir))
-    try:
-        record = load_record(path)
-    except RecordError as exc:  # no such file, or not a record: bad input, not a refusal
-        raise SigningInputError(exc.message, source=path, field=exc.field, fix=exc.fix) from None
-    outcome = verify_record(record)
-    companions = check_companions(path, record)
-    reason = refusal(record, outcome, role, name, trusted, companions)
-    if reason:
-        raise RecordError(f"not signed: {reason}", source=path)
-    signed = add_signature(record, key, name, role, verification_summary(outcome, companions), now)
-    write_signed(path, signed, record["digest"])
+    path = Path(path)
+    if not path.is_file():
+        raise SigningInputError("record file not found", source=path, fix="check the path")
+    # One writer per record: the lock is held from reading the record through verifying it to
+    # writing it back, so a second signer waits and then sees the record as the first left it.
+    with record_lock(path.parent, path.stem):
+        recover(path.parent, path.stem)
+        try:
+            record = load_record(path)
+        except RecordError as exc:  # not a record: bad input, not a refusal
+            raise SigningInputError(exc.message, source=path, field=exc.field, fix=exc.fix) from None
+        outcome = verify_record(record)
+        companions = check_companions(path, record)
+        reason = refusal(record, outcome, role, name, trusted, companions)
+        if reason:
+            raise RecordError(f"not signed: {reason}", source=path)
+        signed = add_signature(record, key, name, role, verification_summary(outcome, companions), now)
+        write_signed(path, signed)
     return signed
 
 
-def write_signed(path, signed, verified_digest):
-    """Write a signed record back with its reports, as one set under the record's lock.
+def write_signed(path, signed):
+    """Write a signed record back with its reports as one set (call with the record's lock held).
 
-    The JSON is read again under the lock: if another writer changed it since it was verified,
-    nothing is written. A kill at any instant leaves the old set or the new one
-    (:mod:`steamcalc.issuing`).
+    The JSON moves into place first, so a report never shows a signature its JSON lacks; a kill
+    at any instant leaves the old set or the new one (:mod:`steamcalc.issuing`).
     """
-    from .issuing import issue_set, record_lock, recover
-    from .record import load_record, record_text
+    from .issuing import issue_set
+    from .record import record_text
     from .report import RENDERERS
 
     path = Path(path)
-    folder, stem = path.parent, path.stem
     reports = [(path.with_suffix(suffix).name, render(signed)) for suffix, render in RENDERERS.items()]
-    with record_lock(folder, stem):
-        recover(folder, stem)
-        if load_record(path).get("digest") != verified_digest:
-            raise RecordError("not signed: the record changed while it was being verified and signed", source=path,
-                              fix="verify it again and sign the record as it is now")
-        issue_set(folder, stem, [(path.name, record_text(signed))] + reports)
+    issue_set(path.parent, path.stem, [(path.name, record_text(signed))] + reports)

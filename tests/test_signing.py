@@ -365,3 +365,22 @@ def test_a_private_key_readable_by_others_or_left_in_the_trusted_folder(site, ke
     shutil.copy(keys / "d-approver.key", site / "trusted_signers")
     code, text = _run(["verify", path], capsys)
     assert code == 2 and "d-approver.key" in text and "private key file is in the trusted signers folder" in text
+
+
+def test_two_signers_at_once_one_signs_and_the_other_is_told_why(site, keys):
+    # Two processes sign the same record as "checked" at the same moment: the record's lock is held
+    # from reading through verifying to writing, so the second sees the first one's signature.
+    import subprocess
+    import sys
+    path = site / "records" / "LD-02_revA.json"
+    runs = [subprocess.Popen([sys.executable, "-m", "steamcalc", "sign", str(path), "--key", str(keys / key)],
+                             stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True,
+                             env={**os.environ, "PYTHONPATH": str(Path(__file__).resolve().parent.parent)})
+            for key in ("c-checker.key", "d-approver.key")]
+    outcomes = [(run.wait(timeout=120), run.stdout.read() + run.stderr.read()) for run in runs]
+    assert sorted(code for code, _ in outcomes) == [0, 1], outcomes
+    refused = next(text for code, text in outcomes if code == 1)
+    assert "already signed as checked" in refused, refused
+    signed = load_record(path)
+    assert len(signed["signatures"]) == 1
+    assert all(RENDERERS[s](signed) == path.with_suffix(s).read_text(encoding="utf-8") for s in RENDERERS)
