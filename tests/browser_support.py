@@ -1,0 +1,116 @@
+"""Shared set-up of the browser tests: JupyterLab on 127.0.0.1 over a copy of workbooks/, Chromium via Playwright.
+
+Import the fixtures into a test module (``from tests.browser_support import lab, browser``) so that
+module gets its own JupyterLab server.
+
+Needs the system Chromium (/usr/bin/chromium; on Debian ``apt-get install -y chromium``) and the
+Python package playwright (in the test extra). Without them these tests skip with that message,
+except under CI (CI=true), where they must run. Screenshots go to tests/_artifacts/browser/.
+"""
+
+import os
+import shutil
+import socket
+import subprocess
+import sys
+import time
+import urllib.request
+from pathlib import Path
+
+import pytest
+
+CHROMIUM = os.environ.get("STEAMCALC_CHROMIUM", "/usr/bin/chromium")
+ROOT = Path(__file__).resolve().parent.parent
+ARTIFACTS = ROOT / "tests" / "_artifacts" / "browser"
+
+
+def _missing():
+    try:
+        import playwright.sync_api  # noqa: F401
+    except ImportError:
+        return "the Python package playwright is not installed (pip install '.[test]')"
+    if not Path(CHROMIUM).exists():
+        return f"no Chromium at {CHROMIUM} (apt-get install -y chromium, or set STEAMCALC_CHROMIUM)"
+    return None
+
+
+def _free_port():
+    with socket.socket() as s:
+        s.bind(("127.0.0.1", 0))
+        return s.getsockname()[1]
+
+
+@pytest.fixture(scope="module")
+def lab(tmp_path_factory):
+    reason = _missing()
+    if reason:
+        if os.environ.get("CI") == "true":
+            pytest.fail(f"browser tests must run under CI: {reason}")
+        pytest.skip(f"browser tests skipped: {reason}")
+    root = tmp_path_factory.mktemp("lab")
+    shutil.copytree(ROOT / "workbooks", root / "workbooks", ignore=shutil.ignore_patterns("records", ".ipynb_*"))
+    # Render every cell (no virtual scrolling) so widgets are in the page; no news pop-up.
+    settings = root / "settings" / "@jupyterlab"
+    (settings / "notebook-extension").mkdir(parents=True)
+    (settings / "notebook-extension" / "tracker.jupyterlab-settings").write_text('{"windowingMode": "none"}')
+    (settings / "apputils-extension").mkdir(parents=True)
+    (settings / "apputils-extension" / "notification.jupyterlab-settings").write_text(
+        '{"fetchNews": "false", "checkForUpdates": false}')
+    port = _free_port()
+    log = (root / "lab.log").open("w")
+    server = subprocess.Popen(
+        [sys.executable, "-m", "jupyter", "lab", "--no-browser", "--allow-root", f"--port={port}", "--ip=127.0.0.1",
+         "--IdentityProvider.token=", "--ServerApp.password=", "--ServerApp.disable_check_xsrf=True",
+         f"--ServerApp.root_dir={root}", "--LabApp.news_url=", "--LabApp.expose_app_in_browser=True"],
+        stdout=log, stderr=subprocess.STDOUT, cwd=root, env={**os.environ, "JUPYTER_CONFIG_DIR": str(root / "cfg"),
+             "JUPYTERLAB_SETTINGS_DIR": str(root / "settings")},
+    )
+    url = f"http://127.0.0.1:{port}"
+    deadline = time.monotonic() + 90
+    while time.monotonic() < deadline and server.poll() is None:
+        try:
+            urllib.request.urlopen(f"{url}/api/status", timeout=2)
+            break
+        except OSError:
+            time.sleep(0.5)
+    else:
+        server.terminate()
+        pytest.fail("JupyterLab did not start: " + (root / "lab.log").read_text()[-2000:])
+    yield url, root
+    server.terminate()
+    try:
+        server.wait(timeout=20)
+    except subprocess.TimeoutExpired:
+        server.kill()
+
+
+@pytest.fixture(scope="module")
+def browser():
+    from playwright.sync_api import sync_playwright
+
+    with sync_playwright() as p:
+        b = p.chromium.launch(executable_path=CHROMIUM, headless=True, args=[
+            "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run",
+            "--disable-background-networking", "--disable-component-update", "--disable-sync"])
+        yield b
+        b.close()
+
+
+PANEL = ".jp-NotebookPanel:not(.lm-mod-hidden)"
+
+
+def _open_and_run_all(browser, url, notebook):
+    """Open a workbook in a fresh workspace, wait for its kernel, and run all cells."""
+    page = browser.new_page(viewport={"width": 1400, "height": 1000})
+    page.goto(f"{url}/lab/tree/workbooks/{notebook}?reset", timeout=90_000)
+    page.wait_for_selector(".jp-NotebookPanel", timeout=90_000)
+    page.wait_for_function(
+        "() => { const w = window.jupyterapp && window.jupyterapp.shell.currentWidget;"
+        " const k = w && w.sessionContext && w.sessionContext.session && w.sessionContext.session.kernel;"
+        " return k && k.status === 'idle'; }", timeout=90_000)
+    page.evaluate("window.jupyterapp.commands.execute('notebook:run-all-cells')")
+    return page
+
+
+def _results_text(page):
+    return page.locator(f"{PANEL} .steamcalc-results").first.inner_text()
