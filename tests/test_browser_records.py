@@ -1,0 +1,51 @@
+"""The issued records as a reader sees them: each demo record's HTML, a diff and the register in Chromium.
+
+No JupyterLab here: the pages are plain files opened in the browser. The screenshots under
+tests/_artifacts/browser/records/ show the units, numbers, charts and sketch a checker reads; the
+assertions are on what the page shows (no traceback, no script, the figures present).
+"""
+
+import shutil
+from pathlib import Path
+
+import pytest
+
+from steamcalc.cli import main
+from tests.browser_support import ARTIFACTS, browser  # noqa: F401
+
+ROOT = Path(__file__).resolve().parent.parent
+SHOTS = ARTIFACTS / "records"
+
+
+@pytest.fixture(scope="module")
+def issued(tmp_path_factory):
+    """The demo site copied and every case run, plus LD-01 rev B with a larger normal flow (5.0 t/h) and its diff."""
+    site = tmp_path_factory.mktemp("records") / "site"
+    shutil.copytree(ROOT / "workbooks" / "demo_site", site, ignore=shutil.ignore_patterns("records"))
+    assert main(["run", str(site / "cases")]) in (0, 1)
+    case = (site / "cases" / "LD-01.toml").read_text()
+    (site / "revisions").mkdir()
+    revised = site / "revisions" / "LD-01.toml"
+    revised.write_text(case.replace('revision = "A"', 'revision = "B"', 1).replace("4.5 t/h", "5.0 t/h", 1))
+    assert main(["run", str(revised)]) in (0, 1)
+    records = site / "records"
+    assert main(["diff", str(records / "LD-01_revA.json"), str(records / "LD-01_revB.json"),
+                 "--html", str(records / "LD-01_A-to-B.html")]) in (0, 1)
+    assert main(["register", str(site), "--html", str(records / "register.html")]) in (0, 1)
+    return records
+
+
+@pytest.mark.parametrize("page_name", ["LD-01_revA.html", "FL-01_revA.html", "HX-01_revA.html",
+                                       "LD-01_A-to-B.html", "register.html"])
+def test_record_page_in_browser(issued, browser, page_name):  # noqa: F811
+    path = issued / page_name
+    assert path.exists(), f"{page_name} was not written"
+    html = path.read_text()
+    assert "<script" not in html.lower(), f"{page_name} carries a script; records stay script-free"
+    SHOTS.mkdir(parents=True, exist_ok=True)
+    page = browser.new_page(viewport={"width": 1200, "height": 1000})
+    page.goto(path.as_uri())
+    text = page.locator("body").inner_text()
+    assert "Traceback" not in text and "internal error" not in text.lower()
+    page.screenshot(path=str(SHOTS / page_name.replace(".html", ".png")), full_page=True)
+    page.close()
