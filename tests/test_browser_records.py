@@ -49,3 +49,20 @@ def test_record_page_in_browser(issued, browser, page_name):  # noqa: F811
     assert "Traceback" not in text and "internal error" not in text.lower()
     page.screenshot(path=str(SHOTS / page_name.replace(".html", ".png")), full_page=True)
     page.close()
+
+
+def test_us_display_record_in_browser(tmp_path, browser):  # noqa: F811
+    """The same let-down record with the site's display units set to US: °F, psi, lb/h, Cv, NPS."""
+    site = tmp_path / "site"
+    shutil.copytree(ROOT / "workbooks" / "demo_site", site, ignore=shutil.ignore_patterns("records"))
+    site_file = site / "site.toml"
+    site_file.write_text(site_file.read_text().replace('display_units = "SI"', 'display_units = "US"'))
+    assert main(["run", str(site / "cases" / "LD-01.toml")]) in (0, 1)
+    path = site / "records" / "LD-01_revA.html"
+    SHOTS.mkdir(parents=True, exist_ok=True)
+    page = browser.new_page(viewport={"width": 1200, "height": 1000})
+    page.goto(path.as_uri())
+    text = page.locator("body").inner_text()
+    assert "°F" in text and "lb/h" in text
+    page.screenshot(path=str(SHOTS / "LD-01_revA_US.png"), full_page=True)
+    page.close()
