@@ -100,7 +100,7 @@ def load_steam_flow(heat, valve_inlet_enthalpy, steam_side_pressure):
     Examples
     --------
     >>> round(load_steam_flow(41.88e3, 2773.0e3, 0.6e5) * 3600, 2)
-    62.35
+    62.48
     """
     condensate = SteamState.from_p_dryness(steam_side_pressure, 0.0)
     return heat / (valve_inlet_enthalpy - condensate.enthalpy)
@@ -140,7 +140,7 @@ def pumping_differential(back_pressure, lift_head, lift_density, steam_space_pre
     Examples
     --------
     >>> round(pumping_differential(1.8e5, 4.0, 945.0, 0.6e5, 0.4, 890.0))
-    153577
+    153578
     """
     return (back_pressure + lift_density * STANDARD_GRAVITY * lift_head - steam_space_pressure
             - condensate_density * STANDARD_GRAVITY * static_head)
@@ -347,7 +347,7 @@ def _condensate_removal(inputs, steam_side, inlet_enthalpy, clean, minimum, cond
     lowest = clean[minimum]
     differential = pumping_differential(back, lift, rho_lift, lowest, head, condensate_density)
     result.assumptions.append(
-        "Pumping differential: Δp_pump = p_back + ρ_l·g·H_lift − p_s − ρ_c·g·H_static, a pressure difference in bar "
+        "Pumping differential: Δp_pump = p_back + ρ_l·g·H_lift − p_s − ρ_c·g·H_static, reported in bar difference "
         "(positive: a pump or pump-trap must add it; zero or negative: the steam space drains unaided), at the "
         f"lowest steam-side pressure of the turndown ({minimum:.0%} load, clean U) and without a vacuum breaker; "
         f"ρ_l of saturated liquid at the back pressure, {rho_lift:.1f} kg/m³; the trap's own minimum differential "
