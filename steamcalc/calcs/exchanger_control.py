@@ -223,7 +223,7 @@ def _control_valve(inputs, steam_side, fouled, clean, result):
     for tag, pressures in bases:
         for load in LOADS:
             percent = int(round(load * 100))
-            which = " (clean U)" if tag else ""
+            which = " (clean U)" if tag else " (fouled U)" if len(bases) > 1 else ""
             flow = load_steam_flow(load * steam_side, state.enthalpy, pressures[load])
             s = size_steam_valve(flow * 3600, supply / 1e3, pressures[load] / 1e3, state.density, kappa, xt)
             sizing[(tag, load)], flows[(tag, load)] = s, flow
@@ -283,7 +283,7 @@ def _rated_valve(inputs, sizing, design, low, low_key, characteristic, rangeabil
     outside = []
     for (tag, load), s in sizing.items():
         percent = int(round(load * 100))
-        which = " (clean U)" if tag else ""
+        which = " (clean U)" if tag else " (fouled U)" if any(t for t, _ in sizing) else ""
         travel = valve_travel(s.kv, kvs, characteristic, rangeability)
         if not 0.0 < travel <= 1.0:   # above full travel, or below the characteristic's controllable minimum
             outside.append(f"{_case_label((tag, load))} (Kv {s.kv:.3g} m³/h)")
@@ -321,9 +321,8 @@ def _vacuum(inputs, duty, ua_clean, ua_fouled, minimum, site, result):
                 "Q_vac = UA·(T_o − T_i)/ln((T_atm − T_i)/(T_atm − T_o)), T_atm = T_sat(p_atm); L = Q_vac/Q",
                 f"p_atm = {bar_a(atmosphere)} (site), T_atm = {t_atm - 273.15:.2f} °C; UA = {ua_clean / 1e3:.4f} kW/K; "
                 f"Q = {duty / 1e3:.2f} kW", clean)
-    result.add("vacuum_load_fraction", "Load below which the steam space is below atmospheric pressure (clean U)", clean)
-    result.add("vacuum_load_fraction_fouled", "Load below which the steam space is below atmospheric pressure "
-               "(fouled U)", fouled)
+    result.add("vacuum_load_fraction", "Vacuum in the steam space below this load (clean U)", clean)
+    result.add("vacuum_load_fraction_fouled", "Vacuum in the steam space below this load (fouled U)", fouled)
     if clean > minimum:
         below = "at every load, design included" if clean >= 1.0 else f"below {100 * clean:.0f} % load"
         result.check("Steam space above atmospheric pressure", "warn",
@@ -357,8 +356,7 @@ def _condensate_removal(inputs, steam_side, inlet_enthalpy, clean, minimum, cond
                 f"Δp_pump = {bar_a(back)} + {rho_lift:.1f} kg/m³ × {STANDARD_GRAVITY} m/s² × {lift:.3g} m − "
                 f"{bar_a(lowest)} − {condensate_density:.1f} kg/m³ × {STANDARD_GRAVITY} m/s² × {head:.3g} m",
                 differential / 1e5, "bar difference")
-    result.add("required_pumping_differential", "Pressure difference a pump or pump-trap must provide (at the "
-               "minimum load, clean U; positive: pumping needed)", differential / 1e5, "bar")
+    result.add("required_pumping_differential", "Pumping differential needed (minimum load, clean U)", differential / 1e5, "bar")
     stall = result.value("stall_load_fraction") if "stall_load_fraction" in result.values else 0.0
     if stall > 0.0:
         at = min(stall, 1.0)   # a heater that stalls at design load must be drained at design load
