@@ -6,7 +6,9 @@ condensate at its stated subcooling. The zones (desuperheating, condensing, subc
 :mod:`.exchanger_zones`) each have their own LMTD, U and area. At part load, with a fixed
 area and U, the steam-side pressure the exchanger needs falls; below the load where it
 cannot push the condensate through the trap, condensate stops draining: stall
-(:mod:`.exchanger_turndown`).
+(:mod:`.exchanger_turndown`). The steam control valve over the turndown, the load below which the
+steam space is under vacuum, and the condensate to pump out when stalled are in
+:mod:`.exchanger_control`.
 """
 
 from __future__ import annotations
@@ -300,7 +302,12 @@ def calculate(inputs, site):
         ``required_area`` (m², with U, the zones' sum), ``area_margin`` (with an installed area),
         ``stall_load_fraction`` (clean U) and ``stall_load_fraction_fouled`` (with a back
         pressure), and the turndown table (``required_steam_pressure_<load>`` on the fouled U,
-        ``required_steam_pressure_clean_<load>`` on the clean U when they differ).
+        ``required_steam_pressure_clean_<load>`` on the clean U when they differ);
+        ``vacuum_load_fraction``; with a supply pressure the control valve's
+        ``control_valve_kv_<load>`` (and ``_clean_<load>``), ``control_valve_choked_<load>``,
+        ``required_rangeability``, with a rated Kv ``control_valve_travel_<load>`` (percent);
+        with a back pressure ``required_pumping_differential`` (bar difference) and, when it
+        stalls, ``condensate_to_remove`` (kg/h, at the stall load).
 
     Notes
     -----

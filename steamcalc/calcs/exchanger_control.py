@@ -175,6 +175,9 @@ def add_control(inputs, duty, steam_side, steam, ua_clean, ua_fouled, condensate
         return
     fouled, clean = _pressures(result, clean=False), _pressures(result, clean=True)
     minimum = LOADS[0]
+    result.assumptions.append(
+        f"Operating range of the heater: the turndown's {minimum:.0%} to 100 % of design load; the minimum load is "
+        f"{minimum:.0%}")
     inlet_enthalpy = steam.enthalpy
     if inputs.control_valve_supply_pressure is not None:
         inlet_enthalpy = _control_valve(inputs, steam_side, fouled, clean, result)
@@ -201,6 +204,10 @@ def _control_valve(inputs, steam_side, fouled, clean, result):
         state = SteamState.from_p_dryness(supply, 1.0)
     except OutOfRangeError as exc:
         raise exc.for_field("control_valve.supply_pressure") from None
+    result.references.extend([
+        "IEC 60534-2-1:2011, control-valve sizing equations for compressible fluids (eq. (8), (12)-(15))",
+        "IEC 60534-2-4:2009, inherent flow characteristics",
+    ])
     result.assumptions.append(
         f"Control valve inlet: dry saturated steam at the supply pressure {bar_a(supply)} (its superheat is not an "
         "input); throttled at constant enthalpy; condensate leaves saturated at each load's steam-side pressure")
@@ -342,6 +349,8 @@ def _condensate_removal(inputs, steam_side, inlet_enthalpy, clean, minimum, cond
     back = inputs.condensate_back_pressure
     lift = inputs.lift_head or 0.0
     head = inputs.trap_static_head or 0.0
+    result.references.append("Hydrostatic pressure ρ·g·H (any fluid-mechanics text); g = 9.80665 m/s², standard "
+                             "gravity (3rd CGPM, 1901)")
     rho_lift = lift_density(inputs)
     lowest = clean[minimum]
     differential = pumping_differential(back, lift, rho_lift, lowest, head, condensate_density)
