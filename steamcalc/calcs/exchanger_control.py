@@ -225,12 +225,13 @@ def _control_valve(inputs, steam_side, fouled, clean, result):
                 f"p1 = {bar_a(supply)}: ρ1 = {state.density:.4f} kg/m³, κ = {kappa:.4f}", state.density, "kg/m**3")
     result.add("control_valve_inlet_density", "Steam density at the control valve inlet", state.density, "kg/m**3")
     result.add("control_valve_isentropic_exponent", "Isentropic exponent at the control valve inlet", kappa)
-    bases = [("", fouled)] + ([("clean_", clean)] if clean is not fouled and clean[1.0] != fouled[1.0] else [])
+    bases = [("", fouled)] + ([("clean_", clean)] if clean != fouled else [])
+    both = len(bases) > 1
     sizing, flows = {}, {}
     for tag, pressures in bases:
         for load in LOADS:
             percent = int(round(load * 100))
-            which = " (clean U)" if tag else " (fouled U)" if len(bases) > 1 else ""
+            which = " (clean U)" if tag else " (fouled U)" if both else ""
             flow = load_steam_flow(load * steam_side, state.enthalpy, pressures[load])
             s = size_steam_valve(flow * 3600, supply / 1e3, pressures[load] / 1e3, state.density, kappa, xt)
             sizing[(tag, load)], flows[(tag, load)] = s, flow
@@ -242,9 +243,10 @@ def _control_valve(inputs, steam_side, fouled, clean, result):
     low_key = min(sizing, key=lambda k: sizing[k].kv)
     high_key = max(sizing, key=lambda k: sizing[k].kv)
     low, low_flow = sizing[low_key], flows[low_key]
-    result.add("control_valve_kv", "Control valve Kv needed at design load (fouled U: sizing case)", design.kv, "m**3/h")
-    for label, key, s, flow, pressures in (("design load, fouled U", ("", 1.0), design, design_flow, fouled),
-                                           (_case_label(low_key), low_key, low, low_flow, dict(bases)[low_key[0]])):
+    result.add("control_valve_kv", f"Control valve Kv needed at design load ({'fouled U: ' if both else ''}sizing case)",
+               design.kv, "m**3/h")
+    for label, key, s, flow, pressures in ((_case_label(("", 1.0), both), ("", 1.0), design, design_flow, fouled),
+                                           (_case_label(low_key, both), low_key, low, low_flow, dict(bases)[low_key[0]])):
         p2 = pressures[key[1]]
         result.step(f"Steam through the control valve at {label}", "m = L·Q_s / (h1 − h_f(p2))",
                     f"m = {key[1]:g} × {steam_side / 1e3:.2f} kW / ({state.enthalpy / 1e3:.2f} − "
@@ -259,25 +261,27 @@ def _control_valve(inputs, steam_side, fouled, clean, result):
                     s.kv, "m**3/h")
     required = sizing[high_key].kv / low.kv
     result.step("Rangeability the duty needs", "R_req = Kv_max / Kv_min over the turndown loads",
-                f"R_req = {sizing[high_key].kv:.4f} m³/h ({_case_label(high_key)}) / {low.kv:.4f} m³/h "
-                f"({_case_label(low_key)})", required)
+                f"R_req = {sizing[high_key].kv:.4f} m³/h ({_case_label(high_key, both)}) / {low.kv:.4f} m³/h "
+                f"({_case_label(low_key, both)})", required)
     result.add("required_rangeability", "Rangeability the duty needs (largest Kv over smallest)", required)
     result.add("control_valve_rangeability", "Inherent rangeability of the control valve", rangeability)
     result.check("Control valve rangeability", "warn" if required > rangeability else "pass",
-                 f"the duty needs {required:.1f}:1 (design load to {_case_label(low_key)}); the valve gives "
-                 f"{rangeability:g}:1" + (": it cannot control down to the minimum load; consider two valves in "
-                 "parallel (split range) or a smaller minimum load" if required > rangeability else ""))
+                 f"the duty needs {required:.1f}:1 ({_case_label(high_key, both)} to {_case_label(low_key, both)}); "
+                 f"the valve gives {rangeability:g}:1" + (": it cannot control down to the minimum load; consider two "
+                 "valves in parallel (split range), or accept on-off control at the lowest loads"
+                 if required > rangeability else ""))
     if inputs.control_valve_rated_kv is not None:
-        _rated_valve(inputs, sizing, design, low, low_key, characteristic, rangeability, result)
+        _rated_valve(inputs, sizing, design, low, low_key, both, characteristic, rangeability, result)
     return state.enthalpy
 
 
-def _case_label(key):
+def _case_label(key, both):
+    """'40% load, clean U' for a (basis tag, load) sizing key; 'clean = fouled U' without fouling."""
     tag, load = key
-    return f"{load:.0%} load, {'clean' if tag else 'fouled'} U"
+    return f"{load:.0%} load, {'clean' if tag else 'fouled' if both else 'clean = fouled'} U"
 
 
-def _rated_valve(inputs, sizing, design, low, low_key, characteristic, rangeability, result):
+def _rated_valve(inputs, sizing, design, low, low_key, both, characteristic, rangeability, result):
     kvs = inputs.control_valve_rated_kv
     result.add("control_valve_rated_kv", "Rated Kv (Kvs) of the control valve", kvs, "m**3/h")
     if design.kv > kvs:
@@ -286,32 +290,35 @@ def _rated_valve(inputs, sizing, design, low, low_key, characteristic, rangeabil
                      f"{kvs:.2f} m³/h: it cannot pass the design steam flow from the supply pressure")
     else:
         result.check("Control valve rated Kv sufficient", "pass",
-                     f"Kvs {kvs:.2f} m³/h ≥ {design.kv:.2f} m³/h needed at design load (fouled U)")
+                     f"Kvs {kvs:.2f} m³/h ≥ {design.kv:.2f} m³/h needed at {_case_label(('', 1.0), both)}")
     outside = []
     for (tag, load), s in sizing.items():
         percent = int(round(load * 100))
-        which = " (clean U)" if tag else " (fouled U)" if any(t for t, _ in sizing) else ""
+        which = " (clean U)" if tag else " (fouled U)" if both else ""
         travel = valve_travel(s.kv, kvs, characteristic, rangeability)
         if not 0.0 < travel <= 1.0:   # above full travel, or below the characteristic's controllable minimum
-            outside.append(f"{_case_label((tag, load))} (Kv {s.kv:.3g} m³/h)")
+            outside.append(f"{_case_label((tag, load), both)} (Kv {s.kv:.3g} m³/h)")
             continue
         result.add(f"control_valve_travel_{tag}{percent}", f"Control valve travel at {load:.0%} load{which}",
                    100.0 * travel, "percent")
         if not TRAVEL_FAIL[0] <= travel <= TRAVEL_FAIL[1]:
-            outside.append(f"{_case_label((tag, load))} ({100 * travel:.0f} %)")
+            outside.append(f"{_case_label((tag, load), both)} ({100 * travel:.0f} %)")
     if "control_valve_travel_100" in result.values:
-        result.add("control_valve_travel", "Control valve travel at design load (fouled U)",
+        result.add("control_valve_travel", f"Control valve travel at design load{' (fouled U)' if both else ''}",
                    result.value("control_valve_travel_100"), "percent")
     equation = "h = Kv/Kvs (linear) or h = 1 + ln(Kv/Kvs)/ln R (equal-percentage)"
-    for label, s in (("design load, fouled U", design), (_case_label(low_key), low)):
-        result.step(f"Control valve travel at {label}", equation,
-                    f"Kv/Kvs = {s.kv:.4f} / {kvs:.4g}; R = {rangeability:g} ({characteristic})",
-                    100.0 * valve_travel(s.kv, kvs, characteristic, rangeability), "percent")
+    for label, s in ((_case_label(("", 1.0), both), design), (_case_label(low_key, both), low)):
+        travel = valve_travel(s.kv, kvs, characteristic, rangeability)
+        if 0.0 < travel <= 1.0:   # outside, the check names the load
+            result.step(f"Control valve travel at {label}", equation,
+                        f"Kv/Kvs = {s.kv:.4f} / {kvs:.4g}; R = {rangeability:g} ({characteristic})", 100.0 * travel,
+                        "percent")
     if outside:
         result.check("Control valve travel over the turndown", "warn",
                      f"outside {100 * TRAVEL_FAIL[0]:.0f}-{100 * TRAVEL_FAIL[1]:.0f} % travel (common practice) or "
                      f"outside the valve's range ({characteristic}, R = {rangeability:g}, Kvs {kvs:.4g} m³/h) at: "
-                     + "; ".join(outside) + ". Control there is poor or on-off")
+                     + "; ".join(outside) + ". Control is poor there: near the seat it goes on-off, near full travel there is "
+                     "no margin left to open")
     else:
         result.check("Control valve travel over the turndown", "pass",
                      f"{100 * TRAVEL_FAIL[0]:.0f}-{100 * TRAVEL_FAIL[1]:.0f} % travel (common practice) at every load "
