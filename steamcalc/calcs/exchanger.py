@@ -6,7 +6,9 @@ condensate at its stated subcooling. The zones (desuperheating, condensing, subc
 :mod:`.exchanger_zones`) each have their own LMTD, U and area. At part load, with a fixed
 area and U, the steam-side pressure the exchanger needs falls; below the load where it
 cannot push the condensate through the trap, condensate stops draining: stall
-(:mod:`.exchanger_turndown`).
+(:mod:`.exchanger_turndown`). The steam control valve over the turndown, the load below which the
+steam space is under vacuum, and the condensate to pump out when stalled are in
+:mod:`.exchanger_control`.
 """
 
 from __future__ import annotations
@@ -21,6 +23,7 @@ from .balance import Stream, check_energy_balance
 from .base import Result, check_fields, input_field
 from .exchanger_turndown import (LOADS, STALL_REMEDIES, add_turndown, required_saturation_temperature,  # noqa: F401
                                  stall_load, stall_pressure)
+from .exchanger_control import add_control, check_control_inputs
 from .exchanger_zones import ARRANGEMENTS, add_zones, f_factor, lmtd, service_u  # noqa: F401
 
 _f_factor = f_factor  # the name v0.1 callers used
@@ -30,7 +33,8 @@ TITLE = "Steam-heated exchanger: duty, area and stall"
 WORKBOOK = "exchanger_duty.ipynb"
 #: Results the uncertainty section gives bands and sensitivities for.
 #: Results in a pressure unit that are differences, not absolute pressures (labelled "difference").
-PRESSURE_DIFFERENCE_RESULTS = ("trap_static_head_pressure",)
+PRESSURE_DIFFERENCE_RESULTS = ("trap_static_head_pressure", "lift_head_pressure", "required_pumping_differential",
+                               "pump_motive_excess")
 UNCERTAINTY_RESULTS = ("duty", "steam_flow", "required_area", "area_margin", "stall_load_fraction")
 
 #: Smallest temperature approach (steam saturation to process outlet) held without a warning, K
@@ -100,7 +104,8 @@ class Inputs:
         positive=True)
     condensate_back_pressure: float | None = input_field(
         "pressure", "Condensate back pressure", "Pressure the condensate drains against (trap outlet, lift, "
-        "return main).", example="0.8 bar(g)")
+        "return main); with a lift_head given, the pressure at the end of the lift (the lift is added).",
+        example="0.8 bar(g)")
     desuperheating_u: float | None = input_field(
         "heat_transfer_coefficient", "Desuperheating zone U (clean, dry wall)", "U of a dry-wall desuperheating "
         "zone (steam cooling as a gas); leave empty for the wet-wall basis at the overall U.",
@@ -114,6 +119,27 @@ class Inputs:
     trap_min_differential: float | None = input_field(
         "pressure_difference", "Trap minimum differential", "Smallest inlet-minus-outlet pressure difference the "
         "trap works at (maker's data).", example="0.1 bar", section="drainage")
+    lift_head: float | None = input_field(
+        "length", "Condensate lift after the trap", "Rise of the condensate line from the trap to its highest point; "
+        "its ρ·g·H is added to the back pressure.", example="4 m", section="drainage")
+    pump_motive_pressure: float | None = input_field(
+        "pressure", "Pump motive steam pressure", "Motive steam (or air) pressure of a pressure-powered pump or "
+        "pump-trap, if one is proposed.", example="5 bar(g)", section="drainage")
+    control_valve_supply_pressure: float | None = input_field(
+        "pressure", "Supply pressure at the control valve", "Steam pressure upstream of the heater's steam control "
+        "valve.", example="8 bar(g)", section="control_valve", key="supply_pressure")
+    control_valve_xt: float | None = input_field(
+        "fraction", "Control valve xT", "Pressure differential ratio factor at choked flow (maker's data).",
+        example="0.70", section="control_valve", positive=True, key="xt")
+    control_valve_rated_kv: float | None = input_field(
+        "flow_coefficient", "Control valve rated Kv (Kvs)", "Kv of the selected valve at full travel.",
+        example="16 m^3/h", section="control_valve", positive=True, key="rated_kv")
+    control_valve_characteristic: str | None = input_field(
+        "text", "Control valve characteristic", "Inherent characteristic: equal-percentage or linear.",
+        example="equal-percentage", section="control_valve", key="characteristic")
+    control_valve_rangeability: float | None = input_field(
+        "number", "Control valve rangeability", "Inherent rangeability: rated Kv over the smallest controllable Kv.",
+        example="50", section="control_valve", key="rangeability")
 
     def __post_init__(self):
         check_fields(self)
@@ -150,6 +176,7 @@ class Inputs:
                 raise InputError(f"{name} is a zone's U; the condensing zone needs the overall U as well",
                                  field=name, fix="give overall_u (the clean condensing U), or remove " + name)
         self._check_drainage()
+        check_control_inputs(self)
 
     def _check_drainage(self):
         head, differential = self.trap_static_head, self.trap_min_differential
@@ -275,7 +302,12 @@ def calculate(inputs, site):
         ``required_area`` (m², with U, the zones' sum), ``area_margin`` (with an installed area),
         ``stall_load_fraction`` (clean U) and ``stall_load_fraction_fouled`` (with a back
         pressure), and the turndown table (``required_steam_pressure_<load>`` on the fouled U,
-        ``required_steam_pressure_clean_<load>`` on the clean U when they differ).
+        ``required_steam_pressure_clean_<load>`` on the clean U when they differ);
+        ``vacuum_load_fraction``; with a supply pressure the control valve's
+        ``control_valve_kv_<load>`` (and ``_clean_<load>``), ``control_valve_choked_<load>``,
+        ``required_rangeability``, with a rated Kv ``control_valve_travel_<load>`` (percent);
+        with a back pressure ``required_pumping_differential`` (bar difference) and, when it
+        stalls, ``condensate_to_remove`` (kg/h, at the stall load).
 
     Notes
     -----
@@ -379,5 +411,6 @@ def calculate(inputs, site):
             result.check("Installed area sufficient", "fail" if margin < 0 else "pass",
                          f"installed {inputs.installed_area:.2f} m² against {area:.2f} m² required "
                          f"({100 * margin:+.1f} %)")
-    add_turndown(inputs, duty, ua, area, saturated_liquid.density, result)
+    ua_clean, ua_fouled = add_turndown(inputs, duty, ua, area, saturated_liquid.density, result)
+    add_control(inputs, duty, steam_side, steam, ua_clean, ua_fouled, saturated_liquid.density, site, result)
     return result

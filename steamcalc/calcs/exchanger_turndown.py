@@ -15,7 +15,7 @@ from __future__ import annotations
 import math
 
 from ..errors import InputError, OutOfRangeError
-from ..steam import saturation_pressure, saturation_temperature
+from ..steam import SteamState, saturation_pressure, saturation_temperature
 from .exchanger_zones import service_u
 
 #: Standard acceleration of gravity, m/s² (3rd CGPM, 1901; ISO 80000-3).
@@ -193,11 +193,37 @@ def add_turndown(inputs, duty, design_ua, required_area, condensate_density, res
                        "bar")
     if inputs.condensate_back_pressure is not None:
         _stall(inputs, duty, ua_clean, ua_fouled, basis_clean, basis_fouled, condensate_density, result)
+    return ua_clean, ua_fouled
+
+
+def lift_density(inputs):
+    """Density of the condensate in the lift after the trap, kg/m³: saturated liquid at the back pressure."""
+    try:
+        return SteamState.from_p_dryness(inputs.condensate_back_pressure, 0.0).density
+    except OutOfRangeError as exc:
+        raise exc.for_field("condensate_back_pressure") from None
+
+
+def _with_lift(inputs, back, result):
+    """The trap's back pressure: the return's pressure plus the lift's ρ·g·H."""
+    density = lift_density(inputs)
+    lift = density * STANDARD_GRAVITY * inputs.lift_head
+    result.assumptions.append(
+        f"Condensate lift after the trap: a full column of saturated liquid at the back pressure, {density:.1f} "
+        "kg/m³, added to the back pressure the trap (and the stall load) works against (flash steam in the riser "
+        "lightens it, cooler condensate weighs more; common practice)")
+    result.add("lift_head_pressure", "Static head of the condensate lift (ρ·g·H)", lift / 1e3, "kPa")
+    result.step("Back pressure at the trap outlet, with the lift", "p_back,trap = p_back + ρ_l·g·H_lift",
+                f"p_back,trap = {back / 1e5:.4g} bar(a) + {density:.1f} kg/m³ × {STANDARD_GRAVITY} m/s² × "
+                f"{inputs.lift_head:.3g} m", (back + lift) / 1e5, "bar")
+    return back + lift
 
 
 def _stall(inputs, duty, ua_clean, ua_fouled, basis_clean, basis_fouled, condensate_density, result):
     t_in, t_out = inputs.process_inlet_temperature, inputs.process_outlet_temperature
     back = inputs.condensate_back_pressure
+    if inputs.lift_head:
+        back = _with_lift(inputs, back, result)
     differential = inputs.trap_min_differential or 0.0
     head = inputs.trap_static_head or 0.0
     head_pressure = condensate_density * STANDARD_GRAVITY * head
@@ -246,7 +272,7 @@ def _stall(inputs, duty, ua_clean, ua_fouled, basis_clean, basis_fouled, condens
                 fouled)
     result.add("stall_load_fraction", "Stall load (fraction of design, clean U: governs)", clean)
     result.add("stall_load_fraction_fouled", "Stall load (fraction of design, fouled U)", fouled)
-    basis = f"the {back / 1e5:.4g} bar(a) back pressure"
+    basis = f"the {back / 1e5:.4g} bar(a) back pressure" + (" (with the lift)" if inputs.lift_head else "")
     if differential or head:
         basis += f" with the trap's {differential / 1e3:.3g} kPa difference (minimum differential) and {head:.3g} m static head " + (
             f"(drainage stops below {drain / 1e5:.4g} bar(a))" if drain > 0.0 else

@@ -253,8 +253,14 @@ def letdown_sections(inputs, result):
 
 
 def stall_chart(inputs, result, points=60):
-    """Steam-side pressure the exchanger needs against load (clean and fouled U), with the drainage limit."""
-    fig = go.Figure()
+    """Steam-side pressure the exchanger needs against load (clean and fouled U), with the drainage limit,
+    the control valve's supply pressure and (secondary axis) the rated valve's travel."""
+    from plotly.subplots import make_subplots
+
+    travel = {tag: sorted((int(k.rsplit("_", 1)[1]), v.value) for k, v in result.values.items()
+                          if k.startswith("control_valve_travel_") and k.rsplit("_", 1)[1].isdigit()
+                          and (k.count("_clean_") == 1) == (tag == "clean")) for tag in ("fouled", "clean")}
+    fig = make_subplots(specs=[[{"secondary_y": True}]]) if travel["fouled"] else go.Figure()
     loads, pressures = _turndown_series(result)
     clean_loads, clean_pressures = _turndown_series(result, clean=True)
     fouled_name = _u_label(result, "fouled") if clean_loads else _u_label(result, "clean") + " (no fouling)"
@@ -272,12 +278,26 @@ def stall_chart(inputs, result, points=60):
         if "stall_pressure" in result.values and abs(result.value("stall_pressure") - back) > 1e-9:  # drainage given
             drain = result.value("stall_pressure")
             fig.add_trace(go.Scatter(x=[0, 100], y=[drain, drain], mode="lines",
-                                     name=f"drainage stops below {drain:.3g} bar(a) (trap differential, static head)",
+                                     name=f"drainage stops below {drain:.3g} bar(a) (trap differential, static head, lift)",
                                      line=dict(color=_COLOURS["inlet"], dash="dot", width=2)))
         stall = result.value("stall_load_fraction") * 100
         if 0 < stall < 100:
             fig.add_vrect(x0=0, x1=stall, fillcolor=_COLOURS["inlet"], opacity=0.08, line_width=0,
                           annotation_text=f"stall below {stall:.0f} % (clean U)", annotation_position="top right")
+    if inputs.control_valve_supply_pressure is not None:
+        supply = inputs.control_valve_supply_pressure / 1e5
+        fig.add_trace(go.Scatter(x=[0, 100], y=[supply, supply], mode="lines",
+                                 name=f"control valve supply pressure {supply:.3g} bar(a)",
+                                 line=dict(color=_COLOURS["saturation"], dash="dashdot", width=2)))
+    for tag, dash in (("fouled", "dash"), ("clean", "dot")):
+        if travel[tag]:
+            fig.add_trace(go.Scatter(x=[load for load, _ in travel[tag]], y=[h for _, h in travel[tag]],
+                                     mode="lines+markers", name=f"control valve travel, {tag} U (right axis)",
+                                     line=dict(color="#7a5c99", dash=dash, width=1.5), marker=dict(size=5)),
+                          secondary_y=True)
+    if travel["fouled"]:
+        fig.update_yaxes(title_text="control valve travel, %", range=[0, 100], tickmode="linear", dtick=20,
+                         showgrid=False, secondary_y=True)
     fig.update_layout(title="Turndown: steam-side pressure needed against load", xaxis_title="load, % of design",
                       yaxis_title="pressure, bar(a)", xaxis_range=[0, 102], height=420,
                       margin=dict(l=60, r=20, t=50, b=50), legend=dict(orientation="h", y=-0.2))

@@ -63,7 +63,7 @@ class CaseForm:
         children = []
         for section, boxes in groups.items():
             if section is not None:
-                children.append(widgets.HTML(f"<b>{section.capitalize()}</b> <i>(leave empty if none)</i>"))
+                children.append(widgets.HTML(f"<b>{section.replace('_', ' ').capitalize()}</b> <i>(leave empty if none)</i>"))
             children.extend(boxes)
         self.view = widgets.VBox(children)
 
