@@ -79,6 +79,7 @@ def _parser():
     diff.add_argument("old", metavar="OLD.json")
     diff.add_argument("new", metavar="NEW.json")
     diff.add_argument("--html", metavar="FILE.html", help="also write the comparison as an HTML page")
+    diff.add_argument("--all", action="store_true", help="also list the rows that are the same, after the ones that differ")
     diff.add_argument("--force", action="store_true", help="replace an existing FILE.html that steamcalc did not write")
 
     sign = sub.add_parser("sign", help="the checker's sign-off, after a passing verification")
@@ -263,25 +264,82 @@ def _cell(value):
 
 def _diff(args):
     from .record import load_record
-    from .signoff import diff_records
+    from .record_diff import diff_records
 
     if args.html:
         _check_diff_target(args)
     old, new = load_record(args.old), load_record(args.new)
-    rows = diff_records(old, new)
-    _say(f"{args.old} ({old['id']} rev {old['revision']}) -> {args.new} ({new['id']} rev {new['revision']})")
-    if not rows:
-        _say("  no differences in inputs, assumptions, results or checks")
-    for row in rows:
-        change = row["change"]
-        change = f"{change:+.6g}" if isinstance(change, float) else change
-        _say(f"  [{row['section']}] {row['key']}: {_cell(row['old'])} -> {_cell(row['new'])} {row['unit_label']}  ({change})")
+    rows = diff_records(old, new, unchanged=True)
+    for line in format_diff(rows, old, new, args.old, args.new, args.all):
+        _say(line)
     if args.html:
         from .record import write_text_atomic
         from .report import render_diff_html
         write_text_atomic(args.html, render_diff_html(old, new, rows))
         _say(f"  written: {args.html}")
     return EXIT_OK
+
+
+#: Old or new text longer than this goes on lines of its own under the item.
+_LONG_TEXT = 48
+
+
+def format_diff(rows, old, new, old_name, new_name, unchanged=False):
+    """The lines ``steamcalc diff`` prints: a summary, then every row that differs, marked, by section;
+    with ``unchanged`` the rows that are the same follow, marked ``=``."""
+    from .record_diff import diff_summary
+
+    differing = [r for r in rows if r["status"] != "same"]
+    same = [r for r in rows if r["status"] == "same"]
+    lines = [f"{old.get('id')} rev {old.get('revision')} -> {new.get('id')} rev {new.get('revision')}: "
+             f"{diff_summary(rows)}",
+             f"  old: {old_name} (created {old.get('created')})", f"  new: {new_name} (created {new.get('created')})",
+             "  marks: * changed, + added, - removed, = the same; values in the records' SI units, "
+             "the text as given in brackets"]
+    if not differing:
+        lines.append("no differences: every compared row is the same")
+    lines += _diff_lines(differing)
+    if same and unchanged:
+        lines += ["", f"The same in both ({len(same)} rows)"] + _diff_lines(same)
+    elif same:
+        lines.append(f"({len(same)} rows the same in both are not listed; --all lists them after these)")
+    return lines
+
+
+def _diff_lines(rows):
+    lines, section = [], None
+    for row in rows:
+        if row["section"] != section:
+            section = row["section"]
+            lines += ["", row["section_label"]]
+        key = f" [{row['case_key']}]" if row.get("case_key") else ""
+        old, new = _diff_cell(row, "old"), _diff_cell(row, "new")
+        change = row["change_text"]
+        if isinstance(row["change"], float) and row["unit_label"]:
+            change += f" {row['unit_label']}"
+        if row["status"] == "same":
+            text = f"{old}" if len(old) <= _LONG_TEXT else ""
+            lines.append(f"  = {row['label']}{key}: {text}".rstrip(": "))
+            if len(old) > _LONG_TEXT:
+                lines.append(f"      {old}")
+        elif len(old) > _LONG_TEXT or len(new) > _LONG_TEXT:
+            lines += [f"  {row['marker']} {row['label']}{key}: {change}", f"      old: {old}", f"      new: {new}"]
+        else:
+            said = row["status"] != "changed" or change == "changed"
+            lines.append(f"  {row['marker']} {row['label']}{key}: {old} -> {new}" + ("" if said else f"; change {change}"))
+    return lines
+
+
+def _diff_cell(row, side):
+    if row[side] is None and row["status"] in ("added", "removed"):
+        return "(none)"
+    text = row[f"{side}_text"]
+    if row["unit_label"] and isinstance(row[side], (int, float)) and not isinstance(row[side], bool):
+        text += f" {row['unit_label']}"
+    given = row[f"{side}_given"]
+    if given and given not in (row[f"{side}_text"], text):
+        text += f" (as given: {given})"
+    return text
 
 
 def _verify_trust(args, raw, record, outcome):
