@@ -200,7 +200,8 @@ _FAILED_START, _FAILED_END = "<!-- cases not run: -->", "<!-- end of cases not r
 def index_rows(folder):
     """The records of a folder, one row each: identical copies of a record (``cp``) are one row.
 
-    Files with the same digest are one record: its row points at the file named as steamcalc
+    Files holding the same record (the digest they state and the digest of what they hold both the
+    same) are one record: its row points at the file named as steamcalc
     names it (``ID_revR.json``) when that is one of them, else at the first by name, and lists the
     others under ``copies``. A copy with another digest (edited, or signed in one place only) is a
     record of its own, with its own row. The HTML link is given only when the HTML is there.
@@ -210,7 +211,7 @@ def index_rows(folder):
     list of (Path, dict, list of str)
         The JSON file of each row, its record, and the names of its identical copies.
     """
-    from .record import record_stem
+    from .record import compute_digest, record_stem
 
     groups = {}
     for path in sorted(Path(folder).glob("*.json")):
@@ -218,7 +219,8 @@ def index_rows(folder):
             record = load_record(path)
         except SteamcalcError:
             continue
-        groups.setdefault(str(record.get("digest")), []).append((path, record))
+        # The digest it states and the digest of what it holds: an edited file keeps the first, not the second.
+        groups.setdefault((str(record.get("digest")), compute_digest(record)), []).append((path, record))
     rows = []
     for files in groups.values():
         own = [(p, r) for p, r in files if p.stem == record_stem(r)]
