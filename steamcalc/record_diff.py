@@ -74,29 +74,29 @@ def compare_records(old, new):
     labels = _input_labels(new.get("kind") or old.get("kind"))
     for key, label in _RECORD_FIELDS.items():
         rows.append(_row("record", key, label, old.get(key), new.get(key)))
-    _entries(rows, "inputs", old.get("inputs", {}), new.get("inputs", {}), labels)
-    u_old, u_new = old.get("uncertainty") or {}, new.get("uncertainty") or {}
-    _entries(rows, "tolerances", u_old.get("tolerances", {}), u_new.get("tolerances", {}), labels)
-    _entries(rows, "results", old.get("results", {}), new.get("results", {}), {})
-    results = {**old.get("results", {}), **new.get("results", {})}
+    _entries(rows, "inputs", _table(old.get("inputs")), _table(new.get("inputs")), labels)
+    u_old, u_new = _table(old.get("uncertainty")), _table(new.get("uncertainty"))
+    _entries(rows, "tolerances", _table(u_old.get("tolerances")), _table(u_new.get("tolerances")), labels)
+    _entries(rows, "results", _table(old.get("results")), _table(new.get("results")), {})
+    results = {k: _table(v) for k, v in {**_table(old.get("results")), **_table(new.get("results"))}.items()}
     coverage = u_new.get("coverage", u_old.get("coverage", 0.9))
-    _bands(rows, u_old.get("bands", {}), u_new.get("bands", {}), results, coverage)
-    _sensitivity(rows, u_old.get("sensitivity", {}), u_new.get("sensitivity", {}), results, labels)
+    _bands(rows, _table(u_old.get("bands")), _table(u_new.get("bands")), results, coverage)
+    _sensitivity(rows, _table(u_old.get("sensitivity")), _table(u_new.get("sensitivity")), results, labels)
     if u_old or u_new:
         for key, label in _METHOD_FIELDS.items():
             a, b = _short(u_old.get(key)) if u_old else None, _short(u_new.get(key)) if u_new else None
             rows.append(_row("uncertainty", key, label, a, b, presence=(key in u_old, key in u_new)))
-    _checks(rows, old.get("checks", []), new.get("checks", []))
+    _checks(rows, _list(old.get("checks")), _list(new.get("checks")))
     for section, label in _LISTS.items():
-        a, b = old.get(section, []), new.get(section, [])
+        a, b = _list(old.get(section)), _list(new.get(section))
         for text in list(a) + [t for t in b if t not in a]:
             rows.append(_row(section, "", label, text if text in a else None, text if text in b else None,
                              presence=(text in a, text in b)))
     for section in ("site", "software"):
         field = "provenance" if section == "software" else "site"
-        a, b = old.get(field, {}), new.get(field, {})
+        a, b = _table(old.get(field)), _table(new.get(field))
         for key in list(a) + [k for k in b if k not in a]:
-            rows.append(_row(section, key, key.replace("_", " "), _short(a.get(key)), _short(b.get(key)),
+            rows.append(_row(section, key, str(key).replace("_", " "), _short(a.get(key)), _short(b.get(key)),
                              presence=(key in a, key in b)))
     _label_units(rows, new)
     return rows
@@ -138,8 +138,8 @@ def _entries(rows, section, a, b, labels):
 
 def _bands(rows, a, b, results, coverage):
     for key in list(a) + [k for k in b if k not in a]:
-        x, y = a.get(key) or {}, b.get(key) or {}
-        name = (results.get(key) or {}).get("label") or key.replace("_", " ")
+        x, y = _table(a.get(key)), _table(b.get(key))
+        name = results.get(key, {}).get("label") or key.replace("_", " ")
         for stat, fallback, words in _BAND_ENDS:
             rows.append(_row("bands", f"{key}.{stat}", f"{name}: {words.format(_percent(coverage))}",
                              x.get(stat, x.get(fallback)),
@@ -149,12 +149,12 @@ def _bands(rows, a, b, results, coverage):
 
 def _sensitivity(rows, a, b, results, labels):
     for key in list(a) + [k for k in b if k not in a]:
-        x = {s.get("input"): s.get("swing") for s in a.get(key, []) if isinstance(s, dict)}
-        y = {s.get("input"): s.get("swing") for s in b.get(key, []) if isinstance(s, dict)}
-        name = (results.get(key) or {}).get("label") or key.replace("_", " ")
+        x = {str(s.get("input")): s.get("swing") for s in _list(a.get(key)) if isinstance(s, dict)}
+        y = {str(s.get("input")): s.get("swing") for s in _list(b.get(key)) if isinstance(s, dict)}
+        name = results.get(key, {}).get("label") or key.replace("_", " ")
         # A swing is a difference: of a temperature in K, of a pressure in bar (labelled a difference).
-        unit = {"degC": "K", "degF": "delta_degF"}.get((results.get(key) or {}).get("unit", ""),
-                                                      (results.get(key) or {}).get("unit", ""))
+        unit = _unit(results.get(key))
+        unit = {"degC": "K", "degF": "delta_degF"}.get(unit, unit)
         for source in list(x) + [s for s in y if s not in x]:
             words = _in_sentence(labels.get(source, (str(source).replace("_", " "),))[0])
             rows.append(_row("sensitivity", f"{key}.{source}", f"{name}: over the {words} tolerance",
@@ -174,8 +174,8 @@ def _in_sentence(label):
 
 
 def _checks(rows, a, b):
-    old = {c.get("name"): c for c in a}
-    new = {c.get("name"): c for c in b}
+    old = {str(c.get("name")): c for c in a if isinstance(c, dict)}
+    new = {str(c.get("name")): c for c in b if isinstance(c, dict)}
     for name in list(old) + [n for n in new if n not in old]:
         x, y = old.get(name), new.get(name)
         row = _row("checks", name, name, None if x is None else f"{x.get('status')}: {x.get('detail')}",
@@ -227,11 +227,23 @@ def _value(entry):
 
 
 def _unit(entry):
-    return entry.get("unit", "") if isinstance(entry, dict) else ""
+    unit = entry.get("unit", "") if isinstance(entry, dict) else ""
+    return unit if isinstance(unit, str) else ""
 
 
 def _given(entry):
-    return entry.get("given") if isinstance(entry, dict) else None
+    given = entry.get("given") if isinstance(entry, dict) else None
+    return None if given is None else str(given)
+
+
+# A crafted or damaged record must give a comparison, not a crash: a section of the wrong type
+# compares as empty (verify reports the record itself).
+def _table(value):
+    return value if isinstance(value, dict) else {}
+
+
+def _list(value):
+    return value if isinstance(value, list) else []
 
 
 def _is_number(value):

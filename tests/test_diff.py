@@ -122,3 +122,19 @@ def test_a_record_without_uncertainty_against_one_with_it(revisions, tmp_path):
     added = {r["section"] for r in rows if r["status"] == "added"}
     assert {"tolerances", "bands", "uncertainty"} <= added
     assert _row(rows, "bands", "outlet_temperature.low")["old_text"] == "—"
+
+
+def test_a_crafted_uncertainty_section_gives_a_comparison_not_a_crash(revisions, tmp_path, capsys):
+    import json
+
+    record = json.loads(revisions[0].read_text())
+    record["uncertainty"].update(tolerances=["x"], bands={"outlet_temperature": "wide", "x": {"low": [1]}},
+                                 sensitivity={"valve_kv": "no", "x": [{"input": ["a"], "swing": {}}]})
+    record["checks"].append({"name": ["not", "text"], "status": "pass", "detail": "d"})
+    record["cautions"] = "not a list"
+    crafted = tmp_path / "crafted.json"
+    crafted.write_text(json.dumps(record))
+    assert main(["diff", str(revisions[0]), str(crafted), "--all", "--html", str(tmp_path / "c.html")]) == 0
+    captured = capsys.readouterr()
+    assert "Traceback" not in captured.err and "internal error" not in captured.err
+    assert "  - Outlet temperature: low end of the 90 % band: 147" in captured.out
