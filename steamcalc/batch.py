@@ -193,21 +193,97 @@ def _link(name):
     return "./" + quote(name)
 
 
-def write_index(folder, failures=(), force=False):
+#: Marks around the list of cases not run, so that a refresh of the index (after a sign-off) keeps it.
+_FAILED_START, _FAILED_END = "<!-- cases not run: -->", "<!-- end of cases not run -->"
+
+
+def index_rows(folder):
+    """The records of a folder, one row each: identical copies of a record (``cp``) are one row.
+
+    Files holding the same record (the digest they state and the digest of what they hold both the
+    same) are one record: its row points at the file named as steamcalc
+    names it (``ID_revR.json``) when that is one of them, else at the first by name, and lists the
+    others under ``copies``. A copy with another digest (edited, or signed in one place only) is a
+    record of its own, with its own row. The HTML link is given only when the HTML is there.
+
+    Returns
+    -------
+    list of (Path, dict, list of str)
+        The JSON file of each row, its record, and the names of its identical copies.
+    """
+    from .record import compute_digest, record_stem
+
+    groups = {}
+    for path in sorted(Path(folder).glob("*.json")):
+        try:
+            record = load_record(path)
+        except SteamcalcError:
+            continue
+        # The digest it states and the digest of what it holds: an edited file keeps the first, not the second.
+        groups.setdefault((str(record.get("digest")), compute_digest(record)), []).append((path, record))
+    rows = []
+    for files in groups.values():
+        own = [(p, r) for p, r in files if p.stem == record_stem(r)]
+        path, record = (own or files)[0]
+        rows.append((path, record, [p.name for p, _ in files if p != path]))
+    rows.sort(key=lambda row: row[0].name)
+    return rows
+
+
+def write_index(folder, failures=(), force=False, keep_failures=False):
     """An index of every record in a folder (HTML with links, and CSV), plus this run's failures.
 
-    An existing ``index.html`` or ``index.csv`` that steamcalc did not write is not replaced
-    unless ``force``.
+    Each record is listed once (see :func:`index_rows`). An existing ``index.html`` or
+    ``index.csv`` that steamcalc did not write is not replaced unless ``force``. The index is
+    written under the folder's index lock, so of two writers at once (two sign-offs, a run and a
+    sign-off) the later sees the other's record.
+
+    Parameters
+    ----------
+    keep_failures : bool
+        Keep the list of cases not run from the index being replaced (a refresh after a sign-off
+        does not forget what the last batch could not run).
 
     Returns
     -------
     tuple of Path
         The HTML and CSV index files.
     """
-    from .errors import RecordConflictError
-    from .issuing import ensure_folder, is_own_output
+    from .issuing import ensure_folder, record_lock
 
     folder = ensure_folder(folder)
+    with record_lock(folder, "index"):
+        return _write_index(folder, failures, force, keep_failures)
+
+
+def refresh_index(folder):
+    """Write a folder's records index again if it has one steamcalc wrote; say what was done.
+
+    Returns
+    -------
+    str or None
+        What happened, for the user; None when the folder has no index.
+    """
+    from .issuing import is_own_output
+
+    folder = Path(folder)
+    present = [p for p in (folder / "index.html", folder / "index.csv") if p.exists()]
+    if not present:
+        return None
+    foreign = [p.name for p in present if not is_own_output(p)]
+    if foreign:
+        return f"index not refreshed: {', '.join(foreign)} in {folder} was not written by steamcalc"
+    try:
+        html_index, csv_index = write_index(folder, keep_failures=True)
+    except SteamcalcError as exc:
+        return f"index not refreshed: {exc}"
+    return f"index refreshed: {html_index} and {csv_index}"
+
+
+def _write_index(folder, failures, force, keep_failures):
+    from .errors import RecordConflictError
+    from .issuing import is_own_output
+
     csv_path, html_path = folder / "index.csv", folder / "index.html"
     for path in (csv_path, html_path):
         if path.exists() and not force and not is_own_output(path):
@@ -216,46 +292,64 @@ def write_index(folder, failures=(), force=False):
     rows = []
     from .register import INDEX_COLUMNS, index_columns
     currency = index_columns(folder)
-    for path in sorted(folder.glob("*.json")):
-        try:
-            record = load_record(path)
-        except SteamcalcError:
-            continue
+    for path, record, copies in index_rows(folder):
+        html_file = path.with_suffix(".html")
         rows.append({"id": record["id"], "revision": record["revision"], "kind": record["kind"],
                      "title": _plain(record.get("title", "")), "status": _plain(record.get("status", "")),
                      "checked_by": _plain(record.get("checked_by") or ""),
                      "created": _plain(record.get("created", "")),
-                     "json": path.name, "html": path.with_suffix(".html").name,
-                     **{c: "" for c in INDEX_COLUMNS}, **currency.get("*", {}), **currency.get(path.name, {})})
+                     "json": path.name, "html": html_file.name if html_file.is_file() else "",
+                     **{c: "" for c in INDEX_COLUMNS}, **currency.get("*", {}), **currency.get(path.name, {}),
+                     "copies": "; ".join(copies)})
     buffer = io.StringIO()
-    writer = csv.DictWriter(buffer, fieldnames=_INDEX_COLUMNS + INDEX_COLUMNS, lineterminator="\n")
+    # "copies" goes last: the columns that were there before keep their places.
+    writer = csv.DictWriter(buffer, fieldnames=_INDEX_COLUMNS + INDEX_COLUMNS + ("copies",), lineterminator="\n")
     writer.writeheader()
     writer.writerows({k: csv_safe(v) for k, v in row.items()} for row in rows)
-    write_text_atomic(csv_path, buffer.getvalue())
 
     colours = {"pass": "#2f6b3a", "warn": "#8a5a00", "fail": "#a3201b"}
     body = "".join(
-        f"<tr><td><a href='{html.escape(_link(r['html']))}'>{html.escape(r['id'])}</a></td><td>{html.escape(r['revision'])}"
+        "<tr><td>" + (f"<a href='{html.escape(_link(r['html']))}'>{html.escape(r['id'])}</a>" if r["html"] else
+                      f"{html.escape(r['id'])} <span class='small'>(no HTML beside the JSON)</span>")
+        + f"</td><td>{html.escape(r['revision'])}"
         f"</td><td>{html.escape(r['kind'])}</td><td>{html.escape(r['title'])}</td>"
         f"<td style='color:{colours.get(r['status'], '#000')};font-weight:bold'>{html.escape(r['status'].upper())}</td>"
         f"<td>{html.escape(r['checked_by'])}</td><td>{html.escape(r['created'])}</td>"
-        f"<td><a href='{html.escape(_link(r['json']))}'>JSON</a></td>"
-        + "".join(f"<td>{html.escape(_plain(r[c]))}</td>" for c in INDEX_COLUMNS) + "</tr>" for r in rows)
+        f"<td><a href='{html.escape(_link(r['json']))}'>{html.escape(r['json'])}</a></td>"
+        + "".join(f"<td>{html.escape(_plain(r[c]))}</td>" for c in INDEX_COLUMNS)
+        + f"<td>{html.escape(r['copies'])}</td></tr>" for r in rows)
     failed = "".join(f"<li><code>{html.escape(f.path)}</code>: {html.escape(f.error)}</li>" for f in failures)
+    failed_block = f'<h2 class="fail">Cases not run in the last batch</h2><ul>{failed}</ul>' if failed else ""
+    if keep_failures and not failures:
+        failed_block = _kept_failures(html_path)
+    copies = sum(1 for r in rows for _ in filter(None, r["copies"].split("; ")))
+    count = f"{len(rows)} records in this folder" + (
+        f" (and {copies} identical cop{'y' if copies == 1 else 'ies'} of them, named in the last column)" if copies else "")
     page = f"""<!DOCTYPE html>
 <html lang="en"><head><meta charset="utf-8"><meta name="generator" content="steamcalc index">
 <title>steamcalc records index</title>
 <style>body{{font:10.5pt/1.4 "DejaVu Sans",Arial,sans-serif;margin:2em auto;max-width:64em;padding:0 1.5em}}
 table{{border-collapse:collapse;width:100%}}th,td{{text-align:left;padding:.25em .5em;border-bottom:1px solid #b9c2c9}}
-th{{background:#eef1f3}}.fail{{color:#a3201b}}</style></head><body>
-<h1>Calculation records</h1><p>{len(rows)} records in this folder.</p>
+th{{background:#eef1f3}}.fail{{color:#a3201b}}.small{{font-size:85%;color:#59636b}}</style></head><body>
+<h1>Calculation records</h1><p>{count}. Each record is listed once; a file that holds the same record as a
+listed one (the same digest: a copy) is named under <i>identical copies</i>, not listed again.</p>
 <table><tr><th>Case</th><th>Rev</th><th>Kind</th><th>Title</th><th>Status</th><th>Checked by</th><th>Created</th>
-<th>Record</th>{"".join(f"<th>{c.replace('_', ' ')}</th>" for c in INDEX_COLUMNS)}</tr>{body}</table>
-{f'<h2 class="fail">Cases not run in the last batch</h2><ul>{failed}</ul>' if failed else ''}
+<th>Record</th>{"".join(f"<th>{c.replace('_', ' ')}</th>" for c in INDEX_COLUMNS)}<th>identical copies</th></tr>{body}</table>
+{_FAILED_START}{failed_block}{_FAILED_END}
 </body></html>
 """
+    write_text_atomic(csv_path, buffer.getvalue())
     write_text_atomic(html_path, page)
     return html_path, csv_path
+
+
+def _kept_failures(html_path):
+    try:
+        text = html_path.read_text("utf-8")
+    except (OSError, UnicodeDecodeError):
+        return ""
+    start, end = text.find(_FAILED_START), text.find(_FAILED_END)
+    return text[start + len(_FAILED_START):end] if 0 <= start < end else ""
 
 
 def _plain(value):

@@ -46,12 +46,122 @@ class _Parser(argparse.ArgumentParser):
         raise SystemExit(EXIT_BAD_INPUT)
 
 
-def _parser():
-    parser = _Parser(prog="steamcalc", description="Steam-system calculation records on IAPWS-IF97.")
-    parser.add_argument("--version", action="version", version=f"steamcalc {__version__}")
-    sub = parser.add_subparsers(dest="command", required=True, parser_class=_Parser)
+#: Exit codes every command shares; each command's help lists what they mean for it.
+_BAD_INPUT = "2  bad input or usage (the message names the file, the field, the value and the fix)"
 
-    run = sub.add_parser("run", help="compute case files and write their records (JSON, HTML, Markdown)")
+#: name -> (one line for the command list, what it does, examples, exit codes)
+_HELP = {
+    "run": (
+        "compute case files and write their records (JSON, HTML, Markdown)",
+        "Compute each case file and issue its record: the JSON (the record itself) with its HTML and Markdown\n"
+        "reports, in records/ beside the site file unless --out says otherwise. A folder runs every case in\n"
+        "it, in worker processes; a bad case is reported at the end and the others still run. A record of\n"
+        "the same id and revision already there is kept when its content is the same, and refused when it\n"
+        "differs (raise the case's revision).\n\n"
+        "Running several cases also writes index.html and index.csv, an index of every record in the\n"
+        "folder. The index lists each record once: a file holding the same record as another in the folder\n"
+        "(the same digest - a copy made with cp, say) is not a second row; the row points at the file named\n"
+        "as steamcalc names it (ID_revR.json) and names the copies in its 'copies' column. A copy that\n"
+        "differs (edited, or signed in one place and not the other) is a record of its own: its own row,\n"
+        "pointing at its own JSON, and at its own HTML when there is one beside it.",
+        ["steamcalc run demo_site/cases/LD-01.toml",
+         "steamcalc run demo_site/cases --out demo_site/records",
+         "steamcalc run demo_site/cases/HX-01.toml --pdf --notebook"],
+        ["0  every record written (or kept, unchanged) and none has a failing check",
+         "1  a record has a failing check (it is still written, so the checker sees it)",
+         _BAD_INPUT + "; in a batch, some cases did not run (each is listed)",
+         "130  stopped with Ctrl-C: the records finished are kept, the cases not run are listed"]),
+    "verify": (
+        "check a record's digest and recompute its results",
+        "Check each record: integrity (its digests), then reproduction - every result, check, status,\n"
+        "caution and step recomputed from the record's own inputs and compared with what it states, and\n"
+        "its uncertainty bands recomputed - then its HTML and Markdown and its signatures.",
+        ["steamcalc verify demo_site/records/LD-01_revA.json",
+         "steamcalc verify demo_site/records --engine fast"],
+        ["0  every record verified",
+         "1  a record is edited, not reproduced, its companions differ, or a signature is invalid or unknown",
+         _BAD_INPUT + "; a file is not a readable record"]),
+    "diff": (
+        "what changed between two records",
+        "Compare two records row by row: the record itself, inputs (the SI value with the text as given\n"
+        "beside it), input tolerances, results, uncertainty bands and sensitivity, the uncertainty method,\n"
+        "checks, assumptions, cautions, references, warnings, site data and software. Rows that differ come\n"
+        "first, marked * changed, + added, - removed; the rows that are the same are counted, and listed\n"
+        "after them (marked =) with --all. The HTML page shows the same, the rows that are the same folded\n"
+        "away under the ones that differ.",
+        ["steamcalc diff demo_site/records/LD-01_revA.json demo_site/records/LD-01_revB.json",
+         "steamcalc diff OLD.json NEW.json --all --html changes.html"],
+        ["0  compared (whether or not anything differs)",
+         _BAD_INPUT + "; a file is not a readable record"]),
+    "sign": (
+        "the checker's sign-off, after a passing verification",
+        "Sign a record with your key after it verifies: the record is verified first (nothing it states is\n"
+        "taken on trust) and only a record that verifies and has no failing check is signed. The signature\n"
+        "goes into the JSON and shows in its HTML and Markdown. When the record's folder has a records\n"
+        "index (index.html, index.csv) the index is written again, so it shows the signature.",
+        ['steamcalc keys new --name "C. Checker" --out ~/keys',
+         "steamcalc sign demo_site/records/LD-01_revA.json --key ~/keys/c-checker.key",
+         "steamcalc sign demo_site/records/LD-01_revA.json --key ~/keys/a-approver.key --role approved"],
+        ["0  signed",
+         "1  refused: the record does not verify, has a failing check or is already signed",
+         _BAD_INPUT + "; the key file or passphrase cannot be read"]),
+    "keys": (
+        "signing keys: make a key pair for a checker or approver",
+        "Make the signing keys of a checker or approver.",
+        ['steamcalc keys new --name "C. Checker" --out ~/keys'],
+        ["0  done", _BAD_INPUT]),
+    "keys new": (
+        "a new Ed25519 key pair: NAME.key (private, 0600) and NAME.pub",
+        "Make a new Ed25519 key pair: NAME.key, your private key (file mode 0600; keep it to yourself), and\n"
+        "NAME.pub, the public key to put in the site's trusted_signers/ folder. Existing files are never\n"
+        "overwritten.",
+        ['steamcalc keys new --name "C. Checker" --out ~/keys',
+         'steamcalc keys new --name "C. Checker" --out ~/keys --passphrase-file ~/keys/passphrase.txt'],
+        ["0  the key pair is written", _BAD_INPUT + "; a key file of that name exists"]),
+    "register": (
+        "every record of a site or records folder: status, signatures, whether it is current",
+        "List every record of a site folder (its records/) or of a records folder, re-verifying each: its\n"
+        "status, verification, signatures, and whether it is current - not superseded by a later revision,\n"
+        "its case file and the site data unchanged since it was issued, made by the same steamcalc and\n"
+        "property engine, its HTML and Markdown matching its JSON.",
+        ["steamcalc register demo_site",
+         "steamcalc register demo_site/records --html register.html --csv register.csv"],
+        ["0  every record is current and valid",
+         "1  a record is not current or not valid (each reason is listed)",
+         _BAD_INPUT]),
+    "new-site": (
+        "a new plant folder from a template site",
+        "Make a new plant folder from a template site: the site file, the case files and the workbooks\n"
+        "beside it, pointed at the new folder. An existing folder is never written into.",
+        ["steamcalc new-site ../plant2",
+         "steamcalc new-site ../plant2 --from demo_site"],
+        ["0  the folder is made", _BAD_INPUT + "; the folder exists"]),
+}
+
+
+def _command(sub, name, **kwargs):
+    """A sub-command whose help says what it does, gives examples, and lists its exit codes."""
+    summary, description, examples, codes = _HELP[name]
+    import textwrap
+
+    codes = [textwrap.fill(c, 96, initial_indent="  ", subsequent_indent="       ") for c in codes]
+    epilog = ("Example" + ("s" if len(examples) > 1 else "") + ":\n" + "\n".join(f"  {e}" for e in examples)
+              + "\n\nExit codes:\n" + "\n".join(codes))
+    return sub.add_parser(name.split()[-1], help=summary, description=description, epilog=epilog,
+                          formatter_class=argparse.RawDescriptionHelpFormatter, **kwargs)
+
+
+def _parser():
+    parser = _Parser(prog="steamcalc", description="Steam-system calculation records on IAPWS-IF97.",
+                     formatter_class=argparse.RawDescriptionHelpFormatter,
+                     epilog="Example:\n  steamcalc run demo_site/cases && steamcalc verify demo_site/records\n\n"
+                            "Each command's --help says what it does, with examples and its exit codes:\n"
+                            "  0 all good; 1 a record failed a check or a verification (or a signature was\n"
+                            "  refused); 2 bad input or usage, with a message naming the file, the field and the fix.")
+    parser.add_argument("--version", action="version", version=f"steamcalc {__version__}")
+    sub = parser.add_subparsers(dest="command", required=True, parser_class=_Parser, metavar="COMMAND")
+
+    run = _command(sub, "run")
     run.add_argument("cases", nargs="+", metavar="CASE", help="case files (.toml) or folders of them")
     run.add_argument("--site", metavar="SITE.toml", help="site file to use instead of each case's own")
     run.add_argument("--out", metavar="DIR", help="folder for the records (default: records/ beside the site file)")
@@ -63,7 +173,7 @@ def _parser():
     run.add_argument("--force", action="store_true",
                      help="replace report, index and companion files of the records' names that steamcalc did not write")
 
-    verify = sub.add_parser("verify", help="check a record's digest and recompute its results")
+    verify = _command(sub, "verify")
     verify.add_argument("records", nargs="+", metavar="RECORD.json", help="record files, or folders of them")
     verify.add_argument("--repair", action="store_true",
                         help="re-render the HTML and Markdown beside a record that verifies, where they differ")
@@ -75,14 +185,15 @@ def _parser():
                         help="IF97 engine to recompute with: iapws (the records' own, default) or fast (seuif97, "
                              "an independent second implementation)")
 
-    diff = sub.add_parser("diff", help="what changed between two records")
-    diff.add_argument("old", metavar="OLD.json")
-    diff.add_argument("new", metavar="NEW.json")
+    diff = _command(sub, "diff")
+    diff.add_argument("old", metavar="OLD.json", help="the earlier record")
+    diff.add_argument("new", metavar="NEW.json", help="the later record")
     diff.add_argument("--html", metavar="FILE.html", help="also write the comparison as an HTML page")
+    diff.add_argument("--all", action="store_true", help="also list the rows that are the same, after the ones that differ")
     diff.add_argument("--force", action="store_true", help="replace an existing FILE.html that steamcalc did not write")
 
-    sign = sub.add_parser("sign", help="the checker's sign-off, after a passing verification")
-    sign.add_argument("record", metavar="RECORD.json")
+    sign = _command(sub, "sign")
+    sign.add_argument("record", metavar="RECORD.json", help="the record to sign (its HTML and Markdown are re-rendered)")
     sign.add_argument("--by", metavar="NAME", help="the signer's name (with --key: must be the key's name; "
                       "alone: a sign-off without a key, which proves nothing about who signed)")
     sign.add_argument("--key", metavar="KEYFILE", help="your private key file (*.key, from `steamcalc keys new`)")
@@ -90,22 +201,21 @@ def _parser():
     sign.add_argument("--passphrase-file", metavar="FILE", help="file holding the key's passphrase")
     sign.add_argument("--trusted", metavar="DIR", help="trusted signers folder (default: beside the site.toml)")
 
-    keys = sub.add_parser("keys", help="signing keys: make a key pair for a checker or approver")
+    keys = _command(sub, "keys")
     keys_sub = keys.add_subparsers(dest="keys_command", required=True, parser_class=_Parser)
-    keys_new = keys_sub.add_parser("new", help="a new Ed25519 key pair: NAME.key (private, 0600) and NAME.pub")
+    keys_new = _command(keys_sub, "keys new")
     keys_new.add_argument("--name", required=True, metavar="NAME", help="your name as it goes on signed records")
     keys_new.add_argument("--out", default=".", metavar="DIR", help="folder for the two files (default: here)")
     keys_new.add_argument("--passphrase-file", metavar="FILE", help="protect the private key with the passphrase "
                           "in FILE (without it the key is protected by its file mode only)")
 
-    register = sub.add_parser("register", help="every record of a site or records folder: status, signatures, "
-                              "whether it is current")
+    register = _command(sub, "register")
     register.add_argument("folder", metavar="DIR", help="a site folder (with site.toml) or a records folder")
     register.add_argument("--html", metavar="FILE.html", help="also write the register as an HTML page")
     register.add_argument("--csv", metavar="FILE.csv", help="also write the register as CSV")
 
-    site = sub.add_parser("new-site", help="a new plant folder from a template site")
-    site.add_argument("folder", metavar="DIR")
+    site = _command(sub, "new-site")
+    site.add_argument("folder", metavar="DIR", help="the new plant folder (must not exist yet)")
     site.add_argument("--from", dest="template", metavar="TEMPLATE", help="template site (default: the demo site)")
     return parser
 
@@ -263,25 +373,82 @@ def _cell(value):
 
 def _diff(args):
     from .record import load_record
-    from .signoff import diff_records
+    from .record_diff import diff_records
 
     if args.html:
         _check_diff_target(args)
     old, new = load_record(args.old), load_record(args.new)
-    rows = diff_records(old, new)
-    _say(f"{args.old} ({old['id']} rev {old['revision']}) -> {args.new} ({new['id']} rev {new['revision']})")
-    if not rows:
-        _say("  no differences in inputs, assumptions, results or checks")
-    for row in rows:
-        change = row["change"]
-        change = f"{change:+.6g}" if isinstance(change, float) else change
-        _say(f"  [{row['section']}] {row['key']}: {_cell(row['old'])} -> {_cell(row['new'])} {row['unit_label']}  ({change})")
+    rows = diff_records(old, new, unchanged=True)
+    for line in format_diff(rows, old, new, args.old, args.new, args.all):
+        _say(line)
     if args.html:
         from .record import write_text_atomic
         from .report import render_diff_html
         write_text_atomic(args.html, render_diff_html(old, new, rows))
         _say(f"  written: {args.html}")
     return EXIT_OK
+
+
+#: Old or new text longer than this goes on lines of its own under the item.
+_LONG_TEXT = 48
+
+
+def format_diff(rows, old, new, old_name, new_name, unchanged=False):
+    """The lines ``steamcalc diff`` prints: a summary, then every row that differs, marked, by section;
+    with ``unchanged`` the rows that are the same follow, marked ``=``."""
+    from .record_diff import diff_summary
+
+    differing = [r for r in rows if r["status"] != "same"]
+    same = [r for r in rows if r["status"] == "same"]
+    lines = [f"{old.get('id')} rev {old.get('revision')} -> {new.get('id')} rev {new.get('revision')}: "
+             f"{diff_summary(rows)}",
+             f"  old: {old_name} (created {old.get('created')})", f"  new: {new_name} (created {new.get('created')})",
+             "  marks: * changed, + added, - removed, = the same; values in the records' SI units, "
+             "the text as given in brackets"]
+    if not differing:
+        lines.append("no differences: every compared row is the same")
+    lines += _diff_lines(differing)
+    if same and unchanged:
+        lines += ["", f"The same in both ({len(same)} rows)"] + _diff_lines(same)
+    elif same:
+        lines.append(f"({len(same)} rows the same in both are not listed; --all lists them after these)")
+    return lines
+
+
+def _diff_lines(rows):
+    lines, section = [], None
+    for row in rows:
+        if row["section"] != section:
+            section = row["section"]
+            lines += ["", row["section_label"]]
+        key = f" [{row['case_key']}]" if row.get("case_key") else ""
+        old, new = _diff_cell(row, "old"), _diff_cell(row, "new")
+        change = row["change_text"]
+        if isinstance(row["change"], float) and row["unit_label"]:
+            change += f" {row['unit_label']}"
+        if row["status"] == "same":
+            text = f"{old}" if len(old) <= _LONG_TEXT else ""
+            lines.append(f"  = {row['label']}{key}: {text}".rstrip(": "))
+            if len(old) > _LONG_TEXT:
+                lines.append(f"      {old}")
+        elif len(old) > _LONG_TEXT or len(new) > _LONG_TEXT:
+            lines += [f"  {row['marker']} {row['label']}{key}: {change}", f"      old: {old}", f"      new: {new}"]
+        else:
+            said = row["status"] != "changed" or change == "changed"
+            lines.append(f"  {row['marker']} {row['label']}{key}: {old} -> {new}" + ("" if said else f"; change {change}"))
+    return lines
+
+
+def _diff_cell(row, side):
+    if row[side] is None and row["status"] in ("added", "removed"):
+        return "(none)"
+    text = row[f"{side}_text"]
+    if row["unit_label"] and isinstance(row[side], (int, float)) and not isinstance(row[side], bool):
+        text += f" {row['unit_label']}"
+    given = row[f"{side}_given"]
+    if given and given not in (row[f"{side}_text"], text):
+        text += f" (as given: {given})"
+    return text
 
 
 def _verify_trust(args, raw, record, outcome):
@@ -339,6 +506,7 @@ def _sign_with_key(args):
     _say(f"{signed['id']} rev {signed['revision']}: {entry['role']} and signed by {entry['name']} on "
           f"{entry['date']}, key {short_fingerprint(entry['fingerprint'])}")
     _say(f"  {args.record}, with its HTML and Markdown")
+    _refresh_index(args.record)
     from .keys import load_trusted, trusted_folder_for
 
     folder = args.trusted or trusted_folder_for(args.record)
@@ -409,7 +577,17 @@ def _sign(args):
     path = Path(args.record)
     _say(f"{signed['id']} rev {signed['revision']}: signed by {signed['checked_by']} on {signed['signoff']['date']}")
     _say(f"  {path} (new digest {signed['digest'][:23]}...), with its HTML and Markdown")
+    _refresh_index(path)
     return EXIT_OK
+
+
+def _refresh_index(record_path):
+    """After a sign-off: the records index of the record's folder written again, when it has one."""
+    from .batch import refresh_index
+
+    note = refresh_index(Path(record_path).parent)
+    if note:
+        _say(f"  {note}")
 
 
 def _new_site(args):

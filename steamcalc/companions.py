@@ -5,6 +5,8 @@ from __future__ import annotations
 import os
 import shutil
 import subprocess
+import tempfile
+from contextlib import contextmanager
 from pathlib import Path
 
 from .calcs import get_calculation
@@ -49,16 +51,52 @@ def run_notebook(case, out_dir, stem, force=False):
     target = Path(out_dir) / f"{stem}.ipynb"
     _refuse_foreign(target, force)
     partial = target.with_name(f".{target.stem}.part.ipynb")
-    try:
-        papermill.execute_notebook(
-            str(workbook), str(partial), cwd=str(workbook.parent), progress_bar=False, kernel_name="python3",
-            parameters={"case_file": str(Path(case.path).resolve()), "record_folder": str(Path(out_dir).resolve()),
-                        "save_on_run": False})
-    except Exception as exc:  # papermill wraps kernel errors in its own exception types
-        partial.unlink(missing_ok=True)
-        raise SteamcalcError(f"the workbook {workbook.name} did not run: {exc}", source=case.path) from None
+    with _local_kernel() as kernel_options:
+        try:
+            papermill.execute_notebook(
+                str(workbook), str(partial), cwd=str(workbook.parent), progress_bar=False, kernel_name="python3",
+                parameters={"case_file": str(Path(case.path).resolve()), "record_folder": str(Path(out_dir).resolve()),
+                            "save_on_run": False}, **kernel_options)
+        except Exception as exc:  # papermill wraps kernel errors in its own exception types
+            partial.unlink(missing_ok=True)
+            raise SteamcalcError(f"the workbook {workbook.name} did not run: {exc}", source=case.path) from None
     os.replace(partial, target)
     return target
+
+
+@contextmanager
+def _local_kernel():
+    """Papermill options for one headless run whose kernel is reached over local sockets.
+
+    By default a kernel listens on TCP ports of localhost without encryption, and ipykernel
+    warns so on its stderr at every start. Where the system has Unix sockets the kernel is
+    reached through sockets in a private temporary folder instead (mode 0700, removed after the
+    run): nothing listens on the network and the warning does not arise. The kernel manager is
+    still made, started and shut down by the notebook client, and the kernel's own errors still
+    reach stderr. Elsewhere (Windows) the default manager is used.
+    """
+    if os.name == "nt":
+        yield {}
+        return
+    from jupyter_client.manager import AsyncKernelManager
+    from traitlets import default
+
+    folder = tempfile.mkdtemp(prefix="steamcalc-kernel-")
+
+    class LocalSocketKernelManager(AsyncKernelManager):
+        @default("transport")
+        def _local_sockets(self):
+            return "ipc"
+
+        @default("connection_file")
+        def _private_connection_file(self):
+            # The sockets are named after it, so they land in the private folder too.
+            return os.path.join(folder, "kernel.json")
+
+    try:
+        yield {"kernel_manager_class": LocalSocketKernelManager}
+    finally:
+        shutil.rmtree(folder, ignore_errors=True)
 
 
 def find_chromium():

@@ -1,4 +1,8 @@
-"""Diff two records, and the checker's sign-off after a passing verification (locked, issued as a set)."""
+"""The checker's sign-off after a passing verification (locked, issued as a set).
+
+Comparing two records lives in :mod:`steamcalc.record_diff`; ``diff_records`` is re-exported here for the
+callers that import it from this module.
+"""
 
 from __future__ import annotations
 
@@ -8,97 +12,8 @@ from .errors import RecordError
 from pathlib import Path
 
 from .record import compute_digest
+from .record_diff import diff_records  # noqa: F401  (re-exported, see the module docstring)
 from .review import verify_record
-
-
-def _value(entry):
-    if isinstance(entry, dict):
-        unit = entry.get("unit", "")
-        return entry.get("value"), unit
-    return entry, ""
-
-
-def diff_records(old, new):
-    """What changed between two records: inputs, assumptions, results, checks.
-
-    Parameters
-    ----------
-    old, new : dict
-        Two records (usually two revisions of one case).
-
-    Returns
-    -------
-    list of dict
-        One row per change: ``section``, ``key``, ``old``, ``new``, ``unit``, ``change`` (the
-        numeric difference where both are numbers, else 'added', 'removed' or 'changed'), and
-        ``unit_label``, the unit as people write it (pressures with their basis).
-    """
-    rows = _diff_rows(old, new)
-    from .display import pressure_basis
-    from .report import format_unit
-
-    for row in rows:
-        row["unit_label"] = format_unit(row["unit"], pressure_basis(new, row["section"], row["key"])) \
-            if row["unit"] else ""
-    return rows
-
-
-def _diff_rows(old, new):
-    rows = []
-    for section in ("inputs", "results"):
-        a, b = old.get(section, {}), new.get(section, {})
-        for key in list(a) + [k for k in b if k not in a]:
-            old_value, unit = _value(a.get(key))
-            new_value, new_unit = _value(b.get(key))
-            unit = unit or new_unit
-            if key not in b:
-                rows.append(dict(section=section, key=key, old=old_value, new=None, unit=unit, change="removed"))
-            elif key not in a:
-                rows.append(dict(section=section, key=key, old=None, new=new_value, unit=unit, change="added"))
-            elif old_value != new_value or (section == "inputs" and a[key].get("given") != b[key].get("given")):
-                numeric = all(isinstance(v, (int, float)) and not isinstance(v, bool) for v in (old_value, new_value))
-                change = new_value - old_value if numeric else "changed"
-                if numeric and old_value and abs(change) <= 1e-12 * abs(old_value):
-                    change = "as given: " + f"{a[key].get('given')} → {b[key].get('given')}"
-                rows.append(dict(section=section, key=key, old=old_value, new=new_value, unit=unit, change=change))
-    old_assumptions, new_assumptions = old.get("assumptions", []), new.get("assumptions", [])
-    for text in old_assumptions:
-        if text not in new_assumptions:
-            rows.append(dict(section="assumptions", key="", old=text, new=None, unit="", change="removed"))
-    for text in new_assumptions:
-        if text not in old_assumptions:
-            rows.append(dict(section="assumptions", key="", old=None, new=text, unit="", change="added"))
-    old_checks = {c["name"]: c for c in old.get("checks", [])}
-    new_checks = {c["name"]: c for c in new.get("checks", [])}
-    for name in list(old_checks) + [n for n in new_checks if n not in old_checks]:
-        a, b = old_checks.get(name), new_checks.get(name)
-        if a is None or b is None or a["status"] != b["status"] or a["detail"] != b["detail"]:
-            rows.append(dict(section="checks", key=name,
-                             old=None if a is None else f"{a['status']}: {a['detail']}",
-                             new=None if b is None else f"{b['status']}: {b['detail']}", unit="",
-                             change="added" if a is None else "removed" if b is None else
-                             ("status " + a["status"] + " → " + b["status"]) if a["status"] != b["status"] else "detail"))
-    for key in ("status", "revision"):
-        if old.get(key) != new.get(key):
-            rows.append(dict(section="record", key=key, old=old.get(key), new=new.get(key), unit="", change="changed"))
-    old_site, new_site = old.get("site", {}), new.get("site", {})
-    for key in list(old_site) + [k for k in new_site if k not in old_site]:
-        if old_site.get(key) != new_site.get(key):
-            rows.append(dict(section="site", key=key, old=_short(old_site.get(key)), new=_short(new_site.get(key)),
-                             unit="", change="changed"))
-    return rows
-
-
-def _short(value):
-    if isinstance(value, dict) and "value" in value:
-        if not isinstance(value["value"], float):
-            return value["value"]
-        from .report import format_unit
-
-        return f"{value['value']:g} {format_unit(value.get('unit', ''))}".strip()
-    if isinstance(value, dict):
-        return ", ".join(f"{k} {_short(v)}" for k, v in value.items())
-    return value
 
 
 def sign_record(path, record, checker, now=None):

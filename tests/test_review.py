@@ -39,9 +39,10 @@ def test_diff_of_two_revisions(site, capsys, tmp_path):
     assert main(["diff", str(site / "records" / "LD-02_revA.json"), str(site / "records" / "LD-02_revB.json"),
                  "--html", str(page)]) == 0
     out = capsys.readouterr().out
-    assert "[inputs] mass_flow: 2000 -> 2300 kg/h  (+300)" in out
-    assert "[results] valve_kv_normal" in out
-    assert "[record] revision: A -> B" in out
+    assert "  * Steam flow [mass_flow]: 2000 kg/h (as given: 2.0 t/h) -> 2300 kg/h (as given: 2.3 t/h); change +300 kg/h" \
+        in out
+    assert "  * Required Kv, normal flow: " in out
+    assert "  * Revision: A -> B" in out
     assert "mass_flow" in page.read_text()
 
 
