@@ -41,7 +41,7 @@ _FIELDS = {
         help="The spray nozzle's own pressure drop after the valve (default 0).", example="3 bar"),
     "spray_valve_fl": dict(
         kind="fraction", label="Spray valve FL", help="Liquid pressure recovery factor of the spray-water valve "
-        "(maker's data; default 0.90).", example="0.90", positive=True),
+        "(maker's data; default 0.90).", example="0.90"),
     "spray_valve_rated_kv": dict(
         kind="flow_coefficient", label="Spray valve rated Kv (Kvs)", help="Kv of the selected spray-water valve "
         "at full travel.", example="0.25 m^3/h", positive=True),
