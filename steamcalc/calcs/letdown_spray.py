@@ -108,18 +108,20 @@ def check_spray_inputs(inputs):
     if nozzle is not None and nozzle < 0.0:
         raise InputError("the nozzle differential cannot be negative", field=_address("nozzle_differential"),
                          value=nozzle, fix="give the nozzle's own pressure drop, zero or more")
-    if not inputs.desuperheating:
-        return
+    if not inputs.desuperheating or inputs.outlet_pressure >= inputs.inlet_pressure:
+        return   # no desuperheater, or a let-down the calculation refuses on its outlet pressure
+    if inputs.spray_supply_pressure is None and not nozzle:
+        return   # the spray water pressure against the steam is checked with the desuperheater
     supply = inputs.spray_supply_pressure if inputs.spray_supply_pressure is not None else inputs.water_pressure
     needed = inputs.outlet_pressure + (nozzle or 0.0)
     if supply <= needed:
-        where = ("spray_supply_pressure" if inputs.spray_supply_pressure is not None
-                 else "nozzle_differential" if nozzle else None)
+        where = "spray_supply_pressure" if inputs.spray_supply_pressure is not None else "nozzle_differential"
         raise InputError(
             f"the spray water supply at {bar_a(supply)} is not above the steam pressure plus the nozzle differential "
             f"({bar_a(needed)}): no water would flow through the spray valve",
-            field=_address(where) if where else "desuperheater.water_pressure", value=supply,
-            fix="give the pressure upstream of the spray-water valve (check the basis, bar(g)/bar(a))")
+            field=_address(where), value=supply,
+            fix="give spray_supply_pressure, the water pressure upstream of the spray-water valve, above the steam "
+                "pressure plus the nozzle differential (check the basis, bar(g)/bar(a))")
 
 
 def _travel(kv, kvs, characteristic, rangeability):
@@ -234,8 +236,8 @@ def _spray_valve(inputs, sprays, water, result):
     if inputs.spray_valve_rated_kv is not None:
         _rated_spray_valve(inputs.spray_valve_rated_kv, sizing, characteristic, rangeability, result)
     else:
-        result.check("Spray valve selected", "warn", "no rated Kv for the spray-water valve: its travel is not "
-                     "found; give desuperheater.spray_valve_rated_kv")
+        result.assumptions.append("Spray-water valve travel not found: no rated Kv "
+                                  "(desuperheater.spray_valve_rated_kv)")
 
 
 def _cavitation_check(s, verdict, supply, p_out, pv, fl, result):
@@ -318,9 +320,12 @@ def _pipe_diameter(inputs):
 def _evaporation(inputs, sprays, throttled, target, water, result):
     diameter, described = _pipe_diameter(inputs)
     if diameter is None:
-        result.check("Steam velocity at the desuperheater", "warn",
-                     "no pipe size at the spray (desuperheater.pipe_size or lines.outlet_size): the minimum steam "
-                     "velocity and the evaporation length are not checked")
+        text = ("no pipe size at the spray (desuperheater.pipe_size or lines.outlet_size): the minimum steam "
+                "velocity and the evaporation length are not checked")
+        if inputs.sensor_distance is not None:
+            result.check("Temperature sensor beyond the evaporation length", "warn", text)
+        else:
+            result.assumptions.append(f"Desuperheater: {text}")
         return
     cases = dict(flow_cases(inputs))
     low = "minimum" if "minimum" in cases else "normal"
