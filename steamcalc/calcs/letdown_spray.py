@@ -195,7 +195,11 @@ def _spray_valve(inputs, sprays, water, result):
         "Spray-water valve: supply and steam pressures the same at every flow, so its pressure differential and "
         "cavitation indication do not change with flow, and its Kv turndown equals the spray turndown; Fp = 1 "
         "(valve and pipe sizes not given), turbulent flow (no Reynolds number factor)")
-    if water.temperature >= saturation_temperature(supply) - 1e-6:
+    try:
+        supply_saturation = saturation_temperature(supply)
+    except OutOfRangeError as exc:
+        raise exc.for_field(_address("spray_supply_pressure")) from None
+    if water.temperature >= supply_saturation - 1e-6:
         raise InputError(f"spray water at {deg_c(water.temperature)} is not liquid at the supply pressure "
                          f"{bar_a(supply)}", field=_address("spray_supply_pressure"), value=supply,
                          fix="give the pressure upstream of the spray-water valve")
@@ -226,6 +230,11 @@ def _spray_valve(inputs, sprays, water, result):
                     f"{s.sizing_differential:.1f} kPa difference)", s.kv, "m**3/h")
         result.add(f"spray_valve_kv_{name}", f"Spray valve required Kv, {name} steam flow", s.kv, "m**3/h")
     verdict = any_case.cavitation
+    result.step("Spray valve cavitation indication", "flashing if p2 < pv; choked if Δp ≥ Δp_choked; incipient "
+                "cavitation if Δp ≥ Kc·(p1 − pv), Kc = 0.8·FL² (common practice)",
+                f"p2 = {bar_a(p_out)}, pv = {bar_a(pv)}; Δp = {any_case.pressure_differential / 1e2:.2f}, "
+                f"Δp_choked = {any_case.choked_differential / 1e2:.2f}, Kc·(p1 − pv) = "
+                f"{any_case.incipient_differential / 1e2:.2f} bar difference", verdict)
     result.add("spray_valve_cavitation", "Spray valve cavitation indication (IEC 60534-2-1)", verdict)
     _cavitation_check(any_case, verdict, supply, p_out, pv, fl, result)
     if "minimum" in sprays and "maximum" in sprays:
@@ -381,9 +390,9 @@ def _evaporation(inputs, sprays, throttled, target, water, result):
     result.add("spray_droplet_lifetime", f"Droplet lifetime ({droplet * 1e6:.0f} µm droplet)", lifetime, "s")
     result.add("evaporation_length", f"Evaporation length of the spray (longest, at the {governing} flow)", length, "m")
     if inputs.sensor_distance is None:
-        result.check("Temperature sensor beyond the evaporation length", "warn",
-                     f"no sensor distance given (desuperheater.sensor_distance): place the temperature sensor at "
-                     f"least {length:.1f} m downstream of the spray, or as the desuperheater maker recommends")
+        result.assumptions.append(
+            f"Temperature sensor: no distance given (desuperheater.sensor_distance); place it at least {length:.1f} m "
+            "downstream of the spray (the estimated evaporation length), or as the desuperheater maker recommends")
     elif inputs.sensor_distance < length:
         result.check("Temperature sensor beyond the evaporation length", "warn",
                      f"the sensor {inputs.sensor_distance:g} m from the spray is closer than the estimated evaporation "
