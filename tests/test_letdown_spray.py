@@ -167,3 +167,17 @@ def test_letdown_without_spray_keys_is_unchanged_in_shape():
                        Site())
     assert not any(k.startswith("spray_valve") for k in result.values)
     assert get_calculation("letdown").Inputs is Inputs
+
+
+def test_valve_chart_shows_the_spray_valve_at_the_flow_cases(ld01):
+    from steamcalc.ui.charts import chart_for, table_for
+
+    inputs, result = ld01
+    valve = next(f for f in chart_for("letdown", inputs, result) if "Control valve" in f.layout.title.text)
+    spray = next(t for t in valve.data if t.name == "spray-water valve travel")
+    assert list(spray.x) == [1000.0, 4500.0, 5500.0]
+    assert list(spray.y) == [result.value(f"spray_valve_travel_{c}") for c in ("minimum", "normal", "maximum")]
+    assert spray.yaxis == "y2" and "Kv" in spray.hovertext[0]
+    rows = table_for("letdown", inputs, result)["Flow cases"]
+    assert [r["spray valve Kv, m³/h"] for r in rows] == [
+        result.value(f"spray_valve_kv_{c}") for c in ("minimum", "normal", "maximum")]
