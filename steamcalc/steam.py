@@ -159,6 +159,25 @@ def dynamic_viscosity(temperature, density):
     return float(_Viscosity(density, temperature))
 
 
+def thermal_conductivity(temperature, density):
+    """Thermal conductivity of water or steam, W/(m·K), from temperature (K) and density (kg/m³).
+
+    References
+    ----------
+    IAPWS R15-11, Release on the IAPWS Formulation 2011 for the Thermal Conductivity of
+    Ordinary Water Substance (through iapws).
+
+    Examples
+    --------
+    >>> round(thermal_conductivity(418.15, 1.7), 4)
+    0.0293
+    """
+    from iapws._iapws import _ThCond
+
+    _check("temperature", temperature, 273.15, 1173.15, "K")
+    return float(_ThCond(density, temperature))
+
+
 def backward_temperature_region1(pressure, enthalpy):
     """IF97 backward equation T(p, h) of region 1 (compressed liquid), reference engine.
 

@@ -19,6 +19,7 @@ from .balance import Stream, check_energy_balance
 from .base import Result, bar_a, check_fields, deg_c, full_record_wanted, input_field, kj_kg
 from .letdown_equipment import line_section, valve_section
 from .letdown_relief import relief_section
+from .letdown_spray import SPRAY_PRESSURE_DIFFERENCE_RESULTS, check_spray_inputs, spray_field, spray_section
 from .letdown_station import downstream_section, line_loss_section, noise_section
 from .letdown_turbine import power_section
 
@@ -31,7 +32,7 @@ UNCERTAINTY_RESULTS = ("outlet_temperature", "outlet_superheat", "throttled_temp
 #: Results that hold a pressure difference (shown as "bar difference", not bar(a)).
 PRESSURE_DIFFERENCE_RESULTS = tuple(
     f"{line}_line_pressure_drop{suffix}" for line in ("inlet", "outlet")
-    for suffix in ("", "_per_100m", "_minimum", "_normal", "_maximum"))
+    for suffix in ("", "_per_100m", "_minimum", "_normal", "_maximum")) + SPRAY_PRESSURE_DIFFERENCE_RESULTS
 
 #: Smallest desuperheat margin above saturation that spray desuperheaters hold
 #: stably, K (common practice).
@@ -91,6 +92,16 @@ class Inputs:
     water_pressure: float | None = input_field(
         "pressure", "Spray water pressure", "Pressure of the spray water at the nozzle.",
         example="20 bar(g)", section="desuperheater")
+    spray_supply_pressure: float | None = spray_field("spray_supply_pressure")
+    nozzle_differential: float | None = spray_field("nozzle_differential")
+    spray_valve_fl: float | None = spray_field("spray_valve_fl")
+    spray_valve_rated_kv: float | None = spray_field("spray_valve_rated_kv")
+    spray_valve_characteristic: str | None = spray_field("spray_valve_characteristic")
+    spray_valve_rangeability: float | None = spray_field("spray_valve_rangeability")
+    sensor_distance: float | None = spray_field("sensor_distance")
+    desuperheater_pipe_size: str | None = spray_field("desuperheater_pipe_size")
+    desuperheater_velocity_limit: float | None = spray_field("desuperheater_velocity_limit")
+    spray_droplet_size: float | None = spray_field("spray_droplet_size")
 
     max_flow: float | None = input_field(
         "mass_flow", "Maximum flow", "Largest flow the valve must pass (sizing case).", example="5.5 t/h",
@@ -236,6 +247,7 @@ class Inputs:
             raise InputError("spray water is given but no desuperheater target",
                              field="desuperheater.target_superheat",
                              fix="add target_superheat or target_temperature, or remove [inputs.desuperheater]")
+        check_spray_inputs(self)
 
     def _check_relief_inputs(self):
         from ..equipment.noise import parse_sound_level
@@ -526,6 +538,7 @@ def calculate(inputs, site):
         noise_section(inputs, result)
         relief_section(inputs, inlet, site, result)
         downstream_section(inputs, result)
+        spray_section(inputs, result)
     power_section(inputs, inlet, throttled, site, result)
 
     if outlet.phase == "wet":

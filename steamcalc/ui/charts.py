@@ -147,10 +147,32 @@ def valve_chart(inputs, result, points=40):
         fig.update_yaxes(title_text="travel, % (shaded: 20-80 %)", range=[0, 100], tickmode="linear", dtick=20,
                          secondary_y=True)
     fig.update_yaxes(title_text="required Kv, m³/h", secondary_y=False)
+    spray_valve_trace(fig, inputs, result)
     fig.update_layout(title="Control valve: required Kv and travel against flow", xaxis_title="steam flow, kg/h",
                       height=420, margin=dict(l=60, r=60, t=50, b=50),
                       legend=dict(orientation="h", y=-0.2))
     return fig
+
+
+def spray_valve_trace(fig, inputs, result):
+    """Add the spray-water valve at the let-down's flow cases to the valve chart: its travel on the
+    right axis when a rated valve is given (else its Kv on the left), its Kv in the hover text."""
+    from ..calcs.letdown_equipment import flow_cases
+
+    cases = [(n, w) for n, w in flow_cases(inputs) if f"spray_valve_kv_{n}" in result.values]
+    if not cases:
+        return
+    kvs = [result.value(f"spray_valve_kv_{n}") for n, _ in cases]
+    with_travel = all(f"spray_valve_travel_{n}" in result.values for n, _ in cases)
+    y = [result.value(f"spray_valve_travel_{n}") for n, _ in cases] if with_travel else kvs
+    fig.add_trace(go.Scatter(
+        x=[w * 3600 for _, w in cases], y=y, mode="lines+markers",
+        name="spray-water valve travel" if with_travel else "spray-water valve required Kv",
+        hovertext=[f"{n} flow: spray-water valve Kv {kv:.3g} m³/h" for (n, _), kv in zip(cases, kvs)],
+        line=dict(color=_COLOURS["saturation"], dash="dot"), marker=dict(symbol="diamond", size=9)),
+        secondary_y=with_travel)
+    if with_travel and inputs.rated_kv is None:
+        fig.update_yaxes(title_text="travel, %", range=[0, 100], secondary_y=True)
 
 
 def valve_case_rows(inputs, result):
@@ -169,6 +191,10 @@ def valve_case_rows(inputs, result):
             row["noise at 1 m, dB(A)"] = result.value(f"valve_noise_{name}")
         if f"valve_outlet_mach_{name}" in result.values:
             row["outlet Mach"] = result.value(f"valve_outlet_mach_{name}")
+        for key, heading in (("spray_water_flow", "spray water, kg/h"), ("spray_valve_kv", "spray valve Kv, m³/h"),
+                             ("spray_valve_travel", "spray valve travel, %")):
+            if f"{key}_{name}" in result.values:
+                row[heading] = result.value(f"{key}_{name}")
         rows.append(row)
     return rows
 
