@@ -242,12 +242,24 @@ def saturation_arrays(pressure):
     return out
 
 
-def properties_pT(pressure, temperature):
+#: The properties :func:`properties_pT` can give, and their seuif97 ids.
+_PT_IDS = {"enthalpy": _H, "entropy": _S, "density": _D, "speed_of_sound": _W, "viscosity": _MU}
+
+
+def properties_pT(pressure, temperature, wanted=tuple(_PT_IDS)):
     """Single-phase properties over arrays of absolute pressure (Pa) and temperature (K).
 
     The caller keeps the states off the saturation line (as
     :meth:`steamcalc.steam.SteamState.from_pT` refuses them). States in region 3 go through the
     fast engine's scalar path (density refined on the basic equation).
+
+    Parameters
+    ----------
+    pressure, temperature : array_like
+        Broadcast together; Pa (absolute) and K.
+    wanted : sequence of str
+        The properties to evaluate (default all): ``enthalpy``, ``entropy``, ``density``,
+        ``speed_of_sound``, ``viscosity``; the others are None.
 
     Returns
     -------
@@ -275,14 +287,18 @@ def properties_pT(pressure, temperature):
     _refuse_outside("temperature", t, MIN_TEMPERATURE, MAX_TEMPERATURE, 1.0, "K",
                     "IF97 regions 1-3 (273.15 K to 1073.15 K)")
     p_mpa, t_c = (p / 1e6).tolist(), (t - 273.15).tolist()
-    values = {oid: _each(_if97.pt, p_mpa, t_c, oid) for oid in (_H, _S, _D, _W, _MU)}
+    values = {name: _each(_if97.pt, p_mpa, t_c, _PT_IDS[name]) for name in wanted}
     region3 = (t > REGION13_TEMPERATURE) & (t <= REGION23_MAX_TEMPERATURE) & (p > boundary_23_pressure(t))
     for i in np.flatnonzero(region3):
         state = _fast.state_pT(float(p[i]), float(t[i]))
-        values[_H][i], values[_S][i] = state.enthalpy / 1e3, state.entropy / 1e3
-        values[_D][i], values[_W][i] = state.density, state.speed_of_sound
-        values[_MU][i] = _if97.tv(t_c[i], 1.0 / state.density, _MU)
-    return PropertyArrays(t, values[_H] * 1e3, values[_S] * 1e3, values[_D], values[_W], values[_MU])
+        found = {"enthalpy": state.enthalpy / 1e3, "entropy": state.entropy / 1e3, "density": state.density,
+                 "speed_of_sound": state.speed_of_sound}
+        for name in wanted:
+            values[name][i] = found[name] if name in found else _if97.tv(t_c[i], 1.0 / state.density, _MU)
+    for name in ("enthalpy", "entropy"):
+        if name in values:
+            values[name] = values[name] * 1e3
+    return PropertyArrays(t, *(values.get(name) for name in _PT_IDS))
 
 
 def properties_p_dryness(pressure, dryness):

@@ -181,18 +181,24 @@ def _target_temperature(x, t_sat2, size):
     return _full(x.target_temperature, size)
 
 
-def _inlet_properties(x, pressure, size):
+#: What the inlet state is needed for: the balances, the line loss, and the sizing without a line.
+_INLET = ("enthalpy", "entropy", "density", "viscosity", "speed_of_sound")
+_UPSTREAM = ("enthalpy", "density", "viscosity", "speed_of_sound")
+
+
+def _inlet_properties(x, pressure, size, wanted=_INLET):
     """The inlet steam at an upstream pressure, by the inlet's own specification."""
     if x.inlet_dryness is not None:
         return properties_p_dryness(pressure, _full(x.inlet_dryness, size))
     t_sat = saturation_temperatures(pressure) if x.inlet_temperature is None else None
-    return properties_pT(pressure, _inlet_temperature(x, t_sat, size))
+    return properties_pT(pressure, _inlet_temperature(x, t_sat, size), wanted)
 
 
 def _results(x, size):
     """The banded results of screened rows, and the rows still answered (inlet lines that fit)."""
     p1, p2, flow = _full(x.inlet_pressure, size), _full(x.outlet_pressure, size), _full(x.mass_flow, size)
-    inlet = _inlet_properties(x, p1, size)
+    line = x.inlet_length is not None and x.inlet_size is not None
+    inlet = _inlet_properties(x, p1, size, _INLET[:4] if line else _INLET)
     t_sat2 = saturation_temperatures(p2)
     throttled = states_ph(p2, inlet.enthalpy)
     superheated = ~np.isin(throttled.phase, _TWO_PHASE)
@@ -201,8 +207,8 @@ def _results(x, size):
     outlet_t, outlet_superheat = throttled.temperature, throttled_superheat
     if x.desuperheating:
         target_t = _target_temperature(x, t_sat2, size)
-        target_h = properties_pT(p2, target_t).enthalpy
-        water_h = properties_pT(_full(x.water_pressure, size), _full(x.water_temperature, size)).enthalpy
+        target_h = properties_pT(p2, target_t, ("enthalpy",)).enthalpy
+        water_h = properties_pT(_full(x.water_pressure, size), _full(x.water_temperature, size), ("enthalpy",)).enthalpy
         reachable = inlet.enthalpy > target_h
         spray = np.where(reachable, flow * (inlet.enthalpy - target_h) / (target_h - water_h), 0.0)
         results["spray_water_flow"] = spray * 3600
@@ -210,7 +216,7 @@ def _results(x, size):
         outlet_superheat = np.where(reachable, target_t - t_sat2, outlet_superheat)
     results["outlet_temperature"] = outlet_t - 273.15
     results["outlet_superheat"] = outlet_superheat
-    kv, kept = _valve_kv(x, inlet, p1, p2, size)
+    kv, kept = _valve_kv(x, inlet, p2, size, line)
     results["valve_kv"] = kv
     isentropic = states_ps(p2, inlet.entropy)
     efficiency = _given_or(x.isentropic_efficiency, DEFAULT_TURBINE_EFFICIENCY)
@@ -218,16 +224,20 @@ def _results(x, size):
     return results, kept
 
 
-def _valve_kv(x, inlet, p1, p2, size):
+def _valve_kv(x, inlet, p2, size, line):
     """Required Kv at the design flow case (maximum, else normal), each case at its own upstream
     pressure less its inlet line's drop; rows whose line loses half the drop or more are not kept."""
     design = "maximum" if x.max_flow is not None else "normal"
-    line = x.inlet_length is not None and x.inlet_size is not None
     kept = np.ones(size, dtype=bool)
     kv = None
     for name, case_flow in flow_cases(x):
+        if name != design and not line:
+            continue   # the screen has seen its inlet steam; without a line nothing else can refuse it
         pressure = case_inlet_pressure(x, name)
-        upstream = inlet if pressure is x.inlet_pressure else _inlet_properties(x, _full(pressure, size), size)
+        wanted = _UPSTREAM[:3] if line else _UPSTREAM[1::2]   # the sizing without a line needs w
+        if name != design:
+            wanted = ("density", "viscosity")   # for the line's drop only
+        upstream = inlet if pressure is x.inlet_pressure else _inlet_properties(x, _full(pressure, size), size, wanted)
         pressure = _full(pressure, size)
         drop = np.zeros(size)
         if line:
@@ -258,7 +268,7 @@ def _valve_inlet(x, upstream, pressure, drop, line):
     density, kappa = np.empty(valve_p.size), np.empty(valve_p.size)
     single = ~two_phase
     if single.any():
-        props = properties_pT(valve_p[single], state.temperature[single])
+        props = properties_pT(valve_p[single], state.temperature[single], ("density", "speed_of_sound"))
         density[single] = props.density
         kappa[single] = props.speed_of_sound ** 2 * props.density / valve_p[single]
     if two_phase.any():
@@ -272,6 +282,6 @@ def _two_phase_kappa(pressure, temperature, dryness):
     kappa = 1.035 + 0.1 * dryness
     dry = dryness == 1.0
     if dry.any():
-        vapour = properties_pT(pressure[dry], temperature[dry] + 1e-3)
+        vapour = properties_pT(pressure[dry], temperature[dry] + 1e-3, ("density", "speed_of_sound"))
         kappa[dry] = vapour.speed_of_sound ** 2 * vapour.density / pressure[dry]
     return kappa
