@@ -60,13 +60,19 @@ def _variation(name, inputs, site, tolerances):
     elif name == "dry saturated inlet, no inlet line":
         inputs = dataclasses.replace(inputs, inlet_temperature=None, inlet_dryness=1.0, inlet_length=None)
         tolerances = _without(tolerances, "inlet_temperature")
+    elif name == "valve, turbine and spray inputs toleranced":
+        tolerances = (Tolerance("xt", 0.05, False, "0.05"), Tolerance("max_flow", 0.05, True, "5 %"),
+                      Tolerance("min_inlet_pressure", 0.3e5, False, "0.3 bar"),
+                      Tolerance("inlet_fittings_k", 0.5, False, "0.5"),
+                      Tolerance("isentropic_efficiency", 0.05, False, "0.05"),
+                      Tolerance("target_superheat", 2.0, False, "2 K"), Tolerance("water_pressure", 1e5, False, "1 bar"))
     elif name != "LD-01":
         raise KeyError(name)
     return inputs, site, tolerances
 
 
 VARIATIONS = ("LD-01", "no desuperheater", "wet inlet by dryness", "inlet by superheat", "no inlet line",
-              "dry saturated inlet, no inlet line")
+              "dry saturated inlet, no inlet line", "valve, turbine and spray inputs toleranced")
 
 
 def _draws(inputs, tolerances, size, seed=11):
@@ -147,10 +153,14 @@ def test_vectorised_path_answers_only_samples_calculate_answers(inputs, toleranc
     _assert_same(values, expected, answered)
 
 
-@pytest.mark.parametrize("name", ("LD-01", "wet inlet by dryness"))
-def test_bands_and_sensitivity_equal_the_per_sample_path(ld01, name):
+@pytest.mark.parametrize("name", ("LD-01", "wet inlet by dryness", "valve, turbine and spray inputs toleranced"))
+def test_bands_and_sensitivity_equal_the_per_sample_path(ld01, name, monkeypatch):
     inputs, site, tolerances = _variation(name, *ld01)
+    calls = []
+    real = letdown.calculate
+    monkeypatch.setattr(letdown, "calculate", lambda *args: calls.append(1) or real(*args))
     fast = run_uncertainty(letdown, inputs, site, tolerances, samples=SAMPLES, seed=5)
+    assert len(calls) == 1   # the nominal only: every sample and sensitivity end took the vectorised path
     loop = run_uncertainty(letdown, inputs, site, tolerances, samples=SAMPLES, seed=5, vectorised=False)
     assert fast["failed_samples"] == loop["failed_samples"] and fast["valid_samples"] == loop["valid_samples"]
     for key, band in loop["bands"].items():
