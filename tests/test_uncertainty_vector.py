@@ -213,3 +213,27 @@ def test_fresh_ld01_record_verifies(tmp_path, demo_site_dir, capsys):
     assert main(["verify", str(path)]) == 0
     out = capsys.readouterr().out
     assert "uncertainty.valve_kv.p95" in out
+
+
+def test_array_engine_refusal_falls_back_to_calculate(ld01, monkeypatch):
+    from steamcalc.errors import OutOfRangeError
+
+    inputs, site, tolerances = ld01
+    loop = run_uncertainty(letdown, inputs, site, tolerances, samples=50, vectorised=False)
+
+    def refuse(*args):
+        raise OutOfRangeError("enthalpy[3] of 1e9 kJ/kg is outside IF97", field="enthalpy")
+
+    monkeypatch.setattr(letdown_vector, "sample_results", refuse)
+    assert run_uncertainty(letdown, inputs, site, tolerances, samples=50) == loop
+
+
+def test_reference_engine_samples_never_take_the_vectorised_path(ld01, monkeypatch):
+    inputs, site, tolerances = ld01
+
+    def unused(*args):
+        raise AssertionError("the vectorised path runs on the fast engine only")
+
+    monkeypatch.setattr(letdown_vector, "sample_results", unused)
+    section = run_uncertainty(letdown, inputs, site, tolerances[:1], samples=10, engine="iapws")
+    assert section["valid_samples"] == 10 and section["property_engine"]["engine"] == "iapws"
