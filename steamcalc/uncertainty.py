@@ -8,9 +8,9 @@ so a record computed alongside in another thread keeps the reference engine), nu
 the kind's vectorised sample path where it has one (:func:`steamcalc.calcs.sample_path`, all
 samples at once; it answers the samples it is sure of), and by the calculation's own
 ``calculate()`` for the rest, one by one. The sensitivity moves one input at a time to each end
-of its tolerance, by the same two paths. Each band is the probabilistically symmetric coverage interval of JCGM 101:2008
-§7.7 — 90 % unless the case chooses another coverage — and samples that gave no result are
-counted in the record; more than 1 % of them is a warn.
+of its tolerance, by the same two paths. Each band is the probabilistically symmetric coverage
+interval of JCGM 101:2008 §7.7 — 90 % unless the case chooses another coverage — and samples
+that gave no result are counted in the record; more than 1 % of them is a warn.
 """
 
 from __future__ import annotations
