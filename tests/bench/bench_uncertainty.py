@@ -62,7 +62,8 @@ def timed(engine="fast", vectorised=True, nominal=False):
 
 
 def before(path):
-    done = subprocess.run([sys.executable, "-c", TIMER], capture_output=True, text=True,
+    # Run from the checkout itself: ``python -c`` puts the working folder first on the path.
+    done = subprocess.run([sys.executable, "-c", TIMER], capture_output=True, text=True, cwd=str(path),
                           env={**os.environ, "PYTHONPATH": str(path)}, check=True)
     return float(done.stdout.split()[-1])
 
