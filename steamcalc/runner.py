@@ -41,7 +41,7 @@ def record_for_case(case, site, *, inputs=None, given=None, created=None, with_u
             tolerances, samples, seed = parse_tolerances(calc.Inputs, case.uncertainty, inputs)
             if tolerances:
                 uncertainty = run_uncertainty(calc, inputs, site, tolerances, samples, seed,
-                                              coverage=parse_coverage(case.uncertainty))
+                                              coverage=parse_coverage(case.uncertainty), nominal_result=result)
                 result.check(*sample_check(uncertainty))
     except SteamcalcError as exc:
         raise exc.with_source(case.path)

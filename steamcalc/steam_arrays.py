@@ -13,6 +13,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 from itertools import repeat
+from typing import NamedTuple
 
 import numpy as np
 import seuif97 as _if97
@@ -20,7 +21,7 @@ import seuif97 as _if97
 from .engines import seuif97_engine as _fast
 from .engines.common import (
     CRITICAL_PRESSURE, CRITICAL_TEMPERATURE, MAX_PRESSURE, MAX_TEMPERATURE, MIN_PRESSURE, MIN_TEMPERATURE,
-    REGION13_TEMPERATURE, SATURATION_PRESSURE_623, boundary_23_pressure,
+    REGION13_TEMPERATURE, REGION23_MAX_TEMPERATURE, SATURATION_PRESSURE_623, boundary_23_pressure,
 )
 from .errors import OutOfRangeError
 
@@ -29,8 +30,8 @@ COMPRESSED_LIQUID, SATURATED_LIQUID, WET, SATURATED_VAPOUR, SUPERHEATED_VAPOUR, 
 _PHASE_CODES = {"compressed liquid": COMPRESSED_LIQUID, "saturated liquid": SATURATED_LIQUID, "wet": WET,
                 "saturated vapour": SATURATED_VAPOUR, "superheated vapour": SUPERHEATED_VAPOUR,
                 "supercritical": SUPERCRITICAL}
-# seuif97 property ids and units: MPa, degC, kJ/kg, kJ/(kg K).
-_T, _H, _S, _CP = 1, 4, 5, 8
+# seuif97 property ids and units: MPa, degC, kg/m3, m3/kg, kJ/kg, kJ/(kg K), m/s, Pa s.
+_T, _D, _V, _H, _S, _CP, _W, _MU = 1, 2, 3, 4, 5, 8, 10, 24
 _NEWTON_STOP = 1e-5  # K; see steamcalc.engines.seuif97_engine
 _MAX_STEPS = 8
 
@@ -46,6 +47,21 @@ class StateArrays:
     entropy: np.ndarray
     dryness: np.ndarray
     phase: np.ndarray
+
+
+class PropertyArrays(NamedTuple):
+    """Properties over arrays, SI units: K, J/kg, J/(kg K), kg/m3, m/s, Pa s.
+
+    ``speed_of_sound`` is None for saturated and wet states; their ``viscosity`` is that of
+    the saturated vapour at the pressure (what a wet-steam line loss uses).
+    """
+
+    temperature: np.ndarray
+    enthalpy: np.ndarray
+    entropy: np.ndarray
+    density: np.ndarray
+    speed_of_sound: np.ndarray | None
+    viscosity: np.ndarray
 
 
 def _each(function, *arrays):
@@ -224,3 +240,117 @@ def saturation_arrays(pressure):
            "h_f": _each(_if97.px, p_mpa, 0.0, _H) * 1e3, "h_g": _each(_if97.px, p_mpa, 1.0, _H) * 1e3,
            "s_f": _each(_if97.px, p_mpa, 0.0, _S) * 1e3, "s_g": _each(_if97.px, p_mpa, 1.0, _S) * 1e3}
     return out
+
+
+#: The properties :func:`properties_pT` can give, and their seuif97 ids.
+_PT_IDS = {"enthalpy": _H, "entropy": _S, "density": _D, "speed_of_sound": _W, "viscosity": _MU}
+
+
+def properties_pT(pressure, temperature, wanted=tuple(_PT_IDS)):
+    """Single-phase properties over arrays of absolute pressure (Pa) and temperature (K).
+
+    The caller keeps the states off the saturation line (as
+    :meth:`steamcalc.steam.SteamState.from_pT` refuses them). States in region 3 go through the
+    fast engine's scalar path (density refined on the basic equation).
+
+    Parameters
+    ----------
+    pressure, temperature : array_like
+        Broadcast together; Pa (absolute) and K.
+    wanted : sequence of str
+        The properties to evaluate (default all): ``enthalpy``, ``entropy``, ``density``,
+        ``speed_of_sound``, ``viscosity``; the others are None.
+
+    Returns
+    -------
+    PropertyArrays
+        Enthalpy, entropy, density, speed of sound, and the dynamic viscosity at the state's
+        temperature and density.
+
+    References
+    ----------
+    IAPWS R7-97(2012), basic equations (7), (15), (28); IAPWS R12-08, equation (10) without the
+    critical enhancement, for the viscosity (as :func:`steamcalc.steam.dynamic_viscosity`).
+    Through seuif97.
+
+    Examples
+    --------
+    >>> props = properties_pT([10e5, 10e5], [473.15, 523.15])
+    >>> [round(float(h) / 1e3, 2) for h in props.enthalpy], round(float(props.viscosity[0]) * 1e6, 3)
+    ([2828.27, 2943.22], 15.876)
+    """
+    p, t = np.broadcast_arrays(np.atleast_1d(np.asarray(pressure, dtype=float)),
+                               np.atleast_1d(np.asarray(temperature, dtype=float)))
+    p, t = p.astype(float).ravel(), t.astype(float).ravel()
+    _refuse_outside("pressure", p, MIN_PRESSURE, MAX_PRESSURE, 1e5, "bar(a)",
+                    "IF97 regions 1-3 (0.00611213 to 1000 bar(a))")
+    _refuse_outside("temperature", t, MIN_TEMPERATURE, MAX_TEMPERATURE, 1.0, "K",
+                    "IF97 regions 1-3 (273.15 K to 1073.15 K)")
+    p_mpa, t_c = (p / 1e6).tolist(), (t - 273.15).tolist()
+    values = {name: _each(_if97.pt, p_mpa, t_c, _PT_IDS[name]) for name in wanted}
+    region3 = (t > REGION13_TEMPERATURE) & (t <= REGION23_MAX_TEMPERATURE) & (p > boundary_23_pressure(t))
+    for i in np.flatnonzero(region3):
+        state = _fast.state_pT(float(p[i]), float(t[i]))
+        found = {"enthalpy": state.enthalpy / 1e3, "entropy": state.entropy / 1e3, "density": state.density,
+                 "speed_of_sound": state.speed_of_sound}
+        for name in wanted:
+            values[name][i] = found[name] if name in found else _if97.tv(t_c[i], 1.0 / state.density, _MU)
+    for name in ("enthalpy", "entropy"):
+        if name in values:
+            values[name] = values[name] * 1e3
+    return PropertyArrays(t, *(values.get(name) for name in _PT_IDS))
+
+
+def properties_p_dryness(pressure, dryness):
+    """Saturated or wet properties over arrays of absolute pressure (Pa, below critical) and dryness.
+
+    Returns
+    -------
+    PropertyArrays
+        Saturation temperature; h = h' + x (h'' - h'), likewise s, and the density from
+        v = v' + x (v'' - v'); no speed of sound; the viscosity of the saturated vapour.
+
+    References
+    ----------
+    IAPWS R7-97(2012), equations (30)-(31) with regions 1 and 2 at saturation (region 3 through
+    the backward equations of IAPWS SR5-05 above 623.15 K, as the scalar engines); IAPWS R12-08
+    equation (10) for the vapour's viscosity. Through seuif97.
+
+    Examples
+    --------
+    >>> props = properties_p_dryness([1e5], [0.9])
+    >>> round(float(props.enthalpy[0]) / 1e3, 1), round(float(props.temperature[0]) - 273.15, 2)
+    (2449.2, 99.61)
+    """
+    p, x = np.broadcast_arrays(np.atleast_1d(np.asarray(pressure, dtype=float)),
+                               np.atleast_1d(np.asarray(dryness, dtype=float)))
+    p, x = p.astype(float).ravel(), x.astype(float).ravel()
+    _refuse_outside("pressure", p, MIN_PRESSURE, CRITICAL_PRESSURE, 1e5, "bar(a)",
+                    "IF97 region 4, the saturation line (0.00611213 to 220.64 bar(a), the critical point)")
+    _refuse_outside("dryness", x, 0.0, 1.0, 1.0, "", "0 to 1")
+    p_mpa = (p / 1e6).tolist()
+    ends = {(oid, end): _each(_if97.px, p_mpa, end, oid) for oid in (_H, _S, _V) for end in (0.0, 1.0)}
+
+    def lever(oid):
+        return ends[oid, 0.0] + x * (ends[oid, 1.0] - ends[oid, 0.0])
+
+    return PropertyArrays(_each(_if97.px2t, p_mpa, 0.0) + 273.15, lever(_H) * 1e3, lever(_S) * 1e3,
+                          1.0 / lever(_V), None, _each(_if97.px, p_mpa, 1.0, _MU))
+
+
+def saturation_temperatures(pressure):
+    """Saturation temperature (K) over an array of absolute pressures (Pa, up to the critical pressure).
+
+    References
+    ----------
+    IAPWS R7-97(2012), equation (31). Through seuif97.
+
+    Examples
+    --------
+    >>> [round(float(t) - 273.15, 2) for t in saturation_temperatures([1e5, 10e5])]
+    [99.61, 179.89]
+    """
+    p = np.atleast_1d(np.asarray(pressure, dtype=float)).ravel()
+    _refuse_outside("pressure", p, MIN_PRESSURE, CRITICAL_PRESSURE, 1e5, "bar(a)",
+                    "IF97 region 4, the saturation line (0.00611213 to 220.64 bar(a), the critical point)")
+    return _each(_if97.px2t, (p / 1e6).tolist(), 0.0) + 273.15

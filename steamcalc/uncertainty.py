@@ -3,22 +3,26 @@
 Each toleranced input is sampled from a rectangular (uniform) distribution over its
 ± tolerance — the distribution JCGM 100:2008 (GUM) §4.3.7 assigns when only bounds are
 known — with a seeded generator, so a run is reproducible and a record's bands re-verify.
-Every sample goes through the calculation's own ``calculate()`` on the fast IF97 engine
-(seuif97, chosen for this run's context only, so a record computed alongside in another
-thread keeps the reference engine). The sensitivity moves one input at a time to each end of
-its tolerance. Each band is the probabilistically symmetric coverage interval of JCGM 101:2008
-§7.7 — 90 % unless the case chooses another coverage — and samples that gave no result are
-counted in the record; more than 1 % of them is a warn.
+Every sample is computed on the fast IF97 engine (seuif97, chosen for this run's context only,
+so a record computed alongside in another thread keeps the reference engine), numbers only: by
+the kind's vectorised sample path where it has one (:func:`steamcalc.calcs.sample_path`, all
+samples at once; it answers the samples it is sure of), and by the calculation's own
+``calculate()`` for the rest, one by one. The sensitivity moves one input at a time to each end
+of its tolerance, by the same two paths. Each band is the probabilistically symmetric coverage
+interval of JCGM 101:2008 §7.7 — 90 % unless the case chooses another coverage — and samples
+that gave no result are counted in the record; more than 1 % of them is a warn.
 """
 
 from __future__ import annotations
 
 import dataclasses
+import itertools
 import re
 from dataclasses import dataclass
 
 import numpy as np
 
+from .calcs import sample_path
 from .calcs.base import input_fields
 from .errors import CaseFileError, InputError, SteamcalcError, UnitError
 from .quantities import RECORD_UNITS, from_record_unit, parse_quantity, to_record_unit
@@ -35,6 +39,9 @@ COVERAGE_RANGE = (0.50, 0.99)
 #: the inputs that could be computed.
 FAILED_SAMPLES_WARN = 0.01
 SETTINGS = ("samples", "seed", "coverage")
+#: Up to this many tolerances the corners of the tolerance box are checked (2**n Inputs) before
+#: samples take the vectorised path; with more, every sample goes through ``calculate()``.
+MAX_SCREENED_TOLERANCES = 8
 #: Input kinds a tolerance can be put on, and the quantity kind of the tolerance itself: a
 #: difference (a pressure tolerance has no gauge or absolute basis, a temperature one is in K);
 #: None for plain numbers.
@@ -159,7 +166,7 @@ def _sample_values(result, keys):
 
 
 def run_uncertainty(calc, inputs, site, tolerances, samples=DEFAULT_SAMPLES, seed=DEFAULT_SEED,
-                    coverage=DEFAULT_COVERAGE, engine=FAST_ENGINE):
+                    coverage=DEFAULT_COVERAGE, engine=FAST_ENGINE, nominal_result=None, vectorised=True):
     """Monte Carlo bands and one-at-a-time sensitivity of a calculation's headline results.
 
     Parameters
@@ -177,6 +184,12 @@ def run_uncertainty(calc, inputs, site, tolerances, samples=DEFAULT_SAMPLES, see
     engine : str
         IF97 engine of the samples and the sensitivity: "fast" (seuif97, the default and what
         records use) or "iapws" (for a cross-check of the bands, or a benchmark baseline).
+    nominal_result : Result, optional
+        The nominal case's own result when the caller has it already (the record's run);
+        computed here otherwise.
+    vectorised : bool
+        Use the kind's vectorised sample path on the fast engine (default). False sends every
+        sample through ``calculate()`` (the consistency tests and the benchmark baseline).
 
     Returns
     -------
@@ -189,7 +202,11 @@ def run_uncertainty(calc, inputs, site, tolerances, samples=DEFAULT_SAMPLES, see
     Notes
     -----
     The nominal case runs on the reference engine (it is the record's own result); samples
-    and the sensitivity run on the fast engine, in this context only.
+    and the sensitivity run on the fast engine, in this context only. Before samples take the
+    vectorised path, every corner of the tolerance box must make valid Inputs: the Inputs checks
+    of such a kind are intervals and orderings between inputs, whose valid set is convex, so
+    every sample inside the box is valid too (otherwise every sample is made, and checked, one
+    by one).
 
     References
     ----------
@@ -201,29 +218,31 @@ def run_uncertainty(calc, inputs, site, tolerances, samples=DEFAULT_SAMPLES, see
     # Draw in the Inputs' declaration order, so a case file and a form give the same samples.
     order = list(kinds)
     tolerances = sorted(tolerances, key=lambda t: order.index(t.field))
-    nominal_result = calc.calculate(inputs, site)
+    if nominal_result is None:
+        nominal_result = calc.calculate(inputs, site)
     nominal = _numeric(nominal_result)
     keys = [k for k in calc.UNCERTAINTY_RESULTS if k in nominal]
     rng = np.random.default_rng(seed)
     draws = {t.field: rng.uniform(-1.0, 1.0, samples) * t.half_width(getattr(inputs, t.field)) +
              getattr(inputs, t.field) for t in tolerances}
-    # One row per sample, converted once: numpy scalars would slow every property call.
-    rows = [dict(zip(draws, row)) for row in np.column_stack(list(draws.values())).tolist()] if draws else \
-        [{} for _ in range(samples)]
     table = np.full((samples, len(keys)), np.nan)
     failures = {}
     # dataclasses.replace, with the unchanged fields read once rather than per sample; the
-    # constructor (and its input checks in __post_init__) still runs for every sample.
+    # constructor (and its input checks in __post_init__) still runs for every such sample.
     unchanged = {f.name: getattr(inputs, f.name) for f in dataclasses.fields(inputs) if f.init}
     make = type(inputs)
+    vector = _vector_path(calc, inputs, tolerances, keys, engine) if vectorised else None
     with using_engine(engine), numbers_only():
-        for i, row in enumerate(rows):
+        pending = _vector_samples(vector, inputs, site, draws, samples, keys, table)
+        for i in pending:
+            # Python floats, not numpy scalars: those would slow every property call.
+            row = {name: column[i].item() for name, column in draws.items()}
             try:
                 table[i] = _sample_values(calc.calculate(make(**{**unchanged, **row}), site), keys)
             except SteamcalcError as exc:
                 reason = exc.message.split(":")[0][:80]
                 failures[reason] = failures.get(reason, 0) + 1
-        sensitivity = _one_at_a_time(calc, inputs, site, tolerances, keys)
+        sensitivity = _one_at_a_time(calc, inputs, site, tolerances, keys, vector)
     units = {k: nominal_result.values[k].unit for k in keys}
     tail = round((1.0 - coverage) / 2.0 * 100.0, 9)
     bands = {}
@@ -276,18 +295,58 @@ def sample_check(section):
     return "Uncertainty samples", "pass", detail
 
 
-def _one_at_a_time(calc, inputs, site, tolerances, keys):
-    table = {k: [] for k in keys}
+def _vector_path(calc, inputs, tolerances, keys, engine):
+    """The kind's vectorised sample path when it may take these samples, else None: on the fast
+    engine, giving every banded result, with every corner of the tolerance box valid Inputs."""
+    vector = sample_path(calc) if engine == FAST_ENGINE else None
+    if vector is None or not set(keys) <= set(vector.RESULTS) or len(tolerances) > MAX_SCREENED_TOLERANCES:
+        return None
+    ends = [[(t.field, getattr(inputs, t.field) + sign * t.half_width(getattr(inputs, t.field))) for sign in (-1.0, 1.0)]
+            for t in tolerances]
+    for corner in itertools.product(*ends):
+        try:
+            dataclasses.replace(inputs, **dict(corner))
+        except SteamcalcError:
+            return None
+    return vector
+
+
+def _vector_samples(vector, inputs, site, columns, size, keys, table):
+    """Fill ``table`` with the rows the vectorised path answers; the indices of the rest."""
+    if vector is None:
+        return range(size)
+    try:
+        values, answered = vector.sample_results(inputs, site, columns, size, keys)
+    except SteamcalcError:
+        # A state outside what the array engine takes: every sample the one-by-one way, which
+        # gives each its result or its reason.
+        return range(size)
+    table[answered] = values[answered]
+    return np.flatnonzero(~answered).tolist()
+
+
+def _one_at_a_time(calc, inputs, site, tolerances, keys, vector=None):
+    moves = [(t, sign) for t in tolerances for sign in (-1.0, 1.0)]
+    columns = {}
     for t in tolerances:
+        columns[t.field] = np.full(len(moves), float(getattr(inputs, t.field)))
+    for r, (t, sign) in enumerate(moves):
         nominal = getattr(inputs, t.field)
-        ends = {}
-        for side, sign in (("low", -1.0), ("high", 1.0)):
-            try:
-                result = _numeric(calc.calculate(
-                    dataclasses.replace(inputs, **{t.field: nominal + sign * t.half_width(nominal)}), site))
-            except SteamcalcError:
-                result = {}
-            ends[side] = result
+        columns[t.field][r] = nominal + sign * t.half_width(nominal)
+    table = np.full((len(moves), len(keys)), np.nan)
+    pending = _vector_samples(vector, inputs, site, columns, len(moves), keys, table)
+    outcomes = [{k: float(v) for k, v in zip(keys, row) if not np.isnan(v)} for row in table]
+    for r in pending:
+        t, sign = moves[r]
+        nominal = getattr(inputs, t.field)
+        try:
+            outcomes[r] = _numeric(calc.calculate(
+                dataclasses.replace(inputs, **{t.field: nominal + sign * t.half_width(nominal)}), site))
+        except SteamcalcError:
+            outcomes[r] = {}
+    table = {k: [] for k in keys}
+    for i, t in enumerate(tolerances):
+        ends = {"low": outcomes[2 * i], "high": outcomes[2 * i + 1]}
         for k in keys:
             low, high = ends["low"].get(k), ends["high"].get(k)
             swing = None if low is None or high is None else abs(high - low)

@@ -5,14 +5,25 @@ Each kind is a module exposing ``KIND`` (the case-file ``kind``), ``TITLE``,
 fields carry label, unit kind, help text and example in their metadata, and
 ``calculate(inputs, site) -> Result``. Records, forms, batch runs and review
 find a kind only through :func:`get_calculation`.
+
+A kind may also have a vectorised sample path (:func:`sample_path`): a module with
+``RESULTS`` and ``sample_results(inputs, site, columns, size, keys)`` that gives the banded
+results of many Monte Carlo samples at once; uncertainty runs use it where it answers and
+``calculate()`` for the rest. Its Inputs checks must be intervals and orderings between inputs
+(each sample is then valid when every corner of the tolerance box is, see
+:mod:`steamcalc.uncertainty`).
 """
 
 from __future__ import annotations
+
+import importlib
 
 from ..errors import CaseFileError
 from . import exchanger, flash, letdown
 
 _REGISTRY = {module.KIND: module for module in (letdown, flash, exchanger)}
+#: Kind -> its vectorised sample path, imported on first use (numpy and the array engine).
+_SAMPLE_PATHS = {letdown.KIND: ".letdown_vector"}
 
 
 def kinds():
@@ -33,3 +44,17 @@ def get_calculation(kind):
     except KeyError:
         raise CaseFileError(f"kind {kind!r} is not a calculation steamcalc knows", field="kind",
                             value=kind, fix=f"use one of: {', '.join(kinds())}") from None
+
+
+def sample_path(calc):
+    """The vectorised Monte Carlo sample path of a registered calculation module, or None.
+
+    Examples
+    --------
+    >>> sample_path(get_calculation("letdown")).__name__, sample_path(get_calculation("flash"))
+    ('steamcalc.calcs.letdown_vector', None)
+    """
+    kind = getattr(calc, "KIND", None)
+    if kind not in _SAMPLE_PATHS or _REGISTRY.get(kind) is not calc:
+        return None
+    return importlib.import_module(_SAMPLE_PATHS[kind], __name__)

@@ -108,9 +108,9 @@ def check_fields(inputs):
     """
     for f in input_fields(type(inputs)):
         value = getattr(inputs, f.name)
-        where = f"[inputs.{f.metadata['section']}]" if f.metadata["section"] else "[inputs]"
         if value is None:
             if f.metadata["required"]:
+                where = f"[inputs.{f.metadata['section']}]" if f.metadata["section"] else "[inputs]"
                 raise InputError("is required", field=field_path(f), fix=f"add {field_key(f)} to {where}")
             continue
         if f.metadata["positive"] and value <= 0.0:

@@ -3,13 +3,16 @@
 Mass-flow form of the standard with the upstream density taken from IAPWS-IF97,
 so that no ideal-gas compressibility factor is needed for steam. Units here are
 the standard's: mass flow kg/h, pressure kPa (absolute), density kg/m³, Kv m³/h,
-diameters mm.
+diameters mm. The sizing functions take floats or numpy arrays (one valve state per
+element, as Monte Carlo samples do); floats give floats.
 """
 
 from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+
+import numpy as np
 
 from ..errors import InputError
 
@@ -34,6 +37,17 @@ def kv_to_cv(kv):
     115.6
     """
     return CV_PER_KV * kv
+
+
+def _smaller(a, b):
+    """min(a, b), element by element when either is an array (floats stay floats)."""
+    if isinstance(a, np.ndarray) or isinstance(b, np.ndarray):
+        return np.minimum(a, b)
+    return min(a, b)
+
+
+def _sqrt(value):
+    return np.sqrt(value) if isinstance(value, np.ndarray) else math.sqrt(value)
 
 
 def specific_heat_ratio_factor(kappa):
@@ -65,12 +79,12 @@ def expansion_factor(x, kappa, xt):
     0.6667
     """
     x_choked = specific_heat_ratio_factor(kappa) * xt
-    return 1.0 - min(x, x_choked) / (3.0 * x_choked)
+    return 1.0 - _smaller(x, x_choked) / (3.0 * x_choked)
 
 
 @dataclass(frozen=True)
 class ValveSizing:
-    """Outcome of sizing one flow case."""
+    """Outcome of sizing one flow case (arrays when sized over arrays)."""
 
     kv: float
     cv: float
@@ -119,15 +133,15 @@ def size_steam_valve(mass_flow, p1, p2, density1, kappa, xt, valve_d=None, inlet
 
     Parameters
     ----------
-    mass_flow : float
+    mass_flow : float or numpy.ndarray
         W, kg/h.
-    p1, p2 : float
+    p1, p2 : float or numpy.ndarray
         Upstream and downstream absolute pressure, kPa.
-    density1 : float
+    density1 : float or numpy.ndarray
         ρ1, upstream density, kg/m³ (IAPWS-IF97).
-    kappa : float
+    kappa : float or numpy.ndarray
         Isentropic exponent at the inlet.
-    xt : float
+    xt : float or numpy.ndarray
         Pressure differential ratio factor of the valve without fittings.
     valve_d, inlet_d, outlet_d : float, optional
         Valve size and adjoining pipe inside diameters, mm, for the piping geometry
@@ -136,6 +150,7 @@ def size_steam_valve(mass_flow, p1, p2, density1, kappa, xt, valve_d=None, inlet
     Returns
     -------
     ValveSizing
+        Floats, or arrays of the broadcast shape when any argument is an array.
 
     Notes
     -----
@@ -144,7 +159,8 @@ def size_steam_valve(mass_flow, p1, p2, density1, kappa, xt, valve_d=None, inlet
               x_{siz} = \\min(x, F_\\gamma x_T)
 
     with N6 = 3.16, x = (p1 − p2)/p1 and Fγ = κ/1.40; choked when x ≥ Fγ xT
-    (xTP with fittings). Fp and xTP are found by fixed-point iteration on Kv.
+    (xTP with fittings). Fp and xTP are found by fixed-point iteration on Kv (over arrays,
+    until every element has converged).
 
     References
     ----------
@@ -157,8 +173,10 @@ def size_steam_valve(mass_flow, p1, p2, density1, kappa, xt, valve_d=None, inlet
     >>> s = size_steam_valve(4500.0, 1700.0, 350.0, 7.5, 1.30, 0.70)
     >>> s.choked, round(s.kv, 2)
     (True, 23.46)
+    >>> [round(float(kv), 2) for kv in size_steam_valve(np.array([4500.0, 2250.0]), 1700.0, 350.0, 7.5, 1.30, 0.70).kv]
+    [23.46, 11.73]
     """
-    if not p2 < p1:
+    if not np.all(p2 < p1):
         raise InputError("the valve's outlet pressure must be below its inlet pressure", field="outlet_pressure")
     x = (p1 - p2) / p1
     f_gamma = specific_heat_ratio_factor(kappa)
@@ -166,20 +184,20 @@ def size_steam_valve(mass_flow, p1, p2, density1, kappa, xt, valve_d=None, inlet
     kv = None
     for _ in range(50):
         x_choked = f_gamma * xtp
-        x_siz = min(x, x_choked)
+        x_siz = _smaller(x, x_choked)
         y = 1.0 - x_siz / (3.0 * x_choked)
-        new_kv = mass_flow / (N6_KV * fp * y * math.sqrt(x_siz * p1 * density1))
+        new_kv = mass_flow / (N6_KV * fp * y * _sqrt(x_siz * p1 * density1))
         if valve_d is None or (inlet_d is None and outlet_d is None):
             kv = new_kv
             break
-        if kv is not None and abs(new_kv - kv) <= 1e-10 * new_kv:
+        if kv is not None and np.all(abs(new_kv - kv) <= 1e-10 * new_kv):
             kv = new_kv
             break
         kv = new_kv
         fp, xtp = piping_factors(kv, valve_d, inlet_d, outlet_d, xt)
     x_choked = f_gamma * xtp
     return ValveSizing(kv=kv, cv=kv_to_cv(kv), x=x, x_choked=x_choked, choked=x >= x_choked,
-                       expansion_factor=1.0 - min(x, x_choked) / (3.0 * x_choked), piping_factor=fp, xtp=xtp)
+                       expansion_factor=1.0 - _smaller(x, x_choked) / (3.0 * x_choked), piping_factor=fp, xtp=xtp)
 
 
 def valve_flow(kv, p1, p2, density1, kappa, xt, piping_factor=1.0):
