@@ -14,6 +14,7 @@ import pytest
 
 from steamcalc.calcs import get_calculation, letdown, letdown_vector, sample_path
 from steamcalc.calcs.base import numbers_only
+from steamcalc.calcs.letdown_spray import SPRAY_FIELDS
 from steamcalc.cli import main
 from steamcalc.engines import using_engine
 from steamcalc.errors import SteamcalcError
@@ -46,7 +47,8 @@ def _without(tolerances, *names):
 def _variation(name, inputs, site, tolerances):
     """LD-01 changed one way, with tolerances that fit the change: (inputs, site, tolerances)."""
     if name == "no desuperheater":
-        inputs = dataclasses.replace(inputs, target_superheat=None, water_temperature=None, water_pressure=None)
+        inputs = dataclasses.replace(inputs, target_superheat=None, water_temperature=None, water_pressure=None,
+                                     **{name: None for name in SPRAY_FIELDS})
         tolerances = _without(tolerances, "water_temperature")
     elif name == "wet inlet by dryness":
         # Throttled steam on both sides of saturation; the spray target unreachable for some samples.

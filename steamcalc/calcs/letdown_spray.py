@@ -67,6 +67,9 @@ _FIELDS = {
         key="droplet_size"),
 }
 
+#: The let-down ``Inputs`` fields of the spray valve and evaporation.
+SPRAY_FIELDS = tuple(_FIELDS)
+
 
 def spray_field(name):
     """The let-down ``Inputs`` field ``name`` of the spray valve and evaporation (section desuperheater)."""
