@@ -51,9 +51,11 @@ def nice_ticks(low, high, target=6, dtick=None):
     if not (math.isfinite(low) and math.isfinite(high)) or high <= low:
         return []
     if dtick is None:
-        raw = (high - low) / target
-        power = 10.0 ** math.floor(math.log10(raw))
-        step = next(m * power for m in (1.0, 2.0, 2.5, 5.0, 10.0) if m * power >= raw)
+        span = high - low
+        power = 10.0 ** math.floor(math.log10(span / target))
+        # the round step giving the number of ticks nearest the target (the larger step on a tie)
+        candidates = [m * power * f for f in (0.1, 1.0, 10.0) for m in (5.0, 2.5, 2.0, 1.0)]
+        step = min(candidates, key=lambda c: (round(abs(span / c - target), 9), -c))
     else:
         step = float(dtick)
     first = math.ceil(low / step - 1e-9)
@@ -417,8 +419,12 @@ def record_figures(record):
                 "note": f"The charts could not be drawn from this record's inputs ({exc}); run steamcalc verify on it."}
     from .ui.charts import chart_for
 
+    from .engines import REFERENCE_ENGINE, using_engine
+
+    with using_engine(REFERENCE_ENGINE):   # the same states whichever engine the caller has chosen
+        figures = chart_for(record["kind"], inputs, result)
     charts = []
-    for number, figure in enumerate(chart_for(record["kind"], inputs, result), start=1):
+    for number, figure in enumerate(figures, start=1):
         title = figure.layout.title.text or f"Chart {number}"
         charts.append({"title": title, "svg": Markup(figure_svg(figure, f"steamcalc-chart-{number}"))})
     return {"sketch": sketch, "charts": charts, "note": ""}
