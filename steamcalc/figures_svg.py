@@ -37,7 +37,7 @@ def _esc(text):
 
 
 def nice_ticks(low, high, target=6, dtick=None):
-    """Round tick values covering [low, high]: steps of 1, 2, 2.5 or 5 times a power of ten.
+    """Round tick values covering [low, high]: steps of 1, 2 or 5 times a power of ten.
 
     Examples
     --------
@@ -54,7 +54,7 @@ def nice_ticks(low, high, target=6, dtick=None):
         span = high - low
         power = 10.0 ** math.floor(math.log10(span / target))
         # the round step giving the number of ticks nearest the target (the larger step on a tie)
-        candidates = [m * power * f for f in (0.1, 1.0, 10.0) for m in (5.0, 2.5, 2.0, 1.0)]
+        candidates = [m * power * f for f in (0.1, 1.0, 10.0) for m in (5.0, 2.0, 1.0)]
         step = min(candidates, key=lambda c: (round(abs(span / c - target), 9), -c))
     else:
         step = float(dtick)
@@ -70,7 +70,7 @@ def nice_ticks(low, high, target=6, dtick=None):
 def _tick_text(value, ticks):
     """A tick label with as many decimals as the tick step needs."""
     step = min((b - a for a, b in zip(ticks, ticks[1:])), default=1.0) or 1.0
-    decimals = max(0, -math.floor(math.log10(step) + 1e-9))
+    decimals = next(d for d in range(12) if abs(round(step, d) - step) <= 1e-9 * step or d == 11)
     return f"{value:,.{decimals}f}"
 
 

@@ -114,17 +114,17 @@ def test_save_case_button_writes_a_new_file_and_never_overwrites(lab, browser):
     assert (cases / "FL-01.toml").read_bytes() == original
     offer = page.locator(f"{PANEL} .steamcalc-save-case-next").first
     assert offer.is_visible() and "revision C" in offer.inner_text()
-    page.locator(f"{PANEL} .steamcalc-save-case").first.locator("xpath=..").screenshot(
-        path=str(SHOTS / "15-11-save-case.png"))
+    cell = page.locator(f"{PANEL} .jp-Cell", has=page.locator(".steamcalc-save-case")).first
+    cell.screenshot(path=str(SHOTS / "15-11-save-case.png"))
 
     # Taking the offer raises the Revision box to C and saves FL-01_revC.toml.
     offer.click()
-    page.wait_for_function(f"(p) => document.querySelector('{status}').innerText.includes('FL-01_revC.toml')",
-                           arg=second, timeout=30_000)
+    page.wait_for_function(f"() => document.querySelector('{status}').innerText.includes('case file saved')",
+                           timeout=30_000)
+    assert "FL-01_revC.toml" in page.locator(status).first.inner_text()
     assert tomllib.loads((cases / "FL-01_revC.toml").read_text(encoding="utf-8"))["inputs"]["condensate_flow"] == "3.9 t/h"
     assert page.locator(f"{PANEL} .steamcalc-revision input").first.input_value() == "C"
-    page.locator(f"{PANEL} .steamcalc-save-case").first.locator("xpath=..").screenshot(
-        path=str(SHOTS / "15-11-save-case-next-revision.png"))
+    cell.screenshot(path=str(SHOTS / "15-11-save-case-next-revision.png"))
     body = page.locator("body").inner_text()
     assert "Traceback" not in body and "Error displaying widget" not in body
     page.close()
