@@ -99,6 +99,8 @@ def test_save_case_button_writes_a_new_file_and_never_overwrites(lab, browser):
     page.wait_for_timeout(1500)
     first = save_case_and_wait("")
     assert "case file saved" in first and "FL-01_revB.toml" in first and "new file" in first
+    cell = page.locator(f"{PANEL} .jp-Cell", has=page.locator(".steamcalc-save-case")).first
+    cell.screenshot(path=str(SHOTS / "15-11-save-case-new-file.png"))
     written = cases / "FL-01_revB.toml"
     saved_text = written.read_text(encoding="utf-8")
     assert tomllib.loads(saved_text)["inputs"]["condensate_flow"] == "3.6 t/h"
@@ -114,7 +116,6 @@ def test_save_case_button_writes_a_new_file_and_never_overwrites(lab, browser):
     assert (cases / "FL-01.toml").read_bytes() == original
     offer = page.locator(f"{PANEL} .steamcalc-save-case-next").first
     assert offer.is_visible() and "revision C" in offer.inner_text()
-    cell = page.locator(f"{PANEL} .jp-Cell", has=page.locator(".steamcalc-save-case")).first
     cell.screenshot(path=str(SHOTS / "15-11-save-case.png"))
 
     # Taking the offer raises the Revision box to C and saves FL-01_revC.toml.

@@ -26,7 +26,7 @@ class CaseSaver:
 
     def __init__(self, workbook):
         self.workbook = workbook
-        self.button = widgets.Button(description="Save case file", icon="file", layout=widgets.Layout(width="12em"),
+        self.button = widgets.Button(description="Save case file", icon="file", layout=widgets.Layout(width="12em", flex="0 0 auto"),
                                      tooltip="Write these inputs as a case file beside the one this workbook "
                                              "opened (a new file for a new revision; never over another file)")
         self.button.add_class("steamcalc-save-case")
@@ -34,7 +34,7 @@ class CaseSaver:
         self.status.add_class("steamcalc-save-case-status")
         self.button.on_click(lambda _: self._on_click())
         # Offered when the revision is taken: raise the Revision box to the next free one and save.
-        self.next_button = widgets.Button(description="", icon="arrow-up", layout=widgets.Layout(display="none", width="15em"))
+        self.next_button = widgets.Button(description="", icon="arrow-up", layout=widgets.Layout(display="none", width="15em", flex="0 0 auto"))
         self.next_button.add_class("steamcalc-save-case-next")
         self.next_button.on_click(lambda _: self._save_as_next())
         self.view = widgets.HBox([self.button, self.next_button, self.status])
