@@ -27,6 +27,15 @@ def _f(value):
     return "0.0" if text == "-0.0" else text
 
 
+def _get(table, *path):
+    """A nested entry of a figure's dict, or None where any level is missing."""
+    for key in path:
+        if not isinstance(table, dict):
+            return None
+        table = table.get(key)
+    return table
+
+
 def _seq(values):
     """A trace's coordinates as a sequence (plotly holds them as a tuple, a numpy array or None)."""
     return () if values is None else values
@@ -86,13 +95,13 @@ class _Axis:
     """One axis: its data range (log10 units on a log axis) and the pixel span it maps to."""
 
     def __init__(self, spec, values, pixel_low, pixel_high):
-        self.log = spec.type == "log"
-        self.title = spec.title.text if spec.title is not None and spec.title.text else ""
-        self.dtick = spec.dtick if spec.tickmode == "linear" else None
+        self.log = spec.get("type") == "log"
+        self.title = _get(spec, "title", "text") or ""
+        self.dtick = spec.get("dtick") if spec.get("tickmode") == "linear" else None
         data = [self.transform(v) for v in values]
         data = [v for v in data if v is not None and math.isfinite(v)]
-        if spec.range is not None:
-            self.low, self.high = float(spec.range[0]), float(spec.range[1])
+        if spec.get("range") is not None:
+            self.low, self.high = float(spec["range"][0]), float(spec["range"][1])
         elif data:
             low, high = min(data), max(data)
             pad = (high - low) * 0.05 or (abs(high) * 0.05 or 1.0)
@@ -129,19 +138,17 @@ class _Axis:
 
 
 def _trace_colour(trace, index):
-    line = getattr(trace, "line", None)
-    marker = getattr(trace, "marker", None)
-    for colour in (line.color if line is not None else None, marker.color if marker is not None else None):
+    for colour in (_get(trace, "line", "color"), _get(trace, "marker", "color")):
         if isinstance(colour, str):
             return colour
     return _COLOURWAY[index % len(_COLOURWAY)]
 
 
 def _mode(trace):
-    if trace.mode:
-        return set(trace.mode.split("+"))
+    if trace.get("mode"):
+        return set(trace["mode"].split("+"))
     # plotly's default: lines and markers for fewer than 20 points, else lines.
-    return {"lines", "markers"} if len(_seq(trace.x)) < 20 else {"lines"}
+    return {"lines", "markers"} if len(_seq(trace.get("x"))) < 20 else {"lines"}
 
 
 def _legend_rows(entries, width):
@@ -184,32 +191,34 @@ def figure_svg(figure, ident="chart"):
     >>> svg == figure_svg(fig, "doc")
     True
     """
-    layout = figure.layout
-    traces = [t for t in figure.data if t.visible is not False]
+    # Read once as plain dicts: plotly's property objects are slow to walk point by point.
+    layout = figure.layout.to_plotly_json()
+    traces = [t.to_plotly_json() for t in figure.data]
+    traces = [t for t in traces if t.get("visible") is not False]
     for trace in traces:
-        if trace.type != "scatter":
-            raise ValueError(f"figure_svg draws scatter traces only, not {trace.type!r}")
-    title = layout.title.text if layout.title is not None and layout.title.text else ""
-    height_plot = float(layout.height or 450)
-    margin = layout.margin
-    left = float(margin.l if margin.l is not None else 70) + 10.0
-    right_margin = float(margin.r if margin.r is not None else 30)
-    has_y2 = any(t.yaxis == "y2" for t in traces)
+        if trace.get("type") != "scatter":
+            raise ValueError(f"figure_svg draws scatter traces only, not {trace.get('type')!r}")
+    title = _get(layout, "title", "text") or ""
+    height_plot = float(layout.get("height") or 450)
+    margin = layout.get("margin", {})
+    left = float(margin.get("l", 70)) + 10.0
+    right_margin = float(margin.get("r", 30))
+    has_y2 = any(t.get("yaxis") == "y2" for t in traces)
     right = WIDTH - (max(right_margin, 60.0) if has_y2 else max(right_margin, 20.0))
-    top = float(margin.t if margin.t is not None else 60) + (8.0 if title else 0.0)
-    bottom = height_plot - float(margin.b if margin.b is not None else 60)
+    top = float(margin.get("t", 60)) + (8.0 if title else 0.0)
+    bottom = height_plot - float(margin.get("b", 60))
 
     def values(axis_name, attribute):
         out = []
         for t in traces:
-            if (t.xaxis or "x") == axis_name or (t.yaxis or "y") == axis_name:
-                out.extend(_seq(getattr(t, attribute)))
+            if (t.get("xaxis") or "x") == axis_name or (t.get("yaxis") or "y") == axis_name:
+                out.extend(_seq(t.get(attribute)))
         return out
 
-    x_axis = _Axis(layout.xaxis, values("x", "x"), left, right)
-    y_axis = _Axis(layout.yaxis, values("y", "y"), bottom, top)
-    y2_axis = _Axis(layout.yaxis2, values("y2", "y"), bottom, top) if has_y2 else None
-    legend = [(t.name, t, i) for i, t in enumerate(traces) if t.name and t.showlegend is not False]
+    x_axis = _Axis(layout.get("xaxis", {}), values("x", "x"), left, right)
+    y_axis = _Axis(layout.get("yaxis", {}), values("y", "y"), bottom, top)
+    y2_axis = _Axis(layout.get("yaxis2", {}), values("y2", "y"), bottom, top) if has_y2 else None
+    legend = [(t["name"], t, i) for i, t in enumerate(traces) if t.get("name") and t.get("showlegend") is not False]
     legend_top = bottom + 46.0
     rows = _legend_rows(legend, WIDTH - 2 * 20.0)
     height = legend_top + 20.0 * len(rows) + 8.0
@@ -226,7 +235,7 @@ def figure_svg(figure, ident="chart"):
     out.extend(_shapes(layout, x_axis, y_axis, y2_axis, clip))
     out.extend(_grid_and_axes(x_axis, y_axis, y2_axis, left, right, top, bottom))
     for index, trace in enumerate(traces):
-        out.extend(_trace(trace, index, x_axis, y2_axis if trace.yaxis == "y2" else y_axis, clip))
+        out.extend(_trace(trace, index, x_axis, y2_axis if trace.get("yaxis") == "y2" else y_axis, clip))
     out.extend(_annotations(layout, x_axis, y_axis, y2_axis))
     for row_number, row in enumerate(rows):
         y = legend_top + 20.0 * row_number
@@ -294,47 +303,47 @@ def _position(ref, value, x_axis, y_axis, y2_axis, horizontal):
 
 def _shapes(layout, x_axis, y_axis, y2_axis, clip):
     out = []
-    for shape in layout.shapes or ():
-        if shape.type != "rect":
+    for shape in layout.get("shapes", ()):
+        if shape.get("type") != "rect":
             continue
-        x0 = _position(shape.xref, shape.x0, x_axis, y_axis, y2_axis, True)
-        x1 = _position(shape.xref, shape.x1, x_axis, y_axis, y2_axis, True)
-        y0 = _position(shape.yref, shape.y0, x_axis, y_axis, y2_axis, False)
-        y1 = _position(shape.yref, shape.y1, x_axis, y_axis, y2_axis, False)
+        x0 = _position(shape.get("xref"), shape.get("x0"), x_axis, y_axis, y2_axis, True)
+        x1 = _position(shape.get("xref"), shape.get("x1"), x_axis, y_axis, y2_axis, True)
+        y0 = _position(shape.get("yref"), shape.get("y0"), x_axis, y_axis, y2_axis, False)
+        y1 = _position(shape.get("yref"), shape.get("y1"), x_axis, y_axis, y2_axis, False)
         if None in (x0, x1, y0, y1):
             continue
-        opacity = shape.opacity if shape.opacity is not None else 1.0
+        opacity = shape.get("opacity", 1.0)
         out.append(f'<rect x="{_f(min(x0, x1))}" y="{_f(min(y0, y1))}" width="{_f(abs(x1 - x0))}" '
-                   f'height="{_f(abs(y1 - y0))}" fill="{_esc(shape.fillcolor or "#cccccc")}" '
+                   f'height="{_f(abs(y1 - y0))}" fill="{_esc(shape.get("fillcolor") or "#cccccc")}" '
                    f'fill-opacity="{opacity:.3g}" clip-path="url(#{_esc(clip)})"/>')
     return out
 
 
 def _annotations(layout, x_axis, y_axis, y2_axis):
     out = []
-    for note in layout.annotations or ():
-        if not note.text:
+    for note in layout.get("annotations", ()):
+        if not note.get("text"):
             continue
-        x = _position(note.xref, note.x, x_axis, y_axis, y2_axis, True)
-        y = _position(note.yref, note.y, x_axis, y_axis, y2_axis, False)
+        x = _position(note.get("xref"), note.get("x"), x_axis, y_axis, y2_axis, True)
+        y = _position(note.get("yref"), note.get("y"), x_axis, y_axis, y2_axis, False)
         if x is None or y is None:
             continue
-        anchor = {"left": "start", "right": "end", "center": "middle"}.get(note.xanchor or "center", "middle")
+        anchor = {"left": "start", "right": "end", "center": "middle"}.get(note.get("xanchor") or "center", "middle")
         dx = {"start": 4.0, "end": -4.0}.get(anchor, 0.0)
-        dy = {"top": 14.0, "bottom": -4.0}.get(note.yanchor or "middle", 4.0)
+        dy = {"top": 14.0, "bottom": -4.0}.get(note.get("yanchor") or "middle", 4.0)
         out.append(f'<text x="{_f(x + dx)}" y="{_f(y + dy)}" text-anchor="{anchor}" fill="#1d2327">'
-                   f"{_esc(note.text)}</text>")
+                   f"{_esc(note['text'])}</text>")
     return out
 
 
 def _dash(trace):
-    line = trace.line
-    dash = _DASHES.get(line.dash) if line is not None and line.dash else None
+    dash = _DASHES.get(_get(trace, "line", "dash"))
     return f' stroke-dasharray="{dash}"' if dash else ""
 
 
 def _line_width(trace):
-    return float(trace.line.width) if trace.line is not None and trace.line.width is not None else 2.0
+    width = _get(trace, "line", "width")
+    return 2.0 if width is None else float(width)
 
 
 def _marker(x, y, size, colour):
@@ -344,7 +353,7 @@ def _marker(x, y, size, colour):
 def _trace(trace, index, x_axis, y_axis, clip):
     colour = _trace_colour(trace, index)
     mode = _mode(trace)
-    points = [(x_axis.pixel(x), y_axis.pixel(y)) for x, y in zip(_seq(trace.x), _seq(trace.y))]
+    points = [(x_axis.pixel(x), y_axis.pixel(y)) for x, y in zip(_seq(trace.get("x")), _seq(trace.get("y")))]
     out = [f'<g clip-path="url(#{_esc(clip)})">']
     if "lines" in mode:
         run = []
@@ -356,12 +365,13 @@ def _trace(trace, index, x_axis, y_axis, clip):
                 run = []
             else:
                 run.append(point)
-    size = float(trace.marker.size) if trace.marker is not None and trace.marker.size is not None else 6.0
+    size = float(_get(trace, "marker", "size") or 6.0)
     if "markers" in mode:
         out.extend(_marker(x, y, size, colour) for x, y in points if None not in (x, y))
-    if "text" in mode and trace.text is not None:
-        texts = [trace.text] * len(points) if isinstance(trace.text, str) else list(trace.text)
-        position = trace.textposition if isinstance(trace.textposition, str) else "middle center"
+    if "text" in mode and trace.get("text") is not None:
+        text = trace["text"]
+        texts = [text] * len(points) if isinstance(text, str) else list(text)
+        position = trace.get("textposition") if isinstance(trace.get("textposition"), str) else "middle center"
         vertical, _, horizontal = position.partition(" ")
         dy = {"top": -size / 2 - 4, "bottom": size / 2 + 11}.get(vertical, 4.0)
         dx = {"right": size / 2 + 2, "left": -size / 2 - 2}.get(horizontal, 0.0)
