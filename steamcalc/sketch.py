@@ -73,6 +73,10 @@ def _pressure(shown, raw, section, key):
     return Reading(section, key, f"{absolute} · {format_number(round(gauge, 6))} {gauge_unit}")
 
 
+def _suffixed(reading, note):
+    return None if reading is None else Reading(reading.section, reading.key, f"{reading.text} ({note})")
+
+
 def _point(number, name, *readings):
     return Point(number, name, tuple(r for r in readings if r is not None))
 
@@ -111,18 +115,25 @@ def flash_points(shown, raw):
     vented = raw.get("inputs", {}).get("vented", {}).get("value") is True
     stages = sorted(int(k.split("_")[1]) for k in shown.get("results", {})
                     if k.startswith("stage_") and k.endswith("_pressure") and k.split("_")[1].isdigit())
+    inlet = _point("1", "condensate in", _pressure(shown, raw, "inputs", "condensate_pressure"),
+                   _reading(shown, raw, "results", "condensate_temperature"),
+                   _reading(shown, raw, "results", "condensate_flow"))
     if stages:
-        last = stages[-1]
-        steam_pressure = _pressure(shown, raw, "results", f"stage_{last}_pressure")
-        steam_name = f"flash steam, {len(stages)} stages"
-    else:
-        steam_pressure = _pressure(shown, raw, "inputs", "flash_pressure")
-        steam_name = "flash steam to vent (lost)" if vented else \
-            f"flash steam to {_header_name(raw, 'flash_pressure', 'the flash-steam users')}"
+        # A cascade: each stage's steam at its own pressure; the residual leaves the last stage.
+        steam = []
+        for i in stages:
+            steam += [_suffixed(_pressure(shown, raw, "results", f"stage_{i}_pressure"), f"stage {i}"),
+                      _suffixed(_reading(shown, raw, "results", f"stage_{i}_flash_steam_flow"), f"stage {i}")]
+        last = _pressure(shown, raw, "results", f"stage_{stages[-1]}_pressure")
+        return [inlet, _point("2", f"flash steam, {len(stages)} stages", *steam),
+                _point("3", "residual condensate", last,
+                       _reading(shown, raw, "results", "residual_condensate_temperature"),
+                       _reading(shown, raw, "results", "residual_condensate_flow"))]
+    steam_pressure = _pressure(shown, raw, "inputs", "flash_pressure")
+    steam_name = "flash steam to vent (lost)" if vented else \
+        f"flash steam to {_header_name(raw, 'flash_pressure', 'the flash-steam users')}"
     return [
-        _point("1", "condensate in", _pressure(shown, raw, "inputs", "condensate_pressure"),
-               _reading(shown, raw, "results", "condensate_temperature"),
-               _reading(shown, raw, "results", "condensate_flow")),
+        inlet,
         _point("2", steam_name, steam_pressure, _reading(shown, raw, "results", "residual_condensate_temperature"),
                _reading(shown, raw, "results", "flash_steam_flow")),
         _point("3", "residual condensate", steam_pressure,
@@ -239,12 +250,13 @@ def _flash(points, raw):
     diameter = results.get("vessel_diameter", {}).get("value")
     fraction = results.get("flash_fraction", {}).get("value")
     vented = raw.get("inputs", {}).get("vented", {}).get("value") is True
+    cascade = "stage_1_pressure" in results
     steam_to = "vent" if vented else _header_name(raw, "flash_pressure", "steam users")
     out = _pipe([(20, 150), (328, 150)], WATER)
     out += [f'<rect x="330" y="50" width="80" height="190" rx="30" fill="#f4f6f7" stroke="{INK}" stroke-width="1.5"/>',
             f'<line x1="332" y1="185" x2="408" y2="185" stroke="{WATER}" stroke-dasharray="4,3"/>',
             '<text x="370" y="100" text-anchor="middle" font-weight="bold">flash</text>',
-            '<text x="370" y="114" text-anchor="middle" font-weight="bold">vessel</text>']
+            f'<text x="370" y="114" text-anchor="middle" font-weight="bold">{"vessels" if cascade else "vessel"}</text>']
     if isinstance(fraction, (int, float)):
         out += ['<text x="370" y="140" text-anchor="middle" font-size="10">flashes</text>',
                 f'<text x="370" y="153" text-anchor="middle" font-size="10">{_esc(format_number(fraction * 100))} %</text>']
@@ -253,8 +265,10 @@ def _flash(points, raw):
     out += _pipe([(370, 50), (370, 30), (638, 30)]) + _box(640, 8, 110, 44, steam_to)
     out += _pipe([(370, 240), (370, 250), (430, 250), (430, 222), (638, 222)], WATER)
     out += _box(640, 200, 110, 44, "condensate", "return")
-    out += _label(30, 76, by["1"]) + _label(450, 70, by["2"]) + _label(450, 150, by["3"])
-    return out, 275
+    # the residual condensate's label goes below the flash steam's (a cascade lists every stage)
+    below = max(150, 70 + 15 * (len(by["2"].readings) + 1) + 10)
+    out += _label(30, 76, by["1"]) + _label(450, 70, by["2"]) + _label(450, below, by["3"])
+    return out, max(275, below + 15 * len(by["3"].readings) + 30)
 
 
 def _exchanger(points, raw):

@@ -161,3 +161,18 @@ def test_toml_text_round_trips_values():
     document = {"case": {"id": "X", "n": 3, "f": 0.1, "on": True}, "inputs": {"list": ["a", "b"], "t": {"k": 1.5}}}
     assert tomllib.loads(toml_text(document)) == document
     assert case_file_name("X", "B") == "X_revB.toml"
+
+
+def test_round_trip_of_a_list_of_stage_pressures(site):
+    text = (site / "cases" / "FL-02.toml").read_text(encoding="utf-8")
+    text = text.replace('id = "FL-02"', 'id = "FL-09"')
+    lines = [line for line in text.splitlines() if not line.startswith(("flash_pressure", "vented"))]
+    lines.insert(lines.index("[inputs]") + 1, 'stages = ["8 bar(g)", "header:LP"]')
+    (site / "cases" / "FL-09.toml").write_text("\n".join(lines) + "\n", encoding="utf-8")
+    case, (inputs, given) = _inputs_of(site / "cases" / "FL-09.toml")
+    calc = get_calculation(case.kind)
+    form = CaseForm(calc.Inputs, flatten_inputs(calc.Inputs, case.inputs))
+    saved = save_case(dataclasses.replace(case, revision="B"), form.values(), calc.Inputs)
+    assert tomllib.loads(saved.path.read_text(encoding="utf-8"))["inputs"]["stages"] == ["8 bar(g)", "header:LP"]
+    _, (inputs_back, given_back) = _inputs_of(saved.path)
+    assert inputs_back == inputs and given_back == given

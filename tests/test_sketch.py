@@ -114,3 +114,21 @@ def test_sketch_is_plain_svg_and_escapes_user_text(records):
 
 def test_unknown_kind_has_no_sketch():
     assert sketch_svg({"kind": "boiler"}) == "" and sketch_points({"kind": "boiler"}) == []
+
+
+def test_cascade_shows_each_stages_steam_at_its_own_pressure(tmp_path):
+    (tmp_path / "cases").mkdir()
+    (tmp_path / "site.toml").write_text((CASES.parent / "site.toml").read_text(encoding="utf-8"), encoding="utf-8")
+    text = (CASES / "FL-02.toml").read_text(encoding="utf-8")
+    text = re.sub(r"(?m)^flash_pressure = .*$", 'stages = ["8 bar(g)", "header:LP"]', text)
+    text = re.sub(r"(?m)^vented = .*$", "", text)
+    (tmp_path / "cases" / "FL-09.toml").write_text(text, encoding="utf-8")
+    case = load_case(tmp_path / "cases" / "FL-09.toml")
+    record, _ = record_for_case(case, case_site(case), with_uncertainty=False)
+    readings = _readings(sketch_svg(record))
+    steam = [text for key, text in readings if key.startswith("results.stage_")]
+    assert steam[0].endswith("8 bar(g) (stage 1)") and steam[2].endswith("2.5 bar(g) (stage 2)")
+    for key, text in readings:
+        section, name = key.split(".", 1)
+        assert text.split(" ")[0] == format_number(record[section][name]["value"]), (key, text)
+    assert 'text-anchor="middle" font-weight="bold">vessels</text>' in sketch_svg(record)
