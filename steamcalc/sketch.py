@@ -48,7 +48,7 @@ def _entry(record, section, key):
     return entry
 
 
-def _reading(shown, raw, section, key):
+def _reading(shown, section, key):
     """A non-pressure reading, or None when the record does not hold it."""
     entry = _entry(shown, section, key)
     if entry is None:
@@ -93,20 +93,20 @@ def letdown_points(shown, raw):
     desuperheated = _entry(shown, "results", "spray_water_flow") is not None
     points = [
         _point("1", f"from {_header_name(raw, 'inlet_pressure', 'the inlet')}",
-               _pressure(shown, raw, "inputs", "inlet_pressure"), _reading(shown, raw, "results", "inlet_temperature"),
-               _reading(shown, raw, "results", "inlet_mass_flow")),
+               _pressure(shown, raw, "inputs", "inlet_pressure"), _reading(shown, "results", "inlet_temperature"),
+               _reading(shown, "results", "inlet_mass_flow")),
         _point("2", "after the valve", _pressure(shown, raw, "inputs", "outlet_pressure"),
-               _reading(shown, raw, "results", "throttled_temperature"),
-               _reading(shown, raw, "results", "inlet_mass_flow")),
+               _reading(shown, "results", "throttled_temperature"),
+               _reading(shown, "results", "inlet_mass_flow")),
     ]
     if desuperheated:
         points.append(_point("W", "spray water", _pressure(shown, raw, "inputs", "water_pressure"),
-                             _reading(shown, raw, "inputs", "water_temperature"),
-                             _reading(shown, raw, "results", "spray_water_flow")))
+                             _reading(shown, "inputs", "water_temperature"),
+                             _reading(shown, "results", "spray_water_flow")))
         points.append(_point("3", f"to {_header_name(raw, 'outlet_pressure', 'the outlet')}",
                              _pressure(shown, raw, "inputs", "outlet_pressure"),
-                             _reading(shown, raw, "results", "outlet_temperature"),
-                             _reading(shown, raw, "results", "outlet_mass_flow")))
+                             _reading(shown, "results", "outlet_temperature"),
+                             _reading(shown, "results", "outlet_mass_flow")))
     return points
 
 
@@ -116,47 +116,47 @@ def flash_points(shown, raw):
     stages = sorted(int(k.split("_")[1]) for k in shown.get("results", {})
                     if k.startswith("stage_") and k.endswith("_pressure") and k.split("_")[1].isdigit())
     inlet = _point("1", "condensate in", _pressure(shown, raw, "inputs", "condensate_pressure"),
-                   _reading(shown, raw, "results", "condensate_temperature"),
-                   _reading(shown, raw, "results", "condensate_flow"))
+                   _reading(shown, "results", "condensate_temperature"),
+                   _reading(shown, "results", "condensate_flow"))
     if stages:
         # A cascade: each stage's steam at its own pressure; the residual leaves the last stage.
         steam = []
         for i in stages:
             steam += [_suffixed(_pressure(shown, raw, "results", f"stage_{i}_pressure"), f"stage {i}"),
-                      _suffixed(_reading(shown, raw, "results", f"stage_{i}_flash_steam_flow"), f"stage {i}")]
+                      _suffixed(_reading(shown, "results", f"stage_{i}_flash_steam_flow"), f"stage {i}")]
         last = _pressure(shown, raw, "results", f"stage_{stages[-1]}_pressure")
         return [inlet, _point("2", f"flash steam, {len(stages)} stages", *steam),
                 _point("3", "residual condensate", last,
-                       _reading(shown, raw, "results", "residual_condensate_temperature"),
-                       _reading(shown, raw, "results", "residual_condensate_flow"))]
+                       _reading(shown, "results", "residual_condensate_temperature"),
+                       _reading(shown, "results", "residual_condensate_flow"))]
     steam_pressure = _pressure(shown, raw, "inputs", "flash_pressure")
     steam_name = "flash steam to vent (lost)" if vented else \
         f"flash steam to {_header_name(raw, 'flash_pressure', 'the flash-steam users')}"
     return [
         inlet,
-        _point("2", steam_name, steam_pressure, _reading(shown, raw, "results", "residual_condensate_temperature"),
-               _reading(shown, raw, "results", "flash_steam_flow")),
+        _point("2", steam_name, steam_pressure, _reading(shown, "results", "residual_condensate_temperature"),
+               _reading(shown, "results", "flash_steam_flow")),
         _point("3", "residual condensate", steam_pressure,
-               _reading(shown, raw, "results", "residual_condensate_temperature"),
-               _reading(shown, raw, "results", "residual_condensate_flow")),
+               _reading(shown, "results", "residual_condensate_temperature"),
+               _reading(shown, "results", "residual_condensate_flow")),
     ]
 
 
 def exchanger_points(shown, raw):
     """State points of a steam heater: steam supply, shell at design load, after the trap, process."""
-    steam_temperature = _reading(shown, raw, "inputs", "steam_temperature") or \
-        _reading(shown, raw, "results", "steam_saturation_temperature")
+    steam_temperature = _reading(shown, "inputs", "steam_temperature") or \
+        _reading(shown, "results", "steam_saturation_temperature")
     shell = _pressure(shown, raw, "results", "required_steam_pressure_100")
     return [
         _point("1", "steam supply", _pressure(shown, raw, "inputs", "steam_pressure"), steam_temperature,
-               _reading(shown, raw, "results", "steam_flow")),
+               _reading(shown, "results", "steam_flow")),
         _point("2", "shell, design load" + (" (pressure needed)" if shell else ""), shell,
-               _reading(shown, raw, "results", "duty")),
+               _reading(shown, "results", "duty")),
         _point("3", "after the trap", _pressure(shown, raw, "inputs", "condensate_back_pressure"),
-               _reading(shown, raw, "results", "condensate_flow")),
-        _point("P", "process in → out", _reading(shown, raw, "inputs", "process_inlet_temperature"),
-               _reading(shown, raw, "inputs", "process_outlet_temperature"),
-               _reading(shown, raw, "results", "process_flow")),
+               _reading(shown, "results", "condensate_flow")),
+        _point("P", "process in → out", _reading(shown, "inputs", "process_inlet_temperature"),
+               _reading(shown, "inputs", "process_outlet_temperature"),
+               _reading(shown, "results", "process_flow")),
     ]
 
 
