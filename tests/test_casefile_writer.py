@@ -176,3 +176,23 @@ def test_round_trip_of_a_list_of_stage_pressures(site):
     assert tomllib.loads(saved.path.read_text(encoding="utf-8"))["inputs"]["stages"] == ["8 bar(g)", "header:LP"]
     _, (inputs_back, given_back) = _inputs_of(saved.path)
     assert inputs_back == inputs and given_back == given
+
+
+def test_workbook_save_case_button_headless(site):
+    from steamcalc.ui.workbook import Workbook
+
+    wb = Workbook(site / "cases" / "FL-01.toml", site / "records")
+    saver = wb._case_saver
+    assert saver.save().startswith("unchanged, kept") and "FL-01.toml" in saver.save()
+    wb.form.boxes["condensate_flow"].value = "3.6 t/h"
+    text = saver.save()
+    assert text.startswith("not saved") and "Raise the Revision box above to B" in text
+    saver._on_click()
+    assert saver.next_button.description == "Save as revision B" and saver.next_button.layout.display is None
+    saver._save_as_next()
+    assert wb._revision.value == "B" and "case file saved" in saver.status.value
+    assert tomllib.loads((site / "cases" / "FL-01_revB.toml").read_text(encoding="utf-8"))["case"]["revision"] == "B"
+    assert saver.next_button.layout.display == "none"
+    wb.form.boxes["condensate_flow"].value = "lots"
+    assert saver.save().startswith("not saved: the inputs are not accepted")
+    assert 'data-key="results.condensate_flow">3600 kg/h<' in wb.sketch_view().value   # the last accepted inputs
