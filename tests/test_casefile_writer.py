@@ -195,4 +195,3 @@ def test_workbook_save_case_button_headless(site):
     assert saver.next_button.layout.display == "none"
     wb.form.boxes["condensate_flow"].value = "lots"
     assert saver.save().startswith("not saved: the inputs are not accepted")
-    assert 'data-key="results.condensate_flow">3600 kg/h<' in wb.sketch_view().value   # the last accepted inputs

@@ -132,3 +132,16 @@ def test_cascade_shows_each_stages_steam_at_its_own_pressure(tmp_path):
         section, name = key.split(".", 1)
         assert text.split(" ")[0] == format_number(record[section][name]["value"]), (key, text)
     assert 'text-anchor="middle" font-weight="bold">vessels</text>' in sketch_svg(record)
+
+
+def test_workbook_sketch_follows_the_inputs_and_greys_out_while_one_is_refused(tmp_path):
+    from steamcalc.ui.workbook import Workbook
+
+    wb = Workbook(CASES / "FL-01.toml", tmp_path / "records")
+    assert 'data-key="results.condensate_flow">3200 kg/h<' in wb.sketch_view().value
+    wb.form.boxes["condensate_flow"].value = "3.6 t/h"
+    assert 'data-key="results.condensate_flow">3600 kg/h<' in wb.sketch_view().value
+    wb.form.boxes["condensate_flow"].value = "lots"
+    assert "Out of date" in wb.sketch_view().value and ">3600 kg/h<" in wb.sketch_view().value
+    wb.form.boxes["condensate_flow"].value = "3.7 t/h"
+    assert "Out of date" not in wb.sketch_view().value and ">3700 kg/h<" in wb.sketch_view().value

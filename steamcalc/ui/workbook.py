@@ -131,6 +131,7 @@ class Workbook:
             self._message.value = (f"<div style='color:#a3201b'><b>Input not accepted:</b> "
                                    f"{html.escape(self.error)}</div><div>Results below are for the last "
                                    "accepted inputs.</div>")
+            self._sketch.mark_stale()
             return
         self.error = None
         self.inputs, self.record, self.result = inputs, record, result
