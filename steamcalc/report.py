@@ -102,7 +102,10 @@ def _context(record):
     def basis(section, key):
         return pressure_basis(record, section, key)
 
-    return {"r": display_record(record), "stem": record_stem(record), "kind_title": calc.TITLE, "basis": basis}
+    from .figures_svg import record_figures  # the sketch and charts block (HTML only; drawn when the template asks)
+
+    return {"r": display_record(record), "stem": record_stem(record), "kind_title": calc.TITLE, "basis": basis,
+            "record_figures": lambda: record_figures(record)}
 
 
 def render_html(record):

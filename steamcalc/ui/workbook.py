@@ -26,6 +26,8 @@ from ..site import case_site, flatten_inputs, is_file_name_part, load_case, pars
 from ..uncertainty import SETTINGS
 from .charts import chart_for, figure_json, table_for, tornado_chart
 from .forms import CaseForm
+from .save_case import CaseSaver
+from .sketch_view import SketchView
 
 _STATUS_COLOURS = {"pass": "#2f6b3a", "warn": "#8a5a00", "fail": "#a3201b"}
 
@@ -101,6 +103,7 @@ class Workbook:
                                       tooltip="Raise the revision to issue changed inputs as a new record")
         self._revision.add_class("steamcalc-revision")
         self._revision.observe(lambda change: self._set_revision(), names="value")
+        self._sketch, self._case_saver = SketchView(), CaseSaver(self)  # process sketch; "Save case file"
         self.form.observe(self.update)
         self.update()
 
@@ -128,6 +131,7 @@ class Workbook:
             self._message.value = (f"<div style='color:#a3201b'><b>Input not accepted:</b> "
                                    f"{html.escape(self.error)}</div><div>Results below are for the last "
                                    "accepted inputs.</div>")
+            self._sketch.mark_stale()
             return
         self.error = None
         self.inputs, self.record, self.result = inputs, record, result
@@ -141,6 +145,7 @@ class Workbook:
         self._draw_chart()
         self._draw_table()
         self._draw_preview()
+        self._sketch.draw(self.record)
 
     def _set_revision(self):
         revision = self._revision.value.strip()
@@ -248,6 +253,14 @@ class Workbook:
     def save_view(self):
         return widgets.HBox([self._save_button, self._save_status])
 
+    def sketch_view(self):
+        """The process sketch with the computed state at each point (follows the inputs)."""
+        return self._sketch.view
+
+    def save_case_view(self):
+        """The "Save case file" button: the edited inputs as a new case file or revision."""
+        return self._case_saver.view
+
     def summary(self):
         """Plain-text results and checks (what headless runs print and nbval compares)."""
         if self.record is None:
@@ -313,6 +326,7 @@ class UnavailableWorkbook:
                             "</div><div>Correct the parameters cell and run all cells again.</div>")
 
     form_view = results_view = chart_view = preview_view = save_view = table_view = uncertainty_view = _view
+    sketch_view = save_case_view = _view
 
     def summary(self):
         return f"Input not accepted: {self.message}"
