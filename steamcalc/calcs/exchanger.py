@@ -32,6 +32,8 @@ WORKBOOK = "exchanger_duty.ipynb"
 #: Results in a pressure unit that are differences, not absolute pressures (labelled "difference").
 PRESSURE_DIFFERENCE_RESULTS = ("trap_static_head_pressure",)
 UNCERTAINTY_RESULTS = ("duty", "steam_flow", "required_area", "area_margin", "stall_load_fraction")
+#: Plain fractions shown in % (display only; records keep the fraction).
+PERCENT_VALUES = ("area_margin", "stall_load_fraction", "stall_load_fraction_fouled", "heat_loss")
 
 #: Smallest temperature approach (steam saturation to process outlet) held without a warning, K
 #: (common practice: below about 5 K control is sluggish and the area grows fast).

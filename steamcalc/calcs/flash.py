@@ -27,6 +27,8 @@ TITLE = "Flash-steam recovery"
 WORKBOOK = "flash_recovery.ipynb"
 #: Results the uncertainty section gives bands and sensitivities for.
 UNCERTAINTY_RESULTS = ("flash_fraction", "flash_steam_flow", "recovered_heat_rate", "annual_cost_saving", "vessel_diameter")
+#: Plain fractions shown in % (display only; records keep the fraction).
+PERCENT_VALUES = ("flash_fraction",)
 
 CAUTIONS = (
     "Flash vessels and receivers are pressure vessels: their design, marking and inspection follow the "
@@ -343,7 +345,7 @@ def _recovered_heat(inputs, site, stages, total_flash, result):
     result.add("annual_cost_saving", f"Fuel cost a year ({when})", money, site.fuel_price.currency)
     result.add("fuel_basis", "Calorific-value basis of the fuel figures", basis)
     if site.fuel_emission_factor is not None:
-        result.add("annual_co2_avoided", "CO2 a year (avoided by recovery)", fuel * site.fuel_emission_factor / 1e3,
+        result.add("annual_co2_avoided", "CO₂ a year (avoided by recovery)", fuel * site.fuel_emission_factor / 1e3,
                    "t")
     water = _water_credit(inputs, site, total_flash, makeup, result)
     if water is not None:

@@ -27,6 +27,8 @@ TITLE = "Pressure let-down station"
 WORKBOOK = "letdown.ipynb"
 #: Results the uncertainty section gives bands and sensitivities for.
 UNCERTAINTY_RESULTS = ("outlet_temperature", "outlet_superheat", "throttled_temperature", "spray_water_flow", "valve_kv", "recoverable_power")
+#: Plain fractions shown in % (display only; records keep the fraction).
+PERCENT_VALUES = ("overpressure", "isentropic_efficiency", "generator_efficiency")
 
 #: Results that hold a pressure difference (shown as "bar difference", not bar(a)).
 PRESSURE_DIFFERENCE_RESULTS = tuple(
