@@ -106,7 +106,7 @@ def _group(text):
     return f"{sign}{whole}{dot}{decimals}"
 
 
-def format_number(value, unit=""):
+def format_number(value, unit="", trim=False):
     """A value as a report shows it, to the figures its quantity calls for.
 
     Parameters
@@ -115,6 +115,8 @@ def format_number(value, unit=""):
         The value, in the (display) unit ``unit``.
     unit : str
         Its unit (record or display spelling, pint names): it chooses the figures.
+    trim : bool
+        Drop trailing zeros (for inputs, shown with no more figures than the user gave).
 
     Examples
     --------
@@ -152,7 +154,10 @@ def format_number(value, unit=""):
     if float(value).is_integer():
         return _group(f"{value:.0f}")   # a whole number as typed (25 m, 63 m³/h), no invented zeros
     digits = n - 1 - math.floor(math.log10(abs(value)))
-    return _group(f"{value:.{max(digits, 0)}f}")
+    text = f"{value:.{max(digits, 0)}f}"
+    if trim and "." in text:
+        text = text.rstrip("0").rstrip(".")
+    return _group(text)
 
 
 def format_quantity(value, unit, basis="absolute"):
@@ -299,7 +304,7 @@ _US_PRESSURE = {"a": "psia", "g": "psig", "d": "psi difference"}
 
 def _figures_of(number_text):
     digits = number_text.replace(",", "").replace("-", "").replace(".", "").lstrip("0")
-    return max(len(digits), 3)
+    return max(len(digits), 2)
 
 
 def _us_number(number_text, unit):
@@ -335,28 +340,37 @@ def us_text(text):
     if not isinstance(text, str):
         return text
 
+    def flow_coefficients(clause):
+        # In a clause naming a Kv, each number in m³/h is a Kv: it becomes a Cv (no unit) and Kv is named Cv.
+        if "Kv" not in clause or "m³/h" not in clause:
+            return clause
+
+        def to_cv(match):
+            parts = re.split(r"(\s+and\s+|\s*[−→]\s*)", match.group(1))
+            for i in range(0, len(parts), 2):
+                value = float(parts[i].replace(",", "")) * CV_PER_KV
+                digits = _figures_of(parts[i]) - 1 - math.floor(math.log10(abs(value))) if value else 0
+                parts[i] = f"{value:.{max(digits, 0)}f}"
+            return "".join(parts)
+
+        clause = re.sub(rf"((?<![\w.,]){_NUM}(?:(?:\s+and\s+|\s*[−→]\s*){_NUM})*)\s?m³/h", to_cv, clause)
+        return re.sub(r"\bKv(s?)\b", r"Cv\1", clause)
+
+    text = "".join(flow_coefficients(part) for part in re.split(r"(;\s*|,\s+)", text))
+
     def replace(match):
         unit = _TEXT_PINT[match.group("unit")]
         pint_unit, _, basis = unit.partition("~")
         parts = re.split(r"(\s*[−→]\s*|\s+(?:and|to)\s+)", match.group("chain"))
-        clause = re.split(r"[;,(]", text[:match.start()])[-1]
-        flow_coefficient = pint_unit == "m**3/h" and "Kv" in clause
         target = None
         for i in range(0, len(parts), 2):
-            if flow_coefficient:
-                value = float(parts[i].replace(",", "")) * CV_PER_KV
-                digits = _figures_of(parts[i]) - 1 - math.floor(math.log10(abs(value))) if value else 0
-                parts[i], target = f"{value:.{max(digits, 0)}f}", ""
-            else:
-                parts[i], target = _us_number(parts[i], pint_unit)
-        if flow_coefficient:
-            return f"{''.join(parts)}{match.group('close')}"
+            parts[i], target = _us_number(parts[i], pint_unit)
         written = _US_PRESSURE[basis] if basis else unit_label(target)
         if target == "degR":
             written = "°R"
         return f"{''.join(parts)}{match.group('close')} {written}"
 
-    return us_label(_TEXT_QUANTITY.sub(replace, text))
+    return nps_text(_TEXT_QUANTITY.sub(replace, text))
 
 
 # --- the record as shown -----------------------------------------------------------------------
@@ -394,20 +408,21 @@ def trade_text(text):
     return re.sub(r"\bCO2\b", "CO₂", text)
 
 
-def _show_entry(entry, key, calc, system, basis, label, equation=""):
+def _show_entry(entry, key, calc, system, basis, label, equation="", trim=False):
     """Add ``shown`` (number text), ``shown_unit`` and ``label`` to an input or result entry."""
     value, unit = entry.get("value"), entry.get("unit", "")
     if isinstance(value, list):
         converted = [convert(v, unit, system, key, label) for v in value]
         values = [v for v, _ in converted]
         unit = converted[0][1] if converted else unit
-        entry["shown"] = ", ".join(format_number(v, unit) for v in values)
+        entry["shown"] = ", ".join(format_number(v, unit, trim) for v in values)
     else:
         if unit == "" and isinstance(value, (int, float)) and not isinstance(value, bool) and \
                 shown_in_percent(calc, key, label):
             value, unit = value * 100.0, "percent"
         value, unit = convert(value, unit, system, key, label)
-        entry["shown"] = nps_text(format_number(value, unit)) if system == "US" else format_number(value, unit)
+        entry["shown"] = format_number(value, unit, trim)
+        entry["shown"] = nps_text(entry["shown"]) if system == "US" else entry["shown"]
         if isinstance(value, (int, float)) and not isinstance(value, bool):
             entry["value"] = value
     entry["unit"] = unit
@@ -488,22 +503,25 @@ def display_record(record):
             if not isinstance(entry, dict):
                 continue
             label = entry.get("label") or labels.get(key) or words(key)
-            _show_entry(entry, key, calc, system, pressure_basis(record, section, key), label)
+            _show_entry(entry, key, calc, system, pressure_basis(record, section, key), label,
+                        trim=section == "inputs")
     for step in shown.get("steps", []):
         value = step.get("value") if isinstance(step.get("value"), dict) else {"value": step.get("value"), "unit": ""}
         label = step.get("label", "")
-        _show_entry(value, "", calc, system, _step_basis(step), label, step.get("equation", ""))
+        # A step whose equation holds a constant for SI units is shown wholly in SI, where it holds.
+        si_only = system == "US" and bool(_SI_CONSTANT.search(str(step.get("equation", ""))))
+        step_system = "SI" if si_only else system
+        _show_entry(value, "", calc, step_system, _step_basis(step), label, step.get("equation", ""))
         step["value"] = value
         step["label"] = value["label"]
-        if system == "US":
-            if _SI_CONSTANT.search(str(step.get("equation", ""))):
-                step["substituted"] = f"{nps_text(step.get('substituted', ''))} (in SI units: the equation's constant is SI)"
-            else:
-                step["substituted"] = us_text(step.get("substituted", ""))
+        if si_only:
+            step["substituted"] = f"{step.get('substituted', '')} (in SI: the equation's constant is for SI units)"
+        elif system == "US":
+            step["substituted"] = us_text(step.get("substituted", ""))
     for check in shown.get("checks", []):
-        check["name"] = trade_text(check.get("name"))
+        check["name"] = trade_text(us_label(check.get("name")) if system == "US" else check.get("name"))
         check["detail"] = trade_text(us_text(check.get("detail")) if system == "US" else check.get("detail"))
-    shown["assumptions"] = [trade_text(a) for a in shown.get("assumptions", [])]
+    shown["assumptions"] = [trade_text(nps_text(a) if system == "US" else a) for a in shown.get("assumptions", [])]
     if isinstance(shown.get("uncertainty"), dict):
         _show_uncertainty(shown["uncertainty"], record, calc, system, labels)
     atmosphere = record.get("site", {}).get("atmospheric_pressure", {})
