@@ -378,7 +378,7 @@ def _water_credit(inputs, site, total_flash, makeup, result):
     result.add("annual_water_cost_saving", f"Make-up water and treatment cost a year ({when})", cost,
                site.water_cost.currency)
     result.assumptions.append(
-        f"Water credit at the site's water_cost of {site.water_cost} (make-up water and treatment) on the flash "
+        f"Water credit at the site's make-up water cost of {site.water_cost} (make-up water and treatment) on the flash "
         "steam's mass: vented it is lost and made up, used it displaces boiler steam; the residual condensate "
         "is taken as returned either way and earns no credit")
     return cost
