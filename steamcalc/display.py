@@ -275,10 +275,16 @@ def convert(value, unit, system, key=None, label=""):
 
 
 def us_label(label):
-    """A label for US display: Kv named Cv, DN sizes as NPS."""
+    """A label for US display: Kv named Cv, DN sizes as NPS, quantities in it in US units.
+
+    Examples
+    --------
+    >>> us_label("Inlet line: smallest size under 45 m/s"), us_label("Rated Kv (Kvs)")
+    ('Inlet line: smallest size under 148 ft/s', 'Rated Cv (Cvs)')
+    """
     if not isinstance(label, str):
         return label
-    return nps_text(re.sub(r"\bKv(s?)\b", r"Cv\1", label))
+    return re.sub(r"\bKv(s?)\b", r"Cv\1", us_text(label))
 
 
 #: Units written in texts (steps, checks) and their pint names, longest first so that ``m`` never
@@ -315,7 +321,7 @@ def _us_number(number_text, unit):
     else:
         shown, target = Q_(value, unit).to(US_UNITS[unit]).magnitude, US_UNITS[unit]
     if shown == 0:
-        return "0", target
+        return number_text, target
     digits = _figures_of(number_text) - 1 - math.floor(math.log10(abs(shown)))
     text = f"{shown:.{max(digits, 0)}f}"
     return (_group(text) if "," in number_text or abs(shown) >= 1e4 else text), target

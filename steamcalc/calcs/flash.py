@@ -56,7 +56,7 @@ class Inputs:
         required=True, positive=True)
     condensate_temperature: float | None = input_field(
         "temperature", "Condensate temperature",
-        "Leave empty for condensate saturated at its pressure; give it when subcooled.", example="170 degC")
+        "Leave empty for condensate saturated at its pressure; give it when subcooled.", example="170 °C")
     flash_pressure: float | None = input_field(
         "pressure", "Flash pressure", "Pressure of the flash vessel (a header or a pressure).", example="header:LP")
     stages: tuple | None = input_field(
