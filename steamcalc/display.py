@@ -482,9 +482,11 @@ def _show_uncertainty(section, record, calc, system, labels):
         if band["sensitive_to"]:
             line += f"; most sensitive to {band['sensitive_to'][0]}"
         lines.append(line)
-    if section.get("failed_samples"):
-        lines.append(f"{section['samples'] - section['valid_samples']} of {section['samples']} samples gave no result: "
-                     + "; ".join(f"{n} × {reason}" for reason, n in section["failed_samples"].items()))
+    failed = section.get("failed_samples")
+    if isinstance(failed, dict) and failed:
+        samples, valid = section.get("samples", 0), section.get("valid_samples", 0)
+        lines.append(f"{samples - valid} of {samples} samples gave no result: "
+                     + "; ".join(f"{n} × {reason}" for reason, n in failed.items()))
     section["shown_summary"] = lines
     section["coverage_shown"] = f"{coverage * 100:g}"
 
