@@ -299,7 +299,7 @@ _TEXT_UNITS = [
 ]
 _NUM = r"-?(?:\d{1,3}(?:,\d{3})+|\d+)(?:\.\d+)?"
 _TEXT_QUANTITY = re.compile(
-    rf"(?<![\w.,^/])(?P<chain>{_NUM}(?:(?:\s*[−→]\s*|\s+(?:and|to)\s+){_NUM})*)(?P<close>\)?)\s?(?P<unit>"
+    rf"(?<![\w.,^/+])(?P<chain>{_NUM}(?:(?:\s*[−→]\s*|\s+(?:and|to)\s+){_NUM})*)(?P<close>\)?)\s?(?P<unit>"
     + "|".join(re.escape(written) for written, _ in _TEXT_UNITS) + r")(?![\w²³(])")
 _TEXT_PINT = dict(_TEXT_UNITS)
 #: Equations with a constant for SI units (IEC 60534-2-1's N6, API 520's steam equation and reaction
@@ -407,11 +407,32 @@ def _in_sentence(label):
     return label if len(label) > 1 and label[1].isupper() else label[:1].lower() + label[1:]
 
 
+_E_NOTATION = re.compile(r"(?<![\w.])(\d+(?:\.\d+)?)[eE]([+-]?)(\d+)(?![\w.])")
+_SUPERSCRIPT = str.maketrans("-0123456789", "⁻⁰¹²³⁴⁵⁶⁷⁸⁹")
+
+
+def _powers_of_ten(match):
+    mantissa, sign, exponent = match.group(1), match.group(2), int(match.group(3))
+    if float(mantissa) == 0:
+        return "0"
+    power = f"10{(('-' if sign == '-' else '') + str(exponent)).translate(_SUPERSCRIPT)}"
+    return power if float(mantissa) == 1 else f"{mantissa} × {power}"
+
+
 def trade_text(text):
-    """Chemical formulae and symbols as the trade writes them (CO₂), in any text shown."""
+    """Formulae and numbers as the trade writes them, in any text shown: CO₂, and a number in
+    e-notation as a power of ten (``1.3e-15`` → 1.3 × 10⁻¹⁵, ``1e-03`` → 10⁻³, ``0.0e+00`` → 0).
+
+    The record keeps its own text; this is display only.
+
+    Examples
+    --------
+    >>> trade_text("CO2: residual 1.3e-15 (tolerance 1e-03), 0.0e+00, Re = 1.47e+06")
+    'CO₂: residual 1.3 × 10⁻¹⁵ (tolerance 10⁻³), 0, Re = 1.47 × 10⁶'
+    """
     if not isinstance(text, str):
         return text
-    return re.sub(r"\bCO2\b", "CO₂", text)
+    return _E_NOTATION.sub(_powers_of_ten, re.sub(r"\bCO2\b", "CO₂", text))
 
 
 def _show_entry(entry, key, calc, system, basis, label, equation="", trim=False):
@@ -526,6 +547,7 @@ def display_record(record):
             step["substituted"] = f"{step.get('substituted', '')} (in SI: the equation's constant is for SI units)"
         elif system == "US":
             step["substituted"] = us_text(step.get("substituted", ""))
+        step["substituted"] = trade_text(step.get("substituted", ""))
     for check in shown.get("checks", []):
         check["name"] = trade_text(us_label(check.get("name")) if system == "US" else check.get("name"))
         check["detail"] = trade_text(us_text(check.get("detail")) if system == "US" else check.get("detail"))
