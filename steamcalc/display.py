@@ -381,6 +381,14 @@ def us_text(text):
 
 # --- the record as shown -----------------------------------------------------------------------
 
+def _difference_inputs(calc):
+    if calc is None:
+        return set()
+    from .calcs.base import input_fields
+
+    return {f.name for f in input_fields(calc.Inputs) if f.metadata["kind"] == "pressure_difference"}
+
+
 def _input_labels(calc):
     if calc is None:
         return {}
@@ -527,13 +535,15 @@ def display_record(record):
     calc = _calculation(record)
     labels = _input_labels(calc)
     shown = copy.deepcopy(record)
+    differences = {"inputs": _difference_inputs(calc),
+                   "results": set(getattr(calc, "PRESSURE_DIFFERENCE_RESULTS", ()))}
     for section in ("inputs", "results"):
         for key, entry in shown.get(section, {}).items():
             if not isinstance(entry, dict):
                 continue
             label = entry.get("label") or labels.get(key) or words(key)
-            _show_entry(entry, key, calc, system, pressure_basis(record, section, key), label,
-                        trim=section == "inputs")
+            basis = "difference" if key in differences[section] else "absolute"
+            _show_entry(entry, key, calc, system, basis, label, trim=section == "inputs")
     for step in shown.get("steps", []):
         value = step.get("value") if isinstance(step.get("value"), dict) else {"value": step.get("value"), "unit": ""}
         label = step.get("label", "")
