@@ -545,6 +545,8 @@ def display_record(record):
             basis = "difference" if key in differences[section] else "absolute"
             _show_entry(entry, key, calc, system, basis, label, trim=section == "inputs")
     for step in shown.get("steps", []):
+        if not isinstance(step, dict):
+            continue
         value = step.get("value") if isinstance(step.get("value"), dict) else {"value": step.get("value"), "unit": ""}
         label = step.get("label", "")
         # A step whose equation holds a constant for SI units is shown wholly in SI, where it holds.
@@ -559,6 +561,8 @@ def display_record(record):
             step["substituted"] = us_text(step.get("substituted", ""))
         step["substituted"] = trade_text(step.get("substituted", ""))
     for check in shown.get("checks", []):
+        if not isinstance(check, dict):
+            continue
         check["name"] = trade_text(us_label(check.get("name")) if system == "US" else check.get("name"))
         check["detail"] = trade_text(us_text(check.get("detail")) if system == "US" else check.get("detail"))
     shown["assumptions"] = [trade_text(nps_text(a) if system == "US" else a) for a in shown.get("assumptions", [])]
