@@ -330,10 +330,11 @@ def _verify(args):
         if outcome.error:
             _say(f"  reproduction: NOT POSSIBLE - {outcome.error}")
         else:
-            _say(format_comparisons(outcome.comparisons))
+            _say(format_comparisons(outcome.comparisons, record))
             largest = outcome.largest_difference
             if largest is not None:
-                _say(f"  largest relative difference: {largest.rel_diff:.1e} ({largest.key})")
+                from .display import result_label
+                _say(f"  largest relative difference: {largest.rel_diff:.1e} ({result_label(record, largest.key)})")
             for note in outcome.notes:
                 _say(f"  note: {note}")
             for change in outcome.check_changes:
@@ -348,21 +349,12 @@ def _verify(args):
     return worst
 
 
-def format_comparisons(comparisons):
-    """The per-result table of a verification, as text."""
+def format_comparisons(comparisons, record=None):
+    """The per-result table of a verification, as text (laid out by :func:`steamcalc.display.verify_table`)."""
+    from .display import verify_table
     from .review import ABSOLUTE_TOLERANCE, RELATIVE_TOLERANCE
 
-    width = max((len(c.key) for c in comparisons), default=10)
-    lines = [f"  {'result':<{width}}  {'recorded':>14}  {'recomputed':>14}  {'abs. diff':>9}  {'rel. diff':>9}  "
-             f"{'tolerance':>9}  verdict"]
-    for c in comparisons:
-        absolute = "" if c.abs_diff is None else f"{c.abs_diff:.1e}"
-        relative = "" if c.rel_diff is None else f"{c.rel_diff:.1e}"
-        tolerance = f"{RELATIVE_TOLERANCE:.0e}" if c.abs_diff is not None else "exact"
-        lines.append(f"  {c.key:<{width}}  {_cell(c.recorded):>14}  {_cell(c.recomputed):>14}  {absolute:>9}  "
-                     f"{relative:>9}  {tolerance:>9}  {c.verdict}")
-    lines.append(f"  (tolerance: relative {RELATIVE_TOLERANCE:.0e}, or {ABSOLUTE_TOLERANCE:.0e} absolute near zero)")
-    return "\n".join(lines)
+    return verify_table(comparisons, record, RELATIVE_TOLERANCE, ABSOLUTE_TOLERANCE)
 
 
 def _cell(value):

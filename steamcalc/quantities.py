@@ -94,22 +94,23 @@ QUANTITY_BOUNDS = {
     "time": (1e-3, 1e7),
 }
 
+#: Examples in error messages and placeholders, in the spelling people write (all of them are read).
 _EXAMPLES = {
     "pressure": "'16 bar(g)' or '17 bar(a)'",
     "pressure_difference": "'0.3 bar'",
-    "temperature": "'230 degC'",
+    "temperature": "'230 °C'",
     "temperature_difference": "'10 K'",
     "mass_flow": "'4.5 t/h' or '1.25 kg/s'",
     "length": "'180 m'",
     "dimensionless": "'10 %'",
     "velocity": "'0.07 m/s'",
-    "flow_coefficient": "'40 m^3/h'",
-    "specific_heat": "'3.9 kJ/(kg K)'",
-    "heat_transfer_coefficient": "'1.8 kW/(m^2 K)'",
-    "fouling_resistance": "'0.1 m^2 K/kW'",
-    "area": "'2.6 m^2'",
-    "volume_flow": "'12 m^3/h'",
-    "density": "'1030 kg/m^3'",
+    "flow_coefficient": "'40 m³/h'",
+    "specific_heat": "'3.9 kJ/(kg·K)'",
+    "heat_transfer_coefficient": "'1.8 kW/(m²·K)'",
+    "fouling_resistance": "'0.1 m²·K/kW'",
+    "area": "'2.6 m²'",
+    "volume_flow": "'12 m³/h'",
+    "density": "'1030 kg/m³'",
     "time": "'1 min' or '60 s'",
 }
 
@@ -297,6 +298,80 @@ def _finite_number(number_text, text, field):
     return value
 
 
+# Unit spellings people write, turned into what pint reads. Symbols glued together the way the
+# trade writes them ("m2K", "kgK") are split; a slash is read as dividing by everything after it
+# ("W/m²K" is W/(m²·K), as written on data sheets), where pint alone would read W·K/m².
+_SUPERSCRIPTS = {"²": "^2", "³": "^3", "⁴": "^4", "·": "*", "⋅": "*", "×": "*"}
+_WORDS = ((re.compile(r"(?:°\s*C|℃|\bdeg\.?\s+C\b|\bdegree_Celsius\b|\bcelsius\b)"), "degC"),
+          (re.compile(r"(?:°\s*F|℉|\bdeg\.?\s+F\b|\bdegree_Fahrenheit\b|\bfahrenheit\b)"), "degF"))
+_GLUED_EXPONENT = re.compile(r"(?<=[A-Za-z])([1-4])(?![0-9.])")
+_EXPONENT_THEN_NAME = re.compile(r"(\^[1-4])(?=[A-Za-z°])")
+_GLUED_KG = re.compile(r"\bkg(?=(?:K|degC|degF)\b)")
+_NAME = re.compile(r"[A-Za-z_°µ%][A-Za-z0-9_°µ]*")
+#: Names a unit library reads as something else than the trade means: C is the coulomb, F the farad.
+_MISREAD = {"C": ("a coulomb", "°C (or degC)"), "F": ("a farad", "°F (or degF)")}
+
+
+def unit_spelling(unit, field=None, text=None):
+    """A unit as people write it, in the spelling pint reads; the one place spellings are mapped.
+
+    Accepted: superscripts (``m³/h``, ``kW/(m²·K)``), glued exponents (``m3/h``, ``kW/m2K``),
+    ``°C``/``℃``/``deg C`` for ``degC``, and a slash that divides by all that follows it
+    (``W/m²K`` is W/(m²·K)). A bare ``C`` or ``F`` (the coulomb and the farad to pint) is refused
+    with a fix. Inside a compound unit a temperature unit is a difference (``kJ/(kg·°C)``).
+
+    Parameters
+    ----------
+    unit : str
+        The unit part of a quantity string.
+    field, text : str, optional
+        The input and its whole text, for the error message.
+
+    Returns
+    -------
+    str
+        A unit string for pint.
+
+    References
+    ----------
+    BIPM SI Brochure (9th ed., 2019), 5.4 (writing unit symbols; a solidus divides by what follows
+    it, brackets where ambiguous); the glued spellings are common practice on data sheets.
+
+    Examples
+    --------
+    >>> unit_spelling("m³/h"), unit_spelling("m3/h"), unit_spelling("kW/m2K")
+    ('m^3/h', 'm^3/h', 'kW/(m^2*K)')
+    >>> unit_spelling("W/m²K"), unit_spelling("kW/(m^2 K)"), unit_spelling("°C")
+    ('W/(m^2*K)', 'kW/(m^2 K)', 'degC')
+    >>> unit_spelling("kJ/kg°C"), unit_spelling("m²·K/kW")
+    ('kJ/(kg*delta_degC)', 'm^2*K/kW')
+    """
+    for symbol, plain in _SUPERSCRIPTS.items():
+        unit = unit.replace(symbol, plain)
+    for pattern, name in _WORDS:
+        unit = pattern.sub(name, unit)
+    unit = _GLUED_EXPONENT.sub(r"^\1", unit)
+    unit = _EXPONENT_THEN_NAME.sub(r"\1*", unit)
+    unit = _GLUED_KG.sub("kg*", unit).strip()
+    names = _NAME.findall(unit)
+    for name in names:
+        if name in _MISREAD:
+            what, fix = _MISREAD[name]
+            raise UnitError(f"'{name}' alone is {what} to a unit library, not a temperature unit", field=field,
+                            value=text if text is not None else unit,
+                            fix=f"write {fix}" + (f", e.g. '{re.sub(rf'(?<![A-Za-z_]){name}(?![A-Za-z0-9_])', fix.split()[0], text)}'"
+                                                  if text else ""))
+    if len(names) > 1:
+        # A temperature inside a compound unit (kJ/(kg·°C), W/(m²·°C)) is a temperature difference.
+        unit = re.sub(r"\bdeg([CF])\b", r"delta_deg\1", unit)
+    if unit.count("/") == 1 and "(" not in unit:
+        numerator, denominator = unit.split("/")
+        factors = [f for f in re.split(r"[\s*]+", denominator.strip()) if f]
+        if len(factors) > 1:
+            unit = f"{numerator.strip()}/({'*'.join(factors)})"
+    return unit
+
+
 def _literal_split(text, field, example):
     # The one place a quantity string is split: a number, then a plain unit; no arithmetic.
     if len(text) > MAX_QUANTITY_TEXT:
@@ -307,6 +382,9 @@ def _literal_split(text, field, example):
         raise UnitError(f"'{text}' is not a number followed by a unit", field=field, value=text,
                         fix=f"e.g. {example}")
     number, unit = _finite_number(split.group(1), text, field), split.group(2)
+    if unit:
+        spelt = unit_spelling(unit, field, text)
+        unit = spelt if is_plain_unit(spelt) else unit
     if unit and not is_plain_unit(unit):
         raise UnitError(f"'{text}' is not a number followed by a unit (no arithmetic or powers of numbers)",
                         field=field, value=text, fix=f"write the value worked out, e.g. {example}")
@@ -384,14 +462,15 @@ def parse_quantity(text, field, kind):
             "a quantity needs a unit", field=field, value=text,
             fix=f"write it as a string with its unit, e.g. {example}",
         )
-    text = text.replace("°C", "degC").replace("°F", "degF").replace("℃", "degC")
     number, unit, number_text = _literal_split(text, field, example)
     if not unit:
         raise UnitError(f"'{text}' has no unit", field=field, value=text, fix=f"e.g. {example}")
     if kind == "temperature_difference" and unit in _OFFSET_UNITS:
         raise UnitError(
             f"'{text}' is a temperature, but {field} is a temperature difference",
-            field=field, value=text, fix=f"write '{number_text} K' or '{number_text} delta_degC'",
+            field=field, value=text,
+            fix=f"write '{number_text} K' (a difference of 1 °C is 1 K)" if "C" in unit else
+            f"write it in kelvin, '{number * 5 / 9:.4g} K' (a difference of 1 °F is 5/9 K)",
         )
     try:
         quantity = Q_(number, unit)

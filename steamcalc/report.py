@@ -15,39 +15,30 @@ import jinja2
 
 from .record import record_stem
 
-_UNIT_NAMES = {"degC": "°C", "kJ/(kg*K)": "kJ/(kg·K)", "": ""}
-
-
-def format_number(value):
-    """A result value as a report shows it: 5 significant digits, thousands kept whole.
+def format_number(value, unit=""):
+    """A value as a report shows it (the rules are :func:`steamcalc.display.format_number`).
 
     Examples
     --------
-    >>> format_number(196.23456), format_number(4500.0), format_number(0.987654)
-    ('196.23', '4500', '0.98765')
+    >>> format_number(196.23456, "degC"), format_number(4500.0), format_number(0.987654)
+    ('196.2', '4,500', '0.9877')
     """
-    if value is None:
-        return "—"
-    if isinstance(value, bool) or not isinstance(value, (int, float)):
-        return str(value)
-    if abs(value) >= 1e5:
-        return f"{value:,.0f}"
-    return f"{value:.5g}"
+    from .display import format_number as rule
+
+    return rule(value, unit)
 
 
 def format_unit(unit, basis="absolute"):
-    """A unit string for people: °C for degC; a pressure with its basis, bar(a) or bar difference.
+    """A unit string for people (the rules are :func:`steamcalc.display.unit_label`).
 
     Examples
     --------
-    >>> format_unit("bar"), format_unit("bar", "difference"), format_unit("m**3/h")
-    ('bar(a)', 'bar difference', 'm³/h')
+    >>> format_unit("bar"), format_unit("bar", "difference"), format_unit("m**3/h"), format_unit("percent")
+    ('bar(a)', 'bar difference', 'm³/h', '%')
     """
     from .display import unit_label
 
-    if unit == "percent":
-        return "%"
-    return _UNIT_NAMES.get(unit, unit_label(unit, basis)).replace("**2", "²").replace("**3", "³").replace("*", "·")
+    return unit_label(unit, basis)
 
 
 # Characters Markdown gives a meaning inline (emphasis, code, links, images, raw HTML, tables,
@@ -93,11 +84,9 @@ def _environment(autoescape):
 
 def _context(record):
     from .calcs import get_calculation
-
-    from .display import display_record
+    from .display import display_record, pressure_basis
 
     calc = get_calculation(record["kind"])
-    from .display import pressure_basis
 
     def basis(section, key):
         return pressure_basis(record, section, key)

@@ -95,7 +95,7 @@ def test_water_credit_on_the_flash_steam_by_hand(hours, cost, source):
     assert r.value("annual_water_cost_saving") == pytest.approx(volume * cost, rel=1e-4)
     assert r.value("annual_total_saving") == pytest.approx(
         r.value("annual_cost_saving") + r.value("annual_water_cost_saving"), rel=1e-12)
-    assert any("water_cost" in a and "residual condensate" in a for a in r.assumptions)
+    assert any("make-up water cost" in a and "residual condensate" in a for a in r.assumptions)
 
 
 def test_water_in_another_currency_gives_no_total_and_says_so():

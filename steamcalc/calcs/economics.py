@@ -119,9 +119,9 @@ def fuel_basis_assumption(site):
     'Fuel energy on the net calorific value (NCV, lower heating v'
     """
     basis = fuel_basis(site)
-    stated = ("as the site file states (fuel_basis)" if site.fuel_basis else
-              f"the default, as the site file does not state fuel_basis; set fuel_basis = \"{basis}\" or "
-              "\"net\" to confirm")
+    stated = ("as the site file states" if site.fuel_basis else
+              f"the default, as the site file does not state the fuel basis; write fuel_basis = \"{basis}\" "
+              "(or \"net\") in the site file to confirm")
     return (f"Fuel energy on the {_BASIS_NAMES[basis]} basis, {stated}: the fuel price, the boiler efficiency "
             "and the emission factor are all read as per MWh of fuel on that basis; a figure quoted on the "
             "other basis must be converted first (natural gas GCV/NCV ≈ 1.11, from memory)")

@@ -36,6 +36,8 @@ WORKBOOK = "exchanger_duty.ipynb"
 PRESSURE_DIFFERENCE_RESULTS = ("trap_static_head_pressure", "lift_head_pressure", "required_pumping_differential",
                                "pump_motive_excess")
 UNCERTAINTY_RESULTS = ("duty", "steam_flow", "required_area", "area_margin", "stall_load_fraction")
+#: Plain fractions shown in % (display only; records keep the fraction).
+PERCENT_VALUES = ("area_margin", "stall_load_fraction", "stall_load_fraction_fouled", "heat_loss")
 
 #: Smallest temperature approach (steam saturation to process outlet) held without a warning, K
 #: (common practice: below about 5 K control is sluggish and the area grows fast).
@@ -59,30 +61,30 @@ class Inputs:
         "pressure", "Steam pressure", "Steam pressure in the exchanger's steam space at design load.",
         example="header:MP", required=True)
     process_inlet_temperature: float = input_field(
-        "temperature", "Process inlet temperature", "Process liquid entering.", example="55 degC",
+        "temperature", "Process inlet temperature", "Process liquid entering.", example="55 °C",
         required=True)
     process_outlet_temperature: float = input_field(
-        "temperature", "Process outlet temperature", "Process liquid leaving.", example="85 degC",
+        "temperature", "Process outlet temperature", "Process liquid leaving.", example="85 °C",
         required=True)
     process_flow: float | None = input_field(
         "mass_flow", "Process flow", "Mass flow of the process liquid (or give process_volume_flow).",
         example="12 t/h", positive=True)
     process_volume_flow: float | None = input_field(
         "volume_flow", "Process volume flow", "Volume flow of the process liquid, in place of process_flow.",
-        example="12 m^3/h", positive=True)
+        example="12 m³/h", positive=True)
     process_density: float | None = input_field(
         "density", "Process density", "Density for a volume flow (water: from IF97 at the inlet).",
-        example="1030 kg/m^3", positive=True)
+        example="1030 kg/m³", positive=True)
     process_fluid: str | None = input_field(
         "text", "Process fluid", "'water' (IF97 properties) unless process_cp is given.", example="water")
     process_cp: float | None = input_field(
         "specific_heat", "Process specific heat", "Mean specific heat of a process liquid other than water.",
-        example="3.9 kJ/(kg K)", positive=True)
+        example="3.9 kJ/(kg·K)", positive=True)
     process_pressure: float | None = input_field(
         "pressure", "Process pressure", "Process-side pressure (for water properties; default well above "
         "boiling).", example="4 bar(g)")
     steam_temperature: float | None = input_field(
-        "temperature", "Steam temperature", "Superheated steam temperature (else saturated).", example="190 degC")
+        "temperature", "Steam temperature", "Superheated steam temperature (else saturated).", example="190 °C")
     steam_dryness: float | None = input_field(
         "fraction", "Steam dryness fraction", "Dryness of wet steam (else saturated).", example="0.97",
         positive=True)
@@ -95,12 +97,12 @@ class Inputs:
         "fraction", "Heat loss", "Heat lost from the exchanger, as a fraction of the duty.", example="0.02")
     overall_u: float | None = input_field(
         "heat_transfer_coefficient", "Overall U (clean)", "Overall heat-transfer coefficient, clean.",
-        example="1.8 kW/(m^2 K)", positive=True)
+        example="1.8 kW/(m²·K)", positive=True)
     fouling_resistance: float | None = input_field(
         "fouling_resistance", "Fouling resistance", "Total fouling resistance added to 1/U.",
-        example="0.1 m^2 K/kW")
+        example="0.1 m²·K/kW")
     installed_area: float | None = input_field(
-        "area", "Installed area", "Heat-transfer area of the exchanger as installed.", example="2.6 m^2",
+        "area", "Installed area", "Heat-transfer area of the exchanger as installed.", example="2.6 m²",
         positive=True)
     condensate_back_pressure: float | None = input_field(
         "pressure", "Condensate back pressure", "Pressure the condensate drains against (trap outlet, lift, "
@@ -109,10 +111,10 @@ class Inputs:
     desuperheating_u: float | None = input_field(
         "heat_transfer_coefficient", "Desuperheating zone U (clean, dry wall)", "U of a dry-wall desuperheating "
         "zone (steam cooling as a gas); leave empty for the wet-wall basis at the overall U.",
-        example="0.1 kW/(m^2 K)", positive=True)
+        example="0.1 kW/(m²·K)", positive=True)
     subcooling_u: float | None = input_field(
         "heat_transfer_coefficient", "Subcooling zone U (clean)", "U of the condensate-subcooling zone (else the "
-        "overall U).", example="0.6 kW/(m^2 K)", positive=True)
+        "overall U).", example="0.6 kW/(m²·K)", positive=True)
     trap_static_head: float | None = input_field(
         "length", "Static head to the trap", "Height of condensate between the heater outlet and the trap inlet "
         "(trap below the outlet); adds ρ·g·H to the pressure that drains it.", example="0.5 m", section="drainage")

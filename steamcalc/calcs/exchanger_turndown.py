@@ -237,10 +237,10 @@ def _stall(inputs, duty, ua_clean, ua_fouled, basis_clean, basis_fouled, condens
         f"liquid at the design steam pressure, {condensate_density:.1f} kg/m³ (the hottest the leg can be: the "
         "least head, conservative)")
     if inputs.trap_static_head is None:
-        result.assumptions.append("No static head credited below the heater outlet (trap_static_head not given)")
+        result.assumptions.append("No static head credited below the heater outlet (the static head to the trap is not given)")
     if inputs.trap_min_differential is None:
-        result.assumptions.append("Trap minimum working differential taken as zero (trap_min_differential not "
-                                  "given); the trap maker's figure governs")
+        result.assumptions.append("Trap minimum working differential taken as zero (not given); the trap maker's "
+                                  "figure governs")
     result.add("trap_static_head_pressure", "Static head of condensate at the trap (ρ·g·H)", head_pressure / 1e3,
                "kPa")
     if drain > 0.0:

@@ -201,7 +201,7 @@ def _zone_assumptions(inputs, zones, arrangement, result):
                              "is normally far lower (common practice): check the figure")
     if "subcooling" in names and inputs.overall_u is not None:
         if inputs.subcooling_u is None:
-            result.assumptions.append("Subcooling zone at the overall (condensing) U: no subcooling_u given")
+            result.assumptions.append("Subcooling zone at the overall (condensing) U: no subcooling-zone U given")
             result.check("Subcooling zone U", "warn",
                          "the subcooling zone is sized at the condensing U; a condensate-cooling coefficient is "
                          "usually several times lower, so its area is understated: give subcooling_u "

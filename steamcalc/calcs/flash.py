@@ -27,6 +27,8 @@ TITLE = "Flash-steam recovery"
 WORKBOOK = "flash_recovery.ipynb"
 #: Results the uncertainty section gives bands and sensitivities for.
 UNCERTAINTY_RESULTS = ("flash_fraction", "flash_steam_flow", "recovered_heat_rate", "annual_cost_saving", "vessel_diameter")
+#: Plain fractions shown in % (display only; records keep the fraction).
+PERCENT_VALUES = ("flash_fraction",)
 
 CAUTIONS = (
     "Flash vessels and receivers are pressure vessels: their design, marking and inspection follow the "
@@ -54,7 +56,7 @@ class Inputs:
         required=True, positive=True)
     condensate_temperature: float | None = input_field(
         "temperature", "Condensate temperature",
-        "Leave empty for condensate saturated at its pressure; give it when subcooled.", example="170 degC")
+        "Leave empty for condensate saturated at its pressure; give it when subcooled.", example="170 °C")
     flash_pressure: float | None = input_field(
         "pressure", "Flash pressure", "Pressure of the flash vessel (a header or a pressure).", example="header:LP")
     stages: tuple | None = input_field(
@@ -343,7 +345,7 @@ def _recovered_heat(inputs, site, stages, total_flash, result):
     result.add("annual_cost_saving", f"Fuel cost a year ({when})", money, site.fuel_price.currency)
     result.add("fuel_basis", "Calorific-value basis of the fuel figures", basis)
     if site.fuel_emission_factor is not None:
-        result.add("annual_co2_avoided", "CO2 a year (avoided by recovery)", fuel * site.fuel_emission_factor / 1e3,
+        result.add("annual_co2_avoided", "CO₂ a year (avoided by recovery)", fuel * site.fuel_emission_factor / 1e3,
                    "t")
     water = _water_credit(inputs, site, total_flash, makeup, result)
     if water is not None:
@@ -376,7 +378,7 @@ def _water_credit(inputs, site, total_flash, makeup, result):
     result.add("annual_water_cost_saving", f"Make-up water and treatment cost a year ({when})", cost,
                site.water_cost.currency)
     result.assumptions.append(
-        f"Water credit at the site's water_cost of {site.water_cost} (make-up water and treatment) on the flash "
+        f"Water credit at the site's make-up water cost of {site.water_cost} (make-up water and treatment) on the flash "
         "steam's mass: vented it is lost and made up, used it displaces boiler steam; the residual condensate "
         "is taken as returned either way and earns no credit")
     return cost

@@ -51,8 +51,8 @@ def vessel_assumptions(inputs):
     if inputs.residence_time is None:
         lines.append(f"Liquid residence time {DEFAULT_RESIDENCE_TIME / 60:g} min on the residual condensate, for a "
                      "vessel drained continuously by a trap or level control (common practice: the low end of "
-                     "the 1–3 min usual for vertical gas–liquid separators, from memory; not given — set "
-                     "[inputs.vessel] residence_time)")
+                     "the 1–3 min usual for vertical gas–liquid separators, from memory; not given: give the "
+                     "vessel's residence time to change it)")
     lines.extend([
         "Vessel diameter is the largest of: the Souders–Brown vapour area; the liquid hold-up in a liquid "
         f"section no deeper than {MAX_HOLDUP_DEPTH_TO_DIAMETER:g} × the diameter (common practice); and "

@@ -28,6 +28,8 @@ TITLE = "Pressure let-down station"
 WORKBOOK = "letdown.ipynb"
 #: Results the uncertainty section gives bands and sensitivities for.
 UNCERTAINTY_RESULTS = ("outlet_temperature", "outlet_superheat", "throttled_temperature", "spray_water_flow", "valve_kv", "recoverable_power")
+#: Plain fractions shown in % (display only; records keep the fraction).
+PERCENT_VALUES = ("overpressure", "isentropic_efficiency", "generator_efficiency")
 
 #: Results that hold a pressure difference (shown as "bar difference", not bar(a)).
 PRESSURE_DIFFERENCE_RESULTS = tuple(
@@ -73,7 +75,7 @@ class Inputs:
         positive=True)
     inlet_temperature: float | None = input_field(
         "temperature", "Inlet temperature", "Inlet steam temperature (superheated steam).",
-        example="230 degC")
+        example="230 °C")
     inlet_superheat: float | None = input_field(
         "temperature_difference", "Inlet superheat", "Inlet temperature above saturation.",
         example="25 K")
@@ -85,10 +87,10 @@ class Inputs:
         example="10 K", section="desuperheater")
     target_temperature: float | None = input_field(
         "temperature", "Target temperature", "Desuperheated steam temperature.",
-        example="150 degC", section="desuperheater")
+        example="150 °C", section="desuperheater")
     water_temperature: float | None = input_field(
         "temperature", "Spray water temperature", "Temperature of the spray water at the nozzle.",
-        example="105 degC", section="desuperheater")
+        example="105 °C", section="desuperheater")
     water_pressure: float | None = input_field(
         "pressure", "Spray water pressure", "Pressure of the spray water at the nozzle.",
         example="20 bar(g)", section="desuperheater")
@@ -118,7 +120,7 @@ class Inputs:
     fd: float | None = input_field(
         "number", "Fd", "Valve style modifier (maker's data).", example="1.0", section="valve")
     rated_kv: float | None = input_field(
-        "flow_coefficient", "Rated Kv (Kvs)", "Kv of the selected valve at full travel.", example="40 m^3/h",
+        "flow_coefficient", "Rated Kv (Kvs)", "Kv of the selected valve at full travel.", example="40 m³/h",
         section="valve", positive=True)
     characteristic: str | None = input_field(
         "text", "Characteristic", "Inherent characteristic: equal-percentage or linear.",
@@ -135,7 +137,7 @@ class Inputs:
         "flow is sized at it.", example="15 bar(g)", section="valve")
     bypass_kv: float | None = input_field(
         "flow_coefficient", "Bypass valve Kv", "Kv of the hand bypass valve wide open (for the relief load).",
-        example="25 m^3/h", section="valve", positive=True)
+        example="25 m³/h", section="valve", positive=True)
     relief_set_pressure: float | None = input_field(
         "pressure", "Downstream relief set pressure (superseded)", "Superseded by [inputs.relief] set_pressure; "
         "still read, with a warning.", example="4.5 bar(g)", section="valve")
@@ -210,7 +212,7 @@ class Inputs:
         section="downstream")
     design_temperature: float | None = input_field(
         "temperature", "Downstream design temperature", "Design temperature of the downstream system.",
-        example="180 degC", section="downstream")
+        example="180 °C", section="downstream")
     isentropic_efficiency: float | None = input_field(
         "fraction", "Turbine isentropic efficiency", "Of a back-pressure turbine in place of the valve.",
         example="0.55", section="turbine", positive=True)

@@ -153,7 +153,7 @@ def _exhaust(inputs, inlet, isentropic, efficiency, result):
     h_exhaust = turbine_exhaust_enthalpy(inlet.enthalpy, isentropic.enthalpy, efficiency)
     exhaust = SteamState.from_ph(inputs.outlet_pressure, h_exhaust)
     result.step("Turbine exhaust enthalpy", "h_e = h1 − η_s·Δh_s",
-                f"h_e = {inlet.enthalpy / 1e3:.2f} − {efficiency:g} × "
+                f"h_e = {inlet.enthalpy / 1e3:.2f} kJ/kg − {efficiency:g} × "
                 f"{(inlet.enthalpy - isentropic.enthalpy) / 1e3:.2f} kJ/kg", h_exhaust / 1e3, "kJ/kg")
     result.add("turbine_exhaust_temperature", "Turbine exhaust temperature", exhaust.temperature - 273.15, "degC")
     dryness = 1.0 if exhaust.dryness is None else exhaust.dryness
