@@ -108,7 +108,7 @@ def test_fractions_the_trade_states_in_percent(records):
         ("7.4", "%")
     heater = display_record(load_record(records["SI"] / "HX-01_revA.json"))
     assert heater["results"]["area_margin"]["shown_unit"] == "%"
-    assert heater["results"]["stall_load_fraction"]["shown"] == "51.7"
+    assert heater["results"]["stall_load_fraction"]["shown"] == "58.4"
     letdown = display_record(load_record(records["SI"] / "LD-01_revA.json"))
     assert letdown["results"]["valve_travel"]["shown"] == "74.6" and letdown["inputs"]["overpressure"]["shown"] == "10"
     assert letdown["results"]["choked"]["shown"] == "yes"

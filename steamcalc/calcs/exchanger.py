@@ -135,7 +135,7 @@ class Inputs:
         example="0.70", section="control_valve", positive=True, key="xt")
     control_valve_rated_kv: float | None = input_field(
         "flow_coefficient", "Control valve rated Kv (Kvs)", "Kv of the selected valve at full travel.",
-        example="16 m^3/h", section="control_valve", positive=True, key="rated_kv")
+        example="16 m³/h", section="control_valve", positive=True, key="rated_kv")
     control_valve_characteristic: str | None = input_field(
         "text", "Control valve characteristic", "Inherent characteristic: equal-percentage or linear.",
         example="equal-percentage", section="control_valve", key="characteristic")

@@ -362,10 +362,11 @@ def _condensate_removal(inputs, steam_side, inlet_enthalpy, clean, minimum, cond
     lowest = clean[minimum]
     differential = pumping_differential(back, lift, rho_lift, lowest, head, condensate_density)
     result.assumptions.append(
-        "Pumping differential: Δp_pump = p_back + ρ_l·g·H_lift − p_s − ρ_c·g·H_static, reported in bar difference "
+        "Pumping differential: the back pressure plus the lift head (ρ·g·H of the lifted condensate) less the "
+        "steam-space pressure and the static head of condensate above the trap, reported in bar difference "
         "(positive: a pump or pump-trap must add it; zero or negative: the steam space drains unaided), at the "
         f"lowest steam-side pressure of the turndown ({minimum:.0%} load, clean U) and without a vacuum breaker; "
-        f"ρ_l of saturated liquid at the back pressure, {rho_lift:.1f} kg/m³; the trap's own minimum differential "
+        f"the lifted condensate's density that of saturated liquid at the back pressure, {rho_lift:.1f} kg/m³; the trap's own minimum differential "
         "is left to the pump-trap maker's filling-head data")
     result.step("Pressure difference a pump must provide (at the minimum load, clean U)",
                 "Δp_pump = p_back + ρ_l·g·H_lift − p_s − ρ_c·g·H_static",

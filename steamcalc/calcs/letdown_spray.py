@@ -44,7 +44,7 @@ _FIELDS = {
         "(maker's data; default 0.90).", example="0.90"),
     "spray_valve_rated_kv": dict(
         kind="flow_coefficient", label="Spray valve rated Kv (Kvs)", help="Kv of the selected spray-water valve "
-        "at full travel.", example="0.25 m^3/h", positive=True),
+        "at full travel.", example="0.25 m³/h", positive=True),
     "spray_valve_characteristic": dict(
         kind="text", label="Spray valve characteristic", help="Inherent characteristic of the spray-water valve: "
         "equal-percentage or linear.", example="equal-percentage"),
