@@ -92,10 +92,15 @@ class CaseForm:
             help_text = self.words.text(meta["help"]) + (header_note if meta["kind"] == "pressure" else "")
             alternative = self.alternative_note(f.name)
             tooltip = help_text + (f" {alternative}" if alternative else "")
+            # The label is a widget of its own so that the box too carries the tooltip (a Text with a
+            # description puts it on the label only).
+            label = widgets.HTML(f"<label class='steamcalc-label' title='{html.escape(tooltip, quote=True)}' "
+                                 f"style='display:block;text-align:right;padding-right:8px'>"
+                                 f"{html.escape(meta['label'])}</label>", layout=widgets.Layout(width=_LABEL_WIDTH))
+            label.add_class(f"steamcalc-label-{f.name}")
             box = widgets.Text(
                 value="" if raw is None else str(raw), placeholder=f"e.g. {meta['example']}",
-                description=meta["label"], tooltip=tooltip, continuous_update=False,
-                style={"description_width": _LABEL_WIDTH}, layout=widgets.Layout(width="34em"),
+                tooltip=tooltip, continuous_update=False, layout=widgets.Layout(width="19em"),
             )
             box.add_class("steamcalc-input")
             box.add_class(f"steamcalc-input-{f.name}")
@@ -111,7 +116,7 @@ class CaseForm:
             described.add_class(HELP_CLASS)
             described.add_class(f"{HELP_CLASS}-{f.name}")
             self.help[f.name] = described
-            row = [box]
+            row = [label, box]
             if meta["kind"] in _DIFFERENCE_KINDS:
                 tol = tolerances.get(f.name, "")
                 tolerance = widgets.Text(value="" if tol is None else str(tol), placeholder="± tolerance",

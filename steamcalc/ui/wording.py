@@ -100,7 +100,8 @@ class FormWords:
         The field is not named (the message stands beside its box); the file is not named (the
         form is the source).
         """
-        parts = [self.text(exc.message)]
+        message = self.text(exc.message)
+        parts = [message if message.endswith((".", ":", "!", "?")) or not exc.fix else message + "."]
         if exc.value is not None and f"{exc.value!r}" not in exc.message:
             parts.append(f"(given: {exc.value!r})")
         if exc.limits is not None:

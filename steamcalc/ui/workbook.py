@@ -447,9 +447,14 @@ class _SummaryView(widgets.HTML):
 
     def refresh(self):
         text = self._text()
-        refused = text.startswith("INPUT NOT ACCEPTED")
-        style = "color:#a3201b;" if refused else ""
-        self.value = _STALE_STYLE + f"<pre style='{style}white-space:pre-wrap;margin:0'>{html.escape(text)}</pre>"
+        head = ""
+        if text.startswith("INPUT NOT ACCEPTED"):
+            refusal, _, text = text.partition("\n\n")
+            head = (f"<div class='steamcalc-refused' style='color:#a3201b;font-weight:bold;border-left:4px solid "
+                    f"#a3201b;padding:2px 8px;white-space:pre-wrap'>{html.escape(refusal)}</div>")
+        style = "color:#888;" if head else ""
+        self.value = (_STALE_STYLE + head +
+                      f"<pre style='{style}white-space:pre-wrap;margin:0'>{html.escape(text)}</pre>")
 
     def _repr_mimebundle_(self, **kwargs):
         bundle = super()._repr_mimebundle_(**kwargs)
