@@ -151,7 +151,9 @@ def test_letdown_help_alternatives_bands_computing_and_save_feedback(lab, browse
     assert "computing…" in _text(page, ".steamcalc-bands")
     page.screenshot(path=str(shots / "15-14-bands-computing.png"))
     _wait_text(page, ".steamcalc-bands", "coverage interval", timeout=180_000)
-    assert not button.is_disabled() and "Compute bands" in button.inner_text()
+    page.wait_for_function("sel => { const b = document.querySelector(sel); return b && !b.disabled; }",
+                           arg=f"{PANEL} .steamcalc-bands-button", timeout=30_000)
+    assert "Compute bands" in button.inner_text()
 
     # 14: Save again with the same inputs (the run already saved them): "unchanged, kept", with links.
     save = page.locator(f"{PANEL} .steamcalc-save").first
@@ -229,10 +231,10 @@ def test_review_compare_non_record_file_and_failed_verdict(lab, browser):
     _pick(page, "LD-01_revB.json")
     _wait_text(page, ".steamcalc-review-table", "LD-01 rev B")
     _wait_text(page, ".steamcalc-comparison", "rev A → rev B")
-    options = compare.locator("option").all_inner_texts()
+    options = [o.replace("\xa0", " ") for o in compare.locator("option").all_inner_texts()]  # a Dropdown writes nbsp
     assert [o.split("(")[0].strip() for o in options if o.startswith("LD-01")] == ["LD-01 rev A", "LD-01 rev A"]
     assert not any("rev B" in o or "LD-02" in o for o in options), options
-    assert "LD-01_revA.json" in compare.evaluate("s => s.options[s.selectedIndex].text")
+    assert "LD-01_revA.json" in compare.evaluate("s => s.options[s.selectedIndex].text").replace("\xa0", " ")
     table = _text(page, ".steamcalc-comparison")
     assert "Steam flow\t4500\t5000\tkg/h\t500" in table          # an increase shows as a positive change
     page.locator(f"{PANEL} .steamcalc-comparison").first.scroll_into_view_if_needed()

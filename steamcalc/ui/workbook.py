@@ -229,6 +229,7 @@ class Workbook:
         description, before = button.description, self._bands.value
         button.disabled, button.description = True, "computing…"
         button.add_class("steamcalc-computing")
+        self._tornado.outputs = ()
         self._bands.value = ("<div class='steamcalc-computing-note'><i>computing… the Monte Carlo bands "
                              f"({self._settings.get('samples', 'the default number of')} samples) and the "
                              "sensitivity; this takes a few seconds.</i></div>")
