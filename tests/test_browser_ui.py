@@ -237,7 +237,7 @@ def test_review_compare_non_record_file_and_failed_verdict(lab, browser):
     assert "LD-01_revA.json" in compare.evaluate("s => s.options[s.selectedIndex].text").replace("\xa0", " ")
     table = _text(page, ".steamcalc-comparison")
     assert "Steam flow\t4500\t5000\tkg/h\t500" in table          # an increase shows as a positive change
-    page.locator(f"{PANEL} .steamcalc-comparison").first.scroll_into_view_if_needed()
+    compare.evaluate("e => e.scrollIntoView({block: 'start'})")
     page.screenshot(path=str(shots / "15-1-compare.png"))
     _pick(page, "LD-02_revA.json")
     _wait_text(page, ".steamcalc-comparison", "No earlier revision of LD-02")
@@ -258,6 +258,7 @@ def test_review_compare_non_record_file_and_failed_verdict(lab, browser):
     assert "FAILED" in verdict.inner_text()
     assert page.evaluate("e => getComputedStyle(e).backgroundColor", verdict.element_handle()) == "rgb(163, 32, 27)"
     assert page.locator(f"{PANEL} .steamcalc-verdict-verified").count() == 0
+    assert "verdict: FAILED" in _text(page, ".steamcalc-review-summary")    # the summary at the top follows
     verdict.scroll_into_view_if_needed()
     page.screenshot(path=str(shots / "15-14-verdict-failed.png"))
     _no_tracebacks(page)

@@ -16,7 +16,7 @@ from ..report import RENDERERS, format_number, format_unit
 from ..review import verify_record
 from ..runner import record_for_case_file
 from ..signoff import diff_records, sign_record
-from .workbook import _file_link
+from .workbook import _file_link, _SummaryView
 from .workbook import _install_error_display  # noqa: F401  (bad input shows as a message in any workbook)
 
 
@@ -71,6 +71,8 @@ class ReviewBook:
         self._cross_button.on_click(lambda _: self._on_cross_check())
         self._cross_status = widgets.HTML()
         self._cross_status.add_class("steamcalc-cross-check")
+        self._summary = _SummaryView(self.summary, lambda text: f"<p>{_summary_html(text)}</p>")
+        self._summary.add_class("steamcalc-review-summary")
         self._show()
 
     @classmethod
@@ -177,6 +179,7 @@ class ReviewBook:
             for c in o.comparisons)
         checks = "".join(f"<li><b>{c['status'].upper()}</b> {html.escape(c['name'])}: {html.escape(c['detail'])}</li>"
                          for c in self.record.get("checks", []))
+        self._summary.refresh()
         self._table.value = (f"<p>{_summary_html(self.summary())}</p>"
                              f"<table><tr><th>result</th><th>recorded</th><th>recomputed</th><th>unit</th>"
                              f"<th>rel. diff</th><th>verdict</th></tr>{rows}</table><h4>Checks</h4><ul>{checks}</ul>")
@@ -332,6 +335,10 @@ class ReviewBook:
         return f"signed by {signed['checked_by']} on {signed['signoff']['date']}: {self.path}"
 
     # -- views -------------------------------------------------------------------------
+    def summary_view(self):
+        """The verification summary of the picked record, following every pick and sign-off (plain text headless)."""
+        return self._summary
+
     def verification_view(self):
         return widgets.VBox([widgets.HBox([self._picker, self._pick_status]), self._table, self._cross_button,
                              self._cross_status])

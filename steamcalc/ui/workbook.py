@@ -417,15 +417,15 @@ class Workbook:
         if status == "refused":
             self._save_status.value = f"<span style='color:#a3201b'><b>{html.escape(text)}</b></span>"
             return
+        name = f"{html.escape(self.record['id'])} rev {html.escape(self.record['revision'])}"
         if status == "written":
-            head = "<b style='color:#2f6b3a'>&#10004; New record saved</b>:"
+            head = f"<b style='color:#2f6b3a'>&#10004; New record saved</b>: {name}"
         else:
-            head = ("<b style='color:#1d4f91'>&#8635; Unchanged, kept</b>: this record was already saved with these "
-                    "same inputs and results, so the file was left as it is:")
+            head = (f"<b style='color:#1d4f91'>&#8635; Unchanged, kept</b>: {name} is already saved with these same "
+                    "inputs and results; its files are left as they are")
         links = ", ".join(_file_link(p) for p in paths)
         self._save_status.value = (f"<div style='border-left:4px solid {'#2f6b3a' if status == 'written' else '#1d4f91'};"
-                                   f"padding:2px 8px'>{head} {html.escape(self.record['id'])} rev "
-                                   f"{html.escape(self.record['revision'])}<br>{links}</div>")
+                                   f"padding:2px 8px'>{head}<br>{links}</div>")
 
 
 def _file_link(path):
@@ -442,12 +442,16 @@ def _file_link(path):
 class _SummaryView(widgets.HTML):
     """The summary as text in a widget: live in the browser, plain text when run headless."""
 
-    def __init__(self, text):
+    def __init__(self, text, to_html=None):
         super().__init__()
         self._text = text
+        self._to_html = to_html
 
     def refresh(self):
         text = self._text()
+        if self._to_html is not None:
+            self.value = self._to_html(text)
+            return
         head = ""
         if text.startswith("INPUT NOT ACCEPTED"):
             refusal, _, text = text.partition("\n\n")
