@@ -4,7 +4,6 @@ with an earlier revision, sign it; the register of its folder."""
 from __future__ import annotations
 
 import html
-import os
 import re
 from pathlib import Path
 
@@ -16,7 +15,7 @@ from ..report import RENDERERS, format_number, format_unit
 from ..review import verify_record
 from ..runner import record_for_case_file
 from ..signoff import diff_records, sign_record
-from .workbook import _file_link, _SummaryView
+from .feedback import SummaryView, file_link
 from .workbook import _install_error_display  # noqa: F401  (bad input shows as a message in any workbook)
 
 
@@ -71,7 +70,7 @@ class ReviewBook:
         self._cross_button.on_click(lambda _: self._on_cross_check())
         self._cross_status = widgets.HTML()
         self._cross_status.add_class("steamcalc-cross-check")
-        self._summary = _SummaryView(self.summary, lambda text: f"<p>{_summary_html(text)}</p>")
+        self._summary = SummaryView(self.summary, lambda text: f"<p>{_summary_html(text)}</p>")
         self._summary.add_class("steamcalc-review-summary")
         self._show()
 
@@ -307,7 +306,7 @@ class ReviewBook:
             return
         head, _, path = text.rpartition(": ")
         self._sign_status.value = (f"<span style='color:#2f6b3a'><b>{html.escape(head)}</b></span>: "
-                                   f"{_file_link(path)}")
+                                   f"{file_link(path)}")
 
     def sign(self, checker, key_file=None, role="checked", passphrase_file=None):
         """Sign the record (after a passing verification); return what happened.

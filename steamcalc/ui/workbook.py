@@ -12,7 +12,6 @@ from __future__ import annotations
 
 import dataclasses
 import html
-import os
 from pathlib import Path
 
 import ipywidgets as widgets
@@ -26,19 +25,10 @@ from ..runner import record_for_case
 from ..site import case_site, flatten_inputs, is_file_name_part, load_case, parse_inputs
 from ..uncertainty import SETTINGS
 from .charts import chart_for, figure_json, table_for, tornado_chart
+from .feedback import STALE_CLASS, STALE_STYLE, STALE_TEXT, SummaryView, file_link
 from .forms import CaseForm, alternatives_for
 
 _STATUS_COLOURS = {"pass": "#2f6b3a", "warn": "#8a5a00", "fail": "#a3201b"}
-
-#: Class of every view that shows results while an input is refused (they are for the last accepted inputs).
-STALE_CLASS = "steamcalc-stale"
-_STALE_TEXT = ("Stale: an input above is not accepted. Fix the input marked in the form; until then "
-               "what is shown here is for the last accepted inputs.")
-_STALE_STYLE = ("<style>.steamcalc-stale:not(.steamcalc-stale-banner):not(.steamcalc-results),"
-                ".steamcalc-stale .steamcalc-stale-content{opacity:0.45;outline:2px dashed #a3201b;"
-                "outline-offset:2px}.steamcalc-input-refused input{border:2px solid #a3201b !important;"
-                "background:#fdecea !important}</style>")
-
 
 def _show_input_error(shell, etype, value, tb, tb_offset=None):
     # A user's bad input (a wrong case-file path, a misspelt key) is a message, not a traceback.
@@ -83,7 +73,7 @@ class Workbook:
                              tolerances={k: v for k, v in self.case.uncertainty.items() if k not in self._settings},
                              alternatives=alternatives_for(self.calc))
         self._banners = []
-        self._summary = _SummaryView(self._summary_text)
+        self._summary = SummaryView(self._summary_text)
         self._summary.add_class("steamcalc-summary")
         self.uncertainty = None
         self._bands = widgets.HTML()
@@ -104,6 +94,7 @@ class Workbook:
         self._chart = widgets.Output()
         self._chart.add_class("steamcalc-chart")
         self._preview = widgets.Output()
+        self._preview.add_class("steamcalc-preview")
         self._table = widgets.HTML()
         self._table.add_class("steamcalc-table")
         self._save_button = widgets.Button(description="Save record", icon="save", button_style="primary")
@@ -179,7 +170,7 @@ class Workbook:
     @staticmethod
     def _banner_html():
         return (f"<div style='color:#a3201b;font-weight:bold;border-left:4px solid #a3201b;padding:2px 8px'>"
-                f"{html.escape(_STALE_TEXT)}</div>")
+                f"{html.escape(STALE_TEXT)}</div>")
 
     def _stale_banner(self):
         banner = widgets.HTML(self._banner_html(), layout=widgets.Layout(display="none"))
@@ -312,7 +303,7 @@ class Workbook:
     # -- views for the notebook's cells ---------------------------------------------
     def form_view(self):
         """The input form with its message line."""
-        return widgets.VBox([widgets.HTML(_STALE_STYLE + f"<b>{html.escape(self.case.id)}</b> "
+        return widgets.VBox([widgets.HTML(STALE_STYLE + f"<b>{html.escape(self.case.id)}</b> "
                                           f"{html.escape(self.case.title)}"),
                              widgets.HBox([self._revision, self._revision_message]), self.form.view, self._message])
 
@@ -423,49 +414,9 @@ class Workbook:
         else:
             head = (f"<b style='color:#1d4f91'>&#8635; Unchanged, kept</b>: {name} is already saved with these same "
                     "inputs and results; its files are left as they are")
-        links = ", ".join(_file_link(p) for p in paths)
+        links = ", ".join(file_link(p) for p in paths)
         self._save_status.value = (f"<div style='border-left:4px solid {'#2f6b3a' if status == 'written' else '#1d4f91'};"
                                    f"padding:2px 8px'>{head}<br>{links}</div>")
-
-
-def _file_link(path):
-    """A link to a saved file, relative to the notebook's folder (JupyterLab opens it in a tab)."""
-    path = Path(path)
-    try:
-        href = Path(os.path.relpath(path.resolve(), Path.cwd())).as_posix()
-    except ValueError:  # another drive: no relative link
-        href = path.resolve().as_uri()
-    return (f"<a class='steamcalc-file-link' href='{html.escape(href, quote=True)}' target='_blank' "
-            f"style='text-decoration:underline;color:#1d4f91'>{html.escape(str(path))}</a>")
-
-
-class _SummaryView(widgets.HTML):
-    """The summary as text in a widget: live in the browser, plain text when run headless."""
-
-    def __init__(self, text, to_html=None):
-        super().__init__()
-        self._text = text
-        self._to_html = to_html
-
-    def refresh(self):
-        text = self._text()
-        if self._to_html is not None:
-            self.value = self._to_html(text)
-            return
-        head = ""
-        if text.startswith("INPUT NOT ACCEPTED"):
-            refusal, _, text = text.partition("\n\n")
-            head = (f"<div class='steamcalc-refused' style='color:#a3201b;font-weight:bold;border-left:4px solid "
-                    f"#a3201b;padding:2px 8px;white-space:pre-wrap'>{html.escape(refusal)}</div>")
-        style = "color:#888;" if head else ""
-        self.value = (_STALE_STYLE + head +
-                      f"<pre style='{style}white-space:pre-wrap;margin:0'>{html.escape(text)}</pre>")
-
-    def _repr_mimebundle_(self, **kwargs):
-        bundle = super()._repr_mimebundle_(**kwargs)
-        if bundle is not None:
-            bundle["text/plain"] = self._text()
-        return bundle
 
 
 def _html_table(rows):
@@ -489,7 +440,7 @@ class UnavailableWorkbook:
     form_view = results_view = chart_view = preview_view = save_view = table_view = uncertainty_view = _view
 
     def summary_view(self):
-        view = _SummaryView(self.summary)
+        view = SummaryView(self.summary)
         view.refresh()
         return view
 
