@@ -106,6 +106,9 @@ def test_flash_refused_input_beside_its_box_stale_views_and_the_cascade_example(
     assert "INPUT NOT ACCEPTED" not in _text(page, ".steamcalc-summary")
     page.locator(f"{PANEL} .steamcalc-input-stages").first.scroll_into_view_if_needed()
     page.screenshot(path=str(shots / "15-2-cascade.png"))
+    stages = page.locator(f"{PANEL} .steamcalc-table").first
+    stages.scroll_into_view_if_needed()
+    stages.screenshot(path=str(shots / "15-2-cascade-stage-table.png"))
     _no_tracebacks(page)
     page.close()
 
