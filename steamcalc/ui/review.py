@@ -41,7 +41,7 @@ class ReviewBook:
         if self.path.name not in names:
             names = sorted(names + [self.path.name])
         self._picker = widgets.Dropdown(options=names, value=self.path.name, description="Record",
-                                        layout=widgets.Layout(width="30em"))
+                                        layout=widgets.Layout(width="36em"), style={"description_width": "7em"})
         self._picker.add_class("steamcalc-record-picker")
         self._picker.observe(lambda change: self._pick(change["new"]), names="value")
         self._pick_status = widgets.HTML()
@@ -49,7 +49,8 @@ class ReviewBook:
         self._reverting = False
         self._table = widgets.HTML()
         self._table.add_class("steamcalc-review-table")
-        self._earlier = widgets.Dropdown(description="Compare with", layout=widgets.Layout(width="30em"),
+        self._earlier = widgets.Dropdown(description="Compare with", layout=widgets.Layout(width="36em"),
+                                         style={"description_width": "7em"},
                                          tooltip="Earlier revisions of the record picked above; the comparison "
                                                  "runs from the earlier revision to the picked one")
         self._earlier.add_class("steamcalc-compare-with")
