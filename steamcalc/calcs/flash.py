@@ -61,7 +61,7 @@ class Inputs:
         "pressure", "Flash pressure", "Pressure of the flash vessel (a header or a pressure).", example="header:LP")
     stages: tuple | None = input_field(
         "pressure_list", "Cascade stage pressures", "Falling pressures of a flash cascade, in place of "
-        "flash_pressure.", example='["8 bar(g)", "2.5 bar(g)"]')
+        "flash_pressure.", example='["5 bar(g)", "2.5 bar(g)"]')
     lp_demand: float | None = input_field(
         "mass_flow", "Low-pressure steam demand", "Steam the flash header can use; flash above it is vented.",
         example="0.5 t/h")

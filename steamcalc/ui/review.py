@@ -4,6 +4,7 @@ with an earlier revision, sign it; the register of its folder."""
 from __future__ import annotations
 
 import html
+import re
 from pathlib import Path
 
 import ipywidgets as widgets
@@ -14,6 +15,7 @@ from ..report import RENDERERS, format_number, format_unit
 from ..review import verify_record
 from ..runner import record_for_case_file
 from ..signoff import diff_records, sign_record
+from .feedback import SummaryView, file_link
 from .workbook import _install_error_display  # noqa: F401  (bad input shows as a message in any workbook)
 
 
@@ -35,16 +37,27 @@ class ReviewBook:
         self.folder = self.path.parent
         self.record = load_record(self.path)
         self.outcome = verify_record(self.record)
-        self._picker = widgets.Dropdown(options=self._records(), value=self.path.name, description="Record",
-                                        layout=widgets.Layout(width="30em"))
+        names = self._records()
+        if self.path.name not in names:
+            names = sorted(names + [self.path.name])
+        self._picker = widgets.Dropdown(options=names, value=self.path.name, description="Record",
+                                        layout=widgets.Layout(width="36em"), style={"description_width": "7em"})
+        self._picker.add_class("steamcalc-record-picker")
         self._picker.observe(lambda change: self._pick(change["new"]), names="value")
+        self._pick_status = widgets.HTML()
+        self._pick_status.add_class("steamcalc-pick-status")
+        self._reverting = False
         self._table = widgets.HTML()
         self._table.add_class("steamcalc-review-table")
-        earlier = [n for n in self._records() if n != self.path.name]
-        self._earlier = widgets.Dropdown(options=["(none)"] + earlier, value="(none)", description="Compare with",
-                                         layout=widgets.Layout(width="30em"))
+        self._earlier = widgets.Dropdown(description="Compare with", layout=widgets.Layout(width="36em"),
+                                         style={"description_width": "7em"},
+                                         tooltip="Earlier revisions of the record picked above; the comparison "
+                                                 "runs from the earlier revision to the picked one")
+        self._earlier.add_class("steamcalc-compare-with")
         self._earlier.observe(lambda change: self._compare(), names="value")
         self._diff = widgets.HTML()
+        self._diff.add_class("steamcalc-comparison")
+        self._offer_earlier()
         self._checker = widgets.Text(description="Checker", placeholder="your name")
         self._key_file = widgets.Text(description="Key file", placeholder="path to your .key (recommended)")
         self._sign_button = widgets.Button(description="Sign as checked", icon="check", button_style="success")
@@ -58,6 +71,8 @@ class ReviewBook:
         self._cross_button.on_click(lambda _: self._on_cross_check())
         self._cross_status = widgets.HTML()
         self._cross_status.add_class("steamcalc-cross-check")
+        self._summary = SummaryView(self.summary, lambda text: f"<p>{_summary_html(text)}</p>")
+        self._summary.add_class("steamcalc-review-summary")
         self._show()
 
     @classmethod
@@ -73,17 +88,90 @@ class ReviewBook:
         return sorted(p.name for p in self.folder.glob("*.json"))
 
     def _pick(self, name):
-        self.path = self.folder / name
-        self.record = load_record(self.path)
-        self.outcome = verify_record(self.record)
+        if self._reverting or name is None:
+            return
+        path = self.folder / name
+        try:
+            record = load_record(path)
+            outcome = verify_record(record)
+        except SteamcalcError as exc:
+            self._refuse_pick(name, exc.message + (f" ({exc.fix})" if exc.fix and "--" not in exc.fix else ""))
+            return
+        except (OSError, ValueError) as exc:
+            self._refuse_pick(name, str(exc))
+            return
+        self._pick_status.value = ""
+        self.path, self.record, self.outcome = path, record, outcome
         self._cross_status.value = ""
+        self._sign_status.value = ""
         self._show()
+        self._offer_earlier()
+
+    def _refuse_pick(self, name, reason):
+        """Say why a picked file cannot be reviewed, and go back to the record that was shown."""
+        self._pick_status.value = (
+            f"<div class='steamcalc-pick-refused' style='color:#a3201b'><b>{html.escape(name)} cannot be "
+            f"reviewed:</b> {html.escape(reason)}. It is not a calculation record steamcalc issued (records are "
+            f"the <i>ID_revX.json</i> files that Save record or a batch run writes). Pick a record file; still "
+            f"showing {html.escape(self.path.name)}.</div>")
+        self._reverting = True
+        try:
+            self._picker.value = self.path.name
+        finally:
+            self._reverting = False
+
+    # -- earlier revisions -------------------------------------------------------------
+    def earlier_revisions(self):
+        """File names of the earlier revisions of the picked record's id in its folder, latest first.
+
+        A file counts when it is a readable record of the same id whose revision sorts before the
+        picked one (A < B < ... < Z < AA; 1 < 2 < 10); the picked file itself and its copies never do.
+        """
+        mine = _revision_key(self.record.get("revision", ""))
+        found = []
+        for name in self._records():
+            if name == self.path.name:
+                continue
+            try:
+                other = load_record(self.folder / name)
+            except (SteamcalcError, OSError, ValueError):
+                continue
+            if other.get("id") != self.record.get("id") or other.get("kind") != self.record.get("kind"):
+                continue
+            if _revision_key(other.get("revision", "")) < mine:
+                # Of two files of one revision, the one under the record's own name comes first.
+                own_name = name == f"{other.get('id')}_rev{other.get('revision')}.json"
+                found.append((_revision_key(other.get("revision", "")), own_name, other.get("created", ""), name,
+                              other.get("revision", "")))
+        found.sort(reverse=True)
+        return [(name, revision) for *_, name, revision in found]
+
+    def _offer_earlier(self):
+        """Rebuild the Compare-with list for the picked record; select its latest earlier revision."""
+        earlier = self.earlier_revisions()
+        self._earlier_revisions = dict(earlier)
+        rid = self.record.get("id", "")
+        if earlier:
+            options = [(f"{rid} rev {revision}  ({name})", name) for name, revision in earlier]
+            options.append(("(no comparison)", ""))
+            value = earlier[0][0]
+        else:
+            options = [(f"(no earlier revision of {rid} in this folder)", "")]
+            value = ""
+        self._holding_compare = True
+        try:
+            self._earlier.options = options
+            self._earlier.value = value
+        finally:
+            self._holding_compare = False
         self._compare()
 
     def _show(self):
         o = self.outcome
+        labels = _input_labels(self.record)
         rows = "".join(
-            f"<tr><td>{html.escape(c.key)}</td><td style='text-align:right'>{html.escape(format_number(c.recorded))}</td>"
+            f"<tr><td>{html.escape(_result_label(self.record, c.key, labels))}</td>"
+            f"<td style='text-align:right'>{html.escape(format_number(c.recorded))}</td>"
             f"<td style='text-align:right'>{html.escape(format_number(c.recomputed))}</td>"
             f"<td>{html.escape(format_unit(c.unit))}</td>"
             f"<td>{'' if c.rel_diff is None else f'{c.rel_diff:.1e}'}</td>"
@@ -91,7 +179,8 @@ class ReviewBook:
             for c in o.comparisons)
         checks = "".join(f"<li><b>{c['status'].upper()}</b> {html.escape(c['name'])}: {html.escape(c['detail'])}</li>"
                          for c in self.record.get("checks", []))
-        self._table.value = (f"<p>{html.escape(self.summary()).replace(chr(10), '<br>')}</p>"
+        self._summary.refresh()
+        self._table.value = (f"<p>{_summary_html(self.summary())}</p>"
                              f"<table><tr><th>result</th><th>recorded</th><th>recomputed</th><th>unit</th>"
                              f"<th>rel. diff</th><th>verdict</th></tr>{rows}</table><h4>Checks</h4><ul>{checks}</ul>")
 
@@ -178,21 +267,47 @@ class ReviewBook:
         self._cross_status.value = f"<p>{html.escape(self.cross_check()).replace(chr(10), '<br>')}</p>"
 
     def _compare(self):
-        if self._earlier.value in (None, "(none)"):
-            self._diff.value = ""
+        """Compare the chosen earlier revision → the picked record (an increase shows as a positive change)."""
+        if getattr(self, "_holding_compare", False):
             return
-        earlier = load_record(self.folder / self._earlier.value)
+        name = self._earlier.value
+        rid = html.escape(self.record.get("id", ""))
+        if not name:
+            self._diff.value = ("<p>Pick an earlier revision above to see what changed.</p>"
+                                if getattr(self, "_earlier_revisions", None) else
+                                f"<p>No earlier revision of {rid} in this folder: there is nothing to compare "
+                                f"{rid} rev {html.escape(self.record.get('revision', ''))} with.</p>")
+            return
+        try:
+            earlier = load_record(self.folder / name)
+        except SteamcalcError as exc:
+            self._diff.value = f"<p style='color:#a3201b'>{html.escape(name)} cannot be read: {html.escape(exc.message)}</p>"
+            return
         rows = diff_records(earlier, self.record)
-        body = "".join(f"<tr><td>{html.escape(r['section'])}</td><td>{html.escape(str(r['key']))}</td>"
-                       f"<td>{html.escape(format_number(r['old']))}</td><td>{html.escape(format_number(r['new']))}</td>"
-                       f"<td>{html.escape(r['unit_label'])}</td><td>{html.escape(format_number(r['change']))}</td></tr>"
+        old_rev, new_rev = html.escape(earlier.get("revision", "")), html.escape(self.record.get("revision", ""))
+        title = (f"<p class='steamcalc-comparison-title'><b>{rid} rev {old_rev} → rev {new_rev}</b> "
+                 f"(earlier → picked: an increase shows as a positive change)</p>")
+        labels = _input_labels(self.record)
+        body = "".join(f"<tr><td>{html.escape(r['section'])}</td>"
+                       f"<td>{html.escape(_row_label(r, earlier, self.record, labels))}</td>"
+                       f"<td style='text-align:right'>{html.escape(format_number(r['old']))}</td>"
+                       f"<td style='text-align:right'>{html.escape(format_number(r['new']))}</td>"
+                       f"<td>{html.escape(r['unit_label'])}</td>"
+                       f"<td style='text-align:right'>{html.escape(format_number(r['change']))}</td></tr>"
                        for r in rows)
-        self._diff.value = ("<p>No differences.</p>" if not rows else
-                            f"<table><tr><th>section</th><th>item</th><th>{html.escape(self._earlier.value)}</th>"
-                            f"<th>{html.escape(self.path.name)}</th><th>unit</th><th>change</th></tr>{body}</table>")
+        self._diff.value = title + (f"<p>No differences between rev {old_rev} and rev {new_rev}.</p>" if not rows else
+                                    f"<table><tr><th>section</th><th>item</th><th>rev {old_rev} (earlier)</th>"
+                                    f"<th>rev {new_rev} (picked)</th><th>unit</th>"
+                                    f"<th>change (rev {new_rev} − rev {old_rev})</th></tr>{body}</table>")
 
     def _on_sign(self):
-        self._sign_status.value = html.escape(self.sign(self._checker.value, self._key_file.value.strip() or None))
+        text = self.sign(self._checker.value, self._key_file.value.strip() or None)
+        if text.startswith("not signed"):
+            self._sign_status.value = f"<span style='color:#a3201b'><b>{html.escape(_workbook_fix(text))}</b></span>"
+            return
+        head, _, path = text.rpartition(": ")
+        self._sign_status.value = (f"<span style='color:#2f6b3a'><b>{html.escape(head)}</b></span>: "
+                                   f"{file_link(path)}")
 
     def sign(self, checker, key_file=None, role="checked", passphrase_file=None):
         """Sign the record (after a passing verification); return what happened.
@@ -220,8 +335,13 @@ class ReviewBook:
         return f"signed by {signed['checked_by']} on {signed['signoff']['date']}: {self.path}"
 
     # -- views -------------------------------------------------------------------------
+    def summary_view(self):
+        """The verification summary of the picked record, following every pick and sign-off (plain text headless)."""
+        return self._summary
+
     def verification_view(self):
-        return widgets.VBox([self._picker, self._table, self._cross_button, self._cross_status])
+        return widgets.VBox([widgets.HBox([self._picker, self._pick_status]), self._table, self._cross_button,
+                             self._cross_status])
 
     def comparison_view(self):
         return widgets.VBox([self._earlier, self._diff])
@@ -238,3 +358,60 @@ def _signers(record):
     if record.get("checked_by"):
         return f"{record['checked_by']} (name only, no key)"
     return "not yet checked"
+
+
+def _revision_key(revision):
+    """Sort key of a revision: A < B < ... < Z < AA, 1 < 2 < 10, P1 < P2."""
+    parts = re.findall(r"\d+|[^\d]+", str(revision).strip().upper())
+    return tuple((0, int(p), "") if p.isdigit() else (1, len(p), p) for p in parts)
+
+
+def _input_labels(record):
+    """Input key -> its label on the form, for the record's kind ({} when the kind is unknown)."""
+    try:
+        from ..calcs import get_calculation
+        from ..calcs.base import input_fields
+        return {f.name: f.metadata["label"] for f in input_fields(get_calculation(record.get("kind")).Inputs)}
+    except (SteamcalcError, KeyError, ValueError, TypeError):
+        return {}
+
+
+def _result_label(record, key, labels):
+    entry = (record.get("results") or {}).get(key)
+    if isinstance(entry, dict) and entry.get("label"):
+        return entry["label"]
+    return labels.get(key, key)
+
+
+def _row_label(row, old, new, labels):
+    if row["section"] == "inputs":
+        return labels.get(row["key"], str(row["key"]))
+    for record in (new, old):
+        entry = (record.get(row["section"]) or {})
+        if isinstance(entry, dict) and isinstance(entry.get(row["key"]), dict) and entry[row["key"]].get("label"):
+            return entry[row["key"]]["label"]
+    return str(row["key"])
+
+
+def _summary_html(text):
+    """The verification summary as HTML lines; a FAILED verdict or an edited record styled as a failure."""
+    lines = []
+    for line in text.split("\n"):
+        escaped = html.escape(line)
+        if line.startswith("verdict: FAILED") or line.startswith("integrity: EDITED"):
+            cls = "steamcalc-verdict-failed" if line.startswith("verdict") else "steamcalc-integrity-failed"
+            escaped = (f"<span class='{cls}' style='color:#fff;background:#a3201b;font-weight:bold;"
+                       f"padding:1px 6px;border-radius:3px'>&#10008; {escaped}</span>")
+        elif line.startswith("verdict: VERIFIED"):
+            escaped = (f"<span class='steamcalc-verdict-verified' style='color:#2f6b3a;font-weight:bold'>"
+                       f"&#10004; {escaped}</span>")
+        lines.append(escaped)
+    return "<br>".join(lines)
+
+
+def _workbook_fix(text):
+    """A sign-off message with its command-line fix put in the review workbook's words."""
+    text = re.sub(r"give --by \"Your Name\"", "type your name in the Checker box", text)
+    text = text.replace("field '--by': ", "")
+    text = text.replace("run steamcalc verify for the details", "see the verification table above for the details")
+    return text

@@ -18,19 +18,19 @@ import ipywidgets as widgets
 
 from ..calcs import get_calculation
 from ..display import display_record, pressure_basis
-from ..errors import SteamcalcError
+from ..errors import RecordConflictError, SteamcalcError
 from ..record import write_record
 from ..report import RENDERERS, format_number, format_unit, render_markdown
 from ..runner import record_for_case
 from ..site import case_site, flatten_inputs, is_file_name_part, load_case, parse_inputs
 from ..uncertainty import SETTINGS
 from .charts import chart_for, figure_json, table_for, tornado_chart
-from .forms import CaseForm
+from .feedback import STALE_CLASS, STALE_STYLE, STALE_TEXT, SummaryView, file_link
+from .forms import CaseForm, alternatives_for
 from .save_case import CaseSaver
 from .sketch_view import SketchView
 
 _STATUS_COLOURS = {"pass": "#2f6b3a", "warn": "#8a5a00", "fail": "#a3201b"}
-
 
 def _show_input_error(shell, etype, value, tb, tb_offset=None):
     # A user's bad input (a wrong case-file path, a misspelt key) is a message, not a traceback.
@@ -72,12 +72,17 @@ class Workbook:
         flat = flatten_inputs(self.calc.Inputs, self.case.inputs)
         self._settings = {k: v for k, v in self.case.uncertainty.items() if k in SETTINGS}
         self.form = CaseForm(self.calc.Inputs, flat, headers=tuple(self.site.headers),
-                             tolerances={k: v for k, v in self.case.uncertainty.items() if k not in self._settings})
+                             tolerances={k: v for k, v in self.case.uncertainty.items() if k not in self._settings},
+                             alternatives=alternatives_for(self.calc))
+        self._banners = []
+        self._summary = SummaryView(self._summary_text)
+        self._summary.add_class("steamcalc-summary")
         self.uncertainty = None
         self._bands = widgets.HTML()
         self._bands.add_class("steamcalc-bands")
         self._tornado = widgets.Output()
-        self._bands_button = widgets.Button(description="Compute bands", icon="random")
+        self._bands_button = widgets.Button(description="Compute bands", icon="random",
+                                            tooltip="Run the Monte Carlo bands and the sensitivity for these inputs")
         self._bands_button.add_class("steamcalc-bands-button")
         self._bands_button.on_click(lambda _: self.compute_uncertainty())
         self.record = None
@@ -91,6 +96,7 @@ class Workbook:
         self._chart = widgets.Output()
         self._chart.add_class("steamcalc-chart")
         self._preview = widgets.Output()
+        self._preview.add_class("steamcalc-preview")
         self._table = widgets.HTML()
         self._table.add_class("steamcalc-table")
         self._save_button = widgets.Button(description="Save record", icon="save", button_style="primary")
@@ -104,6 +110,8 @@ class Workbook:
         self._revision.add_class("steamcalc-revision")
         self._revision.observe(lambda change: self._set_revision(), names="value")
         self._sketch, self._case_saver = SketchView(), CaseSaver(self)  # process sketch; "Save case file"
+        self._revision_message = widgets.HTML()
+        self._revision_message.add_class("steamcalc-field-message-revision")
         self.form.observe(self.update)
         self.update()
 
@@ -127,13 +135,11 @@ class Workbook:
                 from ..uncertainty import parse_tolerances
                 parse_tolerances(self.calc.Inputs, self.case.uncertainty, inputs)
         except SteamcalcError as exc:
-            self.error = str(exc).replace(f"{self.case.path}: ", "")
-            self._message.value = (f"<div style='color:#a3201b'><b>Input not accepted:</b> "
-                                   f"{html.escape(self.error)}</div><div>Results below are for the last "
-                                   "accepted inputs.</div>")
-            self._sketch.mark_stale()
+            self._refused(exc)
             return
         self.error = None
+        self.form.clear_errors()
+        self._mark_stale(False)
         self.inputs, self.record, self.result = inputs, record, result
         self._given = given
         self.uncertainty = None
@@ -141,25 +147,96 @@ class Workbook:
                              if self.case.uncertainty else "<i>No ± tolerances given.</i>")
         self._tornado.outputs = ()
         self._message.value = ""
-        self._results_html.value = self._results_table()
+        self._results_body = self._results_table()
+        self._results_html.value = self._results_body
         self._draw_chart()
         self._draw_table()
         self._draw_preview()
         self._sketch.draw(self.record)
+        self._summary.refresh()
+
+    def _refused(self, exc):
+        """Show a refused input beside its box (or under the form) and mark every result view stale."""
+        shown_at = self.form.show_error(exc)
+        if shown_at is not None:
+            label = self.form.labels[shown_at]
+            self.error = self.form.refusal(exc)
+            where = f"the <b>{html.escape(label)}</b> box (marked in red)"
+        else:
+            self.error = self.form.words.text(str(exc).replace(f"{self.case.path}: ", ""))
+            where = "the inputs"
+        self._message.value = (f"<div class='steamcalc-refused' style='color:#a3201b'><b>Input not accepted:</b> "
+                               f"{html.escape(self.error)}</div><div>Correct {where}; the results, charts and "
+                               "preview below are for the last accepted inputs until then.</div>")
+        self._mark_stale(True)
+        self._sketch.mark_stale()
+        self._summary.refresh()
+
+    @staticmethod
+    def _banner_html():
+        return (f"<div style='color:#a3201b;font-weight:bold;border-left:4px solid #a3201b;padding:2px 8px'>"
+                f"{html.escape(STALE_TEXT)}</div>")
+
+    def _stale_banner(self):
+        banner = widgets.HTML(self._banner_html(), layout=widgets.Layout(display="none"))
+        banner.add_class("steamcalc-stale-banner")
+        self._banners.append(banner)
+        if self.error is not None:
+            self._mark_stale(True)
+        return banner
+
+    def _mark_stale(self, stale):
+        body = getattr(self, "_results_body", "")
+        self._results_html.value = (f"<div class='steamcalc-stale-banner'>{self._banner_html()}</div>"
+                                    f"<div class='steamcalc-stale-content'>{body}</div>") if stale else body
+        for view in (self._results_html, self._chart, self._table, self._preview, self._bands, self._tornado):
+            (view.add_class if stale else view.remove_class)(STALE_CLASS)
+        for banner in self._banners:
+            banner.layout.display = None if stale else "none"
+            (banner.add_class if stale else banner.remove_class)(STALE_CLASS)
+        self._save_button.disabled = stale
+        self._bands_button.disabled = stale
 
     def _set_revision(self):
         revision = self._revision.value.strip()
         if not is_file_name_part(revision):
-            self._message.value = ("<div style='color:#a3201b'><b>Revision not accepted:</b> letters, digits, "
-                                   "'.', '_' and '-' only</div>")
+            self._revision.add_class("steamcalc-input-refused")
+            self._revision_message.value = (
+                "<div class='steamcalc-refused' style='color:#a3201b'><b>Revision not accepted:</b> letters, digits, "
+                "'.', '_' and '-' only (e.g. B or 2). Fix: type a revision such as B in the Revision box.</div>")
+            self._save_button.disabled = True
             return
+        self._revision.remove_class("steamcalc-input-refused")
+        self._revision_message.value = ""
+        self._save_button.disabled = self.error is not None
         self.case = dataclasses.replace(self.case, revision=revision)
+        self._save_status.value = ""
         self.update()
 
     def compute_uncertainty(self):
-        """Run the Monte Carlo bands and the sensitivity for the current inputs and tolerances."""
+        """Run the Monte Carlo bands and the sensitivity for the current inputs and tolerances.
+
+        The button is disabled and says "computing…" while it runs, so a second press cannot
+        queue a second run.
+        """
         if self.error is not None or not self.case.uncertainty:
             return None
+        button = self._bands_button
+        description, before = button.description, self._bands.value
+        button.disabled, button.description = True, "computing…"
+        button.add_class("steamcalc-computing")
+        self._tornado.outputs = ()
+        self._bands.value = ("<div class='steamcalc-computing-note'><i>computing… the Monte Carlo bands "
+                             f"({self._settings.get('samples', 'the default number of')} samples) and the "
+                             "sensitivity; this takes a few seconds.</i></div>")
+        try:
+            return self._compute_uncertainty(before)
+        finally:
+            button.description = description
+            button.remove_class("steamcalc-computing")
+            button.disabled = self.error is not None
+
+    def _compute_uncertainty(self, before):
         try:
             # The record runs the Monte Carlo once; its section is what the workbook shows.
             self.record, self.result = record_for_case(self.case, self.site, inputs=self.inputs, given=self._given)
@@ -168,6 +245,7 @@ class Workbook:
             return None
         u = self.uncertainty = self.record.get("uncertainty")
         if u is None:
+            self._bands.value = before
             return None
         rows = "".join(
             f"<tr><td>{html.escape(k)}</td><td style='text-align:right'>{html.escape(format_number(b['nominal']))}</td>"
@@ -184,6 +262,7 @@ class Workbook:
                                   "data": {"application/vnd.plotly.v1+json": figure_json(figure),
                                            "text/plain": "tornado chart"}},)
         self._draw_preview()
+        self._summary.refresh()
         return u
 
     def _results_table(self):
@@ -229,26 +308,34 @@ class Workbook:
     # -- views for the notebook's cells ---------------------------------------------
     def form_view(self):
         """The input form with its message line."""
-        return widgets.VBox([widgets.HTML(f"<b>{html.escape(self.case.id)}</b> {html.escape(self.case.title)}"),
-                             self._revision, self.form.view, self._message])
+        return widgets.VBox([widgets.HTML(STALE_STYLE + f"<b>{html.escape(self.case.id)}</b> "
+                                          f"{html.escape(self.case.title)}"),
+                             widgets.HBox([self._revision, self._revision_message]), self.form.view, self._message])
+
+    def summary_view(self):
+        """The summary as live text: it follows every change of the form (and says when an input is refused).
+
+        Run headless, it shows as the plain text of :meth:`summary` (what nbval compares).
+        """
+        return self._summary
 
     def results_view(self):
         """Results and checks; they update when an input changes."""
         return self._results_html
 
     def chart_view(self):
-        return self._chart
+        return widgets.VBox([self._stale_banner(), self._chart])
 
     def preview_view(self):
-        return self._preview
+        return widgets.VBox([self._stale_banner(), self._preview])
 
     def table_view(self):
         """The kind's table (the flash stages), updating with the inputs."""
-        return self._table
+        return widgets.VBox([self._stale_banner(), self._table])
 
     def uncertainty_view(self):
         """Bands and the tornado chart; computed on the button (a Monte Carlo run takes about a second)."""
-        return widgets.VBox([self._bands_button, self._bands, self._tornado])
+        return widgets.VBox([self._stale_banner(), self._bands_button, self._bands, self._tornado])
 
     def save_view(self):
         return widgets.HBox([self._save_button, self._save_status])
@@ -261,7 +348,14 @@ class Workbook:
         """The "Save case file" button: the edited inputs as a new case file or revision."""
         return self._case_saver.view
 
-    def summary(self):
+    def _summary_text(self):
+        text = self.summary(compute_bands=False)
+        if self.error is not None and self.record is not None:
+            text = (f"INPUT NOT ACCEPTED - {self.error}\n"
+                    "The summary below is for the last accepted inputs.\n\n" + text)
+        return text
+
+    def summary(self, compute_bands=True):
         """Plain-text results and checks (what headless runs print and nbval compares)."""
         if self.record is None:
             return f"no result: {self.error}"
@@ -275,8 +369,10 @@ class Workbook:
         for c in r["checks"]:
             lines.append(f"  [{c['status'].upper()}] {c['name']}: {c['detail']}")
         if self.case.uncertainty:
-            if self.uncertainty is None:
+            if self.uncertainty is None and compute_bands:
                 self.compute_uncertainty()
+            if self.uncertainty is None and not compute_bands:
+                lines.extend(["", "  uncertainty: press Compute bands for the bands of these inputs"])
             if self.uncertainty is not None:
                 lines.append("")
                 lines.append("  uncertainty:")
@@ -290,21 +386,50 @@ class Workbook:
         Never replaces a different record of the same id and revision: that is
         refused with the message to raise the revision.
         """
+        saved = self._save()
+        return saved[0]
+
+    def _save(self):
+        """(text, paths, status): status is "written", "unchanged" or "refused"."""
         if self.record is None or self.error is not None:
-            return f"not saved: the inputs are not accepted ({self.error})"
+            return (f"not saved: the inputs are not accepted ({self.error}); fix the input marked in the form",
+                    [], "refused")
         if self.case.uncertainty and self.uncertainty is None and self.compute_uncertainty() is None:
-            return "not saved: the uncertainty bands could not be computed"
+            return "not saved: the uncertainty bands could not be computed", [], "refused"
+        name = f"record {self.record['id']} rev {self.record['revision']}"
         try:
             paths, status = write_record(self.record, self.record_folder, RENDERERS)
+        except RecordConflictError as exc:
+            if "already exists with different content" not in exc.message:
+                return f"not saved: {exc}", [], "refused"
+            return (f"not saved: {name} already exists with different inputs or results ({exc.source}). "
+                    "Fix: raise the Revision box above the form (e.g. to the next letter) to issue the "
+                    "changed inputs as a new record; the existing record is kept as it is.", [], "refused")
         except SteamcalcError as exc:
-            return f"not saved: {exc}"
-        note = "new file" if status == "written" else "same content as the existing record, kept"
-        return f"record {self.record['id']} rev {self.record['revision']} saved: {paths[0]} ({note})"
+            return f"not saved: {exc}", [], "refused"
+        if status == "written":
+            return f"saved: {name}, new file {paths[0]}", paths, status
+        return (f"unchanged, kept: {name} is already saved with these same inputs and results; the file "
+                f"was left as it is: {paths[0]}", paths, status)
 
     def _on_save(self):
-        text = self.save()
-        colour = "#a3201b" if text.startswith("not saved") else "#2f6b3a"
-        self._save_status.value = f"<span style='color:{colour}'>{html.escape(text)}</span>"
+        text, paths, status = self._save()
+        self._save_status.remove_class("steamcalc-save-refused")
+        self._save_status.remove_class("steamcalc-save-unchanged")
+        self._save_status.remove_class("steamcalc-save-written")
+        self._save_status.add_class(f"steamcalc-save-{status}")
+        if status == "refused":
+            self._save_status.value = f"<span style='color:#a3201b'><b>{html.escape(text)}</b></span>"
+            return
+        name = f"{html.escape(self.record['id'])} rev {html.escape(self.record['revision'])}"
+        if status == "written":
+            head = f"<b style='color:#2f6b3a'>&#10004; New record saved</b>: {name}"
+        else:
+            head = (f"<b style='color:#1d4f91'>&#8635; Unchanged, kept</b>: {name} is already saved with these same "
+                    "inputs and results; its files are left as they are")
+        links = ", ".join(file_link(p) for p in paths)
+        self._save_status.value = (f"<div style='border-left:4px solid {'#2f6b3a' if status == 'written' else '#1d4f91'};"
+                                   f"padding:2px 8px'>{head}<br>{links}</div>")
 
 
 def _html_table(rows):
@@ -327,6 +452,11 @@ class UnavailableWorkbook:
 
     form_view = results_view = chart_view = preview_view = save_view = table_view = uncertainty_view = _view
     sketch_view = save_case_view = _view
+
+    def summary_view(self):
+        view = SummaryView(self.summary)
+        view.refresh()
+        return view
 
     def summary(self):
         return f"Input not accepted: {self.message}"
