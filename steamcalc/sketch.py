@@ -13,8 +13,8 @@ from __future__ import annotations
 import html
 from dataclasses import dataclass, field
 
-from .display import convert, display_record, pressure_basis
-from .report import format_number, format_unit
+from .display import convert, display_record, format_number, pressure_basis
+from .report import format_unit
 
 INK = "#1d2327"
 STEAM = "#2b6a99"
@@ -48,13 +48,21 @@ def _entry(record, section, key):
     return entry
 
 
+def _number(entry):
+    """The number as the report shows it (display_record's figures), else formatted for its unit."""
+    return entry.get("shown") or format_number(entry["value"], entry.get("unit", ""))
+
+
+def _unit(shown, section, key, entry):
+    return entry.get("shown_unit") or format_unit(entry.get("unit", ""), pressure_basis(shown, section, key))
+
+
 def _reading(shown, section, key):
     """A non-pressure reading, or None when the record does not hold it."""
     entry = _entry(shown, section, key)
     if entry is None:
         return None
-    unit = format_unit(entry.get("unit", ""), pressure_basis(shown, section, key))
-    return Reading(section, key, f"{format_number(entry['value'])} {unit}".strip())
+    return Reading(section, key, f"{_number(entry)} {_unit(shown, section, key, entry)}".strip())
 
 
 def _pressure(shown, raw, section, key):
@@ -63,14 +71,14 @@ def _pressure(shown, raw, section, key):
     raw_entry = _entry(raw, section, key)
     if entry is None or raw_entry is None:
         return None
-    absolute = f"{format_number(entry['value'])} {format_unit(entry.get('unit', ''))}"
+    absolute = f"{_number(entry)} {_unit(shown, section, key, entry)}"
     atmosphere = raw.get("site", {}).get("atmospheric_pressure", {}).get("value")
     if raw_entry.get("unit") != "bar" or not isinstance(atmosphere, (int, float)):
         return Reading(section, key, absolute)
     system = raw.get("site", {}).get("display_units", "SI")
     gauge, unit = convert(raw_entry["value"] - atmosphere, "bar", system)
     gauge_unit = "psig" if unit == "psi" else f"{unit}(g)"
-    return Reading(section, key, f"{absolute} · {format_number(round(gauge, 6))} {gauge_unit}")
+    return Reading(section, key, f"{absolute} · {format_number(round(gauge, 6), unit, trim=True)} {gauge_unit}")
 
 
 def _suffixed(reading, note):

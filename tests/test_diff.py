@@ -81,7 +81,7 @@ def test_the_uncertainty_section_is_compared(revisions):
 def test_terminal_diff_marks_rows_and_lists_the_same_ones_only_on_request(revisions, capsys):
     assert main(["diff", str(revisions[0]), str(revisions[1])]) == 0
     out = capsys.readouterr().out
-    assert "  * Steam flow [mass_flow]: 4500 kg/h (as given: 4.5 t/h) -> 5000 kg/h (as given: 5 t/h); " \
+    assert "  * Steam flow [mass_flow]: 4,500 kg/h (as given: 4.5 t/h) -> 5,000 kg/h (as given: 5 t/h); " \
            "change +500 kg/h" in out
     assert "\nInput tolerances (±)\n  * Inlet temperature [inlet_temperature]: 5 K -> 8 K; change +3 K" in out
     assert "\nUncertainty bands\n" in out and "  * Samples: 200 -> 300; change +100" in out

@@ -66,8 +66,8 @@ def test_sketch_numbers_are_the_records(records, case_id):
     assert {key for key, _ in readings} == EXPECTED[case_id]
     for key, text in readings:
         section, name = key.split(".", 1)
-        value = shown[section][name]["value"]
-        assert text.split(" ")[0] == format_number(value), (key, text, value)
+        entry = shown[section][name]
+        assert text.split(" ")[0] == entry["shown"], (key, text, entry["value"])
 
 
 @pytest.mark.parametrize("case_id", sorted(EXPECTED))
@@ -101,7 +101,7 @@ def test_us_display_shows_psia_psig_and_degrees_f():
     record = _record("LD-02", display_units="US")
     readings = dict(_readings(sketch_svg(record)))
     assert readings["inputs.inlet_pressure"].endswith("psig") and "psia · " in readings["inputs.inlet_pressure"]
-    assert readings["results.inlet_temperature"] == f"{format_number(230 * 1.8 + 32)} °F"
+    assert readings["results.inlet_temperature"] == f"{format_number(230 * 1.8 + 32, 'degF')} °F"
     assert readings["results.inlet_mass_flow"].endswith("lb/h")
 
 
@@ -128,9 +128,10 @@ def test_cascade_shows_each_stages_steam_at_its_own_pressure(tmp_path):
     readings = _readings(sketch_svg(record))
     steam = [text for key, text in readings if key.startswith("results.stage_")]
     assert steam[0].endswith("8 bar(g) (stage 1)") and steam[2].endswith("2.5 bar(g) (stage 2)")
+    shown = display_record(record)
     for key, text in readings:
         section, name = key.split(".", 1)
-        assert text.split(" ")[0] == format_number(record[section][name]["value"]), (key, text)
+        assert text.split(" ")[0] == shown[section][name]["shown"], (key, text)
     assert 'text-anchor="middle" font-weight="bold">vessels</text>' in sketch_svg(record)
 
 
@@ -138,10 +139,10 @@ def test_workbook_sketch_follows_the_inputs_and_greys_out_while_one_is_refused(t
     from steamcalc.ui.workbook import Workbook
 
     wb = Workbook(CASES / "FL-01.toml", tmp_path / "records")
-    assert 'data-key="results.condensate_flow">3200 kg/h<' in wb.sketch_view().value
+    assert 'data-key="results.condensate_flow">3,200 kg/h<' in wb.sketch_view().value
     wb.form.boxes["condensate_flow"].value = "3.6 t/h"
-    assert 'data-key="results.condensate_flow">3600 kg/h<' in wb.sketch_view().value
+    assert 'data-key="results.condensate_flow">3,600 kg/h<' in wb.sketch_view().value
     wb.form.boxes["condensate_flow"].value = "lots"
-    assert "Out of date" in wb.sketch_view().value and ">3600 kg/h<" in wb.sketch_view().value
+    assert "Out of date" in wb.sketch_view().value and ">3,600 kg/h<" in wb.sketch_view().value
     wb.form.boxes["condensate_flow"].value = "3.7 t/h"
-    assert "Out of date" not in wb.sketch_view().value and ">3700 kg/h<" in wb.sketch_view().value
+    assert "Out of date" not in wb.sketch_view().value and ">3,700 kg/h<" in wb.sketch_view().value
