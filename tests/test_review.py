@@ -39,7 +39,7 @@ def test_diff_of_two_revisions(site, capsys, tmp_path):
     assert main(["diff", str(site / "records" / "LD-02_revA.json"), str(site / "records" / "LD-02_revB.json"),
                  "--html", str(page)]) == 0
     out = capsys.readouterr().out
-    assert "  * Steam flow [mass_flow]: 2000 kg/h (as given: 2.0 t/h) -> 2300 kg/h (as given: 2.3 t/h); change +300 kg/h" \
+    assert "  * Steam flow [mass_flow]: 2,000 kg/h (as given: 2.0 t/h) -> 2,300 kg/h (as given: 2.3 t/h); change +300 kg/h" \
         in out
     assert "  * Required Kv, normal flow: " in out
     assert "  * Revision: A -> B" in out
@@ -152,7 +152,8 @@ def test_notebook_companion(site):
     executed = site / "records" / "LD-02_revA.ipynb"
     assert executed.exists()
     cells = json.loads(executed.read_text())["cells"]
-    printed = "".join("".join(o.get("text", "")) for c in cells for o in c.get("outputs", []))
+    printed = "".join("".join(o.get("text", "")) + "".join(o.get("data", {}).get("text/plain", ""))
+                      for c in cells for o in c.get("outputs", []))
     assert "LD-02 rev A" in printed
 
 

@@ -52,8 +52,10 @@ def test_the_comparison_runs_from_the_earlier_revision_to_the_picked_one(records
     shown = book._diff.value
     assert "rev A → rev B" in shown and "change (rev B − rev A)" in shown
     # The steam flow rose from 4500 to 5000 kg/h: the change is +500, under the input's label.
-    assert "<td>Steam flow</td><td style='text-align:right'>4500</td><td style='text-align:right'>5000</td>" in shown
-    assert "<td style='text-align:right'>500</td>" in shown and "mass_flow" not in shown
+    row = next(r for r in shown.split("<tr") if "<td>Steam flow</td>" in r)
+    assert "steamcalc-diff-changed" in row and ">4,500<" in row and ">5,000<" in row and ">+500<" in row
+    # The key stays in its own small column; the item is named in words.
+    assert "<code>mass_flow</code>" in row and shown.index("Steam flow") < shown.index("rows the same in both")
 
 
 def test_picking_a_file_that_is_no_record_says_why_and_keeps_the_record_shown(records):

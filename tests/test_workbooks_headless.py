@@ -36,7 +36,8 @@ def test_bad_case_path_shows_a_message_not_a_traceback(tmp_path, demo_site_dir):
     )
     executed = json.loads((tmp_path / "executed.ipynb").read_text())
     outputs = [o for c in executed["cells"] if c["cell_type"] == "code" for o in c.get("outputs", [])]
-    text = "".join("".join(o.get("text", "")) for o in outputs)
+    # What a cell printed, and the plain text of what it displayed (the live summary shows as text headless).
+    text = "".join("".join(o.get("text", "")) + "".join(o.get("data", {}).get("text/plain", "")) for o in outputs)
     assert "Input not accepted" in text and "case file not found" in text
     assert not any(o.get("output_type") == "error" for o in outputs)
     assert not list(tmp_path.glob("*.json"))

@@ -385,9 +385,11 @@ def tornado_chart(section, calc):
                          name="input at its low end", marker_color=_COLOURS["outlet"]))
     fig.add_trace(go.Bar(y=names, x=[r["high"] - nominal for r in rows], base=nominal, orientation="h",
                          name="input at its high end", marker_color=_COLOURS["inlet"]))
-    unit = section["bands"][key]["unit"]
-    fig.update_layout(title=f"Sensitivity of {key.replace('_', ' ')} (one input at a time, ± its tolerance)",
-                      barmode="overlay", xaxis_title=f"{key.replace('_', ' ')}, {unit}", height=360,
+    from ..display import unit_label, words
+
+    unit = unit_label(section["bands"][key]["unit"])
+    fig.update_layout(title=f"Sensitivity of the {words(key)} (one input at a time, ± its tolerance)",
+                      barmode="overlay", xaxis_title=f"{words(key)}, {unit}", height=360,
                       margin=dict(l=180, r=20, t=50, b=50), legend=dict(orientation="h", y=-0.25))
     return fig
 

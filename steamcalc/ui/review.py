@@ -14,7 +14,8 @@ from ..record import load_record, write_record
 from ..report import RENDERERS, format_number, format_unit
 from ..review import verify_record
 from ..runner import record_for_case_file
-from ..signoff import diff_records, sign_record
+from ..record_diff import diff_records, diff_summary
+from ..signoff import sign_record
 from .feedback import SummaryView, file_link
 from .workbook import _install_error_display  # noqa: F401  (bad input shows as a message in any workbook)
 
@@ -283,22 +284,21 @@ class ReviewBook:
         except SteamcalcError as exc:
             self._diff.value = f"<p style='color:#a3201b'>{html.escape(name)} cannot be read: {html.escape(exc.message)}</p>"
             return
-        rows = diff_records(earlier, self.record)
+        rows = diff_records(earlier, self.record, unchanged=True)
         old_rev, new_rev = html.escape(earlier.get("revision", "")), html.escape(self.record.get("revision", ""))
         title = (f"<p class='steamcalc-comparison-title'><b>{rid} rev {old_rev} → rev {new_rev}</b> "
-                 f"(earlier → picked: an increase shows as a positive change)</p>")
-        labels = _input_labels(self.record)
-        body = "".join(f"<tr><td>{html.escape(r['section'])}</td>"
-                       f"<td>{html.escape(_row_label(r, earlier, self.record, labels))}</td>"
-                       f"<td style='text-align:right'>{html.escape(format_number(r['old']))}</td>"
-                       f"<td style='text-align:right'>{html.escape(format_number(r['new']))}</td>"
-                       f"<td>{html.escape(r['unit_label'])}</td>"
-                       f"<td style='text-align:right'>{html.escape(format_number(r['change']))}</td></tr>"
-                       for r in rows)
-        self._diff.value = title + (f"<p>No differences between rev {old_rev} and rev {new_rev}.</p>" if not rows else
-                                    f"<table><tr><th>section</th><th>item</th><th>rev {old_rev} (earlier)</th>"
-                                    f"<th>rev {new_rev} (picked)</th><th>unit</th>"
-                                    f"<th>change (rev {new_rev} − rev {old_rev})</th></tr>{body}</table>")
+                 f"(earlier → picked: an increase shows as a positive change)</p>"
+                 f"<p class='steamcalc-comparison-summary'>{html.escape(diff_summary(rows))}</p>")
+        differing = [r for r in rows if r["status"] != "same"]
+        if not differing:
+            self._diff.value = title + f"<p>No differences between rev {old_rev} and rev {new_rev}.</p>"
+            return
+        head = (f"<tr><th></th><th>item</th><th>rev {old_rev} (earlier)</th><th>rev {new_rev} (picked)</th>"
+                f"<th>unit</th><th>change (rev {new_rev} − rev {old_rev})</th><th>key</th></tr>")
+        same = [r for r in rows if r["status"] == "same"]
+        self._diff.value = (title + f"<table class='steamcalc-comparison'>{head}{_comparison_rows(differing)}</table>"
+                            + (f"<details><summary>{len(same)} rows the same in both</summary>"
+                               f"<table>{head}{_comparison_rows(same)}</table></details>" if same else ""))
 
     def _on_sign(self):
         text = self.sign(self._checker.value, self._key_file.value.strip() or None)
@@ -383,14 +383,27 @@ def _result_label(record, key, labels):
     return labels.get(key, key)
 
 
-def _row_label(row, old, new, labels):
-    if row["section"] == "inputs":
-        return labels.get(row["key"], str(row["key"]))
-    for record in (new, old):
-        entry = (record.get(row["section"]) or {})
-        if isinstance(entry, dict) and isinstance(entry.get(row["key"]), dict) and entry[row["key"]].get("label"):
-            return entry[row["key"]]["label"]
-    return str(row["key"])
+_ROW_COLOURS = {"changed": "#fff4d6", "added": "#e6f4e8", "removed": "#fbeaea", "same": "transparent"}
+
+
+def _comparison_rows(rows):
+    """Table rows of a comparison, grouped under their section, each coloured by what happened to it."""
+    out, section = [], None
+    for r in rows:
+        if r["section_label"] != section:
+            section = r["section_label"]
+            out.append(f"<tr><td colspan='7'><b>{html.escape(section)}</b></td></tr>")
+        old = html.escape(r["old_text"]) + (f"<br><small>as given: {html.escape(r['old_given'])}</small>"
+                                            if r.get("old_given") and r["old_given"] != r["old_text"] else "")
+        new = html.escape(r["new_text"]) + (f"<br><small>as given: {html.escape(r['new_given'])}</small>"
+                                            if r.get("new_given") and r["new_given"] != r["new_text"] else "")
+        out.append(f"<tr class='steamcalc-diff-{r['status']}' style='background:{_ROW_COLOURS[r['status']]}'>"
+                   f"<td>{html.escape(r['marker'])}</td><td>{html.escape(str(r['label']))}</td>"
+                   f"<td style='text-align:right'>{old}</td><td style='text-align:right'>{new}</td>"
+                   f"<td>{html.escape(r['unit_label'])}</td>"
+                   f"<td style='text-align:right'>{html.escape(str(r['change_text']))}</td>"
+                   f"<td><small><code>{html.escape(str(r.get('case_key') or r['key']))}</code></small></td></tr>")
+    return "".join(out)
 
 
 def _summary_html(text):

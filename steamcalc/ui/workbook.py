@@ -30,6 +30,15 @@ from .forms import CaseForm, alternatives_for
 from .save_case import CaseSaver
 from .sketch_view import SketchView
 
+def _shown(entry):
+    """A result's number as the report shows it (display_record's figures, % for fractions)."""
+    return entry.get("shown") or format_number(entry["value"])
+
+
+def _shown_unit(record, key, entry):
+    return entry.get("shown_unit") or format_unit(entry.get("unit", ""), pressure_basis(record, "results", key))
+
+
 _STATUS_COLOURS = {"pass": "#2f6b3a", "warn": "#8a5a00", "fail": "#a3201b"}
 
 def _show_input_error(shell, etype, value, tb, tb_offset=None):
@@ -247,12 +256,13 @@ class Workbook:
         if u is None:
             self._bands.value = before
             return None
+        shown = display_record(self.record)["uncertainty"]
         rows = "".join(
-            f"<tr><td>{html.escape(k)}</td><td style='text-align:right'>{html.escape(format_number(b['nominal']))}</td>"
-            f"<td style='text-align:right'>{html.escape(format_number(b.get('low', b['p05'])))}</td>"
-            f"<td style='text-align:right'>{html.escape(format_number(b.get('high', b['p95'])))}</td>"
-            f"<td>{html.escape(format_unit(b['unit'], pressure_basis(self.record, 'results', k)))}</td></tr>" for k, b in u["bands"].items())
-        lines = "".join(f"<li>{html.escape(line)}</li>" for line in u["summary"])
+            f"<tr><td>{html.escape(b['label'])}</td><td style='text-align:right'>{html.escape(b['shown']['nominal'])}</td>"
+            f"<td style='text-align:right'>{html.escape(b['shown']['low'])}</td>"
+            f"<td style='text-align:right'>{html.escape(b['shown']['high'])}</td>"
+            f"<td>{html.escape(b['shown_unit'])}</td></tr>" for b in shown["bands"].values())
+        lines = "".join(f"<li>{html.escape(line)}</li>" for line in shown.get("shown_summary", u["summary"]))
         coverage = f"{100 * u.get('coverage', 0.9):g} % coverage"
         self._bands.value = (f"<ul>{lines}</ul><table><tr><th>result</th><th>nominal</th><th>low end, {coverage}</th>"
                              f"<th>high end, {coverage}</th><th>unit</th></tr>{rows}</table>"
@@ -270,8 +280,8 @@ class Workbook:
         colour = _STATUS_COLOURS[r["status"]]
         rows = "".join(
             f"<tr><td>{html.escape(v.get('label', k))}</td><td style='text-align:right'>"
-            f"<b>{html.escape(format_number(v['value']))}</b></td><td>"
-            f"{html.escape(format_unit(v.get('unit', ''), pressure_basis(r, 'results', k)))}"
+            f"<b>{html.escape(_shown(v))}</b></td><td>"
+            f"{html.escape(_shown_unit(r, k, v))}"
             f"</td></tr>" for k, v in r["results"].items())
         checks = "".join(
             f"<tr><td style='color:{_STATUS_COLOURS[c['status']]};font-weight:bold'>{c['status'].upper()}</td>"
@@ -363,8 +373,7 @@ class Workbook:
         lines = [f"{r['id']} rev {r['revision']} - {r['title']}", f"overall status: {r['status'].upper()}", ""]
         width = max(len(v.get("label", k)) for k, v in r["results"].items())
         for key, v in r["results"].items():
-            unit = format_unit(v.get("unit", ""), pressure_basis(r, "results", key))
-            lines.append(f"  {v.get('label', key):<{width}}  {format_number(v['value']):>10} {unit}")
+            lines.append(f"  {v.get('label', key):<{width}}  {_shown(v):>10} {_shown_unit(r, key, v)}".rstrip())
         lines.append("")
         for c in r["checks"]:
             lines.append(f"  [{c['status'].upper()}] {c['name']}: {c['detail']}")
