@@ -86,3 +86,19 @@ def test_signing_without_a_name_says_what_to_do_in_the_workbook(records):
 @pytest.mark.parametrize("earlier, later", [("A", "B"), ("Z", "AA"), ("2", "10"), ("P1", "P2"), ("a", "B")])
 def test_revision_order(earlier, later):
     assert _revision_key(earlier) < _revision_key(later)
+
+
+def test_signing_in_the_workbook_refreshes_the_folders_index(tmp_path):
+    from pathlib import Path
+
+    demo = Path(__file__).resolve().parent.parent / "workbooks" / "demo_site"
+    site = tmp_path / "site"
+    shutil.copytree(demo, site, ignore=shutil.ignore_patterns("records"))
+    assert main(["run", str(site / "cases")]) in (0, 1)   # a folder run writes index.html and index.csv
+    index = site / "records" / "index.csv"
+    ld02 = next(line for line in index.read_text().splitlines() if "LD-02" in line)
+    assert "C. Checker" not in ld02
+    said = ReviewBook(site / "records" / "LD-02_revA.json").sign("C. Checker")
+    assert said.startswith("signed by C. Checker") and "index" in said
+    ld02 = next(line for line in index.read_text().splitlines() if "LD-02" in line)
+    assert "C. Checker" in ld02

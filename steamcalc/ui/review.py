@@ -329,10 +329,14 @@ class ReviewBook:
         self.record = signed
         self.outcome = verify_record(signed)
         self._show()
+        from ..batch import refresh_index
+        index = refresh_index(self.path.parent)   # the folder's index shows the signature too
+        index = f"; {index}" if index else ""
         if key_file:
             entry = signed["signatures"][-1]
-            return f"{entry['role']}, signed by {entry['name']} with key {entry['fingerprint'][7:19]}… on {entry['date']}: {self.path}"
-        return f"signed by {signed['checked_by']} on {signed['signoff']['date']}: {self.path}"
+            return (f"{entry['role']}, signed by {entry['name']} with key {entry['fingerprint'][7:19]}… on "
+                    f"{entry['date']}: {self.path}{index}")
+        return f"signed by {signed['checked_by']} on {signed['signoff']['date']}: {self.path}{index}"
 
     # -- views -------------------------------------------------------------------------
     def summary_view(self):
