@@ -66,3 +66,23 @@ def test_us_display_record_in_browser(tmp_path, browser):  # noqa: F811
     assert "°F" in text and "lb/h" in text
     page.screenshot(path=str(SHOTS / "LD-01_revA_US.png"), full_page=True)
     page.close()
+
+
+def test_command_line_text_a_checker_reads(issued, capsys):
+    """The verify table (with its unit column) and each sub-command's help, kept as text beside the screenshots."""
+    out = ARTIFACTS.parent / "cli"
+    out.mkdir(parents=True, exist_ok=True)
+    capsys.readouterr()
+    assert main(["verify", str(issued / "LD-01_revA.json")]) == 0
+    verified = capsys.readouterr().out
+    assert "unit" in verified.splitlines()[next(i for i, line in enumerate(verified.splitlines())
+                                                if line.strip().startswith("result"))]
+    (out / "verify-LD-01.txt").write_text(verified)
+    helps = []
+    for command in (["run"], ["verify"], ["diff"], ["sign"], ["keys", "new"], ["register"], ["new-site"]):
+        with pytest.raises(SystemExit):
+            main([*command, "--help"])
+        text = capsys.readouterr().out
+        assert "Exit codes" in text and "Example" in text, command
+        helps.append(f"$ steamcalc {' '.join(command)} --help\n{text}")
+    (out / "help.txt").write_text("\n".join(helps))

@@ -7,7 +7,6 @@ import tomllib
 
 
 from steamcalc.display import display_record
-from steamcalc.report import format_number
 from tests.browser_support import ARTIFACTS, PANEL, _open_and_run_all, browser, lab  # noqa: F401
 
 SHOTS = ARTIFACTS / "sketch"
@@ -41,7 +40,7 @@ def test_sketch_in_the_workbook_shows_the_records_numbers(lab, browser):
             "results.spray_water_flow", "results.outlet_mass_flow"} <= set(readings)
     for key, text in readings.items():
         section, name = key.split(".", 1)
-        assert text.split(" ")[0] == format_number(shown[section][name]["value"]), (key, text)
+        assert text.split(" ")[0] == shown[section][name]["shown"], (key, text)
     assert readings["inputs.inlet_pressure"] == "16.992 bar(a) · 16 bar(g)"
     sketch.screenshot(path=str(SHOTS / "15-10-sketch.png"))
 
