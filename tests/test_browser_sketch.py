@@ -41,7 +41,7 @@ def test_sketch_in_the_workbook_shows_the_records_numbers(lab, browser):
     for key, text in readings.items():
         section, name = key.split(".", 1)
         assert text.split(" ")[0] == shown[section][name]["shown"], (key, text)
-    assert readings["inputs.inlet_pressure"] == "16.992 bar(a) · 16 bar(g)"
+    assert readings["inputs.inlet_pressure"] == "16.99 bar(a) · 16 bar(g)"
     sketch.screenshot(path=str(SHOTS / "15-10-sketch.png"))
 
     # The sketch follows an input change, as the results do.
@@ -50,7 +50,7 @@ def test_sketch_in_the_workbook_shows_the_records_numbers(lab, browser):
     box.press("Enter")
     page.wait_for_function(
         f"() => [...document.querySelectorAll('{PANEL} .steamcalc-sketch-view text.reading')]"
-        ".some(t => t.getAttribute('data-key') === 'results.inlet_mass_flow' && t.textContent === '5000 kg/h')",
+        ".some(t => t.getAttribute('data-key') === 'results.inlet_mass_flow' && t.textContent === '5,000 kg/h')",
         timeout=30_000)
     sketch.screenshot(path=str(SHOTS / "15-10-sketch-after-change.png"))
     body = page.locator("body").inner_text()

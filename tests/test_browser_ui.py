@@ -89,7 +89,7 @@ def test_flash_refused_input_beside_its_box_stale_views_and_the_cascade_example(
 
     # Fixed: the message goes, the views are current again and the summary at the top follows.
     _type(page, "condensate_flow", "3.5 t/h")
-    _wait_text(page, ".steamcalc-summary", "3500")
+    _wait_text(page, ".steamcalc-summary", "3,500")
     assert "INPUT NOT ACCEPTED" not in _text(page, ".steamcalc-summary")
     assert _text(page, ".steamcalc-field-message-condensate_flow").strip() == ""
     assert page.locator(f"{PANEL} .steamcalc-stale-banner:visible").count() == 0
@@ -172,7 +172,7 @@ def test_letdown_help_alternatives_bands_computing_and_save_feedback(lab, browse
     revision.fill("B")
     revision.press("Enter")
     _type(page, "mass_flow", "5.0 t/h")
-    _wait_text(page, ".steamcalc-results", "5000")
+    _wait_text(page, ".steamcalc-results", "5,000")
     save.scroll_into_view_if_needed()
     save.click()
     _wait_text(page, ".steamcalc-save-status", "New record saved", timeout=180_000)
@@ -238,8 +238,9 @@ def test_review_compare_non_record_file_and_failed_verdict(lab, browser):
     assert [o.split("(")[0].strip() for o in options if o.startswith("LD-01")] == ["LD-01 rev A", "LD-01 rev A"]
     assert not any("rev B" in o or "LD-02" in o for o in options), options
     assert "LD-01_revA.json" in compare.evaluate("s => s.options[s.selectedIndex].text").replace("\xa0", " ")
-    table = _text(page, ".steamcalc-comparison")
-    assert "Steam flow\t4500\t5000\tkg/h\t500" in table          # an increase shows as a positive change
+    row = page.locator(f"{PANEL} .steamcalc-comparison tr", has_text="Steam flow").first
+    cells = [c.split("\n")[0].strip() for c in row.locator("td").all_inner_texts()]
+    assert cells[1:6] == ["Steam flow", "4,500", "5,000", "kg/h", "+500"], cells   # an increase shows as positive
     compare.evaluate("e => e.scrollIntoView({block: 'start'})")
     page.screenshot(path=str(shots / "15-1-compare.png"))
     _pick(page, "LD-02_revA.json")
