@@ -175,6 +175,16 @@ def test_tiny_xt_is_refused_by_the_valve_sizing(tmp_path):
     _outcome(tmp_path, case, _site_data(), "xt", 1e-300)
 
 
+@pytest.mark.parametrize("fl", [1e-320, 1e-200, 0.01])
+def test_tiny_spray_valve_fl_is_refused_by_its_field(fl, tmp_path):
+    # 1e-320 squared underflows to zero: the choked differential was 0 and the sizing divided by it
+    case = _case_data("letdown")
+    case["inputs"]["desuperheater"]["spray_valve_fl"] = fl
+    with pytest.raises(SteamcalcError) as info:
+        _issue(tmp_path, case, _site_data())
+    assert "spray_valve_fl" in str(info.value) and info.value.fix
+
+
 @FUZZ
 @given(key=st.sampled_from(list(SITE_KEYS) + ["headers.LP", "headers.MP", "headers"]), value=toml_values,
        kind=st.sampled_from(sorted(CASE_OF_KIND)))
