@@ -310,6 +310,9 @@ CASE_PAYLOADS = {
     "revision true": ('revision = "A"', "revision = true", "revision"),
     "site a number": ('site = "../site.toml"', "site = 123", "site"),
     "title a table": ('title = "HP to MP let-down, no desuperheating"', "title = {a = 1}", "title"),
+    # a trailing newline passed the file-name pattern ('$' matches before it): files named 'LD-02\n_revA.json'
+    "id with a trailing newline": ('id = "LD-02"', 'id = "LD-02\\n"', "id"),
+    "revision with a trailing newline": ('revision = "A"', 'revision = "A\\n"', "revision"),
 }
 
 
