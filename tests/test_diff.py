@@ -138,3 +138,20 @@ def test_a_crafted_uncertainty_section_gives_a_comparison_not_a_crash(revisions,
     captured = capsys.readouterr()
     assert "Traceback" not in captured.err and "internal error" not in captured.err
     assert "  - Outlet temperature: low end of the 90 % band: 147" in captured.out
+
+
+@pytest.mark.parametrize("crafted_value", [float("inf"), float("-inf"), 10 ** 400])
+def test_an_infinite_or_oversized_value_shows_as_changed_not_the_same_or_a_crash(revisions, tmp_path, capsys,
+                                                                                crafted_value):
+    # inf passed the relative tolerance (|a − inf| ≤ 1e-12·inf), so a record whose flow was edited to
+    # Infinity compared as "no differences"; an integer beyond a double crashed with OverflowError.
+    import json
+
+    record = json.loads(revisions[0].read_text())
+    record["inputs"]["mass_flow"]["value"] = crafted_value
+    crafted = tmp_path / "crafted.json"
+    crafted.write_text(json.dumps(record))
+    assert main(["diff", str(revisions[0]), str(crafted)]) == 0
+    captured = capsys.readouterr()
+    assert "Traceback" not in captured.err and "internal error" not in captured.err, captured.err
+    assert "1 changed" in captured.out and "Steam flow" in captured.out, captured.out
