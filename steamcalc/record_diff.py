@@ -24,8 +24,9 @@ SECTIONS = {
 #: Row status -> its marker in the terminal and Markdown (the HTML page uses the same).
 MARKERS = {"changed": "*", "added": "+", "removed": "-", "same": "="}
 
-_RECORD_FIELDS = {"id": "Case", "revision": "Revision", "title": "Title", "prepared_by": "Prepared by",
-                  "status": "Overall status", "checked_by": "Checked by (name-only sign-off)"}
+_RECORD_FIELDS = {"kind": "Calculation", "id": "Case", "revision": "Revision", "title": "Title",
+                  "prepared_by": "Prepared by", "status": "Overall status",
+                  "checked_by": "Checked by (name-only sign-off)"}
 _BAND_ENDS = (("low", "p05", "low end of the {} % band"), ("p50", "p50", "median"),
               ("high", "p95", "high end of the {} % band"))
 _METHOD_FIELDS = {"method": "Method", "samples": "Samples", "seed": "Seed", "generator": "Random generator",

@@ -155,3 +155,10 @@ def test_an_infinite_or_oversized_value_shows_as_changed_not_the_same_or_a_crash
     captured = capsys.readouterr()
     assert "Traceback" not in captured.err and "internal error" not in captured.err, captured.err
     assert "1 changed" in captured.out and "Steam flow" in captured.out, captured.out
+
+
+def test_a_changed_calculation_kind_is_a_difference(revisions, capsys):
+    # the kind was not compared: a record relabelled as another calculation showed "no differences"
+    old = load_record(revisions[0])
+    rows = diff_records(old, {**old, "kind": "flash"})
+    assert [(r["label"], r["old"], r["new"]) for r in rows] == [("Calculation", "letdown", "flash")]
