@@ -395,6 +395,28 @@ def test_injection_payloads_against_every_output(site_dir, tmp_path, capsys):
     assert "<script>" not in index
 
 
+@pytest.mark.parametrize("edit", ["Infinity", "-Infinity", "NaN", "1e999", "1" + "0" * 400])
+@pytest.mark.parametrize("command", ["verify", "register", "diff"])
+def test_a_record_edited_to_a_non_finite_or_oversized_number_is_refused_by_name(site_dir, tmp_path, capsys,
+                                                                                 edit, command):
+    # verify and register crashed (OverflowError in the recomputation, ValueError in the digest):
+    # steamcalc never writes such a number, so the record is refused when read
+    out = tmp_path / "out"
+    assert _run("run", site_dir / "cases" / "LD-02.toml", "--out", out) == 0
+    issued = out / "LD-02_revA.json"
+    text = issued.read_text()
+    value = re.search(r'"outlet_temperature": \{\s*"value": ([-0-9.e+]+)', text)
+    crafted = out / "LD-02_revB.json"
+    crafted.write_text(text[:value.start(1)] + edit + text[value.end(1):])
+    capsys.readouterr()
+    args = {"verify": [crafted], "register": [out], "diff": [issued, crafted]}[command]
+    code = _run(command, *args)
+    captured = capsys.readouterr()
+    err = captured.err if command != "register" else captured.out + captured.err   # the register lists it
+    assert "internal error" not in err and "Traceback" not in err, err
+    assert code in (1, 2) and crafted.name in err and "finite" in err, err
+
+
 def test_a_crafted_record_gives_no_script_link_in_the_index(site_dir, tmp_path):
     out = tmp_path / "out"
     assert _run("run", site_dir / "cases" / "LD-02.toml", "--out", out) == 0
