@@ -334,8 +334,10 @@ def register_csv(rows):
     """The register as CSV text."""
     buffer = io.StringIO()
     writer = csv.DictWriter(buffer, fieldnames=COLUMNS, lineterminator="\n")
+    from .batch import csv_safe   # a crafted title must not run as a spreadsheet formula
+
     writer.writeheader()
-    writer.writerows(r.as_dict() for r in rows)
+    writer.writerows({k: csv_safe(v) for k, v in r.as_dict().items()} for r in rows)
     return buffer.getvalue()
 
 

@@ -178,3 +178,14 @@ def test_an_edited_later_revision_does_not_supersede_and_an_unreadable_file_is_n
     assert by_file["LD-02_revA.json"].current and by_file["LD-02_revA.json"].ok
     assert not by_file["LD-02_revB.json"].valid and "superseded" not in " ".join(by_file["LD-02_revB.json"].stale)
     assert not by_file["broken.json"].current
+
+
+def test_register_csv_cells_are_never_read_as_formulas(site, tmp_path, capsys):
+    # the index CSV quoted a leading '=', the register CSV wrote a crafted title as a live formula
+    records = site / "records"
+    data = json.loads((records / "LD-02_revA.json").read_text())
+    data["title"] = '=HYPERLINK("http://example.invalid")'
+    (records / "LD-02_revA.json").write_text(json.dumps(data))
+    main(["register", str(site), "--csv", str(tmp_path / "register.csv")])
+    rows = list(csv.reader((tmp_path / "register.csv").read_text().splitlines()[1:]))
+    assert rows and all(cell[:1] not in ("=", "+", "-", "@", "\t", "\r") for row in rows for cell in row), rows
