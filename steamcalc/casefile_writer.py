@@ -244,11 +244,11 @@ def write_new_file(path, text):
     """
     path = Path(path)
     descriptor, temporary = tempfile.mkstemp(dir=path.parent, prefix=f".{path.name}.", suffix=".partial")
-    with os.fdopen(descriptor, "w", encoding="utf-8", newline="\n") as handle:
-        handle.write(text)
-        handle.flush()
-        os.fsync(handle.fileno())
-    try:
+    try:   # a failed write (disk full, a text that cannot be encoded) removes its temporary file too
+        with os.fdopen(descriptor, "w", encoding="utf-8", newline="\n") as handle:
+            handle.write(text)
+            handle.flush()
+            os.fsync(handle.fileno())
         os.link(temporary, path)
     finally:
         os.unlink(temporary)
@@ -277,12 +277,24 @@ def save_case(case, values, inputs_class, folder=None, uncertainty=None):
         When this revision of the case is already in a case file with other contents, or the
         file name is taken: naming the file, and the next free revision as the fix.
     """
+    from .site import is_file_name_part
+
+    for name in ("id", "revision"):   # they make the file name: nothing that leads out of the folder
+        if not is_file_name_part(getattr(case, name)):
+            raise CaseFileError(f"the {name} is text of letters, digits, '.', '_' and '-', not starting with '.'",
+                                field=name, value=getattr(case, name), fix=f"give a plain {name}, e.g. {'LD-02' if name == 'id' else 'B'}")
     folder = Path(folder) if folder is not None else Path(case.path).parent
     document = case_document(case, values, inputs_class, uncertainty, folder)
     text = HEADER + "\n" + toml_text(document)
     if tomllib.loads(text) != document:   # the writer must round-trip what it wrote
         raise CaseFileError("the case could not be written so that it reads back the same",
                             fix="report this; save the record instead")
+    try:
+        text.encode("utf-8")
+    except UnicodeEncodeError as exc:     # a lone surrogate, which a browser can send
+        raise CaseFileError("a text holds a character that cannot be written to a file "
+                            f"(an unpaired surrogate at position {exc.start} of the case file)",
+                            fix="retype the title, notes or inputs without it") from None
     mine = _contents(document, folder)
     for path, existing in _same_revision_files(folder, case.id, case.revision):
         if _contents(existing, folder) == mine:

@@ -20,7 +20,9 @@ from __future__ import annotations
 import copy
 import hashlib
 import json
+import math
 import platform
+import sys
 from datetime import datetime, timezone
 from functools import lru_cache
 from importlib import metadata
@@ -140,8 +142,23 @@ def load_record(path):
 
     path = Path(path)
     text = read_text_file(path, "record file", MAX_RECORD_FILE, RecordError)
+
+    def refuse(number):   # steamcalc never writes one; later arithmetic and the digest would fail on it
+        raise RecordError(f"not a record steamcalc issued: it holds the number {number[:20]}, which is not "
+                          "finite or lies beyond a double", source=path, fix="re-issue the record from its case file")
+
+    def finite_float(word):
+        number = float(word)
+        return number if math.isfinite(number) else refuse(word)
+
+    def bounded_int(word):
+        if len(word) > 309:   # more digits than any double (and than int() reads by default)
+            refuse(word)
+        number = int(word)
+        return number if abs(number) <= sys.float_info.max else refuse(word)
+
     try:
-        data = json.loads(text)
+        data = json.loads(text, parse_constant=refuse, parse_float=finite_float, parse_int=bounded_int)
     except (json.JSONDecodeError, RecursionError) as exc:
         raise RecordError(f"not a JSON file: {exc}", source=path) from None
     if not isinstance(data, dict) or data.get("schema") != SCHEMA:

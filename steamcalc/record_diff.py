@@ -11,6 +11,9 @@ that are the same follow on request, marked ``=``, so a change is never buried a
 
 from __future__ import annotations
 
+import math
+import sys
+
 #: Section key -> the heading a reader sees, in the order sections are compared.
 SECTIONS = {
     "record": "Record", "inputs": "Inputs", "tolerances": "Input tolerances (±)", "results": "Results",
@@ -21,8 +24,9 @@ SECTIONS = {
 #: Row status -> its marker in the terminal and Markdown (the HTML page uses the same).
 MARKERS = {"changed": "*", "added": "+", "removed": "-", "same": "="}
 
-_RECORD_FIELDS = {"id": "Case", "revision": "Revision", "title": "Title", "prepared_by": "Prepared by",
-                  "status": "Overall status", "checked_by": "Checked by (name-only sign-off)"}
+_RECORD_FIELDS = {"kind": "Calculation", "id": "Case", "revision": "Revision", "title": "Title",
+                  "prepared_by": "Prepared by", "status": "Overall status",
+                  "checked_by": "Checked by (name-only sign-off)"}
 _BAND_ENDS = (("low", "p05", "low end of the {} % band"), ("p50", "p50", "median"),
               ("high", "p95", "high end of the {} % band"))
 _METHOD_FIELDS = {"method": "Method", "samples": "Samples", "seed": "Seed", "generator": "Random generator",
@@ -216,7 +220,7 @@ def _label_units(rows, record):
         section = {"bands": "results", "sensitivity": "tolerances"}.get(row["section"], row["section"])
         unit = row["unit"]
         row["unit_label"] = format_unit(unit, pressure_basis(record, section, row.pop("basis_key"))) if unit else ""
-        row["old_text"], row["new_text"] = format_number(row["old"]), format_number(row["new"])
+        row["old_text"], row["new_text"] = (str(v) if _oversized(v) else format_number(v) for v in (row["old"], row["new"]))
         change = row["change"]
         row["change_text"] = f"{'+' if change > 0 else ''}{format_number(change)}" if _is_number(change) else change
         row.setdefault("case_key", None)
@@ -247,13 +251,20 @@ def _list(value):
 
 
 def _is_number(value):
-    return isinstance(value, (int, float)) and not isinstance(value, bool)
+    # an integer beyond a double (a crafted record) is not one: arithmetic with it overflows
+    return (isinstance(value, (int, float)) and not isinstance(value, bool)
+            and (isinstance(value, float) or abs(value) <= sys.float_info.max))
+
+
+def _oversized(value):
+    return isinstance(value, int) and not isinstance(value, bool) and not _is_number(value)
 
 
 def _same(a, b):
-    # Round trips through record units may move the last bits; those are not changes.
+    # Round trips through record units may move the last bits; those are not changes. An infinite
+    # value is the same only as itself (the tolerance 1e-12·inf would take any number).
     if _is_number(a) and _is_number(b):
-        return a == b or abs(a - b) <= 1e-12 * max(abs(a), abs(b))
+        return a == b or (math.isfinite(a) and math.isfinite(b) and abs(a - b) <= 1e-12 * max(abs(a), abs(b)))
     if isinstance(a, list) and isinstance(b, list) and len(a) == len(b):
         return all(_same(x, y) for x, y in zip(a, b))
     return a == b

@@ -279,10 +279,18 @@ def build_register(folder, trusted_dir=None, recompute=True):
             records.append((path, load_record(path)))
         except SteamcalcError as exc:
             unreadable.append(RegisterRow(json=path.name, verification=f"not a readable record ({exc.message})",
-                                          valid=False))
+                                          valid=False, stale=["not a readable record"]))
+    from .record import compute_digest
+
+    # An edited file (its digest broken) supersedes no intact revision; an id with none intact keeps its
+    # highest revision as the latest.
+    intact = [compute_digest(record) == record.get("digest") for _, record in records]
+    with_intact = {record["id"] for (_, record), ok in zip(records, intact) if ok}
     latest = {}
-    for _, record in records:
+    for (_, record), ok in zip(records, intact):
         rev = str(record["revision"])
+        if not ok and record["id"] in with_intact:
+            continue
         if record["id"] not in latest or revision_order(rev) > revision_order(latest[record["id"]]):
             latest[record["id"]] = rev
     cases = _cases_by_id(site_dir)
@@ -296,7 +304,8 @@ def build_register(folder, trusted_dir=None, recompute=True):
             site_path = site_file
         top = latest[record["id"]]
         rows.append(register_row(path, record, trusted=trusted, case=case, site_path=site_path,
-                                 later_revision=None if top == str(record["revision"]) else top, recompute=recompute))
+                                 later_revision=None if revision_order(str(record["revision"])) >= revision_order(top)
+                                 else top, recompute=recompute))
     rows.sort(key=lambda r: (r.id, revision_order(r.revision)))
     return rows + unreadable
 
@@ -325,8 +334,10 @@ def register_csv(rows):
     """The register as CSV text."""
     buffer = io.StringIO()
     writer = csv.DictWriter(buffer, fieldnames=COLUMNS, lineterminator="\n")
+    from .batch import csv_safe   # a crafted title must not run as a spreadsheet formula
+
     writer.writeheader()
-    writer.writerows(r.as_dict() for r in rows)
+    writer.writerows({k: csv_safe(v) for k, v in r.as_dict().items()} for r in rows)
     return buffer.getvalue()
 
 

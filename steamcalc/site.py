@@ -20,7 +20,7 @@ from .quantities import (
     STANDARD_ATMOSPHERE, parse_pressure, parse_quantity, standard_atmosphere_pressure,
 )
 
-ID_PATTERN = re.compile(r"^[A-Za-z0-9._-]+$")
+ID_PATTERN = re.compile(r"^[A-Za-z0-9._-]+\Z")  # \Z: "$" would let a trailing newline through
 
 
 def is_file_name_part(text):

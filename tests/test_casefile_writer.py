@@ -149,6 +149,29 @@ def test_hostile_texts_round_trip(site):
     assert (again.title, again.prepared_by, again.notes) == (case.title, case.prepared_by, case.notes)
 
 
+def test_text_that_cannot_be_encoded_is_refused_and_leaves_no_partial_file(site):
+    # A lone surrogate (a browser can send one) raised UnicodeEncodeError and left '.LD-01_revB.toml.*.partial'
+    case = load_case(site / "cases" / "LD-01.toml")
+    calc = get_calculation(case.kind)
+    with pytest.raises(CaseFileError) as info:
+        save_case(dataclasses.replace(case, revision="B", title="half \ud800 pair"),
+                  flatten_inputs(calc.Inputs, case.inputs), calc.Inputs)
+    assert info.value.fix
+    assert sorted(p.name for p in (site / "cases").iterdir()) == sorted(p.name for p in (DEMO / "cases").iterdir())
+
+
+@pytest.mark.parametrize("field, value", [("id", "../../evil"), ("revision", "../x"), ("revision", "a/b"),
+                                          ("revision", "\uff22"), ("id", ".hidden")])
+def test_an_id_or_revision_that_is_not_a_plain_file_name_is_refused(site, field, value):
+    # save_case took id and revision as given: '../../evil' was written two folders up
+    case = load_case(site / "cases" / "LD-01.toml")
+    calc = get_calculation(case.kind)
+    with pytest.raises(CaseFileError) as info:
+        save_case(dataclasses.replace(case, **{field: value}), flatten_inputs(calc.Inputs, case.inputs), calc.Inputs)
+    assert info.value.field == field
+    assert not list(site.parent.rglob("*evil*")) and not list(site.parent.rglob("*_rev*"))
+
+
 @pytest.mark.parametrize("revision, expected", [
     ("A", "B"), ("Z", "AA"), ("AZ", "BA"), ("b", "c"), ("1", "2"), ("09", "10"), ("B1", "B2"), ("1.2", "1.3"),
     ("P-", "P-1"),

@@ -299,6 +299,8 @@ def test_good_case_text_runs(tmp_path, capsys):
     (BACK, "", VALVE + '\nrated_kv_max = "20 m^3/h"', "rated_kv_max"),       # unknown key
     (BACK, "", 'supply_pressure = "8 bar"', "control_valve.supply_pressure"),  # no basis
     (BACK, 'lift_head = "4 bar"', VALVE, "drainage.lift_head"),              # wrong dimension
+    (BACK, 'lift_head = "1e4 m"', VALVE, "drainage.lift_head"),  # a lift no steam can drain against (was
+                                                                 # blamed on the back pressure / trap differential)
 ])
 def test_bad_control_and_drainage_input_exits_2(tmp_path, capsys, back, drainage, valve, field):
     assert_refused(tmp_path, capsys, CASE_TEXT.format(back=back, drainage=drainage, valve=valve), field)

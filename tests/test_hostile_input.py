@@ -175,6 +175,16 @@ def test_tiny_xt_is_refused_by_the_valve_sizing(tmp_path):
     _outcome(tmp_path, case, _site_data(), "xt", 1e-300)
 
 
+@pytest.mark.parametrize("fl", [1e-320, 1e-200, 0.01])
+def test_tiny_spray_valve_fl_is_refused_by_its_field(fl, tmp_path):
+    # 1e-320 squared underflows to zero: the choked differential was 0 and the sizing divided by it
+    case = _case_data("letdown")
+    case["inputs"]["desuperheater"]["spray_valve_fl"] = fl
+    with pytest.raises(SteamcalcError) as info:
+        _issue(tmp_path, case, _site_data())
+    assert "spray_valve_fl" in str(info.value) and info.value.fix
+
+
 @FUZZ
 @given(key=st.sampled_from(list(SITE_KEYS) + ["headers.LP", "headers.MP", "headers"]), value=toml_values,
        kind=st.sampled_from(sorted(CASE_OF_KIND)))
@@ -300,6 +310,9 @@ CASE_PAYLOADS = {
     "revision true": ('revision = "A"', "revision = true", "revision"),
     "site a number": ('site = "../site.toml"', "site = 123", "site"),
     "title a table": ('title = "HP to MP let-down, no desuperheating"', "title = {a = 1}", "title"),
+    # a trailing newline passed the file-name pattern ('$' matches before it): files named 'LD-02\n_revA.json'
+    "id with a trailing newline": ('id = "LD-02"', 'id = "LD-02\\n"', "id"),
+    "revision with a trailing newline": ('revision = "A"', 'revision = "A\\n"', "revision"),
 }
 
 
@@ -380,6 +393,28 @@ def test_injection_payloads_against_every_output(site_dir, tmp_path, capsys):
     index = html_index.read_text()
     assert all(href.startswith("./") for href in re.findall(r"href='([^']*)'", index))
     assert "<script>" not in index
+
+
+@pytest.mark.parametrize("edit", ["Infinity", "-Infinity", "NaN", "1e999", "1" + "0" * 400])
+@pytest.mark.parametrize("command", ["verify", "register", "diff"])
+def test_a_record_edited_to_a_non_finite_or_oversized_number_is_refused_by_name(site_dir, tmp_path, capsys,
+                                                                                 edit, command):
+    # verify and register crashed (OverflowError in the recomputation, ValueError in the digest):
+    # steamcalc never writes such a number, so the record is refused when read
+    out = tmp_path / "out"
+    assert _run("run", site_dir / "cases" / "LD-02.toml", "--out", out) == 0
+    issued = out / "LD-02_revA.json"
+    text = issued.read_text()
+    value = re.search(r'"outlet_temperature": \{\s*"value": ([-0-9.e+]+)', text)
+    crafted = out / "LD-02_revB.json"
+    crafted.write_text(text[:value.start(1)] + edit + text[value.end(1):])
+    capsys.readouterr()
+    args = {"verify": [crafted], "register": [out], "diff": [issued, crafted]}[command]
+    code = _run(command, *args)
+    captured = capsys.readouterr()
+    err = captured.err if command != "register" else captured.out + captured.err   # the register lists it
+    assert "internal error" not in err and "Traceback" not in err, err
+    assert code in (1, 2) and crafted.name in err and "finite" in err, err
 
 
 def test_a_crafted_record_gives_no_script_link_in_the_index(site_dir, tmp_path):

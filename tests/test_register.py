@@ -163,3 +163,29 @@ def test_the_run_index_carries_the_register_columns(site):
     assert rows["LD-02_revA.json"]["current"] == "no: superseded by revision B"
     assert rows["LD-02_revB.json"]["current"] == "yes" and rows["LD-03_revA.json"]["signatures"] == "not signed"
     assert "site data" in (site / "records" / "index.html").read_text()
+
+
+def test_an_edited_later_revision_does_not_supersede_and_an_unreadable_file_is_not_current(site, capsys):
+    # A hand-edited copy relabelled rev B (digest broken) made the genuine rev A "superseded", and a file
+    # that is not a readable record was listed as current.
+    records = site / "records"
+    data = json.loads((records / "LD-02_revA.json").read_text())
+    data["revision"] = "B"
+    (records / "LD-02_revB.json").write_text(json.dumps(data))
+    (records / "broken.json").write_text("{not json")
+    rows = build_register(site)
+    by_file = {r.json: r for r in rows}
+    assert by_file["LD-02_revA.json"].current and by_file["LD-02_revA.json"].ok
+    assert not by_file["LD-02_revB.json"].valid and "superseded" not in " ".join(by_file["LD-02_revB.json"].stale)
+    assert not by_file["broken.json"].current
+
+
+def test_register_csv_cells_are_never_read_as_formulas(site, tmp_path, capsys):
+    # the index CSV quoted a leading '=', the register CSV wrote a crafted title as a live formula
+    records = site / "records"
+    data = json.loads((records / "LD-02_revA.json").read_text())
+    data["title"] = '=HYPERLINK("http://example.invalid")'
+    (records / "LD-02_revA.json").write_text(json.dumps(data))
+    main(["register", str(site), "--csv", str(tmp_path / "register.csv")])
+    rows = list(csv.reader((tmp_path / "register.csv").read_text().splitlines()[1:]))
+    assert rows and all(cell[:1] not in ("=", "+", "-", "@", "\t", "\r") for row in rows for cell in row), rows

@@ -257,9 +257,12 @@ def _stall(inputs, duty, ua_clean, ua_fouled, basis_clean, basis_fouled, condens
         clean = stall_load(duty, ua_clean, t_in, t_out, drain)
         fouled = stall_load(duty, ua_fouled, t_in, t_out, drain)
     except OutOfRangeError as exc:
-        field = "drainage.trap_min_differential" if differential else "condensate_back_pressure"
-        raise InputError(f"drainage would stop below {drain / 1e5:.4g} bar(a) (back pressure + trap differential "
-                         f"− static head): {exc.message}", field=field, limits=exc.limits,
+        lift = back - inputs.condensate_back_pressure   # the lift's ρ·g·H, when given: name it if it is the most
+        field = ("drainage.lift_head" if lift > max(differential, inputs.condensate_back_pressure)
+                 else "drainage.trap_min_differential" if differential else "condensate_back_pressure")
+        raise InputError(f"drainage would stop below {drain / 1e5:.4g} bar(a) (back pressure"
+                         f"{' with the lift' if lift else ''} + trap differential − static head): {exc.message}",
+                         field=field, limits=exc.limits,
                          fix="check condensate_back_pressure and the [inputs.drainage] figures") from None
     if drain > TRIPLE_POINT_PRESSURE:
         t_back = saturation_temperature(drain)

@@ -30,6 +30,8 @@ DEFAULT_CHARACTERISTIC = "equal-percentage"
 SPRAY_PRESSURE_DIFFERENCE_RESULTS = ("spray_valve_pressure_differential", "spray_valve_choked_differential")
 #: Droplet sizes outside this range are a slip of the unit (e.g. mm for µm), m.
 DROPLET_SIZE_RANGE = (5e-6, 1e-3)
+#: Smallest spray-valve FL accepted.
+MIN_FL = 0.3
 
 _FIELDS = {
     "spray_supply_pressure": dict(
@@ -90,9 +92,11 @@ def check_spray_inputs(inputs):
                          field=_address(given[0]), fix="add target_superheat or target_temperature to "
                          "[inputs.desuperheater], or remove the spray data")
     fl = inputs.spray_valve_fl
-    if fl is not None and not 0.0 < fl <= 1.0:
-        raise InputError("FL must lie above 0 and at most 1", field=_address("spray_valve_fl"), value=fl,
-                         limits=(0.0, 1.0, ""), fix="take FL from the valve maker's data (globe valves 0.8-0.95)")
+    # 0.3 lies below every valve style's typical FL (IEC 60534-2-1 Annex A, from memory); a smaller figure is
+    # a slip, and one near 1e-160 squares to zero in the choked differential the sizing divides by
+    if fl is not None and not MIN_FL <= fl <= 1.0:
+        raise InputError(f"FL must lie between {MIN_FL} and 1", field=_address("spray_valve_fl"), value=fl,
+                         limits=(MIN_FL, 1.0, ""), fix="take FL from the valve maker's data (globe valves 0.8-0.95)")
     if inputs.spray_valve_characteristic not in (None, "linear", "equal-percentage"):
         raise InputError("the characteristic is 'linear' or 'equal-percentage'",
                          field=_address("spray_valve_characteristic"), value=inputs.spray_valve_characteristic)
