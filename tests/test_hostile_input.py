@@ -185,6 +185,18 @@ def test_tiny_spray_valve_fl_is_refused_by_its_field(fl, tmp_path):
     assert "spray_valve_fl" in str(info.value) and info.value.fix
 
 
+@pytest.mark.parametrize("section, key", [("valve", "fd"), ("relief", "kd"), ("relief", "kc"),
+                                          ("turbine", "isentropic_efficiency")])
+@pytest.mark.parametrize("value", [1e-320, 1e-5])
+def test_tiny_coefficients_and_efficiencies_are_refused_by_their_field(section, key, value, tmp_path):
+    # valve.fd = 1e-320 was an internal ZeroDivisionError; relief.kd = 1e-320 an internal "not finite"
+    case = _case_data("letdown")
+    case["inputs"].setdefault(section, {})[key] = value
+    with pytest.raises(SteamcalcError) as info:
+        _issue(tmp_path, case, _site_data())
+    assert f"{section}.{key}" in str(info.value) and info.value.fix and "below 0.01" in str(info.value)
+
+
 @FUZZ
 @given(key=st.sampled_from(list(SITE_KEYS) + ["headers.LP", "headers.MP", "headers"]), value=toml_values,
        kind=st.sampled_from(sorted(CASE_OF_KIND)))

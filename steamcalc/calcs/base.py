@@ -101,6 +101,10 @@ def field_path(f):
     return f"{section}.{field_key(f)}" if section else field_key(f)
 
 
+#: Smallest positive coefficient or efficiency (a fraction field declared positive) accepted.
+MIN_POSITIVE_FRACTION = 0.01
+
+
 def check_fields(inputs):
     """The checks every Inputs class shares: required fields given, positive fields above zero.
 
@@ -116,6 +120,13 @@ def check_fields(inputs):
         if f.metadata["positive"] and value <= 0.0:
             raise InputError(f"{f.metadata['label'].lower()} must be above zero", field=field_path(f),
                              fix=f"give a {f.metadata['label'].lower()} above zero")
+        # A positive coefficient or efficiency below 1 % is a slip (a percent typed as a fraction twice,
+        # a stray exponent), and the sizing would divide by its square.
+        if f.metadata["positive"] and f.metadata["kind"] == "fraction" and value < MIN_POSITIVE_FRACTION:
+            raise InputError(f"{f.metadata['label']} of {value:g} is below {MIN_POSITIVE_FRACTION:g}: no valve, "
+                             "relief device or machine has so small a figure", field=field_path(f), value=value,
+                             limits=(MIN_POSITIVE_FRACTION, 1.0, ""),
+                             fix=f"give the {f.metadata['label']} from the maker's data, e.g. {f.metadata['example']}")
 
 
 def bar_a(pressure):

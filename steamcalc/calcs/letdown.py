@@ -118,7 +118,7 @@ class Inputs:
         "fraction", "xT", "Pressure differential ratio factor at choked flow (maker's data).", example="0.70",
         section="valve", positive=True)
     fd: float | None = input_field(
-        "number", "Fd", "Valve style modifier (maker's data).", example="1.0", section="valve")
+        "fraction", "Fd", "Valve style modifier (maker's data).", example="1.0", section="valve", positive=True)
     rated_kv: float | None = input_field(
         "flow_coefficient", "Rated Kv (Kvs)", "Kv of the selected valve at full travel.", example="40 m³/h",
         section="valve", positive=True)
