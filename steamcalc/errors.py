@@ -54,14 +54,23 @@ class SteamcalcError(Exception):
             parts.append(f"{self.source}:")
         if self.field:
             parts.append(f"field '{self.field}':")
-        parts.append(self.message)
+        parts.append(self.explained())
+        return " ".join(parts)
+
+    def explained(self, message=None, fix=None):
+        """What is wrong, the value given, its range and the fix, without the file or field.
+
+        ``message`` and ``fix`` replace the error's own texts (the workbook words them for its form).
+        """
+        parts = [self.message if message is None else message]
         if self.value is not None and f"{self.value!r}" not in self.message:
             parts.append(f"(given: {self.value!r})")
         if self.limits is not None:
             low, high, unit = self.limits
             parts.append(f"Valid range: {low:g} to {high:g}{' ' + unit if unit else ''}.")
-        if self.fix:
-            parts.append(f"Fix: {self.fix}")
+        fix = self.fix if fix is None else fix
+        if fix:
+            parts.append(f"Fix: {fix}")
         return " ".join(parts)
 
 

@@ -101,12 +101,6 @@ class FormWords:
         form is the source).
         """
         message = self.text(exc.message)
-        parts = [message if message.endswith((".", ":", "!", "?")) or not exc.fix else message + "."]
-        if exc.value is not None and f"{exc.value!r}" not in exc.message:
-            parts.append(f"(given: {exc.value!r})")
-        if exc.limits is not None:
-            low, high, unit = exc.limits
-            parts.append(f"Valid range: {low:g} to {high:g}{' ' + unit if unit else ''}.")
-        if exc.fix:
-            parts.append(f"Fix: {self.fix(exc.fix)}")
-        return " ".join(parts)
+        if exc.fix and not message.endswith((".", ":", "!", "?")):
+            message += "."
+        return exc.explained(message, self.fix(exc.fix))
