@@ -26,6 +26,19 @@ DEFAULT_SCHEDULE = "40"
 #: Travel limits (common practice): fail outside 10-90 %, warn outside 20-80 %.
 TRAVEL_FAIL = (0.10, 0.90)
 TRAVEL_WARN = (0.20, 0.80)
+
+
+def travel_status(travel):
+    """``fail`` outside the usable travel, ``warn`` outside the preferred, else ``pass`` (common practice).
+
+    >>> travel_status(0.05), travel_status(0.85), travel_status(0.5)
+    ('fail', 'warn', 'pass')
+    """
+    if travel < TRAVEL_FAIL[0] or travel > TRAVEL_FAIL[1]:
+        return "fail"
+    if travel < TRAVEL_WARN[0] or travel > TRAVEL_WARN[1]:
+        return "warn"
+    return "pass"
 #: Preferred nominal sizes for suggestions (common practice: DN90, DN125 and the like are
 #: hard to buy and to fit).
 NON_PREFERRED_DN = (90, 125)
@@ -273,13 +286,7 @@ def _rated_valve(inputs, sizing, design, result):
     for name, s in sizing.items():
         travel = rated_travel(inputs, s.kv)
         result.add(f"valve_travel_{name}", f"Valve travel, {name} flow", 100.0 * travel, "percent")
-        if travel < TRAVEL_FAIL[0] or travel > TRAVEL_FAIL[1]:
-            status = "fail"
-        elif travel < TRAVEL_WARN[0] or travel > TRAVEL_WARN[1]:
-            status = "warn"
-        else:
-            status = "pass"
-        result.check(f"Valve travel at {name} flow", status,
+        result.check(f"Valve travel at {name} flow", travel_status(travel),
                      f"{100 * travel:.0f} % travel ({characteristic}, R = {rangeability:g}); "
                      "10-90 % usable, 20-80 % preferred (common practice)")
     result.add("valve_travel", "Valve travel at the normal flow", result.value("valve_travel_normal"), "percent")

@@ -23,7 +23,7 @@ from ..equipment.piping import line_velocity, pipe_inner_diameter
 from ..errors import InputError, OutOfRangeError
 from ..steam import CRITICAL_PRESSURE, SteamState, saturation_pressure, saturation_temperature, thermal_conductivity
 from .base import bar_a, deg_c, input_field, kj_kg
-from .letdown_equipment import DEFAULT_FL, DEFAULT_RANGEABILITY, DEFAULT_SCHEDULE, TRAVEL_FAIL, TRAVEL_WARN, flow_cases
+from .letdown_equipment import DEFAULT_FL, DEFAULT_RANGEABILITY, DEFAULT_SCHEDULE, TRAVEL_FAIL, flow_cases, travel_status
 
 DEFAULT_CHARACTERISTIC = "equal-percentage"
 #: Spray results that hold a pressure difference (shown as "bar difference").
@@ -311,13 +311,7 @@ def _rated_spray_valve(kvs, sizing, characteristic, rangeability, result):
                     "h = Kv/Kvs (linear) or h = 1 + ln(Kv/Kvs)/ln R (equal-percentage)  [IEC 60534-2-4]",
                     f"Kv/Kvs = {s.kv:.4f} / {kvs:.4g}, {characteristic}, R = {rangeability:g}", 100.0 * travel,
                     "percent")
-        if note or travel < TRAVEL_FAIL[0] or travel > TRAVEL_FAIL[1]:
-            status = "fail"
-        elif travel < TRAVEL_WARN[0] or travel > TRAVEL_WARN[1]:
-            status = "warn"
-        else:
-            status = "pass"
-        result.check(f"Spray valve travel at {name} steam flow", status,
+        result.check(f"Spray valve travel at {name} steam flow", "fail" if note else travel_status(travel),
                      f"{100 * travel:.0f} % travel" + (f", {note}" if note else "")
                      + f" ({characteristic}, R = {rangeability:g}); 10-90 % usable, 20-80 % preferred (common practice)")
 
