@@ -133,7 +133,7 @@ def verify_record(record, engine=REFERENCE_ENGINE):
     new_checks = [(c.name, c.status, c.detail) for c in fresh.checks]
     if "uncertainty" in record:
         if engine == REFERENCE_ENGINE:
-            section = _compare_uncertainty(record, result)
+            section = _compare_uncertainty(record, result, fresh)
         else:
             section = record["uncertainty"]
             result.notes.append("uncertainty bands not recomputed on this engine (their samples run on the fast "
@@ -281,9 +281,9 @@ def verify_file(path, engine=REFERENCE_ENGINE):
     return path, record, verify_record(record, engine=engine), None
 
 
-def _compare_uncertainty(record, outcome):
+def _compare_uncertainty(record, outcome, nominal_result):
     try:
-        fresh = recompute_uncertainty(record)
+        fresh = recompute_uncertainty(record, nominal_result)
     except (SteamcalcError, KeyError, TypeError, ValueError) as exc:
         outcome.error = f"the record's uncertainty section could not be recomputed: {exc}"
         return None

@@ -81,8 +81,12 @@ def recompute(record, engine=REFERENCE_ENGINE):
         return calc.calculate(inputs, site)
 
 
-def recompute_uncertainty(record):
-    """Re-run a record's uncertainty section from its inputs, tolerances, samples, seed and coverage."""
+def recompute_uncertainty(record, nominal_result=None):
+    """Re-run a record's uncertainty section from its inputs, tolerances, samples, seed and coverage.
+
+    ``nominal_result`` is the record's calculation already recomputed on the engine of issued records
+    (verify has it), so the nominal is not computed twice.
+    """
     from .uncertainty import DEFAULT_COVERAGE, run_uncertainty, tolerances_from_record
 
     calc = get_calculation(record["kind"])
@@ -91,7 +95,7 @@ def recompute_uncertainty(record):
     with using_engine(REFERENCE_ENGINE):
         return run_uncertainty(calc, inputs, Site.from_record(record["site"]),
                                tolerances_from_record(calc.Inputs, section), section["samples"], section["seed"],
-                               coverage=section.get("coverage", DEFAULT_COVERAGE))
+                               coverage=section.get("coverage", DEFAULT_COVERAGE), nominal_result=nominal_result)
 
 
 def default_out_dir(case):
