@@ -221,7 +221,7 @@ def _parser():
 
 
 def _run(args):
-    from .batch import find_case_files, run_cases, write_index
+    from .batch.batch import find_case_files, run_cases, write_index
 
     paths = find_case_files(args.cases)
     if args.out and Path(args.out).exists() and not Path(args.out).is_dir():
@@ -271,8 +271,8 @@ def _run(args):
 def _companions(args, outcome):
     if not (args.notebook or args.pdf):
         return EXIT_OK
-    from .companions import run_notebook, write_pdf
-    from .site import load_case
+    from .records.companions import run_notebook, write_pdf
+    from .cases.site import load_case
 
     json_path = Path(outcome.paths[0])
     try:
@@ -297,7 +297,7 @@ def _record_files(paths):
 
 def _verify_one(raw, engine):
     """``(path, record, verification, error)`` for one record file; never raises for a bad file."""
-    from .review import verify_file
+    from .review.verify import verify_file
 
     try:
         return verify_file(raw, engine)
@@ -313,7 +313,7 @@ def _verify(args):
     worst = EXIT_OK
     files = _record_files(args.records)
     if args.scheduler:
-        from .cluster import verify_on_cluster
+        from .batch.cluster import verify_on_cluster
         checked = verify_on_cluster(files, args.engine, args.scheduler, progress=len(files) > 1)
     else:
         checked = (_verify_one(raw, args.engine) for raw in files)
@@ -333,7 +333,7 @@ def _verify(args):
             _say(format_comparisons(outcome.comparisons, record))
             largest = outcome.largest_difference
             if largest is not None:
-                from .display import result_label
+                from .render.display import result_label
                 _say(f"  largest relative difference: {largest.rel_diff:.1e} ({result_label(record, largest.key)})")
             for note in outcome.notes:
                 _say(f"  note: {note}")
@@ -350,9 +350,9 @@ def _verify(args):
 
 
 def format_comparisons(comparisons, record=None):
-    """The per-result table of a verification, as text (laid out by :func:`steamcalc.display.verify_table`)."""
-    from .display import verify_table
-    from .review import ABSOLUTE_TOLERANCE, RELATIVE_TOLERANCE
+    """The per-result table of a verification, as text (laid out by :func:`steamcalc.render.display.verify_table`)."""
+    from .render.display import verify_table
+    from .review.verify import ABSOLUTE_TOLERANCE, RELATIVE_TOLERANCE
 
     return verify_table(comparisons, record, RELATIVE_TOLERANCE, ABSOLUTE_TOLERANCE)
 
@@ -364,8 +364,8 @@ def _cell(value):
 
 
 def _diff(args):
-    from .record import load_record
-    from .record_diff import diff_records
+    from .records.record import load_record
+    from .review.diff import diff_records
 
     if args.html:
         _check_diff_target(args)
@@ -374,8 +374,8 @@ def _diff(args):
     for line in format_diff(rows, old, new, args.old, args.new, args.all):
         _say(line)
     if args.html:
-        from .record import write_text_atomic
-        from .report import render_diff_html
+        from .records.record import write_text_atomic
+        from .render.report import render_diff_html
         write_text_atomic(args.html, render_diff_html(old, new, rows))
         _say(f"  written: {args.html}")
     return EXIT_OK
@@ -388,7 +388,7 @@ _LONG_TEXT = 48
 def format_diff(rows, old, new, old_name, new_name, unchanged=False):
     """The lines ``steamcalc diff`` prints: a summary, then every row that differs, marked, by section;
     with ``unchanged`` the rows that are the same follow, marked ``=``."""
-    from .record_diff import diff_summary
+    from .review.diff import diff_summary
 
     differing = [r for r in rows if r["status"] != "same"]
     same = [r for r in rows if r["status"] == "same"]
@@ -445,9 +445,9 @@ def _diff_cell(row, side):
 
 def _verify_trust(args, raw, record, outcome):
     """Status, statements, companions and signatures of a verification; True when all hold."""
-    from .review import check_companions
-    from .keys import load_trusted, trusted_folder_for
-    from .signing import check_signatures, name_only_signoff
+    from .review.verify import check_companions
+    from .signing.keys import load_trusted, trusted_folder_for
+    from .signing.signatures import check_signatures, name_only_signoff
 
     for change in outcome.statement_changes:
         _say(f"  statement changed: {change}")
@@ -458,7 +458,9 @@ def _verify_trust(args, raw, record, outcome):
     for c in companions:
         _say(f"  companion {c.path.name}: " + {"match": "matches the JSON", "absent": "absent",
               "repaired": "re-rendered from the JSON (repaired)",
-              "differs": "DIFFERS from the JSON's rendering (edited by hand?)"}[c.verdict])
+              "differs": "DIFFERS from the JSON's rendering (edited by hand?)",
+              "older": "drawn by the earlier release that issued the record; it names this record's digest "
+                       "but is not compared line by line - --repair draws it again"}[c.verdict])
         ok = ok and c.verdict != "differs"
     if args.repair and not outcome.ok:
         _say("  repair: not done - the JSON itself does not verify, so it is not rendered again")
@@ -483,8 +485,8 @@ def _verify_trust(args, raw, record, outcome):
 
 
 def _sign_with_key(args):
-    from .keys import SigningInputError, short_fingerprint
-    from .signing import sign_with_key
+    from .signing.keys import SigningInputError, short_fingerprint
+    from .review.sign import sign_with_key
 
     try:
         signed = sign_with_key(args.record, args.key, args.role, args.by, args.passphrase_file, args.trusted)
@@ -499,7 +501,7 @@ def _sign_with_key(args):
           f"{entry['date']}, key {short_fingerprint(entry['fingerprint'])}")
     _say(f"  {args.record}, with its HTML and Markdown")
     _refresh_index(args.record)
-    from .keys import load_trusted, trusted_folder_for
+    from .signing.keys import load_trusted, trusted_folder_for
 
     folder = args.trusted or trusted_folder_for(args.record)
     if entry["fingerprint"] not in load_trusted(folder):
@@ -509,7 +511,7 @@ def _sign_with_key(args):
 
 
 def _keys(args):
-    from .keys import load_public_key, new_key_pair, read_passphrase, short_fingerprint
+    from .signing.keys import load_public_key, new_key_pair, read_passphrase, short_fingerprint
 
     passphrase = read_passphrase(args.passphrase_file) if args.passphrase_file else None
     private, public = new_key_pair(args.name, args.out, passphrase)
@@ -520,7 +522,7 @@ def _keys(args):
 
 
 def _register(args):
-    from .register import build_register, format_register, write_register_csv, write_register_html
+    from .review.register import build_register, format_register, write_register_csv, write_register_html
 
     rows = build_register(args.folder)
     _say(format_register(rows))
@@ -532,7 +534,7 @@ def _register(args):
 
 
 def _check_diff_target(args):
-    from .issuing import is_own_output
+    from .records.issuing import is_own_output
 
     target = Path(args.html)
     if target.exists() and not target.is_file():
@@ -548,15 +550,15 @@ def _check_diff_target(args):
 
 
 def _sign(args):
-    from .record import load_record
-    from .signoff import sign_record
+    from .records.record import load_record
+    from .review.signoff import sign_record
 
     if args.key:
         return _sign_with_key(args)
     if not args.by:
         raise SteamcalcError("give --key KEYFILE (or, for a sign-off without a key, --by NAME)", field="--key",
                              fix='make a key once with: steamcalc keys new --name "Your Name"')
-    from .signing import name_only_refusal
+    from .signing.signatures import name_only_refusal
     record = load_record(args.record)
     if name_only_refusal(record):
         _say(f"refused: {args.record}: {name_only_refusal(record)}", file=sys.stderr)
@@ -575,7 +577,7 @@ def _sign(args):
 
 def _refresh_index(record_path):
     """After a sign-off: the records index of the record's folder written again, when it has one."""
-    from .batch import refresh_index
+    from .batch.batch import refresh_index
 
     note = refresh_index(Path(record_path).parent)
     if note:
@@ -583,7 +585,7 @@ def _refresh_index(record_path):
 
 
 def _new_site(args):
-    from .newsite import new_site
+    from .cases.newsite import new_site
 
     files = new_site(args.folder, args.template)
     _say(f"new site folder {args.folder}: {len(files)} files")

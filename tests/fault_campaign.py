@@ -29,8 +29,8 @@ ROOT = Path(__file__).resolve().parent.parent
 sys.path.insert(0, str(ROOT))
 
 from steamcalc.cli import main  # noqa: E402
-from steamcalc.record import load_record  # noqa: E402
-from steamcalc.report import RENDERERS  # noqa: E402
+from steamcalc.records.record import load_record  # noqa: E402
+from steamcalc.render.report import RENDERERS  # noqa: E402
 
 DEMO = ROOT / "workbooks" / "demo_site"
 RESULTS = OrderedDict()
@@ -161,7 +161,7 @@ def disk_full(base):
 
 
 def _with_full_disk(args, allowance, base):
-    import steamcalc.issuing as issuing
+    import steamcalc.records.issuing as issuing
     real = os.write
     state = {"left": allowance}
 
@@ -493,7 +493,7 @@ def _warm_up(base):
     # second command would not, but the attempt measures steamcalc's work rather than imports.
     import io
     import contextlib
-    import steamcalc.batch, steamcalc.review, steamcalc.runner, steamcalc.signoff, steamcalc.ui.workbook  # noqa: F401
+    import steamcalc.batch.batch, steamcalc.review.verify, steamcalc.runs.runner, steamcalc.review.signoff, steamcalc.ui.workbook  # noqa: F401
     site = fresh_site(base)
     with contextlib.redirect_stdout(io.StringIO()), contextlib.redirect_stderr(io.StringIO()):
         for name in ("LD-01", "LD-02", "FL-01", "HX-01"):

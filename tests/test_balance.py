@@ -4,9 +4,9 @@ on a correct result and fails on a wrong flow (a check that can fail)."""
 import pytest
 
 from steamcalc.calcs.balance import RELATIVE_TOLERANCE, Stream, energy_balance_residual
-from steamcalc.calcs.letdown import Inputs, calculate
-from steamcalc.site import Site
-from steamcalc.steam import SteamState
+from steamcalc.calcs.letdown.calculation import Inputs, calculate
+from steamcalc.cases.site import Site
+from steamcalc.properties.steam import SteamState
 
 DESUPERHEATED = dict(inlet_pressure=17e5, outlet_pressure=3.5e5, mass_flow=1.25, inlet_temperature=503.15,
                      target_superheat=10.0, water_temperature=378.15, water_pressure=21e5)

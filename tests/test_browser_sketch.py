@@ -6,7 +6,7 @@ import json
 import tomllib
 
 
-from steamcalc.display import display_record
+from steamcalc.render.display import display_record
 from tests.browser_support import ARTIFACTS, PANEL, _open_and_run_all, browser, lab  # noqa: F401
 
 SHOTS = ARTIFACTS / "sketch"

@@ -10,11 +10,11 @@ from pathlib import Path
 import pytest
 
 from steamcalc.calcs import get_calculation
-from steamcalc.casefile_writer import (
+from steamcalc.cases.casefile_writer import (
     case_file_name, free_revision, next_revision, save_case, toml_text, write_new_file,
 )
 from steamcalc.errors import CaseFileError
-from steamcalc.site import case_inputs, case_site, flatten_inputs, load_case
+from steamcalc.cases.site import case_inputs, case_site, flatten_inputs, load_case
 from steamcalc.ui.forms import CaseForm
 
 DEMO = Path(__file__).resolve().parent.parent / "workbooks" / "demo_site"

@@ -11,7 +11,7 @@ from pathlib import Path
 import pytest
 
 from steamcalc.cli import _parser, main
-from steamcalc.companions import find_chromium
+from steamcalc.records.companions import find_chromium
 
 ROOT = Path(__file__).resolve().parent.parent
 

@@ -1,4 +1,4 @@
-"""Display rules (steamcalc.display): units as people write them, figures per quantity, fractions in %,
+"""Display rules (steamcalc.render.display): units as people write them, figures per quantity, fractions in %,
 money, yes/no, and the US customary display (°F, psia, Kv → Cv, DN → NPS) — the record never changes."""
 
 import copy
@@ -9,10 +9,10 @@ from pathlib import Path
 import pytest
 
 from steamcalc.cli import main
-from steamcalc.display import (CV_PER_KV, convert, display_record, format_number, nps_text, unit_label, us_text,
+from steamcalc.render.display import (CV_PER_KV, convert, display_record, format_number, nps_text, unit_label, us_text,
                                verify_table)
-from steamcalc.record import load_record
-from steamcalc.review import verify_record
+from steamcalc.records.record import load_record
+from steamcalc.review.verify import verify_record
 
 DEMO = Path(__file__).resolve().parent.parent / "workbooks" / "demo_site"
 

@@ -1,4 +1,4 @@
-"""The two IF97 engines behind steamcalc.steam: the fast engine (seuif97) against the IAPWS-IF97
+"""The two IF97 engines behind steamcalc.properties.steam: the fast engine (seuif97) against the IAPWS-IF97
 verification tables (in tests/test_if97_verification.py) and against the reference engine (iapws); the engine choice is explicit and
 context-local; each engine imports neither the other nor the calculations; ``verify --engine fast``
 reproduces every demo record."""
@@ -14,9 +14,9 @@ import numpy as np
 import pytest
 
 from steamcalc.cli import main
-from steamcalc.engines import FAST_ENGINE, REFERENCE_ENGINE, current_engine, other_engine, using_engine
+from steamcalc.properties.engines import FAST_ENGINE, REFERENCE_ENGINE, current_engine, other_engine, using_engine
 from steamcalc.errors import InputError
-from steamcalc.steam import SteamState, saturation_temperature
+from steamcalc.properties.steam import SteamState, saturation_temperature
 
 PACKAGE = Path(__file__).resolve().parent.parent / "steamcalc"
 
@@ -88,8 +88,8 @@ def test_saturation_above_623_k_agrees_to_the_backward_equations(pressure):
 
 
 def test_arrays_match_the_scalar_fast_engine_and_iapws():
-    from steamcalc.steam import PHASES
-    from steamcalc.steam_arrays import states_ph
+    from steamcalc.properties.steam import PHASES
+    from steamcalc.properties.steam_arrays import states_ph
     p = np.array([g[0] for g in PH_GRID])
     h = np.array([g[1] for g in PH_GRID])
     arrays = states_ph(p, h)
@@ -153,11 +153,11 @@ def _imports(path):
 
 
 @pytest.mark.parametrize("module,forbidden", [
-    ("iapws_engine.py", ("seuif97", ".seuif97_engine", "..calcs", "..steam")),
-    ("seuif97_engine.py", ("iapws", ".iapws_engine", "..calcs", "..steam")),
+    ("iapws_engine.py", ("seuif97", ".seuif97_engine", "...calcs", "..steam")),
+    ("seuif97_engine.py", ("iapws", ".iapws_engine", "...calcs", "..steam")),
 ])
 def test_each_engine_imports_neither_the_other_nor_the_calculations(module, forbidden):
-    imports = _imports(PACKAGE / "engines" / module)
+    imports = _imports(PACKAGE / "properties" / "engines" / module)
     assert not [name for name in imports if any(name == f or name.startswith(f + ".") for f in forbidden)]
 
 
@@ -180,7 +180,7 @@ def test_command_line_help_imports_no_heavy_library():
 
 
 def test_fast_engine_alone_does_not_import_iapws():
-    loaded = _modules_after("from steamcalc.steam import SteamState\nSteamState.from_pT(1e5, 400.0, engine='fast')")
+    loaded = _modules_after("from steamcalc.properties.steam import SteamState\nSteamState.from_pT(1e5, 400.0, engine='fast')")
     assert "seuif97" in loaded and "iapws" not in loaded and "CoolProp" not in loaded
 
 

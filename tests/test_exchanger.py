@@ -8,12 +8,12 @@ from CoolProp.CoolProp import PropsSI
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from steamcalc.calcs.exchanger import Inputs, calculate, lmtd, required_saturation_temperature, stall_load
+from steamcalc.calcs.exchanger.calculation import Inputs, calculate, lmtd, required_saturation_temperature, stall_load
 from steamcalc.cli import main
 from steamcalc.errors import InputError
-from steamcalc.site import Site
+from steamcalc.cases.site import Site
 from tests.case_helpers import assert_refused
-from steamcalc.steam import saturation_pressure, saturation_temperature
+from steamcalc.properties.steam import saturation_pressure, saturation_temperature
 
 SITE = Site()
 BASE = dict(steam_pressure=9e5, process_flow=12000 / 3600, process_inlet_temperature=328.15,
@@ -34,13 +34,13 @@ def test_f_factor_one_shell_pass_against_bowman_equation():
     p = 0.5
     by_hand = math.sqrt(2) * p / (1 - p) / math.log((2 - p * (2 - math.sqrt(2))) / (2 - p * (2 + math.sqrt(2))))
     assert by_hand == pytest.approx(0.8023, abs=1e-4)
-    from steamcalc.calcs.exchanger import _f_factor
+    from steamcalc.calcs.exchanger.calculation import _f_factor
     # R = 1, P = 0.5: hot 200 -> 150, cold 100 -> 150.
     assert _f_factor("1-2", 200.0, 150.0, 100.0, 150.0) == pytest.approx(by_hand, rel=1e-6)
 
 
 def test_f_factor_two_shell_passes_beats_one():
-    from steamcalc.calcs.exchanger import _f_factor
+    from steamcalc.calcs.exchanger.calculation import _f_factor
     one = _f_factor("1-2", 200.0, 140.0, 100.0, 150.0)
     two = _f_factor("2-4", 200.0, 140.0, 100.0, 150.0)
     assert 0.5 < one < two < 1.0
@@ -195,7 +195,7 @@ def test_stall_clean_and_fouled_by_hand(u, fouling, area, back, differential, he
 
 
 def test_stall_pressure_by_hand():
-    from steamcalc.calcs.exchanger import stall_pressure
+    from steamcalc.calcs.exchanger.calculation import stall_pressure
     # 1.8 bar(a) + 0.1 bar − 900 kg/m³ × 9.80665 m/s² × 1 m = 181 174.015 Pa (hand).
     assert stall_pressure(1.8e5, 0.1e5, 1.0, 900.0) == pytest.approx(181174.015, abs=1e-6)
 
@@ -227,7 +227,8 @@ def test_static_head_can_remove_the_stall():
 
 
 def test_turndown_table_states_its_u():
-    from steamcalc.ui.charts import stall_chart, turndown_rows
+    from steamcalc.calcs.exchanger.figures import stall_chart
+    from steamcalc.ui.charts import turndown_rows
     inputs = Inputs(**BASE, overall_u=1800.0, fouling_resistance=1e-4, installed_area=2.6,
                     condensate_back_pressure=1.8e5)
     r = calculate(inputs, SITE)
@@ -240,7 +241,7 @@ def test_turndown_table_states_its_u():
     assert r.value("turndown_u_clean") == pytest.approx(1.8)
     assert r.value("turndown_u_fouled") == pytest.approx(1.0 / (1.0 / 1.8 + 0.1), rel=1e-12)  # hand, kW/(m² K)
     assert any("clean U" in a and "fouled" in a for a in r.assumptions)
-    assert len(stall_chart(inputs, r).data) == 3   # fouled and clean curves, back pressure
+    assert len(stall_chart(inputs, r).series) == 3   # fouled and clean curves, back pressure
 
 
 # --- Zones: wet-wall desuperheating, zone U's, each zone's area ------------------------------------------------
@@ -293,7 +294,7 @@ def test_zone_areas_by_hand(desuperheating_u, subcooling_u, fouling, source):
 def test_wet_wall_is_the_default_and_larger_than_the_v01_dry_wall_at_the_condensing_u():
     # v0.1 took the desuperheating LMTD from the steam temperature at the condensing U; the wet wall's driving
     # force T_sat − T_process is smaller, so the zone needs more area (the conservative side).
-    from steamcalc.calcs.exchanger import lmtd
+    from steamcalc.calcs.exchanger.calculation import lmtd
     r = calculate(Inputs(**ZONE_BASE), SITE)
     t_sat = r.value("steam_saturation_temperature") + 273.15
     dry = lmtd(493.15, t_sat, 358.15 - 30.0 * r.value("desuperheating_duty") / r.value("duty"), 358.15)
@@ -376,7 +377,7 @@ def test_drainage_case_runs_and_records_the_differential_as_a_difference(tmp_pat
     # A differential is stored in bar like any pressure; the report labels it "bar difference".
     assert record["inputs"]["trap_min_differential"] == {"value": pytest.approx(0.1), "unit": "bar",
                                                          "given": "0.1 bar"}
-    from steamcalc.report import render_markdown
+    from steamcalc.render.report import render_markdown
     assert "| 0.1 | bar difference | 0.1 bar |" in render_markdown(record)
     assert record["inputs"]["trap_static_head"]["unit"] == "m"
     assert "stall_load_fraction_fouled" in record["results"]

@@ -8,11 +8,11 @@ import shutil
 import pytest
 from CoolProp.CoolProp import PropsSI
 
-from steamcalc.calcs.exchanger import Inputs, calculate
-from steamcalc.calcs.exchanger_control import load_steam_flow, pumping_differential
+from steamcalc.calcs.exchanger.calculation import Inputs, calculate
+from steamcalc.calcs.exchanger.control import load_steam_flow, pumping_differential
 from steamcalc.cli import main
 from steamcalc.errors import InputError
-from steamcalc.site import Site
+from steamcalc.cases.site import Site
 from tests.case_helpers import assert_refused, run_case_text
 
 STANDARD_GRAVITY = 9.80665  # m/s², 3rd CGPM (1901), ISO 80000-3
@@ -231,12 +231,12 @@ def test_motive_pressure_check(motive, status, source):
 
 
 def test_chart_shows_supply_and_travel(heater):
-    from steamcalc.ui.charts import stall_chart
+    from steamcalc.calcs.exchanger.figures import stall_chart
     fig = stall_chart(Inputs(**CASE), heater)
-    names = [t.name for t in fig.data]
-    assert any("supply pressure 10 bar(a)" in n for n in names)
-    travel = [t for t in fig.data if t.name.startswith("control valve travel")]
-    assert len(travel) == 2 and all(t.yaxis == "y2" for t in travel)
+    supply = next(s for s in fig.series if s.name == "control valve supply pressure")
+    assert supply.y == (10.0, 10.0) and fig.y.unit == "bar" and fig.y.basis == "absolute"
+    travel = [s for s in fig.series if s.name.startswith("control valve travel")]
+    assert len(travel) == 2 and all(s.axis == "y2" for s in travel)
     assert list(travel[0].x) == [10, 20, 30, 40, 50, 60, 70, 80, 90, 100]
 
 
@@ -252,7 +252,7 @@ def test_demo_hx01_carries_the_keys_and_verifies(tmp_path, demo_site_dir):
                 "required_rangeability", "vacuum_load_fraction", "condensate_to_remove",
                 "required_pumping_differential"):
         assert key in record["results"], key
-    from steamcalc.report import render_markdown
+    from steamcalc.render.report import render_markdown
     row = next(line for line in render_markdown(record).splitlines() if "`required_pumping_differential`" in line)
     assert "bar difference" in row
     assert main(["verify", str(record_path)]) == 0

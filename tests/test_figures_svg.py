@@ -11,13 +11,13 @@ from pathlib import Path
 
 import pytest
 
-from steamcalc.engines import using_engine
-from steamcalc.figures_svg import figure_svg, nice_ticks, record_figures
-from steamcalc.record import write_record
-from steamcalc.report import RENDERERS, render_html
-from steamcalc.review import check_companions
-from steamcalc.runner import record_for_case
-from steamcalc.site import case_site, load_case
+from steamcalc.properties.engines import using_engine
+from steamcalc.render.figures_svg import figure_svg, nice_ticks, record_figures
+from steamcalc.records.record import write_record
+from steamcalc.render.report import RENDERERS, render_html
+from steamcalc.review.verify import check_companions
+from steamcalc.records.build import record_for_case
+from steamcalc.cases.site import case_site, load_case
 
 ROOT = Path(__file__).resolve().parent.parent
 CASES = ROOT / "workbooks" / "demo_site" / "cases"
@@ -87,7 +87,7 @@ def test_render_is_the_same_in_a_fresh_process(pages, tmp_path):
     records, html_pages = pages
     path = tmp_path / "FL-01.json"
     path.write_text(json.dumps(records["FL-01"]), encoding="utf-8")
-    code = ("import json, sys; from steamcalc.report import render_html; "
+    code = ("import json, sys; from steamcalc.render.report import render_html; "
             "sys.stdout.buffer.write(render_html(json.load(open(sys.argv[1], encoding='utf-8'))).encode())")
     out = subprocess.run([sys.executable, "-c", code, str(path)], capture_output=True, check=True,
                          env={"PYTHONPATH": str(ROOT), "PYTHONHASHSEED": "12345", "PATH": "/usr/bin:/bin"})
@@ -101,17 +101,34 @@ def test_issued_record_companions_match_on_verify(tmp_path):
     assert [c.verdict for c in check_companions(paths[0], record)] == ["match", "match"]
 
 
-def test_a_record_whose_inputs_do_not_compute_says_so_instead_of_failing():
+def test_figures_are_drawn_from_the_record_data_not_from_its_inputs():
+    # The views only draw: inputs that no longer compute change nothing in the drawing.
     record = _record("FL-01")
+    before = record_figures(record)
     record["inputs"]["condensate_pressure"]["value"] = 5000.0     # bar(a): beyond IF97
+    assert record_figures(record)["charts"] == before["charts"] and before["charts"]
+
+
+def test_a_figure_marked_missing_says_why_and_the_record_still_renders():
+    record = _record("FL-01")
+    record["figures"][0] = {"name": "flash_fraction", "title": "Flash fraction against flash pressure",
+                            "missing": "not drawn: flash pressure 5000 bar(a) above the IF97 range"}
     figures = record_figures(record)
-    assert figures["charts"] == [] and "could not be drawn" in figures["note"]
-    assert "could not be drawn" in render_html(record)
+    assert figures["charts"][0]["missing"].startswith("not drawn: flash pressure 5000")
+    assert "not drawn: flash pressure 5000 bar(a) above the IF97 range" in render_html(record)
+
+
+def test_a_record_of_the_earlier_schema_says_it_has_no_figure_data():
+    record = _record("FL-01")
+    del record["figures"]
+    figures = record_figures(record)
+    assert figures["charts"] == [] and "earlier release" in figures["note"]
+    assert "earlier release" in render_html(record)
 
 
 def test_markdown_record_omits_the_figures(pages):
     # The Markdown record (preview in the workbook) has no figures: they are in the HTML and PDF.
-    from steamcalc.report import render_markdown
+    from steamcalc.render.report import render_markdown
     assert "<svg" not in render_markdown(pages[0]["FL-01"])
 
 

@@ -7,10 +7,10 @@ from CoolProp.CoolProp import PropsSI
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from steamcalc.calcs.flash import Inputs, calculate
+from steamcalc.calcs.flash.calculation import Inputs, calculate
 from steamcalc.cli import main
 from steamcalc.errors import InputError
-from steamcalc.site import Price, Site
+from steamcalc.cases.site import Price, Site
 from tests.case_helpers import assert_refused
 
 ATM = 1.01325e5
@@ -91,7 +91,7 @@ def test_flash_above_demand_warns():
 @given(p_in=st.floats(2e5, 80e5), r1=st.floats(0.2, 0.9), r2=st.floats(0.2, 0.9), flow=st.floats(0.01, 20.0),
        subcool=st.floats(0.0, 30.0), cascade=st.booleans())
 def test_balances_close_over_random_inputs(p_in, r1, r2, flow, subcool, cascade):
-    from steamcalc.steam import saturation_temperature
+    from steamcalc.properties.steam import saturation_temperature
     t = saturation_temperature(p_in) - subcool
     stages = (p_in * r1, p_in * r1 * r2)
     inputs = Inputs(condensate_pressure=p_in, condensate_flow=flow, condensate_temperature=t if subcool else None,

@@ -18,15 +18,15 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from steamcalc.batch import write_index
+from steamcalc.batch.batch import write_index
 from steamcalc.calcs import get_calculation
 from steamcalc.calcs.base import input_fields
 from steamcalc.cli import main
 from steamcalc.errors import SteamcalcError
-from steamcalc.record import load_record, record_text
-from steamcalc.report import render_html, render_markdown
-from steamcalc.runner import record_for_case
-from steamcalc.site import CASE_KEYS, SITE_KEYS, case_site, load_case, load_site
+from steamcalc.records.record import load_record, record_text
+from steamcalc.render.report import render_html, render_markdown
+from steamcalc.records.build import record_for_case
+from steamcalc.cases.site import CASE_KEYS, SITE_KEYS, case_site, load_case, load_site
 
 DEMO = Path(__file__).resolve().parent.parent / "workbooks" / "demo_site"
 CASE_OF_KIND = {"letdown": "LD-01.toml", "flash": "FL-01.toml", "exchanger": "HX-01.toml"}

@@ -1,4 +1,4 @@
-"""IAPWS-IF97 verification values: steamcalc.steam, on both engines, against the release's own tables.
+"""IAPWS-IF97 verification values: steamcalc.properties.steam, on both engines, against the release's own tables.
 
 Each check value comes from tests/reference/*.csv, whose source column names the
 table of IAPWS R7-97(2012). Values are compared at the nine significant digits the
@@ -8,8 +8,8 @@ engine (seuif97).
 
 import pytest
 
-from steamcalc.engines import FAST_ENGINE, REFERENCE_ENGINE, engine_module
-from steamcalc.steam import SteamState, saturation_pressure, saturation_temperature
+from steamcalc.properties.engines import FAST_ENGINE, REFERENCE_ENGINE, engine_module
+from steamcalc.properties.steam import SteamState, saturation_pressure, saturation_temperature
 from tests.reference_data import ids, rows, significant
 
 TABLE5 = rows("if97_table5_region1")

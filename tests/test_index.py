@@ -8,7 +8,7 @@ import shutil
 
 import pytest
 
-from steamcalc.batch import refresh_index, write_index
+from steamcalc.batch.batch import refresh_index, write_index
 from steamcalc.cli import main
 
 

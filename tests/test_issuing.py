@@ -20,11 +20,11 @@ import pytest
 
 from steamcalc.cli import main
 from steamcalc.errors import RecordConflictError, RecordError
-from steamcalc.issuing import WORK_FOLDER, record_lock, recover
-from steamcalc.record import load_record, write_record
-from steamcalc.report import RENDERERS
-from steamcalc.review import verify_record
-from steamcalc.signoff import sign_record
+from steamcalc.records.issuing import WORK_FOLDER, record_lock, recover
+from steamcalc.records.record import load_record, write_record
+from steamcalc.render.report import RENDERERS
+from steamcalc.review.verify import verify_record
+from steamcalc.review.signoff import sign_record
 
 DEMO = Path(__file__).resolve().parent.parent / "workbooks" / "demo_site"
 FORK = multiprocessing.get_context("fork")
@@ -142,7 +142,7 @@ def _writer(barrier, results, case, out, flow):
     text = case.read_text().replace('"2.0 t/h"', f'"{flow} t/h"')
     own = case.with_name(f"race-{flow}.toml")
     own.write_text(text)
-    from steamcalc.runner import record_for_case_file
+    from steamcalc.records.build import record_for_case_file
     record = record_for_case_file(own)
     barrier.wait()
     try:
@@ -327,7 +327,7 @@ def test_leftovers_of_an_older_interrupted_run_are_cleaned_not_blockers(site, tm
 
 
 def test_foreign_index_and_companions_are_refused(site, tmp_path, capsys):
-    from steamcalc.companions import write_pdf
+    from steamcalc.records.companions import write_pdf
     out = tmp_path / "out"
     out.mkdir()
     (out / "index.html").write_text("<html>team wiki page</html>")
@@ -349,7 +349,7 @@ def test_out_that_is_a_file_is_refused(site, tmp_path, capsys):
 
 # -- batch: error boundaries, the index always, Ctrl-C -------------------------------------------------
 def test_unexpected_error_fails_only_its_case(site, tmp_path, capsys, monkeypatch):
-    import steamcalc.calcs.flash as flash
+    import steamcalc.calcs.flash.calculation as flash
 
     def broken(inputs, site):
         raise RuntimeError("simulated fault")

@@ -4,10 +4,10 @@ import pytest
 from hypothesis import assume, given, settings
 from hypothesis import strategies as st
 
-from steamcalc.calcs.letdown import Inputs, calculate
+from steamcalc.calcs.letdown.calculation import Inputs, calculate
 from steamcalc.errors import InputError
-from steamcalc.site import Site
-from steamcalc.steam import SteamState, saturation_temperature
+from steamcalc.cases.site import Site
+from steamcalc.properties.steam import SteamState, saturation_temperature
 
 SITE = Site()
 

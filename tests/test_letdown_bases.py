@@ -10,9 +10,9 @@ import math
 import pytest
 from CoolProp.CoolProp import PropsSI
 
-from steamcalc.calcs.letdown import Inputs, calculate
+from steamcalc.calcs.letdown.calculation import Inputs, calculate
 from steamcalc.errors import InputError
-from steamcalc.site import Price, Site
+from steamcalc.cases.site import Price, Site
 from tests.case_helpers import assert_refused
 
 ATM = 1.01325e5

@@ -7,10 +7,10 @@ import math
 import pytest
 
 from steamcalc.calcs import get_calculation
-from steamcalc.calcs.letdown import Inputs, calculate
+from steamcalc.calcs.letdown.calculation import Inputs, calculate
 from steamcalc.errors import InputError
-from steamcalc.site import Site, case_inputs, case_site, load_case
-from steamcalc.steam import CRITICAL_PRESSURE, SteamState, saturation_pressure
+from steamcalc.cases.site import Site, case_inputs, case_site, load_case
+from steamcalc.properties.steam import CRITICAL_PRESSURE, SteamState, saturation_pressure
 from tests.case_helpers import assert_refused, run_case_text
 
 SPRAY_KEYS = [f"spray_valve_kv_{c}" for c in ("minimum", "normal", "maximum")] + \
@@ -169,15 +169,15 @@ def test_letdown_without_spray_keys_is_unchanged_in_shape():
     assert get_calculation("letdown").Inputs is Inputs
 
 
-def test_valve_chart_shows_the_spray_valve_at_the_flow_cases(ld01):
-    from steamcalc.ui.charts import chart_for, table_for
+def test_valve_figure_shows_the_spray_valve_at_the_flow_cases(ld01):
+    from steamcalc.ui.charts import table_for
 
     inputs, result = ld01
-    valve = next(f for f in chart_for("letdown", inputs, result) if "Control valve" in f.layout.title.text)
-    spray = next(t for t in valve.data if t.name == "spray-water valve travel")
+    valve = next(f for f in result.figures if f.name == "valve")
+    spray = next(s for s in valve.series if s.name == "spray-water valve travel")
     assert list(spray.x) == [1000.0, 4500.0, 5500.0]
     assert list(spray.y) == [result.value(f"spray_valve_travel_{c}") for c in ("minimum", "normal", "maximum")]
-    assert spray.yaxis == "y2" and "Kv" in spray.hovertext[0]
+    assert spray.axis == "y2" and spray.labels == ("minimum", "normal", "maximum")
     rows = table_for("letdown", inputs, result)["Flow cases"]
     assert [r["spray valve Kv, m³/h"] for r in rows] == [
         result.value(f"spray_valve_kv_{c}") for c in ("minimum", "normal", "maximum")]

@@ -4,10 +4,10 @@ import math
 
 import pytest
 
-from steamcalc.calcs.letdown import Inputs, calculate
+from steamcalc.calcs.letdown.calculation import Inputs, calculate
 from steamcalc.equipment.line_loss import line_pressure_drop
-from steamcalc.site import Site
-from steamcalc.steam import dynamic_viscosity
+from steamcalc.cases.site import Site
+from steamcalc.properties.steam import dynamic_viscosity
 
 
 def _colebrook_by_hand(reynolds, relative_roughness):

@@ -5,12 +5,12 @@ import math
 import pytest
 from fluids.control_valve import Cv_to_Kv, control_valve_noise_g_2011
 
-from steamcalc.calcs.letdown import Inputs, calculate
+from steamcalc.calcs.letdown.calculation import Inputs, calculate
 from steamcalc.equipment.noise import outlet_mach, parse_sound_level, valve_noise
 from steamcalc.equipment.piping import pipe_dimensions, pipe_inner_diameter
 from steamcalc.errors import InputError
-from steamcalc.site import Site
-from steamcalc.steam import SteamState
+from steamcalc.cases.site import Site
+from steamcalc.properties.steam import SteamState
 
 # IEC 60534-8-3:2010 annex worked examples (gas, k = 1.22, M = 19.8, p1 = 10 bar(a), 450 K) with
 # the inputs and expected levels as the fluids package's test suite gives them (its note: the

@@ -8,9 +8,9 @@ import shutil
 import pytest
 
 from steamcalc.cli import main
-from steamcalc.display import unit_label
-from steamcalc.record import load_record
-from steamcalc.signoff import diff_records
+from steamcalc.render.display import unit_label
+from steamcalc.records.record import load_record
+from steamcalc.review.signoff import diff_records
 
 #: A pressure unit not followed by its basis. 'bar(a)', 'bar(g)', 'barg', 'bara', 'psia', 'psig',
 #: 'kPa(a)' and 'bar difference' pass; 'bar', 'kPa', 'psi' alone do not.

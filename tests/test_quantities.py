@@ -3,7 +3,7 @@
 import pytest
 
 from steamcalc.errors import OutOfRangeError, UnitError
-from steamcalc.quantities import parse_pressure, parse_quantity, standard_atmosphere_pressure
+from steamcalc.units.quantities import parse_pressure, parse_quantity, standard_atmosphere_pressure
 
 
 @pytest.mark.parametrize("text,expected", [

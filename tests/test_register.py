@@ -9,7 +9,7 @@ from pathlib import Path
 import pytest
 
 from steamcalc.cli import main
-from steamcalc.register import build_register, revision_order
+from steamcalc.review.register import build_register, revision_order
 
 
 @pytest.fixture(scope="module")

@@ -6,13 +6,13 @@ import math
 import pytest
 from fluids.safety_valve import API520_A_steam, API520_B, API526_A_sq_inch, API526_letters
 
-from steamcalc.calcs.letdown import Inputs, calculate
+from steamcalc.calcs.letdown.calculation import Inputs, calculate
 from steamcalc.equipment.relief import (
     API526_AREAS_IN2, MM2_PER_IN2, api526_orifice, back_pressure_correction, direct_integration_area,
     direct_integration_flux, reaction_force, steam_equation_area,
 )
-from steamcalc.site import Site, case_inputs, case_site, load_case
-from steamcalc.steam import SteamState, saturation_temperature
+from steamcalc.cases.site import Site, case_inputs, case_site, load_case
+from steamcalc.properties.steam import SteamState, saturation_temperature
 from tests.case_helpers import assert_refused, run_case_text
 
 DEMO_CASES = "workbooks/demo_site/cases"

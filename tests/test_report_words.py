@@ -56,7 +56,7 @@ def _problems(text):
 
 def _without_given(raw, record, suffix):
     # The engineer's own text (the "as given" cell) is quoted as written.
-    from steamcalc.report import _md
+    from steamcalc.render.report import _md
 
     for entry in record.get("inputs", {}).values():
         given = str(entry.get("given"))

@@ -8,11 +8,11 @@ import shutil
 import pytest
 
 from steamcalc.cli import main
-from steamcalc.companions import find_chromium
-from steamcalc.display import convert
-from steamcalc.record import load_record
-from steamcalc.report import render_html
-from steamcalc.site import case_inputs, load_case, load_site
+from steamcalc.records.companions import find_chromium
+from steamcalc.render.display import convert
+from steamcalc.records.record import load_record
+from steamcalc.render.report import render_html
+from steamcalc.cases.site import case_inputs, load_case, load_site
 
 
 @pytest.fixture
@@ -165,7 +165,7 @@ def test_pdf(site):
 
 
 def test_pdf_without_chromium_says_how(site, monkeypatch, capsys):
-    monkeypatch.setattr("steamcalc.companions.find_chromium", lambda: None)
+    monkeypatch.setattr("steamcalc.records.companions.find_chromium", lambda: None)
     assert main(["run", str(site / "cases" / "LD-02.toml"), "--pdf"]) == 2
     assert "no Chromium was found" in capsys.readouterr().err
     assert (site / "records" / "LD-02_revA.json").exists()

@@ -10,8 +10,8 @@ from pathlib import Path
 import pytest
 
 from steamcalc.cli import main
-from steamcalc.record import compute_content_digest, compute_digest, load_record, record_text
-from steamcalc.report import RENDERERS
+from steamcalc.records.record import compute_content_digest, compute_digest, load_record, record_text
+from steamcalc.render.report import RENDERERS
 
 
 def _run(argv, capsys):
@@ -325,16 +325,31 @@ def test_new_site_copies_the_trusted_signers(site, tmp_path, capsys):
     assert sorted(p.name for p in (target / "trusted_signers").iterdir()) == ["c-checker.pub", "d-approver.pub"]
 
 
+_SIGNED = {"role": "checked", "name": "X", "date": "2026-01-01T00:00:00Z", "fingerprint": "sha256:00"}
+
+
 @pytest.mark.parametrize("junk", [
-    "not a list", ["not a table"], [{}], [{"role": "checked", "name": "X", "public_key": "!!", "signature": "??"}],
-    [{"role": "checked", "name": "X", "fingerprint": "sha256:00", "public_key": "AAAA", "signature": "AAAA",
-      "verification": "nothing"}],
-], ids=["string", "list of strings", "empty entry", "bad base64", "short key"])
+    [dict(_SIGNED, public_key="!!", signature="??")],
+    [dict(_SIGNED, public_key="AAAA", signature="AAAA", verification={})],
+], ids=["bad base64", "short key"])
 def test_junk_signatures_fail_verify_without_a_traceback(site, capsys, junk):
     path = site / "records" / "LD-02_revA.json"
     _forge(path, lambda r: r.update(signatures=junk))
     code, text = _run(["verify", path], capsys)
     assert code == 1 and "verdict: FAILED" in text and "internal error" not in text, text
+
+
+@pytest.mark.parametrize("junk, field", [
+    ("not a list", "'signatures'"), (["not a table"], "'signatures.0'"), ([{}], "'signatures.0.role'"),
+    ([dict(_SIGNED, public_key="AAAA", signature="AAAA", verification="nothing")], "'signatures.0.verification'"),
+], ids=["string", "list of strings", "empty entry", "verification not a table"])
+def test_signatures_out_of_the_record_schema_are_refused_by_name(site, capsys, junk, field):
+    # Not a signature that fails: not a record steamcalc writes. The file and the field are named, exit 2.
+    path = site / "records" / "LD-02_revA.json"
+    _forge(path, lambda r: r.update(signatures=junk))
+    code, text = _run(["verify", path], capsys)
+    assert code == 2 and "NOT VERIFIED" in text and f"field {field}" in text and "LD-02_revA.json" in text, text
+    assert "Traceback" not in text and "internal error" not in text
 
 
 def test_keys_new_into_a_file_is_refused(tmp_path, capsys):

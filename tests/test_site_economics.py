@@ -6,9 +6,9 @@ import pytest
 from CoolProp.CoolProp import PropsSI
 
 from steamcalc.calcs.economics import fuel_basis, fuel_basis_assumption
-from steamcalc.calcs.flash import Inputs, calculate
+from steamcalc.calcs.flash.calculation import Inputs, calculate
 from steamcalc.errors import InputError, UnitError
-from steamcalc.site import Price, Site, WaterCost, load_site
+from steamcalc.cases.site import Price, Site, WaterCost, load_site
 from tests.case_helpers import assert_refused, run_case_text
 
 SITE = dict(operating_hours=6000.0, boiler_efficiency=0.86, fuel_price=Price(40.0, "EUR"),

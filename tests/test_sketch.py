@@ -8,11 +8,11 @@ from pathlib import Path
 
 import pytest
 
-from steamcalc.display import display_record
-from steamcalc.report import format_number
-from steamcalc.runner import record_for_case
-from steamcalc.site import case_site, load_case
-from steamcalc.sketch import sketch_points, sketch_svg
+from steamcalc.render.display import display_record
+from steamcalc.render.report import format_number
+from steamcalc.records.build import record_for_case
+from steamcalc.cases.site import case_site, load_case
+from steamcalc.render.sketch import sketch_points, sketch_svg
 
 CASES = Path(__file__).resolve().parent.parent / "workbooks" / "demo_site" / "cases"
 SVG = "{http://www.w3.org/2000/svg}"

@@ -7,7 +7,7 @@ import pytest
 from CoolProp.CoolProp import PropsSI
 
 from steamcalc.errors import AmbiguousStateError, OutOfRangeError, SteamcalcError
-from steamcalc.steam import SteamState, saturation_pressure, saturation_temperature
+from steamcalc.properties.steam import SteamState, saturation_pressure, saturation_temperature
 from tests.reference_data import ids, rows
 
 # IAPWS-95 (the scientific formulation) through CoolProp, a general-purpose reference

@@ -7,9 +7,9 @@ import numpy as np
 import pytest
 
 from steamcalc.errors import OutOfRangeError
-from steamcalc.steam import PHASES, SteamState
-from steamcalc.steam import using_engine
-from steamcalc.steam_arrays import saturation_arrays, states_ph, states_ps
+from steamcalc.properties.steam import PHASES, SteamState
+from steamcalc.properties.steam import using_engine
+from steamcalc.properties.steam_arrays import saturation_arrays, states_ph, states_ps
 from tests.reference_data import rows, significant
 
 PRESSURES = [0.02e5, 0.5e5, 1e5, 3.5e5, 17e5, 60e5, 150e5, 250e5]

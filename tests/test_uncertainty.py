@@ -6,12 +6,12 @@ import shutil
 
 import pytest
 
-from steamcalc.calcs import letdown
+from steamcalc.calcs.letdown import calculation as letdown
 from steamcalc.cli import main
 from steamcalc.errors import SteamcalcError
-from steamcalc.record import load_record
-from steamcalc.site import Site
-from steamcalc.uncertainty import Tolerance, parse_coverage, parse_tolerances, run_uncertainty, sample_check
+from steamcalc.records.record import load_record
+from steamcalc.cases.site import Site
+from steamcalc.runs.uncertainty import Tolerance, parse_coverage, parse_tolerances, run_uncertainty, sample_check
 
 SITE = Site()
 INPUTS = letdown.Inputs(inlet_pressure=17e5, outlet_pressure=3.5e5, mass_flow=1.25, inlet_temperature=503.15)
@@ -95,7 +95,7 @@ def test_bad_coverage_is_refused(raw):
 
 
 def test_samples_run_on_the_fast_engine_and_the_nominal_on_the_reference():
-    from steamcalc.engines import current_engine
+    from steamcalc.properties.engines import current_engine
     seen = []
     real = letdown.calculate
 

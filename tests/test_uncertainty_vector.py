@@ -12,15 +12,17 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from steamcalc.calcs import get_calculation, letdown, letdown_vector, sample_path
+from steamcalc.calcs import get_calculation, sample_path
+from steamcalc.calcs.letdown import calculation as letdown
+from steamcalc.calcs.letdown import vector as letdown_vector
 from steamcalc.calcs.base import numbers_only
-from steamcalc.calcs.letdown_spray import SPRAY_FIELDS
+from steamcalc.calcs.letdown.spray import SPRAY_FIELDS
 from steamcalc.cli import main
-from steamcalc.engines import using_engine
+from steamcalc.properties.engines import using_engine
 from steamcalc.errors import SteamcalcError
-from steamcalc.record import load_record
-from steamcalc.site import Site, case_inputs, case_site, load_case
-from steamcalc.uncertainty import Tolerance, parse_tolerances, run_uncertainty
+from steamcalc.records.record import load_record
+from steamcalc.cases.site import Site, case_inputs, case_site, load_case
+from steamcalc.runs.uncertainty import Tolerance, parse_tolerances, run_uncertainty
 
 #: Largest relative difference allowed between the two paths (both are IF97 on seuif97; they
 #: differ only in rounding, the array Colebrook solution and the Kv fixed point over arrays).

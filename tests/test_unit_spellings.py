@@ -10,7 +10,7 @@ import pytest
 from steamcalc.calcs import get_calculation, kinds
 from steamcalc.calcs.base import input_fields
 from steamcalc.errors import UnitError
-from steamcalc.quantities import _EXAMPLES, parse_quantity, unit_spelling
+from steamcalc.units.quantities import _EXAMPLES, parse_quantity, unit_spelling
 
 BIPM = "BIPM SI Brochure (9th ed., 2019), 5.4: superscript powers, solidus, the degree Celsius"
 DATA_SHEETS = "common practice: data-sheet spellings, a solidus dividing by all that follows it"

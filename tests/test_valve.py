@@ -8,12 +8,12 @@ import shutil
 import pytest
 from CoolProp.CoolProp import PropsSI
 
-from steamcalc.calcs.letdown import Inputs, calculate
+from steamcalc.calcs.letdown.calculation import Inputs, calculate
 from steamcalc.cli import main
 from steamcalc.equipment.piping import pipe_inner_diameter
 from steamcalc.equipment.valve import kv_to_cv, size_steam_valve, valve_flow
 from steamcalc.errors import InputError
-from steamcalc.site import Price, Site
+from steamcalc.cases.site import Price, Site
 from tests.case_helpers import assert_refused, run_case_text
 
 

@@ -5,8 +5,8 @@ import shutil
 
 import papermill
 
-from steamcalc.record import load_record
-from steamcalc.review import verify_record
+from steamcalc.records.record import load_record
+from steamcalc.review.verify import verify_record
 
 
 def test_letdown_workbook_with_papermill(tmp_path, demo_site_dir):

@@ -11,7 +11,7 @@ A kind may also have a vectorised sample path (:func:`sample_path`): a module wi
 results of many Monte Carlo samples at once; uncertainty runs use it where it answers and
 ``calculate()`` for the rest. Its Inputs checks must be intervals and orderings between inputs
 (each sample is then valid when every corner of the tolerance box is, see
-:mod:`steamcalc.uncertainty`).
+:mod:`steamcalc.runs.uncertainty`).
 """
 
 from __future__ import annotations
@@ -19,11 +19,14 @@ from __future__ import annotations
 import importlib
 
 from ..errors import CaseFileError
-from . import exchanger, flash, letdown
+# Imported under their own names: ``steamcalc.calcs.letdown`` stays the kind's package.
+from .exchanger import calculation as exchanger_calculation
+from .flash import calculation as flash_calculation
+from .letdown import calculation as letdown_calculation
 
-_REGISTRY = {module.KIND: module for module in (letdown, flash, exchanger)}
+_REGISTRY = {module.KIND: module for module in (letdown_calculation, flash_calculation, exchanger_calculation)}
 #: Kind -> its vectorised sample path, imported on first use (numpy and the array engine).
-_SAMPLE_PATHS = {letdown.KIND: ".letdown_vector"}
+_SAMPLE_PATHS = {letdown_calculation.KIND: ".letdown.vector"}
 
 
 def kinds():
@@ -52,7 +55,7 @@ def sample_path(calc):
     Examples
     --------
     >>> sample_path(get_calculation("letdown")).__name__, sample_path(get_calculation("flash"))
-    ('steamcalc.calcs.letdown_vector', None)
+    ('steamcalc.calcs.letdown.vector', None)
     """
     kind = getattr(calc, "KIND", None)
     if kind not in _SAMPLE_PATHS or _REGISTRY.get(kind) is not calc:

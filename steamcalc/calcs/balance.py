@@ -10,7 +10,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-from ..engines import other_engine
+from ..properties.engines import other_engine
 from .base import full_record_wanted
 
 #: Residual, as a fraction of the heat transferred in the balance, above which the check
@@ -42,7 +42,7 @@ class Stream:
 def second_engine_enthalpy(stream, engine=None):
     """Specific enthalpy (J/kg) of a stream's state from the other IF97 engine than the one in use
     (the fast engine for an issued record; iapws under ``verify --engine fast``)."""
-    from ..steam import SteamState
+    from ..properties.steam import SteamState
 
     engine = other_engine() if engine is None else engine
     if stream.dryness is not None:
@@ -72,7 +72,7 @@ def energy_balance_residual(inflows, outflows, heat_transferred, heat_in=0.0):
     Adiabatic mixing of 1 kg/s of steam at 3.5 bar(a), 200 °C with 0.05 kg/s of water at
     20 bar(a), 100 °C, checked against an outlet found with the same engine:
 
-    >>> from steamcalc.steam import SteamState
+    >>> from steamcalc.properties.steam import SteamState
     >>> steam, water = SteamState.from_pT(3.5e5, 473.15), SteamState.from_pT(20e5, 373.15)
     >>> h_mix = (1.0 * steam.enthalpy + 0.05 * water.enthalpy) / 1.05
     >>> outlet = SteamState.from_ph(3.5e5, h_mix)

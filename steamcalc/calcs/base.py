@@ -14,8 +14,8 @@ import dataclasses
 import math
 from dataclasses import dataclass, field
 
-from ..errors import InputError
-from ..quantities import RECORD_UNITS, from_record_unit, to_record_unit
+from ..errors import InputError, SteamcalcError
+from ..units.quantities import RECORD_UNITS, from_record_unit, to_record_unit
 
 #: Whether this context wants the full record (steps, checks and the equipment sections that feed
 #: no banded result) or numbers only: Monte Carlo samples keep only the banded results.
@@ -166,7 +166,7 @@ def to_record_inputs(inputs, given):
         else:
             stored = to_record_unit(value, unit_kind)
         # A pressure difference is stored in bar like a pressure; reports label it "bar difference"
-        # from the field's kind (steamcalc.display.pressure_basis).
+        # from the field's kind (steamcalc.render.display.pressure_basis).
         table[f.name] = {"value": stored, "unit": RECORD_UNITS[unit_kind], "given": given.get(f.name, "(default)")}
     return table
 
@@ -220,6 +220,124 @@ class Check:
         return {"name": self.name, "status": self.status, "detail": self.detail}
 
 
+#: How a series is drawn; the views choose colours and symbols from ``role``.
+SERIES_STYLES = ("line", "markers", "line+markers")
+SERIES_DASHES = ("solid", "dot", "dash", "dashdot")
+SERIES_ROLES = ("reference", "inlet", "outlet", "process", "limit", "secondary")
+
+
+@dataclass(frozen=True)
+class Axis:
+    """A figure axis: what it shows in words, its record unit (pint), linear or log, an optional range."""
+
+    label: str
+    unit: str = ""
+    scale: str = "linear"
+    low: float | None = None
+    high: float | None = None
+    basis: str | None = None   # "absolute" for an axis of absolute pressures
+
+    def to_record(self):
+        entry = {"label": self.label, "unit": self.unit, "scale": self.scale}
+        if self.low is not None and self.high is not None:
+            entry["range"] = [_finite(self.low), _finite(self.high)]
+        if self.basis:
+            entry["basis"] = self.basis
+        return entry
+
+
+@dataclass(frozen=True)
+class Series:
+    """One data series of a figure, in the units of its axes (x and ``axis``: "y" or "y2")."""
+
+    name: str
+    x: tuple
+    y: tuple
+    style: str = "line"
+    role: str = "process"
+    dash: str = "solid"
+    axis: str = "y"
+    labels: tuple = ()
+
+    def __post_init__(self):
+        # Checked when made, inside the figure's own calculation, so a bad point marks the figure missing.
+        object.__setattr__(self, "x", tuple(_finite(v) for v in self.x))
+        object.__setattr__(self, "y", tuple(_finite(v) for v in self.y))
+        if len(self.x) != len(self.y):
+            raise ValueError(f"series {self.name!r} has {len(self.x)} x values and {len(self.y)} y values")
+
+    def to_record(self):
+        entry = {"name": self.name, "x": list(self.x), "y": list(self.y),
+                 "style": self.style, "role": self.role, "dash": self.dash, "axis": self.axis}
+        if self.labels:
+            entry["labels"] = [str(label) for label in self.labels]
+        return entry
+
+
+@dataclass(frozen=True)
+class Band:
+    """A shaded span of an axis ("x", "y" or "y2") from ``low`` to ``high``, with its meaning in words."""
+
+    axis: str
+    low: float
+    high: float
+    label: str
+
+    def to_record(self):
+        return {"axis": self.axis, "low": _finite(self.low), "high": _finite(self.high), "label": self.label}
+
+
+@dataclass(frozen=True)
+class Figure:
+    """A figure as data: axes, series and bands, computed by its kind's calculation layer.
+
+    A figure that could not be computed keeps its name and title and says why in ``missing``;
+    the record is issued all the same.
+    """
+
+    name: str
+    title: str
+    x: Axis | None = None
+    y: Axis | None = None
+    y2: Axis | None = None
+    series: tuple = ()
+    bands: tuple = ()
+    missing: str = ""
+
+    def to_record(self):
+        entry = {"name": self.name, "title": self.title}
+        if self.missing:
+            entry["missing"] = self.missing
+            return entry
+        entry["axes"] = {key: axis.to_record() for key, axis in (("x", self.x), ("y", self.y), ("y2", self.y2))
+                         if axis is not None}
+        entry["series"] = [s.to_record() for s in self.series]
+        if self.bands:
+            entry["bands"] = [b.to_record() for b in self.bands]
+        return entry
+
+
+def figure_or_missing(name, title, build):
+    """A kind's figure from ``build()``; when it cannot be computed, the figure marked missing with the reason.
+
+    ``build`` may return None (the case has nothing to draw). A range error or an arithmetic
+    failure in a figure never stops the record being issued: the record says why the figure is missing.
+    """
+    try:
+        return build()
+    except (InputError, SteamcalcError, ArithmeticError, ValueError) as exc:
+        reason = exc.message if isinstance(exc, SteamcalcError) else str(exc)
+        return Figure(name, title, missing=f"not drawn: {reason}")
+
+
+def _finite(value):
+    """A figure coordinate as the record keeps it: a finite float, else a bug."""
+    value = float(value)
+    if not math.isfinite(value):
+        raise ArithmeticError(f"figure coordinate is not finite ({value})")
+    return value
+
+
 @dataclass(frozen=True)
 class ResultValue:
     """A result: its label, value and unit string (pint-parsable; '' for none)."""
@@ -238,8 +356,8 @@ class ResultValue:
 class Result:
     """What a calculation returns. Built inside ``calculate()``; treated as read-only after.
 
-    ``states`` keeps the SteamStates the calculation found, by name, for charts; it is not
-    part of the record.
+    ``states`` keeps the SteamStates the calculation found, by name; it is not part of the record.
+    ``figures`` holds the kind's :class:`Figure` data, which is.
     """
 
     values: dict = field(default_factory=dict)
@@ -250,6 +368,7 @@ class Result:
     warnings: list = field(default_factory=list)
     cautions: list = field(default_factory=list)
     states: dict = field(default_factory=dict)
+    figures: list = field(default_factory=list)
 
     def add(self, key, label, value, unit=""):
         """Add a result value. A float must be finite: a NaN or infinity is a bug, not a result."""

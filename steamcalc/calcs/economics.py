@@ -60,7 +60,7 @@ def annual_value(energy_mwh, price):
 
     Examples
     --------
-    >>> from steamcalc.site import Price
+    >>> from steamcalc.cases.site import Price
     >>> annual_value(697.7, Price(40.0, "EUR"))
     27908.0
     """
@@ -80,7 +80,7 @@ def fuel_basis(site):
 
     Examples
     --------
-    >>> from steamcalc.site import Site
+    >>> from steamcalc.cases.site import Site
     >>> fuel_basis(Site()), fuel_basis(Site(fuel_basis="net"))
     ('gross', 'net')
     """
@@ -95,7 +95,7 @@ def fuel_basis_assumption(site):
 
     Parameters
     ----------
-    site : steamcalc.site.Site
+    site : steamcalc.cases.site.Site
 
     Returns
     -------
@@ -114,7 +114,7 @@ def fuel_basis_assumption(site):
 
     Examples
     --------
-    >>> from steamcalc.site import Site
+    >>> from steamcalc.cases.site import Site
     >>> fuel_basis_assumption(Site(fuel_basis="net"))[:60]
     'Fuel energy on the net calorific value (NCV, lower heating v'
     """
@@ -138,7 +138,7 @@ def annual_water_cost(mass_flow, density, operating_hours, water_cost):
         Density of the make-up water, kg/m³.
     operating_hours : float
         h a year.
-    water_cost : steamcalc.site.WaterCost
+    water_cost : steamcalc.cases.site.WaterCost
         Cost per m³ of make-up water, treatment included.
 
     Returns
@@ -152,7 +152,7 @@ def annual_water_cost(mass_flow, density, operating_hours, water_cost):
 
     Examples
     --------
-    >>> from steamcalc.site import WaterCost
+    >>> from steamcalc.cases.site import WaterCost
     >>> annual_water_cost(1.0, 1000.0, 1000.0, WaterCost(2.0, "EUR"))
     (3600.0, 7200.0)
     """

@@ -88,7 +88,7 @@ def valve_noise(mass_flow, inlet, outlet, kappa, kv, valve_diameter, pipe_inner_
 
     Examples
     --------
-    >>> from steamcalc.steam import SteamState
+    >>> from steamcalc.properties.steam import SteamState
     >>> p1 = SteamState.from_pT(17e5, 503.15)
     >>> p2 = SteamState.from_ph(3.5e5, p1.enthalpy)
     >>> round(valve_noise(1.25, p1, p2, 1.30, 40.0, 0.0779, 0.2027, 0.00818, 1.0, 0.9), 1)
@@ -125,7 +125,7 @@ def outlet_mach(mass_flow, outlet, port_diameter):
 
     Examples
     --------
-    >>> from steamcalc.steam import SteamState
+    >>> from steamcalc.properties.steam import SteamState
     >>> round(outlet_mach(1.25, SteamState.from_pT(3.5e5, 460.0), 0.0779), 3)
     0.299
     """

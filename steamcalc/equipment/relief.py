@@ -101,7 +101,7 @@ def isentrope_point(pressure, entropy, temperature_guess):
     >>> round(h / 1e3, 1), x
     (2827.4, None)
     """
-    from ..steam import SteamState
+    from ..properties.steam import SteamState
 
     vapour = SteamState.from_p_dryness(pressure, 1.0)
     if entropy <= vapour.entropy:
@@ -156,7 +156,7 @@ def direct_integration_flux(relieving_state, back_pressure, evaluations=20):
 
     Examples
     --------
-    >>> from steamcalc.steam import SteamState
+    >>> from steamcalc.properties.steam import SteamState
     >>> flow = direct_integration_flux(SteamState.from_pT(10e5, 473.15), 1e5)
     >>> round(flow.mass_flux), flow.choked
     (1435, True)

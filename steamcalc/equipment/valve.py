@@ -122,10 +122,18 @@ def piping_factors(kv, valve_d, inlet_d, outlet_d, xt):
     kb1 = 1.0 - (valve_d / inlet_d) ** 4 if inlet_d else 0.0
     kb2 = 1.0 - (valve_d / outlet_d) ** 4 if outlet_d else 0.0
     sum_k = k1 + k2 + kb1 - kb2
-    fp = (1.0 + sum_k / N2_KV * (kv / valve_d ** 2) ** 2) ** -0.5
+    fp = _inverse_sqrt(1.0 + sum_k / N2_KV * (kv / valve_d ** 2) ** 2)
     xi = k1 + kb1
     xtp = xt / fp ** 2 / (1.0 + xt * xi / N5_KV * (kv / valve_d ** 2) ** 2)
     return fp, xtp
+
+
+def _inverse_sqrt(value):
+    """1/√value, NaN where value ≤ 0 (never a complex number): the caller refuses a NaN by name."""
+    if isinstance(value, np.ndarray):
+        with np.errstate(invalid="ignore", divide="ignore"):
+            return np.where(value > 0.0, np.abs(value) ** -0.5, np.nan)
+    return value ** -0.5 if value > 0.0 else math.nan
 
 
 def size_steam_valve(mass_flow, p1, p2, density1, kappa, xt, valve_d=None, inlet_d=None, outlet_d=None):
@@ -194,7 +202,16 @@ def size_steam_valve(mass_flow, p1, p2, density1, kappa, xt, valve_d=None, inlet
             kv = new_kv
             break
         kv = new_kv
-        fp, xtp = piping_factors(kv, valve_d, inlet_d, outlet_d, xt)
+        with np.errstate(invalid="ignore"):   # an undefined Fp is refused below, by name
+            fp, xtp = piping_factors(kv, valve_d, inlet_d, outlet_d, xt)
+    if not (np.all(np.isfinite(kv)) and np.all(np.isfinite(fp)) and np.all(np.asarray(xtp) > 0.0)):
+        # 1 + ΣK/N2·(Kv/d²)² fell to zero or below: a valve larger than its pipe (negative Bernoulli
+        # coefficients) at a Kv this large is outside the reducer equations of IEC 60534-2-1.
+        raise InputError("the piping geometry factor Fp has no value at this flow: the valve is larger than the "
+                         "pipe on its inlet or outlet, and at the Kv this flow needs the IEC 60534-2-1 reducer "
+                         "equations no longer hold", field="valve.valve_size",
+                         fix="give a valve size no larger than the pipes either side (lines.inlet_size, "
+                             "lines.outlet_size), or a smaller flow")
     x_choked = f_gamma * xtp
     return ValveSizing(kv=kv, cv=kv_to_cv(kv), x=x, x_choked=x_choked, choked=x >= x_choked,
                        expansion_factor=1.0 - _smaller(x, x_choked) / (3.0 * x_choked), piping_factor=fp, xtp=xtp)

@@ -65,7 +65,7 @@ class CaseForm:
     """
 
     def __init__(self, inputs_class, values, headers=(), tolerances=None, alternatives=()):
-        from ..uncertainty import _DIFFERENCE_KINDS
+        from ..runs.uncertainty import _DIFFERENCE_KINDS
 
         tolerances = tolerances or {}
         self.words = FormWords(inputs_class)

@@ -10,12 +10,12 @@ from pathlib import Path
 import ipywidgets as widgets
 
 from ..errors import SteamcalcError
-from ..record import load_record, write_record
-from ..report import RENDERERS, format_number, format_unit
-from ..review import verify_record
-from ..runner import record_for_case_file
-from ..record_diff import diff_records, diff_summary
-from ..signoff import sign_record
+from ..records.record import load_record, write_record
+from ..render.report import RENDERERS, format_number, format_unit
+from ..review.verify import verify_record
+from ..records.build import record_for_case_file
+from ..review.diff import diff_records, diff_summary
+from ..review.signoff import sign_record
 from .feedback import SummaryView, file_link
 from .workbook import _install_error_display  # noqa: F401  (bad input shows as a message in any workbook)
 
@@ -212,14 +212,14 @@ class ReviewBook:
 
     def register(self, show="all records"):
         """The register of this record's folder (every record recomputed), filtered; a list of rows."""
-        from ..register import build_register
+        from ..review.register import build_register
 
         self._register_rows = build_register(self.folder)
         return [row for row in self._register_rows if self.REGISTER_FILTERS[show](row)]
 
     def register_view(self):
         """The register as a table with a filter; built when asked (it recomputes every record)."""
-        from ..register import register_table_html
+        from ..review.register import register_table_html
 
         table = widgets.HTML()
         table.add_class("steamcalc-register")
@@ -312,15 +312,15 @@ class ReviewBook:
     def sign(self, checker, key_file=None, role="checked", passphrase_file=None):
         """Sign the record (after a passing verification); return what happened.
 
-        With ``key_file`` it is signed with the signer's key (:func:`steamcalc.signing.sign_with_key`);
+        With ``key_file`` it is signed with the signer's key (:func:`steamcalc.review.sign.sign_with_key`);
         without, it is the sign-off by name only, which proves nothing about who signed.
         """
         try:
             if key_file:
-                from ..signing import sign_with_key
+                from ..review.sign import sign_with_key
                 signed = sign_with_key(self.path, key_file, role, checker or None, passphrase_file)
             else:
-                from ..signing import name_only_refusal
+                from ..signing.signatures import name_only_refusal
                 if name_only_refusal(self.record):
                     return f"not signed: {name_only_refusal(self.record)}"
                 signed = sign_record(self.path, self.record, checker)
@@ -329,7 +329,7 @@ class ReviewBook:
         self.record = signed
         self.outcome = verify_record(signed)
         self._show()
-        from ..batch import refresh_index
+        from ..batch.batch import refresh_index
         index = refresh_index(self.path.parent)   # the folder's index shows the signature too
         index = f"; {index}" if index else ""
         if key_file:

@@ -1,7 +1,7 @@
 """The workbook's "Save case file" button: the edited inputs as a case file, never over another one.
 
 Kept apart from ``workbook.py``: the workbook makes one :class:`CaseSaver` and shows its view.
-The writing itself (file name, refusal, round trip) is ``steamcalc.casefile_writer``.
+The writing itself (file name, refusal, round trip) is ``steamcalc.cases.casefile_writer``.
 """
 
 from __future__ import annotations
@@ -10,7 +10,7 @@ import html
 
 import ipywidgets as widgets
 
-from ..casefile_writer import free_revision, save_case
+from ..cases.casefile_writer import free_revision, save_case
 from ..errors import SteamcalcError
 
 

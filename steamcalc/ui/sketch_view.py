@@ -1,10 +1,10 @@
-"""The process sketch in the workbook: the SVG of ``steamcalc.sketch`` for the current record."""
+"""The process sketch in the workbook: the SVG of ``steamcalc.render.sketch`` for the current record."""
 
 from __future__ import annotations
 
 import ipywidgets as widgets
 
-from ..sketch import sketch_svg
+from ..render.sketch import sketch_svg
 
 
 class SketchView:

@@ -17,14 +17,14 @@ from pathlib import Path
 import ipywidgets as widgets
 
 from ..calcs import get_calculation
-from ..display import display_record, pressure_basis
+from ..render.display import display_record, pressure_basis
 from ..errors import RecordConflictError, SteamcalcError
-from ..record import write_record
-from ..report import RENDERERS, format_number, format_unit, render_markdown
-from ..runner import record_for_case
-from ..site import case_site, flatten_inputs, is_file_name_part, load_case, parse_inputs
-from ..uncertainty import SETTINGS
-from .charts import chart_for, figure_json, table_for, tornado_chart
+from ..records.record import write_record
+from ..render.report import RENDERERS, format_number, format_unit, render_markdown
+from ..records.build import record_for_case
+from ..cases.site import case_site, flatten_inputs, is_file_name_part, load_case, parse_inputs
+from ..runs.uncertainty import SETTINGS
+from .charts import figure_json, record_charts, table_for, tornado_chart
 from .feedback import STALE_CLASS, STALE_STYLE, STALE_TEXT, SummaryView, file_link
 from .forms import CaseForm, alternatives_for
 from .save_case import CaseSaver
@@ -141,7 +141,7 @@ class Workbook:
             self.case = dataclasses.replace(self.case, uncertainty={**self.form.tolerances(), **self._settings})
             record, result = record_for_case(self.case, self.site, inputs=inputs, given=given, with_uncertainty=False)
             if self.case.uncertainty:
-                from ..uncertainty import parse_tolerances
+                from ..runs.uncertainty import parse_tolerances
                 parse_tolerances(self.calc.Inputs, self.case.uncertainty, inputs)
         except SteamcalcError as exc:
             self._refused(exc)
@@ -293,11 +293,14 @@ class Workbook:
     def _draw_chart(self):
         # Output widgets are filled through their state, not by capturing display calls,
         # so that headless runs (papermill, nbval) see no stray outputs in the cell.
-        figures = chart_for(self.case.kind, self.inputs, self.result)
+        figures, missing = record_charts(self.record)
         self._chart.outputs = tuple(
             {"output_type": "display_data", "metadata": {},
              "data": {"application/vnd.plotly.v1+json": figure_json(figure), "text/plain": "chart"}}
-            for figure in figures)
+            for figure in figures) + tuple(
+            {"output_type": "display_data", "metadata": {},
+             "data": {"text/html": f"<p><small>{html.escape(reason)}</small></p>", "text/plain": reason}}
+            for reason in missing)
 
     def _draw_table(self):
         tables = table_for(self.case.kind, self.inputs, self.result)

@@ -1,7 +1,7 @@
 """Benchmark: a batch of 500 cases, one process against the worker pool.
 
 Writes 500 variants of the demo cases (without their [uncertainty] tables) to a temporary folder and runs them with
-``steamcalc.batch.run_cases``: once in this process (the baseline), once in worker
+``steamcalc.batch.batch.run_cases``: once in this process (the baseline), once in worker
 processes; prints the time per case and the ratio.
 
     python tests/bench/bench_batch.py
@@ -14,7 +14,7 @@ import tempfile
 import time
 from pathlib import Path
 
-from steamcalc.batch import run_one, run_cases
+from steamcalc.batch.batch import run_one, run_cases
 
 DEMO = Path(__file__).resolve().parents[2] / "workbooks" / "demo_site"
 

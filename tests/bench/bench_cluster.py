@@ -1,7 +1,7 @@
 """Benchmark: a batch on the local worker processes against a two-worker Dask LocalCluster.
 
 Writes N variants of the demo cases (default 5,000; without their [uncertainty] tables) and runs
-them with ``steamcalc.batch.run_cases``: on the process pool (the baseline) and with
+them with ``steamcalc.batch.batch.run_cases``: on the process pool (the baseline) and with
 ``scheduler=`` a LocalCluster of two worker processes, one thread each. Needs the cluster extra.
 
     python tests/bench/bench_cluster.py [N]
@@ -15,7 +15,7 @@ from pathlib import Path
 from distributed import LocalCluster
 
 from bench_batch import make_cases  # the script's own folder
-from steamcalc.batch import run_cases
+from steamcalc.batch.batch import run_cases
 
 if __name__ == "__main__":
     count = int(sys.argv[1]) if len(sys.argv) > 1 else 5000

@@ -13,8 +13,8 @@ import seuif97
 from CoolProp.CoolProp import PropsSI
 from iapws import IAPWS97
 
-from steamcalc.steam import SteamState
-from steamcalc.steam_arrays import states_ph
+from steamcalc.properties.steam import SteamState
+from steamcalc.properties.steam_arrays import states_ph
 from timing import median_seconds  # the script's own folder
 
 

@@ -2,7 +2,7 @@
 
 Side by side in one run, interleaved, on the fast engine (seuif97): the per-sample path
 (``calculate()`` once per sample, numbers only) as the baseline, and the vectorised path
-(``steamcalc.calcs.letdown_vector``, all samples at once) as records make them — both with the
+(``steamcalc.calcs.letdown.vector``, all samples at once) as records make them — both with the
 nominal case computed inside the run, and the vectorised one also with the nominal passed in,
 as ``steamcalc run`` does (it has computed the record's result already). With ``--iapws`` the
 per-sample path on the reference engine is timed once too; with ``--before PATH`` (a checkout
@@ -24,8 +24,8 @@ CASE = ROOT / "workbooks" / "demo_site" / "cases" / "LD-01.toml"
 TIMER = f"""
 import time
 from steamcalc.calcs import get_calculation
-from steamcalc.site import case_inputs, case_site, load_case
-from steamcalc.uncertainty import parse_tolerances, run_uncertainty
+from steamcalc.cases.site import case_inputs, case_site, load_case
+from steamcalc.runs.uncertainty import parse_tolerances, run_uncertainty
 case = load_case({str(CASE)!r}); site = case_site(case); inputs, _ = case_inputs(case, site)
 calc = get_calculation(case.kind)
 tolerances, samples, seed = parse_tolerances(calc.Inputs, case.uncertainty, inputs)
@@ -37,8 +37,8 @@ print(time.perf_counter() - start)
 
 def _case():
     from steamcalc.calcs import get_calculation
-    from steamcalc.site import case_inputs, case_site, load_case
-    from steamcalc.uncertainty import parse_tolerances
+    from steamcalc.cases.site import case_inputs, case_site, load_case
+    from steamcalc.runs.uncertainty import parse_tolerances
 
     case = load_case(CASE)
     site = case_site(case)
@@ -51,7 +51,7 @@ def _case():
 def timed(engine="fast", vectorised=True, nominal=False):
     """(wall, CPU) seconds for one run of LD-01's bands, and the section it made. The CPU time of
     this process is less disturbed than the wall time on a shared machine."""
-    from steamcalc.uncertainty import run_uncertainty
+    from steamcalc.runs.uncertainty import run_uncertainty
 
     calc, inputs, site, tolerances, samples, seed = _case()
     given = calc.calculate(inputs, site) if nominal else None

@@ -10,7 +10,7 @@ import tempfile
 from pathlib import Path
 
 from steamcalc.calcs import get_calculation
-from steamcalc.site import case_inputs, case_site, load_case
+from steamcalc.cases.site import case_inputs, case_site, load_case
 from steamcalc.ui.workbook import Workbook
 from timing import median_seconds  # the script's own folder
 

@@ -1,0 +1,1 @@
+"""Many cases at once: worker processes or a Dask cluster, and the folder's records index."""

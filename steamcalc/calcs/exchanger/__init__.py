@@ -1,0 +1,1 @@
+"""The exchanger kind: the steam-heated exchanger. ``calculation`` is the module the registry holds."""

@@ -1,0 +1,421 @@
+"""Steam-heated exchanger: duty, steam demand, zone LMTD, area, turndown and stall.
+
+A process liquid is heated by condensing steam. The duty comes from the process side;
+the steam flow from the steam's actual state (superheat and dryness count) down to
+condensate at its stated subcooling. The zones (desuperheating, condensing, subcooling;
+:mod:`.exchanger_zones`) each have their own LMTD, U and area. At part load, with a fixed
+area and U, the steam-side pressure the exchanger needs falls; below the load where it
+cannot push the condensate through the trap, condensate stops draining: stall
+(:mod:`.exchanger_turndown`). The steam control valve over the turndown, the load below which the
+steam space is under vacuum, and the condensate to pump out when stalled are in
+:mod:`.exchanger_control`.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+from ...errors import InputError, OutOfRangeError
+from ...properties.steam import REFERENCE as IF97_REFERENCE
+from ...properties.steam import SteamState, saturation_pressure, saturation_temperature
+from ..balance import Stream, check_energy_balance
+from ..base import Result, check_fields, full_record_wanted, input_field
+from .turndown import (LOADS, STALL_REMEDIES, add_turndown, required_saturation_temperature,  # noqa: F401
+                                 stall_load, stall_pressure)
+from .control import add_control, check_control_inputs
+from .figures import figures
+from .zones import ARRANGEMENTS, add_zones, f_factor, lmtd, service_u  # noqa: F401
+
+_f_factor = f_factor  # the name v0.1 callers used
+
+KIND = "exchanger"
+TITLE = "Steam-heated exchanger: duty, area and stall"
+WORKBOOK = "exchanger_duty.ipynb"
+#: Results the uncertainty section gives bands and sensitivities for.
+#: Results in a pressure unit that are differences, not absolute pressures (labelled "difference").
+PRESSURE_DIFFERENCE_RESULTS = ("trap_static_head_pressure", "lift_head_pressure", "required_pumping_differential",
+                               "pump_motive_excess")
+UNCERTAINTY_RESULTS = ("duty", "steam_flow", "required_area", "area_margin", "stall_load_fraction")
+#: Plain fractions shown in % (display only; records keep the fraction).
+PERCENT_VALUES = ("area_margin", "stall_load_fraction", "stall_load_fraction_fouled", "heat_loss")
+
+#: Smallest temperature approach (steam saturation to process outlet) held without a warning, K
+#: (common practice: below about 5 K control is sluggish and the area grows fast).
+MIN_APPROACH = 5.0
+
+CAUTIONS = (
+    "Below the stall load condensate backs up into the exchanger: waterhammer, corrosion and loss of "
+    "temperature control follow. Provide for draining at part load (see the remedies in the record).",
+    "The steam space is a pressure vessel: design, relief and inspection follow the local pressure-equipment "
+    "code; the process side needs relief against thermal expansion when blocked in.",
+    "Steam, condensate and hot process liquid cause severe burns; drains and vents discharge to a safe place.",
+    "These results support design by a competent engineer; they do not replace the applicable codes, the "
+    "equipment makers' data or a licensed engineer's approval.",
+)
+
+@dataclass(frozen=True)
+class Inputs:
+    """Inputs of a steam-heated exchanger; values in SI."""
+
+    steam_pressure: float = input_field(
+        "pressure", "Steam pressure", "Steam pressure in the exchanger's steam space at design load.",
+        example="header:MP", required=True)
+    process_inlet_temperature: float = input_field(
+        "temperature", "Process inlet temperature", "Process liquid entering.", example="55 °C",
+        required=True)
+    process_outlet_temperature: float = input_field(
+        "temperature", "Process outlet temperature", "Process liquid leaving.", example="85 °C",
+        required=True)
+    process_flow: float | None = input_field(
+        "mass_flow", "Process flow", "Mass flow of the process liquid (or give process_volume_flow).",
+        example="12 t/h", positive=True)
+    process_volume_flow: float | None = input_field(
+        "volume_flow", "Process volume flow", "Volume flow of the process liquid, in place of process_flow.",
+        example="12 m³/h", positive=True)
+    process_density: float | None = input_field(
+        "density", "Process density", "Density for a volume flow (water: from IF97 at the inlet).",
+        example="1030 kg/m³", positive=True)
+    process_fluid: str | None = input_field(
+        "text", "Process fluid", "'water' (IF97 properties) unless process_cp is given.", example="water")
+    process_cp: float | None = input_field(
+        "specific_heat", "Process specific heat", "Mean specific heat of a process liquid other than water.",
+        example="3.9 kJ/(kg·K)", positive=True)
+    process_pressure: float | None = input_field(
+        "pressure", "Process pressure", "Process-side pressure (for water properties; default well above "
+        "boiling).", example="4 bar(g)")
+    steam_temperature: float | None = input_field(
+        "temperature", "Steam temperature", "Superheated steam temperature (else saturated).", example="190 °C")
+    steam_dryness: float | None = input_field(
+        "fraction", "Steam dryness fraction", "Dryness of wet steam (else saturated).", example="0.97",
+        positive=True)
+    condensate_subcooling: float | None = input_field(
+        "temperature_difference", "Condensate subcooling", "Condensate leaves this far below saturation.",
+        example="0 K")
+    arrangement: str | None = input_field(
+        "text", "Arrangement", "'counterflow', or shell-and-tube '1-2' or '2-4'.", example="counterflow")
+    heat_loss: float | None = input_field(
+        "fraction", "Heat loss", "Heat lost from the exchanger, as a fraction of the duty.", example="0.02")
+    overall_u: float | None = input_field(
+        "heat_transfer_coefficient", "Overall U (clean)", "Overall heat-transfer coefficient, clean.",
+        example="1.8 kW/(m²·K)", positive=True)
+    fouling_resistance: float | None = input_field(
+        "fouling_resistance", "Fouling resistance", "Total fouling resistance added to 1/U.",
+        example="0.1 m²·K/kW")
+    installed_area: float | None = input_field(
+        "area", "Installed area", "Heat-transfer area of the exchanger as installed.", example="2.6 m²",
+        positive=True)
+    condensate_back_pressure: float | None = input_field(
+        "pressure", "Condensate back pressure", "Pressure the condensate drains against (trap outlet, lift, "
+        "return main); with a lift_head given, the pressure at the end of the lift (the lift is added).",
+        example="0.8 bar(g)")
+    desuperheating_u: float | None = input_field(
+        "heat_transfer_coefficient", "Desuperheating zone U (clean, dry wall)", "U of a dry-wall desuperheating "
+        "zone (steam cooling as a gas); leave empty for the wet-wall basis at the overall U.",
+        example="0.1 kW/(m²·K)", positive=True)
+    subcooling_u: float | None = input_field(
+        "heat_transfer_coefficient", "Subcooling zone U (clean)", "U of the condensate-subcooling zone (else the "
+        "overall U).", example="0.6 kW/(m²·K)", positive=True)
+    trap_static_head: float | None = input_field(
+        "length", "Static head to the trap", "Height of condensate between the heater outlet and the trap inlet "
+        "(trap below the outlet); adds ρ·g·H to the pressure that drains it.", example="0.5 m", section="drainage")
+    trap_min_differential: float | None = input_field(
+        "pressure_difference", "Trap minimum differential", "Smallest inlet-minus-outlet pressure difference the "
+        "trap works at (maker's data).", example="0.1 bar", section="drainage")
+    lift_head: float | None = input_field(
+        "length", "Condensate lift after the trap", "Rise of the condensate line from the trap to its highest point; "
+        "its ρ·g·H is added to the back pressure.", example="4 m", section="drainage")
+    pump_motive_pressure: float | None = input_field(
+        "pressure", "Pump motive steam pressure", "Motive steam (or air) pressure of a pressure-powered pump or "
+        "pump-trap, if one is proposed.", example="5 bar(g)", section="drainage")
+    control_valve_supply_pressure: float | None = input_field(
+        "pressure", "Supply pressure at the control valve", "Steam pressure upstream of the heater's steam control "
+        "valve.", example="8 bar(g)", section="control_valve", key="supply_pressure")
+    control_valve_xt: float | None = input_field(
+        "fraction", "Control valve xT", "Pressure differential ratio factor at choked flow (maker's data).",
+        example="0.70", section="control_valve", positive=True, key="xt")
+    control_valve_rated_kv: float | None = input_field(
+        "flow_coefficient", "Control valve rated Kv (Kvs)", "Kv of the selected valve at full travel.",
+        example="16 m³/h", section="control_valve", positive=True, key="rated_kv")
+    control_valve_characteristic: str | None = input_field(
+        "text", "Control valve characteristic", "Inherent characteristic: equal-percentage or linear.",
+        example="equal-percentage", section="control_valve", key="characteristic")
+    control_valve_rangeability: float | None = input_field(
+        "number", "Control valve rangeability", "Inherent rangeability: rated Kv over the smallest controllable Kv.",
+        example="50", section="control_valve", key="rangeability")
+
+    def __post_init__(self):
+        check_fields(self)
+        if (self.process_flow is None) == (self.process_volume_flow is None):
+            raise InputError("give process_flow (mass) or process_volume_flow (volume), exactly one",
+                             field="process_flow", fix="e.g. process_flow = \"12 t/h\"")
+        if self.process_outlet_temperature <= self.process_inlet_temperature:
+            raise InputError(
+                f"process outlet {self.process_outlet_temperature - 273.15:.2f} °C is not above the inlet "
+                f"{self.process_inlet_temperature - 273.15:.2f} °C: a heater raises the temperature",
+                field="process_outlet_temperature", fix="check the two process temperatures")
+        fluid = (self.process_fluid or "water")
+        if self.process_cp is None and fluid != "water":
+            raise InputError(f"process fluid '{fluid}' needs its specific heat", field="process_cp",
+                             fix="give process_cp, or process_fluid = \"water\"")
+        if self.process_cp is not None and self.process_fluid not in (None, "other"):
+            raise InputError("give process_fluid = \"water\" or process_cp, not both", field="process_cp")
+        if self.process_volume_flow is not None and self.process_density is None and self.process_cp is not None:
+            raise InputError("a volume flow of a liquid other than water needs its density", field="process_density")
+        if self.steam_temperature is not None and self.steam_dryness is not None:
+            raise InputError("give steam_temperature or steam_dryness, not both", field="steam_dryness")
+        if self.arrangement is not None and self.arrangement not in ARRANGEMENTS:
+            raise InputError(f"arrangement '{self.arrangement}' is not known", field="arrangement",
+                             fix=f"use one of: {', '.join(ARRANGEMENTS)}")
+        if self.heat_loss is not None and self.heat_loss >= 0.5:
+            raise InputError("a heat loss of half the duty or more is not an allowance", field="heat_loss",
+                             limits=(0, 0.5, ""))
+        if self.fouling_resistance is not None and self.fouling_resistance < 0.0:
+            raise InputError("a fouling resistance cannot be negative", field="fouling_resistance")
+        if self.condensate_subcooling is not None and self.condensate_subcooling < 0.0:
+            raise InputError("subcooling cannot be negative", field="condensate_subcooling")
+        for name in ("desuperheating_u", "subcooling_u"):
+            if getattr(self, name) is not None and self.overall_u is None:
+                raise InputError(f"{name} is a zone's U; the condensing zone needs the overall U as well",
+                                 field=name, fix="give overall_u (the clean condensing U), or remove " + name)
+        self._check_drainage()
+        check_control_inputs(self)
+
+    def _check_drainage(self):
+        head, differential = self.trap_static_head, self.trap_min_differential
+        for name, value, unit in (("desuperheating_u", self.desuperheating_u, "kW/(m^2 K)"),
+                                  ("subcooling_u", self.subcooling_u, "kW/(m^2 K)"),
+                                  ("drainage.trap_static_head", head, "m"),
+                                  ("drainage.trap_min_differential", differential, "bar")):
+            if value is not None and not math.isfinite(value):
+                raise InputError("is not a finite number", field=name, value=value,
+                                 fix=f"give a plain figure with its unit, in {unit}")
+        if head is not None and head < 0.0:
+            raise InputError(
+                "a static head cannot be negative: it is the height of condensate standing above the trap",
+                field="drainage.trap_static_head", value=f"{head:g} m",
+                fix="give the trap's depth below the heater outlet (0 m or more); a trap above the outlet is a "
+                    "lift: add its ρ·g·H to condensate_back_pressure instead")
+        if differential is not None and differential < 0.0:
+            raise InputError(
+                "a trap's minimum working differential cannot be negative",
+                field="drainage.trap_min_differential", value=f"{differential / 1e5:g} bar",
+                fix="give the trap maker's minimum differential, 0 bar or more, e.g. \"0.1 bar\"")
+        if (head is not None or differential is not None) and self.condensate_back_pressure is None:
+            field = "drainage.trap_static_head" if head is not None else "drainage.trap_min_differential"
+            raise InputError("the [inputs.drainage] figures set the stall load, which needs the condensate back "
+                             "pressure", field=field, fix="give condensate_back_pressure, e.g. \"0.8 bar(g)\"")
+
+
+def _process_side(inputs, result):
+    t_in, t_out = inputs.process_inlet_temperature, inputs.process_outlet_temperature
+    if inputs.process_cp is not None:
+        cp = inputs.process_cp
+        flow = inputs.process_flow if inputs.process_flow is not None else inputs.process_volume_flow * inputs.process_density
+        duty = flow * cp * (t_out - t_in)
+        result.step("Process duty", "Q = m·cp·(T_out − T_in)",
+                    f"Q = {flow:.4f} kg/s × {cp / 1e3:.3f} kJ/(kg·K) × {t_out - t_in:.2f} K", duty / 1e3, "kW")
+        return flow, duty, None
+    p = inputs.process_pressure
+    if p is None:
+        p = max(2e5, saturation_pressure(min(t_out, 640.0)) + 1e5)
+        result.assumptions.append(f"Process water at {p / 1e5:.3g} bar(a) (not given; liquid enthalpy barely "
+                                  "depends on pressure)")
+    try:
+        water_in = SteamState.from_pT(p, t_in)
+        water_out = SteamState.from_pT(p, t_out)
+    except OutOfRangeError as exc:
+        raise exc.for_field("process_outlet_temperature" if exc.field == "temperature" else "process_pressure") from None
+    if water_out.phase != "compressed liquid":
+        raise InputError(f"process water at {t_out - 273.15:.1f} °C boils at {p / 1e5:.3g} bar(a)",
+                         field="process_pressure", fix="give the process pressure, above saturation at the outlet")
+    if inputs.process_flow is not None:
+        flow = inputs.process_flow
+    else:
+        density = inputs.process_density or water_in.density
+        flow = inputs.process_volume_flow * density
+        result.step("Process mass flow", "m = V·ρ", f"m = {inputs.process_volume_flow * 3600:.3f} m³/h × "
+                    f"{density:.2f} kg/m³", flow * 3600, "kg/h")
+    duty = flow * (water_out.enthalpy - water_in.enthalpy)
+    result.step("Process duty (water, IF97)", "Q = m·(h(p, T_out) − h(p, T_in))",
+                f"Q = {flow:.4f} kg/s × ({water_out.enthalpy / 1e3:.2f} − {water_in.enthalpy / 1e3:.2f}) kJ/kg",
+                duty / 1e3, "kW")
+    return flow, duty, (water_in, water_out)
+
+
+def _independent_balance(steam, condensate, steam_flow, flow, duty, steam_side, water, result):
+    """Steam side against process side, re-summed with the second IF97 implementation."""
+    steam_streams = ([Stream.of("steam", steam_flow, steam)], [Stream.of("condensate", steam_flow, condensate)])
+    if water is None:
+        # A process fluid given by its cp: only the steam side has IF97 states; its heat goes to the process.
+        check_energy_balance(result, "Steam-side energy balance (independent)", *steam_streams, duty,
+                             heat_in=-steam_side)
+        return
+    water_in, water_out = water
+    check_energy_balance(result, "Heater energy balance (independent)",
+                         steam_streams[0] + [Stream.of("process water in", flow, water_in)],
+                         steam_streams[1] + [Stream.of("process water out", flow, water_out)], duty,
+                         heat_in=-(steam_side - duty))
+
+
+def _steam_states(inputs):
+    """Steam, condensate, saturated liquid and vapour at the steam pressure, and T_sat."""
+    p = inputs.steam_pressure
+    t_sat = saturation_temperature(p)
+    try:
+        saturated_liquid = SteamState.from_p_dryness(p, 0.0)
+        saturated_vapour = SteamState.from_p_dryness(p, 1.0)
+        if inputs.steam_temperature is not None:
+            if inputs.steam_temperature <= t_sat:
+                raise InputError(f"steam at {inputs.steam_temperature - 273.15:.2f} °C is not superheated at "
+                                 f"{p / 1e5:.4g} bar(a) (saturation {t_sat - 273.15:.2f} °C)",
+                                 field="steam_temperature", fix="leave it empty for saturated steam")
+            steam = SteamState.from_pT(p, inputs.steam_temperature)
+        elif inputs.steam_dryness is not None:
+            steam = SteamState.from_p_dryness(p, inputs.steam_dryness)
+        else:
+            steam = saturated_vapour
+        subcooling = inputs.condensate_subcooling or 0.0
+        if subcooling >= 0.01:  # below 0.01 K the condensate is saturated for every practical purpose
+            condensate = SteamState.from_pT(p, t_sat - subcooling)
+        else:
+            condensate = saturated_liquid
+    except OutOfRangeError as exc:
+        raise exc.for_field("steam_pressure" if exc.field == "pressure" else "condensate_subcooling") from None
+    return steam, condensate, saturated_liquid, saturated_vapour, t_sat
+
+
+def calculate(inputs, site):
+    """Duty, steam demand, LMTD, UA, area and the stall load of a steam heater.
+
+    Parameters
+    ----------
+    inputs : Inputs
+        Steam pressure (Pa) and state; process flow (kg/s or m³/s) and temperatures (K);
+        optional subcooling (K), U's (W/(m² K)), fouling (m² K/W), area (m²), back pressure (Pa),
+        static head to the trap (m) and the trap's minimum differential (Pa).
+    site : steamcalc.cases.site.Site
+        Site data (its atmosphere has been applied to gauge inputs).
+
+    Returns
+    -------
+    Result
+        ``duty`` (kW), ``steam_flow`` (kg/h), ``condensate_flow`` (kg/h), ``lmtd`` (K), ``ua``
+        (kW/K), ``<zone>_duty``, ``<zone>_lmtd`` and ``<zone>_area`` for the zones present,
+        ``required_area`` (m², with U, the zones' sum), ``area_margin`` (with an installed area),
+        ``stall_load_fraction`` (clean U) and ``stall_load_fraction_fouled`` (with a back
+        pressure), and the turndown table (``required_steam_pressure_<load>`` on the fouled U,
+        ``required_steam_pressure_clean_<load>`` on the clean U when they differ);
+        ``vacuum_load_fraction``; with a supply pressure the control valve's
+        ``control_valve_kv_<load>`` (and ``_clean_<load>``), ``control_valve_choked_<load>``,
+        ``required_rangeability``, with a rated Kv ``control_valve_travel_<load>`` (percent);
+        with a back pressure ``required_pumping_differential`` (bar difference) and, when it
+        stalls, ``condensate_to_remove`` (kg/h, at the stall load).
+
+    Notes
+    -----
+    .. math:: \\dot m_s = \\frac{Q (1 + f_{loss})}{h_s - h_c}, \\quad
+              UA = \\sum_i \\frac{Q_i}{F_i \\Delta T_{lm,i}}, \\quad
+              A = \\sum_i \\frac{UA_i}{U_{s,i}}, \\quad \\frac{1}{U_{s,i}} = \\frac{1}{U_i} + R_f
+
+    References
+    ----------
+    IAPWS R7-97(2012), IAPWS-IF97. Fakheri, A. (2003), "A General Expression for the
+    Determination of the Log Mean Temperature Correction Factor for Shell and Tube Heat
+    Exchangers", J. Heat Transfer 125(3), 527-530 (through ``ht.F_LMTD_Fakheri``). The
+    wet-wall desuperheating basis and the drainage balance are common practice (see the
+    zone and turndown modules).
+
+    Examples
+    --------
+    >>> from steamcalc.cases.site import Site
+    >>> r = calculate(Inputs(steam_pressure=9e5, process_flow=1.0, process_inlet_temperature=328.15,
+    ...                      process_outlet_temperature=358.15), Site())
+    >>> round(r.value("duty"), 1), round(r.value("steam_flow"), 1)
+    (125.7, 222.8)
+    """
+    result = Result()
+    result.references.extend([
+        IF97_REFERENCE,
+        "LMTD method for heat exchangers (e.g. Incropera & DeWitt, Fundamentals of Heat and Mass Transfer, ch. 11)",
+        "Fakheri, A. (2003), A General Expression for the Determination of the Log Mean Temperature Correction "
+        "Factor for Shell and Tube Heat Exchangers, J. Heat Transfer 125(3), 527-530",
+    ])
+    result.assumptions.extend([
+        "Steady state; heat lost to surroundings only as the stated allowance",
+        "Steam side at uniform pressure; condensing at its saturation temperature",
+        f"Gauge pressures converted with the site atmosphere of {site.atmospheric_pressure / 1e5:.5g} bar(a)",
+    ])
+    result.cautions.extend(CAUTIONS)
+    arrangement = inputs.arrangement or "counterflow"
+    t_in, t_out = inputs.process_inlet_temperature, inputs.process_outlet_temperature
+
+    steam, condensate, saturated_liquid, saturated_vapour, t_sat = _steam_states(inputs)
+    if t_sat <= t_out:
+        raise InputError(
+            f"steam saturation temperature {t_sat - 273.15:.2f} °C at {inputs.steam_pressure / 1e5:.4g} bar(a) is "
+            f"not above the process outlet {t_out - 273.15:.2f} °C: the steam cannot heat the process that far",
+            field="steam_pressure", fix="raise the steam pressure or lower the process outlet temperature")
+    if condensate.temperature <= t_in:
+        raise InputError("the condensate would be subcooled below the process inlet temperature",
+                         field="condensate_subcooling", fix="reduce the subcooling")
+    flow, duty, water = _process_side(inputs, result)
+    loss = inputs.heat_loss or 0.0
+    steam_side = duty * (1.0 + loss)
+    if loss:
+        result.step("Steam-side heat", "Q_s = Q·(1 + f_loss)", f"Q_s = {duty / 1e3:.2f} kW × (1 + {loss:g})",
+                    steam_side / 1e3, "kW")
+    specific = steam.enthalpy - condensate.enthalpy
+    if specific <= 0.0:
+        raise InputError(f"the steam ({steam.enthalpy / 1e3:.2f} kJ/kg) gives up no heat down to the condensate "
+                         f"({condensate.enthalpy / 1e3:.2f} kJ/kg)", field="steam_dryness", value=inputs.steam_dryness,
+                         fix="check the steam's dryness (a heating-steam supply is usually above 0.9)")
+    steam_flow = steam_side / specific
+    result.step("Steam flow", "m_s = Q_s / (h_steam − h_condensate)",
+                f"m_s = {steam_side / 1e3:.2f} kW / ({steam.enthalpy / 1e3:.2f} − {condensate.enthalpy / 1e3:.2f}) kJ/kg",
+                steam_flow * 3600, "kg/h")
+    result.add("duty", "Process duty", duty / 1e3, "kW")
+    result.add("steam_side_heat", "Heat from the steam (duty with heat loss)", steam_side / 1e3, "kW")
+    result.add("process_flow", "Process mass flow", flow * 3600, "kg/h")
+    result.add("steam_saturation_temperature", "Steam saturation temperature", t_sat - 273.15, "degC")
+    result.add("steam_enthalpy", "Steam enthalpy", steam.enthalpy / 1e3, "kJ/kg")
+    result.add("condensate_enthalpy", "Condensate enthalpy", condensate.enthalpy / 1e3, "kJ/kg")
+    result.add("steam_flow", "Steam flow", steam_flow * 3600, "kg/h")
+    result.add("condensate_flow", "Condensate flow", steam_flow * 3600, "kg/h")
+    _independent_balance(steam, condensate, steam_flow, flow, duty, steam_side, water, result)
+
+    ua, area = add_zones(inputs, (steam, condensate, saturated_liquid, saturated_vapour), t_sat, flow, duty,
+                         steam_side, steam_flow, water, arrangement, result)
+    mean_dt = duty / ua
+    result.add("lmtd", "Mean temperature difference (effective LMTD)", mean_dt, "K")
+    result.add("ua", "UA required", ua / 1e3, "kW/K")
+    approach = t_sat - t_out
+    result.check("Temperature approach", "warn" if approach < MIN_APPROACH else "pass",
+                 f"steam saturation {approach:.1f} K above the process outlet (at least {MIN_APPROACH:g} K, common "
+                 "practice)")
+    result.check("Steam saturation above process outlet", "pass",
+                 f"{t_sat - 273.15:.2f} °C > {t_out - 273.15:.2f} °C")
+    result.check("No temperature cross", "pass", "every zone has the hot side above the cold side at both ends")
+
+    if area is not None:
+        fouling = inputs.fouling_resistance or 0.0
+        u_service = service_u(inputs.overall_u, fouling)
+        result.step("Service U", "1/U_s = 1/U + R_f",
+                    f"1/U_s = 1/{inputs.overall_u / 1e3:.3f} + {fouling * 1e3:.3f} m²·K/kW", u_service / 1e3,
+                    "kW/(m**2*K)")
+        result.step("Required area", "A = Σ A_i (each zone's UA_i / U_s,i)",
+                    " + ".join(f"{result.value(name + '_area'):.4f}" for name in ("subcooling", "condensing",
+                               "desuperheating") if name + "_area" in result.values) + " m²", area, "m**2")
+        result.add("service_u", "Service U (with fouling)", u_service / 1e3, "kW/(m**2*K)")
+        result.add("required_area", "Required area", area, "m**2")
+        if inputs.installed_area is not None:
+            margin = inputs.installed_area / area - 1.0
+            result.add("area_margin", "Area margin (installed over required, minus 1)", margin)
+            result.check("Installed area sufficient", "fail" if margin < 0 else "pass",
+                         f"installed {inputs.installed_area:.2f} m² against {area:.2f} m² required "
+                         f"({100 * margin:+.1f} %)")
+    ua_clean, ua_fouled = add_turndown(inputs, duty, ua, area, saturated_liquid.density, result)
+    add_control(inputs, duty, steam_side, steam, ua_clean, ua_fouled, saturated_liquid.density, site, result)
+    if full_record_wanted():
+        result.figures.extend(figures(inputs, result))
+    return result

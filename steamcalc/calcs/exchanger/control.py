@@ -1,0 +1,416 @@
+"""The heater's steam control valve over the turndown, vacuum in the steam space, and the
+condensate that must be pumped out when the heater stalls.
+
+At each load of the turndown table the steam side needs a pressure (already found by
+:mod:`.exchanger_turndown`); the control valve drops the supply pressure to it. Sized to
+IEC 60534-2-1 (compressible, IF97 density and isentropic exponent) at every load, the valve's
+Kv runs from the design load (largest: least pressure drop, most steam) down to the minimum
+load; their ratio is the rangeability the duty asks of the valve. Where the needed pressure
+falls below the site's atmosphere the steam space runs under vacuum; below the stall load the
+condensate must be lifted by a pump or pump-trap against the back pressure and the lift.
+"""
+
+from __future__ import annotations
+
+import math
+
+from ...equipment.valve import size_steam_valve, valve_travel
+from ...errors import InputError, OutOfRangeError
+from ...properties.steam import SteamState, saturation_temperature
+from ..base import bar_a, full_record_wanted
+from .turndown import LOADS, STANDARD_GRAVITY, lift_density, stall_load
+from ..letdown.equipment import DEFAULT_RANGEABILITY, DEFAULT_XT, TRAVEL_FAIL, sizing_kappa
+
+CHARACTERISTICS = ("equal-percentage", "linear")
+#: Motive steam pressure above the pump's total discharge pressure (back pressure plus lift) held
+#: without a warning, Pa (common practice: makers' capacity tables fall away fast below about
+#: 1 bar of excess; their figures govern).
+MOTIVE_MARGIN = 1.0e5
+#: Control-valve keys that need the supply pressure.
+_VALVE_FIELDS = ("control_valve_xt", "control_valve_rated_kv", "control_valve_characteristic",
+                 "control_valve_rangeability")
+
+PUMPING_REMEDIES = (
+    "Condensate removal when stalled, in general terms: drain the heater by gravity into a pump-trap "
+    "combination (a pressure-powered pump with its own trap, balanced to the steam space) that lifts the "
+    "condensate with motive steam or air; or drain by gravity to a vented receiver and a pumped return; or fit "
+    "a vacuum breaker on the steam space so that it can drain by gravity to a trap discharging without lift. "
+    "Filling head, capacity at the motive pressure and venting follow the equipment maker's data, which govern.",
+)
+
+
+def check_control_inputs(inputs):
+    """Structural checks of the control-valve and condensate-removal inputs (raise InputError)."""
+    for name, where, unit in (("lift_head", "drainage.lift_head", "m"),
+                              ("control_valve_rangeability", "control_valve.rangeability", "")):
+        value = getattr(inputs, name)
+        if value is not None and not math.isfinite(value):
+            raise InputError("is not a finite number", field=where, value=value,
+                             fix=f"give a plain figure{' in ' + unit if unit else ''}")
+    if inputs.lift_head is not None and inputs.lift_head < 0.0:
+        raise InputError(
+            "a lift cannot be negative: it is the height the condensate rises after the trap",
+            field="drainage.lift_head", value=f"{inputs.lift_head:g} m",
+            fix="give the rise from the trap to the highest point of the condensate line (0 m or more); a line "
+                "falling to the return needs no lift")
+    for name in ("lift_head", "pump_motive_pressure"):
+        if getattr(inputs, name) is not None and inputs.condensate_back_pressure is None:
+            raise InputError("condensate removal is worked from the condensate back pressure, which is not given",
+                             field=f"drainage.{name}", fix="give condensate_back_pressure, e.g. \"0.8 bar(g)\"")
+    if inputs.control_valve_supply_pressure is None:
+        for name in _VALVE_FIELDS:
+            if getattr(inputs, name) is not None:
+                raise InputError("the control valve is sized from its supply pressure, which is not given",
+                                 field="control_valve.supply_pressure",
+                                 fix="add supply_pressure to [inputs.control_valve], e.g. \"8 bar(g)\"")
+    xt = inputs.control_valve_xt
+    if xt is not None and not 0.05 <= xt <= 1.0:
+        raise InputError("xT must lie between 0.05 and 1", field="control_valve.xt", value=xt,
+                         limits=(0.05, 1.0, ""), fix="take xT from the valve maker's data (globe valves 0.6-0.8)")
+    characteristic = inputs.control_valve_characteristic
+    if characteristic is not None and characteristic not in CHARACTERISTICS:
+        raise InputError("the characteristic is 'equal-percentage' or 'linear'", field="control_valve.characteristic",
+                         value=characteristic, fix='e.g. characteristic = "equal-percentage"')
+    rangeability = inputs.control_valve_rangeability
+    if rangeability is not None and rangeability <= 1.0:
+        raise InputError("rangeability must be above 1 (the rated Kv over the smallest controllable Kv)",
+                         field="control_valve.rangeability", value=rangeability, fix="e.g. rangeability = 50")
+
+
+def load_steam_flow(heat, valve_inlet_enthalpy, steam_side_pressure):
+    """Steam (and condensate) flow at a load, kg/s: throttled steam condensing to saturated liquid.
+
+    Parameters
+    ----------
+    heat : float
+        Heat from the steam at the load, W.
+    valve_inlet_enthalpy : float
+        Specific enthalpy of the steam ahead of the control valve, J/kg (kept through the valve).
+    steam_side_pressure : float
+        Steam-side pressure at the load, Pa (absolute); the condensate leaves saturated at it.
+
+    Notes
+    -----
+    :math:`\\dot m = Q / (h_1 - h_f(p_s))`: the valve throttles at constant enthalpy.
+
+    References
+    ----------
+    Steady-flow energy balance over the valve and the steam space, IAPWS-IF97 for h_f.
+
+    Examples
+    --------
+    >>> round(load_steam_flow(41.88e3, 2773.0e3, 0.6e5) * 3600, 2)
+    62.48
+    """
+    condensate = SteamState.from_p_dryness(steam_side_pressure, 0.0)
+    return heat / (valve_inlet_enthalpy - condensate.enthalpy)
+
+
+def pumping_differential(back_pressure, lift_head, lift_density, steam_space_pressure, static_head,
+                         condensate_density):
+    """Pressure difference a pump or pump-trap must add to remove the condensate, Pa.
+
+    Parameters
+    ----------
+    back_pressure : float
+        Pressure of the return at the end of the lift, Pa (absolute).
+    lift_head : float
+        Rise of the condensate line after the trap or pump, m.
+    lift_density : float
+        Density of the condensate in the lift, kg/m³.
+    steam_space_pressure : float
+        Pressure in the heater's steam space, Pa (absolute).
+    static_head : float
+        Height of condensate standing above the trap or pump inlet, m.
+    condensate_density : float
+        Density of that condensate, kg/m³.
+
+    Notes
+    -----
+    .. math:: \\Delta p_{pump} = p_{back} + \\rho_l g H_{lift} - p_s - \\rho_c g H_{static}
+
+    with g = 9.80665 m/s². Positive: pressure alone cannot push the condensate out, and the pump
+    must supply the difference; zero or negative: the steam space drains it unaided.
+
+    References
+    ----------
+    Hydrostatics (any fluid-mechanics text); the balance is the drainage balance of
+    :func:`.exchanger_turndown.stall_pressure` with the lift (common practice).
+
+    Examples
+    --------
+    >>> round(pumping_differential(1.8e5, 4.0, 945.0, 0.6e5, 0.4, 890.0))
+    153578
+    """
+    return (back_pressure + lift_density * STANDARD_GRAVITY * lift_head - steam_space_pressure
+            - condensate_density * STANDARD_GRAVITY * static_head)
+
+
+def _pressures(result, clean):
+    """Steam-side pressure by load (fraction -> Pa) from the turndown table, fouled or clean U."""
+    prefix = "required_steam_pressure_clean_" if clean and "required_steam_pressure_clean_100" in result.values \
+        else "required_steam_pressure_"
+    return {load: result.value(f"{prefix}{int(round(load * 100))}") * 1e5 for load in LOADS}
+
+
+def add_control(inputs, duty, steam_side, steam, ua_clean, ua_fouled, condensate_density, site, result):
+    """Add the control valve, the vacuum load and condensate removal to the result.
+
+    Parameters
+    ----------
+    inputs : steamcalc.calcs.exchanger.calculation.Inputs
+        The case.
+    duty, steam_side : float
+        Design process duty and heat from the steam (with the heat loss), W.
+    steam : SteamState
+        The design steam (its enthalpy is the valve inlet's when no supply pressure is given).
+    ua_clean, ua_fouled : float
+        UA of the turndown, clean and fouled, W/K.
+    condensate_density : float
+        Density of the condensate standing above the trap, kg/m³.
+    site : steamcalc.cases.site.Site
+        The site (its atmospheric pressure).
+    """
+    if not full_record_wanted():   # feeds no banded result
+        return
+    fouled, clean = _pressures(result, clean=False), _pressures(result, clean=True)
+    minimum = LOADS[0]
+    result.assumptions.append(
+        f"Operating range of the heater: the turndown's {minimum:.0%} to 100 % of design load; the minimum load is "
+        f"{minimum:.0%}")
+    inlet_enthalpy = steam.enthalpy
+    if inputs.control_valve_supply_pressure is not None:
+        inlet_enthalpy = _control_valve(inputs, steam_side, fouled, clean, result)
+    _vacuum(inputs, duty, ua_clean, ua_fouled, minimum, site, result)
+    if inputs.condensate_back_pressure is not None:
+        _condensate_removal(inputs, steam_side, inlet_enthalpy, clean, minimum, condensate_density, result)
+
+
+def _control_valve(inputs, steam_side, fouled, clean, result):
+    supply = inputs.control_valve_supply_pressure
+    design_pressure = fouled[1.0]
+    if supply <= design_pressure:
+        raise InputError(
+            f"the supply {bar_a(supply)} is not above the {bar_a(design_pressure)} the steam side needs at design "
+            "load (fouled U): the control valve would have no pressure drop to control with",
+            field="control_valve.supply_pressure", value=f"{supply / 1e5:.4g} bar(a)",
+            fix="give the steam pressure upstream of the control valve (check its basis, bar(g) or bar(a)); it must "
+                "be above the steam-side pressure the heater needs at design load")
+    xt = inputs.control_valve_xt if inputs.control_valve_xt is not None else DEFAULT_XT
+    characteristic = inputs.control_valve_characteristic or "equal-percentage"
+    rangeability = (inputs.control_valve_rangeability if inputs.control_valve_rangeability is not None
+                    else DEFAULT_RANGEABILITY)
+    try:
+        state = SteamState.from_p_dryness(supply, 1.0)
+    except OutOfRangeError as exc:
+        raise exc.for_field("control_valve.supply_pressure") from None
+    result.references.extend([
+        "IEC 60534-2-1:2011, control-valve sizing equations for compressible fluids (eq. (8), (12)-(15))",
+        "IEC 60534-2-4:2009, inherent flow characteristics",
+    ])
+    result.assumptions.append(
+        f"Control valve inlet: dry saturated steam at the supply pressure {bar_a(supply)} (its superheat is not an "
+        "input); throttled at constant enthalpy; condensate leaves saturated at each load's steam-side pressure")
+    kappa = sizing_kappa(state, result)
+    if inputs.control_valve_xt is None:
+        result.assumptions.append(f"Control valve xT = {DEFAULT_XT} (globe valve, common practice; not given)")
+    if inputs.control_valve_rangeability is None:
+        result.assumptions.append(f"Control valve inherent rangeability {DEFAULT_RANGEABILITY:g} (common practice "
+                                  "for a globe valve; not given)")
+    if inputs.control_valve_characteristic is None and inputs.control_valve_rated_kv is not None:
+        result.assumptions.append("Control valve characteristic equal-percentage (not given)")
+    result.assumptions.append("Control valve the size of its line: piping geometry factor Fp = 1, xTP = xT "
+                              "(IEC 60534-2-1 without reducers)")
+    result.step("Steam at the control valve inlet (IF97, dry saturated)", "ρ1 = ρ_g(p1), κ = w²ρ/p",
+                f"p1 = {bar_a(supply)}: ρ1 = {state.density:.4f} kg/m³, κ = {kappa:.4f}", state.density, "kg/m**3")
+    result.add("control_valve_inlet_density", "Steam density at the control valve inlet", state.density, "kg/m**3")
+    result.add("control_valve_isentropic_exponent", "Isentropic exponent at the control valve inlet", kappa)
+    bases = [("", fouled)] + ([("clean_", clean)] if clean != fouled else [])
+    both = len(bases) > 1
+    sizing, flows = {}, {}
+    for tag, pressures in bases:
+        for load in LOADS:
+            percent = int(round(load * 100))
+            which = " (clean U)" if tag else " (fouled U)" if both else ""
+            flow = load_steam_flow(load * steam_side, state.enthalpy, pressures[load])
+            s = size_steam_valve(flow * 3600, supply / 1e3, pressures[load] / 1e3, state.density, kappa, xt)
+            sizing[(tag, load)], flows[(tag, load)] = s, flow
+            result.add(f"control_valve_kv_{tag}{percent}", f"Control valve Kv needed at {load:.0%} load{which}", s.kv,
+                       "m**3/h")
+            result.add(f"control_valve_choked_{tag}{percent}", f"Control valve choked at {load:.0%} load{which}",
+                       s.choked)
+    design, design_flow = sizing[("", 1.0)], flows[("", 1.0)]
+    low_key = min(sizing, key=lambda k: sizing[k].kv)
+    high_key = max(sizing, key=lambda k: sizing[k].kv)
+    low, low_flow = sizing[low_key], flows[low_key]
+    result.add("control_valve_kv", f"Control valve Kv needed at design load ({'fouled U: ' if both else ''}sizing case)",
+               design.kv, "m**3/h")
+    for label, key, s, flow, pressures in ((_case_label(("", 1.0), both), ("", 1.0), design, design_flow, fouled),
+                                           (_case_label(low_key, both), low_key, low, low_flow, dict(bases)[low_key[0]])):
+        p2 = pressures[key[1]]
+        result.step(f"Steam through the control valve at {label}", "m = L·Q_s / (h1 − h_f(p2))",
+                    f"m = {key[1]:g} × {steam_side / 1e3:.2f} kW / ({state.enthalpy / 1e3:.2f} − "
+                    f"{SteamState.from_p_dryness(p2, 0.0).enthalpy / 1e3:.2f}) kJ/kg", flow * 3600, "kg/h")
+        result.step(f"Control valve Kv at {label}",
+                    "x = (p1 − p2)/p1; x_choked = (κ/1.40)·xT; Y = 1 − min(x, x_choked)/(3·x_choked); "
+                    "Kv = W / (N6·Y·√(min(x, x_choked)·p1·ρ1)), N6 = 3.16",
+                    f"x = ({supply / 1e3:.1f} − {p2 / 1e3:.1f}) kPa(a) / {supply / 1e3:.1f} kPa(a) = {s.x:.4f}; "
+                    f"x_choked = ({kappa:.4f}/1.40) × {xt:g} = {s.x_choked:.4f}; Y = {s.expansion_factor:.4f}; "
+                    f"Kv = {flow * 3600:.2f} kg/h / (3.16 × {s.expansion_factor:.4f} × √({min(s.x, s.x_choked):.4f} × "
+                    f"{supply / 1e3:.1f} kPa(a) × {state.density:.4f} kg/m³))" + (" (choked)" if s.choked else ""),
+                    s.kv, "m**3/h")
+    required = sizing[high_key].kv / low.kv
+    result.step("Rangeability the duty needs", "R_req = Kv_max / Kv_min over the turndown loads",
+                f"R_req = {sizing[high_key].kv:.4f} m³/h ({_case_label(high_key, both)}) / {low.kv:.4f} m³/h "
+                f"({_case_label(low_key, both)})", required)
+    result.add("required_rangeability", "Rangeability the duty needs (largest Kv over smallest)", required)
+    result.add("control_valve_rangeability", "Inherent rangeability of the control valve", rangeability)
+    result.check("Control valve rangeability", "warn" if required > rangeability else "pass",
+                 f"the duty needs {required:.1f}:1 ({_case_label(high_key, both)} to {_case_label(low_key, both)}); "
+                 f"the valve gives {rangeability:g}:1" + (": it cannot control down to the minimum load; consider two "
+                 "valves in parallel (split range), or accept on-off control at the lowest loads"
+                 if required > rangeability else ""))
+    if inputs.control_valve_rated_kv is not None:
+        _rated_valve(inputs, sizing, design, low, low_key, both, characteristic, rangeability, result)
+    return state.enthalpy
+
+
+def _case_label(key, both):
+    """'40% load, clean U' for a (basis tag, load) sizing key; 'clean = fouled U' without fouling."""
+    tag, load = key
+    return f"{load:.0%} load, {'clean' if tag else 'fouled' if both else 'clean = fouled'} U"
+
+
+def _rated_valve(inputs, sizing, design, low, low_key, both, characteristic, rangeability, result):
+    kvs = inputs.control_valve_rated_kv
+    result.add("control_valve_rated_kv", "Rated Kv (Kvs) of the control valve", kvs, "m**3/h")
+    if design.kv > kvs:
+        result.check("Control valve rated Kv sufficient", "fail",
+                     f"at design load the heater needs Kv {design.kv:.2f} m³/h, more than the selected valve's Kvs "
+                     f"{kvs:.2f} m³/h: it cannot pass the design steam flow from the supply pressure")
+    else:
+        result.check("Control valve rated Kv sufficient", "pass",
+                     f"Kvs {kvs:.2f} m³/h ≥ {design.kv:.2f} m³/h needed at {_case_label(('', 1.0), both)}")
+    outside = []
+    for (tag, load), s in sizing.items():
+        percent = int(round(load * 100))
+        which = " (clean U)" if tag else " (fouled U)" if both else ""
+        travel = valve_travel(s.kv, kvs, characteristic, rangeability)
+        if not 0.0 < travel <= 1.0:   # above full travel, or below the characteristic's controllable minimum
+            outside.append(f"{_case_label((tag, load), both)} (Kv {s.kv:.3g} m³/h)")
+            continue
+        result.add(f"control_valve_travel_{tag}{percent}", f"Control valve travel at {load:.0%} load{which}",
+                   100.0 * travel, "percent")
+        if not TRAVEL_FAIL[0] <= travel <= TRAVEL_FAIL[1]:
+            outside.append(f"{_case_label((tag, load), both)} ({100 * travel:.0f} %)")
+    if "control_valve_travel_100" in result.values:
+        result.add("control_valve_travel", f"Control valve travel at design load{' (fouled U)' if both else ''}",
+                   result.value("control_valve_travel_100"), "percent")
+    equation = "h = Kv/Kvs (linear) or h = 1 + ln(Kv/Kvs)/ln R (equal-percentage)"
+    for label, s in ((_case_label(("", 1.0), both), design), (_case_label(low_key, both), low)):
+        travel = valve_travel(s.kv, kvs, characteristic, rangeability)
+        if 0.0 < travel <= 1.0:   # outside, the check names the load
+            result.step(f"Control valve travel at {label}", equation,
+                        f"Kv/Kvs = {s.kv:.4f} / {kvs:.4g}; R = {rangeability:g} ({characteristic})", 100.0 * travel,
+                        "percent")
+    if outside:
+        result.check("Control valve travel over the turndown", "warn",
+                     f"outside {100 * TRAVEL_FAIL[0]:.0f}-{100 * TRAVEL_FAIL[1]:.0f} % travel (common practice) or "
+                     f"outside the valve's range ({characteristic}, R = {rangeability:g}, Kvs {kvs:.4g} m³/h) at: "
+                     + "; ".join(outside) + ". Control is poor there: near the seat it goes on-off, near full travel there is "
+                     "no margin left to open")
+    else:
+        result.check("Control valve travel over the turndown", "pass",
+                     f"{100 * TRAVEL_FAIL[0]:.0f}-{100 * TRAVEL_FAIL[1]:.0f} % travel (common practice) at every load "
+                     f"from {LOADS[0]:.0%} to design ({characteristic}, R = {rangeability:g})")
+
+
+def _vacuum(inputs, duty, ua_clean, ua_fouled, minimum, site, result):
+    t_in, t_out = inputs.process_inlet_temperature, inputs.process_outlet_temperature
+    atmosphere = site.atmospheric_pressure
+    clean = stall_load(duty, ua_clean, t_in, t_out, atmosphere)
+    fouled = stall_load(duty, ua_fouled, t_in, t_out, atmosphere)
+    t_atm = saturation_temperature(atmosphere)
+    result.step("Load below which the steam space is under vacuum (clean U)",
+                "Q_vac = UA·(T_o − T_i)/ln((T_atm − T_i)/(T_atm − T_o)), T_atm = T_sat(p_atm); L = Q_vac/Q",
+                f"p_atm = {bar_a(atmosphere)} (site), T_atm = {t_atm - 273.15:.2f} °C; UA = {ua_clean / 1e3:.4f} kW/K; "
+                f"Q = {duty / 1e3:.2f} kW", clean)
+    result.add("vacuum_load_fraction", "Vacuum in the steam space below this load (clean U)", clean)
+    result.add("vacuum_load_fraction_fouled", "Vacuum in the steam space below this load (fouled U)", fouled)
+    if clean > minimum:
+        below = "at every load, design included" if clean >= 1.0 else f"below {100 * clean:.0f} % load"
+        result.check("Steam space above atmospheric pressure", "warn",
+                     f"{below} (clean U; {100 * fouled:.0f} % fouled) the heater needs less than the site's "
+                     f"{bar_a(atmosphere)}: the steam space runs under vacuum, condensate will not drain by "
+                     "pressure and air is drawn in. Fit a vacuum breaker on the steam space (at the steam inlet, above "
+                     "the condensate level) so that the heater drains by gravity to a trap discharging without lift, "
+                     "or to a pump-trap where there is a lift or back pressure (a vacuum breaker alone lifts nothing); "
+                     "vent the air it admits, which blankets the heating surface (common practice)")
+    else:
+        result.check("Steam space above atmospheric pressure", "pass",
+                     f"the steam space stays above the site's {bar_a(atmosphere)} down to the minimum load "
+                     f"{minimum:.0%} (it falls below it under {100 * clean:.0f} % load, clean U)")
+
+
+def _condensate_removal(inputs, steam_side, inlet_enthalpy, clean, minimum, condensate_density, result):
+    back = inputs.condensate_back_pressure
+    lift = inputs.lift_head or 0.0
+    head = inputs.trap_static_head or 0.0
+    result.references.append("Hydrostatic pressure ρ·g·H (any fluid-mechanics text); g = 9.80665 m/s², standard "
+                             "gravity (3rd CGPM, 1901)")
+    rho_lift = lift_density(inputs)
+    lowest = clean[minimum]
+    differential = pumping_differential(back, lift, rho_lift, lowest, head, condensate_density)
+    result.assumptions.append(
+        "Pumping differential: the back pressure plus the lift head (ρ·g·H of the lifted condensate) less the "
+        "steam-space pressure and the static head of condensate above the trap, reported in bar difference "
+        "(positive: a pump or pump-trap must add it; zero or negative: the steam space drains unaided), at the "
+        f"lowest steam-side pressure of the turndown ({minimum:.0%} load, clean U) and without a vacuum breaker; "
+        f"the lifted condensate's density that of saturated liquid at the back pressure, {rho_lift:.1f} kg/m³; the trap's own minimum differential "
+        "is left to the pump-trap maker's filling-head data")
+    result.step("Pressure difference a pump must provide (at the minimum load, clean U)",
+                "Δp_pump = p_back + ρ_l·g·H_lift − p_s − ρ_c·g·H_static",
+                f"Δp_pump = {bar_a(back)} + {rho_lift:.1f} kg/m³ × {STANDARD_GRAVITY} m/s² × {lift:.3g} m − "
+                f"{bar_a(lowest)} − {condensate_density:.1f} kg/m³ × {STANDARD_GRAVITY} m/s² × {head:.3g} m",
+                differential / 1e5, "bar difference")
+    result.add("required_pumping_differential", "Pumping differential needed (minimum load, clean U)", differential / 1e5, "bar")
+    stall = result.value("stall_load_fraction") if "stall_load_fraction" in result.values else 0.0
+    if stall > 0.0:
+        at = min(stall, 1.0)   # a heater that stalls at design load must be drained at design load
+        p_stall = result.value("stall_pressure") * 1e5 if stall < 1.0 else clean[1.0]
+        flow = load_steam_flow(at * steam_side, inlet_enthalpy, p_stall)
+        result.step("Condensate to remove at the stall load (clean U)", "m = L·Q_s / (h1 − h_f(p_stall))",
+                    f"m = {at:.4f} × {steam_side / 1e3:.2f} kW / ({inlet_enthalpy / 1e3:.2f} − "
+                    f"{SteamState.from_p_dryness(p_stall, 0.0).enthalpy / 1e3:.2f}) kJ/kg; p_stall = {bar_a(p_stall)}",
+                    flow * 3600, "kg/h")
+        result.add("condensate_to_remove", "Condensate to remove at the stall load (clean U)", flow * 3600, "kg/h")
+    if stall > minimum:
+        flow = load_steam_flow(minimum * steam_side, inlet_enthalpy, lowest)
+        result.step("Condensate to remove at the minimum load (clean U)", "m = L·Q_s / (h1 − h_f(p_s))",
+                    f"m = {minimum:g} × {steam_side / 1e3:.2f} kW / ({inlet_enthalpy / 1e3:.2f} − "
+                    f"{SteamState.from_p_dryness(lowest, 0.0).enthalpy / 1e3:.2f}) kJ/kg; p_s = {bar_a(lowest)}",
+                    flow * 3600, "kg/h")
+        result.add("condensate_to_remove_minimum_load", f"Condensate to remove at the minimum load ({minimum:.0%}, "
+                   "clean U)", flow * 3600, "kg/h")
+        result.warnings.append(PUMPING_REMEDIES[0])
+    if inputs.pump_motive_pressure is not None:
+        _motive(inputs, back, lift, rho_lift, differential, result)
+
+
+def _motive(inputs, back, lift, rho_lift, differential, result):
+    motive = inputs.pump_motive_pressure
+    discharge = back + rho_lift * STANDARD_GRAVITY * lift
+    excess = motive - discharge
+    result.step("Motive pressure over the pump's discharge pressure", "Δp_motive = p_motive − (p_back + ρ_l·g·H_lift)",
+                f"Δp_motive = {bar_a(motive)} − ({bar_a(back)} + {rho_lift:.1f} kg/m³ × {STANDARD_GRAVITY} m/s² × "
+                f"{lift:.3g} m)", excess / 1e5, "bar difference")
+    result.add("pump_motive_excess", "Motive pressure above the pump's discharge pressure", excess / 1e5, "bar")
+    detail = (f"motive {bar_a(motive)} against a discharge of {bar_a(discharge)} (back pressure with the lift): "
+              f"{excess / 1e5:+.3f} bar difference; at least {MOTIVE_MARGIN / 1e5:g} bar difference wanted (common "
+              "practice; the pump maker's capacity at this motive and back pressure governs)")
+    if differential <= 0.0:
+        detail += "; no pumping is needed at the minimum load"
+    status = "fail" if excess <= 0.0 else "warn" if excess < MOTIVE_MARGIN else "pass"
+    if status == "fail":
+        detail = "not enough: " + detail + "; the pump cannot discharge"
+    result.check("Pump motive pressure", status, detail)

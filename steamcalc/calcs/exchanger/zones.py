@@ -1,0 +1,213 @@
+"""Exchanger zones: desuperheating, condensing and subcooling duties, LMTDs, UA and areas.
+
+The steam gives up its superheat, its latent heat and the condensate's subcooling; the
+process liquid takes each in counter-current order (it meets the subcooled condensate
+first and the superheated steam last). Each zone has its own mean temperature
+difference, and with a U its own area.
+
+The desuperheating zone is on the wet-wall basis unless the case gives the zone its own
+U: wherever the wall is below the steam's saturation temperature a condensate film wets
+it, the superheat is given up through that film, and the driving force is
+``T_sat - T_process`` at the condensing coefficient (common practice). A given
+``desuperheating_u`` means a dry wall: the steam cools as a gas, from its own
+temperature to saturation, at that (much lower) coefficient.
+"""
+
+from __future__ import annotations
+
+import math
+
+from ...errors import InputError
+from ...properties.steam import SteamState
+
+ARRANGEMENTS = {"counterflow": None, "1-2": 1, "2-4": 2}
+ZONE_NAMES = ("subcooling", "condensing", "desuperheating")
+
+
+def lmtd(hot_in, hot_out, cold_in, cold_out):
+    """Log-mean temperature difference of a counterflow exchanger, K.
+
+    Parameters
+    ----------
+    hot_in, hot_out, cold_in, cold_out : float
+        Terminal temperatures, K.
+
+    Notes
+    -----
+    :math:`\\Delta T_{lm} = (\\Delta T_1 - \\Delta T_2)/\\ln(\\Delta T_1/\\Delta T_2)` with
+    :math:`\\Delta T_1 = T_{h,in} - T_{c,out}` and :math:`\\Delta T_2 = T_{h,out} - T_{c,in}`;
+    the arithmetic mean when the two are equal.
+
+    References
+    ----------
+    Incropera & DeWitt, Fundamentals of Heat and Mass Transfer, eq. 11.15 (counterflow LMTD),
+    through ``ht.LMTD``.
+
+    Examples
+    --------
+    >>> round(lmtd(448.65, 448.65, 328.15, 358.15), 3)
+    104.785
+    """
+    d1, d2 = hot_in - cold_out, hot_out - cold_in
+    if d1 <= 0.0 or d2 <= 0.0:
+        raise InputError("temperature cross: the hot side is not hotter than the cold side at both ends",
+                         field="process_outlet_temperature")
+    if abs(d1 - d2) < 1e-12 * max(d1, d2):
+        return d1
+    return (d1 - d2) / math.log(d1 / d2)
+
+
+def f_factor(arrangement, hot_in, hot_out, cold_in, cold_out):
+    """LMTD correction factor F of a shell-and-tube arrangement (1 for counterflow).
+
+    Parameters
+    ----------
+    arrangement : str
+        ``"counterflow"``, ``"1-2"`` or ``"2-4"`` (shell passes - tube passes).
+    hot_in, hot_out, cold_in, cold_out : float
+        Terminal temperatures, K.
+
+    References
+    ----------
+    Fakheri, A. (2003), J. Heat Transfer 125(3), 527-530, through ``ht.F_LMTD_Fakheri``.
+
+    Examples
+    --------
+    >>> round(f_factor("1-2", 200.0, 150.0, 100.0, 150.0), 4)
+    0.8023
+    """
+    shells = ARRANGEMENTS[arrangement]
+    if shells is None or abs(hot_in - hot_out) < 1e-9 or abs(cold_in - cold_out) < 1e-9:
+        return 1.0
+    from ht import F_LMTD_Fakheri
+    f = F_LMTD_Fakheri(Thi=hot_in, Tho=hot_out, Tci=cold_in, Tco=cold_out, shells=shells)
+    if not isinstance(f, float) or math.isnan(f) or f <= 0.0:
+        raise InputError(f"no {arrangement} shell-and-tube exchanger reaches these temperatures (temperature "
+                         "cross in the zone)", field="arrangement", fix="use counterflow, more shell passes, "
+                         "or a closer approach")
+    return float(f)
+
+
+def service_u(u, fouling):
+    """Service (fouled) U from a clean U and a fouling resistance, W/(m² K).
+
+    :math:`1/U_s = 1/U + R_f`.
+
+    Examples
+    --------
+    >>> round(service_u(1800.0, 1e-4), 2)
+    1525.42
+    """
+    return 1.0 / (1.0 / u + (fouling or 0.0))
+
+
+def zone_table(inputs, steam_states, t_sat, flow, duty, steam_side, steam_flow, water):
+    """The zones present: (name, process heat W, hot in K, hot out K, cold in K, cold out K, wet_wall).
+
+    Hot temperatures are the driving-force basis: on the wet-wall basis the desuperheating
+    zone's hot side is held at T_sat.
+    """
+    t_in, t_out = inputs.process_inlet_temperature, inputs.process_outlet_temperature
+    steam, condensate, saturated_liquid, saturated_vapour = steam_states
+    q_super = steam_flow * max(0.0, steam.enthalpy - saturated_vapour.enthalpy)
+    q_cond = steam_flow * (min(steam.enthalpy, saturated_vapour.enthalpy) - saturated_liquid.enthalpy)
+    q_sub = steam_flow * (saturated_liquid.enthalpy - condensate.enthalpy)
+    scale = duty / steam_side   # the heat loss is taken from each zone in proportion
+    span = t_out - t_in
+
+    def process_temperature(heat):
+        if water is None:
+            return t_in + span * heat / duty
+        water_in, _ = water
+        return SteamState.from_ph(water_in.pressure, water_in.enthalpy + heat / flow).temperature
+
+    t_a = process_temperature(q_sub * scale)
+    t_b = process_temperature((q_sub + q_cond) * scale)
+    zones = []
+    if q_sub > 0.0:
+        zones.append(("subcooling", q_sub * scale, t_sat, condensate.temperature, t_in, t_a, False))
+    zones.append(("condensing", q_cond * scale, t_sat, t_sat, t_a, t_b, True))
+    if q_super > 0.0:
+        wet = inputs.desuperheating_u is None
+        zones.append(("desuperheating", q_super * scale, t_sat if wet else steam.temperature, t_sat, t_b, t_out,
+                      wet))
+    return zones
+
+
+def zone_u(inputs, name):
+    """Clean U of a zone, W/(m² K): its own when given, else the overall (condensing) U."""
+    own = {"desuperheating": inputs.desuperheating_u, "subcooling": inputs.subcooling_u}.get(name)
+    return own if own is not None else inputs.overall_u
+
+
+def add_zones(inputs, steam_states, t_sat, flow, duty, steam_side, steam_flow, water, arrangement, result):
+    """Add each zone's duty, LMTD, UA and (with a U) area to the result; return (UA W/K, area m² or None).
+
+    Notes
+    -----
+    :math:`UA_i = Q_i/(F_i\\,\\Delta T_{lm,i})`, :math:`A_i = UA_i/U_{s,i}` with
+    :math:`1/U_{s,i} = 1/U_i + R_f`; :math:`A = \\sum_i A_i`.
+    """
+    zones = zone_table(inputs, steam_states, t_sat, flow, duty, steam_side, steam_flow, water)
+    fouling = inputs.fouling_resistance or 0.0
+    ua, area = 0.0, 0.0 if inputs.overall_u is not None else None
+    for name, q, hot_in, hot_out, cold_in, cold_out, wet in zones:
+        dt = lmtd(hot_in, hot_out, cold_in, cold_out)
+        f = f_factor(arrangement, hot_in, hot_out, cold_in, cold_out)
+        ua_zone = q / (f * dt)
+        ua += ua_zone
+        basis = " (wet wall: driving force T_sat − T_process)" if name == "desuperheating" and wet else ""
+        result.step(f"{name.capitalize()} zone{basis}", "UA_i = Q_i / (F·ΔT_lm,i)",
+                    f"Q = {q / 1e3:.2f} kW; steam side {hot_in - 273.15:.2f}→{hot_out - 273.15:.2f} °C, process "
+                    f"{cold_in - 273.15:.2f}→{cold_out - 273.15:.2f} °C; ΔT_lm = {dt:.3f} K; F = {f:.4f}",
+                    ua_zone / 1e3, "kW/K")
+        result.add(f"{name}_duty", f"{name.capitalize()} zone duty", q / 1e3, "kW")
+        result.add(f"{name}_lmtd", f"{name.capitalize()} zone LMTD", dt, "K")
+        if f < 0.75:
+            result.check(f"F factor, {name} zone", "warn",
+                         f"F = {f:.3f} below 0.75: the {arrangement} arrangement is poorly suited (common practice)")
+        if area is not None:
+            u = zone_u(inputs, name)
+            u_s = service_u(u, fouling)
+            zone_area = ua_zone / u_s
+            area += zone_area
+            result.step(f"{name.capitalize()} zone area", "A_i = UA_i / U_s,i, 1/U_s,i = 1/U_i + R_f",
+                        f"A = {ua_zone / 1e3:.4f} kW/K / {u_s / 1e3:.4f} kW/(m²·K) (U_i = {u / 1e3:.4g} kW/(m²·K), "
+                        f"R_f = {fouling * 1e3:.4g} m²·K/kW)", zone_area, "m**2")
+            result.add(f"{name}_area", f"{name.capitalize()} zone area", zone_area, "m**2")
+    _zone_assumptions(inputs, zones, arrangement, result)
+    return ua, area
+
+
+def _zone_assumptions(inputs, zones, arrangement, result):
+    names = [z[0] for z in zones]
+    if arrangement != "counterflow" and len(zones) == 1:
+        result.assumptions.append("Condensing at constant temperature: F = 1 for any arrangement")
+    if "desuperheating" in names:
+        if inputs.desuperheating_u is None:
+            result.assumptions.append(
+                "Desuperheating zone on the wet-wall basis: the wall is below the steam's saturation temperature, "
+                "so a condensate film wets it and the superheat is given up through that film; driving force "
+                "T_sat − T_process, at the condensing U (common practice). Give desuperheating_u for a dry-wall "
+                "zone")
+        else:
+            result.assumptions.append(
+                f"Desuperheating zone on the dry-wall basis at the given desuperheating U "
+                f"{inputs.desuperheating_u / 1e3:.4g} kW/(m²·K): the steam cools as a gas from its own temperature "
+                "to saturation (LMTD against the process); valid only where the wall stays above saturation")
+            if inputs.overall_u is not None and inputs.desuperheating_u > inputs.overall_u:
+                result.check("Desuperheating zone U", "warn",
+                             "the dry-wall desuperheating U is above the condensing U; a gas-cooling coefficient "
+                             "is normally far lower (common practice): check the figure")
+    if "subcooling" in names and inputs.overall_u is not None:
+        if inputs.subcooling_u is None:
+            result.assumptions.append("Subcooling zone at the overall (condensing) U: no subcooling-zone U given")
+            result.check("Subcooling zone U", "warn",
+                         "the subcooling zone is sized at the condensing U; a condensate-cooling coefficient is "
+                         "usually several times lower, so its area is understated: give subcooling_u "
+                         "(common practice)")
+        else:
+            result.assumptions.append(f"Subcooling zone at the given subcooling U {inputs.subcooling_u / 1e3:.4g} "
+                                      "kW/(m²·K)")
+    if inputs.overall_u is not None and inputs.fouling_resistance:
+        result.assumptions.append("Fouling resistance added to every zone's 1/U")

@@ -1,0 +1,1 @@
+"""The flash kind: flash-steam recovery. ``calculation`` is the module the registry holds."""

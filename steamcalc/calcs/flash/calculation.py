@@ -1,0 +1,388 @@
+"""Flash-steam recovery: hot condensate flashing to a lower pressure, single stage or cascade.
+
+Condensate at its pressure (saturated, or subcooled to a stated temperature) enters a
+vessel at a lower pressure. With no heat loss and no work, the mass and energy balances
+over the vessel give the part that flashes to steam:
+:math:`x = (h_{in} - h_f)/h_{fg}` at the flash pressure, zero when the condensate is
+already below the saturation temperature there.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from ...errors import InputError, OutOfRangeError
+from ...properties.steam import REFERENCE as IF97_REFERENCE
+from ...properties.steam import SteamState, saturation_temperature
+from ..balance import Stream, check_energy_balance
+from ..base import Result, bar_a, check_fields, full_record_wanted, input_field, kj_kg
+from ..economics import (
+    annual_fuel_energy, annual_value, annual_water_cost, fuel_basis, fuel_basis_assumption, missing_site_data,
+)
+from .figures import figures
+from .fraction import flash_fraction
+from .vessel import REFERENCES as VESSEL_REFERENCES
+from .vessel import vessel_assumptions, vessels
+
+KIND = "flash"
+TITLE = "Flash-steam recovery"
+WORKBOOK = "flash_recovery.ipynb"
+#: Results the uncertainty section gives bands and sensitivities for.
+UNCERTAINTY_RESULTS = ("flash_fraction", "flash_steam_flow", "recovered_heat_rate", "annual_cost_saving", "vessel_diameter")
+#: Plain fractions shown in % (display only; records keep the fraction).
+PERCENT_VALUES = ("flash_fraction",)
+
+CAUTIONS = (
+    "Flash vessels and receivers are pressure vessels: their design, marking and inspection follow the "
+    "local pressure-equipment code, with a relief device sized for the worst inflow.",
+    "Steam and flashing condensate cause severe burns; vents and drains must discharge to a safe place.",
+    "Flashing two-phase flow causes erosion and waterhammer: keep inlet lines short, falling to the "
+    "vessel, and sized for the two-phase velocity.",
+    "These results support design by a competent engineer; they do not replace the applicable codes, "
+    "the equipment makers' data or a licensed engineer's approval.",
+)
+
+
+@dataclass(frozen=True)
+class Inputs:
+    """Inputs of a flash-steam calculation; values in SI (Pa absolute, K, kg/s, m/s).
+
+    Give either ``flash_pressure`` (one vessel) or ``stages`` (a cascade, falling pressures).
+    """
+
+    condensate_pressure: float = input_field(
+        "pressure", "Condensate pressure", "Pressure of the hot condensate before it flashes.",
+        example="header:MP", required=True)
+    condensate_flow: float = input_field(
+        "mass_flow", "Condensate flow", "Flow of hot condensate to the flash vessel.", example="3.2 t/h",
+        required=True, positive=True)
+    condensate_temperature: float | None = input_field(
+        "temperature", "Condensate temperature",
+        "Leave empty for condensate saturated at its pressure; give it when subcooled.", example="170 °C")
+    flash_pressure: float | None = input_field(
+        "pressure", "Flash pressure", "Pressure of the flash vessel (a header or a pressure).", example="header:LP")
+    stages: tuple | None = input_field(
+        "pressure_list", "Cascade stage pressures", "Falling pressures of a flash cascade, in place of "
+        "flash_pressure.", example='["5 bar(g)", "2.5 bar(g)"]')
+    lp_demand: float | None = input_field(
+        "mass_flow", "Low-pressure steam demand", "Steam the flash header can use; flash above it is vented.",
+        example="0.5 t/h")
+    vented: bool | None = input_field(
+        "flag", "Vented receiver", "true when the flash steam goes to atmosphere (the loss being incurred).",
+        example="false")
+    k_factor: float | None = input_field(
+        "velocity", "Souders–Brown K", "Allowable vapour load factor of the vessel.", example="0.06 m/s",
+        section="vessel", positive=True)
+    vapour_velocity: float | None = input_field(
+        "velocity", "Allowable vapour velocity", "Up-flow velocity limit, in place of K.", example="2.5 m/s",
+        section="vessel", positive=True)
+    residence_time: float | None = input_field(
+        "time", "Liquid residence time", "Hold-up time of the residual condensate in the vessel; "
+        "1 min when not given.", example="1 min", section="vessel", positive=True)
+    inlet_nozzle: str | None = input_field(
+        "nominal_size", "Inlet line size", "Nominal size of the condensate inlet line.", example="DN50",
+        section="vessel")
+    steam_nozzle: str | None = input_field(
+        "nominal_size", "Steam outlet size", "Nominal size of the flash-steam outlet.", example="DN150",
+        section="vessel")
+    condensate_nozzle: str | None = input_field(
+        "nominal_size", "Condensate outlet size", "Nominal size of the residual-condensate outlet.",
+        example="DN40", section="vessel")
+
+    def __post_init__(self):
+        if self.residence_time is not None and not self.residence_time > 0.0:
+            raise InputError(f"a liquid residence time of {self.residence_time / 60:g} min cannot hold any liquid",
+                             field="vessel.residence_time", value=f"{self.residence_time:g} s",
+                             fix="give a time above zero, e.g. residence_time = \"1 min\" (or leave it out for 1 min)")
+        check_fields(self)
+        if (self.flash_pressure is None) == (self.stages is None):
+            raise InputError("give flash_pressure or stages (exactly one)",
+                             field="stages" if self.stages is not None else "flash_pressure",
+                             fix="one vessel: flash_pressure; a cascade: stages = [...]")
+        pressures = self.stage_pressures
+        previous = self.condensate_pressure
+        for i, p in enumerate(pressures):
+            name = "flash_pressure" if self.stages is None else f"stages[{i}]"
+            if p >= previous:
+                raise InputError(
+                    f"{p / 1e5:.4g} bar(a) is not below {previous / 1e5:.4g} bar(a): flash pressures must fall "
+                    "below the condensate pressure, stage by stage", field=name,
+                    fix="list the stage pressures from high to low, all below the condensate pressure")
+            previous = p
+        if self.stages is not None and not 1 <= len(self.stages) <= 3:
+            raise InputError("a cascade has one to three stages", field="stages")
+        if self.lp_demand is not None and self.lp_demand < 0.0:
+            raise InputError("steam demand cannot be negative", field="lp_demand")
+        if self.k_factor is not None and self.vapour_velocity is not None:
+            raise InputError("give k_factor or vapour_velocity, not both", field="vessel.vapour_velocity")
+
+    @property
+    def stage_pressures(self):
+        """The flash pressures in order, Pa: one for a single vessel."""
+        return tuple(self.stages) if self.stages is not None else (self.flash_pressure,)
+
+
+
+
+def _inlet_state(inputs):
+    p = inputs.condensate_pressure
+    t_sat = saturation_temperature(p)
+    if inputs.condensate_temperature is None:
+        return SteamState.from_p_dryness(p, 0.0), t_sat
+    t = inputs.condensate_temperature
+    if t > t_sat + 1e-6:
+        raise InputError(
+            f"condensate at {t - 273.15:.2f} °C is above saturation ({t_sat - 273.15:.2f} °C) at {bar_a(p)}: "
+            "that is steam, not condensate", field="condensate_temperature",
+            fix="check the temperature and the pressure basis, or leave the temperature empty for saturated")
+    if abs(t - t_sat) <= 1e-6:
+        return SteamState.from_p_dryness(p, 0.0), t_sat
+    try:
+        return SteamState.from_pT(p, t), t_sat
+    except OutOfRangeError as exc:
+        raise exc.for_field("condensate_temperature") from None
+
+
+def _flash_stage(index, pressure, enthalpy_in, flow_in, result, label):
+    liquid = SteamState.from_p_dryness(pressure, 0.0)
+    vapour = SteamState.from_p_dryness(pressure, 1.0)
+    h_fg = vapour.enthalpy - liquid.enthalpy
+    if enthalpy_in <= liquid.enthalpy:
+        fraction = 0.0
+        result.step(f"{label}: flash fraction", "x = 0 when h_in ≤ h_f(p_flash): no flash",
+                    f"h_in = {kj_kg(enthalpy_in)} ≤ h_f({bar_a(pressure)}) = {kj_kg(liquid.enthalpy)}", 0.0)
+        residual = SteamState.from_ph(pressure, enthalpy_in)
+    else:
+        fraction = flash_fraction(enthalpy_in, liquid.enthalpy, vapour.enthalpy)
+        result.step(f"{label}: flash fraction", "x = (h_in − h_f(p_flash)) / h_fg(p_flash)",
+                    f"x = ({kj_kg(enthalpy_in)} − {kj_kg(liquid.enthalpy)}) / {kj_kg(h_fg)}", fraction)
+        residual = liquid
+    steam_flow = flow_in * fraction
+    residual_flow = flow_in - steam_flow
+    result.step(f"{label}: flash steam flow", "m_flash = x · m_in",
+                f"m_flash = {fraction:.5f} × {flow_in * 3600:.1f} kg/h", steam_flow * 3600, "kg/h")
+    return {"index": index, "pressure": pressure, "fraction": fraction, "steam_flow": steam_flow,
+            "residual_flow": residual_flow, "residual": residual, "vapour": vapour, "liquid": liquid,
+            "enthalpy_in": enthalpy_in, "flow_in": flow_in}
+
+
+def calculate(inputs, site):
+    """Flash steam, residual condensate, recoverable heat, vessel size and yearly saving.
+
+    Parameters
+    ----------
+    inputs : Inputs
+        Condensate pressure (Pa), flow (kg/s), optional temperature (K), and the flash
+        pressure (Pa) or cascade stage pressures (Pa); optional demand (kg/s) and vessel data.
+    site : steamcalc.cases.site.Site
+        Operating hours, boiler efficiency, fuel price and make-up water temperature give
+        the yearly figures, on the site's ``fuel_basis``; an emission factor adds the CO2,
+        a ``water_cost`` the make-up water credit.
+
+    Returns
+    -------
+    Result
+        ``flash_fraction``, ``flash_steam_flow`` (kg/h), ``residual_condensate_flow`` (kg/h),
+        ``recovered_heat_rate`` (kW), ``vessel_diameter`` and ``vessel_height`` (m) with the
+        criterion that governs, ``inlet_line_velocity`` (m/s, homogeneous) and ``inlet_momentum``
+        (Pa) when the inlet size is given, ``annual_fuel_energy_saved`` (MWh),
+        ``annual_cost_saving``, ``annual_water_cost_saving`` and ``annual_total_saving`` with a
+        water cost, and per-stage values for a cascade.
+
+    Notes
+    -----
+    Flash, mass and energy balances of an adiabatic vessel:
+
+    .. math:: x = \\frac{h_{in} - h_f(p)}{h_{fg}(p)}, \\quad
+              \\dot m_{flash} = x \\dot m, \\quad \\dot m_{res} = (1 - x) \\dot m
+
+    Recovered heat, flash steam above make-up water:
+    :math:`\\dot Q = \\dot m_{flash} (h_g(p) - h_{mw})`; fuel a year
+    :math:`E = \\dot Q t / \\eta_{boiler}`.
+
+    Vessel, the largest of three diameters: Souders–Brown vapour area
+    :math:`D_v = \\sqrt{4 \\dot V_g / (\\pi v)}`, :math:`v = K \\sqrt{(\\rho_f - \\rho_g)/\\rho_g}`;
+    liquid hold-up :math:`D_L = (4 \\dot V_f t_{res} / \\pi)^{1/3}` (liquid no deeper than D);
+    nozzles :math:`D_N = 2 d_{max}` (see :mod:`steamcalc.calcs.flash.vessel`).
+
+    References
+    ----------
+    IAPWS R7-97(2012), IAPWS-IF97, for every property. Souders, M. and Brown, G. G. (1934),
+    "Design of Fractionating Columns I. Entrainment and Capacity", Ind. Eng. Chem. 26(1),
+    98–103 (through ``fluids.separator.v_Souders_Brown``). Svrcek, W. Y. and Monnery, W. D.
+    (1993), Chem. Eng. Prog. 89(10), 53–60 (vessel height). ASME BPVC VIII-1 UG-36(b)(1)
+    (nozzle openings). API RP 14E (2000), erosional velocity, for information only.
+
+    Examples
+    --------
+    >>> from steamcalc.cases.site import Site
+    >>> r = calculate(Inputs(condensate_pressure=11.01325e5, condensate_flow=1.0,
+    ...                      flash_pressure=1.01325e5), Site())
+    >>> round(r.value("flash_fraction"), 3)
+    0.161
+    >>> r.value("vessel_governing_criterion")
+    'liquid hold-up'
+    """
+    from fluids.separator import v_Souders_Brown
+
+    result = Result()
+    result.references.extend([
+        IF97_REFERENCE,
+        "Mass and energy balances of an adiabatic flash vessel (any engineering-thermodynamics text)",
+        *VESSEL_REFERENCES,
+    ])
+    result.assumptions.extend([
+        "Adiabatic flash vessel: no heat loss, no work",
+        "Steady state; kinetic and potential energy changes neglected",
+        "Flash steam leaves saturated and dry; residual condensate leaves saturated at the vessel pressure",
+        f"Gauge pressures converted with the site atmosphere of {site.atmospheric_pressure / 1e5:.5g} bar(a)",
+    ])
+    result.cautions.extend(CAUTIONS)
+
+    inlet, t_sat_in = _inlet_state(inputs)
+    flow = inputs.condensate_flow
+    result.add("condensate_saturation_temperature", "Condensate saturation temperature", t_sat_in - 273.15, "degC")
+    result.add("condensate_temperature", "Condensate temperature", inlet.temperature - 273.15, "degC")
+    result.add("condensate_subcooling", "Condensate subcooling", inlet.subcooling, "K")
+    result.add("condensate_enthalpy", "Condensate enthalpy", inlet.enthalpy / 1e3, "kJ/kg")
+    result.add("condensate_flow", "Condensate flow", flow * 3600, "kg/h")
+    result.step("Condensate enthalpy",
+                "h_in = h_f(p_c)  [saturated]" if inputs.condensate_temperature is None else "h_in = h(p_c, T_c)",
+                f"h_in at {bar_a(inputs.condensate_pressure)}, {inlet.temperature - 273.15:.2f} °C",
+                inlet.enthalpy / 1e3, "kJ/kg")
+
+    stages = []
+    enthalpy, stage_flow = inlet.enthalpy, flow
+    cascade = inputs.stages is not None
+    for i, p in enumerate(inputs.stage_pressures, start=1):
+        label = f"Stage {i}" if cascade else "Flash"
+        try:
+            stage = _flash_stage(i, p, enthalpy, stage_flow, result, label)
+        except OutOfRangeError as exc:
+            raise exc.for_field(f"stages[{i - 1}]" if cascade else "flash_pressure") from None
+        stages.append(stage)
+        enthalpy, stage_flow = stage["residual"].enthalpy, stage["residual_flow"]
+        if cascade:
+            result.add(f"stage_{i}_pressure", f"Stage {i} pressure", p / 1e5, "bar")
+            result.add(f"stage_{i}_flash_fraction", f"Stage {i} flash fraction", stage["fraction"])
+            result.add(f"stage_{i}_flash_steam_flow", f"Stage {i} flash steam flow", stage["steam_flow"] * 3600, "kg/h")
+            result.add(f"stage_{i}_residual_condensate_flow", f"Stage {i} residual condensate flow",
+                       stage["residual_flow"] * 3600, "kg/h")
+
+    total_flash = sum(s["steam_flow"] for s in stages)
+    last = stages[-1]
+    # Summed in the recorded unit so that the recorded mass balance closes exactly.
+    flash_kg_h = sum(s["steam_flow"] * 3600 for s in stages)
+    residual_kg_h = flow * 3600 - flash_kg_h
+    result.add("flash_fraction", "Flash fraction (of the condensate)", total_flash / flow)
+    result.add("flash_steam_flow", "Flash steam flow", flash_kg_h, "kg/h")
+    result.add("residual_condensate_flow", "Residual condensate flow", residual_kg_h, "kg/h")
+    result.add("residual_condensate_temperature", "Residual condensate temperature",
+               last["residual"].temperature - 273.15, "degC")
+
+    if total_flash == 0.0:
+        result.check("Condensate flashes", "warn",
+                     f"the condensate at {inlet.temperature - 273.15:.2f} °C is below the saturation temperature "
+                     f"at the flash pressure ({last['liquid'].temperature - 273.15:.2f} °C): it does not flash, "
+                     "and there is no flash steam to recover")
+    else:
+        result.check("Condensate flashes", "pass",
+                     f"{100 * total_flash / flow:.2f} % of the condensate flashes ({flash_kg_h:.1f} kg/h)")
+
+    # The balance re-summed from the recorded states with the other IF97 implementation, judged
+    # against the latent heat the flash steam carries away (the condensate's own enthalpy when none flashes).
+    latent = sum(s["steam_flow"] * (s["vapour"].enthalpy - s["liquid"].enthalpy) for s in stages)
+    check_energy_balance(result, "Flash energy balance (independent)", [Stream.of("condensate", flow, inlet)],
+                         [Stream.of(f"stage {s['index']} flash steam", s["steam_flow"], s["vapour"]) for s in stages]
+                         + [Stream.of("residual condensate", last["residual_flow"], last["residual"])],
+                         latent if latent > 0 else flow * inlet.enthalpy)
+
+    # The demand check needs no site data, so it stands apart from the heat and money.
+    if inputs.lp_demand is not None:
+        if total_flash > inputs.lp_demand:
+            result.check("Flash steam within the low-pressure demand", "warn",
+                         f"flash steam {total_flash * 3600:.1f} kg/h exceeds the demand {inputs.lp_demand * 3600:.1f} "
+                         f"kg/h: {(total_flash - inputs.lp_demand) * 3600:.1f} kg/h would be vented")
+        else:
+            result.check("Flash steam within the low-pressure demand", "pass",
+                         f"flash steam {total_flash * 3600:.1f} kg/h within the demand {inputs.lp_demand * 3600:.1f} kg/h")
+    _recovered_heat(inputs, site, stages, total_flash, result)
+    result.assumptions.extend(vessel_assumptions(inputs))
+    vessels(inputs, stages, result, v_Souders_Brown)
+    if full_record_wanted():
+        result.figures.extend(figures(inputs, result))
+    return result
+
+
+def _recovered_heat(inputs, site, stages, total_flash, result):
+    if site.makeup_water_temperature is None:
+        result.check("Site data for the heat recovered", "warn",
+                     "the site file has no makeup_water_temperature: recovered heat and savings not computed")
+        return
+    makeup = SteamState.from_pT(max(site.atmospheric_pressure, 1.01325e5), site.makeup_water_temperature)
+    heat = sum(s["steam_flow"] * (s["vapour"].enthalpy - makeup.enthalpy) for s in stages)
+    result.step("Heat in the flash steam", "Q = Σ m_flash · (h_g(p_flash) − h_makeup)",
+                f"h_makeup = {kj_kg(makeup.enthalpy)} at {site.makeup_water_temperature - 273.15:.1f} °C",
+                heat / 1e3, "kW")
+    label = "Heat in the flash steam, vented (the loss)" if inputs.vented else "Recoverable heat in the flash steam"
+    result.add("recovered_heat_rate", label, heat / 1e3, "kW")
+    result.assumptions.append("Recovered heat counted from make-up water temperature: each kg of flash steam "
+                              "used displaces a kg of boiler steam raised from make-up water")
+    missing = missing_site_data(site, ("operating_hours", "boiler_efficiency", "fuel_price"))
+    if missing:
+        result.check("Site data for yearly figures", "warn",
+                     f"the site file lacks {', '.join(missing)}: yearly energy and cost not computed")
+        _water_credit(inputs, site, total_flash, makeup, result)
+        return
+    basis = fuel_basis(site)
+    result.assumptions.append(fuel_basis_assumption(site))
+    fuel = annual_fuel_energy(heat, site.operating_hours, site.boiler_efficiency)
+    money = annual_value(fuel, site.fuel_price)
+    saving = "lost" if inputs.vented else "saved"
+    result.step(f"Fuel energy a year {saving} ({basis} calorific value)", "E = Q · t / η_boiler",
+                f"E = {heat / 1e3:.1f} kW × {site.operating_hours:g} h / {site.boiler_efficiency:g} ({basis})",
+                fuel, "MWh")
+    result.step(f"Fuel cost a year {saving}", "C = E · fuel price",
+                f"C = {fuel:.1f} MWh × {site.fuel_price} ({basis})", money, site.fuel_price.currency)
+    when = "lost while vented" if inputs.vented else "saved"
+    result.add("annual_fuel_energy_saved", f"Fuel energy a year ({when}; {basis} calorific value)", fuel, "MWh")
+    result.add("annual_cost_saving", f"Fuel cost a year ({when})", money, site.fuel_price.currency)
+    result.add("fuel_basis", "Calorific-value basis of the fuel figures", basis)
+    if site.fuel_emission_factor is not None:
+        result.add("annual_co2_avoided", "CO₂ a year (avoided by recovery)", fuel * site.fuel_emission_factor / 1e3,
+                   "t")
+    water = _water_credit(inputs, site, total_flash, makeup, result)
+    if water is not None:
+        if site.water_cost.currency == site.fuel_price.currency:
+            result.add("annual_total_saving", f"Fuel and water cost a year ({when})", money + water,
+                       site.fuel_price.currency)
+        else:
+            result.check("One currency for fuel and water", "warn",
+                         f"fuel is priced in {site.fuel_price.currency} and water in {site.water_cost.currency}: "
+                         "no total given")
+    if inputs.vented:
+        result.check("Vented receiver", "warn",
+                     f"{total_flash * 3600:.1f} kg/h of flash steam vents to atmosphere: {heat / 1e3:.1f} kW, "
+                     f"{fuel:.0f} MWh of fuel and {money:,.0f} {site.fuel_price.currency} a year lost")
+
+
+def _water_credit(inputs, site, total_flash, makeup, result):
+    # Vented, the flash steam's water is lost and made up; used, it stays in the system and
+    # displaces boiler steam, so that much make-up water (and its treatment) is not bought.
+    if site.water_cost is None or site.operating_hours is None:
+        return None
+    volume, cost = annual_water_cost(total_flash, makeup.density, site.operating_hours, site.water_cost)
+    when = "lost while vented" if inputs.vented else "saved"
+    result.step(f"Make-up water a year {'lost' if inputs.vented else 'saved'}", "V = m_flash · t / ρ_makeup",
+                f"V = {total_flash * 3600:.1f} kg/h × {site.operating_hours:g} h / {makeup.density:.1f} kg/m³",
+                volume, "m**3")
+    result.step(f"Water cost a year {'lost' if inputs.vented else 'saved'}", "C_w = V · water cost",
+                f"C_w = {volume:.1f} m³ × {site.water_cost}", cost, site.water_cost.currency)
+    result.add("annual_water_saved", f"Make-up water a year ({when})", volume, "m**3")
+    result.add("annual_water_cost_saving", f"Make-up water and treatment cost a year ({when})", cost,
+               site.water_cost.currency)
+    result.assumptions.append(
+        f"Water credit at the site's make-up water cost of {site.water_cost} (make-up water and treatment) on the flash "
+        "steam's mass: vented it is lost and made up, used it displaces boiler steam; the residual condensate "
+        "is taken as returned either way and earns no credit")
+    return cost

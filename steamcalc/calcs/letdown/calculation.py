@@ -1,0 +1,652 @@
+"""Pressure let-down station: isenthalpic throttling and an optional spray desuperheater.
+
+Steam at the inlet pressure is throttled through a control valve to the outlet
+pressure. With no heat, no work and negligible changes of kinetic and
+potential energy in steady flow, the first law for the valve reduces to
+:math:`h_2 = h_1`. A spray desuperheater then mixes water into the throttled
+steam to reach a target temperature; its mass and energy balances give the
+spray-water flow.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from ...errors import InputError, OutOfRangeError
+from ...properties.steam import REFERENCE as IF97_REFERENCE
+from ...properties.steam import CRITICAL_PRESSURE, CRITICAL_TEMPERATURE, SteamState, saturation_temperature
+from ..balance import Stream, check_energy_balance
+from ..base import Result, bar_a, check_fields, deg_c, full_record_wanted, input_field, kj_kg
+from .equipment import line_section, valve_section
+from .figures import figures
+from .relief import relief_section
+from .spray import SPRAY_PRESSURE_DIFFERENCE_RESULTS, check_spray_inputs, spray_field, spray_section
+from .station import downstream_section, line_loss_section, noise_section
+from .turbine import power_section
+
+KIND = "letdown"
+TITLE = "Pressure let-down station"
+WORKBOOK = "letdown.ipynb"
+#: Results the uncertainty section gives bands and sensitivities for.
+UNCERTAINTY_RESULTS = ("outlet_temperature", "outlet_superheat", "throttled_temperature", "spray_water_flow", "valve_kv", "recoverable_power")
+#: Plain fractions shown in % (display only; records keep the fraction).
+PERCENT_VALUES = ("overpressure", "isentropic_efficiency", "generator_efficiency")
+
+#: Results that hold a pressure difference (shown as "bar difference", not bar(a)).
+PRESSURE_DIFFERENCE_RESULTS = tuple(
+    f"{line}_line_pressure_drop{suffix}" for line in ("inlet", "outlet")
+    for suffix in ("", "_per_100m", "_minimum", "_normal", "_maximum")) + SPRAY_PRESSURE_DIFFERENCE_RESULTS
+
+#: Smallest desuperheat margin above saturation that spray desuperheaters hold
+#: stably, K (common practice).
+MIN_DESUPERHEAT_MARGIN = 5.0
+#: Spray-water pressure margin above the steam below which atomisation is doubtful, Pa
+#: (common practice; the nozzle maker's required differential governs).
+MIN_SPRAY_PRESSURE_MARGIN = 3e5
+
+CAUTIONS = (
+    "Equipment downstream of the let-down valve must be protected against the valve, or its "
+    "bypass, failing open: a relief device sized for that flow, to the local pressure-equipment code.",
+    "Steam and flashing condensate cause severe burns; relief and drain discharges must go to a "
+    "safe place.",
+    "A desuperheater that stops spraying (water failure, stuck valve) lets superheated steam into "
+    "the downstream system: check its design temperature against the throttled temperature.",
+    "These results support design by a competent engineer; they do not replace the applicable "
+    "codes, the equipment makers' data or a licensed engineer's approval.",
+)
+
+
+@dataclass(frozen=True)
+class Inputs:
+    """Inputs of a let-down station; values in SI (Pa absolute, K, kg/s).
+
+    The inlet state takes exactly one of inlet_temperature, inlet_superheat and
+    inlet_dryness. The desuperheater is used when a target is given; it then needs
+    the spray water's temperature and pressure.
+    """
+
+    inlet_pressure: float = input_field(
+        "pressure", "Inlet pressure", "Steam pressure upstream of the let-down valve.",
+        example="16 bar(g)", required=True)
+    outlet_pressure: float = input_field(
+        "pressure", "Outlet pressure", "Pressure downstream of the station (a site header or a pressure).",
+        example="header:LP", required=True)
+    mass_flow: float = input_field(
+        "mass_flow", "Steam flow", "Steam flow through the let-down valve.", example="4.5 t/h", required=True,
+        positive=True)
+    inlet_temperature: float | None = input_field(
+        "temperature", "Inlet temperature", "Inlet steam temperature (superheated steam).",
+        example="230 °C")
+    inlet_superheat: float | None = input_field(
+        "temperature_difference", "Inlet superheat", "Inlet temperature above saturation.",
+        example="25 K")
+    inlet_dryness: float | None = input_field(
+        "fraction", "Inlet dryness fraction", "Vapour mass fraction of wet or saturated inlet steam.",
+        example="0.98")
+    target_superheat: float | None = input_field(
+        "temperature_difference", "Target superheat", "Desuperheated steam temperature above outlet saturation.",
+        example="10 K", section="desuperheater")
+    target_temperature: float | None = input_field(
+        "temperature", "Target temperature", "Desuperheated steam temperature.",
+        example="150 °C", section="desuperheater")
+    water_temperature: float | None = input_field(
+        "temperature", "Spray water temperature", "Temperature of the spray water at the nozzle.",
+        example="105 °C", section="desuperheater")
+    water_pressure: float | None = input_field(
+        "pressure", "Spray water pressure", "Pressure of the spray water at the nozzle.",
+        example="20 bar(g)", section="desuperheater")
+    spray_supply_pressure: float | None = spray_field("spray_supply_pressure")
+    nozzle_differential: float | None = spray_field("nozzle_differential")
+    spray_valve_fl: float | None = spray_field("spray_valve_fl")
+    spray_valve_rated_kv: float | None = spray_field("spray_valve_rated_kv")
+    spray_valve_characteristic: str | None = spray_field("spray_valve_characteristic")
+    spray_valve_rangeability: float | None = spray_field("spray_valve_rangeability")
+    sensor_distance: float | None = spray_field("sensor_distance")
+    desuperheater_pipe_size: str | None = spray_field("desuperheater_pipe_size")
+    desuperheater_velocity_limit: float | None = spray_field("desuperheater_velocity_limit")
+    spray_droplet_size: float | None = spray_field("spray_droplet_size")
+
+    max_flow: float | None = input_field(
+        "mass_flow", "Maximum flow", "Largest flow the valve must pass (sizing case).", example="5.5 t/h",
+        section="valve")
+    min_flow: float | None = input_field(
+        "mass_flow", "Minimum flow", "Smallest controlled flow.", example="1.0 t/h", section="valve",
+        positive=True)
+    fl: float | None = input_field(
+        "fraction", "FL", "Liquid pressure recovery factor of the valve (maker's data).", example="0.90",
+        section="valve", positive=True)
+    xt: float | None = input_field(
+        "fraction", "xT", "Pressure differential ratio factor at choked flow (maker's data).", example="0.70",
+        section="valve", positive=True)
+    fd: float | None = input_field(
+        "fraction", "Fd", "Valve style modifier (maker's data).", example="1.0", section="valve", positive=True)
+    rated_kv: float | None = input_field(
+        "flow_coefficient", "Rated Kv (Kvs)", "Kv of the selected valve at full travel.", example="40 m³/h",
+        section="valve", positive=True)
+    characteristic: str | None = input_field(
+        "text", "Characteristic", "Inherent characteristic: equal-percentage or linear.",
+        example="equal-percentage", section="valve")
+    rangeability: float | None = input_field(
+        "number", "Rangeability", "Inherent rangeability of an equal-percentage trim.", example="50",
+        section="valve")
+    max_inlet_pressure: float | None = input_field(
+        "pressure", "Highest upstream pressure", "Highest pressure the inlet can reach (boiler or HP header "
+        "safety-valve setting): sets the fail-open flow and the minimum-flow sizing case.",
+        example="18 bar(g)", section="valve")
+    min_inlet_pressure: float | None = input_field(
+        "pressure", "Lowest upstream pressure", "Lowest pressure the inlet falls to in service: the maximum "
+        "flow is sized at it.", example="15 bar(g)", section="valve")
+    bypass_kv: float | None = input_field(
+        "flow_coefficient", "Bypass valve Kv", "Kv of the hand bypass valve wide open (for the relief load).",
+        example="25 m³/h", section="valve", positive=True)
+    relief_set_pressure: float | None = input_field(
+        "pressure", "Downstream relief set pressure (superseded)", "Superseded by [inputs.relief] set_pressure; "
+        "still read, with a warning.", example="4.5 bar(g)", section="valve")
+    valve_size: str | None = input_field(
+        "nominal_size", "Valve size", "Nominal size of the valve body (for the piping factor with reducers).",
+        example="DN50", section="valve")
+    valve_outlet_size: str | None = input_field(
+        "nominal_size", "Valve outlet port size", "Nominal size of the valve's outlet port, for the outlet Mach "
+        "number and the noise (default: the valve size).", example="DN80", section="valve")
+    noise_limit: str | None = input_field(
+        "text", "Noise limit at 1 m", "A-weighted sound pressure limit 1 m from the pipe (default 85 dB(A)).",
+        example="85 dB(A)", section="valve", key="noise_limit")
+    inlet_size: str | None = input_field(
+        "nominal_size", "Inlet line size", "Nominal size of the inlet line.", example="DN80", section="lines")
+    outlet_size: str | None = input_field(
+        "nominal_size", "Outlet line size", "Nominal size of the outlet line.", example="DN150", section="lines")
+    schedule: str | None = input_field(
+        "text", "Pipe schedule", "ASME B36.10M schedule of the lines.", example="40", section="lines")
+    non_preferred_sizes: bool | None = input_field(
+        "flag", "Suggest non-preferred sizes", "Also suggest DN90, DN125 and other sizes that are hard to buy.",
+        example="false", section="lines")
+    max_velocity_wet: float | None = input_field(
+        "velocity", "Velocity limit, saturated/wet", "Line velocity limit for saturated or wet steam.",
+        example="30 m/s", section="lines", positive=True)
+    max_velocity_superheated: float | None = input_field(
+        "velocity", "Velocity limit, superheated", "Line velocity limit for superheated steam.",
+        example="45 m/s", section="lines", positive=True)
+    inlet_length: float | None = input_field(
+        "length", "Inlet line length", "Straight length of the inlet line, for its pressure drop.", example="25 m",
+        section="lines", positive=True)
+    outlet_length: float | None = input_field(
+        "length", "Outlet line length", "Straight length of the outlet line, for its pressure drop.",
+        example="40 m", section="lines", positive=True)
+    inlet_fittings_k: float | None = input_field(
+        "number", "Inlet line fittings K", "Sum of the inlet line's fittings loss coefficients.", example="2.0",
+        section="lines")
+    outlet_fittings_k: float | None = input_field(
+        "number", "Outlet line fittings K", "Sum of the outlet line's fittings loss coefficients.", example="3.0",
+        section="lines")
+    set_pressure: float | None = input_field(
+        "pressure", "Relief set pressure", "Set pressure of the relief valve protecting the outlet side.",
+        example="4.5 bar(g)", section="relief")
+    overpressure: float | None = input_field(
+        "dimensionless", "Relief overpressure", "Allowable overpressure, of the gauge set pressure (default 10 %).",
+        example="10 %", section="relief", positive=True)
+    back_pressure: float | None = input_field(
+        "pressure", "Relief back pressure", "Superimposed plus built-up back pressure at the relief valve outlet "
+        "(default atmospheric).", example="0 bar(g)", section="relief")
+    relief_kd: float | None = input_field(
+        "fraction", "Relief Kd", "Effective coefficient of discharge (default 0.975, API 520 Part I).",
+        example="0.975", section="relief", positive=True, key="kd")
+    relief_kc: float | None = input_field(
+        "fraction", "Relief Kc", "Combination correction: 1.0, or 0.9 with a rupture disk upstream.",
+        example="1.0", section="relief", positive=True, key="kc")
+    relief_valve_type: str | None = input_field(
+        "text", "Relief valve type", "conventional, balanced-bellows or pilot (default conventional).",
+        example="conventional", section="relief", key="valve_type")
+    relief_inlet_size: str | None = input_field(
+        "nominal_size", "Relief inlet line size", "Nominal size of the relief valve's inlet line.", example="DN100",
+        section="relief", key="inlet_size")
+    relief_inlet_length: float | None = input_field(
+        "length", "Relief inlet line length", "Length of the relief valve's inlet line.", example="1.5 m",
+        section="relief", positive=True, key="inlet_length")
+    relief_inlet_fittings_k: float | None = input_field(
+        "number", "Relief inlet fittings K", "Sum of the loss coefficients of the relief inlet line (entry, "
+        "fittings).", example="0.5", section="relief", key="inlet_fittings_k")
+    relief_discharge_size: str | None = input_field(
+        "nominal_size", "Relief discharge size", "Nominal size of the open discharge pipe, for the reaction force "
+        "(default: the API 526 outlet of the orifice).", example="DN100", section="relief", key="discharge_size")
+    design_pressure: float | None = input_field(
+        "pressure", "Downstream design pressure", "Design pressure of the downstream system.", example="6 bar(g)",
+        section="downstream")
+    design_temperature: float | None = input_field(
+        "temperature", "Downstream design temperature", "Design temperature of the downstream system.",
+        example="180 °C", section="downstream")
+    isentropic_efficiency: float | None = input_field(
+        "fraction", "Turbine isentropic efficiency", "Of a back-pressure turbine in place of the valve.",
+        example="0.55", section="turbine", positive=True)
+    generator_efficiency: float | None = input_field(
+        "fraction", "Generator efficiency", "Electrical output over shaft power of the turbine-generator set.",
+        example="0.95", section="turbine", positive=True)
+
+    def __post_init__(self):
+        check_fields(self)
+        self._check_valve_inputs()
+        self._check_relief_inputs()
+        inlet_given = [n for n in ("inlet_temperature", "inlet_superheat", "inlet_dryness")
+                       if getattr(self, n) is not None]
+        if len(inlet_given) != 1:
+            raise InputError(
+                "the inlet state needs exactly one of inlet_temperature, inlet_superheat, inlet_dryness"
+                + (f"; given: {', '.join(inlet_given)}" if inlet_given else ""),
+                field=inlet_given[1] if len(inlet_given) > 1 else "inlet_temperature",
+                fix="keep one of them")
+        if self.inlet_superheat is not None and self.inlet_superheat <= 0.0:
+            raise InputError("inlet superheat must be above 0 K", field="inlet_superheat",
+                             value=self.inlet_superheat,
+                             fix="for saturated steam give inlet_dryness = 1.0 instead")
+        targets = [n for n in ("target_superheat", "target_temperature") if getattr(self, n) is not None]
+        if len(targets) > 1:
+            raise InputError("give target_superheat or target_temperature, not both",
+                             field="target_temperature", fix="keep one of them")
+        if targets:
+            for name in ("water_temperature", "water_pressure"):
+                if getattr(self, name) is None:
+                    raise InputError("the desuperheater needs the spray water's temperature and pressure",
+                                     field=f"desuperheater.{name}", fix=f"add {name} to [inputs.desuperheater]")
+        elif self.water_temperature is not None or self.water_pressure is not None:
+            raise InputError("spray water is given but no desuperheater target",
+                             field="desuperheater.target_superheat",
+                             fix="add target_superheat or target_temperature, or remove [inputs.desuperheater]")
+        check_spray_inputs(self)
+
+    def _check_relief_inputs(self):
+        from ...equipment.noise import parse_sound_level
+        from ...equipment.relief import VALVE_TYPES
+
+        if self.noise_limit is not None:
+            parse_sound_level(self.noise_limit)
+        if self.set_pressure is not None and self.relief_set_pressure is not None \
+                and abs(self.set_pressure - self.relief_set_pressure) > 1.0:
+            raise InputError("two different relief set pressures are given", field="relief.set_pressure",
+                             fix="remove valve.relief_set_pressure (superseded by [inputs.relief] set_pressure)")
+        set_pressure = self.set_pressure if self.set_pressure is not None else self.relief_set_pressure
+        field = "relief.set_pressure" if self.set_pressure is not None else "valve.relief_set_pressure"
+        if set_pressure is not None and set_pressure <= self.outlet_pressure:
+            raise InputError(
+                f"the relief set pressure {bar_a(set_pressure)} is not above the outlet pressure "
+                f"{bar_a(self.outlet_pressure)}: the valve would lift in normal service", field=field,
+                value=set_pressure, fix="set it above the operating pressure (check the basis, bar(g)/bar(a))")
+        if self.back_pressure is not None:
+            if set_pressure is None:
+                raise InputError("a relief back pressure is given without a set pressure", field="relief.back_pressure",
+                                 fix="add set_pressure to [inputs.relief]")
+            if self.back_pressure >= set_pressure:
+                raise InputError(
+                    f"the back pressure {bar_a(self.back_pressure)} is not below the set pressure {bar_a(set_pressure)}",
+                    field="relief.back_pressure", value=self.back_pressure,
+                    fix="give the superimposed plus built-up pressure at the valve outlet, below the set pressure")
+        if self.overpressure is not None and not 0.03 <= self.overpressure <= 0.21:
+            raise InputError(f"overpressure {100 * self.overpressure:g} % is outside 3-21 % of the set pressure",
+                             field="relief.overpressure", value=self.overpressure, limits=(3, 21, "%"),
+                             fix="10 % for a single valve, 16 % for several, 21 % for fire (API 520 Part I)")
+        if self.relief_valve_type is not None and self.relief_valve_type not in VALVE_TYPES:
+            raise InputError(f"unknown relief valve type '{self.relief_valve_type}'", field="relief.valve_type",
+                             value=self.relief_valve_type, fix=f"use one of {', '.join(VALVE_TYPES)}")
+        for name in ("inlet_fittings_k", "outlet_fittings_k", "relief_inlet_fittings_k"):
+            value = getattr(self, name)
+            if value is not None and value < 0.0:
+                where = "relief.inlet_fittings_k" if name.startswith("relief") else f"lines.{name}"
+                raise InputError("a loss coefficient cannot be negative", field=where, value=value,
+                                 fix="give the sum of the fittings' K values, zero or more")
+        if self.design_pressure is not None and self.design_pressure <= self.outlet_pressure:
+            raise InputError(
+                f"the downstream design pressure {bar_a(self.design_pressure)} is not above the outlet pressure "
+                f"{bar_a(self.outlet_pressure)}", field="downstream.design_pressure", value=self.design_pressure,
+                fix="give the design pressure of the downstream system (check the basis, bar(g)/bar(a))")
+
+    def _check_valve_inputs(self):
+        # Control valves have xT from about 0.1 (ball, butterfly) to 0.9 (globe): outside 0.05-1 is a
+        # slip, and xT near zero makes the choked limit vanish (common practice; makers' data govern).
+        if self.xt is not None and not 0.05 <= self.xt <= 1.0:
+            raise InputError("xT must lie between 0.05 and 1", field="valve.xt", value=self.xt,
+                             limits=(0.05, 1.0, ""), fix="take xT from the valve maker's data (globe valves 0.6-0.8)")
+        if self.characteristic is not None and self.characteristic not in ("linear", "equal-percentage"):
+            raise InputError("the characteristic is 'linear' or 'equal-percentage'", field="valve.characteristic",
+                             value=self.characteristic)
+        if self.rangeability is not None and self.rangeability <= 1.0:
+            raise InputError("rangeability must be above 1", field="valve.rangeability", value=self.rangeability)
+        if self.max_flow is not None and self.max_flow < self.mass_flow:
+            raise InputError("the maximum flow is below the normal flow", field="valve.max_flow",
+                             fix="max_flow ≥ mass_flow ≥ min_flow")
+        if self.min_flow is not None and self.min_flow > self.mass_flow:
+            raise InputError("the minimum flow is above the normal flow", field="valve.min_flow",
+                             fix="max_flow ≥ mass_flow ≥ min_flow > 0")
+        if self.max_inlet_pressure is not None and self.max_inlet_pressure < self.inlet_pressure:
+            raise InputError(
+                f"the highest upstream pressure {bar_a(self.max_inlet_pressure)} is below the inlet pressure "
+                f"{bar_a(self.inlet_pressure)}", field="valve.max_inlet_pressure", value=self.max_inlet_pressure,
+                fix="give the highest pressure the inlet can reach (at least the normal inlet pressure)")
+        if self.min_inlet_pressure is not None:
+            if self.min_inlet_pressure > self.inlet_pressure:
+                raise InputError(
+                    f"the lowest upstream pressure {bar_a(self.min_inlet_pressure)} is above the inlet pressure "
+                    f"{bar_a(self.inlet_pressure)}", field="valve.min_inlet_pressure", value=self.min_inlet_pressure,
+                    fix="give the lowest pressure the inlet falls to (at most the normal inlet pressure)")
+            if self.min_inlet_pressure <= self.outlet_pressure:
+                raise InputError(
+                    f"the lowest upstream pressure {bar_a(self.min_inlet_pressure)} is not above the outlet "
+                    f"pressure {bar_a(self.outlet_pressure)}: no flow at that case", field="valve.min_inlet_pressure",
+                    value=self.min_inlet_pressure, fix="check the pressure and its basis (bar(g)/bar(a))")
+
+    @property
+    def desuperheating(self):
+        """True when a desuperheater target is given."""
+        return self.target_superheat is not None or self.target_temperature is not None
+
+
+
+
+
+def _phase_word(state):
+    """The record's phase word: superheated, wet or saturated (design §3.4)."""
+    if state.phase == "superheated vapour":
+        return "superheated"
+    if state.phase == "wet":
+        return "wet"
+    if state.phase in ("saturated vapour", "saturated liquid"):
+        return "saturated"
+    return state.phase
+
+
+def _dryness(state):
+    # Steam-table convention: a superheated state is reported with dryness 1.
+    return 1.0 if state.dryness is None else state.dryness
+
+
+def _inlet_state(inputs, result):
+    given = next(n for n in ("inlet_temperature", "inlet_superheat", "inlet_dryness")
+                 if getattr(inputs, n) is not None)
+    try:
+        return _inlet_state_from(inputs, result)
+    except OutOfRangeError as exc:
+        raise exc.for_field("inlet_pressure" if exc.field == "pressure" else given) from None
+
+
+def _inlet_state_from(inputs, result):
+    p1 = inputs.inlet_pressure
+    # Above the critical pressure there is no saturation: a temperature fixes the state (IF97 regions 2, 3).
+    t_sat = saturation_temperature(p1) if p1 <= CRITICAL_PRESSURE or inputs.inlet_temperature is None else None
+    if inputs.inlet_temperature is not None:
+        if t_sat is None and inputs.inlet_temperature < CRITICAL_TEMPERATURE:
+            raise InputError(
+                f"inlet temperature {deg_c(inputs.inlet_temperature)} at {bar_a(p1)} (above the critical pressure) "
+                f"is below the critical temperature {deg_c(CRITICAL_TEMPERATURE)}: that is compressed liquid, not steam",
+                field="inlet_temperature", fix="check the pressure basis and the temperature")
+        if t_sat is not None and inputs.inlet_temperature < t_sat - 1e-6:
+            raise InputError(
+                f"inlet temperature {deg_c(inputs.inlet_temperature)} is below saturation "
+                f"({deg_c(t_sat)}) at {bar_a(p1)}: that is liquid, not steam",
+                field="inlet_temperature", fix="check the pressure basis (bar(g)/bar(a)) and the temperature, "
+                "or give inlet_dryness for wet steam")
+        state = SteamState.from_pT(p1, inputs.inlet_temperature)
+        result.step("Inlet enthalpy", "h1 = h(p1, T1)  [IF97]",
+                    f"h1 = h({bar_a(p1)}, {deg_c(state.temperature)})", state.enthalpy / 1e3, "kJ/kg")
+    elif inputs.inlet_superheat is not None:
+        state = SteamState.from_pT(p1, t_sat + inputs.inlet_superheat)
+        result.step("Inlet temperature", "T1 = T_sat(p1) + ΔT_sh,1",
+                    f"T1 = {deg_c(t_sat)} + {inputs.inlet_superheat:.2f} K", state.temperature - 273.15, "degC")
+        result.step("Inlet enthalpy", "h1 = h(p1, T1)  [IF97]",
+                    f"h1 = h({bar_a(p1)}, {deg_c(state.temperature)})", state.enthalpy / 1e3, "kJ/kg")
+    else:
+        state = SteamState.from_p_dryness(p1, inputs.inlet_dryness)
+        sat_liquid = SteamState.from_p_dryness(p1, 0.0)
+        sat_vapour = SteamState.from_p_dryness(p1, 1.0)
+        result.step("Inlet enthalpy", "h1 = h_f(p1) + x1·(h_g(p1) − h_f(p1))",
+                    f"h1 = {kj_kg(sat_liquid.enthalpy)} + {inputs.inlet_dryness:.4f} × "
+                    f"({kj_kg(sat_vapour.enthalpy)} − {kj_kg(sat_liquid.enthalpy)})",
+                    state.enthalpy / 1e3, "kJ/kg")
+    return state, t_sat
+
+
+def calculate(inputs, site):
+    """Outlet state of a let-down station, and the spray water of its desuperheater.
+
+    Parameters
+    ----------
+    inputs : Inputs
+        Inlet pressure (Pa), outlet pressure (Pa), steam flow (kg/s), one inlet
+        specification, and optionally a desuperheater target (K) with spray water
+        temperature (K) and pressure (Pa).
+    site : steamcalc.cases.site.Site
+        Site data (the atmosphere has already been applied to gauge inputs).
+
+    Returns
+    -------
+    Result
+        Values ``outlet_temperature`` (degC), ``outlet_phase``, ``outlet_dryness``,
+        ``outlet_superheat`` (K), ``outlet_enthalpy`` (kJ/kg), ``outlet_mass_flow``
+        (kg/h), ``spray_water_flow`` (kg/h, when desuperheating), with the
+        throttled (valve outlet) state, steps, checks and cautions.
+
+    Notes
+    -----
+    Valve, steady flow energy equation with :math:`Q = 0`, :math:`W = 0` and
+    negligible kinetic and potential energy changes:
+
+    .. math:: h_2 = h_1
+
+    Desuperheater, mass and energy balances for adiabatic mixing:
+
+    .. math:: \\dot m_w = \\dot m_s \\frac{h_2 - h_3}{h_3 - h_w}, \\qquad
+              \\dot m_3 = \\dot m_s + \\dot m_w
+
+    References
+    ----------
+    IAPWS R7-97(2012), IAPWS-IF97, for every property. The steady-flow energy
+    equation as in any engineering-thermodynamics text (e.g. Rogers & Mayhew,
+    Engineering Thermodynamics: Work and Heat Transfer, ch. 4).
+
+    Examples
+    --------
+    >>> from steamcalc.cases.site import Site
+    >>> r = calculate(Inputs(inlet_pressure=15e5, outlet_pressure=1e5, mass_flow=1.0,
+    ...                      inlet_temperature=623.15), Site())
+    >>> r.value("outlet_phase"), round(r.value("outlet_temperature"), 1)
+    ('superheated', 336.3)
+    """
+    result = Result()
+    result.references.extend([
+        IF97_REFERENCE,
+        "Steady-flow energy equation for a throttling device and for adiabatic mixing "
+        "(any engineering-thermodynamics text)",
+        "IEC 60534-2-1:2011, control-valve sizing equations for compressible fluids",
+        "IEC 60534-2-4:2009, inherent flow characteristics",
+        "ASME B36.10M, welded and seamless wrought steel pipe (dimensions)",
+        "IEC 60534-8-3:2010, control valve aerodynamic noise prediction (through fluids)",
+        "API Standard 520 Part I (10th ed., 2020), relief device sizing: steam equation and annex B direct integration",
+        "API Standard 520 Part II (7th ed., 2020), relief installation: inlet loss, reaction force",
+        "API Standard 526 (7th ed., 2017), flanged steel pressure-relief valves: orifice letters and areas",
+        "Darcy–Weisbach with the Colebrook (1939) friction factor (through fluids)",
+    ])
+    result.assumptions.extend([
+        "Adiabatic valve: Q = 0",
+        "No shaft work in the valve: W = 0",
+        "Changes of kinetic and potential energy across the station neglected",
+        "Steady state",
+        "Throttling is isenthalpic: h2 = h1",
+        f"Gauge pressures converted with the site atmosphere of {site.atmospheric_pressure / 1e5:.5g} bar(a)",
+    ])
+    result.cautions.extend(CAUTIONS)
+
+    p1, p2, flow = inputs.inlet_pressure, inputs.outlet_pressure, inputs.mass_flow
+    if p2 >= p1:
+        raise InputError(
+            f"outlet pressure {bar_a(p2)} is not below the inlet pressure {bar_a(p1)}",
+            field="outlet_pressure", fix="a let-down lowers the pressure: check the pressures and their basis")
+
+    inlet, t_sat1 = _inlet_state(inputs, result)
+    if t_sat1 is not None:
+        result.add("inlet_saturation_temperature", "Inlet saturation temperature", t_sat1 - 273.15, "degC")
+    result.add("inlet_temperature", "Inlet temperature", inlet.temperature - 273.15, "degC")
+    result.add("inlet_phase", "Inlet phase", _phase_word(inlet))
+    result.add("inlet_dryness", "Inlet dryness fraction", _dryness(inlet))
+    result.add("inlet_superheat", "Inlet superheat", inlet.superheat, "K")
+    result.add("inlet_enthalpy", "Inlet enthalpy", inlet.enthalpy / 1e3, "kJ/kg")
+    result.add("inlet_mass_flow", "Inlet steam flow", flow * 3600, "kg/h")
+    result.check("Outlet pressure below inlet", "pass",
+                 f"{bar_a(p1)} to {bar_a(p2)}: a drop of {(p1 - p2) / 1e5:.4g} bar difference across the station")
+    if inlet.phase == "wet":
+        result.check("Inlet steam state", "warn",
+                     f"wet inlet steam (dryness {inlet.dryness:.3f}): erosion of the valve trim and "
+                     "water carried over downstream; fit a separator with a trap upstream (common practice)")
+    else:
+        result.check("Inlet steam state", "pass", f"inlet steam {_phase_word(inlet)}")
+
+    try:
+        throttled = SteamState.from_ph(p2, inlet.enthalpy)
+        t_sat2 = saturation_temperature(p2)
+    except OutOfRangeError as exc:
+        raise exc.for_field("outlet_pressure") from None
+    result.step("Throttling", "h2 = h1  (Q = 0, W = 0, Δke = Δpe = 0)",
+                f"h2 = {kj_kg(inlet.enthalpy)}", throttled.enthalpy / 1e3, "kJ/kg")
+    result.step("Outlet saturation temperature", "T_sat,2 = T_sat(p2)  [IF97 region 4]",
+                f"T_sat({bar_a(p2)})", t_sat2 - 273.15, "degC")
+    result.step("Throttled temperature", "T2 = T(p2, h2)  [IF97]",
+                f"T2 = T({bar_a(p2)}, {kj_kg(throttled.enthalpy)})", throttled.temperature - 273.15, "degC")
+    if throttled.phase == "wet":
+        liquid, vapour = SteamState.from_p_dryness(p2, 0.0), SteamState.from_p_dryness(p2, 1.0)
+        result.step("Throttled dryness fraction", "x2 = (h2 − h_f(p2)) / (h_g(p2) − h_f(p2))",
+                    f"x2 = ({kj_kg(throttled.enthalpy)} − {kj_kg(liquid.enthalpy)}) / "
+                    f"({kj_kg(vapour.enthalpy)} − {kj_kg(liquid.enthalpy)})", throttled.dryness)
+    else:
+        result.step("Throttled superheat", "ΔT_sh,2 = T2 − T_sat,2",
+                    f"ΔT_sh,2 = {deg_c(throttled.temperature)} − {deg_c(t_sat2)}", throttled.superheat, "K")
+    result.add("outlet_saturation_temperature", "Outlet saturation temperature", t_sat2 - 273.15, "degC")
+    result.add("throttled_temperature", "Temperature after the valve", throttled.temperature - 273.15, "degC")
+    result.add("throttled_phase", "Phase after the valve", _phase_word(throttled))
+    result.add("throttled_dryness", "Dryness fraction after the valve", _dryness(throttled))
+    result.add("throttled_superheat", "Superheat after the valve", throttled.superheat, "K")
+
+    outlet, spray = throttled, 0.0
+    if inputs.desuperheating:
+        outlet, spray = _desuperheat(inputs, throttled, t_sat2, result)
+    # Summed in the recorded unit so that the recorded mass balance closes exactly.
+    outlet_flow_kg_h = flow * 3600 + spray * 3600
+
+    result.add("outlet_temperature", "Outlet temperature", outlet.temperature - 273.15, "degC")
+    result.add("outlet_phase", "Outlet phase", _phase_word(outlet))
+    result.add("outlet_dryness", "Outlet dryness fraction", _dryness(outlet))
+    result.add("outlet_superheat", "Outlet superheat", outlet.superheat, "K")
+    result.add("outlet_enthalpy", "Outlet enthalpy", outlet.enthalpy / 1e3, "kJ/kg")
+    result.add("outlet_mass_flow", "Outlet steam flow", outlet_flow_kg_h, "kg/h")
+
+    result.states.update(inlet=inlet, throttled=throttled, outlet=outlet)
+    valve_section(inputs, inlet, result)
+    if full_record_wanted():   # a Monte Carlo sample needs none of these for its banded results
+        line_section(inputs, inlet, throttled, outlet, result)
+        line_loss_section(inputs, result)
+        noise_section(inputs, result)
+        relief_section(inputs, inlet, site, result)
+        downstream_section(inputs, result)
+        spray_section(inputs, result)
+    power_section(inputs, inlet, throttled, site, result)
+
+    if outlet.phase == "wet":
+        result.check("Outlet steam state", "warn",
+                     f"wet steam leaves the station (dryness {outlet.dryness:.3f}): erosion and "
+                     "waterhammer risk; drain the outlet line with a trap (common practice)")
+    else:
+        result.check("Outlet steam state", "pass",
+                     f"outlet steam {_phase_word(outlet)}, {outlet.superheat:.1f} K superheat")
+    if full_record_wanted():
+        result.figures.extend(figures(inputs, result))
+    return result
+
+
+def _desuperheat(inputs, throttled, t_sat2, result):
+    p2, steam_flow = throttled.pressure, inputs.mass_flow
+    if inputs.target_superheat is not None:
+        target_t = t_sat2 + inputs.target_superheat
+        field = "desuperheater.target_superheat"
+        result.step("Desuperheat target temperature", "T3 = T_sat,2 + ΔT_sh,3",
+                    f"T3 = {deg_c(t_sat2)} + {inputs.target_superheat:.2f} K", target_t - 273.15, "degC")
+    else:
+        target_t = inputs.target_temperature
+        field = "desuperheater.target_temperature"
+    margin = target_t - t_sat2
+    if margin <= 0.0:
+        raise InputError(
+            f"desuperheat target {deg_c(target_t)} is not above saturation ({deg_c(t_sat2)}) at {bar_a(p2)}",
+            field=field, fix=f"set the target at least {MIN_DESUPERHEAT_MARGIN:g} K above saturation")
+    water_t, water_p = inputs.water_temperature, inputs.water_pressure
+    if water_t >= target_t:
+        raise InputError(
+            f"spray water at {deg_c(water_t)} is not colder than the target {deg_c(target_t)}",
+            field="desuperheater.water_temperature", fix="spray water must be colder than the target steam")
+    if water_p <= p2:
+        raise InputError(
+            f"spray water at {bar_a(water_p)} is not above the steam pressure {bar_a(p2)}: it cannot be injected",
+            field="desuperheater.water_pressure", fix="give the water pressure at the nozzle, above the steam")
+    if water_t >= saturation_temperature(water_p) - 1e-6:
+        raise InputError(
+            f"spray water at {deg_c(water_t)} and {bar_a(water_p)} is not liquid",
+            field="desuperheater.water_temperature", fix="spray water must be subcooled liquid at the nozzle")
+    try:
+        target = SteamState.from_pT(p2, target_t)
+    except OutOfRangeError as exc:
+        raise exc.for_field(field) from None
+    try:
+        water = SteamState.from_pT(water_p, water_t)
+    except OutOfRangeError as exc:
+        raise exc.for_field("desuperheater.water_pressure" if exc.field == "pressure"
+                            else "desuperheater.water_temperature") from None
+    result.step("Desuperheated steam enthalpy", "h3 = h(p2, T3)  [IF97]",
+                f"h3 = h({bar_a(p2)}, {deg_c(target_t)})", target.enthalpy / 1e3, "kJ/kg")
+    result.step("Spray water enthalpy", "h_w = h(p_w, T_w)  [IF97 region 1]",
+                f"h_w = h({bar_a(water_p)}, {deg_c(water_t)})", water.enthalpy / 1e3, "kJ/kg")
+    result.assumptions.extend([
+        "Desuperheater: adiabatic mixing; the spray evaporates completely before the outlet",
+        "Spray water enthalpy at its stated temperature and pressure at the nozzle",
+    ])
+
+    if margin < MIN_DESUPERHEAT_MARGIN:
+        result.check("Desuperheat margin above saturation", "warn",
+                     f"target {margin:.1f} K above saturation, below {MIN_DESUPERHEAT_MARGIN:g} K: spray "
+                     "desuperheaters control poorly this close to saturation and water may not evaporate "
+                     "(common practice)")
+    else:
+        result.check("Desuperheat margin above saturation", "pass",
+                     f"target {margin:.1f} K above saturation (at least {MIN_DESUPERHEAT_MARGIN:g} K, "
+                     "common practice)")
+    result.check("Spray water colder than target", "pass",
+                 f"water {deg_c(water_t)} below target {deg_c(target_t)}")
+    pressure_margin = water_p - p2
+    if pressure_margin < MIN_SPRAY_PRESSURE_MARGIN:
+        result.check("Spray water pressure above steam", "warn",
+                     f"water only {pressure_margin / 1e5:.2f} bar difference above the steam: atomisation doubtful "
+                     f"below about {MIN_SPRAY_PRESSURE_MARGIN / 1e5:g} bar difference (common practice; the nozzle "
+                     "maker's required differential governs)")
+    else:
+        result.check("Spray water pressure above steam", "pass",
+                     f"water {pressure_margin / 1e5:.2f} bar difference above the steam")
+
+    result.add("desuperheat_target_temperature", "Desuperheat target temperature", target_t - 273.15, "degC")
+    result.add("spray_water_enthalpy", "Spray water enthalpy", water.enthalpy / 1e3, "kJ/kg")
+    if throttled.enthalpy <= target.enthalpy:
+        result.check("Desuperheat target reachable", "fail",
+                     f"steam after the valve ({deg_c(throttled.temperature)}) is not hotter than the target "
+                     f"({deg_c(target_t)}): spraying water cannot reach it; no spray flow is computed")
+        result.add("spray_water_flow", "Spray water flow", 0.0, "kg/h")
+        return throttled, 0.0
+
+    spray = steam_flow * (throttled.enthalpy - target.enthalpy) / (target.enthalpy - water.enthalpy)
+    outlet_flow = steam_flow + spray
+    result.step("Spray water flow", "m_w = m_s·(h2 − h3) / (h3 − h_w)",
+                f"m_w = {steam_flow * 3600:.1f} kg/h × ({kj_kg(throttled.enthalpy)} − {kj_kg(target.enthalpy)}) / "
+                f"({kj_kg(target.enthalpy)} − {kj_kg(water.enthalpy)})", spray * 3600, "kg/h")
+    result.step("Outlet steam flow", "m_3 = m_s + m_w",
+                f"m_3 = {steam_flow * 3600:.1f} kg/h + {spray * 3600:.1f} kg/h", outlet_flow * 3600, "kg/h")
+    result.add("spray_water_flow", "Spray water flow", spray * 3600, "kg/h")
+    result.add("desuperheater_heat_absorbed", "Heat taken up by the spray water",
+               spray * (target.enthalpy - water.enthalpy) / 1e3, "kW")
+
+    result.check("Desuperheat target reachable", "pass",
+                 f"steam after the valve {deg_c(throttled.temperature)} is above the target {deg_c(target_t)}")
+    check_energy_balance(result, "Desuperheater energy balance (independent)",
+                         [Stream.of("throttled steam", steam_flow, throttled), Stream.of("spray water", spray, water)],
+                         [Stream.of("desuperheated steam", outlet_flow, target)],
+                         spray * (target.enthalpy - water.enthalpy))
+    return target, spray

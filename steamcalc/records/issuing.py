@@ -1,0 +1,280 @@
+"""Issuing a record's files as one set: one writer at a time, staged, then committed.
+
+A record is a set of files with one stem: ``<id>_rev<revision>.json`` (the truth) and its
+companions (``.html``, ``.md``). Writing the set goes:
+
+1. take the record's lock (one ``filelock`` lock per id and revision, in the folder's hidden
+   work folder ``.steamcalc/``), so that the read-compare-write of ``run``, the workbook's save
+   and ``sign`` is never interleaved with another writer's;
+2. finish or undo whatever an interrupted writer left (:func:`recover`);
+3. write every file of the new set into a staging folder, flush it to disk, and only then write
+   the staging folder's commit list;
+4. move the staged files into place, the JSON first, and remove the staging folder.
+
+A kill before the commit list exists leaves the old set (the staging folder is removed by the
+next writer); a kill after it leaves a commit that the next writer rolls forward to the new
+set. Because the JSON moves first, a companion never claims more than its JSON: a sign-off
+caught half-way shows a signed JSON beside a report that does not yet say so, never the
+reverse.
+
+Files are created with the permissions the user's umask gives (0644 under umask 022), as any
+other program's output would be.
+"""
+
+from __future__ import annotations
+
+import errno
+import json
+import os
+import shutil
+import tempfile
+from contextlib import contextmanager
+from pathlib import Path
+
+from ..cases.filemodes import file_mode
+from ..errors import RecordBusyError, RecordError
+
+#: Hidden folder beside the records for locks and staging.
+WORK_FOLDER = ".steamcalc"
+#: Seconds a second writer of the same record waits before giving up.
+LOCK_TIMEOUT = 10.0
+_COMMIT_LIST = "COMMIT"
+
+
+def os_error(exc, path, doing):
+    """A user-facing error for a failed file operation (disk full, permission, not a folder...)."""
+    reason = exc.strerror or str(exc)
+    fixes = {
+        errno.ENOSPC: "free some disk space and run it again; files already there were left as they were",
+        errno.EDQUOT: "free some of your disk quota and run it again; files already there were left as they were",
+        errno.EACCES: "check that you may write to this folder (or choose another with --out)",
+        errno.EPERM: "check that you may write to this folder (or choose another with --out)",
+        errno.EROFS: "choose a folder on a writable drive",
+        errno.ENOTDIR: "a file stands where a folder is needed: give a folder",
+        errno.EEXIST: "a file stands where a folder is needed: give a folder",
+    }
+    return RecordError(f"could not {doing}: {reason}", source=str(path),
+                       fix=fixes.get(exc.errno, "check the folder and run it again"))
+
+
+def ensure_folder(folder):
+    """Create a folder (and parents) with umask permissions; refuse a file standing in its way."""
+    folder = Path(folder)
+    if folder.exists() and not folder.is_dir():
+        raise RecordError("this is a file, not a folder", source=str(folder),
+                          fix="give a folder for the records (--out DIR), not a file")
+    try:
+        folder.mkdir(parents=True, exist_ok=True)
+    except OSError as exc:
+        raise os_error(exc, folder, "create the folder") from None
+    return folder
+
+
+def write_file(path, data):
+    """Write bytes or text to a new file, flushed to disk; mode from the umask."""
+    if isinstance(data, str):
+        data = data.encode("utf-8")
+    fd = os.open(path, os.O_WRONLY | os.O_CREAT | os.O_EXCL, file_mode())
+    try:
+        view = memoryview(data)
+        while view:
+            written = os.write(fd, view)
+            view = view[written:]
+        os.fsync(fd)
+    finally:
+        os.close(fd)
+
+
+def _sync_folder(folder):
+    try:
+        fd = os.open(folder, os.O_RDONLY)
+    except OSError:
+        return
+    try:
+        os.fsync(fd)
+    except OSError:
+        pass
+    finally:
+        os.close(fd)
+
+
+def write_text_atomic(path, text):
+    """Write one file through a temporary file and a rename: never half-written.
+
+    The temporary file sits beside the target (so the rename stays on one drive) and is
+    removed if anything fails, a full disk included.
+    """
+    path = Path(path)
+    ensure_folder(path.parent)
+    handle, temp = tempfile.mkstemp(dir=path.parent, prefix=f".{path.name}.", suffix=".part")
+    os.close(handle)
+    try:
+        os.unlink(temp)
+        write_file(temp, text)
+        os.replace(temp, path)
+    except OSError as exc:
+        Path(temp).unlink(missing_ok=True)
+        raise os_error(exc, path, "write the file") from None
+    except BaseException:
+        Path(temp).unlink(missing_ok=True)
+        raise
+
+
+def _work_folder(folder):
+    work = Path(folder) / WORK_FOLDER
+    if not work.is_dir():
+        ensure_folder(work)
+    return work
+
+
+@contextmanager
+def record_lock(folder, stem, timeout=None):
+    """Hold the exclusive lock of one record (id and revision) in a folder.
+
+    Raises
+    ------
+    RecordBusyError
+        When another writer holds it for longer than ``timeout`` seconds.
+    """
+    from filelock import FileLock, Timeout
+
+    folder = ensure_folder(folder)
+    if timeout is None:
+        timeout = float(os.environ.get("STEAMCALC_LOCK_TIMEOUT", LOCK_TIMEOUT))
+    lock_path = _work_folder(folder) / f"{stem}.lock"
+    lock = FileLock(lock_path, timeout=timeout, mode=file_mode())
+    try:
+        lock.acquire()
+    except Timeout:
+        raise RecordBusyError(
+            f"another steamcalc is writing record {stem} in this folder (waited {timeout:g} s)",
+            source=str(folder), fix="let the other run, save or sign-off finish, then try again") from None
+    except OSError as exc:
+        raise os_error(exc, lock_path, "lock the record") from None
+    try:
+        yield
+    finally:
+        lock.release()
+
+
+def _staging(folder, stem):
+    return Path(folder) / WORK_FOLDER / f"{stem}.staged"
+
+
+def recover(folder, stem):
+    """Finish or undo an interrupted writer of this record (call with the record's lock held).
+
+    A staging folder with its commit list is rolled forward (its files moved into place);
+    one without is removed. Stray temporary files of the record are removed too.
+
+    Returns
+    -------
+    str or None
+        ``"rolled forward"``, ``"rolled back"`` or None when there was nothing to do.
+    """
+    folder = Path(folder)
+    done = None
+    staging = _staging(folder, stem)
+    if staging.is_dir():
+        if (staging / _COMMIT_LIST).is_file():
+            _move_into_place(folder, staging)
+            done = "rolled forward"
+        else:
+            shutil.rmtree(staging, ignore_errors=True)
+            done = "rolled back"
+    # Temporary files of an interrupted single-file write of this record's set.
+    for stray in folder.glob(f".{stem}.*.part"):
+        stray.unlink(missing_ok=True)
+        done = done or "cleaned"
+    return done
+
+
+def _move_into_place(folder, staging):
+    names = json.loads((staging / _COMMIT_LIST).read_text(encoding="utf-8"))
+    for number, name in enumerate(names):
+        staged = staging / name
+        if staged.exists():
+            os.replace(staged, folder / name)
+        _fault_point(f"moved:{number}")
+    _sync_folder(folder)
+    shutil.rmtree(staging, ignore_errors=True)
+
+
+def issue_set(folder, stem, files):
+    """Write a set of files as one: staged, flushed, then moved into place in the order given.
+
+    Call with the record's lock held and after :func:`recover`.
+
+    Parameters
+    ----------
+    folder : Path
+        Folder the files go into.
+    stem : str
+        The record's stem (its staging folder's name).
+    files : list of (str, str)
+        ``(file name, text)`` in commit order: the JSON first.
+    """
+    folder = Path(folder)
+    staging = _staging(folder, stem)
+    try:
+        staging.mkdir(mode=0o700)
+        for number, (name, text) in enumerate(files):
+            write_file(staging / name, text)
+            _fault_point(f"staged:{number}")
+        write_file(staging / f"{_COMMIT_LIST}.part", json.dumps([name for name, _ in files]))
+        os.replace(staging / f"{_COMMIT_LIST}.part", staging / _COMMIT_LIST)
+        _sync_folder(staging)
+        _fault_point("listed")
+    except OSError as exc:
+        shutil.rmtree(staging, ignore_errors=True)
+        raise os_error(exc, folder / files[0][0], "write the record") from None
+    except BaseException:
+        shutil.rmtree(staging, ignore_errors=True)
+        raise
+    try:
+        _move_into_place(folder, staging)
+    except OSError as exc:
+        raise RecordError(f"the record was staged but not all of it moved into place: {exc.strerror or exc}",
+                          source=str(folder / files[0][0]),
+                          fix="run the same command again: it completes the interrupted issue") from None
+
+
+def _fault_point(name):
+    # Fault injection for the crash tests: STEAMCALC_TEST_KILL_AT names the instant at which
+    # the process kills itself, as a power cut or kill -9 would. Unset, this does nothing.
+    if os.environ.get("STEAMCALC_TEST_KILL_AT") == name:
+        import signal
+        os.kill(os.getpid(), signal.SIGKILL)
+
+
+def is_own_output(path, suffix=None):
+    """True when a file is one steamcalc writes as a record's companion or index.
+
+    Used before replacing a file: what steamcalc did not write is never overwritten.
+    """
+    path = Path(path)
+    suffix = suffix or path.suffix
+    try:
+        if not path.is_file():
+            return False
+        with path.open("rb") as handle:
+            head = handle.read(4096)
+            handle.seek(0, os.SEEK_END)
+            size = handle.tell()
+            handle.seek(max(0, size - 4096))
+            tail = handle.read()
+    except OSError:
+        return False
+    text = (head + tail).decode("utf-8", "replace")
+    if suffix in (".html", ".htm"):
+        return 'name="generator" content="steamcalc' in text or (
+            "steamcalc" in text and "digest" in text) or "steamcalc records index" in text
+    if suffix == ".md":
+        return "record digest `sha256:" in text
+    if suffix == ".csv":
+        return text.startswith("id,revision,kind,title,status")
+    if suffix == ".pdf":
+        return head.startswith(b"%PDF") and (b"Skia/PDF" in head + tail or b"Chromium" in head + tail)
+    if suffix == ".ipynb":
+        return '"papermill"' in text and '"case_file"' in text
+    return False

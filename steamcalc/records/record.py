@@ -1,0 +1,319 @@
+"""The calculation record: model, canonical JSON, digests, provenance and safe writing.
+
+A record (schema ``steamcalc.record/2``) states every input, assumption, step,
+result, check, figure (as data) and caution of one calculation, and the software that made it.
+
+Two digests are kept:
+
+``digest``
+    SHA-256 over the canonical JSON of every other key (``created`` included).
+    Any edit to the file changes it: this is the tamper evidence.
+``content_digest``
+    SHA-256 over the same JSON without ``created``, ``provenance``, the sign-off
+    (``checked_by``, ``signoff``) and the digests: the engineering content alone. Re-running an
+    unchanged case gives the same content digest, so the existing record (and
+    its original creation time) is kept rather than replaced.
+"""
+
+from __future__ import annotations
+
+import copy
+import hashlib
+import json
+import math
+import platform
+import sys
+from datetime import datetime, timezone
+from functools import lru_cache
+from importlib import metadata
+from pathlib import Path
+
+from ..errors import RecordConflictError, RecordError
+from .schema import validate_record
+from .issuing import write_text_atomic  # noqa: F401  (one atomic writer, re-exported)
+
+SCHEMA = "steamcalc.record/2"
+#: Schemas a record may carry and still be read and verified: schema 1 (no
+#: figure data) was issued by steamcalc 0.2; schema 2 adds the figures as data.
+READABLE_SCHEMAS = ("steamcalc.record/1", SCHEMA)
+_PROVENANCE_PACKAGES = ("steamcalc", "iapws", "seuif97", "pint", "numpy", "jinja2")
+# The checker's sign-off is not content: signing must leave the content digest as it was.
+_NOT_CONTENT = ("created", "provenance", "digest", "content_digest", "checked_by", "signoff", "signatures")
+
+
+@lru_cache(maxsize=1)
+def _versions():
+    versions = {}
+    for name in _PROVENANCE_PACKAGES:
+        try:
+            versions[name] = metadata.version(name)
+        except metadata.PackageNotFoundError:
+            if name == "steamcalc":
+                from .. import __version__
+                versions[name] = __version__
+    versions["python"] = platform.python_version()
+    return versions
+
+
+def provenance():
+    """Versions of the software that computes a record (read once per process)."""
+    return dict(_versions())
+
+
+def canonical_json(data):
+    """Canonical JSON text: sorted keys, no spaces, UTF-8, NaN refused.
+
+    Examples
+    --------
+    >>> canonical_json({"b": 1, "a": [1.5, "x"]})
+    '{"a":[1.5,"x"],"b":1}'
+    """
+    return json.dumps(data, sort_keys=True, separators=(",", ":"), ensure_ascii=False, allow_nan=False)
+
+
+def _sha256(text):
+    return "sha256:" + hashlib.sha256(text.encode("utf-8")).hexdigest()
+
+
+def compute_digest(record):
+    """Digest over every key but ``digest`` itself."""
+    return _sha256(canonical_json({k: v for k, v in record.items() if k != "digest"}))
+
+
+def compute_content_digest(record):
+    """Digest over the engineering content: everything but time, provenance and digests."""
+    return _sha256(canonical_json({k: v for k, v in record.items() if k not in _NOT_CONTENT}))
+
+
+def build_record(*, kind, case_id, revision, title, prepared_by, site, inputs_table, result,
+                 notes=(), created=None, uncertainty=None):
+    """Assemble a record dictionary from a calculation's result.
+
+    Parameters
+    ----------
+    kind, case_id, revision, title, prepared_by : str
+        The case's identity.
+    site : steamcalc.cases.site.Site
+        Site the case ran against.
+    inputs_table : dict
+        The record's ``inputs`` table (:func:`steamcalc.calcs.base.to_record_inputs`).
+    result : steamcalc.calcs.base.Result
+        What ``calculate()`` returned.
+    notes : sequence of str
+        The engineer's own assumptions, appended to the calculation's.
+    created : str, optional
+        ISO 8601 UTC time; now when not given.
+    uncertainty : dict, optional
+        The uncertainty section (:func:`steamcalc.runs.uncertainty.run_uncertainty`).
+    """
+    record = {
+        "schema": SCHEMA,
+        "kind": kind, "id": case_id, "revision": revision, "title": title,
+        "prepared_by": prepared_by, "checked_by": None,
+        "created": created or datetime.now(timezone.utc).strftime("%Y-%m-%dT%H:%M:%SZ"),
+        "site": site.to_record(),
+        "inputs": inputs_table,
+        "assumptions": list(result.assumptions) + [f"Engineer's note: {n}" for n in notes],
+        "references": list(result.references),
+        "steps": [s.to_record() for s in result.steps],
+        "results": {k: v.to_record() for k, v in result.values.items()},
+        "checks": [c.to_record() for c in result.checks],
+        "figures": [f.to_record() for f in result.figures],
+        "status": result.status,
+        "warnings": list(result.warnings),
+        "cautions": list(result.cautions),
+        "provenance": provenance(),
+    }
+    if uncertainty is not None:
+        record["uncertainty"] = uncertainty
+    record["content_digest"] = compute_content_digest(record)
+    record["digest"] = compute_digest(record)
+    validate_record(record)
+    return record
+
+
+def record_stem(record):
+    """File name without suffix: ``<id>_rev<revision>``."""
+    return f"{record['id']}_rev{record['revision']}"
+
+
+def load_record(path):
+    """Read a record file and check it is a steamcalc record (not yet its digest).
+
+    The file is read within a size limit (:data:`steamcalc.cases.inputfiles.MAX_RECORD_FILE`), and
+    the parts that later steps rely on are type-checked, so an edited or crafted record is
+    refused by name instead of failing somewhere later.
+    """
+    from ..cases.inputfiles import MAX_RECORD_FILE, read_text_file
+
+    path = Path(path)
+    text = read_text_file(path, "record file", MAX_RECORD_FILE, RecordError)
+
+    def refuse(number):   # steamcalc never writes one; later arithmetic and the digest would fail on it
+        raise RecordError(f"not a record steamcalc issued: it holds the number {number[:20]}, which is not "
+                          "finite or lies beyond a double", source=path, fix="re-issue the record from its case file")
+
+    def finite_float(word):
+        number = float(word)
+        return number if math.isfinite(number) else refuse(word)
+
+    def bounded_int(word):
+        if len(word) > 309:   # more digits than any double (and than int() reads by default)
+            refuse(word)
+        number = int(word)
+        return number if abs(number) <= sys.float_info.max else refuse(word)
+
+    try:
+        data = json.loads(text, parse_constant=refuse, parse_float=finite_float, parse_int=bounded_int)
+    except (json.JSONDecodeError, RecursionError) as exc:
+        raise RecordError(f"not a JSON file: {exc}", source=path) from None
+    if not isinstance(data, dict) or data.get("schema") not in READABLE_SCHEMAS:
+        raise RecordError(f"not a steamcalc record (schema is not one of {', '.join(READABLE_SCHEMAS)})",
+                          source=path, field="schema")
+    for key in ("kind", "id", "revision", "inputs", "results", "checks", "site", "digest"):
+        if key not in data:
+            raise RecordError("the record has no '%s'" % key, field=key, source=path)
+    _check_record_shape(data, path)
+    validate_record(data, source=path)
+    return data
+
+
+def _check_record_shape(data, path):
+    from ..cases.site import is_file_name_part
+
+    for key in ("id", "revision"):
+        if not is_file_name_part(data[key]):
+            raise RecordError("not a record steamcalc issued: its %s is not a plain name "
+                              "(letters, digits, '.', '_', '-')" % key, field=key, value=data[key], source=path)
+    for key in ("kind", "digest"):
+        if not isinstance(data[key], str):
+            raise RecordError(f"'{key}' must be text", field=key, value=data[key], source=path)
+    for key in ("inputs", "results", "site"):
+        if not isinstance(data[key], dict):
+            raise RecordError(f"'{key}' must be a table", field=key, source=path)
+    if not isinstance(data["checks"], list) or not all(isinstance(c, dict) for c in data["checks"]):
+        raise RecordError("'checks' must be a list of tables", field="checks", source=path)
+    for section in ("inputs", "results"):
+        for key, entry in data[section].items():
+            if not isinstance(entry, dict):
+                raise RecordError("each entry must be a table with value and unit", field=f"{section}.{key}",
+                                  source=path)
+            unit = entry.get("unit", "")
+            if not isinstance(unit, str) or not _plain_unit(unit):
+                raise RecordError("the unit is not a plain unit name", field=f"{section}.{key}.unit",
+                                  value=unit, source=path)
+    section = data.get("uncertainty")
+    if section is not None:
+        from ..runs.uncertainty import MAX_SAMPLES
+        samples = section.get("samples") if isinstance(section, dict) else None
+        # The same cap as a case file's [uncertainty] samples, so an edited record cannot
+        # make verify run for hours.
+        if isinstance(samples, bool) or not isinstance(samples, int) or not 10 <= samples <= MAX_SAMPLES:
+            raise RecordError(f"samples must be a whole number from 10 to {MAX_SAMPLES}",
+                              field="uncertainty.samples", value=samples, limits=(10, MAX_SAMPLES, ""),
+                              source=path)
+
+
+def _plain_unit(unit):
+    from ..units.quantities import is_plain_unit
+    return is_plain_unit(unit)
+
+
+def record_text(record):
+    """A record as the JSON text of its file (indented, UTF-8, NaN refused)."""
+    return json.dumps(record, indent=2, ensure_ascii=False, allow_nan=False) + "\n"
+
+
+def write_record(record, out_dir, renderers=None, force=False):
+    """Issue a record's JSON and its reports as one set, never replacing different content.
+
+    The set is written under the record's lock and staged before it is moved into place
+    (:mod:`steamcalc.records.issuing`), so two writers never interleave and a kill at any instant
+    leaves the old set or the new one. Reports left without their JSON by an interrupted
+    older writer are replaced; a file of a report's name that steamcalc did not write is
+    refused unless ``force``.
+
+    Parameters
+    ----------
+    record : dict
+        A record from :func:`build_record`.
+    out_dir : str or Path
+        Folder to write into; created if absent.
+    renderers : dict, optional
+        Suffix → function(record) → text, e.g. ``{".html": render_html}``.
+    force : bool
+        Replace report files of these names even when steamcalc did not write them.
+
+    Returns
+    -------
+    tuple
+        ``(paths, status)``: the paths of the record's files, and ``"written"`` or
+        ``"unchanged"`` (an existing record of the same content was kept as it was; missing or
+        out-of-date reports of it are re-rendered).
+
+    Raises
+    ------
+    RecordConflictError
+        If a record of the same id and revision with different content exists.
+    RecordBusyError
+        If another writer holds the record's lock for too long.
+    """
+    from .issuing import ensure_folder, is_own_output, issue_set, record_lock, recover
+
+    out_dir = ensure_folder(out_dir)
+    stem = record_stem(record)
+    renderers = renderers or {}
+    json_path = out_dir / f"{stem}.json"
+    paths = [json_path] + [out_dir / f"{stem}{suffix}" for suffix in renderers]
+    with record_lock(out_dir, stem):
+        recover(out_dir, stem)
+        if json_path.exists():
+            try:
+                existing = load_record(json_path)
+            except RecordError:
+                raise RecordConflictError(
+                    "a file of this name exists and is not a readable record", source=json_path,
+                    fix="move it away, or raise the revision in the case file") from None
+            if existing.get("content_digest") != record["content_digest"]:
+                raise RecordConflictError(
+                    f"record {record['id']} revision {record['revision']} already exists with different content",
+                    source=json_path,
+                    fix="raise the revision in the case file ([case] revision) to issue a new record; "
+                        "the existing record is kept as it is")
+            stale = []
+            for suffix, render in renderers.items():
+                report = out_dir / f"{stem}{suffix}"
+                text = render(existing)
+                if report.exists() and _same_text(report, text):
+                    continue
+                _refuse_foreign(report, force, is_own_output)
+                stale.append((report.name, text))
+            if stale:
+                issue_set(out_dir, stem, stale)
+            return paths, "unchanged"
+        for report in paths[1:]:
+            _refuse_foreign(report, force, is_own_output)
+        # Render everything before writing anything; the JSON moves into place first.
+        files = [(json_path.name, record_text(record))]
+        files += [(f"{stem}{suffix}", render(record)) for suffix, render in renderers.items()]
+        issue_set(out_dir, stem, files)
+    return paths, "written"
+
+
+def _same_text(path, text):
+    try:
+        return path.read_text(encoding="utf-8") == text
+    except (OSError, UnicodeDecodeError):
+        return False
+
+
+def _refuse_foreign(path, force, is_own_output):
+    if path.exists() and not force and not is_own_output(path):
+        raise RecordConflictError(
+            "a file of this name exists and was not written by steamcalc", source=path,
+            fix="move it away (or give --force to replace it)")
+
+
+def strip_for_recompute(record):
+    """A deep copy of the record's parts that a recomputation needs."""
+    return copy.deepcopy({k: record[k] for k in ("kind", "site", "inputs")})

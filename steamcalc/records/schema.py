@@ -1,0 +1,150 @@
+"""The record's JSON Schema (``record.schema.json``), and checking a record against it.
+
+Every record is checked when it is built and when it is read, so that the reports, verify,
+diff and the register can rely on the record's layout: a record edited by hand into another
+shape is refused by name (the file, the field as a dotted path, the value) instead of failing
+somewhere later. The schema accepts both readable layouts, ``steamcalc.record/1`` and
+``steamcalc.record/2``.
+
+This module imports no other part of steamcalc but its errors, so that
+:mod:`steamcalc.records.record` can use it without an import cycle.
+"""
+
+from __future__ import annotations
+
+import json
+import reprlib
+from functools import lru_cache
+from importlib import resources
+
+import fastjsonschema
+
+from ..errors import RecordError
+
+SCHEMA_FILE = "record.schema.json"
+#: The fix for a record file that does not follow the schema.
+FIX = "re-issue the record from its case file"
+#: A record steamcalc is building always follows the schema; when it does not, the fault is steamcalc's.
+FIX_BUILT = "this is a fault in steamcalc, not in the case: please report it"
+#: Longest excerpt of an offending value an error shows.
+_EXCERPT_LENGTH = 60
+_TYPE_WORDS = {"object": "a table", "array": "a list", "string": "text", "number": "a number",
+               "integer": "a whole number", "boolean": "true or false", "null": "null"}
+
+
+@lru_cache(maxsize=1)
+def record_schema():
+    """The record schema, read once from the package (treat it as read-only).
+
+    Examples
+    --------
+    >>> record_schema()["$id"]
+    'https://steamcalc.invalid/record.schema.json'
+    """
+    # Checked against the draft's meta-schema by the tests, not here: that costs more than a record's validation.
+    text = resources.files(__package__).joinpath(SCHEMA_FILE).read_text(encoding="utf-8")
+    return json.loads(text)
+
+
+@lru_cache(maxsize=1)
+def _validator():
+    # Compiled once per process to Python code (fastjsonschema, as nbformat uses): a record validates in
+    # milliseconds, and nothing is imported at start-up that a run does not need.
+    return fastjsonschema.compile(record_schema())
+
+
+class _Excerpt(str):
+    """A shortened value, shown in an error as it stands (not quoted a second time)."""
+
+    def __repr__(self):
+        return str(self)
+
+
+def _excerpt(value):
+    shortener = reprlib.Repr()
+    shortener.maxstring = shortener.maxother = _EXCERPT_LENGTH
+    shortener.maxlist = shortener.maxtuple = 5
+    shortener.maxdict = 3
+    shortener.maxlevel = 2
+    return _Excerpt(shortener.repr(value))
+
+
+def _type_words(types):
+    words = [_TYPE_WORDS.get(t, t) for t in ([types] if isinstance(types, str) else types)]
+    return words[0] if len(words) == 1 else ", ".join(words[:-1]) + " or " + words[-1]
+
+
+def _found_type(value):
+    for python_type, word in ((bool, "true or false"), (dict, "a table"), ((list, tuple), "a list"), (str, "text"),
+                              (int, "a whole number"), (float, "a number"), (type(None), "null")):
+        if isinstance(value, python_type):
+            return word
+    return type(value).__name__
+
+
+def _explained(error):
+    """``(field path, what is wrong, the offending value)`` of a schema error, in plain words.
+
+    The field path is None when the record as a whole is wrong (not a table).
+    """
+    path = [str(part) for part in error.path[1:]]   # the first part names the record itself ("data")
+    rule, expected, instance = error.rule, error.rule_definition, error.value
+    if rule == "required":
+        missing = next(key for key in expected if key not in instance)
+        return ".".join(path + [missing]), "is missing (steamcalc always writes it)", None
+    if rule == "additionalProperties":
+        known = (error.definition or {}).get("properties", {})
+        extra = next(key for key in instance if key not in known)
+        return ".".join(path + [extra]), "is not a part of a steamcalc record", _excerpt(instance[extra])
+    field = ".".join(path) or None
+    if rule == "type":
+        return field, f"must be {_type_words(expected)}, not {_found_type(instance)}", _excerpt(instance)
+    if rule in ("enum", "const"):
+        choices = expected if isinstance(expected, list) else [expected]
+        return field, "must be one of " + ", ".join(str(choice) for choice in choices), _excerpt(instance)
+    if rule in ("minItems", "maxItems"):
+        return field, f"has {len(instance)} items where {'at least' if rule == 'minItems' else 'at most'} " \
+                      f"{expected} belong", None
+    if rule == "minLength":
+        return field, "must not be empty", _excerpt(instance)
+    if rule == "pattern":
+        return field, "is not in the form steamcalc writes", _excerpt(instance)
+    return field, f"breaks the schema's rule {rule!r}", _excerpt(instance)
+
+
+def validate_record(record, source=None):
+    """Check a record against the record schema.
+
+    Parameters
+    ----------
+    record : dict
+        A record as built (:func:`steamcalc.records.record.build_record`) or as read from its file.
+    source : str or Path, optional
+        The record's file, named in the error.
+
+    Raises
+    ------
+    RecordError
+        If the record does not follow the schema: the error names the field as a dotted path
+        (``figures.0.series.2.x.5``), the offending value shortened, and the fix: re-issuing the
+        file, or, for a record being built (no ``source``), reporting the fault in steamcalc.
+
+    Examples
+    --------
+    >>> try:
+    ...     validate_record(["not", "a", "table"], source="LD-01_revA.json")
+    ... except RecordError as exc:
+    ...     print(exc.message)
+    does not follow the steamcalc record schema: it must be a table, not a list
+    """
+    try:
+        _validator()(record)
+    except fastjsonschema.JsonSchemaValueException as error:
+        field, what, value = _explained(error)
+    else:
+        return
+    raise RecordError(f"does not follow the steamcalc record schema: it {what}", field=field, value=value,
+                      source=source, fix=FIX if source is not None else FIX_BUILT)
+
+
+__all__ = ["FIX", "FIX_BUILT", "SCHEMA_FILE", "record_schema", "validate_record"]

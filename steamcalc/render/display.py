@@ -1,0 +1,498 @@
+"""How values are shown to people: units as the trade writes them, numbers to sensible figures.
+
+Records keep SI engineering units (design §3.4) and their code keys; everything a user reads —
+reports, the workbook, the review, ``verify`` and ``diff`` — goes through the rules here, in one
+place:
+
+* units as people write them (``m³/h``, ``%``, ``°C``, ``kW/(m²·K)``, ``bar(a)``), never the
+  unit library's spelling (``m**3/h``, ``percent``, ``degC``);
+* numbers to figures chosen per quantity (a temperature to 0.1 K, a flow to four figures, money
+  in whole units with thousands separators), fractions the trade states in % in %, yes/no for
+  flags;
+* the site's display system: ``"SI"`` shows the record's units; ``"US"`` converts for display only
+  (°F, psia, lb/h, Btu/lb, Kv → Cv, DN → NPS), in tables, uncertainty bands, check details and
+  the numbers substituted into the steps. The JSON record is never converted.
+"""
+
+from __future__ import annotations
+
+import copy
+import math
+import re
+
+from ..units.formatting import (CV_PER_KV, DEFAULT_FIGURES, SYSTEMS, US_UNITS,  # noqa: F401  (the rules, shown here)
+                                 _group, format_number, format_quantity, unit_label)
+from ..units.quantities import Q_
+
+def _calculation(record):
+    from ..calcs import get_calculation
+
+    try:
+        return get_calculation(record.get("kind"))
+    except Exception:   # an unknown kind is reported elsewhere; here it only labels units
+        return None
+
+
+def shown_in_percent(calc, key, label=""):
+    """True for a plain fraction the trade states in % (a calculation's ``PERCENT_VALUES``).
+
+    A key matches an entry exactly or by ending in ``_<entry>`` (``stage_2_flash_fraction``); a
+    step (no key) matches by its label naming the entry ("Stall load, clean U").
+    """
+    names = getattr(calc, "PERCENT_VALUES", ())
+    if key:
+        return any(key == name or key.endswith("_" + name) for name in names)
+    text = str(label).lower()
+    return any(words(name).lower().removesuffix(" fraction") in text for name in names)
+
+
+def pressure_basis(record, section, key):
+    """``"difference"`` for a record entry that holds a pressure difference, else ``"absolute"``.
+
+    Inputs are looked up by their field kind; results by the calculation's
+    ``PRESSURE_DIFFERENCE_RESULTS``; tolerances are always differences.
+    """
+    if section == "tolerances":
+        return "difference"
+    calc = _calculation(record)
+    if calc is None:
+        return "absolute"
+    if section == "inputs":
+        from ..calcs.base import input_fields
+
+        kinds = {f.name: f.metadata["kind"] for f in input_fields(calc.Inputs)}
+        return "difference" if kinds.get(key) == "pressure_difference" else "absolute"
+    if section == "results" and key in getattr(calc, "PRESSURE_DIFFERENCE_RESULTS", ()):
+        return "difference"
+    return "absolute"
+
+
+def _step_basis(step):
+    # A step whose equation finds a pressure drop (Δp = ...) gives a difference, not a pressure.
+    return "difference" if str(step.get("equation", "")).lstrip().startswith("Δp") else "absolute"
+
+
+# --- US customary display ---------------------------------------------------------------------
+
+#: DN designation → NPS (ASME B36.10M sizes; the metric and inch series share outside diameters).
+_NPS_TEXT = {15: "½", 20: "¾", 25: "1", 32: "1¼", 40: "1½", 50: "2", 65: "2½", 80: "3", 90: "3½", 100: "4",
+             125: "5", 150: "6", 200: "8", 250: "10", 300: "12", 350: "14", 400: "16", 450: "18", 500: "20",
+             600: "24"}
+_DN = re.compile(r"\bDN\s?(\d+)\b")
+
+
+def nps_text(text):
+    """Every ``DN80`` in a text as ``NPS 3`` (US display).
+
+    Examples
+    --------
+    >>> nps_text("Inlet line velocity (DN80); DN15 and DN999")
+    'Inlet line velocity (NPS 3); NPS ½ and DN999'
+    """
+    if not isinstance(text, str):
+        return text
+    return _DN.sub(lambda m: f"NPS {_NPS_TEXT[int(m.group(1))]}" if int(m.group(1)) in _NPS_TEXT else m.group(0),
+                   text)
+
+
+def _is_kv(key, label=""):
+    return bool(re.search(r"(?:^|_)kv(?:_|$)", key or "")) or "Kv" in (label or "")
+
+
+def convert(value, unit, system, key=None, label=""):
+    """A value and unit in the display system: (value, unit). Non-numbers pass through.
+
+    In ``"US"`` a flow coefficient (a key or label naming Kv) becomes a Cv, without unit.
+
+    Examples
+    --------
+    >>> value, unit = convert(100.0, "degC", "US")
+    >>> round(value, 6), unit
+    (212.0, 'degF')
+    >>> round(convert(10.0, "K", "US")[0], 6)
+    18.0
+    >>> value, unit = convert(10.0, "m**3/h", "US", key="valve_kv")
+    >>> round(value, 3), unit
+    (11.561, '')
+    """
+    if system == "SI" or isinstance(value, bool) or not isinstance(value, (int, float)):
+        return value, unit
+    if unit == "m**3/h" and _is_kv(key, label):
+        return value * CV_PER_KV, ""
+    if unit not in US_UNITS:
+        return value, unit
+    target = US_UNITS[unit]
+    return float(Q_(value, unit).to(target).magnitude), target
+
+
+def us_label(label):
+    """A label for US display: Kv named Cv, DN sizes as NPS, quantities in it in US units.
+
+    Examples
+    --------
+    >>> us_label("Inlet line: smallest size under 45 m/s"), us_label("Rated Kv (Kvs)")
+    ('Inlet line: smallest size under 148 ft/s', 'Rated Cv (Cvs)')
+    """
+    if not isinstance(label, str):
+        return label
+    return re.sub(r"\bKv(s?)\b", r"Cv\1", us_text(label))
+
+
+#: Units written in texts (steps, checks) and their pint names, longest first so that ``m`` never
+#: takes the start of ``m/s``. A pressure keeps its basis: gauge stays gauge.
+_TEXT_UNITS = [
+    ("kJ/(kg·K)", "kJ/(kg*K)"), ("kW/(m²·K)", "kW/(m**2*K)"), ("m²·K/kW", "m**2*K/kW"), ("kg/(m² s)", "kg/(m**2*s)"),
+    ("kg/(m²·s)", "kg/(m**2*s)"), ("bar difference", "bar~d"), ("kPa difference", "kPa~d"), ("bar(a)", "bar~a"),
+    ("bar(g)", "bar~g"), ("kPa(a)", "kPa~a"), ("kPa(g)", "kPa~g"), ("kg/m³", "kg/m**3"), ("m³/s", "m**3/s"),
+    ("m³/h", "m**3/h"), ("kJ/kg", "kJ/kg"), ("kg/h", "kg/h"), ("kg/s", "kg/s"), ("kW/K", "kW/K"), ("m/s", "m/s"),
+    ("mm²", "mm**2"), ("m²", "m**2"), ("m³", "m**3"), ("°C", "degC"), ("kW", "kW"), ("mm", "mm"), ("m", "m"),
+    ("K", "K"), ("N", "N"),
+]
+_NUM = r"-?(?:\d{1,3}(?:,\d{3})+|\d+)(?:\.\d+)?"
+_TEXT_QUANTITY = re.compile(
+    rf"(?<![\w.,^/+])(?P<chain>{_NUM}(?:(?:\s*[−→]\s*|\s+(?:and|to)\s+){_NUM})*)(?P<close>\)?)\s?(?P<unit>"
+    + "|".join(re.escape(written) for written, _ in _TEXT_UNITS) + r")(?![\w²³(])")
+_TEXT_PINT = dict(_TEXT_UNITS)
+#: Equations with a constant for SI units (IEC 60534-2-1's N6, API 520's steam equation and reaction
+#: force): their substitutions stay in SI, where the constant holds.
+_SI_CONSTANT = re.compile(r"N6|\[[^\]]*(?:kg/h|kPa|mm²)[^\]]*\]|129\.41")
+_US_PRESSURE = {"a": "psia", "g": "psig", "d": "psi difference"}
+
+
+def _figures_of(number_text):
+    digits = number_text.replace(",", "").replace("-", "").replace(".", "").lstrip("0")
+    return max(len(digits), 2)
+
+
+def _us_number(number_text, unit):
+    """One number of a text converted to US units, to as many figures as it was written with."""
+    value = float(number_text.replace(",", ""))
+    if unit == "K" and value >= 200:
+        shown, target = value * 1.8, "degR"   # an absolute temperature: kelvin to rankine
+    else:
+        shown, target = Q_(value, unit).to(US_UNITS[unit]).magnitude, US_UNITS[unit]
+    if shown == 0:
+        return number_text, target
+    digits = _figures_of(number_text) - 1 - math.floor(math.log10(abs(shown)))
+    text = f"{shown:.{max(digits, 0)}f}"
+    return (_group(text) if "," in number_text or abs(shown) >= 1e4 else text), target
+
+
+def us_text(text):
+    """A step's substitution or a check's detail with its quantities in US customary units.
+
+    Each number written with its unit is converted, to the figures it was written with; a chain
+    such as ``(1546.3 − 349.2) kPa(a)`` or ``55.00→85.00 °C`` is converted number by number. A
+    number written without a unit is left as it is; DN sizes read as NPS.
+
+    Examples
+    --------
+    >>> us_text("h1 = h(16.99 bar(a), 230.00 °C)")
+    'h1 = h(246.4 psia, 446.00 °F)'
+    >>> us_text("x = (1546.3 − 349.2) kPa(a) / 1546.3 kPa(a)")
+    'x = (224.27 − 50.65) psia / 224.27 psia'
+    >>> us_text("T3 = 138.78 °C + 10.00 K in DN80")
+    'T3 = 281.80 °F + 18.00 °F in NPS 3'
+    """
+    if not isinstance(text, str):
+        return text
+
+    def flow_coefficients(clause):
+        # In a clause naming a Kv, each number in m³/h is a Kv: it becomes a Cv (no unit) and Kv is named Cv.
+        if "Kv" not in clause or "m³/h" not in clause:
+            return clause
+
+        def to_cv(match):
+            parts = re.split(r"(\s+and\s+|\s*[−→]\s*)", match.group(1))
+            for i in range(0, len(parts), 2):
+                value = float(parts[i].replace(",", "")) * CV_PER_KV
+                digits = _figures_of(parts[i]) - 1 - math.floor(math.log10(abs(value))) if value else 0
+                parts[i] = f"{value:.{max(digits, 0)}f}"
+            return "".join(parts)
+
+        clause = re.sub(rf"((?<![\w.,]){_NUM}(?:(?:\s+and\s+|\s*[−→]\s*){_NUM})*)\s?m³/h", to_cv, clause)
+        return re.sub(r"\bKv(s?)\b", r"Cv\1", clause)
+
+    text = "".join(flow_coefficients(part) for part in re.split(r"(;\s*|,\s+)", text))
+
+    def replace(match):
+        unit = _TEXT_PINT[match.group("unit")]
+        pint_unit, _, basis = unit.partition("~")
+        parts = re.split(r"(\s*[−→]\s*|\s+(?:and|to)\s+)", match.group("chain"))
+        target = None
+        for i in range(0, len(parts), 2):
+            parts[i], target = _us_number(parts[i], pint_unit)
+        written = _US_PRESSURE[basis] if basis else unit_label(target)
+        if target == "degR":
+            written = "°R"
+        return f"{''.join(parts)}{match.group('close')} {written}"
+
+    return nps_text(_TEXT_QUANTITY.sub(replace, text))
+
+
+# --- the record as shown -----------------------------------------------------------------------
+
+def _difference_inputs(calc):
+    if calc is None:
+        return set()
+    from ..calcs.base import input_fields
+
+    return {f.name for f in input_fields(calc.Inputs) if f.metadata["kind"] == "pressure_difference"}
+
+
+def _input_labels(calc):
+    if calc is None:
+        return {}
+    from ..calcs.base import input_fields
+
+    return {f.name: f.metadata["label"] for f in input_fields(calc.Inputs)}
+
+
+def words(key):
+    """A code key in words for a sentence when no label is known: ``outlet_temperature`` → "outlet temperature".
+
+    Examples
+    --------
+    >>> words("valve_kv"), words("annual_co2_avoided")
+    ('valve Kv', 'annual CO₂ avoided')
+    """
+    trade = {"kv": "Kv", "cv": "Cv", "lmtd": "LMTD", "ua": "UA", "co2": "CO₂", "dn": "DN", "u": "U"}
+    return " ".join(trade.get(word, word) for word in str(key).split("_"))
+
+
+def _in_sentence(label):
+    # Lower-case the first letter for use inside a sentence, unless it starts an acronym (xT, LMTD).
+    label = str(label)
+    return label if len(label) > 1 and label[1].isupper() else label[:1].lower() + label[1:]
+
+
+_E_NOTATION = re.compile(r"(?<![\w.])(\d+(?:\.\d+)?)[eE]([+-]?)(\d+)(?![\w.])")
+_SUPERSCRIPT = str.maketrans("-0123456789", "⁻⁰¹²³⁴⁵⁶⁷⁸⁹")
+
+
+def _powers_of_ten(match):
+    mantissa, sign, exponent = match.group(1), match.group(2), int(match.group(3))
+    if float(mantissa) == 0:
+        return "0"
+    power = f"10{(('-' if sign == '-' else '') + str(exponent)).translate(_SUPERSCRIPT)}"
+    return power if float(mantissa) == 1 else f"{mantissa} × {power}"
+
+
+def trade_text(text):
+    """Formulae and numbers as the trade writes them, in any text shown: CO₂, and a number in
+    e-notation as a power of ten (``1.3e-15`` → 1.3 × 10⁻¹⁵, ``1e-03`` → 10⁻³, ``0.0e+00`` → 0).
+
+    The record keeps its own text; this is display only.
+
+    Examples
+    --------
+    >>> trade_text("CO2: residual 1.3e-15 (tolerance 1e-03), 0.0e+00, Re = 1.47e+06")
+    'CO₂: residual 1.3 × 10⁻¹⁵ (tolerance 10⁻³), 0, Re = 1.47 × 10⁶'
+    """
+    if not isinstance(text, str):
+        return text
+    return _E_NOTATION.sub(_powers_of_ten, re.sub(r"\bCO2\b", "CO₂", text))
+
+
+def _show_entry(entry, key, calc, system, basis, label, equation="", trim=False):
+    """Add ``shown`` (number text), ``shown_unit`` and ``label`` to an input or result entry."""
+    value, unit = entry.get("value"), entry.get("unit", "")
+    if isinstance(value, list):
+        converted = [convert(v, unit, system, key, label) for v in value]
+        values = [v for v, _ in converted]
+        unit = converted[0][1] if converted else unit
+        entry["shown"] = ", ".join(format_number(v, unit, trim) for v in values)
+    else:
+        if unit == "" and isinstance(value, (int, float)) and not isinstance(value, bool) and \
+                shown_in_percent(calc, key, label):
+            value, unit = value * 100.0, "percent"
+        value, unit = convert(value, unit, system, key, label)
+        entry["shown"] = format_number(value, unit, trim)
+        entry["shown"] = nps_text(entry["shown"]) if system == "US" else entry["shown"]
+        if isinstance(value, (int, float)) and not isinstance(value, bool):
+            entry["value"] = value
+    entry["unit"] = unit
+    entry["shown_unit"] = unit_label(unit, basis)
+    if unit == "dB" and "A-weighted" in f"{label} {equation}":
+        entry["shown_unit"] = "dB(A)"
+    shown_label = trade_text(label)
+    entry["label"] = us_label(shown_label) if system == "US" else shown_label
+    return entry
+
+
+_DIFFERENCE_UNITS = {"degC": "K", "degF": "delta_degF"}
+
+
+def _show_uncertainty(section, record, calc, system, labels):
+    results = record.get("results", {})
+    for key, band in section.get("bands", {}).items():
+        unit = band.get("unit", "")
+        scale = 100.0 if unit == "" and shown_in_percent(calc, key) else 1.0
+        shown_unit = "percent" if scale != 1.0 else unit
+        label = (results.get(key) or {}).get("label") or words(key)
+        cells = {}
+        for stat in ("nominal", "low", "p50", "high"):
+            raw = band.get(stat, band.get({"low": "p05", "high": "p95"}.get(stat, stat)))
+            value, display_unit = convert(raw * scale if isinstance(raw, (int, float)) else raw, shown_unit, system,
+                                          key, label)
+            cells[stat] = format_number(value, display_unit)
+        band["shown"] = cells
+        band["shown_unit"] = unit_label(display_unit, pressure_basis(record, "results", key))
+        band["label"] = us_label(trade_text(label)) if system == "US" else trade_text(label)
+        rows = [row for row in section.get("sensitivity", {}).get(key, []) if row.get("swing")][:2]
+        band["sensitive_to"] = [_in_sentence(labels.get(row.get("input"), words(row.get("input")))) for row in rows]
+        # A swing is a difference: of a temperature it is in K (°F of difference in US).
+        swing_unit = _DIFFERENCE_UNITS.get(shown_unit, shown_unit)
+        swings = [convert(row["swing"] * scale, swing_unit, system, key, label) for row in rows]
+        band["sensitivity_shown"] = [
+            f"{name} (swing {format_number(value, unit)} {unit_label(unit, 'difference')})".replace(" )", ")")
+            for name, (value, unit) in zip(band["sensitive_to"], swings)]
+    for key, tolerance in section.get("tolerances", {}).items():
+        value, unit = convert(tolerance.get("value"), _DIFFERENCE_UNITS.get(tolerance.get("unit", ""),
+                                                                         tolerance.get("unit", "")), system, key)
+        tolerance["label"] = labels.get(key, words(key))
+        tolerance["shown"] = format_number(value, unit)
+        tolerance["shown_unit"] = unit_label(unit, "difference")
+    coverage = section.get("coverage", 0.9)
+    lines = []
+    for key, band in section.get("bands", {}).items():
+        cells, unit = band["shown"], band["shown_unit"]
+        line = (f"{band['label']}: {cells['nominal']} {unit}, {coverage * 100:g} % coverage "
+                f"interval {cells['low']} to {cells['high']} {unit}").replace("  ", " ").replace(" ,", ",")
+        if band["sensitive_to"]:
+            line += f"; most sensitive to {band['sensitive_to'][0]}"
+        lines.append(line)
+    failed = section.get("failed_samples")
+    if isinstance(failed, dict) and failed:
+        samples, valid = section.get("samples", 0), section.get("valid_samples", 0)
+        lines.append(f"{samples - valid} of {samples} samples gave no result: "
+                     + "; ".join(f"{n} × {reason}" for reason, n in failed.items()))
+    section["shown_summary"] = lines
+    section["coverage_shown"] = f"{coverage * 100:g}"
+
+
+def display_record(record):
+    """A copy of a record with every value ready to show: label, number text, unit text.
+
+    Each input and result gains ``label`` (the trade's words), ``shown`` (the number to the
+    figures its quantity calls for; fractions the trade states in % in %; yes/no) and
+    ``shown_unit`` (the unit as people write it, pressures with their basis). Steps gain
+    ``shown``/``shown_unit``; the uncertainty section gains shown bands, labelled tolerances and
+    its summary in words. In the US system values, steps' substituted numbers and checks' details
+    are converted; the JSON record is never changed.
+    """
+    system = record.get("site", {}).get("display_units", "SI")
+    system = system if system in SYSTEMS else "SI"
+    calc = _calculation(record)
+    labels = _input_labels(calc)
+    shown = copy.deepcopy(record)
+    differences = {"inputs": _difference_inputs(calc),
+                   "results": set(getattr(calc, "PRESSURE_DIFFERENCE_RESULTS", ()))}
+    for section in ("inputs", "results"):
+        for key, entry in shown.get(section, {}).items():
+            if not isinstance(entry, dict):
+                continue
+            label = entry.get("label") or labels.get(key) or words(key)
+            basis = "difference" if key in differences[section] else "absolute"
+            _show_entry(entry, key, calc, system, basis, label, trim=section == "inputs")
+    for step in shown.get("steps", []):
+        if not isinstance(step, dict):
+            continue
+        value = step.get("value") if isinstance(step.get("value"), dict) else {"value": step.get("value"), "unit": ""}
+        label = step.get("label", "")
+        # A step whose equation holds a constant for SI units is shown wholly in SI, where it holds.
+        si_only = system == "US" and bool(_SI_CONSTANT.search(str(step.get("equation", ""))))
+        step_system = "SI" if si_only else system
+        _show_entry(value, "", calc, step_system, _step_basis(step), label, step.get("equation", ""))
+        step["value"] = value
+        step["label"] = value["label"]
+        if si_only:
+            step["substituted"] = f"{step.get('substituted', '')} (in SI: the equation's constant is for SI units)"
+        elif system == "US":
+            step["substituted"] = us_text(step.get("substituted", ""))
+        step["substituted"] = trade_text(step.get("substituted", ""))
+    for check in shown.get("checks", []):
+        if not isinstance(check, dict):
+            continue
+        check["name"] = trade_text(us_label(check.get("name")) if system == "US" else check.get("name"))
+        check["detail"] = trade_text(us_text(check.get("detail")) if system == "US" else check.get("detail"))
+    shown["assumptions"] = [trade_text(nps_text(a) if system == "US" else a) for a in shown.get("assumptions", [])]
+    if isinstance(shown.get("uncertainty"), dict):
+        _show_uncertainty(shown["uncertainty"], record, calc, system, labels)
+    atmosphere = record.get("site", {}).get("atmospheric_pressure", {})
+    shown["atmosphere_shown"] = format_quantity(*convert(atmosphere.get("value"), atmosphere.get("unit", "bar"),
+                                                         system))
+    if system == "US":
+        shown["display_note"] = ("Values shown in US customary units (Kv as Cv, DN sizes as NPS); the JSON record "
+                                 "holds SI units. In the steps, each number written with its unit is converted; "
+                                 "a number written without one (a constant of an equation in SI units) is as "
+                                 "computed, in SI.")
+    return shown
+
+
+# --- the verify table ---------------------------------------------------------------------------
+
+_BAND_STATISTICS = {"p05": "5th percentile", "p50": "median", "p95": "95th percentile", "low": "low end",
+                    "high": "high end", "nominal": "nominal"}
+
+
+def result_label(record, key):
+    """The words for a result key of a record (its label), also for ``uncertainty.<key>.<statistic>``."""
+    results = (record or {}).get("results", {})
+    if key.startswith("uncertainty."):
+        _, _, rest = key.partition(".")
+        name, _, statistic = rest.rpartition(".")
+        base = (results.get(name) or {}).get("label") or words(name)
+        return trade_text(f"{base}, band {_BAND_STATISTICS.get(statistic, statistic)}")
+    return trade_text((results.get(key) or {}).get("label") or words(key))
+
+
+def _verify_cell(value):
+    if isinstance(value, bool):
+        return "yes" if value else "no"
+    if isinstance(value, float):
+        return f"{value:.8g}"
+    return "-" if value is None else str(value)
+
+
+#: Widest result label in the verify table; a longer one is cut (the key column names the result in full).
+_VERIFY_LABEL_WIDTH = 48
+
+
+def verify_table(comparisons, record=None, relative_tolerance=1e-6, absolute_tolerance=1e-9):
+    """The per-result table of a verification, as text: the result in words, the recorded and
+    recomputed values (as the JSON holds them, to 8 figures), the unit as people write it, the
+    differences, the verdict and, last, the record's key.
+
+    Examples
+    --------
+    >>> from types import SimpleNamespace as C
+    >>> row = C(key="outlet_temperature", recorded=148.778, recomputed=148.778, unit="degC", abs_diff=0.0,
+    ...         rel_diff=0.0, verdict="same")
+    >>> print(verify_table([row], {"kind": "letdown", "results": {"outlet_temperature": {"label": "Outlet temperature"}}}))
+    ... # doctest: +NORMALIZE_WHITESPACE
+      result              recorded recomputed unit abs. diff rel. diff tolerance verdict key
+      Outlet temperature   148.778    148.778 °C     0.0e+00   0.0e+00     1e-06 same    outlet_temperature
+      (tolerance: relative 1e-06, or 1e-09 absolute near zero)
+    """
+    rows = []
+    for c in comparisons:
+        name = c.key.split(".")[1] if c.key.startswith("uncertainty.") else c.key
+        basis = pressure_basis(record, "results", name) if record else "absolute"
+        label = result_label(record, c.key)
+        label = label if len(label) <= _VERIFY_LABEL_WIDTH else label[:_VERIFY_LABEL_WIDTH - 1] + "…"
+        rows.append((label, _verify_cell(c.recorded), _verify_cell(c.recomputed),
+                     unit_label(c.unit or "", basis), "" if c.abs_diff is None else f"{c.abs_diff:.1e}",
+                     "" if c.rel_diff is None else f"{c.rel_diff:.1e}",
+                     f"{relative_tolerance:.0e}" if c.abs_diff is not None else "exact", c.verdict, c.key))
+    head = ("result", "recorded", "recomputed", "unit", "abs. diff", "rel. diff", "tolerance", "verdict", "key")
+    widths = [max([len(head[i])] + [len(r[i]) for r in rows]) for i in range(len(head))]
+    right = {1, 2, 4, 5, 6}
+
+    def line(cells):
+        return "  " + "  ".join(cell.rjust(w) if i in right else cell.ljust(w)
+                                for i, (cell, w) in enumerate(zip(cells, widths))).rstrip()
+
+    lines = [line(head)] + [line(r) for r in rows]
+    lines.append(f"  (tolerance: relative {relative_tolerance:.0e}, or {absolute_tolerance:.0e} absolute near zero)")
+    return "\n".join(lines)

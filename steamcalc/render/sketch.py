@@ -1,0 +1,348 @@
+"""A small process sketch of each unit, as SVG, with the computed state at each point.
+
+Let-down: header → control valve → desuperheater → header. Flash: condensate → vessel (or
+vessels) → flash steam / residual condensate. Steam heater: steam → control valve → shell →
+trap. Every number written on the sketch is read from the record (its results, or its inputs
+where the state is an input, such as the header pressure), in the record's display units and
+formatted as the report formats it, so the sketch and the results table cannot disagree.
+Pressures are absolute as the record holds them, with the gauge value beside them.
+"""
+
+from __future__ import annotations
+
+import html
+from dataclasses import dataclass, field
+
+from .display import convert, display_record, format_number, pressure_basis
+from ..units.formatting import unit_label as format_unit
+
+INK = "#1d2327"
+STEAM = "#2b6a99"
+WATER = "#2f6b3a"
+WIDTH = 760
+
+
+@dataclass(frozen=True)
+class Reading:
+    """One number on the sketch: where it comes from in the record and how it reads."""
+
+    section: str          # "results" or "inputs"
+    key: str
+    text: str             # e.g. "16.992 bar(a) · 16 bar(g)", "230 °C", "4500 kg/h"
+
+
+@dataclass(frozen=True)
+class Point:
+    """A numbered state point: its name and readings (pressure, temperature, flow as known)."""
+
+    number: str
+    name: str
+    readings: tuple = field(default_factory=tuple)
+
+
+def _entry(record, section, key):
+    entry = record.get(section, {}).get(key)
+    if not isinstance(entry, dict) or not isinstance(entry.get("value"), (int, float)) \
+            or isinstance(entry.get("value"), bool):
+        return None
+    return entry
+
+
+def _number(entry):
+    """The number as the report shows it (display_record's figures), else formatted for its unit."""
+    return entry.get("shown") or format_number(entry["value"], entry.get("unit", ""))
+
+
+def _unit(shown, section, key, entry):
+    return entry.get("shown_unit") or format_unit(entry.get("unit", ""), pressure_basis(shown, section, key))
+
+
+def _reading(shown, section, key):
+    """A non-pressure reading, or None when the record does not hold it."""
+    entry = _entry(shown, section, key)
+    if entry is None:
+        return None
+    return Reading(section, key, f"{_number(entry)} {_unit(shown, section, key, entry)}".strip())
+
+
+def _pressure(shown, raw, section, key):
+    """An absolute pressure with its gauge value beside it: '16.992 bar(a) · 16 bar(g)'."""
+    entry = _entry(shown, section, key)
+    raw_entry = _entry(raw, section, key)
+    if entry is None or raw_entry is None:
+        return None
+    absolute = f"{_number(entry)} {_unit(shown, section, key, entry)}"
+    atmosphere = raw.get("site", {}).get("atmospheric_pressure", {}).get("value")
+    if raw_entry.get("unit") != "bar" or not isinstance(atmosphere, (int, float)):
+        return Reading(section, key, absolute)
+    system = raw.get("site", {}).get("display_units", "SI")
+    gauge, unit = convert(raw_entry["value"] - atmosphere, "bar", system)
+    gauge_unit = "psig" if unit == "psi" else f"{unit}(g)"
+    return Reading(section, key, f"{absolute} · {format_number(round(gauge, 6), unit, trim=True)} {gauge_unit}")
+
+
+def _suffixed(reading, note):
+    return None if reading is None else Reading(reading.section, reading.key, f"{reading.text} ({note})")
+
+
+def _point(number, name, *readings):
+    return Point(number, name, tuple(r for r in readings if r is not None))
+
+
+def _header_name(raw, key, fallback):
+    given = raw.get("inputs", {}).get(key, {}).get("given", "")
+    if isinstance(given, str) and given.startswith("header:"):
+        return f"{given.split(':', 1)[1].split('=')[0].strip()} header"
+    return fallback
+
+
+def letdown_points(shown, raw):
+    """State points of a let-down: inlet, after the valve, (spray water,) outlet."""
+    desuperheated = _entry(shown, "results", "spray_water_flow") is not None
+    points = [
+        _point("1", f"from {_header_name(raw, 'inlet_pressure', 'the inlet')}",
+               _pressure(shown, raw, "inputs", "inlet_pressure"), _reading(shown, "results", "inlet_temperature"),
+               _reading(shown, "results", "inlet_mass_flow")),
+        _point("2", "after the valve", _pressure(shown, raw, "inputs", "outlet_pressure"),
+               _reading(shown, "results", "throttled_temperature"),
+               _reading(shown, "results", "inlet_mass_flow")),
+    ]
+    if desuperheated:
+        points.append(_point("W", "spray water", _pressure(shown, raw, "inputs", "water_pressure"),
+                             _reading(shown, "inputs", "water_temperature"),
+                             _reading(shown, "results", "spray_water_flow")))
+        points.append(_point("3", f"to {_header_name(raw, 'outlet_pressure', 'the outlet')}",
+                             _pressure(shown, raw, "inputs", "outlet_pressure"),
+                             _reading(shown, "results", "outlet_temperature"),
+                             _reading(shown, "results", "outlet_mass_flow")))
+    return points
+
+
+def flash_points(shown, raw):
+    """State points of a flash: condensate in, flash steam out, residual condensate out."""
+    vented = raw.get("inputs", {}).get("vented", {}).get("value") is True
+    stages = sorted(int(k.split("_")[1]) for k in shown.get("results", {})
+                    if k.startswith("stage_") and k.endswith("_pressure") and k.split("_")[1].isdigit())
+    inlet = _point("1", "condensate in", _pressure(shown, raw, "inputs", "condensate_pressure"),
+                   _reading(shown, "results", "condensate_temperature"),
+                   _reading(shown, "results", "condensate_flow"))
+    if stages:
+        # A cascade: each stage's steam at its own pressure; the residual leaves the last stage.
+        steam = []
+        for i in stages:
+            steam += [_suffixed(_pressure(shown, raw, "results", f"stage_{i}_pressure"), f"stage {i}"),
+                      _suffixed(_reading(shown, "results", f"stage_{i}_flash_steam_flow"), f"stage {i}")]
+        last = _pressure(shown, raw, "results", f"stage_{stages[-1]}_pressure")
+        return [inlet, _point("2", f"flash steam, {len(stages)} stages", *steam),
+                _point("3", "residual condensate", last,
+                       _reading(shown, "results", "residual_condensate_temperature"),
+                       _reading(shown, "results", "residual_condensate_flow"))]
+    steam_pressure = _pressure(shown, raw, "inputs", "flash_pressure")
+    steam_name = "flash steam to vent (lost)" if vented else \
+        f"flash steam to {_header_name(raw, 'flash_pressure', 'the flash-steam users')}"
+    return [
+        inlet,
+        _point("2", steam_name, steam_pressure, _reading(shown, "results", "residual_condensate_temperature"),
+               _reading(shown, "results", "flash_steam_flow")),
+        _point("3", "residual condensate", steam_pressure,
+               _reading(shown, "results", "residual_condensate_temperature"),
+               _reading(shown, "results", "residual_condensate_flow")),
+    ]
+
+
+def exchanger_points(shown, raw):
+    """State points of a steam heater: steam supply, shell at design load, after the trap, process."""
+    steam_temperature = _reading(shown, "inputs", "steam_temperature") or \
+        _reading(shown, "results", "steam_saturation_temperature")
+    shell = _pressure(shown, raw, "results", "required_steam_pressure_100")
+    return [
+        _point("1", "steam supply", _pressure(shown, raw, "inputs", "steam_pressure"), steam_temperature,
+               _reading(shown, "results", "steam_flow")),
+        _point("2", "shell, design load" + (" (pressure needed)" if shell else ""), shell,
+               _reading(shown, "results", "duty")),
+        _point("3", "after the trap", _pressure(shown, raw, "inputs", "condensate_back_pressure"),
+               _reading(shown, "results", "condensate_flow")),
+        _point("P", "process in → out", _reading(shown, "inputs", "process_inlet_temperature"),
+               _reading(shown, "inputs", "process_outlet_temperature"),
+               _reading(shown, "results", "process_flow")),
+    ]
+
+
+POINTS = {"letdown": letdown_points, "flash": flash_points, "exchanger": exchanger_points}
+
+
+def sketch_points(record):
+    """The numbered state points the sketch of a record shows, with their readings."""
+    maker = POINTS.get(record.get("kind"))
+    return [] if maker is None else maker(display_record(record), record)
+
+
+# -- drawing ------------------------------------------------------------------------------
+
+def _esc(text):
+    return html.escape(str(text), quote=True)
+
+
+def _pipe(points, colour=STEAM, width=3):
+    """A pipe along the given points, with an arrowhead at its end."""
+    path = " ".join(f"{x},{y}" for x, y in points)
+    (x0, y0), (x1, y1) = points[-2], points[-1]
+    if x1 != x0:
+        s = 1 if x1 > x0 else -1
+        head = f"{x1},{y1} {x1 - 9 * s},{y1 - 5} {x1 - 9 * s},{y1 + 5}"
+    else:
+        s = 1 if y1 > y0 else -1
+        head = f"{x1},{y1} {x1 - 5},{y1 - 9 * s} {x1 + 5},{y1 - 9 * s}"
+    return [f'<polyline points="{path}" fill="none" stroke="{colour}" stroke-width="{width}"/>',
+            f'<polygon points="{head}" fill="{colour}"/>']
+
+
+def _box(x, y, w, h, label, sub=""):
+    out = [f'<rect x="{x}" y="{y}" width="{w}" height="{h}" rx="6" fill="#f4f6f7" stroke="{INK}" stroke-width="1.5"/>',
+           f'<text x="{x + w / 2:g}" y="{y + h / 2 + (0 if sub else 4):g}" text-anchor="middle" font-weight="bold">'
+           f"{_esc(label)}</text>"]
+    if sub:
+        out.append(f'<text x="{x + w / 2:g}" y="{y + h / 2 + 15:g}" text-anchor="middle" font-size="10">{_esc(sub)}</text>')
+    return out
+
+
+def _valve(x, y, label):
+    """A control valve: two triangles point to point, an actuator stem and its name below."""
+    return [f'<polygon points="{x - 16},{y - 11} {x + 16},{y + 11} {x + 16},{y - 11} {x - 16},{y + 11}" '
+            f'fill="#ffffff" stroke="{INK}" stroke-width="1.5"/>',
+            f'<line x1="{x}" y1="{y}" x2="{x}" y2="{y - 22}" stroke="{INK}" stroke-width="1.5"/>',
+            f'<rect x="{x - 10}" y="{y - 32}" width="20" height="10" fill="#ffffff" stroke="{INK}" stroke-width="1.5"/>',
+            f'<text x="{x}" y="{y + 27}" text-anchor="middle" font-size="10">{_esc(label)}</text>']
+
+
+def _tag(x, y, number):
+    return [f'<circle cx="{x}" cy="{y}" r="9" fill="{INK}"/>',
+            f'<text x="{x}" y="{y + 4}" text-anchor="middle" fill="#ffffff" font-size="10" font-weight="bold">'
+            f"{_esc(number)}</text>"]
+
+
+def _label(x, y, point, anchor="start"):
+    """A point's tag, name and readings, one per line, from (x, y) downwards."""
+    tag_x = x + 9 if anchor == "start" else x - 9
+    text_x = x + 23 if anchor == "start" else x - 23
+    out = _tag(tag_x, y - 4, point.number)
+    out.append(f'<text x="{text_x}" y="{y}" text-anchor="{anchor}" font-weight="bold">{_esc(point.name)}</text>')
+    for line, reading in enumerate(point.readings, start=1):
+        out.append(f'<text x="{text_x}" y="{y + 15 * line}" text-anchor="{anchor}" class="reading" '
+                   f'data-key="{_esc(reading.section)}.{_esc(reading.key)}">{_esc(reading.text)}</text>')
+    return out
+
+
+def _letdown(points, raw):
+    by = {p.number: p for p in points}
+    y = 150
+    out = _box(10, y - 25, 90, 50, by["1"].name.replace("from ", ""))
+    if "3" in by:
+        out += _pipe([(100, y), (255, y)]) + _valve(270, y, "control valve")
+        out += _pipe([(286, y), (460, y)]) + _box(462, y - 22, 104, 44, "desuperheater")
+        out += _pipe([(514, 242), (514, y + 22)], WATER, 2)
+        out += _pipe([(566, y), (648, y)]) + _box(650, y - 25, 100, 50, by["3"].name.replace("to ", ""))
+        out += _label(108, 52, by["1"]) + _label(300, 52, by["2"]) + _label(576, 52, by["3"])
+        out += _label(300, 205, by["W"])
+    else:
+        out += _pipe([(100, y), (355, y)]) + _valve(370, y, "control valve")
+        out += _pipe([(386, y), (648, y)]) + _box(650, y - 25, 100, 50,
+                                                  _header_name(raw, "outlet_pressure", "outlet"))
+        out += _label(108, 52, by["1"]) + _label(420, 52, by["2"])
+    return out, 260
+
+
+def _flash(points, raw):
+    by = {p.number: p for p in points}
+    results = raw.get("results", {})
+    diameter = results.get("vessel_diameter", {}).get("value")
+    fraction = results.get("flash_fraction", {}).get("value")
+    vented = raw.get("inputs", {}).get("vented", {}).get("value") is True
+    cascade = "stage_1_pressure" in results
+    steam_to = "vent" if vented else _header_name(raw, "flash_pressure", "steam users")
+    out = _pipe([(20, 150), (328, 150)], WATER)
+    out += [f'<rect x="330" y="50" width="80" height="190" rx="30" fill="#f4f6f7" stroke="{INK}" stroke-width="1.5"/>',
+            f'<line x1="332" y1="185" x2="408" y2="185" stroke="{WATER}" stroke-dasharray="4,3"/>',
+            '<text x="370" y="100" text-anchor="middle" font-weight="bold">flash</text>',
+            f'<text x="370" y="114" text-anchor="middle" font-weight="bold">{"vessels" if cascade else "vessel"}</text>']
+    if isinstance(fraction, (int, float)):
+        out += ['<text x="370" y="140" text-anchor="middle" font-size="10">flashes</text>',
+                f'<text x="370" y="153" text-anchor="middle" font-size="10">{_esc(format_number(fraction * 100))} %</text>']
+    if isinstance(diameter, (int, float)):
+        out.append(f'<text x="370" y="212" text-anchor="middle" font-size="10">Ø {_esc(format_number(diameter))} m</text>')
+    out += _pipe([(370, 50), (370, 30), (638, 30)]) + _box(640, 8, 110, 44, steam_to)
+    out += _pipe([(370, 240), (370, 250), (430, 250), (430, 222), (638, 222)], WATER)
+    out += _box(640, 200, 110, 44, "condensate", "return")
+    # the residual condensate's label goes below the flash steam's (a cascade lists every stage)
+    below = max(150, 70 + 15 * (len(by["2"].readings) + 1) + 10)
+    out += _label(30, 76, by["1"]) + _label(450, 70, by["2"]) + _label(450, below, by["3"])
+    return out, max(275, below + 15 * len(by["3"].readings) + 30)
+
+
+def _exchanger(points, raw):
+    by = {p.number: p for p in points}
+    y = 150
+    out = _pipe([(20, y), (175, y)]) + _valve(190, y, "control valve")
+    out += _pipe([(206, y), (345, y)])
+    out += [f'<rect x="345" y="{y - 40}" width="150" height="80" rx="30" fill="#f4f6f7" stroke="{INK}" stroke-width="1.5"/>',
+            f'<text x="420" y="{y + 4}" text-anchor="middle" font-weight="bold">shell</text>']
+    # the process fluid through the exchanger: in from below, out at the top
+    out += _pipe([(440, 255), (440, y + 42)], "#8a5a00", 2) + _pipe([(440, y - 40), (440, 66)], "#8a5a00", 2)
+    out += ['<text x="448" y="250" font-size="10">process in</text>',
+            '<text x="448" y="76" font-size="10">process out</text>']
+    out += _pipe([(495, y), (575, y)], WATER)
+    out += [f'<circle cx="590" cy="{y}" r="14" fill="#ffffff" stroke="{INK}" stroke-width="1.5"/>',
+            f'<text x="590" y="{y + 4}" text-anchor="middle" font-weight="bold">T</text>',
+            f'<text x="590" y="{y + 30}" text-anchor="middle" font-size="10">trap</text>']
+    out += _pipe([(604, y), (745, y)], WATER)
+    out += _label(18, 52, by["1"]) + _label(150, 205, by["2"]) + _label(750, 52, by["3"], anchor="end")
+    out += _label(560, 205, by["P"])
+    return out, 275
+
+
+DRAWINGS = {"letdown": _letdown, "flash": _flash, "exchanger": _exchanger}
+TITLES = {"letdown": "Let-down station", "flash": "Flash-steam recovery", "exchanger": "Steam heater"}
+
+
+def sketch_svg(record):
+    """The process sketch of a record as one SVG element (no scripts, no external references).
+
+    Parameters
+    ----------
+    record : dict
+        A record (or the workbook's current record), as :func:`steamcalc.records.record.build_record` makes it.
+
+    Returns
+    -------
+    str
+        ``<svg ...>...</svg>``; empty for a kind without a sketch.
+
+    Examples
+    --------
+    >>> record = {"kind": "flash", "site": {"atmospheric_pressure": {"value": 1.0, "unit": "bar"}},
+    ...           "inputs": {"condensate_pressure": {"value": 9.0, "unit": "bar", "given": "8 bar(g)"},
+    ...                      "flash_pressure": {"value": 3.0, "unit": "bar", "given": "2 bar(g)"}},
+    ...           "results": {"flash_steam_flow": {"value": 236.3, "unit": "kg/h"}}}
+    >>> svg = sketch_svg(record)
+    >>> "9 bar(a) · 8 bar(g)" in svg and "236.3 kg/h" in svg and "<script" not in svg
+    True
+    """
+    kind = record.get("kind")
+    if kind not in DRAWINGS:
+        return ""
+    points = sketch_points(record)
+    body, height = DRAWINGS[kind](points, record)
+    title = f"Process sketch: {TITLES[kind]} {record.get('id', '')} rev {record.get('revision', '')}".strip()
+    return "\n".join([
+        f'<svg xmlns="http://www.w3.org/2000/svg" viewBox="0 0 {WIDTH} {height}" width="{WIDTH}" height="{height}" '
+        f'style="max-width:100%;height:auto" role="img" aria-label="{_esc(title)}" class="steamcalc-sketch" '
+        f'font-family="DejaVu Sans, Arial, sans-serif" font-size="11" fill="{INK}">',
+        f"<title>{_esc(title)}</title>",
+        f'<rect x="0" y="0" width="{WIDTH}" height="{height}" fill="#ffffff"/>',
+        *body,
+        f'<text x="{WIDTH - 8}" y="{height - 6}" text-anchor="end" font-size="9" fill="#5b6770">'
+        "schematic, not to scale; pressures absolute with gauge beside</text>",
+        "</svg>"])
+
+
+__all__ = ["sketch_svg", "sketch_points", "Point", "Reading"]

@@ -1,0 +1,397 @@
+"""The register of a site's records: what is issued, how it verifies, who signed it, and whether it is current.
+
+A record is *current* when no later revision of the same id is issued, its case file still
+gives the same case, the site file still gives the same site data, it was made by the
+package version and property engine in use here, and its HTML and Markdown match its JSON.
+It is *valid* when its digests hold, its results, checks and status are reproduced, and
+every signature on it is valid and made with a trusted key.
+"""
+
+from __future__ import annotations
+
+import csv
+import html
+import io
+from dataclasses import dataclass, field
+from pathlib import Path
+
+from ..errors import SteamcalcError
+
+#: Provenance entries that make a record out of date when they differ: the package itself and
+#: the property engine of issued records. (A different Python or numpy alone does not.)
+CURRENCY_PROVENANCE = ("steamcalc", "iapws", "engine")
+
+COLUMNS = ("id", "revision", "kind", "title", "status", "verification", "signatures", "superseded",
+           "case_file", "site_data", "software", "companions", "current", "json")
+
+
+@dataclass
+class RegisterRow:
+    """One record in the register; every column is text a person reads."""
+
+    json: str
+    id: str = ""
+    revision: str = ""
+    kind: str = ""
+    title: str = ""
+    status: str = ""
+    verification: str = ""
+    signatures: str = "not signed"
+    superseded: str = "no"
+    case_file: str = "no case file found"
+    site_data: str = "no site file found"
+    software: str = "same"
+    companions: str = ""
+    valid: bool = True
+    stale: list = field(default_factory=list)
+
+    @property
+    def current(self):
+        return not self.stale
+
+    @property
+    def ok(self):
+        return self.valid and self.current
+
+    def as_dict(self):
+        values = {c: getattr(self, c) for c in COLUMNS if c != "current"}
+        values["current"] = "yes" if self.current else "no: " + "; ".join(self.stale)
+        return values
+
+
+def revision_order(revision):
+    """Sort key of a revision: numbers numerically, letters as A < B < ... < Z < AA.
+
+    Examples
+    --------
+    >>> sorted(["B", "AA", "A", "C"], key=revision_order)
+    ['A', 'B', 'C', 'AA']
+    >>> sorted(["10", "2", "1"], key=revision_order)
+    ['1', '2', '10']
+    """
+    text = str(revision)
+    return (0, int(text), "") if text.isdigit() else (1, len(text), text.upper())
+
+
+def _folders(folder):
+    from ..signing.keys import site_folder_of
+
+    folder = Path(folder)
+    if not folder.is_dir():
+        raise SteamcalcError("the folder does not exist", source=folder,
+                             fix="give a site folder (with site.toml) or a records folder")
+    if (folder / "site.toml").is_file():
+        return folder, folder / "records"
+    return site_folder_of(folder), folder
+
+
+def _cases_by_id(site_dir):
+    from ..cases.site import load_case
+
+    cases = {}
+    if site_dir is None:
+        return cases
+    for path in sorted((site_dir / "cases").glob("*.toml")):
+        try:
+            case = load_case(path)
+        except SteamcalcError:
+            continue  # a broken case file is reported by `run`, not here
+        cases.setdefault(case.id, case)
+    return cases
+
+
+def _case_changes(record, case):
+    """How a case file now differs from the case a record was issued from (empty: the same)."""
+    from ..calcs import get_calculation
+    from ..calcs.base import to_record_inputs
+    from ..cases.site import Site, parse_inputs, flatten_inputs
+
+    changes = []
+    if str(case.revision) != str(record.get("revision")):
+        return [f"the case file is now at revision {case.revision}"]
+    for key, now in (("title", case.title), ("prepared_by", case.prepared_by)):
+        if record.get(key) != now:
+            changes.append(key)
+    notes = [a for a in record.get("assumptions", []) if str(a).startswith("Engineer's note: ")]
+    if notes != [f"Engineer's note: {n}" for n in case.notes]:
+        changes.append("notes")
+    calc = get_calculation(case.kind)
+    try:
+        # Against the site the record ran on, so that a site edit is not reported as a case edit.
+        inputs, given = parse_inputs(calc.Inputs, flatten_inputs(calc.Inputs, case.inputs), Site.from_record(record["site"]))
+        table = to_record_inputs(inputs, given)
+    except SteamcalcError as exc:
+        return [f"its inputs no longer read ({exc.message})"]
+    keys = sorted(set(table) | set(record.get("inputs", {})))
+    changed = [k for k in keys if not _same_input(table.get(k), record.get("inputs", {}).get(k))]
+    if changed:
+        changes.append("inputs " + ", ".join(changed))
+    if bool(case.uncertainty) != ("uncertainty" in record):
+        changes.append("uncertainty")
+    return changes
+
+
+def _same_input(a, b):
+    """The same given text and unit, and values equal but for the round trip through record units."""
+    from .verify import ABSOLUTE_TOLERANCE, RELATIVE_TOLERANCE
+
+    if a is None or b is None:
+        return a == b
+    # A header's text ("header:HP = 16 bar(g)") comes from the site file: a site edit, not a case edit.
+    given = [str(e.get("given")).partition(" = ")[0] if str(e.get("given")).startswith("header:") else e.get("given")
+             for e in (a, b)]
+    if given[0] != given[1] or a.get("unit") != b.get("unit"):
+        return False
+    x, y = a.get("value"), b.get("value")
+    if isinstance(x, list) and isinstance(y, list) and len(x) == len(y):
+        return all(_same_input({"value": p}, {"value": q}) for p, q in zip(x, y))
+    if isinstance(x, float) and isinstance(y, (int, float)) and not isinstance(y, bool):
+        return abs(x - y) <= max(RELATIVE_TOLERANCE * 1e-3 * abs(x), ABSOLUTE_TOLERANCE)
+    return x == y
+
+
+def _site_changes(record, site_path):
+    from ..cases.site import load_site
+
+    now = load_site(site_path).to_record()
+    then = record.get("site", {})
+    return [k for k in sorted(set(now) | set(then)) if now.get(k) != then.get(k)]
+
+
+def register_row(path, record, *, trusted, case=None, site_path=None, later_revision=None, recompute=True):
+    """The register's row for one record.
+
+    Parameters
+    ----------
+    path : Path
+        The record's JSON file.
+    record : dict
+    trusted : dict
+        The site's trusted keys (:func:`steamcalc.signing.signatures.load_trusted`).
+    case : steamcalc.cases.site.Case, optional
+        The case file of the same id, if the site has one.
+    site_path : Path, optional
+        The site file the case runs against now.
+    later_revision : str, optional
+        A later revision of the same id in the register.
+    recompute : bool
+        Re-run the record to verify it (False: its digests only, as the index of a run that has
+        just computed the records does).
+    """
+    from ..records.record import provenance
+    from .verify import check_companions, verify_record
+    from ..signing.keys import short_fingerprint
+    from ..signing.signatures import check_signatures, name_only_signoff
+
+    row = RegisterRow(json=Path(path).name, id=record["id"], revision=str(record["revision"]), kind=record["kind"],
+                      title=record.get("title", ""))
+    if not recompute:
+        from ..records.record import compute_content_digest, compute_digest
+
+        intact = compute_digest(record) == record.get("digest") and \
+            compute_content_digest(record) == record.get("content_digest")
+        row.status, row.verification, row.valid = record.get("status", ""), "intact" if intact else "EDITED", intact
+        outcome = None
+    else:
+        outcome = verify_record(record)
+        row.status = outcome.recomputed_status or record.get("status", "")
+    if outcome is None:
+        pass
+    elif not (outcome.digest_ok and outcome.content_digest_ok):
+        row.verification = "EDITED (digest does not match)"
+    elif outcome.error:
+        row.verification = "not reproducible"
+    elif not outcome.reproduced:
+        row.verification = f"NOT REPRODUCED ({len(outcome.differences())} differences)"
+    else:
+        row.verification = "verified"
+    if outcome is not None:
+        row.valid = outcome.ok
+    texts = []
+    legacy = name_only_signoff(record, outcome)
+    if legacy:
+        texts.append(f"name only: {record.get('checked_by')}" + (" (does not hold)" if legacy[1] else ""))
+        row.valid = row.valid and not legacy[1]
+    for check in check_signatures(record, trusted):
+        state = "invalid" if not check.valid or check.problem else "trusted" if check.trusted else "unknown key"
+        texts.append(f"{check.role}: {check.name}, key {short_fingerprint(check.fingerprint)}, {state}")
+        row.valid = row.valid and check.ok
+    row.signatures = "; ".join(texts) or "not signed"
+
+    if later_revision is not None:
+        row.superseded = f"by revision {later_revision}"
+        row.stale.append(f"superseded by revision {later_revision}")
+    if case is not None:
+        changes = _case_changes(record, case)
+        row.case_file = "same" if not changes else "edited after issue: " + ", ".join(changes)
+        if changes and later_revision is None:
+            row.stale.append("case edited after issue")
+        elif changes:
+            row.case_file = "later revision"
+    if site_path is not None:
+        try:
+            changes = _site_changes(record, site_path)
+        except SteamcalcError as exc:
+            changes = [f"unreadable ({exc.message})"]
+        row.site_data = "same" if not changes else "differs: " + ", ".join(changes)
+        if changes:
+            row.stale.append("site data changed")
+    now, then = provenance(), record.get("provenance", {})
+    versions = [f"{k} {then.get(k)} -> {now.get(k)}" for k in CURRENCY_PROVENANCE
+                if (k in now or k in then) and then.get(k) != now.get(k)]
+    if versions:
+        row.software = ", ".join(versions)
+        row.stale.append("software differs")
+    companions = check_companions(path, record)
+    differ = [c.path.suffix.lstrip(".") for c in companions if c.verdict == "differs"]
+    absent = [c.path.suffix.lstrip(".") for c in companions if c.verdict == "absent"]
+    older = [c.path.suffix.lstrip(".") for c in companions if c.verdict == "older"]
+    row.companions = ("DIFFER: " + ", ".join(differ)) if differ else ("absent: " + ", ".join(absent)) if absent else \
+        ("drawn by an earlier release: " + ", ".join(older)) if older else "match"
+    if differ:
+        row.stale.append("companions do not match")
+    return row
+
+
+def build_register(folder, trusted_dir=None, recompute=True):
+    """Every record of a site folder (its ``records/``) or of a records folder.
+
+    Parameters
+    ----------
+    folder : str or Path
+        A site folder (holding site.toml) or a records folder.
+    trusted_dir : str or Path, optional
+        The trusted signers (default: ``trusted_signers/`` of the site).
+    recompute : bool
+        Re-run every record to verify it (see :func:`register_row`).
+
+    Returns
+    -------
+    list of RegisterRow
+        Sorted by id, then revision.
+    """
+    from ..records.record import load_record
+    from ..signing.keys import TRUSTED_FOLDER, load_trusted
+
+    site_dir, records_dir = _folders(folder)
+    trusted = load_trusted(trusted_dir or (site_dir / TRUSTED_FOLDER if site_dir else None), required=bool(trusted_dir))
+    records, unreadable = [], []
+    for path in sorted(records_dir.glob("*.json")) if records_dir.is_dir() else []:
+        try:
+            records.append((path, load_record(path)))
+        except SteamcalcError as exc:
+            unreadable.append(RegisterRow(json=path.name, verification=f"not a readable record ({exc.message})",
+                                          valid=False, stale=["not a readable record"]))
+    from ..records.record import compute_digest
+
+    # An edited file (its digest broken) supersedes no intact revision; an id with none intact keeps its
+    # highest revision as the latest.
+    intact = [compute_digest(record) == record.get("digest") for _, record in records]
+    with_intact = {record["id"] for (_, record), ok in zip(records, intact) if ok}
+    latest = {}
+    for (_, record), ok in zip(records, intact):
+        rev = str(record["revision"])
+        if not ok and record["id"] in with_intact:
+            continue
+        if record["id"] not in latest or revision_order(rev) > revision_order(latest[record["id"]]):
+            latest[record["id"]] = rev
+    cases = _cases_by_id(site_dir)
+    site_file = site_dir / "site.toml" if site_dir else None
+    rows = []
+    for path, record in records:
+        case = cases.get(record["id"])
+        if case is not None and case.site_path is not None:
+            site_path = case.site_path
+        else:
+            site_path = site_file
+        top = latest[record["id"]]
+        rows.append(register_row(path, record, trusted=trusted, case=case, site_path=site_path,
+                                 later_revision=None if revision_order(str(record["revision"])) >= revision_order(top)
+                                 else top, recompute=recompute))
+    rows.sort(key=lambda r: (r.id, revision_order(r.revision)))
+    return rows + unreadable
+
+
+def format_register(rows):
+    """The register as text: one line per record, then why any record is not current or valid."""
+    if not rows:
+        return "no records found"
+    lines = [f"{'record':<16} {'kind':<9} {'status':<6} {'verification':<14} {'current':<8} signatures"]
+    for r in rows:
+        lines.append(f"{(r.id + ' rev ' + r.revision) if r.id else r.json:<16} {r.kind:<9} {r.status.upper():<6} "
+                     f"{r.verification.split(' (')[0]:<14} {'yes' if r.current else 'NO':<8} {r.signatures}")
+        for reason in r.stale:
+            detail = {"case edited after issue": r.case_file, "site data changed": r.site_data,
+                      "software differs": r.software, "companions do not match": r.companions}.get(reason, "")
+            lines.append(f"{'':<18}not current: {reason}" + (f" ({detail})" if detail and detail != reason else ""))
+        if not r.valid:
+            lines.append(f"{'':<18}not valid: {r.verification}; signatures: {r.signatures}")
+    current = sum(r.current for r in rows)
+    valid = sum(r.valid for r in rows)
+    lines.append(f"{len(rows)} record{'s' if len(rows) != 1 else ''}: {current} current, {valid} valid")
+    return "\n".join(lines)
+
+
+def register_csv(rows):
+    """The register as CSV text."""
+    buffer = io.StringIO()
+    writer = csv.DictWriter(buffer, fieldnames=COLUMNS, lineterminator="\n")
+    from ..render.csv_cells import csv_safe   # a crafted title must not run as a spreadsheet formula
+
+    writer.writeheader()
+    writer.writerows({k: csv_safe(v) for k, v in r.as_dict().items()} for r in rows)
+    return buffer.getvalue()
+
+
+def register_table_html(rows):
+    """The register as an HTML table (escaped; no scripts)."""
+    head = "".join(f"<th>{html.escape(c.replace('_', ' '))}</th>" for c in COLUMNS)
+    body = []
+    for r in rows:
+        values = r.as_dict()
+        cells = "".join(f"<td>{html.escape(str(values[c]))}</td>" if c != "json" else
+                        f"<td><a href='{html.escape(values[c])}'>{html.escape(values[c])}</a></td>" for c in COLUMNS)
+        colour = "" if r.ok else " style='background:#fbeeee'"
+        body.append(f"<tr{colour}>{cells}</tr>")
+    return f"<table class='steamcalc-register'><tr>{head}</tr>{''.join(body)}</table>"
+
+
+def write_register_csv(path, rows):
+    from ..records.record import write_text_atomic
+
+    write_text_atomic(path, register_csv(rows))
+
+
+def write_register_html(path, rows):
+    from ..records.record import write_text_atomic
+
+    current = sum(r.current for r in rows)
+    page = f"""<!DOCTYPE html>
+<html lang="en"><head><meta charset="utf-8"><title>steamcalc register of records</title>
+<style>body{{font:10pt/1.4 "DejaVu Sans",Arial,sans-serif;margin:2em auto;max-width:90em;padding:0 1.5em}}
+table{{border-collapse:collapse;width:100%}}th,td{{text-align:left;vertical-align:top;padding:.25em .5em;
+border-bottom:1px solid #b9c2c9}}th{{background:#eef1f3}}</style></head><body>
+<h1>Register of calculation records</h1>
+<p>{len(rows)} records; {current} current; {sum(r.valid for r in rows)} valid (digest intact, results, checks and
+status reproduced, every signature valid and trusted). Rows not current or not valid are shaded.</p>
+{register_table_html(rows)}
+</body></html>
+"""
+    write_text_atomic(path, page)
+
+
+#: The register's columns that the records index of ``steamcalc run DIR`` adds to its own.
+INDEX_COLUMNS = ("signatures", "superseded", "case_file", "site_data", "software", "companions", "current")
+
+
+def index_columns(folder):
+    """The register's currency columns for a records index: JSON file name -> columns.
+
+    The index is written just after a run computed the records, so they are not re-run here;
+    a bad trusted signers list shows in the signatures column instead of stopping the run.
+    """
+    try:
+        rows = build_register(folder, recompute=False)
+    except SteamcalcError as exc:
+        return {"*": {"signatures": f"cannot be checked: {exc}"}}
+    return {row.json: {c: row.as_dict()[c] for c in INDEX_COLUMNS} for row in rows}

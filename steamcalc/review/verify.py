@@ -1,0 +1,379 @@
+"""Review: verify a record (digest integrity, then reproduction by re-computation).
+
+Integrity and reproduction are reported apart: an intact record whose numbers a
+newer library no longer reproduces is a different finding from an edited file.
+
+Reproduction runs on the engine of issued records (iapws) by default. With
+``engine="fast"`` the record is recomputed on the second, independent IF97
+implementation (seuif97) instead: a cross-check that no bug of one implementation can
+pass. Its uncertainty bands are then not recomputed (their samples run on the fast
+engine already); the ordinary verification reproduces them.
+"""
+
+from __future__ import annotations
+
+import re
+from dataclasses import dataclass, field
+from pathlib import Path
+
+from ..properties.engines import REFERENCE_ENGINE, check_engine
+from ..errors import SteamcalcError
+from ..records.record import compute_content_digest, compute_digest, provenance
+from ..runs.runner import recompute, recompute_uncertainty
+
+#: Relative tolerance on recomputed numbers; IF97 evaluations are deterministic, so
+#: this only absorbs floating-point differences between platforms and library builds.
+RELATIVE_TOLERANCE = 1e-6
+#: Absolute tolerance, in the result's own unit, for values that are zero or near it.
+ABSOLUTE_TOLERANCE = 1e-9
+
+
+@dataclass
+class Comparison:
+    """One result, as recorded and as recomputed."""
+
+    key: str
+    recorded: object
+    recomputed: object
+    unit: str
+    abs_diff: float | None
+    rel_diff: float | None
+    verdict: str  # "same", "differs", "missing", "new"
+
+
+@dataclass
+class Verification:
+    """Outcome of verifying one record."""
+
+    digest_ok: bool
+    content_digest_ok: bool
+    comparisons: list = field(default_factory=list)
+    check_changes: list = field(default_factory=list)
+    version_changes: dict = field(default_factory=dict)
+    error: str | None = None
+    #: The overall status and failing checks as recomputed (never the record's own claim).
+    recomputed_status: str | None = None
+    recomputed_failing: list = field(default_factory=list)
+    #: What the record states that the calculation does not issue today: status, cautions,
+    #: references, the calculation's assumptions, its steps.
+    statement_changes: list = field(default_factory=list)
+    engine: str = REFERENCE_ENGINE
+    notes: list = field(default_factory=list)
+
+    @property
+    def largest_difference(self):
+        """The compared result with the largest relative difference, or None."""
+        numeric = [c for c in self.comparisons if c.rel_diff is not None]
+        return max(numeric, key=lambda c: c.rel_diff, default=None)
+
+    @property
+    def reproduced(self):
+        return self.error is None and not self.check_changes and not self.statement_changes and all(
+            c.verdict == "same" for c in self.comparisons)
+
+    def differences(self):
+        """Every way the record differs from its recomputation, one line each."""
+        lines = [f"{c.key}: recorded {c.recorded}, recomputed {c.recomputed}" for c in self.comparisons
+                 if c.verdict != "same"]
+        return lines + [f"check changed: {c}" for c in self.check_changes] + list(self.statement_changes)
+
+    @property
+    def ok(self):
+        return self.digest_ok and self.content_digest_ok and self.reproduced
+
+
+def _compare(key, recorded, recomputed):
+    unit = recorded.get("unit", "") if recorded else recomputed.get("unit", "")
+    if recorded is None:
+        return Comparison(key, None, recomputed["value"], unit, None, None, "new")
+    if recomputed is None:
+        return Comparison(key, recorded["value"], None, unit, None, None, "missing")
+    a, b = recorded["value"], recomputed["value"]
+    if isinstance(a, (int, float)) and isinstance(b, (int, float)) and not isinstance(a, bool):
+        diff = abs(a - b)
+        rel = diff / abs(a) if a else (0.0 if diff == 0 else float("inf"))
+        same = diff <= max(RELATIVE_TOLERANCE * abs(a), ABSOLUTE_TOLERANCE) and recorded.get("unit", "") == \
+            recomputed.get("unit", "")
+        return Comparison(key, a, b, unit, diff, rel if rel != float("inf") else None,
+                          "same" if same else "differs")
+    return Comparison(key, a, b, unit, None, None, "same" if a == b else "differs")
+
+
+def _points(figure):
+    return sum(len(s.get("x", ())) for s in figure.get("series", ())) if isinstance(figure, dict) else 0
+
+
+def _walk(old, new, path, found):
+    """Collect (path, abs_diff, rel_diff) for numbers and (path, None, None) for anything else that differs."""
+    if isinstance(old, bool) or isinstance(new, bool) or not (
+            isinstance(old, (int, float)) and isinstance(new, (int, float))):
+        if isinstance(old, dict) and isinstance(new, dict):
+            for key in sorted(set(old) | set(new)):
+                _walk(old.get(key), new.get(key), f"{path}.{key}", found)
+        elif isinstance(old, list) and isinstance(new, list) and len(old) == len(new):
+            for index, (a, b) in enumerate(zip(old, new)):
+                _walk(a, b, f"{path}[{index}]", found)
+        elif old != new:
+            found.append((path, None, None))
+        return
+    diff = abs(old - new)
+    if diff > max(RELATIVE_TOLERANCE * abs(old), ABSOLUTE_TOLERANCE):
+        found.append((path, diff, diff / abs(old) if old else None))
+
+
+def compare_figures(recorded, recomputed):
+    """One comparison per figure: its data recomputed against the record's, point by point.
+
+    Numbers agree within the tolerances results are held to; names, titles, units, styles and labels
+    must be the same. The comparison lists the figure's number of points and, when it differs, the
+    first place that does.
+    """
+    comparisons = []
+    names = [f.get("name") if isinstance(f, dict) else None for f in recorded]
+    fresh = {f["name"]: f for f in recomputed}
+    for index, figure in enumerate(recorded):
+        name = names[index] or f"#{index + 1}"
+        new = fresh.get(name)
+        key = f"figure {name}"
+        if new is None:
+            comparisons.append(Comparison(key, f"{_points(figure)} points", None, "", None, None, "missing"))
+            continue
+        found = []
+        _walk(figure, new, "", found)
+        numeric = [(a, r) for _, a, r in found if a is not None]
+        verdict = "same" if not found else "differs"
+        shown = f"{_points(new)} points" + (f" (first difference at {found[0][0].lstrip('.')})" if found else "")
+        comparisons.append(Comparison(key, f"{_points(figure)} points", shown, "",
+                                      max((a for a, _ in numeric), default=None),
+                                      max((r for _, r in numeric if r is not None), default=None), verdict))
+    for name, figure in fresh.items():
+        if name not in names:
+            comparisons.append(Comparison(f"figure {name}", None, f"{_points(figure)} points", "", None, None, "new"))
+    return comparisons
+
+
+def verify_record(record, engine=REFERENCE_ENGINE):
+    """Verify a record: its digests, then its results recomputed from its inputs.
+
+    Parameters
+    ----------
+    record : dict
+        A record as read by :func:`steamcalc.records.record.load_record`.
+    engine : str
+        IF97 engine of the recomputation: "iapws" (the record's own) or "fast" (seuif97,
+        the independent cross-check).
+
+    Returns
+    -------
+    Verification
+    """
+    result = Verification(
+        digest_ok=compute_digest(record) == record.get("digest"),
+        content_digest_ok=compute_content_digest(record) == record.get("content_digest"),
+        engine=check_engine(engine),
+    )
+    now = provenance()
+    then = record.get("provenance", {})
+    result.version_changes = {k: (then.get(k), v) for k, v in now.items() if then.get(k) != v}
+    try:
+        fresh = recompute(record, engine=engine)
+    except (SteamcalcError, KeyError, TypeError, ValueError) as exc:
+        result.error = f"the record's inputs could not be recomputed: {exc}"
+        return result
+    new_results = {k: v.to_record() for k, v in fresh.values.items()}
+    old_results = record.get("results", {})
+    for key in list(old_results) + [k for k in new_results if k not in old_results]:
+        result.comparisons.append(_compare(key, old_results.get(key), new_results.get(key)))
+    if "figures" in record:   # schema 2 on: the figure data is recomputed like the results
+        result.comparisons.extend(compare_figures(record["figures"], [f.to_record() for f in fresh.figures]))
+    new_checks = [(c.name, c.status, c.detail) for c in fresh.checks]
+    if "uncertainty" in record:
+        if engine == REFERENCE_ENGINE:
+            section = _compare_uncertainty(record, result, fresh)
+        else:
+            section = record["uncertainty"]
+            result.notes.append("uncertainty bands not recomputed on this engine (their samples run on the fast "
+                                "engine already); the ordinary verification reproduces them")
+        if section is not None and "failed_sample_count" in section:
+            from ..runs.uncertainty import sample_check
+            new_checks.append(tuple(sample_check(section)))
+    old_checks = [(c.get("name"), c.get("status"), c.get("detail")) for c in record.get("checks", [])]
+    if len(old_checks) == len(new_checks) and all(
+            a[:2] == b[:2] and same_text(a[2], b[2]) for a, b in zip(old_checks, new_checks)):
+        new_checks = old_checks  # the same checks, their numbers equal within the tolerance
+    if old_checks != new_checks:
+        result.check_changes = [f"recorded: {n} = {s} ({d})" for n, s, d in old_checks if (n, s, d) not in new_checks] + \
+            [f"recomputed: {n} = {s} ({d})" for n, s, d in new_checks if (n, s, d) not in old_checks]
+    result.recomputed_status = fresh.status
+    result.recomputed_failing = [c.name for c in fresh.checks if c.status == "fail"]
+    result.statement_changes = _statement_changes(record, fresh)
+    return result
+
+
+_NUMBER = re.compile(r"[-+]?(?:\d{1,3}(?:,\d{3})+|\d+)(?:\.\d*)?(?:[eE][-+]?\d+)?")
+
+
+def _last_place(text):
+    """One unit in the last printed digit of a number as written."""
+    mantissa, _, exponent = text.lower().partition("e")
+    decimals = len(mantissa.partition(".")[2])
+    return 10.0 ** (int(exponent or 0) - decimals)
+
+
+def same_text(a, b):
+    """Two texts alike but for their numbers, which agree within the tolerance or one unit in the last digit.
+
+    A record's details and substituted equations print numbers that a recomputation from the
+    record's own (rounded-trip) inputs may print a last digit apart.
+
+    Examples
+    --------
+    >>> same_text("residual 0.0e+00 (tolerance 1e-09)", "residual 1.8e-16 (tolerance 1e-09)")
+    True
+    >>> same_text("passes 5,694 kg/h", "passes 5,695 kg/h"), same_text("margin 12 %", "margin 31 %")
+    (True, False)
+    >>> same_text("pass", "fail")
+    False
+    """
+    if a == b:
+        return True
+    if not isinstance(a, str) or not isinstance(b, str):
+        return False
+    if _NUMBER.split(a) != _NUMBER.split(b):
+        return False
+    for x, y in zip(_NUMBER.findall(a), _NUMBER.findall(b)):
+        u, v = float(x.replace(",", "")), float(y.replace(",", ""))
+        slack = max(RELATIVE_TOLERANCE * abs(u), ABSOLUTE_TOLERANCE, 1.000001 * max(_last_place(x), _last_place(y)))
+        if abs(u - v) > slack:
+            return False
+    return True
+
+
+def _statement_changes(record, fresh):
+    """The record's status and statements against what the calculation issues today."""
+    changes = []
+    if record.get("status") != fresh.status:
+        changes.append(f"status: recorded {record.get('status')!r}, recomputed {fresh.status!r}")
+    own_assumptions = [a for a in record.get("assumptions", []) if not str(a).startswith("Engineer's note: ")]
+    for key, recorded, issued in (("cautions", record.get("cautions", []), list(fresh.cautions)),
+                                  ("references", record.get("references", []), list(fresh.references)),
+                                  ("warnings", record.get("warnings", []), list(fresh.warnings)),
+                                  ("assumptions", own_assumptions, list(fresh.assumptions))):
+        if len(recorded) == len(issued) and all(same_text(a, b) for a, b in zip(recorded, issued)):
+            continue
+        if recorded != issued:
+            missing = [t for t in issued if t not in recorded]
+            extra = [t for t in recorded if t not in issued]
+            what = "; ".join([f"missing {t!r}" for t in missing] + [f"not issued {t!r}" for t in extra]) or "reordered"
+            changes.append(f"{key}: {what}")
+    old_steps = record.get("steps", [])
+    new_steps = [s.to_record() for s in fresh.steps]
+    if len(old_steps) != len(new_steps):
+        changes.append(f"steps: {len(old_steps)} recorded, {len(new_steps)} recomputed")
+    for i, (a, b) in enumerate(zip(old_steps, new_steps), 1):
+        texts_differ = any(not same_text(a.get(k), b.get(k)) for k in ("label", "equation", "substituted"))
+        value_differs = (a.get("value") is None) != (b.get("value") is None) or (
+            a.get("value") is not None and _compare("", a["value"], b["value"]).verdict != "same")
+        if texts_differ or value_differs:
+            changes.append(f"step {i} ({b.get('label')}): the record's text or value is not the calculation's")
+    return changes
+
+
+@dataclass
+class CompanionCheck:
+    """A report beside a record, against the same report rendered afresh from the JSON."""
+
+    path: object
+    verdict: str  # "match", "differs", "absent", "repaired", "older" (drawn by an earlier release)
+
+
+def _drawn_by_earlier_release(path, record):
+    """A report of a record issued by an earlier release of steamcalc, naming this record's digest.
+
+    Such a report was drawn by that release's views (and a schema-1 record kept no figure data, so
+    its charts cannot be drawn again): it is reported as older, not as edited, and ``--repair``
+    draws it again. A report of a record issued by this release is always compared in full.
+    """
+    from ..records.record import SCHEMA, provenance
+
+    issued_by = (record.get("provenance") or {}).get("steamcalc")
+    if (record.get("schema") == SCHEMA and issued_by == provenance().get("steamcalc")) or \
+            not isinstance(record.get("digest"), str):
+        return False
+    try:
+        return record["digest"] in Path(path).read_text(encoding="utf-8")
+    except (OSError, UnicodeDecodeError):
+        return False
+
+
+def check_companions(json_path, record, repair=False):
+    """Re-render a record's HTML and Markdown and compare them with the files beside it.
+
+    A report of a record from an earlier release that names the record's digest is ``older``: drawn
+    by that release, not compared line by line.
+
+    Parameters
+    ----------
+    json_path : str or Path
+        The record's JSON file; the reports are beside it with the same stem.
+    record : dict
+        The record as read from it.
+    repair : bool
+        Re-write the reports that differ or are absent (only do this for a record that verifies).
+
+    Returns
+    -------
+    list of CompanionCheck
+    """
+    from ..records.record import write_text_atomic
+    from ..render.report import RENDERERS
+
+    checks = []
+    for suffix, render in RENDERERS.items():
+        path = Path(json_path).with_suffix(suffix)
+        fresh = render(record)
+        try:
+            verdict = "match" if path.read_text(encoding="utf-8") == fresh else "differs"
+        except FileNotFoundError:
+            verdict = "absent"
+        except (OSError, UnicodeDecodeError):
+            verdict = "differs"
+        if verdict == "differs" and _drawn_by_earlier_release(path, record):
+            verdict = "older"
+        if repair and verdict != "match":
+            write_text_atomic(path, fresh)
+            verdict = "repaired"
+        checks.append(CompanionCheck(path, verdict))
+    return checks
+
+
+def verify_file(path, engine=REFERENCE_ENGINE):
+    """Load and verify one record file: ``(path, record, verification, error)``. A file that cannot
+    be read gives its error text instead of raising (one bad file never stops a batch)."""
+    from ..records.record import load_record
+
+    try:
+        record = load_record(path)
+    except SteamcalcError as exc:
+        return path, None, None, str(exc)
+    return path, record, verify_record(record, engine=engine), None
+
+
+def _compare_uncertainty(record, outcome, nominal_result):
+    try:
+        fresh = recompute_uncertainty(record, nominal_result)
+    except (SteamcalcError, KeyError, TypeError, ValueError) as exc:
+        outcome.error = f"the record's uncertainty section could not be recomputed: {exc}"
+        return None
+    old_bands = record["uncertainty"].get("bands", {})
+    for key in list(old_bands) + [k for k in fresh["bands"] if k not in old_bands]:
+        old = old_bands.get(key)
+        new = fresh["bands"].get(key)
+        # Records made before the coverage interval was kept carry only the percentiles.
+        stats = ("p05", "p50", "p95") + (("low", "high") if old is None or "low" in old else ())
+        for stat in stats:
+            outcome.comparisons.append(_compare(
+                f"uncertainty.{key}.{stat}",
+                None if old is None else {"value": old[stat], "unit": old["unit"]},
+                None if new is None else {"value": new[stat], "unit": new["unit"]}))
+    return fresh

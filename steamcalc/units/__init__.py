@@ -1,0 +1,1 @@
+"""Quantities at the edge: parsing unit strings (pint), pressure bases, the site atmosphere, record units."""

@@ -1,0 +1,163 @@
+"""How a number with its unit is written for people: the unit as the trade writes it, the figures per quantity.
+
+These are the rules every view uses (:mod:`steamcalc.render.display` builds on them); they sit with the
+units so that a layer below the views (the uncertainty summary) writes numbers the same way.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+
+from .quantities import Q_
+
+SYSTEMS = ("SI", "US")
+
+#: Record unit → US customary display unit (pint names).
+US_UNITS = {
+    "degC": "degF", "bar": "psi", "kPa": "psi", "kg/h": "lb/h", "kg/s": "lb/s", "kJ/kg": "Btu/lb", "kW": "Btu/h",
+    "K": "delta_degF", "m/s": "ft/s", "m": "ft", "mm": "inch", "m**2": "ft**2", "mm**2": "inch**2", "m**3": "ft**3",
+    "kW/K": "Btu/(h*delta_degF)", "kW/(m**2*K)": "Btu/(h*ft**2*delta_degF)", "kJ/(kg*K)": "Btu/(lb*delta_degF)",
+    "t": "short_ton", "kg/m**3": "lb/ft**3", "m**2*K/kW": "h*ft**2*delta_degF/Btu", "m**3/h": "gallon/minute",
+    "m**3/s": "ft**3/s", "N": "lbf", "kg/(m**2*s)": "lb/(ft**2*s)", "Pa": "lb/(ft*s**2)",
+}
+
+#: A unit as people write it, for units whose written form is not the pint name made typographic.
+_UNIT_WORDS = {
+    "degC": "°C", "degF": "°F", "delta_degC": "K", "delta_degF": "°F", "percent": "%", "dimensionless": "",
+    "gallon/minute": "US gpm", "inch": "in", "inch**2": "in²", "short_ton": "short ton", "lbf": "lbf",
+    "Btu/(h*delta_degF)": "Btu/(h·°F)", "Btu/(h*ft**2*delta_degF)": "Btu/(h·ft²·°F)",
+    "Btu/(lb*delta_degF)": "Btu/(lb·°F)", "h*ft**2*delta_degF/Btu": "h·ft²·°F/Btu", "lb/(ft*s**2)": "lb/(ft·s²)",
+    "kg/(m**2*s)": "kg/(m²·s)", "lb/(ft**2*s)": "lb/(ft²·s)",
+}
+
+#: Pressure units as stored in records (design §3.4: absolute) and their display units.
+#: ("Pa" is left out: results in Pa are momentum fluxes ρv², not pressures.)
+_PRESSURE_UNITS = {"bar": "bar", "psi": "psi", "kPa": "kPa", "MPa": "MPa"}
+
+#: Kv → Cv: Cv = Kv × (m³/h in US gal/min) / √(bar in psi) = 1.156 Kv (IEC 60534-1, Kv = 0.865 Cv).
+CV_PER_KV = float(Q_(1.0, "m**3/h").to("gallon/minute").magnitude / math.sqrt(Q_(1.0, "bar").to("psi").magnitude))
+
+
+def _currency(unit):
+    return isinstance(unit, str) and re.fullmatch(r"[A-Z]{3}", unit) is not None
+
+
+def unit_label(unit, basis="absolute"):
+    """A display unit as people write it; a pressure always carries its basis.
+
+    Records hold absolute pressures (design §3.4), so a pressure unit reads ``bar(a)``
+    (``psia``) unless ``basis`` is ``"difference"``, when it reads ``bar difference``.
+
+    Examples
+    --------
+    >>> unit_label("bar"), unit_label("psi"), unit_label("bar", "difference")
+    ('bar(a)', 'psia', 'bar difference')
+    >>> unit_label("m**3/h"), unit_label("percent"), unit_label("kW/(m**2*K)"), unit_label("delta_degF")
+    ('m³/h', '%', 'kW/(m²·K)', '°F')
+    """
+    if unit is None:
+        return ""
+    if unit in _PRESSURE_UNITS:
+        if basis == "difference":
+            return f"{unit} difference"
+        return "psia" if unit == "psi" else f"{unit}(a)"
+    if unit in _UNIT_WORDS:
+        return _UNIT_WORDS[unit]
+    text = unit.replace("**2", "²").replace("**3", "³").replace("**4", "⁴").replace("^2", "²").replace("^3", "³")
+    text = text.replace("degC", "°C").replace("degF", "°F").replace("*", "·")
+    return text
+
+
+format_unit = unit_label
+
+
+# --- numbers ---------------------------------------------------------------------------------
+
+#: Figures per quantity, by display unit: ``("decimals", n)`` a fixed number of decimals,
+#: ``("figures", n)`` significant figures. Numbers of 1000 and more are whole numbers with
+#: thousands separators. Common practice for calculation records: temperatures to 0.1 K, sound
+#: to 0.1 dB, areas of relief orifices in whole mm², money in whole units.
+_FIGURES = {
+    "degC": ("decimals", 1), "degF": ("decimals", 1), "K": ("decimals", 1), "delta_degF": ("decimals", 1),
+    "delta_degC": ("decimals", 1), "dB": ("decimals", 1), "mm**2": ("decimals", 0), "inch**2": ("figures", 4),
+    "percent": ("percent", 0),
+}
+DEFAULT_FIGURES = 4
+
+
+def _group(text):
+    whole, dot, decimals = text.partition(".")
+    sign = "-" if whole.startswith("-") else ""
+    whole = whole.lstrip("-")
+    if len(whole) > 3:
+        whole = f"{int(whole):,}"
+    return f"{sign}{whole}{dot}{decimals}"
+
+
+def format_number(value, unit="", trim=False):
+    """A value as a report shows it, to the figures its quantity calls for.
+
+    Parameters
+    ----------
+    value : float, int, bool, str or None
+        The value, in the (display) unit ``unit``.
+    unit : str
+        Its unit (record or display spelling, pint names): it chooses the figures.
+    trim : bool
+        Drop trailing zeros (for inputs, shown with no more figures than the user gave).
+
+    Examples
+    --------
+    >>> format_number(196.23456, "degC"), format_number(4500.0, "kg/h"), format_number(0.0738377)
+    ('196.2', '4,500', '0.07384')
+    >>> format_number(48882.24, "EUR"), format_number(7.38377, "percent"), format_number(True)
+    ('48,882', '7.4', 'yes')
+    >>> format_number(None), format_number(13909.65, "kg/h"), format_number(2.114, "bar")
+    ('—', '13,910', '2.114')
+    """
+    if value is None:
+        return "—"
+    if isinstance(value, bool):
+        return "yes" if value else "no"
+    if not isinstance(value, (int, float)):
+        return str(value)
+    if not math.isfinite(value):
+        return str(value)
+    if value == 0:
+        return "0"
+    rule, n = _FIGURES.get(unit, ("figures", DEFAULT_FIGURES))
+    if _currency(unit):
+        rule, n = "decimals", 0
+    if rule == "percent":
+        # 74.6 %, 7.4 %, 0.53 %: one decimal, two figures below 1 %, none from 100 %.
+        rule, n = ("figures", 2) if abs(value) < 1 else ("decimals", 0 if abs(value) >= 100 else 1)
+    if abs(value) >= 1000 and rule == "figures":
+        rule, n = "decimals", 0
+    if rule == "decimals":
+        if n and float(value).is_integer() and unit == "percent":
+            return _group(f"{value:.0f}")   # 10 %, not 10.0 %
+        return _group(f"{value:.{n}f}")
+    if abs(value) < 1e-3:
+        return f"{value:.{max(n - 1, 1)}e}".replace("e-0", "e-")
+    if float(value).is_integer():
+        return _group(f"{value:.0f}")   # a whole number as typed (25 m, 63 m³/h), no invented zeros
+    digits = n - 1 - math.floor(math.log10(abs(value)))
+    text = f"{value:.{max(digits, 0)}f}"
+    if trim and "." in text:
+        text = text.rstrip("0").rstrip(".")
+    return _group(text)
+
+
+def format_quantity(value, unit, basis="absolute"):
+    """``"148.8 °C"``: a value and its unit as people read them.
+
+    Examples
+    --------
+    >>> format_quantity(148.7785, "degC"), format_quantity(0.5285, "bar", "difference")
+    ('148.8 °C', '0.5285 bar difference')
+    """
+    return f"{format_number(value, unit)} {unit_label(unit, basis)}".strip()
+
+
+# --- which values are fractions shown in % ---------------------------------------------------
