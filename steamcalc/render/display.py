@@ -16,11 +16,10 @@ place:
 
 from __future__ import annotations
 
-import copy
 import math
 import re
 
-from ..units.formatting import (CV_PER_KV, DEFAULT_FIGURES, SYSTEMS, US_UNITS,  # noqa: F401  (the rules, shown here)
+from ..units.formatting import (CV_PER_KV, SYSTEMS, US_UNITS,  # noqa: F401  (the rules, shown here)
                                  _group, format_number, format_quantity, unit_label)
 from ..units.quantities import Q_
 
@@ -371,6 +370,15 @@ def _show_uncertainty(section, record, calc, system, labels):
     section["coverage_shown"] = f"{coverage * 100:g}"
 
 
+def _plain_copy(value):
+    """A copy of JSON data (tables, lists, numbers, text): what deepcopy does for a record, without its memo."""
+    if isinstance(value, dict):
+        return {key: _plain_copy(item) for key, item in value.items()}
+    if isinstance(value, list):
+        return [_plain_copy(item) for item in value]
+    return value
+
+
 def display_record(record):
     """A copy of a record with every value ready to show: label, number text, unit text.
 
@@ -385,7 +393,8 @@ def display_record(record):
     system = system if system in SYSTEMS else "SI"
     calc = _calculation(record)
     labels = _input_labels(calc)
-    shown = copy.deepcopy(record)
+    # Figure data is drawn from the record as it stands (render.figure_spec): shared, not copied.
+    shown = {key: value if key == "figures" else _plain_copy(value) for key, value in record.items()}
     differences = {"inputs": _difference_inputs(calc),
                    "results": set(getattr(calc, "PRESSURE_DIFFERENCE_RESULTS", ()))}
     for section in ("inputs", "results"):

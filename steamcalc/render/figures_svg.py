@@ -402,8 +402,10 @@ def _legend_item(x, y, name, trace, index):
     return out
 
 
-def record_figures(record):
+def record_figures(record, shown=None):
     """The process sketch and the figures of a record, for its HTML page, drawn from the record alone.
+
+    ``shown`` is the record as :func:`steamcalc.render.display.display_record` shows it, when the caller has it.
 
     Returns
     -------
@@ -418,7 +420,7 @@ def record_figures(record):
     from .figure_spec import band_notes, figure_spec
     from .sketch import sketch_svg
 
-    sketch = Markup(sketch_svg(record))
+    sketch = Markup(sketch_svg(record, shown))
     if "figures" not in record:
         return {"sketch": sketch, "charts": [],
                 "note": "This record was issued by an earlier release (schema 1), which kept no figure data: "

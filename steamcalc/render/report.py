@@ -93,8 +93,9 @@ def _context(record):
 
     from .figures_svg import record_figures  # the sketch and charts block (HTML only; drawn when the template asks)
 
-    return {"r": display_record(record), "stem": record_stem(record), "kind_title": calc.TITLE, "basis": basis,
-            "record_figures": lambda: record_figures(record)}
+    shown = display_record(record)
+    return {"r": shown, "stem": record_stem(record), "kind_title": calc.TITLE, "basis": basis,
+            "record_figures": lambda: record_figures(record, shown)}
 
 
 def render_html(record):

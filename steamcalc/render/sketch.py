@@ -171,10 +171,13 @@ def exchanger_points(shown, raw):
 POINTS = {"letdown": letdown_points, "flash": flash_points, "exchanger": exchanger_points}
 
 
-def sketch_points(record):
-    """The numbered state points the sketch of a record shows, with their readings."""
+def sketch_points(record, shown=None):
+    """The numbered state points the sketch of a record shows, with their readings.
+
+    ``shown`` is the record as :func:`steamcalc.render.display.display_record` shows it, when the caller has it.
+    """
     maker = POINTS.get(record.get("kind"))
-    return [] if maker is None else maker(display_record(record), record)
+    return [] if maker is None else maker(shown if shown is not None else display_record(record), record)
 
 
 # -- drawing ------------------------------------------------------------------------------
@@ -304,7 +307,7 @@ DRAWINGS = {"letdown": _letdown, "flash": _flash, "exchanger": _exchanger}
 TITLES = {"letdown": "Let-down station", "flash": "Flash-steam recovery", "exchanger": "Steam heater"}
 
 
-def sketch_svg(record):
+def sketch_svg(record, shown=None):
     """The process sketch of a record as one SVG element (no scripts, no external references).
 
     Parameters
@@ -330,7 +333,7 @@ def sketch_svg(record):
     kind = record.get("kind")
     if kind not in DRAWINGS:
         return ""
-    points = sketch_points(record)
+    points = sketch_points(record, shown)
     body, height = DRAWINGS[kind](points, record)
     title = f"Process sketch: {TITLES[kind]} {record.get('id', '')} rev {record.get('revision', '')}".strip()
     return "\n".join([
