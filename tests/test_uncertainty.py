@@ -155,3 +155,18 @@ def test_unknown_uncertainty_key_in_case_file_exits_2(tmp_path, demo_site_dir, c
     case.write_text(case.read_text().replace('mass_flow = "5 %"', 'mass_flwo = "5 %"'))
     assert main(["run", str(case)]) == 2
     assert "mass_flwo" in capsys.readouterr().err
+
+
+def test_a_record_whose_samples_partly_fail_verifies_as_issued(tmp_path, demo_site_dir, capsys):
+    # run and verify add the samples' check (and its warning) the same way: a widened flow tolerance
+    # whose samples partly give no result issued, then failed its own verify ("warnings: not issued").
+    site = tmp_path / "site"
+    shutil.copytree(demo_site_dir, site, ignore=shutil.ignore_patterns("records"))
+    case = site / "cases" / "LD-01.toml"
+    case.write_text(case.read_text().replace('mass_flow = "5 %"', 'mass_flow = "90 %"'))
+    assert main(["run", str(case)]) == 0
+    record = load_record(site / "records" / "LD-01_revA.json")
+    assert any(w.startswith("Uncertainty samples:") for w in record["warnings"])
+    capsys.readouterr()
+    assert main(["verify", str(site / "records" / "LD-01_revA.json")]) == 0
+    assert "verdict: VERIFIED" in capsys.readouterr().out

@@ -32,12 +32,12 @@ def record_for_case(case, site, *, inputs=None, given=None, created=None, with_u
         result = calc.calculate(inputs, site)
         uncertainty = None
         if case.uncertainty and with_uncertainty:
-            from ..runs.uncertainty import parse_coverage, parse_tolerances, run_uncertainty, sample_check
+            from ..runs.uncertainty import add_sample_check, parse_coverage, parse_tolerances, run_uncertainty
             tolerances, samples, seed = parse_tolerances(calc.Inputs, case.uncertainty, inputs)
             if tolerances:
                 uncertainty = run_uncertainty(calc, inputs, site, tolerances, samples, seed,
                                               coverage=parse_coverage(case.uncertainty), nominal_result=result)
-                result.check(*sample_check(uncertainty))
+                add_sample_check(result, uncertainty)
     except SteamcalcError as exc:
         raise exc.with_source(case.path)
     return build_record(uncertainty=uncertainty,

@@ -20,6 +20,7 @@ from ..properties.engines import REFERENCE_ENGINE, check_engine
 from ..errors import SteamcalcError
 from ..records.record import compute_content_digest, compute_digest, provenance
 from ..runs.runner import recompute, recompute_uncertainty
+from ..runs.uncertainty import add_sample_check
 
 #: Relative tolerance on recomputed numbers; IF97 evaluations are deterministic, so
 #: this only absorbs floating-point differences between platforms and library builds.
@@ -186,7 +187,6 @@ def verify_record(record, engine=REFERENCE_ENGINE):
         result.comparisons.append(_compare(key, old_results.get(key), new_results.get(key)))
     if "figures" in record:   # schema 2 on: the figure data is recomputed like the results
         result.comparisons.extend(compare_figures(record["figures"], [f.to_record() for f in fresh.figures]))
-    new_checks = [(c.name, c.status, c.detail) for c in fresh.checks]
     if "uncertainty" in record:
         if engine == REFERENCE_ENGINE:
             section = _compare_uncertainty(record, result, fresh)
@@ -195,8 +195,8 @@ def verify_record(record, engine=REFERENCE_ENGINE):
             result.notes.append("uncertainty bands not recomputed on this engine (their samples run on the fast "
                                 "engine already); the ordinary verification reproduces them")
         if section is not None and "failed_sample_count" in section:
-            from ..runs.uncertainty import sample_check
-            new_checks.append(tuple(sample_check(section)))
+            add_sample_check(fresh, section)   # as run adds it: its check and, when it warns, its warning
+    new_checks = [(c.name, c.status, c.detail) for c in fresh.checks]
     old_checks = [(c.get("name"), c.get("status"), c.get("detail")) for c in record.get("checks", [])]
     if len(old_checks) == len(new_checks) and all(
             a[:2] == b[:2] and same_text(a[2], b[2]) for a, b in zip(old_checks, new_checks)):

@@ -392,6 +392,15 @@ def summary_lines(section, calc):
     return lines
 
 
+def add_sample_check(result, section):
+    """Add the uncertainty section's own check (samples that gave no result) to a result.
+
+    The one way ``run`` and ``verify`` add it, so that its check and its warning are the same in the
+    record and in the recomputation.
+    """
+    result.check(*sample_check(section))
+
+
 def tolerances_from_record(inputs_class, section):
     """Tolerances back from a record's uncertainty section (for re-verification)."""
     kinds = {f.name: f.metadata["kind"] for f in input_fields(inputs_class)}
@@ -406,5 +415,5 @@ def tolerances_from_record(inputs_class, section):
     return tuple(tolerances)
 
 
-__all__ = ["Tolerance", "parse_coverage", "parse_tolerances", "run_uncertainty", "sample_check", "summary_lines",
+__all__ = ["Tolerance", "add_sample_check", "parse_coverage", "parse_tolerances", "run_uncertainty", "sample_check", "summary_lines",
            "tolerances_from_record"]

@@ -160,8 +160,10 @@ def noise_chart(inputs, result):
     limit = parse_sound_level(inputs.noise_limit) if inputs.noise_limit is not None else DEFAULT_NOISE_LIMIT
     geometry = noise_geometry(inputs)
     inlet = result.states["valve_inlet_normal"]
+    outlet = result.states["valve_outlet_normal"]   # isenthalpic at the outlet pressure: the same at every flow
     flows, levels = _where_sized(_flow_span(cases, NOISE_POINTS),
-                                 lambda w: stage_noise(inputs, inlet, inputs.outlet_pressure, w, geometry)[1])
+                                 lambda w: stage_noise(inputs, inlet, inputs.outlet_pressure, w, geometry,
+                                                       outlet=outlet)[1])
     ends = (flows[0] * 3600, flows[-1] * 3600)
     series = (Series("at the normal pressures", tuple(flows * 3600), tuple(levels), role="outlet"),
               Series("flow cases (own pressures)", tuple(w * 3600 for _, w in cases),

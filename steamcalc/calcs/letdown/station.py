@@ -78,15 +78,15 @@ def noise_geometry(inputs):
     return port, port_d, pipe_d, wall
 
 
-def stage_noise(inputs, inlet, p2, flow, geometry, kv=None):
+def stage_noise(inputs, inlet, p2, flow, geometry, kv=None, outlet=None):
     """Kv, noise (dB(A)) and outlet state of one stage from an inlet state to p2 (the Kv sized
-    here unless given)."""
+    here unless given; the outlet state, isenthalpic at p2, found here unless given)."""
     kappa = sizing_kappa(inlet)
     if kv is None:
         xt, (valve_d, inlet_d, outlet_d) = _valve_geometry(inputs)
         kv = size_steam_valve(flow * 3600, inlet.pressure / 1e3, p2 / 1e3, inlet.density, kappa, xt,
                               valve_d=valve_d, inlet_d=inlet_d, outlet_d=outlet_d).kv
-    outlet = SteamState.from_ph(p2, inlet.enthalpy)
+    outlet = SteamState.from_ph(p2, inlet.enthalpy) if outlet is None else outlet
     _, port_d, pipe_d, wall = geometry
     level = valve_noise(flow, inlet, outlet, kappa, kv, port_d, pipe_d, wall,
                         inputs.fd if inputs.fd is not None else DEFAULT_FD,
