@@ -459,8 +459,9 @@ def _verify_trust(args, raw, record, outcome):
         _say(f"  companion {c.path.name}: " + {"match": "matches the JSON", "absent": "absent",
               "repaired": "re-rendered from the JSON (repaired)",
               "differs": "DIFFERS from the JSON's rendering (edited by hand?)",
-              "older": "drawn by the earlier release that issued the record; it names this record's digest "
-                       "but is not compared line by line - --repair draws it again"}[c.verdict])
+              "older": "as this release draws it but for the charts release 0.2 drew (a schema-1 record keeps "
+                       "no figure data, so they are not checked); kept as it is - re-issue the case under a new "
+                       "revision for charts drawn from figure data"}[c.verdict])
         ok = ok and c.verdict != "differs"
     if args.repair and not outcome.ok:
         _say("  repair: not done - the JSON itself does not verify, so it is not rendered again")

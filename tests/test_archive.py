@@ -32,15 +32,53 @@ def test_an_archived_record_verifies(record, tmp_path, capsys):
     said = capsys.readouterr().out
     assert "verdict: VERIFIED" in said and "DIFFERS" not in said
     if record.parent.name == "v0_2":
-        assert f"companion {record.stem}.html: drawn by the earlier release that issued the record" in said
+        assert f"companion {record.stem}.html: as this release draws it but for the charts release 0.2 drew" in said
 
 
-def test_an_edited_report_of_an_archived_record_is_still_caught(tmp_path, capsys):
-    # "Older" is only for a report that names the record's digest: one that does not is reported as edited.
+def test_repair_keeps_an_earlier_release_report_whose_charts_cannot_be_drawn_again(tmp_path, capsys):
+    record = ARCHIVE / "v0_2" / "LD-01_revA.json"
+    for companion in record.parent.glob("LD-01_revA.*"):
+        shutil.copy(companion, tmp_path / companion.name)
+    before = (tmp_path / "LD-01_revA.html").read_bytes()
+    assert main(["verify", str(tmp_path / record.name), "--repair"]) == 0
+    assert (tmp_path / "LD-01_revA.html").read_bytes() == before and before.count(b"steamcalc-chart-") > 0
+
+
+@pytest.mark.parametrize("edit", [
+    lambda text: text.replace("warn</td>", "pass</td>", 1),                            # a verdict outside the charts
+    lambda text: text.replace("sha256:", "sha256:0"),                                   # the digests shown
+    lambda text: text[:text.index("<h2>")] + "<h2>all checks met</h2></body></html>",   # a page replaced
+], ids=["verdict", "digest", "replaced"])
+def test_an_edited_report_of_an_archived_record_is_still_caught(tmp_path, capsys, edit):
+    # Only release 0.2's charts go unchecked: every other byte of its page must be as this release draws it.
     record = ARCHIVE / "v0_2" / "LD-02_revA.json"
     for companion in record.parent.glob("LD-02_revA.*"):
         shutil.copy(companion, tmp_path / companion.name)
     html = tmp_path / "LD-02_revA.html"
-    html.write_text(html.read_text(encoding="utf-8").replace("sha256:", "sha256:0"), encoding="utf-8")
+    text = html.read_text(encoding="utf-8")
+    assert edit(text) != text
+    html.write_text(edit(text), encoding="utf-8")
     assert main(["verify", str(tmp_path / record.name)]) == 1
+    assert "companion LD-02_revA.html: DIFFERS" in capsys.readouterr().out
+
+
+def test_a_record_relabelled_as_the_earlier_schema_gets_no_pass_for_its_report(tmp_path, capsys):
+    # A schema-2 record relabelled schema 1 (figures dropped, digests recomputed) with a forged page.
+    import json
+
+    from steamcalc.records.record import compute_content_digest, compute_digest
+
+    assert main(["run", str(ARCHIVE.parent.parent / "workbooks" / "demo_site" / "cases" / "LD-02.toml"),
+                 "--out", str(tmp_path), "--quiet"]) == 0
+    path = tmp_path / "LD-02_revA.json"
+    record = json.loads(path.read_text(encoding="utf-8"))
+    record["schema"] = "steamcalc.record/1"
+    del record["figures"]
+    record["content_digest"] = compute_content_digest(record)
+    record["digest"] = compute_digest(record)
+    path.write_text(json.dumps(record, indent=2), encoding="utf-8")
+    html = tmp_path / "LD-02_revA.html"
+    html.write_text(html.read_text(encoding="utf-8").replace("warn</td>", "pass</td>", 1), encoding="utf-8")
+    capsys.readouterr()
+    assert main(["verify", str(path)]) == 1
     assert "companion LD-02_revA.html: DIFFERS" in capsys.readouterr().out

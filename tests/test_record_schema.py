@@ -144,3 +144,20 @@ def test_a_record_being_built_may_hold_tuples_where_its_file_holds_lists(issued)
         for series in figure.get("series", ()):
             series["x"], series["y"] = tuple(series["x"]), tuple(series["y"])
     validate_record(record)
+
+
+@pytest.mark.parametrize("edit, field", [
+    (lambda r: r["figures"][1]["axes"]["y"].update(range=[5.0, 5.0]), "figures.1.axes.y.range"),
+    (lambda r: r["figures"][1]["series"][0]["y"].pop(), "figures.1.series.0.y"),
+    (lambda r: r["figures"][1]["series"][0].update(axis="y2") or r["figures"][1]["axes"].pop("y2", None),
+     "figures.1.series.0.axis"),
+    (lambda r: r["figures"][1]["series"][0]["y"].__setitem__(0, 1.7e308), "figures.1.series.0.y"),
+    (lambda r: r["figures"].append(dict(r["figures"][0])), "figures.3.name"),
+    (lambda r: r["figures"][0]["axes"]["x"].update(unit="__import__('os')"), "figures.0.axes.x.unit"),
+], ids=["empty range", "y shorter than x", "axis absent", "beyond a double's drawing", "name twice", "unit as code"])
+def test_figure_data_the_views_cannot_draw_is_refused_by_field(issued, tmp_path, edit, field):
+    # What the schema cannot say: lengths, the axes a series names, ranges, sizes, names given twice.
+    path = _edited(issued["LD-01"], tmp_path, edit)
+    with pytest.raises(RecordError) as info:
+        load_record(path)
+    assert info.value.field == field and str(path) in str(info.value)

@@ -325,9 +325,13 @@ def figure_or_missing(name, title, build):
     """
     try:
         return build()
-    except (InputError, SteamcalcError, ArithmeticError, ValueError) as exc:
-        reason = exc.message if isinstance(exc, SteamcalcError) else str(exc)
-        return Figure(name, title, missing=f"not drawn: {reason}")
+    except SteamcalcError as exc:
+        return Figure(name, title, missing=f"not drawn: {exc.message}")
+    except (ArithmeticError, ValueError) as exc:
+        return Figure(name, title, missing=f"not drawn: {exc}")
+    except Exception as exc:   # a fault in the figure's own code must not stop the record: it is named instead
+        return Figure(name, title, missing=f"not drawn: a fault in steamcalc's figure code ({type(exc).__name__}: "
+                                           f"{exc}); please report it - the results and checks are not affected")
 
 
 def _finite(value):
@@ -371,7 +375,14 @@ class Result:
     figures: list = field(default_factory=list)
 
     def add(self, key, label, value, unit=""):
-        """Add a result value. A float must be finite: a NaN or infinity is a bug, not a result."""
+        """Add a result value. A float must be finite: a NaN or infinity is a bug, not a result.
+
+        A value of None is a quantity the state does not define (the superheat of water above the
+        critical pressure): no result is added, and the record says so among its assumptions.
+        """
+        if value is None:
+            self.assumptions.append(f"{label}: not defined for this state, so not given")
+            return None
         if isinstance(value, float) and not math.isfinite(value):
             raise ArithmeticError(f"result {key} is not finite ({value})")
         self.values[key] = ResultValue(label, value, unit)

@@ -6,7 +6,7 @@ shape is refused by name (the file, the field as a dotted path, the value) inste
 somewhere later. The schema accepts both readable layouts, ``steamcalc.record/1`` and
 ``steamcalc.record/2``.
 
-This module imports no other part of steamcalc but its errors, so that
+This module imports no other part of steamcalc but its errors and unit names, so that
 :mod:`steamcalc.records.record` can use it without an import cycle.
 """
 
@@ -20,6 +20,7 @@ from importlib import resources
 import fastjsonschema
 
 from ..errors import RecordError
+from ..units.quantities import is_plain_unit
 
 SCHEMA_FILE = "record.schema.json"
 #: The fix for a record file that does not follow the schema.
@@ -112,6 +113,60 @@ def _explained(error):
     return field, f"breaks the schema's rule {rule!r}", _excerpt(instance)
 
 
+#: Largest magnitude of a figure coordinate: far beyond any quantity of a steam system, and small enough that
+#: a drawing's arithmetic (spans, ticks) stays finite.
+MAX_COORDINATE = 1e15
+
+
+def _figure_problem(figures):
+    """What the schema cannot say of a figure: ``(field, what is wrong, value)``, or None when it is sound.
+
+    Each series has as many y values as x values, and point labels for none or all of them; the axes its
+    series and bands use exist; an axis range runs from low to high; a log axis holds no value at or below
+    zero; no coordinate exceeds :data:`MAX_COORDINATE`; names are not given twice.
+    """
+    names = set()
+    for f, figure in enumerate(figures):
+        where = f"figures.{f}"
+        if figure.get("name") in names:
+            return f"{where}.name", "names a figure given before", _excerpt(figure.get("name"))
+        names.add(figure.get("name"))
+        if "missing" in figure:
+            if "axes" in figure or "series" in figure or "bands" in figure:
+                return f"{where}.missing", "is given beside data: a figure is either drawn or missing", None
+            continue
+        axes = figure.get("axes", {})
+        for key, axis in axes.items():
+            if not is_plain_unit(axis.get("unit", "")):
+                return f"{where}.axes.{key}.unit", "is not a plain unit name", _excerpt(axis.get("unit"))
+            span = axis.get("range")
+            if span is not None and not (len(span) == 2 and abs(span[0]) <= MAX_COORDINATE
+                                         and abs(span[1]) <= MAX_COORDINATE and span[0] < span[1]):
+                return f"{where}.axes.{key}.range", "must run from a low to a higher value", _excerpt(span)
+        for s, series in enumerate(figure.get("series", ())):
+            at = f"{where}.series.{s}"
+            x, y = series.get("x", ()), series.get("y", ())
+            if len(x) != len(y):
+                return f"{at}.y", f"has {len(y)} values for {len(x)} x values", None
+            if series.get("labels") and len(series["labels"]) != len(x):
+                return f"{at}.labels", f"has {len(series['labels'])} labels for {len(x)} points", None
+            if series.get("axis", "y") not in axes or "x" not in axes:
+                return f"{at}.axis", "names an axis the figure does not have", _excerpt(series.get("axis", "y"))
+            for key, values in (("x", x), (series.get("axis", "y"), y)):
+                name = "x" if key == "x" else "y"
+                if any(abs(v) > MAX_COORDINATE for v in values):
+                    return f"{at}.{name}", f"holds a value beyond ±{MAX_COORDINATE:g}", None
+                if axes[key].get("scale") == "log" and any(v <= 0 for v in values):
+                    return f"{at}.{name}", "holds a value at or below zero on a log axis", None
+        for b, band in enumerate(figure.get("bands", ())):
+            if band.get("axis") not in axes:
+                return f"{where}.bands.{b}.axis", "names an axis the figure does not have", _excerpt(band.get("axis"))
+            if not band.get("low", 0) < band.get("high", 0) or max(abs(band.get("low", 0)),
+                                                                   abs(band.get("high", 0))) > MAX_COORDINATE:
+                return f"{where}.bands.{b}", "must run from a low to a higher value", None
+    return None
+
+
 def validate_record(record, source=None):
     """Check a record against the record schema.
 
@@ -142,7 +197,10 @@ def validate_record(record, source=None):
     except fastjsonschema.JsonSchemaValueException as error:
         field, what, value = _explained(error)
     else:
-        return
+        problem = _figure_problem(record.get("figures") or ()) if isinstance(record, dict) else None
+        if problem is None:
+            return
+        field, what, value = problem
     raise RecordError(f"does not follow the steamcalc record schema: it {what}", field=field, value=value,
                       source=source, fix=FIX if source is not None else FIX_BUILT)
 

@@ -424,18 +424,26 @@ def record_figures(record, shown=None):
     if "figures" not in record:
         return {"sketch": sketch, "charts": [],
                 "note": "This record was issued by an earlier release (schema 1), which kept no figure data: "
-                        "its charts are not redrawn here. Re-issue it from its case file for the charts."}
+                        "its charts are not redrawn here. Re-issue the case under a new revision for charts drawn from figure data."}
     system = record.get("site", {}).get("display_units", "SI")
     system = system if system in SYSTEMS else "SI"
     charts = []
     for number, figure in enumerate(record["figures"], start=1):
-        spec = figure_spec(figure, system)
+        try:
+            spec = figure_spec(figure, system)
+            svg = None if spec is None else figure_svg(spec, f"steamcalc-chart-{number}")
+        except (ArithmeticError, ValueError, KeyError, TypeError, AttributeError) as exc:
+            # A record read from a file has passed its schema; this is for one built in memory by hand
+            # (pint's unknown-unit error is an AttributeError).
+            charts.append({"title": figure.get("title", f"Figure {number}"), "svg": "", "notes": [],
+                           "missing": f"could not be drawn from the figure data ({type(exc).__name__}: {exc})"})
+            continue
         if spec is None:
             charts.append({"title": figure.get("title", f"Figure {number}"), "svg": "",
                            "missing": figure.get("missing", "no data"), "notes": []})
             continue
         charts.append({"title": figure.get("title", f"Figure {number}"), "missing": "", "notes": band_notes(figure),
-                       "svg": Markup(figure_svg(spec, f"steamcalc-chart-{number}"))})
+                       "svg": Markup(svg)})
     return {"sketch": sketch, "charts": charts, "note": ""}
 
 

@@ -19,7 +19,8 @@ SECTIONS = {
     "record": "Record", "inputs": "Inputs", "tolerances": "Input tolerances (±)", "results": "Results",
     "bands": "Uncertainty bands", "sensitivity": "Sensitivity (swing of the result over each tolerance)",
     "uncertainty": "Uncertainty method", "checks": "Checks", "assumptions": "Assumptions", "cautions": "Cautions",
-    "references": "References", "warnings": "Warnings", "site": "Site data", "software": "Software",
+    "references": "References", "warnings": "Warnings", "figures": "Figures (their data)", "site": "Site data",
+    "software": "Software",
 }
 #: Row status -> its marker in the terminal and Markdown (the HTML page uses the same).
 MARKERS = {"changed": "*", "added": "+", "removed": "-", "same": "="}
@@ -96,6 +97,7 @@ def compare_records(old, new):
         for text in list(a) + [t for t in b if t not in a]:
             rows.append(_row(section, "", label, text if text in a else None, text if text in b else None,
                              presence=(text in a, text in b)))
+    _figures(rows, _list(old.get("figures")), _list(new.get("figures")))
     for section in ("site", "software"):
         field = "provenance" if section == "software" else "site"
         a, b = _table(old.get(field)), _table(new.get(field))
@@ -187,6 +189,32 @@ def _checks(rows, a, b):
         if row["status"] == "changed":
             row["change"] = (f"status {x.get('status')} → {y.get('status')}" if x.get("status") != y.get("status")
                              else "detail")
+        rows.append(row)
+
+
+def _figure_words(figure):
+    if "missing" in figure:
+        return f"missing: {figure['missing']}"
+    series = figure.get("series") or []
+    return f"{len(series)} series, {sum(len(s.get('x') or ()) for s in series if isinstance(s, dict))} points"
+
+
+def _figures(rows, old, new):
+    """One row per figure: its series and points, changed when any of its data differs (as verify compares it)."""
+    from .verify import compare_figures
+
+    old = [f for f in old if isinstance(f, dict)]
+    new = [f for f in new if isinstance(f, dict)]
+    verdicts = {c.key.removeprefix("figure "): c for c in compare_figures(old, new)}
+    before, after = {f.get("name"): f for f in old}, {f.get("name"): f for f in new}
+    for name in list(before) + [n for n in after if n not in before]:
+        a, b = before.get(name), after.get(name)
+        row = _row("figures", name, (b or a).get("title") or str(name), None if a is None else _figure_words(a),
+                   None if b is None else _figure_words(b), presence=(a is not None, b is not None))
+        comparison = verdicts.get(str(name))
+        if row["status"] == "same" and comparison is not None and comparison.verdict == "differs":
+            where = str(comparison.recomputed).partition("(")[2].rstrip(")") or "its data"
+            row.update(status="changed", marker=MARKERS["changed"], change=where)
         rows.append(row)
 
 

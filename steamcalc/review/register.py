@@ -247,7 +247,7 @@ def register_row(path, record, *, trusted, case=None, site_path=None, later_revi
     absent = [c.path.suffix.lstrip(".") for c in companions if c.verdict == "absent"]
     older = [c.path.suffix.lstrip(".") for c in companions if c.verdict == "older"]
     row.companions = ("DIFFER: " + ", ".join(differ)) if differ else ("absent: " + ", ".join(absent)) if absent else \
-        ("drawn by an earlier release: " + ", ".join(older)) if older else "match"
+        ("match but for the charts release 0.2 drew: " + ", ".join(older)) if older else "match"
     if differ:
         row.stale.append("companions do not match")
     return row

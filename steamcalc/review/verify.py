@@ -139,6 +139,13 @@ def compare_figures(recorded, recomputed):
         if new is None:
             comparisons.append(Comparison(key, f"{_points(figure)} points", None, "", None, None, "missing"))
             continue
+        if "missing" in figure or "missing" in new:
+            said = {True: "missing: {}", False: "{} points"}
+            recorded_text = said["missing" in figure].format(figure.get("missing") or _points(figure))
+            fresh_text = said["missing" in new].format(new.get("missing") or _points(new))
+            comparisons.append(Comparison(key, recorded_text, fresh_text, "", None, None,
+                                          "same" if figure == new else "differs"))
+            continue
         found = []
         _walk(figure, new, "", found)
         numeric = [(a, r) for _, a, r in found if a is not None]
@@ -150,6 +157,10 @@ def compare_figures(recorded, recomputed):
     for name, figure in fresh.items():
         if name not in names:
             comparisons.append(Comparison(f"figure {name}", None, f"{_points(figure)} points", "", None, None, "new"))
+    order = [name for name in names if name in fresh]
+    if order != [name for name in fresh if name in names]:
+        comparisons.append(Comparison("figure order", ", ".join(map(str, names)), ", ".join(fresh), "", None, None,
+                                      "differs"))
     return comparisons
 
 
@@ -287,30 +298,30 @@ class CompanionCheck:
     verdict: str  # "match", "differs", "absent", "repaired", "older" (drawn by an earlier release)
 
 
-def _drawn_by_earlier_release(path, record):
-    """A report of a record issued by an earlier release of steamcalc, naming this record's digest.
+#: A chart of the HTML record as release 0.2 drew it: one <figure> holding an SVG whose ids start so.
+_EARLIER_CHART = re.compile(r'<figure style="margin:\.5em 0 1em;break-inside:avoid"><svg [^>]*>(?:(?!</figure>).)*?'
+                            r'id="steamcalc-chart-\d+(?:(?!</figure>).)*</figure>\n', re.S)
+_SCHEMA_1_NOTE = re.compile(r'<p class="small">This record was issued by an earlier release \(schema 1\)[^<]*</p>')
 
-    Such a report was drawn by that release's views (and a schema-1 record kept no figure data, so
-    its charts cannot be drawn again): it is reported as older, not as edited, and ``--repair``
-    draws it again. A report of a record issued by this release is always compared in full.
+
+def _drawn_by_earlier_release(text, fresh, record):
+    """A report of a schema-1 record (release 0.2) as that release drew it: all but its charts as this release draws them.
+
+    Release 0.2 kept no figure data and drew its charts by re-running the calculation, so those charts
+    cannot be drawn again from the record; everything else on the page must be as this release draws it,
+    byte for byte. The schema, not the stated software version, decides (a version is one field anyone
+    can edit), and a schema-1 record never has figure data.
     """
-    from ..records.record import SCHEMA, provenance
-
-    issued_by = (record.get("provenance") or {}).get("steamcalc")
-    if (record.get("schema") == SCHEMA and issued_by == provenance().get("steamcalc")) or \
-            not isinstance(record.get("digest"), str):
+    if record.get("schema") != "steamcalc.record/1" or "figures" in record:
         return False
-    try:
-        return record["digest"] in Path(path).read_text(encoding="utf-8")
-    except (OSError, UnicodeDecodeError):
-        return False
+    return _EARLIER_CHART.sub("", text) == _SCHEMA_1_NOTE.sub("", fresh)
 
 
 def check_companions(json_path, record, repair=False):
     """Re-render a record's HTML and Markdown and compare them with the files beside it.
 
-    A report of a record from an earlier release that names the record's digest is ``older``: drawn
-    by that release, not compared line by line.
+    A report of a schema-1 record that is as this release draws it but for the charts release 0.2 drew
+    is ``older``: its charts are not checked, and ``repair`` keeps it (they cannot be drawn again).
 
     Parameters
     ----------
@@ -332,15 +343,19 @@ def check_companions(json_path, record, repair=False):
     for suffix, render in RENDERERS.items():
         path = Path(json_path).with_suffix(suffix)
         fresh = render(record)
+        text = None
         try:
-            verdict = "match" if path.read_text(encoding="utf-8") == fresh else "differs"
+            text = path.read_text(encoding="utf-8")
+            verdict = "match" if text == fresh else "differs"
         except FileNotFoundError:
             verdict = "absent"
         except (OSError, UnicodeDecodeError):
             verdict = "differs"
-        if verdict == "differs" and _drawn_by_earlier_release(path, record):
+        if verdict == "differs" and _drawn_by_earlier_release(text, fresh, record):
             verdict = "older"
-        if repair and verdict != "match":
+        if repair and verdict == "older":
+            pass   # the earlier release's charts cannot be drawn again: the report is kept as it is
+        elif repair and verdict != "match":
             write_text_atomic(path, fresh)
             verdict = "repaired"
         checks.append(CompanionCheck(path, verdict))

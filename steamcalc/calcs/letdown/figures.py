@@ -27,6 +27,10 @@ NOISE_POINTS = 16
 FLOW_SPAN = (0.8, 1.1)
 #: Entropy margin either side of the process on the h–s chart, J/(kg K).
 ENTROPY_MARGIN = 400.0
+#: The figures' titles, by name.
+TITLES = {"enthalpy_entropy": "Let-down on the enthalpy–entropy chart",
+          "valve": "Control valve: required Kv and travel against flow",
+          "noise": "Control valve noise at 1 m from the pipe (IEC 60534-8-3)"}
 
 
 def saturation_line():
@@ -93,7 +97,7 @@ def enthalpy_entropy_chart(inputs, result):
                          tuple(state.enthalpy / 1e3 for _, state in states), style="line+markers",
                          labels=tuple(label for label, _ in states)))
     enthalpies = [state.enthalpy / 1e3 for _, state in states]
-    return Figure("enthalpy_entropy", "Let-down on the enthalpy–entropy chart",
+    return Figure("enthalpy_entropy", TITLES["enthalpy_entropy"],
                   x=Axis("specific entropy s", "kJ/(kg*K)", low=s_low / 1e3, high=s_high / 1e3),
                   y=Axis("specific enthalpy h", "kJ/kg", low=min(enthalpies) - 250.0, high=max(enthalpies) + 200.0),
                   series=tuple(series))
@@ -146,7 +150,7 @@ def valve_chart(inputs, result):
                              labels=tuple(n for n, _ in spray)))
         if with_travel and y2 is None:
             y2 = Axis("travel", "percent", low=0.0, high=100.0)
-    return Figure("valve", "Control valve: required Kv and travel against flow",
+    return Figure("valve", TITLES["valve"],
                   x=Axis("steam flow", "kg/h"), y=Axis("required Kv", "m**3/h"), y2=y2, series=tuple(series),
                   bands=bands)
 
@@ -170,18 +174,14 @@ def noise_chart(inputs, result):
                      tuple(result.value(f"valve_noise_{n}") for n, _ in cases), style="markers",
                      labels=tuple(n for n, _ in cases)),
               Series("noise limit", ends, (limit, limit), role="limit", dash="dash"))
-    return Figure("noise", "Control valve noise at 1 m from the pipe (IEC 60534-8-3)",
+    return Figure("noise", TITLES["noise"],
                   x=Axis("steam flow", "kg/h"), y=Axis("sound pressure level, A-weighted", "dB"), series=series)
 
 
 def figures(inputs, result):
     """The let-down's figures, in the order the record shows them."""
-    made = [figure_or_missing("enthalpy_entropy", "Let-down on the enthalpy–entropy chart",
-                              lambda: enthalpy_entropy_chart(inputs, result)),
-            figure_or_missing("valve", "Control valve: required Kv and travel against flow",
-                              lambda: valve_chart(inputs, result)),
-            figure_or_missing("noise", "Control valve noise at 1 m from the pipe (IEC 60534-8-3)",
-                              lambda: noise_chart(inputs, result))]
+    makers = {"enthalpy_entropy": enthalpy_entropy_chart, "valve": valve_chart, "noise": noise_chart}
+    made = [figure_or_missing(name, TITLES[name], lambda make=make: make(inputs, result)) for name, make in makers.items()]
     return [figure for figure in made if figure is not None]
 
 
