@@ -334,11 +334,16 @@ def figure_or_missing(name, title, build):
                                            f"{exc}); please report it - the results and checks are not affected")
 
 
+#: Largest magnitude of a figure coordinate: far beyond any quantity of a steam system, and small enough
+#: that a drawing's arithmetic (spans, ticks) stays finite. The record schema holds figures to it too.
+MAX_FIGURE_COORDINATE = 1e15
+
+
 def _finite(value):
-    """A figure coordinate as the record keeps it: a finite float, else a bug."""
+    """A figure coordinate as the record keeps it: a finite float within :data:`MAX_FIGURE_COORDINATE`."""
     value = float(value)
-    if not math.isfinite(value):
-        raise ArithmeticError(f"figure coordinate is not finite ({value})")
+    if not math.isfinite(value) or abs(value) > MAX_FIGURE_COORDINATE:
+        raise ArithmeticError(f"figure coordinate {value:g} is not a finite value within ±{MAX_FIGURE_COORDINATE:g}")
     return value
 
 

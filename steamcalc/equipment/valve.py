@@ -128,6 +128,17 @@ def piping_factors(kv, valve_d, inlet_d, outlet_d, xt):
     return fp, xtp
 
 
+def _refuse_undefined_fp():
+    # 1 + ΣK/N2·(Kv/d²)² fell to zero or below (a valve larger than its pipe: negative Bernoulli
+    # coefficients), or the Kv–Fp iteration ran away (a Kv far beyond what the valve size holds): either
+    # way the reducer equations of IEC 60534-2-1 give no Kv.
+    raise InputError("the piping geometry factor Fp has no value at this flow: the valve size cannot pass it "
+                     "between these pipes (the Kv the flow needs is beyond what the IEC 60534-2-1 reducer "
+                     "equations hold for this size)", field="valve.valve_size",
+                     fix="give a larger valve size, no larger than the pipes either side (lines.inlet_size, "
+                         "lines.outlet_size), or a smaller flow")
+
+
 def _inverse_sqrt(value):
     """1/√value, NaN where value ≤ 0 (never a complex number): the caller refuses a NaN by name."""
     if isinstance(value, np.ndarray):
@@ -190,6 +201,7 @@ def size_steam_valve(mass_flow, p1, p2, density1, kappa, xt, valve_d=None, inlet
     f_gamma = specific_heat_ratio_factor(kappa)
     fp, xtp = 1.0, xt
     kv = None
+    converged = valve_d is None or (inlet_d is None and outlet_d is None)
     for _ in range(50):
         x_choked = f_gamma * xtp
         x_siz = _smaller(x, x_choked)
@@ -200,18 +212,13 @@ def size_steam_valve(mass_flow, p1, p2, density1, kappa, xt, valve_d=None, inlet
             break
         if kv is not None and np.all(abs(new_kv - kv) <= 1e-10 * new_kv):
             kv = new_kv
+            converged = True
             break
         kv = new_kv
         with np.errstate(invalid="ignore"):   # an undefined Fp is refused below, by name
             fp, xtp = piping_factors(kv, valve_d, inlet_d, outlet_d, xt)
-    if not (np.all(np.isfinite(kv)) and np.all(np.isfinite(fp)) and np.all(np.asarray(xtp) > 0.0)):
-        # 1 + ΣK/N2·(Kv/d²)² fell to zero or below: a valve larger than its pipe (negative Bernoulli
-        # coefficients) at a Kv this large is outside the reducer equations of IEC 60534-2-1.
-        raise InputError("the piping geometry factor Fp has no value at this flow: the valve is larger than the "
-                         "pipe on its inlet or outlet, and at the Kv this flow needs the IEC 60534-2-1 reducer "
-                         "equations no longer hold", field="valve.valve_size",
-                         fix="give a valve size no larger than the pipes either side (lines.inlet_size, "
-                             "lines.outlet_size), or a smaller flow")
+    if not (converged and np.all(np.isfinite(kv)) and np.all(np.isfinite(fp)) and np.all(np.asarray(xtp) > 0.0)):
+        _refuse_undefined_fp()
     x_choked = f_gamma * xtp
     return ValveSizing(kv=kv, cv=kv_to_cv(kv), x=x, x_choked=x_choked, choked=x >= x_choked,
                        expansion_factor=1.0 - _smaller(x, x_choked) / (3.0 * x_choked), piping_factor=fp, xtp=xtp)
@@ -235,6 +242,8 @@ def valve_flow(kv, p1, p2, density1, kappa, xt, piping_factor=1.0):
     >>> round(valve_flow(23.46, 1700.0, 350.0, 7.5, 1.30, 0.70), -1)
     4500.0
     """
+    if not (math.isfinite(piping_factor) and piping_factor > 0.0 and math.isfinite(xt) and xt > 0.0):
+        _refuse_undefined_fp()
     x = (p1 - p2) / p1
     x_choked = specific_heat_ratio_factor(kappa) * xt
     x_siz = min(x, x_choked)

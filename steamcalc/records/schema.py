@@ -6,7 +6,7 @@ shape is refused by name (the file, the field as a dotted path, the value) inste
 somewhere later. The schema accepts both readable layouts, ``steamcalc.record/1`` and
 ``steamcalc.record/2``.
 
-This module imports no other part of steamcalc but its errors and unit names, so that
+This module imports no other part of steamcalc but its errors, unit names and the figure bound, so that
 :mod:`steamcalc.records.record` can use it without an import cycle.
 """
 
@@ -19,6 +19,7 @@ from importlib import resources
 
 import fastjsonschema
 
+from ..calcs.base import MAX_FIGURE_COORDINATE
 from ..errors import RecordError
 from ..units.quantities import is_plain_unit
 
@@ -113,9 +114,8 @@ def _explained(error):
     return field, f"breaks the schema's rule {rule!r}", _excerpt(instance)
 
 
-#: Largest magnitude of a figure coordinate: far beyond any quantity of a steam system, and small enough that
-#: a drawing's arithmetic (spans, ticks) stays finite.
-MAX_COORDINATE = 1e15
+#: Largest magnitude of a figure coordinate (the calculation layer holds its figures to the same bound).
+MAX_COORDINATE = MAX_FIGURE_COORDINATE
 
 
 def _figure_problem(figures):

@@ -97,8 +97,12 @@ def service_u(u, fouling):
     --------
     >>> round(service_u(1800.0, 1e-4), 2)
     1525.42
+    >>> service_u(3561.7, 0.0) == 3561.7   # no fouling: the clean U itself, not 1/(1/U) a last bit apart
+    True
     """
-    return 1.0 / (1.0 / u + (fouling or 0.0))
+    if not fouling:
+        return u
+    return 1.0 / (1.0 / u + fouling)
 
 
 def zone_table(inputs, steam_states, t_sat, flow, duty, steam_side, steam_flow, water):

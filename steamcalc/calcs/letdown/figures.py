@@ -128,7 +128,11 @@ def valve_chart(inputs, result):
     inlet = result.states["inlet"]
     kappa = result.value("isentropic_exponent")
     cases = flow_cases(inputs)
-    flows, kvs = _where_sized(_flow_span(cases, FLOW_POINTS), lambda w: required_kv(inputs, inlet, kappa, w).kv)
+    flows = _flow_span(cases, FLOW_POINTS)
+    try:   # the whole span at once (the sizing takes arrays); point by point only when some flow is refused
+        kvs = [float(kv) for kv in required_kv(inputs, inlet, kappa, flows).kv]
+    except InputError:
+        flows, kvs = _where_sized(flows, lambda w: required_kv(inputs, inlet, kappa, w).kv)
     series = [Series("required Kv at the normal inlet pressure", tuple(flows * 3600), tuple(kvs), role="outlet"),
               Series("flow cases", tuple(w * 3600 for _, w in cases),
                      tuple(result.value(f"valve_kv_{n}") for n, _ in cases), style="markers",
