@@ -179,3 +179,16 @@ def test_html_record_escapes_user_text(site):
     page = (site / "records" / "LD-02_revA.html").read_text()
     assert "<script>alert(1)</script>" not in page and "&lt;script&gt;" in page
     assert render_html(load_record(site / "records" / "LD-02_revA.json")).count("<script") == 0
+
+
+def test_a_text_result_a_last_digit_apart_is_the_same_but_another_value_is_not():
+    # "2.337 bar(a) → 1.05 bar(a)" recomputed as "2.338 …" (2.3375000000000004 bar) failed its own verify.
+    from steamcalc.review.verify import _compare
+
+    pressures = "2.337 bar(a) → 1.05 bar(a)"
+    assert _compare("valve_pressures_normal", {"value": pressures}, {"value": "2.338 bar(a) → 1.05 bar(a)"}).verdict \
+        == "same"
+    assert _compare("valve_pressures_normal", {"value": pressures}, {"value": "2.437 bar(a) → 1.05 bar(a)"}).verdict \
+        == "differs"
+    assert _compare("relief_orifice", {"value": "J"}, {"value": "K"}).verdict == "differs"
+    assert _compare("inlet_phase", {"value": "superheated"}, {"value": "wet"}).verdict == "differs"
