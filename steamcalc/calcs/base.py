@@ -237,10 +237,16 @@ class Axis:
     high: float | None = None
     basis: str | None = None   # "absolute" for an axis of absolute pressures
 
+    def __post_init__(self):
+        # Checked when made, like a series, so that a bad range marks its figure missing.
+        if self.low is not None and self.high is not None:
+            object.__setattr__(self, "low", _finite(self.low))
+            object.__setattr__(self, "high", _finite(self.high))
+
     def to_record(self):
         entry = {"label": self.label, "unit": self.unit, "scale": self.scale}
         if self.low is not None and self.high is not None:
-            entry["range"] = [_finite(self.low), _finite(self.high)]
+            entry["range"] = [self.low, self.high]
         if self.basis:
             entry["basis"] = self.basis
         return entry
@@ -283,8 +289,12 @@ class Band:
     high: float
     label: str
 
+    def __post_init__(self):
+        object.__setattr__(self, "low", _finite(self.low))
+        object.__setattr__(self, "high", _finite(self.high))
+
     def to_record(self):
-        return {"axis": self.axis, "low": _finite(self.low), "high": _finite(self.high), "label": self.label}
+        return {"axis": self.axis, "low": self.low, "high": self.high, "label": self.label}
 
 
 @dataclass(frozen=True)

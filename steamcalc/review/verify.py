@@ -83,6 +83,11 @@ class Verification:
         return self.digest_ok and self.content_digest_ok and self.reproduced
 
 
+def _agrees(recorded, recomputed):
+    """A recomputed number agrees with the recorded one: within the relative tolerance, or the absolute one near zero."""
+    return abs(recorded - recomputed) <= max(RELATIVE_TOLERANCE * abs(recorded), ABSOLUTE_TOLERANCE)
+
+
 def _compare(key, recorded, recomputed):
     unit = recorded.get("unit", "") if recorded else recomputed.get("unit", "")
     if recorded is None:
@@ -93,8 +98,7 @@ def _compare(key, recorded, recomputed):
     if isinstance(a, (int, float)) and isinstance(b, (int, float)) and not isinstance(a, bool):
         diff = abs(a - b)
         rel = diff / abs(a) if a else (0.0 if diff == 0 else float("inf"))
-        same = diff <= max(RELATIVE_TOLERANCE * abs(a), ABSOLUTE_TOLERANCE) and recorded.get("unit", "") == \
-            recomputed.get("unit", "")
+        same = _agrees(a, b) and recorded.get("unit", "") == recomputed.get("unit", "")
         return Comparison(key, a, b, unit, diff, rel if rel != float("inf") else None,
                           "same" if same else "differs")
     # A text result holding numbers ("2.337 bar(a) → 1.05 bar(a)") is held to what its numbers can show: a
@@ -119,8 +123,8 @@ def _walk(old, new, path, found):
         elif old != new:
             found.append((path, None, None))
         return
-    diff = abs(old - new)
-    if diff > max(RELATIVE_TOLERANCE * abs(old), ABSOLUTE_TOLERANCE):
+    if not _agrees(old, new):
+        diff = abs(old - new)
         found.append((path, diff, diff / abs(old) if old else None))
 
 
