@@ -1,4 +1,7 @@
-"""Charts and tables for the workbooks (plotly): drawn from the record and the result, no engineering here."""
+"""Charts and tables for the workbooks (plotly): drawn from the record and the result, no engineering here.
+
+Each kind's table rows are made by its calculation layer (``calcs/<kind>/tables.py``); here they are only listed.
+"""
 
 from __future__ import annotations
 
@@ -7,111 +10,11 @@ from functools import lru_cache
 
 import plotly.graph_objects as go
 
-from ..calcs.exchanger.figures import turndown_series
+from ..calcs.exchanger.tables import turndown_rows
+from ..calcs.flash.tables import flash_stage_rows
+from ..calcs.letdown.tables import letdown_sections, valve_case_rows  # noqa: F401  (tests read them here)
 
 _COLOURS = {"saturation": "#5b6770", "inlet": "#b5442c", "outlet": "#2b6a99", "process": "#1d2327"}
-
-
-def flash_stage_rows(inputs, result):
-    """The cascade (or single flash) as rows for a table: one dict per stage."""
-    stages = inputs.stage_pressures
-    if len(stages) == 1:
-        return [{"stage": 1, "pressure, bar(a)": stages[0] / 1e5,
-                 "flash fraction, %": result.value("flash_fraction") * 100,
-                 "flash steam, kg/h": result.value("flash_steam_flow"),
-                 "residual condensate, kg/h": result.value("residual_condensate_flow")}]
-    return [{"stage": i, "pressure, bar(a)": result.value(f"stage_{i}_pressure"),
-             "flash fraction, %": result.value(f"stage_{i}_flash_fraction") * 100,
-             "flash steam, kg/h": result.value(f"stage_{i}_flash_steam_flow"),
-             "residual condensate, kg/h": result.value(f"stage_{i}_residual_condensate_flow")}
-            for i in range(1, len(stages) + 1)]
-
-
-def valve_case_rows(inputs, result):
-    """The let-down's flow cases as table rows."""
-    from ..calcs.letdown.equipment import flow_cases
-
-    rows = []
-    for name, flow in flow_cases(inputs):
-        row = {"flow case": name, "flow, kg/h": flow * 3600,
-               "sized at": result.value(f"valve_pressures_{name}") if f"valve_pressures_{name}" in result.values else "",
-               "required Kv, m³/h": result.value(f"valve_kv_{name}"),
-               "choked": "yes" if result.value(f"choked_{name}") else "no"}
-        if f"valve_travel_{name}" in result.values:
-            row["travel, %"] = result.value(f"valve_travel_{name}")
-        if f"valve_noise_{name}" in result.values:
-            row["noise at 1 m, dB(A)"] = result.value(f"valve_noise_{name}")
-        if f"valve_outlet_mach_{name}" in result.values:
-            row["outlet Mach"] = result.value(f"valve_outlet_mach_{name}")
-        for key, heading in (("spray_water_flow", "spray water, kg/h"), ("spray_valve_kv", "spray valve Kv, m³/h"),
-                             ("spray_valve_travel", "spray valve travel, %")):
-            if f"{key}_{name}" in result.values:
-                row[heading] = result.value(f"{key}_{name}")
-        rows.append(row)
-    return rows
-
-
-def letdown_sections(inputs, result):
-    """The let-down workbook's tables by heading: flow cases with noise, lines, relief device,
-    and the two-stage proposal when made."""
-    sections = {"Flow cases": valve_case_rows(inputs, result)}
-    lines = []
-    for key, label, size in (("inlet", "inlet line", inputs.inlet_size), ("outlet", "outlet line", inputs.outlet_size)):
-        if size is None:
-            continue
-        row = {"line": label, "size": size}
-        for name, heading, unit in (("velocity", "velocity", "m/s"), ("line_pressure_drop", "pressure drop", "bar difference"),
-                                    ("line_pressure_drop_per_100m", "per 100 m", "bar difference")):
-            if f"{key}_{name}" in result.values:
-                row[f"{heading}, {unit}"] = result.value(f"{key}_{name}")
-        lines.append(row)
-    if lines:
-        sections["Lines"] = lines
-    relief = [(k, result.values[k]) for k in (
-        "relief_design_flow", "relief_relieving_pressure", "relief_relieving_temperature",
-        "relief_required_area_direct_integration", "relief_required_area_steam_equation", "relief_required_area",
-        "relief_orifice", "relief_orifice_area", "relief_capacity_margin", "relief_inlet_loss_fraction",
-        "relief_reaction_force") if k in result.values]
-    if any(k == "relief_orifice" for k, _ in relief):
-        sections["Relief device (preliminary; the engineer of record and the maker's certified capacity govern)"] = [
-            {"quantity": v.label, "value": v.value, "unit": v.unit.replace("**2", "²")} for _, v in relief]
-    if "two_stage_intermediate_pressure" in result.values:
-        sections["Noise: two-stage let-down proposal"] = [
-            {"stage": stage, "Kv, m³/h": result.value(f"two_stage_kv_{key}"),
-             "noise at 1 m, dB(A)": result.value(f"two_stage_noise_{key}")}
-            for stage, key in (("first", "first"), ("second", "second"))]
-    return sections
-
-
-def _u_label(result, which):
-    if f"turndown_u_{which}" in result.values:
-        return f"{which} U {result.value(f'turndown_u_{which}'):.3g} kW/(m²·K)"
-    return "UA as at design"
-
-
-def turndown_rows(inputs, result):
-    """Turndown table: load, duty and the steam-side pressure needed, each column naming its U."""
-    loads, pressures = turndown_series(result)
-    clean = dict(zip(*turndown_series(result, clean=True)))
-    drain = None
-    if inputs.condensate_back_pressure is not None:
-        # No stall pressure: the static head alone drains the condensate at any steam-side pressure.
-        drain = result.value("stall_pressure") if "stall_pressure" in result.values else 0.0
-    fouled_name = _u_label(result, "fouled") if clean else _u_label(result, "clean") + " = fouled"
-    rows = []
-    for load, pressure in zip(loads, pressures):
-        row = {"load, %": load, "duty, kW": result.value("duty") * load / 100,
-               f"steam-side pressure, {fouled_name}, bar(a)": pressure}
-        if clean:
-            row[f"steam-side pressure, {_u_label(result, 'clean')}, bar(a)"] = clean[load]
-        if drain is not None:
-            if clean:
-                row["drains, clean U"] = "yes" if clean[load] > drain else "NO - stall"
-                row["drains, fouled U"] = "yes" if pressure > drain else "NO - stall"
-            else:
-                row["drains by pressure"] = "yes" if pressure > drain else "NO - stall"
-        rows.append(row)
-    return rows
 
 
 #: A kind's table: rows (a list of dicts), or tables by heading (a dict of heading -> rows).
