@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import contextlib
 import io
+import json
 from pathlib import Path
 
 from hypothesis import strategies as st
@@ -18,6 +19,7 @@ from steamcalc.calcs import get_calculation
 from steamcalc.cases.site import case_inputs, case_site, load_case
 from steamcalc.cli import main
 from steamcalc.errors import SteamcalcError
+from tests.worked_step_arithmetic import written_step_problems
 
 
 def _number(low, high):
@@ -130,6 +132,9 @@ def issue_and_verify(path, out):
         code = main(["verify", str(stem.with_suffix(".json"))])
     if code != 0 or "verdict: VERIFIED" not in said.getvalue():
         problems.append(f"verify exited {code}: {said.getvalue().strip()[-600:]}")
+    if stem.with_suffix(".json").is_file():
+        # Its steps, printed in SI and US, must give their values on a calculator.
+        problems += written_step_problems(json.loads(stem.with_suffix(".json").read_text(encoding="utf-8")))
     return problems
 
 

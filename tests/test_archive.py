@@ -2,7 +2,9 @@
 
 ``tests/archive/v0_2/`` holds the demo site's records as steamcalc 0.2 issued them (schema
 ``steamcalc.record/1``, no figure data), with the HTML and Markdown that release drew;
-``tests/archive/v0_3/`` those of this release (schema 2), kept for the releases after it. Each must verify:
+``tests/archive/v0_3/`` those of this release (schema 3: steps and checks kept as amounts), kept for the
+releases after it; ``tests/archive/v0_3_schema2/`` those of this release's intermediate layout (schema 2: figure
+data, steps and checks as text), which this release still reads. Each must verify:
 its digests intact, every result, check and statement reproduced, and its reports either matching what this
 release draws or reported as drawn by the release that issued the record — never as edited.
 """
@@ -19,7 +21,7 @@ RECORDS = sorted(ARCHIVE.glob("v*/*_rev*.json"))
 
 
 def test_the_archive_holds_both_releases():
-    assert {path.parent.name for path in RECORDS} >= {"v0_2", "v0_3"}
+    assert {path.parent.name for path in RECORDS} >= {"v0_2", "v0_3_schema2", "v0_3"}
     assert len([p for p in RECORDS if p.parent.name == "v0_2"]) == 5
 
 

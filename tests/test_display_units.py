@@ -127,8 +127,10 @@ def test_us_display_covers_kv_nps_bands_and_steps(records):
     assert "| Required Cv (sized on the maximum flow) |" in page          # Kv → Cv in the results
     assert "| Inlet line: smallest size under 148 ft/s | NPS 3 |" in page  # DN → NPS and m/s → ft/s
     assert "| Outlet temperature | 299.8 | 297.3 | 299.8 | 302.2 | °F |" in page   # the band, in °F
-    assert "`h1 = h(246.4 psia, 446.00 °F)`" in page                    # a step's substitution
-    assert "(in SI: the equation's constant is for SI units)" in page   # N6 = 3.16 keeps its SI numbers
+    assert "`h1 = h(246.4 psia, 446.0 °F)`" in page                     # a step's substitution, from its operands
+    # N6 = 3.16 keeps the units it holds in (kg/h, kPa, kg/m³), and the page says so.
+    assert "kPa(a) × 7.171 kg/m³)) (in the units shown: the equation's constant is for them)`" in page
+    assert "°R" not in page   # a superheat or a temperature difference is never written in rankine
     assert "Inlet temperature ± 9.0 °F" in page                          # a tolerance (a difference)
     shown = display_record(load_record(records["US"] / "LD-01_revA.json"))
     band = shown["uncertainty"]["bands"]["valve_kv"]

@@ -102,7 +102,7 @@ def test_ld01_velocity_and_evaporation_by_hand(ld01):
     v = inputs.min_flow / (throttled_min.density * area)
     assert result.value("desuperheater_min_velocity") == pytest.approx(v, rel=2e-3)
     assert step["Evaporation length"].value == pytest.approx(
-        result.value("spray_droplet_lifetime") * float(step["Evaporation length"].substituted.split("×")[1].split("m/s")[0]),
+        result.value("spray_droplet_lifetime") * float(step["Evaporation length"].written().split("×")[1].split("m/s")[0]),
         rel=1e-3)
     assert result.value("evaporation_length") > inputs.sensor_distance
     assert next(c for c in result.checks if c.name == "Temperature sensor beyond the evaporation length").status == "warn"

@@ -133,8 +133,11 @@ def test_ld01_record_carries_uncertainty_and_reverifies(tmp_path, demo_site_dir,
     record = load_record(path)
     section = record["uncertainty"]
     assert section["samples"] == 2000 and section["valid_samples"] == 2000
-    assert {"name": "Uncertainty samples", "status": "pass", "detail": "all 2000 samples gave a result"} in \
-        record["checks"]
+    check = next(c for c in record["checks"] if c["name"] == "Uncertainty samples")
+    assert (check["status"], check["detail"]) == ("pass", "all 2000 samples gave a result")
+    # Kept as data: the share of samples without a result against the 1 % above which it warns.
+    assert check["kind"] == "limit" and check["quantity"] == {"value": 0.0, "unit": "percent"}
+    assert check["limits"] == [{"comparison": "<=", "limit": {"value": 1.0, "unit": "percent"}, "breach": "warn"}]
     assert any(line.startswith("outlet temperature") and "most sensitive to" in line for line in section["summary"])
     assert "Uncertainty" in (site / "records" / "LD-01_revA.html").read_text()
     capsys.readouterr()

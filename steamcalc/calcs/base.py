@@ -15,6 +15,8 @@ import math
 from dataclasses import dataclass, field
 
 from ..errors import InputError, SteamcalcError
+from ..units.amounts import Amount, Limit, Phrase, amount, text_of, verdict
+from ..units.expressions import names, parse, written_step
 from ..units.quantities import RECORD_UNITS, from_record_unit, to_record_unit
 
 #: Whether this context wants the full record (steps, checks and the equipment sections that feed
@@ -191,33 +193,82 @@ def from_record_inputs(inputs_class, table):
 
 @dataclass(frozen=True)
 class Step:
-    """One worked step: what is found, the equation, the equation with numbers, the value."""
+    """One worked step: what is found, the equation, the equation with numbers, the value.
+
+    A step made by :meth:`Result.work` also keeps its ``expression`` (the arithmetic, or a property
+    lookup such as ``h(p1, T1)``) and its ``operands`` as amounts, so each view writes the numbers in
+    its own units; ``substituted`` is then the SI writing of it. ``units_fixed`` marks an equation whose
+    constant holds only in the units given (an IEC or API constant): views show it in those units.
+    """
 
     label: str
     equation: str
     substituted: str
     value: float | str
     unit: str = ""
+    expression: str = ""
+    operands: tuple = ()      # ((symbol, Amount), ...)
+    units_fixed: bool = False
+    role: str = ""            # "flow_coefficient" for a Kv
+
+    def written(self, system="SI"):
+        """The equation with its numbers in ``system`` (a step of text only: as it was written, in SI)."""
+        if not self.expression:
+            return self.substituted
+        number = isinstance(self.value, (int, float)) and not isinstance(self.value, bool)
+        target = Amount(self.value, self.unit, role=self.role) if number else None
+        return written_step(self.equation, self.expression, dict(self.operands), target, system, self.units_fixed)
 
     def to_record(self):
-        return {"label": self.label, "equation": self.equation, "substituted": self.substituted,
-                "value": {"value": self.value, "unit": self.unit}}
+        entry = {"label": self.label, "equation": self.equation, "substituted": self.written(),
+                 "value": {"value": self.value, "unit": self.unit}}
+        if self.role:
+            entry["value"]["role"] = self.role
+        if self.expression:
+            entry["expression"] = self.expression
+            entry["operands"] = {symbol: a.to_record() for symbol, a in self.operands}
+            if self.units_fixed:
+                entry["units_fixed"] = True
+        return entry
 
 
 @dataclass(frozen=True)
 class Check:
-    """An engineering check on the result: ``pass``, ``warn`` or ``fail``, with its reason."""
+    """An engineering check on the result: ``pass``, ``warn`` or ``fail``, with its reason.
+
+    A check of a quantity against limits (``kind="limit"``) keeps both; its status is the verdict of
+    :func:`~steamcalc.units.amounts.verdict`, which ``verify`` recomputes from the record alone. A
+    ``"condition"`` is a verdict the calculation reaches otherwise (site data missing, a phase).
+    ``detail`` is a text, or a :class:`~steamcalc.units.amounts.Phrase` each view writes in its units.
+    """
 
     name: str
     status: str
-    detail: str
+    detail: object
+    quantity: Amount | None = None
+    limits: tuple = ()
+    source: str = ""
 
     def __post_init__(self):
         if self.status not in STATUSES:
             raise ValueError(f"check status must be one of {STATUSES}")
+        if self.quantity is not None and self.status != verdict(self.quantity, self.limits):
+            raise ValueError(f"check {self.name!r}: status {self.status} is not its quantity's verdict")
+
+    @property
+    def kind(self):
+        return "limit" if self.quantity is not None else "condition"
 
     def to_record(self):
-        return {"name": self.name, "status": self.status, "detail": self.detail}
+        entry = {"name": self.name, "status": self.status, "detail": text_of(self.detail), "kind": self.kind}
+        if isinstance(self.detail, Phrase):
+            entry["phrase"] = self.detail.to_record()
+        if self.quantity is not None:
+            entry["quantity"] = self.quantity.to_record()
+            entry["limits"] = [limit.to_record() for limit in self.limits]
+        if self.source:
+            entry["source"] = self.source
+        return entry
 
 
 #: How a series is drawn; the views choose colours and symbols from ``role``.
@@ -403,13 +454,40 @@ class Result:
         self.values[key] = ResultValue(label, value, unit)
         return value
 
-    def step(self, label, equation, substituted, value, unit=""):
-        self.steps.append(Step(label, equation, substituted, value, unit))
+    def work(self, label, equation, expression, value, unit="", *, units_fixed=False, role="", **operands):
+        """Add a worked step whose operands are amounts: ``work(label, "m_3 = m_s + m_w", "m_s + m_w",
+        value, "kg/h", m_s=(…, "kg/h"), m_w=(…, "kg/h"))``. An operand is an Amount or (value, unit[, basis]).
+        """
+        if not full_record_wanted():
+            return   # a Monte Carlo sample keeps no steps
+        given = {symbol: amount(a) for symbol, a in operands.items()}
+        if names(parse(expression)) != set(given):
+            raise ValueError(f"step {label!r}: expression symbols {sorted(names(parse(expression)))} but operands "
+                             f"{sorted(given)}")
+        # The SI substitution is written when the record is made (Step.to_record), not here: a result that
+        # never becomes a record (a batch row, a workbook preview) does not pay for it.
+        self.steps.append(Step(label, equation, "", value, unit, expression, tuple(given.items()), units_fixed, role))
 
     def check(self, name, status, detail):
+        """Add a check whose verdict the calculation reaches itself; ``detail`` a text or a Phrase."""
         self.checks.append(Check(name, status, detail))
         if status == "warn":
-            self.warnings.append(f"{name}: {detail}")
+            self.warnings.append(f"{name}: {text_of(detail)}")
+
+    def check_limit(self, name, quantity, limits, detail, source=""):
+        """Add a check of ``quantity`` against ``limits`` ((comparison, limit, breach) or Limit); its verdict.
+
+        Returns the status, so the calculation can add advice that depends on it.
+        """
+        quantity = amount(quantity)
+        limits = tuple(limit if isinstance(limit, Limit) else Limit(limit[0], amount(limit[1]), *limit[2:])
+                       for limit in limits)
+        status = verdict(quantity, limits)
+        detail = detail(status) if callable(detail) else detail
+        self.checks.append(Check(name, status, detail, quantity, limits, source))
+        if status == "warn":
+            self.warnings.append(f"{name}: {text_of(detail)}")
+        return status
 
     @property
     def status(self):

@@ -32,10 +32,10 @@ from ..errors import RecordConflictError, RecordError
 from .schema import validate_record
 from .issuing import write_text_atomic  # noqa: F401  (one atomic writer, re-exported)
 
-SCHEMA = "steamcalc.record/2"
+SCHEMA = "steamcalc.record/3"
 #: Schemas a record may carry and still be read and verified: schema 1 (no
 #: figure data) was issued by steamcalc 0.2; schema 2 adds the figures as data.
-READABLE_SCHEMAS = ("steamcalc.record/1", SCHEMA)
+READABLE_SCHEMAS = ("steamcalc.record/1", "steamcalc.record/2", SCHEMA)
 _PROVENANCE_PACKAGES = ("steamcalc", "iapws", "seuif97", "pint", "numpy", "jinja2")
 # The checker's sign-off is not content: signing must leave the content digest as it was.
 _NOT_CONTENT = ("created", "provenance", "digest", "content_digest", "checked_by", "signoff", "signatures")

@@ -3,8 +3,8 @@
 Every record is checked when it is built and when it is read, so that the reports, verify,
 diff and the register can rely on the record's layout: a record edited by hand into another
 shape is refused by name (the file, the field as a dotted path, the value) instead of failing
-somewhere later. The schema accepts both readable layouts, ``steamcalc.record/1`` and
-``steamcalc.record/2``.
+somewhere later. The schema accepts every readable layout: ``steamcalc.record/1``,
+``steamcalc.record/2`` (figures as data) and ``steamcalc.record/3`` (steps and checks as amounts).
 
 This module imports no other part of steamcalc but its errors, unit names and the figure bound, so that
 :mod:`steamcalc.records.record` can use it without an import cycle.

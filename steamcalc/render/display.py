@@ -21,6 +21,8 @@ import re
 
 from ..units.formatting import (CV_PER_KV, SYSTEMS, US_UNITS,  # noqa: F401  (the rules, shown here)
                                  _group, format_number, format_quantity, unit_label)
+from ..units.amounts import Amount, Phrase
+from ..units.expressions import written_step
 from ..units.quantities import Q_
 
 def _calculation(record):
@@ -409,6 +411,9 @@ def display_record(record):
             continue
         value = step.get("value") if isinstance(step.get("value"), dict) else {"value": step.get("value"), "unit": ""}
         label = step.get("label", "")
+        if "expression" in step:
+            _show_worked_step(step, value, calc, system, label)
+            continue
         # A step whose equation holds a constant for SI units is shown wholly in SI, where it holds.
         si_only = system == "US" and bool(_SI_CONSTANT.search(str(step.get("equation", ""))))
         step_system = "SI" if si_only else system
@@ -424,7 +429,12 @@ def display_record(record):
         if not isinstance(check, dict):
             continue
         check["name"] = trade_text(us_label(check.get("name")) if system == "US" else check.get("name"))
-        check["detail"] = trade_text(us_text(check.get("detail")) if system == "US" else check.get("detail"))
+        if isinstance(check.get("phrase"), dict) and system == "US":
+            check["detail"] = trade_text(Phrase.from_record(check["phrase"]).text(system))
+        elif isinstance(check.get("phrase"), dict):
+            check["detail"] = trade_text(check.get("detail"))   # the record's own SI writing of its phrase
+        else:
+            check["detail"] = trade_text(us_text(check.get("detail")) if system == "US" else check.get("detail"))
     shown["assumptions"] = [trade_text(nps_text(a) if system == "US" else a) for a in shown.get("assumptions", [])]
     if isinstance(shown.get("uncertainty"), dict):
         _show_uncertainty(shown["uncertainty"], record, calc, system, labels)
@@ -432,11 +442,43 @@ def display_record(record):
     shown["atmosphere_shown"] = format_quantity(*convert(atmosphere.get("value"), atmosphere.get("unit", "bar"),
                                                          system))
     if system == "US":
-        shown["display_note"] = ("Values shown in US customary units (Kv as Cv, DN sizes as NPS); the JSON record "
-                                 "holds SI units. In the steps, each number written with its unit is converted; "
-                                 "a number written without one (a constant of an equation in SI units) is as "
-                                 "computed, in SI.")
+        if all(isinstance(step, dict) and "expression" in step for step in record.get("steps", [])):
+            shown["display_note"] = ("Values shown in US customary units (Kv as Cv, DN sizes as NPS); the JSON "
+                                     "record holds SI units. Each step is written from its operands in US units; "
+                                     "a step whose equation holds a constant for other units is written in those "
+                                     "units and says so.")
+        else:
+            shown["display_note"] = ("Values shown in US customary units (Kv as Cv, DN sizes as NPS); the JSON "
+                                     "record holds SI units. In the steps, each number written with its unit is "
+                                     "converted; a number written without one (a constant of an equation in SI "
+                                     "units) is as computed, in SI.")
     return shown
+
+
+def _show_worked_step(step, value, calc, system, label):
+    """A step kept as expression and operands: its substitution written afresh in the display units.
+
+    Its value is shown in the units its substitution is written in, so the page's arithmetic holds;
+    an equation whose constant holds only in its own units stays in them, and says so in US display.
+    """
+    fixed = bool(step.get("units_fixed"))
+    step_system = "SI" if fixed else system
+    equation = str(step.get("equation", ""))
+    if step_system == "SI" and isinstance(step.get("substituted"), str):
+        written = step["substituted"]   # the record's own SI writing, which verify holds to its operands
+    else:
+        operands = {symbol: Amount.from_record(entry) for symbol, entry in step["operands"].items()}
+        number = isinstance(value.get("value"), (int, float)) and not isinstance(value.get("value"), bool)
+        target = Amount(value["value"], value.get("unit", ""), role=value.get("role", "")) if number else None
+        written = written_step(equation, step["expression"], operands, target, step_system, fixed)
+    if fixed and system == "US":
+        written += " (in the units shown: the equation's constant is for them)"
+    basis = "difference" if value.get("basis") == "difference" else _step_basis(step)
+    _show_entry(value, "kv" if value.get("role") == "flow_coefficient" else "", calc, step_system, basis, label,
+                equation)
+    step["value"] = value
+    step["label"] = value["label"]
+    step["substituted"] = trade_text(written)
 
 
 # --- the verify table ---------------------------------------------------------------------------

@@ -21,6 +21,7 @@ from ..errors import SteamcalcError
 from ..records.record import compute_content_digest, compute_digest, provenance
 from ..runs.runner import recompute, recompute_uncertainty
 from ..runs.uncertainty import add_sample_check
+from ..units.amounts import Amount, Limit, text_of, verdict
 
 #: Relative tolerance on recomputed numbers; IF97 evaluations are deterministic, so
 #: this only absorbs floating-point differences between platforms and library builds.
@@ -201,7 +202,13 @@ def verify_record(record, engine=REFERENCE_ENGINE):
     new_results = {k: v.to_record() for k, v in fresh.values.items()}
     old_results = record.get("results", {})
     for key in list(old_results) + [k for k in new_results if k not in old_results]:
-        result.comparisons.append(_compare(key, old_results.get(key), new_results.get(key)))
+        comparison = _compare(key, old_results.get(key), new_results.get(key))
+        # From schema 3 a result's label is the calculation's too: a label edited in the file is caught.
+        if comparison.verdict == "same" and record.get("schema") not in _TEXT_SCHEMAS and \
+                old_results[key].get("label") != new_results[key].get("label"):
+            comparison = Comparison(f"{key} (its label)", old_results[key].get("label"), new_results[key].get("label"),
+                                    "", None, None, "differs")
+        result.comparisons.append(comparison)
     if "figures" in record:   # schema 2 on: the figure data is recomputed like the results
         result.comparisons.extend(compare_figures(record["figures"], [f.to_record() for f in fresh.figures]))
     if "uncertainty" in record:
@@ -213,18 +220,65 @@ def verify_record(record, engine=REFERENCE_ENGINE):
                                 "engine already); the ordinary verification reproduces them")
         if section is not None and "failed_sample_count" in section:
             add_sample_check(fresh, section)   # as run adds it: its check and, when it warns, its warning
-    new_checks = [(c.name, c.status, c.detail) for c in fresh.checks]
+    new_checks = [(c.name, c.status, text_of(c.detail)) for c in fresh.checks]
     old_checks = [(c.get("name"), c.get("status"), c.get("detail")) for c in record.get("checks", [])]
+    earlier = record.get("schema") in _TEXT_SCHEMAS
     if len(old_checks) == len(new_checks) and all(
-            a[:2] == b[:2] and same_text(a[2], b[2]) for a, b in zip(old_checks, new_checks)):
+            a[:2] == b[:2] and (same_text(a[2], b[2]) or (earlier and _same_numbers(a[2], b[2])))
+            for a, b in zip(old_checks, new_checks)):
+        result.notes.extend(f"check {a[0]!r}: worded otherwise since steamcalc 0.3, its numbers and verdict the same"
+                            for a, b in zip(old_checks, new_checks) if not same_text(a[2], b[2]))
         new_checks = old_checks  # the same checks, their numbers equal within the tolerance
     if old_checks != new_checks:
         result.check_changes = [f"recorded: {n} = {s} ({d})" for n, s, d in old_checks if (n, s, d) not in new_checks] + \
             [f"recomputed: {n} = {s} ({d})" for n, s, d in new_checks if (n, s, d) not in old_checks]
+    elif record.get("schema") not in _TEXT_SCHEMAS:
+        result.check_changes = _check_data_changes(record.get("checks", []), [c.to_record() for c in fresh.checks])
+    result.check_changes += recorded_verdict_changes(record.get("checks", []))
     result.recomputed_status = fresh.status
     result.recomputed_failing = [c.name for c in fresh.checks if c.status == "fail"]
-    result.statement_changes = _statement_changes(record, fresh)
+    result.statement_changes = _statement_changes(record, fresh, result.notes)
     return result
+
+
+#: Schemas whose steps and checks are text only (no expression, operands, quantity or limits).
+_TEXT_SCHEMAS = ("steamcalc.record/1", "steamcalc.record/2")
+#: The parts of a step kept as data, compared with the numeric tolerance.
+_STEP_DATA = ("expression", "operands", "units_fixed")
+#: The parts of a check kept as data.
+_CHECK_DATA = ("kind", "phrase", "quantity", "limits", "source")
+
+
+def _check_data_changes(recorded, recomputed):
+    """Each check whose data (kind, phrase, quantity, limits, source) is not what the calculation gives."""
+    changes = []
+    for a, b in zip(recorded, recomputed):
+        found = []
+        _walk({k: a.get(k) for k in _CHECK_DATA}, {k: b.get(k) for k in _CHECK_DATA}, "", found)
+        if found:
+            changes.append(f"recorded: {a.get('name')}: its {found[0][0].lstrip('.')} is not the calculation's")
+    return changes
+
+
+def recorded_verdict_changes(checks):
+    """Each check of a quantity against limits whose recorded status is not what they give.
+
+    Read from the record alone: an edited status (or quantity, or limit) shows here even when the
+    digests were recomputed after the edit.
+    """
+    changes = []
+    for check in checks:
+        if not isinstance(check, dict) or "limits" not in check or "quantity" not in check:
+            continue
+        try:
+            given = verdict(Amount.from_record(check["quantity"]), [Limit.from_record(l) for l in check["limits"]])
+        except (KeyError, TypeError, ValueError, ArithmeticError) as exc:
+            changes.append(f"recorded: {check.get('name')}: its quantity and limits cannot be compared ({exc})")
+            continue
+        if given != check.get("status"):
+            changes.append(f"recorded: {check.get('name')} = {check.get('status')}, but its quantity against its "
+                           f"limits gives {given}")
+    return changes
 
 
 _NUMBER = re.compile(r"[-+]?(?:\d{1,3}(?:,\d{3})+|\d+)(?:\.\d*)?(?:[eE][-+]?\d+)?")
@@ -266,7 +320,81 @@ def same_text(a, b):
     return True
 
 
-def _statement_changes(record, fresh):
+def _labelled(steps):
+    """Steps by (label, occurrence): the n-th step of a label is matched with the n-th."""
+    seen, keyed = {}, {}
+    for step in steps:
+        label = step.get("label") if isinstance(step, dict) else None
+        seen[label] = seen.get(label, 0) + 1
+        keyed[(label, seen[label])] = step
+    return keyed
+
+
+def _earlier_step_changes(old_steps, new_steps, notes):
+    """An earlier release's worked steps (text only) against this release's, matched by label.
+
+    Release 0.3 writes the steps from amounts, with equations that state the step's value on their
+    left and some steps split or added: those are listed as notes naming the release that changed
+    them. A step in both whose value differs is a difference.
+    """
+    old, new = _labelled(old_steps), _labelled(new_steps)
+    changes = []
+    for key, a in old.items():
+        b = new.get(key)
+        if b is None:
+            notes is not None and notes.append(f"step {key[0]!r}: recorded by the earlier release, no longer a "
+                                               "worked step since steamcalc 0.3")
+            continue
+        if a.get("equation") != b.get("equation") and notes is not None:
+            notes.append(f"step {key[0]!r}: its equation is written otherwise since steamcalc 0.3 "
+                         f"(recorded {a.get('equation')!r}, now {b.get('equation')!r}); its value is compared")
+        if (a.get("value") is None) != (b.get("value") is None) or (
+                a.get("value") is not None and _compare("", _step_value(a["value"]), b["value"]).verdict != "same"):
+            changes.append(f"step {key[0]!r}: the record's value is not the calculation's")
+    added = [key[0] for key in new if key not in old]
+    if added and notes is not None:
+        notes.append(f"steps worked since steamcalc 0.3 that the record does not have: {', '.join(map(repr, added))}")
+    return changes
+
+
+def _same_numbers(a, b):
+    """Two texts that state the same numbers in the same order, within the tolerance (their words may differ)."""
+    if not isinstance(a, str) or not isinstance(b, str):
+        return False
+    x, y = _NUMBER.findall(a), _NUMBER.findall(b)
+    return len(x) == len(y) and same_text(" ".join(x), " ".join(y))
+
+
+def _reworded(section, recorded, issued, notes):
+    """An earlier release's statements against today's: the same numbers in other words are a note, not a change.
+
+    A statement this release adds is a note too; one the record has that this release does not issue stays a
+    difference (an earlier release's record cannot gain a statement).
+    """
+    matched_recorded, matched_issued = [], []
+    for text in recorded:
+        twin = next((t for t in issued if t not in matched_issued and (same_text(text, t) or _same_numbers(text, t)
+                                                                       and _NUMBER.findall(text))), None)
+        if twin is not None:
+            matched_recorded.append(text)
+            matched_issued.append(twin)
+            if not same_text(text, twin) and notes is not None:
+                notes.append(f"{section}: worded otherwise since steamcalc 0.3, the same numbers: {twin!r}")
+    added = [t for t in issued if t not in matched_issued]
+    if notes is not None:
+        notes.extend(f"{section}: stated since steamcalc 0.3: {t!r}" for t in added)
+    # What is left: the record's statements this release does not issue, against nothing missing.
+    return [t for t in recorded if t not in matched_recorded], []
+
+
+def _step_value(value):
+    """A step value of an earlier release in this release's unit spelling: its "bar difference" is "bar"."""
+    if isinstance(value, dict) and value.get("unit") == "bar difference":
+        return {**value, "unit": "bar"}
+    return value
+
+
+def _statement_changes(record, fresh, notes=None):
     """The record's status and statements against what the calculation issues today."""
     changes = []
     if record.get("status") != fresh.status:
@@ -278,6 +406,8 @@ def _statement_changes(record, fresh):
                                   ("assumptions", own_assumptions, list(fresh.assumptions))):
         if len(recorded) == len(issued) and all(same_text(a, b) for a, b in zip(recorded, issued)):
             continue
+        if record.get("schema") in _TEXT_SCHEMAS:
+            recorded, issued = _reworded(key, recorded, issued, notes)
         if recorded != issued:
             missing = [t for t in issued if t not in recorded]
             extra = [t for t in recorded if t not in issued]
@@ -285,10 +415,15 @@ def _statement_changes(record, fresh):
             changes.append(f"{key}: {what}")
     old_steps = record.get("steps", [])
     new_steps = [s.to_record() for s in fresh.steps]
+    if record.get("schema") in _TEXT_SCHEMAS:
+        changes.extend(_earlier_step_changes(old_steps, new_steps, notes))
+        return changes
     if len(old_steps) != len(new_steps):
         changes.append(f"steps: {len(old_steps)} recorded, {len(new_steps)} recomputed")
     for i, (a, b) in enumerate(zip(old_steps, new_steps), 1):
-        texts_differ = any(not same_text(a.get(k), b.get(k)) for k in ("label", "equation", "substituted"))
+        found = []
+        _walk({k: a.get(k) for k in _STEP_DATA}, {k: b.get(k) for k in _STEP_DATA}, "", found)
+        texts_differ = bool(found) or any(not same_text(a.get(k), b.get(k)) for k in ("label", "equation", "substituted"))
         value_differs = (a.get("value") is None) != (b.get("value") is None) or (
             a.get("value") is not None and _compare("", a["value"], b["value"]).verdict != "same")
         if texts_differ or value_differs:
@@ -397,4 +532,18 @@ def _compare_uncertainty(record, outcome, nominal_result):
                 f"uncertainty.{key}.{stat}",
                 None if old is None else {"value": old[stat], "unit": old["unit"]},
                 None if new is None else {"value": new[stat], "unit": new["unit"]}))
+    # What the section says besides its bands is recomputed too: the sensitivity (its order names the
+    # input that matters most) and the summary sentences the record prints.
+    found = []
+    _walk(record["uncertainty"].get("sensitivity"), fresh.get("sensitivity"), "", found)
+    if found:
+        outcome.comparisons.append(Comparison("uncertainty.sensitivity", "as recorded",
+                                              f"differs at {found[0][0].lstrip('.') or 'its layout'}", "", None, None,
+                                              "differs"))
+    old_summary, new_summary = record["uncertainty"].get("summary"), fresh.get("summary")
+    if old_summary is not None and not (
+            isinstance(old_summary, list) and isinstance(new_summary, list) and len(old_summary) == len(new_summary)
+            and all(same_text(a, b) for a, b in zip(old_summary, new_summary))):
+        outcome.comparisons.append(Comparison("uncertainty.summary", "; ".join(map(str, old_summary)) if isinstance(
+            old_summary, list) else old_summary, "; ".join(new_summary or []), "", None, None, "differs"))
     return fresh

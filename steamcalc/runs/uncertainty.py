@@ -25,6 +25,7 @@ import numpy as np
 from ..calcs import sample_path
 from ..calcs.base import input_fields
 from ..errors import CaseFileError, InputError, SteamcalcError, UnitError
+from ..units.amounts import Limit, Phrase, amount, text_of, verdict
 from ..units.quantities import RECORD_UNITS, from_record_unit, parse_quantity, to_record_unit
 from ..calcs.base import numbers_only
 from ..properties.engines import FAST_ENGINE, engine_description, using_engine
@@ -271,28 +272,43 @@ def run_uncertainty(calc, inputs, site, tolerances, samples=DEFAULT_SAMPLES, see
     return section
 
 
-def sample_check(section):
-    """The record's check on the samples that gave no result: ``(name, status, detail)``.
+def sample_limit(section):
+    """The record's check on the samples that gave no result, as data: ``(name, quantity, limits, detail)``.
 
-    More than 1 % of the samples without a result is a warn: the bands then describe only the
-    inputs that could be computed (common practice; JCGM 101:2008 assumes every draw gives a value).
+    The quantity is the share of the samples without a result, in percent; more than 1 % is a warn:
+    the bands then describe only the inputs that could be computed (common practice; JCGM 101:2008
+    assumes every draw gives a value). ``detail`` gives the check's Phrase for its status. Counts and
+    reasons are no quantities: they stay in the words.
+    """
+    samples, failed = section["samples"], section.get("failed_sample_count", 0)
+    share, limit = (failed * 100 / samples, "percent"), (FAILED_SAMPLES_WARN * 100, "percent")
+    reasons = "; ".join(f"{n} × {reason}" for reason, n in section.get("failed_samples", {}).items())
+    reasons = reasons.replace("{", "{{").replace("}", "}}")   # a reason's words are never a slot
+
+    def detail(status):
+        if failed == 0:
+            return Phrase.of(f"all {samples} samples gave a result")
+        if status == "pass":
+            return Phrase.of(f"{failed} of {samples} samples ({{share:.3g}}) gave no result: {reasons}", share=share)
+        return Phrase.of(f"{failed} of {samples} samples ({{share:.3g}}) gave no result: {reasons}; above {{limit:g}} "
+                         "the bands describe only the inputs that could be computed: narrow the tolerances or check "
+                         "the inputs near the limits", share=share, limit=limit)
+    return "Uncertainty samples", share, [("<=", limit, "warn")], detail
+
+
+def sample_check(section):
+    """The record's check on the samples that gave no result: ``(name, status, detail)``, the detail in SI words.
 
     Examples
     --------
     >>> sample_check({"samples": 2000, "failed_sample_count": 30, "failed_samples": {"x": 30}})[1]
     'warn'
+    >>> sample_check({"samples": 2000, "failed_sample_count": 20, "failed_samples": {"x": 20}})[1:]
+    ('pass', '20 of 2000 samples (1 %) gave no result: 20 × x')
     """
-    samples, failed = section["samples"], section.get("failed_sample_count", 0)
-    share = failed / samples
-    reasons = "; ".join(f"{n} × {reason}" for reason, n in section.get("failed_samples", {}).items())
-    if failed == 0:
-        return "Uncertainty samples", "pass", f"all {samples} samples gave a result"
-    detail = f"{failed} of {samples} samples ({share * 100:.3g} %) gave no result: {reasons}"
-    if share > FAILED_SAMPLES_WARN:
-        return ("Uncertainty samples", "warn",
-                detail + f"; above {FAILED_SAMPLES_WARN * 100:g} % the bands describe only the inputs that could be "
-                "computed: narrow the tolerances or check the inputs near the limits")
-    return "Uncertainty samples", "pass", detail
+    name, quantity, limits, detail = sample_limit(section)
+    status = verdict(amount(quantity), [Limit(comparison, amount(limit), breach) for comparison, limit, breach in limits])
+    return name, status, text_of(detail(status))
 
 
 def _vector_path(calc, inputs, tolerances, keys, engine):
@@ -398,7 +414,7 @@ def add_sample_check(result, section):
     The one way ``run`` and ``verify`` add it, so that its check and its warning are the same in the
     record and in the recomputation.
     """
-    result.check(*sample_check(section))
+    result.check_limit(*sample_limit(section))
 
 
 def tolerances_from_record(inputs_class, section):
@@ -415,5 +431,6 @@ def tolerances_from_record(inputs_class, section):
     return tuple(tolerances)
 
 
-__all__ = ["Tolerance", "add_sample_check", "parse_coverage", "parse_tolerances", "run_uncertainty", "sample_check", "summary_lines",
+__all__ = ["Tolerance", "add_sample_check", "parse_coverage", "parse_tolerances", "run_uncertainty", "sample_check",
+           "sample_limit", "summary_lines",
            "tolerances_from_record"]

@@ -20,12 +20,13 @@ from ...errors import InputError, OutOfRangeError
 from ...properties.steam import REFERENCE as IF97_REFERENCE
 from ...properties.steam import SteamState, saturation_pressure, saturation_temperature
 from ..balance import Stream, check_energy_balance
+from ...units.amounts import Phrase
 from ..base import Result, check_fields, full_record_wanted, input_field
 from .turndown import (LOADS, STALL_REMEDIES, add_turndown, required_saturation_temperature,  # noqa: F401
                                  stall_load, stall_pressure)
 from .control import add_control, check_control_inputs
 from .figures import figures
-from .zones import ARRANGEMENTS, add_zones, f_factor, lmtd, service_u  # noqa: F401
+from .zones import ARRANGEMENTS, ZONE_NAMES, add_zones, f_factor, lmtd, service_u  # noqa: F401
 
 _f_factor = f_factor  # the name v0.1 callers used
 
@@ -213,8 +214,9 @@ def _process_side(inputs, result):
         cp = inputs.process_cp
         flow = inputs.process_flow if inputs.process_flow is not None else inputs.process_volume_flow * inputs.process_density
         duty = flow * cp * (t_out - t_in)
-        result.step("Process duty", "Q = m·cp·(T_out − T_in)",
-                    f"Q = {flow:.4f} kg/s × {cp / 1e3:.3f} kJ/(kg·K) × {t_out - t_in:.2f} K", duty / 1e3, "kW")
+        result.work("Process duty", "Q = m·cp·(T_out − T_in)", "m*cp*(T_out - T_in)", duty / 1e3, "kW",
+                    m=(flow * 3600, "kg/h"), cp=(cp / 1e3, "kJ/(kg*K)"), T_out=(t_out - 273.15, "degC"),
+                    T_in=(t_in - 273.15, "degC"))
         return flow, duty, None
     p = inputs.process_pressure
     if p is None:
@@ -234,12 +236,12 @@ def _process_side(inputs, result):
     else:
         density = inputs.process_density or water_in.density
         flow = inputs.process_volume_flow * density
-        result.step("Process mass flow", "m = V·ρ", f"m = {inputs.process_volume_flow * 3600:.3f} m³/h × "
-                    f"{density:.2f} kg/m³", flow * 3600, "kg/h")
+        result.work("Process mass flow", "m = V·ρ", "V*rho", flow * 3600, "kg/h",
+                    V=(inputs.process_volume_flow * 3600, "m**3/h"), rho=(density, "kg/m**3"))
     duty = flow * (water_out.enthalpy - water_in.enthalpy)
-    result.step("Process duty (water, IF97)", "Q = m·(h(p, T_out) − h(p, T_in))",
-                f"Q = {flow:.4f} kg/s × ({water_out.enthalpy / 1e3:.2f} − {water_in.enthalpy / 1e3:.2f}) kJ/kg",
-                duty / 1e3, "kW")
+    result.work("Process duty (water, IF97)", "Q = m·(h(p, T_out) − h(p, T_in))", "m*(h_out - h_in)", duty / 1e3, "kW",
+                m=(flow * 3600, "kg/h"), h_out=(water_out.enthalpy / 1e3, "kJ/kg"),
+                h_in=(water_in.enthalpy / 1e3, "kJ/kg"))
     return flow, duty, (water_in, water_out)
 
 
@@ -363,17 +365,17 @@ def calculate(inputs, site):
     loss = inputs.heat_loss or 0.0
     steam_side = duty * (1.0 + loss)
     if loss:
-        result.step("Steam-side heat", "Q_s = Q·(1 + f_loss)", f"Q_s = {duty / 1e3:.2f} kW × (1 + {loss:g})",
-                    steam_side / 1e3, "kW")
+        result.work("Steam-side heat", "Q_s = Q·(1 + f_loss)", "Q*(1 + f_loss)", steam_side / 1e3, "kW",
+                    Q=(duty / 1e3, "kW"), f_loss=(loss, ""))
     specific = steam.enthalpy - condensate.enthalpy
     if specific <= 0.0:
         raise InputError(f"the steam ({steam.enthalpy / 1e3:.2f} kJ/kg) gives up no heat down to the condensate "
                          f"({condensate.enthalpy / 1e3:.2f} kJ/kg)", field="steam_dryness", value=inputs.steam_dryness,
                          fix="check the steam's dryness (a heating-steam supply is usually above 0.9)")
     steam_flow = steam_side / specific
-    result.step("Steam flow", "m_s = Q_s / (h_steam − h_condensate)",
-                f"m_s = {steam_side / 1e3:.2f} kW / ({steam.enthalpy / 1e3:.2f} − {condensate.enthalpy / 1e3:.2f}) kJ/kg",
-                steam_flow * 3600, "kg/h")
+    result.work("Steam flow", "m_s = Q_s / (h_steam − h_condensate)", "Q_s/(h_steam - h_condensate)",
+                steam_flow * 3600, "kg/h", Q_s=(steam_side / 1e3, "kW"), h_steam=(steam.enthalpy / 1e3, "kJ/kg"),
+                h_condensate=(condensate.enthalpy / 1e3, "kJ/kg"))
     result.add("duty", "Process duty", duty / 1e3, "kW")
     result.add("steam_side_heat", "Heat from the steam (duty with heat loss)", steam_side / 1e3, "kW")
     result.add("process_flow", "Process mass flow", flow * 3600, "kg/h")
@@ -389,31 +391,35 @@ def calculate(inputs, site):
     mean_dt = duty / ua
     result.add("lmtd", "Mean temperature difference (effective LMTD)", mean_dt, "K")
     result.add("ua", "UA required", ua / 1e3, "kW/K")
-    approach = t_sat - t_out
-    result.check("Temperature approach", "warn" if approach < MIN_APPROACH else "pass",
-                 f"steam saturation {approach:.1f} K above the process outlet (at least {MIN_APPROACH:g} K, common "
-                 "practice)")
-    result.check("Steam saturation above process outlet", "pass",
-                 f"{t_sat - 273.15:.2f} °C > {t_out - 273.15:.2f} °C")
+    approach, least = (t_sat - t_out, "K"), (MIN_APPROACH, "K")
+    result.check_limit("Temperature approach", approach, [(">=", least, "warn")], Phrase.of(
+        "steam saturation {approach:.1f} above the process outlet (at least {least:g}, common practice)",
+        approach=approach, least=least), source="common practice")
+    # Always met here (calculate refused the case otherwise), and kept as data all the same.
+    saturation, outlet = (t_sat - 273.15, "degC"), (t_out - 273.15, "degC")
+    result.check_limit("Steam saturation above process outlet", saturation, [(">", outlet, "fail")],
+                       Phrase.of("{saturation:.2f} > {outlet:.2f}", saturation=saturation, outlet=outlet))
     result.check("No temperature cross", "pass", "every zone has the hot side above the cold side at both ends")
 
     if area is not None:
         fouling = inputs.fouling_resistance or 0.0
         u_service = service_u(inputs.overall_u, fouling)
-        result.step("Service U", "1/U_s = 1/U + R_f",
-                    f"1/U_s = 1/{inputs.overall_u / 1e3:.3f} + {fouling * 1e3:.3f} m²·K/kW", u_service / 1e3,
-                    "kW/(m**2*K)")
-        result.step("Required area", "A = Σ A_i (each zone's UA_i / U_s,i)",
-                    " + ".join(f"{result.value(name + '_area'):.4f}" for name in ("subcooling", "condensing",
-                               "desuperheating") if name + "_area" in result.values) + " m²", area, "m**2")
+        # Solved for U_s, the step's value, so the written equation opens with what it finds.
+        result.work("Service U", "U_s = 1/(1/U + R_f)", "1/(1/U + R_f)", u_service / 1e3, "kW/(m**2*K)",
+                    U=(inputs.overall_u / 1e3, "kW/(m**2*K)"), R_f=(fouling * 1e3, "m**2*K/kW"))
+        zone_areas = {f"A_{name}": (result.value(name + "_area"), "m**2") for name in ZONE_NAMES
+                      if name + "_area" in result.values}
+        result.work("Required area", "A = Σ A_i (each zone's UA_i / U_s,i)", " + ".join(zone_areas), area, "m**2",
+                    **zone_areas)
         result.add("service_u", "Service U (with fouling)", u_service / 1e3, "kW/(m**2*K)")
         result.add("required_area", "Required area", area, "m**2")
         if inputs.installed_area is not None:
             margin = inputs.installed_area / area - 1.0
             result.add("area_margin", "Area margin (installed over required, minus 1)", margin)
-            result.check("Installed area sufficient", "fail" if margin < 0 else "pass",
-                         f"installed {inputs.installed_area:.2f} m² against {area:.2f} m² required "
-                         f"({100 * margin:+.1f} %)")
+            installed, required = (inputs.installed_area, "m**2"), (area, "m**2")
+            result.check_limit("Installed area sufficient", installed, [(">=", required, "fail")], Phrase.of(
+                "installed {installed:.2f} against {required:.2f} required ({margin:+.1f})", installed=installed,
+                required=required, margin=(100 * margin, "percent")))
     ua_clean, ua_fouled = add_turndown(inputs, duty, ua, area, saturated_liquid.density, result)
     add_control(inputs, duty, steam_side, steam, ua_clean, ua_fouled, saturated_liquid.density, site, result)
     if full_record_wanted():

@@ -16,9 +16,10 @@ import math
 
 from ...equipment.valve import size_steam_valve, valve_travel
 from ...errors import InputError, OutOfRangeError
-from ...properties.steam import SteamState, saturation_temperature
+from ...properties.steam import SteamState
+from ...units.amounts import Phrase
 from ..base import bar_a, full_record_wanted
-from .turndown import LOADS, STANDARD_GRAVITY, lift_density, stall_load
+from .turndown import GRAVITY, LOADS, STANDARD_GRAVITY, lift_density, stall_load, work_load_below
 from ..letdown.equipment import DEFAULT_RANGEABILITY, DEFAULT_XT, TRAVEL_FAIL, sizing_kappa
 
 CHARACTERISTICS = ("equal-percentage", "linear")
@@ -221,8 +222,8 @@ def _control_valve(inputs, steam_side, fouled, clean, result):
         result.assumptions.append("Control valve characteristic equal-percentage (not given)")
     result.assumptions.append("Control valve the size of its line: piping geometry factor Fp = 1, xTP = xT "
                               "(IEC 60534-2-1 without reducers)")
-    result.step("Steam at the control valve inlet (IF97, dry saturated)", "ρ1 = ρ_g(p1), κ = w²ρ/p",
-                f"p1 = {bar_a(supply)}: ρ1 = {state.density:.4f} kg/m³, κ = {kappa:.4f}", state.density, "kg/m**3")
+    result.work("Steam at the control valve inlet (IF97, dry saturated)", "ρ1 = ρ_g(p1), κ = w²ρ/p", "rho_g(p1)",
+                state.density, "kg/m**3", p1=(supply / 1e5, "bar"))
     result.add("control_valve_inlet_density", "Steam density at the control valve inlet", state.density, "kg/m**3")
     result.add("control_valve_isentropic_exponent", "Isentropic exponent at the control valve inlet", kappa)
     bases = [("", fouled)] + ([("clean_", clean)] if clean != fouled else [])
@@ -248,31 +249,37 @@ def _control_valve(inputs, steam_side, fouled, clean, result):
     for label, key, s, flow, pressures in ((_case_label(("", 1.0), both), ("", 1.0), design, design_flow, fouled),
                                            (_case_label(low_key, both), low_key, low, low_flow, dict(bases)[low_key[0]])):
         p2 = pressures[key[1]]
-        result.step(f"Steam through the control valve at {label}", "m = L·Q_s / (h1 − h_f(p2))",
-                    f"m = {key[1]:g} × {steam_side / 1e3:.2f} kW / ({state.enthalpy / 1e3:.2f} − "
-                    f"{SteamState.from_p_dryness(p2, 0.0).enthalpy / 1e3:.2f}) kJ/kg", flow * 3600, "kg/h")
-        result.step(f"Control valve Kv at {label}",
-                    "x = (p1 − p2)/p1; x_choked = (κ/1.40)·xT; Y = 1 − min(x, x_choked)/(3·x_choked); "
-                    "Kv = W / (N6·Y·√(min(x, x_choked)·p1·ρ1)), N6 = 3.16",
-                    f"x = ({supply / 1e3:.1f} − {p2 / 1e3:.1f}) kPa(a) / {supply / 1e3:.1f} kPa(a) = {s.x:.4f}; "
-                    f"x_choked = ({kappa:.4f}/1.40) × {xt:g} = {s.x_choked:.4f}; Y = {s.expansion_factor:.4f}; "
-                    f"Kv = {flow * 3600:.2f} kg/h / (3.16 × {s.expansion_factor:.4f} × √({min(s.x, s.x_choked):.4f} × "
-                    f"{supply / 1e3:.1f} kPa(a) × {state.density:.4f} kg/m³))" + (" (choked)" if s.choked else ""),
-                    s.kv, "m**3/h")
+        result.work(f"Steam through the control valve at {label}", "m = L·Q_s / (h1 − h_f(p2))", "L*Q_s/(h1 - h_f2)",
+                    flow * 3600, "kg/h", L=(key[1], ""), Q_s=(steam_side / 1e3, "kW"), h1=(state.enthalpy / 1e3, "kJ/kg"),
+                    h_f2=(SteamState.from_p_dryness(p2, 0.0).enthalpy / 1e3, "kJ/kg"))
+        # IEC 60534-2-1's N6 = 3.16 holds for W in kg/h, p in kPa and ρ in kg/m³; Kv first, as the step finds it.
+        result.work(f"Control valve Kv at {label}",
+                    "Kv = W / (N6·Y·√(min(x, x_choked)·p1·ρ1)), N6 = 3.16; x = (p1 − p2)/p1; x_choked = (κ/1.40)·xT; "
+                    "Y = 1 − min(x, x_choked)/(3·x_choked)",
+                    "W/(3.16*(1 - min((p1 - p2)/p1, kappa/1.4*x_T)/(3*(kappa/1.4*x_T)))"
+                    "*sqrt(min((p1 - p2)/p1, kappa/1.4*x_T)*p1*rho1))", s.kv, "m**3/h", units_fixed=True,
+                    role="flow_coefficient", W=(flow * 3600, "kg/h"), p1=(supply / 1e3, "kPa"), p2=(p2 / 1e3, "kPa"),
+                    kappa=(kappa, ""), x_T=(xt, ""), rho1=(state.density, "kg/m**3"))
     required = sizing[high_key].kv / low.kv
-    result.step("Rangeability the duty needs", "R_req = Kv_max / Kv_min over the turndown loads",
-                f"R_req = {sizing[high_key].kv:.4f} m³/h ({_case_label(high_key, both)}) / {low.kv:.4f} m³/h "
-                f"({_case_label(low_key, both)})", required)
+    result.work("Rangeability the duty needs", "R_req = Kv_max / Kv_min over the turndown loads", "Kv_max/Kv_min",
+                required, Kv_max=_kv(sizing[high_key].kv), Kv_min=_kv(low.kv))
     result.add("required_rangeability", "Rangeability the duty needs (largest Kv over smallest)", required)
     result.add("control_valve_rangeability", "Inherent rangeability of the control valve", rangeability)
-    result.check("Control valve rangeability", "warn" if required > rangeability else "pass",
-                 f"the duty needs {required:.1f}:1 ({_case_label(high_key, both)} to {_case_label(low_key, both)}); "
-                 f"the valve gives {rangeability:g}:1" + (": it cannot control down to the minimum load; consider two "
-                 "valves in parallel (split range), or accept on-off control at the lowest loads"
-                 if required > rangeability else ""))
+    # Ratios such as 17.3:1 are no quantities: they stay in the words, as they read in any units.
+    cases = f"{_case_label(high_key, both)} to {_case_label(low_key, both)}"
+    result.check_limit("Control valve rangeability", (required, ""), [("<=", (rangeability, ""), "warn")],
+                       lambda status: Phrase.of(
+                           f"the duty needs {required:.1f}:1 ({cases}); the valve gives {rangeability:g}:1"
+                           + (": it cannot control down to the minimum load; consider two valves in parallel (split "
+                              "range), or accept on-off control at the lowest loads" if status == "warn" else "")))
     if inputs.control_valve_rated_kv is not None:
         _rated_valve(inputs, sizing, design, low, low_key, both, characteristic, rangeability, result)
     return state.enthalpy
+
+
+def _kv(kv):
+    """A Kv as an amount (m³/h; a Cv in US views)."""
+    return (kv, "m**3/h", "absolute", "flow_coefficient")
 
 
 def _case_label(key, both):
@@ -284,25 +291,31 @@ def _case_label(key, both):
 def _rated_valve(inputs, sizing, design, low, low_key, both, characteristic, rangeability, result):
     kvs = inputs.control_valve_rated_kv
     result.add("control_valve_rated_kv", "Rated Kv (Kvs) of the control valve", kvs, "m**3/h")
-    if design.kv > kvs:
-        result.check("Control valve rated Kv sufficient", "fail",
-                     f"at design load the heater needs Kv {design.kv:.2f} m³/h, more than the selected valve's Kvs "
-                     f"{kvs:.2f} m³/h: it cannot pass the design steam flow from the supply pressure")
-    else:
-        result.check("Control valve rated Kv sufficient", "pass",
-                     f"Kvs {kvs:.2f} m³/h ≥ {design.kv:.2f} m³/h needed at {_case_label(('', 1.0), both)}")
-    outside = []
+    design_case = _case_label(("", 1.0), both)
+
+    def rated(status):
+        if status == "fail":
+            return Phrase.of("at design load the heater needs Kv {needed:.2f}, more than the selected valve's Kvs "
+                             "{rated:.2f}: it cannot pass the design steam flow from the supply pressure",
+                             needed=_kv(design.kv), rated=_kv(kvs))
+        return Phrase.of(f"Kvs {{rated:.2f}} ≥ {{needed:.2f}} needed at {design_case}", rated=_kv(kvs),
+                         needed=_kv(design.kv))
+    result.check_limit("Control valve rated Kv sufficient", _kv(design.kv), [("<=", _kv(kvs), "fail")], rated)
+    outside, amounts = [], {}   # the loads outside, as phrase pieces, and their amounts
     for (tag, load), s in sizing.items():
         percent = int(round(load * 100))
         which = " (clean U)" if tag else " (fouled U)" if both else ""
         travel = valve_travel(s.kv, kvs, characteristic, rangeability)
+        slot = f"{'clean' if tag else 'fouled'}_{percent}"
         if not 0.0 < travel <= 1.0:   # above full travel, or below the characteristic's controllable minimum
-            outside.append(f"{_case_label((tag, load), both)} (Kv {s.kv:.3g} m³/h)")
+            outside.append(f"{_case_label((tag, load), both)} (Kv {{kv_{slot}:.3g}})")
+            amounts[f"kv_{slot}"] = _kv(s.kv)
             continue
         result.add(f"control_valve_travel_{tag}{percent}", f"Control valve travel at {load:.0%} load{which}",
                    100.0 * travel, "percent")
         if not TRAVEL_FAIL[0] <= travel <= TRAVEL_FAIL[1]:
-            outside.append(f"{_case_label((tag, load), both)} ({100 * travel:.0f} %)")
+            outside.append(f"{_case_label((tag, load), both)} ({{travel_{slot}:.0f}})")
+            amounts[f"travel_{slot}"] = (100 * travel, "percent")
     if "control_valve_travel_100" in result.values:
         result.add("control_valve_travel", f"Control valve travel at design load{' (fouled U)' if both else ''}",
                    result.value("control_valve_travel_100"), "percent")
@@ -310,19 +323,21 @@ def _rated_valve(inputs, sizing, design, low, low_key, both, characteristic, ran
     for label, s in ((_case_label(("", 1.0), both), design), (_case_label(low_key, both), low)):
         travel = valve_travel(s.kv, kvs, characteristic, rangeability)
         if 0.0 < travel <= 1.0:   # outside, the check names the load
-            result.step(f"Control valve travel at {label}", equation,
-                        f"Kv/Kvs = {s.kv:.4f} / {kvs:.4g}; R = {rangeability:g} ({characteristic})", 100.0 * travel,
-                        "percent")
+            # Linear: h = Kv/Kvs, a fraction the percent takes as it is; equal-percentage: ln gives a plain
+            # number, made a percent by 100.
+            expression = "Kv/Kvs" if characteristic == "linear" else "100*(1 + ln(Kv/Kvs)/ln(R))"
+            result.work(f"Control valve travel at {label}", equation, expression, 100.0 * travel, "percent",
+                        Kv=_kv(s.kv), Kvs=_kv(kvs), **({} if characteristic == "linear" else {"R": (rangeability, "")}))
+    # The travel band and the rangeability are plain ratios: they stay in the words.
+    band = f"{100 * TRAVEL_FAIL[0]:.0f}-{100 * TRAVEL_FAIL[1]:.0f} % travel (common practice)"
     if outside:
-        result.check("Control valve travel over the turndown", "warn",
-                     f"outside {100 * TRAVEL_FAIL[0]:.0f}-{100 * TRAVEL_FAIL[1]:.0f} % travel (common practice) or "
-                     f"outside the valve's range ({characteristic}, R = {rangeability:g}, Kvs {kvs:.4g} m³/h) at: "
-                     + "; ".join(outside) + ". Control is poor there: near the seat it goes on-off, near full travel there is "
-                     "no margin left to open")
+        result.check("Control valve travel over the turndown", "warn", Phrase.of(
+            f"outside {band} or outside the valve's range ({characteristic}, R = {rangeability:g}, Kvs {{kvs:.4g}}) "
+            "at: " + "; ".join(outside) + ". Control is poor there: near the seat it goes on-off, near full travel "
+            "there is no margin left to open", kvs=_kv(kvs), **amounts))
     else:
-        result.check("Control valve travel over the turndown", "pass",
-                     f"{100 * TRAVEL_FAIL[0]:.0f}-{100 * TRAVEL_FAIL[1]:.0f} % travel (common practice) at every load "
-                     f"from {LOADS[0]:.0%} to design ({characteristic}, R = {rangeability:g})")
+        result.check("Control valve travel over the turndown", "pass", Phrase.of(
+            f"{band} at every load from {LOADS[0]:.0%} to design ({characteristic}, R = {rangeability:g})"))
 
 
 def _vacuum(inputs, duty, ua_clean, ua_fouled, minimum, site, result):
@@ -330,26 +345,30 @@ def _vacuum(inputs, duty, ua_clean, ua_fouled, minimum, site, result):
     atmosphere = site.atmospheric_pressure
     clean = stall_load(duty, ua_clean, t_in, t_out, atmosphere)
     fouled = stall_load(duty, ua_fouled, t_in, t_out, atmosphere)
-    t_atm = saturation_temperature(atmosphere)
-    result.step("Load below which the steam space is under vacuum (clean U)",
-                "Q_vac = UA·(T_o − T_i)/ln((T_atm − T_i)/(T_atm − T_o)), T_atm = T_sat(p_atm); L = Q_vac/Q",
-                f"p_atm = {bar_a(atmosphere)} (site), T_atm = {t_atm - 273.15:.2f} °C; UA = {ua_clean / 1e3:.4f} kW/K; "
-                f"Q = {duty / 1e3:.2f} kW", clean)
+    # The load first, as the step finds it; T_atm is the saturation temperature at the site's atmosphere.
+    work_load_below(result, "Load below which the steam space is under vacuum (clean U)",
+                    "L = Q_vac/Q, Q_vac = UA·(T_o − T_i)/ln((T_atm − T_i)/(T_atm − T_o)), T_atm = T_sat(p_atm)", clean,
+                    ua_clean, t_in, t_out, atmosphere, duty, "T_atm", "p_atm")
     result.add("vacuum_load_fraction", "Vacuum in the steam space below this load (clean U)", clean)
     result.add("vacuum_load_fraction_fouled", "Vacuum in the steam space below this load (fouled U)", fouled)
-    if clean > minimum:
-        below = "at every load, design included" if clean >= 1.0 else f"below {100 * clean:.0f} % load"
-        result.check("Steam space above atmospheric pressure", "warn",
-                     f"{below} (clean U; {100 * fouled:.0f} % fouled) the heater needs less than the site's "
-                     f"{bar_a(atmosphere)}: the steam space runs under vacuum, condensate will not drain by "
-                     "pressure and air is drawn in. Fit a vacuum breaker on the steam space (at the steam inlet, above "
-                     "the condensate level) so that the heater drains by gravity to a trap discharging without lift, "
-                     "or to a pump-trap where there is a lift or back pressure (a vacuum breaker alone lifts nothing); "
-                     "vent the air it admits, which blankets the heating surface (common practice)")
-    else:
-        result.check("Steam space above atmospheric pressure", "pass",
-                     f"the steam space stays above the site's {bar_a(atmosphere)} down to the minimum load "
-                     f"{minimum:.0%} (it falls below it under {100 * clean:.0f} % load, clean U)")
+    site_atmosphere = (atmosphere / 1e5, "bar")
+
+    def vacuum(status):
+        if status == "pass":
+            return Phrase.of(f"the steam space stays above the site's {{atmosphere:.4g}} down to the minimum load "
+                             f"{minimum:.0%} (it falls below it under {{clean:.0f}} load, clean U)",
+                             atmosphere=site_atmosphere, clean=(100 * clean, "percent"))
+        below = "at every load, design included" if clean >= 1.0 else "below {clean:.0f} load"
+        return Phrase.of(
+            below + " (clean U; {fouled:.0f} fouled) the heater needs less than the site's {atmosphere:.4g}: the steam "
+            "space runs under vacuum, condensate will not drain by pressure and air is drawn in. Fit a vacuum breaker "
+            "on the steam space (at the steam inlet, above the condensate level) so that the heater drains by gravity "
+            "to a trap discharging without lift, or to a pump-trap where there is a lift or back pressure (a vacuum "
+            "breaker alone lifts nothing); vent the air it admits, which blankets the heating surface (common practice)",
+            fouled=(100 * fouled, "percent"), atmosphere=site_atmosphere,
+            **({} if clean >= 1.0 else {"clean": (100 * clean, "percent")}))
+    # Vacuum only below the turndown's minimum load passes.
+    result.check_limit("Steam space above atmospheric pressure", (clean, ""), [("<=", (minimum, ""), "warn")], vacuum)
 
 
 def _condensate_removal(inputs, steam_side, inlet_enthalpy, clean, minimum, condensate_density, result):
@@ -368,28 +387,28 @@ def _condensate_removal(inputs, steam_side, inlet_enthalpy, clean, minimum, cond
         f"lowest steam-side pressure of the turndown ({minimum:.0%} load, clean U) and without a vacuum breaker; "
         f"the lifted condensate's density that of saturated liquid at the back pressure, {rho_lift:.1f} kg/m³; the trap's own minimum differential "
         "is left to the pump-trap maker's filling-head data")
-    result.step("Pressure difference a pump must provide (at the minimum load, clean U)",
-                "Δp_pump = p_back + ρ_l·g·H_lift − p_s − ρ_c·g·H_static",
-                f"Δp_pump = {bar_a(back)} + {rho_lift:.1f} kg/m³ × {STANDARD_GRAVITY} m/s² × {lift:.3g} m − "
-                f"{bar_a(lowest)} − {condensate_density:.1f} kg/m³ × {STANDARD_GRAVITY} m/s² × {head:.3g} m",
-                differential / 1e5, "bar difference")
+    # Record unit bar; the view reads a difference from the Δp equation.
+    result.work("Pressure difference a pump must provide (at the minimum load, clean U)",
+                "Δp_pump = p_back + ρ_l·g·H_lift − p_s − ρ_c·g·H_static", "p_back + rho_l*g*H_lift - p_s - rho_c*g*H_static",
+                differential / 1e5, "bar", p_back=(back / 1e5, "bar"), rho_l=(rho_lift, "kg/m**3"), g=GRAVITY,
+                H_lift=(lift, "m"), p_s=(lowest / 1e5, "bar"), rho_c=(condensate_density, "kg/m**3"),
+                H_static=(head, "m"))
     result.add("required_pumping_differential", "Pumping differential needed (minimum load, clean U)", differential / 1e5, "bar")
     stall = result.value("stall_load_fraction") if "stall_load_fraction" in result.values else 0.0
     if stall > 0.0:
         at = min(stall, 1.0)   # a heater that stalls at design load must be drained at design load
         p_stall = result.value("stall_pressure") * 1e5 if stall < 1.0 else clean[1.0]
         flow = load_steam_flow(at * steam_side, inlet_enthalpy, p_stall)
-        result.step("Condensate to remove at the stall load (clean U)", "m = L·Q_s / (h1 − h_f(p_stall))",
-                    f"m = {at:.4f} × {steam_side / 1e3:.2f} kW / ({inlet_enthalpy / 1e3:.2f} − "
-                    f"{SteamState.from_p_dryness(p_stall, 0.0).enthalpy / 1e3:.2f}) kJ/kg; p_stall = {bar_a(p_stall)}",
-                    flow * 3600, "kg/h")
+        result.work("Condensate to remove at the stall load (clean U)", "m = L·Q_s / (h1 − h_f(p_stall))",
+                    "L*Q_s/(h1 - h_f)", flow * 3600, "kg/h", L=(at, ""), Q_s=(steam_side / 1e3, "kW"),
+                    h1=(inlet_enthalpy / 1e3, "kJ/kg"),
+                    h_f=(SteamState.from_p_dryness(p_stall, 0.0).enthalpy / 1e3, "kJ/kg"))
         result.add("condensate_to_remove", "Condensate to remove at the stall load (clean U)", flow * 3600, "kg/h")
     if stall > minimum:
         flow = load_steam_flow(minimum * steam_side, inlet_enthalpy, lowest)
-        result.step("Condensate to remove at the minimum load (clean U)", "m = L·Q_s / (h1 − h_f(p_s))",
-                    f"m = {minimum:g} × {steam_side / 1e3:.2f} kW / ({inlet_enthalpy / 1e3:.2f} − "
-                    f"{SteamState.from_p_dryness(lowest, 0.0).enthalpy / 1e3:.2f}) kJ/kg; p_s = {bar_a(lowest)}",
-                    flow * 3600, "kg/h")
+        result.work("Condensate to remove at the minimum load (clean U)", "m = L·Q_s / (h1 − h_f(p_s))",
+                    "L*Q_s/(h1 - h_f)", flow * 3600, "kg/h", L=(minimum, ""), Q_s=(steam_side / 1e3, "kW"),
+                    h1=(inlet_enthalpy / 1e3, "kJ/kg"), h_f=(SteamState.from_p_dryness(lowest, 0.0).enthalpy / 1e3, "kJ/kg"))
         result.add("condensate_to_remove_minimum_load", f"Condensate to remove at the minimum load ({minimum:.0%}, "
                    "clean U)", flow * 3600, "kg/h")
         result.warnings.append(PUMPING_REMEDIES[0])
@@ -401,16 +420,22 @@ def _motive(inputs, back, lift, rho_lift, differential, result):
     motive = inputs.pump_motive_pressure
     discharge = back + rho_lift * STANDARD_GRAVITY * lift
     excess = motive - discharge
-    result.step("Motive pressure over the pump's discharge pressure", "Δp_motive = p_motive − (p_back + ρ_l·g·H_lift)",
-                f"Δp_motive = {bar_a(motive)} − ({bar_a(back)} + {rho_lift:.1f} kg/m³ × {STANDARD_GRAVITY} m/s² × "
-                f"{lift:.3g} m)", excess / 1e5, "bar difference")
+    result.work("Motive pressure over the pump's discharge pressure", "Δp_motive = p_motive − (p_back + ρ_l·g·H_lift)",
+                "p_motive - (p_back + rho_l*g*H_lift)", excess / 1e5, "bar", p_motive=(motive / 1e5, "bar"),
+                p_back=(back / 1e5, "bar"), rho_l=(rho_lift, "kg/m**3"), g=GRAVITY, H_lift=(lift, "m"))
     result.add("pump_motive_excess", "Motive pressure above the pump's discharge pressure", excess / 1e5, "bar")
-    detail = (f"motive {bar_a(motive)} against a discharge of {bar_a(discharge)} (back pressure with the lift): "
-              f"{excess / 1e5:+.3f} bar difference; at least {MOTIVE_MARGIN / 1e5:g} bar difference wanted (common "
-              "practice; the pump maker's capacity at this motive and back pressure governs)")
+    template = ("motive {motive:.4g} against a discharge of {discharge:.4g} (back pressure with the lift): "
+                "{excess:+.3f}; at least {margin:g} wanted (common practice; the pump maker's capacity at this motive "
+                "and back pressure governs)")
     if differential <= 0.0:
-        detail += "; no pumping is needed at the minimum load"
-    status = "fail" if excess <= 0.0 else "warn" if excess < MOTIVE_MARGIN else "pass"
-    if status == "fail":
-        detail = "not enough: " + detail + "; the pump cannot discharge"
-    result.check("Pump motive pressure", status, detail)
+        template += "; no pumping is needed at the minimum load"
+    excess_amount, margin = (excess / 1e5, "bar", "difference"), (MOTIVE_MARGIN / 1e5, "bar", "difference")
+
+    def motive_detail(status):
+        return Phrase.of(("not enough: " + template + "; the pump cannot discharge") if status == "fail" else template,
+                         motive=(motive / 1e5, "bar"), discharge=(discharge / 1e5, "bar"), excess=excess_amount,
+                         margin=margin)
+    # Above zero the pump can discharge at all (else it fails); from the margin up it passes.
+    result.check_limit("Pump motive pressure", excess_amount, [(">", (0.0, "bar", "difference"), "fail"),
+                                                               (">=", margin, "warn")], motive_detail,
+                       source="common practice")

@@ -16,6 +16,7 @@ import math
 
 from ...errors import InputError, OutOfRangeError
 from ...properties.steam import SteamState, saturation_pressure, saturation_temperature
+from ...units.amounts import Phrase
 from .zones import service_u
 
 #: Standard acceleration of gravity, m/s² (3rd CGPM, 1901; ISO 80000-3).
@@ -25,6 +26,8 @@ LOADS = tuple(round(0.1 * i, 1) for i in range(1, 11))
 #: Static head to the trap above which the figure is questioned, m (common practice: a trap sits well
 #: under this below a heater's condensate outlet; more is possible but worth a second look).
 MAX_USUAL_STATIC_HEAD = 5.0
+#: Standard gravity as a step's operand.
+GRAVITY = (STANDARD_GRAVITY, "m/s**2")
 #: Lowest pressure with a saturation temperature (the triple point), Pa (IAPWS R7-97(2012)).
 TRIPLE_POINT_PRESSURE = 611.657
 
@@ -213,9 +216,9 @@ def _with_lift(inputs, back, result):
         "kg/m³, added to the back pressure the trap (and the stall load) works against (flash steam in the riser "
         "lightens it, cooler condensate weighs more; common practice)")
     result.add("lift_head_pressure", "Static head of the condensate lift (ρ·g·H)", lift / 1e3, "kPa")
-    result.step("Back pressure at the trap outlet, with the lift", "p_back,trap = p_back + ρ_l·g·H_lift",
-                f"p_back,trap = {back / 1e5:.4g} bar(a) + {density:.1f} kg/m³ × {STANDARD_GRAVITY} m/s² × "
-                f"{inputs.lift_head:.3g} m", (back + lift) / 1e5, "bar")
+    result.work("Back pressure at the trap outlet, with the lift", "p_back,trap = p_back + ρ_l·g·H_lift",
+                "p_back + rho_l*g*H_lift", (back + lift) / 1e5, "bar", p_back=(back / 1e5, "bar"),
+                rho_l=(density, "kg/m**3"), g=GRAVITY, H_lift=(inputs.lift_head, "m"))
     return back + lift
 
 
@@ -245,14 +248,16 @@ def _stall(inputs, duty, ua_clean, ua_fouled, basis_clean, basis_fouled, condens
                "kPa")
     if drain > 0.0:
         result.add("stall_pressure", "Steam-side pressure below which condensate does not drain", drain / 1e5, "bar")
-    if head > MAX_USUAL_STATIC_HEAD:
-        result.check("Static head to the trap", "warn",
-                     f"{head:g} m of condensate above the trap is more than the {MAX_USUAL_STATIC_HEAD:g} m usual "
-                     "below a heater (common practice): check the figure, and that the leg is full of condensate "
-                     "at part load")
-    result.step("Steam-side pressure at which drainage stops", "p_stall = p_back + Δp_trap,min − ρ·g·H",
-                f"p_stall = {back / 1e5:.4g} bar(a) + {differential / 1e3:.4g} kPa difference − {condensate_density:.1f} kg/m³ × "
-                f"{STANDARD_GRAVITY} m/s² × {head:.3g} m", drain / 1e5, "bar")
+    if head > MAX_USUAL_STATIC_HEAD:   # a check only where it is not met
+        usual = (MAX_USUAL_STATIC_HEAD, "m")
+        result.check_limit("Static head to the trap", (head, "m"), [("<=", usual, "warn")], Phrase.of(
+            "{head:g} of condensate above the trap is more than the {usual:g} usual below a heater (common practice): "
+            "check the figure, and that the leg is full of condensate at part load", head=(head, "m"), usual=usual),
+            source="common practice")
+    result.work("Steam-side pressure at which drainage stops", "p_stall = p_back + Δp_trap,min − ρ·g·H",
+                "p_back + dp_trap - rho*g*H", drain / 1e5, "bar", p_back=(back / 1e5, "bar"),
+                dp_trap=(differential / 1e3, "kPa", "difference"), rho=(condensate_density, "kg/m**3"), g=GRAVITY,
+                H=(head, "m"))
     try:
         clean = stall_load(duty, ua_clean, t_in, t_out, drain)
         fouled = stall_load(duty, ua_fouled, t_in, t_out, drain)
@@ -264,32 +269,53 @@ def _stall(inputs, duty, ua_clean, ua_fouled, basis_clean, basis_fouled, condens
                          f"{' with the lift' if lift else ''} + trap differential − static head): {exc.message}",
                          field=field, limits=exc.limits,
                          fix="check condensate_back_pressure and the [inputs.drainage] figures") from None
-    if drain > TRIPLE_POINT_PRESSURE:
-        t_back = saturation_temperature(drain)
-        where = f"T_b = T_sat(p_stall) = {t_back - 273.15:.2f} °C"
-    else:
-        where = "p_stall below the triple point: the steam side never falls that low"
-    equation = "Q_stall = UA·(T_o − T_i)/ln((T_b − T_i)/(T_b − T_o)), T_b = T_sat(p_stall)"
-    result.step("Stall load, clean U", equation, f"{where}; UA = {ua_clean / 1e3:.4f} kW/K ({basis_clean})", clean)
-    result.step("Stall load, fouled U", equation, f"{where}; UA = {ua_fouled / 1e3:.4f} kW/K ({basis_fouled})",
-                fouled)
+    equation = "L = Q_stall/Q, Q_stall = UA·(T_o − T_i)/ln((T_b − T_i)/(T_b − T_o)), T_b = T_sat(p_stall)"
+    work_load_below(result, "Stall load, clean U", equation, clean, ua_clean, t_in, t_out, drain, duty, "T_b", "p_stall")
+    work_load_below(result, "Stall load, fouled U", equation, fouled, ua_fouled, t_in, t_out, drain, duty, "T_b",
+                    "p_stall")
     result.add("stall_load_fraction", "Stall load (fraction of design, clean U: governs)", clean)
     result.add("stall_load_fraction_fouled", "Stall load (fraction of design, fouled U)", fouled)
-    basis = f"the {back / 1e5:.4g} bar(a) back pressure" + (" (with the lift)" if inputs.lift_head else "")
+    basis = "the {back:.4g} back pressure" + (" (with the lift)" if inputs.lift_head else "")
+    amounts = {"back": (back / 1e5, "bar")}
     if differential or head:
-        basis += f" with the trap's {differential / 1e3:.3g} kPa difference (minimum differential) and {head:.3g} m static head " + (
-            f"(drainage stops below {drain / 1e5:.4g} bar(a))" if drain > 0.0 else
+        basis += " with the trap's {differential:.3g} (minimum differential) and {head:.3g} static head " + (
+            "(drainage stops below {drain:.4g})" if drain > 0.0 else
             "(the static head alone drains it at any steam-side pressure)")
-    if clean >= 1.0:
-        result.check("Condensate drainage (stall)", "fail",
-                     f"the clean exchanger stalls even at design load: it needs less steam pressure than {basis}; "
-                     "condensate cannot drain by pressure")
-    elif clean > 0.0:
-        result.check("Condensate drainage (stall)", "warn",
-                     f"below {100 * clean:.0f} % load (clean U; {100 * fouled:.0f} % fouled) the steam-side "
-                     f"pressure falls under {basis}: condensate backs up, with waterhammer and loss of temperature "
-                     "control")
+        amounts.update(differential=(differential / 1e3, "kPa", "difference"), head=(head, "m"),
+                       **({"drain": (drain / 1e5, "bar")} if drain > 0.0 else {}))
+
+    def drainage(status):
+        if status == "fail":
+            return Phrase.of("the clean exchanger stalls even at design load: it needs less steam pressure than "
+                             + basis + "; condensate cannot drain by pressure", **amounts)
+        if status == "warn":
+            return Phrase.of("below {clean:.0f} load (clean U; {fouled:.0f} fouled) the steam-side pressure falls "
+                             "under " + basis + ": condensate backs up, with waterhammer and loss of temperature "
+                             "control", clean=(100 * clean, "percent"), fouled=(100 * fouled, "percent"), **amounts)
+        return Phrase.of("the needed steam-side pressure stays above " + basis + " at every load, clean or fouled",
+                         **amounts)
+    # No stall at any load passes; a stall within the range warns; a stall at design load fails.
+    if result.check_limit("Condensate drainage (stall)", (clean, ""), [("<=", (0.0, ""), "warn"),
+                                                                       ("<", (1.0, ""), "fail")], drainage) == "warn":
         result.warnings.append(STALL_REMEDIES[0])
+
+
+def work_load_below(result, label, equation, load, ua, process_in, process_out, pressure, duty, t_symbol, p_symbol):
+    """The step for a load below which the steam side falls under ``pressure`` (:func:`stall_load`'s value).
+
+    Where that pressure's saturation temperature is above the process outlet the load is the LMTD equation
+    rearranged, written as arithmetic; otherwise (no such load: 0) the step names the rule with its operands.
+    """
+    operands = {"UA": (ua / 1e3, "kW/K"), "T_i": (process_in - 273.15, "degC"), "T_o": (process_out - 273.15, "degC"),
+                "Q": (duty / 1e3, "kW")}
+    if pressure <= TRIPLE_POINT_PRESSURE:
+        # Below the triple point there is no saturation temperature, and the steam side never falls that low.
+        result.work(label, equation, f"load_below({p_symbol})", load, **{p_symbol: (pressure / 1e5, "bar")})
+        return
+    t_saturation = saturation_temperature(pressure)
+    operands[t_symbol] = (t_saturation - 273.15, "degC")
+    if load > 0.0:
+        result.work(label, equation, f"UA*(T_o - T_i)/ln(({t_symbol} - T_i)/({t_symbol} - T_o))/Q", load, **operands)
     else:
-        result.check("Condensate drainage (stall)", "pass",
-                     f"the needed steam-side pressure stays above {basis} at every load, clean or fouled")
+        # At or below the process outlet the steam side never needs so low a saturation temperature: no such load.
+        result.work(label, equation, f"load_below(UA, T_i, T_o, {t_symbol}, Q)", load, **operands)

@@ -19,9 +19,12 @@ import math
 
 from ...errors import InputError
 from ...properties.steam import SteamState
+from ...units.amounts import Phrase
 
 ARRANGEMENTS = {"counterflow": None, "1-2": 1, "2-4": 2}
 ZONE_NAMES = ("subcooling", "condensing", "desuperheating")
+#: LMTD correction factor below which a shell-and-tube arrangement is poorly suited (common practice).
+MIN_F_FACTOR = 0.75
 
 
 def lmtd(hot_in, hot_out, cold_in, cold_out):
@@ -161,23 +164,23 @@ def add_zones(inputs, steam_states, t_sat, flow, duty, steam_side, steam_flow, w
         ua_zone = q / (f * dt)
         ua += ua_zone
         basis = " (wet wall: driving force T_sat − T_process)" if name == "desuperheating" and wet else ""
-        result.step(f"{name.capitalize()} zone{basis}", "UA_i = Q_i / (F·ΔT_lm,i)",
-                    f"Q = {q / 1e3:.2f} kW; steam side {hot_in - 273.15:.2f}→{hot_out - 273.15:.2f} °C, process "
-                    f"{cold_in - 273.15:.2f}→{cold_out - 273.15:.2f} °C; ΔT_lm = {dt:.3f} K; F = {f:.4f}",
-                    ua_zone / 1e3, "kW/K")
+        result.work(f"{name.capitalize()} zone{basis}", "UA_i = Q_i / (F·ΔT_lm,i)", "Q_i/(F*dT_lm)", ua_zone / 1e3,
+                    "kW/K", Q_i=(q / 1e3, "kW"), F=(f, ""), dT_lm=(dt, "K"))
         result.add(f"{name}_duty", f"{name.capitalize()} zone duty", q / 1e3, "kW")
         result.add(f"{name}_lmtd", f"{name.capitalize()} zone LMTD", dt, "K")
-        if f < 0.75:
-            result.check(f"F factor, {name} zone", "warn",
-                         f"F = {f:.3f} below 0.75: the {arrangement} arrangement is poorly suited (common practice)")
+        if f < MIN_F_FACTOR:   # a check only where it is not met
+            result.check_limit(f"F factor, {name} zone", (f, ""), [(">=", (MIN_F_FACTOR, ""), "warn")], Phrase.of(
+                f"F = {{f:.3f}} below {{limit:g}}: the {arrangement} arrangement is poorly suited (common practice)",
+                f=(f, ""), limit=(MIN_F_FACTOR, "")), source="common practice")
         if area is not None:
             u = zone_u(inputs, name)
             u_s = service_u(u, fouling)
             zone_area = ua_zone / u_s
             area += zone_area
-            result.step(f"{name.capitalize()} zone area", "A_i = UA_i / U_s,i, 1/U_s,i = 1/U_i + R_f",
-                        f"A = {ua_zone / 1e3:.4f} kW/K / {u_s / 1e3:.4f} kW/(m²·K) (U_i = {u / 1e3:.4g} kW/(m²·K), "
-                        f"R_f = {fouling * 1e3:.4g} m²·K/kW)", zone_area, "m**2")
+            # UA_i / U_s,i with 1/U_s,i = 1/U_i + R_f, written as one product.
+            result.work(f"{name.capitalize()} zone area", "A_i = UA_i / U_s,i, 1/U_s,i = 1/U_i + R_f",
+                        "UA_i*(1/U_i + R_f)", zone_area, "m**2", UA_i=(ua_zone / 1e3, "kW/K"),
+                        U_i=(u / 1e3, "kW/(m**2*K)"), R_f=(fouling * 1e3, "m**2*K/kW"))
             result.add(f"{name}_area", f"{name.capitalize()} zone area", zone_area, "m**2")
     _zone_assumptions(inputs, zones, arrangement, result)
     return ua, area
@@ -199,10 +202,11 @@ def _zone_assumptions(inputs, zones, arrangement, result):
                 f"Desuperheating zone on the dry-wall basis at the given desuperheating U "
                 f"{inputs.desuperheating_u / 1e3:.4g} kW/(m²·K): the steam cools as a gas from its own temperature "
                 "to saturation (LMTD against the process); valid only where the wall stays above saturation")
-            if inputs.overall_u is not None and inputs.desuperheating_u > inputs.overall_u:
-                result.check("Desuperheating zone U", "warn",
-                             "the dry-wall desuperheating U is above the condensing U; a gas-cooling coefficient "
-                             "is normally far lower (common practice): check the figure")
+            if inputs.overall_u is not None and inputs.desuperheating_u > inputs.overall_u:   # a check only if not met
+                result.check_limit("Desuperheating zone U", (inputs.desuperheating_u / 1e3, "kW/(m**2*K)"),
+                                   [("<=", (inputs.overall_u / 1e3, "kW/(m**2*K)"), "warn")],
+                                   "the dry-wall desuperheating U is above the condensing U; a gas-cooling coefficient "
+                                   "is normally far lower (common practice): check the figure", source="common practice")
     if "subcooling" in names and inputs.overall_u is not None:
         if inputs.subcooling_u is None:
             result.assumptions.append("Subcooling zone at the overall (condensing) U: no subcooling-zone U given")

@@ -15,7 +15,8 @@ from ...errors import InputError, OutOfRangeError
 from ...properties.steam import REFERENCE as IF97_REFERENCE
 from ...properties.steam import SteamState, saturation_temperature
 from ..balance import Stream, check_energy_balance
-from ..base import Result, bar_a, check_fields, full_record_wanted, input_field, kj_kg
+from ...units.amounts import Phrase
+from ..base import Result, bar_a, check_fields, full_record_wanted, input_field
 from ..economics import (
     annual_fuel_energy, annual_value, annual_water_cost, fuel_basis, fuel_basis_assumption, missing_site_data,
 )
@@ -149,18 +150,21 @@ def _flash_stage(index, pressure, enthalpy_in, flow_in, result, label):
     h_fg = vapour.enthalpy - liquid.enthalpy
     if enthalpy_in <= liquid.enthalpy:
         fraction = 0.0
-        result.step(f"{label}: flash fraction", "x = 0 when h_in ≤ h_f(p_flash): no flash",
-                    f"h_in = {kj_kg(enthalpy_in)} ≤ h_f({bar_a(pressure)}) = {kj_kg(liquid.enthalpy)}", 0.0)
+        # The flash fraction's own rule, max(0, ...), written out: the condensate is below h_f here.
+        result.work(f"{label}: flash fraction", "x = 0 when h_in ≤ h_f(p_flash): no flash", "max(0, (h_in - h_f)/h_fg)",
+                    0.0, h_in=(enthalpy_in / 1e3, "kJ/kg"), h_f=(liquid.enthalpy / 1e3, "kJ/kg"),
+                    h_fg=(h_fg / 1e3, "kJ/kg"))
         residual = SteamState.from_ph(pressure, enthalpy_in)
     else:
         fraction = flash_fraction(enthalpy_in, liquid.enthalpy, vapour.enthalpy)
-        result.step(f"{label}: flash fraction", "x = (h_in − h_f(p_flash)) / h_fg(p_flash)",
-                    f"x = ({kj_kg(enthalpy_in)} − {kj_kg(liquid.enthalpy)}) / {kj_kg(h_fg)}", fraction)
+        result.work(f"{label}: flash fraction", "x = (h_in − h_f(p_flash)) / h_fg(p_flash)", "(h_in - h_f)/h_fg",
+                    fraction, h_in=(enthalpy_in / 1e3, "kJ/kg"), h_f=(liquid.enthalpy / 1e3, "kJ/kg"),
+                    h_fg=(h_fg / 1e3, "kJ/kg"))
         residual = liquid
     steam_flow = flow_in * fraction
     residual_flow = flow_in - steam_flow
-    result.step(f"{label}: flash steam flow", "m_flash = x · m_in",
-                f"m_flash = {fraction:.5f} × {flow_in * 3600:.1f} kg/h", steam_flow * 3600, "kg/h")
+    result.work(f"{label}: flash steam flow", "m_flash = x · m_in", "x*m_in", steam_flow * 3600, "kg/h",
+                x=(fraction, ""), m_in=(flow_in * 3600, "kg/h"))
     return {"index": index, "pressure": pressure, "fraction": fraction, "steam_flow": steam_flow,
             "residual_flow": residual_flow, "residual": residual, "vapour": vapour, "liquid": liquid,
             "enthalpy_in": enthalpy_in, "flow_in": flow_in}
@@ -246,10 +250,13 @@ def calculate(inputs, site):
     result.add("condensate_subcooling", "Condensate subcooling", inlet.subcooling, "K")
     result.add("condensate_enthalpy", "Condensate enthalpy", inlet.enthalpy / 1e3, "kJ/kg")
     result.add("condensate_flow", "Condensate flow", flow * 3600, "kg/h")
-    result.step("Condensate enthalpy",
-                "h_in = h_f(p_c)  [saturated]" if inputs.condensate_temperature is None else "h_in = h(p_c, T_c)",
-                f"h_in at {bar_a(inputs.condensate_pressure)}, {inlet.temperature - 273.15:.2f} °C",
-                inlet.enthalpy / 1e3, "kJ/kg")
+    p_c = (inputs.condensate_pressure / 1e5, "bar")
+    if inputs.condensate_temperature is None:
+        result.work("Condensate enthalpy", "h_in = h_f(p_c)  [saturated]", "h_f(p_c)", inlet.enthalpy / 1e3, "kJ/kg",
+                    p_c=p_c)
+    else:
+        result.work("Condensate enthalpy", "h_in = h(p_c, T_c)", "h(p_c, T_c)", inlet.enthalpy / 1e3, "kJ/kg",
+                    p_c=p_c, T_c=(inlet.temperature - 273.15, "degC"))
 
     stages = []
     enthalpy, stage_flow = inlet.enthalpy, flow
@@ -280,14 +287,15 @@ def calculate(inputs, site):
     result.add("residual_condensate_temperature", "Residual condensate temperature",
                last["residual"].temperature - 273.15, "degC")
 
-    if total_flash == 0.0:
-        result.check("Condensate flashes", "warn",
-                     f"the condensate at {inlet.temperature - 273.15:.2f} °C is below the saturation temperature "
-                     f"at the flash pressure ({last['liquid'].temperature - 273.15:.2f} °C): it does not flash, "
-                     "and there is no flash steam to recover")
-    else:
-        result.check("Condensate flashes", "pass",
-                     f"{100 * total_flash / flow:.2f} % of the condensate flashes ({flash_kg_h:.1f} kg/h)")
+    def flashes(status):
+        if status == "pass":
+            return Phrase.of("{share:.2f} of the condensate flashes ({flash:.1f})",
+                             share=(100 * total_flash / flow, "percent"), flash=(flash_kg_h, "kg/h"))
+        return Phrase.of("the condensate at {condensate:.2f} is below the saturation temperature at the flash "
+                         "pressure ({saturation:.2f}): it does not flash, and there is no flash steam to recover",
+                         condensate=(inlet.temperature - 273.15, "degC"),
+                         saturation=(last["liquid"].temperature - 273.15, "degC"))
+    result.check_limit("Condensate flashes", (flash_kg_h, "kg/h"), [(">", (0.0, "kg/h"), "warn")], flashes)
 
     # The balance re-summed from the recorded states with the other IF97 implementation, judged
     # against the latent heat the flash steam carries away (the condensate's own enthalpy when none flashes).
@@ -299,13 +307,17 @@ def calculate(inputs, site):
 
     # The demand check needs no site data, so it stands apart from the heat and money.
     if inputs.lp_demand is not None:
-        if total_flash > inputs.lp_demand:
-            result.check("Flash steam within the low-pressure demand", "warn",
-                         f"flash steam {total_flash * 3600:.1f} kg/h exceeds the demand {inputs.lp_demand * 3600:.1f} "
-                         f"kg/h: {(total_flash - inputs.lp_demand) * 3600:.1f} kg/h would be vented")
-        else:
-            result.check("Flash steam within the low-pressure demand", "pass",
-                         f"flash steam {total_flash * 3600:.1f} kg/h within the demand {inputs.lp_demand * 3600:.1f} kg/h")
+        flash_steam, demand = (total_flash * 3600, "kg/h"), (inputs.lp_demand * 3600, "kg/h")
+
+        def within_demand(status):
+            if status == "pass":
+                return Phrase.of("flash steam {flash:.1f} within the demand {demand:.1f}", flash=flash_steam,
+                                 demand=demand)
+            return Phrase.of("flash steam {flash:.1f} exceeds the demand {demand:.1f}: {vented:.1f} would be vented",
+                             flash=flash_steam, demand=demand,
+                             vented=((total_flash - inputs.lp_demand) * 3600, "kg/h"))
+        result.check_limit("Flash steam within the low-pressure demand", flash_steam, [("<=", demand, "warn")],
+                           within_demand)
     _recovered_heat(inputs, site, stages, total_flash, result)
     result.assumptions.extend(vessel_assumptions(inputs))
     vessels(inputs, stages, result, v_Souders_Brown)
@@ -321,9 +333,15 @@ def _recovered_heat(inputs, site, stages, total_flash, result):
         return
     makeup = SteamState.from_pT(max(site.atmospheric_pressure, 1.01325e5), site.makeup_water_temperature)
     heat = sum(s["steam_flow"] * (s["vapour"].enthalpy - makeup.enthalpy) for s in stages)
-    result.step("Heat in the flash steam", "Q = Σ m_flash · (h_g(p_flash) − h_makeup)",
-                f"h_makeup = {kj_kg(makeup.enthalpy)} at {site.makeup_water_temperature - 273.15:.1f} °C",
-                heat / 1e3, "kW")
+    # One term a stage, each flash steam above the one make-up water.
+    terms, operands = [], {"h_makeup": (makeup.enthalpy / 1e3, "kJ/kg")}
+    for s in stages:
+        tag = str(s["index"]) if len(stages) > 1 else ""
+        terms.append(f"m_flash{tag}*(h_g{tag} - h_makeup)")
+        operands[f"m_flash{tag}"] = (s["steam_flow"] * 3600, "kg/h")
+        operands[f"h_g{tag}"] = (s["vapour"].enthalpy / 1e3, "kJ/kg")
+    result.work("Heat in the flash steam", "Q = Σ m_flash · (h_g(p_flash) − h_makeup)", " + ".join(terms), heat / 1e3,
+                "kW", **operands)
     label = "Heat in the flash steam, vented (the loss)" if inputs.vented else "Recoverable heat in the flash steam"
     result.add("recovered_heat_rate", label, heat / 1e3, "kW")
     result.assumptions.append("Recovered heat counted from make-up water temperature: each kg of flash steam "
@@ -339,11 +357,13 @@ def _recovered_heat(inputs, site, stages, total_flash, result):
     fuel = annual_fuel_energy(heat, site.operating_hours, site.boiler_efficiency)
     money = annual_value(fuel, site.fuel_price)
     saving = "lost" if inputs.vented else "saved"
-    result.step(f"Fuel energy a year {saving} ({basis} calorific value)", "E = Q · t / η_boiler",
-                f"E = {heat / 1e3:.1f} kW × {site.operating_hours:g} h / {site.boiler_efficiency:g} ({basis})",
-                fuel, "MWh")
-    result.step(f"Fuel cost a year {saving}", "C = E · fuel price",
-                f"C = {fuel:.1f} MWh × {site.fuel_price} ({basis})", money, site.fuel_price.currency)
+    result.work(f"Fuel energy a year {saving} ({basis} calorific value)", "E = Q · t / η_boiler", "Q*t/eta_boiler",
+                fuel, "MWh", Q=(heat / 1e3, "kW"), t=(site.operating_hours, "h"), eta_boiler=(site.boiler_efficiency, ""))
+    # A currency is no unit the record's unit registry converts, so a step whose value is money is written as a
+    # lookup of its operands (at_price, as the let-down's money steps), not as arithmetic to re-evaluate.
+    currency = site.fuel_price.currency
+    result.work(f"Fuel cost a year {saving}", "C = E · fuel price", "at_price(E, fuel_price)", money, currency,
+                E=(fuel, "MWh"), fuel_price=(site.fuel_price.per_mwh, f"{currency}/MWh"))
     when = "lost while vented" if inputs.vented else "saved"
     result.add("annual_fuel_energy_saved", f"Fuel energy a year ({when}; {basis} calorific value)", fuel, "MWh")
     result.add("annual_cost_saving", f"Fuel cost a year ({when})", money, site.fuel_price.currency)
@@ -361,9 +381,10 @@ def _recovered_heat(inputs, site, stages, total_flash, result):
                          f"fuel is priced in {site.fuel_price.currency} and water in {site.water_cost.currency}: "
                          "no total given")
     if inputs.vented:
-        result.check("Vented receiver", "warn",
-                     f"{total_flash * 3600:.1f} kg/h of flash steam vents to atmosphere: {heat / 1e3:.1f} kW, "
-                     f"{fuel:.0f} MWh of fuel and {money:,.0f} {site.fuel_price.currency} a year lost")
+        result.check("Vented receiver", "warn", Phrase.of(
+            "{flash:.1f} of flash steam vents to atmosphere: {heat:.1f}, {fuel:.0f} of fuel and {money:,.0f} a year lost",
+            flash=(total_flash * 3600, "kg/h"), heat=(heat / 1e3, "kW"), fuel=(fuel, "MWh"),
+            money=(money, site.fuel_price.currency)))
 
 
 def _water_credit(inputs, site, total_flash, makeup, result):
@@ -373,11 +394,14 @@ def _water_credit(inputs, site, total_flash, makeup, result):
         return None
     volume, cost = annual_water_cost(total_flash, makeup.density, site.operating_hours, site.water_cost)
     when = "lost while vented" if inputs.vented else "saved"
-    result.step(f"Make-up water a year {'lost' if inputs.vented else 'saved'}", "V = m_flash · t / ρ_makeup",
-                f"V = {total_flash * 3600:.1f} kg/h × {site.operating_hours:g} h / {makeup.density:.1f} kg/m³",
-                volume, "m**3")
-    result.step(f"Water cost a year {'lost' if inputs.vented else 'saved'}", "C_w = V · water cost",
-                f"C_w = {volume:.1f} m³ × {site.water_cost}", cost, site.water_cost.currency)
+    result.work(f"Make-up water a year {'lost' if inputs.vented else 'saved'}", "V = m_flash · t / ρ_makeup",
+                "m_flash*t/rho_makeup", volume, "m**3", m_flash=(total_flash * 3600, "kg/h"),
+                t=(site.operating_hours, "h"), rho_makeup=(makeup.density, "kg/m**3"))
+    # Money: a lookup of its operands, as the fuel cost.
+    currency = site.water_cost.currency
+    result.work(f"Water cost a year {'lost' if inputs.vented else 'saved'}", "C_w = V · water cost",
+                "at_price(V, water_cost)", cost, currency, V=(volume, "m**3"),
+                water_cost=(site.water_cost.per_m3, f"{currency}/m**3"))
     result.add("annual_water_saved", f"Make-up water a year ({when})", volume, "m**3")
     result.add("annual_water_cost_saving", f"Make-up water and treatment cost a year ({when})", cost,
                site.water_cost.currency)

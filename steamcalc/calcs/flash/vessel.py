@@ -6,6 +6,8 @@ Worked steps, results and checks for the record; the sizing arithmetic itself is
 
 from __future__ import annotations
 
+import math
+
 from ...equipment.piping import (
     MAX_FLASHING_CONDENSATE_VELOCITY, erosional_velocity, homogeneous_density, line_velocity, momentum_flux,
     pipe_inner_diameter, two_phase_velocity,
@@ -15,6 +17,7 @@ from ...equipment.vessel import (
     MIN_HEIGHT_TO_DIAMETER, holdup_diameter, holdup_volume, nozzle_minimum_diameter, vapour_area_diameter,
     vertical_vessel_layout,
 )
+from ...units.amounts import Phrase
 
 #: Souders–Brown K for a vertical flash vessel without a mist eliminator, m/s (common practice).
 DEFAULT_K_FACTOR = 0.06
@@ -29,6 +32,8 @@ MAX_INLET_MOMENTUM = 1400.0
 MAX_STEAM_NOZZLE_VELOCITY = 25.0
 #: Condensate outlet velocity above which the drain may not keep up, m/s (common practice).
 MAX_CONDENSATE_NOZZLE_VELOCITY = 1.5
+#: One lb/ft³ in kg/m³ (international pound 0.45359237 kg, foot 0.3048 m): API RP 14E's density unit.
+LB_PER_FT3 = 0.45359237 / 0.3048 ** 3
 
 REFERENCES = (
     "Souders, M. and Brown, G. G. (1934), Design of Fractionating Columns I. Entrainment and "
@@ -97,41 +102,43 @@ def vessels(inputs, stages, result, v_souders_brown):
         label = f"Stage {s['index']}" if cascade else "Vessel"
         if inputs.vapour_velocity is not None:
             allowed = inputs.vapour_velocity
-            equation, substituted = "v_allow = given", f"v_allow = {allowed:.3f} m/s"
+            result.work(f"{label}: allowable vapour velocity", "v_allow = given", "v_given", allowed, "m/s",
+                        v_given=(allowed, "m/s"))
         else:
             allowed = v_souders_brown(k, liquid.density, vapour.density)
-            equation = "v_allow = K·√((ρ_f − ρ_g)/ρ_g)"
-            substituted = (f"v_allow = {k:.3f} m/s × √(({liquid.density:.1f} − {vapour.density:.4f}) / "
-                           f"{vapour.density:.4f})")
-        result.step(f"{label}: allowable vapour velocity", equation, substituted, allowed, "m/s")
+            result.work(f"{label}: allowable vapour velocity", "v_allow = K·√((ρ_f − ρ_g)/ρ_g)",
+                        "K*sqrt((rho_f - rho_g)/rho_g)", allowed, "m/s", K=(k, "m/s"),
+                        rho_f=(liquid.density, "kg/m**3"), rho_g=(vapour.density, "kg/m**3"))
         vapour_flow = s["steam_flow"] / vapour.density
         d_vapour = vapour_area_diameter(vapour_flow, allowed)
-        result.step(f"{label}: diameter for the vapour area", "D_v = √(4·(m_flash/ρ_g) / (π·v_allow))",
-                    f"D_v = √(4 × {vapour_flow:.4f} m³/s / (π × {allowed:.3f} m/s))", d_vapour, "m")
+        result.work(f"{label}: diameter for the vapour area", "D_v = √(4·(m_flash/ρ_g) / (π·v_allow))",
+                    "sqrt(4*(m_flash/rho_g)/(pi*v_allow))", d_vapour, "m", m_flash=(s["steam_flow"] * 3600, "kg/h"),
+                    rho_g=(vapour.density, "kg/m**3"), pi=(math.pi, ""), v_allow=(allowed, "m/s"))
         liquid_flow = s["residual_flow"] / s["residual"].density
         holdup = holdup_volume(liquid_flow, residence)
         d_holdup = holdup_diameter(holdup)
-        result.step(f"{label}: diameter for the liquid hold-up",
-                    "V_L = (m_res/ρ_f)·t_res;  D_L = (4·V_L / (π·r))^(1/3)",
-                    f"V_L = {liquid_flow * 3600:.3f} m³/h × {residence / 60:g} min = {holdup:.4f} m³, "
-                    f"r = {MAX_HOLDUP_DEPTH_TO_DIAMETER:g}", d_holdup, "m")
+        # The diameter first: the step's value is D_L, so the written equation opens with it.
+        result.work(f"{label}: diameter for the liquid hold-up",
+                    "D_L = (4·V_L / (π·r))^(1/3), V_L = (m_res/ρ_f)·t_res",
+                    "(4*(m_res/rho_f)*t_res/(pi*r))**(1/3)", d_holdup, "m",
+                    m_res=(s["residual_flow"] * 3600, "kg/h"), rho_f=(s["residual"].density, "kg/m**3"),
+                    t_res=(residence / 60, "min"), pi=(math.pi, ""), r=(MAX_HOLDUP_DEPTH_TO_DIAMETER, ""))
         criteria = {"vapour area": d_vapour, "liquid hold-up": d_holdup}
         if bores:
             largest = max(bores, key=bores.get)
-            result.step(f"{label}: diameter for the nozzles", "D_N = d_max / 0.5",
-                        f"D_N = {bores[largest] * 1000:.1f} mm ({largest.replace('_', ' ')}) / "
-                        f"{MAX_NOZZLE_TO_SHELL:g}", d_build, "m")
+            result.work(f"{label}: diameter for the nozzles", "D_N = d_max / 0.5", f"d_max/{MAX_NOZZLE_TO_SHELL!r}",
+                        d_build, "m", d_max=(bores[largest] * 1000, "mm"))
             criteria["nozzle buildability"] = d_build
         governs = max(criteria, key=criteria.get)
         diameter = criteria[governs]
         layout = vertical_vessel_layout(diameter, holdup, inlet_bore)
-        result.step(f"{label}: diameter", "D = max(D_v, D_L" + (", D_N)" if bores else ")"),
-                    ", ".join(f"{name} {value:.3f} m" for name, value in criteria.items()) + f": {governs} governs",
-                    diameter, "m")
-        result.step(f"{label}: height", "H = max(h_L + h_in + h_d, 2.5·D)",
-                    f"h_L = {layout.holdup_depth:.3f} m, h_in = {layout.inlet_clearance:.3f} m, "
-                    f"h_d = {layout.disengagement:.3f} m; 2.5·D = {layout.minimum_by_proportion:.3f} m",
-                    layout.height, "m")
+        result.work(f"{label}: diameter", "D = max(D_v, D_L" + (", D_N)" if bores else ")"),
+                    "max(D_v, D_L, D_N)" if bores else "max(D_v, D_L)", diameter, "m", D_v=(d_vapour, "m"),
+                    D_L=(d_holdup, "m"), **({"D_N": (d_build, "m")} if bores else {}))
+        result.work(f"{label}: height", "H = max(h_L + h_in + h_d, 2.5·D)",
+                    f"max(h_L + h_in + h_d, {MIN_HEIGHT_TO_DIAMETER!r}*D)", layout.height, "m",
+                    h_L=(layout.holdup_depth, "m"), h_in=(layout.inlet_clearance, "m"), h_d=(layout.disengagement, "m"),
+                    D=(diameter, "m"))
         if cascade:
             prefix = f"stage_{s['index']}_"
             result.add(f"{prefix}vessel_diameter", f"{label} vessel diameter", diameter, "m")
@@ -151,16 +158,18 @@ def vessels(inputs, stages, result, v_souders_brown):
     result.add("vessel_residence_time", "Liquid residence time", residence / 60.0, "min")
     if bores:
         result.add("vessel_nozzle_diameter", "Least diameter for the nozzles", d_build, "m")
-    detail = (f"{diameter:.3f} m, set by the {governs} (vapour area {d_vapour:.3f} m, liquid hold-up "
-              f"{d_holdup:.3f} m" + (f", nozzles {d_build:.3f} m)" if bores else ")"))
+    template = (f"{{diameter:.3f}}, set by the {governs} (vapour area {{vapour:.3f}}, liquid hold-up {{holdup:.3f}}"
+                + (", nozzles {nozzles:.3f})" if bores else ")"))
+    sizes = {"diameter": (diameter, "m"), "vapour": (d_vapour, "m"), "holdup": (d_holdup, "m"),
+             **({"nozzles": (d_build, "m")} if bores else {})}
     if bores:
-        result.check("Vessel diameter", "pass", detail)
+        result.check("Vessel diameter", "pass", Phrase.of(template, **sizes))
     else:
         # Without the nozzle sizes the buildability criterion cannot be applied: the vessel may be too
         # narrow for its own steam outlet.
-        result.check("Vessel diameter", "warn",
-                     detail + ": no nozzle sizes given, so the vessel is not checked against its nozzles (a "
-                     "nozzle above half the shell diameter is no ordinary opening); give the nozzle sizes")
+        result.check("Vessel diameter", "warn", Phrase.of(
+            template + ": no nozzle sizes given, so the vessel is not checked against its nozzles (a nozzle above "
+            "half the shell diameter is no ordinary opening); give the nozzle sizes", **sizes))
     nozzles(inputs, stages, bores, result)
 
 
@@ -181,31 +190,44 @@ def nozzles(inputs, stages, bores, result):
         result.add("inlet_line_erosional_velocity",
                    "API RP 14E erosional velocity (information only)",
                    erosional, "m/s")
-        result.step("Inlet line two-phase velocity", "v_h = m / (ρ_h·A), 1/ρ_h = x/ρ_g + (1 − x)/ρ_f",
-                    f"x = {x:.5f}, ρ_f = {rho_f:.1f}, ρ_g = {rho_g:.4f} → ρ_h = {rho:.3f} kg/m³, "
-                    f"d = {d * 1000:.1f} mm", velocity, "m/s")
-        result.step("Inlet nozzle momentum flux", "ρv² = ρ_h · v_h²", f"ρv² = {rho:.3f} kg/m³ × ({velocity:.2f} m/s)²",
-                    momentum, "Pa")
-        result.step("API RP 14E erosional velocity (information only)", "V_e = C/√ρ_m, C = 100 (US units)",
-                    f"ρ_m = {rho:.3f} kg/m³", erosional, "m/s")
-        status = "warn" if velocity > MAX_FLASHING_CONDENSATE_VELOCITY else "pass"
-        result.check("Inlet line two-phase velocity", status,
-                     f"homogeneous {velocity:.1f} m/s (limit {MAX_FLASHING_CONDENSATE_VELOCITY:g} m/s for "
-                     "flashing condensate, common practice)"
-                     + ("; a larger inlet line is needed" if status == "warn" else "")
-                     + f"; API RP 14E erosional velocity {erosional:.1f} m/s shown for information only")
-        status = "warn" if momentum > MAX_INLET_MOMENTUM else "pass"
-        result.check("Inlet nozzle momentum", status,
-                     f"ρv² = {momentum:,.0f} Pa (limit {MAX_INLET_MOMENTUM:,.0f} Pa without an inlet device, "
-                     "common practice)"
-                     + ("; enlarge the inlet nozzle or fit an inlet device rated for it" if status == "warn" else ""))
+        # Squares written as products: a view writes "28.9 m/s × 28.9 m/s", never the misreadable "28.9 m/s^2".
+        result.work("Inlet line two-phase velocity", "v_h = m / (ρ_h·A), 1/ρ_h = x/ρ_g + (1 − x)/ρ_f",
+                    "m*(x/rho_g + (1 - x)/rho_f)/(pi*d*d/4)", velocity, "m/s", m=(first["flow_in"] * 3600, "kg/h"),
+                    x=(x, ""), rho_g=(rho_g, "kg/m**3"), rho_f=(rho_f, "kg/m**3"), pi=(math.pi, ""), d=(d * 1000, "mm"))
+        result.work("Inlet nozzle momentum flux", "ρv² = ρ_h · v_h²", "rho_h*v_h*v_h", momentum, "Pa",
+                    rho_h=(rho, "kg/m**3"), v_h=(velocity, "m/s"))
+        # API RP 14E's C = 100 holds for ft/s with ρ in lb/ft³: the density in those units, the result
+        # brought back to m/s by 0.3048 m/ft.
+        result.work("API RP 14E erosional velocity (information only)", "V_e = C/√ρ_m, C = 100 (US units)",
+                    "100/sqrt(rho_m)*0.3048", erosional, "m/s", units_fixed=True,
+                    rho_m=(rho / LB_PER_FT3, "lb/ft**3"))
+        velocity_limit = (MAX_FLASHING_CONDENSATE_VELOCITY, "m/s")
+        result.check_limit("Inlet line two-phase velocity", (velocity, "m/s"), [("<=", velocity_limit, "warn")],
+                           lambda status: Phrase.of(
+                               "homogeneous {velocity:.1f} (limit {limit:g} for flashing condensate, common practice)"
+                               + ("; a larger inlet line is needed" if status == "warn" else "")
+                               + "; API RP 14E erosional velocity {erosional:.1f} shown for information only",
+                               velocity=(velocity, "m/s"), limit=velocity_limit, erosional=(erosional, "m/s")),
+                           source="common practice")
+        momentum_limit = (MAX_INLET_MOMENTUM, "Pa")
+        result.check_limit("Inlet nozzle momentum", (momentum, "Pa"), [("<=", momentum_limit, "warn")],
+                           lambda status: Phrase.of(
+                               "ρv² = {momentum:,.0f} (limit {limit:,.0f} without an inlet device, common practice)"
+                               + ("; enlarge the inlet nozzle or fit an inlet device rated for it"
+                                  if status == "warn" else ""),
+                               momentum=(momentum, "Pa"), limit=momentum_limit),
+                           source="common practice")
     if "steam_nozzle" in bores and last["steam_flow"] > 0.0:
         velocity = line_velocity(last["steam_flow"], last["vapour"].density, bores["steam_nozzle"])
         result.add("steam_nozzle_velocity", "Flash-steam outlet velocity", velocity, "m/s")
-        result.check("Steam outlet velocity", "warn" if velocity > MAX_STEAM_NOZZLE_VELOCITY else "pass",
-                     f"{velocity:.1f} m/s (limit {MAX_STEAM_NOZZLE_VELOCITY:g} m/s, common practice)")
+        limit = (MAX_STEAM_NOZZLE_VELOCITY, "m/s")
+        result.check_limit("Steam outlet velocity", (velocity, "m/s"), [("<=", limit, "warn")],
+                           Phrase.of("{velocity:.1f} (limit {limit:g}, common practice)", velocity=(velocity, "m/s"),
+                                     limit=limit), source="common practice")
     if "condensate_nozzle" in bores:
         velocity = line_velocity(last["residual_flow"], last["liquid"].density, bores["condensate_nozzle"])
         result.add("condensate_nozzle_velocity", "Residual condensate outlet velocity", velocity, "m/s")
-        result.check("Condensate outlet velocity", "warn" if velocity > MAX_CONDENSATE_NOZZLE_VELOCITY else "pass",
-                     f"{velocity:.2f} m/s (limit {MAX_CONDENSATE_NOZZLE_VELOCITY:g} m/s, common practice)")
+        limit = (MAX_CONDENSATE_NOZZLE_VELOCITY, "m/s")
+        result.check_limit("Condensate outlet velocity", (velocity, "m/s"), [("<=", limit, "warn")],
+                           Phrase.of("{velocity:.2f} (limit {limit:g}, common practice)", velocity=(velocity, "m/s"),
+                                     limit=limit), source="common practice")

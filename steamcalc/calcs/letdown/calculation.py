@@ -16,7 +16,8 @@ from ...errors import InputError, OutOfRangeError
 from ...properties.steam import REFERENCE as IF97_REFERENCE
 from ...properties.steam import CRITICAL_PRESSURE, CRITICAL_TEMPERATURE, SteamState, saturation_temperature
 from ..balance import Stream, check_energy_balance
-from ..base import Result, bar_a, check_fields, deg_c, full_record_wanted, input_field, kj_kg
+from ...units.amounts import Phrase
+from ..base import Result, bar_a, check_fields, deg_c, full_record_wanted, input_field
 from .equipment import line_section, valve_section
 from .figures import figures
 from .relief import relief_section
@@ -382,23 +383,25 @@ def _inlet_state_from(inputs, result):
                 field="inlet_temperature", fix="check the pressure basis (bar(g)/bar(a)) and the temperature, "
                 "or give inlet_dryness for wet steam")
         state = SteamState.from_pT(p1, inputs.inlet_temperature)
-        result.step("Inlet enthalpy", "h1 = h(p1, T1)  [IF97]",
-                    f"h1 = h({bar_a(p1)}, {deg_c(state.temperature)})", state.enthalpy / 1e3, "kJ/kg")
+        _inlet_enthalpy_step(p1, state, result)
     elif inputs.inlet_superheat is not None:
         state = SteamState.from_pT(p1, t_sat + inputs.inlet_superheat)
-        result.step("Inlet temperature", "T1 = T_sat(p1) + ΔT_sh,1",
-                    f"T1 = {deg_c(t_sat)} + {inputs.inlet_superheat:.2f} K", state.temperature - 273.15, "degC")
-        result.step("Inlet enthalpy", "h1 = h(p1, T1)  [IF97]",
-                    f"h1 = h({bar_a(p1)}, {deg_c(state.temperature)})", state.enthalpy / 1e3, "kJ/kg")
+        result.work("Inlet temperature", "T1 = T_sat(p1) + ΔT_sh,1", "T_sat1 + dT_sh1", state.temperature - 273.15,
+                    "degC", T_sat1=(t_sat - 273.15, "degC"), dT_sh1=(inputs.inlet_superheat, "K"))
+        _inlet_enthalpy_step(p1, state, result)
     else:
         state = SteamState.from_p_dryness(p1, inputs.inlet_dryness)
         sat_liquid = SteamState.from_p_dryness(p1, 0.0)
         sat_vapour = SteamState.from_p_dryness(p1, 1.0)
-        result.step("Inlet enthalpy", "h1 = h_f(p1) + x1·(h_g(p1) − h_f(p1))",
-                    f"h1 = {kj_kg(sat_liquid.enthalpy)} + {inputs.inlet_dryness:.4f} × "
-                    f"({kj_kg(sat_vapour.enthalpy)} − {kj_kg(sat_liquid.enthalpy)})",
-                    state.enthalpy / 1e3, "kJ/kg")
+        result.work("Inlet enthalpy", "h1 = h_f(p1) + x1·(h_g(p1) − h_f(p1))", "h_f1 + x1*(h_g1 - h_f1)",
+                    state.enthalpy / 1e3, "kJ/kg", h_f1=(sat_liquid.enthalpy / 1e3, "kJ/kg"),
+                    x1=(inputs.inlet_dryness, ""), h_g1=(sat_vapour.enthalpy / 1e3, "kJ/kg"))
     return state, t_sat
+
+
+def _inlet_enthalpy_step(p1, state, result):
+    result.work("Inlet enthalpy", "h1 = h(p1, T1)  [IF97]", "h(p1, T1)", state.enthalpy / 1e3, "kJ/kg",
+                p1=(p1 / 1e5, "bar"), T1=(state.temperature - 273.15, "degC"))
 
 
 def calculate(inputs, site):
@@ -486,12 +489,15 @@ def calculate(inputs, site):
     result.add("inlet_superheat", "Inlet superheat", inlet.superheat, "K")
     result.add("inlet_enthalpy", "Inlet enthalpy", inlet.enthalpy / 1e3, "kJ/kg")
     result.add("inlet_mass_flow", "Inlet steam flow", flow * 3600, "kg/h")
-    result.check("Outlet pressure below inlet", "pass",
-                 f"{bar_a(p1)} to {bar_a(p2)}: a drop of {(p1 - p2) / 1e5:.4g} bar difference across the station")
+    result.check_limit("Outlet pressure below inlet", (p2 / 1e5, "bar"), [("<", (p1 / 1e5, "bar"), "fail")],
+                       Phrase.of("{p1:.4g} to {p2:.4g}: a drop of {drop:.4g} across the station",
+                                 p1=(p1 / 1e5, "bar"), p2=(p2 / 1e5, "bar"),
+                                 drop=((p1 - p2) / 1e5, "bar", "difference")))
     if inlet.phase == "wet":
         result.check("Inlet steam state", "warn",
-                     f"wet inlet steam (dryness {inlet.dryness:.3f}): erosion of the valve trim and "
-                     "water carried over downstream; fit a separator with a trap upstream (common practice)")
+                     Phrase.of("wet inlet steam (dryness {dryness:.3f}): erosion of the valve trim and water carried "
+                               "over downstream; fit a separator with a trap upstream (common practice)",
+                               dryness=(inlet.dryness, "")))
     else:
         result.check("Inlet steam state", "pass", f"inlet steam {_phase_word(inlet)}")
 
@@ -500,20 +506,20 @@ def calculate(inputs, site):
         t_sat2 = saturation_temperature(p2)
     except OutOfRangeError as exc:
         raise exc.for_field("outlet_pressure") from None
-    result.step("Throttling", "h2 = h1  (Q = 0, W = 0, Δke = Δpe = 0)",
-                f"h2 = {kj_kg(inlet.enthalpy)}", throttled.enthalpy / 1e3, "kJ/kg")
-    result.step("Outlet saturation temperature", "T_sat,2 = T_sat(p2)  [IF97 region 4]",
-                f"T_sat({bar_a(p2)})", t_sat2 - 273.15, "degC")
-    result.step("Throttled temperature", "T2 = T(p2, h2)  [IF97]",
-                f"T2 = T({bar_a(p2)}, {kj_kg(throttled.enthalpy)})", throttled.temperature - 273.15, "degC")
+    result.work("Throttling", "h2 = h1  (Q = 0, W = 0, Δke = Δpe = 0)", "h1", throttled.enthalpy / 1e3, "kJ/kg",
+                h1=(inlet.enthalpy / 1e3, "kJ/kg"))
+    result.work("Outlet saturation temperature", "T_sat,2 = T_sat(p2)  [IF97 region 4]", "T_sat(p2)",
+                t_sat2 - 273.15, "degC", p2=(p2 / 1e5, "bar"))
+    result.work("Throttled temperature", "T2 = T(p2, h2)  [IF97]", "T(p2, h2)", throttled.temperature - 273.15,
+                "degC", p2=(p2 / 1e5, "bar"), h2=(throttled.enthalpy / 1e3, "kJ/kg"))
     if throttled.phase == "wet":
         liquid, vapour = SteamState.from_p_dryness(p2, 0.0), SteamState.from_p_dryness(p2, 1.0)
-        result.step("Throttled dryness fraction", "x2 = (h2 − h_f(p2)) / (h_g(p2) − h_f(p2))",
-                    f"x2 = ({kj_kg(throttled.enthalpy)} − {kj_kg(liquid.enthalpy)}) / "
-                    f"({kj_kg(vapour.enthalpy)} − {kj_kg(liquid.enthalpy)})", throttled.dryness)
+        result.work("Throttled dryness fraction", "x2 = (h2 − h_f(p2)) / (h_g(p2) − h_f(p2))",
+                    "(h2 - h_f2)/(h_g2 - h_f2)", throttled.dryness, h2=(throttled.enthalpy / 1e3, "kJ/kg"),
+                    h_f2=(liquid.enthalpy / 1e3, "kJ/kg"), h_g2=(vapour.enthalpy / 1e3, "kJ/kg"))
     else:
-        result.step("Throttled superheat", "ΔT_sh,2 = T2 − T_sat,2",
-                    f"ΔT_sh,2 = {deg_c(throttled.temperature)} − {deg_c(t_sat2)}", throttled.superheat, "K")
+        result.work("Throttled superheat", "ΔT_sh,2 = T2 − T_sat,2", "T2 - T_sat2", throttled.superheat, "K",
+                    T2=(throttled.temperature - 273.15, "degC"), T_sat2=(t_sat2 - 273.15, "degC"))
     result.add("outlet_saturation_temperature", "Outlet saturation temperature", t_sat2 - 273.15, "degC")
     result.add("throttled_temperature", "Temperature after the valve", throttled.temperature - 273.15, "degC")
     result.add("throttled_phase", "Phase after the valve", _phase_word(throttled))
@@ -546,11 +552,12 @@ def calculate(inputs, site):
 
     if outlet.phase == "wet":
         result.check("Outlet steam state", "warn",
-                     f"wet steam leaves the station (dryness {outlet.dryness:.3f}): erosion and "
-                     "waterhammer risk; drain the outlet line with a trap (common practice)")
+                     Phrase.of("wet steam leaves the station (dryness {dryness:.3f}): erosion and waterhammer risk; "
+                               "drain the outlet line with a trap (common practice)", dryness=(outlet.dryness, "")))
     else:
         result.check("Outlet steam state", "pass",
-                     f"outlet steam {_phase_word(outlet)}, {outlet.superheat:.1f} K superheat")
+                     Phrase.of(f"outlet steam {_phase_word(outlet)}, {{superheat:.1f}} superheat",
+                               superheat=(outlet.superheat, "K")))
     if full_record_wanted():
         result.figures.extend(figures(inputs, result))
     return result
@@ -561,8 +568,9 @@ def _desuperheat(inputs, throttled, t_sat2, result):
     if inputs.target_superheat is not None:
         target_t = t_sat2 + inputs.target_superheat
         field = "desuperheater.target_superheat"
-        result.step("Desuperheat target temperature", "T3 = T_sat,2 + ΔT_sh,3",
-                    f"T3 = {deg_c(t_sat2)} + {inputs.target_superheat:.2f} K", target_t - 273.15, "degC")
+        result.work("Desuperheat target temperature", "T3 = T_sat,2 + ΔT_sh,3", "T_sat2 + dT_sh3",
+                    target_t - 273.15, "degC", T_sat2=(t_sat2 - 273.15, "degC"),
+                    dT_sh3=(inputs.target_superheat, "K"))
     else:
         target_t = inputs.target_temperature
         field = "desuperheater.target_temperature"
@@ -593,60 +601,70 @@ def _desuperheat(inputs, throttled, t_sat2, result):
     except OutOfRangeError as exc:
         raise exc.for_field("desuperheater.water_pressure" if exc.field == "pressure"
                             else "desuperheater.water_temperature") from None
-    result.step("Desuperheated steam enthalpy", "h3 = h(p2, T3)  [IF97]",
-                f"h3 = h({bar_a(p2)}, {deg_c(target_t)})", target.enthalpy / 1e3, "kJ/kg")
-    result.step("Spray water enthalpy", "h_w = h(p_w, T_w)  [IF97 region 1]",
-                f"h_w = h({bar_a(water_p)}, {deg_c(water_t)})", water.enthalpy / 1e3, "kJ/kg")
+    result.work("Desuperheated steam enthalpy", "h3 = h(p2, T3)  [IF97]", "h(p2, T3)", target.enthalpy / 1e3,
+                "kJ/kg", p2=(p2 / 1e5, "bar"), T3=(target_t - 273.15, "degC"))
+    result.work("Spray water enthalpy", "h_w = h(p_w, T_w)  [IF97 region 1]", "h(p_w, T_w)", water.enthalpy / 1e3,
+                "kJ/kg", p_w=(water_p / 1e5, "bar"), T_w=(water_t - 273.15, "degC"))
     result.assumptions.extend([
         "Desuperheater: adiabatic mixing; the spray evaporates completely before the outlet",
         "Spray water enthalpy at its stated temperature and pressure at the nozzle",
     ])
 
-    if margin < MIN_DESUPERHEAT_MARGIN:
-        result.check("Desuperheat margin above saturation", "warn",
-                     f"target {margin:.1f} K above saturation, below {MIN_DESUPERHEAT_MARGIN:g} K: spray "
-                     "desuperheaters control poorly this close to saturation and water may not evaporate "
-                     "(common practice)")
-    else:
-        result.check("Desuperheat margin above saturation", "pass",
-                     f"target {margin:.1f} K above saturation (at least {MIN_DESUPERHEAT_MARGIN:g} K, "
-                     "common practice)")
-    result.check("Spray water colder than target", "pass",
-                 f"water {deg_c(water_t)} below target {deg_c(target_t)}")
-    pressure_margin = water_p - p2
-    if pressure_margin < MIN_SPRAY_PRESSURE_MARGIN:
-        result.check("Spray water pressure above steam", "warn",
-                     f"water only {pressure_margin / 1e5:.2f} bar difference above the steam: atomisation doubtful "
-                     f"below about {MIN_SPRAY_PRESSURE_MARGIN / 1e5:g} bar difference (common practice; the nozzle "
-                     "maker's required differential governs)")
-    else:
-        result.check("Spray water pressure above steam", "pass",
-                     f"water {pressure_margin / 1e5:.2f} bar difference above the steam")
+    margin_k, least_margin = (margin, "K"), (MIN_DESUPERHEAT_MARGIN, "K")
+    result.check_limit(
+        "Desuperheat margin above saturation", margin_k, [(">=", least_margin, "warn")],
+        lambda status: Phrase.of(
+            "target {margin:.1f} above saturation, below {least:g}: spray desuperheaters control poorly this close "
+            "to saturation and water may not evaporate (common practice)" if status == "warn" else
+            "target {margin:.1f} above saturation (at least {least:g}, common practice)",
+            margin=margin_k, least=least_margin), source="common practice")
+    water_c, target_c = (water_t - 273.15, "degC"), (target_t - 273.15, "degC")
+    result.check_limit("Spray water colder than target", water_c, [("<", target_c, "fail")],
+                       Phrase.of("water {water:.2f} below target {target:.2f}", water=water_c, target=target_c))
+    pressure_margin = ((water_p - p2) / 1e5, "bar", "difference")
+    least_pressure_margin = (MIN_SPRAY_PRESSURE_MARGIN / 1e5, "bar", "difference")
+    result.check_limit(
+        "Spray water pressure above steam", pressure_margin, [(">=", least_pressure_margin, "warn")],
+        lambda status: Phrase.of(
+            "water only {margin:.2f} above the steam: atomisation doubtful below about {least:g} (common practice; "
+            "the nozzle maker's required differential governs)", margin=pressure_margin, least=least_pressure_margin)
+        if status == "warn" else Phrase.of("water {margin:.2f} above the steam", margin=pressure_margin),
+        source="common practice")
 
     result.add("desuperheat_target_temperature", "Desuperheat target temperature", target_t - 273.15, "degC")
     result.add("spray_water_enthalpy", "Spray water enthalpy", water.enthalpy / 1e3, "kJ/kg")
     if throttled.enthalpy <= target.enthalpy:
-        result.check("Desuperheat target reachable", "fail",
-                     f"steam after the valve ({deg_c(throttled.temperature)}) is not hotter than the target "
-                     f"({deg_c(target_t)}): spraying water cannot reach it; no spray flow is computed")
+        _target_reachable_check(throttled, target, result)
         result.add("spray_water_flow", "Spray water flow", 0.0, "kg/h")
         return throttled, 0.0
 
     spray = steam_flow * (throttled.enthalpy - target.enthalpy) / (target.enthalpy - water.enthalpy)
     outlet_flow = steam_flow + spray
-    result.step("Spray water flow", "m_w = m_s·(h2 − h3) / (h3 − h_w)",
-                f"m_w = {steam_flow * 3600:.1f} kg/h × ({kj_kg(throttled.enthalpy)} − {kj_kg(target.enthalpy)}) / "
-                f"({kj_kg(target.enthalpy)} − {kj_kg(water.enthalpy)})", spray * 3600, "kg/h")
-    result.step("Outlet steam flow", "m_3 = m_s + m_w",
-                f"m_3 = {steam_flow * 3600:.1f} kg/h + {spray * 3600:.1f} kg/h", outlet_flow * 3600, "kg/h")
+    result.work("Spray water flow", "m_w = m_s·(h2 − h3) / (h3 − h_w)", "m_s*(h2 - h3)/(h3 - h_w)", spray * 3600,
+                "kg/h", m_s=(steam_flow * 3600, "kg/h"), h2=(throttled.enthalpy / 1e3, "kJ/kg"),
+                h3=(target.enthalpy / 1e3, "kJ/kg"), h_w=(water.enthalpy / 1e3, "kJ/kg"))
+    result.work("Outlet steam flow", "m_3 = m_s + m_w", "m_s + m_w", outlet_flow * 3600, "kg/h",
+                m_s=(steam_flow * 3600, "kg/h"), m_w=(spray * 3600, "kg/h"))
     result.add("spray_water_flow", "Spray water flow", spray * 3600, "kg/h")
     result.add("desuperheater_heat_absorbed", "Heat taken up by the spray water",
                spray * (target.enthalpy - water.enthalpy) / 1e3, "kW")
 
-    result.check("Desuperheat target reachable", "pass",
-                 f"steam after the valve {deg_c(throttled.temperature)} is above the target {deg_c(target_t)}")
+    _target_reachable_check(throttled, target, result)
     check_energy_balance(result, "Desuperheater energy balance (independent)",
                          [Stream.of("throttled steam", steam_flow, throttled), Stream.of("spray water", spray, water)],
                          [Stream.of("desuperheated steam", outlet_flow, target)],
                          spray * (target.enthalpy - water.enthalpy))
     return target, spray
+
+
+def _target_reachable_check(throttled, target, result):
+    # Spraying water only lowers the enthalpy: the steam after the valve must hold more than the target.
+    temperatures = dict(throttled=(throttled.temperature - 273.15, "degC"),
+                        target=(target.temperature - 273.15, "degC"))
+    h2, h3 = (throttled.enthalpy / 1e3, "kJ/kg"), (target.enthalpy / 1e3, "kJ/kg")
+    result.check_limit(
+        "Desuperheat target reachable", h2, [(">", h3, "fail")],
+        lambda status: Phrase.of(
+            "steam after the valve ({throttled:.2f}) is not hotter than the target ({target:.2f}): spraying water "
+            "cannot reach it; no spray flow is computed" if status == "fail" else
+            "steam after the valve {throttled:.2f} is above the target {target:.2f}", **temperatures))

@@ -12,6 +12,7 @@ from ...equipment.piping import DN_TO_NPS, line_velocity, pipe_inner_diameter
 from ...equipment.valve import kv_to_cv, piping_factors, size_steam_valve, valve_flow, valve_travel
 from ...errors import InputError, OutOfRangeError
 from ...properties.steam import CRITICAL_PRESSURE, CRITICAL_TEMPERATURE, SteamState, dynamic_viscosity, saturation_temperature
+from ...units.amounts import Amount, Phrase
 from ..base import full_record_wanted
 
 #: Defaults stated as assumptions when not given (common practice for globe control valves).
@@ -26,6 +27,18 @@ DEFAULT_SCHEDULE = "40"
 #: Travel limits (common practice): fail outside 10-90 %, warn outside 20-80 %.
 TRAVEL_FAIL = (0.10, 0.90)
 TRAVEL_WARN = (0.20, 0.80)
+
+
+def travel_limits():
+    """The travel limits as a check's limits on a travel in percent (common practice).
+
+    >>> from steamcalc.units.amounts import Amount, Limit, verdict
+    >>> [verdict(Amount(t, "percent"), [Limit(*limit) for limit in travel_limits()]) for t in (5.0, 85.0, 50.0)]
+    ['fail', 'warn', 'pass']
+    """
+    return [(comparison, Amount(100.0 * bound, "percent"), breach)
+            for breach, (low, high) in (("fail", TRAVEL_FAIL), ("warn", TRAVEL_WARN))
+            for comparison, bound in ((">=", low), ("<=", high))]
 
 
 def travel_status(travel):
@@ -238,34 +251,42 @@ def valve_section(inputs, inlet, result):
                    _pressure_pair(state.pressure, inputs.outlet_pressure))
     design_case = "maximum" if "maximum" in sizing else "normal"
     design, state = sizing[design_case], states[design_case]
-    p1_kpa, p2_kpa = state.pressure / 1e3, inputs.outlet_pressure / 1e3
+    p1_kpa = state.pressure / 1e3
     design_kappa = kappas[design_case]
     if f"inlet_line_pressure_drop_{design_case}" in result.values:
         header = case_inlet_pressure(inputs, design_case)
-        result.step("Valve inlet pressure", f"p1 = p_header − Δp_inlet line  ({design_case} flow; Darcy–Weisbach)",
-                    f"p1 = {header / 1e5:.4g} bar(a) − {(header - state.pressure) / 1e5:.4f} bar difference",
-                    state.pressure / 1e5, "bar")
-    result.step("Pressure differential ratio", f"x = (p1 − p2) / p1  ({design_case} flow)",
-                f"x = ({p1_kpa:.1f} − {p2_kpa:.1f}) kPa(a) / {p1_kpa:.1f} kPa(a)", design.x)
-    result.step("Choked limit", "x_choked = Fγ·xT  (Fγ = κ/1.40)" + ("; xTP with fittings" if with_fittings else ""),
-                f"x_choked = ({design_kappa:.4f}/1.40) × {design.xtp:.4f}", design.x_choked)
-    result.step("Expansion factor", "Y = 1 − min(x, x_choked) / (3·x_choked)",
-                f"Y = 1 − {min(design.x, design.x_choked):.4f} / (3 × {design.x_choked:.4f})", design.expansion_factor)
+        result.work("Valve inlet pressure", f"p1 = p_header − Δp_inlet line  ({design_case} flow; Darcy–Weisbach)",
+                    "p_header - dp_inlet", state.pressure / 1e5, "bar", p_header=(header / 1e5, "bar"),
+                    dp_inlet=((header - state.pressure) / 1e5, "bar", "difference"))
+    p1, p2 = (state.pressure / 1e5, "bar"), (inputs.outlet_pressure / 1e5, "bar")
+    result.work("Pressure differential ratio", f"x = (p1 − p2) / p1  ({design_case} flow)", "(p1 - p2)/p1", design.x,
+                p1=p1, p2=p2)
+    # Without fittings xTP is xT itself; the symbol says which the step used.
+    xt_symbol = "xTP" if with_fittings else "xT"
+    result.work("Choked limit",
+                "x_choked = Fγ·xT  (Fγ = κ/1.40)" + ("; xTP with fittings" if with_fittings else ""),
+                f"kappa/1.4*{xt_symbol}", design.x_choked, kappa=(design_kappa, ""), **{xt_symbol: (design.xtp, "")})
+    result.work("Expansion factor", "Y = 1 − min(x, x_choked) / (3·x_choked)", "1 - min(x, x_choked)/(3*x_choked)",
+                design.expansion_factor, x=(design.x, ""), x_choked=(design.x_choked, ""))
     design_flow = dict(flow_cases(inputs))[design_case]
-    result.step(f"Required Kv ({design_case} flow)", "Kv = W / (N6·Fp·Y·√(x_siz·p1·ρ1)), N6 = 3.16",
-                f"Kv = {design_flow * 3600:.1f} kg/h / (3.16 × {design.piping_factor:.4f} × {design.expansion_factor:.4f}"
-                f" × √({min(design.x, design.x_choked):.4f} × {p1_kpa:.1f} kPa(a) × {state.density:.4f} kg/m³))",
-                design.kv, "m**3/h")
+    # N6 = 3.16 holds for W in kg/h, p1 in kPa and ρ1 in kg/m³ only: the step keeps those units.
+    result.work(f"Required Kv ({design_case} flow)", "Kv = W / (N6·Fp·Y·√(x_siz·p1·ρ1)), N6 = 3.16",
+                "W/(3.16*Fp*Y*sqrt(x_siz*p1*rho1))", design.kv, "m**3/h", units_fixed=True, role="flow_coefficient",
+                W=(design_flow * 3600, "kg/h"), Fp=(design.piping_factor, ""), Y=(design.expansion_factor, ""),
+                x_siz=(min(design.x, design.x_choked), ""), p1=(p1_kpa, "kPa"), rho1=(state.density, "kg/m**3"))
     result.add("valve_kv", f"Required Kv (sized on the {design_case} flow)", design.kv, "m**3/h")
     result.add("valve_cv", f"Required Cv (sized on the {design_case} flow)", kv_to_cv(design.kv), "")
     result.add("choked", f"Choked flow at the {design_case} flow", design.choked)
     result.add("piping_geometry_factor", "Piping geometry factor Fp", design.piping_factor)
-    if design.choked:
-        result.check("Choked flow", "warn",
-                     f"x = {design.x:.3f} ≥ Fγ·xT = {design.x_choked:.3f}: the valve is choked; flow no longer rises "
-                     "with a lower outlet pressure, and noise is likely; consider a low-noise trim or a two-stage let-down")
-    else:
-        result.check("Choked flow", "pass", f"x = {design.x:.3f} below the choked limit {design.x_choked:.3f}")
+    # Choked when x ≥ Fγ·xT (IEC 60534-2-1), so the check passes only below the limit.
+    x, x_choked = (design.x, ""), (design.x_choked, "")
+    result.check_limit(
+        "Choked flow", x, [("<", x_choked, "warn")],
+        lambda status: Phrase.of(
+            "x = {x:.3f} ≥ Fγ·xT = {x_choked:.3f}: the valve is choked; flow no longer rises with a lower outlet "
+            "pressure, and noise is likely; consider a low-noise trim or a two-stage let-down" if status == "warn" else
+            "x = {x:.3f} below the choked limit {x_choked:.3f}", x=x, x_choked=x_choked),
+        source="IEC 60534-2-1")
     if inputs.rated_kv is not None:
         _rated_valve(inputs, sizing, design, result)
     if full_record_wanted():   # the relief load feeds no banded result
@@ -278,21 +299,29 @@ def _rated_valve(inputs, sizing, design, result):
     characteristic = inputs.characteristic or "equal-percentage"
     rangeability = inputs.rangeability if inputs.rangeability is not None else DEFAULT_RANGEABILITY
     result.add("rated_kv", "Rated Kv of the selected valve", kvs, "m**3/h")
-    if design.kv > kvs:
-        result.check("Rated Kv sufficient", "fail",
-                     f"the selected valve (Kvs {kvs:.2f} m³/h) is smaller than the required Kv {design.kv:.2f} m³/h")
-    else:
-        result.check("Rated Kv sufficient", "pass", f"Kvs {kvs:.2f} m³/h ≥ required {design.kv:.2f} m³/h")
+    rated = Amount(kvs, "m**3/h", role="flow_coefficient")
+    required = Amount(design.kv, "m**3/h", role="flow_coefficient")
+    result.check_limit(
+        "Rated Kv sufficient", required, [("<=", rated, "fail")],
+        lambda status: Phrase.of(
+            "the selected valve (Kvs {kvs:.2f}) is smaller than the required {kv:.2f}" if status == "fail" else
+            "Kvs {kvs:.2f} ≥ required {kv:.2f}", kvs=rated, kv=required))
     for name, s in sizing.items():
         travel = rated_travel(inputs, s.kv)
         result.add(f"valve_travel_{name}", f"Valve travel, {name} flow", 100.0 * travel, "percent")
-        result.check(f"Valve travel at {name} flow", travel_status(travel),
-                     f"{100 * travel:.0f} % travel ({characteristic}, R = {rangeability:g}); "
-                     "10-90 % usable, 20-80 % preferred (common practice)")
+        result.check_limit(f"Valve travel at {name} flow", (100.0 * travel, "percent"), travel_limits(),
+                           Phrase.of(f"{{travel:.0f}} travel ({characteristic}, R = {rangeability:g}); "
+                                     "10-90 % usable, 20-80 % preferred (common practice)",
+                                     travel=(100.0 * travel, "percent")), source="common practice")
     result.add("valve_travel", "Valve travel at the normal flow", result.value("valve_travel_normal"), "percent")
-    result.step("Valve travel (normal flow)",
-                "h = Kv/Kvs (linear) or h = 1 + ln(Kv/Kvs)/ln R (equal-percentage)",
-                f"Kv/Kvs = {sizing['normal'].kv:.3f} / {kvs:.3f}", result.value("valve_travel_normal"), "percent")
+    # The travel of a valve too small for the flow is full travel: min(Kv, Kvs). A ratio of Kvs is a fraction,
+    # which a percent holds a hundred times; a logarithm is a plain number, so the percent is written out.
+    expression = "min(Kv, Kvs)/Kvs" if characteristic == "linear" else "100*(1 + ln(min(Kv, Kvs)/Kvs)/ln(R))"
+    ratios = dict(Kv=Amount(sizing["normal"].kv, "m**3/h", role="flow_coefficient"), Kvs=rated)
+    if characteristic != "linear":
+        ratios["R"] = (rangeability, "")
+    result.work("Valve travel (normal flow)", "h = Kv/Kvs (linear) or h = 1 + ln(Kv/Kvs)/ln R (equal-percentage)",
+                expression, result.value("valve_travel_normal"), "percent", **ratios)
 
 
 def relief_load_section(inputs, inlet, result):
@@ -303,17 +332,18 @@ def relief_load_section(inputs, inlet, result):
     p_up = case_inlet_pressure(inputs, "fail-open")
     if inputs.max_inlet_pressure is None:
         result.check("Highest upstream pressure given", "warn",
-                     f"no highest upstream pressure: the fail-open flow is taken at the normal inlet pressure "
-                     f"{p_up / 1e5:.4g} bar(a), which understates the relief load if the inlet can rise (boiler or "
-                     "HP header safety-valve setting); give valve.max_inlet_pressure")
+                     Phrase.of("no highest upstream pressure: the fail-open flow is taken at the normal inlet pressure "
+                               "{p_up:.4g}, which understates the relief load if the inlet can rise (boiler or HP "
+                               "header safety-valve setting); give valve.max_inlet_pressure", p_up=(p_up / 1e5, "bar")))
     set_pressure = relief_set_pressure(inputs)
     if set_pressure is not None:
         p_down = set_pressure
-        where = f"the relief set pressure {p_down / 1e5:.4g} bar(a)"
+        against = "the relief set pressure {p_down:.4g}"
     else:
         p_down = inputs.outlet_pressure
-        where = (f"the normal outlet pressure {p_down / 1e5:.4g} bar(a) (no relief set pressure given; at the set "
-                 "pressure the flow is the same when choked and lower when not)")
+        against = ("the normal outlet pressure {p_down:.4g} (no relief set pressure given; at the set pressure the "
+                   "flow is the same when choked and lower when not)")
+    where = Phrase.of(against, p_down=(p_down / 1e5, "bar")).text()
     if p_down >= p_up:
         raise InputError("the relief set pressure must be below the upstream pressure",
                          field="relief.set_pressure" if inputs.set_pressure is not None else "valve.relief_set_pressure",
@@ -333,16 +363,28 @@ def relief_load_section(inputs, inlet, result):
         fp, xtp = piping_factors(kvs, valve_d, inlet_d, outlet_d, xt) if valve_d is not None else (1.0, xt)
         flows["fail_open_flow"] = valve_flow(kvs, p_up / 1e3, p_down / 1e3, state.density, kappa, xtp, fp)
         result.add("fail_open_flow", "Fail-open flow of the rated valve", flows["fail_open_flow"], "kg/h")
-        result.step("Fail-open flow", "W = N6·Fp·Kvs·Y·√(x_siz·p1·ρ1), valve wide open",
-                    f"Kvs = {kvs:.2f} m³/h, p1 = {p_up / 1e5:.4g} bar(a) (highest upstream), "
-                    f"p2 = {p_down / 1e5:.4g} bar(a) ({'relief set pressure' if set_pressure else 'normal outlet pressure, no relief set pressure given'}), "
-                    f"ρ1 = {state.density:.4f} kg/m³, κ = {kappa:.4f}", flows["fail_open_flow"], "kg/h")
+        # N6 = 3.16 holds for W in kg/h, p in kPa and ρ1 in kg/m³ only: the step keeps those units.
+        xt_symbol = "xTP" if valve_d is not None else "xT"
+        x_choked = f"kappa/1.4*{xt_symbol}"
+        result.work("Fail-open flow", "W = N6·Fp·Kvs·Y·√(x_siz·p1·ρ1), valve wide open, p1 the highest upstream "
+                    "pressure, p2 the " + ("relief set pressure" if set_pressure else "normal outlet pressure (no relief "
+                    "set pressure given)") + "; Y = 1 − x_siz/(3·Fγ·xT), x_siz = min((p1 − p2)/p1, Fγ·xT), Fγ = κ/1.40",
+                    f"3.16*Fp*Kvs*(1 - min((p1 - p2)/p1, {x_choked})/(3*({x_choked})))"
+                    f"*sqrt(min((p1 - p2)/p1, {x_choked})*p1*rho1)", flows["fail_open_flow"], "kg/h", units_fixed=True,
+                    Fp=(fp, ""), Kvs=Amount(kvs, "m**3/h", role="flow_coefficient"), p1=(p_up / 1e3, "kPa"),
+                    p2=(p_down / 1e3, "kPa"), kappa=(kappa, ""), rho1=(state.density, "kg/m**3"),
+                    **{xt_symbol: (xtp, "")})
     if inputs.bypass_kv is not None:
         flows["bypass_open_flow"] = valve_flow(inputs.bypass_kv, p_up / 1e3, p_down / 1e3, state.density, kappa, xt)
         result.add("bypass_open_flow", "Flow through the bypass valve wide open", flows["bypass_open_flow"], "kg/h")
-        result.step("Bypass-open flow", "W = N6·Kv_bypass·Y·√(x_siz·p1·ρ1), Fp = 1",
-                    f"Kv = {inputs.bypass_kv:.2f} m³/h, xT = {xt:g} (the main valve's), p1 = {p_up / 1e5:.4g} bar(a), "
-                    f"p2 = {p_down / 1e5:.4g} bar(a)", flows["bypass_open_flow"], "kg/h")
+        # N6 = 3.16 holds for W in kg/h, p in kPa and ρ1 in kg/m³ only: the step keeps those units.
+        result.work("Bypass-open flow", "W = N6·Kv_bypass·Y·√(x_siz·p1·ρ1), Fp = 1, xT the main valve's; "
+                    "Y = 1 − x_siz/(3·Fγ·xT), x_siz = min((p1 − p2)/p1, Fγ·xT), Fγ = κ/1.40",
+                    "3.16*Kv_bypass*(1 - min((p1 - p2)/p1, kappa/1.4*xT)/(3*(kappa/1.4*xT)))"
+                    "*sqrt(min((p1 - p2)/p1, kappa/1.4*xT)*p1*rho1)", flows["bypass_open_flow"], "kg/h",
+                    units_fixed=True, Kv_bypass=Amount(inputs.bypass_kv, "m**3/h", role="flow_coefficient"),
+                    p1=(p_up / 1e3, "kPa"), p2=(p_down / 1e3, "kPa"), kappa=(kappa, ""), xT=(xt, ""),
+                    rho1=(state.density, "kg/m**3"))
         result.assumptions.append(f"Bypass valve at the main valve's xT = {xt:g}, no reducers (a bypass with a lower "
                                   "xT passes less when choked)")
     if state.dryness is None and "fail_open_flow" in flows and p_up <= CRITICAL_PRESSURE:
@@ -360,8 +402,9 @@ def relief_load_section(inputs, inlet, result):
     what = "the control valve failing open" if governing == "fail_open_flow" else "the bypass valve wide open"
     result.add("relief_design_flow", "Relief design flow (larger of fail-open and bypass-open)", design_flow, "kg/h")
     result.check("Relief design flow for the relief designer", "warn",
-                 f"{what} passes about {design_flow:,.0f} kg/h from {p_up / 1e5:.4g} bar(a) against {where}: the "
-                 "downstream relief device must be sized for this flow, to the local pressure-equipment code")
+                 Phrase.of(f"{what} passes about {{flow:,.0f}} from {{p_up:.4g}} against {against}: the downstream "
+                           "relief device must be sized for this flow, to the local pressure-equipment code",
+                           flow=(design_flow, "kg/h"), p_up=(p_up / 1e5, "bar"), p_down=(p_down / 1e5, "bar")))
 
 
 def _smallest_size(mass_flow, density, limit, schedule, non_preferred=False):
@@ -401,10 +444,17 @@ def line_section(inputs, inlet, throttled, outlet, result):
         result.assumptions.append("Suggested line sizes skip the non-preferred sizes "
                                   + ", ".join(f"DN{dn}" for dn in NON_PREFERRED_DN) + " (common practice)")
 
-    def limit(state):
+    def superheated(state):
         if state is outlet and throttled is not outlet:
-            return wet_limit
-        return hot_limit if state.phase == "superheated vapour" and (state.superheat or 0) > 5.0 else wet_limit
+            return False
+        return state.phase == "superheated vapour" and (state.superheat or 0) > 5.0
+
+    def limit(state):
+        return hot_limit if superheated(state) else wet_limit
+
+    def limit_source(state):
+        given = inputs.max_velocity_superheated if superheated(state) else inputs.max_velocity_wet
+        return "" if given is not None else "common practice"
 
     for key, state, flow, size_key, label in (
             ("inlet", inlet, design_flow, "inlet_size", "Inlet line"),
@@ -416,13 +466,15 @@ def line_section(inputs, inlet, throttled, outlet, result):
             continue
         velocity = line_velocity(flow, state.density, sizes[size_key])
         result.add(f"{key}_velocity", f"{label} velocity ({getattr(inputs, size_key)})", velocity, "m/s")
-        if velocity > limit(state):
-            detail = (f"{velocity:.1f} m/s in {getattr(inputs, size_key)} exceeds {limit(state):g} m/s: "
-                      + ("a noisy and erosive station; " if key == "outlet" else "")
-                      + f"{suggested or 'a size above DN600'} keeps under the limit (common practice)")
-            result.check(f"{label} velocity", "warn", detail)
-        else:
-            result.check(f"{label} velocity", "pass", f"{velocity:.1f} m/s within {limit(state):g} m/s")
+        speed, most = (velocity, "m/s"), (limit(state), "m/s")
+        result.check_limit(
+            f"{label} velocity", speed, [("<=", most, "warn")],
+            lambda status: Phrase.of(
+                f"{{velocity:.1f}} in {getattr(inputs, size_key)} exceeds {{limit:g}}: "
+                + ("a noisy and erosive station; " if key == "outlet" else "")
+                + f"{suggested or 'a size above DN600'} keeps under the limit (common practice)" if status == "warn"
+                else "{velocity:.1f} within {limit:g}", velocity=speed, limit=most),
+            source=limit_source(state))
     if throttled is not outlet and sizes["outlet_size"] is not None:
         velocity = line_velocity(design_flow, throttled.density, sizes["outlet_size"])
         result.add("valve_outlet_velocity", "Velocity after the valve, before the desuperheater", velocity, "m/s")

@@ -15,6 +15,8 @@ target state is known.
 
 from __future__ import annotations
 
+import math
+
 from ...equipment.desuperheater import (
     DEFAULT_DROPLET_SIZE, DEFAULT_MIN_STEAM_VELOCITY, DROPLET_NUSSELT, droplet_lifetime, evaporation_length,
 )
@@ -22,8 +24,9 @@ from ...equipment.liquid_valve import WATER_DENSITY_15C, size_liquid_valve, usab
 from ...equipment.piping import line_velocity, pipe_inner_diameter
 from ...errors import InputError, OutOfRangeError
 from ...properties.steam import CRITICAL_PRESSURE, SteamState, saturation_pressure, saturation_temperature, thermal_conductivity
-from ..base import bar_a, deg_c, input_field, kj_kg
-from .equipment import DEFAULT_FL, DEFAULT_RANGEABILITY, DEFAULT_SCHEDULE, TRAVEL_FAIL, flow_cases, travel_status
+from ...units.amounts import Amount, Phrase
+from ..base import bar_a, deg_c, input_field
+from .equipment import DEFAULT_FL, DEFAULT_RANGEABILITY, DEFAULT_SCHEDULE, TRAVEL_FAIL, TRAVEL_WARN, flow_cases
 
 DEFAULT_CHARACTERISTIC = "equal-percentage"
 #: Spray results that hold a pressure difference (shown as "bar difference").
@@ -168,16 +171,19 @@ def spray_section(inputs, result):
         h2 = result.states[f"valve_inlet_{name}"].enthalpy
         throttled[name] = SteamState.from_ph(p_steam, h2)
         if h2 <= target.enthalpy:
-            result.check(f"Spray needed at the {name} flow", "warn",
-                         f"steam after the valve at the {name} flow ({deg_c(throttled[name].temperature)}) is not "
-                         "hotter than the target: no spray at that flow")
+            # Recorded only when breached (no spray at that flow), as before: the target is the limit.
+            result.check_limit(f"Spray needed at the {name} flow", (h2 / 1e3, "kJ/kg"),
+                               [(">", (target.enthalpy / 1e3, "kJ/kg"), "warn")],
+                               Phrase.of(f"steam after the valve at the {name} flow ({{temperature:.2f}}) is not "
+                                         "hotter than the target: no spray at that flow",
+                                         temperature=(throttled[name].temperature - 273.15, "degC")))
             continue
         sprays[name] = steam_flow * (h2 - target.enthalpy) / (target.enthalpy - water.enthalpy)
         result.add(f"spray_water_flow_{name}", f"Spray water flow, {name} steam flow", sprays[name] * 3600, "kg/h")
         if name != "normal":
-            result.step(f"Spray water flow ({name} steam flow)", "m_w = m_s·(h2 − h3) / (h3 − h_w)",
-                        f"m_w = {steam_flow * 3600:.1f} kg/h × ({kj_kg(h2)} − {kj_kg(target.enthalpy)}) / "
-                        f"({kj_kg(target.enthalpy)} − {kj_kg(water.enthalpy)})", sprays[name] * 3600, "kg/h")
+            result.work(f"Spray water flow ({name} steam flow)", "m_w = m_s·(h2 − h3) / (h3 − h_w)",
+                        "m_s*(h2 - h3)/(h3 - h_w)", sprays[name] * 3600, "kg/h", m_s=(steam_flow * 3600, "kg/h"),
+                        h2=(h2 / 1e3, "kJ/kg"), h3=(target.enthalpy / 1e3, "kJ/kg"), h_w=(water.enthalpy / 1e3, "kJ/kg"))
     if sprays:
         _spray_valve(inputs, sprays, water, result)
     _evaporation(inputs, sprays, throttled, target, water, result)
@@ -215,35 +221,42 @@ def _spray_valve(inputs, sprays, water, result):
     sizing = {name: size_liquid_valve(w * 3600, supply / 1e3, p_out / 1e3, inlet.density, pv / 1e3,
                                       CRITICAL_PRESSURE / 1e3, fl) for name, w in sprays.items()}
     any_case = next(iter(sizing.values()))
-    result.step("Spray valve pressure differential, bar difference", "p1 = p_supply;  p2 = p_steam + Δp_nozzle;  "
-                "Δp = p1 − p2",
-                f"p1 = {bar_a(supply)}, p2 = {bar_a(inputs.outlet_pressure)} + {nozzle / 1e5:.4g} bar difference = "
-                f"{bar_a(p_out)}", (supply - p_out) / 1e5)
-    result.step("Liquid critical pressure ratio factor", "FF = 0.96 − 0.28·√(pv/pc)  [IEC 60534-2-1 eq. (3)]",
-                f"FF = 0.96 − 0.28 × √({pv / 1e3:.2f} kPa(a) / {CRITICAL_PRESSURE / 1e3:.0f} kPa(a)), "
-                f"pv = p_sat({deg_c(inputs.water_temperature)})", any_case.liquid_critical_pressure_ratio)
-    result.step("Spray valve choked differential, bar difference", "Δp_choked = FL²·(p1 − FF·pv)  [IEC 60534-2-1 eq. (2), Fp = 1]",
-                f"Δp_choked = {fl:g}² × ({supply / 1e3:.1f} − {any_case.liquid_critical_pressure_ratio:.4f} × "
-                f"{pv / 1e3:.2f}) kPa(a)", any_case.choked_differential / 1e2)
+    p1, p_v = (supply / 1e5, "bar"), (pv / 1e5, "bar")
+    ff = any_case.liquid_critical_pressure_ratio
+    result.work("Spray valve pressure differential", "Δp = p1 − p2,  p1 = p_supply,  p2 = p_steam + Δp_nozzle",
+                "p1 - (p_steam + dp_nozzle)", (supply - p_out) / 1e5, "bar", p1=p1,
+                p_steam=(inputs.outlet_pressure / 1e5, "bar"), dp_nozzle=(nozzle / 1e5, "bar", "difference"))
+    result.work("Spray water vapour pressure", "pv = p_sat(T_w)  [IF97 region 4]", "p_sat(T_w)", pv / 1e5, "bar",
+                T_w=(inputs.water_temperature - 273.15, "degC"))
+    result.work("Liquid critical pressure ratio factor", "FF = 0.96 − 0.28·√(pv/pc)  [IEC 60534-2-1 eq. (3)]",
+                "0.96 - 0.28*sqrt(pv/pc)", ff, pv=p_v, pc=(CRITICAL_PRESSURE / 1e5, "bar"))
+    result.work("Spray valve choked differential", "Δp_choked = FL²·(p1 − FF·pv)  [IEC 60534-2-1 eq. (2), Fp = 1]",
+                "FL*FL*(p1 - FF*pv)", any_case.choked_differential / 1e2, "bar", FL=(fl, ""), p1=p1, FF=(ff, ""),
+                pv=p_v)
     result.add("spray_valve_pressure_differential", "Spray valve pressure differential",
                any_case.pressure_differential / 1e2, "bar")
     result.add("spray_valve_choked_differential", "Spray valve choked pressure differential",
                any_case.choked_differential / 1e2, "bar")
     result.add("spray_water_density", "Spray water density at the valve inlet", inlet.density, "kg/m**3")
     for name, s in sizing.items():
-        result.step(f"Spray valve Kv ({name} steam flow)",
-                    "Kv = Q/N1·√((ρ1/ρ0)/Δp_siz), N1 = 0.1, Δp_siz = min(Δp, Δp_choked)  [IEC 60534-2-1 eq. (1)]",
-                    f"Kv = {s.volume_flow:.4f} m³/h / 0.1 × √(({inlet.density:.1f}/{WATER_DENSITY_15C:g}) / "
-                    f"{s.sizing_differential:.1f} kPa difference)", s.kv, "m**3/h")
+        # N1 = 0.1 holds for W in kg/h, ρ in kg/m³ and Δp in kPa only.
+        result.work(f"Spray valve Kv ({name} steam flow)",
+                    "Kv = Q/N1·√((ρ1/ρ0)/Δp_siz),  Q = W/ρ1,  N1 = 0.1,  Δp_siz = min(Δp, Δp_choked)  "
+                    "[IEC 60534-2-1 eq. (1); m³/h, kg/h, kg/m³, kPa difference]",
+                    "W/rho1/0.1*sqrt((rho1/rho0)/min(dp, dp_choked))", s.kv, "m**3/h", units_fixed=True,
+                    role="flow_coefficient", W=(sprays[name] * 3600, "kg/h"), rho1=(inlet.density, "kg/m**3"),
+                    rho0=(WATER_DENSITY_15C, "kg/m**3"), dp=(s.pressure_differential, "kPa", "difference"),
+                    dp_choked=(s.choked_differential, "kPa", "difference"))
         result.add(f"spray_valve_kv_{name}", f"Spray valve required Kv, {name} steam flow", s.kv, "m**3/h")
     verdict = any_case.cavitation
-    result.step("Spray valve cavitation indication", "flashing if p2 < pv; choked if Δp ≥ Δp_choked; incipient "
-                "cavitation if Δp ≥ Kc·(p1 − pv), Kc = 0.8·FL² (common practice)",
-                f"p2 = {bar_a(p_out)}, pv = {bar_a(pv)}; Δp = {any_case.pressure_differential / 1e2:.2f}, "
-                f"Δp_choked = {any_case.choked_differential / 1e2:.2f}, Kc·(p1 − pv) = "
-                f"{any_case.incipient_differential / 1e2:.2f} bar difference", verdict)
+    result.work("Spray valve cavitation indication", "indication = flashing if p2 < pv; choked if Δp ≥ Δp_choked; "
+                "incipient cavitation if Δp ≥ Kc·(p1 − pv), Kc = 0.8·FL² (common practice); else none expected",
+                "cavitation_indication(p2, pv, dp, dp_choked, dp_incipient)", verdict,
+                p2=(p_out / 1e5, "bar"), pv=p_v, dp=(any_case.pressure_differential / 1e2, "bar", "difference"),
+                dp_choked=(any_case.choked_differential / 1e2, "bar", "difference"),
+                dp_incipient=(any_case.incipient_differential / 1e2, "bar", "difference"))
     result.add("spray_valve_cavitation", "Spray valve cavitation indication (IEC 60534-2-1)", verdict)
-    _cavitation_check(any_case, verdict, supply, p_out, pv, fl, result)
+    _cavitation_check(any_case, verdict, p_out, pv, fl, result)
     if "minimum" in sprays and "maximum" in sprays:
         _turndown(sprays, characteristic, rangeability, result)
     else:
@@ -256,13 +269,29 @@ def _spray_valve(inputs, sprays, water, result):
                                   "(desuperheater.spray_valve_rated_kv)")
 
 
-def _cavitation_check(s, verdict, supply, p_out, pv, fl, result):
-    basis = (f"Δp = {s.pressure_differential / 1e2:.2f} bar difference, choked at {s.choked_differential / 1e2:.2f}, "
-             f"incipient cavitation from {s.incipient_differential / 1e2:.2f} (Kc = 0.8·FL² = {0.8 * fl ** 2:.3f}, "
-             f"common practice, from memory); outlet {bar_a(p_out)} against the vapour pressure {bar_a(pv)}")
-    if verdict == "none expected":
-        result.check("Spray valve cavitation", "pass", f"no cavitation expected: {basis}")
-        return
+def _cavitation_check(s, verdict, p_out, pv, fl, result):
+    """The valve's differential against the incipient-cavitation differential.
+
+    With FL ≤ 1 and pv below p1, the choked differential lies above the incipient one, and flashing
+    (p2 < pv) means Δp > p1 − pv, above it too: every indication but "none expected" has Δp at or above
+    Kc·(p1 − pv), so that one limit gives the verdict.
+    """
+    basis = ("Δp = {dp:.2f}, choked at {dp_choked:.2f}, incipient cavitation from {dp_incipient:.2f} "
+             "(Kc = 0.8·FL² = {kc:.3f}, common practice, from memory); outlet {p2:.4g} against the vapour pressure "
+             "{pv:.4g}")
+    dp = (s.pressure_differential / 1e2, "bar", "difference")
+    amounts = dict(dp=dp, dp_choked=(s.choked_differential / 1e2, "bar", "difference"),
+                   dp_incipient=(s.incipient_differential / 1e2, "bar", "difference"), kc=(0.8 * fl ** 2, ""),
+                   p2=(p_out / 1e5, "bar"), pv=(pv / 1e5, "bar"))
+    result.check_limit("Spray valve cavitation", dp, [("<", amounts["dp_incipient"], "warn")],
+                       lambda status: Phrase.of(_cavitation_words(verdict, status) + basis, **amounts),
+                       source="common practice, from memory")
+
+
+def _cavitation_words(verdict, status):
+    """The opening words of the cavitation check: the indication and its advice."""
+    if status == "pass":
+        return "no cavitation expected: "
     advice = {
         "flashing": "the water leaves partly as vapour: hardened trim and an outlet line sized for flashing flow",
         "choked, cavitating": "the valve passes no more water with a lower outlet pressure and cavitation will "
@@ -272,48 +301,94 @@ def _cavitation_check(s, verdict, supply, p_out, pv, fl, result):
                                 "incipient-cavitation coefficient, or take part of the drop across the nozzle "
                                 "(common practice)",
     }[verdict]
-    result.check("Spray valve cavitation", "warn", f"{verdict}: {advice}; {basis}")
+    return f"{verdict}: {advice}; "
 
 
 def _turndown(sprays, characteristic, rangeability, result):
     turndown = sprays["maximum"] / sprays["minimum"]
     usable = usable_turndown(characteristic, rangeability, TRAVEL_FAIL)
-    result.step("Spray turndown", "turndown = m_w,max / m_w,min",
-                f"{sprays['maximum'] * 3600:.1f} kg/h / {sprays['minimum'] * 3600:.1f} kg/h", turndown)
-    result.step("Usable range of the spray valve", "Φ(h_high)/Φ(h_low), Φ = R^(h − 1) or h, between 10 % and 90 % "
-                "travel", f"{characteristic}, R = {rangeability:g}", usable)
+    result.work("Spray turndown", "turndown = m_w,max / m_w,min", "m_w_max/m_w_min", turndown,
+                m_w_max=(sprays["maximum"] * 3600, "kg/h"), m_w_min=(sprays["minimum"] * 3600, "kg/h"))
+    low, high = TRAVEL_FAIL
+    if characteristic == "linear":
+        result.work("Usable range of the spray valve", "range = Φ(h_high)/Φ(h_low),  Φ = h (linear),  h from 10 % "
+                    "to 90 % travel", "h_high/h_low", usable, h_high=(high, ""), h_low=(low, ""))
+    else:
+        result.work("Usable range of the spray valve", "range = Φ(h_high)/Φ(h_low),  Φ = R^(h − 1) "
+                    "(equal-percentage),  h from 10 % to 90 % travel", "R**(h_high - 1)/R**(h_low - 1)", usable,
+                    R=(rangeability, ""), h_high=(high, ""), h_low=(low, ""))
     result.add("spray_turndown", "Spray turndown (maximum over minimum spray)", turndown)
     result.add("spray_valve_usable_range", "Usable range of the spray valve (10-90 % travel)", usable)
-    if turndown > usable:
-        result.check("Spray turndown within the valve's range", "warn",
-                     f"spray turndown {turndown:.1f} exceeds the {usable:.1f} the {characteristic} valve (R = "
-                     f"{rangeability:g}) controls between 10 and 90 % travel (common practice): use two spray "
-                     "valves in split range, or a valve of higher rangeability")
-    else:
-        result.check("Spray turndown within the valve's range", "pass",
-                     f"spray turndown {turndown:.1f} within the {usable:.1f} of the {characteristic} valve (R = "
-                     f"{rangeability:g}) between 10 and 90 % travel (common practice)")
+    amounts = dict(turndown=(turndown, ""), usable=(usable, ""))
+    result.check_limit(
+        "Spray turndown within the valve's range", amounts["turndown"], [("<=", amounts["usable"], "warn")],
+        lambda status: Phrase.of(
+            f"spray turndown {{turndown:.1f}} within the {{usable:.1f}} of the {characteristic} valve (R = {rangeability:g}) "
+            "between 10 and 90 % travel (common practice)" if status == "pass" else
+            f"spray turndown {{turndown:.1f}} exceeds the {{usable:.1f}} the {characteristic} valve (R = {rangeability:g}) "
+            "controls between 10 and 90 % travel (common practice): use two spray valves in split range, or a valve "
+            "of higher rangeability", **amounts),
+        source="common practice")
+
+
+def _kv(value):
+    """A flow coefficient, m³/h, as an amount (a Cv in US views)."""
+    return Amount(value, "m**3/h", role="flow_coefficient")
 
 
 def _rated_spray_valve(kvs, sizing, characteristic, rangeability, result):
     result.add("spray_valve_rated_kv", "Rated Kv of the selected spray-water valve", kvs, "m**3/h")
     largest = max(s.kv for s in sizing.values())
-    if largest > kvs:
-        result.check("Spray valve rated Kv sufficient", "fail",
-                     f"the spray-water valve (Kvs {kvs:.3g} m³/h) is smaller than the required Kv {largest:.3g} m³/h")
-    else:
-        result.check("Spray valve rated Kv sufficient", "pass", f"Kvs {kvs:.3g} m³/h ≥ required {largest:.3g} m³/h")
+    amounts = dict(rated=_kv(kvs), required=_kv(largest))
+    result.check_limit("Spray valve rated Kv sufficient", amounts["required"], [("<=", amounts["rated"], "fail")],
+                       lambda status: Phrase.of(
+                           "rated {rated:.3g} ≥ required {required:.3g}" if status == "pass" else
+                           "the spray-water valve (rated {rated:.3g}) is smaller than the required {required:.3g}",
+                           **amounts))
+    # The travel limits: usable 10-90 %, preferred 20-80 % (common practice, steamcalc.calcs.letdown.equipment).
+    limits = [(">=", (100.0 * TRAVEL_FAIL[0], "percent"), "fail"), ("<=", (100.0 * TRAVEL_FAIL[1], "percent"), "fail"),
+              (">=", (100.0 * TRAVEL_WARN[0], "percent"), "warn"), ("<=", (100.0 * TRAVEL_WARN[1], "percent"), "warn")]
     for name, s in sizing.items():
         travel, note = _travel(s.kv, kvs, characteristic, rangeability)
         result.add(f"spray_valve_travel_{name}", f"Spray valve travel, {name} steam flow" + (f" ({note})" if note else ""),
                    100.0 * travel, "percent")
-        result.step(f"Spray valve travel ({name} steam flow)",
-                    "h = Kv/Kvs (linear) or h = 1 + ln(Kv/Kvs)/ln R (equal-percentage)  [IEC 60534-2-4]",
-                    f"Kv/Kvs = {s.kv:.4f} / {kvs:.4g}, {characteristic}, R = {rangeability:g}", 100.0 * travel,
-                    "percent")
-        result.check(f"Spray valve travel at {name} steam flow", "fail" if note else travel_status(travel),
-                     f"{100 * travel:.0f} % travel" + (f", {note}" if note else "")
-                     + f" ({characteristic}, R = {rangeability:g}); 10-90 % usable, 20-80 % preferred (common practice)")
+        _travel_step(name, s.kv, kvs, characteristic, rangeability, travel, result)
+        detail = {"": "", "wide open": ", wide open: the valve is too small",
+                  "below range": ", below the smallest controllable Kv, Kvs/R = {smallest:.4g}"}[_travel_kind(
+                      s.kv, kvs, characteristic, rangeability)]
+        amounts = dict(travel=(100.0 * travel, "percent"))
+        if "{smallest" in detail:
+            amounts["smallest"] = _kv(kvs / rangeability)
+        result.check_limit(f"Spray valve travel at {name} steam flow", amounts["travel"], limits,
+                           Phrase.of("{travel:.0f} travel" + detail + f" ({characteristic}, R = {rangeability:g}); 10-90 % "
+                                     "usable, 20-80 % preferred (common practice)", **amounts),
+                           source="common practice")
+
+
+def _travel_kind(kv, kvs, characteristic, rangeability):
+    """Where a required Kv lies against the rated valve: "" within its range, "wide open", "below range"."""
+    if kv > kvs:
+        return "wide open"
+    if characteristic == "equal-percentage" and kv < kvs / rangeability:
+        return "below range"
+    return ""
+
+
+def _travel_step(name, kv, kvs, characteristic, rangeability, travel, result):
+    """The travel of the rated valve; a Kv above the Kvs stops at full travel, one below Kvs/R at closed."""
+    if characteristic == "linear":
+        # A ratio of two Kv, shown in percent.
+        equation, expression, operands = "h = min(Kv, Kvs)/Kvs  (linear)  [IEC 60534-2-4]", "min(Kv, Kvs)/Kvs", {}
+    else:
+        # ln() gives a plain number: the expression writes the percent itself.
+        equation = "h = 1 + ln(min(Kv, Kvs)/Kvs)/ln R  (equal-percentage)  [IEC 60534-2-4]"
+        expression, operands = "100*(1 + ln(min(Kv, Kvs)/Kvs)/ln(R))", {"R": (rangeability, "")}
+        if _travel_kind(kv, kvs, characteristic, rangeability) == "below range":
+            equation = "h = max(1 + ln(Kv/Kvs)/ln R, 0)  (equal-percentage, below the smallest controllable Kv)  " \
+                       "[IEC 60534-2-4]"
+            expression = "100*max(1 + ln(Kv/Kvs)/ln(R), 0)"
+    result.work(f"Spray valve travel ({name} steam flow)", equation, expression, 100.0 * travel, "percent",
+                Kv=_kv(kv), Kvs=_kv(kvs), **operands)
 
 
 def _pipe_diameter(inputs):
@@ -341,20 +416,22 @@ def _evaporation(inputs, sprays, throttled, target, water, result):
     low = "minimum" if "minimum" in cases else "normal"
     limit = inputs.desuperheater_velocity_limit or DEFAULT_MIN_STEAM_VELOCITY
     v_min = line_velocity(cases[low], throttled[low].density, diameter)
-    result.step(f"Steam velocity at the desuperheater ({low} flow)", "v = m_s / (ρ2·π·D²/4)",
-                f"v = {cases[low] * 3600:.1f} kg/h / 3600 / ({throttled[low].density:.4f} kg/m³ × π × "
-                f"({diameter * 1000:.1f} mm)²/4), {described}", v_min, "m/s")
+    # D·D, not D²: a view writes a power of a number with its unit as "203 mm^2", which reads as an area.
+    result.work(f"Steam velocity at the desuperheater ({low} flow)", f"v = m_s / (ρ2·π·D²/4),  D the bore of {described}",
+                "m_s/(rho2*pi*D*D/4)", v_min, "m/s", m_s=(cases[low] * 3600, "kg/h"),
+                rho2=(throttled[low].density, "kg/m**3"), pi=(math.pi, ""), D=(diameter * 1e3, "mm"))
     result.add("desuperheater_min_velocity", f"Steam velocity at the desuperheater, {low} flow", v_min, "m/s")
-    basis = ("" if inputs.desuperheater_velocity_limit is not None
-             else " (common practice for spray types, from memory; the maker's minimum governs)")
-    if v_min < limit:
-        result.check("Steam velocity at the desuperheater", "warn",
-                     f"{v_min:.1f} m/s at the {low} flow, below the {limit:g} m/s a spray desuperheater needs{basis}: "
-                     "the spray may fall out onto the pipe; a smaller pipe at the spray point, or a steam-atomising "
-                     "or venturi type")
-    else:
-        result.check("Steam velocity at the desuperheater", "pass",
-                     f"{v_min:.1f} m/s at the {low} flow, at least {limit:g} m/s{basis}")
+    given = inputs.desuperheater_velocity_limit is not None
+    basis = "" if given else " (common practice for spray types, from memory; the maker's minimum governs)"
+    amounts = dict(velocity=(v_min, "m/s"), limit=(limit, "m/s"))
+    result.check_limit(
+        "Steam velocity at the desuperheater", amounts["velocity"], [(">=", amounts["limit"], "warn")],
+        lambda status: Phrase.of(
+            f"{{velocity:.1f}} at the {low} flow, at least {{limit:g}}{basis}" if status == "pass" else
+            f"{{velocity:.1f}} at the {low} flow, below the {{limit:g}} a spray desuperheater needs{basis}: the spray "
+            "may fall out onto the pipe; a smaller pipe at the spray point, or a steam-atomising or venturi type",
+            **amounts),
+        source="" if given else "common practice, from memory")
     if not sprays:
         return
     droplet = inputs.spray_droplet_size or DEFAULT_DROPLET_SIZE
@@ -381,25 +458,32 @@ def _evaporation(inputs, sprays, throttled, target, water, result):
         "with the steam: no credit for slip, turbulence or break-up, so the estimate errs long), the steam's "
         "superheat falling in proportion to the spray evaporated, steam conductivity at the film temperature "
         "(IAPWS R15-11); times the larger of the steam velocities before and after the spray")
-    result.step("Droplet lifetime", "t = ρ_l·L·d0²/(4·Nu·k) · ∫₀¹ ds / ΔT(s),  ΔT(s) = ΔT_end + (ΔT_start − "
-                "ΔT_end)·s^1.5  [d²-law]",
-                f"ρ_l = {liquid.density:.1f} kg/m³, L = h_g − h_w = {kj_kg(heat)}, d0 = {droplet * 1e6:.0f} µm, "
-                f"Nu = {DROPLET_NUSSELT:g}, k = {k:.5f} W/(m·K) at {deg_c(film.temperature)}, ΔT_start = "
-                f"{start:.1f} K, ΔT_end = {end:.1f} K ({governing} flow)", lifetime, "s")
-    result.step("Evaporation length", "L_evap = t · v", f"L_evap = {lifetime:.3f} s × {velocity:.2f} m/s "
-                f"({governing} flow, {described})", length, "m")
+    result.work("Steam conductivity at the film temperature", "k = k(p2, T_film),  T_film = (T_sat,2 + T3)/2  "
+                "[IAPWS R15-11]", "conductivity(p2, T_film)", k, "W/(m*K)", p2=(p / 1e5, "bar"),
+                T_film=(film.temperature - 273.15, "degC"))
+    result.work("Latent heat to evaporate the spray", "L = h_g(p2) − h_w", "h_g - h_w", heat / 1e3, "kJ/kg",
+                h_g=(vapour.enthalpy / 1e3, "kJ/kg"), h_w=(water.enthalpy / 1e3, "kJ/kg"))
+    # An integral the equipment layer evaluates: a lookup of its operands, not arithmetic a view could redo.
+    result.work("Droplet lifetime", "t = ρ_l·L·d0²/(4·Nu·k) · ∫₀¹ ds / ΔT(s),  ΔT(s) = ΔT_end + (ΔT_start − "
+                f"ΔT_end)·s^1.5  [d²-law], at the {governing} flow",
+                "droplet_lifetime(rho_l, L, d0, Nu, k, dT_start, dT_end)", lifetime, "s",
+                rho_l=(liquid.density, "kg/m**3"), L=(heat / 1e3, "kJ/kg"), d0=(droplet * 1e3, "mm"),
+                Nu=(DROPLET_NUSSELT, ""), k=(k, "W/(m*K)"), dT_start=(start, "K"), dT_end=(end, "K"))
+    result.work("Evaporation length", f"L_evap = t·v,  at the {governing} flow in {described}", "t*v", length, "m",
+                t=(lifetime, "s"), v=(velocity, "m/s"))
     result.add("spray_droplet_lifetime", f"Droplet lifetime ({droplet * 1e6:.0f} µm droplet)", lifetime, "s")
     result.add("evaporation_length", f"Evaporation length of the spray (longest, at the {governing} flow)", length, "m")
     if inputs.sensor_distance is None:
         result.assumptions.append(
             f"Temperature sensor: no distance given (desuperheater.sensor_distance); place it at least {length:.1f} m "
             "downstream of the spray (the estimated evaporation length), or as the desuperheater maker recommends")
-    elif inputs.sensor_distance < length:
-        result.check("Temperature sensor beyond the evaporation length", "warn",
-                     f"the sensor {inputs.sensor_distance:g} m from the spray is closer than the estimated evaporation "
-                     f"length {length:.1f} m: it may read wet steam low and the controller over-spray; move it "
-                     "downstream or use a finer spray (the desuperheater maker's recommended distance governs)")
     else:
-        result.check("Temperature sensor beyond the evaporation length", "pass",
-                     f"sensor {inputs.sensor_distance:g} m from the spray, beyond the estimated evaporation length "
-                     f"{length:.1f} m")
+        amounts = dict(sensor=(inputs.sensor_distance, "m"), length=(length, "m"))
+        result.check_limit(
+            "Temperature sensor beyond the evaporation length", amounts["sensor"], [(">=", amounts["length"], "warn")],
+            lambda status: Phrase.of(
+                "sensor {sensor:g} from the spray, beyond the estimated evaporation length {length:.1f}"
+                if status == "pass" else
+                "the sensor {sensor:g} from the spray is closer than the estimated evaporation length {length:.1f}: it "
+                "may read wet steam low and the controller over-spray; move it downstream or use a finer spray (the "
+                "desuperheater maker's recommended distance governs)", **amounts))

@@ -9,6 +9,7 @@ from __future__ import annotations
 
 from ...errors import OutOfRangeError
 from ...properties.steam import SteamState
+from ...units.amounts import Phrase
 from ..balance import Stream, check_energy_balance
 from ..economics import annual_energy, annual_fuel_energy, annual_value, fuel_basis_assumption, missing_site_data
 
@@ -115,12 +116,12 @@ def power_section(inputs, inlet, throttled, site, result):
         result.assumptions.append(f"Turbine generator efficiency {DEFAULT_GENERATOR_EFFICIENCY} (generator and "
                                   "gearbox of a small set, common practice; not given)")
     power = inputs.mass_flow * efficiency * drop
-    result.step("Isentropic enthalpy drop", "Δh_s = h1 − h(p2, s1)",
-                f"Δh_s = {inlet.enthalpy / 1e3:.2f} − {isentropic.enthalpy / 1e3:.2f} kJ/kg", drop / 1e3, "kJ/kg")
-    result.step("Recoverable shaft power", "P = m·η_s·Δh_s",
-                f"P = {inputs.mass_flow:.4f} kg/s × {efficiency:g} × {drop / 1e3:.2f} kJ/kg", power / 1e3, "kW")
-    result.step("Electrical power", "P_e = η_g·P", f"P_e = {generator:g} × {power / 1e3:.2f} kW",
-                generator * power / 1e3, "kW")
+    result.work("Isentropic enthalpy drop", "Δh_s = h1 − h_2s,  h_2s = h(p2, s1)  [IF97]", "h1 - h_2s", drop / 1e3,
+                "kJ/kg", h1=(inlet.enthalpy / 1e3, "kJ/kg"), h_2s=(isentropic.enthalpy / 1e3, "kJ/kg"))
+    result.work("Recoverable shaft power", "P = m·η_s·Δh_s", "m*eta_s*dh_s", power / 1e3, "kW",
+                m=(inputs.mass_flow * 3600, "kg/h"), eta_s=(efficiency, ""), dh_s=(drop / 1e3, "kJ/kg"))
+    result.work("Electrical power", "P_e = η_g·P", "eta_g*P", generator * power / 1e3, "kW",
+                eta_g=(generator, ""), P=(power / 1e3, "kW"))
     result.add("isentropic_enthalpy_drop", "Isentropic enthalpy drop, inlet to outlet pressure", drop / 1e3, "kJ/kg")
     result.add("recoverable_power", "Shaft power a back-pressure turbine would recover", power / 1e3, "kW")
     result.add("recoverable_electrical_power", "Electrical power a turbine-generator would recover",
@@ -141,32 +142,41 @@ def power_section(inputs, inlet, throttled, site, result):
         ambient = DEFAULT_AMBIENT
         result.assumptions.append(f"Dead state for exergy {DEFAULT_AMBIENT - 273.15:g} °C (site gives no ambient)")
     destroyed = ambient * inputs.mass_flow * (throttled.entropy - inlet.entropy)
-    result.step("Exergy destroyed in the valve", "Ẋ_d = T0·m·(s2 − s1)  (Gouy–Stodola)",
-                f"Ẋ_d = {ambient:.2f} K × {inputs.mass_flow:.4f} kg/s × ({throttled.entropy / 1e3:.5f} − "
-                f"{inlet.entropy / 1e3:.5f}) kJ/(kg·K)", destroyed / 1e3, "kW")
+    # The dead state enters as an absolute temperature: T0 = t0 + 273.15 holds with t0 in °C only.
+    result.work("Exergy destroyed in the valve", "Ẋ_d = T0·m·(s2 − s1),  T0 = t0 + 273.15  (Gouy–Stodola; kW, °C, "
+                "kg/s, kJ/(kg·K))", "(t0 + 273.15)*m*(s2 - s1)", destroyed / 1e3, "kW", units_fixed=True,
+                t0=(ambient - 273.15, "degC"), m=(inputs.mass_flow, "kg/s"), s2=(throttled.entropy / 1e3, "kJ/(kg*K)"),
+                s1=(inlet.entropy / 1e3, "kJ/(kg*K)"))
     result.add("exergy_destroyed", "Exergy destroyed in the valve", destroyed / 1e3, "kW")
-    result.check("Second-law check", "pass" if destroyed > 0 else "fail",
-                 f"entropy rises across the valve by {(throttled.entropy - inlet.entropy) / 1e3:.5f} kJ/(kg·K)")
+    entropy_rise = ((throttled.entropy - inlet.entropy) / 1e3, "kJ/(kg*K)")
+    result.check_limit(
+        "Second-law check", entropy_rise, [(">", (0.0, "kJ/(kg*K)"), "fail")],
+        lambda status: Phrase.of("entropy rises across the valve by {rise:.5f}" if status == "pass" else
+                                 "entropy changes across the valve by {rise:.5f}: a throttle must raise it; the "
+                                 "states are not those of a throttle", rise=entropy_rise),
+        source="second law of thermodynamics")
 
 
 def _exhaust(inputs, inlet, isentropic, efficiency, result):
     h_exhaust = turbine_exhaust_enthalpy(inlet.enthalpy, isentropic.enthalpy, efficiency)
     exhaust = SteamState.from_ph(inputs.outlet_pressure, h_exhaust)
-    result.step("Turbine exhaust enthalpy", "h_e = h1 − η_s·Δh_s",
-                f"h_e = {inlet.enthalpy / 1e3:.2f} kJ/kg − {efficiency:g} × "
-                f"{(inlet.enthalpy - isentropic.enthalpy) / 1e3:.2f} kJ/kg", h_exhaust / 1e3, "kJ/kg")
+    result.work("Turbine exhaust enthalpy", "h_e = h1 − η_s·Δh_s", "h1 - eta_s*dh_s", h_exhaust / 1e3, "kJ/kg",
+                h1=(inlet.enthalpy / 1e3, "kJ/kg"), eta_s=(efficiency, ""),
+                dh_s=((inlet.enthalpy - isentropic.enthalpy) / 1e3, "kJ/kg"))
     result.add("turbine_exhaust_temperature", "Turbine exhaust temperature", exhaust.temperature - 273.15, "degC")
     dryness = 1.0 if exhaust.dryness is None else exhaust.dryness
     result.add("turbine_exhaust_dryness", "Turbine exhaust dryness fraction", dryness)
     result.states["turbine_exhaust"] = exhaust
     if exhaust.phase == "wet":
         result.check("Turbine exhaust state", "warn",
-                     f"a turbine in place of the valve would exhaust wet steam (dryness {dryness:.3f}): "
-                     "blade erosion, and the low-pressure users would get wet steam; a turbine needs more "
-                     "inlet superheat or a separator after it (common practice)")
+                     Phrase.of("a turbine in place of the valve would exhaust wet steam (dryness {dryness:.3f}): "
+                               "blade erosion, and the low-pressure users would get wet steam; a turbine needs more "
+                               "inlet superheat or a separator after it (common practice)", dryness=(dryness, "")))
     else:
         result.check("Turbine exhaust state", "pass",
-                     f"turbine exhaust {exhaust.temperature - 273.15:.1f} °C, {exhaust.superheat:.1f} K superheat")
+                     Phrase.of("turbine exhaust {temperature:.1f}, {superheat:.1f} superheat",
+                               temperature=(exhaust.temperature - 273.15, "degC"),
+                               superheat=(exhaust.superheat, "K")))
 
 
 def _yearly_value(power, generator, site, result):
@@ -176,8 +186,12 @@ def _yearly_value(power, generator, site, result):
     result.add("annual_recoverable_energy", "Electrical energy a year a turbine-generator would recover",
                energy, "MWh")
     value = annual_value(energy, site.power_price)
-    result.step("Electricity value a year", "V_e = P_e·t·power price",
-                f"V_e = {electrical_kw:.1f} kW × {hours:g} h × {site.power_price}", value, site.power_price.currency)
+    # Money is no unit the record's unit registry converts, so a step whose value is money is written as a
+    # lookup of its operands ("at_price"), with the energy arithmetic inside it, not as arithmetic to re-evaluate;
+    # in the units of the price (kW and h against a price per MWh) in every view, so it can be followed by hand.
+    result.work("Electricity value a year", "V_e = P_e·t·power price", "at_price(P_e*t, c_e)", value,
+                site.power_price.currency, units_fixed=True, P_e=(electrical_kw, "kW"), t=(hours, "h"),
+                c_e=_price(site.power_price))
     result.add("annual_electricity_value", "Electricity value a year at the site's power price", value,
                site.power_price.currency)
     missing = missing_site_data(site, ("fuel_price", "boiler_efficiency"))
@@ -194,20 +208,31 @@ def _yearly_value(power, generator, site, result):
     result.assumptions.append(fuel_basis_assumption(site))
     _, _, fuel, fuel_cost, net = net_turbine_value(power, generator, site.boiler_efficiency, hours,
                                                    site.power_price, site.fuel_price)
-    result.step("Make-up fuel cost a year", "C_f = P·t / η_b · fuel price",
-                f"C_f = {power / 1e3:.1f} kW × {hours:g} h / {site.boiler_efficiency:g} × {site.fuel_price}",
-                fuel_cost, site.fuel_price.currency)
-    result.step("Net value a year", "V = V_e − C_f",
-                f"V = {value:,.0f} − {fuel_cost:,.0f} {site.power_price.currency}", net, site.power_price.currency)
+    result.work("Make-up fuel cost a year", "C_f = P·t / η_b · fuel price", "at_price(P*t/eta_b, c_f)", fuel_cost,
+                site.fuel_price.currency, units_fixed=True, P=(power / 1e3, "kW"), t=(hours, "h"),
+                eta_b=(site.boiler_efficiency, ""), c_f=_price(site.fuel_price))
+    currency = site.power_price.currency
+    result.work("Net value a year", "V = V_e − C_f", "net_of(V_e, C_f)", net, currency,
+                V_e=(value, currency), C_f=(fuel_cost, currency))
     result.add("annual_makeup_fuel_energy", "Boiler fuel a year to make up the shaft work", fuel, "MWh")
     result.add("annual_makeup_fuel_cost", "Cost a year of the make-up fuel", fuel_cost, site.fuel_price.currency)
     result.add("annual_recoverable_value", "Net value a year of a turbine in place of the valve "
                "(electricity less make-up fuel)", net, site.power_price.currency)
-    if net <= 0:
-        result.check("Net turbine value", "warn",
-                     f"the make-up fuel ({fuel_cost:,.0f}) costs at least the electricity ({value:,.0f}) a year: "
-                     "a turbine in place of the valve does not pay at these prices")
-    else:
-        result.check("Net turbine value", "pass",
-                     f"electricity {value:,.0f} less make-up fuel {fuel_cost:,.0f} = {net:,.0f} "
-                     f"{site.power_price.currency} a year")
+    amounts = dict(electricity=(value, currency), fuel=(fuel_cost, currency))
+    does_not_pay = Phrase.of("the make-up fuel ({fuel:,.0f}) costs at least the electricity ({electricity:,.0f}) a "
+                             "year: a turbine in place of the valve does not pay at these prices", **amounts)
+    if value <= 0.0:   # no electricity value (a zero power price): nothing to set the fuel against
+        result.check("Net turbine value", "warn", does_not_pay)
+        return
+    # The verdict is the fuel cost against the electricity value, a ratio: the registry holds no currency.
+    cost_ratio = (fuel_cost / value, "")
+    result.check_limit(
+        "Net turbine value", cost_ratio, [("<", (1.0, ""), "warn")],
+        lambda status: does_not_pay if status != "pass" else
+        Phrase.of("electricity {electricity:,.0f} less make-up fuel {fuel:,.0f} = {net:,.0f} a year",
+                  net=(net, currency), **amounts))
+
+
+def _price(price):
+    """A site price as an amount: per MWh in its currency (a label the unit registry does not convert)."""
+    return (price.per_mwh, f"{price.currency}/MWh")
