@@ -294,11 +294,13 @@ class Limit:
         return cls(entry["comparison"], Amount.from_record(entry["limit"]), entry.get("breach", "warn"))
 
     def holds(self, quantity):
-        try:
-            limit = Q_(self.limit.value, self.limit.unit or "dimensionless").to(quantity.unit or "dimensionless")
-        except Exception:
-            raise ValueError(f"limit unit {self.limit.unit!r} is not comparable with {quantity.unit!r}") from None
-        a, b = quantity.value, limit.magnitude
+        a, b = quantity.value, self.limit.value
+        if self.limit.unit != quantity.unit:
+            try:
+                scale, offset = _affine(pint_unit(self.limit.unit), pint_unit(quantity.unit))
+            except Exception:
+                raise ValueError(f"limit unit {self.limit.unit!r} is not comparable with {quantity.unit!r}") from None
+            b = b * scale + offset
         return {"<=": a <= b, "<": a < b, ">=": a >= b, ">": a > b}[self.comparison]
 
 
