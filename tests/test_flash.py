@@ -88,6 +88,30 @@ def test_flash_above_demand_warns():
     assert next(c for c in r.checks if c.name == "Flash steam within the low-pressure demand").status == "warn"
 
 
+def test_flash_above_demand_is_credited_only_on_what_the_users_take():
+    # Hand calculation on IAPWS-95 (CoolProp, independent library): the credit is the demand's mass of flash
+    # steam raised from make-up water, Q = m_demand · (h_g(p_flash) − h(1.01325 bar, 15 °C)); the rest is vented.
+    p_in, p_flash, flow, demand = 17e5, 3.5e5, 1.0, 0.05
+    r = calculate(Inputs(condensate_pressure=p_in, condensate_flow=flow, flash_pressure=p_flash, lp_demand=demand),
+                  SITE)
+    h_g = PropsSI("H", "P", p_flash, "Q", 1, "Water")
+    h_makeup = PropsSI("H", "P", ATM, "T", 288.15, "Water")
+    assert r.value("recovered_heat_rate") == pytest.approx(demand * (h_g - h_makeup) / 1e3, rel=2e-4)
+    flash = r.value("flash_steam_flow") / 3600
+    assert r.value("vented_flash_steam_flow") == pytest.approx((flash - demand) * 3600, rel=1e-12)
+    assert r.value("vented_flash_heat_rate") == pytest.approx((flash - demand) * (h_g - h_makeup) / 1e3, rel=2e-4)
+    # The money follows the credited heat only: fuel = Q·t/η at the fuel price (site data above).
+    fuel = r.value("recovered_heat_rate") * 6000 / 0.86 / 1e3
+    assert r.value("annual_cost_saving") == pytest.approx(fuel * 40.0, rel=1e-12)
+    assert r.value("annual_co2_avoided") == pytest.approx(fuel * 202.0 / 1e3, rel=1e-12)
+    # Within the demand nothing is vented and all the flash steam is credited.
+    within = calculate(Inputs(condensate_pressure=p_in, condensate_flow=flow, flash_pressure=p_flash, lp_demand=1.0),
+                       SITE)
+    assert "vented_flash_steam_flow" not in within.values
+    assert within.value("recovered_heat_rate") == pytest.approx(within.value("flash_steam_flow") / 3600
+                                                               * (h_g - h_makeup) / 1e3, rel=2e-4)
+
+
 @settings(max_examples=60, deadline=None)
 @given(p_in=st.floats(2e5, 80e5), r1=st.floats(0.2, 0.9), r2=st.floats(0.2, 0.9), flow=st.floats(0.01, 20.0),
        subcool=st.floats(0.0, 30.0), cascade=st.booleans())

@@ -342,6 +342,21 @@ def _recovered_heat(inputs, site, stages, total_flash, result):
         operands[f"h_g{tag}"] = (s["vapour"].enthalpy / 1e3, "kJ/kg")
     result.work("Heat in the flash steam", "Q = Σ m_flash · (h_g(p_flash) − h_makeup)", " + ".join(terms), heat / 1e3,
                 "kW", **operands)
+    used_flash, excess = _flash_used(inputs, total_flash)
+    if excess > 0.0:
+        # Flash steam the low-pressure users cannot take is vented: it displaces no boiler steam, so it earns
+        # no credit; its heat is reported as the loss it is.
+        excess_heat = heat * excess / total_flash
+        result.work("Heat credited: flash steam the low-pressure users take", "Q_used = Q · m_used / m_flash",
+                    "Q*m_used/m_flash", (heat - excess_heat) / 1e3, "kW", Q=(heat / 1e3, "kW"),
+                    m_used=(used_flash * 3600, "kg/h"), m_flash=(total_flash * 3600, "kg/h"))
+        result.add("vented_flash_steam_flow", "Flash steam above the low-pressure demand (vented)", excess * 3600,
+                   "kg/h")
+        result.add("vented_flash_heat_rate", "Heat in the vented flash steam (the loss)", excess_heat / 1e3, "kW")
+        result.assumptions.append("Flash steam above the low-pressure demand is taken as vented: heat, fuel, money, "
+                                  "CO₂ and water are credited only on the flash steam the users take (each stage "
+                                  "in proportion to its flash); a receiver vented by design is the input 'vented'")
+        heat -= excess_heat
     label = "Heat in the flash steam, vented (the loss)" if inputs.vented else "Recoverable heat in the flash steam"
     result.add("recovered_heat_rate", label, heat / 1e3, "kW")
     result.assumptions.append("Recovered heat counted from make-up water temperature: each kg of flash steam "
@@ -350,7 +365,7 @@ def _recovered_heat(inputs, site, stages, total_flash, result):
     if missing:
         result.check("Site data for yearly figures", "warn",
                      f"the site file lacks {', '.join(missing)}: yearly energy and cost not computed")
-        _water_credit(inputs, site, total_flash, makeup, result)
+        _water_credit(inputs, site, used_flash, makeup, result)
         return
     basis = fuel_basis(site)
     result.assumptions.append(fuel_basis_assumption(site))
@@ -371,7 +386,11 @@ def _recovered_heat(inputs, site, stages, total_flash, result):
     if site.fuel_emission_factor is not None:
         result.add("annual_co2_avoided", "CO₂ a year (avoided by recovery)", fuel * site.fuel_emission_factor / 1e3,
                    "t")
-    water = _water_credit(inputs, site, total_flash, makeup, result)
+    water = _water_credit(inputs, site, used_flash, makeup, result)
+    if excess > 0.0:
+        lost_fuel = annual_fuel_energy(excess_heat, site.operating_hours, site.boiler_efficiency)
+        result.add("vented_flash_annual_cost", "Fuel cost a year of the vented flash steam (not credited)",
+                   annual_value(lost_fuel, site.fuel_price), currency)
     if water is not None:
         if site.water_cost.currency == site.fuel_price.currency:
             result.add("annual_total_saving", f"Fuel and water cost a year ({when})", money + water,
@@ -385,6 +404,17 @@ def _recovered_heat(inputs, site, stages, total_flash, result):
             "{flash:.1f} of flash steam vents to atmosphere: {heat:.1f}, {fuel:.0f} of fuel and {money:,.0f} a year lost",
             flash=(total_flash * 3600, "kg/h"), heat=(heat / 1e3, "kW"), fuel=(fuel, "MWh"),
             money=(money, site.fuel_price.currency)))
+
+
+def _flash_used(inputs, total_flash):
+    """(flash steam that displaces boiler steam, flash steam vented above the demand), kg/s.
+
+    A receiver vented by design uses none and the record counts all of it as the loss; without a stated
+    demand all the flash steam is taken as used.
+    """
+    if inputs.vented or inputs.lp_demand is None or total_flash <= inputs.lp_demand:
+        return total_flash, 0.0
+    return inputs.lp_demand, total_flash - inputs.lp_demand
 
 
 def _water_credit(inputs, site, total_flash, makeup, result):
