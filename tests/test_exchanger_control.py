@@ -313,3 +313,18 @@ def test_supply_exactly_at_the_design_steam_side_pressure_is_refused():
     with pytest.raises(InputError) as info:
         calculate(Inputs(**dict(CASE, control_valve_supply_pressure=at_design)), SITE)
     assert info.value.field == "control_valve.supply_pressure" and info.value.fix
+
+
+def test_one_travel_rule_for_the_heater_and_the_let_down(demo_site_dir):
+    # Common practice, one function (steamcalc.equipment.valve.travel_limits): usable 10-90 %, preferred
+    # 20-80 %. HX-01's valve at 87.7 % of travel at design load warns, as a let-down valve there would.
+    from steamcalc.equipment.valve import travel_limits
+    from steamcalc.records.build import record_for_case_file
+
+    rule = [limit.to_record() for limit in travel_limits()]
+    heater = record_for_case_file(demo_site_dir / "cases" / "HX-01.toml")
+    letdown = record_for_case_file(demo_site_dir / "cases" / "LD-01.toml")
+    design = next(c for c in heater["checks"] if c["name"].startswith("Control valve travel at 100% load"))
+    assert design["status"] == "warn" and 80.0 < design["quantity"]["value"] < 90.0 and design["limits"] == rule
+    assert next(c for c in letdown["checks"] if c["name"] == "Valve travel at maximum flow")["limits"] == rule
+    assert next(c for c in letdown["checks"] if c["name"] == "Spray valve travel at maximum steam flow")["limits"] == rule

@@ -15,6 +15,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from ..errors import InputError
+from ..units.amounts import Amount, Limit
 
 #: IEC 60534-2-1 numerical constants for Kv with W in kg/h, p in kPa, ρ in kg/m³, d in mm.
 N6_KV = 3.16
@@ -249,6 +250,28 @@ def valve_flow(kv, p1, p2, density1, kappa, xt, piping_factor=1.0):
     x_siz = min(x, x_choked)
     y = 1.0 - x_siz / (3.0 * x_choked)
     return N6_KV * piping_factor * kv * y * math.sqrt(x_siz * p1 * density1)
+
+
+#: Travel limits of a control valve (common practice): usable 10-90 %, preferred 20-80 % of travel.
+TRAVEL_FAIL = (0.10, 0.90)
+TRAVEL_WARN = (0.20, 0.80)
+
+
+def travel_limits():
+    """The one travel rule of every control valve here, as a check's limits on a travel in percent.
+
+    Outside 10-90 % the valve fails (near the seat it goes on-off, near full travel it has no margin to
+    open); outside 20-80 % it warns (common practice).
+
+    Examples
+    --------
+    >>> from steamcalc.units.amounts import verdict
+    >>> [verdict(Amount(t, "percent"), travel_limits()) for t in (5.0, 85.0, 50.0, 87.7, 91.0)]
+    ['fail', 'warn', 'pass', 'warn', 'fail']
+    """
+    return tuple(Limit(comparison, Amount(100.0 * bound, "percent"), breach)
+                 for breach, (low, high) in (("fail", TRAVEL_FAIL), ("warn", TRAVEL_WARN))
+                 for comparison, bound in ((">=", low), ("<=", high)))
 
 
 def valve_travel(kv, rated_kv, characteristic, rangeability):

@@ -14,13 +14,13 @@ from __future__ import annotations
 
 import math
 
-from ...equipment.valve import size_steam_valve, valve_travel
+from ...equipment.valve import TRAVEL_FAIL, size_steam_valve, travel_limits, valve_travel
 from ...errors import InputError, OutOfRangeError
 from ...properties.steam import SteamState
 from ...units.amounts import Phrase
 from ..base import bar_a, full_record_wanted
 from .turndown import GRAVITY, LOADS, STANDARD_GRAVITY, lift_density, stall_load, work_load_below
-from ..letdown.equipment import DEFAULT_RANGEABILITY, DEFAULT_XT, TRAVEL_FAIL, sizing_kappa
+from ..letdown.equipment import DEFAULT_RANGEABILITY, DEFAULT_XT, sizing_kappa
 
 CHARACTERISTICS = ("equal-percentage", "linear")
 #: Motive steam pressure above the pump's total discharge pressure (back pressure plus lift) held
@@ -328,6 +328,12 @@ def _rated_valve(inputs, sizing, design, low, low_key, both, characteristic, ran
             expression = "Kv/Kvs" if characteristic == "linear" else "100*(1 + ln(Kv/Kvs)/ln(R))"
             result.work(f"Control valve travel at {label}", equation, expression, 100.0 * travel, "percent",
                         Kv=_kv(s.kv), Kvs=_kv(kvs), **({} if characteristic == "linear" else {"R": (rangeability, "")}))
+            # The one travel rule of every control valve here, at the loads the heater is designed to run at.
+            result.check_limit(f"Control valve travel at {label}", (100.0 * travel, "percent"), travel_limits(),
+                               lambda status, t=100.0 * travel: Phrase.of(
+                                   f"{{travel:.0f}} travel ({characteristic}, R = {rangeability:g}); 10-90 % usable, "
+                                   "20-80 % preferred (common practice)", travel=(t, "percent")),
+                               source="common practice")
     # The travel band and the rangeability are plain ratios: they stay in the words.
     band = f"{100 * TRAVEL_FAIL[0]:.0f}-{100 * TRAVEL_FAIL[1]:.0f} % travel (common practice)"
     if outside:

@@ -9,7 +9,7 @@ from __future__ import annotations
 
 from ...equipment.line_loss import line_pressure_drop
 from ...equipment.piping import DN_TO_NPS, line_velocity, pipe_inner_diameter
-from ...equipment.valve import kv_to_cv, piping_factors, size_steam_valve, valve_flow, valve_travel
+from ...equipment.valve import kv_to_cv, piping_factors, size_steam_valve, travel_limits, valve_flow, valve_travel
 from ...errors import InputError, OutOfRangeError
 from ...properties.steam import CRITICAL_PRESSURE, CRITICAL_TEMPERATURE, SteamState, dynamic_viscosity, saturation_temperature
 from ...units.amounts import Amount, Phrase
@@ -24,34 +24,6 @@ DEFAULT_RANGEABILITY = 50.0
 DEFAULT_MAX_VELOCITY_WET = 30.0
 DEFAULT_MAX_VELOCITY_SUPERHEATED = 45.0
 DEFAULT_SCHEDULE = "40"
-#: Travel limits (common practice): fail outside 10-90 %, warn outside 20-80 %.
-TRAVEL_FAIL = (0.10, 0.90)
-TRAVEL_WARN = (0.20, 0.80)
-
-
-def travel_limits():
-    """The travel limits as a check's limits on a travel in percent (common practice).
-
-    >>> from steamcalc.units.amounts import Amount, Limit, verdict
-    >>> [verdict(Amount(t, "percent"), [Limit(*limit) for limit in travel_limits()]) for t in (5.0, 85.0, 50.0)]
-    ['fail', 'warn', 'pass']
-    """
-    return [(comparison, Amount(100.0 * bound, "percent"), breach)
-            for breach, (low, high) in (("fail", TRAVEL_FAIL), ("warn", TRAVEL_WARN))
-            for comparison, bound in ((">=", low), ("<=", high))]
-
-
-def travel_status(travel):
-    """``fail`` outside the usable travel, ``warn`` outside the preferred, else ``pass`` (common practice).
-
-    >>> travel_status(0.05), travel_status(0.85), travel_status(0.5)
-    ('fail', 'warn', 'pass')
-    """
-    if travel < TRAVEL_FAIL[0] or travel > TRAVEL_FAIL[1]:
-        return "fail"
-    if travel < TRAVEL_WARN[0] or travel > TRAVEL_WARN[1]:
-        return "warn"
-    return "pass"
 #: Preferred nominal sizes for suggestions (common practice: DN90, DN125 and the like are
 #: hard to buy and to fit).
 NON_PREFERRED_DN = (90, 125)

@@ -26,7 +26,8 @@ from ...errors import InputError, OutOfRangeError
 from ...properties.steam import CRITICAL_PRESSURE, SteamState, saturation_pressure, saturation_temperature, thermal_conductivity
 from ...units.amounts import Amount, Phrase
 from ..base import bar_a, deg_c, input_field
-from .equipment import DEFAULT_FL, DEFAULT_RANGEABILITY, DEFAULT_SCHEDULE, TRAVEL_FAIL, TRAVEL_WARN, flow_cases
+from ...equipment.valve import TRAVEL_FAIL, travel_limits
+from .equipment import DEFAULT_FL, DEFAULT_RANGEABILITY, DEFAULT_SCHEDULE, flow_cases
 
 DEFAULT_CHARACTERISTIC = "equal-percentage"
 #: Spray results that hold a pressure difference (shown as "bar difference").
@@ -345,9 +346,7 @@ def _rated_spray_valve(kvs, sizing, characteristic, rangeability, result):
                            "rated {rated:.3g} ≥ required {required:.3g}" if status == "pass" else
                            "the spray-water valve (rated {rated:.3g}) is smaller than the required {required:.3g}",
                            **amounts))
-    # The travel limits: usable 10-90 %, preferred 20-80 % (common practice, steamcalc.calcs.letdown.equipment).
-    limits = [(">=", (100.0 * TRAVEL_FAIL[0], "percent"), "fail"), ("<=", (100.0 * TRAVEL_FAIL[1], "percent"), "fail"),
-              (">=", (100.0 * TRAVEL_WARN[0], "percent"), "warn"), ("<=", (100.0 * TRAVEL_WARN[1], "percent"), "warn")]
+    limits = travel_limits()   # the one travel rule of every control valve (steamcalc.equipment.valve)
     for name, s in sizing.items():
         travel, note = _travel(s.kv, kvs, characteristic, rangeability)
         result.add(f"spray_valve_travel_{name}", f"Spray valve travel, {name} steam flow" + (f" ({note})" if note else ""),
