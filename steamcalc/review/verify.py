@@ -222,18 +222,18 @@ def verify_record(record, engine=REFERENCE_ENGINE):
             add_sample_check(fresh, section)   # as run adds it: its check and, when it warns, its warning
     new_checks = [(c.name, c.status, text_of(c.detail)) for c in fresh.checks]
     old_checks = [(c.get("name"), c.get("status"), c.get("detail")) for c in record.get("checks", [])]
-    earlier = record.get("schema") in _TEXT_SCHEMAS
-    if len(old_checks) == len(new_checks) and all(
-            a[:2] == b[:2] and (same_text(a[2], b[2]) or (earlier and _same_numbers(a[2], b[2])))
-            for a, b in zip(old_checks, new_checks)):
-        result.notes.extend(f"check {a[0]!r}: worded otherwise since steamcalc 0.3, its numbers and verdict the same"
-                            for a, b in zip(old_checks, new_checks) if not same_text(a[2], b[2]))
-        new_checks = old_checks  # the same checks, their numbers equal within the tolerance
-    if old_checks != new_checks:
-        result.check_changes = [f"recorded: {n} = {s} ({d})" for n, s, d in old_checks if (n, s, d) not in new_checks] + \
-            [f"recomputed: {n} = {s} ({d})" for n, s, d in new_checks if (n, s, d) not in old_checks]
-    elif record.get("schema") not in _TEXT_SCHEMAS:
-        result.check_changes = _check_data_changes(record.get("checks", []), [c.to_record() for c in fresh.checks])
+    if record.get("schema") in _TEXT_SCHEMAS:
+        result.check_changes = _earlier_check_changes(old_checks, new_checks, result.notes)
+    else:
+        if len(old_checks) == len(new_checks) and all(
+                a[:2] == b[:2] and same_text(a[2], b[2]) for a, b in zip(old_checks, new_checks)):
+            new_checks = old_checks  # the same checks, their numbers equal within the tolerance
+        if old_checks != new_checks:
+            result.check_changes = [f"recorded: {n} = {s} ({d})" for n, s, d in old_checks
+                                    if (n, s, d) not in new_checks] + \
+                [f"recomputed: {n} = {s} ({d})" for n, s, d in new_checks if (n, s, d) not in old_checks]
+        else:
+            result.check_changes = _check_data_changes(record.get("checks", []), [c.to_record() for c in fresh.checks])
     result.check_changes += recorded_verdict_changes(record.get("checks", []))
     result.recomputed_status = fresh.status
     result.recomputed_failing = [c.name for c in fresh.checks if c.status == "fail"]
@@ -354,6 +354,31 @@ def _earlier_step_changes(old_steps, new_steps, notes):
     added = [key[0] for key in new if key not in old]
     if added and notes is not None:
         notes.append(f"steps worked since steamcalc 0.3 that the record does not have: {', '.join(map(repr, added))}")
+    return changes
+
+
+def _earlier_check_changes(recorded, recomputed, notes):
+    """An earlier release's checks (name, status, detail) against this release's, matched by name.
+
+    Each recorded check must be recomputed with the same verdict, its detail the same or stating the same
+    numbers in other words (a note). A check this release adds is a note naming the release (the overall
+    status, compared apart, still catches one that changes the record's verdict); a recorded check this
+    release does not make is a difference.
+    """
+    changes, fresh = [], _labelled([{"label": n, "status": s, "detail": d} for n, s, d in recomputed])
+    kept = _labelled([{"label": n, "status": s, "detail": d} for n, s, d in recorded])
+    for key, old in kept.items():
+        new = fresh.get(key)
+        if new is None:
+            changes.append(f"recorded: {key[0]} = {old['status']} ({old['detail']}): not a check of this release")
+        elif old["status"] != new["status"] or not (same_text(old["detail"], new["detail"])
+                                                    or _same_numbers(old["detail"], new["detail"])):
+            changes.append(f"recorded: {key[0]} = {old['status']} ({old['detail']})")
+            changes.append(f"recomputed: {key[0]} = {new['status']} ({new['detail']})")
+        elif not same_text(old["detail"], new["detail"]):
+            notes.append(f"check {key[0]!r}: worded otherwise since steamcalc 0.3, its numbers and verdict the same")
+    notes.extend(f"check {key[0]!r} = {new['status']}: checked since steamcalc 0.3" for key, new in fresh.items()
+                 if key not in kept)
     return changes
 
 
