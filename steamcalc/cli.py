@@ -453,6 +453,9 @@ def _verify_trust(args, raw, record, outcome):
         _say(f"  statement changed: {change}")
     if outcome.recomputed_status:
         _say(f"  status: {record.get('status')} in the record, {outcome.recomputed_status} recomputed")
+    notices = [c for c in record.get("checks", []) if isinstance(c, dict) and c.get("kind") == "notice"]
+    if notices:   # statements that cannot warn or fail: apart from the checks, never counted as passes
+        _say(f"  notices (statements, not checks: they cannot fail): {', '.join(str(c.get('name')) for c in notices)}")
     ok = True
     companions = check_companions(raw, record, repair=args.repair and outcome.ok)
     for c in companions:

@@ -44,3 +44,30 @@ def test_wet_streams_use_their_dryness():
                                        [Stream.of("vapour", 0.9, vapour), Stream.of("liquid", 0.1, liquid)],
                                        0.9 * (vapour.enthalpy - liquid.enthalpy))
     assert residual < 1e-9
+
+
+def test_a_balance_that_closes_is_a_notice_and_one_that_does_not_fails():
+    # It closes by construction on a correct result, so it is shown as a notice, never as a pass; fed a
+    # spray flow 0.5 % off, the same call makes a failing check of the residual against its tolerance.
+    from steamcalc.calcs.balance import check_energy_balance
+    from steamcalc.calcs.base import Result
+
+    r = calculate(Inputs(**DESUPERHEATED), Site())
+    assert _check(r, "Desuperheater energy balance (independent)").kind == "notice"
+    steam, water, outlet = r.states["throttled"], SteamState.from_pT(21e5, 378.15), r.states["outlet"]
+    spray = r.value("spray_water_flow") / 3600 * 1.005
+    wrong = Result()
+    check_energy_balance(wrong, "Desuperheater energy balance (independent)",
+                         [Stream.of("steam", 1.25, steam), Stream.of("water", spray, water)],
+                         [Stream.of("outlet", 1.25 + spray, outlet)], spray * (outlet.enthalpy - water.enthalpy))
+    (check,) = wrong.checks
+    assert check.kind == "limit" and check.status == "fail" and wrong.status == "fail"
+
+
+def test_the_entropy_rise_and_the_relief_load_are_notices_not_passes():
+    # A throttle always raises entropy; the relief design flow is what the relief designer needs: neither can
+    # warn or fail, so both are notices (the relief load stays among the warnings, to be acted on).
+    r = calculate(Inputs(**DESUPERHEATED, rated_kv=63.0, max_inlet_pressure=19e5, relief_set_pressure=5.5e5), Site())
+    assert _check(r, "Second-law check").kind == "notice"
+    assert _check(r, "Relief design flow for the relief designer").kind == "notice"
+    assert any(w.startswith("Relief design flow for the relief designer:") for w in r.warnings)

@@ -238,7 +238,9 @@ class Check:
 
     A check of a quantity against limits (``kind="limit"``) keeps both; its status is the verdict of
     :func:`~steamcalc.units.amounts.verdict`, which ``verify`` recomputes from the record alone. A
-    ``"condition"`` is a verdict the calculation reaches otherwise (site data missing, a phase).
+    ``"condition"`` is a verdict the calculation reaches otherwise (site data missing, a phase). A
+    ``"notice"`` is a statement that cannot warn or fail (a throttle raises entropy): shown apart, never as
+    a pass.
     ``detail`` is a text, or a :class:`~steamcalc.units.amounts.Phrase` each view writes in its units.
     """
 
@@ -248,16 +250,19 @@ class Check:
     quantity: Amount | None = None
     limits: tuple = ()
     source: str = ""
+    notice: bool = False
 
     def __post_init__(self):
         if self.status not in STATUSES:
             raise ValueError(f"check status must be one of {STATUSES}")
+        if self.notice and (self.status != "pass" or self.quantity is not None):
+            raise ValueError(f"notice {self.name!r} is a statement: it has no limit and cannot warn or fail")
         if self.quantity is not None and self.status != verdict(self.quantity, self.limits):
             raise ValueError(f"check {self.name!r}: status {self.status} is not its quantity's verdict")
 
     @property
     def kind(self):
-        return "limit" if self.quantity is not None else "condition"
+        return "notice" if self.notice else "limit" if self.quantity is not None else "condition"
 
     def to_record(self):
         entry = {"name": self.name, "status": self.status, "detail": text_of(self.detail), "kind": self.kind}
@@ -472,6 +477,16 @@ class Result:
         """Add a check whose verdict the calculation reaches itself; ``detail`` a text or a Phrase."""
         self.checks.append(Check(name, status, detail))
         if status == "warn":
+            self.warnings.append(f"{name}: {text_of(detail)}")
+
+    def notice(self, name, detail, act=False):
+        """Add a notice: a statement shown among the checks that cannot warn or fail (it changes no status).
+
+        ``act`` adds it to the warnings as well, for a statement the engineer must act on (the relief load the
+        relief designer needs).
+        """
+        self.checks.append(Check(name, "pass", detail, notice=True))
+        if act:
             self.warnings.append(f"{name}: {text_of(detail)}")
 
     def check_limit(self, name, quantity, limits, detail, source=""):

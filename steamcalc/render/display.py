@@ -429,6 +429,8 @@ def display_record(record):
         if not isinstance(check, dict):
             continue
         check["name"] = trade_text(us_label(check.get("name")) if system == "US" else check.get("name"))
+        # A notice is a statement, never shown as a pass.
+        check["shown_status"] = "notice" if check.get("kind") == "notice" else check.get("status")
         if isinstance(check.get("phrase"), dict) and system == "US":
             check["detail"] = trade_text(Phrase.from_record(check["phrase"]).text(system))
         elif isinstance(check.get("phrase"), dict):

@@ -223,7 +223,8 @@ def verify_record(record, engine=REFERENCE_ENGINE):
     new_checks = [(c.name, c.status, text_of(c.detail)) for c in fresh.checks]
     old_checks = [(c.get("name"), c.get("status"), c.get("detail")) for c in record.get("checks", [])]
     if record.get("schema") in _TEXT_SCHEMAS:
-        result.check_changes = _earlier_check_changes(old_checks, new_checks, result.notes)
+        notices = {c.name for c in fresh.checks if c.kind == "notice"}
+        result.check_changes = _earlier_check_changes(old_checks, new_checks, result.notes, notices)
     else:
         if len(old_checks) == len(new_checks) and all(
                 a[:2] == b[:2] and same_text(a[2], b[2]) for a, b in zip(old_checks, new_checks)):
@@ -357,7 +358,7 @@ def _earlier_step_changes(old_steps, new_steps, notes):
     return changes
 
 
-def _earlier_check_changes(recorded, recomputed, notes):
+def _earlier_check_changes(recorded, recomputed, notes, notices=()):
     """An earlier release's checks (name, status, detail) against this release's, matched by name.
 
     Each recorded check must be recomputed with the same verdict, its detail the same or stating the same
@@ -371,6 +372,10 @@ def _earlier_check_changes(recorded, recomputed, notes):
         new = fresh.get(key)
         if new is None:
             changes.append(f"recorded: {key[0]} = {old['status']} ({old['detail']}): not a check of this release")
+        elif key[0] in notices and (same_text(old["detail"], new["detail"]) or _same_numbers(old["detail"],
+                                                                                              new["detail"])):
+            notes.append(f"check {key[0]!r}: recorded as {old['status']}, a notice since steamcalc 0.3 (a statement "
+                         "that cannot warn or fail), its numbers the same")
         elif old["status"] != new["status"] or not (same_text(old["detail"], new["detail"])
                                                     or _same_numbers(old["detail"], new["detail"])):
             changes.append(f"recorded: {key[0]} = {old['status']} ({old['detail']})")

@@ -178,8 +178,8 @@ class ReviewBook:
             f"<td>{'' if c.rel_diff is None else f'{c.rel_diff:.1e}'}</td>"
             f"<td style='color:{'#2f6b3a' if c.verdict == 'same' else '#a3201b'}'><b>{c.verdict}</b></td></tr>"
             for c in o.comparisons)
-        checks = "".join(f"<li><b>{c['status'].upper()}</b> {html.escape(c['name'])}: {html.escape(c['detail'])}</li>"
-                         for c in self.record.get("checks", []))
+        checks = "".join(f"<li><b>{'NOTICE' if c.get('kind') == 'notice' else c['status'].upper()}</b> "
+                         f"{html.escape(c['name'])}: {html.escape(c['detail'])}</li>" for c in self.record.get("checks", []))
         self._summary.refresh()
         self._table.value = (f"<p>{_summary_html(self.summary())}</p>"
                              f"<table><tr><th>result</th><th>recorded</th><th>recomputed</th><th>unit</th>"

@@ -39,7 +39,7 @@ def _shown_unit(record, key, entry):
     return entry.get("shown_unit") or format_unit(entry.get("unit", ""), pressure_basis(record, "results", key))
 
 
-_STATUS_COLOURS = {"pass": "#2f6b3a", "warn": "#8a5a00", "fail": "#a3201b"}
+_STATUS_COLOURS = {"pass": "#2f6b3a", "warn": "#8a5a00", "fail": "#a3201b", "notice": "#4a4f55"}
 
 def _show_input_error(shell, etype, value, tb, tb_offset=None):
     # A user's bad input (a wrong case-file path, a misspelt key) is a message, not a traceback.
@@ -284,7 +284,7 @@ class Workbook:
             f"{html.escape(_shown_unit(r, k, v))}"
             f"</td></tr>" for k, v in r["results"].items())
         checks = "".join(
-            f"<tr><td style='color:{_STATUS_COLOURS[c['status']]};font-weight:bold'>{c['status'].upper()}</td>"
+            f"<tr><td style='color:{_STATUS_COLOURS[c['shown_status']]};font-weight:bold'>{c['shown_status'].upper()}</td>"
             f"<td>{html.escape(c['name'])}</td><td>{html.escape(c['detail'])}</td></tr>" for c in r["checks"])
         return (f"<div style='font-weight:bold;color:{colour}'>Overall: {r['status'].upper()}</div>"
                 f"<table style='border-collapse:collapse'>{rows}</table>"
@@ -379,7 +379,7 @@ class Workbook:
             lines.append(f"  {v.get('label', key):<{width}}  {_shown(v):>10} {_shown_unit(r, key, v)}".rstrip())
         lines.append("")
         for c in r["checks"]:
-            lines.append(f"  [{c['status'].upper()}] {c['name']}: {c['detail']}")
+            lines.append(f"  [{c['shown_status'].upper()}] {c['name']}: {c['detail']}")
         if self.case.uncertainty:
             if self.uncertainty is None and compute_bands:
                 self.compute_uncertainty()

@@ -373,10 +373,11 @@ def relief_load_section(inputs, inlet, result):
     design_flow = flows[governing]
     what = "the control valve failing open" if governing == "fail_open_flow" else "the bypass valve wide open"
     result.add("relief_design_flow", "Relief design flow (larger of fail-open and bypass-open)", design_flow, "kg/h")
-    result.check("Relief design flow for the relief designer", "warn",
-                 Phrase.of(f"{what} passes about {{flow:,.0f}} from {{p_up:.4g}} against {against}: the downstream "
-                           "relief device must be sized for this flow, to the local pressure-equipment code",
-                           flow=(design_flow, "kg/h"), p_up=(p_up / 1e5, "bar"), p_down=(p_down / 1e5, "bar")))
+    # What the relief designer needs, not a verdict: a notice, and among the warnings as something to act on.
+    result.notice("Relief design flow for the relief designer", act=True, detail=Phrase.of(
+        f"{what} passes about {{flow:,.0f}} from {{p_up:.4g}} against {against}: the downstream relief device "
+        "must be sized for this flow, to the local pressure-equipment code",
+        flow=(design_flow, "kg/h"), p_up=(p_up / 1e5, "bar"), p_down=(p_down / 1e5, "bar")))
 
 
 def _smallest_size(mass_flow, density, limit, schedule, non_preferred=False):
