@@ -98,10 +98,16 @@ def test_fail_open_and_bypass_at_the_highest_upstream_pressure_by_hand():
     p_max, p_set = 19e5, 5.5e5
     r = calculate(Inputs(**BASE, rated_kv=63.0, bypass_kv=25.0, max_inlet_pressure=p_max,
                          relief_set_pressure=p_set), SITE)
-    rho = PropsSI("D", "P", p_max, "T", 503.15, "Water")
-    kappa = _kappa_iapws95(p_max, 503.15)
+    # The densest credible steam at the highest pressure: dry saturated (IAPWS-95 through CoolProp, by hand).
+    rho = PropsSI("D", "P", p_max, "Q", 1, "Water")
+    kappa = _kappa_iapws95(p_max, dryness=1)
     assert r.value("fail_open_flow") == pytest.approx(_iec_flow(63.0, p_max, p_set, rho, kappa, 0.70), rel=1e-3)
     assert r.value("bypass_open_flow") == pytest.approx(_iec_flow(25.0, p_max, p_set, rho, kappa, 0.70), rel=1e-3)
+    # What the normal inlet temperature (230 °C) would give is shown beside it, and is less.
+    rho_normal, kappa_normal = PropsSI("D", "P", p_max, "T", 503.15, "Water"), _kappa_iapws95(p_max, 503.15)
+    assert r.value("fail_open_flow_at_normal_temperature") == pytest.approx(
+        _iec_flow(63.0, p_max, p_set, rho_normal, kappa_normal, 0.70), rel=1e-3)
+    assert r.value("fail_open_flow") > r.value("fail_open_flow_at_normal_temperature") * 1.02
     assert r.value("relief_design_flow") == max(r.value("fail_open_flow"), r.value("bypass_open_flow"))
     step = next(s for s in r.steps if s.label == "Fail-open flow")
     operands = dict(step.operands)
@@ -110,6 +116,22 @@ def test_fail_open_and_bypass_at_the_highest_upstream_pressure_by_hand():
     # Above the normal-pressure figure: the v0.1 basis understated the relief load.
     normal = calculate(Inputs(**BASE, rated_kv=63.0, relief_set_pressure=p_set), SITE)
     assert r.value("fail_open_flow") > normal.value("fail_open_flow") * 1.1
+
+
+def test_relief_load_on_the_least_superheat_given():
+    # valve.relief_min_superheat: the steam keeps at least 20 K of superheat at the highest pressure, so the
+    # load is taken at T_sat(19 bar(a)) + 20 K (IAPWS-95 through CoolProp, by hand); above the normal
+    # inlet temperature the normal inlet state is kept.
+    p_max, p_set = 19e5, 5.5e5
+    t = PropsSI("T", "P", p_max, "Q", 1, "Water") + 20.0
+    r = calculate(Inputs(**BASE, rated_kv=63.0, max_inlet_pressure=p_max, relief_set_pressure=p_set,
+                         relief_min_superheat=20.0), SITE)
+    rho, kappa = PropsSI("D", "P", p_max, "T", t, "Water"), _kappa_iapws95(p_max, t)
+    assert r.value("fail_open_flow") == pytest.approx(_iec_flow(63.0, p_max, p_set, rho, kappa, 0.70), rel=1e-3)
+    assert any("least superheat given, 20 K" in a for a in r.assumptions)
+    kept = calculate(Inputs(**BASE, rated_kv=63.0, max_inlet_pressure=p_max, relief_set_pressure=p_set,
+                            relief_min_superheat=80.0), SITE)
+    assert "fail_open_flow_at_normal_temperature" not in kept.values
 
 
 def test_bypass_alone_governs_when_larger():
@@ -239,12 +261,16 @@ def test_inlet_line_velocity_at_the_maximum_flow_uses_the_lowest_upstream_pressu
     assert r.value("inlet_velocity") == pytest.approx(hand, rel=1e-3)
 
 
-def test_relief_load_states_the_saturated_steam_sensitivity():
+def test_relief_load_is_on_saturated_steam_and_shows_the_normal_temperature_figure():
+    # The basis is dry saturated steam at the highest pressure; the normal inlet temperature's figure is shown
+    # beside it, not used (IAPWS-95 through CoolProp, by hand).
     r = calculate(Inputs(**BASE, rated_kv=63.0, max_inlet_pressure=19e5), SITE)
-    note = next(a for a in r.assumptions if "dry saturated steam at" in a)
     rho, kappa = PropsSI("D", "P", 19e5, "Q", 1, "Water"), _kappa_iapws95(19e5, dryness=1.0)
-    hand = _iec_flow(63.0, 19e5, 3.5e5, rho, kappa, 0.70)
-    assert f"{hand:,.0f}"[:4] in note
+    assert r.value("fail_open_flow") == pytest.approx(_iec_flow(63.0, 19e5, 3.5e5, rho, kappa, 0.70), rel=1e-3)
+    rho, kappa = PropsSI("D", "P", 19e5, "T", 503.15, "Water"), _kappa_iapws95(19e5, 503.15)
+    assert r.value("fail_open_flow_at_normal_temperature") == pytest.approx(
+        _iec_flow(63.0, 19e5, 3.5e5, rho, kappa, 0.70), rel=1e-3)
+    assert any("on dry saturated steam" in a for a in r.assumptions)
 
 
 def test_supercritical_inlet_inside_if97_runs():

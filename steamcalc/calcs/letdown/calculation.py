@@ -134,6 +134,11 @@ class Inputs:
         "pressure", "Highest upstream pressure", "Highest pressure the inlet can reach (boiler or HP header "
         "safety-valve setting): sets the fail-open flow and the minimum-flow sizing case.",
         example="18 bar(g)", section="valve")
+    relief_min_superheat: float | None = input_field(
+        "temperature_difference", "Least superheat at the highest upstream pressure",
+        "Superheat the inlet steam keeps for certain when the upstream is at its highest pressure (the relief "
+        "load is taken on the densest credible steam). Not given: dry saturated steam, which passes the most.",
+        example="20 K", section="valve")
     min_inlet_pressure: float | None = input_field(
         "pressure", "Lowest upstream pressure", "Lowest pressure the inlet falls to in service: the maximum "
         "flow is sized at it.", example="15 bar(g)", section="valve")

@@ -320,13 +320,16 @@ def relief_load_section(inputs, inlet, result):
         raise InputError("the relief set pressure must be below the upstream pressure",
                          field="relief.set_pressure" if inputs.set_pressure is not None else "valve.relief_set_pressure",
                          value=p_down, fix="check the pressure and its basis (bar(g)/bar(a))")
-    state = inlet_state_at(inputs, p_up, inlet)
+    normal_state = inlet_state_at(inputs, p_up, inlet)
+    state, basis = relief_inlet_state(inputs, p_up, normal_state)
     kappa = sizing_kappa(state)
     result.assumptions.append(
-        f"Relief load: valve and bypass wide open at the highest upstream pressure {p_up / 1e5:.4g} bar(a) "
-        f"({state.temperature - 273.15:.1f} °C) against {where}; no credit for the low-pressure users' "
-        "consumption (common practice). The valve failing open and the bypass opened in error are taken as "
-        "separate single failures, not together (the single-jeopardy basis of API 521, from memory)")
+        f"Relief load: valve and bypass wide open at the highest upstream pressure {p_up / 1e5:.4g} bar(a), taken "
+        f"as the highest pressure the upstream reaches (if it is the upstream safety valve's set pressure, give "
+        f"its relieving pressure, set pressure plus accumulation, instead), on {basis} against {where}; no credit "
+        "for the low-pressure users' consumption (common practice). The valve failing open and the bypass opened in "
+        "error are taken as separate single failures, not together (the single-jeopardy basis of API 521, from "
+        "memory)")
     xt, (valve_d, inlet_d, outlet_d) = _valve_geometry(inputs)
     flows = {}
     if inputs.rated_kv is not None:
@@ -359,16 +362,12 @@ def relief_load_section(inputs, inlet, result):
                     rho1=(state.density, "kg/m**3"))
         result.assumptions.append(f"Bypass valve at the main valve's xT = {xt:g}, no reducers (a bypass with a lower "
                                   "xT passes less when choked)")
-    if state.dryness is None and "fail_open_flow" in flows and p_up <= CRITICAL_PRESSURE:
-        # Steam arriving colder (down to saturation) at the highest pressure is denser and passes more:
-        # the record states by how much, so the relief designer can choose the basis.
-        saturated = SteamState.from_p_dryness(p_up, 1.0)
-        colder = valve_flow(inputs.rated_kv, p_up / 1e3, p_down / 1e3, saturated.density, sizing_kappa(saturated),
-                            xtp, fp)
-        result.assumptions.append(
-            f"Relief load at the inlet temperature {state.temperature - 273.15:.1f} °C: dry saturated steam at "
-            f"{p_up / 1e5:.4g} bar(a) would pass {colder:,.0f} kg/h through the failed-open valve "
-            f"({100 * (colder / flows['fail_open_flow'] - 1):+.1f} %); use that if the upstream superheat can be lost")
+    if state is not normal_state and "fail_open_flow" in flows:
+        # What the normal inlet temperature would have given: the record shows what the worst state adds.
+        at_normal = valve_flow(inputs.rated_kv, p_up / 1e3, p_down / 1e3, normal_state.density,
+                               sizing_kappa(normal_state), xtp, fp)
+        result.add("fail_open_flow_at_normal_temperature", "Fail-open flow at the normal inlet temperature "
+                   "(not the basis)", at_normal, "kg/h")
     governing = max(flows, key=flows.get)
     design_flow = flows[governing]
     what = "the control valve failing open" if governing == "fail_open_flow" else "the bypass valve wide open"
@@ -378,6 +377,28 @@ def relief_load_section(inputs, inlet, result):
         f"{what} passes about {{flow:,.0f}} from {{p_up:.4g}} against {against}: the downstream relief device "
         "must be sized for this flow, to the local pressure-equipment code",
         flow=(design_flow, "kg/h"), p_up=(p_up / 1e5, "bar"), p_down=(p_down / 1e5, "bar")))
+
+
+def relief_inlet_state(inputs, p_up, normal_state):
+    """The densest credible inlet steam at the highest upstream pressure, and its description.
+
+    Superheated steam that loses its superheat is denser and passes more through a valve wide open, so
+    the relief load is taken on dry saturated steam at ``p_up``, or at the least superheat the inputs say
+    the steam keeps for certain (``relief_min_superheat``) when that is below the normal inlet's. Wet and
+    supercritical inlets are taken as they are.
+    """
+    if normal_state.dryness is not None or p_up > CRITICAL_PRESSURE:
+        return normal_state, f"the inlet steam as specified ({normal_state.temperature - 273.15:.1f} °C)"
+    t_sat = saturation_temperature(p_up)
+    if inputs.relief_min_superheat is None:
+        return (SteamState.from_p_dryness(p_up, 1.0),
+                f"dry saturated steam ({t_sat - 273.15:.1f} °C: the densest credible steam; give "
+                "valve.relief_min_superheat if the superheat is kept for certain)")
+    temperature = t_sat + inputs.relief_min_superheat
+    if temperature >= normal_state.temperature:
+        return normal_state, f"the normal inlet temperature ({normal_state.temperature - 273.15:.1f} °C)"
+    return (SteamState.from_pT(p_up, temperature),
+            f"steam with the least superheat given, {inputs.relief_min_superheat:g} K ({temperature - 273.15:.1f} °C)")
 
 
 def _smallest_size(mass_flow, density, limit, schedule, non_preferred=False):
