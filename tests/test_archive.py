@@ -84,3 +84,27 @@ def test_a_record_relabelled_as_the_earlier_schema_gets_no_pass_for_its_report(t
     capsys.readouterr()
     assert main(["verify", str(path)]) == 1
     assert "companion LD-02_revA.html: DIFFERS" in capsys.readouterr().out
+
+
+def test_an_earlier_record_lists_what_a_later_basis_changed_and_still_catches_an_edit(tmp_path, capsys):
+    # Release 0.3 takes the relief load on dry saturated steam at the highest upstream pressure: a 0.2 record's
+    # relief figures differ by that change, which verify lists with the release; any other edit still fails.
+    import json
+
+    from steamcalc.records.record import compute_content_digest, compute_digest
+
+    record = ARCHIVE / "v0_2" / "LD-02_revA.json"
+    for companion in record.parent.glob("LD-02_revA.*"):
+        shutil.copy(companion, tmp_path / companion.name)
+    assert main(["verify", str(tmp_path / record.name)]) == 0
+    said = capsys.readouterr().out
+    assert "changed  fail_open_flow" in said and "changed by release 0.3 (relief load on the densest credible" in said
+    data = json.loads((tmp_path / record.name).read_text(encoding="utf-8"))
+    data["results"]["inlet_saturation_temperature"]["value"] += 1.0
+    data["content_digest"] = compute_content_digest(data)
+    data["digest"] = compute_digest(data)
+    forged = tmp_path / "forged" / record.name
+    forged.parent.mkdir()
+    forged.write_text(json.dumps(data, indent=2), encoding="utf-8")
+    assert main(["verify", str(forged)]) == 1
+    assert "differs  inlet_saturation_temperature" in capsys.readouterr().out

@@ -12,11 +12,13 @@ engine already); the ordinary verification reproduces them.
 
 from __future__ import annotations
 
+import ast
 import re
 from dataclasses import dataclass, field
 from pathlib import Path
 
 from ..properties.engines import REFERENCE_ENGINE, check_engine
+from ..calcs import get_calculation
 from ..errors import SteamcalcError
 from ..records.record import compute_content_digest, compute_digest, provenance
 from ..runs.runner import recompute, recompute_uncertainty
@@ -40,7 +42,7 @@ class Comparison:
     unit: str
     abs_diff: float | None
     rel_diff: float | None
-    verdict: str  # "same", "differs", "missing", "new"
+    verdict: str  # "same", "differs", "missing", "new", "changed" (by a later release's basis, listed)
 
 
 @dataclass
@@ -71,12 +73,12 @@ class Verification:
     @property
     def reproduced(self):
         return self.error is None and not self.check_changes and not self.statement_changes and all(
-            c.verdict == "same" for c in self.comparisons)
+            c.verdict in ("same", "changed") for c in self.comparisons)
 
     def differences(self):
         """Every way the record differs from its recomputation, one line each."""
         lines = [f"{c.key}: recorded {c.recorded}, recomputed {c.recomputed}" for c in self.comparisons
-                 if c.verdict != "same"]
+                 if c.verdict not in ("same", "changed")]
         return lines + [f"check changed: {c}" for c in self.check_changes] + list(self.statement_changes)
 
     @property
@@ -239,9 +241,69 @@ def verify_record(record, engine=REFERENCE_ENGINE):
     result.recomputed_status = fresh.status
     result.recomputed_failing = [c.name for c in fresh.checks if c.status == "fail"]
     result.statement_changes = _statement_changes(record, fresh, result.notes)
+    if record.get("schema") in _TEXT_SCHEMAS:
+        _by_later_bases(record, result)
     return result
 
 
+def _basis_change(calc, text):
+    """(release, why) of the basis change of this release that ``text`` (a key, label or statement) falls under."""
+    from fnmatch import fnmatchcase
+
+    for release, why, patterns in getattr(calc, "BASIS_CHANGES", ()):
+        if any(fnmatchcase(str(text), pattern) for pattern in patterns):
+            return release, why
+    return None
+
+
+def _by_later_bases(record, result):
+    """Differences of an earlier release's record that a later release's change of basis explains.
+
+    Each stays listed, as a note naming the release and the change; what no declared change explains
+    stays a difference. Only records of the schemas before the change (1 and 2) are read this way.
+    """
+    try:
+        calc = get_calculation(record.get("kind"))
+    except SteamcalcError:
+        return
+    for c in result.comparisons:
+        change = c.verdict in ("differs", "new", "missing") and _basis_change(calc, c.key)
+        if change:
+            c.verdict = "changed"
+            result.notes.append(f"{c.key}: recorded {c.recorded}, recomputed {c.recomputed}: changed by release "
+                                f"{change[0]} ({change[1]})")
+
+    def explained(line):
+        # "recorded: NAME = ..." / "step 'LABEL': ..." / "warnings: not issued 'TEXT'"
+        name = re.sub(r"^(?:recorded|recomputed): ", "", line).split(" = ")[0]
+        label = re.match(r"step '([^']*)'", line)
+        return _basis_change(calc, label.group(1) if label else name)
+    kept = []
+    for line in result.check_changes:
+        change = explained(line)
+        (result.notes.append(f"check {line}: changed by release {change[0]} ({change[1]})") if change
+         else kept.append(line))
+    result.check_changes = kept
+    kept = []
+    for line in result.statement_changes:
+        section, _, rest = line.partition(": ")
+        parts = _QUOTED.findall(rest) if section in (
+            "warnings", "assumptions") else []
+        if parts and all(_basis_change(calc, ast.literal_eval(text)) or _basis_change(
+                calc, ast.literal_eval(text).split(":")[0]) for _, text in parts):
+            result.notes.append(f"{line}: changed by release {BASIS_NOTE}")
+        elif line.startswith("step ") and explained(line):
+            change = explained(line)
+            result.notes.append(f"{line}: changed by release {change[0]} ({change[1]})")
+        else:
+            kept.append(line)
+    result.statement_changes = kept
+
+
+#: A statement as _statement_changes quotes it: "missing 'text'" or 'not issued "text"'.
+_QUOTED = re.compile(r"""(missing|not issued) ('(?:[^'\\]|\\.)*'|"(?:[^"\\]|\\.)*")""")
+#: How a statement explained by a change of basis is noted.
+BASIS_NOTE = "0.3 (its basis changed; see the results' notes)"
 #: Schemas whose steps and checks are text only (no expression, operands, quantity or limits).
 _TEXT_SCHEMAS = ("steamcalc.record/1", "steamcalc.record/2")
 #: The parts of a step kept as data, compared with the numeric tolerance.

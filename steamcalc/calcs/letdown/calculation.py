@@ -32,6 +32,13 @@ WORKBOOK = "letdown.ipynb"
 UNCERTAINTY_RESULTS = ("outlet_temperature", "outlet_superheat", "throttled_temperature", "spray_water_flow", "valve_kv", "recoverable_power")
 #: Plain fractions shown in % (display only; records keep the fraction).
 PERCENT_VALUES = ("overpressure", "isentropic_efficiency", "generator_efficiency")
+#: Bases this release changed, so that verify lists what a record of an earlier release differs by, and why,
+#: instead of calling it edited: patterns (fnmatch) over result keys, step labels, check names and statements.
+BASIS_CHANGES = (
+    ("0.3", "relief load on the densest credible inlet steam (dry saturated at the highest upstream pressure)",
+     ("fail_open_flow*", "bypass_open_flow", "relief_*", "Fail-open flow", "Bypass-open flow", "Required area*",
+      "Relief*", "Reaction force*", "Relief load*")),
+)
 
 #: Results that hold a pressure difference (shown as "bar difference", not bar(a)).
 PRESSURE_DIFFERENCE_RESULTS = tuple(
