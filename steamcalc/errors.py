@@ -94,6 +94,14 @@ class AmbiguousStateError(InputError):
     """A pair of properties that does not fix one state (p, T on the saturation line)."""
 
 
+class NotConvergedError(SteamcalcError):
+    """An iteration that did not meet its stated tolerance within its steps.
+
+    A result that did not converge is never given as one: the case is refused, naming the iteration
+    (``field``), the last residual (``value``) and the tolerance.
+    """
+
+
 class RecordError(SteamcalcError):
     """A record file that cannot be read or is not a steamcalc record."""
 

@@ -63,3 +63,21 @@ def test_valve_inlet_pressure_is_header_less_the_inlet_line():
     assert with_line.value("inlet_line_pressure_drop_per_100m") == pytest.approx(
         with_line.value("inlet_line_pressure_drop") * 100 / 15.0)
     assert with_line.value("outlet_line_pressure_drop") > 0.0
+
+
+def test_colebrook_converges_at_the_ends_of_its_range_and_refuses_when_it_cannot(monkeypatch):
+    # At the edges of the turbulent range (Re 4,000 and 1e8, rough and smooth) Newton meets its 1e-14 stop
+    # and agrees with the fixed-point hand solution; given too few steps to converge, it refuses by name
+    # instead of returning an unconverged friction factor.
+    import numpy as np
+
+    import steamcalc.equipment.line_loss as line_loss
+    from steamcalc.errors import NotConvergedError
+
+    for reynolds, roughness in ((4e3, 0.05), (1e8, 1e-6)):
+        f = line_loss.colebrook_friction_factors(np.array([reynolds]), roughness)[0]
+        assert f == pytest.approx(_colebrook_by_hand(reynolds, roughness), rel=1e-12)
+    monkeypatch.setattr(line_loss, "_COLEBROOK_STEPS", 1)
+    with pytest.raises(NotConvergedError, match="did not converge in 1 Newton steps") as refused:
+        line_loss.colebrook_friction_factors(np.array([1e8]), 1e-6)
+    assert refused.value.field == "line friction factor (Colebrook)"

@@ -250,3 +250,18 @@ def test_downstream_design_conditions():
     assert [next(c.status for c in bad.checks if c.name == n) for n in names] == ["fail", "fail"]
     assert [next(c.status for c in good.checks if c.name == n) for n in names] == ["pass", "pass"]
     assert t_throttled > saturation_temperature(3.5e5)
+
+
+def test_isentrope_converges_near_saturation_and_refuses_when_it_cannot(monkeypatch):
+    # Near the saturation line (1 K of superheat at 5 bar(a)), Newton on T meets its 1e-6 K step; given one step
+    # from a poor start it refuses by name: a result that did not converge is never used to size a device.
+    import steamcalc.equipment.relief as relief
+    from steamcalc.errors import NotConvergedError
+
+    start = SteamState.from_pT(5e5, saturation_temperature(5e5) + 1.0)
+    rho, h, x = relief.isentrope_point(5e5, start.entropy, start.temperature + 40.0)
+    assert x is None and rho == pytest.approx(start.density, rel=1e-9) and h == pytest.approx(start.enthalpy, rel=1e-9)
+    monkeypatch.setattr(relief, "ISENTROPE_STEPS", 1)
+    with pytest.raises(NotConvergedError, match="did not converge in 1 Newton steps") as refused:
+        relief.isentrope_point(5e5, start.entropy, start.temperature + 40.0)
+    assert refused.value.field == "relief isentrope (direct integration)"

@@ -12,6 +12,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ..errors import NotConvergedError
+
 #: Absolute roughness of commercial steel pipe, m (Moody's chart value, 0.045 mm; common practice).
 STEEL_ROUGHNESS = 4.5e-5
 #: Line drop above which the caller should warn, Pa per 100 m (common practice for steam
@@ -25,6 +27,8 @@ COMPRESSIBLE_FRACTION = 0.10
 #: fraction: at machine precision, where fluids' closed form is too (to about 1e-12).
 _COLEBROOK_STOP = 1e-14
 _COLEBROOK_STEPS = 20
+#: Relative step of u = 1/√f accepted when the steps run out (a result beyond it is refused, by name).
+_COLEBROOK_ACCEPT = 1e-10
 
 
 def colebrook_friction_factors(reynolds, relative_roughness):
@@ -68,8 +72,16 @@ def colebrook_friction_factors(reynolds, relative_roughness):
         step = (u + 2.0 * np.log10(inner)) / (1.0 + 2.0 * b / (inner * math.log(10.0)))
         u = u - step
         if np.all(np.abs(step) <= _COLEBROOK_STOP * u):
-            break
-    return 1.0 / (u * u)
+            return 1.0 / (u * u)
+    # Newton stops at a step of 1e-14 of u; rounding can hold it a little above that, which is still a
+    # friction factor good to far better than the 1e-10 accepted here. Beyond it, no result is given.
+    worst = float(np.max(np.abs(step) / np.abs(u)))
+    if worst <= _COLEBROOK_ACCEPT:
+        return 1.0 / (u * u)
+    raise NotConvergedError(
+        f"the Colebrook friction factor did not converge in {_COLEBROOK_STEPS} Newton steps: the last relative step "
+        f"was {worst:.2g}, the tolerance {_COLEBROOK_ACCEPT:g}", field="line friction factor (Colebrook)", value=worst,
+        fix="check the line's size and roughness; a Reynolds number this far out is outside the correlation")
 
 
 @dataclass(frozen=True)

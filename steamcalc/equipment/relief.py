@@ -18,7 +18,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from ..errors import InputError
+from ..errors import InputError, NotConvergedError
 
 #: API 526 (7th ed., 2017), effective orifice areas, in², by letter (the standard's table of
 #: effective areas for the effective coefficient of discharge 0.975 of API 520).
@@ -88,6 +88,11 @@ class NozzleFlow:
     throat_dryness: float | None  #: dryness at the throat; None when superheated
 
 
+#: Newton steps on T along an isentrope, and the temperature step (K) that ends them.
+ISENTROPE_STEPS = 30
+ISENTROPE_TOLERANCE = 1e-6
+
+
 def isentrope_point(pressure, entropy, temperature_guess):
     """Density (kg/m³), enthalpy (J/kg) and dryness (None when superheated) on an isentrope.
 
@@ -110,15 +115,19 @@ def isentrope_point(pressure, entropy, temperature_guess):
         volume = 1.0 / liquid.density + x * (1.0 / vapour.density - 1.0 / liquid.density)
         return 1.0 / volume, liquid.enthalpy + x * (vapour.enthalpy - liquid.enthalpy), x
     temperature = max(temperature_guess, vapour.temperature + 1e-3)
-    for _ in range(30):
+    for _ in range(ISENTROPE_STEPS):
         state = SteamState.from_pT(pressure, temperature)
         step = (entropy - state.entropy) * temperature / state.cp
-        if abs(step) < 1e-6:
+        if abs(step) < ISENTROPE_TOLERANCE:
             # |Δs| < 1e-6·cp/T: the density and enthalpy are those of the isentrope to ~1e-9.
             return state.density, state.enthalpy, None
         temperature = max(temperature + step, vapour.temperature + 1e-3)
-    state = SteamState.from_pT(pressure, temperature)
-    return state.density, state.enthalpy, None
+    raise NotConvergedError(
+        f"the isentrope point at {pressure / 1e5:.4g} bar(a) did not converge in {ISENTROPE_STEPS} Newton steps: "
+        f"the last temperature step was {abs(step):.2g} K, the tolerance {ISENTROPE_TOLERANCE:g} K",
+        field="relief isentrope (direct integration)", value=abs(step),
+        fix="this relieving state is at the edge of the method: check the relief inputs, and size the device on "
+            "the steam equation with the maker")
 
 
 def direct_integration_flux(relieving_state, back_pressure, evaluations=20):
