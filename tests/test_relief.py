@@ -265,3 +265,15 @@ def test_isentrope_converges_near_saturation_and_refuses_when_it_cannot(monkeypa
     with pytest.raises(NotConvergedError, match="did not converge in 1 Newton steps") as refused:
         relief.isentrope_point(5e5, start.entropy, start.temperature + 40.0)
     assert refused.value.field == "relief isentrope (direct integration)"
+
+
+def test_a_set_pressure_below_15_psig_says_it_is_outside_the_usual_code_scope():
+    # 15 psig = 1.034 bar above the atmosphere (ASME VIII-1 scope, from memory): below it the record says the
+    # local code decides; above it nothing is said.
+    low = calculate(Inputs(inlet_pressure=6e5, outlet_pressure=1.5e5, mass_flow=0.5, inlet_temperature=453.15,
+                           rated_kv=20.0, set_pressure=1.9e5), Site())
+    notice = next(c for c in low.checks if c.name == "Relief set pressure within the usual pressure-vessel scope")
+    assert notice.kind == "notice" and "1.034 bar difference (15 psig) above the atmosphere" in str(notice.detail)
+    high = calculate(Inputs(inlet_pressure=6e5, outlet_pressure=1.5e5, mass_flow=0.5, inlet_temperature=453.15,
+                            rated_kv=20.0, set_pressure=2.5e5), Site())
+    assert not any(c.name.startswith("Relief set pressure within the usual") for c in high.checks)

@@ -44,6 +44,11 @@ def _discharge_diameter(inputs, letter, schedule):
     return pipe_inner_diameter(f"DN{dn}", schedule), f"DN{dn} (API 526 outlet of the {letter} orifice, from memory)"
 
 
+#: Gauge pressure below which the usual pressure-vessel codes do not apply: 15 psig = 1.034 bar (ASME VIII-1
+#: scope, from memory).
+CODE_SCOPE_GAUGE = 15.0 * 6894.757293168361
+
+
 def relief_section(inputs, inlet, site, result):
     """Size the downstream relief valve for the relief design flow at set pressure plus overpressure."""
     p_set = relief_set_pressure(inputs)
@@ -72,6 +77,13 @@ def relief_section(inputs, inlet, site, result):
         (inputs.back_pressure, "back pressure atmospheric (open discharge)")) if given is None]
     if defaults:
         result.assumptions.append("Relief valve, not given: " + "; ".join(defaults))
+    if p_set - atm < CODE_SCOPE_GAUGE:
+        # Below 15 psig most pressure-vessel codes do not apply, and with them their relief rules.
+        result.notice("Relief set pressure within the usual pressure-vessel scope", act=True, detail=Phrase.of(
+            "set pressure {set:.4g} is less than {scope:.4g} (15 psig) above the atmosphere {atm:.4g}: below it "
+            "the usual pressure-vessel codes do not apply (ASME VIII-1 scope, from memory), so the local code and "
+            "the engineer of record decide whether a relief device is required and how it is rated",
+            set=(p_set / 1e5, "bar"), scope=(CODE_SCOPE_GAUGE / 1e5, "bar", "difference"), atm=(atm / 1e5, "bar")))
     p_relieve = p_set + overpressure * (p_set - atm)
     result.work("Relieving pressure", "P1 = p_set + overpressure·(p_set − p_atm)", "p_set + overpressure*(p_set - p_atm)",
                 p_relieve / 1e5, "bar", p_set=(p_set / 1e5, "bar"), overpressure=(overpressure, ""),
