@@ -79,9 +79,13 @@ def test_turndown_inverse():
 
 
 def test_superheated_steam_and_subcooling_zones():
-    r = calculate(Inputs(**BASE, steam_temperature=493.15, condensate_subcooling=20.0, overall_u=1800.0), SITE)
+    r = calculate(Inputs(**BASE, steam_temperature=493.15, condensate_subcooling=20.0, overall_u=1800.0,
+                         subcooling_u=600.0), SITE)
     zones = r.value("desuperheating_duty") + r.value("condensing_duty") + r.value("subcooling_duty")
     assert zones == pytest.approx(r.value("duty"), rel=1e-9)
+    # The subcooling zone at its own U, by hand: A = Q/(ΔT_lm·U), counterflow (F = 1), no fouling.
+    assert r.value("subcooling_area") == pytest.approx(
+        r.value("subcooling_duty") / (r.value("subcooling_lmtd") * 0.6), rel=1e-9)
     # More heat per kg of steam than saturated steam to saturated condensate: less steam.
     plain = calculate(Inputs(**BASE), SITE)
     assert r.value("steam_flow") < plain.value("steam_flow")
@@ -105,6 +109,7 @@ def test_duty_balances_close(p, t_in, rise, flow, loss, superheat, sub):
 
 
 @pytest.mark.parametrize("kwargs,field", [
+    (dict(condensate_subcooling=20.0, overall_u=1800.0), "subcooling_u"),   # a subcooling zone needs its U
     (dict(process_outlet_temperature=320.0), "process_outlet_temperature"),
     (dict(overall_u=-5.0), "overall_u"),
     (dict(arrangement="3-6"), "arrangement"),
@@ -272,9 +277,10 @@ ZONE_BASE = dict(steam_pressure=9e5, process_flow=12000 / 3600, process_cp=4180.
 
 # desuperheating U, subcooling U (W/(m² K)), fouling (m² K/W); source of the check values.
 ZONE_CASES = [
-    (None, None, 0.0, "hand: wet wall (T_sat − T_process), ht.LMTD, IAPWS-95 enthalpies (CoolProp)"),
+    (None, 1800.0, 0.0, "hand: wet wall (T_sat − T_process), subcooling at the condensing U given; ht.LMTD, "
+                        "IAPWS-95 enthalpies (CoolProp)"),
     (None, 600.0, 0.0, "hand: wet wall, subcooling zone at its own U; ht.LMTD, CoolProp"),
-    (100.0, None, 0.0, "hand: dry wall at the desuperheating U, steam T_s → T_sat; ht.LMTD, CoolProp"),
+    (100.0, 1800.0, 0.0, "hand: dry wall at the desuperheating U, steam T_s → T_sat; ht.LMTD, CoolProp"),
     (100.0, 600.0, 1e-4, "hand: both zone U's, fouling on each 1/U; ht.LMTD, CoolProp"),
 ]
 
@@ -295,7 +301,7 @@ def test_wet_wall_is_the_default_and_larger_than_the_v01_dry_wall_at_the_condens
     # v0.1 took the desuperheating LMTD from the steam temperature at the condensing U; the wet wall's driving
     # force T_sat − T_process is smaller, so the zone needs more area (the conservative side).
     from steamcalc.calcs.exchanger.calculation import lmtd
-    r = calculate(Inputs(**ZONE_BASE), SITE)
+    r = calculate(Inputs(**ZONE_BASE, subcooling_u=600.0), SITE)
     t_sat = r.value("steam_saturation_temperature") + 273.15
     dry = lmtd(493.15, t_sat, 358.15 - 30.0 * r.value("desuperheating_duty") / r.value("duty"), 358.15)
     assert r.value("desuperheating_lmtd") < dry
@@ -305,11 +311,14 @@ def test_wet_wall_is_the_default_and_larger_than_the_v01_dry_wall_at_the_condens
     assert saturated.value("condensing_area") == saturated.value("required_area")
 
 
-def test_subcooling_at_the_condensing_u_warns():
-    r = calculate(Inputs(**ZONE_BASE), SITE)
-    assert next(c for c in r.checks if c.name == "Subcooling zone U").status == "warn"
-    r = calculate(Inputs(**ZONE_BASE, subcooling_u=600.0), SITE)
-    assert not any(c.name == "Subcooling zone U" for c in r.checks)
+def test_a_subcooling_zone_needs_its_own_u():
+    # A condensate-cooling U is several times below the condensing U (common practice): the zone is not sized
+    # at the condensing U by default; the input is asked for, by name.
+    with pytest.raises(InputError) as refused:
+        calculate(Inputs(**ZONE_BASE), SITE)
+    assert refused.value.field == "subcooling_u" and "0.6 kW/(m²·K)" in refused.value.fix
+    low, high = (calculate(Inputs(**ZONE_BASE, subcooling_u=u), SITE) for u in (600.0, 1800.0))
+    assert low.value("subcooling_area") == pytest.approx(3 * high.value("subcooling_area"), rel=1e-9)
 
 
 @pytest.mark.parametrize("kwargs,field", [

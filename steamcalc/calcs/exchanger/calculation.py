@@ -115,8 +115,8 @@ class Inputs:
         "zone (steam cooling as a gas); leave empty for the wet-wall basis at the overall U.",
         example="0.1 kW/(m²·K)", positive=True)
     subcooling_u: float | None = input_field(
-        "heat_transfer_coefficient", "Subcooling zone U (clean)", "U of the condensate-subcooling zone (else the "
-        "overall U).", example="0.6 kW/(m²·K)", positive=True)
+        "heat_transfer_coefficient", "Subcooling zone U (clean)", "U of the condensate-subcooling zone; needed with a "
+        "condensate subcooling and an overall U.", example="0.6 kW/(m²·K)", positive=True)
     trap_static_head: float | None = input_field(
         "length", "Static head to the trap", "Height of condensate between the heater outlet and the trap inlet "
         "(trap below the outlet); adds ρ·g·H to the pressure that drains it.", example="0.5 m", section="drainage")
@@ -175,6 +175,13 @@ class Inputs:
             raise InputError("a fouling resistance cannot be negative", field="fouling_resistance")
         if self.condensate_subcooling is not None and self.condensate_subcooling < 0.0:
             raise InputError("subcooling cannot be negative", field="condensate_subcooling")
+        if (self.condensate_subcooling or 0.0) >= 0.01 and self.overall_u is not None and self.subcooling_u is None:
+            # A condensate-cooling U is several times below the condensing U: sized at the condensing U the
+            # subcooling zone comes out a fraction of its real area, so its U is asked for, not assumed.
+            raise InputError("a subcooling zone needs its own U: the condensing U would understate its area "
+                             "several times", field="subcooling_u",
+                             fix="give subcooling_u, the clean U of the condensate-cooling zone (the maker's or a "
+                                 "sensible-heat figure, e.g. 0.6 kW/(m²·K)), or no condensate_subcooling")
         for name in ("desuperheating_u", "subcooling_u"):
             if getattr(self, name) is not None and self.overall_u is None:
                 raise InputError(f"{name} is a zone's U; the condensing zone needs the overall U as well",

@@ -208,13 +208,7 @@ def _zone_assumptions(inputs, zones, arrangement, result):
                                    "the dry-wall desuperheating U is above the condensing U; a gas-cooling coefficient "
                                    "is normally far lower (common practice): check the figure", source="common practice")
     if "subcooling" in names and inputs.overall_u is not None:
-        if inputs.subcooling_u is None:
-            result.assumptions.append("Subcooling zone at the overall (condensing) U: no subcooling-zone U given")
-            result.check("Subcooling zone U", "warn",
-                         "the subcooling zone is sized at the condensing U; a condensate-cooling coefficient is "
-                         "usually several times lower, so its area is understated: give subcooling_u "
-                         "(common practice)")
-        else:
+        if inputs.subcooling_u is not None:   # required with a subcooling zone (Inputs refuses it missing)
             result.assumptions.append(f"Subcooling zone at the given subcooling U {inputs.subcooling_u / 1e3:.4g} "
                                       "kW/(m²·K)")
     if inputs.overall_u is not None and inputs.fouling_resistance:
