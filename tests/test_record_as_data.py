@@ -132,3 +132,17 @@ def test_a_phrase_is_written_in_each_system_from_its_amounts():
     # 105 °C = 221 °F and 148.78 °C = 299.80 °F (°F = 1.8 °C + 32, exact).
     assert phrase.text("US") == "water at 221.00 °F, below the target 299.80 °F"
     assert Phrase.from_record(phrase.to_record()) == phrase
+
+
+def test_a_record_relabelled_as_an_earlier_schema_gets_no_allowance(issued, tmp_path, capsys):
+    # An earlier release's record may differ where a later release changed a basis (the relief load); a record
+    # of this release relabelled schema 2, its relief load edited and its digests recomputed, still fails.
+    def relabel(record):
+        record["schema"] = "steamcalc.record/2"
+        record["results"]["relief_design_flow"]["value"] *= 0.9
+
+    forged = _forged(issued, relabel, tmp_path)
+    capsys.readouterr()
+    assert main(["verify", str(forged)]) == 1
+    said = capsys.readouterr().out
+    assert "differs  relief_design_flow" in said and "verdict: FAILED" in said

@@ -206,7 +206,7 @@ def verify_record(record, engine=REFERENCE_ENGINE):
     for key in list(old_results) + [k for k in new_results if k not in old_results]:
         comparison = _compare(key, old_results.get(key), new_results.get(key))
         # From schema 3 a result's label is the calculation's too: a label edited in the file is caught.
-        if comparison.verdict == "same" and record.get("schema") not in _TEXT_SCHEMAS and \
+        if comparison.verdict == "same" and not _earlier(record) and \
                 old_results[key].get("label") != new_results[key].get("label"):
             comparison = Comparison(f"{key} (its label)", old_results[key].get("label"), new_results[key].get("label"),
                                     "", None, None, "differs")
@@ -224,7 +224,7 @@ def verify_record(record, engine=REFERENCE_ENGINE):
             add_sample_check(fresh, section)   # as run adds it: its check and, when it warns, its warning
     new_checks = [(c.name, c.status, text_of(c.detail)) for c in fresh.checks]
     old_checks = [(c.get("name"), c.get("status"), c.get("detail")) for c in record.get("checks", [])]
-    if record.get("schema") in _TEXT_SCHEMAS:
+    if _earlier(record):
         notices = {c.name for c in fresh.checks if c.kind == "notice"}
         result.check_changes = _earlier_check_changes(old_checks, new_checks, result.notes, notices)
     else:
@@ -241,7 +241,7 @@ def verify_record(record, engine=REFERENCE_ENGINE):
     result.recomputed_status = fresh.status
     result.recomputed_failing = [c.name for c in fresh.checks if c.status == "fail"]
     result.statement_changes = _statement_changes(record, fresh, result.notes)
-    if record.get("schema") in _TEXT_SCHEMAS:
+    if _earlier(record):
         _by_later_bases(record, result)
     return result
 
@@ -306,6 +306,19 @@ _QUOTED = re.compile(r"""(missing|not issued) ('(?:[^'\\]|\\.)*'|"(?:[^"\\]|\\.)
 BASIS_NOTE = "0.3 (its basis changed; see the results' notes)"
 #: Schemas whose steps and checks are text only (no expression, operands, quantity or limits).
 _TEXT_SCHEMAS = ("steamcalc.record/1", "steamcalc.record/2")
+
+
+def _earlier(record):
+    """True for a record of schema 1 or 2 that looks it: steps and checks as text only.
+
+    A record that says schema 1 or 2 but carries what only schema 3 writes (a step's expression, a check's
+    kind) was relabelled: it gets none of the allowances an earlier release's record gets.
+    """
+    if record.get("schema") not in _TEXT_SCHEMAS:
+        return False
+    steps, checks = record.get("steps", []), record.get("checks", [])
+    return not any(isinstance(s, dict) and ("expression" in s or "operands" in s) for s in steps) and not any(
+        isinstance(c, dict) and ("kind" in c or "phrase" in c or "limits" in c) for c in checks)
 #: The parts of a step kept as data, compared with the numeric tolerance.
 _STEP_DATA = ("expression", "operands", "units_fixed")
 #: The parts of a check kept as data.
@@ -498,7 +511,7 @@ def _statement_changes(record, fresh, notes=None):
                                   ("assumptions", own_assumptions, list(fresh.assumptions))):
         if len(recorded) == len(issued) and all(same_text(a, b) for a, b in zip(recorded, issued)):
             continue
-        if record.get("schema") in _TEXT_SCHEMAS:
+        if _earlier(record):
             recorded, issued = _reworded(key, recorded, issued, notes)
         if recorded != issued:
             missing = [t for t in issued if t not in recorded]
@@ -507,7 +520,7 @@ def _statement_changes(record, fresh, notes=None):
             changes.append(f"{key}: {what}")
     old_steps = record.get("steps", [])
     new_steps = [s.to_record() for s in fresh.steps]
-    if record.get("schema") in _TEXT_SCHEMAS:
+    if _earlier(record):
         changes.extend(_earlier_step_changes(old_steps, new_steps, notes))
         return changes
     if len(old_steps) != len(new_steps):
