@@ -232,12 +232,14 @@ class Workbook:
             return None
         button = self._bands_button
         description, before = button.description, self._bands.value
-        button.disabled, button.description = True, "computing…"
-        button.add_class("steamcalc-computing")
+        # The note first, then the button: the browser applies the updates in order, so a disabled
+        # "computing…" button never stands beside the previous bands.
         self._tornado.outputs = ()
         self._bands.value = ("<div class='steamcalc-computing-note'><i>computing… the Monte Carlo bands "
                              f"({self._settings.get('samples', 'the default number of')} samples) and the "
                              "sensitivity; this takes a few seconds.</i></div>")
+        button.disabled, button.description = True, "computing…"
+        button.add_class("steamcalc-computing")
         try:
             return self._compute_uncertainty(before)
         finally:
