@@ -1,6 +1,9 @@
 """Run a case file's text through the command line, as a user's file would go."""
 
+import json
+
 from steamcalc.cli import main
+from steamcalc.records.record import compute_content_digest, compute_digest
 
 
 def run_case_text(tmp_path, capsys, text, name="case.toml"):
@@ -18,3 +21,16 @@ def assert_refused(tmp_path, capsys, text, field):
     assert code == 2, err
     assert field in err and str(tmp_path / "case.toml") in err
     assert not (tmp_path / "out").exists()
+
+
+def forged_copy(path, edit, folder):
+    """A copy of the record at ``path`` in ``folder/forged`` with ``edit`` applied and both digests recomputed,
+    as a forger would make it."""
+    record = json.loads(path.read_text(encoding="utf-8"))
+    edit(record)
+    record["content_digest"] = compute_content_digest(record)
+    record["digest"] = compute_digest(record)
+    forged = folder / "forged" / path.name
+    forged.parent.mkdir(exist_ok=True)
+    forged.write_text(json.dumps(record, indent=2), encoding="utf-8")
+    return forged

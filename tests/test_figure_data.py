@@ -7,7 +7,7 @@ import pytest
 
 from steamcalc.calcs.base import Figure, figure_or_missing
 from steamcalc.cli import main
-from steamcalc.records.record import compute_content_digest, compute_digest
+from tests.case_helpers import forged_copy
 
 
 @pytest.fixture
@@ -18,18 +18,6 @@ def issued(tmp_path, demo_site_dir):
     return site / "records" / "LD-01_revA.json"
 
 
-def _forged(path, edit, tmp_path):
-    """A copy of the record with ``edit`` applied and both digests recomputed, as a forger would."""
-    record = json.loads(path.read_text(encoding="utf-8"))
-    edit(record)
-    record["content_digest"] = compute_content_digest(record)
-    record["digest"] = compute_digest(record)
-    forged = tmp_path / "forged" / path.name
-    forged.parent.mkdir(exist_ok=True)
-    forged.write_text(json.dumps(record, indent=2), encoding="utf-8")
-    return forged
-
-
 @pytest.mark.parametrize("edit", [
     lambda r: r["figures"][1]["series"][0]["y"].__setitem__(10, 18.2),
     lambda r: r["figures"][2]["series"][2].update(y=[95.0, 95.0]),
@@ -38,7 +26,7 @@ def _forged(path, edit, tmp_path):
     lambda r: r["figures"].__setitem__(2, {"name": "noise", "title": r["figures"][2]["title"], "missing": "not drawn"}),
 ], ids=["a Kv point", "the noise limit", "a series name", "the order", "marked missing"])
 def test_forged_figure_data_fails_verify(issued, tmp_path, capsys, edit):
-    forged = _forged(issued, edit, tmp_path)
+    forged = forged_copy(issued, edit, tmp_path)
     capsys.readouterr()
     assert main(["verify", str(forged)]) == 1
     said = capsys.readouterr().out
@@ -46,7 +34,7 @@ def test_forged_figure_data_fails_verify(issued, tmp_path, capsys, edit):
 
 
 def test_diff_shows_a_changed_figure(issued, tmp_path, capsys):
-    forged = _forged(issued, lambda r: r["figures"][1]["series"][0]["y"].__setitem__(10, 18.2), tmp_path)
+    forged = forged_copy(issued, lambda r: r["figures"][1]["series"][0]["y"].__setitem__(10, 18.2), tmp_path)
     capsys.readouterr()
     assert main(["diff", str(issued), str(forged)]) == 0
     said = capsys.readouterr().out

@@ -12,7 +12,7 @@ from pathlib import Path
 import pytest
 
 from steamcalc.cli import main
-from steamcalc.records.record import compute_content_digest, compute_digest
+from tests.case_helpers import forged_copy
 from steamcalc.review.verify import recorded_verdict_changes
 from steamcalc.units.amounts import Amount, Limit, Phrase, verdict
 
@@ -26,17 +26,6 @@ def issued(tmp_path_factory):
     shutil.copytree(DEMO_SITE, site, dirs_exist_ok=True, ignore=shutil.ignore_patterns("records"))
     assert main(["run", str(site / "cases" / "LD-01.toml"), "--quiet"]) == 0
     return site / "records" / "LD-01_revA.json"
-
-
-def _forged(path, edit, tmp_path):
-    """A copy of the record with ``edit`` applied and both digests recomputed, as a forger would."""
-    record = json.loads(path.read_text(encoding="utf-8"))
-    edit(record)
-    record["content_digest"] = compute_content_digest(record)
-    record["digest"] = compute_digest(record)
-    forged = tmp_path / path.name
-    forged.write_text(json.dumps(record, indent=2), encoding="utf-8")
-    return forged
 
 
 def _first_limit_check(record):
@@ -88,7 +77,7 @@ def _edit_phrase(record):
                          ids=["a check's status", "a check's limit", "a step's operand", "a result's label",
                               "the uncertainty summary", "the sensitivity order", "a check's wording"])
 def test_an_edit_of_what_the_record_shows_fails_verify(issued, tmp_path, capsys, edit):
-    forged = _forged(issued, edit, tmp_path)
+    forged = forged_copy(issued, edit, tmp_path)
     capsys.readouterr()
     assert main(["verify", str(forged)]) == 1
     said = capsys.readouterr().out
@@ -141,7 +130,7 @@ def test_a_record_relabelled_as_an_earlier_schema_gets_no_allowance(issued, tmp_
         record["schema"] = "steamcalc.record/2"
         record["results"]["relief_design_flow"]["value"] *= 0.9
 
-    forged = _forged(issued, relabel, tmp_path)
+    forged = forged_copy(issued, relabel, tmp_path)
     capsys.readouterr()
     assert main(["verify", str(forged)]) == 1
     said = capsys.readouterr().out
