@@ -89,11 +89,6 @@ class Amount:
         scale, offset = _affine(self.unit, target)
         return self.value * scale + offset, target
 
-    def quantity(self, system="SI"):
-        """A pint quantity of the amount as shown (a Kv's Cv as a pure number; a record "K" a difference)."""
-        value, unit = self.in_system(system)
-        return Q_(value, unit_of(unit))
-
     def number(self, system, spec=""):
         """The number as written in ``system``; in US to the significant figures of its SI text."""
         si_text = format_number(self.value, self.unit) if not spec else _formatted(self.value, spec)
@@ -137,12 +132,6 @@ def to_base(unit):
     base = Q_(1.0, pint_unit(unit)).to_base_units().units
     zero = float(Q_(0.0, pint_unit(unit)).to(base).magnitude)
     return float(Q_(1.0, pint_unit(unit)).to(base).magnitude) - zero, zero
-
-
-@lru_cache(maxsize=None)
-def unit_of(unit):
-    """The pint unit object of a unit text, parsed once."""
-    return Q_(1.0, pint_unit(unit)).units
 
 
 def pint_unit(unit):

@@ -15,7 +15,7 @@ from functools import lru_cache
 
 import pint
 
-from .amounts import Amount, to_base
+from .amounts import Amount, to_base  # noqa: F401  (Amount: the doctests use it)
 from .formatting import _group, format_number
 from .quantities import Q_  # noqa: F401  (the doctests use it)
 
@@ -241,9 +241,6 @@ def substituted(tree, amounts, system="SI", target=None, units_fixed=False):
         return f"{text} {unit}" if unit else text
     return write(tree, name_text)
 
-
-def as_amount(entry):
-    return entry if isinstance(entry, Amount) else Amount.from_record(entry)
 
 
 def written_step(equation, expression, operands, target, system="SI", units_fixed=False):
