@@ -135,3 +135,27 @@ def test_a_record_relabelled_as_an_earlier_schema_gets_no_allowance(issued, tmp_
     assert main(["verify", str(forged)]) == 1
     said = capsys.readouterr().out
     assert "differs  relief_design_flow" in said and "verdict: FAILED" in said
+
+
+@pytest.mark.parametrize("expression, field", [
+    ("__import__('os').system('echo forged')", "steps.3.expression"),   # outside the subset: refused, never run
+    ("T_sat2 + 1", "steps.3.operands"),                                  # symbols that are not its operands
+], ids=["a call outside the subset", "other symbols"])
+def test_a_step_expression_edited_by_hand_is_refused_by_name(issued, tmp_path, capsys, expression, field):
+    def edit(record):
+        record["site"]["display_units"] = "US"   # the US view writes the steps from their expressions
+        record["steps"][3]["expression"] = expression
+
+    forged = forged_copy(issued, edit, tmp_path)
+    capsys.readouterr()
+    assert main(["verify", str(forged)]) != 0
+    said = capsys.readouterr()
+    assert f"field '{field}'" in said.out + said.err and "internal error" not in said.out + said.err
+
+
+def test_a_power_tower_in_an_expression_overflows_at_once_instead_of_running_on():
+    from steamcalc.units.expressions import parse, substituted
+
+    tree = parse("x**10**10**10")
+    text = substituted(tree, {"x": Amount(2.0, "")}, "US", Amount(4.0, ""))
+    assert text.startswith("2")

@@ -6,7 +6,7 @@ shape is refused by name (the file, the field as a dotted path, the value) inste
 somewhere later. The schema accepts every readable layout: ``steamcalc.record/1``,
 ``steamcalc.record/2`` (figures as data) and ``steamcalc.record/3`` (steps and checks as amounts).
 
-This module imports no other part of steamcalc but its errors, unit names and the figure bound, so that
+This module imports no other part of steamcalc but its errors, unit names, step expressions and the figure bound, so that
 :mod:`steamcalc.records.record` can use it without an import cycle.
 """
 
@@ -21,6 +21,7 @@ import fastjsonschema
 
 from ..calcs.base import MAX_FIGURE_COORDINATE
 from ..errors import RecordError
+from ..units.expressions import ExpressionError, names, parse
 from ..units.quantities import is_plain_unit
 
 SCHEMA_FILE = "record.schema.json"
@@ -167,6 +168,21 @@ def _figure_problem(figures):
     return None
 
 
+def _step_problem(steps):
+    """What the schema cannot say of a worked step: its expression in the subset views evaluate, over exactly
+    the operands it names; ``(field, what is wrong, value)`` or None."""
+    for i, step in enumerate(steps):
+        if not isinstance(step, dict) or "expression" not in step:
+            continue
+        try:
+            symbols = names(parse(step["expression"]))
+        except ExpressionError:
+            return f"steps.{i}.expression", "is not an expression a step may hold", _excerpt(step["expression"])
+        if set(symbols) != set(step.get("operands", {})):
+            return f"steps.{i}.operands", "are not the symbols its expression uses", _excerpt(sorted(symbols))
+    return None
+
+
 def validate_record(record, source=None):
     """Check a record against the record schema.
 
@@ -197,7 +213,8 @@ def validate_record(record, source=None):
     except fastjsonschema.JsonSchemaValueException as error:
         field, what, value = _explained(error)
     else:
-        problem = _figure_problem(record.get("figures") or ()) if isinstance(record, dict) else None
+        problem = (_figure_problem(record.get("figures") or ()) or _step_problem(record.get("steps") or ())
+                   if isinstance(record, dict) else None)
         if problem is None:
             return
         field, what, value = problem

@@ -101,7 +101,7 @@ def evaluate(tree, values):
         if isinstance(node, ast.Expression):
             return walk(node.body)
         if isinstance(node, ast.Constant):
-            return node.value
+            return float(node.value)   # never an integer power: 10**10**10 overflows at once instead of running on
         if isinstance(node, ast.Name):
             return values[node.id]
         if isinstance(node, ast.UnaryOp):
