@@ -75,8 +75,12 @@ def run_cases(paths, site_override=None, out_override=None, progress=True, worke
 
 
 def _ignore_interrupt():
-    # Workers leave Ctrl-C to the main process, which stops them all at once.
+    # Workers leave Ctrl-C to the main process, which stops them all at once; the main process's SIGTERM and
+    # SIGHUP handlers (which turn them into Ctrl-C) are not theirs: a worker the pool terminates just ends.
     signal.signal(signal.SIGINT, signal.SIG_IGN)
+    for name in ("SIGTERM", "SIGHUP"):
+        if hasattr(signal, name):
+            signal.signal(getattr(signal, name), signal.SIG_DFL)
 
 
 def _run_parallel(paths, site_override, out_override, force, workers, outcomes, bar):

@@ -281,7 +281,8 @@ def save_case(case, values, inputs_class, folder=None, uncertainty=None):
 
     for name in ("id", "revision"):   # they make the file name: nothing that leads out of the folder
         if not is_file_name_part(getattr(case, name)):
-            raise CaseFileError(f"the {name} is text of letters, digits, '.', '_' and '-', not starting with '.'",
+            raise CaseFileError(f"the {name} is text of letters, digits, '.', '_' and '-', not starting with '.', at most 80 "
+                                "characters",
                                 field=name, value=getattr(case, name), fix=f"give a plain {name}, e.g. {'LD-02' if name == 'id' else 'B'}")
     folder = Path(folder) if folder is not None else Path(case.path).parent
     document = case_document(case, values, inputs_class, uncertainty, folder)

@@ -25,14 +25,17 @@ ID_PATTERN = re.compile(r"^[A-Za-z0-9._-]+\Z")  # \Z: "$" would let a trailing n
 
 def is_file_name_part(text):
     """True for an id or revision that can stand in a file name: letters, digits, '.', '_', '-',
-    not starting with '.'."""
-    return isinstance(text, str) and bool(ID_PATTERN.match(text)) and not text.startswith(".")
+    not starting with '.', at most MAX_ID characters."""
+    return isinstance(text, str) and bool(ID_PATTERN.match(text)) and not text.startswith(".") and len(text) <= MAX_ID
 CASE_KEYS = ("kind", "id", "title", "revision", "prepared_by", "site")
 SITE_KEYS = ("name", "elevation", "atmospheric_pressure", "operating_hours", "fuel_price",
              "boiler_efficiency", "makeup_water_temperature", "power_price", "display_units",
              "fuel_emission_factor", "ambient_temperature", "fuel_basis", "water_cost")
 #: Longest free text (title, names, notes) accepted from a case or site file.
 MAX_TEXT = 2000
+#: Longest id and revision: with "_rev", the suffixes and the lock's name they stay well inside the 255 bytes a
+#: file name may have on common file systems.
+MAX_ID, MAX_REVISION = 80, 20
 #: Elevations of inhabited places, m (the Dead Sea shore to the highest towns, with a margin).
 SITE_ELEVATIONS = (-500.0, 6000.0)
 #: Site atmospheric pressure, Pa (absolute): the standard atmosphere over SITE_ELEVATIONS, with
@@ -401,6 +404,10 @@ def load_case(path):
             raise CaseFileError(f"kind {_shown(kind)!r} is not a calculation steamcalc knows", field="kind",
                                 fix=f"use one of: {', '.join(kinds())}")
         case_id = meta.get("id")
+        if isinstance(case_id, str) and len(case_id) > MAX_ID:
+            # The id names the record's files and its lock: past this it would fail at the file system instead.
+            raise CaseFileError(f"the id is {len(case_id)} characters long; at most {MAX_ID}", field="id",
+                                value=case_id[:40] + "...", fix="e.g. id = \"LD-01\"")
         if not is_file_name_part(case_id):
             raise CaseFileError(
                 "the id becomes a file name, so it may hold only letters, digits, '.', '_' and '-', and may "
@@ -408,6 +415,9 @@ def load_case(path):
         revision = meta.get("revision", "A")
         if isinstance(revision, int) and not isinstance(revision, bool):
             revision = str(revision)  # revision = 2 is as clear as revision = "2"
+        if isinstance(revision, str) and len(revision) > MAX_REVISION:
+            raise CaseFileError(f"the revision is {len(revision)} characters long; at most {MAX_REVISION}",
+                                field="revision", value=revision[:40] + "...", fix='e.g. revision = "B"')
         if not is_file_name_part(revision):
             raise CaseFileError("the revision is text of letters, digits, '.', '_' and '-'",
                                 field="revision", value=_shown(revision), fix='e.g. revision = "B"')
@@ -415,6 +425,10 @@ def load_case(path):
                              ("site", '"../site.toml"')):
             if key in meta:
                 _text(meta[key], key, example)
+        if "prepared_by" in meta and not meta["prepared_by"].strip():
+            # A record is issued under its preparer's name: a blank one is no name.
+            raise CaseFileError("the preparer's name is empty", field="prepared_by", value=meta["prepared_by"],
+                                fix='give who prepared the calculation, e.g. prepared_by = "A. Engineer"')
         assumptions = _table(data.get("assumptions", {}), "assumptions")
         _unknown_keys(assumptions, ("notes",), "assumptions", path)
         notes = assumptions.get("notes", [])

@@ -39,6 +39,8 @@ WORK_FOLDER = ".steamcalc"
 #: Seconds a second writer of the same record waits before giving up.
 LOCK_TIMEOUT = 10.0
 _COMMIT_LIST = "COMMIT"
+#: The files of a record's set: its JSON and the reports beside it.
+_SET_SUFFIXES = (".json", ".html", ".md", ".pdf", ".ipynb")
 
 
 def os_error(exc, path, doing):
@@ -189,8 +191,34 @@ def recover(folder, stem):
     return done
 
 
+def _commit_names(staging, stem):
+    """The file names a staging folder's commit list holds, each checked to be one of this record's own files.
+
+    Recovery moves what the list names: a list edited or planted to name anything else (``../site.toml``, an
+    absolute path, another record, a link) would let it overwrite a file outside the set, so it is refused.
+    """
+    listing = staging / _COMMIT_LIST
+    refused = RecordError(
+        "the staging folder of an interrupted issue holds a commit list that names files other than this "
+        "record's own", source=str(listing),
+        fix=f"nothing was moved: check the folder {staging} and delete it, then run the command again")
+    try:
+        names = json.loads(listing.read_text(encoding="utf-8"))
+    except (OSError, ValueError, UnicodeDecodeError):
+        raise refused from None
+    allowed = {f"{stem}{suffix}" for suffix in _SET_SUFFIXES}
+    if not isinstance(names, list) or not names or not all(isinstance(n, str) and n in allowed for n in names):
+        raise refused
+    for name in names:
+        staged = staging / name
+        if staged.is_symlink() or (staged.exists() and not staged.is_file()):
+            raise refused
+    return names
+
+
 def _move_into_place(folder, staging):
-    names = json.loads((staging / _COMMIT_LIST).read_text(encoding="utf-8"))
+    stem = staging.name[:-len(".staged")]
+    names = _commit_names(staging, stem)
     for number, name in enumerate(names):
         staged = staging / name
         if staged.exists():

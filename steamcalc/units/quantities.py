@@ -310,6 +310,10 @@ _GLUED_KG = re.compile(r"\bkg(?=(?:K|degC|degF)\b)")
 _NAME = re.compile(r"[A-Za-z_°µ%][A-Za-z0-9_°µ]*")
 #: Names a unit library reads as something else than the trade means: C is the coulomb, F the farad.
 _MISREAD = {"C": ("a coulomb", "°C (or degC)"), "F": ("a farad", "°F (or degF)")}
+#: Names a unit library reads one way and engineers write meaning another.
+_AMBIGUOUS = {name: ("a US short ton (907.2 kg, 9.3 % below a tonne) to a unit library, where a steam engineer "
+                     "usually means a tonne", "t (the tonne)", "t")
+              for name in ("ton", "tons")}
 
 
 def unit_spelling(unit, field=None, text=None):
@@ -318,7 +322,7 @@ def unit_spelling(unit, field=None, text=None):
     Accepted: superscripts (``m³/h``, ``kW/(m²·K)``), glued exponents (``m3/h``, ``kW/m2K``),
     ``°C``/``℃``/``deg C`` for ``degC``, and a slash that divides by all that follows it
     (``W/m²K`` is W/(m²·K)). A bare ``C`` or ``F`` (the coulomb and the farad to pint) is refused
-    with a fix. Inside a compound unit a temperature unit is a difference (``kJ/(kg·°C)``).
+    with a fix, and so is ``ton`` (a US short ton to pint, where a steam engineer means a tonne). Inside a compound unit a temperature unit is a difference (``kJ/(kg·°C)``).
 
     Parameters
     ----------
@@ -355,6 +359,13 @@ def unit_spelling(unit, field=None, text=None):
     unit = _GLUED_KG.sub("kg*", unit).strip()
     names = _NAME.findall(unit)
     for name in names:
+        if name in _AMBIGUOUS:
+            what, fix, replacement = _AMBIGUOUS[name]
+            example = re.sub(rf'(?<![A-Za-z_]){name}(?![A-Za-z0-9_])', replacement, text) if text else ""
+            raise UnitError(f"'{name}' is ambiguous: it is {what}", field=field,
+                            value=text if text is not None else unit,
+                            fix=f"write {fix}" + (f", e.g. '{example}'" if example else "")
+                                + ", or short_ton or long_ton if that is what is meant")
         if name in _MISREAD:
             what, fix = _MISREAD[name]
             raise UnitError(f"'{name}' alone is {what} to a unit library, not a temperature unit", field=field,
