@@ -10,6 +10,7 @@ from __future__ import annotations
 import argparse
 import os
 import re
+import signal
 import sys
 from pathlib import Path
 
@@ -75,7 +76,13 @@ _HELP = {
         "check a record's digest and recompute its results",
         "Check each record: integrity (its digests), then reproduction - every result, check, status,\n"
         "caution and step recomputed from the record's own inputs and compared with what it states, and\n"
-        "its uncertainty bands recomputed - then its HTML and Markdown and its signatures.",
+        "its uncertainty bands recomputed - then its HTML and Markdown and its signatures.\n\n"
+        "Signatures are checked against one trusted signers list, which verify names: the folder given\n"
+        "with --trusted, else trusted_signers in your settings file (~/.config/steamcalc/settings.toml,\n"
+        "[signing] table), else trusted_signers/ of the site folder directly above the records folder.\n"
+        "A list in the records folder itself is never used. A signature must also keep the rules sign\n"
+        "keeps: checked before approved, two different keys and people, the preparer never the checker,\n"
+        "no signature on a failing record. A name typed into a record is not a signature.",
         ["steamcalc verify demo_site/records/LD-01_revA.json",
          "steamcalc verify demo_site/records --engine fast"],
         ["0  every record verified",
@@ -98,13 +105,14 @@ _HELP = {
         "Sign a record with your key after it verifies: the record is verified first (nothing it states is\n"
         "taken on trust) and only a record that verifies and has no failing check is signed. The signature\n"
         "goes into the JSON and shows in its HTML and Markdown. When the record's folder has a records\n"
-        "index (index.html, index.csv) the index is written again, so it shows the signature.",
+        "index (index.html, index.csv) the index is written again, so it shows the signature. A record is\n"
+        "signed with a key only: a name alone (--by without --key) is refused.",
         ['steamcalc keys new --name "C. Checker" --out ~/keys',
          "steamcalc sign demo_site/records/LD-01_revA.json --key ~/keys/c-checker.key",
          "steamcalc sign demo_site/records/LD-01_revA.json --key ~/keys/a-approver.key --role approved"],
         ["0  signed",
          "1  refused: the record does not verify, has a failing check or is already signed",
-         _BAD_INPUT + "; the key file or passphrase cannot be read"]),
+         _BAD_INPUT + "; the key file or passphrase cannot be read, or no key is given"]),
     "keys": (
         "signing keys: make a key pair for a checker or approver",
         "Make the signing keys of a checker or approver.",
@@ -177,8 +185,9 @@ def _parser():
     verify.add_argument("records", nargs="+", metavar="RECORD.json", help="record files, or folders of them")
     verify.add_argument("--repair", action="store_true",
                         help="re-render the HTML and Markdown beside a record that verifies, where they differ")
-    verify.add_argument("--trusted", metavar="DIR", help="trusted signers folder (default: trusted_signers/ beside "
-                        "the record's site.toml)")
+    verify.add_argument("--trusted", metavar="DIR", help="trusted signers folder (default: the one in your settings "
+                        "file, else trusted_signers/ of the site above the records folder; never one among the "
+                        "records)")
     verify.add_argument("--scheduler", metavar="ADDRESS", help="verify the records as tasks on the Dask scheduler "
                         "at ADDRESS (needs the cluster extra)")
     verify.add_argument("--engine", choices=("iapws", "fast"), default="iapws",
@@ -194,12 +203,13 @@ def _parser():
 
     sign = _command(sub, "sign")
     sign.add_argument("record", metavar="RECORD.json", help="the record to sign (its HTML and Markdown are re-rendered)")
-    sign.add_argument("--by", metavar="NAME", help="the signer's name (with --key: must be the key's name; "
-                      "alone: a sign-off without a key, which proves nothing about who signed)")
+    sign.add_argument("--by", metavar="NAME", help="the signer's name, checked against the key's name (a name "
+                      "alone, without --key, is refused: it proves nothing about who signed)")
     sign.add_argument("--key", metavar="KEYFILE", help="your private key file (*.key, from `steamcalc keys new`)")
     sign.add_argument("--role", choices=("checked", "approved"), default="checked", help="what the signature says")
     sign.add_argument("--passphrase-file", metavar="FILE", help="file holding the key's passphrase")
-    sign.add_argument("--trusted", metavar="DIR", help="trusted signers folder (default: beside the site.toml)")
+    sign.add_argument("--trusted", metavar="DIR", help="trusted signers folder (default: the one in your settings "
+                      "file, else trusted_signers/ of the site above the records folder; never one among the records)")
 
     keys = _command(sub, "keys")
     keys_sub = keys.add_subparsers(dest="keys_command", required=True, parser_class=_Parser)
@@ -213,6 +223,8 @@ def _parser():
     register.add_argument("folder", metavar="DIR", help="a site folder (with site.toml) or a records folder")
     register.add_argument("--html", metavar="FILE.html", help="also write the register as an HTML page")
     register.add_argument("--csv", metavar="FILE.csv", help="also write the register as CSV")
+    register.add_argument("--trusted", metavar="DIR", help="trusted signers folder (default: the one in your "
+                          "settings file, else the site's trusted_signers/; never one among the records)")
 
     site = _command(sub, "new-site")
     site.add_argument("folder", metavar="DIR", help="the new plant folder (must not exist yet)")
@@ -261,7 +273,7 @@ def _run(args):
             _say(f"error: {outcome.error}", file=sys.stderr)
         worst = EXIT_BAD_INPUT
     if stopped:
-        _say(f"\nstopped (Ctrl-C): {len(stopped)} of {len(outcomes)} case(s) did not run:", file=sys.stderr)
+        _say(f"\nstopped (Ctrl-C or a stop signal): {len(stopped)} of {len(outcomes)} case(s) did not run:", file=sys.stderr)
         for outcome in stopped:
             _say(f"  not run: {outcome.path}", file=sys.stderr)
         return EXIT_INTERRUPTED
@@ -342,8 +354,8 @@ def _verify(args):
             _say(f"  reproduction: {'reproduced' if outcome.reproduced else 'NOT REPRODUCED'}")
         for name, (then, now) in outcome.version_changes.items():
             _say(f"  version: {name} {then} in the record, {now} here")
-        trust_ok = _verify_trust(args, raw, record, outcome)
-        _say(f"  verdict: {'VERIFIED' if outcome.ok and trust_ok else 'FAILED'}")
+        trust_ok, signed = _verify_trust(args, raw, record, outcome)
+        _say(f"  verdict: {'VERIFIED' if outcome.ok and trust_ok else 'FAILED'} ({signed})")
         if not (outcome.ok and trust_ok) and worst != EXIT_BAD_INPUT:
             worst = EXIT_FAILED
     return worst
@@ -444,10 +456,10 @@ def _diff_cell(row, side):
 
 
 def _verify_trust(args, raw, record, outcome):
-    """Status, statements, companions and signatures of a verification; True when all hold."""
+    """Status, statements, companions and signatures of a verification: ``(all hold, signing state in words)``."""
     from .review.verify import check_companions
-    from .signing.keys import load_trusted, trusted_folder_for
-    from .signing.signatures import check_signatures, name_only_signoff
+    from .signing.signatures import NAME_TYPED, check_signatures, name_only_signoff
+    from .signing.trust import resolve_trust
 
     for change in outcome.statement_changes:
         _say(f"  statement changed: {change}")
@@ -462,30 +474,41 @@ def _verify_trust(args, raw, record, outcome):
         _say(f"  companion {c.path.name}: " + {"match": "matches the JSON", "absent": "absent",
               "repaired": "re-rendered from the JSON (repaired)",
               "differs": "DIFFERS from the JSON's rendering (edited by hand?)",
+              "typed-as-signed": "DIFFERS from the JSON's rendering: drawn by an earlier release, it shows the typed "
+                                 "name as a sign-off; steamcalc verify --repair draws it again as a name typed",
+              "not checked": "NOT CHECKED - it cannot be compared with the JSON (print or run it again from the "
+                             "verified record if you hand it on; only the JSON, HTML and Markdown are verified)",
               "older": "as this release draws it but for the charts release 0.2 drew (a schema-1 record keeps "
                        "no figure data, so they are not checked); kept as it is - re-issue the case under a new "
                        "revision for charts drawn from figure data"}[c.verdict])
-        ok = ok and c.verdict != "differs"
+        ok = ok and not c.differs
     if args.repair and not outcome.ok:
         _say("  repair: not done - the JSON itself does not verify, so it is not rendered again")
-    folder = args.trusted or trusted_folder_for(raw)
-    trusted = load_trusted(folder, required=bool(args.trusted))
-    signatures = check_signatures(record, trusted)
-    if signatures and not trusted:
-        _say(f"  trusted signers: none found ({folder or 'no site.toml above the record'}); give --trusted DIR "
-              "or add the signers' .pub files to the site's trusted_signers/")
+    trust = resolve_trust(Path(raw).parent, args.trusted)
+    status = outcome.recomputed_status or record.get("status")
+    signatures = check_signatures(record, trust.keys, status)
     legacy = name_only_signoff(record, outcome)
+    if signatures or legacy:
+        _say(f"  trusted signers: {trust.describe()}")
+    for note in trust.notes():
+        _say(f"  {note}")
     if legacy:
-        _say(f"  signature: {legacy[0]} - proves nothing about who signed")
+        _say(f"  signature: none - {legacy[0]} (a name anyone can type; it counts as not signed)")
         for problem in legacy[1]:
-            _say(f"  signature: the name-only sign-off does not hold: {problem}")
+            _say(f"  signature: the typed name's claims do not hold: {problem}")
         ok = ok and not legacy[1]
-    if not signatures and not legacy:
+    if not signatures:
         _say("  signatures: not signed")
     for check in signatures:
         _say(f"  signature: {check.describe()}")
         ok = ok and check.ok
-    return ok
+    if signatures and all(c.ok for c in signatures):
+        signed = "signed: " + ", ".join(f"{c.role} by {c.name}" for c in signatures) + ", trusted keys"
+    elif signatures:
+        signed = "a signature does not hold"
+    else:
+        signed = f"not signed; {NAME_TYPED}" if legacy else "not signed"
+    return ok, signed
 
 
 def _sign_with_key(args):
@@ -505,12 +528,12 @@ def _sign_with_key(args):
           f"{entry['date']}, key {short_fingerprint(entry['fingerprint'])}")
     _say(f"  {args.record}, with its HTML and Markdown")
     _refresh_index(args.record)
-    from .signing.keys import load_trusted, trusted_folder_for
+    from .signing.trust import resolve_trust
 
-    folder = args.trusted or trusted_folder_for(args.record)
-    if entry["fingerprint"] not in load_trusted(folder):
-        _say(f"  note: this key is not in {folder or 'a trusted signers folder (no site.toml found above the record)'}; "
-              "verify reports it as unknown until its .pub file is added there")
+    trust = resolve_trust(Path(args.record).parent, args.trusted)
+    if entry["fingerprint"] not in trust.keys:
+        _say(f"  note: this key is not in the trusted signers used here, {trust.describe()}; verify reports it as "
+              "unknown until its .pub file is added there")
     return EXIT_OK
 
 
@@ -528,7 +551,13 @@ def _keys(args):
 def _register(args):
     from .review.register import build_register, format_register, write_register_csv, write_register_html
 
-    rows = build_register(args.folder)
+    from .review.register import register_trust
+
+    trust = register_trust(args.folder, args.trusted)
+    rows = build_register(args.folder, trusted_dir=args.trusted)
+    _say(f"trusted signers: {trust.describe()}")
+    for note in trust.notes():
+        _say(note)
     _say(format_register(rows))
     for target, write in ((args.html, write_register_html), (args.csv, write_register_csv)):
         if target:
@@ -554,29 +583,15 @@ def _check_diff_target(args):
 
 
 def _sign(args):
-    from .records.record import load_record
-    from .review.signoff import sign_record
+    from .review.signoff import name_only_refused
 
     if args.key:
         return _sign_with_key(args)
-    if not args.by:
-        raise SteamcalcError("give --key KEYFILE (or, for a sign-off without a key, --by NAME)", field="--key",
-                             fix='make a key once with: steamcalc keys new --name "Your Name"')
-    from .signing.signatures import name_only_refusal
-    record = load_record(args.record)
-    if name_only_refusal(record):
-        _say(f"refused: {args.record}: {name_only_refusal(record)}", file=sys.stderr)
-        return EXIT_FAILED
-    try:
-        signed = sign_record(args.record, record, args.by)
-    except SteamcalcError as exc:
-        _say(f"refused: {exc}", file=sys.stderr)
-        return EXIT_FAILED if exc.field != "--by" else EXIT_BAD_INPUT
-    path = Path(args.record)
-    _say(f"{signed['id']} rev {signed['revision']}: signed by {signed['checked_by']} on {signed['signoff']['date']}")
-    _say(f"  {path} (new digest {signed['digest'][:23]}...), with its HTML and Markdown")
-    _refresh_index(path)
-    return EXIT_OK
+    if args.by:   # a typed name is not a signature: refused before the record is even read
+        raise name_only_refused(args.record, args.by)
+    raise SteamcalcError("give --key KEYFILE, your private key file", source=args.record, field="--key",
+                         fix='make a key pair once with: steamcalc keys new --name "Your Name"; then sign with '
+                             "--key pointing at its .key file")
 
 
 def _refresh_index(record_path):
@@ -604,9 +619,30 @@ _COMMANDS = {"run": _run, "verify": _verify, "diff": _diff, "sign": _sign, "new-
              "keys": _keys, "register": _register}
 
 
+def _stop(signum, frame):
+    raise KeyboardInterrupt(signal.Signals(signum).name)
+
+
+def _stopping_signals():
+    """SIGTERM and SIGHUP (a closed terminal, a service manager stopping the job) end a command as Ctrl-C does:
+    what finished is kept and reported, staging is cleaned up, nothing is left half-written. The handlers
+    before are returned, to be put back."""
+    before = {}
+    for name in ("SIGTERM", "SIGHUP"):
+        number = getattr(signal, name, None)
+        if number is None:
+            continue
+        try:
+            before[number] = signal.signal(number, _stop)
+        except ValueError:   # not the main thread (an embedding program): leave its signals alone
+            pass
+    return before
+
+
 def main(argv=None):
     """Run the command line; return the exit code."""
     args = _parser().parse_args(argv)
+    before = _stopping_signals()
     try:
         return _COMMANDS[args.command](args)
     except SteamcalcError as exc:
@@ -628,6 +664,9 @@ def main(argv=None):
         _say(f"internal error: {type(exc).__name__}: {exc}. Please report it; set STEAMCALC_DEBUG=1 "
               "for the full trace.", file=sys.stderr)
         return EXIT_BAD_INPUT
+    finally:
+        for number, handler in before.items():
+            signal.signal(number, handler)
 
 
 def entry_point():

@@ -31,6 +31,7 @@ sys.path.insert(0, str(ROOT))
 from steamcalc.cli import main  # noqa: E402
 from steamcalc.records.record import load_record  # noqa: E402
 from steamcalc.render.report import RENDERERS  # noqa: E402
+from steamcalc.signing.signatures import RULES  # noqa: E402
 
 DEMO = ROOT / "workbooks" / "demo_site"
 RESULTS = OrderedDict()
@@ -93,9 +94,23 @@ def set_ok(out, stem):
     if ".json" not in files:
         return not files
     record = load_record(files[".json"])
-    if not record.get("checked_by"):
-        return all("Checked and signed" not in files[s].read_text() for s in files if s != ".json")
+    if not record.get("signatures"):
+        return all("Signed as checked" not in files[s].read_text() for s in files if s != ".json")
     return True
+
+
+def signing_keys(base):
+    """Key pairs made once per campaign (a record is signed with a key; a name alone is refused), and a
+    trusted signers folder holding their public keys."""
+    folder, trusted = base / "keys", base / "trusted"
+    if not trusted.is_dir():
+        for name in ("C. Checker", "D. Approver", "A. Engineer", "A. One", "B. Two"):
+            code, _, err, _ = cli(["keys", "new", "--name", name, "--out", folder])
+            assert code == 0, err
+        trusted.mkdir()
+        for pub in folder.glob("*.pub"):
+            shutil.copy(pub, trusted)
+    return {p.stem: p for p in folder.glob("*.key")}, trusted
 
 
 def complete(out, stem):
@@ -128,16 +143,17 @@ def kills(base, rng):
         ok = set_ok(out, "LD-02_revA")
         code2, _, _, _ = cli(["run", case, "--out", out])
         tally("kill -9 of run", ok and code2 == 0 and complete(out, "LD-02_revA"), f"attempt {n}")
+    keys, _ = signing_keys(base)
     for n in range(20):
         out = base / f"kill-sign-{n}"
         cli(["run", case, "--out", out])
         env = {"STEAMCALC_TEST_KILL_AT": POINTS[n % len(POINTS)]} if n < 14 else {}
-        cli(["sign", out / "LD-02_revA.json", "--by", "C. Checker"], env=env,
+        cli(["sign", out / "LD-02_revA.json", "--key", keys["c-checker"]], env=env,
             kill_after=None if env else rng.uniform(0, 1.5 * seconds))
         ok = set_ok(out, "LD-02_revA")
         code2, _, _, _ = cli(["run", case, "--out", out])   # the next writer finishes or undoes it
         record = load_record(out / "LD-02_revA.json")
-        signed_right = not record.get("checked_by") or "Checked and signed" in (out / "LD-02_revA.html").read_text()
+        signed_right = not record.get("signatures") or "Signed as checked" in (out / "LD-02_revA.html").read_text()
         tally("kill -9 of sign", ok and code2 == 0 and complete(out, "LD-02_revA") and signed_right, f"attempt {n}")
 
 
@@ -145,12 +161,14 @@ def disk_full(base):
     """ENOSPC from os.write once an allowance is spent (run and sign), in the child only."""
     site = fresh_site(base)
     case = site / "cases" / "LD-02.toml"
+    keys, _ = signing_keys(base)
     for n, allowance in enumerate([0, 2000, 8000, 20000, 40000, 0, 5000, 30000]):
         out = base / f"full-{n}"
         if n >= 5:
             cli(["run", case, "--out", out])
             before = {p.name: p.read_bytes() for p in out.glob("LD-02*")}
-        pid_args = (["sign", out / "LD-02_revA.json", "--by", "C. Checker"] if n >= 5 else ["run", case, "--out", out])
+        pid_args = (["sign", out / "LD-02_revA.json", "--key", keys["c-checker"]] if n >= 5
+                    else ["run", case, "--out", out])
         code, _, err = _with_full_disk(pid_args, allowance, base)
         ok = code in (1, 2) and "No space left on device" in err and "internal error" not in err
         ok = ok and set_ok(out, "LD-02_revA") and not list(out.glob(".*.part"))
@@ -195,14 +213,17 @@ def races(base):
         written = sum(1 for code, text in results if code in (0, 1) and "written" in text and "unchanged" not in text)
         refused = sum(1 for code, text in results if code == 2 and "already exists with different content" in text)
         tally("races: two runs, one id", written == 1 and refused == 1 and complete(out, "LD-02_revA"), f"pair {n}")
+    keys, trusted = signing_keys(base)
     for n in range(6):
         out = base / f"signrace-{n}"
         cli(["run", case, "--out", out])
         path = out / "LD-02_revA.json"
-        results = _pair(["sign", path, "--by", "A. One"], ["sign", path, "--by", "B. Two"])
+        results = _pair(["sign", path, "--key", keys["a-one"], "--trusted", trusted],
+                        ["sign", path, "--key", keys["b-two"], "--trusted", trusted])
         signed = [text for code, text in results if code == 0]
         record = load_record(path)
-        ok = len(signed) == 1 and record["checked_by"] in signed[0] and complete(out, "LD-02_revA")
+        ok = len(signed) == 1 and len(record["signatures"]) == 1 and record["signatures"][0]["name"] in signed[0] \
+            and complete(out, "LD-02_revA")
         tally("races: two sign-offs", ok, f"pair {n}")
 
 
@@ -481,11 +502,162 @@ def permissions(base):
     for name in ("LD-02_revA.json", "LD-02_revA.html", "LD-02_revA.md", "index.html", "index.csv"):
         tally("permissions", (out / name).stat().st_mode & 0o777 == 0o644, name)
     tally("permissions", out.stat().st_mode & 0o777 == 0o755, "records folder")
-    cli(["sign", out / "LD-02_revA.json", "--by", "C. Checker"], umask=0o022)
+    cli(["sign", out / "LD-02_revA.json", "--key", signing_keys(base)[0]["c-checker"]], umask=0o022)
     tally("permissions", (out / "LD-02_revA.json").stat().st_mode & 0o777 == 0o644, "signed record")
     cli(["new-site", base / "plant2", "--from", site], umask=0o022)
     tally("permissions", (base / "plant2").stat().st_mode & 0o777 == 0o755, "new site folder")
     tally("permissions", (base / "plant2" / "site.toml").stat().st_mode & 0o777 == 0o644, "new site file")
+
+
+# -- forgery: trust lists, typed names, the signing rules, edited records, duplicate keys, PDFs -----------
+
+def _forge(path, mutate):
+    """Edit a record as a forger would: recompute both public digests and re-render its reports."""
+    from steamcalc.records.record import compute_content_digest, compute_digest, record_text
+    record = json.loads(path.read_text())
+    mutate(record)
+    record["content_digest"] = compute_content_digest(record)
+    record["digest"] = compute_digest(record)
+    path.write_text(record_text(record))
+    for suffix, render in RENDERERS.items():
+        path.with_suffix(suffix).write_text(render(record))
+
+
+def _plant(folder, public_key):
+    (folder / "site.toml").write_text("")
+    (folder / "trusted_signers").mkdir(exist_ok=True)
+    shutil.copy(public_key, folder / "trusted_signers" / "c-checker.pub")
+
+
+def _library_sign(path, key_file, role, now):
+    """A signature made through the library, skipping every refusal of `sign`."""
+    from steamcalc.review.sign import write_signed
+    from steamcalc.review.verify import verify_record
+    from steamcalc.signing.keys import load_private_key
+    from steamcalc.signing.signatures import add_signature, verification_summary
+    record = load_record(path)
+    key, name = load_private_key(key_file)
+    write_signed(path, add_signature(record, key, name, role, verification_summary(verify_record(record)), now))
+
+
+def _signed_site(base, keys, failing=False):
+    """A site with LD-02 issued (or a failing copy) and the campaign's keys trusted by it."""
+    site = fresh_site(base)
+    case = site / "cases" / "LD-02.toml"
+    if failing:
+        case.write_text(case.read_text().replace('rated_kv = "32 m^3/h"', 'rated_kv = "5 m^3/h"'))
+    cli(["run", case])
+    for stem in ("c-checker", "d-approver", "a-engineer"):
+        shutil.copy(keys[stem].with_suffix(".pub"), site / "trusted_signers")
+    return site / "records" / "LD-02_revA.json"
+
+
+def forgery(base):
+    keys, _ = signing_keys(base)
+    attacker_dir = base / "attacker"
+    if not attacker_dir.exists():   # the attacker's own key pair, made under the checker's name
+        cli(["keys", "new", "--name", "C. Checker", "--out", attacker_dir])
+        cli(["keys", "new", "--name", "C. Checker", "--out", attacker_dir / "second"])
+    attacker = attacker_dir / "c-checker.key"
+    saved = {k: os.environ.pop(k, None) for k in ("STEAMCALC_SETTINGS", "XDG_CONFIG_HOME")}
+    os.environ["XDG_CONFIG_HOME"] = str(base / "no-config")   # no user settings take part
+    try:
+        _forgery_attempts(base, keys, attacker)
+    finally:
+        for k, v in saved.items():
+            os.environ.pop(k, None)
+            if v is not None:
+                os.environ[k] = v
+
+
+def _not_trusted(code, out):
+    return code == 1 and "valid, trusted" not in out and "verdict: FAILED" in out
+
+
+def _forgery_attempts(base, keys, attacker):
+    # 1. A trust list planted beside the records, and deeper in them.
+    for layout in ("", "sub", "a/records", "a/b"):
+        path = _signed_site(base, keys)
+        cli(["sign", path, "--key", attacker])
+        target = path.parent / layout
+        if layout:
+            target.mkdir(parents=True)
+            for file in path.parent.glob("LD-02_revA.*"):
+                shutil.copy(file, target / file.name)
+            _plant(target.parent, attacker.with_suffix(".pub"))
+        _plant(target, attacker.with_suffix(".pub"))
+        code, out, err, _ = cli(["verify", target / "LD-02_revA.json"])
+        tally("forgery", _not_trusted(code, out) and "trusted signers: " in out,
+              f"planted trust list, records/{layout}: exit {code}")
+        code, out, err, _ = cli(["register", target])
+        tally("forgery", code == 1 and "unknown key" in out and "trusted signers: " in out,
+              f"register with a planted trust list, records/{layout}: exit {code}")
+    # 2. Name-only sign-offs: refused; an existing one is a typed name, never green, not signed.
+    path = _signed_site(base, keys)
+    before = {p.name: p.read_bytes() for p in path.parent.glob("LD-02_revA.*")}
+    code, out, err, _ = cli(["sign", path, "--by", "C. Checker"])
+    tally("forgery", clean_refusal(code, err, str(path), "--by", "--key") and
+          before == {p.name: p.read_bytes() for p in path.parent.glob("LD-02_revA.*")}, "sign --by NAME, no key")
+    _forge(path, lambda r: r.update(checked_by="Chief Engineer", signoff={
+        "by": "Chief Engineer", "date": "2099-01-01T00:00:00Z", "verification": {"integrity": "intact",
+                                                                                  "results_reproduced": "999 of 999",
+                                                                                  "version_changes": {}}}))
+    code, out, err, _ = cli(["verify", path])
+    page = path.with_suffix(".html").read_text()
+    tally("forgery", code == 1 and "name typed, not a signature" in out and "Checked and signed" not in page
+          and "not signed" in out, "a typed name with recomputed digests")
+    code, out, err, _ = cli(["register", path.parent])
+    tally("forgery", "not signed; name typed" in out, "a typed name in the register")
+    # 3. The rules sign keeps, broken through the library: verify fails and names the rule.
+    chains = [
+        ("approved without checked", False, [("d-approver", "approved", "2026-01-02")], "order"),
+        ("approved before checked", False, [("d-approver", "approved", "2026-01-01"),
+                                            ("c-checker", "checked", "2026-01-02")], "order"),
+        ("one key for both roles", False, [("c-checker", "checked", "2026-01-01"),
+                                           ("c-checker", "approved", "2026-01-02")], "keys"),
+        ("one person, two keys", False, [("c-checker", "checked", "2026-01-01"), ("second", "approved", "2026-01-02")],
+         "people"),
+        ("the preparer checks", False, [("a-engineer", "checked", "2026-01-01")], "preparer"),
+        ("a failing record signed", True, [("c-checker", "checked", "2026-01-01")], "failing"),
+    ]
+    for what, failing, chain, rule in chains:
+        path = _signed_site(base, keys, failing)
+        shutil.copy(attacker.parent / "second" / "c-checker.pub", path.parent.parent / "trusted_signers" / "second.pub")
+        for stem, role, day in chain:
+            key_file = attacker.parent / "second" / "c-checker.key" if stem == "second" else keys[stem]
+            _library_sign(path, key_file, role, f"{day}T00:00:00Z")
+        code, out, err, _ = cli(["verify", path])
+        tally("forgery", code == 1 and f"rule broken: {RULES[rule]}" in out, f"rule: {what}")
+    # 4. run against an edited record: refused, the file named, nothing drawn again from it.
+    for how in ("both digests", "public digest", "created, no digest"):
+        path = _signed_site(base, keys)
+        record = json.loads(path.read_text())
+        if how == "created, no digest":
+            record["created"] = "2020-01-01T00:00:00Z"
+        else:
+            record["status"] = "pass"
+            record["results"][next(iter(record["results"]))]["value"] = 13910.0
+            if how == "both digests":
+                from steamcalc.records.record import compute_content_digest
+                record["content_digest"] = compute_content_digest(record)
+            from steamcalc.records.record import compute_digest
+            record["digest"] = compute_digest(record)
+        path.write_text(json.dumps(record, indent=2))
+        path.with_suffix(".html").unlink()
+        code, out, err, _ = cli(["run", path.parent.parent / "cases" / "LD-02.toml"])
+        tally("forgery", clean_refusal(code, err, str(path)) and "unchanged" not in out
+              and not path.with_suffix(".html").exists(), f"run over an edited record ({how})")
+    # 6. Duplicate keys; a PDF beside the record.
+    for key, old, new in (("status", '"status": "warn",', '"status": "warn",\n  "status": "pass",'),
+                          ("unit", '"unit": ', '"unit": "kg/h",\n      "unit": ')):
+        path = _signed_site(base, keys)
+        path.write_text(path.read_text().replace(old, new, 1))
+        code, out, err, _ = cli(["verify", path])
+        tally("forgery", clean_refusal(code, err, str(path), f"'{key}' appears twice"), f"duplicate key {key!r}")
+    path = _signed_site(base, keys)
+    path.with_suffix(".pdf").write_bytes(b"%PDF-1.4 edited\n")
+    code, out, err, _ = cli(["verify", path])
+    tally("forgery", code == 0 and "LD-02_revA.pdf: NOT CHECKED" in out, "a PDF beside the record")
 
 
 def _warm_up(base):
@@ -506,7 +678,7 @@ def main_campaign():
     base = Path(tempfile.mkdtemp(prefix="steamcalc-campaign-"))
     _warm_up(base)
     started = time.monotonic()
-    for step in (kills, disk_full, races, overwrites, batch, hangs, silent, injection, unclear, permissions):
+    for step in (kills, disk_full, races, overwrites, batch, hangs, silent, injection, unclear, permissions, forgery):
         t = time.monotonic()
         (step(base, rng) if step is kills else step(base))
         print(f"# {step.__name__}: {time.monotonic() - t:.0f} s", file=sys.stderr)

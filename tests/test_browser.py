@@ -82,9 +82,15 @@ def test_review_workbook_in_browser(lab, browser):
         f"document.querySelector('{PANEL} .steamcalc-review-table') && "
         f"document.querySelector('{PANEL} .steamcalc-review-table').innerText.includes('VERIFIED')", timeout=120_000)
     page.screenshot(path=str(shots / "1-after-run-all.png"), full_page=True)
-    name = page.locator(f"{PANEL} .widget-text input").last
-    name.fill("C. Checker")
-    name.press("Enter")
+    # A record is signed with a key (a name alone is not offered): a key pair made for the test.
+    import tempfile
+    from pathlib import Path
+    from steamcalc.cli import main
+    keys = Path(tempfile.mkdtemp(prefix="steamcalc-browser-keys-"))
+    assert main(["keys", "new", "--name", "C. Checker", "--out", str(keys)]) == 0
+    key_file = page.get_by_placeholder("path to your private key file (.key)").last
+    key_file.fill(str(keys / "c-checker.key"))
+    key_file.press("Enter")
     page.get_by_role("button", name="Sign as checked").click()
     page.wait_for_function(
         f"document.querySelector('{PANEL} .steamcalc-sign-status').innerText.includes('signed by C. Checker')",
@@ -94,5 +100,5 @@ def test_review_workbook_in_browser(lab, browser):
     assert "Error displaying widget" not in body and "Traceback" not in body
     import json
     record = json.loads((root / "workbooks" / "demo_site" / "records" / "LD-01_revA.json").read_text())
-    assert record["checked_by"] == "C. Checker"
+    assert [s["name"] for s in record["signatures"]] == ["C. Checker"]
     page.close()

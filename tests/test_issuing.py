@@ -24,11 +24,11 @@ from steamcalc.records.issuing import WORK_FOLDER, record_lock, recover
 from steamcalc.records.record import load_record, write_record
 from steamcalc.render.report import RENDERERS
 from steamcalc.review.verify import verify_record
-from steamcalc.review.signoff import sign_record
+from steamcalc.review.sign import sign_with_key
 
 DEMO = Path(__file__).resolve().parent.parent / "workbooks" / "demo_site"
 FORK = multiprocessing.get_context("fork")
-SIGNED_MARK = "Checked and signed"
+SIGNED_MARK = "Signed as checked"
 
 
 @pytest.fixture
@@ -57,7 +57,7 @@ def assert_set_invariant(out, stem):
     for suffix, render in RENDERERS.items():
         if suffix in files:
             text = files[suffix].read_text(encoding="utf-8")
-            if not record.get("checked_by"):
+            if not record.get("signatures"):
                 assert SIGNED_MARK not in text, f"{suffix} says signed beside an unsigned JSON"
     return record
 
@@ -77,6 +77,16 @@ def _child(env, argv):
     os.environ.update(env)
     sys.stdout = sys.stderr = open(os.devnull, "w")
     os._exit(main([str(a) for a in argv]))
+
+
+def _key(folder, name="C. Checker"):
+    """A signing key pair made in ``folder``; the private key file's path."""
+    assert main(["keys", "new", "--name", name, "--out", str(folder)]) == 0
+    return Path(folder) / (re.sub(r"[^A-Za-z0-9]+", "-", name).strip("-").lower() + ".key")
+
+
+def _signers_of(record):
+    return [s["name"] for s in record.get("signatures") or []]
 
 
 def _forked(argv, env=None):
@@ -104,19 +114,20 @@ def test_kill_during_sign_never_shows_a_signature_the_json_lacks(site, tmp_path,
     case, out = site / "cases" / "LD-02.toml", tmp_path / "out"
     assert _run("run", case, "--out", out) == 0
     path = out / "LD-02_revA.json"
-    process = _forked(["sign", path, "--by", "C. Checker"], {"STEAMCALC_TEST_KILL_AT": point})
+    key = _key(tmp_path / "keys")
+    process = _forked(["sign", path, "--key", key], {"STEAMCALC_TEST_KILL_AT": point})
     process.join(30)
     assert process.exitcode == -signal.SIGKILL
     before = assert_set_invariant(out, "LD-02_revA")
     with record_lock(out, "LD-02_revA"):
         recover(out, "LD-02_revA")   # what the next run, save or sign-off does first
     after = assert_complete_set(out, "LD-02_revA")
-    assert after["checked_by"] == (None if point.startswith("staged") else "C. Checker")
-    assert before["checked_by"] == after["checked_by"] or point == "listed"
-    if after["checked_by"]:
+    assert _signers_of(after) == ([] if point.startswith("staged") else ["C. Checker"])
+    assert _signers_of(before) == _signers_of(after) or point == "listed"
+    if _signers_of(after):
         assert SIGNED_MARK in (out / "LD-02_revA.html").read_text()
     else:
-        assert _run("sign", path, "--by", "C. Checker") == 0
+        assert _run("sign", path, "--key", key) == 0
 
 
 def test_kills_at_random_instants(site, tmp_path):
@@ -171,11 +182,10 @@ def test_two_concurrent_runs_of_different_content(site, tmp_path):
         assert record["inputs"]["mass_flow"]["given"] == f"{winner} t/h"
 
 
-def _signer(barrier, results, path, name):
-    record = load_record(path)
+def _signer(barrier, results, path, name, key, trusted):
     barrier.wait()
     try:
-        sign_record(path, record, name)
+        sign_with_key(path, key, trusted_dir=trusted)
         results.put((name, "signed"))
     except RecordError as exc:
         results.put((name, f"refused: {exc}"))
@@ -186,7 +196,12 @@ def test_two_concurrent_signoffs_one_wins_none_lost(site, tmp_path):
     assert _run("run", case, "--out", out) == 0
     path = out / "LD-02_revA.json"
     barrier, results = FORK.Barrier(2), FORK.Queue()
-    signers = [FORK.Process(target=_signer, args=(barrier, results, path, name)) for name in ("A. One", "B. Two")]
+    keys = {name: _key(tmp_path / "keys", name) for name in ("A. One", "B. Two")}
+    trusted = tmp_path / "trusted"
+    trusted.mkdir()
+    for key in keys.values():
+        shutil.copy(key.with_suffix(".pub"), trusted)
+    signers = [FORK.Process(target=_signer, args=(barrier, results, path, name, keys[name], trusted)) for name in keys]
     for s in signers:
         s.start()
     outcomes = dict(results.get(timeout=60) for _ in signers)
@@ -195,9 +210,9 @@ def test_two_concurrent_signoffs_one_wins_none_lost(site, tmp_path):
     winners = [n for n, s in outcomes.items() if s == "signed"]
     assert len(winners) == 1, outcomes
     loser = next(s for s in outcomes.values() if s != "signed")
-    assert "already signed by" in loser
+    assert "already signed as checked" in loser
     record = assert_complete_set(out, "LD-02_revA")
-    assert record["checked_by"] == winners[0]
+    assert _signers_of(record) == winners
 
 
 def test_second_writer_waits_then_fails_clearly(site, tmp_path, capsys, monkeypatch):
@@ -272,9 +287,10 @@ def test_disk_full_during_sign_and_index_keeps_the_old_files(site, tmp_path, cap
     out = tmp_path / "out"
     cases = [site / "cases" / "LD-02.toml", site / "cases" / "FL-01.toml"]
     assert _run("run", *cases, "--out", out) == 0
+    key = _key(tmp_path / "keys")
     before = _snapshot(out)
     full_disk["allowance"] = 20000
-    assert _run("sign", out / "LD-02_revA.json", "--by", "C. Checker") == 1
+    assert _run("sign", out / "LD-02_revA.json", "--key", key) == 1
     assert "No space left on device" in capsys.readouterr().err
     full_disk["allowance"] = 0
     assert _run("run", *cases, "--out", out) == 2   # records unchanged; the index cannot be rewritten
@@ -418,7 +434,7 @@ def test_permissions_follow_the_umask(site, tmp_path, umask, file_mode, dir_mode
     try:
         out = tmp_path / "out"
         assert _run("run", site / "cases" / "LD-02.toml", site / "cases" / "FL-01.toml", "--out", out) == 0
-        assert _run("sign", out / "LD-02_revA.json", "--by", "C. Checker") == 0
+        assert _run("sign", out / "LD-02_revA.json", "--key", _key(tmp_path / "keys")) == 0
         for name in ("LD-02_revA.json", "LD-02_revA.html", "LD-02_revA.md", "index.html", "index.csv"):
             assert (out / name).stat().st_mode & 0o777 == file_mode, name
         assert out.stat().st_mode & 0o777 == dir_mode

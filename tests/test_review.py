@@ -46,43 +46,52 @@ def test_diff_of_two_revisions(site, capsys, tmp_path):
     assert "mass_flow" in page.read_text()
 
 
-def test_sign_then_refuse_reissue(site, capsys):
+def _key(tmp_path, name="C. Checker"):
+    """A private key file (a record is signed with a key; a name alone is refused)."""
+    assert main(["keys", "new", "--name", name, "--out", str(tmp_path / "keys")]) == 0
+    return str(tmp_path / "keys" / (name.replace(". ", "-").replace(" ", "-").lower() + ".key"))
+
+
+def test_sign_then_refuse_reissue(site, capsys, tmp_path):
     case = site / "cases" / "LD-02.toml"
     main(["run", str(case)])
     record_path = site / "records" / "LD-02_revA.json"
-    assert main(["sign", str(record_path), "--by", "C. Checker"]) == 0
+    key = _key(tmp_path)
+    shutil.copy(key.replace(".key", ".pub"), site / "trusted_signers")
+    assert main(["sign", str(record_path), "--key", key]) == 0
     signed = load_record(record_path)
-    assert signed["checked_by"] == "C. Checker" and signed["signoff"]["verification"]["integrity"] == "intact"
-    assert "Checked and signed" in (site / "records" / "LD-02_revA.html").read_text()
+    assert signed["signatures"][0]["name"] == "C. Checker"
+    assert signed["signatures"][0]["verification"]["integrity"] == "intact"
+    assert "Signed as checked" in (site / "records" / "LD-02_revA.html").read_text()
     assert main(["verify", str(record_path)]) == 0
     # Same content again: the signed record is kept as it is.
     assert main(["run", str(case)]) == 0
-    assert load_record(record_path)["checked_by"] == "C. Checker"
+    assert load_record(record_path)["signatures"] == signed["signatures"]
     # Different content under the same revision: refused, the signed record untouched.
     case.write_text(case.read_text().replace('"2.0 t/h"', '"2.2 t/h"'))
     assert main(["run", str(case)]) == 2
     assert load_record(record_path)["digest"] == signed["digest"]
-    assert main(["sign", str(record_path), "--by", "Someone Else"]) == 1
+    assert main(["sign", str(record_path), "--key", _key(tmp_path, "Someone Else")]) == 1
     assert "already signed" in capsys.readouterr().err
 
 
-def test_sign_refused_on_an_edited_record(site, capsys):
+def test_sign_refused_on_an_edited_record(site, capsys, tmp_path):
     main(["run", str(site / "cases" / "LD-02.toml")])
     path = site / "records" / "LD-02_revA.json"
     record = json.loads(path.read_text())
     record["results"]["outlet_temperature"]["value"] += 5.0
     path.write_text(json.dumps(record))
-    assert main(["sign", str(path), "--by", "C. Checker"]) == 1
-    assert "does not verify" in capsys.readouterr().err
-    assert json.loads(path.read_text())["checked_by"] is None
+    assert main(["sign", str(path), "--key", _key(tmp_path)]) == 1
+    assert "digest does not match" in capsys.readouterr().err
+    assert not json.loads(path.read_text()).get("signatures")
 
 
-def test_sign_refused_on_a_failing_record(site, capsys):
+def test_sign_refused_on_a_failing_record(site, capsys, tmp_path):
     case = site / "cases" / "LD-02.toml"
     case.write_text(case.read_text().replace('rated_kv = "32 m^3/h"', 'rated_kv = "5 m^3/h"'))
     assert main(["run", str(case)]) == 1
-    assert main(["sign", str(site / "records" / "LD-02_revA.json"), "--by", "C. Checker"]) == 1
-    assert "failing checks" in capsys.readouterr().err
+    assert main(["sign", str(site / "records" / "LD-02_revA.json"), "--key", _key(tmp_path)]) == 1
+    assert "recomputed status is FAIL" in capsys.readouterr().err
 
 
 def test_batch_keeps_going_past_a_broken_case(site, capsys):

@@ -12,6 +12,7 @@ import pytest
 from steamcalc.cli import main
 from steamcalc.records.record import compute_content_digest, compute_digest, load_record, record_text
 from steamcalc.render.report import RENDERERS
+from steamcalc.review.verify import verify_record
 
 
 def _run(argv, capsys):
@@ -161,8 +162,8 @@ def test_forged_content_with_recomputed_digests(site, keys, capsys, what, name, 
     code, text = _run(["sign", path, "--key", keys / "c-checker.key"], capsys)
     assert code == 1 and "refused" in text, text
     assert _snapshot(path) == before
-    # The name-only path refuses it too.
-    assert main(["sign", str(path), "--by", "C. Checker"]) == 1
+    # A name alone is refused before the record is even read (exit 2: not a way of signing).
+    assert main(["sign", str(path), "--by", "C. Checker"]) == 2
     assert _snapshot(path) == before
 
 
@@ -205,7 +206,7 @@ def test_a_forged_name_only_signoff(site, keys, capsys):
         "verification": {"integrity": "intact", "results_reproduced": "999 of 999", "checks_reproduced": True,
                          "version_changes": {}}}))
     code, text = _run(["verify", path], capsys)
-    assert code == 1 and "claims 999 of 999" in text and "signed without a key (name only)" in text
+    assert code == 1 and "claims 999 of 999" in text and "name typed, not a signature: Chief Engineer" in text
     code, text = _run(["sign", path, "--key", keys / "c-checker.key"], capsys)
     assert code == 1 and "raised revision" in text
 
@@ -235,11 +236,24 @@ def test_repair_refused_for_a_record_that_does_not_verify(site, capsys):
 
 # -- migration ------------------------------------------------------------------------------------
 
-def test_name_only_signoff_still_verifies_and_is_said_to_be_name_only(site, keys, capsys):
+def _typed_name(record, name="C. Checker", results="7 of 7"):
+    """A sign-off by name as release 0.1 wrote it: checked_by and a signoff block (no key)."""
+    record.update(checked_by=name, signoff={
+        "by": name, "date": "2099-01-01T00:00:00Z",
+        "verification": {"integrity": "intact", "results_reproduced": results, "checks_reproduced": True,
+                         "version_changes": {}}})
+
+
+def test_a_typed_name_verifies_as_not_signed_and_is_never_shown_as_signed(site, keys, capsys):
     path = site / "records" / "LD-02_revA.json"
-    assert main(["sign", str(path), "--by", "C. Checker"]) == 0
+    comparisons = len(verify_record(load_record(path)).comparisons)
+    _forge(path, lambda r: _typed_name(r, results=f"{comparisons} of {comparisons}"))
     code, text = _run(["verify", path], capsys)
-    assert code == 0 and "signed without a key (name only): C. Checker" in text
+    assert "signature: none - name typed, not a signature: C. Checker" in text, text
+    assert "signatures: not signed" in text and "verdict: VERIFIED (not signed; name typed, not a signature)" in text
+    page = path.with_suffix(".html").read_text()
+    assert "Checked and signed" not in page and 'class="nametyped"' in page and "Name typed, not a signature" in page
+    assert "not signed (C. Checker: a name typed, not a signature)" in page
     code, text = _run(["sign", path, "--key", keys / "c-checker.key"], capsys)
     assert code == 1 and "raised revision" in text
     case = site / "cases" / "LD-02.toml"
@@ -366,7 +380,7 @@ def test_a_name_only_signoff_never_goes_over_keyed_signatures(site, keys, capsys
     assert main(["sign", str(path), "--key", str(keys / "c-checker.key")]) == 0
     before = _snapshot(path)
     code, text = _run(["sign", path, "--by", "D. Approver"], capsys)
-    assert code == 1 and "signatures made with keys" in text and _snapshot(path) == before
+    assert code == 2 and "by name alone is not issued" in text and "--key" in text and _snapshot(path) == before
     assert _run(["verify", path], capsys)[0] == 0
 
 

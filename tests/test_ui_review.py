@@ -77,10 +77,10 @@ def test_a_failed_verdict_is_styled_as_a_failure(records):
     assert "class='steamcalc-verdict-verified'" in _summary_html("verdict: VERIFIED")
 
 
-def test_signing_without_a_name_says_what_to_do_in_the_workbook(records):
+def test_signing_without_a_key_says_what_to_do_in_the_workbook(records):
     book = ReviewBook(records / "LD-02_revA.json")
     book._on_sign()
-    assert "type your name in the Checker box" in book._sign_status.value and "--by" not in book._sign_status.value
+    assert "in the Key file box" in book._sign_status.value and "--key" not in book._sign_status.value
 
 
 @pytest.mark.parametrize("earlier, later", [("A", "B"), ("Z", "AA"), ("2", "10"), ("P1", "P2"), ("a", "B")])
@@ -98,7 +98,8 @@ def test_signing_in_the_workbook_refreshes_the_folders_index(tmp_path):
     index = site / "records" / "index.csv"
     ld02 = next(line for line in index.read_text().splitlines() if "LD-02" in line)
     assert "C. Checker" not in ld02
-    said = ReviewBook(site / "records" / "LD-02_revA.json").sign("C. Checker")
-    assert said.startswith("signed by C. Checker") and "index" in said
+    assert main(["keys", "new", "--name", "C. Checker", "--out", str(tmp_path / "keys")]) == 0
+    said = ReviewBook(site / "records" / "LD-02_revA.json").sign("C. Checker", key_file=tmp_path / "keys" / "c-checker.key")
+    assert said.startswith("checked, signed by C. Checker") and "index" in said
     ld02 = next(line for line in index.read_text().splitlines() if "LD-02" in line)
     assert "C. Checker" in ld02

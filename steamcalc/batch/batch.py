@@ -203,6 +203,20 @@ def refresh_index(folder):
     return f"index refreshed: {html_index} and {csv_index}"
 
 
+def _checked_by(record):
+    """Who checked, as the index shows it: a checker's key signature by its name, a name typed into the record
+    (release 0.1's sign-off) marked as not a signature, so the index never reads as signed when it is not.
+    Whether a key is trusted is verify's and the register's to say."""
+    from ..signing.signatures import NAME_TYPED
+
+    names = [e.get("name") or "?" for e in record.get("signatures") or []
+             if isinstance(e, dict) and e.get("role") == "checked"]
+    if names:
+        return "; ".join(f"{name} (key signature)" for name in names)
+    typed = record.get("checked_by")
+    return f"{typed} ({NAME_TYPED})" if typed else ""
+
+
 def _write_index(folder, failures, force, keep_failures):
     from ..errors import RecordConflictError
     from ..records.issuing import is_own_output
@@ -219,7 +233,7 @@ def _write_index(folder, failures, force, keep_failures):
         html_file = path.with_suffix(".html")
         rows.append({"id": record["id"], "revision": record["revision"], "kind": record["kind"],
                      "title": _plain(record.get("title", "")), "status": _plain(record.get("status", "")),
-                     "checked_by": _plain(record.get("checked_by") or ""),
+                     "checked_by": _plain(_checked_by(record)),
                      "created": _plain(record.get("created", "")),
                      "json": path.name, "html": html_file.name if html_file.is_file() else "",
                      **{c: "" for c in INDEX_COLUMNS}, **currency.get("*", {}), **currency.get(path.name, {}),

@@ -163,8 +163,20 @@ def load_record(path):
         number = int(word)
         return number if abs(number) <= sys.float_info.max else refuse(word)
 
+    def one_value_per_key(pairs):   # a reader keeps one of two values and others the other: refuse both
+        table = {}
+        for key, value in pairs:
+            if key in table:
+                raise RecordError(f"not a record steamcalc issued: the key {key!r} appears twice in one table "
+                                  f"({_short(table[key])} and {_short(value)}), so what it holds depends on the "
+                                  "program reading it", source=path, field=key,
+                                  fix="re-issue the record from its case file; do not use this copy")
+            table[key] = value
+        return table
+
     try:
-        data = json.loads(text, parse_constant=refuse, parse_float=finite_float, parse_int=bounded_int)
+        data = json.loads(text, parse_constant=refuse, parse_float=finite_float, parse_int=bounded_int,
+                          object_pairs_hook=one_value_per_key)
     except (json.JSONDecodeError, RecursionError) as exc:
         raise RecordError(f"not a JSON file: {exc}", source=path) from None
     if not isinstance(data, dict) or data.get("schema") not in READABLE_SCHEMAS:
@@ -176,6 +188,11 @@ def load_record(path):
     _check_record_shape(data, path)
     validate_record(data, source=path)
     return data
+
+
+def _short(value):
+    text = json.dumps(value, ensure_ascii=False)
+    return text if len(text) <= 40 else text[:37] + "..."
 
 
 def _check_record_shape(data, path):
@@ -274,6 +291,22 @@ def write_record(record, out_dir, renderers=None, force=False):
                 raise RecordConflictError(
                     "a file of this name exists and is not a readable record", source=json_path,
                     fix="move it away, or raise the revision in the case file") from None
+            # The stored digests are claims anyone can write: both are recomputed from what the file holds, and
+            # a file that is not what its digests say is refused, never kept as "unchanged" nor drawn again.
+            if compute_content_digest(existing) != existing.get("content_digest") or \
+                    compute_digest(existing) != existing.get("digest"):
+                raise RecordConflictError(
+                    "the record there does not match its own digest: it was edited after it was issued",
+                    source=json_path, field="content_digest",
+                    fix="run steamcalc verify on it to see what changed; move it away (keep it as evidence) and "
+                        "run the case again, or raise the revision - its reports are not drawn again from it")
+            if existing.get("content_digest") != record["content_digest"] and _same_case(existing, record):
+                raise RecordConflictError(
+                    f"record {record['id']} revision {record['revision']} already exists with different content, "
+                    "although from the same inputs: it was edited after it was issued (its digests recomputed), or "
+                    "issued by a release that computes otherwise", source=json_path, field="content_digest",
+                    fix="run steamcalc verify on it to see what differs; keep it as it is (it is not drawn again) "
+                        "and raise the revision in the case file to issue a new record")
             if existing.get("content_digest") != record["content_digest"]:
                 raise RecordConflictError(
                     f"record {record['id']} revision {record['revision']} already exists with different content",
@@ -298,6 +331,21 @@ def write_record(record, out_dir, renderers=None, force=False):
         files += [(f"{stem}{suffix}", render(record)) for suffix, render in renderers.items()]
         issue_set(out_dir, stem, files)
     return paths, "written"
+
+
+def _same_case(a, b):
+    """Two records made from the same case: kind, title, preparer, inputs, site, notes and uncertainty settings."""
+    def case_of(record):
+        settings = record.get("uncertainty")
+        settings = {k: v for k, v in settings.items() if k in _UNCERTAINTY_SETTINGS} if isinstance(settings, dict) \
+            else settings
+        notes = [n for n in record.get("assumptions") or [] if str(n).startswith("Engineer's note: ")]
+        return [record.get(k) for k in ("kind", "title", "prepared_by", "inputs", "site")] + [notes, settings]
+    return case_of(a) == case_of(b)
+
+
+#: What a case file sets in a record's uncertainty section (the rest is computed).
+_UNCERTAINTY_SETTINGS = ("method", "samples", "seed", "generator", "coverage", "property_engine", "tolerances")
 
 
 def _same_text(path, text):

@@ -74,15 +74,29 @@ def revision_order(revision):
 
 
 def _folders(folder):
-    from ..signing.keys import site_folder_of
+    """``(site folder or None, records folder)`` of the folder named.
+
+    A folder holding a site.toml is a site (its records in ``records/``) unless it lies inside another site's
+    folder: a site.toml among a site's records is what a planted trust list looks like, and such a folder
+    is read as a records folder. A records folder's site is the site folder directly above it.
+    """
+    from ..signing.trust import is_site_folder, site_of_records
 
     folder = Path(folder)
     if not folder.is_dir():
         raise SteamcalcError("the folder does not exist", source=folder,
                              fix="give a site folder (with site.toml) or a records folder")
-    if (folder / "site.toml").is_file():
+    if is_site_folder(folder):
         return folder, folder / "records"
-    return site_folder_of(folder), folder
+    return site_of_records(folder)[0], folder
+
+
+def register_trust(folder, trusted_dir=None):
+    """The trusted signers the register of a folder uses (:func:`steamcalc.signing.trust.resolve_trust`)."""
+    from ..signing.trust import resolve_trust
+
+    site_dir, records_dir = _folders(folder)
+    return resolve_trust(records_dir, trusted_dir, site_dir)
 
 
 def _cases_by_id(site_dir):
@@ -181,7 +195,7 @@ def register_row(path, record, *, trusted, case=None, site_path=None, later_revi
     from ..records.record import provenance
     from .verify import check_companions, verify_record
     from ..signing.keys import short_fingerprint
-    from ..signing.signatures import check_signatures, name_only_signoff
+    from ..signing.signatures import NAME_TYPED, check_signatures, name_only_signoff
 
     row = RegisterRow(json=Path(path).name, id=record["id"], revision=str(record["revision"]), kind=record["kind"],
                       title=record.get("title", ""))
@@ -208,14 +222,25 @@ def register_row(path, record, *, trusted, case=None, site_path=None, later_revi
     if outcome is not None:
         row.valid = outcome.ok
     texts = []
-    legacy = name_only_signoff(record, outcome)
-    if legacy:
-        texts.append(f"name only: {record.get('checked_by')}" + (" (does not hold)" if legacy[1] else ""))
-        row.valid = row.valid and not legacy[1]
-    for check in check_signatures(record, trusted):
-        state = "invalid" if not check.valid or check.problem else "trusted" if check.trusted else "unknown key"
+    status = (outcome.recomputed_status if outcome is not None else None) or record.get("status")
+    for check in check_signatures(record, trusted, status):
+        state = "trusted" if check.trusted else "unknown key"
+        if not check.valid:
+            state = "invalid"
+        elif check.problem and check.problem.startswith("rule broken"):
+            state = check.problem.split(";")[0]
+        elif check.problem:
+            state = "invalid"
         texts.append(f"{check.role}: {check.name}, key {short_fingerprint(check.fingerprint)}, {state}")
         row.valid = row.valid and check.ok
+    # A typed name is not a signature: the record counts as not signed, the name shown as what it is.
+    legacy = name_only_signoff(record, outcome)
+    if legacy:
+        row.valid = row.valid and not legacy[1]
+        if not texts:
+            texts.append("not signed")
+        texts.append(f"{NAME_TYPED}: {record.get('checked_by') or '?'}"
+                     + (" (its claims do not hold)" if legacy[1] else ""))
     row.signatures = "; ".join(texts) or "not signed"
 
     if later_revision is not None:
@@ -243,11 +268,14 @@ def register_row(path, record, *, trusted, case=None, site_path=None, later_revi
         row.software = ", ".join(versions)
         row.stale.append("software differs")
     companions = check_companions(path, record)
-    differ = [c.path.suffix.lstrip(".") for c in companions if c.verdict == "differs"]
+    differ = [c.path.suffix.lstrip(".") for c in companions if c.differs]
     absent = [c.path.suffix.lstrip(".") for c in companions if c.verdict == "absent"]
     older = [c.path.suffix.lstrip(".") for c in companions if c.verdict == "older"]
     row.companions = ("DIFFER: " + ", ".join(differ)) if differ else ("absent: " + ", ".join(absent)) if absent else \
         ("match but for the charts release 0.2 drew: " + ", ".join(older)) if older else "match"
+    unchecked = [c.path.suffix.lstrip(".") for c in companions if c.verdict == "not checked"]
+    if unchecked:   # a PDF or executed workbook beside the record cannot be compared with it: said, not passed
+        row.companions += "; not checked: " + ", ".join(unchecked)
     if differ:
         row.stale.append("companions do not match")
     return row
@@ -261,7 +289,8 @@ def build_register(folder, trusted_dir=None, recompute=True):
     folder : str or Path
         A site folder (holding site.toml) or a records folder.
     trusted_dir : str or Path, optional
-        The trusted signers (default: ``trusted_signers/`` of the site).
+        The trusted signers (default: the user's settings, else ``trusted_signers/`` of the site; never a
+        list in the records folder, :func:`steamcalc.signing.trust.resolve_trust`).
     recompute : bool
         Re-run every record to verify it (see :func:`register_row`).
 
@@ -271,10 +300,10 @@ def build_register(folder, trusted_dir=None, recompute=True):
         Sorted by id, then revision.
     """
     from ..records.record import load_record
-    from ..signing.keys import TRUSTED_FOLDER, load_trusted
+    from ..signing.trust import resolve_trust
 
     site_dir, records_dir = _folders(folder)
-    trusted = load_trusted(trusted_dir or (site_dir / TRUSTED_FOLDER if site_dir else None), required=bool(trusted_dir))
+    trusted = resolve_trust(records_dir, trusted_dir, site_dir).keys
     records, unreadable = [], []
     for path in sorted(records_dir.glob("*.json")) if records_dir.is_dir() else []:
         try:

@@ -8,8 +8,9 @@ from ..errors import RecordError
 from ..records.issuing import issue_set, record_lock, recover
 from ..records.record import load_record, record_text
 from ..render.report import RENDERERS
-from ..signing.keys import SigningInputError, load_private_key, load_trusted, read_passphrase, trusted_folder_for
+from ..signing.keys import SigningInputError, fingerprint, load_private_key, read_passphrase
 from ..signing.signatures import ROLES, add_signature, refusal, verification_summary
+from ..signing.trust import resolve_trust
 from .verify import check_companions, verify_record
 
 
@@ -27,7 +28,9 @@ def sign_with_key(path, key_file, role="checked", by=None, passphrase_file=None,
         The signer's name; when given it must be the key's.
     passphrase_file : str or Path, optional
     trusted_dir : str or Path, optional
-        The trusted signers folder (default: ``trusted_signers/`` beside the record's site.toml).
+        The trusted signers folder (default: the one set in the user's settings, else the site's
+        ``trusted_signers/`` above the records folder; never one in the records folder,
+        :func:`steamcalc.signing.trust.resolve_trust`).
 
     Returns
     -------
@@ -48,8 +51,8 @@ def sign_with_key(path, key_file, role="checked", by=None, passphrase_file=None,
     if by is not None and by.strip() != name:
         raise SigningInputError(f"the key belongs to {name}, not to {by.strip()}", field="--by", value=by,
                                 fix="give the key's own name with --by, or leave --by out")
-    trusted = load_trusted(trusted_dir if trusted_dir else trusted_folder_for(path), required=bool(trusted_dir))
     path = Path(path)
+    trusted = resolve_trust(path.parent, trusted_dir).keys
     if not path.is_file():
         raise SigningInputError("record file not found", source=path, fix="check the path")
     # One writer per record: the lock is held from reading the record through verifying it to
@@ -62,12 +65,19 @@ def sign_with_key(path, key_file, role="checked", by=None, passphrase_file=None,
             raise SigningInputError(exc.message, source=path, field=exc.field, fix=exc.fix) from None
         outcome = verify_record(record)
         companions = check_companions(path, record)
-        reason = refusal(record, outcome, role, name, trusted, companions)
+        reason = refusal(record, outcome, role, name, trusted, companions, key_fingerprint=_fingerprint_of(key))
         if reason:
             raise RecordError(f"not signed: {reason}", source=path)
         signed = add_signature(record, key, name, role, verification_summary(outcome, companions), now)
         write_signed(path, signed)
     return signed
+
+
+def _fingerprint_of(private_key):
+    from cryptography.hazmat.primitives import serialization
+
+    raw = private_key.public_key().public_bytes(serialization.Encoding.Raw, serialization.PublicFormat.Raw)
+    return fingerprint(raw)
 
 
 def write_signed(path, signed):

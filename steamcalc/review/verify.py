@@ -541,7 +541,19 @@ class CompanionCheck:
     """A report beside a record, against the same report rendered afresh from the JSON."""
 
     path: object
-    verdict: str  # "match", "differs", "absent", "repaired", "older" (drawn by an earlier release)
+    #: "match", "differs", "absent", "repaired", "older" (drawn by an earlier release), "typed-as-signed" (drawn
+    #: by an earlier release that showed a typed name as a sign-off: it differs, and --repair draws it again), or
+    #: "not checked" (a PDF or executed workbook beside the record, which cannot be drawn again and compared)
+    verdict: str
+
+    @property
+    def differs(self):
+        """The report does not show what the JSON holds."""
+        return self.verdict in ("differs", "typed-as-signed")
+
+
+#: Companions a record may have that are not drawn from the JSON alone: reported as not checked, never as matching.
+UNCHECKED_COMPANIONS = (".pdf", ".ipynb")
 
 
 #: A chart of the HTML record as release 0.2 drew it: one <figure> holding an SVG whose ids start so.
@@ -563,11 +575,19 @@ def _drawn_by_earlier_release(text, fresh, record):
     return _EARLIER_CHART.sub("", text) == _SCHEMA_1_NOTE.sub("", fresh)
 
 
+def _typed_name_shown_as_signed(text, record):
+    """A report of a record with a typed name only, drawn by an earlier release as a green "Checked and signed" box."""
+    return bool(text) and not record.get("signatures") and bool(record.get("signoff") or record.get("checked_by")) \
+        and ("Checked and signed" in text or "(name only, no key)" in text)
+
+
 def check_companions(json_path, record, repair=False):
     """Re-render a record's HTML and Markdown and compare them with the files beside it.
 
     A report of a schema-1 record that is as this release draws it but for the charts release 0.2 drew
-    is ``older``: its charts are not checked, and ``repair`` keeps it (they cannot be drawn again).
+    is ``older``: its charts are not checked, and ``repair`` keeps it (they cannot be drawn again). A PDF
+    (printed by a browser) or executed workbook beside the record is listed as ``not checked``: it cannot
+    be drawn again byte for byte, so it is never said to match, and ``repair`` leaves it alone.
 
     Parameters
     ----------
@@ -599,12 +619,18 @@ def check_companions(json_path, record, repair=False):
             verdict = "differs"
         if verdict == "differs" and _drawn_by_earlier_release(text, fresh, record):
             verdict = "older"
+        elif verdict == "differs" and _typed_name_shown_as_signed(text, record):
+            verdict = "typed-as-signed"
         if repair and verdict == "older":
             pass   # the earlier release's charts cannot be drawn again: the report is kept as it is
         elif repair and verdict != "match":
             write_text_atomic(path, fresh)
             verdict = "repaired"
         checks.append(CompanionCheck(path, verdict))
+    for suffix in UNCHECKED_COMPANIONS:
+        path = Path(json_path).with_suffix(suffix)
+        if path.exists() or path.is_symlink():
+            checks.append(CompanionCheck(path, "not checked"))
     return checks
 
 

@@ -4,7 +4,8 @@ A private key file (``*.key``, mode 0600) holds a PEM PKCS#8 Ed25519 key after t
 (what the file is, the signer's name, the key's fingerprint); it is encrypted when a passphrase is
 given. A public key file (``*.pub``) is four lines of text: what it is, the name, the fingerprint
 (``sha256:`` over the 32 raw key bytes) and the raw key in base64. A site trusts the public key
-files in ``trusted_signers/`` beside its ``site.toml``.
+files in ``trusted_signers/`` beside its ``site.toml``; which list a verification uses (never one beside
+the records) is decided in :mod:`steamcalc.signing.trust`.
 """
 
 from __future__ import annotations
@@ -243,21 +244,6 @@ def load_public_key(path):
     if fingerprint(raw) != fields["fingerprint"]:
         raise SigningInputError("the fingerprint written in the file is not its key's", source=path, fix=fix)
     return PublicKey(_check_name(fields["name"], field="name"), fields["fingerprint"], raw, path)
-
-
-def site_folder_of(path):
-    """The site folder of a record (or records folder): the nearest folder above it holding a site.toml."""
-    path = Path(path).resolve()
-    for folder in [path] + list(path.parents)[:3]:
-        if (folder / "site.toml").is_file():
-            return folder
-    return None
-
-
-def trusted_folder_for(record_path):
-    """``trusted_signers/`` beside the site.toml above a record, or None when there is no site."""
-    site = site_folder_of(Path(record_path).parent)
-    return None if site is None else site / TRUSTED_FOLDER
 
 
 def load_trusted(folder, required=False):

@@ -3,7 +3,14 @@
 A checker makes a key pair once (``steamcalc keys new``, :mod:`steamcalc.signing.keys`): a private key
 file ``*.key`` and a public key file ``*.pub`` that carries the checker's name and the key's
 fingerprint. A site trusts the public keys in the folder ``trusted_signers/`` beside its
-``site.toml``.
+``site.toml``; which list applies is decided in :mod:`steamcalc.signing.trust`.
+
+``verify`` holds every set of signatures to the rules ``sign`` keeps (:data:`RULES`): checked before
+approved, two different keys and people, the preparer never the checker, no signature on a failing
+record. A signature made through the library that breaks one fails and names the rule.
+
+A name typed into the record (the ``signoff`` block of release 0.1) is not a signature: it is shown
+as a name typed, counts as not signed, and is no longer issued.
 
 A signature covers the record's canonical content (everything but the ``signatures`` list
 and the ``digest``) together with its own entry (role, name, date, fingerprint, the
@@ -88,8 +95,66 @@ def _check_one(record, entry, trusted):
     return check
 
 
-def check_signatures(record, trusted):
-    """Check every signature of a record against the trusted keys.
+#: The document-control rules a record's signatures must keep, as ``verify`` names them when one is broken.
+RULES = {
+    "order": "checked before approved",
+    "keys": "checking and approving take two different keys",
+    "people": "checking and approving are done by two different people",
+    "preparer": "the preparer never checks their own record",
+    "failing": "no signature on a failing record",
+}
+
+
+def same_person(a, b):
+    """Two names of one person: equal but for case and spacing (an empty name is no one).
+
+    Examples
+    --------
+    >>> same_person("C. Checker", " c.  checker"), same_person("C. Checker", "D. Approver"), same_person("", "")
+    (True, False, False)
+    """
+    a, b = (" ".join(str(n or "").split()).casefold() for n in (a, b))
+    return bool(a) and a == b
+
+
+def _broken(check, rule, detail):
+    text = f"rule broken: {RULES[rule]} ({detail})"
+    check.problem = text if check.problem is None else f"{check.problem}; {text}"
+
+
+def _keep_rules(record, checks, status):
+    """Mark every signature that breaks a document-control rule, naming the rule."""
+    if status == "fail":
+        for check in checks:
+            _broken(check, "failing", "its status is FAIL; resolve the failing checks in a new revision")
+    checked = [(i, c) for i, c in enumerate(checks) if c.role == "checked"]
+    for i, check in checked:
+        if same_person(check.name, record.get("prepared_by")):
+            _broken(check, "preparer", f"{check.name} prepared it")
+    for i, approval in ((i, c) for i, c in enumerate(checks) if c.role == "approved"):
+        if not checked:
+            _broken(approval, "order", "approved without a 'checked' signature before it")
+            continue
+        j, check = checked[0]
+        if j > i or check.date > approval.date:
+            _broken(approval, "order", f"the approval of {approval.date} comes before the check of {check.date}")
+        if check.fingerprint == approval.fingerprint:
+            _broken(approval, "keys", f"both are made with key {short_fingerprint(check.fingerprint)}")
+        if same_person(check.name, approval.name):
+            _broken(approval, "people", f"{check.name} both checked and approved it")
+
+
+def check_signatures(record, trusted, status=None):
+    """Check every signature of a record against the trusted keys and the document-control rules.
+
+    Parameters
+    ----------
+    record : dict
+    trusted : dict
+        Fingerprint -> :class:`steamcalc.signing.keys.PublicKey`.
+    status : str, optional
+        The record's status as recomputed (default: the status it states); on ``fail`` every
+        signature breaks a rule.
 
     Returns
     -------
@@ -105,15 +170,19 @@ def check_signatures(record, trusted):
         if check.role in seen and check.problem is None:
             check.problem = f"a second '{check.role}' signature"
         seen.add(check.role)
-    if "approved" in seen and "checked" not in seen:
-        for check in checks:
-            if check.role == "approved" and check.problem is None:
-                check.problem = "approved without a 'checked' signature before it"
+    _keep_rules(record, checks, status if status is not None else record.get("status"))
     return checks
 
 
+NAME_TYPED = "name typed, not a signature"
+
+
 def name_only_signoff(record, outcome=None):
-    """A v0.1 sign-off (a name, no key): its description and what in it does not hold, or None.
+    """A name typed into the record (release 0.1's sign-off without a key): what it is, and what does not hold.
+
+    It is not a signature: anyone can type a name and recompute the digests. It is shown as such and
+    counts as not signed; what it claims is still compared with the verification, since a false claim
+    in a record is a finding of its own.
 
     Parameters
     ----------
@@ -141,19 +210,8 @@ def name_only_signoff(record, outcome=None):
             problems.append(f"it claims {claims.get('results_reproduced')} results reproduced; this record gives {actual}")
     if str(signoff.get("date", "")) < str(record.get("created", "")):
         problems.append("it is dated before the record was created (copied from another record?)")
-    text = f"signed without a key (name only): {checked_by or signoff.get('by')} on {signoff.get('date', '?')}"
+    text = f"{NAME_TYPED}: {checked_by or signoff.get('by')} on {signoff.get('date', '?')}"
     return text, problems
-
-
-def name_only_refusal(record):
-    """Why a name-only sign-off must not be added to this record, or None.
-
-    A name-only sign-off edits ``checked_by`` and ``signoff``, which the keyed signatures cover:
-    it would break them.
-    """
-    if record.get("signatures"):
-        return "it carries signatures made with keys; add yours with --key (a sign-off by name only would break them)"
-    return None
 
 
 def verification_summary(outcome, companions=None):
@@ -167,15 +225,17 @@ def verification_summary(outcome, companions=None):
         "version_changes": {k: {"record": a, "checker": b} for k, (a, b) in outcome.version_changes.items()},
     }
     if companions is not None:
-        summary["companions"] = "match" if all(c.verdict != "differs" for c in companions) else "differ"
+        summary["companions"] = "match" if all(c.verdict not in ("differs", "typed-as-signed") for c in companions) \
+            else "differ"
     return summary
 
 
-def refusal(record, outcome, role, name, trusted, companions=()):
-    """Why a record must not be signed in this role, or None when it may be."""
+def refusal(record, outcome, role, name, trusted, companions=(), key_fingerprint=None):
+    """Why a record must not be signed in this role, or None when it may be (the rules :func:`check_signatures` holds
+    every signature to, and more: a record that does not verify is not signed at all)."""
     if record.get("signoff") or record.get("checked_by"):
-        return ("it carries a sign-off without a key (name only); re-sign it with a key under a raised revision "
-                "(set [case] revision and run it again)")
+        return (f"it carries a {NAME_TYPED} (a sign-off without a key, from an earlier release); sign it with "
+                "your key under a raised revision (set [case] revision and run it again)")
     if not (outcome.digest_ok and outcome.content_digest_ok):
         return "its digest does not match (the file was edited)"
     if outcome.error:
@@ -185,11 +245,11 @@ def refusal(record, outcome, role, name, trusted, companions=()):
         return f"its recomputed status is FAIL ({failing}); resolve the failing checks in a new revision"
     if not outcome.ok:
         return "what it states is not what its inputs give today: " + "; ".join(outcome.differences()[:4])
-    edited = [c.path.name for c in companions if c.verdict == "differs"]
+    edited = [c.path.name for c in companions if c.verdict in ("differs", "typed-as-signed")]
     if edited:
         return (f"its companion files do not match the JSON ({', '.join(edited)}); "
                 "inspect them, then run steamcalc verify --repair")
-    checks = check_signatures(record, trusted)
+    checks = check_signatures(record, trusted, outcome.recomputed_status)
     bad = [c.describe() for c in checks if not c.ok]
     if bad:
         return "it carries a signature that does not hold: " + "; ".join(bad)
@@ -197,9 +257,12 @@ def refusal(record, outcome, role, name, trusted, companions=()):
         return f"it is already signed as {role}; a signed record stays as signed"
     if role == "approved" and not any(c.role == "checked" for c in checks):
         return "it has no 'checked' signature yet; it is checked before it is approved"
-    if any(c.name == name for c in checks):
+    if any(same_person(c.name, name) for c in checks):
         return f"{name} has signed it already; checking and approving are done by different people"
-    if role == "checked" and name == record.get("prepared_by"):
+    if key_fingerprint is not None and any(c.fingerprint == key_fingerprint for c in checks):
+        return (f"it is signed with this key ({short_fingerprint(key_fingerprint)}) already; checking and approving "
+                "take two different keys")
+    if role == "checked" and same_person(name, record.get("prepared_by")):
         return f"{name} prepared it; a record is checked by someone other than its preparer"
     return None
 

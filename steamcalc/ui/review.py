@@ -15,7 +15,6 @@ from ..render.report import RENDERERS, format_number, format_unit
 from ..review.verify import verify_record
 from ..records.build import record_for_case_file
 from ..review.diff import diff_records, diff_summary
-from ..review.signoff import sign_record
 from .feedback import SummaryView, file_link
 from .workbook import _install_error_display  # noqa: F401  (bad input shows as a message in any workbook)
 
@@ -59,8 +58,9 @@ class ReviewBook:
         self._diff = widgets.HTML()
         self._diff.add_class("steamcalc-comparison")
         self._offer_earlier()
-        self._checker = widgets.Text(description="Checker", placeholder="your name")
-        self._key_file = widgets.Text(description="Key file", placeholder="path to your .key (recommended)")
+        self._checker = widgets.Text(description="Checker", placeholder="your name (optional: the key's)")
+        self._key_file = widgets.Text(description="Key file", placeholder="path to your private key file (.key)")
+        self._passphrase_file = widgets.Text(description="Passphrase", placeholder="file with its passphrase, if any")
         self._sign_button = widgets.Button(description="Sign as checked", icon="check", button_style="success")
         self._sign_button.on_click(lambda _: self._on_sign())
         self._sign_status = widgets.HTML()
@@ -189,12 +189,15 @@ class ReviewBook:
         """Plain-text verification summary (what headless runs print)."""
         o, r = self.outcome, self.record
         same = sum(1 for c in o.comparisons if c.verdict == "same")
+        signers, signed_ok, trust = _signers(r, self.path.parent, o.recomputed_status)
         lines = [f"{r['id']} rev {r['revision']} - {r.get('title', '')}",
                  f"integrity: {'intact' if o.digest_ok and o.content_digest_ok else 'EDITED - digest does not match'}",
                  f"reproduction: {same} of {len(o.comparisons)} results reproduced"
                  + ("" if not o.check_changes else f"; {len(o.check_changes)} check changes"),
-                 f"record status: {r.get('status', '').upper()}; checked by: {_signers(r)}",
-                 f"verdict: {'VERIFIED' if o.ok else 'FAILED'}"]
+                 f"record status: {r.get('status', '').upper()}; checked by: {signers}",
+                 f"verdict: {'VERIFIED' if o.ok and signed_ok else 'FAILED'}"]
+        if trust:
+            lines.insert(4, f"trusted signers: {trust}")
         if o.error:
             lines.insert(2, f"reproduction not possible: {o.error}")
         for name, (then, now) in o.version_changes.items():
@@ -207,7 +210,7 @@ class ReviewBook:
         "all records": lambda row: True,
         "not current or not valid": lambda row: not row.ok,
         "current and valid": lambda row: row.ok,
-        "not signed": lambda row: row.signatures == "not signed",
+        "not signed": lambda row: row.signatures.startswith("not signed"),
     }
 
     def register(self, show="all records"):
@@ -301,7 +304,8 @@ class ReviewBook:
                                f"<table>{head}{_comparison_rows(same)}</table></details>" if same else ""))
 
     def _on_sign(self):
-        text = self.sign(self._checker.value, self._key_file.value.strip() or None)
+        text = self.sign(self._checker.value, self._key_file.value.strip() or None,
+                         passphrase_file=self._passphrase_file.value.strip() or None)
         if text.startswith("not signed"):
             self._sign_status.value = f"<span style='color:#a3201b'><b>{html.escape(_workbook_fix(text))}</b></span>"
             return
@@ -310,20 +314,17 @@ class ReviewBook:
                                    f"{file_link(path)}")
 
     def sign(self, checker, key_file=None, role="checked", passphrase_file=None):
-        """Sign the record (after a passing verification); return what happened.
+        """Sign the record with the signer's key (after a passing verification); return what happened.
 
-        With ``key_file`` it is signed with the signer's key (:func:`steamcalc.review.sign.sign_with_key`);
-        without, it is the sign-off by name only, which proves nothing about who signed.
+        The key is required (:func:`steamcalc.review.sign.sign_with_key`): a name alone proves nothing
+        about who signed, so signing by name is not offered. ``checker``, when given, must be the key's name.
         """
+        if not key_file:
+            return ("not signed: give your private key file (the .key that `steamcalc keys new` made) in the Key "
+                    "file box; a record is signed with a key, never by a name alone")
+        from ..review.sign import sign_with_key
         try:
-            if key_file:
-                from ..review.sign import sign_with_key
-                signed = sign_with_key(self.path, key_file, role, checker or None, passphrase_file)
-            else:
-                from ..signing.signatures import name_only_refusal
-                if name_only_refusal(self.record):
-                    return f"not signed: {name_only_refusal(self.record)}"
-                signed = sign_record(self.path, self.record, checker)
+            signed = sign_with_key(self.path, key_file, role, (checker or "").strip() or None, passphrase_file)
         except SteamcalcError as exc:
             return f"not signed: {exc}"
         self.record = signed
@@ -332,11 +333,9 @@ class ReviewBook:
         from ..batch.batch import refresh_index
         index = refresh_index(self.path.parent)   # the folder's index shows the signature too
         index = f"; {index}" if index else ""
-        if key_file:
-            entry = signed["signatures"][-1]
-            return (f"{entry['role']}, signed by {entry['name']} with key {entry['fingerprint'][7:19]}… on "
-                    f"{entry['date']}: {self.path}{index}")
-        return f"signed by {signed['checked_by']} on {signed['signoff']['date']}: {self.path}{index}"
+        entry = signed["signatures"][-1]
+        return (f"{entry['role']}, signed by {entry['name']} with key {entry['fingerprint'][7:19]}… on "
+                f"{entry['date']}: {self.path}{index}")
 
     # -- views -------------------------------------------------------------------------
     def summary_view(self):
@@ -351,17 +350,32 @@ class ReviewBook:
         return widgets.VBox([self._earlier, self._diff])
 
     def sign_view(self):
-        return widgets.VBox([self._key_file, widgets.HBox([self._checker, self._sign_button]), self._sign_status])
+        return widgets.VBox([self._key_file, self._passphrase_file, widgets.HBox([self._checker, self._sign_button]),
+                             self._sign_status])
 
 
-def _signers(record):
-    """Who signed, as the summary says it: keyed signatures with their key, else the name-only sign-off."""
-    signatures = record.get("signatures") or []
-    if signatures:
-        return "; ".join(f"{s.get('name')} ({s.get('role')}, key {str(s.get('fingerprint'))[7:19]}…)" for s in signatures)
+def _signers(record, folder, status=None):
+    """Who signed, as the summary says it: ``(text, every signature holds, the trusted signers list used)``.
+
+    Keyed signatures are checked as ``steamcalc verify`` checks them (trusted keys, the document-control
+    rules); a name typed into the record is shown as what it is, and counts as not signed.
+    """
+    from ..signing.signatures import NAME_TYPED, check_signatures
+    from ..signing.trust import resolve_trust
+
+    if record.get("signatures"):
+        try:
+            trust = resolve_trust(folder)
+        except SteamcalcError as exc:
+            return f"cannot be checked ({exc})", False, None
+        checks = check_signatures(record, trust.keys, status)
+        text = "; ".join(f"{c.name} ({c.role}, key {c.fingerprint[7:19]}…, "
+                         + ("trusted" if c.ok else c.problem or "UNKNOWN KEY, not in the trusted signers") + ")"
+                         for c in checks)
+        return text, all(c.ok for c in checks), trust.describe()
     if record.get("checked_by"):
-        return f"{record['checked_by']} (name only, no key)"
-    return "not yet checked"
+        return f"not signed ({record['checked_by']}: a {NAME_TYPED})", True, None
+    return "not yet checked", True, None
 
 
 def _revision_key(revision):
@@ -429,6 +443,7 @@ def _summary_html(text):
 def _workbook_fix(text):
     """A sign-off message with its command-line fix put in the review workbook's words."""
     text = re.sub(r"give --by \"Your Name\"", "type your name in the Checker box", text)
-    text = text.replace("field '--by': ", "")
+    text = text.replace("field '--by': ", "").replace("field '--key': ", "the Key file box: ")
+    text = text.replace("field '--passphrase-file': ", "the Passphrase box: ")
     text = text.replace("run steamcalc verify for the details", "see the verification table above for the details")
     return text
