@@ -97,11 +97,16 @@ def browser():
 
 
 PANEL = ".jp-NotebookPanel:not(.lm-mod-hidden)"
+#: How long any one wait of a browser page may take (a bound on a hang, never a measure of speed).
+PAGE_TIMEOUT_MS = 180_000
 
 
 def _open_and_run_all(browser, url, notebook):
     """Open a workbook in a fresh workspace, wait for its kernel, and run all cells."""
     page = browser.new_page(viewport={"width": 1400, "height": 1000})
+    # Every wait of the page as long as the longest a loaded 2-core CI machine needs: playwright's own 30 s
+    # for a locator ran out once while the kernel computed the bands and the suite ran beside it.
+    page.set_default_timeout(PAGE_TIMEOUT_MS)
     page.goto(f"{url}/lab/tree/workbooks/{notebook}?reset", timeout=90_000)
     page.wait_for_selector(".jp-NotebookPanel", timeout=90_000)
     page.wait_for_function(
