@@ -157,7 +157,10 @@ def test_verify_table_has_a_unit_column_and_words(records):
 
 
 def test_records_as_issued_are_unchanged_by_display(records):
-    # Only rendering changes: the JSON holds record units and plain fractions.
+    # Only rendering changes: the JSON holds record units; a fraction the trade states in % stays a plain fraction,
+    # and every margin is kept in percent (one unit for margins, as the relief capacity margin is).
     record = json.loads((records["SI"] / "HX-01_revA.json").read_text())
     assert record["results"]["service_u"]["unit"] == "kW/(m**2*K)"
-    assert record["results"]["area_margin"]["unit"] == "" and record["results"]["area_margin"]["value"] < 1
+    assert record["results"]["stall_load_fraction"]["unit"] == "" and record["results"]["stall_load_fraction"]["value"] < 1
+    margins = {key: entry["unit"] for key, entry in record["results"].items() if key.endswith("_margin")}
+    assert margins and set(margins.values()) == {"percent"}, margins

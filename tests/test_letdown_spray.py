@@ -40,6 +40,7 @@ nozzle_differential = "3 bar"
 spray_valve_fl = 0.90
 spray_valve_rated_kv = "0.16 m^3/h"
 sensor_distance = "6 m"
+droplet_size = "50 um"     # the nozzle maker's figure
 
 [inputs.valve]
 max_flow = "5.5 t/h"

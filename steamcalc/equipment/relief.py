@@ -114,14 +114,21 @@ def isentrope_point(pressure, entropy, temperature_guess):
         x = (entropy - liquid.entropy) / (vapour.entropy - liquid.entropy)
         volume = 1.0 / liquid.density + x * (1.0 / vapour.density - 1.0 / liquid.density)
         return 1.0 / volume, liquid.enthalpy + x * (vapour.enthalpy - liquid.enthalpy), x
-    temperature = max(temperature_guess, vapour.temperature + 1e-3)
+    lowest = vapour.temperature + 1e-3   # IF97's region 2 by (p, T) just off the saturation line
+    temperature = max(temperature_guess, lowest)
     for _ in range(ISENTROPE_STEPS):
         state = SteamState.from_pT(pressure, temperature)
         step = (entropy - state.entropy) * temperature / state.cp
         if abs(step) < ISENTROPE_TOLERANCE:
             # |Δs| < 1e-6·cp/T: the density and enthalpy are those of the isentrope to ~1e-9.
             return state.density, state.enthalpy, None
-        temperature = max(temperature + step, vapour.temperature + 1e-3)
+        if temperature == lowest and step < 0.0:
+            # The isentrope meets this pressure within 1 mK of saturation, where Newton cannot step: the point lies
+            # between the saturated vapour and the state 1 mK above it, and is interpolated in entropy between them.
+            share = (entropy - vapour.entropy) / (state.entropy - vapour.entropy)
+            density = vapour.density + share * (state.density - vapour.density)
+            return density, vapour.enthalpy + share * (state.enthalpy - vapour.enthalpy), None
+        temperature = max(temperature + step, lowest)
     raise NotConvergedError(
         f"the isentrope point at {pressure / 1e5:.4g} bar(a) did not converge in {ISENTROPE_STEPS} Newton steps: "
         f"the last temperature step was {abs(step):.2g} K, the tolerance {ISENTROPE_TOLERANCE:g} K",

@@ -283,10 +283,15 @@ def _by_later_bases(record, result):
         change = explained(line)
         (result.notes.append(f"check {line}: changed by release {change[0]} ({change[1]})") if change
          else kept.append(line))
+    explained_checks = len(result.check_changes) - len(kept)
     result.check_changes = kept
     kept = []
     for line in result.statement_changes:
         section, _, rest = line.partition(": ")
+        if section == "status" and explained_checks and not result.check_changes:
+            # The status follows the checks: when every check that changed is a declared change of basis, so is it.
+            result.notes.append(f"{line}: changed by release {BASIS_NOTE}")
+            continue
         parts = _QUOTED.findall(rest) if section in (
             "warnings", "assumptions") else []
         if parts and all(_basis_change(calc, ast.literal_eval(text)) or _basis_change(

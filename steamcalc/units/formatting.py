@@ -29,6 +29,9 @@ _UNIT_WORDS = {
     "Btu/(h*delta_degF)": "Btu/(h·°F)", "Btu/(h*ft**2*delta_degF)": "Btu/(h·ft²·°F)",
     "Btu/(lb*delta_degF)": "Btu/(lb·°F)", "h*ft**2*delta_degF/Btu": "h·ft²·°F/Btu", "lb/(ft*s**2)": "lb/(ft·s²)",
     "kg/(m**2*s)": "kg/(m²·s)", "lb/(ft**2*s)": "lb/(ft²·s)",
+    # Every sound level steamcalc records is an A-weighted sound pressure level (IEC 60534-8-3's L_pAe; limits are
+    # read only as dB(A)). pint has no A-weighting, so records keep "dB" and every view writes dB(A).
+    "dB": "dB(A)",
 }
 
 #: Pressure units as stored in records (design §3.4: absolute) and their display units.
@@ -55,6 +58,8 @@ def unit_label(unit, basis="absolute"):
     ('bar(a)', 'psia', 'bar difference')
     >>> unit_label("m**3/h"), unit_label("percent"), unit_label("kW/(m**2*K)"), unit_label("delta_degF")
     ('m³/h', '%', 'kW/(m²·K)', '°F')
+    >>> unit_label("dB")
+    'dB(A)'
     """
     if unit is None:
         return ""

@@ -2,13 +2,16 @@
 
 A process liquid is heated by condensing steam. The duty comes from the process side;
 the steam flow from the steam's actual state (superheat and dryness count) down to
-condensate at its stated subcooling. The zones (desuperheating, condensing, subcooling;
-:mod:`.exchanger_zones`) each have their own LMTD, U and area. At part load, with a fixed
+condensate at its stated subcooling. With a control valve the steam's state is given at
+its supply (:mod:`.supply`) and reaches the heater throttled at constant enthalpy. The
+zones (desuperheating, condensing, subcooling; :mod:`.exchanger_zones`) each have their
+own LMTD, U and area. At part load, with a fixed
 area and U, the steam-side pressure the exchanger needs falls; below the load where it
 cannot push the condensate through the trap, condensate stops draining: stall
 (:mod:`.exchanger_turndown`). The steam control valve over the turndown, the load below which the
 steam space is under vacuum, and the condensate to pump out when stalled are in
-:mod:`.exchanger_control`.
+:mod:`.exchanger_control`; what an undersized heater can take at its supply pressure in
+:mod:`.capacity`.
 """
 
 from __future__ import annotations
@@ -18,14 +21,16 @@ from dataclasses import dataclass
 
 from ...errors import InputError, OutOfRangeError
 from ...properties.steam import REFERENCE as IF97_REFERENCE
-from ...properties.steam import SteamState, saturation_pressure, saturation_temperature
+from ...properties.steam import SteamState, saturation_pressure
 from ..balance import Stream, check_energy_balance
 from ...units.amounts import Phrase
 from ..base import Result, check_fields, full_record_wanted, input_field
 from .turndown import (LOADS, STALL_REMEDIES, add_turndown, required_saturation_temperature,  # noqa: F401
                                  stall_load, stall_pressure)
+from .capacity import add_capacity, find_capacity
 from .control import add_control, check_control_inputs
 from .figures import figures
+from .supply import steam_states, steam_steps, supply_state
 from .zones import ARRANGEMENTS, ZONE_NAMES, add_zones, f_factor, lmtd, service_u  # noqa: F401
 
 _f_factor = f_factor  # the name v0.1 callers used
@@ -39,7 +44,22 @@ PRESSURE_DIFFERENCE_RESULTS = ("trap_static_head_pressure", "lift_head_pressure"
                                "pump_motive_excess")
 UNCERTAINTY_RESULTS = ("duty", "steam_flow", "required_area", "area_margin", "stall_load_fraction")
 #: Plain fractions shown in % (display only; records keep the fraction).
+#: (area_margin is in percent since 0.3; it stays here for records of earlier releases, where it is a fraction:
+#: only a unitless value is scaled.)
 PERCENT_VALUES = ("area_margin", "stall_load_fraction", "stall_load_fraction_fouled", "heat_loss")
+#: Bases this release changed, so that verify lists what a record of an earlier release differs by, and why,
+#: instead of calling it edited: patterns (fnmatch) over result keys, step labels, check names and statements.
+BASIS_CHANGES = (
+    ("0.3", "the steam's state is given at its supply (a superheated header) and carried into the valve, the zones "
+     "and the steam flow; the heater's capacity at the supply pressure is reported",
+     ("supply_*", "steam_inlet_*", "capacity_*", "outlet_*_reached", "*_zone_u")),
+    ("0.3", "margins are kept in percent, as the relief capacity margin is (the area margin was a fraction)",
+     ("area_margin",)),
+)
+#: Groups of inputs of which at most one is given (the calculation refuses two of a group); the forms use them.
+ALTERNATIVE_INPUTS = (("process_flow", "process_volume_flow"), ("process_fluid", "process_cp"),
+                      ("steam_temperature", "steam_superheat", "steam_dryness"),
+                      ("control_valve_supply_temperature", "control_valve_supply_superheat"))
 
 #: Smallest temperature approach (steam saturation to process outlet) held without a warning, K
 #: (common practice: below about 5 K control is sluggish and the area grows fast).
@@ -86,7 +106,12 @@ class Inputs:
         "pressure", "Process pressure", "Process-side pressure (for water properties; default well above "
         "boiling).", example="4 bar(g)")
     steam_temperature: float | None = input_field(
-        "temperature", "Steam temperature", "Superheated steam temperature (else saturated).", example="190 °C")
+        "temperature", "Steam temperature", "Superheated steam temperature at the steam pressure (else saturated); "
+        "with a control valve give the supply's state in its section instead.", example="190 °C")
+    steam_superheat: float | None = input_field(
+        "temperature_difference", "Steam superheat", "Superheat of the steam at the steam pressure, in place of "
+        "steam_temperature; with a control valve give the supply's state in its section instead.", example="38 K",
+        positive=True)
     steam_dryness: float | None = input_field(
         "fraction", "Steam dryness fraction", "Dryness of wet steam (else saturated).", example="0.97",
         positive=True)
@@ -132,6 +157,14 @@ class Inputs:
     control_valve_supply_pressure: float | None = input_field(
         "pressure", "Supply pressure at the control valve", "Steam pressure upstream of the heater's steam control "
         "valve.", example="8 bar(g)", section="control_valve", key="supply_pressure")
+    control_valve_supply_temperature: float | None = input_field(
+        "temperature", "Supply steam temperature", "Temperature of the superheated supply steam at the valve inlet "
+        "(else dry saturated); or give supply_superheat.", example="213 °C", section="control_valve",
+        key="supply_temperature")
+    control_valve_supply_superheat: float | None = input_field(
+        "temperature_difference", "Supply steam superheat", "Superheat of the supply steam at the valve inlet, above "
+        "saturation at the supply pressure (a header fed by a let-down without desuperheating carries some); or give "
+        "supply_temperature.", example="38 K", section="control_valve", key="supply_superheat")
     control_valve_xt: float | None = input_field(
         "fraction", "Control valve xT", "Pressure differential ratio factor at choked flow (maker's data).",
         example="0.70", section="control_valve", positive=True, key="xt")
@@ -163,8 +196,11 @@ class Inputs:
             raise InputError("give process_fluid = \"water\" or process_cp, not both", field="process_cp")
         if self.process_volume_flow is not None and self.process_density is None and self.process_cp is not None:
             raise InputError("a volume flow of a liquid other than water needs its density", field="process_density")
-        if self.steam_temperature is not None and self.steam_dryness is not None:
-            raise InputError("give steam_temperature or steam_dryness, not both", field="steam_dryness")
+        states = [name for name in ("steam_temperature", "steam_superheat", "steam_dryness")
+                  if getattr(self, name) is not None]
+        if len(states) > 1:
+            raise InputError(f"the steam state is given twice, as {states[0]} and as {states[1]}", field=states[1],
+                             fix="keep one of steam_temperature, steam_superheat or steam_dryness (none: saturated)")
         if self.arrangement is not None and self.arrangement not in ARRANGEMENTS:
             raise InputError(f"arrangement '{self.arrangement}' is not known", field="arrangement",
                              fix=f"use one of: {', '.join(ARRANGEMENTS)}")
@@ -267,33 +303,6 @@ def _independent_balance(steam, condensate, steam_flow, flow, duty, steam_side, 
                          heat_in=-(steam_side - duty))
 
 
-def _steam_states(inputs):
-    """Steam, condensate, saturated liquid and vapour at the steam pressure, and T_sat."""
-    p = inputs.steam_pressure
-    t_sat = saturation_temperature(p)
-    try:
-        saturated_liquid = SteamState.from_p_dryness(p, 0.0)
-        saturated_vapour = SteamState.from_p_dryness(p, 1.0)
-        if inputs.steam_temperature is not None:
-            if inputs.steam_temperature <= t_sat:
-                raise InputError(f"steam at {inputs.steam_temperature - 273.15:.2f} °C is not superheated at "
-                                 f"{p / 1e5:.4g} bar(a) (saturation {t_sat - 273.15:.2f} °C)",
-                                 field="steam_temperature", fix="leave it empty for saturated steam")
-            steam = SteamState.from_pT(p, inputs.steam_temperature)
-        elif inputs.steam_dryness is not None:
-            steam = SteamState.from_p_dryness(p, inputs.steam_dryness)
-        else:
-            steam = saturated_vapour
-        subcooling = inputs.condensate_subcooling or 0.0
-        if subcooling >= 0.01:  # below 0.01 K the condensate is saturated for every practical purpose
-            condensate = SteamState.from_pT(p, t_sat - subcooling)
-        else:
-            condensate = saturated_liquid
-    except OutOfRangeError as exc:
-        raise exc.for_field("steam_pressure" if exc.field == "pressure" else "condensate_subcooling") from None
-    return steam, condensate, saturated_liquid, saturated_vapour, t_sat
-
-
 def calculate(inputs, site):
     """Duty, steam demand, LMTD, UA, area and the stall load of a steam heater.
 
@@ -319,7 +328,13 @@ def calculate(inputs, site):
         ``control_valve_kv_<load>`` (and ``_clean_<load>``), ``control_valve_choked_<load>``,
         ``required_rangeability``, with a rated Kv ``control_valve_travel_<load>`` (percent);
         with a back pressure ``required_pumping_differential`` (bar difference) and, when it
-        stalls, ``condensate_to_remove`` (kg/h, at the stall load).
+        stalls, ``condensate_to_remove`` (kg/h, at the stall load). With a supply pressure,
+        ``supply_temperature`` (°C), ``supply_superheat`` (K) and ``supply_enthalpy`` (kJ/kg); with
+        superheated steam at the heater ``steam_inlet_temperature`` and ``steam_inlet_superheat``.
+        With a U and an installed area the capacity at the supply pressure (:mod:`.capacity`):
+        ``capacity_process_flow`` (kg/h), ``capacity_margin``, ``capacity_duty`` (kW),
+        ``capacity_steam_flow`` (kg/h), with a supply pressure ``capacity_steam_side_pressure``
+        (bar(a)), and when the design flow is beyond it ``outlet_temperature_reached`` (°C).
 
     Notes
     -----
@@ -359,7 +374,8 @@ def calculate(inputs, site):
     arrangement = inputs.arrangement or "counterflow"
     t_in, t_out = inputs.process_inlet_temperature, inputs.process_outlet_temperature
 
-    steam, condensate, saturated_liquid, saturated_vapour, t_sat = _steam_states(inputs)
+    supply = supply_state(inputs)
+    steam, condensate, saturated_liquid, saturated_vapour, t_sat = steam_states(inputs, supply)
     if t_sat <= t_out:
         raise InputError(
             f"steam saturation temperature {t_sat - 273.15:.2f} °C at {inputs.steam_pressure / 1e5:.4g} bar(a) is "
@@ -369,6 +385,7 @@ def calculate(inputs, site):
         raise InputError("the condensate would be subcooled below the process inlet temperature",
                          field="condensate_subcooling", fix="reduce the subcooling")
     flow, duty, water = _process_side(inputs, result)
+    steam_steps(inputs, supply, steam, t_sat, result)
     loss = inputs.heat_loss or 0.0
     steam_side = duty * (1.0 + loss)
     if loss:
@@ -380,8 +397,10 @@ def calculate(inputs, site):
                          f"({condensate.enthalpy / 1e3:.2f} kJ/kg)", field="steam_dryness", value=inputs.steam_dryness,
                          fix="check the steam's dryness (a heating-steam supply is usually above 0.9)")
     steam_flow = steam_side / specific
-    result.work("Steam flow", "m_s = Q_s / (h_steam − h_condensate)", "Q_s/(h_steam - h_condensate)",
-                steam_flow * 3600, "kg/h", Q_s=(steam_side / 1e3, "kW"), h_steam=(steam.enthalpy / 1e3, "kJ/kg"),
+    # With a control valve the steam's enthalpy is its supply's (the valve throttles at constant enthalpy).
+    name = "h_steam" if supply is None else "h_supply"
+    result.work("Steam flow", f"m_s = Q_s / ({name} − h_condensate)", f"Q_s/({name} - h_condensate)",
+                steam_flow * 3600, "kg/h", Q_s=(steam_side / 1e3, "kW"), **{name: (steam.enthalpy / 1e3, "kJ/kg")},
                 h_condensate=(condensate.enthalpy / 1e3, "kJ/kg"))
     result.add("duty", "Process duty", duty / 1e3, "kW")
     result.add("steam_side_heat", "Heat from the steam (duty with heat loss)", steam_side / 1e3, "kW")
@@ -422,13 +441,21 @@ def calculate(inputs, site):
         result.add("required_area", "Required area", area, "m**2")
         if inputs.installed_area is not None:
             margin = inputs.installed_area / area - 1.0
-            result.add("area_margin", "Area margin (installed over required, minus 1)", margin)
+            # Margins are kept in percent, as the relief capacity margin is: one unit for every margin.
+            result.add("area_margin", "Area margin (installed over required, minus 1)", 100.0 * margin, "percent")
             installed, required = (inputs.installed_area, "m**2"), (area, "m**2")
             result.check_limit("Installed area sufficient", installed, [(">=", required, "fail")], Phrase.of(
                 "installed {installed:.2f} against {required:.2f} required ({margin:+.1f})", installed=installed,
                 required=required, margin=(100 * margin, "percent")))
     ua_clean, ua_fouled = add_turndown(inputs, duty, ua, area, saturated_liquid.density, result)
-    add_control(inputs, duty, steam_side, steam, ua_clean, ua_fouled, saturated_liquid.density, site, result)
+    capacity = None
+    if area is not None and full_record_wanted():   # feeds no banded result
+        capacity = find_capacity(inputs, flow, duty, steam_side, water,
+                                 (steam, condensate, saturated_liquid, saturated_vapour), t_sat, area, ua_fouled,
+                                 arrangement, supply)
+    add_control(inputs, duty, steam_side, steam, supply, ua_clean, ua_fouled, saturated_liquid.density, site,
+                capacity, result)
+    add_capacity(inputs, capacity, duty, area, water, ua_fouled, supply, result)
     if full_record_wanted():
         result.figures.extend(figures(inputs, result))
     return result

@@ -15,10 +15,11 @@ from __future__ import annotations
 import math
 
 from ...equipment.valve import TRAVEL_FAIL, size_steam_valve, travel_limits, valve_travel
-from ...errors import InputError, OutOfRangeError
-from ...properties.steam import SteamState
+from ...errors import InputError
+from ...properties.steam import CRITICAL_PRESSURE, SteamState
 from ...units.amounts import Phrase
 from ..base import bar_a, full_record_wanted
+from .supply import check_supply_inputs
 from .turndown import GRAVITY, LOADS, STANDARD_GRAVITY, lift_density, stall_load, work_load_below
 from ..letdown.equipment import DEFAULT_RANGEABILITY, DEFAULT_XT, sizing_kappa
 
@@ -29,7 +30,7 @@ CHARACTERISTICS = ("equal-percentage", "linear")
 MOTIVE_MARGIN = 1.0e5
 #: Control-valve keys that need the supply pressure.
 _VALVE_FIELDS = ("control_valve_xt", "control_valve_rated_kv", "control_valve_characteristic",
-                 "control_valve_rangeability")
+                 "control_valve_rangeability", "control_valve_supply_temperature", "control_valve_supply_superheat")
 
 PUMPING_REMEDIES = (
     "Condensate removal when stalled, in general terms: drain the heater by gravity into a pump-trap "
@@ -76,6 +77,7 @@ def check_control_inputs(inputs):
     if rangeability is not None and rangeability <= 1.0:
         raise InputError("rangeability must be above 1 (the rated Kv over the smallest controllable Kv)",
                          field="control_valve.rangeability", value=rangeability, fix="e.g. rangeability = 50")
+    check_supply_inputs(inputs)
 
 
 def load_steam_flow(heat, valve_inlet_enthalpy, steam_side_pressure):
@@ -148,13 +150,19 @@ def pumping_differential(back_pressure, lift_head, lift_density, steam_space_pre
 
 
 def _pressures(result, clean):
-    """Steam-side pressure by load (fraction -> Pa) from the turndown table, fouled or clean U."""
-    prefix = "required_steam_pressure_clean_" if clean and "required_steam_pressure_clean_100" in result.values \
-        else "required_steam_pressure_"
-    return {load: result.value(f"{prefix}{int(round(load * 100))}") * 1e5 for load in LOADS}
+    """Steam-side pressure by load (fraction -> Pa) from the turndown table, fouled or clean U.
+
+    A load no steam pressure drives (the turndown gives none: condensing above the critical point) needs more
+    than any supply: infinite.
+    """
+    differs = result.value("turndown_ua_clean") != result.value("turndown_ua_fouled")
+    prefix = "required_steam_pressure_clean_" if clean and differs else "required_steam_pressure_"
+    keys = {load: f"{prefix}{int(round(load * 100))}" for load in LOADS}
+    return {load: result.value(key) * 1e5 if key in result.values else math.inf for load, key in keys.items()}
 
 
-def add_control(inputs, duty, steam_side, steam, ua_clean, ua_fouled, condensate_density, site, result):
+def add_control(inputs, duty, steam_side, steam, supply, ua_clean, ua_fouled, condensate_density, site, capacity,
+                result):
     """Add the control valve, the vacuum load and condensate removal to the result.
 
     Parameters
@@ -164,13 +172,17 @@ def add_control(inputs, duty, steam_side, steam, ua_clean, ua_fouled, condensate
     duty, steam_side : float
         Design process duty and heat from the steam (with the heat loss), W.
     steam : SteamState
-        The design steam (its enthalpy is the valve inlet's when no supply pressure is given).
+        The steam entering the heater (its enthalpy is the valve inlet's when no supply pressure is given).
+    supply : SteamState or None
+        The steam at the control valve inlet (:func:`supply_state`), with a supply pressure.
     ua_clean, ua_fouled : float
         UA of the turndown, clean and fouled, W/K.
     condensate_density : float
         Density of the condensate standing above the trap, kg/m³.
     site : steamcalc.cases.site.Site
         The site (its atmospheric pressure).
+    capacity : steamcalc.calcs.exchanger.capacity.Capacity or None
+        The heater's capacity at the supply pressure (with a U and an installed area).
     """
     if not full_record_wanted():   # feeds no banded result
         return
@@ -179,39 +191,35 @@ def add_control(inputs, duty, steam_side, steam, ua_clean, ua_fouled, condensate
     result.assumptions.append(
         f"Operating range of the heater: the turndown's {minimum:.0%} to 100 % of design load; the minimum load is "
         f"{minimum:.0%}")
-    inlet_enthalpy = steam.enthalpy
-    if inputs.control_valve_supply_pressure is not None:
-        inlet_enthalpy = _control_valve(inputs, steam_side, fouled, clean, result)
+    inlet_enthalpy = steam.enthalpy if supply is None else supply.enthalpy
+    if supply is not None:
+        _control_valve(inputs, steam_side, fouled, clean, supply, capacity, result)
     _vacuum(inputs, duty, ua_clean, ua_fouled, minimum, site, result)
-    if inputs.condensate_back_pressure is not None:
+    if inputs.condensate_back_pressure is not None and math.isfinite(clean[minimum]):
         _condensate_removal(inputs, steam_side, inlet_enthalpy, clean, minimum, condensate_density, result)
 
 
-def _control_valve(inputs, steam_side, fouled, clean, result):
-    supply = inputs.control_valve_supply_pressure
-    design_pressure = fouled[1.0]
-    if supply <= design_pressure:
-        raise InputError(
-            f"the supply {bar_a(supply)} is not above the {bar_a(design_pressure)} the steam side needs at design "
-            "load (fouled U): the control valve would have no pressure drop to control with",
-            field="control_valve.supply_pressure", value=f"{supply / 1e5:.4g} bar(a)",
-            fix="give the steam pressure upstream of the control valve (check its basis, bar(g) or bar(a)); it must "
-                "be above the steam-side pressure the heater needs at design load")
+def valve_settings(inputs):
+    """(xT, characteristic, rangeability) of the heater's control valve, the defaults where not given."""
     xt = inputs.control_valve_xt if inputs.control_valve_xt is not None else DEFAULT_XT
     characteristic = inputs.control_valve_characteristic or "equal-percentage"
     rangeability = (inputs.control_valve_rangeability if inputs.control_valve_rangeability is not None
                     else DEFAULT_RANGEABILITY)
-    try:
-        state = SteamState.from_p_dryness(supply, 1.0)
-    except OutOfRangeError as exc:
-        raise exc.for_field("control_valve.supply_pressure") from None
+    return xt, characteristic, rangeability
+
+
+def _valve_inlet(inputs, state, result):
+    """The valve inlet's stated basis, its density step and κ."""
+    supply = inputs.control_valve_supply_pressure
+    superheated = state.phase == "superheated vapour"
     result.references.extend([
         "IEC 60534-2-1:2011, control-valve sizing equations for compressible fluids (eq. (8), (12)-(15))",
         "IEC 60534-2-4:2009, inherent flow characteristics",
     ])
     result.assumptions.append(
-        f"Control valve inlet: dry saturated steam at the supply pressure {bar_a(supply)} (its superheat is not an "
-        "input); throttled at constant enthalpy; condensate leaves saturated at each load's steam-side pressure")
+        f"Control valve inlet: the supply steam at {bar_a(supply)}, "
+        + (f"superheated {state.superheat:.1f} K" if superheated else "dry saturated")
+        + "; throttled at constant enthalpy; condensate leaves saturated at each load's steam-side pressure")
     kappa = sizing_kappa(state, result)
     if inputs.control_valve_xt is None:
         result.assumptions.append(f"Control valve xT = {DEFAULT_XT} (globe valve, common practice; not given)")
@@ -222,15 +230,59 @@ def _control_valve(inputs, steam_side, fouled, clean, result):
         result.assumptions.append("Control valve characteristic equal-percentage (not given)")
     result.assumptions.append("Control valve the size of its line: piping geometry factor Fp = 1, xTP = xT "
                               "(IEC 60534-2-1 without reducers)")
-    result.work("Steam at the control valve inlet (IF97, dry saturated)", "ρ1 = ρ_g(p1), κ = w²ρ/p", "rho_g(p1)",
-                state.density, "kg/m**3", p1=(supply / 1e5, "bar"))
+    if superheated:
+        result.work("Steam at the control valve inlet (IF97, superheated)", "ρ1 = ρ(p1, T1), κ = w²ρ/p",
+                    "rho(p1, T1)", state.density, "kg/m**3", p1=(supply / 1e5, "bar"),
+                    T1=(state.temperature - 273.15, "degC"))
+    else:
+        result.work("Steam at the control valve inlet (IF97, dry saturated)", "ρ1 = ρ_g(p1), κ = w²ρ/p", "rho_g(p1)",
+                    state.density, "kg/m**3", p1=(supply / 1e5, "bar"))
     result.add("control_valve_inlet_density", "Steam density at the control valve inlet", state.density, "kg/m**3")
     result.add("control_valve_isentropic_exponent", "Isentropic exponent at the control valve inlet", kappa)
+    return kappa
+
+
+def _supply_check(supply, design_pressure, result):
+    """The supply against the steam-side pressure the design load needs; True when it is above it."""
+    given = (supply / 1e5, "bar")
+    if not math.isfinite(design_pressure):   # no steam pressure drives the design load: more than the critical
+        critical = (CRITICAL_PRESSURE / 1e5, "bar")
+        result.check_limit("Control valve supply pressure above the steam-side pressure needed at design load",
+                           given, [(">", critical, "fail")], Phrase.of(
+                               "supply {given:.4g}: the design load would need steam condensing above the critical "
+                               "point, more than {critical:.5g}; no supply drives it. What the heater can take is in "
+                               "the results (largest process flow, outlet temperature reached)", given=given,
+                               critical=critical))
+        return False
+    needed = (design_pressure / 1e5, "bar")
+
+    def detail(status):
+        if status == "pass":
+            return Phrase.of("supply {given:.4g} above the {needed:.4g} the steam side needs at design load (fouled "
+                             "U): {drop:.4g} left for the control valve", given=given, needed=needed,
+                             drop=((supply - design_pressure) / 1e5, "bar", "difference"))
+        return Phrase.of("supply {given:.4g} is not above the {needed:.4g} the steam side needs at design load (fouled "
+                         "U): with no pressure drop left for the control valve the heater cannot take the design load "
+                         "from this supply; what it can take is in the results (largest process flow, outlet "
+                         "temperature reached)", given=given, needed=needed)
+    status = result.check_limit("Control valve supply pressure above the steam-side pressure needed at design load",
+                                given, [(">", needed, "fail")], detail)
+    return status == "pass"
+
+
+def _control_valve(inputs, steam_side, fouled, clean, state, capacity, result):
+    supply = inputs.control_valve_supply_pressure
+    xt, characteristic, rangeability = valve_settings(inputs)
+    kappa = _valve_inlet(inputs, state, result)
+    reaches = _supply_check(supply, fouled[1.0], result)
     bases = [("", fouled)] + ([("clean_", clean)] if clean != fouled else [])
     both = len(bases) > 1
-    sizing, flows = {}, {}
+    sizing, flows, unsized = {}, {}, []
     for tag, pressures in bases:
         for load in LOADS:
+            if pressures[load] >= supply:   # no pressure drop left: no Kv passes this load (the check above says so)
+                unsized.append((tag, load))
+                continue
             percent = int(round(load * 100))
             which = " (clean U)" if tag else " (fouled U)" if both else ""
             flow = load_steam_flow(load * steam_side, state.enthalpy, pressures[load])
@@ -240,26 +292,24 @@ def _control_valve(inputs, steam_side, fouled, clean, result):
                        "m**3/h")
             result.add(f"control_valve_choked_{tag}{percent}", f"Control valve choked at {load:.0%} load{which}",
                        s.choked)
-    design, design_flow = sizing[("", 1.0)], flows[("", 1.0)]
-    low_key = min(sizing, key=lambda k: sizing[k].kv)
+    worked = [(("", 1.0), fouled)] if reaches else []
+    if sizing:
+        low_key = min(sizing, key=lambda k: sizing[k].kv)
+        worked.append((low_key, dict(bases)[low_key[0]]))
+    for key, pressures in worked:
+        _kv_steps(key, both, sizing[key], flows[key], pressures[key[1]], steam_side, state, supply, kappa, xt, result)
+    if not reaches:
+        result.assumptions.append(
+            "Control valve not sized at the loads whose steam-side pressure is at or above the supply ("
+            + ", ".join(_case_label(key, both) for key in unsized) + "): no Kv passes them; the rangeability and the "
+            "travel at design load are therefore not worked")
+        if inputs.control_valve_rated_kv is not None:
+            _rated_valve(inputs, sizing, unsized, both, characteristic, rangeability, capacity, result)
+        return
+    design, low = sizing[("", 1.0)], sizing[low_key]
     high_key = max(sizing, key=lambda k: sizing[k].kv)
-    low, low_flow = sizing[low_key], flows[low_key]
     result.add("control_valve_kv", f"Control valve Kv needed at design load ({'fouled U: ' if both else ''}sizing case)",
                design.kv, "m**3/h")
-    for label, key, s, flow, pressures in ((_case_label(("", 1.0), both), ("", 1.0), design, design_flow, fouled),
-                                           (_case_label(low_key, both), low_key, low, low_flow, dict(bases)[low_key[0]])):
-        p2 = pressures[key[1]]
-        result.work(f"Steam through the control valve at {label}", "m = L·Q_s / (h1 − h_f(p2))", "L*Q_s/(h1 - h_f2)",
-                    flow * 3600, "kg/h", L=(key[1], ""), Q_s=(steam_side / 1e3, "kW"), h1=(state.enthalpy / 1e3, "kJ/kg"),
-                    h_f2=(SteamState.from_p_dryness(p2, 0.0).enthalpy / 1e3, "kJ/kg"))
-        # IEC 60534-2-1's N6 = 3.16 holds for W in kg/h, p in kPa and ρ in kg/m³; Kv first, as the step finds it.
-        result.work(f"Control valve Kv at {label}",
-                    "Kv = W / (N6·Y·√(min(x, x_choked)·p1·ρ1)), N6 = 3.16; x = (p1 − p2)/p1; x_choked = (κ/1.40)·xT; "
-                    "Y = 1 − min(x, x_choked)/(3·x_choked)",
-                    "W/(3.16*(1 - min((p1 - p2)/p1, kappa/1.4*x_T)/(3*(kappa/1.4*x_T)))"
-                    "*sqrt(min((p1 - p2)/p1, kappa/1.4*x_T)*p1*rho1))", s.kv, "m**3/h", units_fixed=True,
-                    role="flow_coefficient", W=(flow * 3600, "kg/h"), p1=(supply / 1e3, "kPa"), p2=(p2 / 1e3, "kPa"),
-                    kappa=(kappa, ""), x_T=(xt, ""), rho1=(state.density, "kg/m**3"))
     required = sizing[high_key].kv / low.kv
     result.work("Rangeability the duty needs", "R_req = Kv_max / Kv_min over the turndown loads", "Kv_max/Kv_min",
                 required, Kv_max=_kv(sizing[high_key].kv), Kv_min=_kv(low.kv))
@@ -273,8 +323,23 @@ def _control_valve(inputs, steam_side, fouled, clean, result):
                            + (": it cannot control down to the minimum load; consider two valves in parallel (split "
                               "range), or accept on-off control at the lowest loads" if status == "warn" else "")))
     if inputs.control_valve_rated_kv is not None:
-        _rated_valve(inputs, sizing, design, low, low_key, both, characteristic, rangeability, result)
-    return state.enthalpy
+        _rated_valve(inputs, sizing, unsized, both, characteristic, rangeability, capacity, result)
+
+
+def _kv_steps(key, both, s, flow, p2, steam_side, state, supply, kappa, xt, result):
+    """The steam flow and the Kv at one sizing case, worked."""
+    label = _case_label(key, both)
+    result.work(f"Steam through the control valve at {label}", "m = L·Q_s / (h1 − h_f(p2))", "L*Q_s/(h1 - h_f2)",
+                flow * 3600, "kg/h", L=(key[1], ""), Q_s=(steam_side / 1e3, "kW"), h1=(state.enthalpy / 1e3, "kJ/kg"),
+                h_f2=(SteamState.from_p_dryness(p2, 0.0).enthalpy / 1e3, "kJ/kg"))
+    # IEC 60534-2-1's N6 = 3.16 holds for W in kg/h, p in kPa and ρ in kg/m³; Kv first, as the step finds it.
+    result.work(f"Control valve Kv at {label}",
+                "Kv = W / (N6·Y·√(min(x, x_choked)·p1·ρ1)), N6 = 3.16; x = (p1 − p2)/p1; x_choked = (κ/1.40)·xT; "
+                "Y = 1 − min(x, x_choked)/(3·x_choked)",
+                "W/(3.16*(1 - min((p1 - p2)/p1, kappa/1.4*x_T)/(3*(kappa/1.4*x_T)))"
+                "*sqrt(min((p1 - p2)/p1, kappa/1.4*x_T)*p1*rho1))", s.kv, "m**3/h", units_fixed=True,
+                role="flow_coefficient", W=(flow * 3600, "kg/h"), p1=(supply / 1e3, "kPa"), p2=(p2 / 1e3, "kPa"),
+                kappa=(kappa, ""), x_T=(xt, ""), rho1=(state.density, "kg/m**3"))
 
 
 def _kv(kv):
@@ -288,20 +353,30 @@ def _case_label(key, both):
     return f"{load:.0%} load, {'clean' if tag else 'fouled' if both else 'clean = fouled'} U"
 
 
-def _rated_valve(inputs, sizing, design, low, low_key, both, characteristic, rangeability, result):
+def _rated_valve(inputs, sizing, unsized, both, characteristic, rangeability, capacity, result):
+    """The selected valve: its Kvs against the design load, its travel over the turndown.
+
+    When the supply cannot reach the design load (``unsized`` loads), no Kv passes it: the design process flow
+    is checked against what the heater takes with the valve fully open (the capacity) instead.
+    """
     kvs = inputs.control_valve_rated_kv
     result.add("control_valve_rated_kv", "Rated Kv (Kvs) of the control valve", kvs, "m**3/h")
-    design_case = _case_label(("", 1.0), both)
-
-    def rated(status):
-        if status == "fail":
-            return Phrase.of("at design load the heater needs Kv {needed:.2f}, more than the selected valve's Kvs "
-                             "{rated:.2f}: it cannot pass the design steam flow from the supply pressure",
-                             needed=_kv(design.kv), rated=_kv(kvs))
-        return Phrase.of(f"Kvs {{rated:.2f}} ≥ {{needed:.2f}} needed at {design_case}", rated=_kv(kvs),
-                         needed=_kv(design.kv))
-    result.check_limit("Control valve rated Kv sufficient", _kv(design.kv), [("<=", _kv(kvs), "fail")], rated)
-    outside, amounts = [], {}   # the loads outside, as phrase pieces, and their amounts
+    design = sizing.get(("", 1.0))
+    if design is not None:
+        _rated_kv_check(kvs, design, both, result)
+    elif capacity is not None:
+        given, passes = (capacity.design_flow * 3600, "kg/h"), (capacity.process_flow * 3600, "kg/h")
+        result.check_limit("Design process flow within what the heater takes with the control valve fully open",
+                           given, [("<=", passes, "fail")], Phrase.of(
+                               "design {given:.0f} against {passes:.0f} with the valve fully open (Kvs {kvs:.2f}) from "
+                               "the supply: no Kv passes the design load, whose steam side needs more than the supply",
+                               given=given, passes=passes, kvs=_kv(kvs)))
+    else:   # no U and area: the capacity is not known, only that the design load is out of reach
+        result.check("Control valve rated Kv sufficient", "fail", Phrase.of(
+            "no Kv passes the design load from the supply (Kvs {kvs:.2f} given): the steam side needs more than the "
+            "supply", kvs=_kv(kvs)))
+    # The loads outside, as phrase pieces, and their amounts.
+    outside, amounts = [f"{_case_label(key, both)} (no pressure drop left)" for key in unsized], {}
     for (tag, load), s in sizing.items():
         percent = int(round(load * 100))
         which = " (clean U)" if tag else " (fouled U)" if both else ""
@@ -319,21 +394,9 @@ def _rated_valve(inputs, sizing, design, low, low_key, both, characteristic, ran
     if "control_valve_travel_100" in result.values:
         result.add("control_valve_travel", f"Control valve travel at design load{' (fouled U)' if both else ''}",
                    result.value("control_valve_travel_100"), "percent")
-    equation = "h = Kv/Kvs (linear) or h = 1 + ln(Kv/Kvs)/ln R (equal-percentage)"
-    for label, s in ((_case_label(("", 1.0), both), design), (_case_label(low_key, both), low)):
-        travel = valve_travel(s.kv, kvs, characteristic, rangeability)
-        if 0.0 < travel <= 1.0:   # outside, the check names the load
-            # Linear: h = Kv/Kvs, a fraction the percent takes as it is; equal-percentage: ln gives a plain
-            # number, made a percent by 100.
-            expression = "Kv/Kvs" if characteristic == "linear" else "100*(1 + ln(Kv/Kvs)/ln(R))"
-            result.work(f"Control valve travel at {label}", equation, expression, 100.0 * travel, "percent",
-                        Kv=_kv(s.kv), Kvs=_kv(kvs), **({} if characteristic == "linear" else {"R": (rangeability, "")}))
-            # The one travel rule of every control valve here, at the loads the heater is designed to run at.
-            result.check_limit(f"Control valve travel at {label}", (100.0 * travel, "percent"), travel_limits(),
-                               lambda status, t=100.0 * travel: Phrase.of(
-                                   f"{{travel:.0f}} travel ({characteristic}, R = {rangeability:g}); 10-90 % usable, "
-                                   "20-80 % preferred (common practice)", travel=(t, "percent")),
-                               source="common practice")
+    cases = ([("", 1.0)] if design is not None else []) + ([min(sizing, key=lambda k: sizing[k].kv)] if sizing else [])
+    for key in cases:
+        _travel_check(_case_label(key, both), sizing[key], kvs, characteristic, rangeability, result)
     # The travel band and the rangeability are plain ratios: they stay in the words.
     band = f"{100 * TRAVEL_FAIL[0]:.0f}-{100 * TRAVEL_FAIL[1]:.0f} % travel (common practice)"
     if outside:
@@ -344,6 +407,38 @@ def _rated_valve(inputs, sizing, design, low, low_key, both, characteristic, ran
     else:
         result.check("Control valve travel over the turndown", "pass", Phrase.of(
             f"{band} at every load from {LOADS[0]:.0%} to design ({characteristic}, R = {rangeability:g})"))
+
+
+def _rated_kv_check(kvs, design, both, result):
+    design_case = _case_label(("", 1.0), both)
+
+    def rated(status):
+        if status == "fail":
+            return Phrase.of("at design load the heater needs Kv {needed:.2f}, more than the selected valve's Kvs "
+                             "{rated:.2f}: it cannot pass the design steam flow from the supply pressure",
+                             needed=_kv(design.kv), rated=_kv(kvs))
+        return Phrase.of(f"Kvs {{rated:.2f}} ≥ {{needed:.2f}} needed at {design_case}", rated=_kv(kvs),
+                         needed=_kv(design.kv))
+    result.check_limit("Control valve rated Kv sufficient", _kv(design.kv), [("<=", _kv(kvs), "fail")], rated)
+
+
+def _travel_check(label, s, kvs, characteristic, rangeability, result):
+    """The travel at one sizing case, worked and checked against the one travel rule."""
+    travel = valve_travel(s.kv, kvs, characteristic, rangeability)
+    if not 0.0 < travel <= 1.0:   # outside, the turndown check names the load
+        return
+    # Linear: h = Kv/Kvs, a fraction the percent takes as it is; equal-percentage: ln gives a plain number, made a
+    # percent by 100.
+    expression = "Kv/Kvs" if characteristic == "linear" else "100*(1 + ln(Kv/Kvs)/ln(R))"
+    result.work(f"Control valve travel at {label}", "h = Kv/Kvs (linear) or h = 1 + ln(Kv/Kvs)/ln R (equal-percentage)",
+                expression, 100.0 * travel, "percent", Kv=_kv(s.kv), Kvs=_kv(kvs),
+                **({} if characteristic == "linear" else {"R": (rangeability, "")}))
+    # The one travel rule of every control valve here, at the loads the heater is designed to run at.
+    result.check_limit(f"Control valve travel at {label}", (100.0 * travel, "percent"), travel_limits(),
+                       lambda status, t=100.0 * travel: Phrase.of(
+                           f"{{travel:.0f}} travel ({characteristic}, R = {rangeability:g}); 10-90 % usable, "
+                           "20-80 % preferred (common practice)", travel=(t, "percent")),
+                       source="common practice")
 
 
 def _vacuum(inputs, duty, ua_clean, ua_fouled, minimum, site, result):

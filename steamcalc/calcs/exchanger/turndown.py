@@ -15,7 +15,7 @@ from __future__ import annotations
 import math
 
 from ...errors import InputError, OutOfRangeError
-from ...properties.steam import SteamState, saturation_pressure, saturation_temperature
+from ...properties.steam import CRITICAL_TEMPERATURE, SteamState, saturation_pressure, saturation_temperature
 from ...units.amounts import Phrase
 from .zones import service_u
 
@@ -178,22 +178,30 @@ def add_turndown(inputs, duty, design_ua, required_area, condensate_density, res
     fouled_differs = ua_fouled != ua_clean
     result.assumptions.append(
         "Turndown model: load varies with the process flow at the design inlet and outlet temperatures; the "
-        "exchanger keeps its area and U; the steam-side pressure falls to what the load needs (saturated steam, "
-        f"condensing only). The turndown table gives the steam-side pressure needed on the {basis_fouled}"
+        "exchanger keeps its area and U; the steam-side pressure falls to what the load needs (the hot side at the "
+        "saturation temperature over the whole area: condensing, and a superheated steam's desuperheating on the wet "
+        "wall at the same driving force; a dry-wall desuperheating or a subcooling zone is not credited with its own "
+        f"U here). The turndown table gives the steam-side pressure needed on the {basis_fouled}"
         + (f", and on the {basis_clean}" if fouled_differs else " (no fouling: clean and fouled are the same)"))
-    for load in LOADS:
-        # Never below the process outlet temperature, so always inside the saturation range.
-        percent = int(round(load * 100))
-        t_needed = required_saturation_temperature(load * duty, ua_fouled, t_in, t_out)
-        result.add(f"required_steam_pressure_{percent}", f"Steam-side pressure needed at {load:.0%} load "
-                   f"({'fouled' if fouled_differs else 'clean = fouled'} U)", saturation_pressure(t_needed) / 1e5,
-                   "bar")
-    if fouled_differs:
+    beyond = []   # the loads no steam pressure drives, in words
+    for tag, ua_basis, which in (("", ua_fouled, "fouled" if fouled_differs else "clean = fouled"),
+                                 ("clean_", ua_clean, "clean")):
+        if tag and not fouled_differs:
+            break
         for load in LOADS:
-            t_needed = required_saturation_temperature(load * duty, ua_clean, t_in, t_out)
-            result.add(f"required_steam_pressure_clean_{int(round(load * 100))}",
-                       f"Steam-side pressure needed at {load:.0%} load (clean U)", saturation_pressure(t_needed) / 1e5,
+            # Never below the process outlet temperature; above the critical point there is no saturation.
+            t_needed = required_saturation_temperature(load * duty, ua_basis, t_in, t_out)
+            if t_needed >= CRITICAL_TEMPERATURE:
+                beyond.append(f"{load:.0%} load ({which} U)")
+                continue
+            result.add(f"required_steam_pressure_{tag}{int(round(load * 100))}",
+                       f"Steam-side pressure needed at {load:.0%} load ({which} U)", saturation_pressure(t_needed) / 1e5,
                        "bar")
+    if beyond:
+        result.assumptions.append(
+            "No steam pressure drives " + ", ".join(beyond) + f": the area would need steam condensing above the "
+            f"critical point ({CRITICAL_TEMPERATURE - 273.15:.3f} °C), so the turndown gives no pressure there; what "
+            "the heater can take is in the results")
     if inputs.condensate_back_pressure is not None:
         _stall(inputs, duty, ua_clean, ua_fouled, basis_clean, basis_fouled, condensate_density, result)
     return ua_clean, ua_fouled

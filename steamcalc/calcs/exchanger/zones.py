@@ -3,14 +3,16 @@
 The steam gives up its superheat, its latent heat and the condensate's subcooling; the
 process liquid takes each in counter-current order (it meets the subcooled condensate
 first and the superheated steam last). Each zone has its own mean temperature
-difference, and with a U its own area.
+difference, and with a U its own area; the record lists them in the steam's order:
+desuperheating, condensing, subcooling.
 
 The desuperheating zone is on the wet-wall basis unless the case gives the zone its own
 U: wherever the wall is below the steam's saturation temperature a condensate film wets
 it, the superheat is given up through that film, and the driving force is
-``T_sat - T_process`` at the condensing coefficient (common practice). A given
-``desuperheating_u`` means a dry wall: the steam cools as a gas, from its own
-temperature to saturation, at that (much lower) coefficient.
+``T_sat - T_process`` at the condensing coefficient (common practice): that is the
+desuperheating zone's default U, stated in the record. A given ``desuperheating_u``
+means a dry wall: the steam cools as a gas, from its own temperature to saturation,
+at that (much lower) coefficient. The subcooling zone's U is required (``subcooling_u``).
 """
 
 from __future__ import annotations
@@ -22,7 +24,8 @@ from ...properties.steam import SteamState
 from ...units.amounts import Phrase
 
 ARRANGEMENTS = {"counterflow": None, "1-2": 1, "2-4": 2}
-ZONE_NAMES = ("subcooling", "condensing", "desuperheating")
+#: The zones in the order the steam meets them (the record lists them so).
+ZONE_NAMES = ("desuperheating", "condensing", "subcooling")
 #: LMTD correction factor below which a shell-and-tube arrangement is poorly suited (common practice).
 MIN_F_FACTOR = 0.75
 
@@ -109,7 +112,8 @@ def service_u(u, fouling):
 
 
 def zone_table(inputs, steam_states, t_sat, flow, duty, steam_side, steam_flow, water):
-    """The zones present: (name, process heat W, hot in K, hot out K, cold in K, cold out K, wet_wall).
+    """The zones present, in the steam's order: (name, process heat W, hot in K, hot out K, cold in K,
+    cold out K, wet_wall).
 
     Hot temperatures are the driving-force basis: on the wet-wall basis the desuperheating
     zone's hot side is held at T_sat.
@@ -131,13 +135,13 @@ def zone_table(inputs, steam_states, t_sat, flow, duty, steam_side, steam_flow, 
     t_a = process_temperature(q_sub * scale)
     t_b = process_temperature((q_sub + q_cond) * scale)
     zones = []
-    if q_sub > 0.0:
-        zones.append(("subcooling", q_sub * scale, t_sat, condensate.temperature, t_in, t_a, False))
-    zones.append(("condensing", q_cond * scale, t_sat, t_sat, t_a, t_b, True))
     if q_super > 0.0:
         wet = inputs.desuperheating_u is None
         zones.append(("desuperheating", q_super * scale, t_sat if wet else steam.temperature, t_sat, t_b, t_out,
                       wet))
+    zones.append(("condensing", q_cond * scale, t_sat, t_sat, t_a, t_b, True))
+    if q_sub > 0.0:
+        zones.append(("subcooling", q_sub * scale, t_sat, condensate.temperature, t_in, t_a, False))
     return zones
 
 
@@ -145,6 +149,28 @@ def zone_u(inputs, name):
     """Clean U of a zone, W/(m² K): its own when given, else the overall (condensing) U."""
     own = {"desuperheating": inputs.desuperheating_u, "subcooling": inputs.subcooling_u}.get(name)
     return own if own is not None else inputs.overall_u
+
+
+def zone_sizing(inputs, zone, arrangement):
+    """One zone's (LMTD K, F, UA W/K, clean U W/(m² K) or None, area m² or None), recording nothing.
+
+    Parameters
+    ----------
+    inputs : steamcalc.calcs.exchanger.calculation.Inputs
+        The case (its U's and fouling).
+    zone : tuple
+        A row of :func:`zone_table`.
+    arrangement : str
+        One of :data:`ARRANGEMENTS`.
+    """
+    name, q, hot_in, hot_out, cold_in, cold_out, _ = zone
+    dt = lmtd(hot_in, hot_out, cold_in, cold_out)
+    f = f_factor(arrangement, hot_in, hot_out, cold_in, cold_out)
+    ua_zone = q / (f * dt)
+    if inputs.overall_u is None:
+        return dt, f, ua_zone, None, None
+    u = zone_u(inputs, name)
+    return dt, f, ua_zone, u, ua_zone / service_u(u, inputs.fouling_resistance or 0.0)
 
 
 def add_zones(inputs, steam_states, t_sat, flow, duty, steam_side, steam_flow, water, arrangement, result):
@@ -158,10 +184,9 @@ def add_zones(inputs, steam_states, t_sat, flow, duty, steam_side, steam_flow, w
     zones = zone_table(inputs, steam_states, t_sat, flow, duty, steam_side, steam_flow, water)
     fouling = inputs.fouling_resistance or 0.0
     ua, area = 0.0, 0.0 if inputs.overall_u is not None else None
-    for name, q, hot_in, hot_out, cold_in, cold_out, wet in zones:
-        dt = lmtd(hot_in, hot_out, cold_in, cold_out)
-        f = f_factor(arrangement, hot_in, hot_out, cold_in, cold_out)
-        ua_zone = q / (f * dt)
+    for zone in zones:
+        name, q, wet = zone[0], zone[1], zone[6]
+        dt, f, ua_zone, u, zone_area = zone_sizing(inputs, zone, arrangement)
         ua += ua_zone
         basis = " (wet wall: driving force T_sat − T_process)" if name == "desuperheating" and wet else ""
         result.work(f"{name.capitalize()} zone{basis}", "UA_i = Q_i / (F·ΔT_lm,i)", "Q_i/(F*dT_lm)", ua_zone / 1e3,
@@ -173,10 +198,10 @@ def add_zones(inputs, steam_states, t_sat, flow, duty, steam_side, steam_flow, w
                 f"F = {{f:.3f}} below {{limit:g}}: the {arrangement} arrangement is poorly suited (common practice)",
                 f=(f, ""), limit=(MIN_F_FACTOR, "")), source="common practice")
         if area is not None:
-            u = zone_u(inputs, name)
-            u_s = service_u(u, fouling)
-            zone_area = ua_zone / u_s
             area += zone_area
+            if name != "condensing":   # the condensing zone's U is the overall U, an input
+                result.add(f"{name}_zone_u", f"{name.capitalize()} zone U (clean; {_u_basis(inputs, name, wet)})",
+                           u / 1e3, "kW/(m**2*K)")
             # UA_i / U_s,i with 1/U_s,i = 1/U_i + R_f, written as one product.
             result.work(f"{name.capitalize()} zone area", "A_i = UA_i / U_s,i, 1/U_s,i = 1/U_i + R_f",
                         "UA_i*(1/U_i + R_f)", zone_area, "m**2", UA_i=(ua_zone / 1e3, "kW/K"),
@@ -184,6 +209,20 @@ def add_zones(inputs, steam_states, t_sat, flow, duty, steam_side, steam_flow, w
             result.add(f"{name}_area", f"{name.capitalize()} zone area", zone_area, "m**2")
     _zone_assumptions(inputs, zones, arrangement, result)
     return ua, area
+
+
+def _u_basis(inputs, name, wet):
+    """Where a zone's U comes from, in words."""
+    if name == "desuperheating":
+        return ("wet wall: the condensing U, common practice" if wet
+                else "dry wall: the given desuperheating U")
+    return "the given subcooling U"
+
+
+def zones_area(inputs, steam_states, t_sat, flow, duty, steam_side, steam_flow, water, arrangement):
+    """Sum of the zones' areas, m² (with a U), recording nothing: the area :func:`add_zones` finds."""
+    zones = zone_table(inputs, steam_states, t_sat, flow, duty, steam_side, steam_flow, water)
+    return sum(zone_sizing(inputs, zone, arrangement)[4] for zone in zones)
 
 
 def _zone_assumptions(inputs, zones, arrangement, result):
@@ -195,8 +234,8 @@ def _zone_assumptions(inputs, zones, arrangement, result):
             result.assumptions.append(
                 "Desuperheating zone on the wet-wall basis: the wall is below the steam's saturation temperature, "
                 "so a condensate film wets it and the superheat is given up through that film; driving force "
-                "T_sat − T_process, at the condensing U (common practice). Give desuperheating_u for a dry-wall "
-                "zone")
+                "T_sat − T_process, at the condensing U (common practice). For a dry-wall zone give its own U, e.g. "
+                "desuperheating_u = \"0.1 kW/(m²·K)\"")
         else:
             result.assumptions.append(
                 f"Desuperheating zone on the dry-wall basis at the given desuperheating U "

@@ -18,11 +18,12 @@ from ...properties.steam import CRITICAL_PRESSURE, CRITICAL_TEMPERATURE, SteamSt
 from ..balance import Stream, check_energy_balance
 from ...units.amounts import Phrase
 from ..base import Result, bar_a, check_fields, deg_c, full_record_wanted, input_field
-from .equipment import line_section, valve_section
+from .equipment import UPSTREAM_PRESSURE_BASES, line_section, relief_load_section, valve_section
 from .figures import figures
 from .relief import relief_section
 from .spray import SPRAY_PRESSURE_DIFFERENCE_RESULTS, check_spray_inputs, spray_field, spray_section
-from .station import downstream_section, line_loss_section, noise_section
+from .station import downstream_section, line_loss_section
+from .valve_noise import noise_section
 from .turbine import power_section
 
 KIND = "letdown"
@@ -31,13 +32,25 @@ WORKBOOK = "letdown.ipynb"
 #: Results the uncertainty section gives bands and sensitivities for.
 UNCERTAINTY_RESULTS = ("outlet_temperature", "outlet_superheat", "throttled_temperature", "spray_water_flow", "valve_kv", "recoverable_power")
 #: Plain fractions shown in % (display only; records keep the fraction).
-PERCENT_VALUES = ("overpressure", "isentropic_efficiency", "generator_efficiency")
+PERCENT_VALUES = ("overpressure", "upstream_accumulation", "isentropic_efficiency", "generator_efficiency")
 #: Bases this release changed, so that verify lists what a record of an earlier release differs by, and why,
 #: instead of calling it edited: patterns (fnmatch) over result keys, step labels, check names and statements.
 BASIS_CHANGES = (
     ("0.3", "relief load on the densest credible inlet steam (dry saturated at the highest upstream pressure)",
      ("fail_open_flow*", "bypass_open_flow", "relief_*", "Fail-open flow", "Bypass-open flow", "Required area*",
       "Relief*", "Reaction force*", "Relief load*")),
+    ("0.3", "the pressures a flow case is sized at are recorded as a number (the valve inlet pressure), not a text",
+     ("valve_pressures_*", "valve_inlet_pressure_*")),
+    ("0.3", "the relief load at the upstream safety valve's relieving pressure (its set pressure plus accumulation)",
+     ("upstream_relieving_pressure", "Upstream relieving pressure", "Relieving steam*")),
+    ("0.3", "two-stage let-down: each stage sized on its own valve, the split chosen for the least combined noise, "
+     "the combined level judged; noise beyond the method's outlet Mach number scope fails",
+     ("two_stage_*", "Two-stage*", "Single-stage let-down", "Valve outlet Mach number*", "valve_outlet_mach_*",
+      "Noise method*", "Valve noise*", "Combined*")),
+    ("0.3", "spray-water valve with its reducers (Fp, FLP); evaporation length over the droplet-size range, the sensor "
+     "checked at the coarse end when the maker gives no figure",
+     ("spray_valve_*", "evaporation_length*", "Spray valve*", "Spray-water valve*", "Evaporation length*",
+      "Temperature sensor*", "Spray droplet size*", "Incipient cavitation*")),
 )
 
 #: Results that hold a pressure difference (shown as "bar difference", not bar(a)).
@@ -113,6 +126,11 @@ class Inputs:
     desuperheater_pipe_size: str | None = spray_field("desuperheater_pipe_size")
     desuperheater_velocity_limit: float | None = spray_field("desuperheater_velocity_limit")
     spray_droplet_size: float | None = spray_field("spray_droplet_size")
+    recommended_sensor_distance: float | None = spray_field("recommended_sensor_distance")
+    spray_valve_size: str | None = spray_field("spray_valve_size")
+    spray_inlet_pipe_size: str | None = spray_field("spray_inlet_pipe_size")
+    spray_outlet_pipe_size: str | None = spray_field("spray_outlet_pipe_size")
+    spray_pipe_schedule: str | None = spray_field("spray_pipe_schedule")
 
     max_flow: float | None = input_field(
         "mass_flow", "Maximum flow", "Largest flow the valve must pass (sizing case).", example="5.5 t/h",
@@ -138,9 +156,18 @@ class Inputs:
         "number", "Rangeability", "Inherent rangeability of an equal-percentage trim.", example="50",
         section="valve")
     max_inlet_pressure: float | None = input_field(
-        "pressure", "Highest upstream pressure", "Highest pressure the inlet can reach (boiler or HP header "
-        "safety-valve setting): sets the fail-open flow and the minimum-flow sizing case.",
+        "pressure", "Highest upstream pressure", "Highest upstream pressure in service: the minimum flow is sized "
+        "at it, and the fail-open flow is taken at it, or at its relieving pressure when it is the upstream safety "
+        "valve's set pressure (see the next two boxes).",
         example="18 bar(g)", section="valve")
+    upstream_pressure_basis: str | None = input_field(
+        "text", "Highest upstream pressure is", "'set pressure': the upstream safety valve's set pressure, to which "
+        "its accumulation is added for the relief load (default); 'relieving pressure': the highest the upstream "
+        "reaches, taken as it is.", example="set pressure", section="valve")
+    upstream_accumulation: float | None = input_field(
+        "dimensionless", "Upstream safety valve accumulation", "Rise above the upstream safety valve's set pressure "
+        "while it relieves, of the gauge set pressure (default 10 %, the single-valve allowance; a boiler's safety "
+        "valves allow less).", example="10 %", section="valve")
     relief_min_superheat: float | None = input_field(
         "temperature_difference", "Least superheat at the highest upstream pressure",
         "Superheat the inlet steam keeps for certain when the upstream is at its highest pressure (the relief "
@@ -161,6 +188,10 @@ class Inputs:
     valve_outlet_size: str | None = input_field(
         "nominal_size", "Valve outlet port size", "Nominal size of the valve's outlet port, for the outlet Mach "
         "number and the noise (default: the valve size).", example="DN80", section="valve")
+    outlet_expander_size: str | None = input_field(
+        "nominal_size", "Outlet expander size", "Outlet size of a concentric expander fitted on the valve outlet: "
+        "with it the noise above an outlet Mach number of 0.3 is a warning, without it outside the method "
+        "(default: no expander).", example="DN200", section="valve")
     noise_limit: str | None = input_field(
         "text", "Noise limit at 1 m", "A-weighted sound pressure limit 1 m from the pipe (default 85 dB(A)).",
         example="85 dB(A)", section="valve", key="noise_limit")
@@ -291,6 +322,24 @@ class Inputs:
                     f"the back pressure {bar_a(self.back_pressure)} is not below the set pressure {bar_a(set_pressure)}",
                     field="relief.back_pressure", value=self.back_pressure,
                     fix="give the superimposed plus built-up pressure at the valve outlet, below the set pressure")
+        if self.upstream_pressure_basis is not None and self.upstream_pressure_basis not in UPSTREAM_PRESSURE_BASES:
+            raise InputError("the highest upstream pressure is either the upstream safety valve's 'set pressure' or "
+                             "its 'relieving pressure'", field="valve.upstream_pressure_basis",
+                             value=self.upstream_pressure_basis, fix="write 'set pressure' or 'relieving pressure'")
+        for name in ("upstream_pressure_basis", "upstream_accumulation"):
+            if getattr(self, name) is not None and self.max_inlet_pressure is None:
+                raise InputError("given without a highest upstream pressure", field=f"valve.{name}",
+                                 value=getattr(self, name), fix="give valve.max_inlet_pressure, or remove this")
+        if self.upstream_accumulation is not None:
+            if self.upstream_pressure_basis == "relieving pressure":
+                raise InputError("an accumulation is given for a pressure said to be the relieving pressure already",
+                                 field="valve.upstream_accumulation", value=self.upstream_accumulation,
+                                 fix="remove it, or set valve.upstream_pressure_basis = 'set pressure'")
+            if not 0.0 <= self.upstream_accumulation <= 0.21:
+                raise InputError(f"accumulation {100 * self.upstream_accumulation:g} % is outside 0-21 % of the gauge "
+                                 "set pressure", field="valve.upstream_accumulation", value=self.upstream_accumulation,
+                                 limits=(0, 21, "%"), fix="10 % for a single valve, 16 % for several, 21 % for fire "
+                                 "(API 520 Part I); 3-6 % for boiler safety valves")
         if self.overpressure is not None and not 0.03 <= self.overpressure <= 0.21:
             raise InputError(f"overpressure {100 * self.overpressure:g} % is outside 3-21 % of the set pressure",
                              field="relief.overpressure", value=self.overpressure, limits=(3, 21, "%"),
@@ -554,6 +603,7 @@ def calculate(inputs, site):
     result.states.update(inlet=inlet, throttled=throttled, outlet=outlet)
     valve_section(inputs, inlet, result)
     if full_record_wanted():   # a Monte Carlo sample needs none of these for its banded results
+        relief_load_section(inputs, inlet, site, result)
         line_section(inputs, inlet, throttled, outlet, result)
         line_loss_section(inputs, result)
         noise_section(inputs, result)

@@ -13,7 +13,6 @@ from ...equipment.valve import kv_to_cv, piping_factors, size_steam_valve, trave
 from ...errors import InputError, OutOfRangeError
 from ...properties.steam import CRITICAL_PRESSURE, CRITICAL_TEMPERATURE, SteamState, dynamic_viscosity, saturation_temperature
 from ...units.amounts import Amount, Phrase
-from ..base import full_record_wanted
 
 #: Defaults stated as assumptions when not given (common practice for globe control valves).
 DEFAULT_XT = 0.70
@@ -24,6 +23,13 @@ DEFAULT_RANGEABILITY = 50.0
 DEFAULT_MAX_VELOCITY_WET = 30.0
 DEFAULT_MAX_VELOCITY_SUPERHEATED = 45.0
 DEFAULT_SCHEDULE = "40"
+#: What valve.max_inlet_pressure is when not said: the upstream safety valve's set pressure (the figure an
+#: engineer finds on the upstream header's data sheet), to which its accumulation is added for the relief load.
+DEFAULT_UPSTREAM_PRESSURE_BASIS = "set pressure"
+UPSTREAM_PRESSURE_BASES = ("set pressure", "relieving pressure")
+#: Accumulation of the upstream safety valve, of its gauge set pressure (API 520 Part I single-valve
+#: allowance, from memory; conservative for a boiler under ASME Section I, which allows less).
+DEFAULT_UPSTREAM_ACCUMULATION = 0.10
 #: Preferred nominal sizes for suggestions (common practice: DN90, DN125 and the like are
 #: hard to buy and to fit).
 NON_PREFERRED_DN = (90, 125)
@@ -71,7 +77,7 @@ def case_inlet_pressure(inputs, case):
     pressure, the minimum flow at the highest, the normal flow at the normal pressure."""
     if case == "maximum" and inputs.min_inlet_pressure is not None:
         return inputs.min_inlet_pressure
-    if case in ("minimum", "fail-open") and inputs.max_inlet_pressure is not None:
+    if case == "minimum" and inputs.max_inlet_pressure is not None:
         return inputs.max_inlet_pressure
     return inputs.inlet_pressure
 
@@ -142,10 +148,6 @@ def valve_inlet_state(inputs, case, flow, normal_inlet):
         return SteamState.from_ph(upstream.pressure - loss.pressure_drop, upstream.enthalpy), loss.pressure_drop
     except OutOfRangeError as exc:
         raise exc.for_field("lines.inlet_length") from None
-
-
-def _pressure_pair(p1, p2):
-    return f"{p1 / 1e5:.4g} bar(a) → {p2 / 1e5:.4g} bar(a)"
 
 
 def _diameters(inputs):
@@ -219,8 +221,9 @@ def valve_section(inputs, inlet, result):
             result.add(f"inlet_line_pressure_drop_{name}", f"Inlet line pressure drop, {name} flow", drop / 1e5, "bar")
         result.add(f"valve_kv_{name}", f"Required Kv, {name} flow", s.kv, "m**3/h")
         result.add(f"choked_{name}", f"Choked flow, {name} flow", s.choked)
-        result.add(f"valve_pressures_{name}", f"Pressures the {name} flow is sized at",
-                   _pressure_pair(state.pressure, inputs.outlet_pressure))
+        # A number, not a text "p1 → p2": views write it in their own units and verify compares it as a number.
+        result.add(f"valve_inlet_pressure_{name}", f"Valve inlet pressure the {name} flow is sized at",
+                   state.pressure / 1e5, "bar")
     design_case = "maximum" if "maximum" in sizing else "normal"
     design, state = sizing[design_case], states[design_case]
     p1_kpa = state.pressure / 1e3
@@ -261,8 +264,6 @@ def valve_section(inputs, inlet, result):
         source="IEC 60534-2-1")
     if inputs.rated_kv is not None:
         _rated_valve(inputs, sizing, design, result)
-    if full_record_wanted():   # the relief load feeds no banded result
-        relief_load_section(inputs, inlet, result)
     return sizing
 
 
@@ -296,12 +297,76 @@ def _rated_valve(inputs, sizing, design, result):
                 expression, result.value("valve_travel_normal"), "percent", **ratios)
 
 
-def relief_load_section(inputs, inlet, result):
+def upstream_relieving_pressure(inputs, atmospheric_pressure, result=None):
+    """The highest pressure the upstream reaches when the let-down fails open (Pa absolute).
+
+    ``valve.max_inlet_pressure`` is, by ``valve.upstream_pressure_basis``, either the upstream safety
+    valve's set pressure (the default), to which its accumulation is added on the gauge pressure,
+
+    .. math:: p_{up} = p_{set,up} + a\\,(p_{set,up} - p_{atm})
+
+    or already the highest pressure the upstream reaches ("relieving pressure"), taken as it is.
+
+    Parameters
+    ----------
+    inputs : Inputs
+        The let-down's inputs; ``max_inlet_pressure`` in Pa absolute.
+    atmospheric_pressure : float
+        The site's atmospheric pressure, Pa.
+    result : Result, optional
+        Where the step and the assumption are written.
+
+    Returns
+    -------
+    float
+        Pa absolute.
+
+    References
+    ----------
+    API 520 Part I, allowable accumulation of a single pressure-relief device: 10 % of the gauge set pressure
+    (from memory; a boiler's safety valves under ASME Section I allow less, so 10 % is the conservative default).
+
+    Examples
+    --------
+    >>> from types import SimpleNamespace
+    >>> given = SimpleNamespace(max_inlet_pressure=19.01325e5, upstream_pressure_basis=None, upstream_accumulation=None)
+    >>> round(upstream_relieving_pressure(given, 1.01325e5) / 1e5, 5)
+    20.81325
+    """
+    p_given = inputs.max_inlet_pressure
+    basis = inputs.upstream_pressure_basis or DEFAULT_UPSTREAM_PRESSURE_BASIS
+    if basis == "relieving pressure":
+        if result is not None:
+            result.assumptions.append(
+                "The highest upstream pressure is given as the highest the upstream reaches "
+                "(valve.upstream_pressure_basis = 'relieving pressure'): no accumulation is added")
+        return p_given
+    accumulation = (inputs.upstream_accumulation if inputs.upstream_accumulation is not None
+                    else DEFAULT_UPSTREAM_ACCUMULATION)
+    p_up = p_given + accumulation * (p_given - atmospheric_pressure)
+    if result is not None:
+        result.assumptions.append(
+            "The highest upstream pressure is the upstream safety valve's set pressure (valve.upstream_pressure_basis "
+            f"= 'set pressure'{'' if inputs.upstream_pressure_basis else ', the default'}): the relief load is taken "
+            f"at its relieving pressure, with an accumulation of {100 * accumulation:g} % of the gauge set pressure"
+            + ("" if inputs.upstream_accumulation is not None else
+               " (the single-valve allowance of API 520 Part I, from memory; a boiler's safety valves under ASME "
+               "Section I allow less: give valve.upstream_accumulation)"))
+        result.work("Upstream relieving pressure", "p_up = p_set,up + a·(p_set,up − p_atm)  (accumulation on the "
+                    "gauge set pressure)", "p_set_up + a*(p_set_up - p_atm)", p_up / 1e5, "bar",
+                    p_set_up=(p_given / 1e5, "bar"), a=(accumulation, ""), p_atm=(atmospheric_pressure / 1e5, "bar"))
+        result.add("upstream_relieving_pressure", "Highest upstream pressure at relief (set pressure plus "
+                   "accumulation)", p_up / 1e5, "bar")
+    return p_up
+
+
+def relief_load_section(inputs, inlet, site, result):
     """Flow through the rated valve, and through the bypass, wide open at the highest upstream
     pressure against the downstream relief set pressure; the relief device's design flow."""
     if inputs.rated_kv is None and inputs.bypass_kv is None:
         return
-    p_up = case_inlet_pressure(inputs, "fail-open")
+    p_up = (inputs.inlet_pressure if inputs.max_inlet_pressure is None
+            else upstream_relieving_pressure(inputs, site.atmospheric_pressure, result))
     if inputs.max_inlet_pressure is None:
         result.check("Highest upstream pressure given", "warn",
                      Phrase.of("no highest upstream pressure: the fail-open flow is taken at the normal inlet pressure "
@@ -324,9 +389,8 @@ def relief_load_section(inputs, inlet, result):
     state, basis = relief_inlet_state(inputs, p_up, normal_state)
     kappa = sizing_kappa(state)
     result.assumptions.append(
-        f"Relief load: valve and bypass wide open at the highest upstream pressure {p_up / 1e5:.4g} bar(a), taken "
-        f"as the highest pressure the upstream reaches (if it is the upstream safety valve's set pressure, give "
-        f"its relieving pressure, set pressure plus accumulation, instead), on {basis} against {where}; no credit "
+        f"Relief load: valve and bypass wide open at the highest upstream pressure {p_up / 1e5:.4g} bar(a), "
+        f"on {basis} against {where}; no credit "
         "for the low-pressure users' consumption (common practice). The valve failing open and the bypass opened in "
         "error are taken as separate single failures, not together (the single-jeopardy basis of API 521, from "
         "memory)")

@@ -17,7 +17,7 @@ from ...properties.steam import CRITICAL_PRESSURE
 from ...properties.steam_arrays import properties_pT, saturation_arrays, states_ps
 from ..base import Axis, Band, Figure, Series, figure_or_missing
 from .equipment import flow_cases, rated_travel, required_kv, sizing_kappa
-from .station import noise_geometry, stage_noise
+from .valve_noise import noise_geometry, stage_noise
 
 #: Points along each curve.
 CURVE_POINTS = 60

@@ -17,7 +17,7 @@ from ...errors import OutOfRangeError
 from ...properties.steam import SteamState
 from ...units.amounts import Phrase
 from .equipment import (
-    DEFAULT_SCHEDULE, case_inlet_pressure, inlet_state_at, line_drop, relief_set_pressure, sizing_kappa,
+    DEFAULT_SCHEDULE, inlet_state_at, line_drop, relief_set_pressure, sizing_kappa, upstream_relieving_pressure,
 )
 
 DEFAULT_OVERPRESSURE = 0.10
@@ -88,7 +88,10 @@ def relief_section(inputs, inlet, site, result):
     result.work("Relieving pressure", "P1 = p_set + overpressure·(p_set − p_atm)", "p_set + overpressure*(p_set - p_atm)",
                 p_relieve / 1e5, "bar", p_set=(p_set / 1e5, "bar"), overpressure=(overpressure, ""),
                 p_atm=(atm / 1e5, "bar"))
-    upstream = inlet_state_at(inputs, case_inlet_pressure(inputs, "fail-open"), inlet)
+    # The steam that relieves is the steam the failed-open valve passes: at the upstream pressure of the relief load.
+    p_up = (inputs.inlet_pressure if inputs.max_inlet_pressure is None
+            else upstream_relieving_pressure(inputs, atm))
+    upstream = inlet_state_at(inputs, p_up, inlet)
     try:
         relieving = SteamState.from_ph(p_relieve, upstream.enthalpy)
     except OutOfRangeError as exc:

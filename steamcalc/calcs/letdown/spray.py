@@ -2,10 +2,12 @@
 
 The spray flow at each of the station's flow cases (minimum, normal, maximum) sizes the
 spray-water valve to IEC 60534-2-1 for liquids, from the spray supply pressure to the steam
-pressure plus the nozzle's own differential; the travel of the rated valve, its
-cavitation indication and the spray turndown follow. The steam velocity at the
-desuperheater at the minimum flow and the length the spray takes to evaporate are checked
-against a minimum velocity and the distance to the temperature sensor.
+pressure plus the nozzle's own differential, with the piping geometry factor Fp and the
+combined factor FLP when the valve size and its pipe sizes are given; the travel of the rated
+valve, its cavitation indication and the spray turndown follow. The steam velocity at the
+desuperheater at the minimum flow is checked against a minimum velocity, and the length the
+spray takes to evaporate (at the maker's droplet size, or assumed and shown over a range of
+sizes) against the distance to the temperature sensor, or the sensor against the maker's distance.
 
 The input fields are declared here (:func:`spray_field`) and listed in the let-down's
 ``Inputs``; :func:`check_spray_inputs` is called from its ``__post_init__`` and
@@ -15,19 +17,19 @@ target state is known.
 
 from __future__ import annotations
 
-import math
-
-from ...equipment.desuperheater import (
-    DEFAULT_DROPLET_SIZE, DEFAULT_MIN_STEAM_VELOCITY, DROPLET_NUSSELT, droplet_lifetime, evaporation_length,
+from ...equipment.desuperheater import DEFAULT_DROPLET_SIZE, DEFAULT_MIN_STEAM_VELOCITY, TYPICAL_DROPLET_SIZES
+from ...equipment.liquid_valve import (
+    FITTINGS_TOLERANCE, INCIPIENT_FRACTION_OF_FL2, WATER_DENSITY_15C, size_liquid_valve, usable_turndown, valve_travel,
 )
-from ...equipment.liquid_valve import WATER_DENSITY_15C, size_liquid_valve, usable_turndown, valve_travel
-from ...equipment.piping import line_velocity, pipe_inner_diameter
-from ...errors import InputError, OutOfRangeError
-from ...properties.steam import CRITICAL_PRESSURE, SteamState, saturation_pressure, saturation_temperature, thermal_conductivity
+from ...equipment.piping import pipe_inner_diameter
+from ...equipment.valve import N2_KV
+from ...errors import InputError, OutOfRangeError, SteamcalcError
+from ...properties.steam import CRITICAL_PRESSURE, SteamState, saturation_pressure, saturation_temperature
 from ...units.amounts import Amount, Phrase
 from ..base import bar_a, deg_c, input_field
 from ...equipment.valve import TRAVEL_FAIL, travel_limits
 from .equipment import DEFAULT_FL, DEFAULT_RANGEABILITY, DEFAULT_SCHEDULE, flow_cases
+from .evaporation import evaporation_section
 
 DEFAULT_CHARACTERISTIC = "equal-percentage"
 #: Spray results that hold a pressure difference (shown as "bar difference").
@@ -68,9 +70,26 @@ _FIELDS = {
         f"desuperheater needs (default {DEFAULT_MIN_STEAM_VELOCITY:g} m/s; maker's data).", example="6 m/s",
         positive=True, key="min_steam_velocity"),
     "spray_droplet_size": dict(
-        kind="length", label="Spray droplet size", help="Droplet size of the spray for the evaporation length "
-        f"(default {DEFAULT_DROPLET_SIZE * 1e6:g} µm; nozzle maker's data).", example="50 um", positive=True,
-        key="droplet_size"),
+        kind="length", label="Spray droplet size", help="The nozzle maker's droplet size of the spray, for the "
+        f"evaporation length (not given: {DEFAULT_DROPLET_SIZE * 1e6:g} µm is assumed, the length is shown over "
+        f"{TYPICAL_DROPLET_SIZES[0] * 1e6:g}-{TYPICAL_DROPLET_SIZES[1] * 1e6:g} µm and the sensor is checked at "
+        f"{TYPICAL_DROPLET_SIZES[1] * 1e6:g} µm).", example="50 um", positive=True, key="droplet_size"),
+    "recommended_sensor_distance": dict(
+        kind="length", label="Maker's sensor distance", help="The desuperheater maker's smallest distance from the "
+        "spray point to the temperature sensor; when given, the sensor is checked against it.", example="12 m",
+        positive=True),
+    "spray_valve_size": dict(
+        kind="nominal_size", label="Spray valve size", help="Nominal size of the spray-water valve body, for the "
+        "piping geometry factor Fp with reducers (not given: Fp = 1).", example="DN15"),
+    "spray_inlet_pipe_size": dict(
+        kind="nominal_size", label="Spray pipe size before the valve", help="Nominal size of the spray-water pipe "
+        "upstream of the spray valve (its reducer enters Fp and FLP).", example="DN25"),
+    "spray_outlet_pipe_size": dict(
+        kind="nominal_size", label="Spray pipe size after the valve", help="Nominal size of the spray-water pipe "
+        "downstream of the spray valve (its expander enters Fp).", example="DN25"),
+    "spray_pipe_schedule": dict(
+        kind="text", label="Spray pipe schedule", help="ASME B36.10M schedule of the spray-water pipe and valve "
+        "bore (default: the lines' schedule, else 40).", example="80"),
 }
 
 #: The let-down ``Inputs`` fields of the spray valve and evaporation.
@@ -88,9 +107,50 @@ def _address(name):
     return f"desuperheater.{_FIELDS[name].get('key', name)}"
 
 
+def _given(inputs, name):
+    """The spray input ``name`` of the let-down inputs; None when not given.
+
+    A field declared here takes effect once the let-down ``Inputs`` lists it; until then no case can give it
+    (a case file naming it is refused as an unknown key), so it reads as not given.
+    """
+    return getattr(inputs, name, None)
+
+
+def _spray_schedule(inputs):
+    return _given(inputs, "spray_pipe_schedule") or inputs.schedule or DEFAULT_SCHEDULE
+
+
+def _spray_valve_bores(inputs):
+    """Valve size d and the bores D1, D2 of the spray pipes either side, mm (None where not given)."""
+    schedule = _spray_schedule(inputs)
+    bores = []
+    for name in ("spray_valve_size", "spray_inlet_pipe_size", "spray_outlet_pipe_size"):
+        text = _given(inputs, name)
+        try:
+            bores.append(None if text is None else 1e3 * pipe_inner_diameter(text, schedule, field=_address(name)))
+        except InputError as exc:
+            if exc.field != "schedule":
+                raise
+            given = _given(inputs, "spray_pipe_schedule") is not None
+            raise exc.for_field(_address("spray_pipe_schedule") if given else "lines.schedule") from None
+    return tuple(bores)
+
+
+def _check_spray_pipes(inputs):
+    valve, inlet, outlet = _spray_valve_bores(inputs)
+    if valve is None:
+        return
+    for name, bore in (("spray_inlet_pipe_size", inlet), ("spray_outlet_pipe_size", outlet)):
+        if bore is not None and bore < valve:
+            raise InputError(f"the spray valve ({_given(inputs, 'spray_valve_size')}) is larger than its pipe "
+                             f"({_given(inputs, name)}): the IEC 60534-2-1 reducer factors are for a valve no larger "
+                             "than the pipes either side", field=_address(name), value=_given(inputs, name),
+                             fix="check the spray valve size and the spray pipe sizes")
+
+
 def check_spray_inputs(inputs):
     """Structural checks of the spray-valve and evaporation inputs (InputError naming the field)."""
-    given = [name for name in _FIELDS if getattr(inputs, name) is not None]
+    given = [name for name in _FIELDS if _given(inputs, name) is not None]
     if given and not inputs.desuperheating:
         raise InputError("spray valve or evaporation data is given but no desuperheater target",
                          field=_address(given[0]), fix="add target_superheat or target_temperature to "
@@ -119,6 +179,7 @@ def check_spray_inputs(inputs):
     if nozzle is not None and nozzle < 0.0:
         raise InputError("the nozzle differential cannot be negative", field=_address("nozzle_differential"),
                          value=nozzle, fix="give the nozzle's own pressure drop, zero or more")
+    _check_spray_pipes(inputs)
     if not inputs.desuperheating or inputs.outlet_pressure >= inputs.inlet_pressure:
         return   # no desuperheater, or a let-down the calculation refuses on its outlet pressure
     if inputs.spray_supply_pressure is None and not nozzle:
@@ -187,7 +248,7 @@ def spray_section(inputs, result):
                         h2=(h2 / 1e3, "kJ/kg"), h3=(target.enthalpy / 1e3, "kJ/kg"), h_w=(water.enthalpy / 1e3, "kJ/kg"))
     if sprays:
         _spray_valve(inputs, sprays, water, result)
-    _evaporation(inputs, sprays, throttled, target, water, result)
+    evaporation_section(inputs, sprays, throttled, target, water, result)
 
 
 def _spray_valve(inputs, sprays, water, result):
@@ -205,10 +266,16 @@ def _spray_valve(inputs, sprays, water, result):
         (inputs.spray_valve_rangeability, f"rangeability R = {DEFAULT_RANGEABILITY:g}")) if given is None]
     if defaults:
         result.assumptions.append("Spray-water valve, not given: " + "; ".join(defaults))
+    valve_d, inlet_d, outlet_d = _spray_valve_bores(inputs)
+    fittings = valve_d is not None and (inlet_d is not None or outlet_d is not None)
     result.assumptions.append(
-        "Spray-water valve: supply and steam pressures the same at every flow, so its pressure differential and "
-        "cavitation indication do not change with flow, and its Kv turndown equals the spray turndown; Fp = 1 "
-        "(valve and pipe sizes not given), turbulent flow (no Reynolds number factor)")
+        "Spray-water valve: supply and steam pressures the same at every flow, so its pressure differential does "
+        "not change with flow" + (
+            "; with reducers FLP/Fp, and with it the choked and incipient-cavitation differentials, change with the "
+            "Kv, so the cavitation indication is taken at the flow where they are lowest" if fittings else
+            ", nor does its cavitation indication, and its Kv turndown equals the spray turndown")
+        + "; turbulent flow (no Reynolds number factor)")
+    result.assumptions.append(_fittings_basis(inputs, valve_d, inlet_d, outlet_d))
     try:
         supply_saturation = saturation_temperature(supply)
     except OutOfRangeError as exc:
@@ -219,11 +286,20 @@ def _spray_valve(inputs, sprays, water, result):
                          fix="give the pressure upstream of the spray-water valve")
     inlet = _water_state(supply, inputs.water_temperature, _address("spray_supply_pressure"))
     pv = saturation_pressure(inputs.water_temperature)
-    sizing = {name: size_liquid_valve(w * 3600, supply / 1e3, p_out / 1e3, inlet.density, pv / 1e3,
-                                      CRITICAL_PRESSURE / 1e3, fl) for name, w in sprays.items()}
-    any_case = next(iter(sizing.values()))
+    diameters = (valve_d, inlet_d, outlet_d) if fittings else (None, None, None)
+    try:
+        sizing = {name: size_liquid_valve(w * 3600, supply / 1e3, p_out / 1e3, inlet.density, pv / 1e3,
+                                          CRITICAL_PRESSURE / 1e3, fl, *diameters) for name, w in sprays.items()}
+    except SteamcalcError as exc:
+        if exc.field != "valve_d":
+            raise
+        exc.field, exc.value = _address("spray_valve_size"), _given(inputs, "spray_valve_size")
+        raise exc from None
+    # The flow at which FLP/Fp, and so the choked and incipient differentials, are lowest: any flow without fittings.
+    worst = min(sizing, key=lambda name: sizing[name].incipient_differential)
+    at_worst = sizing[worst]
     p1, p_v = (supply / 1e5, "bar"), (pv / 1e5, "bar")
-    ff = any_case.liquid_critical_pressure_ratio
+    ff = at_worst.liquid_critical_pressure_ratio
     result.work("Spray valve pressure differential", "Δp = p1 − p2,  p1 = p_supply,  p2 = p_steam + Δp_nozzle",
                 "p1 - (p_steam + dp_nozzle)", (supply - p_out) / 1e5, "bar", p1=p1,
                 p_steam=(inputs.outlet_pressure / 1e5, "bar"), dp_nozzle=(nozzle / 1e5, "bar", "difference"))
@@ -231,33 +307,59 @@ def _spray_valve(inputs, sprays, water, result):
                 T_w=(inputs.water_temperature - 273.15, "degC"))
     result.work("Liquid critical pressure ratio factor", "FF = 0.96 − 0.28·√(pv/pc)  [IEC 60534-2-1 eq. (3)]",
                 "0.96 - 0.28*sqrt(pv/pc)", ff, pv=p_v, pc=(CRITICAL_PRESSURE / 1e5, "bar"))
-    result.work("Spray valve choked differential", "Δp_choked = FL²·(p1 − FF·pv)  [IEC 60534-2-1 eq. (2), Fp = 1]",
-                "FL*FL*(p1 - FF*pv)", any_case.choked_differential / 1e2, "bar", FL=(fl, ""), p1=p1, FF=(ff, ""),
-                pv=p_v)
+    if fittings:
+        _fittings_steps(sizing, fl, (valve_d, inlet_d, outlet_d), p1, p_v, ff, result)
+    else:
+        result.work("Spray valve choked differential", "Δp_choked = FL²·(p1 − FF·pv)  [IEC 60534-2-1 eq. (2), "
+                    "Fp = 1, FLP = FL]", "FL*FL*(p1 - FF*pv)", at_worst.choked_differential / 1e2, "bar", FL=(fl, ""),
+                    p1=p1, FF=(ff, ""), pv=p_v)
     result.add("spray_valve_pressure_differential", "Spray valve pressure differential",
-               any_case.pressure_differential / 1e2, "bar")
-    result.add("spray_valve_choked_differential", "Spray valve choked pressure differential",
-               any_case.choked_differential / 1e2, "bar")
+               at_worst.pressure_differential / 1e2, "bar")
+    result.add("spray_valve_choked_differential", "Spray valve choked pressure differential" + (
+        f" (lowest, at the {worst} steam flow)" if fittings else ""), at_worst.choked_differential / 1e2, "bar")
     result.add("spray_water_density", "Spray water density at the valve inlet", inlet.density, "kg/m**3")
     for name, s in sizing.items():
         # N1 = 0.1 holds for W in kg/h, ρ in kg/m³ and Δp in kPa only.
-        result.work(f"Spray valve Kv ({name} steam flow)",
-                    "Kv = Q/N1·√((ρ1/ρ0)/Δp_siz),  Q = W/ρ1,  N1 = 0.1,  Δp_siz = min(Δp, Δp_choked)  "
-                    "[IEC 60534-2-1 eq. (1); m³/h, kg/h, kg/m³, kPa difference]",
-                    "W/rho1/0.1*sqrt((rho1/rho0)/min(dp, dp_choked))", s.kv, "m**3/h", units_fixed=True,
-                    role="flow_coefficient", W=(sprays[name] * 3600, "kg/h"), rho1=(inlet.density, "kg/m**3"),
-                    rho0=(WATER_DENSITY_15C, "kg/m**3"), dp=(s.pressure_differential, "kPa", "difference"),
-                    dp_choked=(s.choked_differential, "kPa", "difference"))
+        common = dict(units_fixed=True, role="flow_coefficient", W=(sprays[name] * 3600, "kg/h"),
+                      rho1=(inlet.density, "kg/m**3"), rho0=(WATER_DENSITY_15C, "kg/m**3"),
+                      dp=(s.pressure_differential, "kPa", "difference"),
+                      dp_choked=(s.choked_differential, "kPa", "difference"))
+        if fittings:
+            result.work(f"Spray valve Kv ({name} steam flow)",
+                        "Kv = Q/(N1·Fp)·√((ρ1/ρ0)/Δp_siz),  Q = W/ρ1,  N1 = 0.1,  Δp_siz = min(Δp, Δp_choked)  "
+                        "[IEC 60534-2-1 clause 6.2, with fittings; m³/h, kg/h, kg/m³, kPa difference]",
+                        "W/rho1/(0.1*Fp)*sqrt((rho1/rho0)/min(dp, dp_choked))", s.kv, "m**3/h",
+                        Fp=(s.piping_factor, ""), **common)
+        else:
+            result.work(f"Spray valve Kv ({name} steam flow)",
+                        "Kv = Q/N1·√((ρ1/ρ0)/Δp_siz),  Q = W/ρ1,  N1 = 0.1,  Δp_siz = min(Δp, Δp_choked)  "
+                        "[IEC 60534-2-1 eq. (1), Fp = 1; m³/h, kg/h, kg/m³, kPa difference]",
+                        "W/rho1/0.1*sqrt((rho1/rho0)/min(dp, dp_choked))", s.kv, "m**3/h", **common)
         result.add(f"spray_valve_kv_{name}", f"Spray valve required Kv, {name} steam flow", s.kv, "m**3/h")
-    verdict = any_case.cavitation
+    if fittings:
+        largest = max(sizing, key=lambda name: sizing[name].kv)
+        result.add("spray_valve_piping_factor", f"Spray valve piping geometry factor Fp, {largest} steam flow",
+                   sizing[largest].piping_factor)
+        result.add("spray_valve_combined_fl", f"Spray valve FLP (FL with its inlet reducer), {largest} steam flow",
+                   sizing[largest].combined_fl)
+    ratio = "(FLP/Fp)" if fittings else "FL"
+    kc_symbols = dict(FLP=(at_worst.combined_fl, ""), Fp=(at_worst.piping_factor, "")) if fittings else dict(FL=(fl, ""))
+    kc_expression = "0.8*(FLP/Fp)*(FLP/Fp)" if fittings else "0.8*FL*FL"
+    result.work("Spray valve incipient-cavitation differential",
+                f"Δp_incipient = Kc·(p1 − pv),  Kc = {INCIPIENT_FRACTION_OF_FL2:g}·{ratio}²  (common practice, from "
+                "memory; the maker's Kc or xFz governs)" + (f", at the {worst} steam flow" if fittings else ""),
+                f"{kc_expression}*(p1 - pv)", at_worst.incipient_differential / 1e2, "bar", p1=p1, pv=p_v,
+                **kc_symbols)
+    verdict = at_worst.cavitation
     result.work("Spray valve cavitation indication", "indication = flashing if p2 < pv; choked if Δp ≥ Δp_choked; "
-                "incipient cavitation if Δp ≥ Kc·(p1 − pv), Kc = 0.8·FL² (common practice); else none expected",
+                f"incipient cavitation if Δp ≥ Kc·(p1 − pv), Kc = 0.8·{ratio}² (common practice); else none expected"
+                + (f"; at the {worst} steam flow" if fittings else ""),
                 "cavitation_indication(p2, pv, dp, dp_choked, dp_incipient)", verdict,
-                p2=(p_out / 1e5, "bar"), pv=p_v, dp=(any_case.pressure_differential / 1e2, "bar", "difference"),
-                dp_choked=(any_case.choked_differential / 1e2, "bar", "difference"),
-                dp_incipient=(any_case.incipient_differential / 1e2, "bar", "difference"))
+                p2=(p_out / 1e5, "bar"), pv=p_v, dp=(at_worst.pressure_differential / 1e2, "bar", "difference"),
+                dp_choked=(at_worst.choked_differential / 1e2, "bar", "difference"),
+                dp_incipient=(at_worst.incipient_differential / 1e2, "bar", "difference"))
     result.add("spray_valve_cavitation", "Spray valve cavitation indication (IEC 60534-2-1)", verdict)
-    _cavitation_check(any_case, verdict, p_out, pv, fl, result)
+    _cavitation_check(at_worst, verdict, p_out, pv, ratio, worst if fittings else "", result)
     if "minimum" in sprays and "maximum" in sprays:
         _turndown(sprays, characteristic, rangeability, result)
     else:
@@ -270,19 +372,85 @@ def _spray_valve(inputs, sprays, water, result):
                                   "(desuperheater.spray_valve_rated_kv)")
 
 
-def _cavitation_check(s, verdict, p_out, pv, fl, result):
+def _fittings_basis(inputs, valve_d, inlet_d, outlet_d):
+    """The assumption that states how the spray valve's fittings enter its sizing."""
+    if valve_d is None:
+        missing = "no spray valve size (desuperheater.spray_valve_size)"
+        if inlet_d is not None or outlet_d is not None:
+            missing += ", so its reducers cannot be counted"
+        return f"Spray-water valve: Fp = 1 and FLP = FL, the valve the size of its pipe: {missing}"
+    if inlet_d is None and outlet_d is None:
+        return (f"Spray-water valve {_given(inputs, 'spray_valve_size')}: no spray pipe sizes "
+                "(desuperheater.spray_inlet_pipe_size, spray_outlet_pipe_size), so Fp = 1 and FLP = FL, the valve "
+                "the size of its pipe")
+    sides = [f"{_given(inputs, name)} {where}" for name, where, bore in (
+        ("spray_inlet_pipe_size", "before", inlet_d), ("spray_outlet_pipe_size", "after", outlet_d)) if bore is not None]
+    return (f"Spray-water valve {_given(inputs, 'spray_valve_size')} between reducers ({' and '.join(sides)} it, "
+            f"schedule {_spray_schedule(inputs)}; the valve size d taken as the bore of its nominal size, as for the "
+            "let-down valve): piping geometry factor Fp and FLP of IEC 60534-2-1 clause 7, solved with the Kv they "
+            f"size to a relative change of {FITTINGS_TOLERANCE:g}"
+            + ("" if inlet_d is not None else "; no reducer before the valve, so FLP = FL"))
+
+
+def _fittings_steps(sizing, fl, bores, p1, p_v, ff, result):
+    """The fittings' loss coefficients, and Fp, FLP and the choked differential at each flow."""
+    valve_d, inlet_d, outlet_d = bores
+    largest = sizing[max(sizing, key=lambda name: sizing[name].kv)]
+    # The coefficients are the steam valve's (steamcalc.equipment.valve.piping_factors), inside Fp: found back
+    # from Fp at the largest Kv, the step's own arithmetic re-derives them from the diameters.
+    scale = N2_KV * (valve_d * valve_d / largest.kv) ** 2
+    sum_zeta = scale * (largest.piping_factor ** -2 - 1.0)
+    terms, operands = [], dict(d=(valve_d, "mm"))
+    if inlet_d is not None:
+        terms += ["0.5*(1 - (d/D1)**2)**2", "(1 - (d/D1)**4)"]
+        operands["D1"] = (inlet_d, "mm")
+    if outlet_d is not None:
+        terms += ["(1 - (d/D2)**2)**2", "- (1 - (d/D2)**4)"]
+        operands["D2"] = (outlet_d, "mm")
+    expression = " + ".join(terms).replace("+ -", "-")
+    result.work("Spray valve fittings' loss coefficient", "Σζ = ζ1 + ζB1 + ζ2 − ζB2,  ζ1 = 0.5·(1 − (d/D1)²)²,  "
+                "ζ2 = (1 − (d/D2)²)²,  ζBi = 1 − (d/Di)⁴  (only the fittings present)  [IEC 60534-2-1 clause 7]",
+                expression, sum_zeta, **operands)
+    if inlet_d is not None:
+        zeta_in = scale * ((fl / largest.combined_fl) ** 2 - 1.0) / fl ** 2
+        result.work("Spray valve inlet reducer's loss coefficient", "Σζ1 = ζ1 + ζB1 = 0.5·(1 − (d/D1)²)² + "
+                    "1 − (d/D1)⁴  [IEC 60534-2-1 clause 7]", "0.5*(1 - (d/D1)**2)**2 + (1 - (d/D1)**4)", zeta_in,
+                    d=(valve_d, "mm"), D1=(inlet_d, "mm"))
+    for name, s in sizing.items():
+        kv, d = Amount(s.kv, "m**3/h", role="flow_coefficient"), (valve_d, "mm")
+        # N2 = 1.60e-3 holds for Kv in m³/h and d in mm only.
+        result.work(f"Spray valve piping geometry factor ({name} steam flow)",
+                    "Fp = 1/√(1 + Σζ/N2·(Kv/d²)²),  N2 = 0.0016  [IEC 60534-2-1 clause 7; m³/h, mm]",
+                    "1/sqrt(1 + sum_zeta/0.0016*(Kv/(d*d))**2)", s.piping_factor, units_fixed=True,
+                    sum_zeta=(sum_zeta, ""), Kv=kv, d=d)
+        if inlet_d is not None:
+            result.work(f"Spray valve FLP ({name} steam flow)",
+                        "FLP = FL/√(1 + FL²·Σζ1/N2·(Kv/d²)²),  N2 = 0.0016  [IEC 60534-2-1 clause 7; m³/h, mm]",
+                        "FL/sqrt(1 + FL*FL*sum_zeta1/0.0016*(Kv/(d*d))**2)", s.combined_fl, units_fixed=True,
+                        FL=(fl, ""), sum_zeta1=(zeta_in, ""), Kv=kv, d=d)
+        result.work(f"Spray valve choked differential ({name} steam flow)",
+                    "Δp_choked = (FLP/Fp)²·(p1 − FF·pv)  [IEC 60534-2-1 clause 6.2, with fittings]"
+                    + ("" if inlet_d is not None else ", FLP = FL (no reducer before the valve)"),
+                    "(FLP/Fp)*(FLP/Fp)*(p1 - FF*pv)", s.choked_differential / 1e2, "bar",
+                    FLP=(s.combined_fl, ""), Fp=(s.piping_factor, ""), p1=p1, FF=(ff, ""), pv=p_v)
+
+
+def _cavitation_check(s, verdict, p_out, pv, ratio, at_flow, result):
     """The valve's differential against the incipient-cavitation differential.
 
-    With FL ≤ 1 and pv below p1, the choked differential lies above the incipient one, and flashing
+    With FLP/Fp ≤ 1 and pv below p1, the choked differential lies above the incipient one, and flashing
     (p2 < pv) means Δp > p1 − pv, above it too: every indication but "none expected" has Δp at or above
-    Kc·(p1 − pv), so that one limit gives the verdict.
+    Kc·(p1 − pv), so that one limit gives the verdict. ``ratio`` names the factor in Kc (FL, or FLP/Fp
+    with fittings, then taken ``at_flow``, where it is lowest).
     """
-    basis = ("Δp = {dp:.2f}, choked at {dp_choked:.2f}, incipient cavitation from {dp_incipient:.2f} "
-             "(Kc = 0.8·FL² = {kc:.3f}, common practice, from memory); outlet {p2:.4g} against the vapour pressure "
-             "{pv:.4g}")
+    where = f" at the {at_flow} steam flow" if at_flow else ""
+    basis = ("Δp = {dp:.2f}, choked at {dp_choked:.2f}, incipient cavitation from {dp_incipient:.2f}" + where
+             + f" (Kc = 0.8·{ratio}² = {{kc:.3f}}, common practice, from memory); outlet {{p2:.4g}} against the "
+             "vapour pressure {pv:.4g}")
     dp = (s.pressure_differential / 1e2, "bar", "difference")
+    kc = INCIPIENT_FRACTION_OF_FL2 * (s.combined_fl / s.piping_factor) ** 2
     amounts = dict(dp=dp, dp_choked=(s.choked_differential / 1e2, "bar", "difference"),
-                   dp_incipient=(s.incipient_differential / 1e2, "bar", "difference"), kc=(0.8 * fl ** 2, ""),
+                   dp_incipient=(s.incipient_differential / 1e2, "bar", "difference"), kc=(kc, ""),
                    p2=(p_out / 1e5, "bar"), pv=(pv / 1e5, "bar"))
     result.check_limit("Spray valve cavitation", dp, [("<", amounts["dp_incipient"], "warn")],
                        lambda status: Phrase.of(_cavitation_words(verdict, status) + basis, **amounts),
@@ -388,101 +556,3 @@ def _travel_step(name, kv, kvs, characteristic, rangeability, travel, result):
             expression = "100*max(1 + ln(Kv/Kvs)/ln(R), 0)"
     result.work(f"Spray valve travel ({name} steam flow)", equation, expression, 100.0 * travel, "percent",
                 Kv=_kv(kv), Kvs=_kv(kvs), **operands)
-
-
-def _pipe_diameter(inputs):
-    schedule = inputs.schedule or DEFAULT_SCHEDULE
-    if inputs.desuperheater_pipe_size is not None:
-        return pipe_inner_diameter(inputs.desuperheater_pipe_size, schedule, field="desuperheater.pipe_size"), \
-            f"{inputs.desuperheater_pipe_size} schedule {schedule}"
-    if inputs.outlet_size is not None:
-        return pipe_inner_diameter(inputs.outlet_size, schedule, field="lines.outlet_size"), \
-            f"{inputs.outlet_size} schedule {schedule} (the outlet line)"
-    return None, None
-
-
-def _evaporation(inputs, sprays, throttled, target, water, result):
-    diameter, described = _pipe_diameter(inputs)
-    if diameter is None:
-        text = ("no pipe size at the spray (desuperheater.pipe_size or lines.outlet_size): the minimum steam "
-                "velocity and the evaporation length are not checked")
-        if inputs.sensor_distance is not None:
-            result.check("Temperature sensor beyond the evaporation length", "warn", text)
-        else:
-            result.assumptions.append(f"Desuperheater: {text}")
-        return
-    cases = dict(flow_cases(inputs))
-    low = "minimum" if "minimum" in cases else "normal"
-    limit = inputs.desuperheater_velocity_limit or DEFAULT_MIN_STEAM_VELOCITY
-    v_min = line_velocity(cases[low], throttled[low].density, diameter)
-    # D·D, not D²: a view writes a power of a number with its unit as "203 mm^2", which reads as an area.
-    result.work(f"Steam velocity at the desuperheater ({low} flow)", f"v = m_s / (ρ2·π·D²/4),  D the bore of {described}",
-                "m_s/(rho2*pi*D*D/4)", v_min, "m/s", m_s=(cases[low] * 3600, "kg/h"),
-                rho2=(throttled[low].density, "kg/m**3"), pi=(math.pi, ""), D=(diameter * 1e3, "mm"))
-    result.add("desuperheater_min_velocity", f"Steam velocity at the desuperheater, {low} flow", v_min, "m/s")
-    given = inputs.desuperheater_velocity_limit is not None
-    basis = "" if given else " (common practice for spray types, from memory; the maker's minimum governs)"
-    amounts = dict(velocity=(v_min, "m/s"), limit=(limit, "m/s"))
-    result.check_limit(
-        "Steam velocity at the desuperheater", amounts["velocity"], [(">=", amounts["limit"], "warn")],
-        lambda status: Phrase.of(
-            f"{{velocity:.1f}} at the {low} flow, at least {{limit:g}}{basis}" if status == "pass" else
-            f"{{velocity:.1f}} at the {low} flow, below the {{limit:g}} a spray desuperheater needs{basis}: the spray "
-            "may fall out onto the pipe; a smaller pipe at the spray point, or a steam-atomising or venturi type",
-            **amounts),
-        source="" if given else "common practice, from memory")
-    if not sprays:
-        return
-    droplet = inputs.spray_droplet_size or DEFAULT_DROPLET_SIZE
-    p = inputs.outlet_pressure
-    t_sat = saturation_temperature(p)
-    liquid, vapour = SteamState.from_p_dryness(p, 0.0), SteamState.from_p_dryness(p, 1.0)
-    heat = vapour.enthalpy - water.enthalpy
-    film = SteamState.from_pT(p, 0.5 * (t_sat + target.temperature))
-    k = thermal_conductivity(film.temperature, film.density)
-    lengths = {}
-    for name in sprays:
-        start, end = throttled[name].temperature - t_sat, target.temperature - t_sat
-        lifetime = droplet_lifetime(droplet, liquid.density, heat, k, start, end)
-        velocity = max(line_velocity(cases[name], throttled[name].density, diameter),
-                       line_velocity(cases[name] + sprays[name], target.density, diameter))
-        lengths[name] = (evaporation_length(lifetime, velocity), lifetime, velocity, start, end)
-    governing = max(lengths, key=lambda n: lengths[n][0])
-    length, lifetime, velocity, start, end = lengths[governing]
-    result.assumptions.append(
-        f"Evaporation length: lifetime of a {droplet * 1e6:.0f} µm droplet"
-        + ("" if inputs.spray_droplet_size is not None else " (common practice, from memory; the nozzle maker's "
-           "droplet size governs)")
-        + f" at saturation in the steam, heated by conduction only (Nu = {DROPLET_NUSSELT:g}, the droplet moving "
-        "with the steam: no credit for slip, turbulence or break-up, so the estimate errs long), the steam's "
-        "superheat falling in proportion to the spray evaporated, steam conductivity at the film temperature "
-        "(IAPWS R15-11); times the larger of the steam velocities before and after the spray")
-    result.work("Steam conductivity at the film temperature", "k = k(p2, T_film),  T_film = (T_sat,2 + T3)/2  "
-                "[IAPWS R15-11]", "conductivity(p2, T_film)", k, "W/(m*K)", p2=(p / 1e5, "bar"),
-                T_film=(film.temperature - 273.15, "degC"))
-    result.work("Latent heat to evaporate the spray", "L = h_g(p2) − h_w", "h_g - h_w", heat / 1e3, "kJ/kg",
-                h_g=(vapour.enthalpy / 1e3, "kJ/kg"), h_w=(water.enthalpy / 1e3, "kJ/kg"))
-    # An integral the equipment layer evaluates: a lookup of its operands, not arithmetic a view could redo.
-    result.work("Droplet lifetime", "t = ρ_l·L·d0²/(4·Nu·k) · ∫₀¹ ds / ΔT(s),  ΔT(s) = ΔT_end + (ΔT_start − "
-                f"ΔT_end)·s^1.5  [d²-law], at the {governing} flow",
-                "droplet_lifetime(rho_l, L, d0, Nu, k, dT_start, dT_end)", lifetime, "s",
-                rho_l=(liquid.density, "kg/m**3"), L=(heat / 1e3, "kJ/kg"), d0=(droplet * 1e3, "mm"),
-                Nu=(DROPLET_NUSSELT, ""), k=(k, "W/(m*K)"), dT_start=(start, "K"), dT_end=(end, "K"))
-    result.work("Evaporation length", f"L_evap = t·v,  at the {governing} flow in {described}", "t*v", length, "m",
-                t=(lifetime, "s"), v=(velocity, "m/s"))
-    result.add("spray_droplet_lifetime", f"Droplet lifetime ({droplet * 1e6:.0f} µm droplet)", lifetime, "s")
-    result.add("evaporation_length", f"Evaporation length of the spray (longest, at the {governing} flow)", length, "m")
-    if inputs.sensor_distance is None:
-        result.assumptions.append(
-            f"Temperature sensor: no distance given (desuperheater.sensor_distance); place it at least {length:.1f} m "
-            "downstream of the spray (the estimated evaporation length), or as the desuperheater maker recommends")
-    else:
-        amounts = dict(sensor=(inputs.sensor_distance, "m"), length=(length, "m"))
-        result.check_limit(
-            "Temperature sensor beyond the evaporation length", amounts["sensor"], [(">=", amounts["length"], "warn")],
-            lambda status: Phrase.of(
-                "sensor {sensor:g} from the spray, beyond the estimated evaporation length {length:.1f}"
-                if status == "pass" else
-                "the sensor {sensor:g} from the spray is closer than the estimated evaporation length {length:.1f}: it "
-                "may read wet steam low and the controller over-spray; move it downstream or use a finer spray (the "
-                "desuperheater maker's recommended distance governs)", **amounts))

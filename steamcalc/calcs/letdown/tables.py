@@ -10,7 +10,7 @@ def valve_case_rows(inputs, result):
     rows = []
     for name, flow in flow_cases(inputs):
         row = {"flow case": name, "flow, kg/h": flow * 3600,
-               "sized at": result.value(f"valve_pressures_{name}") if f"valve_pressures_{name}" in result.values else "",
+               "valve inlet, bar(a)": result.value(f"valve_inlet_pressure_{name}"),
                "required Kv, m³/h": result.value(f"valve_kv_{name}"),
                "choked": "yes" if result.value(f"choked_{name}") else "no"}
         if f"valve_travel_{name}" in result.values:
@@ -51,9 +51,27 @@ def letdown_sections(inputs, result):
     if any(k == "relief_orifice" for k, _ in relief):
         sections["Relief device (preliminary; the engineer of record and the maker's certified capacity govern)"] = [
             {"quantity": v.label, "value": v.value, "unit": v.unit.replace("**2", "²")} for _, v in relief]
-    if "two_stage_intermediate_pressure" in result.values:
-        sections["Noise: two-stage let-down proposal"] = [
-            {"stage": stage, "Kv, m³/h": result.value(f"two_stage_kv_{key}"),
-             "noise at 1 m, dB(A)": result.value(f"two_stage_noise_{key}")}
-            for stage, key in (("first", "first"), ("second", "second"))]
+    if "two_stage_split_pressure" in result.values:
+        sections["Noise: two-stage let-down proposal"] = two_stage_rows(result)
     return sections
+
+
+def two_stage_rows(result):
+    """The two-stage proposal as table rows: each stage on its valve, both together, and the split at equal
+    pressure ratios for comparison."""
+    def value(key):
+        return result.value(key) if key in result.values else ""
+
+    rows = [{"stage": f"{word} stage", "valve": value(f"two_stage_valve_{word}"),
+             "rated Kv, m³/h": value(f"two_stage_rated_kv_{word}"),
+             "required Kv, m³/h": value(f"two_stage_kv_{word}"), "outlet Mach": value(f"two_stage_outlet_mach_{word}"),
+             "noise at 1 m, dB(A)": value(f"two_stage_noise_{word}"),
+             "intermediate, bar(a)": value("two_stage_split_pressure")} for word in ("first", "second")]
+    rows.append({**{k: "" for k in rows[0]}, "stage": "both (energy sum)",
+                 "noise at 1 m, dB(A)": value("two_stage_noise_combined"),
+                 "intermediate, bar(a)": value("two_stage_split_pressure")})
+    if "two_stage_noise_combined_equal_ratios" in result.values:
+        rows.append({**{k: "" for k in rows[0]}, "stage": "both, at equal pressure ratios (comparison)",
+                     "noise at 1 m, dB(A)": value("two_stage_noise_combined_equal_ratios"),
+                     "intermediate, bar(a)": value("two_stage_intermediate_pressure")})
+    return rows
