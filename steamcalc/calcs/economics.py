@@ -105,12 +105,16 @@ def fuel_basis_assumption(site):
     -----
     Fuel energy :math:`E = Q t / \\eta_{boiler}` is on the basis :math:`\\eta` is on; the price
     and emission factor must be per MWh on the same basis, or the cost and CO2 are out by
-    the GCV/NCV ratio (about 1.11 for natural gas, 1.05–1.07 for oils; from memory).
+    the GCV/NCV ratio (about 1.11 for natural gas, 1.05–1.07 for oils).
 
     References
     ----------
     Common practice: gas is sold and billed on gross calorific value in most markets, while
     boiler efficiencies are often quoted on net; the figures must be put on one basis.
+    The ratios: UK Government GHG Conversion Factors for Company Reporting 2023, Fuels, kg CO2
+    per kWh on the net and on the gross calorific value: natural gas 0.20226/0.18256 = 1.108;
+    fuel oil 0.28413/0.26709 = 1.064; gas oil 0.26978/0.25359 = 1.064; burning oil
+    0.25849/0.24557 = 1.053.
 
     Examples
     --------
@@ -124,7 +128,8 @@ def fuel_basis_assumption(site):
               "(or \"net\") in the site file to confirm")
     return (f"Fuel energy on the {_BASIS_NAMES[basis]} basis, {stated}: the fuel price, the boiler efficiency "
             "and the emission factor are all read as per MWh of fuel on that basis; a figure quoted on the "
-            "other basis must be converted first (natural gas GCV/NCV ≈ 1.11, from memory)")
+            "other basis must be converted first (natural gas GCV/NCV ≈ 1.11: the ratio of the UK government's "
+            "greenhouse-gas conversion factors for natural gas per kWh of net and of gross calorific value)")
 
 
 def annual_water_cost(mass_flow, density, operating_hours, water_cost):

@@ -13,15 +13,16 @@ from __future__ import annotations
 from ..errors import InputError
 
 #: Minimum steam velocity at a spray desuperheater, m/s (common practice for nozzle and probe
-#: types, from memory; makers quote 6-10 m/s for their own designs).
+#: types; not confirmed against a maker's published figure: makers state their own minimum, which
+#: varies with the nozzle size and the pipe).
 DEFAULT_MIN_STEAM_VELOCITY = 6.0
 #: Droplet size of the spray, m: 50 µm, a mean droplet of a pressure-atomising desuperheater
-#: nozzle at a few bar differential (common practice, from memory; the nozzle maker's droplet
+#: nozzle at a few bar differential (common practice; the nozzle maker's droplet
 #: data governs, and the lifetime goes with its square).
 DEFAULT_DROPLET_SIZE = 50e-6
 #: Range of droplet sizes over which the evaporation length is shown when the maker's droplet size is
-#: not given, m: 25-150 µm, fine to coarse mean droplets of desuperheater spray nozzles (common practice,
-#: from memory; steam-atomising types finer, plain pressure nozzles at a low differential coarser).
+#: not given, m: 25-150 µm, fine to coarse mean droplets of desuperheater spray nozzles (common practice;
+#: steam-atomising types finer, plain pressure nozzles at a low differential coarser).
 TYPICAL_DROPLET_SIZES = (25e-6, 150e-6)
 #: Nusselt number of a droplet carried with the steam (no slip): pure conduction, Nu = 2.
 DROPLET_NUSSELT = 2.0
@@ -71,10 +72,11 @@ def droplet_lifetime(droplet_size, liquid_density, heat_to_evaporate, conductivi
 
     References
     ----------
-    The d²-law of quasi-steady droplet evaporation: Godsave, G.A.E. (1953), Studies of the
-    combustion of drops in a fuel spray, 4th Symposium (International) on Combustion; Spalding,
-    D.B. (1953), The combustion of liquid fuels (both from memory). Nu = 2 for a sphere in a
-    still fluid (any heat-transfer text).
+    The d²-law of quasi-steady droplet evaporation: Langmuir, I. (1918), The evaporation of small
+    spheres, Phys. Rev. 12(5), 368; Williams, F. A., Combustion Theory, ch. 3. For burning droplets,
+    Godsave, G.A.E. (1953), 4th Symposium (International) on Combustion, and Spalding, D.B. (1953),
+    The combustion of liquid fuels (these two not confirmed against the papers' text). Nu = 2 for a
+    sphere in a still fluid (any heat-transfer text).
 
     Examples
     --------

@@ -22,8 +22,8 @@ N1_KV = 0.1
 #: ρ0, density of water at 15 °C, kg/m³ (IEC 60534-2-1 reference density).
 WATER_DENSITY_15C = 999.1
 #: Incipient-cavitation coefficient as a fraction of FL²: cavitation is taken to begin at
-#: Δp = Kc·(p1 − pv) with Kc = 0.8·FL² when the maker gives no Kc or xFz (common practice,
-#: from memory; the maker's incipient-cavitation coefficient governs).
+#: Δp = Kc·(p1 − pv) with Kc = 0.8·FL² when the maker gives no Kc or xFz (common practice;
+#: the maker's incipient-cavitation coefficient governs).
 INCIPIENT_FRACTION_OF_FL2 = 0.8
 #: The indications, in the trade's words, mildest first.
 CAVITATION_VERDICTS = ("none expected", "incipient cavitation", "choked, cavitating", "flashing")
@@ -54,8 +54,9 @@ def liquid_critical_pressure_ratio(vapour_pressure, critical_pressure):
 
     References
     ----------
-    IEC 60534-2-1:2011, clause 6.2, equation (3) (numbering of the 2011 edition, harmonised with
-    ANSI/ISA-75.01.01-2007; from memory).
+    IEC 60534-2-1:2011 / ANSI/ISA-75.01.01-2007, clause 6.2, as in
+    ``fluids.control_valve.FF_critical_pressure_ratio_l``, whose example from the standard gives
+    0.9442 for the figures below; the equation number not confirmed against the standard's text.
 
     Examples
     --------
@@ -114,9 +115,11 @@ def incipient_differential(p1, vapour_pressure, fl, piping_factor=1.0):
 
     Notes
     -----
-    Kc = 0.8·FL² is common practice (from memory) when the maker gives no Kc or xFz (IEC 60534-8-4),
-    whose value governs. With fittings FL² is taken as (FLP/Fp)², as in the choked differential (common
-    practice, from memory), so the incipient differential stays below the choked one.
+    Kc = 0.8·FL² is common practice when the maker gives no Kc or xFz (IEC 60534-8-4),
+    whose value governs; the form Δp = K·(p1 − pv) is the makers' (Fisher's reference manuals: Kc
+    for the onset of cavitation damage, Ki for incipient cavitation). With fittings FL² is taken as
+    (FLP/Fp)², as in the choked differential (common practice), so the incipient differential stays
+    below the choked one.
 
     Examples
     --------
@@ -214,7 +217,7 @@ def cavitation_indication(p1, p2, vapour_pressure, fl, ff, piping_factor=1.0):
     Notes
     -----
     The choked limit and the flashing test are IEC 60534-2-1's; the incipient-cavitation
-    coefficient (:func:`incipient_differential`) is common practice (from memory) for use when the
+    coefficient (:func:`incipient_differential`) is common practice for use when the
     maker gives no Kc or xFz (IEC 60534-8-4), whose value governs.
 
     References
@@ -284,7 +287,8 @@ def size_liquid_valve(mass_flow, p1, p2, density1, vapour_pressure, critical_pre
     IEC 60534-2-1:2011, Industrial-process control valves — Part 2-1: Flow capacity — Sizing
     equations for fluid flow under installed conditions; clause 6.2, incompressible fluids:
     equation (1) (Kv), (2) (choked differential), (3) (FF), and their forms with fittings; clause 7,
-    fittings (Fp, FLP); Table 1 (N1, N2). Equation numbers of the 2011 edition, from memory.
+    fittings (Fp, FLP); Table 1 (N1, N2). Equation numbers not confirmed against the standard's
+    text (``fluids.control_valve``, which follows it, numbers the choked Kv equation 3).
 
     Examples
     --------

@@ -28,8 +28,10 @@ API526_AREAS_IN2 = (
     ("R", 16.0), ("T", 26.0),
 )
 MM2_PER_IN2 = 645.16
-#: Smallest API 526 outlet size of each orifice letter, inch (from memory of the API 526
-#: inlet x letter x outlet tables, e.g. 3K4); used as the open discharge when none is given.
+#: Smallest API 526 outlet size of each orifice letter, inch (API 526's inlet x letter x outlet
+#: combinations, e.g. 3K4, as tabulated in the Valve Selection Handbook, Table 5-1 "Area ratio of valve
+#: outlet size to nozzle size of pressure relief valves to API Std. 526": every letter's smallest outlet
+#: agrees); used as the open discharge when none is given.
 API526_OUTLET_NPS = {"D": 2.0, "E": 2.0, "F": 2.0, "G": 2.5, "H": 3.0, "J": 3.0, "K": 4.0, "L": 4.0,
                      "M": 6.0, "N": 6.0, "P": 6.0, "Q": 8.0, "R": 8.0, "T": 10.0}
 #: Effective coefficient of discharge for preliminary sizing, API 520 Part I (10th ed.) 5.2.

@@ -17,13 +17,17 @@ from dataclasses import dataclass
 #: the liquid section of a vertical vessel is kept no deeper than the vessel is wide).
 MAX_HOLDUP_DEPTH_TO_DIAMETER = 1.0
 #: Largest nozzle bore as a fraction of the shell diameter for which the ordinary opening
-#: rules apply (ASME BPVC VIII-1 UG-36(b)(1): openings up to half the vessel diameter; from memory).
+#: rules apply (ASME BPVC VIII-1 UG-36(b)(1): openings up to one half of the inside diameter, not over 20 in
+#: (500 mm), in shells of 60 in (1500 mm) bore and less; one third, not over 40 in (1000 mm), in larger shells;
+#: beyond, the supplemental rules of 1-7. The caps and the larger shells' third are not applied here).
 MAX_NOZZLE_TO_SHELL = 0.5
 #: Liquid level to inlet-nozzle centreline, m, plus half the inlet bore (after Svrcek and
-#: Monnery (1993), 12 in + d/2; from memory).
+#: Monnery (1993), 12 in + d/2; not confirmed against the paper's text: one implementation of their
+#: procedure takes 12 in + d with an inlet diverter).
 INLET_CLEARANCE = 0.3
 #: Inlet-nozzle centreline to the vapour outlet, m, plus half the inlet bore, and at least half
-#: the diameter (after Svrcek and Monnery (1993), 36 in + d/2 or D/2; from memory).
+#: the diameter (after Svrcek and Monnery (1993), 36 in + d/2 or D/2; not confirmed against the paper's
+#: text: one implementation of their procedure takes the smaller of the two, not the larger).
 DISENGAGEMENT_HEIGHT = 0.9
 #: Least height of a vertical flash vessel as a multiple of its diameter (common practice).
 MIN_HEIGHT_TO_DIAMETER = 2.5
@@ -114,8 +118,10 @@ def nozzle_minimum_diameter(nozzle_bores, max_ratio=MAX_NOZZLE_TO_SHELL):
 
     References
     ----------
-    ASME BPVC Section VIII Division 1, UG-36(b)(1): the ordinary reinforcement rules cover
-    openings up to one half of the vessel diameter (from memory).
+    ASME BPVC Section VIII Division 1, UG-36(b)(1): the rules of UG-36 to UG-43 apply to openings
+    of up to one half of the vessel diameter, not over 20 in (500 mm), for vessels of 60 in (1500 mm)
+    inside diameter and less; one third, not over 40 in (1000 mm), above; larger openings also meet
+    the supplemental rules of 1-7. Only the one-half ratio is applied here.
 
     Examples
     --------
@@ -168,7 +174,8 @@ def vertical_vessel_layout(diameter, holdup, inlet_bore=0.0):
     References
     ----------
     Svrcek, W. Y. and Monnery, W. D. (1993), Design Two-Phase Separators Within the Right
-    Limits, Chem. Eng. Prog. 89(10), 53–60: the vertical-vessel height stack (from memory).
+    Limits, Chem. Eng. Prog. 89(10), 53–60: the vertical-vessel height stack (the 0.3 m and 0.9 m
+    clearances not confirmed against the paper's text).
 
     Examples
     --------

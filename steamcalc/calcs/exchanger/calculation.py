@@ -47,6 +47,8 @@ UNCERTAINTY_RESULTS = ("duty", "steam_flow", "required_area", "area_margin", "st
 #: (area_margin is in percent since 0.3; it stays here for records of earlier releases, where it is a fraction:
 #: only a unitless value is scaled.)
 PERCENT_VALUES = ("area_margin", "stall_load_fraction", "stall_load_fraction_fouled", "heat_loss")
+#: The governing results a checker signs against: the first page of the record and of `verify` (those the record holds).
+SUMMARY_RESULTS = ("duty", "steam_flow", "required_area", "area_margin", "control_valve_kv", "control_valve_travel", "stall_load_fraction", "vacuum_load_fraction", "capacity_margin")
 #: Bases this release changed, so that verify lists what a record of an earlier release differs by, and why,
 #: instead of calling it edited: patterns (fnmatch) over result keys, step labels, check names and statements.
 BASIS_CHANGES = (

@@ -32,6 +32,8 @@ WORKBOOK = "flash_recovery.ipynb"
 UNCERTAINTY_RESULTS = ("flash_fraction", "flash_steam_flow", "recovered_heat_rate", "annual_cost_saving", "vessel_diameter")
 #: Plain fractions shown in % (display only; records keep the fraction).
 PERCENT_VALUES = ("flash_fraction",)
+#: The governing results a checker signs against: the first page of the record and of `verify` (those the record holds).
+SUMMARY_RESULTS = ("flash_fraction", "flash_steam_flow", "vented_flash_steam_flow", "residual_condensate_flow", "recovered_heat_rate", "annual_cost_saving", "annual_total_saving", "vessel_diameter", "vessel_height")
 
 CAUTIONS = (
     "Flash vessels and receivers are pressure vessels: their design, marking and inspection follow the "

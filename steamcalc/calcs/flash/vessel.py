@@ -22,11 +22,11 @@ from ...units.amounts import Phrase
 #: Souders–Brown K for a vertical flash vessel without a mist eliminator, m/s (common practice).
 DEFAULT_K_FACTOR = 0.06
 #: Liquid residence time of a flash vessel drained continuously by a trap or level control, s
-#: (common practice: the low end of the 1–3 min usual for vertical gas–liquid separators; from memory).
+#: (common practice: the low end of the 1–3 min usual for vertical gas–liquid separators).
 DEFAULT_RESIDENCE_TIME = 60.0
 #: Inlet-nozzle momentum flux ρv² above which a plain or tangential inlet without an inlet device
 #: shatters the liquid into fine, re-entrained droplets, Pa (common practice in separator design
-#: guides; from memory).
+#: guides; the figure not confirmed against a published guide).
 MAX_INLET_MOMENTUM = 1400.0
 #: Flash-steam outlet velocity above which carry-over and noise are likely, m/s (common practice).
 MAX_STEAM_NOZZLE_VELOCITY = 25.0
@@ -56,20 +56,22 @@ def vessel_assumptions(inputs):
     if inputs.residence_time is None:
         lines.append(f"Liquid residence time {DEFAULT_RESIDENCE_TIME / 60:g} min on the residual condensate, for a "
                      "vessel drained continuously by a trap or level control (common practice: the low end of "
-                     "the 1–3 min usual for vertical gas–liquid separators, from memory; not given: give the "
+                     "the 1–3 min usual for vertical gas–liquid separators; not given: give the "
                      "vessel's residence time to change it)")
     lines.extend([
         "Vessel diameter is the largest of: the Souders–Brown vapour area; the liquid hold-up in a liquid "
         f"section no deeper than {MAX_HOLDUP_DEPTH_TO_DIAMETER:g} × the diameter (common practice); and "
         f"{1 / MAX_NOZZLE_TO_SHELL:g} × the largest nozzle bore, so that every nozzle is an ordinary opening "
-        "(ASME VIII-1 UG-36(b)(1), from memory)",
+        "(ASME VIII-1 UG-36(b)(1): its rules cover an opening of up to one half of the inside diameter in the "
+        "smaller shells and one third in the larger, each with a cap on the opening's size, not checked here)",
         f"Vessel height stacks the liquid section, {INLET_CLEARANCE:g} m + half the inlet bore from the liquid "
         f"to the inlet, and {DISENGAGEMENT_HEIGHT:g} m + half the inlet bore (at least half the diameter) above "
-        f"the inlet (after Svrcek and Monnery 1993, from memory); at least {MIN_HEIGHT_TO_DIAMETER:g} × the "
-        "diameter (common practice)",
+        "the inlet (after Svrcek and Monnery 1993; these clearances not confirmed against the paper's text); "
+        f"at least {MIN_HEIGHT_TO_DIAMETER:g} × the diameter (common practice)",
         f"Inlet line judged by its homogeneous two-phase velocity against {MAX_FLASHING_CONDENSATE_VELOCITY:g} m/s "
-        "(common practice for flashing-condensate lines, from memory) and by its momentum flux ρv² against "
-        f"{MAX_INLET_MOMENTUM:g} Pa for an inlet without an inlet device (common practice, from memory)",
+        "(common practice for flashing-condensate lines: the velocity steam-system guides give for condensate "
+        f"return headers) and by its momentum flux ρv² against {MAX_INLET_MOMENTUM:g} Pa for an inlet without an "
+        "inlet device (common practice)",
         "API RP 14E erosional velocity shown for information only: it was written for offshore oil-and-gas "
         "production piping and is outside its scope for flashing steam condensate",
     ])

@@ -33,6 +33,8 @@ WORKBOOK = "letdown.ipynb"
 UNCERTAINTY_RESULTS = ("outlet_temperature", "outlet_superheat", "throttled_temperature", "spray_water_flow", "valve_kv", "recoverable_power")
 #: Plain fractions shown in % (display only; records keep the fraction).
 PERCENT_VALUES = ("overpressure", "upstream_accumulation", "isentropic_efficiency", "generator_efficiency")
+#: The governing results a checker signs against: the first page of the record and of `verify` (those the record holds).
+SUMMARY_RESULTS = ("outlet_temperature", "outlet_superheat", "spray_water_flow", "valve_kv", "valve_travel_normal", "valve_noise_maximum", "two_stage_noise_combined", "relief_design_flow", "relief_required_area", "relief_orifice", "recoverable_power")
 #: Bases this release changed, so that verify lists what a record of an earlier release differs by, and why,
 #: instead of calling it edited: patterns (fnmatch) over result keys, step labels, check names and statements.
 BASIS_CHANGES = (
@@ -51,6 +53,8 @@ BASIS_CHANGES = (
      "checked at the coarse end when the maker gives no figure",
      ("spray_valve_*", "evaporation_length*", "Spray valve*", "Spray-water valve*", "Evaporation length*",
       "Temperature sensor*", "Spray droplet size*", "Incipient cavitation*")),
+    ("0.3", "no result twice under two keys: the valve travel at the normal flow is kept once, with the flow cases",
+     ("valve_travel",)),
 )
 
 #: Results that hold a pressure difference (shown as "bar difference", not bar(a)).
@@ -681,8 +685,12 @@ def _desuperheat(inputs, throttled, t_sat2, result):
             "target {margin:.1f} above saturation (at least {least:g}, common practice)",
             margin=margin_k, least=least_margin), source="common practice")
     water_c, target_c = (water_t - 273.15, "degC"), (target_t - 273.15, "degC")
+    # Two temperatures, not a difference: "water at 105 °C, below the target 149 °C" (never "105 °C below").
     result.check_limit("Spray water colder than target", water_c, [("<", target_c, "fail")],
-                       Phrase.of("water {water:.2f} below target {target:.2f}", water=water_c, target=target_c))
+                       lambda status: Phrase.of(
+                           "water at {water:.2f}, below the target {target:.2f}" if status == "pass" else
+                           "water at {water:.2f}, not below the target {target:.2f}: it cannot cool the steam to "
+                           "the target", water=water_c, target=target_c))
     pressure_margin = ((water_p - p2) / 1e5, "bar", "difference")
     least_pressure_margin = (MIN_SPRAY_PRESSURE_MARGIN / 1e5, "bar", "difference")
     result.check_limit(

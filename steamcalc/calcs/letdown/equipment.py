@@ -27,8 +27,9 @@ DEFAULT_SCHEDULE = "40"
 #: engineer finds on the upstream header's data sheet), to which its accumulation is added for the relief load.
 DEFAULT_UPSTREAM_PRESSURE_BASIS = "set pressure"
 UPSTREAM_PRESSURE_BASES = ("set pressure", "relieving pressure")
-#: Accumulation of the upstream safety valve, of its gauge set pressure (API 520 Part I single-valve
-#: allowance, from memory; conservative for a boiler under ASME Section I, which allows less).
+#: Accumulation of the upstream safety valve, of its gauge set pressure: the single-device allowance for operating
+#: contingencies of API RP 520 Part I (7th ed., 2000), 3.5.2 and Table 2 (110 % of the MAWP, i.e. 10 % of a set
+#: pressure at the MAWP); conservative for a boiler under ASME Section I, whose PG-67 allows 6 %.
 DEFAULT_UPSTREAM_ACCUMULATION = 0.10
 #: Preferred nominal sizes for suggestions (common practice: DN90, DN125 and the like are
 #: hard to buy and to fit).
@@ -56,7 +57,9 @@ def sizing_kappa(state, result=None):
     kappa = 1.035 + 0.1 * state.dryness
     if result is not None:
         result.assumptions.append(
-            f"Wet inlet steam: isentropic exponent κ = 1.035 + 0.1·x = {kappa:.4f} (Zeuner's rule, from memory); "
+            f"Wet inlet steam: isentropic exponent κ = 1.035 + 0.1·x = {kappa:.4f} (Zeuner's empirical exponent of "
+            "the wet-steam adiabatic pvⁿ = const, as quoted in A Text-Book of Mechanical Engineering, appendix note "
+            "to p. 608); "
             "IEC 60534-2-1 compressible sizing is approximate for wet steam, and κ is discontinuous at x = 1")
     return kappa
 
@@ -286,7 +289,6 @@ def _rated_valve(inputs, sizing, design, result):
                            Phrase.of(f"{{travel:.0f}} travel ({characteristic}, R = {rangeability:g}); "
                                      "10-90 % usable, 20-80 % preferred (common practice)",
                                      travel=(100.0 * travel, "percent")), source="common practice")
-    result.add("valve_travel", "Valve travel at the normal flow", result.value("valve_travel_normal"), "percent")
     # The travel of a valve too small for the flow is full travel: min(Kv, Kvs). A ratio of Kvs is a fraction,
     # which a percent holds a hundred times; a logarithm is a plain number, so the percent is written out.
     expression = "min(Kv, Kvs)/Kvs" if characteristic == "linear" else "100*(1 + ln(min(Kv, Kvs)/Kvs)/ln(R))"
@@ -323,8 +325,9 @@ def upstream_relieving_pressure(inputs, atmospheric_pressure, result=None):
 
     References
     ----------
-    API 520 Part I, allowable accumulation of a single pressure-relief device: 10 % of the gauge set pressure
-    (from memory; a boiler's safety valves under ASME Section I allow less, so 10 % is the conservative default).
+    API RP 520 Part I (7th ed., 2000), 3.5.2 (operating contingencies) and Table 2: a single pressure-relief
+    device limits the accumulated pressure to 110 % of the MAWP, i.e. 10 % of the gauge set pressure of a valve set
+    at the MAWP. ASME BPVC Section I, PG-67: a boiler's safety valves allow 6 %, so 10 % is the conservative default.
 
     Examples
     --------
@@ -350,8 +353,9 @@ def upstream_relieving_pressure(inputs, atmospheric_pressure, result=None):
             f"= 'set pressure'{'' if inputs.upstream_pressure_basis else ', the default'}): the relief load is taken "
             f"at its relieving pressure, with an accumulation of {100 * accumulation:g} % of the gauge set pressure"
             + ("" if inputs.upstream_accumulation is not None else
-               " (the single-valve allowance of API 520 Part I, from memory; a boiler's safety valves under ASME "
-               "Section I allow less: give valve.upstream_accumulation)"))
+               " (the single-device allowance for operating contingencies of API RP 520 Part I, 7th ed., 3.5.2 and "
+               "Table 2: 110 % of the MAWP, 10 % of a set pressure at the MAWP; a boiler's safety valves under ASME "
+               "Section I, PG-67, allow 6 %: give valve.upstream_accumulation)"))
         result.work("Upstream relieving pressure", "p_up = p_set,up + a·(p_set,up − p_atm)  (accumulation on the "
                     "gauge set pressure)", "p_set_up + a*(p_set_up - p_atm)", p_up / 1e5, "bar",
                     p_set_up=(p_given / 1e5, "bar"), a=(accumulation, ""), p_atm=(atmospheric_pressure / 1e5, "bar"))
@@ -392,8 +396,9 @@ def relief_load_section(inputs, inlet, site, result):
         f"Relief load: valve and bypass wide open at the highest upstream pressure {p_up / 1e5:.4g} bar(a), "
         f"on {basis} against {where}; no credit "
         "for the low-pressure users' consumption (common practice). The valve failing open and the bypass opened in "
-        "error are taken as separate single failures, not together (the single-jeopardy basis of API 521, from "
-        "memory)")
+        "error are taken as separate single failures, not together (the single-jeopardy basis of API Std 521, "
+        "6th ed., 4.2.3: two or more unrelated causes of overpressure at once, double jeopardy, are not a basis "
+        "for design)")
     xt, (valve_d, inlet_d, outlet_d) = _valve_geometry(inputs)
     flows = {}
     if inputs.rated_kv is not None:

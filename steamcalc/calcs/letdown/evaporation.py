@@ -54,7 +54,7 @@ def evaporation_section(inputs, sprays, throttled, target, water, result):
                 rho2=(throttled[low].density, "kg/m**3"), pi=(math.pi, ""), D=(diameter * 1e3, "mm"))
     result.add("desuperheater_min_velocity", f"Steam velocity at the desuperheater, {low} flow", v_min, "m/s")
     given = inputs.desuperheater_velocity_limit is not None
-    basis = "" if given else " (common practice for spray types, from memory; the maker's minimum governs)"
+    basis = "" if given else " (common practice for spray types; the maker's minimum governs)"
     amounts = dict(velocity=(v_min, "m/s"), limit=(limit, "m/s"))
     result.check_limit(
         "Steam velocity at the desuperheater", amounts["velocity"], [(">=", amounts["limit"], "warn")],
@@ -63,7 +63,7 @@ def evaporation_section(inputs, sprays, throttled, target, water, result):
             f"{{velocity:.1f}} at the {low} flow, below the {{limit:g}} a spray desuperheater needs{basis}: the spray "
             "may fall out onto the pipe; a smaller pipe at the spray point, or a steam-atomising or venturi type",
             **amounts),
-        source="" if given else "common practice, from memory")
+        source="" if given else "common practice")
     if not sprays:
         return
     given_size = inputs.spray_droplet_size
@@ -85,8 +85,8 @@ def evaporation_section(inputs, sprays, throttled, target, water, result):
     length, lifetime, velocity, start, end = lengths[governing]
     result.assumptions.append(
         f"Evaporation length: lifetime of a {droplet * 1e6:.0f} µm droplet"
-        + (" (the nozzle maker's droplet size)" if given_size is not None else " (assumed, common practice, from "
-           "memory: the nozzle maker's droplet size is asked for)")
+        + (" (the nozzle maker's droplet size)" if given_size is not None else " (assumed, common practice: the nozzle "
+           "maker's droplet size is asked for)")
         + f" at saturation in the steam, heated by conduction only (Nu = {DROPLET_NUSSELT:g}, the droplet moving "
         "with the steam: no credit for slip, turbulence or break-up, so the estimate errs long), the steam's "
         "superheat falling in proportion to the spray evaporated, steam conductivity at the film temperature "
@@ -116,7 +116,7 @@ def evaporation_section(inputs, sprays, throttled, target, water, result):
             Phrase.of(f"not given (desuperheater.droplet_size): ask the nozzle maker for the droplet size at the design "
                       f"spray and nozzle differential. The evaporation length goes with its square: {{fine:.1f}} at "
                       f"{fine * 1e6:.0f} µm, {{assumed:.1f}} at the {droplet * 1e6:.0f} µm assumed, {{coarse:.0f}} at "
-                      f"{coarse * 1e6:.0f} µm (range common practice, from memory)", **amounts), act=True)
+                      f"{coarse * 1e6:.0f} µm (range common practice)", **amounts), act=True)
     _sensor_check(inputs, given_size, droplet, length, spread[1], result)
 
 
@@ -200,4 +200,4 @@ def _sensor_check(inputs, given_size, droplet, length, coarse, result):
             "and the maker gives neither the droplet size (desuperheater.droplet_size) nor the sensor distance "
             "(desuperheater.recommended_sensor_distance): the sensor may read wet steam low and the controller "
             "over-spray; give the maker's figure, or move the sensor downstream", **amounts),
-        source="common practice, from memory (droplet range)")
+        source="common practice (droplet range)")

@@ -41,11 +41,14 @@ def _discharge_diameter(inputs, letter, schedule):
             inputs.relief_discharge_size
     nps = API526_OUTLET_NPS[letter]
     dn = next(d for d, n in DN_TO_NPS.items() if n == nps)
-    return pipe_inner_diameter(f"DN{dn}", schedule), f"DN{dn} (API 526 outlet of the {letter} orifice, from memory)"
+    return pipe_inner_diameter(f"DN{dn}", schedule), (
+        f"DN{dn} (the smallest outlet API 526 pairs with the {letter} orifice: its inlet × orifice × outlet sizes "
+        "as tabulated in the Valve Selection Handbook, Table 5-1)")
 
 
-#: Gauge pressure below which the usual pressure-vessel codes do not apply: 15 psig = 1.034 bar (ASME VIII-1
-#: scope, from memory).
+#: Gauge pressure below which the usual pressure-vessel codes do not apply: 15 psig = 1.034 bar (ASME BPVC VIII-1,
+#: U-1(c)(2)(h): vessels of an internal or external pressure not over 15 psi are outside its scope; the letter of
+#: the clause differs between editions).
 CODE_SCOPE_GAUGE = 15.0 * 6894.757293168361
 
 
@@ -81,7 +84,8 @@ def relief_section(inputs, inlet, site, result):
         # Below 15 psig most pressure-vessel codes do not apply, and with them their relief rules.
         result.notice("Relief set pressure within the usual pressure-vessel scope", act=True, detail=Phrase.of(
             "set pressure {set:.4g} is less than {scope:.4g} (15 psig) above the atmosphere {atm:.4g}: below it "
-            "the usual pressure-vessel codes do not apply (ASME VIII-1 scope, from memory), so the local code and "
+            "the usual pressure-vessel codes do not apply (ASME VIII-1, U-1(c)(2)(h): vessels of 15 psi or less are "
+            "outside its scope), so the local code and "
             "the engineer of record decide whether a relief device is required and how it is rated",
             set=(p_set / 1e5, "bar"), scope=(CODE_SCOPE_GAUGE / 1e5, "bar", "difference"), atm=(atm / 1e5, "bar")))
     p_relieve = p_set + overpressure * (p_set - atm)

