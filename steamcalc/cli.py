@@ -8,6 +8,8 @@ fix (no traceback).
 from __future__ import annotations
 
 import argparse
+import contextlib
+import io
 import os
 import re
 import signal
@@ -64,7 +66,8 @@ _HELP = {
         "(the same digest - a copy made with cp, say) is not a second row; the row points at the file named\n"
         "as steamcalc names it (ID_revR.json) and names the copies in its 'copies' column. A copy that\n"
         "differs (edited, or signed in one place and not the other) is a record of its own: its own row,\n"
-        "pointing at its own JSON, and at its own HTML when there is one beside it.",
+        "pointing at its own JSON, and at its own HTML when there is one beside it. Running one case writes\n"
+        "the folder's index again when it has one, so it never lists a record as it was before the run.",
         ["steamcalc run demo_site/cases/LD-01.toml",
          "steamcalc run demo_site/cases --out demo_site/records",
          "steamcalc run demo_site/cases/HX-01.toml --pdf --notebook"],
@@ -76,7 +79,11 @@ _HELP = {
         "check a record's digest and recompute its results",
         "Check each record: integrity (its digests), then reproduction - every result, check, status,\n"
         "caution and step recomputed from the record's own inputs and compared with what it states, and\n"
-        "its uncertainty bands recomputed - then its HTML and Markdown and its signatures.\n\n"
+        "its uncertainty bands recomputed - then its HTML and Markdown and its signatures. It prints the\n"
+        "verdict and every difference first, then what else was checked and the governing results; --all\n"
+        "lists every compared value. Each input's text as given is read again and must give the value the\n"
+        "record holds; the title, preparer, site name and notes are the engineer's own words. A record\n"
+        "whose set is being written (its JSON in place, its reports not yet) is 'issue in progress'.\n\n"
         "Signatures are checked against one trusted signers list, which verify names: the folder given\n"
         "with --trusted, else trusted_signers in your settings file (~/.config/steamcalc/settings.toml,\n"
         "[signing] table), else trusted_signers/ of the site folder directly above the records folder.\n"
@@ -86,8 +93,10 @@ _HELP = {
         ["steamcalc verify demo_site/records/LD-01_revA.json",
          "steamcalc verify demo_site/records --engine fast"],
         ["0  every record verified",
-         "1  a record is edited, not reproduced, its companions differ, or a signature is invalid or unknown",
-         _BAD_INPUT + "; a file is not a readable record"]),
+         "1  a record is edited, not reproduced, its companions differ, its issue is in progress, or a signature "
+         "is invalid or unknown",
+         _BAD_INPUT + "; a file is not a readable record, or a folder named holds no records; --repair cannot "
+         "write a report"]),
     "diff": (
         "what changed between two records",
         "Compare two records row by row: the record itself, inputs (the SI value with the text as given\n"
@@ -131,12 +140,16 @@ _HELP = {
         "List every record of a site folder (its records/) or of a records folder, re-verifying each: its\n"
         "status, verification, signatures, and whether it is current - not superseded by a later revision,\n"
         "its case file and the site data unchanged since it was issued, made by the same steamcalc and\n"
-        "property engine, its HTML and Markdown matching its JSON.",
+        "property engine, its HTML and Markdown matching its JSON. The case compared is the file named as\n"
+        "steamcalc names it (ID.toml, or ID_revR.toml as the workbooks save), its [uncertainty] table too;\n"
+        "other files giving the same id are named in a warning.\n\n"
+        "--html and --csv replace only a register steamcalc wrote; any other file is refused unless --force,\n"
+        "and a record's own files, folders and devices are never written over.",
         ["steamcalc register demo_site",
          "steamcalc register demo_site/records --html register.html --csv register.csv"],
         ["0  every record is current and valid",
          "1  a record is not current or not valid (each reason is listed)",
-         _BAD_INPUT]),
+         _BAD_INPUT + "; the folder holds no records, or --html/--csv names a file the register may not replace"]),
     "new-site": (
         "a new plant folder from a template site",
         "Make a new plant folder from a template site: the site file, the case files and the workbooks\n"
@@ -193,6 +206,9 @@ def _parser():
     verify.add_argument("--engine", choices=("iapws", "fast"), default="iapws",
                         help="IF97 engine to recompute with: iapws (the records' own, default) or fast (seuif97, "
                              "an independent second implementation)")
+    verify.add_argument("--all", action="store_true",
+                        help="list every compared value, recorded and recomputed (by default: the verdict, the "
+                             "differences, then the governing results)")
 
     diff = _command(sub, "diff")
     diff.add_argument("old", metavar="OLD.json", help="the earlier record")
@@ -225,6 +241,8 @@ def _parser():
     register.add_argument("--csv", metavar="FILE.csv", help="also write the register as CSV")
     register.add_argument("--trusted", metavar="DIR", help="trusted signers folder (default: the one in your "
                           "settings file, else the site's trusted_signers/; never one among the records)")
+    register.add_argument("--force", action="store_true", help="replace an existing FILE.html or FILE.csv that is "
+                          "not a register steamcalc wrote (never a record's file, a folder or a device)")
 
     site = _command(sub, "new-site")
     site.add_argument("folder", metavar="DIR", help="the new plant folder (must not exist yet)")
@@ -239,6 +257,8 @@ def _run(args):
     if args.out and Path(args.out).exists() and not Path(args.out).is_dir():
         raise SteamcalcError("--out names a file, not a folder", source=args.out,
                              fix="give --out a folder for the records (it is created if absent)")
+    from .render.display import shown_check
+
     outcomes = run_cases(paths, args.site, args.out, progress=not args.quiet and len(paths) > 1, force=args.force,
                          scheduler=args.scheduler)
     worst = EXIT_OK
@@ -250,8 +270,10 @@ def _run(args):
         _say(f"{outcome.record_id} rev {outcome.revision}: {outcome.status.upper()} - {note}")
         for p in outcome.paths:
             _say(f"  {p}")
+        system = _display_system(outcome) if outcome.checks else "SI"
         for check in outcome.checks:
-            _say(f"  {check['status']}: {check['name']}: {check['detail']}")
+            name, detail = shown_check(check, system)   # in the site's display units, as the record shows them
+            _say(f"  {check['status']}: {name}: {detail}")
         if outcome.status == "fail" and worst == EXIT_OK:
             worst = EXIT_FAILED
         worst = max(worst, _companions(args, outcome))
@@ -265,6 +287,14 @@ def _run(args):
                 worst = EXIT_BAD_INPUT
                 continue
             _say(f"index: {html_index} and {csv_index}")
+    else:
+        # One case: the folder's index, when it has one, is written again (as after a sign-off), so it never
+        # lists the record as it was before this run.
+        from .batch.batch import refresh_index
+        for folder in sorted({o.out_dir for o in outcomes if o.out_dir and o.ok}):
+            note = refresh_index(folder)
+            if note:
+                _say(f"  {note}")
     stopped = [o for o in failures if o.interrupted]
     failed = [o for o in failures if not o.interrupted]
     if failed:
@@ -280,14 +310,30 @@ def _run(args):
     return worst
 
 
+def _display_system(outcome):
+    """The display units of a record just written ("SI" or "US", from its site), for the lines run prints."""
+    import json
+
+    from .render.display import record_system
+    try:
+        return record_system(json.loads(Path(outcome.paths[0]).read_text(encoding="utf-8")))
+    except (OSError, ValueError, IndexError, AttributeError):
+        return "SI"
+
+
 def _companions(args, outcome):
     if not (args.notebook or args.pdf):
         return EXIT_OK
     from .records.companions import run_notebook, write_pdf
     from .cases.site import load_case
+    from .records.issuing import refuse_foreign_file
 
     json_path = Path(outcome.paths[0])
     try:
+        # The one rule for named outputs, before anything runs (a folder or device of the name is never written).
+        for wanted, suffix, kind in ((args.notebook, ".ipynb", "notebook"), (args.pdf, ".pdf", "pdf")):
+            if wanted:
+                refuse_foreign_file(json_path.with_suffix(suffix), args.force, kind)
         if args.notebook:
             _say(f"  {run_notebook(load_case(outcome.path), json_path.parent, json_path.stem, force=args.force)}")
         if args.pdf:
@@ -299,11 +345,16 @@ def _companions(args, outcome):
 
 
 def _record_files(paths):
-    """Record files named, and every record (*.json) in named folders."""
+    """Record files named, and every record (*.json) in named folders; a folder holding none is refused
+    (an empty verification would read as a pass)."""
     files = []
     for raw in paths:
         path = Path(raw)
-        files.extend(sorted(str(p) for p in path.glob("*.json")) if path.is_dir() else [raw])
+        found = sorted(str(p) for p in path.glob("*.json")) if path.is_dir() else [raw]
+        if not found:
+            raise SteamcalcError("no records (*.json) in this folder", source=raw,
+                                 fix="name record files, or the folder that holds them (a site's records/)")
+        files.extend(found)
     return files
 
 
@@ -335,38 +386,126 @@ def _verify(args):
             _say(f"{raw}: NOT VERIFIED - {error}", file=sys.stderr)
             worst = EXIT_BAD_INPUT
             continue
-        _say(f"{raw}: {record['id']} rev {record['revision']}")
-        if args.engine != "iapws":
-            _say(f"  recomputed on the {args.engine} IF97 engine (the record was computed on iapws)")
-        _say(f"  integrity: {'intact' if outcome.digest_ok and outcome.content_digest_ok else 'EDITED - digest does not match'}")
-        if outcome.error:
-            _say(f"  reproduction: NOT POSSIBLE - {outcome.error}")
-        else:
-            _say(format_comparisons(outcome.comparisons, record))
-            largest = outcome.largest_difference
-            if largest is not None:
-                from .render.display import result_label
-                _say(f"  largest relative difference: {largest.rel_diff:.1e} ({result_label(record, largest.key)})")
-            for note in outcome.notes:
-                _say(f"  note: {note}")
-            for change in outcome.check_changes:
-                _say(f"  check changed: {change}")
-            _say(f"  reproduction: {'reproduced' if outcome.reproduced else 'NOT REPRODUCED'}")
-        for name, (then, now) in outcome.version_changes.items():
-            _say(f"  version: {name} {then} in the record, {now} here")
-        trust_ok, signed = _verify_trust(args, raw, record, outcome)
-        _say(f"  verdict: {'VERIFIED' if outcome.ok and trust_ok else 'FAILED'} ({signed})")
-        if not (outcome.ok and trust_ok) and worst != EXIT_BAD_INPUT:
+        # The verdict and what differs first; the rest after; every result only with --all.
+        captured = io.StringIO()
+        with contextlib.redirect_stdout(captured):
+            trust_ok, signed, unwritable, in_progress = _verify_trust(args, raw, record, outcome)
+        # A set caught between its JSON's move and its reports' is not verified as a set, nor called edited.
+        verdict = "VERIFIED" if outcome.ok and trust_ok and not in_progress else \
+            "FAILED" if not (outcome.ok and trust_ok) else "NOT YET VERIFIED - ISSUE IN PROGRESS"
+        for line in verify_report(raw, record, outcome, f"{verdict} ({signed})", captured.getvalue().splitlines(),
+                                  args.engine, args.all):
+            _say(line)
+        if unwritable:   # --repair could not write a report: the folder, not the record, is at fault
+            worst = EXIT_BAD_INPUT
+        if verdict != "VERIFIED" and worst != EXIT_BAD_INPUT:
             worst = EXIT_FAILED
     return worst
 
 
+#: Words in a line of the signatures and companions part of a verification that mark it as a difference or a
+#: failure (so it is listed with the differences, first).
+_PROBLEM_WORDS = ("statement changed:", "DIFFERS", "ISSUE IN PROGRESS", "could NOT", "INVALID", "UNKNOWN KEY",
+                  "unknown key", "rule broken", "does not hold", "do not hold", "repair: not done", "EDITED")
+
+
+def verify_report(raw, record, outcome, verdict, trust_lines, engine="iapws", every_result=False):
+    """The lines ``steamcalc verify`` prints for one record, in the order a checker reads them.
+
+    First the verdict, the integrity and the reproduction in one line each, then every difference (the
+    results that differ, with their recorded and recomputed values, the checks, statements, companions and
+    signatures that do not hold); then the rest of what was checked (notes, versions, status, companions,
+    signatures); last the governing results as recorded and recomputed - or, with ``every_result``
+    (``--all``), the table of every compared value.
+
+    Parameters
+    ----------
+    raw : str
+        The record file as named.
+    record : dict
+    outcome : steamcalc.review.verify.Verification
+    verdict : str
+        The verdict in words ("VERIFIED (not signed)").
+    trust_lines : list of str
+        What the status, companions and signatures part of the verification said, one line each.
+    engine : str
+    every_result : bool
+    """
+    lines = [f"{raw}: {record['id']} rev {record['revision']}", f"  verdict: {verdict}"]
+    if engine != "iapws":
+        lines.append(f"  recomputed on the {engine} IF97 engine (the record was computed on iapws)")
+    lines.append(f"  integrity: {'intact' if outcome.digest_ok and outcome.content_digest_ok else 'EDITED - digest does not match'}")
+    problems = [line for line in trust_lines if any(word in line for word in _PROBLEM_WORDS)]
+    rest = [line for line in trust_lines if line not in problems]
+    if outcome.error:
+        lines.append(f"  reproduction: NOT POSSIBLE - {outcome.error}")
+        lines += problems + rest
+        return lines
+    comparisons = outcome.comparisons
+    differing = [c for c in comparisons if c.verdict != "same"]
+    explained = [c for c in differing if c.verdict == "changed"]
+    lines.append(f"  reproduction: {'reproduced' if outcome.reproduced else 'NOT REPRODUCED'} - "
+                 f"{len(comparisons) - len(differing)} of {len(comparisons)} values recomputed from the record's own "
+                 f"inputs as recorded ({_counted(comparisons)})"
+                 + (f"; {len(explained)} changed by a later release's basis, each explained in a note" if explained
+                    else ""))
+    if differing or outcome.check_changes or problems:
+        count = len(differing) + len(outcome.check_changes) + len(problems)
+        lines.append(f"  differences ({count}):")
+        if differing:
+            lines.append(format_comparisons(differing, record))
+        lines += [f"  check changed: {change}" for change in outcome.check_changes] + problems
+    else:
+        lines.append("  differences: none")
+    largest = outcome.largest_difference
+    if largest is not None:
+        from .render.display import result_label
+        lines.append(f"  largest relative difference: {largest.rel_diff:.1e} ({result_label(record, largest.key)})")
+    lines += [f"  note: {note}" for note in outcome.notes]
+    lines += [f"  version: {name} {then} in the record, {now} here" for name, (then, now) in outcome.version_changes.items()]
+    lines += rest
+    if every_result:
+        lines += ["  every compared value, recorded and recomputed:", format_comparisons(comparisons, record)]
+        return lines
+    from .calcs import get_calculation
+
+    try:
+        wanted = getattr(get_calculation(record.get("kind")), "SUMMARY_RESULTS", ())
+    except SteamcalcError:
+        wanted = ()
+    governing = [c for key in wanted for c in comparisons if c.key == key and c.verdict == "same"]
+    if governing:
+        lines += ["  governing results, recorded and recomputed:", format_comparisons(governing, record)]
+    others = len(comparisons) - len(differing) - len(governing)
+    if others:
+        lines.append(f"  ({others} other values are as recorded and not listed; steamcalc verify --all lists every one)")
+    return lines
+
+
+def _counted(comparisons):
+    """What the compared values are, counted: results, figure data and uncertainty values."""
+    figures = sum(1 for c in comparisons if c.key.startswith("figure "))
+    bands = sum(1 for c in comparisons if c.key.startswith("uncertainty."))
+    parts = [f"{len(comparisons) - figures - bands} results"]
+    if figures:
+        parts.append(f"{figures} figure{'' if figures == 1 else 's'}")
+    if bands:
+        parts.append(f"{bands} uncertainty values")
+    return ", ".join(parts)
+
+
 def format_comparisons(comparisons, record=None):
     """The per-result table of a verification, as text (laid out by :func:`steamcalc.render.display.verify_table`)."""
-    from .render.display import verify_table
+    from .render.display import comparisons_shown, record_system, verify_table
     from .review.verify import ABSOLUTE_TOLERANCE, RELATIVE_TOLERANCE
 
-    return verify_table(comparisons, record, RELATIVE_TOLERANCE, ABSOLUTE_TOLERANCE)
+    # In a US site the values are shown in US units (converted by pint); the comparison itself is on the JSON's.
+    shown, shown_record = comparisons_shown(comparisons, record)
+    table = verify_table(shown, shown_record, RELATIVE_TOLERANCE, ABSOLUTE_TOLERANCE)
+    if record_system(record) == "US":
+        table += ("\n  (values in US customary units, converted for display from the record's SI values, "
+                  "which are the ones compared)")
+    return table
 
 
 def _cell(value):
@@ -377,18 +516,16 @@ def _cell(value):
 
 def _diff(args):
     from .records.record import load_record
-    from .review.diff import diff_records
+    from .review.diff import check_diff_target, diff_records, write_diff_html
 
     if args.html:
-        _check_diff_target(args)
+        check_diff_target(args.html, (args.old, args.new), args.force)
     old, new = load_record(args.old), load_record(args.new)
     rows = diff_records(old, new, unchanged=True)
     for line in format_diff(rows, old, new, args.old, args.new, args.all):
         _say(line)
     if args.html:
-        from .records.record import write_text_atomic
-        from .render.report import render_diff_html
-        write_text_atomic(args.html, render_diff_html(old, new, rows))
+        write_diff_html(args.html, old, new, rows, (args.old, args.new), args.force)
         _say(f"  written: {args.html}")
     return EXIT_OK
 
@@ -456,13 +593,16 @@ def _diff_cell(row, side):
 
 
 def _verify_trust(args, raw, record, outcome):
-    """Status, statements, companions and signatures of a verification: ``(all hold, signing state in words)``."""
-    from .review.verify import check_companions
+    """Status, statements, companions and signatures of a verification: ``(all hold, signing state in words,
+    a report --repair could not write, an issue of the set in progress)``."""
+    from .review.verify import ENGINEERS_WORDS, check_companions
     from .signing.signatures import NAME_TYPED, check_signatures, name_only_signoff
     from .signing.trust import resolve_trust
 
     for change in outcome.statement_changes:
         _say(f"  statement changed: {change}")
+    _say(f"  not recomputed, shown as the engineer's own words: {', '.join(ENGINEERS_WORDS)} (each input's text as "
+         "given is read again and must give its value)")
     if outcome.recomputed_status:
         _say(f"  status: {record.get('status')} in the record, {outcome.recomputed_status} recomputed")
     notices = [c for c in record.get("checks", []) if isinstance(c, dict) and c.get("kind") == "notice"]
@@ -478,12 +618,22 @@ def _verify_trust(args, raw, record, outcome):
                                  "name as a sign-off; steamcalc verify --repair draws it again as a name typed",
               "not checked": "NOT CHECKED - it cannot be compared with the JSON (print or run it again from the "
                              "verified record if you hand it on; only the JSON, HTML and Markdown are verified)",
+              "earlier layout": "shows the JSON as releases 0.2 and 0.3 laid reports out (before the first page "
+                                "for the checker); steamcalc verify --repair draws it in this release's layout",
               "older": "as this release draws it but for the charts release 0.2 drew (a schema-1 record keeps "
                        "no figure data, so they are not checked); kept as it is - re-issue the case under a new "
-                       "revision for charts drawn from figure data"}[c.verdict])
+                       "revision for charts drawn from figure data",
+              "in progress": "ISSUE IN PROGRESS, not edited - " + str(c.problem) + "; verify again once it is done "
+                             "(a writer that was stopped is completed by the next steamcalc run or sign of this "
+                             "record)",
+              "not repaired": "DIFFERS and could NOT be re-rendered: " + str(c.problem)}[c.verdict]
+             + (f" ({c.problem})" if c.problem and c.verdict in ("differs", "absent") else ""))
         ok = ok and not c.differs
     if args.repair and not outcome.ok:
         _say("  repair: not done - the JSON itself does not verify, so it is not rendered again")
+    unwritable = [c for c in companions if c.verdict == "not repaired"]
+    for c in unwritable:
+        _say(f"error: {c.path}: the report could not be re-rendered: {c.problem}", file=sys.stderr)
     trust = resolve_trust(Path(raw).parent, args.trusted)
     status = outcome.recomputed_status or record.get("status")
     signatures = check_signatures(record, trust.keys, status)
@@ -508,7 +658,10 @@ def _verify_trust(args, raw, record, outcome):
         signed = "a signature does not hold"
     else:
         signed = f"not signed; {NAME_TYPED}" if legacy else "not signed"
-    return ok, signed
+    in_progress = any(c.verdict == "in progress" for c in companions)
+    if in_progress:
+        signed += "; its reports not yet in place: verify again when the issue is done"
+    return ok, signed, bool(unwritable), in_progress
 
 
 def _sign_with_key(args):
@@ -552,34 +705,24 @@ def _register(args):
     from .review.register import build_register, format_register, write_register_csv, write_register_html
 
     from .review.register import register_trust
+    from .records.issuing import refuse_foreign_file
 
+    targets = [(t, w) for t, w in ((args.html, write_register_html), (args.csv, write_register_csv)) if t]
+    if len(targets) == 2 and os.path.abspath(args.html) == os.path.abspath(args.csv):
+        raise SteamcalcError("--html and --csv name the same file", source=args.html,
+                             fix="give each its own file name, such as register.html and register.csv")
+    for target, _ in targets:   # refused before the records are recomputed, not after
+        refuse_foreign_file(target, args.force, "register")
     trust = register_trust(args.folder, args.trusted)
     rows = build_register(args.folder, trusted_dir=args.trusted)
     _say(f"trusted signers: {trust.describe()}")
     for note in trust.notes():
         _say(note)
     _say(format_register(rows))
-    for target, write in ((args.html, write_register_html), (args.csv, write_register_csv)):
-        if target:
-            write(target, rows)
-            _say(f"written: {target}")
+    for target, write in targets:
+        write(target, rows, force=args.force)
+        _say(f"written: {target}")
     return EXIT_OK if all(r.ok for r in rows) else EXIT_FAILED
-
-
-def _check_diff_target(args):
-    from .records.issuing import is_own_output
-
-    target = Path(args.html)
-    if target.exists() and not target.is_file():
-        raise SteamcalcError("--html names a folder or device, not a file", source=args.html,
-                             fix="give --html a file name such as changes.html")
-    for record in (args.old, args.new):
-        if Path(record).exists() and target.exists() and os.path.samefile(record, target):
-            raise SteamcalcError("--html names one of the records being compared", source=args.html,
-                                 fix="give --html a new file name such as changes.html")
-    if target.exists() and not args.force and (target.suffix == ".json" or not is_own_output(target, ".html")):
-        raise SteamcalcError("a file of this name exists and is not a comparison steamcalc wrote", source=args.html,
-                             fix="give --html a new file name (or --force to replace it)")
 
 
 def _sign(args):

@@ -8,6 +8,9 @@ and the workbooks can report it without a traceback.
 
 from __future__ import annotations
 
+import math
+import re
+
 
 class SteamcalcError(Exception):
     """Base class of every error a user can cause.
@@ -57,14 +60,17 @@ class SteamcalcError(Exception):
         parts.append(self.explained())
         return " ".join(parts)
 
-    def explained(self, message=None, fix=None):
+    def explained(self, message=None, fix=None, given=None):
         """What is wrong, the value given, its range and the fix, without the file or field.
 
-        ``message`` and ``fix`` replace the error's own texts (the workbook words them for its form).
+        ``message`` and ``fix`` replace the error's own texts (the workbook words them for its form);
+        ``given`` replaces the value's own writing (the form writes it in the units typed in the box;
+        ``""`` leaves it out).
         """
         parts = [self.message if message is None else message]
-        if self.value is not None and f"{self.value!r}" not in self.message:
-            parts.append(f"(given: {self.value!r})")
+        given = given_text(self.value, parts[0]) if given is None else given
+        if given and given not in parts[0]:
+            parts.append(f"(given: {given})")
         if self.limits is not None:
             low, high, unit = self.limits
             parts.append(f"Valid range: {low:g} to {high:g}{' ' + unit if unit else ''}.")
@@ -72,6 +78,53 @@ class SteamcalcError(Exception):
         if fix:
             parts.append(f"Fix: {fix}")
         return " ".join(parts)
+
+
+#: What a value held in SI may be scaled by when a message writes it in the trade's units: Pa to bar, kPa or
+#: MPa; J to kJ, W to kW; a fraction to %; kg/s to kg/h or t/h; m to mm or µm (and K to °C, by subtraction).
+_WRITTEN_SCALES = (1.0, 1e-5, 1e-3, 1e-6, 100.0, 3600.0, 3.6, 1e3, 1e6)
+#: How messages write numbers (``f"{p / 1e5:.4g} bar(a)"``, ``f"{t - 273.15:.2f} °C"``): a number of the
+#: message that one of these writes of the value gives is that value, already stated.
+_WRITINGS = (".4g", ".5g", ".6g", ".2f", ".1f")
+_NUMBER_IN_TEXT = re.compile(r"(?<![\w.])-?\d[\d,]*(?:\.\d+)?(?:[eE][+-]?\d+)?")
+
+
+def _stated(value, message):
+    """True when ``message`` already writes the number ``value`` (held in SI) in some unit of the trade."""
+    written = {m.group(0).replace(",", "") for m in _NUMBER_IN_TEXT.finditer(str(message or ""))}
+    if not written:
+        return False
+    candidates = [value * scale for scale in _WRITTEN_SCALES] + [value - 273.15]
+    return any(format(c, spec) in written for c in candidates for spec in _WRITINGS)
+
+
+def given_text(value, message=""):
+    """How an error writes the value it was given: text quoted as typed, a number to six figures, an
+    infinity or NaN in words; ``""`` for a number the message already states (in its own units).
+
+    A calculation holds its values in SI (Pa, K, kg/s), and its messages write them in the trade's
+    units (``18.99 bar(a)``): the SI number is not repeated beside them.
+
+    Examples
+    --------
+    >>> given_text("16 barg"), given_text(0.5), given_text(float("inf")), given_text(float("nan"))
+    ("'16 barg'", '0.5', 'infinite', 'not a number')
+    >>> given_text(1899181.2344114645, "the highest upstream pressure 18.99 bar(a) is below the inlet pressure")
+    ''
+    >>> given_text(1899181.2344114645)
+    '1.89918e+06'
+    """
+    if value is None:
+        return ""
+    if isinstance(value, bool) or not isinstance(value, (int, float)):
+        return repr(value)
+    if math.isnan(value):
+        return "not a number"
+    if math.isinf(value):
+        return "infinite" if value > 0 else "minus infinite"
+    if _stated(value, message):
+        return ""
+    return f"{value:.6g}"
 
 
 class InputError(SteamcalcError):

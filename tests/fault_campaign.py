@@ -19,6 +19,7 @@ import random
 import re
 import shutil
 import signal
+import stat
 import sys
 import tempfile
 import time
@@ -176,6 +177,7 @@ def disk_full(base):
             ok = ok and before == {p.name: p.read_bytes() for p in out.glob("LD-02*")}
         code2, _, _, _ = cli(["run", case, "--out", out])
         tally("disk full", ok and code2 == 0 and complete(out, "LD-02_revA"), f"allowance {allowance}")
+    _keys_on_a_full_disk(base)
 
 
 def _with_full_disk(args, allowance, base):
@@ -282,6 +284,49 @@ def overwrites(base):
     afile.write_text("x")
     code, _, err, _ = cli(["run", case, "--out", afile])
     tally("overwrites", clean_refusal(code, err, str(afile)) and afile.read_text() == "x", "--out is a file")
+    _output_overwrites(base, site, case)
+
+
+def _output_overwrites(base, site, case):
+    """register --html/--csv, diff --html and run --pdf onto files they did not make (one rule, with or
+    without --force for a record's files, never for a FIFO or device)."""
+    cli(["run", case, "--quiet"])
+    records = site / "records"
+    keys = base / "ow-keys"
+    cli(["keys", "new", "--name", "C. Checker", "--out", keys])
+    shutil.copy(keys / "c-checker.pub", site / "trusted_signers")
+    victims = [(site / "cases" / "LD-02.toml", []), (site / "site.toml", []), (records / "LD-02_revA.json", []),
+               (records / "LD-02_revA.json", ["--force"]), (records / "LD-02_revA.md", ["--force"]),
+               (site / "trusted_signers" / "c-checker.pub", [])]
+    for path, extra in victims:
+        for option in ("--html", "--csv"):
+            before = path.read_bytes()
+            code, _, err, _ = cli(["register", site, option, path, *extra])
+            tally("overwrites", clean_refusal(code, err, str(path)) and path.read_bytes() == before,
+                  f"register {option} onto {path.name} {extra}")
+    specials = [base / "ow-fifo.html"]
+    os.mkfifo(specials[0])
+    try:
+        os.mknod(base / "ow-null.csv", 0o666 | stat.S_IFCHR, os.makedev(1, 3))
+        specials.append(base / "ow-null.csv")
+    except (OSError, AttributeError):
+        pass   # not root: the device node attempt is the FIFO's
+    for path in specials:
+        kind = stat.S_IFMT(path.lstat().st_mode)
+        code, _, err, seconds = cli(["register", site, "--html", path, "--force"], timeout=20)
+        tally("overwrites", clean_refusal(code, err, str(path)) and stat.S_IFMT(path.lstat().st_mode) == kind
+              and seconds < 10, f"register --html --force onto a {'FIFO' if stat.S_ISFIFO(kind) else 'device'}")
+    a, companion = records / "LD-02_revA.json", records / "LD-02_revA.html"
+    before = companion.read_bytes()
+    for extra in ([], ["--force"]):
+        code, _, err, _ = cli(["diff", a, a, "--html", companion, *extra])
+        tally("overwrites", clean_refusal(code, err, str(companion)) and companion.read_bytes() == before,
+              f"diff --html onto a record's companion {extra}")
+    pdf = records / "LD-02_revA.pdf"
+    pdf.write_bytes(b"%PDF-1.4 a scan of the signed sheet")
+    code, _, err, _ = cli(["run", case, "--pdf"])
+    tally("overwrites", clean_refusal(code, err, str(pdf)) and pdf.read_bytes() == b"%PDF-1.4 a scan of the signed sheet",
+          "run --pdf onto a foreign PDF")
 
 
 def batch(base):
@@ -354,6 +399,7 @@ def hangs(base):
     edited.write_text(json.dumps(record))
     code, _, err, seconds = cli(["verify", edited], timeout=30)
     tally("hangs and memory", code == 2 and "samples" in err and seconds < 10, "verify samples = 10000000")
+    _special_files(base)
 
 
 SILENT = [
@@ -426,6 +472,11 @@ def injection(base):
     cli(["run", cases[0], cases[1], "--out", out])
     hrefs = re.findall(r"href='([^']*)'", (out / "index.html").read_text())
     tally("injection", all(h.startswith("./") and ":" not in h for h in hrefs), "crafted file name in the index")
+    for page in (out / "register.html", base / "inj-register" / "register.html"):
+        cli(["register", out, "--html", page])
+        hrefs = re.findall(r"href='([^']*)'", page.read_text()) if page.is_file() else []
+        tally("injection", bool(hrefs) and all(re.match(r"\.\.?/", h) and ":" not in h for h in hrefs),
+              f"crafted file name in the register ({page.parent.name})")
     (out / "crafted.json").write_text(json.dumps(dict(record, id="javascript:alert(1)")))
     code, _, err, _ = cli(["verify", out / "crafted.json"])
     tally("injection", code == 2 and "plain name" in err, "crafted record id")
@@ -485,6 +536,12 @@ def unclear(base):
     code, _, err, _ = cli(["run", case, "--site", folder_as_site, "--out", out])
     tally("unclear errors", clean_refusal(code, err, str(folder_as_site)), "--site a folder")
     cli(["run", case, "--out", out])
+    empty = base / "no-records"
+    (empty / "records").mkdir(parents=True)
+    for command, folder in (("verify", empty / "records"), ("register", empty / "records"), ("register", empty)):
+        code, _, err, _ = cli([command, folder])
+        tally("unclear errors", clean_refusal(code, err, str(folder)) and "no records" in err,
+              f"{command} of a folder without records")
     bad = base / "bad.json"
     bad.write_text("{")
     code, vout, verr, _ = cli(["verify", bad, out / "LD-02_revA.json"])
@@ -493,6 +550,45 @@ def unclear(base):
     done = subprocess.run(f"{sys.executable} -m steamcalc diff {out / 'LD-02_revA.json'} {out / 'BOM_revA.json'} | head -c 5",
                           shell=True, capture_output=True, text=True, env={**os.environ, "PYTHONPATH": str(ROOT)})
     tally("unclear errors", "Error" not in done.stderr and "internal" not in done.stderr, "diff ... | head")
+    _crafted_shapes_and_names(base)
+
+
+def register_folders(base):
+    """What the register compares a record with, and the index after one case: every way a record could be
+    called current while its case says otherwise."""
+    def not_current(site, reason):
+        code, out, err, _ = cli(["register", site])
+        return code == 1 and "not current" in out and reason in out and "internal error" not in err
+
+    edits = [("tolerance", 'mass_flow = "5 %"', 'mass_flow = "7 %"'), ("samples", "samples = 40", "samples = 60"),
+             ("seed", "seed = 3", "seed = 9"), ("coverage", "seed = 3", "seed = 3\ncoverage = 0.95")]
+    for name, old, new in edits:
+        site = fresh_site(base)
+        case = site / "cases" / "LD-02.toml"
+        case.write_text(case.read_text() + '\n[uncertainty]\nmass_flow = "5 %"\nsamples = 40\nseed = 3\n')
+        cli(["run", case, "--quiet"])
+        case.write_text(case.read_text().replace(old, new))
+        tally("register and folders", not_current(site, "uncertainty"), f"[uncertainty] {name} changed after issue")
+    site = fresh_site(base)
+    cases = site / "cases"
+    cli(["run", cases / "LD-02.toml", cases / "FL-01.toml", "--quiet"])
+    shutil.copy(cases / "LD-02.toml", cases / "LD-02 copy.toml")
+    (cases / "LD-02.toml").write_text((cases / "LD-02.toml").read_text().replace('"2.0 t/h"', '"2.4 t/h"'))
+    code, out, err, _ = cli(["register", site])
+    tally("register and folders", code == 1 and "inputs mass_flow" in out and "2 case files give LD-02" in out
+          and "internal error" not in err, "a backup copy as issued beside the edited case")
+    shutil.copy(cases / "LD-02 copy.toml", cases / "LD-02.toml")
+    rev_b = cases / "LD-02_revB.toml"
+    rev_b.write_text((cases / "LD-02.toml").read_text().replace('revision = "A"', 'revision = "B"')
+                     .replace('"2.0 t/h"', '"2.2 t/h"'))
+    (cases / "LD-02 copy.toml").unlink()
+    code, out, _, _ = cli(["run", rev_b])
+    index = (site / "records" / "index.csv").read_text()
+    tally("register and folders", code == 0 and "LD-02_revB.json" in index, "one case run refreshes the index")
+    code, out, _, _ = cli(["register", site])
+    newest = [line for line in out.splitlines() if line.startswith("LD-02 rev B")]
+    tally("register and folders", code == 1 and newest and " yes " in newest[0] and "superseded by revision B" in out,
+          "the newest revision saved as LD-02_revB.toml is current")
 
 
 def permissions(base):
@@ -658,6 +754,151 @@ def _forgery_attempts(base, keys, attacker):
     path.with_suffix(".pdf").write_bytes(b"%PDF-1.4 edited\n")
     code, out, err, _ = cli(["verify", path])
     tally("forgery", code == 0 and "LD-02_revA.pdf: NOT CHECKED" in out, "a PDF beside the record")
+    _texts_read_again(base, keys)
+
+
+# -- hostile files and names; texts read again; an issue in progress (issue 22, items 5, 9, 13, 14, 17) -------
+
+def _keys_on_a_full_disk(base):
+    """`keys new` on a full disk: refused by name, and no key, half key or temporary file left."""
+    for n, allowance in enumerate([0, 150, 400]):
+        out = base / f"keys-full-{n}"
+        code, _, err = _with_full_disk(["keys", "new", "--name", "C. Checker", "--out", out], allowance, base)
+        left = list(out.iterdir()) if out.exists() else []
+        tally("disk full", clean_refusal(code, err, str(out)) and "No space left on device" in err and not left,
+              f"keys new, allowance {allowance}: exit {code}, left {[p.name for p in left]}")
+
+
+def _special_files(base):
+    """A FIFO, /dev/zero or /dev/urandom as --key, --passphrase-file or a trusted signer: refused or skipped
+    without being opened; nothing hangs."""
+    keys, trusted = signing_keys(base)
+    site = fresh_site(base)
+    cli(["run", site / "cases" / "LD-02.toml"])
+    record = site / "records" / "LD-02_revA.json"
+    fifo = base / "special.fifo"
+    if not fifo.exists():
+        os.mkfifo(fifo)
+    for special in (fifo, Path("/dev/zero"), Path("/dev/urandom")):
+        for args, field in ((["sign", record, "--key", special], "--key"),
+                            (["sign", record, "--key", keys["c-checker"], "--passphrase-file", special],
+                             "--passphrase-file"),
+                            (["keys", "new", "--name", "P. Phrase", "--out", base / "pp", "--passphrase-file",
+                              special], "--passphrase-file")):
+            code, _, err, seconds = cli(args, timeout=20)
+            tally("hangs and memory", clean_refusal(code, err, str(special), field) and seconds < 10,
+                  f"{args[0]} {field} {special}: exit {code}")
+    shutil.copy(keys["c-checker"].with_suffix(".pub"), site / "trusted_signers")
+    cli(["sign", record, "--key", keys["c-checker"]])
+    os.mkfifo(site / "trusted_signers" / "jam.pub")
+    (site / "trusted_signers" / "zero.pub").symlink_to("/dev/zero")
+    for args in (["verify", record], ["register", site]):
+        code, out, err, seconds = cli(args, timeout=30)
+        tally("hangs and memory", code != "timeout" and "jam.pub" in out + err and "zero.pub" in out + err
+              and "internal error" not in err and seconds < 20, f"a FIFO and /dev/zero among the trusted: {args[0]}")
+    code, out, err, seconds = cli(["sign", record, "--key", keys["d-approver"], "--role", "approved"], timeout=30)
+    tally("hangs and memory", code == 0 and "internal error" not in err and seconds < 20,
+          f"a FIFO and /dev/zero among the trusted: sign (exit {code})")
+
+
+def _crafted_shapes_and_names(base):
+    """Crafted sign-off shapes and a record without a title: refused by field, exit 2; hostile key names refused;
+    verify --repair on a read-only folder names the file and the fix."""
+    site = fresh_site(base)
+    cli(["run", site / "cases" / "LD-02.toml"])
+    good = site / "records" / "LD-02_revA.json"
+    shapes = [("signatures as text", lambda r: r.update(signatures="C. Checker"), "signatures"),
+              ("a signature a number", lambda r: r.update(signatures=[1]), "signatures.0"),
+              ("a signature's role a number", lambda r: r.update(signatures=[{
+                  "role": 1, "name": "x", "date": "d", "fingerprint": "f", "public_key": "p", "signature": "s"}]),
+               "signatures.0.role"),
+              ("a sign-off as text", lambda r: r.update(signoff="C. Checker"), "signoff"),
+              ("a sign-off's verification a list", lambda r: r.update(signoff={"by": "C", "date": "x",
+                                                                               "verification": [1]}),
+               "signoff.verification"),
+              ("no title", lambda r: r.pop("title"), "title"),
+              ("a title of null", lambda r: r.update(title=None), "title")]
+    keys, _ = signing_keys(base)
+    for n, (what, edit, field) in enumerate(shapes):
+        path = site / "records" / f"shape-{n}.json"
+        record = json.loads(good.read_text())
+        edit(record)
+        from steamcalc.records.record import compute_content_digest, compute_digest
+        record["content_digest"] = compute_content_digest(record)
+        record["digest"] = compute_digest(record)
+        path.write_text(json.dumps(record, indent=2))
+        for args in (["verify", path], ["sign", path, "--key", keys["c-checker"]], ["diff", good, path]):
+            code, _, err, _ = cli(args)
+            tally("unclear errors", clean_refusal(code, err, str(path), f"field '{field}'"), f"{what}: {args[0]}")
+    for what, name in (("a right-to-left override", "C. Checker\u202e"), ("an isolate", "\u2067C. Checker"),
+                       ("a line separator", "C. Checker\u2028D. Approver"), ("an escape", "\x1b[2JC. Checker"),
+                       ("a zero-width space", "C. Chec\u200bker")):
+        code, _, err, _ = cli(["keys", "new", "--name", name, "--out", base / "hostile-names"])
+        tally("unclear errors", clean_refusal(code, err, "--name", "cannot stand on a record")
+              and not (base / "hostile-names").exists(), f"keys new --name with {what}")
+    good.with_suffix(".md").write_text("edited")
+    import steamcalc.records.issuing as issuing
+    real = issuing.tempfile.mkstemp
+
+    def read_only(*args, **kwargs):
+        raise OSError(errno.EROFS, "Read-only file system")
+    issuing.tempfile.mkstemp = read_only   # in this parent; the fork inherits it
+    try:
+        code, out, err, _ = cli(["verify", good, "--repair"])
+    finally:
+        issuing.tempfile.mkstemp = real
+    tally("unclear errors", clean_refusal(code, err, str(good.with_suffix(".md")), "Read-only", "Fix:")
+          and good.with_suffix(".md").read_text() == "edited", "verify --repair on a read-only folder")
+
+
+def _texts_read_again(base, keys):
+    """Texts a record shows beside its numbers, edited with the digests recomputed: each is a difference; a set
+    caught between its JSON's move and its reports' is an issue in progress; hostile and doubled trusted names."""
+    site = fresh_site(base)
+    cli(["run", site / "cases" / "LD-01.toml"])
+    path = site / "records" / "LD-01_revA.json"
+    edits = [
+        ("a flow's text as given", lambda r: r["inputs"]["mass_flow"].update(given="9 t/h"), "mass_flow"),
+        ("a header's text as given", lambda r: r["inputs"]["inlet_pressure"].update(given="header:HP = 30 bar(g)"),
+         "inlet_pressure"),
+        ("a header in the site", lambda r: r["site"]["headers"]["HP"].update(value=30.0), "header HP"),
+        ("the uncertainty nominal", lambda r: r["uncertainty"]["bands"]["outlet_temperature"].update(nominal=120.0),
+         "uncertainty.outlet_temperature.nominal"),
+        ("the uncertainty method text", lambda r: r["uncertainty"].update(method="Exact bounds"), "uncertainty.method"),
+        ("a tolerance's text as given", lambda r: r["uncertainty"]["tolerances"]["mass_flow"].update(given="0.5 %"),
+         "uncertainty.tolerances.mass_flow"),
+        ("the sensitivity order", lambda r: r["uncertainty"]["sensitivity"]["outlet_temperature"].reverse(),
+         "uncertainty.sensitivity"),
+        ("a result's label", lambda r: r["results"]["relief_load"].update(label="Relief not required")
+         if "relief_load" in r["results"] else r["results"][next(iter(r["results"]))].update(
+             label="Relief not required"), "its label"),
+    ]
+    original = path.read_text()
+    for what, edit, words in edits:
+        path.write_text(original)
+        _forge(path, edit)
+        code, out, err, _ = cli(["verify", path, "--all"])
+        tally("forgery", code == 1 and words in out and "verdict: FAILED" in out, f"edited text: {what}")
+    # An issue caught between its JSON's move and its reports': in progress, never "edited"; the next writer completes it.
+    site = fresh_site(base)
+    cli(["run", site / "cases" / "LD-02.toml"])
+    shutil.copy(keys["c-checker"].with_suffix(".pub"), site / "trusted_signers")
+    path = site / "records" / "LD-02_revA.json"
+    cli(["sign", path, "--key", keys["c-checker"]], env={"STEAMCALC_TEST_KILL_AT": "moved:0"})
+    code, out, err, _ = cli(["verify", path])
+    tally("forgery", code == 1 and "ISSUE IN PROGRESS" in out and "DIFFERS" not in out, "verify of an issue in progress")
+    cli(["run", site / "cases" / "LD-02.toml"])
+    code, out, err, _ = cli(["verify", path])
+    tally("forgery", code == 0 and "VERIFIED (signed" in out, "verify once the next writer completed the issue")
+    # Names: one key under two names, a private key under another name among the trusted.
+    (site / "trusted_signers" / "relabelled.pub").write_text(
+        keys["c-checker"].with_suffix(".pub").read_text().replace("name: C. Checker", "name: D. Approver"))
+    code, out, err, _ = cli(["verify", path])
+    tally("forgery", code == 1 and "one key has one owner" in out, "one trusted key under two names")
+    (site / "trusted_signers" / "relabelled.pub").unlink()
+    shutil.copy(keys["c-checker"], site / "trusted_signers" / "backup.txt")
+    code, out, err, _ = cli(["verify", path])
+    tally("forgery", clean_refusal(code, err, "backup.txt", "private key"), "a private key among the trusted, renamed")
 
 
 def _warm_up(base):
@@ -678,7 +919,8 @@ def main_campaign():
     base = Path(tempfile.mkdtemp(prefix="steamcalc-campaign-"))
     _warm_up(base)
     started = time.monotonic()
-    for step in (kills, disk_full, races, overwrites, batch, hangs, silent, injection, unclear, permissions, forgery):
+    for step in (kills, disk_full, races, overwrites, batch, hangs, silent, injection, unclear, register_folders,
+                 permissions, forgery):
         t = time.monotonic()
         (step(base, rng) if step is kills else step(base))
         print(f"# {step.__name__}: {time.monotonic() - t:.0f} s", file=sys.stderr)

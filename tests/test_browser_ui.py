@@ -159,9 +159,16 @@ def test_letdown_help_alternatives_bands_computing_and_save_feedback(lab, browse
                            arg=f"{PANEL} .steamcalc-bands-button", timeout=30_000)
     assert "Compute bands" in button.inner_text()
 
-    # 14: Save again with the same inputs (the run already saved them): "unchanged, kept", with links.
+    # 14: Run All saved nothing; the first press saves the record, the second finds it "unchanged, kept".
     save = page.locator(f"{PANEL} .steamcalc-save").first
     save.scroll_into_view_if_needed()
+    save.click()
+    # (an earlier test may have saved this revision already: either account is right, a refusal is not)
+    page.wait_for_function(
+        "sel => { const e = document.querySelector(sel);"
+        " return e && (e.innerText.includes('New record saved') || e.innerText.includes('Unchanged, kept')); }",
+        arg=f"{PANEL} .steamcalc-save-status", timeout=180_000)
+    page.screenshot(path=str(shots / "15-14-save-first-press.png"))
     save.click()
     _wait_text(page, ".steamcalc-save-status", "Unchanged, kept")
     status = page.locator(f"{PANEL} .steamcalc-save-status").first

@@ -110,7 +110,7 @@ def test_fractions_the_trade_states_in_percent(records):
     assert heater["results"]["area_margin"]["shown_unit"] == "%"
     assert heater["results"]["stall_load_fraction"]["shown"] == "58.4"
     letdown = display_record(load_record(records["SI"] / "LD-01_revA.json"))
-    assert letdown["results"]["valve_travel"]["shown"] == "74.6" and letdown["inputs"]["overpressure"]["shown"] == "10"
+    assert letdown["results"]["valve_travel_normal"]["shown"] == "74.6" and letdown["inputs"]["overpressure"]["shown"] == "10"
     assert letdown["results"]["choked"]["shown"] == "yes"
     assert letdown["results"]["annual_recoverable_value"]["shown"] == "82,800"
     # The JSON keeps the fraction: 0.0738 of the condensate, not 7.4.

@@ -119,12 +119,12 @@ def test_the_run_output_is_in_words(demo):
 def test_verify_output_has_words_and_a_unit_column(demo, capsys):
     records, _, system = demo
     capsys.readouterr()
-    assert main(["verify", str(records / "LD-01_revA.json"), str(records / "HX-01_revA.json")]) == 0
+    assert main(["verify", "--all", str(records / "LD-01_revA.json"), str(records / "HX-01_revA.json")]) == 0
     printed = capsys.readouterr().out
     header = next(line for line in printed.splitlines() if line.strip().startswith("result"))
     assert re.search(r"\brecomputed\s+unit\b", header) and header.rstrip().endswith("key")
     row = next(line for line in printed.splitlines() if line.strip().startswith("Outlet temperature "))
-    assert " °C " in row and row.rstrip().endswith("outlet_temperature")
+    assert (" °F " if system == "US" else " °C ") in row and row.rstrip().endswith("outlet_temperature")
     # The key column (the last) is the allow-listed place for keys: cut it off, then scan.
     kept, key_at = [], None
     for line in printed.splitlines():

@@ -141,7 +141,7 @@ def test_ld01_record_carries_uncertainty_and_reverifies(tmp_path, demo_site_dir,
     assert any(line.startswith("outlet temperature") and "most sensitive to" in line for line in section["summary"])
     assert "Uncertainty" in (site / "records" / "LD-01_revA.html").read_text()
     capsys.readouterr()
-    assert main(["verify", str(path)]) == 0
+    assert main(["verify", "--all", str(path)]) == 0
     assert "uncertainty.outlet_temperature.p95" in capsys.readouterr().out
     # An edited band is caught twice: by the digest and by the recomputation.
     record["uncertainty"]["bands"]["outlet_temperature"]["p95"] += 1.0

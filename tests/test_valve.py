@@ -184,7 +184,7 @@ def test_bad_valve_case_files(tmp_path, capsys, extra, code, text):
 def test_demo_letdown_records_carry_equipment_keys(tmp_path, demo_site_dir):
     site = tmp_path / "site"
     shutil.copytree(demo_site_dir, site, ignore=shutil.ignore_patterns("records"))
-    keys = ("valve_kv", "valve_cv", "choked", "valve_travel", "fail_open_flow", "inlet_velocity",
+    keys = ("valve_kv", "valve_cv", "choked", "valve_travel_normal", "fail_open_flow", "inlet_velocity",
             "outlet_velocity", "recoverable_power", "exergy_destroyed")
     for case in ("LD-01", "LD-02"):
         main(["run", str(site / "cases" / f"{case}.toml")])

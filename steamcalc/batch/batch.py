@@ -16,7 +16,6 @@ import os
 import signal
 import time
 from pathlib import Path
-from urllib.parse import quote
 
 from ..errors import SteamcalcError
 from ..render.csv_cells import csv_safe
@@ -112,8 +111,10 @@ _INDEX_COLUMNS = ("id", "revision", "kind", "title", "status", "checked_by", "cr
 
 
 def _link(name):
-    # Only a relative file name: "./" and percent-encoding stop any "scheme:" reading.
-    return "./" + quote(name)
+    # Only a relative file name: "./" and percent-encoding stop any "scheme:" reading (the register's rule too).
+    from ..review.register import file_link
+
+    return file_link(name)
 
 
 #: Marks around the list of cases not run, so that a refresh of the index (after a sign-off) keeps it.
@@ -187,15 +188,17 @@ def refresh_index(folder):
     str or None
         What happened, for the user; None when the folder has no index.
     """
-    from ..records.issuing import is_own_output
+    from ..records.issuing import refuse_foreign_file
 
     folder = Path(folder)
-    present = [p for p in (folder / "index.html", folder / "index.csv") if p.exists()]
+    present = [p for p in (folder / "index.html", folder / "index.csv") if p.exists() or p.is_symlink()]
     if not present:
         return None
-    foreign = [p.name for p in present if not is_own_output(p)]
-    if foreign:
-        return f"index not refreshed: {', '.join(foreign)} in {folder} was not written by steamcalc"
+    for path in present:   # a file of the index's name that is not an index steamcalc wrote stays, and is named
+        try:
+            refuse_foreign_file(path, False, "index")
+        except SteamcalcError as exc:
+            return f"index not refreshed: {path.name} in {folder}: {exc.message}"
     try:
         html_index, csv_index = write_index(folder, keep_failures=True)
     except SteamcalcError as exc:
@@ -218,14 +221,11 @@ def _checked_by(record):
 
 
 def _write_index(folder, failures, force, keep_failures):
-    from ..errors import RecordConflictError
-    from ..records.issuing import is_own_output
+    from ..records.issuing import refuse_foreign_file
 
     csv_path, html_path = folder / "index.csv", folder / "index.html"
     for path in (csv_path, html_path):
-        if path.exists() and not force and not is_own_output(path):
-            raise RecordConflictError("a file of this name exists and was not written by steamcalc", source=path,
-                                      fix="move it away (or give --force to replace it)")
+        refuse_foreign_file(path, force, "index")
     rows = []
     from ..review.register import INDEX_COLUMNS, index_columns
     currency = index_columns(folder)

@@ -306,3 +306,109 @@ def is_own_output(path, suffix=None):
     if suffix == ".ipynb":
         return '"papermill"' in text and '"case_file"' in text
     return False
+
+
+#: What each kind of file steamcalc writes carries, to be told apart from the others (and from everything else):
+#: kind -> (marks near the top of the file, any of which makes it that kind). A record's HTML of an early
+#: release, without its generator mark, is recognised by :func:`is_own_output` (as "record").
+_OUTPUT_MARKS = {
+    "diff": ('name="generator" content="steamcalc diff"',),
+    "index": ('name="generator" content="steamcalc index"', "<title>steamcalc records index</title>",
+              "id,revision,kind,title,status,checked_by,"),
+    "register": ('name="generator" content="steamcalc register"', "<title>steamcalc register of records</title>",
+                 "id,revision,kind,title,status,verification,"),
+    "record": ('name="generator" content="steamcalc record"', '"schema": "steamcalc.record/'),
+}
+#: What each kind is called in a refusal.
+_OUTPUT_NAMES = {"diff": "a comparison (steamcalc diff --html)", "index": "a records index",
+                 "register": "a register (steamcalc register)", "record": "a record's report",
+                 "pdf": "a record's PDF", "notebook": "a record's executed workbook"}
+#: The files of an issued record's set: no other output goes over them, not even with --force.
+_RECORD_SET = ("record", "pdf", "notebook")
+
+
+def refuse_foreign_file(path, force=False, made_as=None):
+    """Refuse to write over a file the command did not make itself: the one rule for every output a user names.
+
+    A file may be replaced only when it is what the command writes there (``made_as``): a register over a
+    register, a comparison over a comparison, an index over an index. Anything else - a case file, the site
+    file, a key, a spreadsheet of the user's - is refused unless ``force``. Refused even with ``force``: a
+    folder, a device, a FIFO or a socket (steamcalc writes regular files only, and its rename would replace a
+    device node outright when run as root), and a record or one of its reports, PDF or workbook under the
+    output of another command (an issued record is never lost to a mistyped ``--html``). A symbolic link is
+    refused unless ``force``, which replaces the link, never what it points to.
+
+    Parameters
+    ----------
+    path : str or Path
+        The file about to be written.
+    force : bool
+        The user's ``--force``: replace a regular file (or link) steamcalc did not write.
+    made_as : str, optional
+        What the command writes: "diff", "index", "register", "record" (a record's HTML or Markdown),
+        "pdf" or "notebook". None: any file steamcalc writes (:func:`is_own_output`).
+
+    Returns
+    -------
+    Path
+        ``path``, which may be written.
+
+    Raises
+    ------
+    RecordConflictError
+        Naming the file, what it is, and the fix.
+    """
+    import stat
+
+    from ..errors import RecordConflictError
+
+    path = Path(path)
+    try:
+        mode = path.lstat().st_mode
+    except FileNotFoundError:
+        return path
+    except OSError as exc:
+        raise os_error(exc, path, "look at the file") from None
+    if stat.S_ISDIR(mode):
+        raise RecordConflictError("this is a folder, not a file", source=str(path),
+                                  fix="give the name of a file to write (a new name, or one steamcalc wrote)")
+    if not (stat.S_ISREG(mode) or stat.S_ISLNK(mode)):
+        raise RecordConflictError("this is a device, FIFO or socket, not a regular file: steamcalc never writes "
+                                  "onto one, not even with --force", source=str(path),
+                                  fix="give the name of a new file")
+    kind = _output_kind(path) if stat.S_ISREG(mode) else None
+    if kind in _RECORD_SET and made_as is not None and made_as not in _RECORD_SET:
+        what = "a record" if kind == "record" and path.suffix == ".json" else _OUTPUT_NAMES[kind]
+        raise RecordConflictError(f"this is {what}, one of an issued record's files: no other "
+                                  "output is written over it, not even with --force", source=str(path),
+                                  fix="give a new file name")
+    if force:
+        return path
+    wanted = _OUTPUT_NAMES.get(made_as, "a file steamcalc writes here")
+    if stat.S_ISLNK(mode):
+        raise RecordConflictError(f"this is a symbolic link, not {wanted}", source=str(path),
+                                  fix="give a new file name, or --force to replace the link (never what it points to)")
+    if kind is not None and (made_as is None or kind == made_as):
+        return path
+    what = f"it is {_OUTPUT_NAMES[kind]}, not {wanted}" if kind else "it was not written by steamcalc"
+    raise RecordConflictError(f"a file of this name exists and {what}", source=str(path),
+                              fix="give a new file name, or move the file away (or give --force to replace it)")
+
+
+def _output_kind(path):
+    """Which of steamcalc's outputs a regular file is (a key of :data:`_OUTPUT_NAMES`), or None."""
+    if path.suffix == ".pdf" and is_own_output(path, ".pdf"):
+        return "pdf"
+    if path.suffix == ".ipynb" and is_own_output(path, ".ipynb"):
+        return "notebook"
+    try:
+        with path.open("rb") as handle:
+            head = handle.read(4096).decode("utf-8", "replace")
+    except OSError:
+        return None
+    for kind, marks in _OUTPUT_MARKS.items():
+        if any(mark in head if not mark.startswith("id,") else head.startswith(mark) for mark in marks):
+            return kind
+    if path.suffix in (".html", ".htm", ".md") and is_own_output(path):
+        return "record"
+    return None

@@ -549,3 +549,123 @@ def verify_table(comparisons, record=None, relative_tolerance=1e-6, absolute_tol
     lines = [line(head)] + [line(r) for r in rows]
     lines.append(f"  (tolerance: relative {relative_tolerance:.0e}, or {absolute_tolerance:.0e} absolute near zero)")
     return "\n".join(lines)
+
+
+# --- helpers for views that draw outside the record's own pages (workbook tables, run output, verify) ------
+
+#: Units as tables and headings write them that :data:`_TEXT_UNITS` does not list, and their pint names.
+_WRITTEN_EXTRA = {"%": "percent", "dB(A)": "dB", "°F": "degF", "psia": "psi~a", "psig": "psi~g",
+                  "psi difference": "psi~d", "kJ/(kg·K)": "kJ/(kg*K)"}
+_BASIS_WORDS = {"a": "absolute", "g": "gauge", "d": "difference"}
+
+
+def written_unit(text):
+    """The pint unit and pressure basis of a unit as people write it, or None for a writing not known.
+
+    Examples
+    --------
+    >>> written_unit("bar(a)"), written_unit("bar difference"), written_unit("m³/h"), written_unit("%")
+    (('bar', 'absolute'), ('bar', 'difference'), ('m**3/h', 'absolute'), ('percent', 'absolute'))
+    >>> written_unit("furlongs") is None
+    True
+    """
+    name = _TEXT_PINT.get(str(text).strip()) or _WRITTEN_EXTRA.get(str(text).strip())
+    if name is None:
+        return None
+    unit, _, basis = name.partition("~")
+    return unit, _BASIS_WORDS.get(basis, "absolute")
+
+
+def shown_check(check, system="SI"):
+    """A record's check as every view writes it: ``(name, detail)`` in the display system.
+
+    The same writing as :func:`display_record` gives its checks: a check kept as a phrase is written
+    afresh from its amounts in US units; an older text detail has its quantities converted.
+
+    Examples
+    --------
+    >>> check = {"name": "Inlet line velocity (DN80)", "detail": "44.7 m/s exceeds 45 m/s"}
+    >>> shown_check(check, "US")
+    ('Inlet line velocity (NPS 3)', '147 ft/s exceeds 148 ft/s')
+    """
+    name, detail = check.get("name"), check.get("detail")
+    if system != "US":
+        return trade_text(name), trade_text(detail)
+    if isinstance(check.get("phrase"), dict):
+        detail = Phrase.from_record(check["phrase"]).text(system)
+    else:
+        detail = us_text(detail)
+    return trade_text(us_label(name)), trade_text(detail)
+
+
+def record_system(record):
+    """The display system a record is shown in: its site's ``display_units`` (``"SI"`` unless ``"US"``)."""
+    system = (record or {}).get("site", {}).get("display_units", "SI")
+    return system if system in SYSTEMS else "SI"
+
+
+def _difference_scale(unit, system, key, label):
+    """Display units per record unit of a difference (°C → °F: 1.8; Kv → Cv: 1.156)."""
+    zero, _ = convert(0.0, unit, system, key, label)
+    one, _ = convert(1.0, unit, system, key, label)
+    return one - zero
+
+
+def comparisons_shown(comparisons, record):
+    """A verification's comparisons and its record as the verify table shows them: in the record's
+    display system (US: values, units and differences converted by pint, labels with NPS sizes; a flow
+    coefficient stays the Kv the record holds, beside the Cv the record gives as a result of its own).
+
+    Returns ``(comparisons, record)``; in SI both are returned as they are. The relative differences
+    and the verdicts are the comparison's own (a unit change does not alter them).
+
+    Examples
+    --------
+    >>> from types import SimpleNamespace as C
+    >>> record = {"kind": "letdown", "site": {"display_units": "US"},
+    ...           "results": {"inlet_temperature": {"label": "Inlet temperature"}}}
+    >>> row = C(key="inlet_temperature", recorded=398.88889, recomputed=398.88889, unit="degC", abs_diff=1e-5,
+    ...         rel_diff=2.5e-8, verdict="same")
+    >>> (shown,), _ = comparisons_shown([row], record)
+    >>> f"{shown.recorded:.8g}", shown.unit, f"{shown.abs_diff:.1e}"
+    ('750', 'degF', '1.8e-05')
+    """
+    import copy
+
+    system = record_system(record)
+    if system == "SI" or record is None:
+        return comparisons, record
+
+    def label_of(key, entry):
+        label = trade_text(entry.get("label") or words(key))
+        # A flow coefficient stays a Kv here: the record holds its Cv as a result of its own, and two rows
+        # called Cv whose figures differ in the fourth place (the record's factor and pint's) would mislead.
+        return nps_text(us_text(label)) if _is_kv(key, label) else us_label(label)
+
+    results = {key: dict(entry, label=label_of(key, entry)) if isinstance(entry, dict) else entry
+               for key, entry in record.get("results", {}).items()}
+    shown_record = dict(record, results=results)
+    shown = []
+    for c in comparisons:
+        name = c.key.split(".")[1] if c.key.startswith("uncertainty.") else c.key
+        label = (record.get("results", {}).get(name) or {}).get("label", "") if isinstance(
+            record.get("results", {}).get(name), dict) else ""
+        row = copy.copy(c)
+        unit = c.unit or ""
+        if _is_kv(name, label):
+            shown.append(row)
+            continue
+
+        def one(value):
+            if isinstance(value, list):
+                return [convert(v, unit, system, name, label)[0] for v in value]
+            if isinstance(value, str):
+                return nps_text(value)   # a size (DN50) as the US record reads it
+            return convert(value, unit, system, name, label)[0]
+
+        row.recorded, row.recomputed = one(c.recorded), one(c.recomputed)
+        row.unit = convert(1.0, unit, system, name, label)[1]
+        if isinstance(c.abs_diff, (int, float)) and not isinstance(c.abs_diff, bool):
+            row.abs_diff = abs(c.abs_diff * _difference_scale(unit, system, name, label))
+        shown.append(row)
+    return shown, shown_record

@@ -82,7 +82,7 @@ def _environment(autoescape):
     return env
 
 
-def _context(record):
+def _context(record, earlier=False):
     from ..calcs import get_calculation
     from .display import display_record, pressure_basis
 
@@ -94,18 +94,91 @@ def _context(record):
     from .figures_svg import record_figures  # the sketch and charts block (HTML only; drawn when the template asks)
 
     shown = display_record(record)
+
+    def figures():
+        drawn = record_figures(record, shown)
+        if earlier:   # the sketch in the words the earlier layout drew it with
+            from markupsafe import Markup
+
+            from .sketch import sketch_svg
+            drawn = {**drawn, "sketch": Markup(sketch_svg(record, shown, earlier=True))}
+        return drawn
+
     return {"r": shown, "stem": record_stem(record), "kind_title": calc.TITLE, "basis": basis,
-            "record_figures": lambda: record_figures(record, shown)}
+            "record_figures": figures, "first": first_page(record, shown, calc)}
+
+
+#: The sections of the record after its first page, in order: (anchor, heading). Uncertainty only when it has one.
+SECTIONS = (("checks", "Checks"), ("results", "Results"), ("figures", "Process sketch and charts"),
+            ("uncertainty", "Uncertainty"), ("inputs", "Inputs"), ("assumptions", "Assumptions"),
+            ("steps", "Calculation steps"), ("cautions", "Cautions"), ("references", "References"),
+            ("software", "Software and integrity"))
+
+
+def first_page(record, shown, calc):
+    """What the first page of a record shows, from the record as shown (:func:`~steamcalc.render.display.display_record`).
+
+    Returns
+    -------
+    dict
+        ``governing``: (key, shown result) of the calculation's ``SUMMARY_RESULTS`` the record holds, in that
+        order; ``attention``: every failing check, then every warning one; ``act_on``: the notices the record
+        lists among its warnings (statements the engineer must act on); ``counts``: checks by shown status;
+        ``sections``: anchor -> number of the sections that follow, with ``section_list`` in order (the
+        Markdown record has a figures section only when the record keeps figure data).
+    """
+    results = shown.get("results") or {}
+    governing = [(key, results[key]) for key in getattr(calc, "SUMMARY_RESULTS", ()) if isinstance(results.get(key), dict)]
+    checks = [c for c in shown.get("checks") or [] if isinstance(c, dict)]
+    attention = [c for c in checks if c.get("shown_status") == "fail"] + \
+        [c for c in checks if c.get("shown_status") == "warn"]
+    warnings = [str(w) for w in record.get("warnings") or []]
+    act_on = [c for c in checks if c.get("shown_status") == "notice"
+              and any(w.startswith(f"{c.get('name')}: ") for w in warnings)]
+    counts = {status: sum(1 for c in checks if c.get("shown_status") == status)
+              for status in ("fail", "warn", "pass", "notice")}
+    html = _numbered([(a, h) for a, h in SECTIONS if a != "uncertainty" or shown.get("uncertainty")])
+    # The Markdown record lists its figures (data, not drawings) after the steps, and only when it keeps figure data.
+    markdown = _numbered([(a, h) for a, h in MARKDOWN_SECTIONS if (a != "uncertainty" or shown.get("uncertainty"))
+                          and (a != "figures" or record.get("figures") is not None)])
+    return {"governing": governing, "attention": attention, "act_on": act_on, "counts": counts,
+            "section_list": html, "sections": {anchor: number for number, anchor, _ in html},
+            "md_section_list": markdown, "md_sections": {anchor: number for number, anchor, _ in markdown}}
+
+
+#: The Markdown record's sections, in its order.
+MARKDOWN_SECTIONS = tuple(s for s in SECTIONS if s[0] not in ("figures", "cautions", "references", "software")) + (
+    ("figures", "Figures"), ("cautions", "Cautions"), ("references", "References"), ("software", "Software and integrity"))
+
+
+def _numbered(sections):
+    return [(number, anchor, heading) for number, (anchor, heading) in enumerate(sections, start=1)]
 
 
 def render_html(record):
-    """The record as one self-contained HTML page (no scripts, no network)."""
+    """The record as one self-contained HTML page (no scripts, no network): a first page for the checker
+    (identity, status, the governing results, every failing or warning check, the signatures), a page break
+    when printed, then the detail by numbered section."""
     return _environment(True).get_template("record.html.j2").render(**_context(record))
 
 
 def render_markdown(record):
-    """The record as Markdown."""
+    """The record as Markdown: the same first page, a rule, then the detail by numbered section."""
     return _environment(False).get_template("record.md.j2").render(**_context(record))
+
+
+#: The layout releases 0.2 and 0.3 drew a record's reports in, before the first page for the checker.
+EARLIER_LAYOUTS = {".html": "record_earlier.html.j2", ".md": "record_earlier.md.j2"}
+
+
+def render_earlier(record, suffix):
+    """A record's report (``.html`` or ``.md``) in the layout releases 0.2 and 0.3 drew it in, before the first
+    page: what such a release drew from the same JSON, so that ``verify`` can tell a report an earlier release
+    drew from one edited by hand. None for a suffix with no earlier layout."""
+    template = EARLIER_LAYOUTS.get(suffix)
+    if template is None:
+        return None
+    return _environment(suffix == ".html").get_template(template).render(**_context(record, earlier=True))
 
 
 def render_diff_html(old, new, rows):

@@ -1,8 +1,8 @@
 """A small process sketch of each unit, as SVG, with the computed state at each point.
 
 Let-down: header → control valve → desuperheater → header. Flash: condensate → vessel (or
-vessels) → flash steam / residual condensate. Steam heater: steam → control valve → shell →
-trap. Every number written on the sketch is read from the record (its results, or its inputs
+vessels) → flash steam / residual condensate. Steam heater: steam → control valve → exchanger (named
+for the arrangement given: a shell-and-tube exchanger only when the case says so) → trap. Every number written on the sketch is read from the record (its results, or its inputs
 where the state is an input, such as the header pressure), in the record's display units and
 formatted as the report formats it, so the sketch and the results table cannot disagree.
 Pressures are absolute as the record holds them, with the gauge value beside them.
@@ -150,15 +150,42 @@ def flash_points(shown, raw):
     ]
 
 
-def exchanger_points(shown, raw):
-    """State points of a steam heater: steam supply, shell at design load, after the trap, process."""
+#: The exchanger as the sketch names it, by the case's arrangement: (name in the box, line under it, the steam
+#: side's name). A counterflow case says nothing of the exchanger's make (plate, tube-in-tube or shell-and-tube),
+#: so it is a heat exchanger with a steam side; only a shell-and-tube arrangement (1-2, 2-4) has a shell.
+EXCHANGER_WORDS = {"counterflow": ("heat exchanger", "counterflow", "steam side"),
+                   "1-2": ("shell-and-tube", "1 shell pass, 2 tube passes", "steam side"),
+                   "2-4": ("shell-and-tube", "2 shell passes, 4 tube passes", "steam side")}
+#: How releases before the arrangement was named drew it (the earlier layout of a record's page draws it so).
+_EARLIER_EXCHANGER_WORDS = ("shell", "", "shell")
+
+
+def exchanger_words(raw, earlier=False):
+    """(name, line under it, steam side) of the exchanger of a heater record, from its arrangement input.
+
+    Examples
+    --------
+    >>> exchanger_words({"inputs": {}})
+    ('heat exchanger', 'counterflow', 'steam side')
+    >>> exchanger_words({"inputs": {"arrangement": {"value": "1-2"}}})[:2]
+    ('shell-and-tube', '1 shell pass, 2 tube passes')
+    """
+    if earlier:
+        return _EARLIER_EXCHANGER_WORDS
+    entry = (raw.get("inputs") or {}).get("arrangement")
+    arrangement = entry.get("value") if isinstance(entry, dict) else None
+    return EXCHANGER_WORDS.get(arrangement or "counterflow", ("heat exchanger", str(arrangement), "steam side"))
+
+
+def exchanger_points(shown, raw, earlier=False):
+    """State points of a steam heater: steam supply, its steam side at design load, after the trap, process."""
     steam_temperature = _reading(shown, "inputs", "steam_temperature") or \
         _reading(shown, "results", "steam_saturation_temperature")
     shell = _pressure(shown, raw, "results", "required_steam_pressure_100")
     return [
         _point("1", "steam supply", _pressure(shown, raw, "inputs", "steam_pressure"), steam_temperature,
                _reading(shown, "results", "steam_flow")),
-        _point("2", "shell, design load" + (" (pressure needed)" if shell else ""), shell,
+        _point("2", f"{exchanger_words(raw, earlier)[2]}, design load" + (" (pressure needed)" if shell else ""), shell,
                _reading(shown, "results", "duty")),
         _point("3", "after the trap", _pressure(shown, raw, "inputs", "condensate_back_pressure"),
                _reading(shown, "results", "condensate_flow")),
@@ -171,13 +198,17 @@ def exchanger_points(shown, raw):
 POINTS = {"letdown": letdown_points, "flash": flash_points, "exchanger": exchanger_points}
 
 
-def sketch_points(record, shown=None):
+def sketch_points(record, shown=None, earlier=False):
     """The numbered state points the sketch of a record shows, with their readings.
 
-    ``shown`` is the record as :func:`steamcalc.render.display.display_record` shows it, when the caller has it.
+    ``shown`` is the record as :func:`steamcalc.render.display.display_record` shows it, when the caller has it;
+    ``earlier`` names them as releases before 0.3's first page did (a heater's steam side a "shell").
     """
     maker = POINTS.get(record.get("kind"))
-    return [] if maker is None else maker(shown if shown is not None else display_record(record), record)
+    if maker is None:
+        return []
+    shown = shown if shown is not None else display_record(record)
+    return exchanger_points(shown, record, earlier) if maker is exchanger_points else maker(shown, record)
 
 
 # -- drawing ------------------------------------------------------------------------------
@@ -282,13 +313,16 @@ def _flash(points, raw):
     return out, max(275, below + 15 * len(by["3"].readings) + 30)
 
 
-def _exchanger(points, raw):
+def _exchanger(points, raw, earlier=False):
     by = {p.number: p for p in points}
+    name, line, _ = exchanger_words(raw, earlier)
     y = 150
     out = _pipe([(20, y), (175, y)]) + _valve(190, y, "control valve")
     out += _pipe([(206, y), (345, y)])
     out += [f'<rect x="345" y="{y - 40}" width="150" height="80" rx="30" fill="#f4f6f7" stroke="{INK}" stroke-width="1.5"/>',
-            f'<text x="420" y="{y + 4}" text-anchor="middle" font-weight="bold">shell</text>']
+            f'<text x="420" y="{y + 4 - (12 if line else 0)}" text-anchor="middle" font-weight="bold">{_esc(name)}</text>']
+    if line:
+        out.append(f'<text x="420" y="{y + 12}" text-anchor="middle" font-size="9">{_esc(line)}</text>')
     # the process fluid through the exchanger: in from below, out at the top
     out += _pipe([(440, 255), (440, y + 42)], "#8a5a00", 2) + _pipe([(440, y - 40), (440, 66)], "#8a5a00", 2)
     out += ['<text x="448" y="250" font-size="10">process in</text>',
@@ -307,13 +341,18 @@ DRAWINGS = {"letdown": _letdown, "flash": _flash, "exchanger": _exchanger}
 TITLES = {"letdown": "Let-down station", "flash": "Flash-steam recovery", "exchanger": "Steam heater"}
 
 
-def sketch_svg(record, shown=None):
+def sketch_svg(record, shown=None, earlier=False):
     """The process sketch of a record as one SVG element (no scripts, no external references).
 
     Parameters
     ----------
     record : dict
         A record (or the workbook's current record), as :func:`steamcalc.records.record.build_record` makes it.
+    shown : dict, optional
+        The record as :func:`steamcalc.render.display.display_record` shows it, when the caller has it.
+    earlier : bool
+        Draw it in the words of releases before 0.3's first page (a heater's exchanger a "shell", whatever its
+        arrangement), as the earlier layout of a record's page did: only to recognise a page such a release drew.
 
     Returns
     -------
@@ -333,8 +372,8 @@ def sketch_svg(record, shown=None):
     kind = record.get("kind")
     if kind not in DRAWINGS:
         return ""
-    points = sketch_points(record, shown)
-    body, height = DRAWINGS[kind](points, record)
+    points = sketch_points(record, shown, earlier)
+    body, height = _exchanger(points, record, earlier) if kind == "exchanger" else DRAWINGS[kind](points, record)
     title = f"Process sketch: {TITLES[kind]} {record.get('id', '')} rev {record.get('revision', '')}".strip()
     return "\n".join([
         f'<svg xmlns="http://www.w3.org/2000/svg" viewBox="0 0 {WIDTH} {height}" width="{WIDTH}" height="{height}" '

@@ -73,6 +73,43 @@ def diff_records(old, new, unchanged=False):
     return changed + ([r for r in rows if r["status"] == "same"] if unchanged else [])
 
 
+def check_diff_target(path, compared=(), force=False):
+    """Refuse ``diff --html`` onto a file it did not write (unless ``force``), onto one of the records compared,
+    a record's file, a folder or a device (never, :func:`steamcalc.records.issuing.refuse_foreign_file`).
+
+    Returns
+    -------
+    Path
+        ``path``, which may be written.
+    """
+    import os
+    from pathlib import Path
+
+    from ..errors import RecordConflictError
+    from ..records.issuing import refuse_foreign_file
+
+    target = Path(path)
+    for record in compared:
+        try:
+            same = os.path.samefile(record, target)
+        except OSError:   # either absent: not the same file
+            same = False
+        if same:
+            raise RecordConflictError("--html names one of the records being compared", source=str(path),
+                                      fix="give --html a new file name such as changes.html")
+    return refuse_foreign_file(target, force, "diff")
+
+
+def write_diff_html(path, old, new, rows, compared=(), force=False):
+    """Write the comparison of two records as an HTML page at ``path``, after :func:`check_diff_target`."""
+    from ..records.record import write_text_atomic
+    from ..render.report import render_diff_html
+
+    check_diff_target(path, compared, force)
+    write_text_atomic(path, render_diff_html(old, new, rows))
+    return path
+
+
 def compare_records(old, new):
     """Every compared row of two records, in section order (see :func:`diff_records`)."""
     rows = []

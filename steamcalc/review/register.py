@@ -12,8 +12,10 @@ from __future__ import annotations
 import csv
 import html
 import io
+import os
 from dataclasses import dataclass, field
 from pathlib import Path
+from urllib.parse import quote
 
 from ..errors import SteamcalcError
 
@@ -44,6 +46,10 @@ class RegisterRow:
     companions: str = ""
     valid: bool = True
     stale: list = field(default_factory=list)
+    #: The JSON file's path (the column ``json`` is its name), for the links of a register written elsewhere.
+    path: str = ""
+    #: What the reader should know that does not make the record stale (two case files giving one id).
+    warnings: list = field(default_factory=list)
 
     @property
     def current(self):
@@ -100,6 +106,7 @@ def register_trust(folder, trusted_dir=None):
 
 
 def _cases_by_id(site_dir):
+    """Every readable case file of a site, by the id it gives: id -> list of Case, by file name."""
     from ..cases.site import load_case
 
     cases = {}
@@ -110,8 +117,62 @@ def _cases_by_id(site_dir):
             case = load_case(path)
         except SteamcalcError:
             continue  # a broken case file is reported by `run`, not here
-        cases.setdefault(case.id, case)
+        cases.setdefault(case.id, []).append(case)
     return cases
+
+
+def _named_as_steamcalc_names(case):
+    """``<id>.toml``, or ``<id>_rev<R>.toml`` as the workbooks save a case."""
+    stem = Path(case.path).stem
+    return stem == case.id or stem.startswith(f"{case.id}_rev")
+
+
+def case_for_record(record, cases):
+    """The case file a record is compared with, and a warning when other files give the same id.
+
+    The case is the file named as steamcalc names it (``<id>.toml``, or ``<id>_rev<R>.toml`` as the
+    workbooks save each revision); a file of another name giving the same id (a backup ``LD-02 copy.toml``)
+    is compared only when no file is so named. Of those, the one at the highest revision is compared when it
+    is later than the record's (the case has moved on: the record is superseded or not current), else the one
+    at the record's revision (``<id>_rev<R>.toml`` first), else the highest.
+
+    Parameters
+    ----------
+    record : dict
+    cases : list of steamcalc.cases.site.Case
+        Every case file giving the record's id (:func:`_cases_by_id`).
+
+    Returns
+    -------
+    tuple
+        ``(case or None, warning text or None)``.
+    """
+    if not cases:
+        return None, None
+    revision = str(record.get("revision"))
+    named = [c for c in cases if _named_as_steamcalc_names(c)]
+    pool = named or cases
+    at_revision = [c for c in pool if str(c.revision) == revision]
+
+    def preference(case):
+        stem = Path(case.path).stem
+        return (stem != f"{case.id}_rev{case.revision}", stem != case.id, Path(case.path).name)
+
+    top = max(revision_order(str(c.revision)) for c in pool)
+    if at_revision and top <= revision_order(revision):
+        case = sorted(at_revision, key=preference)[0]
+    else:
+        case = sorted((c for c in pool if revision_order(str(c.revision)) == top), key=preference)[0]
+    # Two files of one id are expected when each holds its own revision under steamcalc's names; anything else
+    # (a copy, two files at one revision) leaves the reader to guess which is the case.
+    duplicates = len(cases) > 1 and (len(named) != len(cases) or len({str(c.revision) for c in cases}) < len(cases))
+    if not duplicates:
+        return case, None
+    others = [f"{Path(c.path).name} (revision {c.revision})" for c in cases if c is not case]
+    warning = (f"{len(cases)} case files give {record.get('id')}: {Path(case.path).name} (revision {case.revision}) "
+               f"is compared, not {', '.join(others)}; keep one case file per revision, named "
+               f"{record.get('id')}.toml or {record.get('id')}_rev<R>.toml")
+    return case, warning
 
 
 def _case_changes(record, case):
@@ -122,7 +183,7 @@ def _case_changes(record, case):
 
     changes = []
     if str(case.revision) != str(record.get("revision")):
-        return [f"the case file is now at revision {case.revision}"]
+        return [f"the case file {Path(case.path).name} is at revision {case.revision}"]
     for key, now in (("title", case.title), ("prepared_by", case.prepared_by)):
         if record.get(key) != now:
             changes.append(key)
@@ -140,9 +201,36 @@ def _case_changes(record, case):
     changed = [k for k in keys if not _same_input(table.get(k), record.get("inputs", {}).get(k))]
     if changed:
         changes.append("inputs " + ", ".join(changed))
-    if bool(case.uncertainty) != ("uncertainty" in record):
-        changes.append("uncertainty")
+    changes += _uncertainty_changes(record, case, calc, inputs)
     return changes
+
+
+def _uncertainty_changes(record, case, calc, inputs):
+    """How a case's ``[uncertainty]`` table now differs from the settings its record was computed with:
+    a tolerance added, removed or changed, the samples, seed or coverage."""
+    from ..calcs.base import input_fields
+    from ..runs.uncertainty import DEFAULT_COVERAGE, parse_coverage, parse_tolerances
+
+    then = record.get("uncertainty")
+    if not case.uncertainty:
+        return ["uncertainty (the case has no [uncertainty] table now)"] if then else []
+    if not isinstance(then, dict):
+        return ["uncertainty (the case has an [uncertainty] table now)"]
+    try:
+        tolerances, samples, seed = parse_tolerances(calc.Inputs, case.uncertainty, inputs)
+        coverage = parse_coverage(case.uncertainty)
+    except SteamcalcError as exc:
+        return [f"its [uncertainty] table no longer reads ({exc.message})"]
+    kinds = {f.name: f.metadata["kind"] for f in input_fields(calc.Inputs)}
+    now = {t.field: t.to_record(kinds[t.field]) for t in tolerances}
+    was = then.get("tolerances") if isinstance(then.get("tolerances"), dict) else {}
+    changed = [f"tolerance {k}" for k in sorted(set(now) | set(was)) if not _same_input(now.get(k), was.get(k))]
+    for name, value, default in (("samples", samples, None), ("seed", seed, None),
+                                 ("coverage", coverage, DEFAULT_COVERAGE)):
+        stored = then.get(name, default)
+        if not _same_input({"value": float(value)}, {"value": stored}):
+            changed.append(name)
+    return [f"uncertainty {', '.join(changed)}"] if changed else []
 
 
 def _same_input(a, b):
@@ -172,7 +260,8 @@ def _site_changes(record, site_path):
     return [k for k in sorted(set(now) | set(then)) if now.get(k) != then.get(k)]
 
 
-def register_row(path, record, *, trusted, case=None, site_path=None, later_revision=None, recompute=True):
+def register_row(path, record, *, trusted, case=None, site_path=None, later_revision=None, recompute=True,
+                 case_warning=None):
     """The register's row for one record.
 
     Parameters
@@ -191,6 +280,8 @@ def register_row(path, record, *, trusted, case=None, site_path=None, later_revi
     recompute : bool
         Re-run the record to verify it (False: its digests only, as the index of a run that has
         just computed the records does).
+    case_warning : str, optional
+        Said beside the case file column (other case files give the same id: :func:`case_for_record`).
     """
     from ..records.record import provenance
     from .verify import check_companions, verify_record
@@ -198,7 +289,7 @@ def register_row(path, record, *, trusted, case=None, site_path=None, later_revi
     from ..signing.signatures import NAME_TYPED, check_signatures, name_only_signoff
 
     row = RegisterRow(json=Path(path).name, id=record["id"], revision=str(record["revision"]), kind=record["kind"],
-                      title=record.get("title", ""))
+                      title=record.get("title", ""), path=str(path))
     if not recompute:
         from ..records.record import compute_content_digest, compute_digest
 
@@ -253,6 +344,9 @@ def register_row(path, record, *, trusted, case=None, site_path=None, later_revi
             row.stale.append("case edited after issue")
         elif changes:
             row.case_file = "later revision"
+    if case_warning:
+        row.warnings.append(case_warning)
+        row.case_file += f"; warning: {case_warning}"
     if site_path is not None:
         try:
             changes = _site_changes(record, site_path)
@@ -303,14 +397,21 @@ def build_register(folder, trusted_dir=None, recompute=True):
     from ..signing.trust import resolve_trust
 
     site_dir, records_dir = _folders(folder)
+    files = sorted(records_dir.glob("*.json")) if records_dir.is_dir() else []
+    if not files:
+        # An empty register would read as "nothing wrong here": a folder without records is a wrong path.
+        raise SteamcalcError("no records (*.json) in this folder" if records_dir.is_dir() else
+                             "no records folder here", source=str(records_dir),
+                             fix="name a site folder whose records/ holds records, or a records folder; "
+                                 "issue the records first with steamcalc run")
     trusted = resolve_trust(records_dir, trusted_dir, site_dir).keys
     records, unreadable = [], []
-    for path in sorted(records_dir.glob("*.json")) if records_dir.is_dir() else []:
+    for path in files:
         try:
             records.append((path, load_record(path)))
         except SteamcalcError as exc:
             unreadable.append(RegisterRow(json=path.name, verification=f"not a readable record ({exc.message})",
-                                          valid=False, stale=["not a readable record"]))
+                                          valid=False, stale=["not a readable record"], path=str(path)))
     from ..records.record import compute_digest
 
     # An edited file (its digest broken) supersedes no intact revision; an id with none intact keeps its
@@ -328,7 +429,7 @@ def build_register(folder, trusted_dir=None, recompute=True):
     site_file = site_dir / "site.toml" if site_dir else None
     rows = []
     for path, record in records:
-        case = cases.get(record["id"])
+        case, case_warning = case_for_record(record, cases.get(record["id"], []))
         if case is not None and case.site_path is not None:
             site_path = case.site_path
         else:
@@ -336,7 +437,7 @@ def build_register(folder, trusted_dir=None, recompute=True):
         top = latest[record["id"]]
         rows.append(register_row(path, record, trusted=trusted, case=case, site_path=site_path,
                                  later_revision=None if revision_order(str(record["revision"])) >= revision_order(top)
-                                 else top, recompute=recompute))
+                                 else top, recompute=recompute, case_warning=case_warning))
     rows.sort(key=lambda r: (r.id, revision_order(r.revision)))
     return rows + unreadable
 
@@ -355,6 +456,8 @@ def format_register(rows):
             lines.append(f"{'':<18}not current: {reason}" + (f" ({detail})" if detail and detail != reason else ""))
         if not r.valid:
             lines.append(f"{'':<18}not valid: {r.verification}; signatures: {r.signatures}")
+        for warning in r.warnings:
+            lines.append(f"{'':<18}warning: {warning}")
     current = sum(r.current for r in rows)
     valid = sum(r.valid for r in rows)
     lines.append(f"{len(rows)} record{'s' if len(rows) != 1 else ''}: {current} current, {valid} valid")
@@ -372,38 +475,95 @@ def register_csv(rows):
     return buffer.getvalue()
 
 
-def register_table_html(rows):
-    """The register as an HTML table (escaped; no scripts)."""
+def file_link(target, base=None):
+    """A link to a file as a relative URL, and nothing else: ``./`` or ``../`` then percent-encoded names.
+
+    A file name is text anyone can choose: ``javascript:alert(1).json`` written into a link as it is would be a
+    live script, ``//host/x.json`` a link to another machine. Encoded, every ``:``, ``?``, ``#`` and ``/`` of a
+    name is part of the name, and the leading ``./`` keeps the whole a path relative to the page.
+
+    Parameters
+    ----------
+    target : str or Path
+        The file linked to.
+    base : str or Path, optional
+        The folder of the page holding the link (None: the file lies beside the page, linked by name).
+
+    Returns
+    -------
+    str or None
+        The link; None when no relative path leads there (another drive).
+
+    Examples
+    --------
+    >>> file_link("javascript:alert(1).json")
+    './javascript%3Aalert%281%29.json'
+    >>> file_link("/site/records/LD-01_revA.json", "/site")
+    './records/LD-01_revA.json'
+    >>> file_link("/site/records/LD-01 rev A.json", "/site/registers")
+    '../records/LD-01%20rev%20A.json'
+    """
+    if base is None:
+        parts = [Path(target).name]
+    else:
+        try:
+            parts = Path(os.path.relpath(os.path.abspath(target), os.path.abspath(base))).parts
+        except ValueError:   # another drive: no relative link exists
+            return None
+    href = "/".join(quote(part, safe="") for part in parts)
+    return href if href.startswith("../") else "./" + href
+
+
+def register_table_html(rows, base=None):
+    """The register as an HTML table (escaped; no scripts); each record's name links to its JSON.
+
+    ``base`` is the folder of the page the table goes into; None links each record by its name alone.
+    """
     head = "".join(f"<th>{html.escape(c.replace('_', ' '))}</th>" for c in COLUMNS)
     body = []
+
+    def json_cell(r, name):
+        href = file_link(r.path or name, base if r.path else None)
+        return f"<td><a href='{html.escape(href)}'>{html.escape(name)}</a></td>" if href else \
+            f"<td>{html.escape(name)}</td>"
+
     for r in rows:
         values = r.as_dict()
-        cells = "".join(f"<td>{html.escape(str(values[c]))}</td>" if c != "json" else
-                        f"<td><a href='{html.escape(values[c])}'>{html.escape(values[c])}</a></td>" for c in COLUMNS)
+        cells = "".join(f"<td>{html.escape(str(values[c]))}</td>" if c != "json" else json_cell(r, values[c])
+                        for c in COLUMNS)
         colour = "" if r.ok else " style='background:#fbeeee'"
         body.append(f"<tr{colour}>{cells}</tr>")
     return f"<table class='steamcalc-register'><tr>{head}</tr>{''.join(body)}</table>"
 
 
-def write_register_csv(path, rows):
+def write_register_csv(path, rows, force=False):
+    """Write the register as CSV; an existing file that is not a register steamcalc wrote is refused unless
+    ``force`` (:func:`steamcalc.records.issuing.refuse_foreign_file`)."""
+    from ..records.issuing import refuse_foreign_file
     from ..records.record import write_text_atomic
 
+    refuse_foreign_file(path, force, "register")
     write_text_atomic(path, register_csv(rows))
 
 
-def write_register_html(path, rows):
+def write_register_html(path, rows, force=False):
+    """Write the register as an HTML page, its links relative to the page's folder; an existing file that
+    is not a register steamcalc wrote is refused unless ``force``."""
+    from ..records.issuing import refuse_foreign_file
     from ..records.record import write_text_atomic
 
+    refuse_foreign_file(path, force, "register")
     current = sum(r.current for r in rows)
     page = f"""<!DOCTYPE html>
-<html lang="en"><head><meta charset="utf-8"><title>steamcalc register of records</title>
+<html lang="en"><head><meta charset="utf-8"><meta name="generator" content="steamcalc register">
+<title>steamcalc register of records</title>
 <style>body{{font:10pt/1.4 "DejaVu Sans",Arial,sans-serif;margin:2em auto;max-width:90em;padding:0 1.5em}}
 table{{border-collapse:collapse;width:100%}}th,td{{text-align:left;vertical-align:top;padding:.25em .5em;
 border-bottom:1px solid #b9c2c9}}th{{background:#eef1f3}}</style></head><body>
 <h1>Register of calculation records</h1>
 <p>{len(rows)} records; {current} current; {sum(r.valid for r in rows)} valid (digest intact, results, checks and
 status reproduced, every signature valid and trusted). Rows not current or not valid are shaded.</p>
-{register_table_html(rows)}
+{register_table_html(rows, Path(path).parent)}
 </body></html>
 """
     write_text_atomic(path, page)

@@ -241,9 +241,120 @@ def verify_record(record, engine=REFERENCE_ENGINE):
     result.recomputed_status = fresh.status
     result.recomputed_failing = [c.name for c in fresh.checks if c.status == "fail"]
     result.statement_changes = _statement_changes(record, fresh, result.notes)
+    result.statement_changes += given_changes(record)
     if _earlier(record):
         _by_later_bases(record, result)
     return result
+
+
+#: What ``verify`` shows as the engineer's own words: stored text that no calculation makes, so nothing to
+#: recompute. The texts as given are not among them: each is read again and must give the value stored.
+ENGINEERS_WORDS = ("title", "preparer", "site name", "engineer's notes")
+
+
+def _same_value(a, b):
+    """A value read again from its text against the stored one: numbers within the tolerance, lists item by item."""
+    if isinstance(a, list) and isinstance(b, list):
+        return len(a) == len(b) and all(_same_value(x, y) for x, y in zip(a, b))
+    numbers = all(isinstance(v, (int, float)) and not isinstance(v, bool) for v in (a, b))
+    return _agrees(a, b) if numbers else a == b
+
+
+def _shown_value(entry, absolute=False):
+    value, unit = entry.get("value"), entry.get("unit") or ""
+    unit = "bar(a)" if absolute and unit == "bar" else unit
+    if isinstance(value, list):
+        value = ", ".join(f"{v:.6g}" if isinstance(v, float) else str(v) for v in value)
+    elif isinstance(value, float):
+        value = f"{value:.6g}"
+    return f"{value} {unit}".strip()
+
+
+def _given_raw(given, kind, site_table, name):
+    """The value a case file held, from its text as given (what :func:`steamcalc.cases.site.parse_inputs` wrote).
+
+    Returns ``(raw, header)``: ``header`` is ``(name, text)`` for a pressure given as a site header with its text.
+    """
+    text = given.strip()
+    if kind == "pressure" and text.startswith("header:") and " = " in text:
+        header, _, stated = text.partition(" = ")
+        return stated, (header.split(":", 1)[1].strip(), stated)
+    if kind == "pressure_list":
+        return [item.strip() for item in text.split(", ")], None
+    if kind in ("number", "fraction"):
+        try:
+            return float(text), None
+        except ValueError:
+            return text, None
+    return given, None
+
+
+def given_changes(record):
+    """Each input whose text as given does not read as the value the record holds, one line each.
+
+    The as-given text (``inputs.<key>.given``) is what the engineer typed; the record shows it beside the
+    value it stores. Each is read again as a case file's value is read - gauge pressures with the record's
+    own site atmosphere, headers from the record's site - and must give the stored value (within the
+    tolerance results are held to). ``(default)`` must be the input's default. An edited text that no longer
+    reads as the stored value is a difference naming the input.
+
+    Parameters
+    ----------
+    record : dict
+
+    Returns
+    -------
+    list of str
+    """
+    import dataclasses
+
+    from ..calcs.base import input_fields, to_record_inputs
+    from ..cases.site import Site, parse_inputs
+
+    try:
+        calc = get_calculation(record.get("kind"))
+        site = Site.from_record(record["site"])
+    except (SteamcalcError, KeyError, TypeError, ValueError):
+        return []   # the recomputation says why it cannot run
+    fields = {f.name: f for f in input_fields(calc.Inputs)}
+    headers = record["site"].get("headers", {}) if isinstance(record["site"].get("headers"), dict) else {}
+    changes = []
+    for name, entry in record.get("inputs", {}).items():
+        f = fields.get(name)
+        if f is None or not isinstance(entry, dict) or "given" not in entry:
+            continue
+        given, kind, label = entry["given"], f.metadata["kind"], f.metadata["label"]
+        where, absolute = f"input {name} ({label})", kind in ("pressure", "pressure_list")
+        if not isinstance(given, str):
+            changes.append(f"{where}: its text as given is not text ({given!r})")
+            continue
+        probe = dataclasses.make_dataclass("Given", [(name, object, dataclasses.field(default=None,
+                                                                                      metadata=f.metadata))])
+        header = None
+        try:
+            if given == "(default)":
+                if f.default is None or f.default is dataclasses.MISSING:
+                    changes.append(f"{where}: given as '(default)', but the input has no default; the record "
+                                   f"holds {_shown_value(entry, absolute)}")
+                    continue
+                value = f.default
+            else:
+                raw, header = _given_raw(given, kind, record["site"], name)
+                value = getattr(parse_inputs(probe, {name: raw}, site)[0], name)
+            read = to_record_inputs(probe(**{name: value}), {})[name]
+        except (SteamcalcError, TypeError, ValueError, ArithmeticError) as exc:
+            reason = exc.message if isinstance(exc, SteamcalcError) else str(exc)
+            changes.append(f"{where}: its text as given, {given!r}, does not read as a value ({reason}); the record "
+                           f"holds {_shown_value(entry, absolute)}")
+            continue
+        if not _same_value(read["value"], entry.get("value")) or read["unit"] != entry.get("unit"):
+            changes.append(f"{where}: its text as given, {given!r}, reads {_shown_value(read, absolute)}; the record "
+                           f"holds {_shown_value(entry, absolute)}")
+        elif header is not None and header[0] in headers and isinstance(headers[header[0]], dict) and \
+                not _same_value(headers[header[0]].get("value"), read["value"]):
+            changes.append(f"{where}: its text as given says header {header[0]} is {header[1]}, but the record's "
+                           f"site has header {header[0]} at {_shown_value(headers[header[0]], True)}")
+    return changes
 
 
 def _basis_change(calc, text):
@@ -547,14 +658,70 @@ class CompanionCheck:
 
     path: object
     #: "match", "differs", "absent", "repaired", "older" (drawn by an earlier release), "typed-as-signed" (drawn
-    #: by an earlier release that showed a typed name as a sign-off: it differs, and --repair draws it again), or
-    #: "not checked" (a PDF or executed workbook beside the record, which cannot be drawn again and compared)
+    #: by an earlier release that showed a typed name as a sign-off: it differs, and --repair draws it again),
+    #: "not checked" (a PDF or executed workbook beside the record, which cannot be drawn again and compared),
+    #: "in progress" (an issue of the set is under way: its new report, staged, is the JSON's rendering),
+    #: "earlier layout" (this JSON as releases 0.2 and 0.3 laid the report out, before its first page; --repair
+    #: draws it in this release's layout) or
+    #: "not repaired" (--repair could not write it: ``problem`` says why and what to do)
     verdict: str
+    #: Why the report could not be read or written, with the fix, when that is so.
+    problem: str | None = None
 
     @property
     def differs(self):
         """The report does not show what the JSON holds."""
-        return self.verdict in ("differs", "typed-as-signed")
+        return self.verdict in ("differs", "typed-as-signed", "not repaired")
+
+
+#: Largest report read for the comparison, bytes (a record's HTML with its charts is well below it).
+MAX_REPORT_FILE = 64 * 1024 * 1024
+
+
+def _read_report(path):
+    """A report's text: ``(text, verdict, problem)``; a FIFO, device or folder is never opened (it would block
+    or never end), an unreadable or oversized file differs."""
+    from ..signing.keys import read_small_file
+
+    if not (path.exists() or path.is_symlink()):
+        return None, "absent", None
+    try:
+        data, _ = read_small_file(path, "report", limit=MAX_REPORT_FILE,
+                                  fix="move it away; steamcalc verify --repair draws the report again")
+        return data.decode("utf-8"), None, None
+    except UnicodeDecodeError:
+        return None, "differs", "it is not UTF-8 text"
+    except SteamcalcError as exc:
+        return None, "differs", exc.explained()
+
+
+def issue_in_progress(json_path):
+    """The staging folder of an issue of this record's set that has been committed (its commit list written) and
+    not yet moved into place, or None.
+
+    Between the JSON's move and its reports' moves a signed JSON sits beside a report that does not yet show the
+    signature; the next writer of the record (or the writer itself) completes the set
+    (:func:`steamcalc.records.issuing.recover`).
+    """
+    from ..records.issuing import WORK_FOLDER, _COMMIT_LIST   # the layout issuing writes
+
+    json_path = Path(json_path)
+    staging = json_path.parent / WORK_FOLDER / f"{json_path.stem}.staged"
+    try:
+        return staging if staging.is_dir() and (staging / _COMMIT_LIST).is_file() else None
+    except OSError:
+        return None
+
+
+def _staged_is(staging, name, fresh):
+    """The staged report of an issue in progress is the rendering of the JSON now in place."""
+    from ..signing.keys import read_small_file
+
+    try:
+        data, _ = read_small_file(staging / name, "staged report", limit=MAX_REPORT_FILE)
+        return data.decode("utf-8") == fresh
+    except (SteamcalcError, UnicodeDecodeError):
+        return False
 
 
 #: Companions a record may have that are not drawn from the JSON alone: reported as not checked, never as matching.
@@ -592,7 +759,11 @@ def check_companions(json_path, record, repair=False):
     A report of a schema-1 record that is as this release draws it but for the charts release 0.2 drew
     is ``older``: its charts are not checked, and ``repair`` keeps it (they cannot be drawn again). A PDF
     (printed by a browser) or executed workbook beside the record is listed as ``not checked``: it cannot
-    be drawn again byte for byte, so it is never said to match, and ``repair`` leaves it alone.
+    be drawn again byte for byte, so it is never said to match, and ``repair`` leaves it alone. A report
+    that differs while an issue of the set is in progress (:func:`issue_in_progress`), and whose staged
+    replacement is the JSON's rendering, is ``in progress``, not edited; ``repair`` leaves it to the issue.
+    A report ``repair`` cannot write (a read-only drive, a full disk) is ``not repaired``, with the reason.
+    A report that is a FIFO or device is never opened: it differs.
 
     Parameters
     ----------
@@ -608,30 +779,43 @@ def check_companions(json_path, record, repair=False):
     list of CompanionCheck
     """
     from ..records.record import write_text_atomic
-    from ..render.report import RENDERERS
+    from ..render.report import RENDERERS, render_earlier
 
     checks = []
+    staging = issue_in_progress(json_path)
     for suffix, render in RENDERERS.items():
         path = Path(json_path).with_suffix(suffix)
         fresh = render(record)
-        text = None
-        try:
-            text = path.read_text(encoding="utf-8")
+        text, verdict, problem = _read_report(path)
+        if verdict is None:
             verdict = "match" if text == fresh else "differs"
-        except FileNotFoundError:
-            verdict = "absent"
-        except (OSError, UnicodeDecodeError):
-            verdict = "differs"
-        if verdict == "differs" and _drawn_by_earlier_release(text, fresh, record):
+        # A report in the layout earlier releases drew (before the first page), showing this very JSON, is not edited.
+        earlier = render_earlier(record, suffix) if verdict == "differs" and text is not None else None
+        if verdict == "differs" and earlier is not None and text == earlier:
+            verdict = "earlier layout"
+        elif verdict == "differs" and text is not None and (_drawn_by_earlier_release(text, fresh, record)
+                                                            or _drawn_by_earlier_release(text, earlier, record)):
             verdict = "older"
         elif verdict == "differs" and _typed_name_shown_as_signed(text, record):
             verdict = "typed-as-signed"
+        if verdict in ("differs", "absent", "typed-as-signed") and staging is not None and \
+                _staged_is(staging, path.name, fresh):
+            # Not edited: the writer moves the report into place next (or the next writer of the record does).
+            checks.append(CompanionCheck(path, "in progress", f"the report that shows this JSON is staged in "
+                                         f"{staging} and moves into place when the issue completes"))
+            continue
         if repair and verdict == "older":
             pass   # the earlier release's charts cannot be drawn again: the report is kept as it is
         elif repair and verdict != "match":
-            write_text_atomic(path, fresh)
-            verdict = "repaired"
-        checks.append(CompanionCheck(path, verdict))
+            try:
+                write_text_atomic(path, fresh)
+                verdict, problem = "repaired", None
+            except SteamcalcError as exc:
+                verdict, problem = "not repaired", exc.explained()
+            except OSError as exc:   # the temporary file beside it cannot be made (a read-only drive)
+                from ..records.issuing import os_error
+                verdict, problem = "not repaired", os_error(exc, path, "write the report").explained()
+        checks.append(CompanionCheck(path, verdict, problem))
     for suffix in UNCHECKED_COMPANIONS:
         path = Path(json_path).with_suffix(suffix)
         if path.exists() or path.is_symlink():
@@ -661,8 +845,11 @@ def _compare_uncertainty(record, outcome, nominal_result):
     for key in list(old_bands) + [k for k in fresh["bands"] if k not in old_bands]:
         old = old_bands.get(key)
         new = fresh["bands"].get(key)
-        # Records made before the coverage interval was kept carry only the percentiles.
+        # Records made before the coverage interval was kept carry only the percentiles. The nominal, mean,
+        # spread and count the record states are compared too (the report prints the nominal beside each band).
         stats = ("p05", "p50", "p95") + (("low", "high") if old is None or "low" in old else ())
+        stats += tuple(k for k in ("nominal", "mean", "std", "samples") if old is None or k in old)
+        stats += tuple(k for k in (old or {}) if k not in stats and k != "unit")   # anything else it states
         for stat in stats:
             outcome.comparisons.append(_compare(
                 f"uncertainty.{key}.{stat}",
@@ -676,6 +863,7 @@ def _compare_uncertainty(record, outcome, nominal_result):
         outcome.comparisons.append(Comparison("uncertainty.sensitivity", "as recorded",
                                               f"differs at {found[0][0].lstrip('.') or 'its layout'}", "", None, None,
                                               "differs"))
+    outcome.comparisons.extend(_uncertainty_statements(record, fresh))
     old_summary, new_summary = record["uncertainty"].get("summary"), fresh.get("summary")
     if old_summary is not None and not (
             isinstance(old_summary, list) and isinstance(new_summary, list) and len(old_summary) == len(new_summary)
@@ -683,3 +871,68 @@ def _compare_uncertainty(record, outcome, nominal_result):
         outcome.comparisons.append(Comparison("uncertainty.summary", "; ".join(map(str, old_summary)) if isinstance(
             old_summary, list) else old_summary, "; ".join(new_summary or []), "", None, None, "differs"))
     return fresh
+
+
+#: The uncertainty section's settings (read by the recomputation, so the same by construction) and the parts
+#: compared on their own (bands, sensitivity, summary, tolerances).
+_UNCERTAINTY_READ = ("samples", "seed", "coverage", "bands", "sensitivity", "summary", "tolerances")
+
+
+def _uncertainty_statements(record, fresh):
+    """What the uncertainty section states besides its bands, against its recomputation: the method text,
+    the generator, the samples that gave a result and the reasons of those that did not, the engine the samples
+    ran on (its version is the software's, listed with the versions), and each tolerance's text as given, read
+    again; anything else the section states that the recomputation does not is a difference too."""
+    section, comparisons = record["uncertainty"], []
+    for key in [k for k in section if k not in _UNCERTAINTY_READ] + \
+            [k for k in fresh if k not in section and k not in _UNCERTAINTY_READ]:
+        old, new = section.get(key), fresh.get(key)
+        if key == "property_engine" and isinstance(old, dict) and isinstance(new, dict):
+            old, new = ({k: v for k, v in e.items() if k != "version"} for e in (old, new))
+        found = []
+        _walk(old, new, "", found)
+        if found:
+            comparisons.append(Comparison(f"uncertainty.{key}", _said(old), _said(new), "", None, None,
+                                          "missing" if new is None else "new" if old is None else "differs"))
+    comparisons.extend(_tolerance_texts(record))
+    return comparisons
+
+
+def _said(value):
+    text = value if isinstance(value, str) else repr(value)
+    return text if len(text) <= 120 else text[:117] + "..."
+
+
+def _tolerance_texts(record):
+    """Each tolerance whose text as given does not read as the tolerance the section holds."""
+    from ..calcs.base import from_record_inputs, input_fields
+    from ..runs.uncertainty import parse_tolerances
+
+    try:
+        calc = get_calculation(record.get("kind"))
+        inputs = from_record_inputs(calc.Inputs, record["inputs"])
+    except (SteamcalcError, KeyError, TypeError, ValueError):
+        return []
+    kinds = {f.name: f.metadata["kind"] for f in input_fields(calc.Inputs)}
+    comparisons = []
+    for key, entry in (record["uncertainty"].get("tolerances") or {}).items():
+        if not isinstance(entry, dict) or key not in kinds or "given" not in entry:
+            continue
+        given = entry["given"]
+        raw = given
+        if isinstance(given, str) and kinds[key] in ("number", "fraction") and "%" not in given:
+            try:
+                raw = float(given)
+            except ValueError:
+                pass
+        try:
+            (tolerance,), _, _ = parse_tolerances(calc.Inputs, {key: raw}, inputs)
+            read = tolerance.to_record(kinds[key])
+            same = _same_value(read["value"], entry.get("value")) and read["unit"] == entry.get("unit")
+            said = _shown_value(read)
+        except (SteamcalcError, TypeError, ValueError, ArithmeticError) as exc:
+            same, said = False, f"does not read ({exc.message if isinstance(exc, SteamcalcError) else exc})"
+        if not same:
+            comparisons.append(Comparison(f"uncertainty.tolerances.{key} (its text as given, {given!r})",
+                                          _shown_value(entry), said, "", None, None, "differs"))
+    return comparisons

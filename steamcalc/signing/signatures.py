@@ -26,6 +26,7 @@ from dataclasses import dataclass
 from datetime import datetime, timezone
 
 from .keys import ALGORITHM, fingerprint, short_fingerprint
+from .names import name_key, name_problem
 from ..records.record import canonical_json, compute_digest
 
 SCHEME = "steamcalc.signature/1"
@@ -70,6 +71,11 @@ def _check_one(record, entry, trusted):
         return SignatureCheck("?", "?", "?", "?", False, False, "the signature entry is not a table")
     check = SignatureCheck(str(entry.get("role")), str(entry.get("name")), str(entry.get("date")),
                            str(entry.get("fingerprint")), False, False)
+    problem = name_problem(entry.get("name"))
+    if problem:   # a name that reorders or hides what the reader sees is never shown as a signer's
+        check.name = ascii(entry.get("name"))
+        check.problem = f"the signer's name cannot stand on a record: {problem}"
+        return check
     try:
         raw = base64.b64decode(str(entry.get("public_key")), validate=True)
         signature = base64.b64decode(str(entry.get("signature")), validate=True)
@@ -112,8 +118,10 @@ def same_person(a, b):
     --------
     >>> same_person("C. Checker", " c.  checker"), same_person("C. Checker", "D. Approver"), same_person("", "")
     (True, False, False)
+    >>> same_person("C. Checker", "\uff23. Checker")   # a full-width letter is the same letter
+    True
     """
-    a, b = (" ".join(str(n or "").split()).casefold() for n in (a, b))
+    a, b = (name_key(n) for n in (a, b))
     return bool(a) and a == b
 
 
@@ -225,7 +233,7 @@ def verification_summary(outcome, companions=None):
         "version_changes": {k: {"record": a, "checker": b} for k, (a, b) in outcome.version_changes.items()},
     }
     if companions is not None:
-        summary["companions"] = "match" if all(c.verdict not in ("differs", "typed-as-signed") for c in companions) \
+        summary["companions"] = "match" if not any(c.differs for c in companions) \
             else "differ"
     return summary
 
@@ -245,7 +253,7 @@ def refusal(record, outcome, role, name, trusted, companions=(), key_fingerprint
         return f"its recomputed status is FAIL ({failing}); resolve the failing checks in a new revision"
     if not outcome.ok:
         return "what it states is not what its inputs give today: " + "; ".join(outcome.differences()[:4])
-    edited = [c.path.name for c in companions if c.verdict in ("differs", "typed-as-signed")]
+    edited = [c.path.name for c in companions if c.differs or c.verdict == "in progress"]
     if edited:
         return (f"its companion files do not match the JSON ({', '.join(edited)}); "
                 "inspect them, then run steamcalc verify --repair")

@@ -16,7 +16,8 @@ it. So the list comes, in this order, from
    the records folder itself.
 
 Whatever is used is said (:meth:`TrustList.describe`), and a list found beside the records and not used is
-reported too, so a reader sees that it was there.
+reported too, so a reader sees that it was there. How the folder used is read (what is skipped unopened,
+what is refused, what is warned of) is :func:`read_trusted`'s.
 """
 
 from __future__ import annotations
@@ -26,7 +27,9 @@ import tomllib
 from dataclasses import dataclass, field
 from pathlib import Path
 
-from .keys import TRUSTED_FOLDER, SigningInputError, load_trusted
+from .keys import (TRUSTED_FOLDER, SigningInputError, holds_private_key, load_public_key, not_regular,
+                   read_small_file, short_fingerprint)
+from .names import name_key
 
 SETTINGS_VARIABLE = "STEAMCALC_SETTINGS"
 SETTINGS_KEY = "signing.trusted_signers"
@@ -46,12 +49,17 @@ class TrustList:
         Fingerprint -> :class:`steamcalc.signing.keys.PublicKey`.
     ignored : tuple of Path
         Trust lists found in the records' own folder, never used.
+    problems : tuple of str
+        Entries of the list used that were skipped unopened (a FIFO or device named ``*.pub``), and keys
+        not trusted, each with the reason (:func:`steamcalc.signing.keys.read_trusted`); warnings such as
+        two keys under one name.
     """
 
     folder: Path | None
     origin: str
     keys: dict = field(default_factory=dict)
     ignored: tuple = ()
+    problems: tuple = ()
 
     def describe(self):
         """One line for ``verify`` and ``register``: the list used and why.
@@ -67,10 +75,127 @@ class TrustList:
         return f"{self.folder} ({count} key{'' if count == 1 else 's'}; {self.origin})"
 
     def notes(self):
-        """What was found beside the records and not used, one line each."""
+        """What was found beside the records and not used, and what in the list used was skipped, one line each."""
         return [f"not used: {path} - a trust list in the records' own folder is never used (whoever can put a "
                 "record there can put a key there); name the list with --trusted DIR or in your settings file"
-                for path in self.ignored]
+                for path in self.ignored] + [f"trusted signers: {line}" for line in self.problems]
+
+
+@dataclass(frozen=True)
+class TrustedFolder:
+    """The public keys read from a trusted signers folder, and what in it was not used and why.
+
+    Attributes
+    ----------
+    keys : dict
+        Fingerprint -> :class:`PublicKey`, the keys trusted.
+    problems : tuple of str
+        One line per entry skipped unopened (a FIFO, device, socket or folder named ``*.pub``) and per
+        key not trusted because two files give it two names.
+    warnings : tuple of str
+        Two trusted keys under one name.
+    """
+
+    keys: dict
+    problems: tuple = ()
+    warnings: tuple = ()
+
+
+def read_trusted(folder, required=False):
+    """The public keys a site trusts, with what was skipped: a :class:`TrustedFolder`.
+
+    One FIFO in a shared folder must not hang every verification: an entry named ``*.pub`` that is not a
+    regular file (a FIFO, device, socket, folder) is skipped without being opened, and reported. A damaged
+    ``.pub`` file is refused, naming it, as is a private key found in the folder under any name (``*.key``,
+    or a file holding a private key): whoever can read the folder may have copied it, so its owner must make
+    a new key pair. The same key under two names is trusted under neither; two keys under one name are both
+    trusted, with a warning.
+
+    Parameters
+    ----------
+    folder : str or Path or None
+        The ``trusted_signers/`` folder.
+    required : bool
+        True when the user named the folder: a missing one is then an error.
+
+    Raises
+    ------
+    SigningInputError
+        A named folder that does not exist or cannot be listed, a ``.pub`` file that is not a public key
+        (or is a link to a missing file), a private key in the folder, or a key whose name cannot stand on
+        a record.
+    """
+    if folder is None:
+        return TrustedFolder({})
+    folder = Path(folder)
+    try:
+        is_folder = folder.is_dir()
+        if not is_folder and (required or folder.exists() or folder.is_symlink()):
+            raise SigningInputError("the trusted signers folder does not exist or is not a folder", source=folder,
+                                    field="--trusted", fix="name the folder holding the trusted .pub files "
+                                    "(trusted_signers/ beside site.toml)")
+        entries = sorted(folder.iterdir()) if is_folder else []
+    except OSError as exc:
+        raise SigningInputError(f"the trusted signers folder cannot be read ({exc.strerror or exc})", source=folder,
+                                field="--trusted", fix="check the folder's permissions") from None
+    problems, loaded = [], []
+    for path in entries:
+        kind = _entry_type(path)
+        if path.suffix == ".key" or (kind is None and _looks_private(path)):
+            raise SigningInputError("a private key file is in the trusted signers folder, where the whole team can "
+                                    "read it", source=path, fix="move it back to its owner (only the .pub file "
+                                    "belongs here); its owner should make a new key pair, since this one may have "
+                                    "been copied")
+        if path.suffix != ".pub":
+            continue
+        if kind not in (None, "missing", "unreadable"):
+            problems.append(f"skipped {path}: it is {kind}, not a public key file; it was not opened - remove it "
+                            "(a trusted signer's file is the .pub file that `steamcalc keys new` wrote)")
+            continue
+        loaded.append(load_public_key(path))
+    keys, conflicting = {}, set()
+    for key in loaded:
+        other = keys.get(key.fingerprint)
+        if other is not None and name_key(other.name) != name_key(key.name):
+            problems.append(f"not trusted: key {short_fingerprint(key.fingerprint)} is in {other.path} as "
+                            f"{other.name} and in {key.path} as {key.name}; one key has one owner - remove the "
+                            "file that names the wrong person")
+            conflicting.add(key.fingerprint)
+        keys.setdefault(key.fingerprint, key)
+    keys = {k: v for k, v in keys.items() if k not in conflicting}
+    by_name = {}
+    for key in keys.values():
+        by_name.setdefault(name_key(key.name), []).append(key)
+    warnings = tuple(f"two trusted keys carry the name {same[0].name}: " + ", ".join(
+        f"{short_fingerprint(k.fingerprint)} ({k.path.name if k.path else '?'})" for k in same)
+        + "; a signature by either shows the same name - remove the one no longer in use"
+        for same in by_name.values() if len(same) > 1)
+    return TrustedFolder(keys, tuple(problems), warnings)
+
+
+def _entry_type(path):
+    """What a folder entry is when it is not a regular file ("missing" for a dangling link), else None."""
+    try:
+        return not_regular(os.stat(path).st_mode)
+    except FileNotFoundError:
+        return "missing"
+    except OSError:
+        return "unreadable"
+
+
+def _looks_private(path):
+    """A regular file (of any name) holding a private key; only regular files are opened."""
+    try:
+        data, _ = read_small_file(path, "file")
+    except SigningInputError:
+        return False
+    return holds_private_key(data.decode("utf-8", "replace"))
+
+
+def load_trusted(folder, required=False):
+    """The public keys a site trusts: fingerprint -> :class:`~steamcalc.signing.keys.PublicKey` (see
+    :func:`read_trusted`)."""
+    return read_trusted(folder, required).keys
 
 
 def settings_file():
@@ -195,17 +320,17 @@ def resolve_trust(records_folder=None, trusted_dir=None, site_dir=None):
     """
     if trusted_dir:
         folder = Path(trusted_dir)
-        keys = load_trusted(folder, required=True)
-        return TrustList(folder, "named with --trusted", keys, _planted(records_folder, folder))
+        read = read_trusted(folder, required=True)
+        return TrustList(folder, "named with --trusted", read.keys, _planted(records_folder, folder), _lines(read))
     configured, settings = configured_folder()
     if configured is not None:
         if not configured.is_dir():
             raise SigningInputError("the trusted signers folder set in your settings file does not exist",
                                     source=settings, field=SETTINGS_KEY, value=str(configured),
                                     fix="correct the folder name, or remove the setting")
-        keys = load_trusted(configured, required=True)
-        return TrustList(configured, f"set in your settings file {settings}", keys,
-                         _planted(records_folder, configured))
+        read = read_trusted(configured, required=True)
+        return TrustList(configured, f"set in your settings file {settings}", read.keys,
+                         _planted(records_folder, configured), _lines(read))
     if site_dir is not None:
         site, why = Path(site_dir).resolve(), ""
     elif records_folder is not None:
@@ -216,6 +341,12 @@ def resolve_trust(records_folder=None, trusted_dir=None, site_dir=None):
         return TrustList(None, why + "; give --trusted DIR, or set trusted_signers in your settings file "
                          f"({settings or 'settings.toml'})", {}, _planted(records_folder, None))
     folder = site / TRUSTED_FOLDER
-    keys = load_trusted(folder)
+    read = read_trusted(folder)
     origin = f"the trusted_signers/ of the site {site}" + ("" if folder.is_dir() else " - there is none")
-    return TrustList(folder if folder.is_dir() else None, origin, keys, _planted(records_folder, folder))
+    return TrustList(folder if folder.is_dir() else None, origin, read.keys, _planted(records_folder, folder),
+                     _lines(read))
+
+
+def _lines(read: TrustedFolder):
+    """What a trusted folder's reading skipped or warns of, one line each."""
+    return tuple(read.problems) + tuple(f"warning: {line}" for line in read.warnings)

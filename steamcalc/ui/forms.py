@@ -13,11 +13,14 @@ filling one empties the others, with a note saying what was emptied.
 from __future__ import annotations
 
 import html
+import math
 import re
 
 import ipywidgets as widgets
 
 from ..calcs.base import input_fields
+from ..units.formatting import format_number, unit_label
+from ..units.quantities import Q_, RECORD_UNITS, SI_UNITS, unit_spelling
 from .wording import FormWords
 
 _LABEL_WIDTH = "15em"
@@ -36,6 +39,9 @@ ALTERNATIVES = {
 ERROR_CLASS = "steamcalc-input-refused"
 MESSAGE_CLASS = "steamcalc-field-message"
 HELP_CLASS = "steamcalc-help"
+#: The box a refusal concerns when it is not the box just edited (the other side of a cross-field refusal).
+CONFLICT_CLASS = "steamcalc-input-conflict"
+_CONFLICT_STYLE = ("<style>.steamcalc-input-conflict input{border:2px dashed #a3201b !important}</style>")
 
 
 def alternatives_for(calc):
@@ -45,6 +51,75 @@ def alternatives_for(calc):
 
 def _one_of(labels):
     return labels[0] if len(labels) == 1 else ", ".join(labels[:-1]) + " or " + labels[-1]
+
+
+_TYPED = re.compile(r"^\s*([+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?)\s*(.*?)\s*$")
+_TYPED_PRESSURE = re.compile(r"^(mbar|bar|kPa|MPa|Pa|psi)\s*(?:\(([aAgG])\)|([aAgG]))?$")
+_PRESSURE_SIZES = {"bar": 1e5, "mbar": 100.0, "Pa": 1.0, "kPa": 1e3, "MPa": 1e6, "psi": 6894.757293168361}
+#: Atmospheric pressures of inhabited places, Pa (standard atmosphere from about -400 m to 9 000 m, ISO 2533):
+#: an absolute value that stands this far above a gauge reading typed in its box is that reading.
+_ATMOSPHERES = (30e3, 106e3)
+
+
+def _number(value, unit=""):
+    return format_number(value, unit, trim=True)
+
+
+def given_in_box_units(value, kind, typed):
+    """A value an error holds in SI, written in the units typed in its box (or the field's record unit).
+
+    The value of a refused input is what its box holds: a gauge pressure typed as ``14 bar(g)`` is
+    given back as typed (its absolute value stands an atmosphere above it); another value is converted
+    to the unit typed (``"20 t/h"``) or, for an empty box or a header, to the field's record unit
+    (pressures absolute). Returns None for what is not a finite number (the error writes it itself).
+
+    Examples
+    --------
+    >>> given_in_box_units(1499181.23, "pressure", "14 bar(g)"), given_in_box_units(1499181.23, "pressure", "header:HP")
+    ('14 bar(g)', 'header:HP, 14.99 bar(a)')
+    >>> given_in_box_units(5.5555556, "mass_flow", "20 t/h"), given_in_box_units(0.3, "fraction", "30 %")
+    ('20 t/h', '30 %')
+    >>> given_in_box_units(422.0388889, "temperature", "300 degF"), given_in_box_units(5.0, "number", "5")
+    ('300 degF', '5')
+    """
+    if isinstance(value, bool) or not isinstance(value, (int, float)) or not math.isfinite(value):
+        return None
+    typed = str(typed or "").strip()
+    match = _TYPED.match(typed)
+    number, unit = (float(match.group(1)), match.group(2)) if match else (None, "")
+    if kind in ("pressure", "pressure_difference", "pressure_list"):
+        written = _TYPED_PRESSURE.match(unit) if match else None
+        name = written.group(1) if written else "bar"
+        size = _PRESSURE_SIZES[name]
+        if kind == "pressure_difference":
+            return f"{_number(value / size)} {name}"
+        basis = (written.group(2) or written.group(3) or "").lower() if written else ""
+        if basis == "g" and _ATMOSPHERES[0] <= value - number * size <= _ATMOSPHERES[1]:
+            return typed
+        if basis == "a" and math.isclose(value, number * size, rel_tol=1e-9):
+            return typed
+        shown = f"{_number(value / size)} {unit_label(name)}"
+        return f"{typed}, {shown}" if typed and not match else shown
+    if unit == "%":
+        if math.isclose(value * 100.0, number, rel_tol=1e-9, abs_tol=1e-12):
+            return typed
+        return f"{_number(value * 100.0, 'percent')} %"
+    if match and not unit and math.isclose(value, number, rel_tol=1e-9, abs_tol=1e-12):
+        return typed
+    si_unit = SI_UNITS.get(kind)
+    if si_unit and kind != "dimensionless":
+        if match and unit:
+            try:
+                converted = Q_(value, si_unit).to(unit_spelling(unit)).magnitude
+                if math.isclose(converted, number, rel_tol=1e-9, abs_tol=1e-12):
+                    return typed
+                return f"{_number(converted, unit_spelling(unit))} {unit}"
+            except Exception:   # a unit this kind is not in: the record unit below
+                pass
+        record_unit = RECORD_UNITS[kind]
+        shown = Q_(value, si_unit).to(record_unit).magnitude
+        return f"{_number(shown, record_unit)} {unit_label(record_unit)}".strip()
+    return _number(value)
 
 
 class CaseForm:
@@ -82,6 +157,8 @@ class CaseForm:
                 self.alternatives[name] = group
         self._holding = False
         self.notes = {}
+        # The box last edited, and the one a standing refusal is blamed on (with that refusal's field and message).
+        self._edited = self._blamed = self._refusal_key = None
         groups = {}
         header_note = f" Site headers: {', '.join('header:' + h for h in headers)}." if headers else ""
         for f in input_fields(inputs_class):
@@ -164,41 +241,99 @@ class CaseForm:
     def show_error(self, exc):
         """Show a refused input's message beside its box and highlight the box.
 
-        Returns the field name it was shown beside, or None when the error names no box of
-        this form (the workbook then shows it under the form).
+        A refusal that follows an edit is the edit refused: its message stands beside the box just
+        edited. When the error names another box (a cross-field refusal: a steam flow typed above the
+        maximum flow further down), that box is marked too, dashed, with a line saying what it conflicts
+        with; an error that names no box of the form is shown beside the box just edited. The box
+        blamed stays the same while the same refusal stands (editing an unrelated box moves nothing).
+
+        Returns the field name the message is shown beside, or None when there is no box to show it
+        beside (the workbook then shows it under the form).
         """
-        self.clear_errors()
-        address = getattr(exc, "field", None)
-        name = self.words.field_name(address)
+        self._unmark()
+        named = self.words.field_name(getattr(exc, "field", None))
+        key = (str(getattr(exc, "field", "")), str(getattr(exc, "message", exc)))
+        if key != self._refusal_key:
+            self._blamed = self._edited if self._edited in self.boxes else None
+            self._refusal_key = key
+        where = self._blamed or named
+        if where is None:
+            return None
+        self.boxes[where].add_class(ERROR_CLASS)
+        self.messages[where].value = (f"<div class='steamcalc-refused' style='color:#a3201b;padding-left:8px'>"
+                                      f"<b>Not accepted:</b> {html.escape(self.refusal(exc))}</div>"
+                                      + self.messages[where].value)
+        if named is not None and named != where:
+            self.boxes[named].add_class(CONFLICT_CLASS)
+            self.messages[named].value = (
+                f"{_CONFLICT_STYLE}<div class='steamcalc-conflict' style='color:#a3201b;padding-left:8px'>"
+                f"In conflict with {html.escape(self._typed_label(where))}, just changed: "
+                f"{html.escape(self.words.text(exc.message))}</div>" + self.messages[named].value)
+        return where
+
+    def _typed(self, name, address=""):
+        """What is typed in a box (the item of a list that an address ``stages[1]`` names)."""
+        text = self.boxes[name].value.strip()
+        item = re.search(r"\[(\d+)\]$", str(address or ""))
+        if item and self.kinds.get(name) == "pressure_list":
+            items = [part.strip().strip("'\"") for part in text.strip("[]").split(",")]
+            index = int(item.group(1))
+            text = items[index] if index < len(items) else ""
+        return text
+
+    def _typed_label(self, name):
+        typed = self._typed(name)
+        return f"{self.labels[name]} ({typed})" if typed else self.labels[name]
+
+    def given(self, exc, name):
+        """The value of a refusal as the form writes it: in the units typed in its box, or None."""
         if name is None:
             return None
-        self.boxes[name].add_class(ERROR_CLASS)
-        self.messages[name].value = (f"<div class='steamcalc-refused' style='color:#a3201b;padding-left:8px'>"
-                                     f"<b>Not accepted:</b> {html.escape(self.refusal(exc))}</div>"
-                                     + self.messages[name].value)
-        return name
+        return given_in_box_units(getattr(exc, "value", None), self.kinds.get(name),
+                                  self._typed(name, getattr(exc, "field", "")))
 
     def refusal(self, exc):
-        """The message of a refused input in the form's words, starting with its box's label."""
+        """The message of a refused input in the form's words, starting with its box's label.
+
+        A cross-field refusal starts with the box just edited and names the box it conflicts with,
+        each with what is typed in it.
+        """
         address = str(getattr(exc, "field", "") or "")
         name = self.words.field_name(address)
+        blamed = self._blamed if self._blamed in self.boxes and self._refusal_key is not None else None
+        if blamed is not None and blamed != name:
+            if name is not None:
+                other = self.labels[name]
+                given = self.given(exc, name) or self._typed(name, address)
+                other += f" ({given})" if given else ""
+                return f"{self._typed_label(blamed)} conflicts with {other}: {self.words.error(exc, given='')}"
+            where = f"{self.words.text(address).replace('_', ' ')}: " if address else ""
+            return f"{self._typed_label(blamed)} is not accepted with the other inputs: {where}{self.words.error(exc)}"
         label = self.labels.get(name, address)
         item = re.search(r"\[(\d+)\]$", address)
         where = f"{label}, item {int(item.group(1)) + 1}" if item else label
-        text = self.words.error(exc)
+        text = self.words.error(exc, given=self.given(exc, name))
         if re.match(r"(is|are|must|cannot|should|has|needs) ", text):
             return f"{where} {text}"
         return f"{where}: {text}"
 
-    def clear_errors(self):
-        """Remove every box's highlight and message; show the notes of emptied alternatives."""
+    def _unmark(self):
         notes = self.notes
         for name, box in self.boxes.items():
             box.remove_class(ERROR_CLASS)
+            box.remove_class(CONFLICT_CLASS)
             note = notes.get(name)
             self.messages[name].value = ("" if not note else
                                          f"<div class='steamcalc-note' style='color:#555;padding-left:8px'>"
                                          f"{html.escape(note)}</div>")
+
+    def clear_errors(self):
+        """Remove every box's highlight and message; show the notes of emptied alternatives.
+
+        The inputs are accepted again: the next refusal is blamed on the box edited then.
+        """
+        self._blamed = self._refusal_key = None
+        self._unmark()
 
     # -- values ----------------------------------------------------------------------
     def values(self):
@@ -236,9 +371,12 @@ class CaseForm:
 
     def observe(self, callback):
         """Call ``callback()`` whenever a box's value changes (once for a change that empties alternatives)."""
+        names = {id(box): name for name, box in self.boxes.items()}
+
         def changed(change):
             if self._holding:
                 return
+            self._edited = names.get(id(change.get("owner")))   # None for a ± tolerance box
             if not getattr(self, "_fresh_note", False):
                 self.notes = {}  # a note on emptied alternatives lasts until the next change
             self._fresh_note = False

@@ -170,36 +170,51 @@ class ReviewBook:
     def _show(self):
         o = self.outcome
         labels = _input_labels(self.record)
-        rows = "".join(
-            f"<tr><td>{html.escape(_result_label(self.record, c.key, labels))}</td>"
-            f"<td style='text-align:right'>{html.escape(format_number(c.recorded))}</td>"
-            f"<td style='text-align:right'>{html.escape(format_number(c.recomputed))}</td>"
-            f"<td>{html.escape(format_unit(c.unit))}</td>"
-            f"<td>{'' if c.rel_diff is None else f'{c.rel_diff:.1e}'}</td>"
-            f"<td style='color:{'#2f6b3a' if c.verdict == 'same' else '#a3201b'}'><b>{c.verdict}</b></td></tr>"
-            for c in o.comparisons)
+
+        def rows(comparisons):
+            return "".join(
+                f"<tr><td>{html.escape(_result_label(self.record, c.key, labels))}</td>"
+                f"<td style='text-align:right'>{html.escape(format_number(c.recorded))}</td>"
+                f"<td style='text-align:right'>{html.escape(format_number(c.recomputed))}</td>"
+                f"<td>{html.escape(format_unit(c.unit))}</td>"
+                f"<td>{'' if c.rel_diff is None else f'{c.rel_diff:.1e}'}</td>"
+                f"<td style='color:{'#2f6b3a' if c.verdict == 'same' else '#a3201b'}'><b>{c.verdict}</b></td></tr>"
+                for c in comparisons)
+        # As `steamcalc verify` prints it: what differs first, then the governing results; the rest folded away.
+        differing = [c for c in o.comparisons if c.verdict != "same"]
+        wanted = _summary_results(self.record)
+        governing = [c for key in wanted for c in o.comparisons if c.key == key and c.verdict == "same"]
+        others = [c for c in o.comparisons if c.verdict == "same" and c not in governing]
+        head = ("<tr><th>result</th><th>recorded</th><th>recomputed</th><th>unit</th><th>rel. diff</th>"
+                "<th>verdict</th></tr>")
+        table = (f"<h4>Differences</h4><table>{head}{rows(differing)}</table>" if differing else
+                 "<p><b>Differences: none</b> - every value recomputed from the record's own inputs is as recorded.</p>")
+        if governing:
+            table += f"<h4>Governing results</h4><table>{head}{rows(governing)}</table>"
+        if others:
+            table += (f"<details><summary>{len(others)} other values, as recorded</summary>"
+                      f"<table>{head}{rows(others)}</table></details>")
         checks = "".join(f"<li><b>{'NOTICE' if c.get('kind') == 'notice' else c['status'].upper()}</b> "
                          f"{html.escape(c['name'])}: {html.escape(c['detail'])}</li>" for c in self.record.get("checks", []))
         self._summary.refresh()
-        self._table.value = (f"<p>{_summary_html(self.summary())}</p>"
-                             f"<table><tr><th>result</th><th>recorded</th><th>recomputed</th><th>unit</th>"
-                             f"<th>rel. diff</th><th>verdict</th></tr>{rows}</table><h4>Checks</h4><ul>{checks}</ul>")
+        self._table.value = f"<p>{_summary_html(self.summary())}</p>{table}<h4>Checks</h4><ul>{checks}</ul>"
 
     def summary(self):
         """Plain-text verification summary (what headless runs print)."""
         o, r = self.outcome, self.record
         same = sum(1 for c in o.comparisons if c.verdict == "same")
         signers, signed_ok, trust = _signers(r, self.path.parent, o.recomputed_status)
+        # The verdict first, as `steamcalc verify` prints it.
         lines = [f"{r['id']} rev {r['revision']} - {r.get('title', '')}",
+                 f"verdict: {'VERIFIED' if o.ok and signed_ok else 'FAILED'}",
                  f"integrity: {'intact' if o.digest_ok and o.content_digest_ok else 'EDITED - digest does not match'}",
                  f"reproduction: {same} of {len(o.comparisons)} results reproduced"
                  + ("" if not o.check_changes else f"; {len(o.check_changes)} check changes"),
-                 f"record status: {r.get('status', '').upper()}; checked by: {signers}",
-                 f"verdict: {'VERIFIED' if o.ok and signed_ok else 'FAILED'}"]
+                 f"record status: {r.get('status', '').upper()}; checked by: {signers}"]
         if trust:
-            lines.insert(4, f"trusted signers: {trust}")
+            lines.append(f"trusted signers: {trust}")
         if o.error:
-            lines.insert(2, f"reproduction not possible: {o.error}")
+            lines.insert(3, f"reproduction not possible: {o.error}")
         for name, (then, now) in o.version_changes.items():
             lines.append(f"version: {name} {then} in the record, {now} here")
         return "\n".join(lines)
@@ -221,22 +236,36 @@ class ReviewBook:
         return [row for row in self._register_rows if self.REGISTER_FILTERS[show](row)]
 
     def register_view(self):
-        """The register as a table with a filter; built when asked (it recomputes every record)."""
-        from ..review.register import register_table_html
+        """The register of the picked record's folder as a table with a filter, as ``steamcalc register`` lists
+        it: each record re-verified, its signatures, and whether it is current (not superseded; its case file,
+        the site data and the software unchanged; its companions matching). Built when the button is pressed
+        (it recomputes every record), so opening the workbook never waits on it."""
+        from ..review.register import register_table_html, register_trust
 
         table = widgets.HTML()
         table.add_class("steamcalc-register")
         show = widgets.Dropdown(options=list(self.REGISTER_FILTERS), value="all records", description="Show")
-        build = widgets.Button(description="Build the register", icon="list")
+        show.add_class("steamcalc-register-filter")
+        build = widgets.Button(description="Build the register", icon="list", tooltip="Re-verify every record of "
+                               "the folder and list them (what steamcalc register prints)",
+                               layout=widgets.Layout(width="14em", min_width="14em", flex="0 0 auto"))
+        build.add_class("steamcalc-register-build")
 
         def redraw(_=None):
             rows = getattr(self, "_register_rows", None)
             if rows is None:
-                table.value = "<p>Build the register to see every record of this folder.</p>"
+                table.value = (f"<p>Press <b>Build the register</b> to list every record of "
+                               f"{html.escape(str(self.folder))}, each one re-verified.</p>")
                 return
             kept = [row for row in rows if self.REGISTER_FILTERS[show.value](row)]
+            try:
+                trust = f"<br><small>trusted signers: {html.escape(register_trust(self.folder).describe())}</small>"
+            except SteamcalcError as exc:
+                trust = f"<br><small>trusted signers: cannot be read ({html.escape(str(exc))})</small>"
+            # Links are relative to the notebook's folder, where the kernel runs, so they open from the workbook.
             table.value = (f"<p>{len(kept)} of {len(rows)} records shown; {sum(r.current for r in rows)} current, "
-                           f"{sum(r.valid for r in rows)} valid.</p>" + register_table_html(kept))
+                           f"{sum(r.valid for r in rows)} valid (folder {html.escape(str(self.folder))}).{trust}</p>"
+                           + register_table_html(kept, base=Path.cwd()))
 
         def rebuild(_):
             try:
@@ -290,7 +319,9 @@ class ReviewBook:
         rows = diff_records(earlier, self.record, unchanged=True)
         old_rev, new_rev = html.escape(earlier.get("revision", "")), html.escape(self.record.get("revision", ""))
         title = (f"<p class='steamcalc-comparison-title'><b>{rid} rev {old_rev} → rev {new_rev}</b> "
-                 f"(earlier → picked: an increase shows as a positive change)</p>"
+                 f"(earlier → picked: an increase shows as a positive change; in the rows that differ the earlier "
+                 f"value is <span style='{_OLD_STYLE}'>struck through in grey</span> and the picked one "
+                 f"<span style='{_NEW_STYLE}'>in bold blue</span>, neither better nor worse)</p>"
                  f"<p class='steamcalc-comparison-summary'>{html.escape(diff_summary(rows))}</p>")
         differing = [r for r in rows if r["status"] != "same"]
         if not differing:
@@ -378,6 +409,15 @@ def _signers(record, folder, status=None):
     return "not yet checked", True, None
 
 
+def _summary_results(record):
+    """The governing results of a record's kind (its calculation's ``SUMMARY_RESULTS``; none for an unknown kind)."""
+    try:
+        from ..calcs import get_calculation
+        return tuple(getattr(get_calculation(record.get("kind")), "SUMMARY_RESULTS", ()))
+    except SteamcalcError:
+        return ()
+
+
 def _revision_key(revision):
     """Sort key of a revision: A < B < ... < Z < AA, 1 < 2 < 10, P1 < P2."""
     parts = re.findall(r"\d+|[^\d]+", str(revision).strip().upper())
@@ -401,7 +441,10 @@ def _result_label(record, key, labels):
     return labels.get(key, key)
 
 
-_ROW_COLOURS = {"changed": "#fff4d6", "added": "#e6f4e8", "removed": "#fbeaea", "same": "transparent"}
+#: One neutral tint for every row that differs (the mark says how): red and green would call a change bad or good.
+_ROW_COLOURS = {"changed": "#f0f4f8", "added": "#f0f4f8", "removed": "#f0f4f8", "same": "transparent"}
+#: The old value struck through in grey, the new one in bold blue (as the HTML comparison page shows them).
+_OLD_STYLE, _NEW_STYLE = "color:#6b7379;text-decoration:line-through", "color:#1d4f91;font-weight:bold"
 
 
 def _comparison_rows(rows):
@@ -415,9 +458,12 @@ def _comparison_rows(rows):
                                             if r.get("old_given") and r["old_given"] != r["old_text"] else "")
         new = html.escape(r["new_text"]) + (f"<br><small>as given: {html.escape(r['new_given'])}</small>"
                                             if r.get("new_given") and r["new_given"] != r["new_text"] else "")
+        differs = r["status"] != "same"
+        old_style = f";{_OLD_STYLE}" if differs and r["status"] != "added" else ""
+        new_style = f";{_NEW_STYLE}" if differs and r["status"] != "removed" else ""
         out.append(f"<tr class='steamcalc-diff-{r['status']}' style='background:{_ROW_COLOURS[r['status']]}'>"
                    f"<td>{html.escape(r['marker'])}</td><td>{html.escape(str(r['label']))}</td>"
-                   f"<td style='text-align:right'>{old}</td><td style='text-align:right'>{new}</td>"
+                   f"<td style='text-align:right{old_style}'>{old}</td><td style='text-align:right{new_style}'>{new}</td>"
                    f"<td>{html.escape(r['unit_label'])}</td>"
                    f"<td style='text-align:right'>{html.escape(str(r['change_text']))}</td>"
                    f"<td><small><code>{html.escape(str(r.get('case_key') or r['key']))}</code></small></td></tr>")

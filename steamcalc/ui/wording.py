@@ -94,13 +94,14 @@ class FormWords:
                      str(fix))
         return self.text(fix)
 
-    def error(self, exc):
+    def error(self, exc, given=None):
         """The message of a SteamcalcError for the box it concerns: what is wrong, the value, the range, the fix.
 
         The field is not named (the message stands beside its box); the file is not named (the
-        form is the source).
+        form is the source). ``given`` is the value as the form writes it (in the units typed in its
+        box; ``""`` for none); by default the error writes its own.
         """
         message = self.text(exc.message)
         if exc.fix and not message.endswith((".", ":", "!", "?")):
             message += "."
-        return exc.explained(message, self.fix(exc.fix))
+        return exc.explained(message, self.fix(exc.fix), given)

@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import dataclasses
 import html
+import os
 from pathlib import Path
 
 import ipywidgets as widgets
@@ -108,11 +109,22 @@ class Workbook:
         self._preview.add_class("steamcalc-preview")
         self._table = widgets.HTML()
         self._table.add_class("steamcalc-table")
-        self._save_button = widgets.Button(description="Save record", icon="save", button_style="primary")
+        # The button keeps its size whatever the message beside it says (a long refusal once squeezed it to
+        # "Sav…"); the message takes the rest of the line and wraps.
+        self._save_button = widgets.Button(description="Save record", icon="save", button_style="primary",
+                                           layout=widgets.Layout(width="12em", min_width="12em", flex="0 0 auto"))
         self._save_button.add_class("steamcalc-save")
-        self._save_status = widgets.HTML()
+        self._save_status = widgets.HTML(layout=widgets.Layout(flex="1 1 auto", min_width="0", width="auto"))
         self._save_status.add_class("steamcalc-save-status")
         self._save_button.on_click(lambda _: self._on_save())
+        # Offered when the revision already holds another record: raise the Revision box to the next free one and
+        # save (as the case-file save offers).
+        self._save_next = widgets.Button(description="", icon="arrow-up",
+                                         layout=widgets.Layout(display="none", width="16em", min_width="16em",
+                                                               flex="0 0 auto"))
+        self._save_next.add_class("steamcalc-save-next")
+        self._save_next.on_click(lambda _: self._save_as_next())
+        self._next_revision = None
         self._revision = widgets.Text(value=self.case.revision, description="Revision",
                                       continuous_update=False, style={"description_width": "15em"},
                                       tooltip="Raise the revision to issue changed inputs as a new record")
@@ -217,6 +229,7 @@ class Workbook:
             return
         self._revision.remove_class("steamcalc-input-refused")
         self._revision_message.value = ""
+        self._save_next.layout.display = "none"   # an offered revision is for the revision it was offered after
         self._save_button.disabled = self.error is not None
         self.case = dataclasses.replace(self.case, revision=revision)
         self._save_status.value = ""
@@ -269,7 +282,7 @@ class Workbook:
         self._bands.value = (f"<ul>{lines}</ul><table><tr><th>result</th><th>nominal</th><th>low end, {coverage}</th>"
                              f"<th>high end, {coverage}</th><th>unit</th></tr>{rows}</table>"
                              f"<div><small>{u['samples']} samples, seed {u['seed']}, {u['valid_samples']} valid</small></div>")
-        figure = tornado_chart(u, self.calc)
+        figure = tornado_chart(u, self.calc, self.site.display_units)
         self._tornado.outputs = ({"output_type": "display_data", "metadata": {},
                                   "data": {"application/vnd.plotly.v1+json": figure_json(figure),
                                            "text/plain": "tornado chart"}},)
@@ -305,7 +318,7 @@ class Workbook:
             for reason in missing)
 
     def _draw_table(self):
-        tables = table_for(self.case.kind, self.inputs, self.result)
+        tables = table_for(self.case.kind, self.inputs, self.result, self.site.display_units)
         if not tables:
             self._table.value = ""
             return
@@ -353,7 +366,9 @@ class Workbook:
         return widgets.VBox([self._stale_banner(), self._bands_button, self._bands, self._tornado])
 
     def save_view(self):
-        return widgets.HBox([self._save_button, self._save_status])
+        """The Save record button, the revision it offers after a refusal, and what happened."""
+        return widgets.HBox([self._save_button, self._save_next, self._save_status],
+                            layout=widgets.Layout(width="100%", align_items="flex-start"))
 
     def sketch_view(self):
         """The process sketch with the computed state at each point (follows the inputs)."""
@@ -397,11 +412,33 @@ class Workbook:
     def save(self):
         """Write the record of the current inputs; return a one-line account of it.
 
-        Never replaces a different record of the same id and revision: that is
-        refused with the message to raise the revision.
+        Never replaces a different record of the same id and revision: that is refused with the next free
+        revision offered. What the notebook's save cell calls when the workbook runs headless (papermill,
+        nbval, ``steamcalc run --notebook``). In a notebook someone has open in JupyterLab, Run All never
+        saves a record by itself: the record is saved when *Save record* is pressed, so nothing is written
+        that the engineer has not looked at; this then says so and saves nothing.
         """
+        if interactive_session():
+            return (f"not saved by Run All: press Save record below to issue {self.case.id} rev "
+                    f"{self.case.revision} once you have checked the results (a notebook open in JupyterLab never "
+                    "saves a record by itself)")
         saved = self._save()
         return saved[0]
+
+    def next_free_revision(self):
+        """The first revision after the one in the Revision box that no record of this id in the record folder
+        and no case file beside the case holds (A → B, Z → AA, 1 → 2)."""
+        from ..cases.casefile_writer import case_file_name, next_revision
+
+        case_folder = Path(self.case.path).parent if getattr(self.case, "path", None) else None
+        candidate = next_revision(self.case.revision)
+        for _ in range(1000):
+            taken = (self.record_folder / f"{self.case.id}_rev{candidate}.json").exists() or (
+                case_folder is not None and (case_folder / case_file_name(self.case.id, candidate)).exists())
+            if not taken:
+                return candidate
+            candidate = next_revision(candidate)
+        return candidate
 
     def _save(self):
         """(text, paths, status): status is "written", "unchanged" or "refused"."""
@@ -416,9 +453,11 @@ class Workbook:
         except RecordConflictError as exc:
             if "already exists with different content" not in exc.message:
                 return f"not saved: {exc}", [], "refused"
+            self._next_revision = self.next_free_revision()
             return (f"not saved: {name} already exists with different inputs or results ({exc.source}). "
-                    "Fix: raise the Revision box above the form (e.g. to the next letter) to issue the "
-                    "changed inputs as a new record; the existing record is kept as it is.", [], "refused")
+                    f"Fix: save them as revision {self._next_revision} (the next free one; the button beside offers "
+                    "it), or raise the Revision box above the form to another, to issue the changed inputs as a "
+                    "new record; the existing record is kept as it is.", [], "refused")
         except SteamcalcError as exc:
             return f"not saved: {exc}", [], "refused"
         if status == "written":
@@ -427,13 +466,20 @@ class Workbook:
                 f"was left as it is: {paths[0]}", paths, status)
 
     def _on_save(self):
+        self._next_revision = None
         text, paths, status = self._save()
         self._save_status.remove_class("steamcalc-save-refused")
         self._save_status.remove_class("steamcalc-save-unchanged")
         self._save_status.remove_class("steamcalc-save-written")
         self._save_status.add_class(f"steamcalc-save-{status}")
+        if status == "refused" and self._next_revision is not None:
+            self._save_next.description = f"Save as revision {self._next_revision}"
+            self._save_next.layout.display = None
+        else:
+            self._save_next.layout.display = "none"
         if status == "refused":
-            self._save_status.value = f"<span style='color:#a3201b'><b>{html.escape(text)}</b></span>"
+            self._save_status.value = (f"<span style='color:#a3201b;white-space:normal'><b>{html.escape(text)}</b>"
+                                       "</span>")
             return
         name = f"{html.escape(self.record['id'])} rev {html.escape(self.record['revision'])}"
         if status == "written":
@@ -444,6 +490,27 @@ class Workbook:
         links = ", ".join(file_link(p) for p in paths)
         self._save_status.value = (f"<div style='border-left:4px solid {'#2f6b3a' if status == 'written' else '#1d4f91'};"
                                    f"padding:2px 8px'>{head}<br>{links}</div>")
+
+    def _save_as_next(self):
+        """Raise the Revision box to the revision the refusal offered, and save under it."""
+        if self._next_revision is None:
+            return
+        self._revision.value = self._next_revision   # the record follows the box (and recomputes)
+        self._on_save()
+
+
+def interactive_session():
+    """True in a kernel that a Jupyter server started for a notebook someone has open (JupyterLab, Notebook):
+    the server names the notebook in the kernel's ``JPY_SESSION_NAME``. Headless runs (papermill, nbval,
+    ``steamcalc run --notebook``) start their kernels themselves, without it.
+
+    Examples
+    --------
+    >>> import os
+    >>> interactive_session() == bool(os.environ.get("JPY_SESSION_NAME"))
+    True
+    """
+    return bool(os.environ.get("JPY_SESSION_NAME"))
 
 
 def _html_table(rows):
