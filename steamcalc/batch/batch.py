@@ -20,7 +20,7 @@ from pathlib import Path
 from ..errors import SteamcalcError
 from ..render.csv_cells import csv_safe
 from ..records.record import load_record, write_text_atomic
-from .tasks import CaseOutcome, progress_bar, run_one
+from .tasks import CaseOutcome, link_phases, progress_bar, run_one
 
 #: Below this many cases the start-up of worker processes costs more than it saves.
 PARALLEL_FROM = 4
@@ -57,12 +57,19 @@ def run_cases(paths, site_override=None, out_override=None, progress=True, worke
     bar = progress_bar(len(paths), progress)
     outcomes = {}
     try:
-        if len(paths) < PARALLEL_FROM:
-            for number, path in enumerate(paths):
-                outcomes[number] = run_one(path, site_override, out_override, force)
-                bar.update(1)
-        else:
-            _run_parallel(paths, site_override, out_override, force, workers, outcomes, bar)
+        # Cases that link issued records (a site balance) run after the rest, so that the records they link are
+        # issued first when a whole site folder is run.
+        for phase in link_phases(paths):
+            found = {}
+            try:
+                if len(phase) < PARALLEL_FROM:
+                    for number, path in enumerate(paths[n] for n in phase):
+                        found[number] = run_one(path, site_override, out_override, force)
+                        bar.update(1)
+                else:
+                    _run_parallel([paths[n] for n in phase], site_override, out_override, force, workers, found, bar)
+            finally:
+                outcomes.update({phase[number]: outcome for number, outcome in found.items()})
     except KeyboardInterrupt:
         pass
     finally:

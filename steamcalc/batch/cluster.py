@@ -52,12 +52,16 @@ def _gather(client, futures, total, progress):
 
 def run_cases_on_cluster(paths, site_override, out_override, address, progress=True):
     """Run case files as tasks on a Dask cluster; outcomes in the order given."""
-    from .tasks import run_one
+    from .tasks import link_phases, run_one
 
+    outcomes = {}
     with connect(address) as client:
-        futures = client.map(run_one, [str(p) for p in paths], site_override=site_override,
-                             out_override=out_override, pure=False)
-        return _gather(client, futures, len(paths), progress)
+        # Cases that link issued records run after the records they link (as on the local path).
+        for phase in link_phases(paths):
+            futures = client.map(run_one, [str(paths[n]) for n in phase], site_override=site_override,
+                                 out_override=out_override, pure=False)
+            outcomes.update(zip(phase, _gather(client, futures, len(phase), progress)))
+    return [outcomes[n] for n in range(len(paths))]
 
 
 def verify_on_cluster(paths, engine, address, progress=True):

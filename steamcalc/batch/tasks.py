@@ -42,7 +42,7 @@ def run_one(path, site_override=None, out_override=None, force=False):
         case = load_case(path)
         out = out or default_out_dir(case)
         site = case_site(case, site_override)
-        record, _ = record_for_case(case, site)
+        record, _ = record_for_case(case, site, record_folder=out)
         paths, status = write_record(record, out, RENDERERS, force=force)
     except SteamcalcError as exc:
         return CaseOutcome(path=str(path), ok=False, error=str(exc.with_source(path)),
@@ -74,3 +74,20 @@ def progress_bar(total, enabled):
     except ImportError:
         return _NoBar()
     return tqdm(total=total, desc="cases", unit="case", leave=False)
+
+
+def _links_records(path):
+    """True for a case of a kind that links issued records (it has ``linked_record_problems``)."""
+    from ..calcs import get_calculation
+
+    try:
+        return hasattr(get_calculation(load_case(path).kind), "linked_record_problems")
+    except SteamcalcError:
+        return False   # its own run names what is wrong with it
+
+
+def link_phases(paths):
+    """The case numbers in two phases: cases that link no records, then those that do (each in the order given)."""
+    linking = [_links_records(path) for path in paths]
+    return [phase for phase in ([n for n, link in enumerate(linking) if not link],
+                                [n for n, link in enumerate(linking) if link]) if phase]

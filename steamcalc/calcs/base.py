@@ -44,7 +44,7 @@ def full_record_wanted():
 INPUT_KINDS = ("pressure", "pressure_difference", "length", "temperature", "temperature_difference", "mass_flow",
                "velocity", "flow_coefficient", "specific_heat", "heat_transfer_coefficient", "fouling_resistance", "area",
                "volume_flow", "density", "time", "fraction", "number", "flag", "nominal_size", "text", "pressure_list",
-               "dimensionless")
+               "dimensionless", "thermal_conductivity", "rows")
 _PLAIN_KINDS = ("fraction", "number", "flag", "nominal_size", "text")
 _RAW_KINDS = ("flag", "nominal_size", "text")
 
@@ -52,7 +52,7 @@ STATUSES = ("pass", "warn", "fail")
 
 
 def input_field(kind, label, help, *, example, section=None, default=None, required=False, positive=False,
-                key=None):
+                key=None, columns=None):
     """A dataclass field for an ``Inputs`` class, with the metadata forms and parsers use.
 
     Parameters
@@ -83,7 +83,7 @@ def input_field(kind, label, help, *, example, section=None, default=None, requi
         raise ValueError(f"unknown input kind {kind!r}")
     return field(default=default, metadata={
         "kind": kind, "label": label, "help": help, "example": example, "section": section,
-        "required": required, "positive": positive, "key": key or None,
+        "required": required, "positive": positive, "key": key or None, "columns": columns,
     })
 
 
@@ -149,11 +149,18 @@ def kj_kg(enthalpy):
 def _unit_kind(kind):
     if kind in _PLAIN_KINDS:
         return "dimensionless"
+    if kind == "rows":
+        return "dimensionless"
     return "pressure" if kind == "pressure_list" else kind
 
 
 def to_record_inputs(inputs, given):
-    """The record's ``inputs`` table: each set field in record units, with the user's text."""
+    """The record's ``inputs`` table: each set field in record units, with the user's text.
+
+    A kind whose inputs are lists of items (the site balance) makes its own table (``to_record_table``).
+    """
+    if hasattr(type(inputs), "to_record_table"):
+        return inputs.to_record_table(given)
     table = {}
     for f in input_fields(type(inputs)):
         value = getattr(inputs, f.name)
@@ -163,6 +170,10 @@ def to_record_inputs(inputs, given):
         unit_kind = _unit_kind(kind)
         if kind in _RAW_KINDS:
             stored = value
+        elif kind == "rows":
+            # One text in the case file's own form, in record units: it reads back as the same rows.
+            from ..units.rows import rows_text
+            stored = rows_text(value, f.metadata["columns"])
         elif kind == "pressure_list":
             stored = [to_record_unit(v, unit_kind) for v in value]
         else:
@@ -175,6 +186,8 @@ def to_record_inputs(inputs, given):
 
 def from_record_inputs(inputs_class, table):
     """Rebuild an Inputs object from a record's ``inputs`` table (absolute values)."""
+    if hasattr(inputs_class, "from_record_table"):   # a kind of item lists reads its own table
+        return inputs_class.from_record_table(table)
     names = {f.name: f for f in input_fields(inputs_class)}
     values = {}
     for name, entry in table.items():
@@ -184,6 +197,9 @@ def from_record_inputs(inputs_class, table):
         unit_kind = _unit_kind(kind)
         if kind in _RAW_KINDS:
             values[name] = entry["value"]
+        elif kind == "rows":
+            from ..units.rows import parse_rows
+            values[name] = parse_rows(entry["value"], name, names[name].metadata["columns"])
         elif kind == "pressure_list":
             values[name] = tuple(from_record_unit(v, entry.get("unit", ""), unit_kind) for v in entry["value"])
         else:

@@ -476,6 +476,8 @@ def _field_names(inputs_class):
 
 def check_input_keys(inputs_class, table):
     """Refuse any key of ``[inputs]`` (or its sub-tables) that the kind does not accept."""
+    if hasattr(inputs_class, "check_case_table"):   # a kind of item lists checks its own tables
+        return inputs_class.check_case_table(table)
     sections = _sections(inputs_class)
     top = sections.get(None, [])
     subtables = [s for s in sections if s is not None]
@@ -497,6 +499,8 @@ def check_input_keys(inputs_class, table):
 def flatten_inputs(inputs_class, table):
     """The raw ``[inputs]`` table as one flat mapping of field name to the user's value."""
     check_input_keys(inputs_class, table)
+    if hasattr(inputs_class, "from_case_table"):   # a kind of item lists keeps its tables as they are
+        return dict(table)
     sections = _sections(inputs_class)
     names = _field_names(inputs_class)
     flat = {}
@@ -508,8 +512,12 @@ def flatten_inputs(inputs_class, table):
     return flat
 
 
-def parse_inputs(inputs_class, flat, site):
+def parse_inputs(inputs_class, flat, site, case_path=None, read_record=None):
     """Parse a flat mapping of the user's values into an Inputs object.
+
+    A kind whose inputs are lists of items (the site balance) parses its own tables
+    (``from_case_table``); ``case_path`` is the case file, where it finds the records it links, and
+    ``read_record`` reads one (:func:`steamcalc.records.record.read_intact_record`, from the layer above).
 
     Returns
     -------
@@ -518,6 +526,8 @@ def parse_inputs(inputs_class, flat, site):
     """
     from ..calcs.base import field_path, input_fields
 
+    if hasattr(inputs_class, "from_case_table"):
+        return inputs_class.from_case_table(flat, site, case_path, read_record)
     values, given = {}, {}
     for f in input_fields(inputs_class):
         if f.name not in flat:
@@ -546,6 +556,10 @@ def parse_inputs(inputs_class, flat, site):
                 raise InputError("must be text" + (", such as 'DN80' or '3 in'" if kind == "nominal_size" else ""),
                                  field=where, value=raw)
             values[f.name] = raw.strip()
+        elif kind == "rows":
+            from ..units.rows import parse_rows, rows_given
+            values[f.name] = parse_rows(raw, where, f.metadata["columns"])
+            given[f.name] = rows_given(raw)
         elif kind == "pressure_list":
             if isinstance(raw, str) or not isinstance(raw, (list, tuple)) or not raw:
                 raise InputError("must be a list of pressures", field=where, value=raw,
@@ -586,13 +600,13 @@ def _flag(value, field_name):
     raise InputError("must be true or false", field=field_name, value=value, fix="write true or false")
 
 
-def case_inputs(case, site):
-    """Inputs object and given texts of a loaded case, with its site."""
+def case_inputs(case, site, read_record=None):
+    """Inputs object and given texts of a loaded case, with its site (``read_record``: see :func:`parse_inputs`)."""
     from ..calcs import get_calculation
 
     calc = get_calculation(case.kind)
     try:
-        return parse_inputs(calc.Inputs, flatten_inputs(calc.Inputs, case.inputs), site)
+        return parse_inputs(calc.Inputs, flatten_inputs(calc.Inputs, case.inputs), site, case.path, read_record)
     except SteamcalcError as exc:
         raise exc.with_source(case.path)
 

@@ -6,10 +6,10 @@ from ..calcs import get_calculation
 from ..calcs.base import to_record_inputs
 from ..cases.site import case_inputs, case_site, load_case
 from ..errors import SteamcalcError
-from .record import build_record
+from .record import IssuedRecords, build_record
 
 
-def record_for_case(case, site, *, inputs=None, given=None, created=None, with_uncertainty=True):
+def record_for_case(case, site, *, inputs=None, given=None, created=None, with_uncertainty=True, record_folder=None):
     """Compute a loaded case against a site and assemble its record.
 
     Parameters
@@ -24,10 +24,13 @@ def record_for_case(case, site, *, inputs=None, given=None, created=None, with_u
         Creation time to stamp (defaults to now).
     with_uncertainty : bool
         Run the case's ``[uncertainty]`` (Monte Carlo) too; a live form leaves it for a button.
+    record_folder : str or Path, optional
+        Where this run writes its records: a record the case links is looked for there too when it is not
+        in the folder the case names.
     """
     calc = get_calculation(case.kind)
     if inputs is None:
-        inputs, given = case_inputs(case, site)
+        inputs, given = case_inputs(case, site, read_record=IssuedRecords(record_folder))
     try:
         result = calc.calculate(inputs, site)
         uncertainty = None

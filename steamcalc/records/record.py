@@ -190,6 +190,38 @@ def load_record(path):
     return data
 
 
+def read_intact_record(path):
+    """Read a record file and refuse it unless both its digests match its content (a record another links to).
+
+    Raises
+    ------
+    RecordError
+        The file is not a record, or it was edited after it was issued.
+    """
+    record = load_record(path)
+    if record.get("content_digest") != compute_content_digest(record) or record.get("digest") != compute_digest(record):
+        raise RecordError("its digest does not match its content: the file was edited after it was issued",
+                          source=path, fix="re-issue the record from its case file, or link the copy that was issued")
+    return record
+
+
+class IssuedRecords:
+    """Reads the issued records a case links (:func:`read_intact_record`): from the folder the case names, and,
+    when a record is not there, from ``also_in`` (the folder this run writes its records to).
+
+    Examples
+    --------
+    >>> IssuedRecords("records").also_in
+    (PosixPath('records'),)
+    """
+
+    def __init__(self, *also_in):
+        self.also_in = tuple(Path(folder) for folder in also_in if folder)
+
+    def __call__(self, path):
+        return read_intact_record(path)
+
+
 def _short(value):
     text = json.dumps(value, ensure_ascii=False)
     return text if len(text) <= 40 else text[:37] + "..."

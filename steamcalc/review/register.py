@@ -180,6 +180,7 @@ def _case_changes(record, case):
     from ..calcs import get_calculation
     from ..calcs.base import to_record_inputs
     from ..cases.site import Site, parse_inputs, flatten_inputs
+    from ..records.record import read_intact_record
 
     changes = []
     if str(case.revision) != str(record.get("revision")):
@@ -193,7 +194,8 @@ def _case_changes(record, case):
     calc = get_calculation(case.kind)
     try:
         # Against the site the record ran on, so that a site edit is not reported as a case edit.
-        inputs, given = parse_inputs(calc.Inputs, flatten_inputs(calc.Inputs, case.inputs), Site.from_record(record["site"]))
+        inputs, given = parse_inputs(calc.Inputs, flatten_inputs(calc.Inputs, case.inputs), Site.from_record(record["site"]),
+                                     case.path, read_intact_record)   # a balance reads the records it links
         table = to_record_inputs(inputs, given)
     except SteamcalcError as exc:
         return [f"its inputs no longer read ({exc.message})"]
@@ -312,6 +314,10 @@ def register_row(path, record, *, trusted, case=None, site_path=None, later_revi
         row.verification = "verified"
     if outcome is not None:
         row.valid = outcome.ok
+    stale = _stale_links(record, path)
+    if stale:   # a balance whose linked records changed, went missing or were superseded
+        row.verification = f"STALE: {'; '.join(stale)}"
+        row.valid = False
     texts = []
     status = (outcome.recomputed_status if outcome is not None else None) or record.get("status")
     for check in check_signatures(record, trusted, status):
@@ -584,3 +590,15 @@ def index_columns(folder):
     except SteamcalcError as exc:
         return {"*": {"signatures": f"cannot be checked: {exc}"}}
     return {row.json: {c: row.as_dict()[c] for c in INDEX_COLUMNS} for row in rows}
+
+
+def _stale_links(record, path):
+    """Why a record that links others (a site balance) is stale, one text per link; empty for other kinds."""
+    from ..calcs import get_calculation
+    from ..records.record import read_intact_record
+
+    try:
+        check = getattr(get_calculation(record.get("kind")), "stale_links", None)
+    except SteamcalcError:
+        return []
+    return [] if check is None else check(record, path, read_intact_record)

@@ -173,7 +173,7 @@ def compare_figures(recorded, recomputed):
     return comparisons
 
 
-def verify_record(record, engine=REFERENCE_ENGINE):
+def verify_record(record, engine=REFERENCE_ENGINE, path=None):
     """Verify a record: its digests, then its results recomputed from its inputs.
 
     Parameters
@@ -183,6 +183,9 @@ def verify_record(record, engine=REFERENCE_ENGINE):
     engine : str
         IF97 engine of the recomputation: "iapws" (the record's own) or "fast" (seuif97,
         the independent cross-check).
+    path : str or Path, optional
+        Where the record was read from: a kind that links other records (the site balance) checks
+        the linked files beside it (``linked_record_problems``).
 
     Returns
     -------
@@ -244,7 +247,24 @@ def verify_record(record, engine=REFERENCE_ENGINE):
     result.statement_changes += given_changes(record)
     if _earlier(record):
         _by_later_bases(record, result)
+    _check_links(record, path, result)
     return result
+
+
+def _check_links(record, path, result):
+    """A record that links others (the site balance): each linked file must still hold what it used."""
+    try:
+        calc = get_calculation(record.get("kind"))
+    except SteamcalcError:
+        return
+    check = getattr(calc, "linked_record_problems", None)
+    if check is None:
+        return
+    from ..records.record import read_intact_record
+
+    problems, notes = check(record, path, read_intact_record)
+    result.statement_changes += problems
+    result.notes += notes
 
 
 #: What ``verify`` shows as the engineer's own words: stored text that no calculation makes, so nothing to
@@ -832,7 +852,7 @@ def verify_file(path, engine=REFERENCE_ENGINE):
         record = load_record(path)
     except SteamcalcError as exc:
         return path, None, None, str(exc)
-    return path, record, verify_record(record, engine=engine), None
+    return path, record, verify_record(record, engine=engine, path=path), None
 
 
 def _compare_uncertainty(record, outcome, nominal_result):

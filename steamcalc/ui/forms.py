@@ -164,7 +164,10 @@ class CaseForm:
         for f in input_fields(inputs_class):
             meta = f.metadata
             raw = values.get(f.name, "")
-            if isinstance(raw, (list, tuple)):
+            if meta["kind"] == "rows" and isinstance(raw, (list, tuple)):
+                from ..units.rows import rows_given
+                raw = rows_given(raw)   # the rows as inline TOML, read back by the case file's parser
+            elif isinstance(raw, (list, tuple)):
                 raw = ", ".join(str(item) for item in raw)
             help_text = self.words.text(meta["help"]) + (header_note if meta["kind"] == "pressure" else "")
             alternative = self.alternative_note(f.name)
@@ -348,7 +351,7 @@ class CaseForm:
                 items = [item.strip().strip("'\"") for item in text.strip("[]").split(",")]
                 out[name] = [item for item in items if item]
                 continue
-            if self.kinds[name] in ("nominal_size", "flag", "text"):
+            if self.kinds[name] in ("nominal_size", "flag", "text", "rows"):
                 out[name] = text
                 continue
             try:

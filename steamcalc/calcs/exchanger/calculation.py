@@ -30,6 +30,8 @@ from .turndown import (LOADS, STALL_REMEDIES, add_turndown, required_saturation_
 from .capacity import add_capacity, find_capacity
 from .control import add_control, check_control_inputs
 from .figures import figures
+from .overpressure import RECORD_PATTERNS as OVERPRESSURE_PATTERNS
+from .overpressure import add_overpressure, check_overpressure_inputs
 from .supply import steam_states, steam_steps, supply_state
 from .zones import ARRANGEMENTS, ZONE_NAMES, add_zones, f_factor, lmtd, service_u  # noqa: F401
 
@@ -57,6 +59,8 @@ BASIS_CHANGES = (
      ("supply_*", "steam_inlet_*", "capacity_*", "outlet_*_reached", "*_zone_u")),
     ("0.3", "margins are kept in percent, as the relief capacity margin is (the area margin was a fraction)",
      ("area_margin",)),
+    ("0.3", "the heater's tube-rupture and thermal-relief cases, or a statement that they were not assessed",
+     OVERPRESSURE_PATTERNS),
 )
 #: Groups of inputs of which at most one is given (the calculation refuses two of a group); the forms use them.
 ALTERNATIVE_INPUTS = (("process_flow", "process_volume_flow"), ("process_fluid", "process_cp"),
@@ -179,6 +183,29 @@ class Inputs:
     control_valve_rangeability: float | None = input_field(
         "number", "Control valve rangeability", "Inherent rangeability: rated Kv over the smallest controllable Kv.",
         example="50", section="control_valve", key="rangeability")
+    steam_side_design_pressure: float | None = input_field(
+        "pressure", "Steam side design pressure", "Design pressure of the heater's steam side (nameplate); with the "
+        "process side's it decides whether a tube rupture is a relief case.", example="10 bar(g)",
+        section="overpressure")
+    process_side_design_pressure: float | None = input_field(
+        "pressure", "Process side design pressure", "Design pressure of the process (liquid) side (nameplate).",
+        example="10 bar(g)", section="overpressure")
+    process_side_test_pressure: float | None = input_field(
+        "pressure", "Process side test pressure", "Hydrostatic test pressure of the process side; 1.3 × its design "
+        "pressure when not given.", example="13 bar(g)", section="overpressure", key="test_pressure")
+    rupture_basis: str | None = input_field(
+        "text", "Tube rupture basis", "'test pressure' (the default; newer codes) or '10/13' (older codes).",
+        example="test pressure", section="overpressure")
+    tube_inside_diameter: float | None = input_field(
+        "length", "Tube inside diameter", "Bore of one heater tube, for the flow through a ruptured tube.",
+        example="15.7 mm", section="overpressure", positive=True)
+    shell_inside_diameter: float | None = input_field(
+        "length", "Shell inside diameter", "Bore of the heater's shell (checks the tube size against it).",
+        example="273 mm", section="overpressure", positive=True)
+    process_expansion_coefficient: float | None = input_field(
+        "number", "Cubic expansion coefficient of the process liquid, per K", "For thermal relief of a liquid other "
+        "than water (water's comes from IF97), in 1/K.", example="0.0007", section="overpressure",
+        key="expansion_coefficient")
 
     def __post_init__(self):
         check_fields(self)
@@ -226,6 +253,7 @@ class Inputs:
                                  field=name, fix="give overall_u (the clean condensing U), or remove " + name)
         self._check_drainage()
         check_control_inputs(self)
+        check_overpressure_inputs(self)
 
     def _check_drainage(self):
         head, differential = self.trap_static_head, self.trap_min_differential
@@ -458,6 +486,8 @@ def calculate(inputs, site):
     add_control(inputs, duty, steam_side, steam, supply, ua_clean, ua_fouled, saturated_liquid.density, site,
                 capacity, result)
     add_capacity(inputs, capacity, duty, area, water, ua_fouled, supply, result)
+    if full_record_wanted():   # feeds no banded result
+        add_overpressure(inputs, steam_side, water[1].pressure if water else None, site, result)
     if full_record_wanted():
         result.figures.extend(figures(inputs, result))
     return result

@@ -22,6 +22,8 @@ from ..economics import (
 )
 from .figures import figures
 from .fraction import flash_fraction
+from .overpressure import RECORD_PATTERNS as OVERPRESSURE_PATTERNS
+from .overpressure import add_overpressure, check_overpressure_inputs
 from .vessel import REFERENCES as VESSEL_REFERENCES
 from .vessel import vessel_assumptions, vessels
 
@@ -33,6 +35,12 @@ UNCERTAINTY_RESULTS = ("flash_fraction", "flash_steam_flow", "recovered_heat_rat
 #: Plain fractions shown in % (display only; records keep the fraction).
 PERCENT_VALUES = ("flash_fraction",)
 #: The governing results a checker signs against: the first page of the record and of `verify` (those the record holds).
+#: Bases this release changed, so that verify lists what a record of an earlier release differs by, and why,
+#: instead of calling it edited: patterns (fnmatch) over result keys, step labels, check names and statements.
+BASIS_CHANGES = (
+    ("0.3", "the flash vessel's overpressure cases (failed-open inlet, blocked vapour outlet) and its relief valve, "
+     "or a statement that they were not assessed", OVERPRESSURE_PATTERNS),
+)
 SUMMARY_RESULTS = ("flash_fraction", "flash_steam_flow", "vented_flash_steam_flow", "residual_condensate_flow", "recovered_heat_rate", "annual_cost_saving", "annual_total_saving", "vessel_diameter", "vessel_height")
 
 CAUTIONS = (
@@ -91,6 +99,35 @@ class Inputs:
     condensate_nozzle: str | None = input_field(
         "nominal_size", "Condensate outlet size", "Nominal size of the residual-condensate outlet.",
         example="DN40", section="vessel")
+    vessel_design_pressure: float | None = input_field(
+        "pressure", "Vessel design pressure", "Design pressure on the flash vessel's nameplate; with it the record "
+        "assesses the vessel's overpressure cases.", example="7 bar(g)", section="overpressure", key="design_pressure")
+    relief_set_pressure: float | None = input_field(
+        "pressure", "Relief valve set pressure", "Set pressure of the vessel's relief valve; the design pressure when "
+        "not given.", example="7 bar(g)", section="overpressure", key="set_pressure")
+    inlet_capacity: float | None = input_field(
+        "mass_flow", "Inlet trap or valve capacity (failed open)", "Rated capacity of the trap or level valve feeding "
+        "the vessel, fully open at the highest upstream pressure (maker's data).", example="9 t/h",
+        section="overpressure", positive=True)
+    max_upstream_pressure: float | None = input_field(
+        "pressure", "Highest upstream pressure", "Highest pressure the condensate source can reach; the condensate "
+        "pressure when not given.", example="12 bar(g)", section="overpressure")
+    level_held: bool | None = input_field(
+        "flag", "Level held with the inlet failed open", "true when the condensate outlet passes the failed-open "
+        "inflow's residual condensate at the relief pressure; else the vessel may fill and relieves two-phase.",
+        example="false", section="overpressure")
+    relief_valve_type: str | None = input_field(
+        "text", "Relief valve type", "conventional, balanced-bellows or pilot; conventional when not given.",
+        example="conventional", section="overpressure", key="valve_type")
+    discharge_size: str | None = input_field(
+        "nominal_size", "Relief discharge pipe size", "Nominal size of the relief valve's discharge pipe "
+        "(schedule 40).", example="DN100", section="overpressure")
+    discharge_length: float | None = input_field(
+        "length", "Relief discharge pipe length", "Straight length of the discharge pipe to its open end.",
+        example="6 m", section="overpressure")
+    discharge_fittings_k: float | None = input_field(
+        "number", "Relief discharge fittings K", "Sum of the loss coefficients of the discharge pipe's fittings and "
+        "exit.", example="1.5", section="overpressure")
 
     def __post_init__(self):
         if self.residence_time is not None and not self.residence_time > 0.0:
@@ -118,6 +155,7 @@ class Inputs:
             raise InputError("steam demand cannot be negative", field="lp_demand")
         if self.k_factor is not None and self.vapour_velocity is not None:
             raise InputError("give k_factor or vapour_velocity, not both", field="vessel.vapour_velocity")
+        check_overpressure_inputs(self)
 
     @property
     def stage_pressures(self):
@@ -323,6 +361,8 @@ def calculate(inputs, site):
     _recovered_heat(inputs, site, stages, total_flash, result)
     result.assumptions.extend(vessel_assumptions(inputs))
     vessels(inputs, stages, result, v_Souders_Brown)
+    if full_record_wanted():   # feeds no banded result
+        add_overpressure(inputs, inlet, site, result)
     if full_record_wanted():
         result.figures.extend(figures(inputs, result))
     return result

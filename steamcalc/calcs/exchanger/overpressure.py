@@ -1,0 +1,242 @@
+"""Overpressure of the steam heater: tube rupture into the process side, and thermal relief of the blocked-in
+process liquid.
+
+**Tube rupture.** The steam side (the high-pressure side) breaks into the process side. Whether that is a
+relief case follows from the two sides' design pressures, on the basis the engineer states:
+
+* ``"10/13"`` (older codes, hydrostatic test at 1.3 times the design pressure): no relief case when the
+  process side's design pressure is at least 10/13 of the steam side's (gauge);
+* ``"test pressure"`` (the default): no relief case when the process side's test pressure (given, else
+  1.3 times its design pressure, ASME BPVC VIII-1 UG-99(b) with a stress ratio of 1) is at least the steam
+  side's design pressure (gauge).
+
+When it is a relief case, the steam flows through a clean break of one tube: two open ends, each the
+tube's bore, choked steam from the highest steam pressure (the supply's, with the control valve failed
+open) with no friction credited (conservative), into the process side at its relieving pressure. The
+process side is full of liquid: its relief device first passes the liquid the steam displaces (the steam's
+volume flow, no condensation credited) and then the steam; both are sized, the larger governs.
+
+**Thermal relief.** Process liquid blocked in with the steam on expands at
+:math:`q = \\alpha_v \\phi / (\\rho c_p)`; a relief valve of the usual minimum size (NPS ¾ × NPS 1, common
+practice) passes it many times over.
+"""
+
+from __future__ import annotations
+
+import math
+
+from ...equipment.relief import direct_integration_flux
+from ...errors import InputError, OutOfRangeError
+from ...properties.steam import SteamState
+from ...units.amounts import Phrase
+from ..overpressure import CAUTIONS, relieving_pressure, select_orifice, steam_relief_area
+
+NAME = "Tube rupture"
+#: What this module adds to a record, for the kind's BASIS_CHANGES (a record of an earlier release lacks it).
+RECORD_PATTERNS = ("Heater overpressure protection", "Tube rupture*", "tube_rupture_*", "Thermal relief*",
+                   "thermal_relief_*")
+PREFIX = "tube_rupture"
+RUPTURE_BASES = ("test pressure", "10/13")
+#: Hydrostatic test pressure over design pressure, ASME BPVC VIII-1 UG-99(b) (stress ratio taken as 1).
+TEST_PRESSURE_RATIO = 1.3
+#: Effective coefficient of discharge for preliminary liquid relief sizing, API 520 Part I (liquid equation).
+KD_LIQUID = 0.65
+#: The usual smallest thermal relief valve (common practice); it passes any thermal-expansion load of a heater
+#: many times over.
+THERMAL_MINIMUM_SIZE = "NPS 3/4 × NPS 1 (DN20 × DN25)"
+
+
+def check_overpressure_inputs(inputs):
+    """Refusals of the exchanger's overpressure inputs that need no calculation (from ``Inputs.__post_init__``)."""
+    steam_design, process_design = inputs.steam_side_design_pressure, inputs.process_side_design_pressure
+    highest_steam = max(p for p in (inputs.steam_pressure, inputs.control_valve_supply_pressure) if p is not None)
+    if steam_design is not None and steam_design < highest_steam:
+        raise InputError(
+            f"the steam side's design pressure {steam_design / 1e5:.4g} bar(a) is below the steam pressure it sees, "
+            f"{highest_steam / 1e5:.4g} bar(a)", field="overpressure.steam_side_design_pressure", value=steam_design,
+            fix="give the design pressure on the heater's nameplate, at least the supply pressure (the control valve "
+                "can fail open), or check the pressure basis")
+    if process_design is not None and inputs.process_pressure is not None and process_design < inputs.process_pressure:
+        raise InputError(
+            f"the process side's design pressure {process_design / 1e5:.4g} bar(a) is below its operating pressure "
+            f"{inputs.process_pressure / 1e5:.4g} bar(a)", field="overpressure.process_side_design_pressure",
+            value=process_design, fix="give the process side's design pressure from the nameplate, above its operating "
+                                      "pressure")
+    if inputs.rupture_basis is not None and inputs.rupture_basis not in RUPTURE_BASES:
+        raise InputError(f"unknown tube-rupture basis '{inputs.rupture_basis}'", field="overpressure.rupture_basis",
+                         value=inputs.rupture_basis, fix=f"use one of: {', '.join(RUPTURE_BASES)}")
+    tube, shell = inputs.tube_inside_diameter, inputs.shell_inside_diameter
+    if tube is not None and shell is not None and tube >= shell:
+        raise InputError(
+            f"a tube of {tube * 1e3:g} mm bore does not fit in a shell of {shell * 1e3:g} mm bore",
+            field="overpressure.tube_inside_diameter", value=f"{tube * 1e3:g} mm",
+            fix="give the tube's inside diameter (e.g. 15.7 mm for a 19.05 mm × 1.65 mm tube) and the shell's")
+    if inputs.process_side_test_pressure is not None and process_design is not None \
+            and inputs.process_side_test_pressure < process_design:
+        raise InputError("a test pressure is not below the design pressure", field="overpressure.test_pressure",
+                         value=inputs.process_side_test_pressure,
+                         fix="give the process side's hydrostatic test pressure from its nameplate or test record")
+    if inputs.process_expansion_coefficient is not None and not inputs.process_expansion_coefficient > 0.0:
+        raise InputError("a liquid's cubic expansion coefficient is above zero",
+                         field="overpressure.expansion_coefficient", value=inputs.process_expansion_coefficient,
+                         fix="give it per kelvin, e.g. 0.0007 for a light oil")
+    if process_design is not None and inputs.process_cp is not None and (
+            inputs.process_expansion_coefficient is None or
+            (inputs.process_density is None)):
+        missing = "expansion_coefficient" if inputs.process_expansion_coefficient is None else "process_density"
+        raise InputError(
+            "thermal relief of a process liquid other than water needs its cubic expansion coefficient and density",
+            field=f"overpressure.{missing}" if missing == "expansion_coefficient" else "process_density",
+            fix="give [inputs.overpressure] expansion_coefficient (per K, from the liquid's data sheet) and "
+                "process_density, or remove process_side_design_pressure to leave the overpressure unassessed")
+
+
+def add_overpressure(inputs, steam_side_heat, process_pressure, site, result):
+    """Tube rupture and thermal relief of the heater, as results, steps and checks."""
+    if inputs.steam_side_design_pressure is None or inputs.process_side_design_pressure is None:
+        # A statement to act on, listed among the warnings; it cannot fail, so a record of an earlier release
+        # that lacked it keeps its verdict.
+        result.notice("Heater overpressure protection", act=True,
+                      detail="not assessed: give overpressure.steam_side_design_pressure and "
+                             "overpressure.process_side_design_pressure for the tube-rupture and thermal-relief cases")
+        return
+    result.cautions.extend(c for c in CAUTIONS if c not in result.cautions)
+    atm = site.atmospheric_pressure
+    _tube_rupture(inputs, atm, result)
+    _thermal_relief(inputs, steam_side_heat, process_pressure, result)
+
+
+def _tube_rupture(inputs, atm, result):
+    high, low = inputs.steam_side_design_pressure, inputs.process_side_design_pressure
+    if low > high:
+        result.check(f"{NAME}: process side the higher", "warn", Phrase.of(
+            "the process side's design pressure {low:.4g} is above the steam side's {high:.4g}: a rupture would send "
+            "process liquid into the steam space, a case this calculation does not size; the engineer of record "
+            "assesses it", low=(low / 1e5, "bar"), high=(high / 1e5, "bar")))
+    basis = inputs.rupture_basis or "test pressure"
+    # Compared as absolute pressures: the codes' fractions apply to gauge pressures, so each is taken of the
+    # pressure above the atmosphere and the atmosphere added back.
+    if basis == "10/13":
+        threshold = atm + 10.0 / 13.0 * (high - atm)
+        result.work(f"{NAME}: the 10/13 threshold", "p_10/13 = p_atm + (10/13)·(p_HP,design − p_atm)",
+                    "p_atm + 10/13*(p_HP - p_atm)", threshold / 1e5, "bar", p_HP=(high / 1e5, "bar"),
+                    p_atm=(atm / 1e5, "bar"))
+        quantity, limit = (low / 1e5, "bar"), (threshold / 1e5, "bar")
+        why = "the process side's design pressure {low:.4g} against 10/13 of the steam side's (gauge), {limit:.4g}"
+        source = "API 521, tube rupture: the 10/13 rule of codes testing at 1.3 × design"
+    else:
+        test = (inputs.process_side_test_pressure if inputs.process_side_test_pressure is not None
+                else atm + TEST_PRESSURE_RATIO * (low - atm))
+        if inputs.process_side_test_pressure is None:
+            result.work(f"{NAME}: process-side test pressure", "p_test = p_atm + 1.3·(p_LP,design − p_atm)",
+                        "p_atm + 1.3*(p_LP - p_atm)", test / 1e5, "bar", p_LP=(low / 1e5, "bar"),
+                        p_atm=(atm / 1e5, "bar"))
+            result.assumptions.append(f"{NAME}: the process side's test pressure taken as 1.3 × its design pressure "
+                                      "(ASME BPVC VIII-1 UG-99(b), stress ratio 1); give overpressure.test_pressure "
+                                      "when known")
+        quantity, limit = (test / 1e5, "bar"), (high / 1e5, "bar")
+        why = "the process side's test pressure {low:.4g} against the steam side's design pressure {limit:.4g}"
+        source = "API 521, tube rupture: the low-pressure side's test pressure against the high-pressure side's design"
+    result.add(f"{PREFIX}_basis", f"{NAME}: basis", basis)
+    if quantity[0] >= limit[0]:
+        result.notice(f"{NAME}: no relief case", Phrase.of(
+            why + f" ({source})" + ": the process side holds the steam side's design pressure within its test "
+            "pressure, so a "
+            "ruptured tube does not overpressure it and needs no relief device for this case", low=quantity,
+            limit=limit))
+        result.add(f"{PREFIX}_relief_needed", f"{NAME}: relief device needed", "no")
+        return
+    result.add(f"{PREFIX}_relief_needed", f"{NAME}: relief device needed", "yes")
+    result.notice(f"{NAME}: a relief case", Phrase.of(why + f" ({source})" + ": the process side is not protected "
+                                                      "by its test "
+                                                      "pressure; it needs a relief device sized for a ruptured tube",
+                                                      low=quantity, limit=limit), act=True)
+    if inputs.tube_inside_diameter is None:
+        result.check(f"{NAME}: relief load", "warn", "not sized: give overpressure.tube_inside_diameter")
+        return
+    source_pressure = max(p for p in (inputs.steam_pressure, inputs.control_valve_supply_pressure) if p is not None)
+    p_r = relieving_pressure(low, atm, result, PREFIX, NAME)
+    try:
+        steam = (SteamState.from_ph(source_pressure, _supply_enthalpy(inputs, source_pressure))
+                 if source_pressure > p_r else None)
+    except OutOfRangeError as exc:
+        raise exc.for_field("overpressure.steam_side_design_pressure") from None
+    if steam is None:
+        result.notice(f"{NAME}: no flow", Phrase.of("the steam pressure {p:.4g} does not exceed the process side's "
+                                                    "relieving pressure {r:.4g}", p=(source_pressure / 1e5, "bar"),
+                                                    r=(p_r / 1e5, "bar")))
+        return
+    nozzle = direct_integration_flux(steam, p_r)
+    bore = math.pi * inputs.tube_inside_diameter ** 2 / 4.0
+    load = 2.0 * bore * nozzle.mass_flux * 3600.0
+    flow_kind = ("choked" if nozzle.choked else "not choked: the process side's relieving pressure is above the "
+                 "critical pressure")
+    result.work(f"{NAME}: steam through two open tube ends",
+                f"W = 2·(π·d²/4)·G, G isentropic steam flux on IF97 ({flow_kind}), no friction credited",
+                "2*(3.14159265*d**2/4)*G", load, "kg/h", d=(inputs.tube_inside_diameter * 1e3, "mm"),
+                G=(nozzle.mass_flux, "kg/(m**2*s)"))
+    result.add(f"{PREFIX}_flow", f"{NAME}: steam flow through the break", load, "kg/h")
+    result.assumptions.append(f"{NAME}: a clean break of one tube, steam from both ends through the full bore, at the "
+                              "highest steam pressure (the supply's with the control valve failed open), isentropic "
+                              "nozzle flow on IF97 with no friction in the tube (conservative)")
+    relieving = SteamState.from_ph(p_r, steam.enthalpy)
+    area_steam, method = steam_relief_area(result, f"{NAME}, steam", relieving, load, atm)
+    # Liquid displaced at the steam's volume flow, then relieved as liquid (API 520 Part I liquid equation).
+    from fluids.safety_valve import API520_A_l
+
+    liquid = SteamState.from_pT(p_r, min(inputs.process_outlet_temperature, relieving.saturation_temperature - 1.0))
+    displaced = load / relieving.density * liquid.density
+    result.work(f"{NAME}: liquid displaced by the steam", "m_l = W·ρ_l/ρ_steam(P1)", "W*rho_l/rho_s", displaced,
+                "kg/h", W=(load, "kg/h"), rho_l=(liquid.density, "kg/m**3"), rho_s=(relieving.density, "kg/m**3"))
+    area_liquid = API520_A_l(displaced / 3600.0, liquid.density, p_r, atm, 0.1, Kd=KD_LIQUID, Kw=1.0, Kv=1.0) * 1e6
+    result.work(f"{NAME}: required area, displaced liquid",
+                "A = 11.78·Q/(Kd·Kw·Kv)·√(G_l/(P1 − P2))  [API 520 Part I liquid equation; mm², L/min, kPa]",
+                "11.78*Q/Kd*sqrt(G_l/(P1 - P2))", area_liquid, "mm**2", units_fixed=True,
+                Q=(displaced / liquid.density / 60.0 * 1e3, "L/min"), Kd=(KD_LIQUID, ""),
+                G_l=(liquid.density / 999.0, ""), P1=(p_r / 1e3, "kPa"), P2=(atm / 1e3, "kPa"))
+    governing, area = (("displaced liquid", area_liquid) if area_liquid > area_steam else (f"steam ({method})",
+                                                                                           area_steam))
+    result.add(f"{PREFIX}_governing_case", f"{NAME}: governing relief flow", governing)
+    select_orifice(result, PREFIX, NAME, area, load if governing.startswith("steam") else displaced)
+
+
+def _supply_enthalpy(inputs, pressure):
+    """Enthalpy of the steam at the break: the supply's state (superheat kept), else saturated at ``pressure``."""
+    from .supply import supply_state
+
+    supply = supply_state(inputs)
+    if supply is not None:
+        return supply.enthalpy
+    if inputs.steam_temperature is not None:
+        return SteamState.from_pT(pressure, inputs.steam_temperature).enthalpy
+    return SteamState.from_p_dryness(pressure, 1.0).enthalpy
+
+
+def _thermal_relief(inputs, heat, process_pressure, result):
+    name = "Thermal relief"
+    t = inputs.process_outlet_temperature
+    if inputs.process_cp is None:
+        p = process_pressure
+        warm, cool = SteamState.from_pT(p, t + 0.5), SteamState.from_pT(p, t - 0.5)
+        water = SteamState.from_pT(p, t)
+        alpha = -(warm.density - cool.density) / water.density
+        density, cp = water.density, water.cp
+        result.work(f"{name}: cubic expansion coefficient of the water (IF97)",
+                    "α_v = −(1/ρ)·(ρ(T + 0.5 K) − ρ(T − 0.5 K))/(1 K)", "-(rho_hot - rho_cold)/(rho*dT)",
+                    alpha * 1e6,
+                    "ppm/K", rho_hot=(warm.density, "kg/m**3"), rho_cold=(cool.density, "kg/m**3"),
+                    rho=(water.density, "kg/m**3"), dT=(1.0, "K"))
+    else:
+        alpha, density, cp = inputs.process_expansion_coefficient, inputs.process_density, inputs.process_cp
+    flow = alpha * heat / (density * cp)
+    result.work(f"{name}: expansion flow of the blocked-in process liquid",
+                "q = α_v·φ/(ρ·c_p)  [API 521, hydraulic expansion]", "alpha*phi/(rho*c_p)", flow * 3600e3, "L/h",
+                alpha=(alpha * 1e6, "ppm/K"), phi=(heat / 1e3, "kW"), rho=(density, "kg/m**3"),
+                c_p=(cp / 1e3, "kJ/(kg*K)"))
+    result.add("thermal_relief_flow", f"{name}: expansion flow with the steam on", flow * 3600e3, "L/h")
+    result.assumptions.append(f"{name}: the full steam-side heat goes into the blocked-in process liquid at its outlet "
+                              "temperature (the largest expansion); the steam is not isolated")
+    result.notice(f"{name}: minimum size", Phrase.of(
+        f"a thermal relief valve of the usual minimum size, {THERMAL_MINIMUM_SIZE} (common practice), passes "
+        "{flow:.1f} many times over; fit one wherever the process side can be blocked in with the steam on",
+        flow=(flow * 3600e3, "L/h")))

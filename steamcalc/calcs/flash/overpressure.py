@@ -1,0 +1,181 @@
+"""Overpressure protection of the flash vessel: the relief loads and the relief valve for the governing case.
+
+Two cases, each at the relieving pressure (set pressure plus 10 % of its gauge value):
+
+* **inlet fails open**: the trap or level valve upstream passes its rated capacity at the highest upstream
+  pressure; the condensate flashes at the relieving pressure. With the level held (the condensate outlet
+  passes the residual condensate) the relief valve passes the flash steam; otherwise the vessel may fill
+  and the valve relieves the incoming mixture, two-phase (omega method and direct integration, API 520
+  Part I annexes B and C).
+* **vapour outlet blocked**: the normal condensate inflow flashes at the relieving pressure and its flash
+  steam has nowhere to go but the relief valve.
+
+No credit is taken for the normal vapour outlet staying open (conservative). The largest required area
+governs. Without a design pressure the record says the overpressure case was not assessed.
+"""
+
+from __future__ import annotations
+
+from ...errors import InputError, OutOfRangeError
+from ...properties.steam import SteamState
+from ...units.amounts import Phrase
+from ..overpressure import (
+    CAUTIONS, VALVE_TYPES, discharge_section, flashing_relief_area, relieving_pressure, select_orifice,
+    steam_relief_area,
+)
+
+NAME = "Vessel relief"
+#: What this module adds to a record, for the kind's BASIS_CHANGES (a record of an earlier release lacks it).
+RECORD_PATTERNS = ("Flash vessel overpressure protection", "Vessel relief*", "vessel_relief_*",
+                   "vessel_design_pressure")
+PREFIX = "vessel_relief"
+
+
+def check_overpressure_inputs(inputs):
+    """Refusals of the overpressure inputs that need no calculation (called from ``Inputs.__post_init__``)."""
+    design = inputs.vessel_design_pressure
+    others = [name for name in ("relief_set_pressure", "inlet_capacity", "max_upstream_pressure", "relief_valve_type",
+                                "discharge_size", "discharge_length", "discharge_fittings_k", "level_held")
+              if getattr(inputs, name) is not None]
+    if design is None:
+        if others:
+            raise InputError("the flash vessel's overpressure inputs need its design pressure",
+                             field="overpressure.design_pressure",
+                             fix="give the vessel's design pressure (its nameplate), e.g. design_pressure = "
+                                 "\"6 bar(g)\", or remove the other [inputs.overpressure] keys")
+        return
+    operating = inputs.stage_pressures[0]
+    if design <= operating:
+        raise InputError(
+            f"the vessel's design pressure {design / 1e5:.4g} bar(a) is not above its operating pressure "
+            f"{operating / 1e5:.4g} bar(a): the relief valve would lift in normal operation",
+            field="overpressure.design_pressure", value=design,
+            fix="give the design pressure on the vessel's nameplate (above the flash pressure), or check the "
+                "pressure basis (bar(g) or bar(a))")
+    set_pressure = inputs.relief_set_pressure
+    if set_pressure is not None and not operating < set_pressure <= design * (1.0 + 1e-9):
+        raise InputError(
+            f"the relief set pressure {set_pressure / 1e5:.4g} bar(a) must lie above the operating pressure "
+            f"{operating / 1e5:.4g} bar(a) and at or below the design pressure {design / 1e5:.4g} bar(a)",
+            field="overpressure.set_pressure", value=set_pressure,
+            fix="set the valve at or below the vessel's design pressure (or leave set_pressure out: the design "
+                "pressure)")
+    if inputs.relief_valve_type is not None and inputs.relief_valve_type not in VALVE_TYPES:
+        raise InputError(f"unknown relief valve type '{inputs.relief_valve_type}'", field="overpressure.valve_type",
+                         value=inputs.relief_valve_type, fix=f"use one of {', '.join(VALVE_TYPES)}")
+    if inputs.discharge_fittings_k is not None and inputs.discharge_fittings_k < 0.0:
+        raise InputError("a sum of loss coefficients cannot be negative", field="overpressure.discharge_fittings_k",
+                         value=inputs.discharge_fittings_k, fix="give the sum of the fittings' K, 0 or more")
+    if inputs.max_upstream_pressure is not None and inputs.max_upstream_pressure < inputs.condensate_pressure:
+        raise InputError(
+            f"the highest upstream pressure {inputs.max_upstream_pressure / 1e5:.4g} bar(a) is below the condensate "
+            f"pressure {inputs.condensate_pressure / 1e5:.4g} bar(a)", field="overpressure.max_upstream_pressure",
+            value=inputs.max_upstream_pressure,
+            fix="give the highest pressure the condensate source can reach (its relief set pressure, or the steam "
+                "supply's), or leave it out for the condensate pressure")
+
+
+def add_overpressure(inputs, inlet, site, result):
+    """The flash vessel's relief loads, the governing case and its relief valve, as results, steps and checks."""
+    if inputs.vessel_design_pressure is None:
+        # A statement to act on, listed among the warnings; it cannot fail, so a record of an earlier release
+        # that lacked it keeps its verdict.
+        result.notice("Flash vessel overpressure protection", act=True,
+                      detail="not assessed: no vessel design pressure given (overpressure.design_pressure, with "
+                             "overpressure.inlet_capacity for the failed-open inlet case); the relief device must be "
+                             "sized for the worst inflow by the engineer of record")
+        return
+    result.cautions.extend(c for c in CAUTIONS if c not in result.cautions)
+    atm = site.atmospheric_pressure
+    design = inputs.vessel_design_pressure
+    set_pressure = inputs.relief_set_pressure if inputs.relief_set_pressure is not None else design
+    if inputs.relief_set_pressure is None:
+        result.assumptions.append(f"{NAME}: set at the vessel's design pressure ({design / 1e5:.4g} bar(a))")
+    result.add("vessel_design_pressure", "Flash vessel design pressure", design / 1e5, "bar")
+    p_r = relieving_pressure(set_pressure, atm, result, PREFIX, NAME)
+    if len(inputs.stage_pressures) > 1:
+        result.assumptions.append(f"{NAME}: the first stage of the cascade is assessed (the others see its residual "
+                                  "condensate, at a lower pressure)")
+    try:
+        liquid = SteamState.from_p_dryness(p_r, 0.0)
+        vapour = SteamState.from_p_dryness(p_r, 1.0)
+    except OutOfRangeError as exc:
+        raise exc.for_field("overpressure.design_pressure") from None
+    cases = {}
+    # Vapour outlet blocked: the normal inflow's flash at the relieving pressure.
+    x_blocked = (inlet.enthalpy - liquid.enthalpy) / (vapour.enthalpy - liquid.enthalpy)
+    if x_blocked > 0.0:
+        load = inputs.condensate_flow * 3600.0 * x_blocked
+        result.work(f"{NAME}, vapour outlet blocked: relief load", "W = m_c·(h_in − h_f(P1))/h_fg(P1)",
+                    "m_c*(h_in - h_f)/h_fg", load, "kg/h", m_c=(inputs.condensate_flow * 3600.0, "kg/h"),
+                    h_in=(inlet.enthalpy / 1e3, "kJ/kg"), h_f=(liquid.enthalpy / 1e3, "kJ/kg"),
+                    h_fg=((vapour.enthalpy - liquid.enthalpy) / 1e3, "kJ/kg"))
+        result.add("vessel_relief_blocked_outlet_load", "Relief load, vapour outlet blocked", load, "kg/h")
+        area, method = steam_relief_area(result, f"{NAME}, vapour outlet blocked", vapour, load, atm)
+        cases["vapour outlet blocked"] = (area, load, method, vapour.enthalpy)
+    else:
+        result.notice(f"{NAME}, vapour outlet blocked", Phrase.of(
+            "the condensate ({h:.1f}) does not flash at the relieving pressure {p:.4g}: a blocked outlet raises no "
+            "vapour", h=(inlet.enthalpy / 1e3, "kJ/kg"), p=(p_r / 1e5, "bar")))
+    _failed_open(inputs, inlet, p_r, liquid, vapour, atm, result, cases)
+    if not cases:
+        result.notice(NAME, "no relief load in the cases assessed; a relief device is still required by most "
+                            "pressure-equipment codes (fire, and cases outside this calculation)")
+        return
+    governing = max(cases, key=lambda case: cases[case][0])
+    area, load, method, enthalpy = cases[governing]
+    result.add("vessel_relief_governing_case", f"{NAME}: governing case", f"{governing} ({method})")
+    rated = select_orifice(result, PREFIX, NAME, area, load)
+    if rated is None:
+        return
+    if enthalpy is None:
+        result.check(f"{NAME}: discharge line", "warn",
+                     "two-phase discharge: the built-up back pressure and reaction force of a flashing discharge are "
+                     "not computed here; size the discharge line for two-phase flow with the engineer of record")
+        return
+    discharge_section(result, PREFIX, NAME, valve_type=inputs.relief_valve_type or "conventional",
+                      set_pressure=set_pressure, atm=atm, rated_flow_kg_h=rated, enthalpy=enthalpy,
+                      size=inputs.discharge_size, length=inputs.discharge_length,
+                      fittings_k=inputs.discharge_fittings_k)
+
+
+def _failed_open(inputs, inlet, p_r, liquid, vapour, atm, result, cases):
+    name = f"{NAME}, inlet fails open"
+    if inputs.inlet_capacity is None:
+        result.check(name, "warn", "not assessed: no rated capacity of the upstream trap or level valve given "
+                                   "(overpressure.inlet_capacity, at the highest upstream pressure)")
+        return
+    p_up = inputs.max_upstream_pressure if inputs.max_upstream_pressure is not None else inputs.condensate_pressure
+    if p_up <= p_r:
+        result.notice(name, Phrase.of("the highest upstream pressure {up:.4g} is not above the relieving pressure "
+                                      "{p:.4g}: the vessel cannot reach it from this inflow",
+                                      up=(p_up / 1e5, "bar"), p=(p_r / 1e5, "bar")))
+        return
+    # Condensate at the highest upstream pressure, saturated there unless its temperature is given (and lower).
+    source = (SteamState.from_p_dryness(p_up, 0.0) if inputs.condensate_temperature is None
+              else SteamState.from_pT(p_up, inlet.temperature))
+    load = inputs.inlet_capacity * 3600.0
+    result.add("vessel_relief_failed_open_inflow", "Inflow with the inlet failed open (rated capacity)", load, "kg/h")
+    x = (source.enthalpy - liquid.enthalpy) / (vapour.enthalpy - liquid.enthalpy)
+    if inputs.level_held:
+        steam = load * max(x, 0.0)
+        result.work(f"{name}: relief load (level held, flash steam)", "W = m_in·(h_in − h_f(P1))/h_fg(P1)",
+                    "m_in*(h_in - h_f)/h_fg", steam, "kg/h", m_in=(load, "kg/h"), h_in=(source.enthalpy / 1e3, "kJ/kg"),
+                    h_f=(liquid.enthalpy / 1e3, "kJ/kg"), h_fg=((vapour.enthalpy - liquid.enthalpy) / 1e3, "kJ/kg"))
+        result.add("vessel_relief_failed_open_load", "Relief load, inlet failed open (flash steam)", steam, "kg/h")
+        if steam > 0.0:
+            area, method = steam_relief_area(result, name, vapour, steam, atm)
+            cases["inlet fails open, level held"] = (area, steam, method, vapour.enthalpy)
+        return
+    result.assumptions.append(f"{name}: the condensate outlet is not credited with holding the level "
+                              "(overpressure.level_held not true), so the vessel may fill and the relief valve "
+                              "passes the inflow as a flashing two-phase mixture")
+    mixture = SteamState.from_ph(p_r, source.enthalpy)
+    result.work(f"{name}: inflow at the relieving pressure",
+                "x = (h_in − h_f(P1))/h_fg(P1), throttled at constant enthalpy",
+                "(h_in - h_f)/h_fg", max(x, 0.0), h_in=(source.enthalpy / 1e3, "kJ/kg"),
+                h_f=(liquid.enthalpy / 1e3, "kJ/kg"), h_fg=((vapour.enthalpy - liquid.enthalpy) / 1e3, "kJ/kg"))
+    result.add("vessel_relief_failed_open_load", "Relief load, inlet failed open (two-phase)", load, "kg/h")
+    area, method, sized = flashing_relief_area(result, name, mixture, load, atm)
+    result.add("vessel_relief_omega", f"{name}: omega parameter", sized.omega.omega)
+    cases["inlet fails open, vessel filling (two-phase)"] = (area, load, method, None)

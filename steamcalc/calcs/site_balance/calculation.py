@@ -1,0 +1,283 @@
+"""The site steam balance: the headers, boiler, deaerator, let-downs, flash vessels and users of a site,
+per load case, in one record.
+
+Per load case (:mod:`.solver`): each header closed by its let-down's make-up or a vent (the record says
+which, and how much), the boiler's steam, blowdown and fuel, the deaerator's heating steam by its mass
+and energy balance with its vent, the make-up water, and the heat lost in vents and blowdown. A year is
+the load cases weighted by their hours. A what-if (``[inputs.what_if] without``) solves the same site with
+items taken out of service and compares fuel, water, CO₂ and money a year (:mod:`.comparison`).
+"""
+
+from __future__ import annotations
+
+from ...errors import InputError
+from ...properties.steam import REFERENCE as IF97_REFERENCE
+from ...units.amounts import Phrase
+from ..base import Result, full_record_wanted
+from .closure import check_closures
+from .comparison import add_comparison, annual_totals
+from .figures import figures
+from .inputs import Inputs, checked_against_site
+from .links import link_problems as linked_record_problems
+from .links import stale_links
+from .solver import MAX_SWEEPS, TOLERANCE, fixed_states, solve_case
+from .steps import case_steps
+
+KIND = "balance"
+TITLE = "Site steam balance"
+WORKBOOK = "site_balance.ipynb"
+UNCERTAINTY_RESULTS = ()
+SUMMARY_RESULTS = ("annual_fuel_energy", "annual_fuel_cost", "annual_makeup_water", "annual_co2",
+                   "annual_total_cost", "what_if_annual_total_cost_difference")
+
+__all__ = ["Inputs", "calculate", "linked_record_problems", "stale_links", "KIND", "TITLE", "WORKBOOK"]
+
+CAUTIONS = (
+    "Equipment downstream of a let-down valve must be protected against the valve (or its bypass) failing "
+    "open: a relief device sized for that flow, to the local pressure-equipment code; the engineer of record "
+    "and the relief-valve maker's certified capacity govern.",
+    "Boilers, deaerators and flash vessels are pressure equipment: their design, marking, inspection and "
+    "operation follow the local code and the makers' instructions.",
+    "Steam and flashing condensate cause severe burns; vents and blowdown discharge to a safe place.",
+    "A balance states flows that close on paper; headers run on controls, traps and valves that must be sized "
+    "for every load case, start-up and trip, which this record does not do.",
+    "These results support design by a competent engineer; they do not replace the applicable codes, the "
+    "equipment makers' data or a licensed engineer's approval.",
+)
+
+
+def _efficiency(inputs, site):
+    if inputs.boiler.efficiency is not None:
+        return inputs.boiler.efficiency
+    if site.boiler_efficiency is not None:
+        return site.boiler_efficiency
+    raise InputError("the boiler efficiency is not given", field="boiler.efficiency",
+                     fix="give efficiency in [inputs.boiler], or boiler_efficiency in the site file")
+
+
+def calculate(inputs, site):
+    """Solve the site's steam balance for every load case (and its what-if), with checks and figures.
+
+    Parameters
+    ----------
+    inputs : Inputs
+        Boiler, deaerator, load cases, let-downs, users, flash vessels (SI: Pa absolute, K, kg/s, W, s).
+    site : steamcalc.cases.site.Site
+        Header pressures, atmosphere, make-up water temperature, and the hours, fuel price, emission
+        factor and water cost of the yearly figures.
+
+    Returns
+    -------
+    Result
+        Per load case ``<case>.boiler_steam_flow``, ``<case>.fuel_power``, ``<case>.deaerator_steam_flow``,
+        ``<case>.makeup_water_flow``, ``<case>.<header>.closed_by`` (let-down, vent or balanced) with the
+        let-down and vent flows, and the year's ``annual_fuel_energy``, ``annual_makeup_water``,
+        ``annual_co2``, ``annual_total_cost``; with a what-if, the same for it and the differences.
+
+    Notes
+    -----
+    Deaerator, mass and energy with a vent of a fraction :math:`v` of its heating steam :math:`\\dot m_s`:
+
+    .. math:: \\dot m_s = \\frac{\\dot m_{fw}(h_{fw} - h_{mu}) - \\sum \\dot m_r (h_r - h_{mu})}
+              {h_s - h_{mu} - v (h_v - h_{mu})}, \\quad
+              \\dot m_{mu} = \\dot m_{fw} + v \\dot m_s - \\sum \\dot m_r - \\dot m_s
+
+    Blowdown from the dissolved-solids balance of the boiler, :math:`\\dot m_{fw} c_{fw} = \\dot m_{bd} c_{bw}`
+    with :math:`\\dot m_{fw} = \\dot m_{steam} + \\dot m_{bd}`: :math:`\\dot m_{bd} = \\dot m_{steam}
+    c_{fw} / (c_{bw} - c_{fw})`. Desuperheater: :math:`\\dot m_{steam} = \\dot m_{out} (h_{out} - h_w) /
+    (h_{in} - h_w)`. Boiler fuel: :math:`P = [\\dot m_{steam}(h_{steam} - h_{fw}) + \\dot m_{bd}(h_{bd} -
+    h_{fw})] / \\eta`.
+
+    References
+    ----------
+    IAPWS R7-97(2012), IAPWS-IF97, for every property. The boiler's dissolved-solids (TDS) mass balance and the
+    deaerator's mass and energy balances are the steady-flow balances of any engineering-thermodynamics text
+    (common practice for site steam balances).
+
+    Examples
+    --------
+    >>> from steamcalc.cases.site import Site
+    >>> from steamcalc.calcs.site_balance.items import Boiler, Deaerator, LoadCase, User
+    >>> site = Site(headers={"HP": 11e5, "LP": 3e5}, makeup_water_temperature=288.15, boiler_efficiency=0.85)
+    >>> inputs = Inputs(boiler=Boiler(header="HP", pressure=11e5, blowdown_fraction=0.05),
+    ...                 deaerator=Deaerator(pressure=1.3e5, steam_header="HP", vent_fraction=0.0),
+    ...                 load_cases=(LoadCase("all year", 8000 * 3600.0),),
+    ...                 users=(User(name="Process", header="HP", flows=(("all year", 1.0),)),))
+    >>> r = calculate(inputs, site)
+    >>> round(r.value("all year.boiler_steam_flow"))  # kg/h: the user's 3600 kg/h and the deaerator's steam
+    4233
+    """
+    checked_against_site(inputs, site)
+    efficiency = _efficiency(inputs, site)
+    result = Result()
+    result.references.extend([
+        IF97_REFERENCE,
+        "Steady-flow mass and energy balances of headers, deaerator and boiler (any engineering-thermodynamics text)",
+        "Boiler blowdown from the dissolved-solids mass balance, feedwater against the boiler-water limit "
+        "(common practice)",
+    ])
+    result.assumptions.extend([
+        "Steady state in each load case; headers, let-downs and flash vessels adiabatic; kinetic and potential "
+        "energy neglected",
+        "Each header's steam is the adiabatic mix of what enters it; a let-down without desuperheater is a "
+        "throttle (isenthalpic)",
+        "Users condense their steam to saturated liquid at the header pressure; a user given a duty takes that "
+        "duty over the enthalpy of the header's steam less that of saturated water at the header pressure",
+        "Feedwater leaves the deaerator saturated at its pressure; feed-pump work is neglected",
+        "The deaerator vents the stated fraction of its heating steam, as saturated steam at its pressure",
+        "Blowdown leaves the boiler as saturated water at the boiler pressure",
+        "Flash steam above a header's demand is vented: only the flash steam the header takes displaces boiler steam",
+        f"Each load case solved by successive substitution until no flow or header enthalpy changes by more than "
+        f"{TOLERANCE:.0e} (relative) between sweeps; at most {MAX_SWEEPS} sweeps, else the case is refused",
+        f"Gauge pressures converted with the site atmosphere of {site.atmospheric_pressure / 1e5:.5g} bar(a)",
+    ])
+    result.cautions.extend(CAUTIONS)
+    states = fixed_states(inputs, site)
+    balances = {}
+    for case in inputs.load_cases:
+        b = solve_case(inputs, site, case.name, states)
+        balances[case.name] = b
+        _case_results(result, inputs, site, b, efficiency, case)
+        case_steps(result, inputs, site, b, efficiency, case)
+        check_closures(result, inputs, site, b)
+    _case_checks(result, inputs, site, balances)
+    totals = annual_totals(result, inputs, site, balances, efficiency, "")
+    alternative = None
+    if inputs.without:
+        alt = {c.name: solve_case(inputs, site, c.name, states, inputs.without) for c in inputs.load_cases}
+        for case in inputs.load_cases:
+            _case_results(result, inputs, site, alt[case.name], efficiency, case, prefix="what_if.")
+        alternative = annual_totals(result, inputs, site, alt, efficiency, "what_if_")
+        add_comparison(result, inputs, site, totals, alternative)
+    result.states["balances"] = balances
+    if full_record_wanted():
+        result.figures.extend(figures(inputs, site, balances))
+    return result
+
+
+def _case_results(result, inputs, site, b, efficiency, case, prefix=""):
+    c = f"{prefix}{case.name}"
+    what = f"{'Without ' + ', '.join(inputs.without) + ', ' if prefix else ''}{case.name}"
+    states = b.states
+    heat = (b.boiler_steam * (states["boiler_steam"].enthalpy - states["feedwater"].enthalpy)
+            + b.blowdown * (states["blowdown"].enthalpy - states["feedwater"].enthalpy))
+    result.add(f"{c}.boiler_steam_flow", f"{what}: boiler steam", b.boiler_steam * 3600, "kg/h")
+    result.add(f"{c}.blowdown_flow", f"{what}: boiler blowdown", b.blowdown * 3600, "kg/h")
+    result.add(f"{c}.feedwater_flow", f"{what}: feedwater (boiler and desuperheaters)", b.feedwater * 3600, "kg/h")
+    result.add(f"{c}.boiler_heat", f"{what}: heat to steam and blowdown", heat / 1e3, "kW")
+    result.add(f"{c}.fuel_power", f"{what}: fuel input", heat / efficiency / 1e3, "kW")
+    result.add(f"{c}.deaerator_steam_flow", f"{what}: deaerator heating steam", b.deaerator_steam * 3600, "kg/h")
+    result.add(f"{c}.deaerator_vent_flow", f"{what}: deaerator vent", b.deaerator_vent * 3600, "kg/h")
+    result.add(f"{c}.makeup_water_flow", f"{what}: make-up water", b.makeup * 3600, "kg/h")
+    h_mu = states["makeup"].enthalpy
+    vent_heat = b.deaerator_vent * (states["deaerator_vent"].enthalpy - h_mu) + sum(
+        m * (b.header_enthalpy[h] - h_mu) for h, m in b.vents.items())
+    result.add(f"{c}.vent_heat_loss", f"{what}: heat lost in vents (above make-up water)", vent_heat / 1e3, "kW")
+    result.add(f"{c}.blowdown_heat_loss", f"{what}: heat lost in blowdown (above make-up water)",
+               b.blowdown * (states["blowdown"].enthalpy - h_mu) / 1e3, "kW")
+    letdown_into = {ld.target: ld for ld in inputs.letdowns if ld.name in b.letdown_steam}
+    for h in sorted(site.headers, key=lambda name: -site.headers[name]):
+        state = b.header_states[h]
+        result.add(f"{c}.{h}.temperature", f"{what}: {h} header temperature", state.temperature - 273.15, "degC")
+        if h in b.vents:
+            closed = "vent"
+        elif h in b.shortfalls:
+            closed = "short: no supply"
+        elif h == inputs.boiler.header:
+            closed = "boiler"
+        elif h in letdown_into and b.letdown_steam[letdown_into[h].name] > 0.0:
+            closed = f"let-down {letdown_into[h].name}"
+        else:
+            closed = "balanced"
+        result.add(f"{c}.{h}.closed_by", f"{what}: {h} header closed by", closed)
+        result.add(f"{c}.{h}.vent_flow", f"{what}: {h} header vent", b.vents.get(h, 0.0) * 3600, "kg/h")
+        if h in b.shortfalls:
+            result.add(f"{c}.{h}.shortfall", f"{what}: {h} header shortfall", b.shortfalls[h] * 3600, "kg/h")
+    for ld in inputs.letdowns:
+        if ld.name in b.letdown_steam:
+            result.add(f"{c}.{ld.name}.steam_flow", f"{what}: let-down {ld.name} steam",
+                       b.letdown_steam[ld.name] * 3600, "kg/h")
+            if ld.desuperheated:
+                result.add(f"{c}.{ld.name}.spray_flow", f"{what}: let-down {ld.name} spray water",
+                           b.letdown_spray[ld.name] * 3600, "kg/h")
+    for name, flow in b.user_flows.items():
+        result.add(f"{c}.{name}.steam_flow", f"{what}: {name} steam", flow * 3600, "kg/h")
+    for f in inputs.flashes:
+        if f.name in b.flash_steam:
+            steam = b.flash_steam[f.name]
+            used = max(0.0, steam - b.vents.get(f.target, 0.0))
+            result.add(f"{c}.{f.name}.flash_steam_flow", f"{what}: flash vessel {f.name} steam", steam * 3600, "kg/h")
+            result.add(f"{c}.{f.name}.flash_steam_used", f"{what}: flash vessel {f.name} steam the {f.target} header "
+                       "takes", used * 3600, "kg/h")
+
+
+def _case_checks(result, inputs, site, balances):
+    boiler = inputs.boiler
+    for name, b in balances.items():
+        if boiler.capacity is not None:
+            result.check_limit(f"{name}: boiler within its rating", (b.boiler_steam * 3600, "kg/h"),
+                               [("<=", (boiler.capacity * 3600, "kg/h"), "fail")],
+                               lambda status, b=b: Phrase.of(
+                                   "boiler steam {steam:.0f} " + ("within" if status == "pass" else "beyond") +
+                                   " its maximum continuous rating {rating:.0f}", steam=(b.boiler_steam * 3600, "kg/h"),
+                                   rating=(boiler.capacity * 3600, "kg/h")), source="the boiler's rating (input)")
+        result.check_limit(f"{name}: deaerator needs heating steam", (b.deaerator_flash_vent * 3600, "kg/h"),
+                           [("<=", (0.0, "kg/h"), "warn")],
+                           lambda status, b=b: Phrase.of("the deaerator takes {steam:.0f} of heating steam",
+                                                         steam=(b.deaerator_steam * 3600, "kg/h"))
+                           if status == "pass" else Phrase.of(
+                               "the returned condensate brings more heat than the feedwater needs: the deaerator takes "
+                               "no steam and {vent:.0f} flashes off at its vent; cool the returns or use the flash",
+                               vent=(b.deaerator_flash_vent * 3600, "kg/h")))
+        for h, short in b.shortfalls.items():
+            result.check_limit(f"{name}: {h} header supplied", (short * 3600, "kg/h"), [("<=", (0.0, "kg/h"), "fail")],
+                               Phrase.of("the " + h + " header is short by {short:.1f}: nothing feeds it "
+                                         "(no let-down into it, or the boiler's fixed flow is too small)",
+                                         short=(short * 3600, "kg/h")))
+        for ld in inputs.letdowns:
+            steam = b.letdown_steam.get(ld.name)
+            if steam is None or steam == 0.0:
+                continue
+            if ld.max_flow is not None:
+                source = f"let-down record {ld.link.record_id} rev {ld.link.revision}" if ld.link else "input"
+                result.check_limit(f"{name}: let-down {ld.name} within its valve's maximum flow",
+                                   (steam * 3600, "kg/h"), [("<=", (ld.max_flow * 3600, "kg/h"), "fail")],
+                                   Phrase.of("let-down steam {steam:.0f} against the valve's maximum {limit:.0f}",
+                                             steam=(steam * 3600, "kg/h"), limit=(ld.max_flow * 3600, "kg/h")),
+                                   source=source)
+            if ld.min_flow is not None:
+                result.check_limit(f"{name}: let-down {ld.name} above its valve's minimum flow",
+                                   (steam * 3600, "kg/h"), [(">=", (ld.min_flow * 3600, "kg/h"), "warn")],
+                                   Phrase.of("let-down steam {steam:.0f} against the valve's minimum {limit:.0f}: "
+                                             "below it the valve works near its seat",
+                                             steam=(steam * 3600, "kg/h"), limit=(ld.min_flow * 3600, "kg/h")),
+                                   source="common practice")
+        for f in inputs.flashes:
+            steam = b.flash_steam.get(f.name)
+            if steam is None or steam == 0.0:
+                continue
+            vented = min(steam, b.vents.get(f.target, 0.0))
+            result.check_limit(f"{name}: flash vessel {f.name} steam taken by the {f.target} header",
+                               (vented * 3600, "kg/h"), [("<=", (0.0, "kg/h"), "warn")],
+                               lambda status, f=f, steam=steam, vented=vented: Phrase.of(
+                                   "all {steam:.0f} of flash steam is taken by the " + f.target + " header",
+                                   steam=(steam * 3600, "kg/h")) if status == "pass" else Phrase.of(
+                                   "of {steam:.0f} flash steam, {vented:.0f} is vented: the " + f.target + " header "
+                                   "cannot take it, and only the steam used is credited",
+                                   steam=(steam * 3600, "kg/h"), vented=(vented * 3600, "kg/h")))
+    # A header that vents in one load case and lets down in another swings across its let-down's range.
+    for h in site.headers:
+        vents = [n for n, b in balances.items() if h in b.vents]
+        letdowns = [n for n, b in balances.items()
+                    if any(ld.target == h and b.letdown_steam.get(ld.name, 0.0) > 0.0 for ld in inputs.letdowns)]
+        if vents and letdowns:
+            result.check(f"{h} header vents in one load case and lets down in another", "warn",
+                         f"it vents in {', '.join(vents)} and is made up by let-down in {', '.join(letdowns)}: steam "
+                         "let down in one season is thrown away in the other; look for a user or a back-pressure "
+                         "turbine that evens it out, and set the vent and let-down controls apart so they never "
+                         "work at once")
+        elif vents:
+            worst = max(balances[n].vents[h] for n in vents)
+            result.check_limit(f"{h} header does not vent", (worst * 3600, "kg/h"), [("<=", (0.0, "kg/h"), "warn")],
+                               Phrase.of("the " + h + " header vents up to {vent:.0f} (" + ", ".join(vents) + ")",
+                                         vent=(worst * 3600, "kg/h")))

@@ -1,0 +1,230 @@
+"""Steam main, drip legs, traps and condensate return: the pipework between a header and its users.
+
+From a header over the main's segments (:mod:`.main`), the heat the insulation lets through
+(:mod:`.heat_loss`), the condensate that makes running and warming up and the drip legs and traps that
+take it away (:mod:`.loads`), to the return line in which the traps' discharge flashes (:mod:`.return_line`).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from ...errors import InputError
+from ...properties.steam import REFERENCE as IF97_REFERENCE
+from ...properties.steam import SteamState
+from ...units.amounts import Phrase
+from ...units.rows import Column
+from ..base import Result, check_fields, full_record_wanted, input_field
+from .report import report_main, report_return, report_traps
+
+KIND = "steam_main"
+TITLE = "Steam main, drip legs, traps and condensate return"
+WORKBOOK = "steam_main.ipynb"
+PERCENT_VALUES = ("return_flash_fraction",)
+SUMMARY_RESULTS = ("main_outlet_pressure", "main_pressure_drop", "main_max_velocity", "main_size_needed",
+                   "heat_loss_total", "running_load_total", "warmup_load_total", "drip_points",
+                   "return_flash_fraction", "return_velocity", "return_size_needed", "annual_heat_loss_cost")
+
+SEGMENT_COLUMNS = (
+    Column("length", "length", "Length", '"75 m"', required=True),
+    Column("size", "nominal_size", "Nominal size", '"DN80"', required=True),
+    Column("schedule", "text", "Schedule", '"40"'),
+    Column("fittings_k", "number", "Fittings K", "2.5"),
+    Column("rise", "signed_length", "Rise", '"3 m"'),
+)
+
+CAUTIONS = (
+    "Steam and flashing condensate cause severe burns: drip legs, trap outlets, test valves and vents must "
+    "discharge to a safe place, and lines within reach stay insulated or guarded.",
+    "Water hammer: a main must fall towards its drip legs, with a drip leg at every low point and riser foot; "
+    "warm a cold main up slowly with its drains open, and never let condensate lie in a line that steam enters.",
+    "Receivers and flash vessels are pressure vessels: their design, marking and inspection follow the local "
+    "pressure-equipment code, with a relief device sized for the worst inflow.",
+    "Trap capacities at a differential pressure come from the trap maker's certified data; the engineer of "
+    "record confirms every selection.",
+    "These results support design by a competent engineer; they do not replace the applicable codes, the "
+    "equipment makers' data or a licensed engineer's approval.",
+)
+
+
+@dataclass(frozen=True)
+class Inputs:
+    """Inputs of a steam main and its condensate return; values in SI (Pa absolute, K, kg/s, m, s)."""
+
+    supply_pressure: float = input_field(
+        "pressure", "Supply pressure", "Pressure of the header (or the let-down's outlet) feeding the main.",
+        example="header:MP", required=True)
+    steam_flow: float = input_field(
+        "mass_flow", "Steam flow", "Steam the main carries to its users.", example="750 kg/h", required=True,
+        positive=True)
+    supply_temperature: float | None = input_field(
+        "temperature", "Supply temperature", "Leave empty for saturated steam; give it when superheated.",
+        example="185 °C")
+    segments: tuple | None = input_field(
+        "rows", "Segments", "The main's straight runs in order from the header: length, size, schedule, fittings K "
+        "and rise (a fall below zero).", example='[{length = "75 m", size = "DN80"}]', required=True,
+        columns=SEGMENT_COLUMNS)
+    velocity_limit: float = input_field(
+        "velocity", "Velocity limit", "Highest steam velocity in the main; 25 m/s when not given (common practice "
+        "for saturated steam).", example="25 m/s", default=25.0, positive=True)
+    drip_spacing: float = input_field(
+        "length", "Drip leg spacing", "Largest run between drip legs on a level or falling main; 50 m when not "
+        "given (common practice: 30 to 50 m).", example="50 m", default=50.0, positive=True)
+    ambient_temperature: float = input_field(
+        "temperature", "Ambient temperature", "Air around the main; the start of a warm-up.", example="10 °C",
+        default=293.15)
+    wind_speed: float = input_field(
+        "velocity", "Wind speed", "Air speed across the main; 0 for still air indoors.", example="3 m/s", default=0.0)
+    warmup_time: float = input_field(
+        "time", "Warm-up time", "Time to bring the main from cold to steam temperature.", example="20 min",
+        default=1200.0, positive=True)
+    trap_safety_factor: float = input_field(
+        "number", "Trap safety factor", "Trap capacity over the load it must pass: 2 when not given (common "
+        "practice for drips, on the warm-up load).", example="2", default=2.0)
+    insulation_thickness: float = input_field(
+        "length", "Insulation thickness", "Thickness of the insulation; 0 for a bare main.", example="50 mm",
+        section="insulation", key="thickness", required=True)
+    conductivity_50: float = input_field(
+        "thermal_conductivity", "Conductivity at 50 °C mean", "The maker's figure at 50 °C mean temperature.",
+        example="0.040 W/(m·K)", section="insulation", key="conductivity_50", default=0.040, positive=True)
+    conductivity_150: float = input_field(
+        "thermal_conductivity", "Conductivity at 150 °C mean", "The maker's figure at 150 °C mean temperature.",
+        example="0.055 W/(m·K)", section="insulation", key="conductivity_150", default=0.055, positive=True)
+    jacket_emissivity: float = input_field(
+        "fraction", "Jacket emissivity", "Of the cladding: about 0.1 for aluminium, 0.9 for painted or plastic "
+        "(common practice).", example="0.1", section="insulation", key="emissivity", default=0.1, positive=True)
+    receiver_pressure: float | None = input_field(
+        "pressure", "Receiver pressure", "Pressure of the receiver or flash vessel the return line ends in.",
+        example="header:LP", section="return_line", key="receiver_pressure")
+    return_size: str | None = input_field(
+        "nominal_size", "Return line size", "Nominal size of the return line.", example="DN50",
+        section="return_line", key="size")
+    return_schedule: str = input_field(
+        "text", "Return line schedule", "ASME B36.10M schedule; 80 when not given (common practice for condensate).",
+        example="80", section="return_line", key="schedule", default="80")
+    return_length: float | None = input_field(
+        "length", "Return line length", "Length of the return line to the receiver, fittings included.",
+        example="160 m", section="return_line", key="length", positive=True)
+    lift: float = input_field(
+        "length", "Lift", "Height the return line rises after the traps; 0 when it falls all the way.",
+        example="4 m", section="return_line", key="lift", default=0.0)
+    return_drop_limit: float = input_field(
+        "pressure_difference", "Return line drop limit", "Largest friction drop allowed in the return line.",
+        example="0.3 bar", section="return_line", key="drop_limit", default=0.3e5, positive=True)
+    heater_condensate_flow: float | None = input_field(
+        "mass_flow", "Heater condensate", "Condensate of the heater the main feeds, into the same return line.",
+        example="750 kg/h", section="return_line", key="heater_condensate_flow", positive=True)
+    heater_trap_pressure: float | None = input_field(
+        "pressure", "Heater trap inlet pressure", "Pressure in the heater's steam space at the trap, at the "
+        "lowest load the return must work at.", example="4 bar(g)", section="return_line", key="heater_trap_pressure")
+
+    def __post_init__(self):
+        check_fields(self)
+        if self.insulation_thickness < 0.0:
+            raise InputError("insulation cannot be thinner than zero", field="insulation.thickness",
+                             value=f"{self.insulation_thickness * 1000:g} mm",
+                             fix="give the thickness of the insulation, or 0 for a bare main")
+        if self.insulation_thickness > 0.5:
+            raise InputError("is thicker than any pipe insulation (500 mm)", field="insulation.thickness",
+                             value=f"{self.insulation_thickness * 1000:g} mm", limits=(0, 500, "mm"))
+        if self.lift < 0.0:
+            raise InputError("a lift is a height the line rises; a falling line has lift 0", field="return_line.lift",
+                             value=f"{self.lift:g} m", fix="give lift = \"0 m\" for a line falling to the receiver")
+        if self.lift > 0.0 and self.receiver_pressure is None:
+            raise InputError("a lift without a back pressure: the lift only means something against the receiver's "
+                             "pressure", field="return_line.lift", value=f"{self.lift:g} m",
+                             fix="give receiver_pressure in [inputs.return_line] (e.g. \"header:LP\"), or remove the lift")
+        if self.receiver_pressure is not None and (self.return_size is None or self.return_length is None):
+            missing = "size" if self.return_size is None else "length"
+            raise InputError(f"a return line needs its {missing}", field=f"return_line.{missing}",
+                             fix='e.g. size = "DN50", length = "160 m"')
+        if (self.heater_condensate_flow is None) != (self.heater_trap_pressure is None):
+            raise InputError("give the heater's condensate flow and its trap inlet pressure together",
+                             field="return_line.heater_trap_pressure" if self.heater_trap_pressure is None
+                             else "return_line.heater_condensate_flow",
+                             fix="give both, or neither when no heater drains into the return")
+        if not 1.0 <= self.trap_safety_factor <= 10.0:
+            raise InputError("a trap safety factor lies from 1 to 10", field="trap_safety_factor",
+                             value=self.trap_safety_factor, limits=(1, 10, ""))
+        if self.conductivity_150 < self.conductivity_50 * 0.5:
+            raise InputError("the conductivity at 150 °C is less than half that at 50 °C: no insulation behaves so",
+                             field="insulation.conductivity_150", fix="check the maker's figures and their units")
+        if self.supply_pressure <= 0.0:
+            raise InputError("must be above zero", field="supply_pressure")
+
+    @property
+    def main_segments(self):
+        from .main import Segment
+        return tuple(Segment.from_row(row) for row in self.segments)
+
+
+def _supply_state(inputs):
+    if inputs.supply_temperature is None:
+        return SteamState.from_p_dryness(inputs.supply_pressure, 1.0)
+    state = SteamState.from_pT(inputs.supply_pressure, inputs.supply_temperature)
+    if state.phase not in ("superheated vapour", "vapour", "supercritical") and (state.superheat or 0) <= 0:
+        raise InputError("the supply temperature is at or below saturation: that is not dry steam",
+                         field="supply_temperature", fix="leave it empty for saturated steam")
+    return state
+
+
+def calculate(inputs, site):
+    """The main's states, drop, heat loss and condensate loads, the traps, and the return line.
+
+    Parameters
+    ----------
+    inputs : Inputs
+    site : steamcalc.cases.site.Site
+        The atmosphere; operating hours, boiler efficiency and fuel price for the yearly loss.
+
+    Returns
+    -------
+    Result
+
+    Notes
+    -----
+    Each segment: :math:`\\Delta p = (f L/D + \\sum K) \\rho v^2/2 + \\rho g \\Delta z` (isothermal
+    compressible flow where the friction drop exceeds 10 % of the inlet pressure); :math:`h_{out} = h_{in} -
+    q' L/\\dot m`. See the modules of this package for heat loss, loads and the return line.
+
+    References
+    ----------
+    IAPWS R7-97(2012), IAPWS-IF97; Colebrook (1939); Churchill and Chu (1975); Churchill and Bernstein (1977);
+    Müller-Steinhagen and Heck (1986); ASME B36.10M.
+
+    Examples
+    --------
+    >>> from steamcalc.cases.site import Site
+    >>> r = calculate(Inputs(supply_pressure=9e5, steam_flow=0.2, segments=((100.0, "DN80", None, None, None),),
+    ...                      insulation_thickness=0.05), Site())
+    >>> round(r.value("main_outlet_pressure"), 3), r.value("drip_points")
+    (8.954, 2)
+    """
+    from .heat_loss import REFERENCES as HEAT_REFERENCES
+
+    result = Result()
+    result.references.extend([IF97_REFERENCE, *HEAT_REFERENCES,
+                              "Colebrook, C. F. (1939), Turbulent flow in pipes, J. Inst. Civil Eng. 11, 133-156 "
+                              "(through fluids.friction.Colebrook); Darcy-Weisbach equation",
+                              "Isothermal compressible flow in a pipe (through fluids.compressible.isothermal_gas)",
+                              "ASME B36.10M pipe dimensions (through fluids.piping.nearest_pipe)"])
+    result.assumptions.extend([
+        "Steady flow; the pipe wall at the steam temperature (steam-side film and steel wall resistances neglected)",
+        "Heat lost by each segment taken at its inlet steam temperature; the main is horizontal in air, "
+        "surroundings at the air temperature",
+        f"Gauge pressures converted with the site atmosphere of {site.atmospheric_pressure / 1e5:.5g} bar(a)",
+        "Insulation conductivity straight through the maker's figures at 50 °C and 150 °C mean temperature",
+    ])
+    result.cautions.extend(CAUTIONS)
+    supply = _supply_state(inputs)
+    flows, drips = report_main(inputs, site, supply, result)
+    report_traps(inputs, flows, drips, result)
+    if inputs.receiver_pressure is not None:
+        report_return(inputs, drips, result)
+    if full_record_wanted():
+        from .figures import figures
+        result.figures.extend(figures(inputs, site, flows, drips, result))
+    return result
+
+
+__all__ = ["KIND", "TITLE", "WORKBOOK", "Inputs", "calculate", "Phrase"]
