@@ -21,6 +21,9 @@ KIND = "steam_main"
 TITLE = "Steam main, drip legs, traps and condensate return"
 WORKBOOK = "steam_main.ipynb"
 PERCENT_VALUES = ("return_flash_fraction",)
+#: Results that are pressure differences (shown "bar", never "bar(a)"); each drip trap's differential too.
+PRESSURE_DIFFERENCE_RESULTS = ("main_pressure_drop", "return_friction_drop", "heater_trap_differential") + tuple(
+    f"drip_{n}_trap_differential" for n in range(1, 100))
 SUMMARY_RESULTS = ("main_outlet_pressure", "main_pressure_drop", "main_max_velocity", "main_size_needed",
                    "heat_loss_total", "running_load_total", "warmup_load_total", "drip_points",
                    "return_flash_fraction", "return_velocity", "return_size_needed", "annual_heat_loss_cost")

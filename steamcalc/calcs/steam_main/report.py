@@ -86,7 +86,7 @@ def report_main(inputs, site, supply, result):
     per_100 = drop / length * 100.0
     result.check_limit("Main pressure drop per 100 m", (per_100 / 1e5, "bar"),
                        [("<=", (DROP_LIMIT_PER_100M / 1e5, "bar"), "warn")],
-                       "steam mains are commonly held within 0.5 bar per 100 m", source="common practice")
+                       "steam mains are commonly sized for a pressure drop of no more than 0.5 bar difference in each 100 m", source="common practice")
     needed = size_needed(inputs.steam_flow, supply, inputs.main_segments[0].schedule, inputs.velocity_limit,
                          DROP_LIMIT_PER_100M)
     if needed is None:
