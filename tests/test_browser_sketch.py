@@ -13,12 +13,16 @@ SHOTS = ARTIFACTS / "sketch"
 
 
 def _wait_for_record(page, path):
+    """Press Save record (Run All in an open session saves nothing by itself) and read the record it wrote."""
     page.wait_for_function(f"document.querySelector('{PANEL} .steamcalc-save') !== null", timeout=90_000)
-    for _ in range(240):
+    save = page.locator(f"{PANEL} .steamcalc-save").first
+    save.scroll_into_view_if_needed()
+    save.click()
+    for _ in range(360):
         if path.exists():
             return json.loads(path.read_text(encoding="utf-8"))
         page.wait_for_timeout(500)
-    raise AssertionError(f"the run did not save {path}")
+    raise AssertionError(f"Save record did not write {path}")
 
 
 def _sketch_readings(page):

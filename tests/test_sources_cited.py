@@ -16,7 +16,7 @@ import pytest
 from steamcalc.cli import main
 
 DEMO = Path(__file__).resolve().parent.parent / "workbooks" / "demo_site"
-CASES = ("LD-01", "LD-02", "FL-01", "FL-02", "HX-01")
+CASES = ("LD-01", "LD-02", "FL-01", "FL-02", "HX-01", "SB-01", "SM-01")
 
 
 @pytest.fixture(scope="module")

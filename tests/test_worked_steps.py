@@ -9,21 +9,30 @@ that those give.
 """
 
 import ast
+import json
+import shutil
 from pathlib import Path
 
 import pytest
 
-from steamcalc.records.build import record_for_case_file
+from steamcalc.cli import main
 from steamcalc.units.formatting import CV_PER_KV
 from steamcalc.units.quantities import Q_
 from tests.worked_step_arithmetic import _FUNCTIONS, arithmetic, written_step_problems
 
-DEMO_CASES = sorted((Path(__file__).resolve().parent.parent / "workbooks" / "demo_site" / "cases").glob("*.toml"))
+DEMO = Path(__file__).resolve().parent.parent / "workbooks" / "demo_site"
+DEMO_CASES = sorted((DEMO / "cases").glob("*.toml"))
 
 
 @pytest.fixture(scope="module")
-def demo_records():
-    return {path.stem: record_for_case_file(path) for path in DEMO_CASES}
+def demo_records(tmp_path_factory):
+    """The demo site's records issued afresh as one run (the site balance reads the records it links)."""
+    site = tmp_path_factory.mktemp("steps") / "site"
+    shutil.copytree(DEMO, site, ignore=shutil.ignore_patterns("records"))
+    out = site / "issued"
+    assert main(["run", str(site / "cases"), "--out", str(out), "--quiet"]) in (0, 1)
+    return {path.stem: json.loads(next(out.glob(f"{path.stem}_rev*.json")).read_text(encoding="utf-8"))
+            for path in DEMO_CASES}
 
 
 @pytest.mark.parametrize("system", ["SI", "US"])

@@ -23,8 +23,11 @@ from ..errors import CaseFileError
 from .exchanger import calculation as exchanger_calculation
 from .flash import calculation as flash_calculation
 from .letdown import calculation as letdown_calculation
+from .site_balance import calculation as site_balance_calculation
+from .steam_main import calculation as steam_main_calculation
 
-_REGISTRY = {module.KIND: module for module in (letdown_calculation, flash_calculation, exchanger_calculation)}
+_REGISTRY = {module.KIND: module for module in (letdown_calculation, flash_calculation, exchanger_calculation,
+                                                 site_balance_calculation, steam_main_calculation)}
 #: Kind -> its vectorised sample path, imported on first use (numpy and the array engine).
 _SAMPLE_PATHS = {letdown_calculation.KIND: ".letdown.vector"}
 

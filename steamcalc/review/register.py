@@ -452,9 +452,10 @@ def format_register(rows):
     """The register as text: one line per record, then why any record is not current or valid."""
     if not rows:
         return "no records found"
-    lines = [f"{'record':<16} {'kind':<9} {'status':<6} {'verification':<14} {'current':<8} signatures"]
+    lines = [f"{'record':<16} {'kind':<10} {'status':<6} {'verification':<14} {'current':<8} signatures"]
     for r in rows:
-        lines.append(f"{(r.id + ' rev ' + r.revision) if r.id else r.json:<16} {r.kind:<9} {r.status.upper():<6} "
+        kind = r.kind.replace("_", " ")   # the kind in words ("steam main"), not its case-file key
+        lines.append(f"{(r.id + ' rev ' + r.revision) if r.id else r.json:<16} {kind:<10} {r.status.upper():<6} "
                      f"{r.verification.split(' (')[0]:<14} {'yes' if r.current else 'NO':<8} {r.signatures}")
         for reason in r.stale:
             detail = {"case edited after issue": r.case_file, "site data changed": r.site_data,
