@@ -90,7 +90,7 @@ _HELP = {
         "A list in the records folder itself is never used. A signature must also keep the rules sign\n"
         "keeps: checked before approved, two different keys and people, the preparer never the checker,\n"
         "no signature on a failing record. A name typed into a record is not a signature.",
-        ["steamcalc verify demo_site/records/LD-01_revA.json",
+        ["steamcalc verify demo_site/records/LD-01_revB.json",
          "steamcalc verify demo_site/records --engine fast"],
         ["0  every record verified",
          "1  a record is edited, not reproduced, its companions differ, its issue is in progress, or a signature "
@@ -105,7 +105,7 @@ _HELP = {
         "first, marked * changed, + added, - removed; the rows that are the same are counted, and listed\n"
         "after them (marked =) with --all. The HTML page shows the same, the rows that are the same folded\n"
         "away under the ones that differ.",
-        ["steamcalc diff demo_site/records/LD-01_revA.json demo_site/records/LD-01_revB.json",
+        ["steamcalc diff demo_site/records/LD-01_revB.json demo_site/records/LD-01_revC.json",
          "steamcalc diff OLD.json NEW.json --all --html changes.html"],
         ["0  compared (whether or not anything differs)",
          _BAD_INPUT + "; a file is not a readable record"]),
@@ -117,8 +117,8 @@ _HELP = {
         "index (index.html, index.csv) the index is written again, so it shows the signature. A record is\n"
         "signed with a key only: a name alone (--by without --key) is refused.",
         ['steamcalc keys new --name "C. Checker" --out ~/keys',
-         "steamcalc sign demo_site/records/LD-01_revA.json --key ~/keys/c-checker.key",
-         "steamcalc sign demo_site/records/LD-01_revA.json --key ~/keys/a-approver.key --role approved"],
+         "steamcalc sign demo_site/records/LD-01_revB.json --key ~/keys/c-checker.key",
+         "steamcalc sign demo_site/records/LD-01_revB.json --key ~/keys/a-approver.key --role approved"],
         ["0  signed",
          "1  refused: the record does not verify, has a failing check or is already signed",
          _BAD_INPUT + "; the key file or passphrase cannot be read, or no key is given"]),

@@ -141,21 +141,21 @@ def kills(base, rng):
         env = {"STEAMCALC_TEST_KILL_AT": POINTS[n % len(POINTS)]} if n < 14 else {}
         code, _, _, _ = cli(["run", case, "--out", out], env=env,
                             kill_after=None if env else rng.uniform(0, 1.3 * seconds))
-        ok = set_ok(out, "LD-02_revA")
+        ok = set_ok(out, "LD-02_revB")
         code2, _, _, _ = cli(["run", case, "--out", out])
-        tally("kill -9 of run", ok and code2 == 0 and complete(out, "LD-02_revA"), f"attempt {n}")
+        tally("kill -9 of run", ok and code2 == 0 and complete(out, "LD-02_revB"), f"attempt {n}")
     keys, _ = signing_keys(base)
     for n in range(20):
         out = base / f"kill-sign-{n}"
         cli(["run", case, "--out", out])
         env = {"STEAMCALC_TEST_KILL_AT": POINTS[n % len(POINTS)]} if n < 14 else {}
-        cli(["sign", out / "LD-02_revA.json", "--key", keys["c-checker"]], env=env,
+        cli(["sign", out / "LD-02_revB.json", "--key", keys["c-checker"]], env=env,
             kill_after=None if env else rng.uniform(0, 1.5 * seconds))
-        ok = set_ok(out, "LD-02_revA")
+        ok = set_ok(out, "LD-02_revB")
         code2, _, _, _ = cli(["run", case, "--out", out])   # the next writer finishes or undoes it
-        record = load_record(out / "LD-02_revA.json")
-        signed_right = not record.get("signatures") or "Signed as checked" in (out / "LD-02_revA.html").read_text()
-        tally("kill -9 of sign", ok and code2 == 0 and complete(out, "LD-02_revA") and signed_right, f"attempt {n}")
+        record = load_record(out / "LD-02_revB.json")
+        signed_right = not record.get("signatures") or "Signed as checked" in (out / "LD-02_revB.html").read_text()
+        tally("kill -9 of sign", ok and code2 == 0 and complete(out, "LD-02_revB") and signed_right, f"attempt {n}")
 
 
 def disk_full(base):
@@ -168,15 +168,15 @@ def disk_full(base):
         if n >= 5:
             cli(["run", case, "--out", out])
             before = {p.name: p.read_bytes() for p in out.glob("LD-02*")}
-        pid_args = (["sign", out / "LD-02_revA.json", "--key", keys["c-checker"]] if n >= 5
+        pid_args = (["sign", out / "LD-02_revB.json", "--key", keys["c-checker"]] if n >= 5
                     else ["run", case, "--out", out])
         code, _, err = _with_full_disk(pid_args, allowance, base)
         ok = code in (1, 2) and "No space left on device" in err and "internal error" not in err
-        ok = ok and set_ok(out, "LD-02_revA") and not list(out.glob(".*.part"))
+        ok = ok and set_ok(out, "LD-02_revB") and not list(out.glob(".*.part"))
         if n >= 5:
             ok = ok and before == {p.name: p.read_bytes() for p in out.glob("LD-02*")}
         code2, _, _, _ = cli(["run", case, "--out", out])
-        tally("disk full", ok and code2 == 0 and complete(out, "LD-02_revA"), f"allowance {allowance}")
+        tally("disk full", ok and code2 == 0 and complete(out, "LD-02_revB"), f"allowance {allowance}")
     _keys_on_a_full_disk(base)
 
 
@@ -214,18 +214,18 @@ def races(base):
         results = _pair(["run", case, "--out", out], ["run", other, "--out", out])
         written = sum(1 for code, text in results if code in (0, 1) and "written" in text and "unchanged" not in text)
         refused = sum(1 for code, text in results if code == 2 and "already exists with different content" in text)
-        tally("races: two runs, one id", written == 1 and refused == 1 and complete(out, "LD-02_revA"), f"pair {n}")
+        tally("races: two runs, one id", written == 1 and refused == 1 and complete(out, "LD-02_revB"), f"pair {n}")
     keys, trusted = signing_keys(base)
     for n in range(6):
         out = base / f"signrace-{n}"
         cli(["run", case, "--out", out])
-        path = out / "LD-02_revA.json"
+        path = out / "LD-02_revB.json"
         results = _pair(["sign", path, "--key", keys["a-one"], "--trusted", trusted],
                         ["sign", path, "--key", keys["b-two"], "--trusted", trusted])
         signed = [text for code, text in results if code == 0]
         record = load_record(path)
         ok = len(signed) == 1 and len(record["signatures"]) == 1 and record["signatures"][0]["name"] in signed[0] \
-            and complete(out, "LD-02_revA")
+            and complete(out, "LD-02_revB")
         tally("races: two sign-offs", ok, f"pair {n}")
 
 
@@ -258,7 +258,7 @@ def overwrites(base):
     case = site / "cases" / "LD-02.toml"
     out = base / "ow"
     cli(["run", case, "--out", out])
-    a = out / "LD-02_revA.json"
+    a = out / "LD-02_revB.json"
     before = a.read_bytes()
     for extra in ([], ["--force"]):
         code, _, err, _ = cli(["diff", a, a, "--html", a, *extra])
@@ -269,12 +269,12 @@ def overwrites(base):
     tally("overwrites", code == 2 and foreign.read_text() == "<html>mine</html>", "diff --html onto a foreign page")
     out2 = base / "ow2"
     out2.mkdir()
-    (out2 / "LD-02_revA.md").write_text("my notes")
+    (out2 / "LD-02_revB.md").write_text("my notes")
     code, _, err, _ = cli(["run", case, "--out", out2])
-    tally("overwrites", code == 2 and (out2 / "LD-02_revA.md").read_text() == "my notes", "run onto a foreign .md")
+    tally("overwrites", code == 2 and (out2 / "LD-02_revB.md").read_text() == "my notes", "run onto a foreign .md")
     (out2 / "index.csv").write_text("my,spreadsheet\n")
     code, _, err, _ = cli(["run", case, site / "cases" / "FL-01.toml", "--out", out2, "--force"])
-    tally("overwrites", code == 0 and (out2 / "LD-02_revA.md").read_text() != "my notes", "run --force replaces")
+    tally("overwrites", code == 0 and (out2 / "LD-02_revB.md").read_text() != "my notes", "run --force replaces")
     out3 = base / "ow3"
     out3.mkdir()
     (out3 / "index.csv").write_text("my,spreadsheet\n")
@@ -295,8 +295,8 @@ def _output_overwrites(base, site, case):
     keys = base / "ow-keys"
     cli(["keys", "new", "--name", "C. Checker", "--out", keys])
     shutil.copy(keys / "c-checker.pub", site / "trusted_signers")
-    victims = [(site / "cases" / "LD-02.toml", []), (site / "site.toml", []), (records / "LD-02_revA.json", []),
-               (records / "LD-02_revA.json", ["--force"]), (records / "LD-02_revA.md", ["--force"]),
+    victims = [(site / "cases" / "LD-02.toml", []), (site / "site.toml", []), (records / "LD-02_revB.json", []),
+               (records / "LD-02_revB.json", ["--force"]), (records / "LD-02_revB.md", ["--force"]),
                (site / "trusted_signers" / "c-checker.pub", [])]
     for path, extra in victims:
         for option in ("--html", "--csv"):
@@ -316,13 +316,13 @@ def _output_overwrites(base, site, case):
         code, _, err, seconds = cli(["register", site, "--html", path, "--force"], timeout=20)
         tally("overwrites", clean_refusal(code, err, str(path)) and stat.S_IFMT(path.lstat().st_mode) == kind
               and seconds < 10, f"register --html --force onto a {'FIFO' if stat.S_ISFIFO(kind) else 'device'}")
-    a, companion = records / "LD-02_revA.json", records / "LD-02_revA.html"
+    a, companion = records / "LD-02_revB.json", records / "LD-02_revB.html"
     before = companion.read_bytes()
     for extra in ([], ["--force"]):
         code, _, err, _ = cli(["diff", a, a, "--html", companion, *extra])
         tally("overwrites", clean_refusal(code, err, str(companion)) and companion.read_bytes() == before,
               f"diff --html onto a record's companion {extra}")
-    pdf = records / "LD-02_revA.pdf"
+    pdf = records / "LD-02_revB.pdf"
     pdf.write_bytes(b"%PDF-1.4 a scan of the signed sheet")
     code, _, err, _ = cli(["run", case, "--pdf"])
     tally("overwrites", clean_refusal(code, err, str(pdf)) and pdf.read_bytes() == b"%PDF-1.4 a scan of the signed sheet",
@@ -339,9 +339,9 @@ def batch(base):
     out = base / "batch"
     code, so, err, _ = cli(["run", cases, "--out", out, "--quiet"])
     index = (out / "index.html").read_text() if (out / "index.html").exists() else ""
-    tally("batch", code == 2 and "bad-site.toml" in index and (out / "LD-01_revA.json").exists()
+    tally("batch", code == 2 and "bad-site.toml" in index and (out / "LD-01_revB.json").exists()
           and "field 'site'" in err, "site = 123 in a folder")
-    tally("batch", code == 2 and "dry0.toml" in index and (out / "FL-01_revA.json").exists()
+    tally("batch", code == 2 and "dry0.toml" in index and (out / "FL-01_revB.json").exists()
           and "internal error" not in err, "steam_dryness = 0 in a folder (a calculation fault, reported only there)")
     heavy = (cases / "LD-01.toml").read_text()
     folder = base / "heavy"
@@ -393,7 +393,7 @@ def hangs(base):
     code, _, err, seconds = cli(["run", big, "--out", out], timeout=20)
     tally("hangs and memory", clean_refusal(code, err, str(big)) and seconds < 10, "50 MB case file")
     cli(["run", site / "cases" / "LD-01.toml", "--out", out])
-    record = json.loads((out / "LD-01_revA.json").read_text())
+    record = json.loads((out / "LD-01_revB.json").read_text())
     record["uncertainty"]["samples"] = 10_000_000
     edited = out / "edited.json"
     edited.write_text(json.dumps(record))
@@ -452,7 +452,7 @@ def injection(base):
     rows = {row[0]: row for row in csv.reader((out / "index.csv").read_text().splitlines()[1:])}
     index = (out / "index.html").read_text()
     for n, payload in enumerate(PAYLOADS):
-        stem = out / f"I{n:02d}_revA"
+        stem = out / f"I{n:02d}_revB"
         md = stem.with_suffix(".md").read_text()
         page = stem.with_suffix(".html").read_text()
         cell_ok = all(c[:1] not in ("=", "+", "-", "@", "\t", "\r") for c in rows[f"I{n:02d}"])
@@ -462,12 +462,12 @@ def injection(base):
         tally("injection", "<script>" not in page and "href=\"javascript" not in page, f"HTML {payload!r}")
         cli(["run", cases[n], "--out", out])  # unchanged
         code, vout, verr, _ = cli(["verify", stem.with_suffix(".json")])
-        code2, dout, derr, _ = cli(["diff", out / "I00_revA.json", stem.with_suffix(".json")])
+        code2, dout, derr, _ = cli(["diff", out / "I00_revB.json", stem.with_suffix(".json")])
         terminal = vout + verr + dout + derr
         tally("injection", not re.search("[\u001b\u202e]", terminal), f"terminal {payload!r}")
     hrefs = re.findall(r"href='([^']*)'", index)
     tally("injection", all(h.startswith("./") for h in hrefs), "index links")
-    record = load_record(out / "I00_revA.json")
+    record = load_record(out / "I00_revB.json")
     (out / "javascript:alert(1).json").write_text(json.dumps(record))
     cli(["run", cases[0], cases[1], "--out", out])
     hrefs = re.findall(r"href='([^']*)'", (out / "index.html").read_text())
@@ -498,8 +498,8 @@ def unclear(base):
         ("list for a string", text.replace('"2.0 t/h"', '["2 t/h"]'), "mass_flow"),
         ("date for a string", text.replace('"2.0 t/h"', "2024-01-01"), "mass_flow"),
         ("bool for a string", text.replace('"2.0 t/h"', "true"), "mass_flow"),
-        ("revision true", text.replace('revision = "A"', "revision = true"), "revision"),
-        ("revision a table", text.replace('revision = "A"', "revision = {a = 1}"), "revision"),
+        ("revision true", text.replace('revision = "B"', "revision = true"), "revision"),
+        ("revision a table", text.replace('revision = "B"', "revision = {a = 1}"), "revision"),
         ("title a table", re.sub(r'(?m)^title = .*$', "title = {a = 1}", text), "title"),
         ("prepared_by a list", re.sub(r'(?m)^prepared_by = .*$', "prepared_by = [1]", text), "prepared_by"),
         ("site a number", text.replace('site = "../site.toml"', "site = 123"), "site"),
@@ -544,10 +544,10 @@ def unclear(base):
               f"{command} of a folder without records")
     bad = base / "bad.json"
     bad.write_text("{")
-    code, vout, verr, _ = cli(["verify", bad, out / "LD-02_revA.json"])
+    code, vout, verr, _ = cli(["verify", bad, out / "LD-02_revB.json"])
     tally("unclear errors", code == 2 and "VERIFIED" in vout and str(bad) in verr, "verify BAD GOOD")
     import subprocess
-    done = subprocess.run(f"{sys.executable} -m steamcalc diff {out / 'LD-02_revA.json'} {out / 'BOM_revA.json'} | head -c 5",
+    done = subprocess.run(f"{sys.executable} -m steamcalc diff {out / 'LD-02_revB.json'} {out / 'BOM_revB.json'} | head -c 5",
                           shell=True, capture_output=True, text=True, env={**os.environ, "PYTHONPATH": str(ROOT)})
     tally("unclear errors", "Error" not in done.stderr and "internal" not in done.stderr, "diff ... | head")
     _crafted_shapes_and_names(base)
@@ -578,28 +578,28 @@ def register_folders(base):
     tally("register and folders", code == 1 and "inputs mass_flow" in out and "2 case files give LD-02" in out
           and "internal error" not in err, "a backup copy as issued beside the edited case")
     shutil.copy(cases / "LD-02 copy.toml", cases / "LD-02.toml")
-    rev_b = cases / "LD-02_revB.toml"
-    rev_b.write_text((cases / "LD-02.toml").read_text().replace('revision = "A"', 'revision = "B"')
+    rev_b = cases / "LD-02_revC.toml"
+    rev_b.write_text((cases / "LD-02.toml").read_text().replace('revision = "B"', 'revision = "C"')
                      .replace('"2.0 t/h"', '"2.2 t/h"'))
     (cases / "LD-02 copy.toml").unlink()
     code, out, _, _ = cli(["run", rev_b])
     index = (site / "records" / "index.csv").read_text()
-    tally("register and folders", code == 0 and "LD-02_revB.json" in index, "one case run refreshes the index")
+    tally("register and folders", code == 0 and "LD-02_revC.json" in index, "one case run refreshes the index")
     code, out, _, _ = cli(["register", site])
-    newest = [line for line in out.splitlines() if line.startswith("LD-02 rev B")]
-    tally("register and folders", code == 1 and newest and " yes " in newest[0] and "superseded by revision B" in out,
-          "the newest revision saved as LD-02_revB.toml is current")
+    newest = [line for line in out.splitlines() if line.startswith("LD-02 rev C")]
+    tally("register and folders", code == 1 and newest and " yes " in newest[0] and "superseded by revision C" in out,
+          "the newest revision saved as LD-02_revC.toml is current")
 
 
 def permissions(base):
     site = fresh_site(base)
     out = base / "perm"
     cli(["run", site / "cases" / "LD-02.toml", site / "cases" / "FL-01.toml", "--out", out], umask=0o022)
-    for name in ("LD-02_revA.json", "LD-02_revA.html", "LD-02_revA.md", "index.html", "index.csv"):
+    for name in ("LD-02_revB.json", "LD-02_revB.html", "LD-02_revB.md", "index.html", "index.csv"):
         tally("permissions", (out / name).stat().st_mode & 0o777 == 0o644, name)
     tally("permissions", out.stat().st_mode & 0o777 == 0o755, "records folder")
-    cli(["sign", out / "LD-02_revA.json", "--key", signing_keys(base)[0]["c-checker"]], umask=0o022)
-    tally("permissions", (out / "LD-02_revA.json").stat().st_mode & 0o777 == 0o644, "signed record")
+    cli(["sign", out / "LD-02_revB.json", "--key", signing_keys(base)[0]["c-checker"]], umask=0o022)
+    tally("permissions", (out / "LD-02_revB.json").stat().st_mode & 0o777 == 0o644, "signed record")
     cli(["new-site", base / "plant2", "--from", site], umask=0o022)
     tally("permissions", (base / "plant2").stat().st_mode & 0o777 == 0o755, "new site folder")
     tally("permissions", (base / "plant2" / "site.toml").stat().st_mode & 0o777 == 0o644, "new site file")
@@ -645,7 +645,7 @@ def _signed_site(base, keys, failing=False):
     cli(["run", case])
     for stem in ("c-checker", "d-approver", "a-engineer"):
         shutil.copy(keys[stem].with_suffix(".pub"), site / "trusted_signers")
-    return site / "records" / "LD-02_revA.json"
+    return site / "records" / "LD-02_revB.json"
 
 
 def forgery(base):
@@ -678,11 +678,11 @@ def _forgery_attempts(base, keys, attacker):
         target = path.parent / layout
         if layout:
             target.mkdir(parents=True)
-            for file in path.parent.glob("LD-02_revA.*"):
+            for file in path.parent.glob("LD-02_revB.*"):
                 shutil.copy(file, target / file.name)
             _plant(target.parent, attacker.with_suffix(".pub"))
         _plant(target, attacker.with_suffix(".pub"))
-        code, out, err, _ = cli(["verify", target / "LD-02_revA.json"])
+        code, out, err, _ = cli(["verify", target / "LD-02_revB.json"])
         tally("forgery", _not_trusted(code, out) and "trusted signers: " in out,
               f"planted trust list, records/{layout}: exit {code}")
         code, out, err, _ = cli(["register", target])
@@ -690,10 +690,10 @@ def _forgery_attempts(base, keys, attacker):
               f"register with a planted trust list, records/{layout}: exit {code}")
     # 2. Name-only sign-offs: refused; an existing one is a typed name, never green, not signed.
     path = _signed_site(base, keys)
-    before = {p.name: p.read_bytes() for p in path.parent.glob("LD-02_revA.*")}
+    before = {p.name: p.read_bytes() for p in path.parent.glob("LD-02_revB.*")}
     code, out, err, _ = cli(["sign", path, "--by", "C. Checker"])
     tally("forgery", clean_refusal(code, err, str(path), "--by", "--key") and
-          before == {p.name: p.read_bytes() for p in path.parent.glob("LD-02_revA.*")}, "sign --by NAME, no key")
+          before == {p.name: p.read_bytes() for p in path.parent.glob("LD-02_revB.*")}, "sign --by NAME, no key")
     _forge(path, lambda r: r.update(checked_by="Chief Engineer", signoff={
         "by": "Chief Engineer", "date": "2099-01-01T00:00:00Z", "verification": {"integrity": "intact",
                                                                                   "results_reproduced": "999 of 999",
@@ -753,7 +753,7 @@ def _forgery_attempts(base, keys, attacker):
     path = _signed_site(base, keys)
     path.with_suffix(".pdf").write_bytes(b"%PDF-1.4 edited\n")
     code, out, err, _ = cli(["verify", path])
-    tally("forgery", code == 0 and "LD-02_revA.pdf: NOT CHECKED" in out, "a PDF beside the record")
+    tally("forgery", code == 0 and "LD-02_revB.pdf: NOT CHECKED" in out, "a PDF beside the record")
     _texts_read_again(base, keys)
 
 
@@ -775,7 +775,7 @@ def _special_files(base):
     keys, trusted = signing_keys(base)
     site = fresh_site(base)
     cli(["run", site / "cases" / "LD-02.toml"])
-    record = site / "records" / "LD-02_revA.json"
+    record = site / "records" / "LD-02_revB.json"
     fifo = base / "special.fifo"
     if not fifo.exists():
         os.mkfifo(fifo)
@@ -806,7 +806,7 @@ def _crafted_shapes_and_names(base):
     verify --repair on a read-only folder names the file and the fix."""
     site = fresh_site(base)
     cli(["run", site / "cases" / "LD-02.toml"])
-    good = site / "records" / "LD-02_revA.json"
+    good = site / "records" / "LD-02_revB.json"
     shapes = [("signatures as text", lambda r: r.update(signatures="C. Checker"), "signatures"),
               ("a signature a number", lambda r: r.update(signatures=[1]), "signatures.0"),
               ("a signature's role a number", lambda r: r.update(signatures=[{
@@ -856,7 +856,7 @@ def _texts_read_again(base, keys):
     caught between its JSON's move and its reports' is an issue in progress; hostile and doubled trusted names."""
     site = fresh_site(base)
     cli(["run", site / "cases" / "LD-01.toml"])
-    path = site / "records" / "LD-01_revA.json"
+    path = site / "records" / "LD-01_revB.json"
     edits = [
         ("a flow's text as given", lambda r: r["inputs"]["mass_flow"].update(given="9 t/h"), "mass_flow"),
         ("a header's text as given", lambda r: r["inputs"]["inlet_pressure"].update(given="header:HP = 30 bar(g)"),
@@ -883,7 +883,7 @@ def _texts_read_again(base, keys):
     site = fresh_site(base)
     cli(["run", site / "cases" / "LD-02.toml"])
     shutil.copy(keys["c-checker"].with_suffix(".pub"), site / "trusted_signers")
-    path = site / "records" / "LD-02_revA.json"
+    path = site / "records" / "LD-02_revB.json"
     cli(["sign", path, "--key", keys["c-checker"]], env={"STEAMCALC_TEST_KILL_AT": "moved:0"})
     code, out, err, _ = cli(["verify", path])
     tally("forgery", code == 1 and "ISSUE IN PROGRESS" in out and "DIFFERS" not in out, "verify of an issue in progress")
@@ -911,7 +911,7 @@ def _warm_up(base):
     with contextlib.redirect_stdout(io.StringIO()), contextlib.redirect_stderr(io.StringIO()):
         for name in ("LD-01", "LD-02", "FL-01", "HX-01"):
             main(["run", str(site / "cases" / f"{name}.toml"), "--out", str(base / "warm")])
-        main(["verify", str(base / "warm" / "LD-02_revA.json")])
+        main(["verify", str(base / "warm" / "LD-02_revB.json")])
 
 
 def main_campaign():

@@ -72,18 +72,18 @@ def test_a_record_relabelled_as_the_earlier_schema_gets_no_pass_for_its_report(t
 
     assert main(["run", str(ARCHIVE.parent.parent / "workbooks" / "demo_site" / "cases" / "LD-02.toml"),
                  "--out", str(tmp_path), "--quiet"]) == 0
-    path = tmp_path / "LD-02_revA.json"
+    path = tmp_path / "LD-02_revB.json"
     record = json.loads(path.read_text(encoding="utf-8"))
     record["schema"] = "steamcalc.record/1"
     del record["figures"]
     record["content_digest"] = compute_content_digest(record)
     record["digest"] = compute_digest(record)
     path.write_text(json.dumps(record, indent=2), encoding="utf-8")
-    html = tmp_path / "LD-02_revA.html"
+    html = tmp_path / "LD-02_revB.html"
     html.write_text(html.read_text(encoding="utf-8").replace("warn</td>", "pass</td>", 1), encoding="utf-8")
     capsys.readouterr()
     assert main(["verify", str(path)]) == 1
-    assert "companion LD-02_revA.html: DIFFERS" in capsys.readouterr().out
+    assert "companion LD-02_revB.html: DIFFERS" in capsys.readouterr().out
 
 
 def test_an_earlier_record_lists_what_a_later_basis_changed_and_still_catches_an_edit(tmp_path, capsys):

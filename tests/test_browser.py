@@ -9,9 +9,9 @@ import pytest
 
 from tests.browser_support import ARTIFACTS, PANEL, _open_and_run_all, _results_text, browser, lab  # noqa: F401
 
-WORKBOOKS = {"letdown.ipynb": ("mass_flow", "5.5 t/h", "LD-01_revB.json"),
-             "flash_recovery.ipynb": ("condensate_flow", "4.0 t/h", "FL-01_revB.json"),
-             "exchanger_duty.ipynb": ("process_flow", "10 t/h", "HX-01_revB.json")}
+WORKBOOKS = {"letdown.ipynb": ("mass_flow", "5.5 t/h", "LD-01_revC.json"),
+             "flash_recovery.ipynb": ("condensate_flow", "4.0 t/h", "FL-01_revC.json"),
+             "exchanger_duty.ipynb": ("process_flow", "10 t/h", "HX-01_revC.json")}
 
 
 @pytest.mark.parametrize("notebook", list(WORKBOOKS))
@@ -38,7 +38,7 @@ def test_workbook_in_browser(lab, browser, notebook):
 
     # Raise the revision first, so the changed inputs are a new record rather than a conflict.
     revision = page.locator(f"{PANEL} .steamcalc-revision input").first
-    revision.fill("B")
+    revision.fill("C")
     revision.press("Enter")
     box = page.locator(f"{PANEL} .steamcalc-input-{field} input").first
     box.fill(new_value)
@@ -99,6 +99,6 @@ def test_review_workbook_in_browser(lab, browser):
     body = page.locator("body").inner_text()
     assert "Error displaying widget" not in body and "Traceback" not in body
     import json
-    record = json.loads((root / "workbooks" / "demo_site" / "records" / "LD-01_revA.json").read_text())
+    record = json.loads((root / "workbooks" / "demo_site" / "records" / "LD-01_revB.json").read_text())
     assert [s["name"] for s in record["signatures"]] == ["C. Checker"]
     page.close()

@@ -19,23 +19,23 @@ SHOTS = ARTIFACTS / "records"
 
 @pytest.fixture(scope="module")
 def issued(tmp_path_factory):
-    """The demo site copied and every case run, plus LD-01 rev B with a larger normal flow (5.0 t/h) and its diff."""
+    """The demo site copied and every case run, plus LD-01 rev C with a larger normal flow (5.0 t/h) and its diff."""
     site = tmp_path_factory.mktemp("records") / "site"
     shutil.copytree(ROOT / "workbooks" / "demo_site", site, ignore=shutil.ignore_patterns("records"))
     assert main(["run", str(site / "cases")]) in (0, 1)
     case = (site / "cases" / "LD-01.toml").read_text()
     (site / "revisions").mkdir()
     revised = site / "revisions" / "LD-01.toml"
-    revised.write_text(case.replace('revision = "A"', 'revision = "B"', 1).replace("4.5 t/h", "5.0 t/h", 1))
+    revised.write_text(case.replace('revision = "B"', 'revision = "C"', 1).replace("4.5 t/h", "5.0 t/h", 1))
     assert main(["run", str(revised)]) in (0, 1)
     records = site / "records"
-    assert main(["diff", str(records / "LD-01_revA.json"), str(records / "LD-01_revB.json"),
+    assert main(["diff", str(records / "LD-01_revB.json"), str(records / "LD-01_revC.json"),
                  "--html", str(records / "LD-01_A-to-B.html")]) in (0, 1)
     assert main(["register", str(site), "--html", str(records / "register.html")]) in (0, 1)
     return records
 
 
-@pytest.mark.parametrize("page_name", ["LD-01_revA.html", "FL-01_revA.html", "HX-01_revA.html",
+@pytest.mark.parametrize("page_name", ["LD-01_revB.html", "FL-01_revB.html", "HX-01_revB.html",
                                        "LD-01_A-to-B.html", "register.html"])
 def test_record_page_in_browser(issued, browser, page_name):  # noqa: F811
     path = issued / page_name
@@ -58,13 +58,13 @@ def test_us_display_record_in_browser(tmp_path, browser):  # noqa: F811
     site_file = site / "site.toml"
     site_file.write_text(site_file.read_text().replace('display_units = "SI"', 'display_units = "US"'))
     assert main(["run", str(site / "cases" / "LD-01.toml")]) in (0, 1)
-    path = site / "records" / "LD-01_revA.html"
+    path = site / "records" / "LD-01_revB.html"
     SHOTS.mkdir(parents=True, exist_ok=True)
     page = browser.new_page(viewport={"width": 1200, "height": 1000})
     page.goto(path.as_uri())
     text = page.locator("body").inner_text()
     assert "°F" in text and "lb/h" in text
-    page.screenshot(path=str(SHOTS / "LD-01_revA_US.png"), full_page=True)
+    page.screenshot(path=str(SHOTS / "LD-01_revB_US.png"), full_page=True)
     page.close()
 
 
@@ -73,7 +73,7 @@ def test_command_line_text_a_checker_reads(issued, capsys):
     out = ARTIFACTS.parent / "cli"
     out.mkdir(parents=True, exist_ok=True)
     capsys.readouterr()
-    assert main(["verify", str(issued / "LD-01_revA.json")]) == 0
+    assert main(["verify", str(issued / "LD-01_revB.json")]) == 0
     verified = capsys.readouterr().out
     assert "unit" in verified.splitlines()[next(i for i, line in enumerate(verified.splitlines())
                                                 if line.strip().startswith("result"))]

@@ -35,7 +35,7 @@ def test_sketch_in_the_workbook_shows_the_records_numbers(lab, browser):
     SHOTS.mkdir(parents=True, exist_ok=True)
     page = _open_and_run_all(browser, url, "letdown.ipynb")
     page.wait_for_selector(f"{PANEL} .steamcalc-sketch-view svg", timeout=120_000)
-    record = _wait_for_record(page, root / "workbooks" / "demo_site" / "records" / "LD-01_revA.json")
+    record = _wait_for_record(page, root / "workbooks" / "demo_site" / "records" / "LD-01_revB.json")
     shown = display_record(record)
     sketch = page.locator(f"{PANEL} .steamcalc-sketch-view").first
     sketch.scroll_into_view_if_needed()
@@ -61,7 +61,7 @@ def test_sketch_in_the_workbook_shows_the_records_numbers(lab, browser):
     assert "Traceback" not in body and "Error displaying widget" not in body
 
     # Item 9: the record's HTML, as issued by the run, opened in the same browser (no server, no scripts).
-    html_path = root / "workbooks" / "demo_site" / "records" / "LD-01_revA.html"
+    html_path = root / "workbooks" / "demo_site" / "records" / "LD-01_revB.html"
     report = browser.new_page(viewport={"width": 1100, "height": 1400})
     report.goto(html_path.as_uri())
     assert report.evaluate("document.scripts.length") == 0
@@ -92,42 +92,42 @@ def test_save_case_button_writes_a_new_file_and_never_overwrites(lab, browser):
                                arg=previous, timeout=30_000)
         return page.locator(status).first.inner_text()
 
-    # Raise the revision and change an input: the case is saved as a new file, FL-01_revB.toml.
+    # Raise the revision and change an input: the case is saved as a new file, FL-01_revC.toml.
     revision = page.locator(f"{PANEL} .steamcalc-revision input").first
-    revision.fill("B")
+    revision.fill("C")
     revision.press("Enter")
     box = page.locator(f"{PANEL} .steamcalc-input-condensate_flow input").first
     box.fill("3.6 t/h")
     box.press("Enter")
     page.wait_for_timeout(1500)
     first = save_case_and_wait("")
-    assert "case file saved" in first and "FL-01_revB.toml" in first and "new file" in first
+    assert "case file saved" in first and "FL-01_revC.toml" in first and "new file" in first
     cell = page.locator(f"{PANEL} .jp-Cell", has=page.locator(".steamcalc-save-case")).first
     cell.screenshot(path=str(SHOTS / "15-11-save-case-new-file.png"))
-    written = cases / "FL-01_revB.toml"
+    written = cases / "FL-01_revC.toml"
     saved_text = written.read_text(encoding="utf-8")
     assert tomllib.loads(saved_text)["inputs"]["condensate_flow"] == "3.6 t/h"
-    assert tomllib.loads(saved_text)["case"]["revision"] == "B"
+    assert tomllib.loads(saved_text)["case"]["revision"] == "C"
 
     # Other inputs under the same revision: refused, nothing overwritten, the next revision offered.
     box.fill("3.9 t/h")
     box.press("Enter")
     page.wait_for_timeout(1500)
     second = save_case_and_wait(first)
-    assert second.startswith("not saved") and "not overwritten" in second and "FL-01_revC.toml" in second
+    assert second.startswith("not saved") and "not overwritten" in second and "FL-01_revD.toml" in second
     assert written.read_text(encoding="utf-8") == saved_text
     assert (cases / "FL-01.toml").read_bytes() == original
     offer = page.locator(f"{PANEL} .steamcalc-save-case-next").first
-    assert offer.is_visible() and "revision C" in offer.inner_text()
+    assert offer.is_visible() and "revision D" in offer.inner_text()
     cell.screenshot(path=str(SHOTS / "15-11-save-case.png"))
 
-    # Taking the offer raises the Revision box to C and saves FL-01_revC.toml.
+    # Taking the offer raises the Revision box to D and saves FL-01_revD.toml.
     offer.click()
     page.wait_for_function(f"() => document.querySelector('{status}').innerText.includes('case file saved')",
                            timeout=30_000)
-    assert "FL-01_revC.toml" in page.locator(status).first.inner_text()
-    assert tomllib.loads((cases / "FL-01_revC.toml").read_text(encoding="utf-8"))["inputs"]["condensate_flow"] == "3.9 t/h"
-    assert page.locator(f"{PANEL} .steamcalc-revision input").first.input_value() == "C"
+    assert "FL-01_revD.toml" in page.locator(status).first.inner_text()
+    assert tomllib.loads((cases / "FL-01_revD.toml").read_text(encoding="utf-8"))["inputs"]["condensate_flow"] == "3.9 t/h"
+    assert page.locator(f"{PANEL} .steamcalc-revision input").first.input_value() == "D"
     cell.screenshot(path=str(SHOTS / "15-11-save-case-next-revision.png"))
     body = page.locator("body").inner_text()
     assert "Traceback" not in body and "Error displaying widget" not in body

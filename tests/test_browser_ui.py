@@ -58,7 +58,7 @@ def test_flash_refused_input_beside_its_box_stale_views_and_the_cascade_example(
     _fresh_records(root)
     page = _open_and_run_all(browser, url, "flash_recovery.ipynb")
     _wait_text(page, ".steamcalc-results", "Overall")
-    _wait_text(page, ".steamcalc-summary", "FL-01 rev A")
+    _wait_text(page, ".steamcalc-summary", "FL-01 rev B")
     page.wait_for_selector(f"{PANEL} .steamcalc-save", timeout=90_000)
 
     # 3: a refused input — its message beside its box, the box highlighted, every view marked stale.
@@ -147,12 +147,21 @@ def test_letdown_help_alternatives_bands_computing_and_save_feedback(lab, browse
     # 14: the bands button is disabled and says computing… while it runs.
     button = page.locator(f"{PANEL} .steamcalc-bands-button").first
     button.scroll_into_view_if_needed()
+    # Watched from before the click: on a fast machine the bands can finish before a poll would see
+    # "computing…" (a failure seen once); a mutation observer misses no state the page passed through.
+    page.evaluate(
+        """([buttonSel, noteSel]) => {
+             window.__steamcalcSeen = {button: false, note: false};
+             const look = () => {
+               const b = document.querySelector(buttonSel), n = document.querySelector(noteSel);
+               if (b && b.disabled && b.innerText.includes('computing')) window.__steamcalcSeen.button = true;
+               if (n && n.innerText.includes('computing…')) window.__steamcalcSeen.note = true;
+             };
+             new MutationObserver(look).observe(document.body,
+               {subtree: true, childList: true, attributes: true, characterData: true});
+           }""", [f"{PANEL} .steamcalc-bands-button", f"{PANEL} .steamcalc-bands"])
     button.click()
-    page.wait_for_function(
-        "sel => { const b = document.querySelector(sel); return b && b.disabled && b.innerText.includes('computing'); }",
-        arg=f"{PANEL} .steamcalc-bands-button", timeout=30_000)
-    # The note may reach the page a moment after the button: wait for it rather than race it (a busy CI machine).
-    _wait_text(page, ".steamcalc-bands", "computing…", timeout=30_000)
+    page.wait_for_function("() => window.__steamcalcSeen.button && window.__steamcalcSeen.note", timeout=180_000)
     page.screenshot(path=str(shots / "15-14-bands-computing.png"))
     _wait_text(page, ".steamcalc-bands", "coverage interval", timeout=180_000)
     page.wait_for_function("sel => { const b = document.querySelector(sel); return b && !b.disabled; }",
@@ -177,7 +186,7 @@ def test_letdown_help_alternatives_bands_computing_and_save_feedback(lab, browse
 
     # A new revision saves as new; its paths are links; the second press says unchanged, kept.
     revision = page.locator(f"{PANEL} .steamcalc-revision input").first
-    revision.fill("B")
+    revision.fill("C")
     revision.press("Enter")
     _type(page, "mass_flow", "5.0 t/h")
     _wait_text(page, ".steamcalc-results", "5,000")
@@ -188,8 +197,8 @@ def test_letdown_help_alternatives_bands_computing_and_save_feedback(lab, browse
     links = page.locator(f"{PANEL} .steamcalc-save-status a.steamcalc-file-link")
     assert links.count() == 3
     href = links.nth(1).evaluate("a => a.href")
-    assert href == f"{url}/lab/tree/workbooks/demo_site/records/LD-01_revB.html"
-    assert (_records(root) / "LD-01_revB.html").exists()
+    assert href == f"{url}/lab/tree/workbooks/demo_site/records/LD-01_revC.html"
+    assert (_records(root) / "LD-01_revC.html").exists()
     assert urllib.request.urlopen(href, timeout=30).status == 200
     written = status.inner_text()
     page.screenshot(path=str(shots / "15-14-save-new-with-links.png"))
@@ -202,20 +211,20 @@ def test_letdown_help_alternatives_bands_computing_and_save_feedback(lab, browse
 
 
 def _issue_review_records(root):
-    """LD-01 rev A and rev B (flow raised 4.5 → 5.0 t/h), LD-02 rev A, an edited copy and a non-record file."""
+    """LD-01 rev B and rev C (flow raised 4.5 → 5.0 t/h), LD-02 rev B, an edited copy and a non-record file."""
     from steamcalc.cli import main
 
     _fresh_records(root)
     cases = root / "workbooks" / "demo_site" / "cases"
     text = (cases / "LD-01.toml").read_text()
-    (cases / "LD-01B.toml").write_text(text.replace('revision = "A"', 'revision = "B"')
+    (cases / "LD-01C.toml").write_text(text.replace('revision = "B"', 'revision = "C"')
                                        .replace('mass_flow = "4.5 t/h"', 'mass_flow = "5.0 t/h"'))
     records = _records(root)
-    assert main(["run", str(cases / "LD-01.toml"), str(cases / "LD-01B.toml"), str(cases / "LD-02.toml"),
+    assert main(["run", str(cases / "LD-01.toml"), str(cases / "LD-01C.toml"), str(cases / "LD-02.toml"),
                  "--out", str(records)]) in (0, 1)
-    edited = json.loads((records / "LD-01_revA.json").read_text())
+    edited = json.loads((records / "LD-01_revB.json").read_text())
     edited["results"]["outlet_temperature"]["value"] += 1.0
-    (records / "LD-01_revA_edited.json").write_text(json.dumps(edited))
+    (records / "LD-01_revB_edited.json").write_text(json.dumps(edited))
     (records / "notes.json").write_text('{"note": "meeting notes, not a record"}')
 
 
@@ -234,24 +243,24 @@ def test_review_compare_non_record_file_and_failed_verdict(lab, browser):
     _wait_text(page, ".steamcalc-review-table", "VERIFIED", timeout=180_000)
     compare = page.locator(f"{PANEL} .steamcalc-compare-with select").first
     page.wait_for_selector(f"{PANEL} .steamcalc-compare-with select", timeout=60_000)
-    # rev A: nothing earlier, and never itself.
+    # rev B: nothing earlier, and never itself.
     _wait_text(page, ".steamcalc-comparison", "No earlier revision of LD-01")
     assert "No differences" not in _text(page, ".steamcalc-comparison")
 
-    # 1: pick rev B — the list is rebuilt: the earlier rev A files only; the comparison runs A → B.
-    _pick(page, "LD-01_revB.json")
-    _wait_text(page, ".steamcalc-review-table", "LD-01 rev B")
-    _wait_text(page, ".steamcalc-comparison", "rev A → rev B")
+    # 1: pick rev C — the list is rebuilt: the earlier rev B files only; the comparison runs B → C.
+    _pick(page, "LD-01_revC.json")
+    _wait_text(page, ".steamcalc-review-table", "LD-01 rev C")
+    _wait_text(page, ".steamcalc-comparison", "rev B → rev C")
     options = [o.replace("\xa0", " ") for o in compare.locator("option").all_inner_texts()]  # a Dropdown writes nbsp
-    assert [o.split("(")[0].strip() for o in options if o.startswith("LD-01")] == ["LD-01 rev A", "LD-01 rev A"]
-    assert not any("rev B" in o or "LD-02" in o for o in options), options
-    assert "LD-01_revA.json" in compare.evaluate("s => s.options[s.selectedIndex].text").replace("\xa0", " ")
+    assert [o.split("(")[0].strip() for o in options if o.startswith("LD-01")] == ["LD-01 rev B", "LD-01 rev B"]
+    assert not any("rev C" in o or "LD-02" in o for o in options), options
+    assert "LD-01_revB.json" in compare.evaluate("s => s.options[s.selectedIndex].text").replace("\xa0", " ")
     row = page.locator(f"{PANEL} .steamcalc-comparison tr", has_text="Steam flow").first
     cells = [c.split("\n")[0].strip() for c in row.locator("td").all_inner_texts()]
     assert cells[1:6] == ["Steam flow", "4,500", "5,000", "kg/h", "+500"], cells   # an increase shows as positive
     compare.evaluate("e => e.scrollIntoView({block: 'start'})")
     page.screenshot(path=str(shots / "15-1-compare.png"))
-    _pick(page, "LD-02_revA.json")
+    _pick(page, "LD-02_revB.json")
     _wait_text(page, ".steamcalc-comparison", "No earlier revision of LD-02")
     assert not any("LD-01" in o for o in compare.locator("option").all_inner_texts())
 
@@ -260,11 +269,11 @@ def test_review_compare_non_record_file_and_failed_verdict(lab, browser):
     _wait_text(page, ".steamcalc-pick-status", "cannot be reviewed")
     said = _text(page, ".steamcalc-pick-status")
     assert "notes.json cannot be reviewed" in said and "not a steamcalc record" in said
-    assert "still showing LD-02_revA.json" in said
+    assert "still showing LD-02_revB.json" in said
     page.screenshot(path=str(shots / "15-14-non-record-file.png"))
 
     # 14: an edited record — its verdict FAILED is styled as a failure.
-    _pick(page, "LD-01_revA_edited.json")
+    _pick(page, "LD-01_revB_edited.json")
     _wait_text(page, ".steamcalc-review-table", "verdict: FAILED")
     verdict = page.locator(f"{PANEL} .steamcalc-verdict-failed").first
     assert "FAILED" in verdict.inner_text()

@@ -36,12 +36,12 @@ def _inputs_of(path):
 def test_round_trip_from_the_case_file(site, case_id):
     case, (inputs, given) = _inputs_of(site / "cases" / f"{case_id}.toml")
     calc = get_calculation(case.kind)
-    saved = save_case(dataclasses.replace(case, revision="B"), flatten_inputs(calc.Inputs, case.inputs), calc.Inputs)
-    assert saved.status == "written" and saved.path.name == f"{case_id}_revB.toml"
+    saved = save_case(dataclasses.replace(case, revision="C"), flatten_inputs(calc.Inputs, case.inputs), calc.Inputs)
+    assert saved.status == "written" and saved.path.name == f"{case_id}_revC.toml"
     again, (inputs_back, given_back) = _inputs_of(saved.path)
     assert inputs_back == inputs and given_back == given
     assert (again.revision, again.title, again.prepared_by, again.notes, again.uncertainty) == \
-        ("B", case.title, case.prepared_by, case.notes, case.uncertainty)
+        ("C", case.title, case.prepared_by, case.notes, case.uncertainty)
     assert again.site_path.resolve() == case.site_path.resolve()
 
 
@@ -51,7 +51,7 @@ def test_round_trip_from_the_workbook_form(site, case_id):
     case, (inputs, given) = _inputs_of(site / "cases" / f"{case_id}.toml")
     calc = get_calculation(case.kind)
     form = CaseForm(calc.Inputs, flatten_inputs(calc.Inputs, case.inputs))
-    saved = save_case(dataclasses.replace(case, revision="C"), form.values(), calc.Inputs)
+    saved = save_case(dataclasses.replace(case, revision="D"), form.values(), calc.Inputs)
     _, (inputs_back, given_back) = _inputs_of(saved.path)
     assert inputs_back == inputs and given_back == given
 
@@ -60,7 +60,7 @@ def test_the_given_texts_are_kept_as_typed(site):
     case = load_case(site / "cases" / "LD-01.toml")
     calc = get_calculation(case.kind)
     values = {**flatten_inputs(calc.Inputs, case.inputs), "inlet_pressure": "16.2 bar(g)", "mass_flow": "4.8 t/h"}
-    saved = save_case(dataclasses.replace(case, revision="B"), values, calc.Inputs)
+    saved = save_case(dataclasses.replace(case, revision="C"), values, calc.Inputs)
     table = tomllib.loads(saved.path.read_text(encoding="utf-8"))
     assert table["inputs"]["inlet_pressure"] == "16.2 bar(g)" and table["inputs"]["mass_flow"] == "4.8 t/h"
     assert table["inputs"]["outlet_pressure"] == "header:LP"
@@ -86,30 +86,30 @@ def test_changed_inputs_under_the_same_revision_are_refused_with_the_next_revisi
     with pytest.raises(CaseFileError) as refused:
         save_case(case, values, calc.Inputs)
     text = str(refused.value)
-    assert "LD-01.toml" in text and "not overwritten" in text and "LD-01_revB.toml" in text
-    assert path.read_bytes() == original and not (site / "cases" / "LD-01_revA.toml").exists()
-    # The second attempt at revision B writes B; a third with other inputs is refused, naming C.
-    assert save_case(dataclasses.replace(case, revision="B"), values, calc.Inputs).status == "written"
-    first = (site / "cases" / "LD-01_revB.toml").read_bytes()
-    with pytest.raises(CaseFileError, match="LD-01_revC.toml"):
-        save_case(dataclasses.replace(case, revision="B"), {**values, "mass_flow": "5 t/h"}, calc.Inputs)
-    assert (site / "cases" / "LD-01_revB.toml").read_bytes() == first
-    assert save_case(dataclasses.replace(case, revision="B"), values, calc.Inputs).status == "unchanged"
+    assert "LD-01.toml" in text and "not overwritten" in text and "LD-01_revC.toml" in text
+    assert path.read_bytes() == original and not (site / "cases" / "LD-01_revB.toml").exists()
+    # The second attempt at revision C writes C; a third with other inputs is refused, naming D.
+    assert save_case(dataclasses.replace(case, revision="C"), values, calc.Inputs).status == "written"
+    first = (site / "cases" / "LD-01_revC.toml").read_bytes()
+    with pytest.raises(CaseFileError, match="LD-01_revD.toml"):
+        save_case(dataclasses.replace(case, revision="C"), {**values, "mass_flow": "5 t/h"}, calc.Inputs)
+    assert (site / "cases" / "LD-01_revC.toml").read_bytes() == first
+    assert save_case(dataclasses.replace(case, revision="C"), values, calc.Inputs).status == "unchanged"
 
 
 def test_a_taken_file_name_is_never_replaced(site):
-    taken = site / "cases" / "HX-01_revB.toml"
+    taken = site / "cases" / "HX-01_revC.toml"
     taken.write_text("# someone's notes, not a case file\n", encoding="utf-8")
     case = load_case(site / "cases" / "HX-01.toml")
     calc = get_calculation(case.kind)
-    with pytest.raises(CaseFileError, match="already exists.*HX-01_revC.toml"):
-        save_case(dataclasses.replace(case, revision="B"), flatten_inputs(calc.Inputs, case.inputs), calc.Inputs)
+    with pytest.raises(CaseFileError, match="already exists.*HX-01_revD.toml"):
+        save_case(dataclasses.replace(case, revision="C"), flatten_inputs(calc.Inputs, case.inputs), calc.Inputs)
     assert taken.read_text(encoding="utf-8") == "# someone's notes, not a case file\n"
-    assert free_revision(site / "cases", "HX-01", "A") == "C"
+    assert free_revision(site / "cases", "HX-01", "B") == "D"
 
 
 def test_two_savers_at_once_one_writes_the_others_are_refused(site):
-    case = dataclasses.replace(load_case(site / "cases" / "LD-02.toml"), revision="B")
+    case = dataclasses.replace(load_case(site / "cases" / "LD-02.toml"), revision="C")
     calc = get_calculation(case.kind)
     flat = flatten_inputs(calc.Inputs, case.inputs)
     outcomes = []
@@ -127,7 +127,7 @@ def test_two_savers_at_once_one_writes_the_others_are_refused(site):
         t.join()
     assert sorted(outcomes) == ["refused"] * 7 + ["written"]
     assert not [p for p in (site / "cases").iterdir() if p.name.endswith(".partial")]
-    load_case(site / "cases" / "LD-02_revB.toml")                      # whole and readable
+    load_case(site / "cases" / "LD-02_revC.toml")                      # whole and readable
 
 
 def test_write_new_file_refuses_an_existing_name(tmp_path):
@@ -142,7 +142,7 @@ def test_hostile_texts_round_trip(site):
     case = load_case(site / "cases" / "FL-01.toml")
     calc = get_calculation(case.kind)
     odd = 'Flash "A" \\ tank\tone\u00e9\u2013\u202e end'
-    case = dataclasses.replace(case, revision="B", title=odd, prepared_by="O'Neil \"the checker\"",
+    case = dataclasses.replace(case, revision="C", title=odd, prepared_by="O'Neil \"the checker\"",
                                notes=("line one\nline two", "\x01 control", "[not a table]"))
     saved = save_case(case, flatten_inputs(calc.Inputs, case.inputs), calc.Inputs)
     again = load_case(saved.path)
@@ -150,11 +150,11 @@ def test_hostile_texts_round_trip(site):
 
 
 def test_text_that_cannot_be_encoded_is_refused_and_leaves_no_partial_file(site):
-    # A lone surrogate (a browser can send one) raised UnicodeEncodeError and left '.LD-01_revB.toml.*.partial'
+    # A lone surrogate (a browser can send one) raised UnicodeEncodeError and left '.LD-01_revC.toml.*.partial'
     case = load_case(site / "cases" / "LD-01.toml")
     calc = get_calculation(case.kind)
     with pytest.raises(CaseFileError) as info:
-        save_case(dataclasses.replace(case, revision="B", title="half \ud800 pair"),
+        save_case(dataclasses.replace(case, revision="C", title="half \ud800 pair"),
                   flatten_inputs(calc.Inputs, case.inputs), calc.Inputs)
     assert info.value.fix
     assert sorted(p.name for p in (site / "cases").iterdir()) == sorted(p.name for p in (DEMO / "cases").iterdir())
@@ -195,7 +195,7 @@ def test_round_trip_of_a_list_of_stage_pressures(site):
     case, (inputs, given) = _inputs_of(site / "cases" / "FL-09.toml")
     calc = get_calculation(case.kind)
     form = CaseForm(calc.Inputs, flatten_inputs(calc.Inputs, case.inputs))
-    saved = save_case(dataclasses.replace(case, revision="B"), form.values(), calc.Inputs)
+    saved = save_case(dataclasses.replace(case, revision="C"), form.values(), calc.Inputs)
     assert tomllib.loads(saved.path.read_text(encoding="utf-8"))["inputs"]["stages"] == ["8 bar(g)", "header:LP"]
     _, (inputs_back, given_back) = _inputs_of(saved.path)
     assert inputs_back == inputs and given_back == given
@@ -209,12 +209,12 @@ def test_workbook_save_case_button_headless(site):
     assert saver.save().startswith("unchanged, kept") and "FL-01.toml" in saver.save()
     wb.form.boxes["condensate_flow"].value = "3.6 t/h"
     text = saver.save()
-    assert text.startswith("not saved") and "Raise the Revision box above to B" in text
+    assert text.startswith("not saved") and "Raise the Revision box above to C" in text
     saver._on_click()
-    assert saver.next_button.description == "Save as revision B" and saver.next_button.layout.display is None
+    assert saver.next_button.description == "Save as revision C" and saver.next_button.layout.display is None
     saver._save_as_next()
-    assert wb._revision.value == "B" and "case file saved" in saver.status.value
-    assert tomllib.loads((site / "cases" / "FL-01_revB.toml").read_text(encoding="utf-8"))["case"]["revision"] == "B"
+    assert wb._revision.value == "C" and "case file saved" in saver.status.value
+    assert tomllib.loads((site / "cases" / "FL-01_revC.toml").read_text(encoding="utf-8"))["case"]["revision"] == "C"
     assert saver.next_button.layout.display == "none"
     wb.form.boxes["condensate_flow"].value = "lots"
     assert saver.save().startswith("not saved: the inputs are not accepted")

@@ -190,7 +190,7 @@ def test_console_script_on_the_demo_case(tmp_path, demo_site_dir):
     command = [exe] if exe else [sys.executable, "-m", "steamcalc"]
     done = subprocess.run(command + ["run", str(site / "cases" / "LD-01.toml")], capture_output=True, text=True)
     assert done.returncode == 0, done.stderr
-    record = site / "records" / "LD-01_revA.json"
-    assert record.exists() and (site / "records" / "LD-01_revA.html").exists()
+    record = site / "records" / "LD-01_revB.json"
+    assert record.exists() and (site / "records" / "LD-01_revB.html").exists()
     done = subprocess.run(command + ["verify", str(record)], capture_output=True, text=True)
     assert done.returncode == 0, done.stdout + done.stderr

@@ -99,7 +99,7 @@ def _run_cli(*args):
 def test_run_notebook_prints_no_kernel_warnings(demo_copy):
     code, out, err = _run_cli("run", demo_copy / "cases" / "LD-02.toml", "--notebook")
     assert code == 0, err
-    assert (demo_copy / "records" / "LD-02_revA.ipynb").exists()
+    assert (demo_copy / "records" / "LD-02_revB.ipynb").exists()
     lines = (out + err).splitlines()
     assert not [line for line in lines if "kernel" in line.lower()], err
     assert not err.strip(), err   # nothing at all on stderr: no warnings of any library
@@ -111,6 +111,6 @@ def test_run_notebook_prints_no_kernel_warnings(demo_copy):
 def test_run_pdf_and_notebook_prints_no_kernel_warnings(demo_copy):
     code, out, err = _run_cli("run", demo_copy / "cases" / "FL-01.toml", "--pdf", "--notebook")
     assert code == 0, err
-    assert (demo_copy / "records" / "FL-01_revA.pdf").read_bytes().startswith(b"%PDF")
+    assert (demo_copy / "records" / "FL-01_revB.pdf").read_bytes().startswith(b"%PDF")
     assert not [line for line in (out + err).splitlines() if "kernel" in line.lower()], err
     assert not err.strip(), err

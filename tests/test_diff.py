@@ -15,7 +15,7 @@ from steamcalc.review.diff import MARKERS, diff_records, diff_summary
 
 @pytest.fixture(scope="module")
 def revisions(tmp_path_factory):
-    """LD-01 rev A as in the demo (200 samples) and rev B: more flow, a wider inlet temperature
+    """LD-01 rev B as in the demo (200 samples) and rev C: more flow, a wider inlet temperature
     tolerance, 300 samples."""
     from pathlib import Path
 
@@ -26,10 +26,10 @@ def revisions(tmp_path_factory):
     text = case.read_text().replace("samples = 2000", "samples = 200")
     case.write_text(text)
     assert main(["run", str(case), "--quiet"]) == 0
-    case.write_text(text.replace('revision = "A"', 'revision = "B"').replace('mass_flow = "4.5 t/h"', 'mass_flow = "5 t/h"')
+    case.write_text(text.replace('revision = "B"', 'revision = "C"').replace('mass_flow = "4.5 t/h"', 'mass_flow = "5 t/h"')
                     .replace('inlet_temperature = "5 K"', 'inlet_temperature = "8 K"').replace("samples = 200", "samples = 300"))
     assert main(["run", str(case), "--quiet"]) == 0
-    return site / "records" / "LD-01_revA.json", site / "records" / "LD-01_revB.json"
+    return site / "records" / "LD-01_revB.json", site / "records" / "LD-01_revC.json"
 
 
 def _rows(revisions, unchanged=True):

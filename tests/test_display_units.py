@@ -95,7 +95,7 @@ def records(tmp_path_factory):
 
 
 def test_display_never_changes_the_record(records):
-    record = load_record(records["US"] / "LD-01_revA.json")
+    record = load_record(records["US"] / "LD-01_revB.json")
     before = copy.deepcopy(record)
     display_record(record)
     assert record == before
@@ -103,27 +103,27 @@ def test_display_never_changes_the_record(records):
 
 
 def test_fractions_the_trade_states_in_percent(records):
-    flash = display_record(load_record(records["SI"] / "FL-01_revA.json"))
+    flash = display_record(load_record(records["SI"] / "FL-01_revB.json"))
     assert (flash["results"]["flash_fraction"]["shown"], flash["results"]["flash_fraction"]["shown_unit"]) == \
         ("7.4", "%")
-    heater = display_record(load_record(records["SI"] / "HX-01_revA.json"))
+    heater = display_record(load_record(records["SI"] / "HX-01_revB.json"))
     assert heater["results"]["area_margin"]["shown_unit"] == "%"
     assert heater["results"]["stall_load_fraction"]["shown"] == "58.4"
-    letdown = display_record(load_record(records["SI"] / "LD-01_revA.json"))
+    letdown = display_record(load_record(records["SI"] / "LD-01_revB.json"))
     assert letdown["results"]["valve_travel_normal"]["shown"] == "74.6" and letdown["inputs"]["overpressure"]["shown"] == "10"
     assert letdown["results"]["choked"]["shown"] == "yes"
     assert letdown["results"]["annual_recoverable_value"]["shown"] == "82,800"
     # The JSON keeps the fraction: 0.0738 of the condensate, not 7.4.
-    assert load_record(records["SI"] / "FL-01_revA.json")["results"]["flash_fraction"]["value"] < 1
+    assert load_record(records["SI"] / "FL-01_revB.json")["results"]["flash_fraction"]["value"] < 1
 
 
 def test_co2_is_written_as_the_trade_writes_it(records):
-    page = (records["SI"] / "FL-01_revA.html").read_text()
+    page = (records["SI"] / "FL-01_revB.html").read_text()
     assert "CO₂ a year" in page and "CO2" not in page
 
 
 def test_us_display_covers_kv_nps_bands_and_steps(records):
-    page = (records["US"] / "LD-01_revA.md").read_text()
+    page = (records["US"] / "LD-01_revB.md").read_text()
     assert "| Required Cv (sized on the maximum flow) |" in page          # Kv → Cv in the results
     assert "| Inlet line: smallest size under 148 ft/s | NPS 3 |" in page  # DN → NPS and m/s → ft/s
     assert "| Outlet temperature | 299.8 | 297.3 | 299.8 | 302.2 | °F |" in page   # the band, in °F
@@ -132,7 +132,7 @@ def test_us_display_covers_kv_nps_bands_and_steps(records):
     assert "kPa(a) × 7.171 kg/m³)) (in the units shown: the equation's constant is for them)`" in page
     assert "°R" not in page   # a superheat or a temperature difference is never written in rankine
     assert "Inlet temperature ± 9.0 °F" in page                          # a tolerance (a difference)
-    shown = display_record(load_record(records["US"] / "LD-01_revA.json"))
+    shown = display_record(load_record(records["US"] / "LD-01_revB.json"))
     band = shown["uncertainty"]["bands"]["valve_kv"]
     assert band["label"].startswith("Required Cv") and band["shown_unit"] == ""
 
@@ -145,7 +145,7 @@ def test_us_reports_still_verify_and_match_their_json(records, capsys):
 
 
 def test_verify_table_has_a_unit_column_and_words(records):
-    record = load_record(records["SI"] / "HX-01_revA.json")
+    record = load_record(records["SI"] / "HX-01_revB.json")
     table = verify_table(verify_record(record).comparisons, record)
     header, *rows = table.splitlines()
     assert header.split() == ["result", "recorded", "recomputed", "unit", "abs.", "diff", "rel.", "diff",
@@ -159,7 +159,7 @@ def test_verify_table_has_a_unit_column_and_words(records):
 def test_records_as_issued_are_unchanged_by_display(records):
     # Only rendering changes: the JSON holds record units; a fraction the trade states in % stays a plain fraction,
     # and every margin is kept in percent (one unit for margins, as the relief capacity margin is).
-    record = json.loads((records["SI"] / "HX-01_revA.json").read_text())
+    record = json.loads((records["SI"] / "HX-01_revB.json").read_text())
     assert record["results"]["service_u"]["unit"] == "kW/(m**2*K)"
     assert record["results"]["stall_load_fraction"]["unit"] == "" and record["results"]["stall_load_fraction"]["value"] < 1
     margins = {key: entry["unit"] for key, entry in record["results"].items() if key.endswith("_margin")}

@@ -209,7 +209,7 @@ def test_review_workbook_offers_the_fast_engine_cross_check(tmp_path, demo_site_
     from steamcalc.ui.review import ReviewBook
     site = tmp_path / "site"
     shutil.copytree(demo_site_dir, site, ignore=shutil.ignore_patterns("records"))
-    book = ReviewBook(site / "records" / "LD-02_revA.json", case_file=site / "cases" / "LD-02.toml")
+    book = ReviewBook(site / "records" / "LD-02_revB.json", case_file=site / "cases" / "LD-02.toml")
     text = book.cross_check()
     assert "largest relative difference" in text and text.endswith("cross-check: AGREES")
     book._cross_button.click()
@@ -224,6 +224,6 @@ def test_one_case_run_and_fast_verify_import_only_what_they_use(tmp_path, demo_s
     run = _modules_after("from steamcalc.cli import main\n"
                          f"assert main(['run', {str(case)!r}, '--out', {str(tmp_path)!r}]) in (0, 1)")
     assert "CoolProp" not in run and "seuif97" in run and "iapws" in run
-    record = str(tmp_path / "LD-02_revA.json")
+    record = str(tmp_path / "LD-02_revB.json")
     fast = _modules_after(f"from steamcalc.cli import main\nassert main(['verify', '--engine', 'fast', {record!r}]) == 0")
     assert "seuif97" in fast and "CoolProp" not in fast

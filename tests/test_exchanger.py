@@ -155,7 +155,7 @@ def test_demo_hx01_runs_and_verifies(tmp_path, demo_site_dir):
     site = tmp_path / "site"
     shutil.copytree(demo_site_dir, site, ignore=shutil.ignore_patterns("records"))
     assert main(["run", str(site / "cases" / "HX-01.toml")]) == 0
-    assert main(["verify", str(site / "records" / "HX-01_revA.json")]) == 0
+    assert main(["verify", str(site / "records" / "HX-01_revB.json")]) == 0
 
 
 # --- Stall on the clean and the fouled U, with the trap's differential and static head -------------------------

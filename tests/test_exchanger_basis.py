@@ -548,9 +548,9 @@ def test_demo_with_a_superheated_header_runs_and_verifies(tmp_path, demo_site_di
     text = case.read_text()
     assert 'supply_superheat = "38 K"' in text   # the demo states its MP header's superheat
     assert main(["run", str(case), "--out", str(tmp_path / "out"), "--quiet"]) == 0
-    record = json.loads((tmp_path / "out" / "HX-01_revA.json").read_text())
+    record = json.loads((tmp_path / "out" / "HX-01_revB.json").read_text())
     assert record["results"]["supply_superheat"]["value"] == pytest.approx(38.0)
     assert "desuperheating_area" in record["results"]
-    assert main(["verify", str(tmp_path / "out" / "HX-01_revA.json")]) == 0
+    assert main(["verify", str(tmp_path / "out" / "HX-01_revB.json")]) == 0
     detail = next(c for c in record["checks"] if c["name"].startswith("Control valve supply pressure"))["detail"]
     assert "above" in text_of(detail)

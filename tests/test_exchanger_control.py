@@ -247,7 +247,7 @@ def test_demo_hx01_carries_the_keys_and_verifies(tmp_path, demo_site_dir):
     site = tmp_path / "site"
     shutil.copytree(demo_site_dir, site, ignore=shutil.ignore_patterns("records"))
     assert main(["run", str(site / "cases" / "HX-01.toml"), "--quiet"]) == 0
-    record_path = site / "records" / "HX-01_revA.json"
+    record_path = site / "records" / "HX-01_revB.json"
     record = json.loads(record_path.read_text())
     for key in ("control_valve_kv", "control_valve_kv_10", "control_valve_travel", "control_valve_travel_10",
                 "required_rangeability", "vacuum_load_fraction", "condensate_to_remove",

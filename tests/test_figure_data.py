@@ -15,7 +15,7 @@ def issued(tmp_path, demo_site_dir):
     site = tmp_path / "site"
     shutil.copytree(demo_site_dir, site, ignore=shutil.ignore_patterns("records"))
     assert main(["run", str(site / "cases" / "LD-01.toml"), "--quiet"]) == 0
-    return site / "records" / "LD-01_revA.json"
+    return site / "records" / "LD-01_revB.json"
 
 
 @pytest.mark.parametrize("edit", [

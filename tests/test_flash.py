@@ -177,7 +177,7 @@ def test_demo_flash_cases_run_and_verify(tmp_path, demo_site_dir):
     shutil.copytree(demo_site_dir, site, ignore=shutil.ignore_patterns("records"))
     for case in ("FL-01", "FL-02"):
         assert main(["run", str(site / "cases" / f"{case}.toml")]) == 0
-        assert main(["verify", str(site / "records" / f"{case}_revA.json")]) == 0
+        assert main(["verify", str(site / "records" / f"{case}_revB.json")]) == 0
 
 
 def test_demand_check_needs_no_site_data():

@@ -319,12 +319,12 @@ CASE_PAYLOADS = {
     "number beyond a double": ('mass_flow = "2.0 t/h"', 'mass_flow = "1e400 t/h"', "mass_flow"),
     "infinite dryness": ('inlet_temperature = "230 degC"', "inlet_dryness = inf", "inlet_dryness"),
     "table for a string": ('mass_flow = "2.0 t/h"', "mass_flow = {value = 2}", "mass_flow"),
-    "revision true": ('revision = "A"', "revision = true", "revision"),
+    "revision true": ('revision = "B"', "revision = true", "revision"),
     "site a number": ('site = "../site.toml"', "site = 123", "site"),
     "title a table": ('title = "HP to MP let-down, no desuperheating"', "title = {a = 1}", "title"),
-    # a trailing newline passed the file-name pattern ('$' matches before it): files named 'LD-02\n_revA.json'
+    # a trailing newline passed the file-name pattern ('$' matches before it): files named 'LD-02\n_revB.json'
     "id with a trailing newline": ('id = "LD-02"', 'id = "LD-02\\n"', "id"),
-    "revision with a trailing newline": ('revision = "A"', 'revision = "A\\n"', "revision"),
+    "revision with a trailing newline": ('revision = "B"', 'revision = "B\\n"', "revision"),
 }
 
 
@@ -344,7 +344,7 @@ def test_case_payloads_refused_by_field(name, site_dir, tmp_path, capsys):
 def test_verify_refuses_an_oversized_sample_count_at_once(site_dir, tmp_path, capsys):
     out = tmp_path / "out"
     assert _run("run", site_dir / "cases" / "LD-01.toml", "--out", out) == 0
-    path = out / "LD-01_revA.json"
+    path = out / "LD-01_revB.json"
     record = json.loads(path.read_text())
     assert "uncertainty" in record
     record["uncertainty"]["samples"] = 10_000_000
@@ -361,10 +361,10 @@ PAYLOADS = ['=HYPERLINK("http://example.invalid","x")', "+cmd|' /C calc'!A0", "-
 
 def _payload_case(site_dir, revision, title, prepared_by):
     source = (site_dir / "cases" / "LD-02.toml").read_text()
-    text = source.replace('id = "LD-02"', 'id = "INJ"').replace('revision = "A"', f'revision = "{revision}"')
+    text = source.replace('id = "LD-02"', 'id = "INJ"').replace('revision = "B"', f'revision = "{revision}"')
     text = re.sub(r"(?m)^title = .*$", lambda _: f"title = {toml_string(title)}", text)
     text = re.sub(r"(?m)^prepared_by = .*$", lambda _: f"prepared_by = {toml_string(prepared_by)}", text)
-    notes = PAYLOADS if revision == "A" else [f"{p} (rev B)" for p in PAYLOADS]
+    notes = PAYLOADS if revision == "B" else [f"{p} (rev C)" for p in PAYLOADS]
     text += "\n[assumptions]\nnotes = [" + ", ".join(toml_string(n) for n in notes) + "]\n"
     path = site_dir / "cases" / f"INJ-{revision}.toml"
     path.write_text(text)
@@ -373,10 +373,10 @@ def _payload_case(site_dir, revision, title, prepared_by):
 
 def test_injection_payloads_against_every_output(site_dir, tmp_path, capsys):
     out = tmp_path / "out"
-    cases = [_payload_case(site_dir, "A", PAYLOADS[5], PAYLOADS[8]), _payload_case(site_dir, "B", PAYLOADS[6], PAYLOADS[0])]
+    cases = [_payload_case(site_dir, "B", PAYLOADS[5], PAYLOADS[8]), _payload_case(site_dir, "C", PAYLOADS[6], PAYLOADS[0])]
     assert _run("run", *cases, "--out", out, "--quiet") == 0
     run_output = capsys.readouterr()
-    for stem in (out / "INJ_revA", out / "INJ_revB"):
+    for stem in (out / "INJ_revB", out / "INJ_revC"):
         page = stem.with_suffix(".html").read_text()
         assert "<script>" not in page and "href='javascript" not in page and 'href="javascript' not in page
         md = stem.with_suffix(".md").read_text()
@@ -384,17 +384,17 @@ def test_injection_payloads_against_every_output(site_dir, tmp_path, capsys):
         assert not re.search(r"(?<!\\)<script", md) and not re.search(r"(?<!\\)\]\(javascript:", md)
         assert "![img](" not in md and "\u001b" not in md and "\n# heading" not in md and "| fake | row |" not in md
     # Terminal output of run, verify and diff: no control characters from user text.
-    assert _run("verify", out / "INJ_revA.json", out / "INJ_revB.json") == 0
-    assert _run("diff", out / "INJ_revA.json", out / "INJ_revB.json") == 0
+    assert _run("verify", out / "INJ_revB.json", out / "INJ_revC.json") == 0
+    assert _run("diff", out / "INJ_revB.json", out / "INJ_revC.json") == 0
     terminal = capsys.readouterr()
     assert "\u001b[32m" in "".join(PAYLOADS) and "[32mVERIFIED" in terminal.out  # the payload reached it, cleaned
     for text in (run_output.out, run_output.err, terminal.out, terminal.err):
         assert "\u001b" not in text
     # The indexes, with every payload as a title and a checker's name.
-    record = load_record(out / "INJ_revA.json")
+    record = load_record(out / "INJ_revB.json")
     for n, payload in enumerate(PAYLOADS):
         copy = dict(record, id=f"INJ-{n:02d}", title=payload, checked_by=payload)
-        (out / f"INJ-{n:02d}_revA.json").write_text(json.dumps(copy))
+        (out / f"INJ-{n:02d}_revB.json").write_text(json.dumps(copy))
     html_index, csv_index = write_index(out)
     import csv
     rows = list(csv.reader(csv_index.read_text().splitlines()[1:]))
@@ -415,10 +415,10 @@ def test_a_record_edited_to_a_non_finite_or_oversized_number_is_refused_by_name(
     # steamcalc never writes such a number, so the record is refused when read
     out = tmp_path / "out"
     assert _run("run", site_dir / "cases" / "LD-02.toml", "--out", out) == 0
-    issued = out / "LD-02_revA.json"
+    issued = out / "LD-02_revB.json"
     text = issued.read_text()
     value = re.search(r'"outlet_temperature": \{\s*"value": ([-0-9.e+]+)', text)
-    crafted = out / "LD-02_revB.json"
+    crafted = out / "LD-02_revC.json"
     crafted.write_text(text[:value.start(1)] + edit + text[value.end(1):])
     capsys.readouterr()
     args = {"verify": [crafted], "register": [out], "diff": [issued, crafted]}[command]
@@ -432,7 +432,7 @@ def test_a_record_edited_to_a_non_finite_or_oversized_number_is_refused_by_name(
 def test_a_crafted_record_gives_no_script_link_in_the_index(site_dir, tmp_path):
     out = tmp_path / "out"
     assert _run("run", site_dir / "cases" / "LD-02.toml", "--out", out) == 0
-    record = load_record(out / "LD-02_revA.json")
+    record = load_record(out / "LD-02_revB.json")
     crafted = dict(record, id="javascript:alert(1)//")
     (out / "crafted.json").write_text(json.dumps(crafted))
     (out / "javascript:alert(1).json").write_text(json.dumps(record))

@@ -139,7 +139,7 @@ GIVEN_EDITS = [
 
 @pytest.mark.parametrize("what, edit, words", GIVEN_EDITS, ids=[g[0] for g in GIVEN_EDITS])
 def test_an_edited_text_as_given_is_a_difference_naming_the_input(site, capsys, what, edit, words):
-    path = site / "records" / "LD-01_revA.json"
+    path = site / "records" / "LD-01_revB.json"
     record = _forge(path, edit)
     changes = given_changes(record)
     assert len(changes) == 1 and all(w in changes[0] for w in words), changes
@@ -155,7 +155,7 @@ def test_a_cascades_list_and_a_flag_are_read_again(site, capsys):
         'flash_pressure = "0.1 bar(g)"', 'stages = ["header:MP", "2.5 bar(g)", "0.1 bar(g)"]'))
     assert main(["run", str(case)]) in (0, 1)
     capsys.readouterr()
-    record = load_record(site / "records" / "FL-09_revA.json")
+    record = load_record(site / "records" / "FL-09_revB.json")
     assert record["inputs"]["stages"]["given"] == "header:MP, 2.5 bar(g), 0.1 bar(g)"
     assert given_changes(record) == []
     record["inputs"]["stages"]["given"] = "header:MP, 2.5 bar(g), 0.2 bar(g)"
@@ -180,7 +180,7 @@ UNCERTAINTY_EDITS = [
 
 @pytest.mark.parametrize("what, edit, key", UNCERTAINTY_EDITS, ids=[u[0] for u in UNCERTAINTY_EDITS])
 def test_what_the_uncertainty_section_states_is_recomputed(site, what, edit, key):
-    path = site / "records" / "LD-01_revA.json"
+    path = site / "records" / "LD-01_revB.json"
     record = _forge(path, lambda r: edit(r["uncertainty"]))
     outcome = verify_record(record)
     assert not outcome.ok
@@ -188,14 +188,14 @@ def test_what_the_uncertainty_section_states_is_recomputed(site, what, edit, key
 
 
 def test_verify_says_which_texts_are_the_engineers_words(site, capsys):
-    code, text = _run(["verify", site / "records" / "LD-02_revA.json"], capsys)
+    code, text = _run(["verify", site / "records" / "LD-02_revB.json"], capsys)
     assert code == 0 and "the engineer's own words: title, preparer, site name, engineer's notes" in text
 
 
 # -- item 9: an issue in progress ----------------------------------------------------------------------------
 
 def test_a_signed_json_beside_its_older_report_is_an_issue_in_progress(site, keys):
-    path = site / "records" / "LD-02_revA.json"
+    path = site / "records" / "LD-02_revB.json"
     stopped = _cli(["sign", path, "--key", keys / "c-checker.key"], STEAMCALC_TEST_KILL_AT="moved:0")
     assert stopped.returncode < 0   # killed after the JSON moved, before its reports did
     assert load_record(path)["signatures"] and "Signed as checked" not in path.with_suffix(".html").read_text()
@@ -208,28 +208,28 @@ def test_a_signed_json_beside_its_older_report_is_an_issue_in_progress(site, key
 
 
 def test_a_planted_staging_folder_does_not_excuse_an_edited_report(site):
-    path = site / "records" / "LD-02_revA.json"
+    path = site / "records" / "LD-02_revB.json"
     record = load_record(path)
     html = path.with_suffix(".html")
     html.write_text(html.read_text().replace("</body>", "<p>Checked and approved.</p></body>"))
-    staging = site / "records" / ".steamcalc" / "LD-02_revA.staged"
+    staging = site / "records" / ".steamcalc" / "LD-02_revB.staged"
     staging.mkdir(parents=True)
-    (staging / "COMMIT").write_text(json.dumps(["LD-02_revA.html"]))
-    (staging / "LD-02_revA.html").write_text(html.read_text())   # the edited page, not the JSON's rendering
+    (staging / "COMMIT").write_text(json.dumps(["LD-02_revB.html"]))
+    (staging / "LD-02_revB.html").write_text(html.read_text())   # the edited page, not the JSON's rendering
     verdicts = {c.path.suffix: c.verdict for c in check_companions(path, record)}
     assert verdicts[".html"] == "differs"
-    (staging / "LD-02_revA.html").unlink()
-    os.mkfifo(staging / "LD-02_revA.html")   # a FIFO in its place is never opened
+    (staging / "LD-02_revB.html").unlink()
+    os.mkfifo(staging / "LD-02_revB.html")   # a FIFO in its place is never opened
     verdicts = {c.path.suffix: c.verdict for c in check_companions(path, record)}
     assert verdicts[".html"] == "differs"
 
 
 def test_a_report_that_is_a_fifo_is_not_opened(site):
-    path = site / "records" / "LD-02_revA.json"
+    path = site / "records" / "LD-02_revB.json"
     path.with_suffix(".md").unlink()
     os.mkfifo(path.with_suffix(".md"))
     done = _cli(["verify", path])
-    assert done.returncode == 1 and "FIFO" in done.stdout and "LD-02_revA.md" in done.stdout, done.stdout
+    assert done.returncode == 1 and "FIFO" in done.stdout and "LD-02_revB.md" in done.stdout, done.stdout
 
 
 # -- item 13: special files ----------------------------------------------------------------------------------
@@ -251,7 +251,7 @@ def _special(which, fifo):
 @pytest.mark.parametrize("which", SPECIAL)
 def test_a_special_file_as_the_key_is_refused_unopened(site, fifo, which):
     special = _special(which, fifo)
-    done = _cli(["sign", site / "records" / "LD-02_revA.json", "--key", special])
+    done = _cli(["sign", site / "records" / "LD-02_revB.json", "--key", special])
     text = done.stdout + done.stderr
     assert _clean_refusal(done.returncode, text, str(special), "--key", "not a regular file", "it was not opened")
 
@@ -260,7 +260,7 @@ def test_a_special_file_as_the_key_is_refused_unopened(site, fifo, which):
 def test_a_special_file_as_the_passphrase_file_is_refused_unopened(site, keys, tmp_path, fifo, which):
     special = _special(which, fifo)
     for argv in (["keys", "new", "--name", "P. Phrase", "--out", tmp_path / "k", "--passphrase-file", special],
-                 ["sign", site / "records" / "LD-02_revA.json", "--key", keys / "c-checker.key",
+                 ["sign", site / "records" / "LD-02_revB.json", "--key", keys / "c-checker.key",
                   "--passphrase-file", special]):
         done = _cli(argv)
         text = done.stdout + done.stderr
@@ -280,7 +280,7 @@ def test_a_key_file_too_large_to_be_a_key_is_refused_by_its_size(tmp_path):
 
 @pytest.mark.parametrize("which", SPECIAL)
 def test_a_special_file_among_the_trusted_signers_is_skipped_and_reported(site, keys, fifo, which):
-    path = site / "records" / "LD-02_revA.json"
+    path = site / "records" / "LD-02_revB.json"
     assert _cli(["sign", path, "--key", keys / "c-checker.key"]).returncode == 0
     jam = site / "trusted_signers" / "jam.pub"
     if which == "fifo":
@@ -333,12 +333,12 @@ def test_a_key_file_with_a_hostile_name_is_refused(site, keys, tmp_path):
         load_private_key(hostile)
     pub = site / "trusted_signers" / "hostile.pub"
     pub.write_text((keys / "c-checker.pub").read_text().replace("name: C. Checker", "name: C. Checker\u2028"))
-    done = _cli(["verify", site / "records" / "LD-02_revA.json"])
+    done = _cli(["verify", site / "records" / "LD-02_revB.json"])
     assert _clean_refusal(done.returncode, done.stdout + done.stderr, "hostile.pub", "separator")
 
 
 def test_a_signature_under_a_hostile_name_does_not_hold(site, keys):
-    path = site / "records" / "LD-02_revA.json"
+    path = site / "records" / "LD-02_revB.json"
     record = load_record(path)
     key, _ = load_private_key(keys / "c-checker.key")
     signed = add_signature(record, key, "C. Checker\u202e", "checked", verification_summary(verify_record(record)))
@@ -352,12 +352,12 @@ def test_two_trusted_keys_under_one_name_are_warned_of(site, tmp_path):
     shutil.copy(tmp_path / "second" / "c-checker.pub", site / "trusted_signers" / "second.pub")
     read = read_trusted(site / "trusted_signers")
     assert len(read.keys) == 3 and len(read.warnings) == 1 and "two trusted keys carry the name" in read.warnings[0]
-    done = _cli(["verify", site / "records" / "LD-02_revA.json"])
+    done = _cli(["verify", site / "records" / "LD-02_revB.json"])
     assert done.returncode == 0 and "warning: two trusted keys carry the name" in done.stdout
 
 
 def test_one_key_under_two_names_is_trusted_under_neither(site, keys, capsys):
-    path = site / "records" / "LD-02_revA.json"
+    path = site / "records" / "LD-02_revB.json"
     assert main(["sign", str(path), "--key", str(keys / "c-checker.key")]) == 0
     (site / "trusted_signers" / "relabelled.pub").write_text(
         (keys / "c-checker.pub").read_text().replace("name: C. Checker", "name: D. Approver"))
@@ -369,13 +369,13 @@ def test_one_key_under_two_names_is_trusted_under_neither(site, keys, capsys):
 @pytest.mark.parametrize("name", ["c-checker.key", "backup.txt", "c-checker.pub.bak"])
 def test_a_private_key_in_the_trusted_folder_under_any_name_is_refused(site, keys, capsys, name):
     shutil.copy(keys / "c-checker.key", site / "trusted_signers" / name)
-    code, text = _run(["verify", site / "records" / "LD-02_revA.json"], capsys)
+    code, text = _run(["verify", site / "records" / "LD-02_revB.json"], capsys)
     assert _clean_refusal(code, text, name, "private key file is in the trusted signers folder", "new key pair")
 
 
 def test_a_private_key_named_as_a_public_one_is_refused(site, keys, capsys):
     shutil.copy(keys / "c-checker.key", site / "trusted_signers" / "c-checker-2.pub")
-    code, text = _run(["verify", site / "records" / "LD-02_revA.json"], capsys)
+    code, text = _run(["verify", site / "records" / "LD-02_revB.json"], capsys)
     assert _clean_refusal(code, text, "c-checker-2.pub", "private key")
 
 
@@ -411,7 +411,7 @@ def test_keys_new_when_the_public_key_cannot_be_written_leaves_no_private_key(tm
 
 
 def test_verify_repair_on_a_read_only_folder(site, capsys, monkeypatch):
-    path = site / "records" / "LD-02_revA.json"
+    path = site / "records" / "LD-02_revB.json"
     path.with_suffix(".md").write_text("edited")
 
     def mkstemp(*args, **kwargs):
@@ -423,7 +423,7 @@ def test_verify_repair_on_a_read_only_folder(site, capsys, monkeypatch):
 
 
 def test_sign_on_a_read_only_folder_names_the_file_and_the_fix(site, keys, capsys, monkeypatch):
-    path = site / "records" / "LD-02_revA.json"
+    path = site / "records" / "LD-02_revB.json"
     before = path.read_bytes()
     real = os.mkdir
 
@@ -463,7 +463,7 @@ SHAPES = [
 
 @pytest.mark.parametrize("what, edit, field", SHAPES, ids=[s[0] for s in SHAPES])
 def test_a_crafted_shape_is_refused_by_its_field(site, keys, capsys, what, edit, field):
-    path = site / "records" / "LD-02_revA.json"
+    path = site / "records" / "LD-02_revB.json"
     _forge_json_only(path, edit)
     for argv in (["verify", path], ["sign", path, "--key", keys / "c-checker.key"], ["diff", path, path]):
         code, text = _run(argv, capsys)

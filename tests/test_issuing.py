@@ -104,28 +104,28 @@ def test_kill_during_run_leaves_old_or_new_set(site, tmp_path, point):
     process = _forked(["run", case, "--out", out], {"STEAMCALC_TEST_KILL_AT": point})
     process.join(30)
     assert process.exitcode == -signal.SIGKILL
-    assert_set_invariant(out, "LD-02_revA")
+    assert_set_invariant(out, "LD-02_revB")
     assert _run("run", case, "--out", out) == 0   # never a blocker; the interrupted issue is finished or undone
-    assert_complete_set(out, "LD-02_revA")
+    assert_complete_set(out, "LD-02_revB")
 
 
 @pytest.mark.parametrize("point", KILL_POINTS)
 def test_kill_during_sign_never_shows_a_signature_the_json_lacks(site, tmp_path, point):
     case, out = site / "cases" / "LD-02.toml", tmp_path / "out"
     assert _run("run", case, "--out", out) == 0
-    path = out / "LD-02_revA.json"
+    path = out / "LD-02_revB.json"
     key = _key(tmp_path / "keys")
     process = _forked(["sign", path, "--key", key], {"STEAMCALC_TEST_KILL_AT": point})
     process.join(30)
     assert process.exitcode == -signal.SIGKILL
-    before = assert_set_invariant(out, "LD-02_revA")
-    with record_lock(out, "LD-02_revA"):
-        recover(out, "LD-02_revA")   # what the next run, save or sign-off does first
-    after = assert_complete_set(out, "LD-02_revA")
+    before = assert_set_invariant(out, "LD-02_revB")
+    with record_lock(out, "LD-02_revB"):
+        recover(out, "LD-02_revB")   # what the next run, save or sign-off does first
+    after = assert_complete_set(out, "LD-02_revB")
     assert _signers_of(after) == ([] if point.startswith("staged") else ["C. Checker"])
     assert _signers_of(before) == _signers_of(after) or point == "listed"
     if _signers_of(after):
-        assert SIGNED_MARK in (out / "LD-02_revA.html").read_text()
+        assert SIGNED_MARK in (out / "LD-02_revB.html").read_text()
     else:
         assert _run("sign", path, "--key", key) == 0
 
@@ -143,9 +143,9 @@ def test_kills_at_random_instants(site, tmp_path):
         time.sleep(rng.uniform(0.0, 1.5 * duration))
         os.kill(process.pid, signal.SIGKILL)
         process.join(30)
-        assert_set_invariant(out, "LD-02_revA")
+        assert_set_invariant(out, "LD-02_revB")
         assert _run("run", case, "--out", out) == 0
-        assert_complete_set(out, "LD-02_revA")
+        assert_complete_set(out, "LD-02_revB")
 
 
 # -- two writers at once ---------------------------------------------------------------------------------
@@ -178,7 +178,7 @@ def test_two_concurrent_runs_of_different_content(site, tmp_path):
         assert statuses[0].startswith("refused: ") and "already exists with different content" in statuses[0]
         assert statuses[1] == "written", outcomes
         winner = next(flow for flow, s in outcomes.items() if s == "written")
-        record = assert_complete_set(out, "LD-02_revA")
+        record = assert_complete_set(out, "LD-02_revB")
         assert record["inputs"]["mass_flow"]["given"] == f"{winner} t/h"
 
 
@@ -194,7 +194,7 @@ def _signer(barrier, results, path, name, key, trusted):
 def test_two_concurrent_signoffs_one_wins_none_lost(site, tmp_path):
     case, out = site / "cases" / "LD-02.toml", tmp_path / "out"
     assert _run("run", case, "--out", out) == 0
-    path = out / "LD-02_revA.json"
+    path = out / "LD-02_revB.json"
     barrier, results = FORK.Barrier(2), FORK.Queue()
     keys = {name: _key(tmp_path / "keys", name) for name in ("A. One", "B. Two")}
     trusted = tmp_path / "trusted"
@@ -211,21 +211,21 @@ def test_two_concurrent_signoffs_one_wins_none_lost(site, tmp_path):
     assert len(winners) == 1, outcomes
     loser = next(s for s in outcomes.values() if s != "signed")
     assert "already signed as checked" in loser
-    record = assert_complete_set(out, "LD-02_revA")
+    record = assert_complete_set(out, "LD-02_revB")
     assert _signers_of(record) == winners
 
 
 def test_second_writer_waits_then_fails_clearly(site, tmp_path, capsys, monkeypatch):
     case, out = site / "cases" / "LD-02.toml", tmp_path / "out"
     monkeypatch.setenv("STEAMCALC_LOCK_TIMEOUT", "0.3")
-    holder = FORK.Process(target=_hold_lock, args=(out, "LD-02_revA", 300.0))  # until terminated below
+    holder = FORK.Process(target=_hold_lock, args=(out, "LD-02_revB", 300.0))  # until terminated below
     holder.start()
     deadline = time.monotonic() + 20
     while not (out / WORK_FOLDER / "held").exists() and time.monotonic() < deadline:
         time.sleep(0.05)
     try:
         assert _run("run", case, "--out", out) == 2
-        assert "another steamcalc is writing record LD-02_revA" in capsys.readouterr().err
+        assert "another steamcalc is writing record LD-02_revB" in capsys.readouterr().err
         from steamcalc.ui.workbook import Workbook
         saved = Workbook(case, out).save()
         assert saved.startswith("not saved") and "another steamcalc is writing" in saved
@@ -276,11 +276,11 @@ def test_disk_full_during_run_leaves_nothing_half_issued(site, tmp_path, capsys,
     assert _run("run", case, "--out", out) == 2
     err = capsys.readouterr().err
     assert "No space left on device" in err and "free some disk space" in err and "internal error" not in err
-    assert_set_invariant(out, "LD-02_revA")
-    assert not _visible(out, "LD-02_revA") and not list((out / WORK_FOLDER).glob("*.staged"))
+    assert_set_invariant(out, "LD-02_revB")
+    assert not _visible(out, "LD-02_revB") and not list((out / WORK_FOLDER).glob("*.staged"))
     full_disk["allowance"] = None
     assert _run("run", case, "--out", out) == 0
-    assert_complete_set(out, "LD-02_revA")
+    assert_complete_set(out, "LD-02_revB")
 
 
 def test_disk_full_during_sign_and_index_keeps_the_old_files(site, tmp_path, capsys, full_disk):
@@ -290,7 +290,7 @@ def test_disk_full_during_sign_and_index_keeps_the_old_files(site, tmp_path, cap
     key = _key(tmp_path / "keys")
     before = _snapshot(out)
     full_disk["allowance"] = 20000
-    assert _run("sign", out / "LD-02_revA.json", "--key", key) == 1
+    assert _run("sign", out / "LD-02_revB.json", "--key", key) == 1
     assert "No space left on device" in capsys.readouterr().err
     full_disk["allowance"] = 0
     assert _run("run", *cases, "--out", out) == 2   # records unchanged; the index cannot be rewritten
@@ -304,7 +304,7 @@ def test_diff_html_never_replaces_a_record(site, tmp_path, capsys):
     out = tmp_path / "out"
     case = site / "cases" / "LD-02.toml"
     assert _run("run", case, "--out", out) == 0
-    a = out / "LD-02_revA.json"
+    a = out / "LD-02_revB.json"
     before = a.read_bytes()
     for extra in ([], ["--force"]):
         assert _run("diff", a, a, "--html", a, *extra) == 2
@@ -321,25 +321,25 @@ def test_diff_html_never_replaces_a_record(site, tmp_path, capsys):
 def test_run_refuses_a_foreign_report_file_unless_forced(site, tmp_path, capsys):
     case, out = site / "cases" / "LD-02.toml", tmp_path / "out"
     out.mkdir()
-    (out / "LD-02_revA.html").write_text("<html>someone's page</html>")
+    (out / "LD-02_revB.html").write_text("<html>someone's page</html>")
     assert _run("run", case, "--out", out) == 2
     assert "was not written by steamcalc" in capsys.readouterr().err
-    assert (out / "LD-02_revA.html").read_text() == "<html>someone's page</html>"
-    assert not (out / "LD-02_revA.json").exists()
+    assert (out / "LD-02_revB.html").read_text() == "<html>someone's page</html>"
+    assert not (out / "LD-02_revB.json").exists()
     assert _run("run", case, "--out", out, "--force") == 0
-    assert_complete_set(out, "LD-02_revA")
+    assert_complete_set(out, "LD-02_revB")
 
 
 def test_leftovers_of_an_older_interrupted_run_are_cleaned_not_blockers(site, tmp_path):
     case, out = site / "cases" / "LD-02.toml", tmp_path / "out"
     assert _run("run", case, "--out", out) == 0
-    html = (out / "LD-02_revA.html").read_text()
+    html = (out / "LD-02_revB.html").read_text()
     shutil.rmtree(out)
     out.mkdir()
-    (out / "LD-02_revA.html").write_text(html)            # a report without its JSON
-    (out / ".LD-02_revA.json.x1y2.part").write_text("{")   # a stray temporary file
+    (out / "LD-02_revB.html").write_text(html)            # a report without its JSON
+    (out / ".LD-02_revB.json.x1y2.part").write_text("{")   # a stray temporary file
     assert _run("run", case, "--out", out) == 0
-    assert_complete_set(out, "LD-02_revA")
+    assert_complete_set(out, "LD-02_revB")
 
 
 def test_foreign_index_and_companions_are_refused(site, tmp_path, capsys):
@@ -350,9 +350,9 @@ def test_foreign_index_and_companions_are_refused(site, tmp_path, capsys):
     cases = [site / "cases" / "LD-02.toml", site / "cases" / "FL-01.toml"]
     assert _run("run", *cases, "--out", out) == 2
     assert "index.html" in capsys.readouterr().err and (out / "index.html").read_text() == "<html>team wiki page</html>"
-    (out / "LD-02_revA.pdf").write_bytes(b"%PDF-1.4 someone else's drawing")
+    (out / "LD-02_revB.pdf").write_bytes(b"%PDF-1.4 someone else's drawing")
     with pytest.raises(Exception, match="not written by steamcalc"):
-        write_pdf(out / "LD-02_revA.html")
+        write_pdf(out / "LD-02_revB.html")
 
 
 def test_out_that_is_a_file_is_refused(site, tmp_path, capsys):
@@ -381,7 +381,7 @@ def test_unexpected_error_fails_only_its_case(site, tmp_path, capsys, monkeypatc
     assert "2 of 3 case(s) not run" in err
     assert "field 'site'" in err and "FL-01.toml: unexpected error RuntimeError: simulated fault" in err
     assert err.count("please report") == 1
-    assert (out / "LD-02_revA.json").exists()
+    assert (out / "LD-02_revB.json").exists()
     index = (out / "index.html").read_text()
     assert "LD-02" in index and "bad-site.toml" in index and "FL-01.toml" in index
 
@@ -409,7 +409,7 @@ def test_ctrl_c_stops_the_batch_writes_the_index_and_lists_what_did_not_run(site
                                                       stderr_path))
     process.start()
     deadline = time.monotonic() + 120
-    while not (out / "FL-01_revA.json").exists() and time.monotonic() < deadline and process.is_alive():
+    while not (out / "FL-01_revB.json").exists() and time.monotonic() < deadline and process.is_alive():
         time.sleep(0.05)
     assert process.is_alive(), stderr_path.read_text()
     time.sleep(0.3)
@@ -424,7 +424,7 @@ def test_ctrl_c_stops_the_batch_writes_the_index_and_lists_what_did_not_run(site
     assert (out / "index.html").exists() and "LD-02" in (out / "index.html").read_text()
     assert "Traceback" not in stderr
     for n in range(6):
-        assert_set_invariant(out, f"HEAVY-{n}_revA")
+        assert_set_invariant(out, f"HEAVY-{n}_revB")
 
 
 # -- permissions follow the umask -----------------------------------------------------------------------
@@ -434,8 +434,8 @@ def test_permissions_follow_the_umask(site, tmp_path, umask, file_mode, dir_mode
     try:
         out = tmp_path / "out"
         assert _run("run", site / "cases" / "LD-02.toml", site / "cases" / "FL-01.toml", "--out", out) == 0
-        assert _run("sign", out / "LD-02_revA.json", "--key", _key(tmp_path / "keys")) == 0
-        for name in ("LD-02_revA.json", "LD-02_revA.html", "LD-02_revA.md", "index.html", "index.csv"):
+        assert _run("sign", out / "LD-02_revB.json", "--key", _key(tmp_path / "keys")) == 0
+        for name in ("LD-02_revB.json", "LD-02_revB.html", "LD-02_revB.md", "index.html", "index.csv"):
             assert (out / name).stat().st_mode & 0o777 == file_mode, name
         assert out.stat().st_mode & 0o777 == dir_mode
         assert _run("new-site", tmp_path / "plant2", "--from", site) == 0
@@ -459,7 +459,7 @@ def test_closed_pipe_ends_quietly(site, tmp_path):
     """`steamcalc verify ... | head`: the reader goes away, steamcalc stops without a traceback."""
     out = tmp_path / "out"
     assert _run("run", site / "cases" / "LD-02.toml", "--out", out) == 0
-    record = out / "LD-02_revA.json"
+    record = out / "LD-02_revB.json"
     read_end, write_end = os.pipe()
     stderr_path = tmp_path / "stderr.txt"
     process = FORK.Process(target=_piped_child, args=(["verify"] + [record] * 40, read_end, write_end, stderr_path))
@@ -478,7 +478,7 @@ def test_verify_reports_every_file(site, tmp_path, capsys):
     assert _run("run", site / "cases" / "LD-02.toml", "--out", out) == 0
     bad = tmp_path / "bad.json"
     bad.write_text("{not json")
-    good = out / "LD-02_revA.json"
+    good = out / "LD-02_revB.json"
     assert _run("verify", bad, good, tmp_path / "missing.json") == 2
     captured = capsys.readouterr()
     assert "verdict: VERIFIED" in captured.out

@@ -61,8 +61,8 @@ def test_reports_of_every_demo_case_show_the_basis(demo_records):
 
 
 def test_diff_shows_the_basis(demo_records, capsys, tmp_path):
-    old = load_record(demo_records / "LD-01_revA.json")
-    new = dict(old, revision="B")
+    old = load_record(demo_records / "LD-01_revB.json")
+    new = dict(old, revision="C")
     new["inputs"] = dict(old["inputs"])
     new["inputs"]["inlet_pressure"] = dict(old["inputs"]["inlet_pressure"], value=17.5)
     rows = diff_records(old, new)
@@ -70,7 +70,7 @@ def test_diff_shows_the_basis(demo_records, capsys, tmp_path):
     html_out = tmp_path / "diff.html"
     import json
     (tmp_path / "new.json").write_text(json.dumps(new))
-    main(["diff", str(demo_records / "LD-01_revA.json"), str(tmp_path / "new.json"), "--html", str(html_out)])
+    main(["diff", str(demo_records / "LD-01_revB.json"), str(tmp_path / "new.json"), "--html", str(html_out)])
     printed = capsys.readouterr().out
     assert not _bare_pressures(printed), _bare_pressures(printed)[:3]
     page = _visible_text(html_out.read_text())

@@ -25,7 +25,7 @@ def issued(tmp_path_factory):
     site = tmp_path_factory.mktemp("site")
     shutil.copytree(DEMO_SITE, site, dirs_exist_ok=True, ignore=shutil.ignore_patterns("records"))
     assert main(["run", str(site / "cases" / "LD-01.toml"), "--quiet"]) == 0
-    return site / "records" / "LD-01_revA.json"
+    return site / "records" / "LD-01_revB.json"
 
 
 def _first_limit_check(record):

@@ -71,10 +71,10 @@ def test_every_kind_names_its_governing_results_and_each_is_a_result_it_makes(re
 
 
 def test_the_ld01_first_page_holds_identity_status_governing_results_every_warning_and_the_signatures(records):
-    record = load_record(records / "LD-01_revA.json")
-    page = (records / "LD-01_revA.html").read_text()
+    record = load_record(records / "LD-01_revB.json")
+    page = (records / "LD-01_revB.html").read_text()
     first = _first_page(page)
-    for text in ("LD-01, revision A", "Pressure let-down station", "A. Engineer", "Kestrel Valley Dairy",
+    for text in ("LD-01, revision B", "Pressure let-down station", "A. Engineer", "Kestrel Valley Dairy",
                  record["digest"], "not yet checked", "Governing results", "Signatures", "Not signed yet"):
         assert text in first, text
     assert f'<span class="status {record["status"]}">{record["status"]}</span>' in first
@@ -94,7 +94,7 @@ def test_the_ld01_first_page_holds_identity_status_governing_results_every_warni
 
 
 def test_the_first_page_breaks_before_the_detail_which_follows_by_numbered_section(records):
-    page = (records / "LD-01_revA.html").read_text()
+    page = (records / "LD-01_revB.html").read_text()
     assert re.search(r"\.first-page \{[^}]*break-after: page; page-break-after: always;", page)
     detail = page[page.index("</section>"):]
     headings = re.findall(r'<h2 id="(\w+)"[^>]*>(\d+)\. ([^<]+)</h2>', detail)
@@ -104,16 +104,16 @@ def test_the_first_page_breaks_before_the_detail_which_follows_by_numbered_secti
     # The contents on the first page link each section by its number; every check and result is in the detail.
     first = _first_page(page)
     assert all(f'<a href="#{anchor}">{number}. {heading}</a>' in first for anchor, number, heading in headings)
-    record = json.loads((records / "LD-01_revA.json").read_text())
+    record = json.loads((records / "LD-01_revB.json").read_text())
     results = detail[detail.index('id="results"'):detail.index('id="figures"')]
     assert results.count('<td class="key"><code>') == len(record["results"])
 
 
 def test_the_markdown_record_has_the_same_first_page_then_a_rule(records):
-    text = (records / "HX-01_revA.md").read_text()
+    text = (records / "HX-01_revB.md").read_text()
     first, _, detail = text.partition("\n---\n")
     assert "### Governing results" in first and "### Checks that fail or warn" in first and "### Signatures" in first
-    record = json.loads((records / "HX-01_revA.json").read_text())
+    record = json.loads((records / "HX-01_revB.json").read_text())
     for check in record["checks"]:
         flagged = check["status"] in ("warn", "fail") and check.get("kind") != "notice"
         assert (f"| {check['name']} | {check['status']} |" in first) == flagged, check["name"]
@@ -131,7 +131,7 @@ def test_a_failing_record_says_so_on_its_first_page_with_the_failing_check_first
     shutil.copy(DEMO / "site.toml", tmp_path / "site.toml")
     (tmp_path / "cases" / "LD-01.toml").write_text(case)
     assert main(["run", str(tmp_path / "cases" / "LD-01.toml"), "--quiet"]) == 1
-    record = load_record(tmp_path / "records" / "LD-01_revA.json")
+    record = load_record(tmp_path / "records" / "LD-01_revB.json")
     first = _first_page(render_html(record))
     assert "FAILED CHECKS — this record must not be issued for construction" in first
     assert '<span class="status fail">fail</span>' in first
@@ -144,13 +144,13 @@ def test_a_failing_record_says_so_on_its_first_page_with_the_failing_check_first
 
 
 def test_two_temperatures_are_never_written_as_a_difference(records):
-    record = json.loads((records / "LD-01_revA.json").read_text())
+    record = json.loads((records / "LD-01_revB.json").read_text())
     check = next(c for c in record["checks"] if c["name"] == "Spray water colder than target")
     assert check["detail"] == "water at 105.00 °C, below the target 148.78 °C"
 
 
 def test_the_units_note_wraps_between_words_and_only_digests_break_anywhere(records):
-    page = (records / "LD-01_revA.html").read_text()
+    page = (records / "LD-01_revB.html").read_text()
     style = page[page.index("<style>"):page.index("</style>")]
     small = re.search(r"\.small \{([^}]*)\}", style).group(1)
     assert "break-all" not in small
@@ -162,7 +162,7 @@ def test_the_units_note_wraps_between_words_and_only_digests_break_anywhere(reco
 
 def test_a_signature_shows_on_the_first_page(records, tmp_path):
     (tmp_path / "records").mkdir()
-    path = _copy(records, "LD-02_revA", tmp_path / "records")
+    path = _copy(records, "LD-02_revB", tmp_path / "records")
     shutil.copy(DEMO / "site.toml", tmp_path / "site.toml")
     assert main(["keys", "new", "--name", "C. Checker", "--out", str(tmp_path / "keys")]) == 0
     (tmp_path / "trusted_signers").mkdir()
@@ -180,7 +180,7 @@ def test_a_signature_shows_on_the_first_page(records, tmp_path):
 # -- no result twice ------------------------------------------------------------------------------------------
 
 def test_the_valve_travel_at_the_normal_flow_is_one_result(records):
-    record = json.loads((records / "LD-01_revA.json").read_text())
+    record = json.loads((records / "LD-01_revB.json").read_text())
     assert "valve_travel_normal" in record["results"] and "valve_travel" not in record["results"]
     labels = [v["label"] for v in record["results"].values()]
     assert [label for label in labels if label.startswith("Valve travel") and "normal" in label] == [
@@ -198,7 +198,7 @@ def test_an_earlier_record_with_the_second_key_verifies_with_a_note(tmp_path, ca
 # -- verify: the verdict and the differences first --------------------------------------------------------------
 
 def test_verify_prints_the_verdict_first_and_every_value_only_with_all(records, tmp_path, capsys):
-    path = _copy(records, "LD-01_revA", tmp_path)
+    path = _copy(records, "LD-01_revB", tmp_path)
     capsys.readouterr()
     assert main(["verify", str(path)]) == 0
     lines = capsys.readouterr().out.splitlines()
@@ -217,7 +217,7 @@ def test_verify_prints_the_verdict_first_and_every_value_only_with_all(records, 
 
 
 def test_verify_lists_an_edited_result_among_the_differences_right_after_the_verdict(records, tmp_path, capsys):
-    path = _copy(records, "FL-01_revA", tmp_path)
+    path = _copy(records, "FL-01_revB", tmp_path)
     record = json.loads(path.read_text())
     record["results"]["flash_steam_flow"]["value"] *= 1.01
     record["content_digest"] = compute_content_digest(record)
@@ -235,7 +235,7 @@ def test_verify_lists_an_edited_result_among_the_differences_right_after_the_ver
 # -- reports drawn by an earlier release ------------------------------------------------------------------------
 
 def test_reports_in_the_earlier_layout_verify_and_repair_draws_them_anew(records, tmp_path, capsys):
-    path = _copy(records, "HX-01_revA", tmp_path)
+    path = _copy(records, "HX-01_revB", tmp_path)
     record = load_record(path)
     for suffix in (".html", ".md"):
         path.with_suffix(suffix).write_text(render_earlier(record, suffix))
@@ -250,12 +250,12 @@ def test_reports_in_the_earlier_layout_verify_and_repair_draws_them_anew(records
 
 
 def test_an_edit_to_a_report_in_the_earlier_layout_is_still_caught(records, tmp_path, capsys):
-    path = _copy(records, "LD-02_revA", tmp_path)
+    path = _copy(records, "LD-02_revB", tmp_path)
     record = load_record(path)
     path.with_suffix(".html").write_text(render_earlier(record, ".html").replace("warn</td>", "pass</td>", 1))
     capsys.readouterr()
     assert main(["verify", str(path)]) == 1
-    assert "companion LD-02_revA.html: DIFFERS" in capsys.readouterr().out
+    assert "companion LD-02_revB.html: DIFFERS" in capsys.readouterr().out
 
 
 @pytest.mark.parametrize("release", ["v0_2", "v0_3_schema2"])
@@ -274,7 +274,7 @@ def test_records_of_earlier_releases_keep_verifying_with_their_reports(release, 
     (None, "heat exchanger", "counterflow"), ("counterflow", "heat exchanger", "counterflow"),
     ("1-2", "shell-and-tube", "1 shell pass, 2 tube passes"), ("2-4", "shell-and-tube", "2 shell passes, 4 tube passes")])
 def test_the_heater_sketch_names_the_exchanger_for_its_arrangement(records, arrangement, name, line):
-    record = json.loads((records / "HX-01_revA.json").read_text())
+    record = json.loads((records / "HX-01_revB.json").read_text())
     if arrangement is None:
         record["inputs"].pop("arrangement", None)
     else:
@@ -286,8 +286,8 @@ def test_the_heater_sketch_names_the_exchanger_for_its_arrangement(records, arra
 
 
 def test_the_diff_page_colours_old_and_new_neutrally_with_a_legend(records, tmp_path):
-    old = json.loads((records / "LD-02_revA.json").read_text())
-    new = dict(old, revision="B", inputs=dict(old["inputs"]))
+    old = json.loads((records / "LD-02_revB.json").read_text())
+    new = dict(old, revision="C", inputs=dict(old["inputs"]))
     new["inputs"]["mass_flow"] = dict(old["inputs"]["mass_flow"], value=2200.0, given="2.2 t/h")
     (tmp_path / "old.json").write_text(json.dumps(old))
     (tmp_path / "new.json").write_text(json.dumps(new))

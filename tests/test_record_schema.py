@@ -27,7 +27,7 @@ def issued(tmp_path_factory):
     out = folder / "records"
     # 0 for pass and warn, 1 for a failing check; 2 (bad input) would mean no record.
     assert main(["run", str(folder / "cases"), "--out", str(out), "--quiet"]) in (0, 1)
-    return {case: out / f"{case}_revA.json" for case in DEMO_CASES}
+    return {case: out / f"{case}_revB.json" for case in DEMO_CASES}
 
 
 def _edited(source, tmp_path, edit):

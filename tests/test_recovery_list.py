@@ -25,7 +25,7 @@ def site(tmp_path):
 
 
 def _plant(records, names, staged_name=None, link_to=None):
-    staging = records / WORK_FOLDER / "FL-01_revA.staged"
+    staging = records / WORK_FOLDER / "FL-01_revB.staged"
     staging.mkdir(parents=True)
     for name in names if isinstance(names, list) else [names]:
         target = staging / (staged_name or Path(name).name)
@@ -39,11 +39,11 @@ def _plant(records, names, staged_name=None, link_to=None):
 
 @pytest.mark.parametrize("names", [
     ["../site.toml"],
-    ["FL-01_revA.json", "../cases/FL-01.toml"],
+    ["FL-01_revB.json", "../cases/FL-01.toml"],
     ["/etc/hostname"],
-    ["FL-02_revA.json"],        # another record's file
-    ["FL-01_revA.toml"],        # not a file of a record's set
-    "FL-01_revA.json",          # not a list
+    ["FL-02_revB.json"],        # another record's file
+    ["FL-01_revB.toml"],        # not a file of a record's set
+    "FL-01_revB.json",          # not a list
 ])
 def test_a_planted_commit_list_is_refused_and_nothing_moves(site, capsys, names):
     records = site / "records"
@@ -55,29 +55,29 @@ def test_a_planted_commit_list_is_refused_and_nothing_moves(site, capsys, names)
     assert "commit list" in err and "COMMIT" in err
     for path, content in before.items():
         assert path.read_bytes() == content, path
-    assert not (records / "FL-01_revA.json").exists()
+    assert not (records / "FL-01_revB.json").exists()
 
 
 def test_a_link_in_the_staging_folder_is_refused(site, capsys):
     records = site / "records"
-    _plant(records, ["FL-01_revA.json"], link_to=site / "site.toml")
+    _plant(records, ["FL-01_revB.json"], link_to=site / "site.toml")
     assert main(["run", str(site / "cases" / "FL-01.toml")]) == 2
     assert "commit list" in capsys.readouterr().err
-    assert not (records / "FL-01_revA.json").exists()
+    assert not (records / "FL-01_revB.json").exists()
 
 
 def test_a_genuine_commit_list_still_rolls_forward(site):
     # The list an interrupted writer leaves (its own names) is finished by the next run.
     records = site / "records"
     assert main(["run", str(site / "cases" / "FL-01.toml")]) == 0
-    saved = {s: (records / f"FL-01_revA{s}").read_text() for s in (".json", ".html", ".md")}
+    saved = {s: (records / f"FL-01_revB{s}").read_text() for s in (".json", ".html", ".md")}
     for suffix in saved:
-        (records / f"FL-01_revA{suffix}").unlink()
-    staging = records / WORK_FOLDER / "FL-01_revA.staged"
+        (records / f"FL-01_revB{suffix}").unlink()
+    staging = records / WORK_FOLDER / "FL-01_revB.staged"
     staging.mkdir()
     for suffix, text in saved.items():
-        (staging / f"FL-01_revA{suffix}").write_text(text)
-    (staging / "COMMIT").write_text(json.dumps([f"FL-01_revA{s}" for s in saved]))
+        (staging / f"FL-01_revB{suffix}").write_text(text)
+    (staging / "COMMIT").write_text(json.dumps([f"FL-01_revB{s}" for s in saved]))
     assert main(["run", str(site / "cases" / "FL-01.toml")]) == 0
-    assert {s: (records / f"FL-01_revA{s}").read_text() for s in saved} == saved
+    assert {s: (records / f"FL-01_revB{s}").read_text() for s in saved} == saved
     assert not staging.exists()

@@ -46,8 +46,8 @@ def test_freshly_issued_records_are_current(site, capsys):
     assert code == 0, text
     assert "1 record: 1 current, 1 valid" in text
     rows = _rows(site)
-    assert rows["LD-02 rev A"].case_file == "same" and rows["LD-02 rev A"].site_data == "same"
-    assert rows["LD-02 rev A"].companions == "match" and rows["LD-02 rev A"].signatures == "not signed"
+    assert rows["LD-02 rev B"].case_file == "same" and rows["LD-02 rev B"].site_data == "same"
+    assert rows["LD-02 rev B"].companions == "match" and rows["LD-02 rev B"].signatures == "not signed"
 
 
 def test_a_records_folder_gives_the_same_register(site, capsys):
@@ -56,18 +56,18 @@ def test_a_records_folder_gives_the_same_register(site, capsys):
 
 def test_superseded_revision_and_edited_case(site, capsys):
     case = site / "cases" / "LD-02.toml"
-    case.write_text(case.read_text().replace('"2.0 t/h"', '"2.3 t/h"').replace('revision = "A"', 'revision = "B"'))
+    case.write_text(case.read_text().replace('"2.0 t/h"', '"2.3 t/h"').replace('revision = "B"', 'revision = "C"'))
     assert main(["run", str(case)]) == 0
     rows = _rows(site)
-    assert not rows["LD-02 rev A"].current and rows["LD-02 rev A"].superseded == "by revision B"
-    assert rows["LD-02 rev B"].current
+    assert not rows["LD-02 rev B"].current and rows["LD-02 rev B"].superseded == "by revision C"
+    assert rows["LD-02 rev C"].current
     # Now edit the case after issue without raising the revision.
     case.write_text(case.read_text().replace('"2.3 t/h"', '"2.4 t/h"'))
     rows = _rows(site)
-    assert rows["LD-02 rev B"].stale == ["case edited after issue"]
-    assert rows["LD-02 rev B"].case_file == "edited after issue: inputs mass_flow"
+    assert rows["LD-02 rev C"].stale == ["case edited after issue"]
+    assert rows["LD-02 rev C"].case_file == "edited after issue: inputs mass_flow"
     code, text = _register(["register", site], capsys)
-    assert code == 1 and "not current: superseded by revision B" in text and "inputs mass_flow" in text
+    assert code == 1 and "not current: superseded by revision C" in text and "inputs mass_flow" in text
 
 
 def test_a_changed_site_makes_every_record_stale(site):
@@ -82,10 +82,10 @@ def test_a_changed_site_makes_every_record_stale(site):
 
 
 def test_a_tampered_companion(site, capsys):
-    page = site / "records" / "LD-02_revA.html"
+    page = site / "records" / "LD-02_revB.html"
     page.write_text(page.read_text().replace("warn", "pass"))
     rows = _rows(site)
-    assert rows["LD-02 rev A"].companions == "DIFFER: html" and not rows["LD-02 rev A"].current
+    assert rows["LD-02 rev B"].companions == "DIFFER: html" and not rows["LD-02 rev B"].current
     code, text = _register(["register", site], capsys)
     assert code == 1 and "not current: companions do not match (DIFFER: html)" in text
 
@@ -94,18 +94,18 @@ def test_signatures_and_a_forged_record_in_the_register(site, tmp_path, capsys):
     assert main(["keys", "new", "--name", "C. Checker", "--out", str(tmp_path / "keys")]) == 0
     (site / "trusted_signers").mkdir(exist_ok=True)
     shutil.copy(tmp_path / "keys" / "c-checker.pub", site / "trusted_signers")
-    record = site / "records" / "LD-02_revA.json"
+    record = site / "records" / "LD-02_revB.json"
     assert main(["sign", str(record), "--key", str(tmp_path / "keys" / "c-checker.key")]) == 0
-    row = _rows(site)["LD-02 rev A"]
+    row = _rows(site)["LD-02 rev B"]
     assert row.signatures.startswith("checked: C. Checker, key ") and row.signatures.endswith("trusted")
     assert row.ok
     (site / "trusted_signers" / "c-checker.pub").unlink()
-    row = _rows(site)["LD-02 rev A"]
+    row = _rows(site)["LD-02 rev B"]
     assert row.signatures.endswith("unknown key") and not row.valid
     data = json.loads(record.read_text())
     data["title"] = "forged"
     record.write_text(json.dumps(data))
-    row = _rows(site)["LD-02 rev A"]
+    row = _rows(site)["LD-02 rev B"]
     assert row.verification.startswith("EDITED") and not row.valid
 
 
@@ -136,15 +136,15 @@ def test_the_review_workbook_shows_the_register_with_a_filter(site, tmp_path):
     from steamcalc.ui.review import ReviewBook
 
     case = site / "cases" / "LD-02.toml"
-    case.write_text(case.read_text().replace('revision = "A"', 'revision = "B"').replace('"2.0 t/h"', '"2.3 t/h"'))
+    case.write_text(case.read_text().replace('revision = "B"', 'revision = "C"').replace('"2.0 t/h"', '"2.3 t/h"'))
     assert main(["run", str(case)]) == 0
-    book = ReviewBook(site / "records" / "LD-02_revB.json")
-    assert [r.revision for r in book.register()] == ["A", "B"]
-    assert [r.revision for r in book.register("not current or not valid")] == ["A"]
+    book = ReviewBook(site / "records" / "LD-02_revC.json")
+    assert [r.revision for r in book.register()] == ["B", "C"]
+    assert [r.revision for r in book.register("not current or not valid")] == ["B"]
     view = book.register_view()
     build, show = view.children[0].children
     build.click()
-    assert "superseded by revision B" in view.children[1].value and "2 of 2 records shown" in view.children[1].value
+    assert "superseded by revision C" in view.children[1].value and "2 of 2 records shown" in view.children[1].value
     show.value = "current and valid"
     assert "1 of 2 records shown" in view.children[1].value
     # Signing with a key from the workbook.
@@ -157,38 +157,38 @@ def test_the_run_index_carries_the_register_columns(site):
     case = site / "cases" / "LD-02.toml"
     shutil.copy(case, site / "cases" / "LD-03.toml")
     (site / "cases" / "LD-03.toml").write_text(case.read_text().replace('id = "LD-02"', 'id = "LD-03"'))
-    case.write_text(case.read_text().replace('"2.0 t/h"', '"2.1 t/h"').replace('revision = "A"', 'revision = "B"'))
+    case.write_text(case.read_text().replace('"2.0 t/h"', '"2.1 t/h"').replace('revision = "B"', 'revision = "C"'))
     # The site balance links LD-02's superseded revision and is refused for it (tests/test_site_balance.py):
     # this test is about the index columns of the records that issue.
     (site / "cases" / "SB-01.toml").unlink()
     assert main(["run", "--quiet", str(site / "cases")]) == 0
     rows = {r["json"]: r for r in csv.DictReader((site / "records" / "index.csv").open())}
-    assert rows["LD-02_revA.json"]["current"] == "no: superseded by revision B"
-    assert rows["LD-02_revB.json"]["current"] == "yes" and rows["LD-03_revA.json"]["signatures"] == "not signed"
+    assert rows["LD-02_revB.json"]["current"] == "no: superseded by revision C"
+    assert rows["LD-02_revC.json"]["current"] == "yes" and rows["LD-03_revB.json"]["signatures"] == "not signed"
     assert "site data" in (site / "records" / "index.html").read_text()
 
 
 def test_an_edited_later_revision_does_not_supersede_and_an_unreadable_file_is_not_current(site, capsys):
-    # A hand-edited copy relabelled rev B (digest broken) made the genuine rev A "superseded", and a file
+    # A hand-edited copy relabelled rev C (digest broken) made the genuine rev B "superseded", and a file
     # that is not a readable record was listed as current.
     records = site / "records"
-    data = json.loads((records / "LD-02_revA.json").read_text())
-    data["revision"] = "B"
-    (records / "LD-02_revB.json").write_text(json.dumps(data))
+    data = json.loads((records / "LD-02_revB.json").read_text())
+    data["revision"] = "C"
+    (records / "LD-02_revC.json").write_text(json.dumps(data))
     (records / "broken.json").write_text("{not json")
     rows = build_register(site)
     by_file = {r.json: r for r in rows}
-    assert by_file["LD-02_revA.json"].current and by_file["LD-02_revA.json"].ok
-    assert not by_file["LD-02_revB.json"].valid and "superseded" not in " ".join(by_file["LD-02_revB.json"].stale)
+    assert by_file["LD-02_revB.json"].current and by_file["LD-02_revB.json"].ok
+    assert not by_file["LD-02_revC.json"].valid and "superseded" not in " ".join(by_file["LD-02_revC.json"].stale)
     assert not by_file["broken.json"].current
 
 
 def test_register_csv_cells_are_never_read_as_formulas(site, tmp_path, capsys):
     # the index CSV quoted a leading '=', the register CSV wrote a crafted title as a live formula
     records = site / "records"
-    data = json.loads((records / "LD-02_revA.json").read_text())
+    data = json.loads((records / "LD-02_revB.json").read_text())
     data["title"] = '=HYPERLINK("http://example.invalid")'
-    (records / "LD-02_revA.json").write_text(json.dumps(data))
+    (records / "LD-02_revB.json").write_text(json.dumps(data))
     main(["register", str(site), "--csv", str(tmp_path / "register.csv")])
     rows = list(csv.reader((tmp_path / "register.csv").read_text().splitlines()[1:]))
     assert rows and all(cell[:1] not in ("=", "+", "-", "@", "\t", "\r") for row in rows for cell in row), rows

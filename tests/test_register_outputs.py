@@ -76,8 +76,8 @@ def _victims(site):
     records = site / "records"
     key = site / "trusted_signers" / "c-checker.pub"
     return {"case file": site / "cases" / "LD-02.toml", "site file": site / "site.toml",
-            "record": records / "LD-02_revA.json", "record's HTML": records / "LD-02_revA.html",
-            "record's Markdown": records / "LD-02_revA.md", "trusted signers file": key,
+            "record": records / "LD-02_revB.json", "record's HTML": records / "LD-02_revB.html",
+            "record's Markdown": records / "LD-02_revB.md", "trusted signers file": key,
             "records index": records / "index.html", "records index CSV": records / "index.csv"}
 
 
@@ -100,7 +100,7 @@ def test_register_force_replaces_a_foreign_file_but_never_a_records_file(site, t
     assert code == 0, text
     assert notes.read_text().startswith("id,revision,kind,title,status,verification,")
     records = site / "records"
-    for path in (records / "LD-02_revA.json", records / "LD-02_revA.html", records / "LD-02_revA.md"):
+    for path in (records / "LD-02_revB.json", records / "LD-02_revB.html", records / "LD-02_revB.md"):
         before = path.read_bytes()
         code, text = _cli(["register", site, "--html", path, "--force"], capsys)
         assert code == 2 and "not even with --force" in text and str(path) in text, text
@@ -114,7 +114,7 @@ def test_register_replaces_its_own_register_but_not_another_outputs(site, tmp_pa
         assert code == 0, text
     assert 'content="steamcalc register"' in page.read_text()
     # A register is not a comparison, and a comparison is not a register.
-    a = site / "records" / "LD-02_revA.json"
+    a = site / "records" / "LD-02_revB.json"
     code, text = _cli(["diff", a, a, "--html", page], capsys)
     assert code == 2 and "it is a register" in text and "not a comparison" in text
     changes = tmp_path / "changes.html"
@@ -127,7 +127,7 @@ def test_register_replaces_its_own_register_but_not_another_outputs(site, tmp_pa
 
 def test_diff_html_onto_a_records_companion_is_refused_even_with_force(site, capsys):
     records = site / "records"
-    a, companion = records / "LD-02_revA.json", records / "FL-01_revA.html"
+    a, companion = records / "LD-02_revB.json", records / "FL-01_revB.html"
     before = companion.read_bytes()
     for extra in ([], ["--force"]):
         code, text = _cli(["diff", a, a, "--html", companion, *extra], capsys)
@@ -149,7 +149,7 @@ def _special_files(tmp_path):
 
 
 def test_special_files_are_refused_even_with_force(site, tmp_path, capsys):
-    a = site / "records" / "LD-02_revA.json"
+    a = site / "records" / "LD-02_revB.json"
     for path in _special_files(tmp_path):
         kind = stat.S_IFMT(path.lstat().st_mode)
         for argv in (["register", site, "--html", path, "--force"], ["register", site, "--csv", path, "--force"],
@@ -179,7 +179,7 @@ def test_a_link_is_refused_and_force_replaces_the_link_not_what_it_points_to(sit
 
 def test_run_refuses_a_foreign_pdf_or_workbook_before_making_one(site, capsys):
     records = site / "records"
-    pdf, notebook = records / "LD-02_revA.pdf", records / "LD-02_revA.ipynb"
+    pdf, notebook = records / "LD-02_revB.pdf", records / "LD-02_revB.ipynb"
     pdf.write_bytes(b"%PDF-1.4 my own scan")
     code, text = _cli(["run", site / "cases" / "LD-02.toml", "--pdf"], capsys)
     assert code == 2 and str(pdf) in text and "--force" in text
@@ -211,9 +211,9 @@ def test_the_run_index_refuses_a_foreign_index_unless_forced(site, capsys):
     ('inlet_pressure = "0.3 bar"\n', '', "uncertainty tolerance inlet_pressure"),
 ])
 def test_an_edited_uncertainty_table_makes_the_record_not_current(site, capsys, old, new, change):
-    assert _rows(site)["LD-02 rev A"].current
+    assert _rows(site)["LD-02 rev B"].current
     _edit(site / "cases" / "LD-02.toml", old, new)
-    row = _rows(site)["LD-02 rev A"]
+    row = _rows(site)["LD-02 rev B"]
     assert row.stale == ["case edited after issue"] and row.case_file == f"edited after issue: {change}"
     code, text = _cli(["register", site], capsys)
     assert code == 1 and change in text
@@ -222,7 +222,7 @@ def test_an_edited_uncertainty_table_makes_the_record_not_current(site, capsys, 
 def test_a_removed_uncertainty_table_makes_the_record_not_current(site):
     case = site / "cases" / "LD-02.toml"
     case.write_text(case.read_text().split("\n[uncertainty]")[0] + "\n")
-    assert _rows(site)["LD-02 rev A"].case_file.startswith("edited after issue: uncertainty (the case has no")
+    assert _rows(site)["LD-02 rev B"].case_file.startswith("edited after issue: uncertainty (the case has no")
 
 
 def test_a_backup_copy_is_not_compared_and_is_warned_of(site, capsys):
@@ -230,7 +230,7 @@ def test_a_backup_copy_is_not_compared_and_is_warned_of(site, capsys):
     copy = cases / "LD-02 copy.toml"
     shutil.copy(cases / "LD-02.toml", copy)
     _edit(copy, '"2.0 t/h"', '"2.6 t/h"')   # the backup drifts; the case itself is as issued
-    row = _rows(site)["LD-02 rev A"]
+    row = _rows(site)["LD-02 rev B"]
     assert row.current and row.case_file.startswith("same; warning: 2 case files give LD-02: LD-02.toml")
     assert "LD-02 copy.toml" in row.warnings[0]
     code, text = _cli(["register", site], capsys)
@@ -238,26 +238,26 @@ def test_a_backup_copy_is_not_compared_and_is_warned_of(site, capsys):
     # And the other way round: the case edited, the backup as issued - the record is not current.
     shutil.copy(cases / "LD-02.toml", copy)
     _edit(cases / "LD-02.toml", '"2.0 t/h"', '"2.6 t/h"')
-    row = _rows(site)["LD-02 rev A"]
+    row = _rows(site)["LD-02 rev B"]
     assert row.stale == ["case edited after issue"] and "inputs mass_flow" in row.case_file
 
 
 def test_the_newest_revision_saved_as_the_workbooks_name_it_is_current(site, capsys):
     cases = site / "cases"
-    rev_b = cases / "LD-02_revB.toml"
+    rev_b = cases / "LD-02_revC.toml"
     shutil.copy(cases / "LD-02.toml", rev_b)
-    _edit(rev_b, 'revision = "A"', 'revision = "B"')
+    _edit(rev_b, 'revision = "B"', 'revision = "C"')
     _edit(rev_b, '"2.0 t/h"', '"2.2 t/h"')
-    # Saved but not issued: revision A is no longer the case.
-    row = _rows(site)["LD-02 rev A"]
-    assert row.stale == ["case edited after issue"] and "LD-02_revB.toml is at revision B" in row.case_file
+    # Saved but not issued: revision B is no longer the case.
+    row = _rows(site)["LD-02 rev B"]
+    assert row.stale == ["case edited after issue"] and "LD-02_revC.toml is at revision C" in row.case_file
     assert _cli(["run", rev_b], capsys)[0] == 0
     rows = _rows(site)
-    assert rows["LD-02 rev B"].current and rows["LD-02 rev B"].case_file == "same", rows["LD-02 rev B"].case_file
-    assert rows["LD-02 rev B"].warnings == []   # one file per revision, each under steamcalc's name
-    assert rows["LD-02 rev A"].superseded == "by revision B" and rows["LD-02 rev A"].case_file == "later revision"
+    assert rows["LD-02 rev C"].current and rows["LD-02 rev C"].case_file == "same", rows["LD-02 rev C"].case_file
+    assert rows["LD-02 rev C"].warnings == []   # one file per revision, each under steamcalc's name
+    assert rows["LD-02 rev B"].superseded == "by revision C" and rows["LD-02 rev B"].case_file == "later revision"
     code, text = _cli(["register", site], capsys)
-    assert code == 1 and "superseded by revision B" in text and "case files give" not in text
+    assert code == 1 and "superseded by revision C" in text and "case files give" not in text
 
 
 # -- item 11: one case run refreshes the index --------------------------------------------------------------------
@@ -265,15 +265,15 @@ def test_the_newest_revision_saved_as_the_workbooks_name_it_is_current(site, cap
 def test_running_one_case_refreshes_the_index(site, capsys):
     records = site / "records"
     case = site / "cases" / "LD-02.toml"
-    _edit(case, 'revision = "A"', 'revision = "B"')
+    _edit(case, 'revision = "B"', 'revision = "C"')
     code, text = _cli(["run", case], capsys)
     assert code == 0 and "index refreshed" in text, text
     names = [r["json"] for r in csv.DictReader((records / "index.csv").read_text().splitlines())]
-    assert "LD-02_revB.json" in names and "FL-01_revA.json" in names
+    assert "LD-02_revC.json" in names and "FL-01_revB.json" in names
     row = next(r for r in csv.DictReader((records / "index.csv").read_text().splitlines())
-               if r["json"] == "LD-02_revA.json")
-    assert row["superseded"] == "by revision B"
-    assert "LD-02_revB.html" in (records / "index.html").read_text()
+               if r["json"] == "LD-02_revB.json")
+    assert row["superseded"] == "by revision C"
+    assert "LD-02_revC.html" in (records / "index.html").read_text()
 
 
 def test_running_one_case_makes_no_index_where_there_was_none(site, tmp_path, capsys):
@@ -286,7 +286,7 @@ def test_running_one_case_makes_no_index_where_there_was_none(site, tmp_path, ca
 def test_running_one_case_leaves_a_foreign_index_and_says_so(site, capsys):
     records = site / "records"
     (records / "index.csv").write_text("my,own,spreadsheet\n")
-    _edit(site / "cases" / "LD-02.toml", 'revision = "A"', 'revision = "B"')
+    _edit(site / "cases" / "LD-02.toml", 'revision = "B"', 'revision = "C"')
     code, text = _cli(["run", site / "cases" / "LD-02.toml"], capsys)
     assert code == 0 and "index not refreshed: index.csv" in text
     assert (records / "index.csv").read_text() == "my,own,spreadsheet\n"
@@ -299,7 +299,7 @@ def test_verify_and_register_of_a_folder_without_records_exit_2_naming_it(site, 
     empty.mkdir()
     pages = tmp_path / "pages"
     pages.mkdir()
-    (pages / "LD-02_revA.html").write_text("<html></html>")
+    (pages / "LD-02_revB.html").write_text("<html></html>")
     for folder in (empty, pages):
         for command in ("verify", "register"):
             code, text = _cli([command, folder], capsys)
@@ -320,7 +320,7 @@ def test_every_link_of_the_register_and_the_index_is_a_relative_file_link(site, 
     records = site / "records"
     crafted = ["javascript:alert(1).json", "http:x.json", "data:text,html.json", "?q=1#x.json"]
     for name in crafted:
-        shutil.copy(records / "LD-02_revA.json", records / name)
+        shutil.copy(records / "LD-02_revB.json", records / name)
     for page in (records / "register.html", tmp_path / "elsewhere" / "register.html"):
         _cli(["register", site, "--html", page], capsys)
         hrefs = _hrefs(page)

@@ -102,10 +102,10 @@ def test_every_report_is_in_the_trade_s_words(demo):
 
 def test_reports_name_each_input_and_result_in_words_with_the_key_beside_it(demo):
     records, _, _ = demo
-    page = (records / "LD-01_revA.html").read_text()
+    page = (records / "LD-01_revB.html").read_text()
     assert '<td>Inlet pressure</td>' in page and '<td class="key"><code>inlet_pressure</code></td>' in page
     assert '<td class="key"><code>valve_travel_normal</code></td>' in page
-    markdown = (records / "FL-01_revA.md").read_text()
+    markdown = (records / "FL-01_revB.md").read_text()
     assert "| Flash fraction (of the condensate) | 7.4 | % | `flash_fraction` |" in markdown
 
 
@@ -119,7 +119,7 @@ def test_the_run_output_is_in_words(demo):
 def test_verify_output_has_words_and_a_unit_column(demo, capsys):
     records, _, system = demo
     capsys.readouterr()
-    assert main(["verify", "--all", str(records / "LD-01_revA.json"), str(records / "HX-01_revA.json")]) == 0
+    assert main(["verify", "--all", str(records / "LD-01_revB.json"), str(records / "HX-01_revB.json")]) == 0
     printed = capsys.readouterr().out
     header = next(line for line in printed.splitlines() if line.strip().startswith("result"))
     assert re.search(r"\brecomputed\s+unit\b", header) and header.rstrip().endswith("key")
@@ -142,12 +142,12 @@ def test_verify_output_has_words_and_a_unit_column(demo, capsys):
 
 def test_diff_and_register_output_are_in_words(demo, capsys, tmp_path):
     records, _, system = demo
-    old = json.loads((records / "LD-01_revA.json").read_text())
-    new = dict(old, revision="B", inputs=dict(old["inputs"]))
+    old = json.loads((records / "LD-01_revB.json").read_text())
+    new = dict(old, revision="C", inputs=dict(old["inputs"]))
     new["inputs"]["mass_flow"] = dict(old["inputs"]["mass_flow"], value=5000.0, given="5 t/h")
-    (tmp_path / "LD-01_revB.json").write_text(json.dumps(new))
+    (tmp_path / "LD-01_revC.json").write_text(json.dumps(new))
     capsys.readouterr()
-    main(["diff", str(records / "LD-01_revA.json"), str(tmp_path / "LD-01_revB.json")])
+    main(["diff", str(records / "LD-01_revB.json"), str(tmp_path / "LD-01_revC.json")])
     printed = capsys.readouterr().out
     # The diff names each row by its section and key (the author's place); its units must be words.
     assert not FORBIDDEN.findall(printed), printed[:500]

@@ -25,24 +25,24 @@ def site(tmp_path, demo_site_dir):
 
 
 def _bump(case, old, new, revision):
-    text = case.read_text().replace(old, new).replace('revision = "A"', f'revision = "{revision}"')
+    text = case.read_text().replace(old, new).replace('revision = "B"', f'revision = "{revision}"')
     case.write_text(text)
 
 
 def test_diff_of_two_revisions(site, capsys, tmp_path):
     case = site / "cases" / "LD-02.toml"
     assert main(["run", str(case)]) == 0
-    _bump(case, '"2.0 t/h"', '"2.3 t/h"', "B")
+    _bump(case, '"2.0 t/h"', '"2.3 t/h"', "C")
     assert main(["run", str(case)]) == 0
     capsys.readouterr()
     page = tmp_path / "diff.html"
-    assert main(["diff", str(site / "records" / "LD-02_revA.json"), str(site / "records" / "LD-02_revB.json"),
+    assert main(["diff", str(site / "records" / "LD-02_revB.json"), str(site / "records" / "LD-02_revC.json"),
                  "--html", str(page)]) == 0
     out = capsys.readouterr().out
     assert "  * Steam flow [mass_flow]: 2,000 kg/h (as given: 2.0 t/h) -> 2,300 kg/h (as given: 2.3 t/h); change +300 kg/h" \
         in out
     assert "  * Required Kv, normal flow: " in out
-    assert "  * Revision: A -> B" in out
+    assert "  * Revision: B -> C" in out
     assert "mass_flow" in page.read_text()
 
 
@@ -55,14 +55,14 @@ def _key(tmp_path, name="C. Checker"):
 def test_sign_then_refuse_reissue(site, capsys, tmp_path):
     case = site / "cases" / "LD-02.toml"
     main(["run", str(case)])
-    record_path = site / "records" / "LD-02_revA.json"
+    record_path = site / "records" / "LD-02_revB.json"
     key = _key(tmp_path)
     shutil.copy(key.replace(".key", ".pub"), site / "trusted_signers")
     assert main(["sign", str(record_path), "--key", key]) == 0
     signed = load_record(record_path)
     assert signed["signatures"][0]["name"] == "C. Checker"
     assert signed["signatures"][0]["verification"]["integrity"] == "intact"
-    assert "Signed as checked" in (site / "records" / "LD-02_revA.html").read_text()
+    assert "Signed as checked" in (site / "records" / "LD-02_revB.html").read_text()
     assert main(["verify", str(record_path)]) == 0
     # Same content again: the signed record is kept as it is.
     assert main(["run", str(case)]) == 0
@@ -77,7 +77,7 @@ def test_sign_then_refuse_reissue(site, capsys, tmp_path):
 
 def test_sign_refused_on_an_edited_record(site, capsys, tmp_path):
     main(["run", str(site / "cases" / "LD-02.toml")])
-    path = site / "records" / "LD-02_revA.json"
+    path = site / "records" / "LD-02_revB.json"
     record = json.loads(path.read_text())
     record["results"]["outlet_temperature"]["value"] += 5.0
     path.write_text(json.dumps(record))
@@ -90,7 +90,7 @@ def test_sign_refused_on_a_failing_record(site, capsys, tmp_path):
     case = site / "cases" / "LD-02.toml"
     case.write_text(case.read_text().replace('rated_kv = "32 m^3/h"', 'rated_kv = "5 m^3/h"'))
     assert main(["run", str(case)]) == 1
-    assert main(["sign", str(site / "records" / "LD-02_revA.json"), "--key", _key(tmp_path)]) == 1
+    assert main(["sign", str(site / "records" / "LD-02_revB.json"), "--key", _key(tmp_path)]) == 1
     assert "recomputed status is FAIL" in capsys.readouterr().err
 
 
@@ -109,7 +109,7 @@ def test_batch_keeps_going_past_a_broken_case(site, capsys):
     rows = list(csv.DictReader((records / "index.csv").open()))
     assert sorted(r["id"] for r in rows) == demo
     index = (records / "index.html").read_text()
-    assert "LD-01_revA.html" in index and "BAD-01.toml" in index
+    assert "LD-01_revB.html" in index and "BAD-01.toml" in index
 
 
 def test_new_site_copies_and_refuses_an_existing_folder(site, tmp_path, capsys):
@@ -139,9 +139,9 @@ def test_us_display_units(site):
     text = (site / "site.toml").read_text().replace('display_units = "SI"', 'display_units = "US"')
     (site / "site.toml").write_text(text)
     assert main(["run", str(site / "cases" / "LD-02.toml")]) == 0
-    record = load_record(site / "records" / "LD-02_revA.json")
+    record = load_record(site / "records" / "LD-02_revB.json")
     assert record["results"]["outlet_temperature"]["unit"] == "degC"        # the JSON stays SI
-    page = (site / "records" / "LD-02_revA.html").read_text()
+    page = (site / "records" / "LD-02_revB.html").read_text()
     fahrenheit, _ = convert(record["results"]["outlet_temperature"]["value"], "degC", "US")
     assert f"{fahrenheit:.1f}" in page and "°F" in page and "lb/h" in page and "psia" in page
 
@@ -160,18 +160,18 @@ def test_us_display_units_in_the_workbook(site, tmp_path):
 
 def test_notebook_companion(site):
     assert main(["run", str(site / "cases" / "LD-02.toml"), "--notebook"]) == 0
-    executed = site / "records" / "LD-02_revA.ipynb"
+    executed = site / "records" / "LD-02_revB.ipynb"
     assert executed.exists()
     cells = json.loads(executed.read_text())["cells"]
     printed = "".join("".join(o.get("text", "")) + "".join(o.get("data", {}).get("text/plain", ""))
                       for c in cells for o in c.get("outputs", []))
-    assert "LD-02 rev A" in printed
+    assert "LD-02 rev B" in printed
 
 
 @pytest.mark.skipif(find_chromium() is None, reason="no Chromium: apt-get install chromium to test --pdf")
 def test_pdf(site):
     assert main(["run", str(site / "cases" / "LD-02.toml"), "--pdf"]) == 0
-    pdf = site / "records" / "LD-02_revA.pdf"
+    pdf = site / "records" / "LD-02_revB.pdf"
     assert pdf.read_bytes().startswith(b"%PDF")
 
 
@@ -179,7 +179,7 @@ def test_pdf_without_chromium_says_how(site, monkeypatch, capsys):
     monkeypatch.setattr("steamcalc.records.companions.find_chromium", lambda: None)
     assert main(["run", str(site / "cases" / "LD-02.toml"), "--pdf"]) == 2
     assert "no Chromium was found" in capsys.readouterr().err
-    assert (site / "records" / "LD-02_revA.json").exists()
+    assert (site / "records" / "LD-02_revB.json").exists()
 
 
 def test_html_record_escapes_user_text(site):
@@ -187,9 +187,9 @@ def test_html_record_escapes_user_text(site):
     case.write_text(case.read_text().replace('title = "HP to MP let-down, no desuperheating"',
                                              'title = "<script>alert(1)</script> & <b>bold</b>"'))
     assert main(["run", str(case)]) in (0, 1)
-    page = (site / "records" / "LD-02_revA.html").read_text()
+    page = (site / "records" / "LD-02_revB.html").read_text()
     assert "<script>alert(1)</script>" not in page and "&lt;script&gt;" in page
-    assert render_html(load_record(site / "records" / "LD-02_revA.json")).count("<script") == 0
+    assert render_html(load_record(site / "records" / "LD-02_revB.json")).count("<script") == 0
 
 
 def test_a_text_result_a_last_digit_apart_is_the_same_but_another_value_is_not():

@@ -59,12 +59,12 @@ def test_run_all_in_an_open_notebook_saves_nothing_but_a_headless_run_does(site,
     monkeypatch.setenv("JPY_SESSION_NAME", str(ROOT / "workbooks" / "letdown.ipynb"))   # as a Jupyter server sets it
     assert interactive_session()
     said = workbook.save()
-    assert said.startswith("not saved by Run All: press Save record") and "LD-02 rev A" in said
+    assert said.startswith("not saved by Run All: press Save record") and "LD-02 rev B" in said
     assert not records.exists() or not list(records.glob("*.json"))
     workbook._on_save()   # the button saves, in the session too
-    assert "New record saved" in workbook._save_status.value and (records / "LD-02_revA.json").exists()
+    assert "New record saved" in workbook._save_status.value and (records / "LD-02_revB.json").exists()
     monkeypatch.delenv("JPY_SESSION_NAME")
-    assert workbook.save().startswith("unchanged, kept: record LD-02 rev A")   # headless: the save cell saves
+    assert workbook.save().startswith("unchanged, kept: record LD-02 rev B")   # headless: the save cell saves
 
 
 def test_the_save_button_keeps_its_size_after_a_refusal(site, tmp_path):
@@ -85,25 +85,25 @@ def test_a_refused_record_save_offers_the_next_free_revision_and_saves_under_it(
     records = tmp_path / "records"
     workbook = Workbook(site / "cases" / "LD-02.toml", records)
     workbook.save()
-    # Revision B is taken by another record already: C is the one offered.
-    other = json.loads((records / "LD-02_revA.json").read_text())
-    (records / "LD-02_revB.json").write_text(json.dumps(dict(other, revision="B")))
+    # Revision C is taken by another record already: D is the one offered.
+    other = json.loads((records / "LD-02_revB.json").read_text())
+    (records / "LD-02_revC.json").write_text(json.dumps(dict(other, revision="C")))
     workbook.form.boxes["mass_flow"].value = "2.2 t/h"
     said = workbook.save()
-    assert said.startswith("not saved") and "save them as revision C" in said and "raise the Revision box" in said
+    assert said.startswith("not saved") and "save them as revision D" in said and "raise the Revision box" in said
     workbook._on_save()
     offer = workbook._save_next
-    assert offer.layout.display is None and offer.description == "Save as revision C"
+    assert offer.layout.display is None and offer.description == "Save as revision D"
     offer.click()
-    assert workbook._revision.value == "C" and (records / "LD-02_revC.json").exists()
-    assert json.loads((records / "LD-02_revC.json").read_text())["inputs"]["mass_flow"]["given"] == "2.2 t/h"
+    assert workbook._revision.value == "D" and (records / "LD-02_revD.json").exists()
+    assert json.loads((records / "LD-02_revD.json").read_text())["inputs"]["mass_flow"]["given"] == "2.2 t/h"
     assert "New record saved" in workbook._save_status.value and offer.layout.display == "none"
 
 
 def test_the_next_free_revision_skips_a_revision_saved_as_a_case_file(site, tmp_path):
     workbook = Workbook(site / "cases" / "LD-02.toml", tmp_path / "records")
-    (site / "cases" / "LD-02_revB.toml").write_text((site / "cases" / "LD-02.toml").read_text())
-    assert workbook.next_free_revision() == "C"
+    (site / "cases" / "LD-02_revC.toml").write_text((site / "cases" / "LD-02.toml").read_text())
+    assert workbook.next_free_revision() == "D"
 
 
 # -- new-site ---------------------------------------------------------------------------------------------------
@@ -115,8 +115,8 @@ def template(site, tmp_path):
     assert main(["keys", "new", "--name", "D. Approver", "--out", str(tmp_path / "keys")]) == 0
     for name in ("c-checker.pub", "d-approver.pub"):
         shutil.copy(tmp_path / "keys" / name, site / "trusted_signers" / name)
-    text = (site / "cases" / "LD-01.toml").read_text().replace('revision = "A"', 'revision = "B"')
-    (site / "cases" / "LD-01_revB.toml").write_text(text.replace('mass_flow = "4.5 t/h"', 'mass_flow = "5 t/h"'))
+    text = (site / "cases" / "LD-01.toml").read_text().replace('revision = "B"', 'revision = "C"')
+    (site / "cases" / "LD-01_revC.toml").write_text(text.replace('mass_flow = "4.5 t/h"', 'mass_flow = "5 t/h"'))
     return site
 
 
@@ -129,14 +129,14 @@ def test_new_site_copies_the_trusted_keys_and_every_case_file(template, tmp_path
     for name in ("c-checker.pub", "d-approver.pub"):
         assert (target / "trusted_signers" / name).read_bytes() == (template / "trusted_signers" / name).read_bytes()
     assert sorted(p.name for p in (target / "cases").iterdir()) == sorted(p.name for p in (template / "cases").iterdir())
-    assert (target / "cases" / "LD-01_revB.toml").read_text() == (template / "cases" / "LD-01_revB.toml").read_text()
+    assert (target / "cases" / "LD-01_revC.toml").read_text() == (template / "cases" / "LD-01_revC.toml").read_text()
     assert not (target / "records").exists() and not list(tmp_path.glob(".plant2.*"))
     # The keys are the new plant's trusted signers: verify names them.
     assert main(["run", str(target / "cases" / "LD-02.toml"), "--quiet"]) == 0
-    code, text = _run(["sign", target / "records" / "LD-02_revA.json", "--key", tmp_path / "keys" / "c-checker.key"],
+    code, text = _run(["sign", target / "records" / "LD-02_revB.json", "--key", tmp_path / "keys" / "c-checker.key"],
                       capsys)
     assert code == 0, text
-    code, text = _run(["verify", target / "records" / "LD-02_revA.json"], capsys)
+    code, text = _run(["verify", target / "records" / "LD-02_revB.json"], capsys)
     assert code == 0 and "valid, trusted" in text and f"{target.resolve() / 'trusted_signers'} (2 keys" in text
 
 
@@ -202,8 +202,8 @@ def test_the_readme_let_down_example_runs_as_written(tmp_path, capsys):
     shutil.copy(DEMO / "site.toml", tmp_path / "site.toml")
     (tmp_path / "cases" / "LD-01.toml").write_text(example)
     code, text = _run(["run", tmp_path / "cases" / "LD-01.toml"], capsys)
-    assert code == 0 and "LD-01 rev A: WARN - written" in text and "superseded" not in text, text
-    record = json.loads((tmp_path / "records" / "LD-01_revA.json").read_text())
+    assert code == 0 and "LD-01 rev B: WARN - written" in text and "superseded" not in text, text
+    record = json.loads((tmp_path / "records" / "LD-01_revB.json").read_text())
     assert record["inputs"]["set_pressure"]["given"] == "4.5 bar(g)"
 
 
@@ -212,14 +212,14 @@ def test_the_review_workbook_shows_the_register_of_the_folder(site, tmp_path, mo
 
     assert main(["run", str(site / "cases"), "--quiet"]) in (0, 1)
     monkeypatch.chdir(site.parent)
-    book = ReviewBook(site / "records" / "LD-02_revA.json")
+    book = ReviewBook(site / "records" / "LD-02_revB.json")
     view = book.register_view()
     table = view.children[1]
     assert "Build the register" in table.value
     view.children[0].children[0].click()
     demo = len(list((DEMO / "cases").glob("*.toml")))
     assert f"{demo} of {demo} records" in table.value and "trusted signers:" in table.value
-    assert table.value.count("<tr>") == demo + 1 and "href='./demo_site/records/LD-02_revA.json'" in table.value
+    assert table.value.count("<tr>") == demo + 1 and "href='./demo_site/records/LD-02_revB.json'" in table.value
     notebook = json.loads((ROOT / "workbooks" / "review.ipynb").read_text())
     cells = [c for c in notebook["cells"] if c["cell_type"] == "code" and "register_view" in "".join(c["source"])]
     assert len(cells) == 1 and "nbval-ignore-output" in cells[0]["metadata"]["tags"]

@@ -79,7 +79,7 @@ def test_keys_new_writes_a_private_key_only_its_owner_reads(keys, capsys):
 
 
 def test_sign_and_verify_round_trip_checked_then_approved(site, keys, capsys):
-    path = site / "records" / "LD-02_revA.json"
+    path = site / "records" / "LD-02_revB.json"
     content = load_record(path)["content_digest"]
     code, text = _run(["sign", path, "--key", keys / "c-checker.key"], capsys)
     assert code == 0, text
@@ -102,12 +102,12 @@ def test_sign_and_verify_round_trip_checked_then_approved(site, keys, capsys):
 
 
 def test_unsigned_record_says_not_signed(site, capsys):
-    code, text = _run(["verify", site / "records" / "LD-02_revA.json"], capsys)
+    code, text = _run(["verify", site / "records" / "LD-02_revB.json"], capsys)
     assert code == 0 and "signatures: not signed" in text
 
 
 def test_a_key_not_in_the_trusted_list_fails_verify(site, keys, capsys):
-    path = site / "records" / "LD-02_revA.json"
+    path = site / "records" / "LD-02_revB.json"
     code, text = _run(["sign", path, "--key", keys / "chief-engineer.key"], capsys)
     assert code == 0 and "not in" in text
     code, text = _run(["verify", path], capsys)
@@ -118,7 +118,7 @@ def test_a_key_not_in_the_trusted_list_fails_verify(site, keys, capsys):
 
 
 def test_a_record_edited_after_signing_fails_its_signature(site, keys, capsys):
-    path = site / "records" / "LD-02_revA.json"
+    path = site / "records" / "LD-02_revB.json"
     assert main(["sign", str(path), "--key", str(keys / "c-checker.key")]) == 0
     _forge(path, lambda r: r.update(title=r["title"] + " (as built)"))
     code, text = _run(["verify", path], capsys)
@@ -143,12 +143,12 @@ def _rewritten_step(record):
 
 FORGERIES = [
     # (what, record, how, what verify says)
-    ("overall status only, failing record", "LD-09_revA.json", lambda r: r.update(status="pass"),
+    ("overall status only, failing record", "LD-09_revB.json", lambda r: r.update(status="pass"),
      "status: recorded 'pass', recomputed 'fail'"),
-    ("edited status, failing record", "LD-09_revA.json", _edited_status, "status: recorded 'pass', recomputed 'fail'"),
-    ("edited status, warning record", "LD-02_revA.json", _edited_status, "status: recorded 'pass', recomputed 'warn'"),
-    ("removed cautions", "LD-02_revA.json", _removed_cautions, "cautions: missing"),
-    ("rewritten step", "LD-02_revA.json", _rewritten_step, "step 1"),
+    ("edited status, failing record", "LD-09_revB.json", _edited_status, "status: recorded 'pass', recomputed 'fail'"),
+    ("edited status, warning record", "LD-02_revB.json", _edited_status, "status: recorded 'pass', recomputed 'warn'"),
+    ("removed cautions", "LD-02_revB.json", _removed_cautions, "cautions: missing"),
+    ("rewritten step", "LD-02_revB.json", _rewritten_step, "step 1"),
 ]
 
 
@@ -168,7 +168,7 @@ def test_forged_content_with_recomputed_digests(site, keys, capsys, what, name, 
 
 
 def test_a_failing_record_is_never_signed(site, keys, capsys):
-    path = site / "records" / "LD-09_revA.json"
+    path = site / "records" / "LD-09_revB.json"
     before = _snapshot(path)
     code, text = _run(["sign", path, "--key", keys / "c-checker.key"], capsys)
     assert code == 1 and "recomputed status is FAIL" in text
@@ -176,10 +176,10 @@ def test_a_failing_record_is_never_signed(site, keys, capsys):
 
 
 def test_a_signature_copied_from_another_record(site, keys, capsys):
-    signed = site / "records" / "LD-02_revA.json"
+    signed = site / "records" / "LD-02_revB.json"
     assert main(["sign", str(signed), "--key", str(keys / "c-checker.key")]) == 0
     entries = load_record(signed)["signatures"]
-    target = site / "records" / "LD-09_revA.json"
+    target = site / "records" / "LD-09_revB.json"
     _forge(target, lambda r: r.update(signatures=entries))
     code, text = _run(["verify", target], capsys)
     assert code == 1 and "INVALID" in text and "not over this record's content" in text
@@ -189,7 +189,7 @@ def test_a_signature_copied_from_another_record(site, keys, capsys):
 
 def test_a_forged_signature_in_a_trusted_name(site, keys, capsys):
     """The trusted checker's name, fingerprint and public key, and a signature the forger made up."""
-    path = site / "records" / "LD-02_revA.json"
+    path = site / "records" / "LD-02_revB.json"
     assert main(["sign", str(path), "--key", str(keys / "c-checker.key")]) == 0
     genuine = load_record(path)["signatures"][0]
     forged = dict(genuine, role="approved", name="C. Checker", date="2026-12-31T00:00:00Z")
@@ -200,7 +200,7 @@ def test_a_forged_signature_in_a_trusted_name(site, keys, capsys):
 
 def test_a_forged_name_only_signoff(site, keys, capsys):
     """The v0.1 forgery: a name-only sign-off with invented claims and recomputed digests."""
-    path = site / "records" / "LD-02_revA.json"
+    path = site / "records" / "LD-02_revB.json"
     _forge(path, lambda r: r.update(checked_by="Chief Engineer", signoff={
         "by": "Chief Engineer", "date": "2026-12-31T00:00:00Z",
         "verification": {"integrity": "intact", "results_reproduced": "999 of 999", "checks_reproduced": True,
@@ -212,22 +212,22 @@ def test_a_forged_name_only_signoff(site, keys, capsys):
 
 
 def test_an_edited_html_is_caught_and_repaired(site, keys, capsys):
-    path = site / "records" / "LD-09_revA.json"
+    path = site / "records" / "LD-09_revB.json"
     page = path.with_suffix(".html")
     page.write_text(page.read_text().replace('class="status fail">fail', 'class="status pass">pass'))
     code, text = _run(["verify", path], capsys)
-    assert code == 1 and "companion LD-09_revA.html: DIFFERS" in text
-    ld02 = site / "records" / "LD-02_revA.json"
+    assert code == 1 and "companion LD-09_revB.html: DIFFERS" in text
+    ld02 = site / "records" / "LD-02_revB.json"
     ld02.with_suffix(".md").write_text("# nothing to see\n")
     code, text = _run(["sign", ld02, "--key", keys / "c-checker.key"], capsys)
-    assert code == 1 and "LD-02_revA.md" in text and "--repair" in text
+    assert code == 1 and "LD-02_revB.md" in text and "--repair" in text
     code, text = _run(["verify", ld02, "--repair"], capsys)
     assert code == 0 and "repaired" in text
     assert _run(["verify", ld02], capsys)[0] == 0
 
 
 def test_repair_refused_for_a_record_that_does_not_verify(site, capsys):
-    path = site / "records" / "LD-02_revA.json"
+    path = site / "records" / "LD-02_revB.json"
     _forge(path, _removed_cautions)
     path.with_suffix(".md").write_text("edited\n")
     code, text = _run(["verify", path, "--repair"], capsys)
@@ -245,7 +245,7 @@ def _typed_name(record, name="C. Checker", results="7 of 7"):
 
 
 def test_a_typed_name_verifies_as_not_signed_and_is_never_shown_as_signed(site, keys, capsys):
-    path = site / "records" / "LD-02_revA.json"
+    path = site / "records" / "LD-02_revB.json"
     comparisons = len(verify_record(load_record(path)).comparisons)
     _forge(path, lambda r: _typed_name(r, results=f"{comparisons} of {comparisons}"))
     code, text = _run(["verify", path], capsys)
@@ -257,9 +257,9 @@ def test_a_typed_name_verifies_as_not_signed_and_is_never_shown_as_signed(site, 
     code, text = _run(["sign", path, "--key", keys / "c-checker.key"], capsys)
     assert code == 1 and "raised revision" in text
     case = site / "cases" / "LD-02.toml"
-    case.write_text(case.read_text().replace('revision = "A"', 'revision = "B"'))
+    case.write_text(case.read_text().replace('revision = "B"', 'revision = "C"'))
     assert main(["run", str(case)]) == 0
-    code, text = _run(["sign", site / "records" / "LD-02_revB.json", "--key", keys / "c-checker.key"], capsys)
+    code, text = _run(["sign", site / "records" / "LD-02_revC.json", "--key", keys / "c-checker.key"], capsys)
     assert code == 0, text
 
 
@@ -278,7 +278,7 @@ def _rsa_key_file(path, header):
 
 
 def test_bad_keys_and_trusted_lists(site, keys, tmp_path, capsys):
-    path = site / "records" / "LD-02_revA.json"
+    path = site / "records" / "LD-02_revB.json"
     before = _snapshot(path)
     secret = tmp_path / "secret.txt"
     secret.write_text("correct horse\n")
@@ -319,13 +319,13 @@ def test_the_passphrase_protected_key_signs(site, tmp_path, capsys):
     assert main(["keys", "new", "--name", "P. Protected", "--out", str(tmp_path), "--passphrase-file", str(secret)]) == 0
     assert "ENCRYPTED" in (tmp_path / "p-protected.key").read_text()
     shutil.copy(tmp_path / "p-protected.pub", site / "trusted_signers")
-    path = site / "records" / "LD-02_revA.json"
+    path = site / "records" / "LD-02_revB.json"
     assert main(["sign", str(path), "--key", str(tmp_path / "p-protected.key"), "--passphrase-file", str(secret)]) == 0
     assert _run(["verify", path], capsys)[0] == 0
 
 
 def test_document_control_order(site, keys, capsys):
-    path = site / "records" / "LD-02_revA.json"
+    path = site / "records" / "LD-02_revB.json"
     code, text = _run(["sign", path, "--key", keys / "d-approver.key", "--role", "approved"], capsys)
     assert code == 1 and "checked before it is approved" in text
     assert main(["sign", str(path), "--key", str(keys / "c-checker.key")]) == 0
@@ -347,7 +347,7 @@ _SIGNED = {"role": "checked", "name": "X", "date": "2026-01-01T00:00:00Z", "fing
     [dict(_SIGNED, public_key="AAAA", signature="AAAA", verification={})],
 ], ids=["bad base64", "short key"])
 def test_junk_signatures_fail_verify_without_a_traceback(site, capsys, junk):
-    path = site / "records" / "LD-02_revA.json"
+    path = site / "records" / "LD-02_revB.json"
     _forge(path, lambda r: r.update(signatures=junk))
     code, text = _run(["verify", path], capsys)
     assert code == 1 and "verdict: FAILED" in text and "internal error" not in text, text
@@ -359,10 +359,10 @@ def test_junk_signatures_fail_verify_without_a_traceback(site, capsys, junk):
 ], ids=["string", "list of strings", "empty entry", "verification not a table"])
 def test_signatures_out_of_the_record_schema_are_refused_by_name(site, capsys, junk, field):
     # Not a signature that fails: not a record steamcalc writes. The file and the field are named, exit 2.
-    path = site / "records" / "LD-02_revA.json"
+    path = site / "records" / "LD-02_revB.json"
     _forge(path, lambda r: r.update(signatures=junk))
     code, text = _run(["verify", path], capsys)
-    assert code == 2 and "NOT VERIFIED" in text and f"field {field}" in text and "LD-02_revA.json" in text, text
+    assert code == 2 and "NOT VERIFIED" in text and f"field {field}" in text and "LD-02_revB.json" in text, text
     assert "Traceback" not in text and "internal error" not in text
 
 
@@ -376,7 +376,7 @@ def test_keys_new_into_a_file_is_refused(tmp_path, capsys):
 
 
 def test_a_name_only_signoff_never_goes_over_keyed_signatures(site, keys, capsys):
-    path = site / "records" / "LD-02_revA.json"
+    path = site / "records" / "LD-02_revB.json"
     assert main(["sign", str(path), "--key", str(keys / "c-checker.key")]) == 0
     before = _snapshot(path)
     code, text = _run(["sign", path, "--by", "D. Approver"], capsys)
@@ -385,7 +385,7 @@ def test_a_name_only_signoff_never_goes_over_keyed_signatures(site, keys, capsys
 
 
 def test_a_private_key_readable_by_others_or_left_in_the_trusted_folder(site, keys, tmp_path, capsys):
-    path = site / "records" / "LD-02_revA.json"
+    path = site / "records" / "LD-02_revB.json"
     loose = tmp_path / "loose.key"
     shutil.copy(keys / "c-checker.key", loose)
     loose.chmod(0o644)
@@ -401,7 +401,7 @@ def test_two_signers_at_once_one_signs_and_the_other_is_told_why(site, keys):
     # from reading through verifying to writing, so the second sees the first one's signature.
     import subprocess
     import sys
-    path = site / "records" / "LD-02_revA.json"
+    path = site / "records" / "LD-02_revB.json"
     runs = [subprocess.Popen([sys.executable, "-m", "steamcalc", "sign", str(path), "--key", str(keys / key)],
                              stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True,
                              env={**os.environ, "PYTHONPATH": str(Path(__file__).resolve().parent.parent)})

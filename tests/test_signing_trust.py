@@ -107,7 +107,7 @@ def _plant(folder, public_key):
 def test_the_planted_trust_list_attack_is_not_trusted(site, keys, attacker, capsys):
     """The attack as reported: the attacker signs with their own key under the checker's name, then plants
     records/site.toml and records/trusted_signers/ holding that key. Before: "trusted, VERIFIED"."""
-    path = site / "records" / "LD-02_revA.json"
+    path = site / "records" / "LD-02_revB.json"
     assert main(["sign", str(path), "--key", str(attacker / "c-checker.key")]) == 0
     _plant(site / "records", attacker / "c-checker.pub")
     code, text = _run(["verify", path], capsys)
@@ -118,7 +118,7 @@ def test_the_planted_trust_list_attack_is_not_trusted(site, keys, attacker, caps
     assert f"not used: {(site / 'records' / 'site.toml').resolve()}" in text
     assert f"not used: {(site / 'records' / 'trusted_signers').resolve()}" in text
     # The register says the same, and so does sign (it will not countersign over the forged signature).
-    row = {r.json: r for r in build_register(site / "records")}["LD-02_revA.json"]
+    row = {r.json: r for r in build_register(site / "records")}["LD-02_revB.json"]
     assert row.signatures.endswith("unknown key") and not row.valid
     code, text = _run(["sign", path, "--key", keys / "d-approver.key", "--role", "approved"], capsys)
     assert code == 1 and "does not hold" in text
@@ -127,26 +127,26 @@ def test_the_planted_trust_list_attack_is_not_trusted(site, keys, attacker, caps
 @pytest.mark.parametrize("layout", ["records/sub", "records/a/records", "records/a/b"])
 def test_planted_lists_deeper_in_the_records_folder_are_not_trusted(site, attacker, capsys, layout):
     # The forged record moved into a folder of the attacker's making, the site.toml planted above it.
-    path = site / "records" / "LD-02_revA.json"
+    path = site / "records" / "LD-02_revB.json"
     assert main(["sign", str(path), "--key", str(attacker / "c-checker.key")]) == 0
     target = site / layout
     target.mkdir(parents=True)
-    for file in path.parent.glob("LD-02_revA.*"):
+    for file in path.parent.glob("LD-02_revB.*"):
         shutil.copy(file, target / file.name)
     _plant(target.parent, attacker / "c-checker.pub")
     _plant(target, attacker / "c-checker.pub")
-    code, text = _run(["verify", target / "LD-02_revA.json"], capsys)
+    code, text = _run(["verify", target / "LD-02_revB.json"], capsys)
     assert code == 1 and "valid, trusted" not in text and "verdict: FAILED" in text, text
     # The folder above the forged record holds a site.toml, but inside the real site: no list at all.
     assert "trusted signers: none (" in text and "lies inside the site folder" in text
 
 
 def test_register_of_a_records_folder_holding_a_planted_site(site, attacker, capsys):
-    path = site / "records" / "LD-02_revA.json"
+    path = site / "records" / "LD-02_revB.json"
     assert main(["sign", str(path), "--key", str(attacker / "c-checker.key")]) == 0
     _plant(site / "records", attacker / "c-checker.pub")
     (site / "records" / "records").mkdir()
-    for file in path.parent.glob("LD-02_revA.*"):
+    for file in path.parent.glob("LD-02_revB.*"):
         shutil.copy(file, site / "records" / "records" / file.name)
     for folder in (site / "records", site / "records" / "records", site):
         code, text = _run(["register", folder], capsys)
@@ -155,7 +155,7 @@ def test_register_of_a_records_folder_holding_a_planted_site(site, attacker, cap
 
 
 def test_trust_comes_from_trusted_or_the_settings_file_and_is_named(site, keys, tmp_path, monkeypatch, capsys):
-    path = site / "records" / "LD-02_revA.json"
+    path = site / "records" / "LD-02_revB.json"
     assert main(["sign", str(path), "--key", str(keys / "c-checker.key")]) == 0
     # --trusted names an empty list: the signature is not trusted, and the list is named.
     empty = tmp_path / "empty-list"
@@ -198,7 +198,7 @@ def test_a_site_inside_another_site_is_not_trusted(tmp_path):
 # -- 2. name-only sign-offs -------------------------------------------------------------------------
 
 def test_sign_by_name_alone_is_refused_with_the_fix(site, capsys):
-    path = site / "records" / "LD-02_revA.json"
+    path = site / "records" / "LD-02_revB.json"
     before = _snapshot(path)
     code, text = _run(["sign", path, "--by", "C. Checker"], capsys)
     assert code == 2 and str(path) in text and "field '--by'" in text and "'C. Checker'" in text
@@ -215,7 +215,7 @@ def _typed_name(record, name="Chief Engineer"):
 
 
 def test_a_typed_name_is_shown_as_a_name_typed_never_green(site, capsys):
-    path = site / "records" / "LD-02_revA.json"
+    path = site / "records" / "LD-02_revB.json"
     _forge(path, _typed_name)
     page, md = path.with_suffix(".html").read_text(), path.with_suffix(".md").read_text()
     for text in (page, md):
@@ -224,13 +224,13 @@ def test_a_typed_name_is_shown_as_a_name_typed_never_green(site, capsys):
     assert '<div class="nametyped" style="border: 2px dashed var(--warn);' in page
     assert 'class="signoff"' not in page.split("<h2>Checks</h2>")[0] and "var(--pass)" not in page.split("nametyped")[1]
     rows = {r.json: r for r in build_register(site)}
-    assert rows["LD-02_revA.json"].signatures.startswith("not signed; name typed, not a signature: Chief Engineer")
+    assert rows["LD-02_revB.json"].signatures.startswith("not signed; name typed, not a signature: Chief Engineer")
 
 
 def test_the_review_workbook_asks_for_the_key(site, keys):
     from steamcalc.ui.review import ReviewBook
 
-    path = site / "records" / "LD-02_revA.json"
+    path = site / "records" / "LD-02_revB.json"
     before = _snapshot(path)
     book = ReviewBook(path)
     said = book.sign("C. Checker")
@@ -248,16 +248,16 @@ def test_the_review_workbook_asks_for_the_key(site, keys):
 def test_the_workbook_shows_a_typed_name_as_not_signed(site):
     from steamcalc.ui.review import ReviewBook
 
-    path = site / "records" / "LD-02_revA.json"
+    path = site / "records" / "LD-02_revB.json"
     _forge(path, lambda r: _typed_name(r, "C. Checker"))
     summary = ReviewBook(path).summary()
     assert "checked by: not signed (C. Checker: a name typed, not a signature)" in summary
     filtered = [r.json for r in ReviewBook(path).register("not signed")]
-    assert "LD-02_revA.json" in filtered
+    assert "LD-02_revB.json" in filtered
 
 
 def test_a_report_that_shows_a_typed_name_as_signed_is_redrawn_by_repair(site, capsys):
-    path = site / "records" / "LD-02_revA.json"
+    path = site / "records" / "LD-02_revB.json"
     comparisons = len(verify_record(load_record(path)).comparisons)
     _forge(path, lambda r: _typed_name(r, "C. Checker") or r["signoff"]["verification"].update(
         results_reproduced=f"{comparisons} of {comparisons}"))
@@ -285,17 +285,17 @@ def _library_sign(path, key_file, role, now, name=None):
 
 
 @pytest.mark.parametrize("what, record, chain, rule", [
-    ("approved without checked", "LD-02_revA.json", [("d-approver", "approved", "2026-01-02T00:00:00Z")], "order"),
-    ("approved before checked", "LD-02_revA.json", [("d-approver", "approved", "2026-01-01T00:00:00Z"),
+    ("approved without checked", "LD-02_revB.json", [("d-approver", "approved", "2026-01-02T00:00:00Z")], "order"),
+    ("approved before checked", "LD-02_revB.json", [("d-approver", "approved", "2026-01-01T00:00:00Z"),
                                                     ("c-checker", "checked", "2026-01-02T00:00:00Z")], "order"),
-    ("approval dated before the check", "LD-02_revA.json", [("c-checker", "checked", "2026-01-03T00:00:00Z"),
+    ("approval dated before the check", "LD-02_revB.json", [("c-checker", "checked", "2026-01-03T00:00:00Z"),
                                                             ("d-approver", "approved", "2026-01-02T00:00:00Z")], "order"),
-    ("one key for both", "LD-02_revA.json", [("c-checker", "checked", "2026-01-01T00:00:00Z"),
+    ("one key for both", "LD-02_revB.json", [("c-checker", "checked", "2026-01-01T00:00:00Z"),
                                              ("c-checker", "approved", "2026-01-02T00:00:00Z")], "keys"),
-    ("one person, two keys", "LD-02_revA.json", [("c-checker", "checked", "2026-01-01T00:00:00Z"),
+    ("one person, two keys", "LD-02_revB.json", [("c-checker", "checked", "2026-01-01T00:00:00Z"),
                                                  ("second", "approved", "2026-01-02T00:00:00Z")], "people"),
-    ("the preparer checks", "LD-02_revA.json", [("a-engineer", "checked", "2026-01-01T00:00:00Z")], "preparer"),
-    ("a failing record signed", "LD-09_revA.json", [("c-checker", "checked", "2026-01-01T00:00:00Z")], "failing"),
+    ("the preparer checks", "LD-02_revB.json", [("a-engineer", "checked", "2026-01-01T00:00:00Z")], "preparer"),
+    ("a failing record signed", "LD-09_revB.json", [("c-checker", "checked", "2026-01-01T00:00:00Z")], "failing"),
 ])
 def test_a_library_signature_that_breaks_a_rule_fails_verify_naming_it(site, issued, capsys, what, record, chain, rule):
     base = issued[1]
@@ -311,7 +311,7 @@ def test_a_library_signature_that_breaks_a_rule_fails_verify_naming_it(site, iss
 
 
 def test_a_library_chain_that_keeps_the_rules_verifies(site, keys, capsys):
-    path = site / "records" / "LD-02_revA.json"
+    path = site / "records" / "LD-02_revB.json"
     _library_sign(path, keys / "c-checker.key", "checked", "2026-01-01T00:00:00Z")
     _library_sign(path, keys / "d-approver.key", "approved", "2026-01-02T00:00:00Z")
     code, text = _run(["verify", path], capsys)
@@ -324,7 +324,7 @@ def test_sign_refuses_a_second_signature_with_the_same_key(site, keys, tmp_path,
     relabelled = tmp_path / "relabelled.key"
     relabelled.write_text((keys / "c-checker.key").read_text().replace("name: C. Checker", "name: D. Approver"))
     relabelled.chmod(0o600)
-    path = site / "records" / "LD-02_revA.json"
+    path = site / "records" / "LD-02_revB.json"
     assert main(["sign", str(path), "--key", str(keys / "c-checker.key")]) == 0
     code, text = _run(["sign", path, "--key", relabelled, "--role", "approved"], capsys)
     assert code == 1 and "two different keys" in text
@@ -342,7 +342,7 @@ def _tampered_results(record):
 
 @pytest.mark.parametrize("how", ["both digests recomputed", "public digest only", "created only, no digest"])
 def test_run_refuses_an_edited_record_and_never_redraws_from_it(site, capsys, how):
-    path = site / "records" / "LD-02_revA.json"
+    path = site / "records" / "LD-02_revB.json"
     record = json.loads(path.read_text())
     if how == "created only, no digest":
         record["created"] = "2020-01-01T00:00:00Z"
@@ -369,7 +369,7 @@ def test_run_keeps_an_intact_record_as_unchanged(site, capsys):
 
 @pytest.mark.parametrize("where", ["top level", "in a result"])
 def test_a_record_with_a_duplicate_key_is_refused_by_name(site, capsys, where):
-    path = site / "records" / "LD-02_revA.json"
+    path = site / "records" / "LD-02_revB.json"
     text = path.read_text()
     if where == "top level":
         text = text.replace('"status": "warn",', '"status": "warn",\n  "status": "pass",', 1)
@@ -382,17 +382,17 @@ def test_a_record_with_a_duplicate_key_is_refused_by_name(site, capsys, where):
     code, out = _run(["verify", path], capsys)
     assert code == 2 and str(path) in out and f"the key '{key}' appears twice" in out and "Fix:" in out, out
     assert "Traceback" not in out
-    row = {r.json: r for r in build_register(site)}["LD-02_revA.json"]
+    row = {r.json: r for r in build_register(site)}["LD-02_revB.json"]
     assert not row.valid and "appears twice" in row.verification
     code, out = _run(["run", site / "cases" / "LD-02.toml"], capsys)
     assert code == 2 and "not a readable record" in out
 
 
 def test_a_pdf_beside_a_record_is_reported_as_not_checked(site, capsys):
-    path = site / "records" / "LD-02_revA.json"
+    path = site / "records" / "LD-02_revB.json"
     path.with_suffix(".pdf").write_bytes(b"%PDF-1.4 anything at all\n")
     code, text = _run(["verify", path], capsys)
-    assert code == 0 and "companion LD-02_revA.pdf: NOT CHECKED" in text, text
-    row = {r.json: r for r in build_register(site)}["LD-02_revA.json"]
+    assert code == 0 and "companion LD-02_revB.pdf: NOT CHECKED" in text, text
+    row = {r.json: r for r in build_register(site)}["LD-02_revB.json"]
     assert row.companions == "match; not checked: pdf"
     assert render_html(load_record(path)) == path.with_suffix(".html").read_text()

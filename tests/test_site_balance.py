@@ -178,7 +178,7 @@ def test_demo_balance_issues_verifies_and_names_its_links(demo, capsys):
     record = json.loads(record_path.read_text(encoding="utf-8"))
     linked = {record["inputs"][k]["value"] for k in record["inputs"] if k.endswith(".link.record_id")}
     assert linked == {"LD-01", "LD-02", "FL-01", "HX-01"}
-    ld01 = json.loads((out / "LD-01_revA.json").read_text(encoding="utf-8"))
+    ld01 = json.loads((out / "LD-01_revB.json").read_text(encoding="utf-8"))
     assert record["inputs"]["letdown.LD-01.link.content_digest"]["value"] == ld01["content_digest"]
     capsys.readouterr()
     assert main(["verify", str(record_path)]) == 0
@@ -193,10 +193,10 @@ def test_verify_fails_when_a_linked_record_has_changed(demo, tmp_path, capsys):
     out = tmp_path / "records"
     assert main(["run", str(demo / "cases" / "SB-01.toml"), "--out", str(out)]) == 0
     for name in ("LD-01", "LD-02", "FL-01", "HX-01"):
-        shutil.copy(demo / "records" / f"{name}_revA.json", out)
+        shutil.copy(demo / "records" / f"{name}_revB.json", out)
     capsys.readouterr()
     assert main(["verify", str(out / "SB-01_revA.json")]) == 0
-    linked = out / "LD-01_revA.json"
+    linked = out / "LD-01_revB.json"
     record = json.loads(linked.read_text(encoding="utf-8"))
     record["title"] = "edited and re-digested"
     record["content_digest"] = compute_content_digest(record)
@@ -204,7 +204,7 @@ def test_verify_fails_when_a_linked_record_has_changed(demo, tmp_path, capsys):
     linked.write_text(json.dumps(record), encoding="utf-8")
     capsys.readouterr()
     assert main(["verify", str(out / "SB-01_revA.json")]) == 1
-    assert "LD-01_revA.json has changed since the balance used it" in capsys.readouterr().out
+    assert "LD-01_revB.json has changed since the balance used it" in capsys.readouterr().out
 
 
 def test_what_if_without_the_flash_needs_more_let_down_and_fuel(tmp_path):
@@ -287,14 +287,14 @@ def test_register_marks_the_balance_stale_when_a_linked_record_is_superseded_or_
     assert main(["register", str(site)]) in (0, 1)
     assert "STALE" not in capsys.readouterr().out
     case = site / "cases" / "LD-02.toml"
-    case.write_text(case.read_text().replace('revision = "A"', 'revision = "B"'))
+    case.write_text(case.read_text().replace('revision = "B"', 'revision = "C"'))
     assert main(["run", str(case), "--quiet"]) in (0, 1)
     capsys.readouterr()
     main(["register", str(site)])
     out = capsys.readouterr().out
-    assert "STALE: linked record LD-02 revision A (letdown.LD-02): revision B of LD-02 lies beside it" in out
+    assert "STALE: linked record LD-02 revision B (letdown.LD-02): revision C of LD-02 lies beside it" in out
     # Changed under the balance (edited, re-digested as a forger would): named as changed.
-    linked = site / "records" / "FL-01_revA.json"
+    linked = site / "records" / "FL-01_revB.json"
     record = json.loads(linked.read_text(encoding="utf-8"))
     record["title"] = "edited"
     record["content_digest"], record["digest"] = compute_content_digest(record), None
@@ -302,4 +302,4 @@ def test_register_marks_the_balance_stale_when_a_linked_record_is_superseded_or_
     linked.write_text(json.dumps(record), encoding="utf-8")
     capsys.readouterr()
     main(["register", str(site)])
-    assert "FL-01_revA.json has changed since the balance used it" in capsys.readouterr().out
+    assert "FL-01_revB.json has changed since the balance used it" in capsys.readouterr().out

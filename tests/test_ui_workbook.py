@@ -85,12 +85,12 @@ def test_second_save_says_unchanged_kept_and_links_the_files(site, tmp_path, mon
     workbook._on_save()
     first = workbook._save_status.value
     assert "New record saved" in first and "steamcalc-save-written" in workbook._save_status._dom_classes
-    assert "href='records/LD-02_revA.json'" in first and "href='records/LD-02_revA.html'" in first
+    assert "href='records/LD-02_revB.json'" in first and "href='records/LD-02_revB.html'" in first
     workbook._on_save()
     second = workbook._save_status.value
     assert "Unchanged, kept" in second and "New record saved" not in second
     assert "steamcalc-save-unchanged" in workbook._save_status._dom_classes
-    assert workbook.save().startswith("unchanged, kept: record LD-02 rev A")
+    assert workbook.save().startswith("unchanged, kept: record LD-02 rev B")
 
 
 def test_a_changed_record_under_the_same_revision_tells_to_raise_the_revision_box(site, tmp_path):
@@ -100,8 +100,8 @@ def test_a_changed_record_under_the_same_revision_tells_to_raise_the_revision_bo
     said = workbook.save()
     assert said.startswith("not saved") and "raise the Revision box" in said
     assert "[case]" not in said and "case file" not in said
-    workbook._revision.value = "B"
-    assert workbook.save().startswith("saved: record LD-02 rev B")
+    workbook._revision.value = "C"
+    assert workbook.save().startswith("saved: record LD-02 rev C")
 
 
 def test_a_bad_revision_is_refused_beside_the_revision_box(site, tmp_path):

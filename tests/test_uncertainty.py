@@ -129,7 +129,7 @@ def test_ld01_record_carries_uncertainty_and_reverifies(tmp_path, demo_site_dir,
     site = tmp_path / "site"
     shutil.copytree(demo_site_dir, site, ignore=shutil.ignore_patterns("records"))
     assert main(["run", str(site / "cases" / "LD-01.toml")]) == 0
-    path = site / "records" / "LD-01_revA.json"
+    path = site / "records" / "LD-01_revB.json"
     record = load_record(path)
     section = record["uncertainty"]
     assert section["samples"] == 2000 and section["valid_samples"] == 2000
@@ -139,7 +139,7 @@ def test_ld01_record_carries_uncertainty_and_reverifies(tmp_path, demo_site_dir,
     assert check["kind"] == "limit" and check["quantity"] == {"value": 0.0, "unit": "percent"}
     assert check["limits"] == [{"comparison": "<=", "limit": {"value": 1.0, "unit": "percent"}, "breach": "warn"}]
     assert any(line.startswith("outlet temperature") and "most sensitive to" in line for line in section["summary"])
-    assert "Uncertainty" in (site / "records" / "LD-01_revA.html").read_text()
+    assert "Uncertainty" in (site / "records" / "LD-01_revB.html").read_text()
     capsys.readouterr()
     assert main(["verify", "--all", str(path)]) == 0
     assert "uncertainty.outlet_temperature.p95" in capsys.readouterr().out
@@ -168,8 +168,8 @@ def test_a_record_whose_samples_partly_fail_verifies_as_issued(tmp_path, demo_si
     case = site / "cases" / "LD-01.toml"
     case.write_text(case.read_text().replace('mass_flow = "5 %"', 'mass_flow = "90 %"'))
     assert main(["run", str(case)]) == 0
-    record = load_record(site / "records" / "LD-01_revA.json")
+    record = load_record(site / "records" / "LD-01_revB.json")
     assert any(w.startswith("Uncertainty samples:") for w in record["warnings"])
     capsys.readouterr()
-    assert main(["verify", str(site / "records" / "LD-01_revA.json")]) == 0
+    assert main(["verify", str(site / "records" / "LD-01_revB.json")]) == 0
     assert "verdict: VERIFIED" in capsys.readouterr().out

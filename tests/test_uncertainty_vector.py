@@ -212,9 +212,9 @@ def test_fresh_ld01_record_verifies(tmp_path, demo_site_dir, capsys):
     site = tmp_path / "site"
     shutil.copytree(demo_site_dir, site, ignore=shutil.ignore_patterns("records"))
     assert main(["run", str(site / "cases" / "LD-01.toml")]) == 0
-    path = site / "records" / "LD-01_revA.json"
+    path = site / "records" / "LD-01_revB.json"
     capsys.readouterr()
-    assert main(["verify", str(path)]) == 0
+    assert main(["verify", "--all", str(path)]) == 0
     out = capsys.readouterr().out
     assert "uncertainty.valve_kv.p95" in out
 

@@ -126,7 +126,7 @@ def test_verify_prints_an_input_typed_in_degf_in_degf(tmp_path):
         main(["run", str(case), "--out", str(tmp_path / "records"), "--quiet"])
     out = io.StringIO()
     with contextlib.redirect_stdout(out):
-        assert main(["verify", str(tmp_path / "records" / "LD-02_revA.json")]) == 0
+        assert main(["verify", "--all", str(tmp_path / "records" / "LD-02_revB.json")]) == 0
     printed = out.getvalue()
     row = next(line for line in printed.splitlines() if line.strip().startswith("Inlet temperature "))
     assert re.search(r"\b750\s+750\s+°F\b", row), row             # 750 °F = 398.8889 °C, NIST SP 811

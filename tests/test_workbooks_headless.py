@@ -19,12 +19,12 @@ def test_letdown_workbook_with_papermill(tmp_path, demo_site_dir):
         parameters={"case_file": str(site / "cases" / "LD-02.toml"), "record_folder": str(records)},
         kernel_name="python3",
     )
-    record = load_record(records / "LD-02_revA.json")
+    record = load_record(records / "LD-02_revB.json")
     assert record["inputs"]["mass_flow"]["given"] == "2.0 t/h"
     assert verify_record(record).ok
     executed = json.loads((tmp_path / "executed.ipynb").read_text())
     printed = "".join("".join(o.get("text", "")) for c in executed["cells"] for o in c.get("outputs", []))
-    assert "LD-02 rev A" in printed and "Traceback" not in printed
+    assert "LD-02 rev B" in printed and "Traceback" not in printed
 
 
 def test_bad_case_path_shows_a_message_not_a_traceback(tmp_path, demo_site_dir):

@@ -51,7 +51,7 @@ def run_notebook(case, out_dir, stem, force=False):
     target = Path(out_dir) / f"{stem}.ipynb"
     _refuse_foreign(target, force)
     partial = target.with_name(f".{target.stem}.part.ipynb")
-    with _local_kernel() as kernel_options:
+    with _local_kernel() as (kernel_options, kernel_log):
         try:
             papermill.execute_notebook(
                 str(workbook), str(partial), cwd=str(workbook.parent), progress_bar=False, kernel_name="python3",
@@ -59,7 +59,9 @@ def run_notebook(case, out_dir, stem, force=False):
                             "save_on_run": False}, **kernel_options)
         except Exception as exc:  # papermill wraps kernel errors in its own exception types
             partial.unlink(missing_ok=True)
-            raise SteamcalcError(f"the workbook {workbook.name} did not run: {exc}", source=case.path) from None
+            said = _log_tail(kernel_log)
+            raise SteamcalcError(f"the workbook {workbook.name} did not run: {exc}"
+                                 + (f" (the kernel said: {said})" if said else ""), source=case.path) from None
     os.replace(partial, target)
     return target
 
@@ -73,10 +75,15 @@ def _local_kernel():
     reached through sockets in a private temporary folder instead (mode 0700, removed after the
     run): nothing listens on the network and the warning does not arise. The kernel manager is
     still made, started and shut down by the notebook client, and the kernel's own errors still
-    reach stderr. Elsewhere (Windows) the default manager is used.
+    reach the user: the kernel's standard error goes to a log in that folder, quoted in the refusal
+    when the workbook fails. When it runs, the log is dropped: what a kernel prints as it shuts down
+    (a messaging library's assertion on a loaded machine, seen once in CI) is not the user's business,
+    and the notebook's own errors are in its outputs. Elsewhere (Windows) the default manager is used.
+
+    Yields (papermill options, path of the kernel's log or None).
     """
     if os.name == "nt":
-        yield {}
+        yield {}, None
         return
     from jupyter_client.manager import AsyncKernelManager
     from traitlets import default
@@ -93,10 +100,27 @@ def _local_kernel():
             # The sockets are named after it, so they land in the private folder too.
             return os.path.join(folder, "kernel.json")
 
+        async def _async_pre_start_kernel(self, **kw):
+            kernel_cmd, kw = await super()._async_pre_start_kernel(**kw)
+            kw["stderr"] = log_file
+            return kernel_cmd, kw
+
+    log_path = os.path.join(folder, "kernel.log")
+    log_file = open(log_path, "wb")  # noqa: SIM115 - kept open for the kernel's whole life
     try:
-        yield {"kernel_manager_class": LocalSocketKernelManager}
+        yield {"kernel_manager_class": LocalSocketKernelManager}, log_path
     finally:
+        log_file.close()
         shutil.rmtree(folder, ignore_errors=True)
+
+
+def _log_tail(path, limit=400):
+    """The last ``limit`` characters of a kernel's log, on one line; '' when there is none."""
+    if path is None or not os.path.exists(path):
+        return ""
+    with open(path, "rb") as log:
+        text = log.read().decode("utf-8", "replace")
+    return " ".join(text.split())[-limit:]
 
 
 def find_chromium():

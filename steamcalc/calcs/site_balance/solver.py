@@ -168,7 +168,6 @@ def solve_case(inputs, site, case, states, out_of_service=()):
     flashed_users = {f.from_user for f in flashes}
     letdowns = {ld.target: ld for ld in inputs.letdowns if ld.name not in off}
     h_header = {h: vapour[h].enthalpy for h in headers}
-    h_boiler = states["boiler_steam"].enthalpy
     h_fw, h_mu = states["feedwater"].enthalpy, states["makeup"].enthalpy
     h_v = states["deaerator_vent"].enthalpy
     blowdown_ratio = boiler.blowdown_of_steam
