@@ -143,6 +143,11 @@ _HELP = {
         "property engine, its HTML and Markdown matching its JSON. The case compared is the file named as\n"
         "steamcalc names it (ID.toml, or ID_revR.toml as the workbooks save), its [uncertainty] table too;\n"
         "other files giving the same id are named in a warning.\n\n"
+        "Every record is recomputed and its reports redrawn. With --remember, a record this same steamcalc (byte\n"
+        "for byte, with the same libraries) verified before, unchanged since, is not recomputed again and a\n"
+        "report it drew before is compared by its digest (said so in its row): the memory is kept in your cache\n"
+        "folder (STEAMCALC_CACHE, else ~/.cache/steamcalc), never among the records, only for records that\n"
+        "verified. It is for re-listing a large folder quickly; a register you sign against is made without it.\n\n"
         "--html and --csv replace only a register steamcalc wrote; any other file is refused unless --force,\n"
         "and a record's own files, folders and devices are never written over.",
         ["steamcalc register demo_site",
@@ -241,6 +246,8 @@ def _parser():
     register.add_argument("--csv", metavar="FILE.csv", help="also write the register as CSV")
     register.add_argument("--trusted", metavar="DIR", help="trusted signers folder (default: the one in your "
                           "settings file, else the site's trusted_signers/; never one among the records)")
+    register.add_argument("--remember", action="store_true", help="use and keep this machine's memory of the records "
+                          "the same steamcalc verified before: those are not recomputed (default: every record is)")
     register.add_argument("--force", action="store_true", help="replace an existing FILE.html or FILE.csv that is "
                           "not a register steamcalc wrote (never a record's file, a folder or a device)")
 
@@ -714,7 +721,7 @@ def _register(args):
     for target, _ in targets:   # refused before the records are recomputed, not after
         refuse_foreign_file(target, args.force, "register")
     trust = register_trust(args.folder, args.trusted)
-    rows = build_register(args.folder, trusted_dir=args.trusted)
+    rows = build_register(args.folder, trusted_dir=args.trusted, remember=args.remember)
     _say(f"trusted signers: {trust.describe()}")
     for note in trust.notes():
         _say(note)

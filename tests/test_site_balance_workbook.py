@@ -36,9 +36,25 @@ def test_site_balance_workbook_with_papermill(tmp_path, demo_site_dir):
     assert sum("application/vnd.plotly.v1+json" in o.get("data", {}) for o in outputs) == 2
 
 
+def test_links_not_yet_issued_are_issued_from_their_case_files_first(tmp_path, demo_site_dir):
+    # A fresh checkout has no records: the workbook issues what the balance links, as `run` on the site would.
+    site = tmp_path / "site"
+    shutil.copytree(demo_site_dir, site, ignore=shutil.ignore_patterns("records"))
+    papermill.execute_notebook(
+        str(demo_site_dir.parent / "site_balance.ipynb"), str(tmp_path / "executed.ipynb"), cwd=str(tmp_path),
+        progress_bar=False, kernel_name="python3",
+        parameters={"case_file": str(site / "cases" / "SB-01.toml"), "record_folder": str(tmp_path / "records")})
+    outputs, text = _outputs(tmp_path / "executed.ipynb")
+    assert "LD-01 rev B issued from LD-01.toml (it was not in records/)" in text and "SB-01 rev A: PASS" in text
+    assert not any(o.get("output_type") == "error" for o in outputs)
+    assert sorted(p.name for p in (site / "records").glob("*.json")) == \
+        ["FL-01_revB.json", "HX-01_revB.json", "LD-01_revB.json", "LD-02_revB.json"]
+
+
 def test_a_balance_whose_links_are_not_issued_shows_a_message_not_a_traceback(tmp_path, demo_site_dir):
     site = tmp_path / "site"
     shutil.copytree(demo_site_dir, site, ignore=shutil.ignore_patterns("records"))
+    (site / "cases" / "LD-02.toml").unlink()   # nothing here issues the linked LD-02: refused by name
     papermill.execute_notebook(
         str(demo_site_dir.parent / "site_balance.ipynb"), str(tmp_path / "executed.ipynb"), cwd=str(tmp_path),
         progress_bar=False, kernel_name="python3",

@@ -29,7 +29,8 @@ from .steam_main import calculation as steam_main_calculation
 _REGISTRY = {module.KIND: module for module in (letdown_calculation, flash_calculation, exchanger_calculation,
                                                  site_balance_calculation, steam_main_calculation)}
 #: Kind -> its vectorised sample path, imported on first use (numpy and the array engine).
-_SAMPLE_PATHS = {letdown_calculation.KIND: ".letdown.vector"}
+_SAMPLE_PATHS = {letdown_calculation.KIND: ".letdown.vector", flash_calculation.KIND: ".flash.vector",
+                 exchanger_calculation.KIND: ".exchanger.vector"}
 
 
 def kinds():
@@ -57,8 +58,8 @@ def sample_path(calc):
 
     Examples
     --------
-    >>> sample_path(get_calculation("letdown")).__name__, sample_path(get_calculation("flash"))
-    ('steamcalc.calcs.letdown.vector', None)
+    >>> sample_path(get_calculation("letdown")).__name__, sample_path(get_calculation("flash")).__name__
+    ('steamcalc.calcs.letdown.vector', 'steamcalc.calcs.flash.vector')
     """
     kind = getattr(calc, "KIND", None)
     if kind not in _SAMPLE_PATHS or _REGISTRY.get(kind) is not calc:

@@ -338,6 +338,57 @@ def properties_p_dryness(pressure, dryness):
                           1.0 / lever(_V), None, _each(_if97.px, p_mpa, 1.0, _MU))
 
 
+#: What :func:`saturated_pair` can give, and the seuif97 ids of the ends it levers.
+_SATURATED_IDS = {"enthalpy": _H, "entropy": _S, "density": _V}
+
+
+def saturated_pair(pressure, wanted=tuple(_SATURATED_IDS)):
+    """Saturated liquid and vapour over an array of absolute pressures (Pa, below critical), in one pass.
+
+    The values :func:`properties_p_dryness` gives at dryness 0 and at dryness 1, from one evaluation
+    of the ends (what a flash or a condensing zone reads of both sides of the line at once).
+
+    Parameters
+    ----------
+    pressure : array_like
+        Pa (absolute).
+    wanted : sequence of str
+        ``enthalpy``, ``entropy``, ``density`` (default all); the others are None.
+
+    Returns
+    -------
+    tuple of PropertyArrays
+        ``(liquid, vapour)``: saturation temperature and the wanted properties; no speed of sound
+        or viscosity.
+
+    References
+    ----------
+    IAPWS R7-97(2012), equations (30)-(31) with regions 1 and 2 at saturation (as
+    :func:`properties_p_dryness`). Through seuif97.
+
+    Examples
+    --------
+    >>> liquid, vapour = saturated_pair([1e5], ("enthalpy", "density"))
+    >>> round(float(liquid.enthalpy[0]) / 1e3, 2), round(float(vapour.enthalpy[0]) / 1e3, 1), vapour.entropy
+    (417.44, 2674.9, None)
+    """
+    p = np.atleast_1d(np.asarray(pressure, dtype=float)).ravel()
+    _refuse_outside("pressure", p, MIN_PRESSURE, CRITICAL_PRESSURE, 1e5, "bar(a)",
+                    "IF97 region 4, the saturation line (0.00611213 to 220.64 bar(a), the critical point)")
+    p_mpa = (p / 1e6).tolist()
+    temperature = _each(_if97.px2t, p_mpa, 0.0) + 273.15
+    sides = ({}, {})
+    for name in wanted:
+        oid = _SATURATED_IDS[name]
+        low, high = _each(_if97.px, p_mpa, 0.0, oid), _each(_if97.px, p_mpa, 1.0, oid)
+        # The lever rule at x = 0 and x = 1, as properties_p_dryness evaluates it (the same roundings).
+        for side, x in zip(sides, (0.0, 1.0)):
+            value = low + x * (high - low)
+            side[name] = 1.0 / value if oid == _V else value * 1e3
+    return tuple(PropertyArrays(temperature, side.get("enthalpy"), side.get("entropy"), side.get("density"), None,
+                                None) for side in sides)
+
+
 def saturation_temperatures(pressure):
     """Saturation temperature (K) over an array of absolute pressures (Pa, up to the critical pressure).
 

@@ -137,8 +137,12 @@ def record_stem(record):
     return f"{record['id']}_rev{record['revision']}"
 
 
-def load_record(path):
+def load_record(path, known_valid=None):
     """Read a record file and check it is a steamcalc record (not yet its digest).
+
+    ``known_valid``, when given, is asked of the record as read: True when this very record (its digest
+    intact) is known to follow the schema already (the register's memory of it), so the schema is not checked
+    a second time; its shape always is.
 
     The file is read within a size limit (:data:`steamcalc.cases.inputfiles.MAX_RECORD_FILE`), and
     the parts that later steps rely on are type-checked, so an edited or crafted record is
@@ -186,7 +190,8 @@ def load_record(path):
         if key not in data:
             raise RecordError("the record has no '%s'" % key, field=key, source=path)
     _check_record_shape(data, path)
-    validate_record(data, source=path)
+    if known_valid is None or not known_valid(data):
+        validate_record(data, source=path)
     return data
 
 

@@ -82,7 +82,7 @@ def _environment(autoescape):
     return env
 
 
-def _context(record, earlier=False):
+def _context(record, earlier=False, shown=None):
     from ..calcs import get_calculation
     from .display import display_record, pressure_basis
 
@@ -93,7 +93,8 @@ def _context(record, earlier=False):
 
     from .figures_svg import record_figures  # the sketch and charts block (HTML only; drawn when the template asks)
 
-    shown = display_record(record)
+    if shown is None:
+        shown = display_record(record)
 
     def figures():
         drawn = record_figures(record, shown)
@@ -155,16 +156,18 @@ def _numbered(sections):
     return [(number, anchor, heading) for number, (anchor, heading) in enumerate(sections, start=1)]
 
 
-def render_html(record):
+def render_html(record, shown=None):
     """The record as one self-contained HTML page (no scripts, no network): a first page for the checker
     (identity, status, the governing results, every failing or warning check, the signatures), a page break
-    when printed, then the detail by numbered section."""
-    return _environment(True).get_template("record.html.j2").render(**_context(record))
+    when printed, then the detail by numbered section. ``shown`` is the record's
+    :func:`~steamcalc.render.display.display_record` when the caller has it already (it is made otherwise)."""
+    return _environment(True).get_template("record.html.j2").render(**_context(record, shown=shown))
 
 
-def render_markdown(record):
-    """The record as Markdown: the same first page, a rule, then the detail by numbered section."""
-    return _environment(False).get_template("record.md.j2").render(**_context(record))
+def render_markdown(record, shown=None):
+    """The record as Markdown: the same first page, a rule, then the detail by numbered section (``shown`` as for
+    :func:`render_html`)."""
+    return _environment(False).get_template("record.md.j2").render(**_context(record, shown=shown))
 
 
 #: The layout releases 0.2 and 0.3 drew a record's reports in, before the first page for the checker.

@@ -263,7 +263,7 @@ def _site_changes(record, site_path):
 
 
 def register_row(path, record, *, trusted, case=None, site_path=None, later_revision=None, recompute=True,
-                 case_warning=None):
+                 case_warning=None, memory=None, intact=None):
     """The register's row for one record.
 
     Parameters
@@ -284,6 +284,11 @@ def register_row(path, record, *, trusted, case=None, site_path=None, later_revi
         just computed the records does).
     case_warning : str, optional
         Said beside the case file column (other case files give the same id: :func:`case_for_record`).
+    memory : steamcalc.review.memory.RegisterMemory, optional
+        What this software has verified and drawn before (:mod:`steamcalc.review.memory`): a record it verified
+        is not recomputed again, a report whose digest it knows is not drawn again.
+    intact : bool, optional
+        Both the record's digests hold, when the caller has checked them already.
     """
     from ..records.record import provenance
     from .verify import check_companions, verify_record
@@ -292,15 +297,13 @@ def register_row(path, record, *, trusted, case=None, site_path=None, later_revi
 
     row = RegisterRow(json=Path(path).name, id=record["id"], revision=str(record["revision"]), kind=record["kind"],
                       title=record.get("title", ""), path=str(path))
+    if intact is None:
+        intact = _intact(record)
     if not recompute:
-        from ..records.record import compute_content_digest, compute_digest
-
-        intact = compute_digest(record) == record.get("digest") and \
-            compute_content_digest(record) == record.get("content_digest")
         row.status, row.verification, row.valid = record.get("status", ""), "intact" if intact else "EDITED", intact
         outcome = None
     else:
-        outcome = verify_record(record)
+        outcome = _verification(record, intact, memory)
         row.status = outcome.recomputed_status or record.get("status", "")
     if outcome is None:
         pass
@@ -367,7 +370,7 @@ def register_row(path, record, *, trusted, case=None, site_path=None, later_revi
     if versions:
         row.software = ", ".join(versions)
         row.stale.append("software differs")
-    companions = check_companions(path, record)
+    companions = check_companions(path, record, memory=memory, intact=intact)
     differ = [c.path.suffix.lstrip(".") for c in companions if c.differs]
     absent = [c.path.suffix.lstrip(".") for c in companions if c.verdict == "absent"]
     older = [c.path.suffix.lstrip(".") for c in companions if c.verdict == "older"]
@@ -381,7 +384,34 @@ def register_row(path, record, *, trusted, case=None, site_path=None, later_revi
     return row
 
 
-def build_register(folder, trusted_dir=None, recompute=True):
+def _intact(record):
+    """Both the record's digests hold (its every byte and its engineering content are as issued)."""
+    from ..records.record import compute_content_digest, compute_digest
+
+    return compute_digest(record) == record.get("digest") and \
+        compute_content_digest(record) == record.get("content_digest")
+
+
+def _verification(record, intact, memory):
+    """The record's verification: recomputed, or — for an intact record this software verified before, and
+    with no typed sign-off (whose claims are compared with the full comparison) — as it was then."""
+    from .verify import Verification, provenance, verify_record
+
+    known = None
+    if memory is not None and not record.get("signoff") and not record.get("checked_by"):
+        known = memory.verified(record, intact)
+    if known is None:
+        outcome = verify_record(record)
+        if memory is not None:
+            memory.remember_verified(record, intact, outcome)
+        return outcome
+    now, then = provenance(), record.get("provenance", {})
+    return Verification(digest_ok=True, content_digest_ok=True, recomputed_status=known[0], recomputed_failing=known[1],
+                        version_changes={k: (then.get(k), v) for k, v in now.items() if then.get(k) != v},
+                        notes=["verified before by this same software (the register's memory); not recomputed"])
+
+
+def build_register(folder, trusted_dir=None, recompute=True, remember=False):
     """Every record of a site folder (its ``records/``) or of a records folder.
 
     Parameters
@@ -393,14 +423,20 @@ def build_register(folder, trusted_dir=None, recompute=True):
         list in the records folder, :func:`steamcalc.signing.trust.resolve_trust`).
     recompute : bool
         Re-run every record to verify it (see :func:`register_row`).
+    remember : bool
+        Use and keep this machine's memory of what the same software verified and drew before
+        (:mod:`steamcalc.review.memory`); off by default: every record is recomputed and drawn (a register
+        someone signs against must not rest on a cache); ``register --remember`` turns it on.
 
     Returns
     -------
     list of RegisterRow
         Sorted by id, then revision.
     """
+    from ..properties.engines import remembering_states
     from ..records.record import load_record
     from ..signing.trust import resolve_trust
+    from .memory import RegisterMemory
 
     site_dir, records_dir = _folders(folder)
     files = sorted(records_dir.glob("*.json")) if records_dir.is_dir() else []
@@ -411,18 +447,26 @@ def build_register(folder, trusted_dir=None, recompute=True):
                              fix="name a site folder whose records/ holds records, or a records folder; "
                                  "issue the records first with steamcalc run")
     trusted = resolve_trust(records_dir, trusted_dir, site_dir).keys
-    records, unreadable = [], []
+    memory = RegisterMemory.open() if recompute and remember else None
+    records, unreadable, intact = [], [], []
     for path in files:
+        whole = []
+
+        def known_valid(data):
+            # Digests checked once here. A record this software verified before, byte for byte (its digest
+            # intact), followed the schema then.
+            whole.append(_intact(data))
+            return memory is not None and whole[0] and memory.verified(data, True) is not None
         try:
-            records.append((path, load_record(path)))
+            record = load_record(path, known_valid=known_valid)
         except SteamcalcError as exc:
             unreadable.append(RegisterRow(json=path.name, verification=f"not a readable record ({exc.message})",
                                           valid=False, stale=["not a readable record"], path=str(path)))
-    from ..records.record import compute_digest
-
+            continue
+        records.append((path, record))
+        intact.append(whole[0])
     # An edited file (its digest broken) supersedes no intact revision; an id with none intact keeps its
-    # highest revision as the latest.
-    intact = [compute_digest(record) == record.get("digest") for _, record in records]
+    # highest revision as the latest. (Either digest broken: the record is edited.)
     with_intact = {record["id"] for (_, record), ok in zip(records, intact) if ok}
     latest = {}
     for (_, record), ok in zip(records, intact):
@@ -434,16 +478,22 @@ def build_register(folder, trusted_dir=None, recompute=True):
     cases = _cases_by_id(site_dir)
     site_file = site_dir / "site.toml" if site_dir else None
     rows = []
-    for path, record in records:
-        case, case_warning = case_for_record(record, cases.get(record["id"], []))
-        if case is not None and case.site_path is not None:
-            site_path = case.site_path
-        else:
-            site_path = site_file
-        top = latest[record["id"]]
-        rows.append(register_row(path, record, trusted=trusted, case=case, site_path=site_path,
-                                 later_revision=None if revision_order(str(record["revision"])) >= revision_order(top)
-                                 else top, recompute=recompute, case_warning=case_warning))
+    # A site's records share its headers' states: each is evaluated once for the whole register, and every
+    # record is still recomputed in full (remembering changes no value, only how often it is evaluated).
+    with remembering_states():
+        for (path, record), whole in zip(records, intact):
+            case, case_warning = case_for_record(record, cases.get(record["id"], []))
+            if case is not None and case.site_path is not None:
+                site_path = case.site_path
+            else:
+                site_path = site_file
+            top = latest[record["id"]]
+            later = None if revision_order(str(record["revision"])) >= revision_order(top) else top
+            rows.append(register_row(path, record, trusted=trusted, case=case, site_path=site_path,
+                                     later_revision=later, recompute=recompute, case_warning=case_warning,
+                                     memory=memory, intact=whole))
+    if memory is not None:
+        memory.save()
     rows.sort(key=lambda r: (r.id, revision_order(r.revision)))
     return rows + unreadable
 

@@ -13,6 +13,7 @@ engine already); the ordinary verification reproduces them.
 from __future__ import annotations
 
 import ast
+import functools
 import re
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -309,6 +310,18 @@ def _given_raw(given, kind, site_table, name):
     return given, None
 
 
+@functools.lru_cache(maxsize=None)
+def _probe(kind, name):
+    """A one-field Inputs class holding input ``name`` of a kind, with its metadata: what a text as given is read
+    into. Made once per input (the classes are the same whichever record asks)."""
+    import dataclasses
+
+    from ..calcs.base import input_fields
+
+    metadata = next(f for f in input_fields(get_calculation(kind).Inputs) if f.name == name).metadata
+    return dataclasses.make_dataclass("Given", [(name, object, dataclasses.field(default=None, metadata=metadata))])
+
+
 def given_changes(record):
     """Each input whose text as given does not read as the value the record holds, one line each.
 
@@ -348,8 +361,7 @@ def given_changes(record):
         if not isinstance(given, str):
             changes.append(f"{where}: its text as given is not text ({given!r})")
             continue
-        probe = dataclasses.make_dataclass("Given", [(name, object, dataclasses.field(default=None,
-                                                                                      metadata=f.metadata))])
+        probe = _probe(calc.KIND, name)
         header = None
         try:
             if given == "(default)":
@@ -773,7 +785,7 @@ def _typed_name_shown_as_signed(text, record):
         and ("Checked and signed" in text or "(name only, no key)" in text)
 
 
-def check_companions(json_path, record, repair=False):
+def check_companions(json_path, record, repair=False, memory=None, intact=False):
     """Re-render a record's HTML and Markdown and compare them with the files beside it.
 
     A report of a schema-1 record that is as this release draws it but for the charts release 0.2 drew
@@ -793,6 +805,11 @@ def check_companions(json_path, record, repair=False):
         The record as read from it.
     repair : bool
         Re-write the reports that differ or are absent (only do this for a record that verifies).
+    memory : steamcalc.review.memory.RegisterMemory, optional
+        The digests of the reports this software draws from records it has drawn before: a report whose
+        digest is the remembered one matches without being drawn again.
+    intact : bool
+        The record's digest holds (a memory is consulted only for such a record).
 
     Returns
     -------
@@ -801,14 +818,33 @@ def check_companions(json_path, record, repair=False):
     from ..records.record import write_text_atomic
     from ..render.report import RENDERERS, render_earlier
 
+    from ..render.display import display_record
+
+    from .memory import text_digest
+
     checks = []
     staging = issue_in_progress(json_path)
-    for suffix, render in RENDERERS.items():
+    drawn = {}
+
+    def draw(suffix):
+        # Each report drawn at most once, the record's display made once for both.
+        if suffix not in drawn:
+            if "shown" not in drawn:
+                drawn["shown"] = display_record(record)
+            drawn[suffix] = RENDERERS[suffix](record, shown=drawn["shown"])
+            if memory is not None:
+                memory.remember_report(record, intact, suffix, drawn[suffix])
+        return drawn[suffix]
+
+    for suffix in RENDERERS:
         path = Path(json_path).with_suffix(suffix)
-        fresh = render(record)
         text, verdict, problem = _read_report(path)
-        if verdict is None:
-            verdict = "match" if text == fresh else "differs"
+        known = memory.report_digest(record, intact, suffix) if memory is not None else None
+        if verdict is None and known is not None and text_digest(text) == known:
+            verdict = "match"   # the very text this software draws from this record
+        elif verdict is None:
+            verdict = "match" if text == draw(suffix) else "differs"
+        fresh = draw(suffix) if verdict != "match" else None
         # A report in the layout earlier releases drew (before the first page), showing this very JSON, is not edited.
         earlier = render_earlier(record, suffix) if verdict == "differs" and text is not None else None
         if verdict == "differs" and earlier is not None and text == earlier:

@@ -226,4 +226,44 @@ def record_charts(record):
     return figures, missing
 
 
-__all__ = ["record_charts", "table_for", "shown_rows", "figure_json", "tornado_chart"]
+#: Most charts a workbook keeps drawn (a few per kind, for the last inputs and those before).
+MAX_DRAWN = 48
+
+
+def record_chart_json(record, drawn):
+    """The record's charts as the plotly JSON a notebook renders (:func:`figure_json`), and the reasons of those
+    not drawn: what :func:`record_charts` draws, each figure drawn once for its data.
+
+    Parameters
+    ----------
+    record : dict
+    drawn : dict
+        The caller's own memory of the charts drawn, kept between calls: a figure whose data and display system
+        are those of a chart drawn before (a flow changed leaves the h-s chart as it was) is not drawn again.
+
+    Returns
+    -------
+    (list of dict, list of str)
+
+    Examples
+    --------
+    >>> record = {"site": {"display_units": "SI"}, "figures": [{"name": "x", "title": "X", "missing": "no data"}]}
+    >>> record_chart_json(record, {})
+    ([], ['X: no data'])
+    """
+    system = record.get("site", {}).get("display_units", "SI")
+    charts, missing = [], []
+    for figure in record.get("figures", []):
+        key = json.dumps([system, figure], sort_keys=True)
+        if key not in drawn:
+            figures, reasons = record_charts({"site": {"display_units": system}, "figures": [figure]})
+            if len(drawn) >= MAX_DRAWN:
+                drawn.pop(next(iter(drawn)))
+            drawn[key] = (figure_json(figures[0]) if figures else None, reasons)
+        chart, reasons = drawn[key]
+        charts.extend([chart] if chart is not None else [])
+        missing.extend(reasons)
+    return charts, missing
+
+
+__all__ = ["record_charts", "record_chart_json", "table_for", "shown_rows", "figure_json", "tornado_chart"]

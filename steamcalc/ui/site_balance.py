@@ -8,12 +8,13 @@ that cannot run is shown as its error, by file and field, never a traceback.
 
 from __future__ import annotations
 
+import re
 from pathlib import Path
 
 from ..calcs.site_balance.comparison import comparison_rows
 from ..calcs.site_balance.figures import sankey_links
 from ..cases.site import case_site, load_case
-from ..errors import RecordConflictError, SteamcalcError
+from ..errors import InputError, RecordConflictError, SteamcalcError
 from ..records.build import record_for_case
 from ..records.record import write_record
 from ..render.report import RENDERERS, format_unit
@@ -33,15 +34,34 @@ class BalanceBook:
     def __init__(self, case_file, record_folder):
         self.case_file = Path(case_file)
         self.record_folder = Path(record_folder)
-        self.record, self.error = None, None
+        self.record, self.error, self.issued = None, None, []
         try:
             self.case = load_case(self.case_file)
             if self.case.kind != "balance":
                 raise SteamcalcError(f"this workbook runs site balances; {self.case_file.name} is a {self.case.kind} "
                                      "case", source=self.case_file, fix="open it in its own kind's workbook")
-            self.record, _ = record_for_case(self.case, case_site(self.case), record_folder=self.record_folder)
+            self._compute()
         except SteamcalcError as exc:
             self.error = str(exc)
+
+    def _compute(self):
+        """The balance's record; a linked record not issued yet is issued first from its case file beside the
+        balance's (as ``steamcalc run`` on the site folder would), and said so in :attr:`issued`."""
+        site = case_site(self.case)
+        for _ in range(50):
+            try:
+                self.record, _ = record_for_case(self.case, site, record_folder=self.record_folder)
+                return
+            except InputError as exc:
+                missing = _MISSING_LINK.match(exc.message)
+                case_path = missing and _linked_case_file(self.case_file.parent, missing["id"], missing["revision"])
+                if case_path is None:
+                    raise
+                linked = load_case(case_path)
+                record, _ = record_for_case(linked, case_site(linked))
+                write_record(record, Path(missing["path"]).parent, RENDERERS)
+                self.issued.append(f"{linked.id} rev {linked.revision} issued from {case_path.name} "
+                                   f"(it was not in {Path(missing['path']).parent.name}/)")
 
     def _rows(self, keys):
         results = self.record["results"]
@@ -54,10 +74,11 @@ class BalanceBook:
                 if key.startswith("load_case.") and key.endswith(".name")]
 
     def message(self):
-        """What stops the balance, or its status and where it stands."""
+        """What stops the balance, or its status and where it stands (and any linked record issued for it)."""
+        first = "".join(f"{line}\n" for line in self.issued)
         if self.error:
-            return f"not run: {self.error}"
-        return (f"{self.record['id']} rev {self.record['revision']}: {self.record['status'].upper()} - "
+            return f"{first}not run: {self.error}"
+        return (f"{first}{self.record['id']} rev {self.record['revision']}: {self.record['status'].upper()} - "
                 f"{len(self.load_cases())} load cases, {len(self.record['checks'])} checks")
 
     def summary(self):
@@ -139,3 +160,22 @@ class BalanceBook:
         except SteamcalcError as exc:
             return f"not saved: {exc}"
         return f"saved: {name}, {paths[0]}" if status == "written" else f"unchanged, kept: {name}, {paths[0]}"
+
+
+_MISSING_LINK = re.compile(r"^linked record (?P<id>\S+) revision (?P<revision>\S+) is not at (?P<path>.+)$")
+
+
+def _linked_case_file(folder, record_id, revision):
+    """The case file beside the balance's that issues ``record_id`` at ``revision`` (ID_revR.toml, else ID.toml
+    when it holds that revision), or None."""
+    for name in (f"{record_id}_rev{revision}.toml", f"{record_id}.toml"):
+        path = Path(folder) / name
+        if not path.is_file():
+            continue
+        try:
+            case = load_case(path)
+        except SteamcalcError:
+            return None
+        if case.id == record_id and str(case.revision) == revision:
+            return path
+    return None

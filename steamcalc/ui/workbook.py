@@ -18,6 +18,7 @@ from pathlib import Path
 import ipywidgets as widgets
 
 from ..calcs import get_calculation
+from ..properties.engines import remembering_states
 from ..render.display import display_record, pressure_basis
 from ..errors import RecordConflictError, SteamcalcError
 from ..records.record import write_record
@@ -25,9 +26,10 @@ from ..render.report import RENDERERS, format_number, format_unit, render_markdo
 from ..records.build import record_for_case
 from ..cases.site import case_site, flatten_inputs, is_file_name_part, load_case, parse_inputs
 from ..runs.uncertainty import SETTINGS
-from .charts import figure_json, record_charts, table_for, tornado_chart
+from .charts import figure_json, record_chart_json, table_for, tornado_chart
 from .feedback import STALE_CLASS, STALE_STYLE, STALE_TEXT, SummaryView, file_link
 from .forms import CaseForm, alternatives_for
+from .progress import ProgressLine
 from .save_case import CaseSaver
 from .sketch_view import SketchView
 
@@ -75,11 +77,24 @@ class Workbook:
     """
 
     def __init__(self, case_file, record_folder, site_file=None):
+        # Run All shows what is being computed while it runs (in a notebook someone has open; headless, nothing).
+        self._progress = ProgressLine(live=interactive_session())
+        try:
+            self._open(case_file, record_folder, site_file)
+        except SteamcalcError:
+            self._progress.done(f"{Path(case_file).name} not opened (the reason is below)")
+            raise
+        self._progress.done(f"{self.case.id} computed" if self.error is None else f"{self.case.id} not computed")
+        self._progress = None
+
+    def _open(self, case_file, record_folder, site_file):
+        self._progress.step(f"reading the case file {Path(case_file).name}")
         self.case = load_case(case_file)
         self.site = case_site(self.case, site_file)
         self.calc = get_calculation(self.case.kind)
         self.record_folder = Path(record_folder)
         flat = flatten_inputs(self.calc.Inputs, self.case.inputs)
+        self._progress.step(f"building the form ({len(flat)} inputs given)")
         self._settings = {k: v for k, v in self.case.uncertainty.items() if k in SETTINGS}
         self.form = CaseForm(self.calc.Inputs, flat, headers=tuple(self.site.headers),
                              tolerances={k: v for k, v in self.case.uncertainty.items() if k not in self._settings},
@@ -133,6 +148,11 @@ class Workbook:
         self._sketch, self._case_saver = SketchView(), CaseSaver(self)  # process sketch; "Save case file"
         self._revision_message = widgets.HTML()
         self._revision_message.add_class("steamcalc-field-message-revision")
+        #: The states this workbook's engine has evaluated: an input changed leaves most of them as they were.
+        self._states = {}
+        self._shown = (None, None)
+        #: The charts drawn, by their figure data: a chart whose data did not change is not drawn again.
+        self._drawn = {}
         self.form.observe(self.update)
         self.update()
 
@@ -147,11 +167,20 @@ class Workbook:
 
     # -- computing -------------------------------------------------------------------
     def update(self):
-        """Recompute from the form; show the result, or the error beside the form."""
+        """Recompute from the form; show the result, or the error beside the form.
+
+        The results and checks (and the summary) are shown first, then the charts, the table, the sketch and
+        the record preview: after Enter the numbers change before the drawings are made.
+        """
+        progress = self._progress
+        if progress is not None:
+            progress.step(f"computing {self.case.id} ({self.calc.TITLE.lower()}) on IF97")
         try:
             inputs, given = parse_inputs(self.calc.Inputs, self.form.values(), self.site)
             self.case = dataclasses.replace(self.case, uncertainty={**self.form.tolerances(), **self._settings})
-            record, result = record_for_case(self.case, self.site, inputs=inputs, given=given, with_uncertainty=False)
+            with remembering_states(self._states):
+                record, result = record_for_case(self.case, self.site, inputs=inputs, given=given,
+                                                 with_uncertainty=False)
             if self.case.uncertainty:
                 from ..runs.uncertainty import parse_tolerances
                 parse_tolerances(self.calc.Inputs, self.case.uncertainty, inputs)
@@ -170,11 +199,21 @@ class Workbook:
         self._message.value = ""
         self._results_body = self._results_table()
         self._results_html.value = self._results_body
+        self._summary.refresh()
+        if progress is not None:
+            progress.step("drawing the charts, the table, the process sketch and the record preview")
         self._draw_chart()
         self._draw_table()
-        self._draw_preview()
         self._sketch.draw(self.record)
-        self._summary.refresh()
+        self._draw_preview()
+
+    def _display(self):
+        """The record as shown (:func:`display_record`), made once per record."""
+        record, shown = self._shown
+        if record is not self.record:
+            shown = display_record(self.record)
+            self._shown = (self.record, shown)
+        return shown
 
     def _refused(self, exc):
         """Show a refused input beside its box (or under the form) and mark every result view stale."""
@@ -263,7 +302,8 @@ class Workbook:
     def _compute_uncertainty(self, before):
         try:
             # The record runs the Monte Carlo once; its section is what the workbook shows.
-            self.record, self.result = record_for_case(self.case, self.site, inputs=self.inputs, given=self._given)
+            with remembering_states(self._states):
+                self.record, self.result = record_for_case(self.case, self.site, inputs=self.inputs, given=self._given)
         except SteamcalcError as exc:
             self._bands.value = f"<div style='color:#a3201b'>{html.escape(str(exc).replace(f'{self.case.path}: ', ''))}</div>"
             return None
@@ -271,7 +311,7 @@ class Workbook:
         if u is None:
             self._bands.value = before
             return None
-        shown = display_record(self.record)["uncertainty"]
+        shown = self._display()["uncertainty"]
         rows = "".join(
             f"<tr><td>{html.escape(b['label'])}</td><td style='text-align:right'>{html.escape(b['shown']['nominal'])}</td>"
             f"<td style='text-align:right'>{html.escape(b['shown']['low'])}</td>"
@@ -291,7 +331,7 @@ class Workbook:
         return u
 
     def _results_table(self):
-        r = display_record(self.record)
+        r = self._display()
         colour = _STATUS_COLOURS[r["status"]]
         rows = "".join(
             f"<tr><td>{html.escape(v.get('label', k))}</td><td style='text-align:right'>"
@@ -308,11 +348,11 @@ class Workbook:
     def _draw_chart(self):
         # Output widgets are filled through their state, not by capturing display calls,
         # so that headless runs (papermill, nbval) see no stray outputs in the cell.
-        figures, missing = record_charts(self.record)
+        charts, missing = record_chart_json(self.record, self._drawn)
         self._chart.outputs = tuple(
             {"output_type": "display_data", "metadata": {},
-             "data": {"application/vnd.plotly.v1+json": figure_json(figure), "text/plain": "chart"}}
-            for figure in figures) + tuple(
+             "data": {"application/vnd.plotly.v1+json": chart, "text/plain": "chart"}}
+            for chart in charts) + tuple(
             {"output_type": "display_data", "metadata": {},
              "data": {"text/html": f"<p><small>{html.escape(reason)}</small></p>", "text/plain": reason}}
             for reason in missing)
@@ -389,7 +429,7 @@ class Workbook:
         """Plain-text results and checks (what headless runs print and nbval compares)."""
         if self.record is None:
             return f"no result: {self.error}"
-        r = display_record(self.record)
+        r = self._display()
         lines = [f"{r['id']} rev {r['revision']} - {r['title']}", f"overall status: {r['status'].upper()}", ""]
         width = max(len(v.get("label", k)) for k, v in r["results"].items())
         for key, v in r["results"].items():

@@ -9,6 +9,7 @@ once, here, with pint; records store values in the engineering units of
 
 from __future__ import annotations
 
+import functools
 import math
 import re
 
@@ -488,12 +489,12 @@ def parse_quantity(text, field, kind):
             f"write it in kelvin, '{number * 5 / 9:.4g} K' (a difference of 1 °F is 5/9 K)",
         )
     try:
-        quantity = Q_(number, unit)
+        quantity = Q_(number, _unit(unit))
     except Exception:
         raise UnitError(f"unit '{unit}' is not known", field=field, value=text, fix=f"e.g. {example}") from None
     si_unit = SI_UNITS[kind]
     try:
-        value = quantity.to(si_unit).magnitude
+        value = quantity.to(_unit(si_unit)).magnitude
     except pint.DimensionalityError:
         raise UnitError(
             f"'{text}' is not a {kind.replace('_', ' ')}", field=field, value=text,
@@ -546,7 +547,13 @@ def to_record_unit(value_si, kind):
     """
     if kind == "dimensionless":
         return float(value_si)
-    return float(Q_(value_si, SI_UNITS[kind]).to(RECORD_UNITS[kind]).magnitude)
+    return float(Q_(value_si, _unit(SI_UNITS[kind])).to(_unit(RECORD_UNITS[kind])).magnitude)
+
+
+@functools.lru_cache(maxsize=1024)
+def _unit(name):
+    """A unit string parsed once (pint parses a string on every Quantity made from it; the Unit is the same)."""
+    return ureg.Unit(name)
 
 
 def from_record_unit(value, unit, kind):
@@ -564,7 +571,7 @@ def from_record_unit(value, unit, kind):
     if not is_plain_unit(unit):
         raise UnitError("a record unit must be a plain unit name", field=kind, value=unit)
     try:
-        return float(Q_(value, unit).to(SI_UNITS[kind]).magnitude)
+        return float(Q_(value, _unit(unit)).to(_unit(SI_UNITS[kind])).magnitude)
     except Exception:
         raise UnitError(f"the record unit '{unit}' is not a unit of {kind.replace('_', ' ')}", field=kind,
                         value=unit) from None

@@ -18,7 +18,7 @@ from timing import median_seconds
 from steamcalc.calcs import get_calculation
 from steamcalc.cases.site import case_inputs, case_site, load_case
 from steamcalc.records.build import record_for_case
-from steamcalc.records.record import load_record, write_record
+from steamcalc.records.record import IssuedRecords, load_record, write_record
 from steamcalc.records.schema import validate_record
 from steamcalc.render.report import RENDERERS, render_html, render_markdown
 from steamcalc.review.verify import verify_file
@@ -44,15 +44,16 @@ if __name__ == "__main__":
         (tmp / "cases").mkdir()
         print(f"  {'case':<7} {'calc ms':>8} {'html ms':>8} {'html/calc':>9} {'md/calc':>8} {'schema/calc':>11} "
               f"{'verify/calc':>11} {'calcs in verify (iapws, fast)':>30}")
-        for template in sorted((DEMO / "cases").glob("*.toml")):
+        for template in sorted((DEMO / "cases").glob("*.toml"), key=lambda p: (p.stem.startswith("SB"), p.stem)):
             text = re.sub(r"\[uncertainty\].*?(?=^\[|\Z)", "", template.read_text(), flags=re.S | re.M)
             path = tmp / "cases" / template.name
             path.write_text(text)
             case = load_case(path)
             site = case_site(case, None)
-            inputs, _ = case_inputs(case, site)
+            # A site balance reads the records it links: those issued above, in this same folder.
+            inputs, _ = case_inputs(case, site, read_record=IssuedRecords(tmp / "records"))
             calc = get_calculation(case.kind)
-            record, _ = record_for_case(case, site)
+            record, _ = record_for_case(case, site, record_folder=tmp / "records")
             paths, _ = write_record(record, tmp / "records", RENDERERS)
             json_path = paths[0]
             loaded = load_record(json_path)

@@ -129,7 +129,10 @@ def _saturation(pressure, rows):
     """T_s (K) where ``rows`` (the pressure within the saturation line), NaN elsewhere."""
     out = np.full(pressure.shape, np.nan)
     if rows.any():
-        out[rows] = saturation_temperatures(pressure[rows])
+        chosen = pressure[rows]
+        # A pressure the samples do not vary (a header, the lowest inlet pressure): its T_s evaluated once.
+        out[rows] = saturation_temperatures(chosen[:1]) if chosen.min() == chosen.max() else \
+            saturation_temperatures(chosen)
     return out
 
 

@@ -39,6 +39,13 @@ _MODULES = {REFERENCE_ENGINE: "iapws_engine", FAST_ENGINE: "seuif97_engine"}
 ENGINES = tuple(_MODULES)
 
 _CURRENT = contextvars.ContextVar("steamcalc_property_engine", default=REFERENCE_ENGINE)
+#: The states already evaluated in this context, when a block asks to remember them (:func:`remembering_states`).
+_REMEMBERED = contextvars.ContextVar("steamcalc_remembered_states", default=None)
+#: The engine functions whose value depends on their arguments alone (every one but ``version``).
+_PURE = ("saturation_temperature", "saturation_pressure", "backward_temperature_ph", "bounds", "state_pT", "state_ph",
+         "state_ps", "state_p_dryness", "state_T_dryness")
+#: Most states a block remembers; beyond it the oldest are forgotten (a few hundred bytes each).
+MAX_REMEMBERED = 50_000
 
 
 def check_engine(name):
@@ -55,8 +62,64 @@ def _load(name):
 
 
 def engine_module(name=None):
-    """The module of an engine (default: the current context's), imported on first use."""
-    return _load(_CURRENT.get() if name is None else name)
+    """The module of an engine (default: the current context's), imported on first use.
+
+    Inside :func:`remembering_states` it is the same module behind a memory of the states it has given.
+    """
+    module = _load(_CURRENT.get() if name is None else name)
+    remembered = _REMEMBERED.get()
+    return module if remembered is None else _Remembering(module, remembered)
+
+
+class _Remembering:
+    """An engine module that gives a state it has evaluated before from its memory: the same arguments give the
+    very same value (each function is pure and its value an immutable float or tuple), evaluated once."""
+
+    def __init__(self, module, remembered):
+        self._module, self._remembered = module, remembered
+
+    def __getattr__(self, name):
+        value = getattr(self._module, name)
+        if name not in _PURE:
+            return value
+        remembered, engine = self._remembered, self._module.NAME
+
+        def evaluate(*args):
+            key = (engine, name, args)
+            try:
+                return remembered[key]
+            except KeyError:
+                pass
+            found = value(*args)
+            if len(remembered) >= MAX_REMEMBERED:
+                del remembered[next(iter(remembered))]
+            remembered[key] = found
+            return found
+        return evaluate
+
+
+@contextlib.contextmanager
+def remembering_states(memory=None):
+    """Within this block, in this context only, each engine evaluates a state once and gives it again from memory.
+
+    For work that evaluates the same states many times over — re-verifying the records of a site, whose cases
+    share its headers' states; a workbook recomputing after one input changed — with nothing changed in what is
+    computed: an engine function's value depends on its arguments alone. An exception is never remembered (it is
+    raised again by evaluating again). The memory is the block's own and is forgotten when it ends, unless the
+    caller gives its own (an empty dict it keeps, to remember across blocks).
+
+    Examples
+    --------
+    >>> with remembering_states():
+    ...     first = engine_module().saturation_temperature(1e5)
+    ...     engine_module().saturation_temperature(1e5) == first
+    True
+    """
+    token = _REMEMBERED.set({} if memory is None else memory)
+    try:
+        yield
+    finally:
+        _REMEMBERED.reset(token)
 
 
 def current_engine():
