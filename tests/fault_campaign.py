@@ -348,7 +348,9 @@ def batch(base):
     folder.mkdir()
     (folder / "LD-02.toml").write_text((cases / "LD-02.toml").read_text().replace(
         'site = "../site.toml"', f'site = "{site / "site.toml"}"'))
-    for n in range(6):
+    # 100,000 samples a case take about a second since the sample paths were vectorised: forty cases keep two
+    # workers busy for half a minute, long past the moment the signal is sent.
+    for n in range(40):
         (folder / f"H{n}.toml").write_text(re.sub(r"(?m)^samples = .*$", "samples = 100000",
                                                   heavy.replace('id = "LD-01"', f'id = "H{n}"'))
                                            .replace('site = "../site.toml"', f'site = "{site / "site.toml"}"'))
@@ -358,7 +360,9 @@ def batch(base):
     process = subprocess.Popen([sys.executable, "-m", "steamcalc", "run", str(folder), "--out", str(out), "--quiet"],
                                stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True,
                                env={**env, "PYTHONPATH": str(ROOT)})
-    time.sleep(6.0)   # past the imports: the workers are deep in their cases
+    deadline = time.monotonic() + 60
+    while time.monotonic() < deadline and process.poll() is None and not list(out.glob("*_rev*.json")):
+        time.sleep(0.2)   # until the first record is written: past the imports, the workers deep in their cases
     process.send_signal(signal.SIGINT)
     started = time.monotonic()
     _, err = process.communicate(timeout=60)
