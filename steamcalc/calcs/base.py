@@ -292,8 +292,12 @@ class Check:
         return entry
 
 
-#: How a series is drawn; the views choose colours and symbols from ``role``.
-SERIES_STYLES = ("line", "markers", "line+markers")
+#: How a series is drawn; the views choose colours and symbols from ``role``. ``flows``: each point a flow
+#: between two named nodes, labelled ``"<source>`` :data:`FLOW_ARROW` ``<target>"`` with the flow as y
+#: (drawn as a Sankey diagram).
+SERIES_STYLES = ("line", "markers", "line+markers", "flows")
+#: Between the source and the target node in the label of a point of a ``flows`` series.
+FLOW_ARROW = " → "
 SERIES_DASHES = ("solid", "dot", "dash", "dashdot")
 SERIES_ROLES = ("reference", "inlet", "outlet", "process", "limit", "secondary")
 

@@ -14,7 +14,7 @@ from ..units.formatting import unit_label
 
 _COLOURS = {"reference": "#5b6770", "inlet": "#b5442c", "outlet": "#2b6a99", "process": "#1d2327",
             "limit": "#b5442c", "secondary": "#7a5c99"}
-_MODES = {"line": "lines", "markers": "markers", "line+markers": "lines+markers"}
+_MODES = {"line": "lines", "markers": "markers", "line+markers": "lines+markers", "flows": "markers"}
 _BAND_COLOURS = {"x": "#b5442c", "y": "#2f6b3a", "y2": "#2f6b3a"}
 
 

@@ -418,6 +418,7 @@ def record_figures(record, shown=None):
 
     from .display import SYSTEMS
     from .figure_spec import band_notes, figure_spec
+    from .sankey_svg import is_flow_figure, sankey_svg
     from .sketch import sketch_svg
 
     sketch = Markup(sketch_svg(record, shown))
@@ -430,8 +431,11 @@ def record_figures(record, shown=None):
     charts = []
     for number, figure in enumerate(record["figures"], start=1):
         try:
-            spec = figure_spec(figure, system)
-            svg = None if spec is None else figure_svg(spec, f"steamcalc-chart-{number}")
+            if is_flow_figure(figure):
+                spec = svg = sankey_svg(figure, system, f"steamcalc-chart-{number}")
+            else:
+                spec = figure_spec(figure, system)
+                svg = None if spec is None else figure_svg(spec, f"steamcalc-chart-{number}")
         except (ArithmeticError, ValueError, KeyError, TypeError, AttributeError) as exc:
             # A record read from a file has passed its schema; this is for one built in memory by hand
             # (pint's unknown-unit error is an AttributeError).

@@ -142,6 +142,7 @@ def calculate(inputs, site):
         check_closures(result, inputs, site, b)
     _case_checks(result, inputs, site, balances)
     totals = annual_totals(result, inputs, site, balances, efficiency, "")
+    _blowdown_year(result, inputs, balances)
     alternative = None
     if inputs.without:
         alt = {c.name: solve_case(inputs, site, c.name, states, inputs.without) for c in inputs.load_cases}
@@ -173,8 +174,24 @@ def _case_results(result, inputs, site, b, efficiency, case, prefix=""):
     vent_heat = b.deaerator_vent * (states["deaerator_vent"].enthalpy - h_mu) + sum(
         m * (b.header_enthalpy[h] - h_mu) for h, m in b.vents.items())
     result.add(f"{c}.vent_heat_loss", f"{what}: heat lost in vents (above make-up water)", vent_heat / 1e3, "kW")
+    residual_heat = b.blowdown_residual * (states["blowdown_residual"].enthalpy - h_mu) - b.blowdown_heat_recovered
     result.add(f"{c}.blowdown_heat_loss", f"{what}: heat lost in blowdown (above make-up water)",
-               b.blowdown * (states["blowdown"].enthalpy - h_mu) / 1e3, "kW")
+               residual_heat / 1e3, "kW")
+    boiler = inputs.boiler
+    if boiler.blowdown_flash_header is not None:
+        used = blowdown_flash_used(b, boiler.blowdown_flash_header)
+        result.add(f"{c}.blowdown_flash_steam_flow", f"{what}: blowdown flash steam to the "
+                   f"{boiler.blowdown_flash_header} header", b.blowdown_flash_steam * 3600, "kg/h")
+        result.add(f"{c}.blowdown_flash_steam_used", f"{what}: blowdown flash steam the "
+                   f"{boiler.blowdown_flash_header} header takes (steam saved)", used * 3600, "kg/h")
+    if boiler.blowdown_cooled:
+        result.add(f"{c}.blowdown_heat_recovered", f"{what}: heat the blowdown gives the make-up water",
+                   b.blowdown_heat_recovered / 1e3, "kW")
+        result.add(f"{c}.makeup_temperature_to_deaerator", f"{what}: make-up water to the deaerator",
+                   b.makeup_state.temperature - 273.15, "degC")
+    if boiler.blowdown_flash_header is not None or boiler.blowdown_cooled:
+        result.add(f"{c}.blowdown_heat_saved", f"{what}: heat saved by the blowdown recovery (flash steam taken and "
+                   "cooler, above make-up water)", blowdown_heat_saved(b) / 1e3, "kW")
     letdown_into = {ld.target: ld for ld in inputs.letdowns if ld.name in b.letdown_steam}
     for h in sorted(site.headers, key=lambda name: -site.headers[name]):
         state = b.header_states[h]
@@ -209,6 +226,44 @@ def _case_results(result, inputs, site, b, efficiency, case, prefix=""):
             result.add(f"{c}.{f.name}.flash_steam_flow", f"{what}: flash vessel {f.name} steam", steam * 3600, "kg/h")
             result.add(f"{c}.{f.name}.flash_steam_used", f"{what}: flash vessel {f.name} steam the {f.target} header "
                        "takes", used * 3600, "kg/h")
+
+
+def _blowdown_year(result, inputs, balances):
+    boiler = inputs.boiler
+    if boiler.blowdown_flash_header is None and not boiler.blowdown_cooled:
+        return
+    result.references.append("Blowdown flash fraction from the flash vessel's energy balance; the make-up water "
+                             "cooler as a counter-flow exchanger by approach temperature or effectiveness "
+                             "(any heat-transfer text)")
+    result.assumptions.append("Blowdown flash vessel and cooler adiabatic; the flash steam leaves saturated at the "
+                              "header pressure, the residual saturated water; the make-up water is heated at the "
+                              "deaerator pressure and not above its saturation temperature there")
+    hours = {c.name: c.hours for c in inputs.load_cases}
+    if boiler.blowdown_flash_header is not None:
+        steam = sum(blowdown_flash_used(b, boiler.blowdown_flash_header) * hours[n] for n, b in balances.items())
+        result.add("annual_blowdown_flash_steam_used", "Blowdown flash steam taken by the "
+                   f"{boiler.blowdown_flash_header} header a year (steam saved)", steam / 1e3, "t")
+    if boiler.blowdown_cooled:
+        heat = sum(b.blowdown_heat_recovered * hours[n] for n, b in balances.items())
+        result.add("annual_blowdown_heat_recovered", "Heat the blowdown gives the make-up water a year",
+                   heat / 3.6e9, "MWh")
+    saved = sum(blowdown_heat_saved(b) * hours[n] for n, b in balances.items())
+    result.add("annual_blowdown_heat_saved", "Heat saved by the blowdown recovery a year", saved / 3.6e9, "MWh")
+
+
+def blowdown_flash_used(b, header):
+    """Blowdown flash steam the header takes, kg/s: what the header vents is not credited (as for flash vessels)."""
+    return max(0.0, b.blowdown_flash_steam - b.vents.get(header, 0.0))
+
+
+def blowdown_heat_saved(b):
+    """Heat the blowdown recovery saves, W: flash steam the header takes and the cooler's heat, above make-up."""
+    h_mu = b.states["makeup"].enthalpy
+    flash = 0.0
+    if b.blowdown_flash_steam > 0.0:
+        header = next(h for h, flows in b.inflows.items() if any(n == "blowdown flash steam" for n, *_ in flows))
+        flash = blowdown_flash_used(b, header) * (b.states["blowdown_flash_steam"].enthalpy - h_mu)
+    return flash + b.blowdown_heat_recovered
 
 
 def _case_checks(result, inputs, site, balances):

@@ -43,7 +43,7 @@ def header_streams(site, b, header):
 def deaerator_streams(b):
     """(inflows, outflows) of the deaerator as Streams."""
     states = b.states
-    inflows = [_stream("make-up water", b.makeup, states["makeup"])]
+    inflows = [_stream("make-up water", b.makeup, b.makeup_state or states["makeup"])]
     inflows += [_stream(name, m, s) for name, (m, s) in b.returns.items() if m > 0.0]
     inflows.append(_stream("heating steam", b.deaerator_steam, b.header_states[b.deaerator_header]))
     outflows = [_stream("feedwater", b.feedwater, states["feedwater"]),
@@ -79,3 +79,23 @@ def check_closures(result, inputs, site, b):
             _check(result, f"{b.case}: {header} header closes (independent)", inflows, outflows)
     inflows, outflows = deaerator_streams(b)
     _check(result, f"{b.case}: deaerator closes (independent)", inflows, outflows)
+    recovery = blowdown_streams(b)
+    if recovery is not None:
+        _check(result, f"{b.case}: blowdown flash vessel and cooler close (independent)", *recovery)
+
+
+def blowdown_streams(b):
+    """(inflows, outflows) of the blowdown flash vessel and cooler together, as Streams; None without either."""
+    states = b.states
+    if b.blowdown_flash_fraction == 0.0 and b.blowdown_heat_recovered == 0.0:
+        return None
+    residual = states["blowdown_residual"]
+    h_out = residual.enthalpy - (b.blowdown_heat_recovered / b.blowdown_residual if b.blowdown_residual else 0.0)
+    inflows = [_stream("blowdown", b.blowdown, states["blowdown"])]
+    outflows = [_stream("blowdown to drain", b.blowdown_residual, SteamState.from_ph(residual.pressure, h_out))]
+    if b.blowdown_flash_steam > 0.0:
+        outflows.append(_stream("blowdown flash steam", b.blowdown_flash_steam, states["blowdown_flash_steam"]))
+    if b.blowdown_heat_recovered > 0.0:
+        inflows.append(_stream("make-up water", b.makeup, states["makeup"]))
+        outflows.append(_stream("make-up water heated", b.makeup, b.makeup_state))
+    return inflows, outflows

@@ -1,15 +1,15 @@
 """The balance's figures as data: per load case, the steam flows between boiler, headers, users and vents.
 
 Each flow is a link "source → target" with its mass flow (a Sankey diagram's data). The record holds it as a
-series of points, x the link's number and y its flow, each labelled ``"<source> → <target>"``; the workbook
-draws it as plotly's Sankey diagram (:func:`sankey_links`), the HTML record as labelled points.
+series of style ``flows``, x the link's number and y its flow, each labelled ``"<source> → <target>"``; the
+workbook draws it as plotly's Sankey diagram (:func:`sankey_links`), the HTML record as an SVG Sankey
+(:mod:`steamcalc.render.sankey_svg`).
 """
 
 from __future__ import annotations
 
+from ..base import FLOW_ARROW as ARROW
 from ..base import Axis, Figure, Series, figure_or_missing
-
-ARROW = " → "
 
 
 def _links(inputs, b):
@@ -23,6 +23,8 @@ def _links(inputs, b):
     for f in sorted(inputs.flashes, key=lambda f: f.name):
         if b.flash_steam.get(f.name, 0.0) > 0.0:
             links.append((f"flash vessel {f.name}", f"{f.target} header", b.flash_steam[f.name]))
+    if b.blowdown_flash_steam > 0.0:
+        links.append(("blowdown flash", f"{inputs.boiler.blowdown_flash_header} header", b.blowdown_flash_steam))
     for u in sorted(inputs.users, key=lambda u: u.name):
         if b.user_flows.get(u.name, 0.0) > 0.0:
             links.append((f"{u.header} header", u.name, b.user_flows[u.name]))
@@ -39,7 +41,7 @@ def flow_figure(inputs, case, b):
     """The steam flows of one load case as Sankey data."""
     links = _links(inputs, b)
     series = Series("steam flows", tuple(float(i) for i in range(len(links))), tuple(m * 3600 for *_, m in links),
-                    style="markers", role="process", labels=tuple(f"{s}{ARROW}{t}" for s, t, _ in links))
+                    style="flows", role="process", labels=tuple(f"{s}{ARROW}{t}" for s, t, _ in links))
     return Figure(f"steam_flows_{case}", f"Steam flows, {case}", x=Axis("flow number"),
                   y=Axis("mass flow", "kg/h"), series=(series,))
 

@@ -187,6 +187,18 @@ def checked_against_site(inputs, site):
         raise InputError(f"the boiler at {inputs.boiler.pressure / 1e5:.4g} bar(a) is below the header it feeds, "
                          f"{inputs.boiler.header} at {p_boiler_header / 1e5:.4g} bar(a)", field="boiler.pressure",
                          fix="give the boiler's working pressure, at or above its header's")
+    boiler = inputs.boiler
+    if boiler.blowdown_cooler_approach is not None and boiler.blowdown_cooler_effectiveness is not None:
+        raise InputError("the blowdown cooler is given both an approach temperature and an effectiveness",
+                         field="boiler.blowdown_cooler_effectiveness", fix="keep one way of stating the cooler")
+    if boiler.blowdown_flash_header is not None:
+        p_flash = pressure(boiler.blowdown_flash_header, "boiler.blowdown_flash_header")
+        if p_flash >= boiler.pressure:
+            raise InputError(f"the blowdown flash vessel at header {boiler.blowdown_flash_header} "
+                             f"({p_flash / 1e5:.4g} bar(a)) is not below the boiler ({boiler.pressure / 1e5:.4g} "
+                             "bar(a)): no blowdown would flash", field="boiler.blowdown_flash_header",
+                             value=boiler.blowdown_flash_header,
+                             fix="flash the blowdown into a header below the boiler's pressure, or leave it out")
     if inputs.letdowns and any(ld.target == inputs.boiler.header for ld in inputs.letdowns):
         raise InputError(f"a let-down feeds the boiler's header {inputs.boiler.header}", field="letdown.to",
                          value=inputs.boiler.header, fix="the boiler makes up its own header; feed lower headers only")

@@ -74,6 +74,15 @@ class Boiler:
     blowdown_fraction: float | None = item_field("fraction", "blowdown, fraction of the feedwater")
     feedwater_tds: float | None = item_field("number", "feedwater dissolved solids (TDS or conductivity)")
     boiler_water_tds: float | None = item_field("number", "boiler-water dissolved solids limit (same measure)")
+    blowdown_flash_header: str | None = item_field("text", "blowdown flash vessel: flash steam to header")
+    blowdown_cooler_approach: float | None = item_field("temperature_difference",
+                                                        "blowdown cooler: approach temperature")
+    blowdown_cooler_effectiveness: float | None = item_field("fraction", "blowdown cooler: effectiveness")
+
+    @property
+    def blowdown_cooled(self):
+        """Whether the blowdown (or its flash residual) heats the make-up water in a cooler."""
+        return self.blowdown_cooler_approach is not None or self.blowdown_cooler_effectiveness is not None
 
     @property
     def blowdown_of_steam(self):

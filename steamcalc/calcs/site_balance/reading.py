@@ -3,7 +3,8 @@
 The case file holds::
 
     [inputs.boiler]        header, pressure, temperature, flow ("balances the site" or a flow), capacity,
-                           efficiency, blowdown_fraction or feedwater_tds with boiler_water_tds
+                           efficiency, blowdown_fraction or feedwater_tds with boiler_water_tds,
+                           blowdown_flash_header, blowdown_cooler_approach or blowdown_cooler_effectiveness
     [inputs.deaerator]     pressure, steam_header, vent_fraction, makeup_temperature
     [[inputs.load_case]]   name, hours
     [[inputs.letdown]]     name, from, to, target_superheat or target_temperature, water_temperature,
@@ -28,7 +29,8 @@ from .items import NAME_PATTERN, Boiler, Deaerator, Flash, Letdown, LoadCase, Us
 SECTIONS = ("boiler", "deaerator", "load_case", "letdown", "user", "flash", "what_if", "links")
 KEYS = {
     "boiler": ("header", "pressure", "temperature", "flow", "capacity", "efficiency", "blowdown_fraction",
-               "feedwater_tds", "boiler_water_tds"),
+               "feedwater_tds", "boiler_water_tds", "blowdown_flash_header", "blowdown_cooler_approach",
+               "blowdown_cooler_effectiveness"),
     "deaerator": ("pressure", "steam_header", "vent_fraction", "makeup_temperature"),
     "load_case": ("name", "hours"),
     "letdown": ("name", "from", "to", "target_superheat", "target_temperature", "water_temperature",
@@ -166,13 +168,19 @@ def read_boiler(row, site, given):
     if blowdown is None and fw is None:
         raise CaseFileError("the blowdown is required", field="boiler.blowdown_fraction",
                             fix="give blowdown_fraction (of the feedwater) or feedwater_tds and boiler_water_tds")
+    if "blowdown_cooler_approach" in row and "blowdown_cooler_effectiveness" in row:
+        raise InputError("give blowdown_cooler_approach or blowdown_cooler_effectiveness, not both",
+                         field="boiler.blowdown_cooler_effectiveness", fix="keep one way of stating the cooler")
+    flash_header = _header(row, "blowdown_flash_header", where, site) if "blowdown_flash_header" in row else None
     for key in KEYS["boiler"]:
         _given(given, f"boiler.{key}", row, key)
     return Boiler(header=_header(row, "header", where, site), pressure=_pressure(row, "pressure", where, site),
                   temperature=_quantity(row, "temperature", where, "temperature"), flow=flow,
                   capacity=_quantity(row, "capacity", where, "mass_flow"),
                   efficiency=_fraction(row, "efficiency", where), blowdown_fraction=blowdown,
-                  feedwater_tds=fw, boiler_water_tds=bw)
+                  feedwater_tds=fw, boiler_water_tds=bw, blowdown_flash_header=flash_header,
+                  blowdown_cooler_approach=_quantity(row, "blowdown_cooler_approach", where, "temperature_difference"),
+                  blowdown_cooler_effectiveness=_fraction(row, "blowdown_cooler_effectiveness", where))
 
 
 def read_deaerator(row, site, given):

@@ -17,6 +17,7 @@ from dataclasses import dataclass, field
 
 from ...errors import InputError, NotConvergedError, OutOfRangeError
 from ...properties.steam import SteamState, saturation_temperature
+from .blowdown import cooler_heat, flash_fraction, recovery_states
 
 #: Largest relative change of any flow or header enthalpy between two sweeps of a solved case.
 TOLERANCE = 1e-10
@@ -38,6 +39,11 @@ class CaseBalance:
     deaerator_vent: float = 0.0
     deaerator_flash_vent: float = 0.0                      # vented because the returns are too hot
     makeup: float = 0.0
+    makeup_state: object = None                            # the make-up water entering the deaerator
+    blowdown_flash_fraction: float = 0.0
+    blowdown_flash_steam: float = 0.0                      # to the boiler's blowdown_flash_header, kg/s
+    blowdown_residual: float = 0.0                         # to the cooler or drain, kg/s
+    blowdown_heat_recovered: float = 0.0                   # by the make-up water in the cooler, W
     returns: dict = field(default_factory=dict)            # name -> (kg/s, SteamState)
     user_flows: dict = field(default_factory=dict)         # user -> kg/s
     flash_steam: dict = field(default_factory=dict)        # flash -> kg/s
@@ -119,7 +125,7 @@ def fixed_states(inputs, site):
                                  fix="give a temperature at or below the header's saturation temperature")
             states[f"return:{user.name}"] = _state(lambda: SteamState.from_pT(p_u, min(
                 user.return_temperature, saturation_temperature(p_u) - 1e-6)), f"user.{user.name}.return_temperature")
-    return states
+    return recovery_states(boiler, site.headers, da.pressure, states)
 
 
 def _change(new, old):
@@ -172,6 +178,9 @@ def solve_case(inputs, site, case, states, out_of_service=()):
     h_v = states["deaerator_vent"].enthalpy
     blowdown_ratio = boiler.blowdown_of_steam
     deaerator_steam = 0.0
+    blowdown, makeup = 0.0, 0.0               # of the previous sweep: the flash steam and the cooler follow them
+    flash_header = boiler.blowdown_flash_header
+    bd_fraction = flash_fraction(states["blowdown"].enthalpy, headers[flash_header]) if flash_header else 0.0
     previous = {}
     for sweep in range(1, MAX_SWEEPS + 1):
         b = CaseBalance(case, deaerator_header=da.steam_header)
@@ -198,6 +207,12 @@ def solve_case(inputs, site, case, states, out_of_service=()):
             b.flash_residual[f.name] = condensate - fraction * condensate
             supply[f.target] += b.flash_steam[f.name]
             b.inflows[f.target].append((f"flash vessel {f.name}", b.flash_steam[f.name], vapour[f.target]))
+        if flash_header is not None:
+            b.blowdown_flash_fraction = bd_fraction
+            b.blowdown_flash_steam = bd_fraction * blowdown
+            supply[flash_header] += b.blowdown_flash_steam
+            b.inflows[flash_header].append(("blowdown flash steam", b.blowdown_flash_steam,
+                                            states["blowdown_flash_steam"]))
         demand[da.steam_header] += deaerator_steam
         b.outflows[da.steam_header].append(("deaerator heating steam", deaerator_steam))
         draw = {h: 0.0 for h in headers}
@@ -243,6 +258,9 @@ def solve_case(inputs, site, case, states, out_of_service=()):
                 h_header[h] = sum(m * s.enthalpy for _, m, s in b.inflows[h]) / total
         b.header_enthalpy = dict(h_header)
         b.blowdown = b.boiler_steam * blowdown_ratio
+        b.blowdown_residual = b.blowdown - bd_fraction * b.blowdown
+        b.blowdown_heat_recovered = cooler_heat(boiler, b.blowdown_residual, states["blowdown_residual"], makeup,
+                                                states["makeup"], states["makeup_cooler_pressure"])
         b.feedwater = b.boiler_steam + b.blowdown + sum(b.letdown_spray.values())
         heat_returned = 0.0
         for u in users:
@@ -254,7 +272,7 @@ def solve_case(inputs, site, case, states, out_of_service=()):
         returned = sum(m for m, _ in b.returns.values())
         heat_returned = sum(m * (s.enthalpy - h_mu) for m, s in b.returns.values())
         h_steam = h_header[da.steam_header]
-        needed = b.feedwater * (h_fw - h_mu) - heat_returned
+        needed = b.feedwater * (h_fw - h_mu) - heat_returned - b.blowdown_heat_recovered
         if needed >= 0.0:
             deaerator_steam = needed / (h_steam - h_mu - da.vent_fraction * (h_v - h_mu))
             b.deaerator_vent = da.vent_fraction * deaerator_steam
@@ -266,7 +284,9 @@ def solve_case(inputs, site, case, states, out_of_service=()):
             b.deaerator_vent = b.deaerator_flash_vent
         b.deaerator_steam = deaerator_steam
         b.makeup = b.feedwater + b.deaerator_vent - returned - deaerator_steam
-        now = {"m_boiler": b.boiler_steam, "m_deaerator": deaerator_steam,
+        blowdown, makeup = b.blowdown, b.makeup
+        now = {"m_boiler": b.boiler_steam, "m_deaerator": deaerator_steam, "m_blowdown": b.blowdown,
+               "m_makeup": b.makeup, "q_blowdown_cooler": b.blowdown_heat_recovered,
                **{f"m_{k}": v for k, v in b.letdown_steam.items()}, **{f"h_{k}": v for k, v in h_header.items()}}
         b.last_change = _change(now, previous) if previous else 1.0
         previous = now
@@ -285,5 +305,9 @@ def solve_case(inputs, site, case, states, out_of_service=()):
                          fix="check the users' returned fractions: the site cannot return more water than it uses")
     for h in headers:
         b.header_states[h] = SteamState.from_ph(headers[h], h_header[h])
+    b.makeup_state = states["makeup"]
+    if b.blowdown_heat_recovered > 0.0:
+        b.makeup_state = SteamState.from_ph(states["makeup_cooler_pressure"],
+                                            h_mu + b.blowdown_heat_recovered / b.makeup)
     b.states = states
     return b

@@ -46,16 +46,38 @@ def case_steps(result, inputs, site, b, efficiency, case):
         f = inputs.boiler.blowdown_fraction
         result.work(f"{c}: boiler blowdown (a fraction of the feedwater)", "m_bd = m_steam · f / (1 − f)",
                     "m_steam*f/(1 - f)", b.blowdown * 3600, "kg/h", m_steam=_kg_h(b.boiler_steam), f=(f, ""))
+    boiler = inputs.boiler
+    if boiler.blowdown_flash_header is not None:
+        p_f = site.headers[boiler.blowdown_flash_header]
+        h_f, h_g = SteamState.from_p_dryness(p_f, 0.0), states["blowdown_flash_steam"]
+        result.work(f"{c}: blowdown flash steam to the {boiler.blowdown_flash_header} header",
+                    "m_fl = m_bd · (h_bd − h_f) / (h_g − h_f)", "m_bd*(h_bd - h_f)/(h_g - h_f)",
+                    b.blowdown_flash_steam * 3600, "kg/h", m_bd=_kg_h(b.blowdown), h_bd=_kj(states["blowdown"]),
+                    h_f=_kj(h_f), h_g=_kj(h_g))
+    if boiler.blowdown_cooled and b.blowdown_heat_recovered > 0.0:
+        result.work(f"{c}: make-up water heated by the blowdown cooler", "h_mu,out = h_mu + Q_bd / m_mu",
+                    "h_mu + Q_bd/m_mu", b.makeup_state.enthalpy / 1e3, "kJ/kg", h_mu=_kj(states["makeup"]),
+                    Q_bd=(b.blowdown_heat_recovered / 1e3, "kW"), m_mu=_kg_h(b.makeup))
     returned = sum(m for m, _ in b.returns.values())
     h_mu = states["makeup"].enthalpy
     heat_returned = sum(m * (s.enthalpy - h_mu) for m, s in b.returns.values())
     h_r = h_mu + heat_returned / returned if returned > 0.0 else h_mu
     steam_state = b.header_states[inputs.deaerator.steam_header]
-    result.work(f"{c}: deaerator heating steam", "m_s = (m_fw·(h_fw − h_mu) − m_r·(h_r − h_mu)) / "
-                "(h_s − h_mu − v·(h_v − h_mu))", "(m_fw*(h_fw - h_mu) - m_r*(h_r - h_mu))/(h_s - h_mu - v*(h_v - h_mu))",
-                b.deaerator_steam * 3600, "kg/h", m_fw=_kg_h(b.feedwater), h_fw=_kj(states["feedwater"]),
-                h_mu=_kj(states["makeup"]), m_r=_kg_h(returned), h_r=(h_r / 1e3, "kJ/kg"), h_s=_kj(steam_state),
-                v=(inputs.deaerator.vent_fraction, ""), h_v=_kj(states["deaerator_vent"]))
+    if b.blowdown_heat_recovered > 0.0:
+        result.work(f"{c}: deaerator heating steam", "m_s = (m_fw·(h_fw − h_mu) − m_r·(h_r − h_mu) − Q_bd) / "
+                    "(h_s − h_mu − v·(h_v − h_mu))",
+                    "(m_fw*(h_fw - h_mu) - m_r*(h_r - h_mu) - Q_bd)/(h_s - h_mu - v*(h_v - h_mu))",
+                    b.deaerator_steam * 3600, "kg/h", m_fw=_kg_h(b.feedwater), h_fw=_kj(states["feedwater"]),
+                    h_mu=_kj(states["makeup"]), m_r=_kg_h(returned), h_r=(h_r / 1e3, "kJ/kg"),
+                    Q_bd=(b.blowdown_heat_recovered / 1e3, "kW"), h_s=_kj(steam_state),
+                    v=(inputs.deaerator.vent_fraction, ""), h_v=_kj(states["deaerator_vent"]))
+    else:
+        result.work(f"{c}: deaerator heating steam", "m_s = (m_fw·(h_fw − h_mu) − m_r·(h_r − h_mu)) / "
+                    "(h_s − h_mu − v·(h_v − h_mu))",
+                    "(m_fw*(h_fw - h_mu) - m_r*(h_r - h_mu))/(h_s - h_mu - v*(h_v - h_mu))",
+                    b.deaerator_steam * 3600, "kg/h", m_fw=_kg_h(b.feedwater), h_fw=_kj(states["feedwater"]),
+                    h_mu=_kj(states["makeup"]), m_r=_kg_h(returned), h_r=(h_r / 1e3, "kJ/kg"), h_s=_kj(steam_state),
+                    v=(inputs.deaerator.vent_fraction, ""), h_v=_kj(states["deaerator_vent"]))
     result.work(f"{c}: make-up water", "m_mu = m_fw + v·m_s − m_r − m_s", "m_fw + v*m_s - m_r - m_s",
                 b.makeup * 3600, "kg/h", m_fw=_kg_h(b.feedwater), v=(inputs.deaerator.vent_fraction, ""),
                 m_s=_kg_h(b.deaerator_steam), m_r=_kg_h(returned))
