@@ -15,6 +15,7 @@ from ...properties.steam import SteamState
 from ...units.amounts import Phrase
 from ...units.rows import Column
 from ..base import Result, check_fields, full_record_wanted, input_field
+from .economics import OPTION_COLUMNS, check_options, report_economics
 from .report import report_main, report_return, report_traps
 
 KIND = "steam_main"
@@ -26,7 +27,7 @@ PRESSURE_DIFFERENCE_RESULTS = ("main_pressure_drop", "return_friction_drop", "he
     f"drip_{n}_trap_differential" for n in range(1, 100))
 SUMMARY_RESULTS = ("main_outlet_pressure", "main_pressure_drop", "main_max_velocity", "main_size_needed",
                    "heat_loss_total", "running_load_total", "warmup_load_total", "drip_points",
-                   "return_flash_fraction", "return_velocity", "return_size_needed", "annual_heat_loss_cost")
+                   "return_flash_fraction", "return_velocity", "return_size_needed", "annual_heat_loss_cost", "economic_thickness")
 
 SEGMENT_COLUMNS = (
     Column("length", "length", "Length", '"75 m"', required=True),
@@ -96,6 +97,18 @@ class Inputs:
     jacket_emissivity: float = input_field(
         "fraction", "Jacket emissivity", "Of the cladding: about 0.1 for aluminium, 0.9 for painted or plastic "
         "(common practice).", example="0.1", section="insulation", key="emissivity", default=0.1, positive=True)
+    insulation_options: tuple | None = input_field(
+        "rows", "Insulation options", "Candidate thicknesses for the economic thickness, thinnest first: one "
+        "[[inputs.insulation.options]] table each, with thickness (0 for bare) and cost, the installed cost per "
+        "metre of pipe as a plain number in the site fuel price's currency.",
+        example='[{thickness = "40 mm", cost = 30.0}, {thickness = "50 mm", cost = 34.0}]', section="insulation",
+        key="options", columns=OPTION_COLUMNS)
+    evaluation_years: float | None = input_field(
+        "number", "Evaluation period, years", "Years over which the installed cost is recovered (with the options).",
+        example="10", section="insulation", key="evaluation_years")
+    discount_rate: float | None = input_field(
+        "fraction", "Discount rate", "Yearly rate of return on capital, a fraction: 0.08 for 8 % (with the options).",
+        example="0.08", section="insulation", key="discount_rate")
     receiver_pressure: float | None = input_field(
         "pressure", "Receiver pressure", "Pressure of the receiver or flash vessel the return line ends in.",
         example="header:LP", section="return_line", key="receiver_pressure")
@@ -152,6 +165,7 @@ class Inputs:
         if self.conductivity_150 < self.conductivity_50 * 0.5:
             raise InputError("the conductivity at 150 °C is less than half that at 50 °C: no insulation behaves so",
                              field="insulation.conductivity_150", fix="check the maker's figures and their units")
+        check_options(self.insulation_options, self.discount_rate, self.evaluation_years)
         if self.supply_pressure <= 0.0:
             raise InputError("must be above zero", field="supply_pressure")
 
@@ -221,12 +235,13 @@ def calculate(inputs, site):
     result.cautions.extend(CAUTIONS)
     supply = _supply_state(inputs)
     flows, drips = report_main(inputs, site, supply, result)
+    options = report_economics(inputs, site, flows, result)
     report_traps(inputs, flows, drips, result)
     if inputs.receiver_pressure is not None:
         report_return(inputs, drips, result)
     if full_record_wanted():
         from .figures import figures
-        result.figures.extend(figures(inputs, site, flows, drips, result))
+        result.figures.extend(figures(inputs, site, flows, drips, result, options))
     return result
 
 

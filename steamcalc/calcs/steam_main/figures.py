@@ -37,7 +37,12 @@ def loss_against_thickness(inputs, site, flows):
                                  style="markers", role="inlet")))
 
 
-def figures(inputs, site, flows, drips, result):
-    return [figure_or_missing("main_pressure", "Pressure along the main", lambda: pressure_profile(flows, drips)),
-            figure_or_missing("loss_against_thickness", "Heat loss against insulation thickness (first segment)",
-                              lambda: loss_against_thickness(inputs, site, flows))]
+def figures(inputs, site, flows, drips, result, options=None):
+    drawn = [figure_or_missing("main_pressure", "Pressure along the main", lambda: pressure_profile(flows, drips)),
+             figure_or_missing("loss_against_thickness", "Heat loss against insulation thickness (first segment)",
+                               lambda: loss_against_thickness(inputs, site, flows))]
+    if options:
+        from .economics import economics_figure
+        drawn.append(figure_or_missing("economic_thickness", "Yearly cost per metre against insulation thickness (first segment)",
+                                       lambda: economics_figure(inputs, options, site.fuel_price.currency)))
+    return drawn
