@@ -80,6 +80,7 @@ _NPS_TEXT = {15: "½", 20: "¾", 25: "1", 32: "1¼", 40: "1½", 50: "2", 65: "2�
              125: "5", 150: "6", 200: "8", 250: "10", 300: "12", 350: "14", 400: "16", 450: "18", 500: "20",
              600: "24"}
 _DN = re.compile(r"\bDN\s?(\d+)\b")
+_NPS_TWICE = re.compile(r"(NPS [\d/½¾¼]+(?: × NPS [\d/½¾¼]+)*) \(NPS [\d/½¾¼]+(?: × NPS [\d/½¾¼]+)*\)")
 
 
 def nps_text(text):
@@ -89,11 +90,15 @@ def nps_text(text):
     --------
     >>> nps_text("Inlet line velocity (DN80); DN15 and DN999")
     'Inlet line velocity (NPS 3); NPS ½ and DN999'
+    >>> nps_text("a valve NPS 3/4 × NPS 1 (DN20 × DN25) passes")
+    'a valve NPS 3/4 × NPS 1 passes'
     """
     if not isinstance(text, str):
         return text
-    return _DN.sub(lambda m: f"NPS {_NPS_TEXT[int(m.group(1))]}" if int(m.group(1)) in _NPS_TEXT else m.group(0),
+    text = _DN.sub(lambda m: f"NPS {_NPS_TEXT[int(m.group(1))]}" if int(m.group(1)) in _NPS_TEXT else m.group(0),
                    text)
+    # A text that gives NPS sizes with their DN beside them in brackets says them once in US display.
+    return _NPS_TWICE.sub(r"\1", text)
 
 
 def _is_kv(key, label=""):
@@ -145,7 +150,8 @@ _TEXT_UNITS = [
     ("kJ/(kg·K)", "kJ/(kg*K)"), ("kW/(m²·K)", "kW/(m**2*K)"), ("m²·K/kW", "m**2*K/kW"), ("kg/(m² s)", "kg/(m**2*s)"),
     ("kg/(m²·s)", "kg/(m**2*s)"), ("bar difference", "bar~d"), ("kPa difference", "kPa~d"), ("bar(a)", "bar~a"),
     ("bar(g)", "bar~g"), ("kPa(a)", "kPa~a"), ("kPa(g)", "kPa~g"), ("kg/m³", "kg/m**3"), ("m³/s", "m**3/s"),
-    ("m³/h", "m**3/h"), ("kJ/kg", "kJ/kg"), ("kg/h", "kg/h"), ("kg/s", "kg/s"), ("kW/K", "kW/K"), ("m/s", "m/s"),
+    ("m³/h", "m**3/h"), ("kJ/kg", "kJ/kg"), ("kg/h", "kg/h"), ("kg/s", "kg/s"), ("kW/K", "kW/K"),
+    ("W/(m·K)", "W/(m*K)"), ("W/m", "W/m"), ("m/s", "m/s"),
     ("mm²", "mm**2"), ("m²", "m**2"), ("m³", "m**3"), ("°C", "degC"), ("kW", "kW"), ("mm", "mm"), ("m", "m"),
     ("K", "K"), ("N", "N"),
 ]
@@ -309,7 +315,8 @@ def _show_entry(entry, key, calc, system, basis, label, equation="", trim=False)
             value, unit = value * 100.0, "percent"
         value, unit = convert(value, unit, system, key, label)
         entry["shown"] = format_number(value, unit, trim)
-        entry["shown"] = nps_text(entry["shown"]) if system == "US" else entry["shown"]
+        # A text value (a size, a drip leg "NPS 3, 700 mm deep", rows of a list) with its quantities in US units.
+        entry["shown"] = us_text(entry["shown"]) if system == "US" else entry["shown"]
         if isinstance(value, (int, float)) and not isinstance(value, bool):
             entry["value"] = value
     entry["unit"] = unit
@@ -432,12 +439,12 @@ def display_record(record):
         # A notice is a statement, never shown as a pass.
         check["shown_status"] = "notice" if check.get("kind") == "notice" else check.get("status")
         if isinstance(check.get("phrase"), dict) and system == "US":
-            check["detail"] = trade_text(Phrase.from_record(check["phrase"]).text(system))
+            check["detail"] = trade_text(nps_text(Phrase.from_record(check["phrase"]).text(system)))
         elif isinstance(check.get("phrase"), dict):
             check["detail"] = trade_text(check.get("detail"))   # the record's own SI writing of its phrase
         else:
             check["detail"] = trade_text(us_text(check.get("detail")) if system == "US" else check.get("detail"))
-    shown["assumptions"] = [trade_text(nps_text(a) if system == "US" else a) for a in shown.get("assumptions", [])]
+    shown["assumptions"] = [trade_text(us_text(a) if system == "US" else a) for a in shown.get("assumptions", [])]
     if isinstance(shown.get("uncertainty"), dict):
         _show_uncertainty(shown["uncertainty"], record, calc, system, labels)
     atmosphere = record.get("site", {}).get("atmospheric_pressure", {})
@@ -592,7 +599,7 @@ def shown_check(check, system="SI"):
     if system != "US":
         return trade_text(name), trade_text(detail)
     if isinstance(check.get("phrase"), dict):
-        detail = Phrase.from_record(check["phrase"]).text(system)
+        detail = nps_text(Phrase.from_record(check["phrase"]).text(system))   # a size in it (DN80) as NPS 3
     else:
         detail = us_text(detail)
     return trade_text(us_label(name)), trade_text(detail)

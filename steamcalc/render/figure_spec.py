@@ -39,6 +39,21 @@ def _axis_title(axis, shown_unit, system):
     return f"{label}, {unit}" if unit else label
 
 
+def figure_title(figure, system="SI"):
+    """A figure's title in the display system: in US a Kv named Cv, DN sizes as NPS and the quantities
+    written in it in US units (the record's figure keeps its own title).
+
+    Examples
+    --------
+    >>> figure_title({"title": "Control valve: required Kv and travel against flow"}, "US")
+    'Control valve: required Cv and travel against flow'
+    >>> figure_title({"title": "Control valve: required Kv and travel against flow"}, "SI")
+    'Control valve: required Kv and travel against flow'
+    """
+    title = figure.get("title", "")
+    return trade_text(us_label(title)) if system == "US" else title
+
+
 def _scaled(values, transform):
     scale, offset, _ = transform
     return [offset + scale * v for v in values]
@@ -93,8 +108,8 @@ def figure_spec(figure, system="SI"):
         if axis == "y2":
             trace["yaxis"] = "y2"
         data.append(trace)
-    layout = {"title": {"text": figure["title"]}, "height": 420, "margin": {"l": 60, "r": 60 if "y2" in axes else 20,
-                                                                            "t": 50, "b": 50},
+    layout = {"title": {"text": figure_title(figure, system)}, "height": 420,
+              "margin": {"l": 60, "r": 60 if "y2" in axes else 20, "t": 50, "b": 50},
               "legend": {"orientation": "h", "y": -0.2}, "shapes": []}
     for key, name in (("x", "xaxis"), ("y", "yaxis"), ("y2", "yaxis2")):
         if key not in axes:
@@ -121,9 +136,10 @@ def figure_spec(figure, system="SI"):
     return {"data": data, "layout": layout}
 
 
-def band_notes(figure):
-    """What each shaded band of a figure means, one line each (drawn under the chart)."""
-    return [band["label"] for band in figure.get("bands", [])]
+def band_notes(figure, system="SI"):
+    """What each shaded band of a figure means, one line each (drawn under the chart), in the display system."""
+    return [trade_text(us_label(band["label"])) if system == "US" else band["label"]
+            for band in figure.get("bands", [])]
 
 
-__all__ = ["figure_spec", "band_notes"]
+__all__ = ["figure_spec", "figure_title", "band_notes"]

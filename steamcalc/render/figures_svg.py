@@ -417,7 +417,7 @@ def record_figures(record, shown=None):
     from markupsafe import Markup
 
     from .display import SYSTEMS
-    from .figure_spec import band_notes, figure_spec
+    from .figure_spec import band_notes, figure_spec, figure_title
     from .sankey_svg import is_flow_figure, sankey_svg
     from .sketch import sketch_svg
 
@@ -439,15 +439,15 @@ def record_figures(record, shown=None):
         except (ArithmeticError, ValueError, KeyError, TypeError, AttributeError) as exc:
             # A record read from a file has passed its schema; this is for one built in memory by hand
             # (pint's unknown-unit error is an AttributeError).
-            charts.append({"title": figure.get("title", f"Figure {number}"), "svg": "", "notes": [],
+            charts.append({"title": figure_title(figure, system) or f"Figure {number}", "svg": "", "notes": [],
                            "missing": f"could not be drawn from the figure data ({type(exc).__name__}: {exc})"})
             continue
         if spec is None:
-            charts.append({"title": figure.get("title", f"Figure {number}"), "svg": "",
+            charts.append({"title": figure_title(figure, system) or f"Figure {number}", "svg": "",
                            "missing": figure.get("missing", "no data"), "notes": []})
             continue
-        charts.append({"title": figure.get("title", f"Figure {number}"), "missing": "", "notes": band_notes(figure),
-                       "svg": Markup(svg)})
+        charts.append({"title": figure_title(figure, system) or f"Figure {number}", "missing": "",
+                       "notes": band_notes(figure, system), "svg": Markup(svg)})
     return {"sketch": sketch, "charts": charts, "note": ""}
 
 

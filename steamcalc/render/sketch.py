@@ -303,7 +303,11 @@ def _flash(points, raw):
         out += ['<text x="370" y="140" text-anchor="middle" font-size="10">flashes</text>',
                 f'<text x="370" y="153" text-anchor="middle" font-size="10">{_esc(format_number(fraction * 100))} %</text>']
     if isinstance(diameter, (int, float)):
-        out.append(f'<text x="370" y="212" text-anchor="middle" font-size="10">Ø {_esc(format_number(diameter))} m</text>')
+        # in the record's display units, as its results table shows the diameter (pint: m to ft in US)
+        value, unit = convert(diameter, results["vessel_diameter"].get("unit", "m"),
+                              raw.get("site", {}).get("display_units", "SI"))
+        out.append(f'<text x="370" y="212" text-anchor="middle" font-size="10">Ø {_esc(format_number(value, unit))} '
+                   f'{_esc(format_unit(unit))}</text>')
     out += _pipe([(370, 50), (370, 30), (638, 30)]) + _box(640, 8, 110, 44, steam_to)
     out += _pipe([(370, 240), (370, 250), (430, 250), (430, 222), (638, 222)], WATER)
     out += _box(640, 200, 110, 44, "condensate", "return")

@@ -219,8 +219,6 @@ def record_charts(record):
         if spec is None:
             missing.append(f"{figure.get('title', figure.get('name', 'figure'))}: {figure.get('missing', 'no data')}")
         else:
-            if system == "US":   # the title too names Cv, NPS and US quantities, as its axes and series do
-                spec["layout"]["title"]["text"] = _shown_text(spec["layout"]["title"]["text"], system)
             log_axes_in_full(spec["layout"])
             figures.append(go.Figure(spec))
     return figures, missing

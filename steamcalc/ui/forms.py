@@ -19,7 +19,7 @@ import re
 import ipywidgets as widgets
 
 from ..calcs.base import input_fields
-from ..units.formatting import format_number, unit_label
+from ..units.formatting import US_UNITS, format_number, unit_label
 from ..units.quantities import Q_, RECORD_UNITS, SI_UNITS, unit_spelling
 from .wording import FormWords
 
@@ -65,13 +65,14 @@ def _number(value, unit=""):
     return format_number(value, unit, trim=True)
 
 
-def given_in_box_units(value, kind, typed):
+def given_in_box_units(value, kind, typed, system="SI"):
     """A value an error holds in SI, written in the units typed in its box (or the field's record unit).
 
     The value of a refused input is what its box holds: a gauge pressure typed as ``14 bar(g)`` is
     given back as typed (its absolute value stands an atmosphere above it); another value is converted
     to the unit typed (``"20 t/h"``) or, for an empty box or a header, to the field's record unit
-    (pressures absolute). Returns None for what is not a finite number (the error writes it itself).
+    (pressures absolute; on a US site, ``system="US"``, that unit's US counterpart: psia, °F, lb/h).
+    Returns None for what is not a finite number (the error writes it itself).
 
     Examples
     --------
@@ -81,6 +82,8 @@ def given_in_box_units(value, kind, typed):
     ('20 t/h', '30 %')
     >>> given_in_box_units(422.0388889, "temperature", "300 degF"), given_in_box_units(5.0, "number", "5")
     ('300 degF', '5')
+    >>> given_in_box_units(1499181.23, "pressure", "header:HP", "US")
+    'header:HP, 217.4 psia'
     """
     if isinstance(value, bool) or not isinstance(value, (int, float)) or not math.isfinite(value):
         return None
@@ -89,7 +92,7 @@ def given_in_box_units(value, kind, typed):
     number, unit = (float(match.group(1)), match.group(2)) if match else (None, "")
     if kind in ("pressure", "pressure_difference", "pressure_list"):
         written = _TYPED_PRESSURE.match(unit) if match else None
-        name = written.group(1) if written else "bar"
+        name = written.group(1) if written else ("psi" if system == "US" else "bar")
         size = _PRESSURE_SIZES[name]
         if kind == "pressure_difference":
             return f"{_number(value / size)} {name}"
@@ -117,6 +120,7 @@ def given_in_box_units(value, kind, typed):
             except Exception:   # a unit this kind is not in: the record unit below
                 pass
         record_unit = RECORD_UNITS[kind]
+        record_unit = US_UNITS.get(record_unit, record_unit) if system == "US" else record_unit
         shown = Q_(value, si_unit).to(record_unit).magnitude
         return f"{_number(shown, record_unit)} {unit_label(record_unit)}".strip()
     return _number(value)
@@ -137,13 +141,16 @@ class CaseForm:
         Field name → ± tolerance text to pre-fill.
     alternatives : sequence of tuples, optional
         Groups of field names of which only one may be given.
+    system : {"SI", "US"}, optional
+        The site's display system: the messages' own quantities, and a header box's value, in it.
     """
 
-    def __init__(self, inputs_class, values, headers=(), tolerances=None, alternatives=()):
+    def __init__(self, inputs_class, values, headers=(), tolerances=None, alternatives=(), system="SI"):
         from ..runs.uncertainty import _DIFFERENCE_KINDS
 
         tolerances = tolerances or {}
-        self.words = FormWords(inputs_class)
+        self.system = system
+        self.words = FormWords(inputs_class, system)
         self.boxes = {}
         self.tolerance_boxes = {}
         self.messages = {}
@@ -271,7 +278,8 @@ class CaseForm:
             self.messages[named].value = (
                 f"{_CONFLICT_STYLE}<div class='steamcalc-conflict' style='color:#a3201b;padding-left:8px'>"
                 f"In conflict with {html.escape(self._typed_label(where))}, just changed: "
-                f"{html.escape(self.words.text(exc.message))}</div>" + self.messages[named].value)
+                f"{html.escape(self.words.quantities(self.words.text(exc.message)))}</div>"
+                + self.messages[named].value)
         return where
 
     def _typed(self, name, address=""):
@@ -293,7 +301,7 @@ class CaseForm:
         if name is None:
             return None
         return given_in_box_units(getattr(exc, "value", None), self.kinds.get(name),
-                                  self._typed(name, getattr(exc, "field", "")))
+                                  self._typed(name, getattr(exc, "field", "")), self.system)
 
     def refusal(self, exc):
         """The message of a refused input in the form's words, starting with its box's label.

@@ -17,7 +17,9 @@ from ..cases.site import case_site, load_case
 from ..errors import InputError, RecordConflictError, SteamcalcError
 from ..records.build import record_for_case
 from ..records.record import write_record
+from ..render.display import convert, record_system, shown_check
 from ..render.report import RENDERERS, format_unit
+from .charts import shown_rows
 
 
 class BalanceBook:
@@ -68,6 +70,16 @@ class BalanceBook:
         return [{"load case": case, **{label: results[f"{case}.{key}"]["value"] for key, label in keys
                                        if f"{case}.{key}" in results}} for case in self.load_cases()]
 
+    @property
+    def system(self):
+        """The display system of the site (``"SI"`` or ``"US"``): every view below is drawn in it, by pint."""
+        return record_system(self.record)
+
+    def _table(self, rows, index):
+        import pandas as pd
+
+        return pd.DataFrame(shown_rows(rows, self.system)).set_index(index)
+
     def load_cases(self):
         """The load cases' names, in the record's order."""
         return [key[len("load_case."):-len(".name")] for key in self.record["inputs"]
@@ -90,7 +102,7 @@ class BalanceBook:
         keys = (("boiler_steam_flow", "boiler steam, kg/h"), ("blowdown_flow", "blowdown, kg/h"),
                 ("fuel_power", "fuel input, kW"), ("deaerator_steam_flow", "deaerator steam, kg/h"),
                 ("makeup_water_flow", "make-up water, kg/h"), ("vent_heat_loss", "vent heat lost, kW"))
-        return pd.DataFrame(self._rows(keys)).set_index("load case")
+        return self._table(self._rows(keys), "load case")
 
     def headers(self):
         """Per load case and header: what closes it, its let-down or vent flow, its temperature."""
@@ -106,7 +118,7 @@ class BalanceBook:
                              "closed by": results[f"{case}.{header}.closed_by"]["value"],
                              "vent, kg/h": results[f"{case}.{header}.vent_flow"]["value"],
                              "temperature, °C": results[f"{case}.{header}.temperature"]["value"]})
-        return pd.DataFrame(rows).set_index(["load case", "header"])
+        return self._table(rows, ["load case", "header"])
 
     def checks(self):
         """The record's checks, status first."""
@@ -114,7 +126,7 @@ class BalanceBook:
 
         if self.error:
             return pd.DataFrame({"not run": [self.error]})
-        return pd.DataFrame([{"status": c["status"], "check": c["name"], "detail": c["detail"]}
+        return pd.DataFrame([{"status": c["status"], **dict(zip(("check", "detail"), shown_check(c, self.system)))}
                              for c in self.record["checks"] if c.get("kind") != "notice"])
 
     def comparison(self):
@@ -123,7 +135,15 @@ class BalanceBook:
 
         if self.error:
             return pd.DataFrame({"not run": [self.error]})
-        return pd.DataFrame([dict(row, unit=format_unit(row["unit"])) for row in comparison_rows(self.record)])
+        rows = []
+        for row in comparison_rows(self.record):
+            unit = row["unit"]
+            zero, shown_unit = convert(0.0, unit, self.system)
+            scale = convert(1.0, unit, self.system)[0] - zero   # a difference scales without the offset
+            rows.append(dict(row, unit=format_unit(shown_unit), balance=convert(row["balance"], unit, self.system)[0],
+                             **{"what-if": convert(row["what-if"], unit, self.system)[0],
+                                "difference": row["difference"] * scale}))
+        return pd.DataFrame(rows)
 
     def sankey(self, case):
         """Plotly's Sankey diagram of a load case's steam flows, from the record's figure data."""
@@ -135,7 +155,9 @@ class BalanceBook:
         if figure.get("missing"):
             return go.Figure(layout={"title": f"{figure['title']}: {figure['missing']}"})
         nodes, sources, targets, values = sankey_links(figure)
-        unit = figure["axes"]["y"]["unit"]
+        record_unit = figure["axes"]["y"]["unit"]
+        values = [convert(value, record_unit, self.system)[0] for value in values]
+        unit = format_unit(convert(1.0, record_unit, self.system)[1])
         return go.Figure(go.Sankey(node={"label": nodes, "pad": 18},
                                    link={"source": sources, "target": targets, "value": values,
                                          "hovertemplate": "%{source.label} → %{target.label}: %{value:,.0f} " + unit}),

@@ -34,7 +34,9 @@ class FormWords:
     "fill in the 'Condensate flow' box"
     """
 
-    def __init__(self, inputs_class):
+    def __init__(self, inputs_class, system="SI"):
+        # The site's display system: a US site's messages write their quantities in US units (by pint).
+        self.system = system
         self.labels = {}
         self._names = {}
         for f in input_fields(inputs_class):
@@ -86,6 +88,17 @@ class FormWords:
             return m.group(0)
         return before + self._quoted(key, index)
 
+    def quantities(self, text):
+        """A message's quantities in the display system: ``"15.99 bar(a)"`` reads ``"231.9 psia"`` on a US site.
+
+        Only the calculation's own writing is converted; what the user typed is quoted as typed elsewhere.
+        """
+        if self.system != "US" or not text:
+            return text
+        from ..render.display import us_label
+
+        return us_label(text)
+
     def fix(self, fix):
         """A case-file fix as what to do in the form."""
         if not fix:
@@ -101,7 +114,7 @@ class FormWords:
         form is the source). ``given`` is the value as the form writes it (in the units typed in its
         box; ``""`` for none); by default the error writes its own.
         """
-        message = self.text(exc.message)
+        message = self.quantities(self.text(exc.message))
         if exc.fix and not message.endswith((".", ":", "!", "?")):
             message += "."
         return exc.explained(message, self.fix(exc.fix), given)

@@ -98,7 +98,7 @@ class Workbook:
         self._settings = {k: v for k, v in self.case.uncertainty.items() if k in SETTINGS}
         self.form = CaseForm(self.calc.Inputs, flat, headers=tuple(self.site.headers),
                              tolerances={k: v for k, v in self.case.uncertainty.items() if k not in self._settings},
-                             alternatives=alternatives_for(self.calc))
+                             alternatives=alternatives_for(self.calc), system=self.site.display_units)
         self._banners = []
         self._summary = SummaryView(self._summary_text)
         self._summary.add_class("steamcalc-summary")

@@ -20,6 +20,7 @@ US_UNITS = {
     "kW/K": "Btu/(h*delta_degF)", "kW/(m**2*K)": "Btu/(h*ft**2*delta_degF)", "kJ/(kg*K)": "Btu/(lb*delta_degF)",
     "t": "short_ton", "kg/m**3": "lb/ft**3", "m**2*K/kW": "h*ft**2*delta_degF/Btu", "m**3/h": "gallon/minute",
     "m**3/s": "ft**3/s", "N": "lbf", "kg/(m**2*s)": "lb/(ft**2*s)", "Pa": "lb/(ft*s**2)",
+    "W/m": "Btu/(h*ft)", "W/(m*K)": "Btu/(h*ft*delta_degF)",
 }
 
 #: A unit as people write it, for units whose written form is not the pint name made typographic.
@@ -28,7 +29,8 @@ _UNIT_WORDS = {
     "gallon/minute": "US gpm", "inch": "in", "inch**2": "in²", "short_ton": "short ton", "lbf": "lbf",
     "Btu/(h*delta_degF)": "Btu/(h·°F)", "Btu/(h*ft**2*delta_degF)": "Btu/(h·ft²·°F)",
     "Btu/(lb*delta_degF)": "Btu/(lb·°F)", "h*ft**2*delta_degF/Btu": "h·ft²·°F/Btu", "lb/(ft*s**2)": "lb/(ft·s²)",
-    "kg/(m**2*s)": "kg/(m²·s)", "lb/(ft**2*s)": "lb/(ft²·s)",
+    "kg/(m**2*s)": "kg/(m²·s)", "lb/(ft**2*s)": "lb/(ft²·s)", "Btu/(h*ft)": "Btu/(h·ft)",
+    "Btu/(h*ft*delta_degF)": "Btu/(h·ft·°F)",
     # Every sound level steamcalc records is an A-weighted sound pressure level (IEC 60534-8-3's L_pAe; limits are
     # read only as dB(A)). pint has no A-weighting, so records keep "dB" and every view writes dB(A).
     "dB": "dB(A)",
