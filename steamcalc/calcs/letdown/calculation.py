@@ -20,6 +20,7 @@ from ...units.amounts import Phrase
 from ..base import Result, bar_a, check_fields, deg_c, full_record_wanted, input_field
 from .equipment import UPSTREAM_PRESSURE_BASES, line_section, relief_load_section, valve_section
 from .figures import figures
+from .discharge import DISCHARGE_PATTERNS, check_discharge_inputs
 from .relief import relief_section
 from .spray import SPRAY_PRESSURE_DIFFERENCE_RESULTS, check_spray_inputs, spray_field, spray_section
 from .station import downstream_section, line_loss_section
@@ -38,6 +39,9 @@ SUMMARY_RESULTS = ("outlet_temperature", "outlet_superheat", "spray_water_flow",
 #: Bases this release changed, so that verify lists what a record of an earlier release differs by, and why,
 #: instead of calling it edited: patterns (fnmatch) over result keys, step labels, check names and statements.
 BASIS_CHANGES = (
+    # First: its names begin "Relief" as the relief load's do, and the first declared change that matches is named.
+    ("0.3", "the relief valve's discharge line: its built-up back pressure against the valve type's limit, or a "
+     "statement that it was not assessed", DISCHARGE_PATTERNS),
     ("0.3", "relief load on the densest credible inlet steam (dry saturated at the highest upstream pressure)",
      ("fail_open_flow*", "bypass_open_flow", "relief_*", "Fail-open flow", "Bypass-open flow", "Required area*",
       "Relief*", "Reaction force*", "Relief load*")),
@@ -255,7 +259,19 @@ class Inputs:
         "fittings).", example="0.5", section="relief", key="inlet_fittings_k")
     relief_discharge_size: str | None = input_field(
         "nominal_size", "Relief discharge size", "Nominal size of the open discharge pipe, for the reaction force "
-        "(default: the API 526 outlet of the orifice).", example="DN100", section="relief", key="discharge_size")
+        "(default: the API 526 outlet of the orifice); with the discharge length, the pipe whose built-up back "
+        "pressure is assessed.", example="DN100", section="relief", key="discharge_size")
+    relief_discharge_length: float | None = input_field(
+        "length", "Relief discharge pipe length", "Straight length of the relief valve's outlet pipe to its open end; "
+        "with it the record assesses the built-up back pressure.", example="12 m", section="relief", positive=True,
+        key="discharge_length")
+    relief_discharge_fittings_k: float | None = input_field(
+        "number", "Relief discharge fittings K", "Sum of the loss coefficients of the outlet pipe's fittings and its "
+        "open exit (1.0).", example="1.9", section="relief", key="discharge_fittings_k")
+    relief_discharge_equivalent_length: float | None = input_field(
+        "length", "Relief discharge fittings equivalent length", "Fittings of the outlet pipe given as an equivalent "
+        "length of straight pipe instead of (or as well as) their K; added to the straight length.", example="8 m",
+        section="relief", key="discharge_equivalent_length")
     design_pressure: float | None = input_field(
         "pressure", "Downstream design pressure", "Design pressure of the downstream system.", example="6 bar(g)",
         section="downstream")
@@ -351,12 +367,13 @@ class Inputs:
         if self.relief_valve_type is not None and self.relief_valve_type not in VALVE_TYPES:
             raise InputError(f"unknown relief valve type '{self.relief_valve_type}'", field="relief.valve_type",
                              value=self.relief_valve_type, fix=f"use one of {', '.join(VALVE_TYPES)}")
-        for name in ("inlet_fittings_k", "outlet_fittings_k", "relief_inlet_fittings_k"):
+        for name in ("inlet_fittings_k", "outlet_fittings_k", "relief_inlet_fittings_k", "relief_discharge_fittings_k"):
             value = getattr(self, name)
             if value is not None and value < 0.0:
-                where = "relief.inlet_fittings_k" if name.startswith("relief") else f"lines.{name}"
+                where = f"relief.{name[len('relief_'):]}" if name.startswith("relief") else f"lines.{name}"
                 raise InputError("a loss coefficient cannot be negative", field=where, value=value,
                                  fix="give the sum of the fittings' K values, zero or more")
+        check_discharge_inputs(self)
         if self.design_pressure is not None and self.design_pressure <= self.outlet_pressure:
             raise InputError(
                 f"the downstream design pressure {bar_a(self.design_pressure)} is not above the outlet pressure "

@@ -16,6 +16,7 @@ from ...equipment.relief import (
 from ...errors import OutOfRangeError
 from ...properties.steam import SteamState
 from ...units.amounts import Phrase
+from .discharge import discharge_line_section
 from .equipment import (
     DEFAULT_SCHEDULE, inlet_state_at, line_drop, relief_set_pressure, sizing_kappa, upstream_relieving_pressure,
 )
@@ -36,14 +37,18 @@ RELIEF_CAUTIONS = (
 
 
 def _discharge_diameter(inputs, letter, schedule):
-    if inputs.relief_discharge_size is not None:
-        return pipe_inner_diameter(inputs.relief_discharge_size, schedule, field="relief.discharge_size"), \
-            inputs.relief_discharge_size
+    """Inner diameter (m) of the relief valve's outlet pipe, its description, and whether it is narrower than the
+    valve's outlet."""
     nps = API526_OUTLET_NPS[letter]
     dn = next(d for d, n in DN_TO_NPS.items() if n == nps)
-    return pipe_inner_diameter(f"DN{dn}", schedule), (
-        f"DN{dn} (the smallest outlet API 526 pairs with the {letter} orifice: its inlet × orifice × outlet sizes "
-        "as tabulated in the Valve Selection Handbook, Table 5-1)")
+    outlet = (f"DN{dn} (the smallest outlet API 526 pairs with the {letter} orifice: its inlet × orifice × outlet sizes "
+              "as tabulated in the Valve Selection Handbook, Table 5-1)")
+    valve_outlet = pipe_inner_diameter(f"DN{dn}", schedule)
+    if inputs.relief_discharge_size is None:
+        return valve_outlet, outlet, False
+    diameter = pipe_inner_diameter(inputs.relief_discharge_size, schedule, field="relief.discharge_size")
+    return diameter, f"{inputs.relief_discharge_size} (given), on the valve's outlet {outlet}", \
+        diameter < valve_outlet * (1.0 - 1e-9)
 
 
 #: Gauge pressure below which the usual pressure-vessel codes do not apply: 15 psig = 1.034 bar (ASME BPVC VIII-1,
@@ -178,7 +183,12 @@ def relief_section(inputs, inlet, site, result):
     schedule = inputs.schedule or DEFAULT_SCHEDULE
     _inlet_loss(inputs, relieving, rated_flow, p_set, atm, schedule, result)
     kappa = sizing_kappa(relieving)
-    diameter, described = _discharge_diameter(inputs, letter, schedule)
+    diameter, described, narrower = _discharge_diameter(inputs, letter, schedule)
+    if narrower:
+        result.check("Relief discharge line size", "warn",
+                     f"the outlet pipe {described} is narrower than the valve's outlet: it raises the built-up back "
+                     "pressure and the reaction force; run it at the outlet size or larger (common practice; the "
+                     "valve maker's installation instructions govern)")
     outlet_area = flow_area(diameter) * 1e6
     force, p_exit = reaction_force(rated_flow, relieving.temperature, kappa, outlet_area, atm)
     result.assumptions.append(f"Relief reaction force: open discharge through {described}")
@@ -191,6 +201,8 @@ def relief_section(inputs, inlet, site, result):
                 W=(rated_flow / 3600, "kg/s"), k=(kappa, ""), T1=(relieving.temperature - 273.15, "degC"),
                 M=(MOLAR_MASS_WATER, "kg/kmol"), A_o=(outlet_area, "mm**2"), P2=(p_exit / 1e3, "kPa", "difference"))
     result.add("relief_reaction_force", "Reaction force of the open discharge", force, "N")
+    discharge_line_section(inputs, relieving_enthalpy=upstream.enthalpy, rated_flow_kg_h=rated_flow, set_pressure=p_set,
+                           atm=atm, valve_type=valve_type, diameter=diameter, result=result)
 
 
 def _back_pressure_check(valve_type, gauge_back, kb_note, result):
