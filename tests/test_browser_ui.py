@@ -73,6 +73,14 @@ def test_flash_refused_input_beside_its_box_stale_views_and_the_cascade_example(
     assert mb["y"] < bb["y"] + bb["height"] and bb["y"] < mb["y"] + mb["height"], "the message is not level with its box"
     border = page.evaluate("e => getComputedStyle(e).borderTopColor", box.element_handle())
     assert border == "rgb(163, 32, 27)"
+    # The stale marks reach the page one widget message at a time: wait for all of them (a loaded machine
+    # once showed one banner of four at the first look), then check.
+    page.wait_for_function(
+        "([panel, views]) => views.every(v => { const e = document.querySelector(panel + ' .' + v);"
+        " return e && e.classList.contains('steamcalc-stale'); })"
+        " && [...document.querySelectorAll(panel + ' .steamcalc-stale-banner')]"
+        ".filter(e => e.getClientRects().length > 0).length >= 4",
+        arg=[PANEL, ["steamcalc-results", "steamcalc-chart", "steamcalc-table"]])
     for view in ("steamcalc-results", "steamcalc-chart", "steamcalc-table"):
         assert "steamcalc-stale" in page.locator(f"{PANEL} .{view}").first.get_attribute("class"), view
     visible_banners = page.locator(f"{PANEL} .steamcalc-stale-banner:visible")
@@ -92,6 +100,9 @@ def test_flash_refused_input_beside_its_box_stale_views_and_the_cascade_example(
     _wait_text(page, ".steamcalc-summary", "3,500")
     assert "INPUT NOT ACCEPTED" not in _text(page, ".steamcalc-summary")
     assert _text(page, ".steamcalc-field-message-condensate_flow").strip() == ""
+    page.wait_for_function(
+        "panel => [...document.querySelectorAll(panel + ' .steamcalc-stale-banner')]"
+        ".filter(e => e.getClientRects().length > 0).length === 0", arg=PANEL)
     assert page.locator(f"{PANEL} .steamcalc-stale-banner:visible").count() == 0
     assert "steamcalc-stale" not in page.locator(f"{PANEL} .steamcalc-results").first.get_attribute("class")
     page.locator(f"{PANEL} .steamcalc-summary").first.scroll_into_view_if_needed()
