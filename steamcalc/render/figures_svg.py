@@ -11,20 +11,13 @@ same bytes, which ``steamcalc verify`` relies on when it re-renders a record's H
 
 from __future__ import annotations
 
-import html
 import math
 
-WIDTH = 720.0
-FONT = "DejaVu Sans, Arial, sans-serif"
+from .svg_text import FONT, WIDTH, _esc, _f  # noqa: F401 - FONT and WIDTH are read from here too
+
 _DASHES = {"dot": "2,3", "dash": "7,4", "dashdot": "7,3,2,3", "longdash": "12,4", "longdashdot": "12,3,2,3"}
 _COLOURWAY = ("#2b6a99", "#b5442c", "#1d2327", "#2f6b3a", "#8a5a00", "#5b6770")
 _CHAR_WIDTH = 6.1   # mean advance of an 11 px sans-serif character, px (for legend layout only)
-
-
-def _f(value):
-    """A coordinate as written: one decimal, no negative zero."""
-    text = f"{value:.1f}"
-    return "0.0" if text == "-0.0" else text
 
 
 def _get(table, *path):
@@ -39,10 +32,6 @@ def _get(table, *path):
 def _seq(values):
     """A trace's coordinates as a sequence (plotly holds them as a tuple, a numpy array or None)."""
     return () if values is None else values
-
-
-def _esc(text):
-    return html.escape(str(text), quote=True)
 
 
 def nice_ticks(low, high, target=6, dtick=None):

@@ -14,7 +14,7 @@ from __future__ import annotations
 
 from ..calcs.base import FLOW_ARROW
 from .figure_spec import _transform
-from .figures_svg import FONT, WIDTH, _esc, _f
+from .svg_text import FONT, WIDTH, _esc, _f
 
 _NODE_COLOURS = ("#2b6a99", "#b5442c", "#2f6b3a", "#8a5a00", "#7a5c99", "#5b6770", "#1d2327")
 _NODE_WIDTH = 12.0
