@@ -18,7 +18,7 @@ import math
 from dataclasses import dataclass
 
 from ..errors import InputError, NotConvergedError
-from .relief import NozzleFlow, api526_orifice, isentrope_point
+from .relief import NozzleFlow, _golden_max, api526_orifice, isentrope_point
 
 #: Effective coefficient of discharge for preliminary sizing, API 520 Part I annex C: two-phase or
 #: saturated liquid at the inlet, and subcooled liquid.
@@ -424,20 +424,8 @@ def isentropic_flux(inlet, back_pressure):
     if best == 0:
         g, x = flux(back_pressure)
         return NozzleFlow(g, back_pressure, False, x)
-    a, b = pressures[best - 1], pressures[min(best + 1, SCAN_POINTS - 1)]
-    ratio = (math.sqrt(5.0) - 1.0) / 2.0
-    c, d = b - ratio * (b - a), a + ratio * (b - a)
-    fc, fd = flux(c)[0], flux(d)[0]
-    for _ in range(REFINE_STEPS):
-        if fc > fd:
-            b, d, fd = d, c, fc
-            c = b - ratio * (b - a)
-            fc = flux(c)[0]
-        else:
-            a, c, fc = c, d, fd
-            d = a + ratio * (b - a)
-            fd = flux(d)[0]
-    throat = 0.5 * (a + b)
+    # The steam relief's golden-section search refines the peak within the scan's bracket.
+    throat = _golden_max(flux, pressures[best - 1], pressures[min(best + 1, SCAN_POINTS - 1)], REFINE_STEPS)
     g, x = flux(throat)
     if g < fluxes[0]:
         raise NotConvergedError("the largest flux along the isentrope was not found above the back pressure",
