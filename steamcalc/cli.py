@@ -721,7 +721,7 @@ def _register(args):
     for target, _ in targets:   # refused before the records are recomputed, not after
         refuse_foreign_file(target, args.force, "register")
     trust = register_trust(args.folder, args.trusted)
-    rows = build_register(args.folder, trusted_dir=args.trusted, remember=args.remember)
+    rows = build_register(args.folder, trusted_dir=args.trusted, remember=args.remember, workers=8)
     _say(f"trusted signers: {trust.describe()}")
     for note in trust.notes():
         _say(note)

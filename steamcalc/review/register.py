@@ -411,7 +411,7 @@ def _verification(record, intact, memory):
                         notes=["verified before by this same software (the register's memory); not recomputed"])
 
 
-def build_register(folder, trusted_dir=None, recompute=True, remember=False):
+def build_register(folder, trusted_dir=None, recompute=True, remember=False, workers=1):
     """Every record of a site folder (its ``records/``) or of a records folder.
 
     Parameters
@@ -427,6 +427,10 @@ def build_register(folder, trusted_dir=None, recompute=True, remember=False):
         Use and keep this machine's memory of what the same software verified and drew before
         (:mod:`steamcalc.review.memory`); off by default: every record is recomputed and drawn (a register
         someone signs against must not rest on a cache); ``register --remember`` turns it on.
+    workers : int
+        Processes that may recompute records at once (forked copies of this one, :mod:`.forked`; fewer where
+        the platform cannot fork or this process has threads). 1 (the default, as in a workbook's kernel)
+        keeps to this process; the command line gives the machine's cores.
 
     Returns
     -------
@@ -436,6 +440,7 @@ def build_register(folder, trusted_dir=None, recompute=True, remember=False):
     from ..properties.engines import remembering_states
     from ..records.record import load_record
     from ..signing.trust import resolve_trust
+    from .forked import map_forked, usable_workers
     from .memory import RegisterMemory
 
     site_dir, records_dir = _folders(folder)
@@ -477,21 +482,35 @@ def build_register(folder, trusted_dir=None, recompute=True, remember=False):
             latest[record["id"]] = rev
     cases = _cases_by_id(site_dir)
     site_file = site_dir / "site.toml" if site_dir else None
-    rows = []
     # A site's records share its headers' states: each is evaluated once for the whole register, and every
     # record is still recomputed in full (remembering changes no value, only how often it is evaluated).
+    def row(i):
+        (path, record), whole = records[i], intact[i]
+        case, case_warning = case_for_record(record, cases.get(record["id"], []))
+        if case is not None and case.site_path is not None:
+            site_path = case.site_path
+        else:
+            site_path = site_file
+        top = latest[record["id"]]
+        later = None if revision_order(str(record["revision"])) >= revision_order(top) else top
+        return register_row(path, record, trusted=trusted, case=case, site_path=site_path, later_revision=later,
+                            recompute=recompute, case_warning=case_warning, memory=memory, intact=whole)
+
     with remembering_states():
-        for (path, record), whole in zip(records, intact):
-            case, case_warning = case_for_record(record, cases.get(record["id"], []))
-            if case is not None and case.site_path is not None:
-                site_path = case.site_path
-            else:
-                site_path = site_file
-            top = latest[record["id"]]
-            later = None if revision_order(str(record["revision"])) >= revision_order(top) else top
-            rows.append(register_row(path, record, trusted=trusted, case=case, site_path=site_path,
-                                     later_revision=later, recompute=recompute, case_warning=case_warning,
-                                     memory=memory, intact=whole))
+        # Records are recomputed in forked copies of this process when it may (the memory is kept in one
+        # process, so a register that remembers stays in it). One record of each kind is recomputed here
+        # first, so that every copy starts with that kind's code imported and the site's states evaluated.
+        shared = workers > 1 and memory is None and recompute
+        first = {}
+        for i, (_, record) in enumerate(records):
+            first.setdefault(record.get("kind"), i)
+        warm = sorted(first.values()) if shared else []
+        done = {i: row(i) for i in warm}
+        rest = [i for i in range(len(records)) if i not in done]
+        count = usable_workers(len(rest), workers) if shared else 1
+        for i, answer in zip(rest, map_forked(lambda k: row(rest[k]), len(rest), count)):
+            done[i] = answer
+        rows = [done[i] for i in range(len(records))]
     if memory is not None:
         memory.save()
     rows.sort(key=lambda r: (r.id, revision_order(r.revision)))
