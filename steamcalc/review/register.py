@@ -401,7 +401,7 @@ def _verification(record, intact, memory):
     if memory is not None and not record.get("signoff") and not record.get("checked_by"):
         known = memory.verified(record, intact)
     if known is None:
-        outcome = verify_record(record)
+        outcome = verify_record(record, digests_hold=intact is True)
         if memory is not None:
             memory.remember_verified(record, intact, outcome)
         return outcome
