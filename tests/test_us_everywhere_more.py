@@ -191,3 +191,27 @@ def test_nps_sizes_with_their_dn_beside_them_are_said_once_in_us(us_site, tmp_pa
     summary = Workbook(us_site / "cases" / "HX-01.toml", tmp_path).summary(compute_bands=False)
     relief = next(line for line in summary.splitlines() if "Thermal relief: minimum size" in line)
     assert "NPS 3/4 × NPS 1 (common practice)" in relief and "(NPS" not in relief, relief
+
+
+def test_us_form_examples_are_us_units_that_read_back_to_the_si_example():
+    """A US form's placeholders show US units (psig, °F, lb/h, ft...), each typeable, each the SI example's
+    quantity to its three significant figures (conversion factors: NIST SP 811 through pint)."""
+    from steamcalc.calcs import get_calculation, kinds
+    from steamcalc.calcs.base import input_fields
+    from steamcalc.ui.forms import example_in
+    from steamcalc.units.quantities import parse_pressure, parse_quantity
+
+    def read(text, kind):
+        return parse_pressure(text, "example") if kind == "pressure" else parse_quantity(text, "example", kind)
+
+    shown = 0
+    for kind_name in kinds():
+        for f in input_fields(get_calculation(kind_name).Inputs):
+            kind, example = f.metadata["kind"], str(f.metadata["example"])
+            us = example_in(example, kind, "US")
+            if us == example:
+                continue
+            shown += 1
+            assert not any(si in us for si in ("bar", "°C", "t/h", "kg", " m", "kW")), us
+            assert read(us, kind) == pytest.approx(read(example, kind), rel=5e-3, abs=700.0), (example, us)
+    assert shown >= 40

@@ -126,6 +126,62 @@ def given_in_box_units(value, kind, typed, system="SI"):
     return _number(value)
 
 
+#: Kinds whose example a US form shows in US units (each typeable as shown); the others keep the SI example
+#: (a Kv, a volume flow and a temperature difference are typed in SI units on either form).
+_US_EXAMPLE_KINDS = {"pressure", "pressure_difference", "temperature", "mass_flow", "length", "velocity", "area",
+                     "density", "specific_heat", "heat_transfer_coefficient", "fouling_resistance",
+                     "thermal_conductivity"}
+#: Written units (as examples write them) and their US counterparts as the form reads them back.
+_US_EXAMPLE_UNITS = {"°C": "°F", "t/h": "lb/h", "kg/h": "lb/h", "m": "ft", "mm": "in", "m/s": "ft/s", "m²": "ft²",
+                     "kg/m³": "lb/ft³", "kJ/(kg·K)": "Btu/(lb·°F)", "kW/(m²·K)": "Btu/(h·ft²·°F)",
+                     "m²·K/kW": "h·ft²·°F/Btu", "W/(m·K)": "Btu/(h·ft·°F)"}
+
+
+def _example_number(value):
+    """Three significant figures, written as a user types a number (no thousands separator, no exponent)."""
+    if value == 0:
+        return "0"
+    rounded = float(f"{value:.3g}")
+    return f"{rounded:.0f}" if abs(rounded) >= 100 else f"{rounded:g}"
+
+
+def example_in(example, kind, system="SI"):
+    """A box's example in the form's units: on a US form a pressure, temperature, flow, length... is shown as
+    a US user would type it; what is not a single quantity (a header, a list, a table) is left as it is.
+
+    Examples
+    --------
+    >>> example_in("8 bar(g)", "pressure", "US"), example_in("0.3 bar", "pressure_difference", "US")
+    ('116 psig', '4.35 psi')
+    >>> example_in("150 °C", "temperature", "US"), example_in("4.5 t/h", "mass_flow", "US")
+    ('302 °F', '9920 lb/h')
+    >>> example_in("header:MP", "pressure", "US"), example_in("8 bar(g)", "pressure", "SI")
+    ('header:MP', '8 bar(g)')
+    """
+    text = str(example)
+    if system != "US" or kind not in _US_EXAMPLE_KINDS:
+        return text
+    match = _TYPED.match(text)
+    if not match or not match.group(2):
+        return text
+    number, unit = float(match.group(1)), match.group(2)
+    if kind in ("pressure", "pressure_difference"):
+        written = _TYPED_PRESSURE.match(unit)
+        if not written:
+            return text
+        basis = (written.group(2) or written.group(3) or "").lower()
+        psi = number * _PRESSURE_SIZES[written.group(1)] / _PRESSURE_SIZES["psi"]
+        return f"{_example_number(psi)} psi{basis}"
+    us_unit = _US_EXAMPLE_UNITS.get(unit)
+    if us_unit is None:
+        return text
+    try:
+        value = Q_(number, unit_spelling(unit)).to(unit_spelling(us_unit)).magnitude
+    except Exception:   # an example in a unit pint does not read: shown as written
+        return text
+    return f"{_example_number(value)} {us_unit}"
+
+
 class CaseForm:
     """Text boxes for every input of a kind, grouped by case-file section.
 
@@ -186,7 +242,7 @@ class CaseForm:
                                  f"{html.escape(meta['label'])}</label>", layout=widgets.Layout(width=_LABEL_WIDTH))
             label.add_class(f"steamcalc-label-{f.name}")
             box = widgets.Text(
-                value="" if raw is None else str(raw), placeholder=f"e.g. {meta['example']}",
+                value="" if raw is None else str(raw), placeholder=f"e.g. {example_in(meta['example'], meta['kind'], system)}",
                 tooltip=tooltip, continuous_update=False, layout=widgets.Layout(width="19em"),
             )
             box.add_class("steamcalc-input")
