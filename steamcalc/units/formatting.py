@@ -20,7 +20,7 @@ US_UNITS = {
     "kW/K": "Btu/(h*delta_degF)", "kW/(m**2*K)": "Btu/(h*ft**2*delta_degF)", "kJ/(kg*K)": "Btu/(lb*delta_degF)",
     "t": "short_ton", "kg/m**3": "lb/ft**3", "m**2*K/kW": "h*ft**2*delta_degF/Btu", "m**3/h": "gallon/minute",
     "m**3/s": "ft**3/s", "N": "lbf", "kg/(m**2*s)": "lb/(ft**2*s)", "Pa": "lb/(ft*s**2)",
-    "W/m": "Btu/(h*ft)", "W/(m*K)": "Btu/(h*ft*delta_degF)",
+    "W/m": "Btu/(h*ft)", "W/(m*K)": "Btu/(h*ft*delta_degF)", "MWh": "MMBtu",
 }
 
 #: A unit as people write it, for units whose written form is not the pint name made typographic.

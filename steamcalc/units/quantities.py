@@ -18,6 +18,8 @@ import pint
 from ..errors import UnitError
 
 ureg = pint.UnitRegistry()
+# A million Btu: the unit US plants buy fuel in (the Btu as pint defines it, the International Table Btu).
+ureg.define("MMBtu = 1e6 * Btu")
 Q_ = ureg.Quantity
 
 #: Standard atmosphere at sea level, Pa (ISO 2533:1975).
