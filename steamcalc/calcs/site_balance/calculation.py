@@ -1,5 +1,5 @@
-"""The site steam balance: the headers, boiler, deaerator, let-downs, flash vessels and users of a site,
-per load case, in one record.
+"""The site steam balance: the headers, boiler, deaerator, let-downs, back-pressure turbines, flash vessels and
+users of a site, per load case, in one record.
 
 Per load case (:mod:`.solver`): each header closed by its let-down's make-up or a vent (the record says
 which, and how much), the boiler's steam, blowdown and fuel, the deaerator's heating steam by its mass
@@ -22,13 +22,16 @@ from .links import link_problems as linked_record_problems
 from .links import stale_links
 from .solver import MAX_SWEEPS, TOLERANCE, fixed_states, solve_case
 from .steps import case_steps
+from .turbines import add_turbine_notes, add_turbine_year, closing_turbine, turbine_case_results
+from .turbines import turbine_steps_and_checks
 
 KIND = "balance"
 TITLE = "Site steam balance"
 WORKBOOK = "site_balance.ipynb"
 UNCERTAINTY_RESULTS = ()
 SUMMARY_RESULTS = ("annual_fuel_energy", "annual_fuel_cost", "annual_makeup_water", "annual_co2",
-                   "annual_total_cost", "what_if_annual_total_cost_difference")
+                   "annual_total_cost", "what_if_annual_total_cost_difference", "annual_turbine_electricity",
+                   "annual_turbine_electricity_value")
 
 __all__ = ["Inputs", "calculate", "linked_record_problems", "stale_links", "KIND", "TITLE", "WORKBOOK"]
 
@@ -72,7 +75,10 @@ def calculate(inputs, site):
         Per load case ``<case>.boiler_steam_flow``, ``<case>.fuel_power``, ``<case>.deaerator_steam_flow``,
         ``<case>.makeup_water_flow``, ``<case>.<header>.closed_by`` (let-down, vent or balanced) with the
         let-down and vent flows, and the year's ``annual_fuel_energy``, ``annual_makeup_water``,
-        ``annual_co2``, ``annual_total_cost``; with a what-if, the same for it and the differences.
+        ``annual_co2``, ``annual_total_cost``; with a what-if, the same for it and the differences. With
+        turbines, per load case ``<case>.<turbine>.steam_flow``, ``exhaust_enthalpy``, ``exhaust_dryness``,
+        ``shaft_power`` and ``electric_power``, and the year's ``annual_turbine_electricity`` (with its value at
+        the site's power price when the site file gives one).
 
     Notes
     -----
@@ -86,7 +92,8 @@ def calculate(inputs, site):
     with :math:`\\dot m_{fw} = \\dot m_{steam} + \\dot m_{bd}`: :math:`\\dot m_{bd} = \\dot m_{steam}
     c_{fw} / (c_{bw} - c_{fw})`. Desuperheater: :math:`\\dot m_{steam} = \\dot m_{out} (h_{out} - h_w) /
     (h_{in} - h_w)`. Boiler fuel: :math:`P = [\\dot m_{steam}(h_{steam} - h_{fw}) + \\dot m_{bd}(h_{bd} -
-    h_{fw})] / \\eta`.
+    h_{fw})] / \\eta`. Back-pressure turbine: :math:`h_2 = h_1 - \\eta_s (h_1 - h_{2s})` with
+    :math:`h_{2s} = h(p_2, s_1)`, shaft power :math:`P = \\dot m (h_1 - h_2)`, electric :math:`P_e = \\eta_g P`.
 
     References
     ----------
@@ -132,6 +139,7 @@ def calculate(inputs, site):
         f"Gauge pressures converted with the site atmosphere of {site.atmospheric_pressure / 1e5:.5g} bar(a)",
     ])
     result.cautions.extend(CAUTIONS)
+    add_turbine_notes(result, inputs)
     states = fixed_states(inputs, site)
     balances = {}
     for case in inputs.load_cases:
@@ -139,9 +147,11 @@ def calculate(inputs, site):
         balances[case.name] = b
         _case_results(result, inputs, site, b, efficiency, case)
         case_steps(result, inputs, site, b, efficiency, case)
+        turbine_steps_and_checks(result, inputs, b, case.name)
         check_closures(result, inputs, site, b)
     _case_checks(result, inputs, site, balances)
     totals = annual_totals(result, inputs, site, balances, efficiency, "")
+    electricity = add_turbine_year(result, inputs, site, balances)
     _blowdown_year(result, inputs, balances)
     alternative = None
     if inputs.without:
@@ -149,6 +159,7 @@ def calculate(inputs, site):
         for case in inputs.load_cases:
             _case_results(result, inputs, site, alt[case.name], efficiency, case, prefix="what_if.")
         alternative = annual_totals(result, inputs, site, alt, efficiency, "what_if_")
+        add_turbine_year(result, inputs, site, alt, "what_if_", electricity)
         add_comparison(result, inputs, site, totals, alternative)
     result.states["balances"] = balances
     if full_record_wanted():
@@ -204,6 +215,10 @@ def _case_results(result, inputs, site, b, efficiency, case, prefix=""):
             closed = "boiler"
         elif h in letdown_into and b.letdown_steam[letdown_into[h].name] > 0.0:
             closed = f"let-down {letdown_into[h].name}"
+            if closing_turbine(inputs, b, h):
+                closed = f"turbine {closing_turbine(inputs, b, h)} and let-down {letdown_into[h].name}"
+        elif closing_turbine(inputs, b, h):
+            closed = f"turbine {closing_turbine(inputs, b, h)}"
         else:
             closed = "balanced"
         result.add(f"{c}.{h}.closed_by", f"{what}: {h} header closed by", closed)
@@ -219,6 +234,7 @@ def _case_results(result, inputs, site, b, efficiency, case, prefix=""):
                            b.letdown_spray[ld.name] * 3600, "kg/h")
     for name, flow in b.user_flows.items():
         result.add(f"{c}.{name}.steam_flow", f"{what}: {name} steam", flow * 3600, "kg/h")
+    turbine_case_results(result, inputs, b, c, what)
     for f in inputs.flashes:
         if f.name in b.flash_steam:
             steam = b.flash_steam[f.name]

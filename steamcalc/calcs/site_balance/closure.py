@@ -58,8 +58,17 @@ def relative_residual(inflows, outflows, engine=None):
     return abs(energy_in - energy_out) / energy_in
 
 
-def _check(result, name, inflows, outflows):
-    residual = relative_residual(inflows, outflows)
+def turbine_residual(b, name, engine=None):
+    """|ṁ(h1 − h2) − P| / ṁh1 of turbine ``name``: its inlet and exhaust re-evaluated with ``engine`` (the other
+    IF97 engine by default) against the shaft power P = ṁ(h1 − h2) the balance booked."""
+    flow, x = b.turbine_flow[name], b.turbine_expansion[name]
+    inlet, exhaust = _stream("inlet", flow, x.inlet), _stream("exhaust", flow, x.exhaust)
+    h_1, h_2 = second_engine_enthalpy(inlet, engine), second_engine_enthalpy(exhaust, engine)
+    return abs(flow * (h_1 - h_2) - flow * x.enthalpy_drop) / (flow * h_1)
+
+
+def _check(result, name, inflows, outflows, residual=None):
+    residual = relative_residual(inflows, outflows) if residual is None else residual
     detail = Phrase.of("re-summed from the recorded states with the second IF97 implementation: residual "
                        "{residual:.1e} of the energy entering (tolerance {tolerance:.0e})", residual=(residual, ""),
                        tolerance=(CLOSURE_TOLERANCE, ""))
@@ -77,6 +86,10 @@ def check_closures(result, inputs, site, b):
         inflows, outflows = header_streams(site, b, header)
         if inflows:
             _check(result, f"{b.case}: {header} header closes (independent)", inflows, outflows)
+    for turbine in sorted(b.turbine_flow):
+        if b.turbine_flow[turbine] > 0.0:
+            _check(result, f"{b.case}: turbine {turbine} closes with its shaft power (independent)", (), (),
+                   turbine_residual(b, turbine))
     inflows, outflows = deaerator_streams(b)
     _check(result, f"{b.case}: deaerator closes (independent)", inflows, outflows)
     recovery = blowdown_streams(b)

@@ -20,6 +20,10 @@ def _links(inputs, b):
             links.append((f"{ld.source} header", f"{ld.target} header", steam))
             if b.letdown_spray.get(ld.name, 0.0) > 0.0:
                 links.append((f"spray water ({ld.name})", f"{ld.target} header", b.letdown_spray[ld.name]))
+    for t in sorted(inputs.turbines, key=lambda t: t.name):
+        if b.turbine_flow.get(t.name, 0.0) > 0.0:
+            links.append((f"{t.source} header", f"turbine {t.name}", b.turbine_flow[t.name]))
+            links.append((f"turbine {t.name}", f"{t.target} header", b.turbine_flow[t.name]))
     for f in sorted(inputs.flashes, key=lambda f: f.name):
         if b.flash_steam.get(f.name, 0.0) > 0.0:
             links.append((f"flash vessel {f.name}", f"{f.target} header", b.flash_steam[f.name]))

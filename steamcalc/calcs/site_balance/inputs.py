@@ -17,11 +17,12 @@ from ..base import input_field
 from . import reading
 from .items import items_from_record, record_table
 from .links import Links
+from .turbine_reading import check_turbine_network, check_turbines_against_site, read_turbines
 
 
 @dataclass(frozen=True)
 class Inputs:
-    """A site steam balance: the boiler, the deaerator, load cases, let-downs, users, flash vessels (SI).
+    """A site steam balance: the boiler, the deaerator, load cases, let-downs, users, flash vessels, turbines (SI).
 
     The headers are the site file's ``[headers]``; every item names its header by that name.
     """
@@ -38,6 +39,8 @@ class Inputs:
                                example="[[inputs.user]]", default=())
     flashes: tuple = input_field("text", "Flash vessels", "On a user's returned condensate, into a lower header.",
                                  example="[[inputs.flash]]", default=())
+    turbines: tuple = input_field("text", "Back-pressure turbines", "Between headers; a fixed flow or the flow that "
+                                  "balances the exhaust header.", example="[[inputs.turbine]]", default=())
     without: tuple = input_field("text", "What-if: items out of service", "Items taken out of service in the "
                                  "comparison balance.", example='without = ["FL-01"]', default=())
 
@@ -74,12 +77,13 @@ class Inputs:
         letdowns = reading.read_letdowns(table.get("letdown", []), site, given, links)
         users = reading.read_users(table.get("user", []), site, given, names, links)
         flashes = reading.read_flashes(table.get("flash", []), site, given, users, links)
-        items = {i.name for i in (*letdowns, *users, *flashes)}
+        turbines = read_turbines(table.get("turbine", []), site, given)
+        items = {i.name for i in (*letdowns, *users, *flashes, *turbines)}
         without = reading.read_without(table.get("what_if", {}), items)
         if without:
             given["what_if.without"] = ", ".join(without)
         return cls(boiler=boiler, deaerator=deaerator, load_cases=cases, letdowns=letdowns, users=users,
-                   flashes=flashes, without=without), given
+                   flashes=flashes, turbines=turbines, without=without), given
 
     def to_record_table(self, given):
         """The record's ``inputs`` table (:func:`~steamcalc.calcs.site_balance.items.record_table`)."""
@@ -93,7 +97,8 @@ class Inputs:
         except (KeyError, TypeError) as exc:
             raise InputError(f"the record's balance inputs are incomplete ({exc})", field="inputs") from None
         return cls(boiler=built["boiler"], deaerator=built["deaerator"], load_cases=built["load_case"],
-                   letdowns=built["letdown"], users=built["user"], flashes=built["flash"], without=built["without"])
+                   letdowns=built["letdown"], users=built["user"], flashes=built["flash"], turbines=built["turbine"],
+                   without=built["without"])
 
 
 def _check_network(inputs):
@@ -134,20 +139,22 @@ def _check_network(inputs):
                 stack.append((child, iter(graph.get(child, ()))))
     names = {u.name for u in inputs.users}
     owner = {}
-    for section, items in (("letdown", inputs.letdowns), ("user", inputs.users), ("flash", inputs.flashes)):
+    for section, items in (("letdown", inputs.letdowns), ("user", inputs.users), ("flash", inputs.flashes),
+                           ("turbine", inputs.turbines)):
         for item in items:
             if item.name in owner and owner[item.name] != section:
                 raise InputError(f"the name {item.name!r} is used by a {owner[item.name]} and a {section}",
                                  field=f"{section}.name", value=item.name,
-                                 fix="give every let-down, user and flash vessel its own name")
+                                 fix="give every let-down, user, flash vessel and turbine its own name")
             owner[item.name] = section
     for flash in inputs.flashes:
         if flash.from_user not in names:
             raise InputError(f"flash vessel {flash.name} takes the condensate of {flash.from_user!r}, not a user",
                              field="flash.condensate_of", value=flash.from_user, fix="name one of the users")
     for without in inputs.without:
-        if without not in {i.name for i in (*inputs.letdowns, *inputs.users, *inputs.flashes)}:
+        if without not in {i.name for i in (*inputs.letdowns, *inputs.users, *inputs.flashes, *inputs.turbines)}:
             raise InputError(f"{without!r} is not an item of this balance", field="what_if.without", value=without)
+    check_turbine_network(inputs)
 
 
 def checked_against_site(inputs, site):
@@ -187,6 +194,7 @@ def checked_against_site(inputs, site):
         raise InputError(f"the boiler at {inputs.boiler.pressure / 1e5:.4g} bar(a) is below the header it feeds, "
                          f"{inputs.boiler.header} at {p_boiler_header / 1e5:.4g} bar(a)", field="boiler.pressure",
                          fix="give the boiler's working pressure, at or above its header's")
+    check_turbines_against_site(inputs, headers)
     boiler = inputs.boiler
     if boiler.blowdown_cooler_approach is not None and boiler.blowdown_cooler_effectiveness is not None:
         raise InputError("the blowdown cooler is given both an approach temperature and an effectiveness",

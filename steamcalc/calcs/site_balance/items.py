@@ -1,6 +1,6 @@
 """The items of a site steam balance, in SI, and their record table.
 
-A balance holds lists of items (load cases, let-downs, users, flash vessels) besides a boiler and a
+A balance holds lists of items (load cases, let-downs, users, flash vessels, turbines) besides a boiler and a
 deaerator. Each item is a frozen dataclass whose fields carry a quantity kind and a label in their
 metadata (:func:`item_field`); the record's ``inputs`` table holds every field of every item as one
 entry, addressed ``section.item.field`` (``user.Evaporator.return_fraction``), in record units with
@@ -155,8 +155,23 @@ class Flash:
     link: Link | None = None
 
 
+@dataclass(frozen=True)
+class Turbine:
+    """A back-pressure turbine from an inlet header to a lower exhaust header (``flow`` None: it balances the
+    exhaust header, up to ``max_flow``, ahead of the let-down into it)."""
+
+    name: str = item_field("text", "name")
+    source: str = item_field("text", "inlet header")
+    target: str = item_field("text", "exhaust header")
+    isentropic_efficiency: float = item_field("fraction", "isentropic efficiency")
+    flow: float | None = item_field("mass_flow", "steam flow (balances the exhaust header when not given)")
+    max_flow: float | None = item_field("mass_flow", "maximum steam flow (swallowing capacity)")
+    generator_efficiency: float | None = item_field("fraction", "mechanical and generator efficiency "
+                                                    "(electric power / shaft power)")
+
+
 #: Section of the case file and record -> item class, for the lists.
-LISTS = {"load_case": LoadCase, "letdown": Letdown, "user": User, "flash": Flash}
+LISTS = {"load_case": LoadCase, "letdown": Letdown, "user": User, "flash": Flash, "turbine": Turbine}
 
 
 def _entry(value, kind, label, given):
@@ -197,10 +212,11 @@ def record_table(inputs, given):
     _item_entries(table, "boiler", "Boiler", inputs.boiler, given)
     _item_entries(table, "deaerator", "Deaerator", inputs.deaerator, given)
     for section, items in (("load_case", inputs.load_cases), ("letdown", inputs.letdowns),
-                           ("user", inputs.users), ("flash", inputs.flashes)):
+                           ("user", inputs.users), ("flash", inputs.flashes), ("turbine", inputs.turbines)):
         for item in items:
             prefix = f"{section}.{item.name}"
-            heading = {"load_case": "Load case", "letdown": "Let-down", "user": "User", "flash": "Flash vessel"}[section]
+            heading = {"load_case": "Load case", "letdown": "Let-down", "user": "User", "flash": "Flash vessel",
+                       "turbine": "Turbine"}[section]
             table[f"{prefix}.name"] = _entry(item.name, "text", f"{heading} {item.name}", item.name)
             _item_entries(table, prefix, f"{heading} {item.name}", item, given)
     if inputs.without:

@@ -12,6 +12,8 @@ The case file holds::
     [[inputs.user]]        name, header, load (a flow or a duty, or a table of them by load case),
                            condensate_return, return_temperature, record
     [[inputs.flash]]       name, condensate_of, to, record
+    [[inputs.turbine]]     name, from, to, flow ("balances the exhaust header" or a flow), max_flow,
+                           isentropic_efficiency, generator_efficiency (:mod:`.turbine_reading`)
     [inputs.what_if]       without = [names of items taken out of service in the comparison]
     [inputs.links]         folder, revision (of the records the items name)
 
@@ -26,7 +28,7 @@ from ...errors import CaseFileError, InputError, UnitError
 from ...units.quantities import parse_amount, parse_pressure, parse_quantity
 from .items import NAME_PATTERN, Boiler, Deaerator, Flash, Letdown, LoadCase, User
 
-SECTIONS = ("boiler", "deaerator", "load_case", "letdown", "user", "flash", "what_if", "links")
+SECTIONS = ("boiler", "deaerator", "load_case", "letdown", "user", "flash", "turbine", "what_if", "links")
 KEYS = {
     "boiler": ("header", "pressure", "temperature", "flow", "capacity", "efficiency", "blowdown_fraction",
                "feedwater_tds", "boiler_water_tds", "blowdown_flash_header", "blowdown_cooler_approach",
@@ -37,10 +39,11 @@ KEYS = {
                 "water_pressure", "max_flow", "min_flow", "record", "revision"),
     "user": ("name", "header", "load", "condensate_return", "return_temperature", "record", "revision"),
     "flash": ("name", "condensate_of", "to", "record", "revision"),
+    "turbine": ("name", "from", "to", "flow", "max_flow", "isentropic_efficiency", "generator_efficiency"),
     "what_if": ("without",),
     "links": ("folder", "revision"),
 }
-LISTS = ("load_case", "letdown", "user", "flash")
+LISTS = ("load_case", "letdown", "user", "flash", "turbine")
 #: Words that say the boiler makes whatever steam the site needs.
 BALANCING = "balances the site"
 MAX_ITEMS = 50
@@ -345,6 +348,6 @@ def read_without(row, names):
                          fix='e.g. without = ["FL-01"]')
     for name in without:
         if name not in names:
-            raise InputError(f"{name!r} is not a let-down, user or flash vessel of this balance",
+            raise InputError(f"{name!r} is not a let-down, user, flash vessel or turbine of this balance",
                              field="what_if.without", value=name, fix=f"name one of: {', '.join(sorted(names))}")
     return tuple(without)

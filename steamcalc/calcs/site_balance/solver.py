@@ -1,8 +1,9 @@
 """Solving one load case of a site steam balance: headers closed by let-down or vent, deaerator, boiler.
 
 Each header below the boiler's is closed from the lowest pressure up: its demand (users, the deaerator's
-heating steam, the steam its let-downs draw for lower headers) less its fixed supply (flash steam) is made
-up by the let-down that feeds it when short, and vented when long. The boiler's header takes what is left:
+heating steam, the steam its let-downs and turbines draw for lower headers) less its fixed supply (flash
+steam, the exhaust of turbines given a fixed flow) is made up when short by the turbine that balances it (up
+to its maximum flow), then by the let-down that feeds it, and vented when long. The boiler's header takes what is left:
 the boiler steam when it balances the site, else a vent or a shortfall. Users given a duty take
 :math:`\\dot m = Q / (h_{header} - h_f)`; header states are the adiabatic mix of their inflows, so the
 flows and the states depend on each other, and on the deaerator's steam, which depends on the feedwater
@@ -18,6 +19,7 @@ from dataclasses import dataclass, field
 from ...errors import InputError, NotConvergedError, OutOfRangeError
 from ...properties.steam import SteamState, saturation_temperature
 from .blowdown import cooler_heat, flash_fraction, recovery_states
+from .turbines import expansion
 
 #: Largest relative change of any flow or header enthalpy between two sweeps of a solved case.
 TOLERANCE = 1e-10
@@ -52,6 +54,8 @@ class CaseBalance:
     letdown_steam: dict = field(default_factory=dict)      # let-down -> steam drawn, kg/s
     letdown_spray: dict = field(default_factory=dict)      # let-down -> spray water, kg/s
     letdown_outlet: dict = field(default_factory=dict)     # let-down -> SteamState at the outlet
+    turbine_flow: dict = field(default_factory=dict)       # turbine -> steam through it, kg/s
+    turbine_expansion: dict = field(default_factory=dict)  # turbine -> Expansion (inlet, isentropic, exhaust)
     vents: dict = field(default_factory=dict)              # header -> kg/s
     shortfalls: dict = field(default_factory=dict)         # header -> kg/s nobody supplies
     header_enthalpy: dict = field(default_factory=dict)    # header -> J/kg
@@ -173,6 +177,8 @@ def solve_case(inputs, site, case, states, out_of_service=()):
     flashes = [f for f in sorted(inputs.flashes, key=lambda f: f.name) if f.name not in off and f.from_user in user_by_name]
     flashed_users = {f.from_user for f in flashes}
     letdowns = {ld.target: ld for ld in inputs.letdowns if ld.name not in off}
+    turbines = [t for t in sorted(inputs.turbines, key=lambda t: t.name) if t.name not in off]
+    balancing_turbines = {t.target: t for t in turbines if t.flow is None}
     h_header = {h: vapour[h].enthalpy for h in headers}
     h_fw, h_mu = states["feedwater"].enthalpy, states["makeup"].enthalpy
     h_v = states["deaerator_vent"].enthalpy
@@ -216,8 +222,26 @@ def solve_case(inputs, site, case, states, out_of_service=()):
         demand[da.steam_header] += deaerator_steam
         b.outflows[da.steam_header].append(("deaerator heating steam", deaerator_steam))
         draw = {h: 0.0 for h in headers}
+
+        def through_turbine(t, flow):
+            """Book ``flow`` through turbine ``t``: drawn from its inlet header, its exhaust into the lower one."""
+            x = expansion(t, headers[t.source], h_header[t.source], headers[t.target])
+            b.turbine_flow[t.name], b.turbine_expansion[t.name] = flow, x
+            draw[t.source] += flow
+            b.outflows[t.source].append((f"turbine {t.name}", flow))
+            b.inflows[t.target].append((f"turbine {t.name} exhaust", flow, x.exhaust))
+            return flow
+
+        for t in turbines:
+            if t.flow is not None:
+                supply[t.target] += through_turbine(t, t.flow)
         for h in order:
             net = demand[h] + draw[h] - supply[h]
+            turbine = balancing_turbines.get(h)
+            if turbine is not None and h != boiler.header:
+                # The turbine passes what the header needs, up to its maximum; the let-down makes up the rest.
+                passed = min(max(net, 0.0), turbine.max_flow if turbine.max_flow is not None else float("inf"))
+                net -= through_turbine(turbine, passed)
             if h == boiler.header:
                 b.boiler_steam = max(net, 0.0) if boiler.flow is None else boiler.flow
                 surplus = b.boiler_steam - net
@@ -287,7 +311,8 @@ def solve_case(inputs, site, case, states, out_of_service=()):
         blowdown, makeup = b.blowdown, b.makeup
         now = {"m_boiler": b.boiler_steam, "m_deaerator": deaerator_steam, "m_blowdown": b.blowdown,
                "m_makeup": b.makeup, "q_blowdown_cooler": b.blowdown_heat_recovered,
-               **{f"m_{k}": v for k, v in b.letdown_steam.items()}, **{f"h_{k}": v for k, v in h_header.items()}}
+               **{f"m_{k}": v for k, v in b.letdown_steam.items()}, **{f"m_{k}": v for k, v in b.turbine_flow.items()},
+               **{f"h_{k}": v for k, v in h_header.items()}}
         b.last_change = _change(now, previous) if previous else 1.0
         previous = now
         b.sweeps = sweep
