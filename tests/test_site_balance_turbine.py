@@ -286,3 +286,17 @@ def test_a_turbine_off_a_let_down_header_draws_its_steam_through_that_let_down(t
         before, after = (results[n].value(f"{case}.HP-MP.steam_flow") for n in ("without", "with"))
         assert after - before == pytest.approx(1200.0, rel=1e-8)
         assert results["with"].value(f"{case}.MP.closed_by") == "let-down HP-MP"
+
+
+def test_the_what_if_table_shows_the_turbines_electricity():
+    """The comparison table (read from the record's results only) carries the electricity row when turbines run."""
+    from steamcalc.calcs.site_balance.comparison import comparison_rows
+
+    turbine = Turbine(name="TG", source="HP", target="LP", isentropic_efficiency=0.6, flow=1.0)
+    inputs, site = _balance(41e5, 673.15, 5e5, turbine)
+    result = calculate(Inputs(**{**inputs.__dict__, "without": ("TG",)}), site)
+    record = {"results": {k: {"value": result.value(k)} for k in result.values}}
+    rows = {r["figure"]: r for r in comparison_rows(record)}
+    row = rows["electricity the turbines generate a year"]
+    assert row["balance"] > 0 and row["what-if"] == 0.0
+    assert row["difference"] == pytest.approx(-row["balance"], rel=1e-12)

@@ -407,6 +407,7 @@ def record_figures(record, shown=None):
 
     from .display import SYSTEMS
     from .figure_spec import band_notes, figure_spec, figure_title
+    from .header_svg import header_svg, is_header_diagram
     from .sankey_svg import is_flow_figure, sankey_svg
     from .sketch import sketch_svg
 
@@ -422,6 +423,8 @@ def record_figures(record, shown=None):
         try:
             if is_flow_figure(figure):
                 spec = svg = sankey_svg(figure, system, f"steamcalc-chart-{number}")
+            elif is_header_diagram(figure):
+                spec = svg = header_svg(figure, system, f"steamcalc-chart-{number}")
             else:
                 spec = figure_spec(figure, system)
                 svg = None if spec is None else figure_svg(spec, f"steamcalc-chart-{number}")

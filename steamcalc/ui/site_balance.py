@@ -1,4 +1,4 @@
-"""The site-balance workbook: its tables and Sankey diagrams, drawn from the balance's record.
+"""The site-balance workbook: its tables, Sankey and header diagrams, drawn from the balance's record.
 
 A balance is lists of items rather than one box per input, so its workbook reads the case file (edited in
 any text editor, beside the workbook) instead of a form: :class:`BalanceBook` issues the record from it,
@@ -8,6 +8,7 @@ that cannot run is shown as its error, by file and field, never a traceback.
 
 from __future__ import annotations
 
+import html
 import re
 from pathlib import Path
 
@@ -18,6 +19,7 @@ from ..errors import InputError, RecordConflictError, SteamcalcError
 from ..records.build import record_for_case
 from ..records.record import write_record
 from ..render.display import convert, record_system, shown_check
+from ..render.header_svg import header_svg
 from ..render.report import RENDERERS, format_unit
 from .charts import shown_rows
 
@@ -163,6 +165,17 @@ class BalanceBook:
                                          "hovertemplate": "%{source.label} → %{target.label}: %{value:,.0f} " + unit}),
                          layout={"title": figure["title"] + f" ({unit})"})
 
+    def header_diagram(self, case):
+        """The header diagram of a load case with its flows (SVG, in the site's units), from the record's figure data."""
+        from IPython.display import HTML, SVG
+
+        if self.error:
+            return HTML(f"<p>not run: {html.escape(self.error)}</p>")
+        figure = next(f for f in self.record["figures"] if f["name"] == f"header_diagram_{case}")
+        if figure.get("missing"):
+            return HTML(f"<p>{html.escape(figure['title'])}: {html.escape(figure['missing'])}</p>")
+        return SVG(header_svg(figure, self.system, f"header-diagram-{case}"))
+
     def save(self):
         """Write the record to the record folder; one line saying what was done. Run All in a notebook someone
         has open never saves by itself (as the other workbooks)."""
@@ -184,7 +197,8 @@ class BalanceBook:
         return f"saved: {name}, {paths[0]}" if status == "written" else f"unchanged, kept: {name}, {paths[0]}"
 
 
-_MISSING_LINK = re.compile(r"^linked record (?P<id>\S+) revision (?P<revision>\S+) is not at (?P<path>.+)$")
+_MISSING_LINK = re.compile(r"^linked record (?P<id>\S+) revision (?P<revision>\S+) is not at (?P<path>.+?)"
+                           r"(?: \(named by .+\))?$")
 
 
 def _linked_case_file(folder, record_id, revision):

@@ -20,7 +20,36 @@ saturation temperature there (hotter, it would flash in the deaerator).
 
 from __future__ import annotations
 
+from dataclasses import replace
+
 from ...properties.steam import SteamState, saturation_temperature
+
+#: The name that takes the blowdown recovery (its flash vessel and its make-up water cooler) out of service in a
+#: what-if: ``[inputs.what_if] without = ["blowdown recovery"]``.
+RECOVERY = "blowdown recovery"
+
+
+def has_recovery(boiler):
+    """Whether the boiler's blowdown is recovered: flashed to a header, or cooled by the make-up water, or both."""
+    return boiler.blowdown_flash_header is not None or boiler.blowdown_cooled
+
+
+def without_recovery(boiler, headers, p_deaerator, states):
+    """The boiler with its blowdown recovery out of service, and the states that go with it.
+
+    The blowdown then leaves as saturated water at the boiler pressure straight to drain: no flash steam
+    joins a header and no heat goes to the make-up water.
+
+    Returns
+    -------
+    (Boiler, dict)
+        The boiler without flash vessel or cooler; ``states`` (a new dict) with the blowdown's residual the
+        blowdown itself.
+    """
+    bare = replace(boiler, blowdown_flash_header=None, blowdown_cooler_approach=None,
+                   blowdown_cooler_effectiveness=None)
+    kept = {key: state for key, state in states.items() if key not in ("blowdown_flash_steam", "blowdown_residual")}
+    return bare, recovery_states(bare, headers, p_deaerator, kept)
 
 
 def recovery_states(boiler, headers, p_deaerator, states):

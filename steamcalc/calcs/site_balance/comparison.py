@@ -15,7 +15,10 @@ ANNUAL = (("annual_fuel_energy", "fuel energy a year", "MWh"),
           ("annual_co2", "CO₂ a year", "t"),
           ("annual_fuel_cost", "fuel cost a year", None),
           ("annual_water_cost", "make-up water cost a year", None),
-          ("annual_total_cost", "fuel and water cost a year", None))
+          ("annual_total_cost", "fuel and water cost a year", None),
+          # the turbines' figures come from :func:`.turbines.add_turbine_year`, which adds their differences
+          ("annual_turbine_electricity", "electricity the turbines generate a year", "MWh"),
+          ("annual_turbine_electricity_value", "value of the turbines' electricity a year", None))
 
 
 def annual_totals(result, inputs, site, balances, efficiency, prefix):

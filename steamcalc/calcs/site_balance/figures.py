@@ -3,13 +3,15 @@
 Each flow is a link "source → target" with its mass flow (a Sankey diagram's data). The record holds it as a
 series of style ``flows``, x the link's number and y its flow, each labelled ``"<source> → <target>"``; the
 workbook draws it as plotly's Sankey diagram (:func:`sankey_links`), the HTML record as an SVG Sankey
-(:mod:`steamcalc.render.sankey_svg`).
+(:mod:`steamcalc.render.sankey_svg`). Each load case also has its header diagram with the flows on it
+(:mod:`.header_flows`).
 """
 
 from __future__ import annotations
 
 from ..base import FLOW_ARROW as ARROW
 from ..base import Axis, Figure, Series, figure_or_missing
+from .header_flows import header_figure
 
 
 def _links(inputs, b):
@@ -51,9 +53,11 @@ def flow_figure(inputs, case, b):
 
 
 def figures(inputs, site, balances):
-    """One steam-flow figure per load case."""
+    """One steam-flow figure per load case, then one header diagram per load case."""
     return [figure_or_missing(f"steam_flows_{name}", f"Steam flows, {name}",
-                              lambda name=name, b=b: flow_figure(inputs, name, b)) for name, b in balances.items()]
+                              lambda name=name, b=b: flow_figure(inputs, name, b)) for name, b in balances.items()] + [
+        figure_or_missing(f"header_diagram_{name}", f"Header diagram with flows, {name}",
+                          lambda name=name, b=b: header_figure(inputs, site, name, b)) for name, b in balances.items()]
 
 
 def sankey_links(figure):

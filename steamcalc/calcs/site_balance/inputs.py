@@ -15,6 +15,7 @@ from dataclasses import dataclass
 from ...errors import InputError
 from ..base import input_field
 from . import reading
+from .blowdown import RECOVERY, has_recovery
 from .items import items_from_record, record_table
 from .links import Links
 from .turbine_reading import check_turbine_network, check_turbines_against_site, read_turbines
@@ -42,7 +43,9 @@ class Inputs:
     turbines: tuple = input_field("text", "Back-pressure turbines", "Between headers; a fixed flow or the flow that "
                                   "balances the exhaust header.", example="[[inputs.turbine]]", default=())
     without: tuple = input_field("text", "What-if: items out of service", "Items taken out of service in the "
-                                 "comparison balance.", example='without = ["FL-01"]', default=())
+                                 "comparison balance: let-downs, users and flash vessels by name, and "
+                                 f'"{RECOVERY}" for the boiler\'s blowdown flash and cooler.',
+                                 example='without = ["FL-01"]', default=())
 
     def __post_init__(self):
         if self.boiler is None or self.deaerator is None or not self.load_cases:
@@ -79,7 +82,7 @@ class Inputs:
         flashes = reading.read_flashes(table.get("flash", []), site, given, users, links)
         turbines = read_turbines(table.get("turbine", []), site, given)
         items = {i.name for i in (*letdowns, *users, *flashes, *turbines)}
-        without = reading.read_without(table.get("what_if", {}), items)
+        without = reading.read_without(table.get("what_if", {}), items, recovery=has_recovery(boiler))
         if without:
             given["what_if.without"] = ", ".join(without)
         return cls(boiler=boiler, deaerator=deaerator, load_cases=cases, letdowns=letdowns, users=users,
@@ -152,8 +155,12 @@ def _check_network(inputs):
             raise InputError(f"flash vessel {flash.name} takes the condensate of {flash.from_user!r}, not a user",
                              field="flash.condensate_of", value=flash.from_user, fix="name one of the users")
     for without in inputs.without:
+        if without == RECOVERY and has_recovery(inputs.boiler):
+            continue
         if without not in {i.name for i in (*inputs.letdowns, *inputs.users, *inputs.flashes, *inputs.turbines)}:
-            raise InputError(f"{without!r} is not an item of this balance", field="what_if.without", value=without)
+            raise InputError(f"{without!r} is not an item of this balance", field="what_if.without", value=without,
+                             fix="name a let-down, user, flash vessel or turbine of the balance, or "
+                                 f'"{RECOVERY}" when the boiler has a blowdown flash or cooler')
     check_turbine_network(inputs)
 
 

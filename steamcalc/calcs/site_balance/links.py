@@ -5,7 +5,9 @@ record's inputs define the station (a let-down's desuperheater and valve range, 
 and the balance sets its flow. The record is read from the links folder (``[inputs.links] folder``,
 relative to the case file; the site's ``records`` folder by default) at the revision the item or
 ``[inputs.links] revision`` names, as ``<id>_rev<revision>.json`` (or, when it is not there, from the folder
-the run writes its records to, so that a whole site run into another folder finds what it has just issued). Its kind is checked, its digests
+the run writes its records to, so that a whole site run into another folder finds what it has just issued). An
+item's own ``revision`` wins over ``[inputs.links] revision``; a revision with no record there is refused naming
+the item and where its revision came from. Its kind is checked, its digests
 recomputed, and the balance's record keeps its id, revision, kind and content digest, so that
 ``verify`` can check the file still holds the record the balance used (:func:`link_problems`). The
 calculation itself never reads a file: everything it uses is copied into the balance's inputs.
@@ -26,6 +28,9 @@ DEFAULT_FOLDER = "../records"
 #: not the same header.
 PRESSURE_MATCH = 0.005
 
+
+#: How the refusals name an item of each section of the case file.
+_ITEM_WORDS = {"letdown": "let-down", "user": "user", "flash": "flash vessel"}
 
 #: An id or revision as it stands in a record's file name.
 _FILE_NAME_PART = re.compile(r"^[A-Za-z0-9_-][A-Za-z0-9._-]{0,79}\Z")
@@ -52,6 +57,8 @@ class Links:
 
     def _resolve(self, row, where, kind):
         record_id, revision = row["record"], row.get("revision", self.revision)
+        own = "revision" in row             # the item names its own revision, over [inputs.links] revision
+        item = f"{_ITEM_WORDS.get(where.partition('[')[0], 'item')} {row.get('name')!r}"
         if not isinstance(record_id, str) or not _FILE_NAME_PART.match(record_id):
             raise InputError("a record id holds only letters, digits, '.', '_' and '-'", field=f"{where}.record",
                              value=record_id, fix='e.g. record = "LD-01"')
@@ -70,10 +77,16 @@ class Links:
                     path = folder / relative.name
                     break
         if not path.is_file():
-            raise InputError(f"linked record {record_id} revision {revision} is not at {path}",
-                             field=f"{where}.record", value=record_id,
+            if own:
+                raise InputError(f"linked record {record_id} revision {revision} is not at {path} (named by {item}, "
+                                 "at the revision it gives)", field=f"{where}.revision", value=revision,
+                                 fix=f"issue {record_id} revision {revision} first (steamcalc run on its case file), "
+                                     f"or give {item} the revision of an issued {record_id}")
+            raise InputError(f"linked record {record_id} revision {revision} is not at {path} (named by {item}, at "
+                             "[inputs.links] revision)", field=f"{where}.record", value=record_id,
                              fix=f"issue it first (steamcalc run on {record_id}'s case file puts it in the site's "
-                                 "records folder), or set [inputs.links] folder and revision to where it is")
+                                 "records folder), or set [inputs.links] folder and revision to where it is, or give "
+                                 f"{item} a revision of its own")
         try:
             record = self.read_record(path)
         except SteamcalcError as exc:

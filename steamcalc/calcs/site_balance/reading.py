@@ -14,7 +14,10 @@ The case file holds::
     [[inputs.flash]]       name, condensate_of, to, record
     [[inputs.turbine]]     name, from, to, flow ("balances the exhaust header" or a flow), max_flow,
                            isentropic_efficiency, generator_efficiency (:mod:`.turbine_reading`)
-    [inputs.what_if]       without = [names of items taken out of service in the comparison]
+                           (a let-down, user or flash vessel with a record may give its own revision of it)
+    [inputs.what_if]       without = [names of items taken out of service in the comparison: let-downs, users,
+                           flash vessels, turbines, and "blowdown recovery" for the boiler's blowdown flash and
+                           cooler]
     [inputs.links]         folder, revision (of the records the items name)
 
 Every error names the case-file address of the value (``user[2].header``), the value and the fix.
@@ -26,6 +29,7 @@ import math
 
 from ...errors import CaseFileError, InputError, UnitError
 from ...units.quantities import parse_amount, parse_pressure, parse_quantity
+from .blowdown import RECOVERY
 from .items import NAME_PATTERN, Boiler, Deaerator, Flash, Letdown, LoadCase, User
 
 SECTIONS = ("boiler", "deaerator", "load_case", "letdown", "user", "flash", "turbine", "what_if", "links")
@@ -72,6 +76,10 @@ def check_table(table):
                 if sub not in KEYS[key]:
                     raise CaseFileError(f"unknown key '{sub}' in {where}", field=f"{where}.{sub}",
                                         fix=f"the keys {key} accepts are: {', '.join(KEYS[key])}")
+            if key in LISTS and "revision" in row and "record" not in row:
+                raise CaseFileError("a revision is of a linked record, and this item links none",
+                                    field=f"{where}.revision", value=row["revision"],
+                                    fix='add record = "<id>" to link the issued record, or leave revision out')
 
 
 def _required(row, key, where):
@@ -341,13 +349,29 @@ def read_flashes(rows, site, given, users, links):
     return tuple(flashes)
 
 
-def read_without(row, names):
+def read_without(row, names, recovery=False):
+    """The names taken out of service in the what-if: items of the balance (``names``), and :data:`RECOVERY`
+    (the boiler's blowdown flash and cooler) when the boiler has a blowdown ``recovery``."""
     without = row.get("without", [])
     if isinstance(without, str) or not isinstance(without, list) or not all(isinstance(n, str) for n in without):
         raise InputError("must be a list of item names", field="what_if.without", value=without,
                          fix='e.g. without = ["FL-01"]')
+    valid = sorted(names) + ([f'"{RECOVERY}" (the boiler\'s blowdown flash and cooler)'] if recovery else [])
     for name in without:
-        if name not in names:
-            raise InputError(f"{name!r} is not a let-down, user, flash vessel or turbine of this balance",
-                             field="what_if.without", value=name, fix=f"name one of: {', '.join(sorted(names))}")
+        if name == RECOVERY and name in names:
+            raise InputError(f'"{RECOVERY}" names both an item of this balance and the boiler\'s blowdown recovery',
+                             field="what_if.without", value=name,
+                             fix=f'rename the item called "{RECOVERY}": the what-if keeps that name for the '
+                                 "boiler's blowdown flash and cooler")
+        if name == RECOVERY and not recovery:
+            raise InputError("the boiler has no blowdown recovery to take out of service", field="what_if.without",
+                             value=name, fix="give blowdown_flash_header or a blowdown cooler in [inputs.boiler], or "
+                                             f"take \"{RECOVERY}\" out of the list")
+        if name not in names and name != RECOVERY:
+            raise InputError(f"{name!r} is not a let-down, user, flash vessel or turbine of this balance, nor the "
+                             "boiler's blowdown recovery", field="what_if.without", value=name,
+                             fix=f"name one of: {', '.join(valid)}")
+    if len(set(without)) != len(without):
+        raise InputError("names an item twice", field="what_if.without", value=without,
+                         fix="give each item once")
     return tuple(without)

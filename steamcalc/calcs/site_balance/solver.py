@@ -18,7 +18,7 @@ from dataclasses import dataclass, field
 
 from ...errors import InputError, NotConvergedError, OutOfRangeError
 from ...properties.steam import SteamState, saturation_temperature
-from .blowdown import cooler_heat, flash_fraction, recovery_states
+from .blowdown import RECOVERY, cooler_heat, flash_fraction, recovery_states, without_recovery
 from .turbines import expansion
 
 #: Largest relative change of any flow or header enthalpy between two sweeps of a solved case.
@@ -153,7 +153,8 @@ def solve_case(inputs, site, case, states, out_of_service=()):
     states : dict
         From :func:`fixed_states`.
     out_of_service : iterable of str
-        Names of let-downs, users and flash vessels taken out (the what-if).
+        Names of let-downs, users and flash vessels taken out (the what-if), and
+        :data:`~.blowdown.RECOVERY` for the boiler's blowdown flash and cooler.
 
     Returns
     -------
@@ -172,6 +173,8 @@ def solve_case(inputs, site, case, states, out_of_service=()):
     liquid = {h: SteamState.from_p_dryness(p, 0.0) for h, p in headers.items()}
     vapour = {h: SteamState.from_p_dryness(p, 1.0) for h, p in headers.items()}
     boiler, da = inputs.boiler, inputs.deaerator
+    if RECOVERY in off:
+        boiler, states = without_recovery(boiler, headers, da.pressure, states)
     users = [u for u in sorted(inputs.users, key=lambda u: u.name) if u.name not in off]
     user_by_name = {u.name: u for u in users}
     flashes = [f for f in sorted(inputs.flashes, key=lambda f: f.name) if f.name not in off and f.from_user in user_by_name]
