@@ -1,6 +1,7 @@
 """What the overpressure sections of the flash and exchanger kinds share: the relieving pressure, a relief
 valve sized for steam or for a flashing two-phase load, its API 526 orifice, the discharge line's built-up
-back pressure and the reaction force, each as steps and checks of the Result.
+back pressure (steam: isothermal flow; two-phase: homogeneous flow by the omega equation) against the valve
+type's limit and the reaction force, each as steps and checks of the Result.
 
 The kinds' own load cases are in :mod:`steamcalc.calcs.flash.overpressure` and
 :mod:`steamcalc.calcs.exchanger.overpressure`.
@@ -14,14 +15,18 @@ from ..equipment.relief import (
     API526_AREAS_IN2, DEFAULT_KD, MM2_PER_IN2, MOLAR_MASS_WATER, api526_orifice, direct_integration_area,
     direct_integration_flux, reaction_force, steam_equation_area,
 )
+from ..equipment.two_phase_line import pipe_omega, two_phase_back_pressure, two_phase_reaction_force
 from ..equipment.two_phase_relief import CERTIFIED_CAPACITY, size_flashing_relief
-from ..properties.steam import SteamState, dynamic_viscosity
+from ..errors import OutOfRangeError
+from ..properties.steam import SteamState, dynamic_viscosity, saturation_pressure
 from ..units.amounts import Phrase
 
 #: Overpressure of a single relief valve in a non-fire case, fraction of the gauge set pressure (API 520 Part I).
 DEFAULT_OVERPRESSURE = 0.10
 DEFAULT_SCHEDULE = "40"
 VALVE_TYPES = ("conventional", "balanced-bellows", "pilot")
+#: A relief valve's outlet pipe: the case-file key of its size, and its inputs in the words of the form.
+DISCHARGE_KEYS = ("overpressure.discharge_size", "the relief discharge pipe's size and length")
 
 CAUTIONS = (
     CERTIFIED_CAPACITY,
@@ -122,17 +127,14 @@ def select_orifice(result, prefix, name, area, flow_kg_h):
 
 
 def discharge_section(result, prefix, name, *, valve_type, set_pressure, atm, rated_flow_kg_h, enthalpy, size,
-                      length, fittings_k, schedule=None):
+                      length, fittings_k, schedule=None, keys=DISCHARGE_KEYS):
     """Built-up back pressure in the discharge pipe against the valve's limit, and the reaction force at its exit.
 
     ``enthalpy`` (J/kg) is the steam's, throttled through the valve into the pipe at constant enthalpy.
     """
-    if size is None or length is None:
-        result.check(f"{name}: discharge line", "warn",
-                     "no discharge line given (overpressure.discharge_size, overpressure.discharge_length): the "
-                     f"built-up back pressure and the reaction force of the {name.lower()} are not computed")
+    diameter = discharge_diameter(result, name, size, length, schedule, keys)
+    if diameter is None:
         return
-    diameter = pipe_inner_diameter(size, schedule or DEFAULT_SCHEDULE, field="overpressure.discharge_size")
     flow = rated_flow_kg_h / 3600.0
     outlet = SteamState.from_ph(atm, enthalpy)
     viscosity = dynamic_viscosity(outlet.temperature, outlet.density)
@@ -146,16 +148,7 @@ def discharge_section(result, prefix, name, *, valve_type, set_pressure, atm, ra
                 p2=(line.exit_pressure / 1e5, "bar"))
     result.add(f"{prefix}_built_up_back_pressure", f"{name}: built-up back pressure at the valve outlet",
                line.outlet_pressure / 1e5, "bar")
-    fraction, basis = back_pressure_limit(valve_type)
-    share = (100.0 * (line.outlet_pressure - atm) / (set_pressure - atm), "percent")
-    limit = (100.0 * fraction, "percent")
-    result.check_limit(
-        f"{name}: built-up back pressure", share, [("<=", limit, "warn")],
-        lambda status: Phrase.of(
-            f"{{share:.1f}} of the gauge set pressure, within {{limit:g}} ({valve_type} valve)" if status == "pass"
-            else f"{{share:.1f}} of the gauge set pressure, above {{limit:g}} ({valve_type} valve): enlarge or shorten "
-            "the discharge line, or use a balanced-bellows or pilot-operated valve", share=share, limit=limit),
-        source=basis)
+    back_pressure_check(result, name, valve_type, line.outlet_pressure, set_pressure, atm)
     kappa = SteamState.from_pT(atm, max(outlet.temperature, SteamState.from_p_dryness(atm, 1.0).temperature + 1e-3)
                                ).isentropic_exponent
     exit_area = flow_area(diameter) * 1e6
@@ -168,4 +161,108 @@ def discharge_section(result, prefix, name, *, valve_type, set_pressure, atm, ra
                 W=(flow, "kg/s"), k=(kappa, ""), T1=(outlet.temperature - 273.15, "degC"),
                 M=(MOLAR_MASS_WATER, "kg/kmol"),
                 A_o=(exit_area, "mm**2"), P2=(p_exit / 1e3, "kPa", "difference"))
+    result.add(f"{prefix}_reaction_force", f"{name}: reaction force at the open discharge", force, "N")
+
+
+def discharge_diameter(result, name, size, length, schedule, keys=DISCHARGE_KEYS):
+    """The discharge pipe's bore (m), or None, with a notice, when the pipe is not given."""
+    if size is None or length is None:
+        # A notice, as the let-down's: it cannot fail, so a record of an earlier release keeps its verdict.
+        result.notice(f"{name}: discharge line",
+                      f"not assessed: {keys[1]} are not given among the overpressure inputs; the built-up back "
+                      f"pressure and the reaction force of the {name.lower()} are for the relief system's designer "
+                      "to check")
+        return None
+    return pipe_inner_diameter(size, schedule or DEFAULT_SCHEDULE, field=keys[0])
+
+
+def back_pressure_check(result, name, valve_type, outlet_pressure, set_pressure, atm, extra=""):
+    """The built-up back pressure as a share of the gauge set pressure, against the limit of the valve type."""
+    fraction, basis = back_pressure_limit(valve_type)
+    share = (100.0 * (outlet_pressure - atm) / (set_pressure - atm), "percent")
+    limit = (100.0 * fraction, "percent")
+    # At the gauge set pressure the valve cannot pass its flow at all: a failure, not a warning.
+    return result.check_limit(
+        f"{name}: built-up back pressure", share, [("<=", limit, "warn"), ("<", (100.0, "percent"), "fail")],
+        lambda status: Phrase.of(
+            f"{{share:.1f}} of the gauge set pressure, within {{limit:g}} ({valve_type} valve){extra}"
+            if status == "pass" else
+            f"{{share:.1f}} of the gauge set pressure, above {{limit:g}} ({valve_type} valve){extra}: enlarge or "
+            "shorten the discharge line, or use a balanced-bellows or pilot-operated valve (the maker's limit "
+            "governs)" if status == "warn" else
+            f"{{share:.1f}} of the gauge set pressure, far above {{limit:g}} ({valve_type} valve){extra}: at the "
+            "set pressure the valve cannot pass its flow; enlarge the discharge line (at least the valve's outlet "
+            "size) or shorten it", share=share, limit=limit),
+        source=basis)
+
+
+def two_phase_discharge_section(result, prefix, name, *, valve_type, set_pressure, atm, rated_flow_kg_h, relieving,
+                                size, length, fittings_k, schedule=None, keys=DISCHARGE_KEYS):
+    """Built-up back pressure of a flashing two-phase discharge (homogeneous flow, omega equation of state) against
+    the valve's limit, and the reaction force at the pipe's exit.
+
+    ``relieving`` is the mixture's IF97 state at the relieving pressure; the pipe carries the selected orifice's
+    rated flow (API 520 Part II, 5.3.1; common practice).
+    """
+    diameter = discharge_diameter(result, name, size, length, schedule, keys)
+    if diameter is None:
+        return
+    flow = rated_flow_kg_h / 3600.0
+    fittings_k = fittings_k or 0.0
+    # A subcooled liquid flashes from its saturation pressure; above it the pipe carries liquid.
+    subcooled = relieving.dryness is None
+    p0 = saturation_pressure(relieving.temperature) if subcooled else relieving.pressure
+    v0 = 1.0 / relieving.density
+    exit_state = SteamState.from_ph(atm, relieving.enthalpy)
+    v_atm = 1.0 / exit_state.density
+    omega = pipe_omega(p0, v0, atm, v_atm)
+    liquid = SteamState.from_p_dryness(atm, 0.0)
+    viscosity = dynamic_viscosity(liquid.temperature, liquid.density)
+    result.assumptions.append(
+        f"{name}: the discharge pipe carries the orifice's rated flow as a homogeneous two-phase mixture in "
+        "equilibrium (no slip), its volume by the omega equation through the relieving state and the mixture "
+        "expanded at constant enthalpy to the atmosphere (IF97)"
+        + (", liquid down to its saturation pressure" if subcooled else "")
+        + "; friction by Colebrook at the liquid-only Reynolds "
+        "number (saturated liquid at the atmosphere: the larger friction, conservative); the pipe taken horizontal "
+        "(API 520 Part I annex C; Leung, 1996)")
+    result.work(f"{name}: omega parameter of the discharge line (IF97, constant enthalpy)",
+                "ω_line = (v_e/v0 − 1)/(p0/p_atm − 1)  [omega equation through both ends of the pipe's range]",
+                "(v_e/v0 - 1)/(p0/p_atm - 1)", omega, v_e=(v_atm, "m**3/kg"), v0=(v0, "m**3/kg"),
+                p0=(p0 / 1e5, "bar"), p_atm=(atm / 1e5, "bar"))
+    try:
+        line = two_phase_back_pressure(flow, diameter, length, fittings_k, atm, omega, p0, v0, viscosity,
+                                       liquid_up_to=relieving.pressure if subcooled else None)
+    except OutOfRangeError as exc:
+        result.check(f"{name}: built-up back pressure", "fail",
+                     f"{exc.message} ({size}, {length:g} m); fix: {exc.fix}")
+        return
+    result.work(f"{name}: built-up back pressure (two-phase)",
+                "p1 = root of ∫[p2, p1] 2/(G²·v)·(1 − G²·ω·p0·v0/p²) dp = f·L/D + ΣK,  v = v0·(ω·(p0/p − 1) + 1),  "
+                "p2 = max(p_atm, G·√(ω·p0·v0)), f by Colebrook at Re_lo = G·D/μ_l"
+                + (", liquid above p0 (its saturation pressure): + (N − N(p0))·G²·v0/2" if subcooled else "")
+                + "  [API 520 Part I annex C; Leung (1996)]",
+                "omega_line(G, omega, p0, v0, f, L, D, K, p2)", line.outlet_pressure / 1e5, "bar",
+                G=(line.mass_flux, "kg/(m**2*s)"), omega=(omega, ""), p0=(p0 / 1e5, "bar"), v0=(v0, "m**3/kg"),
+                f=(line.friction_factor, ""), L=(length, "m"), D=(diameter * 1e3, "mm"), K=(fittings_k, ""),
+                p2=(line.exit_pressure / 1e5, "bar"))
+    result.add(f"{prefix}_built_up_back_pressure", f"{name}: built-up back pressure at the valve outlet",
+               line.outlet_pressure / 1e5, "bar")
+    share = 100.0 * (line.outlet_pressure - atm) / (set_pressure - atm)
+    result.work(f"{name}: built-up back pressure, of the gauge set pressure", "share = (p1 − p_atm) / (p_set − p_atm)",
+                "(p1 - p_atm)/(p_set - p_atm)", share, "percent", p1=(line.outlet_pressure / 1e5, "bar"),
+                p_atm=(atm / 1e5, "bar"), p_set=(set_pressure / 1e5, "bar"))
+    result.add(f"{prefix}_built_up_back_pressure_fraction", f"{name}: built-up back pressure, of the gauge set "
+               "pressure", share, "percent")
+    result.add(f"{prefix}_discharge_exit_velocity", f"{name}: mixture velocity at the discharge pipe's exit",
+               line.exit_velocity, "m/s")
+    choked = " (the exit choked at the omega critical flux)" if line.exit_choked else ""
+    back_pressure_check(result, name, valve_type, line.outlet_pressure, set_pressure, atm, choked)
+    area = flow_area(diameter)
+    force = two_phase_reaction_force(line, diameter, atm)
+    result.work(f"{name}: reaction force at the discharge (two-phase)",
+                "F = G²·v_e·A + (p_e − p_atm)·A  [momentum and pressure at the open exit, API 520 Part II, 4.4.1.1]",
+                "G**2*v_e*A + (p_e - p_atm)*A", force, "N", G=(line.mass_flux, "kg/(m**2*s)"),
+                v_e=(line.exit_volume, "m**3/kg"), A=(area * 1e6, "mm**2"), p_e=(line.exit_pressure / 1e5, "bar"),
+                p_atm=(atm / 1e5, "bar"))
     result.add(f"{prefix}_reaction_force", f"{name}: reaction force at the open discharge", force, "N")

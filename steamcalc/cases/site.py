@@ -569,6 +569,8 @@ def parse_inputs(inputs_class, flat, site, case_path=None, read_record=None):
             given[f.name] = ", ".join(str(item) for item in raw)
         else:
             values[f.name] = parse_quantity(raw, where, kind)
+    if hasattr(inputs_class, "linked_values"):   # inputs taken from a linked issued record (a main's supply)
+        values, given = inputs_class.linked_values(values, given, site, case_path, read_record)
     return inputs_class(**values), given
 
 

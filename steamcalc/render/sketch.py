@@ -2,7 +2,8 @@
 
 Let-down: header → control valve → desuperheater → header. Flash: condensate → vessel (or
 vessels) → flash steam / residual condensate. Steam heater: steam → control valve → exchanger (named
-for the arrangement given: a shell-and-tube exchanger only when the case says so) → trap. Every number written on the sketch is read from the record (its results, or its inputs
+for the arrangement given: a shell-and-tube exchanger only when the case says so) → trap. Steam main:
+header → segments → user, drip legs and traps, return line to the receiver (:mod:`.sketch_main`). Every number written on the sketch is read from the record (its results, or its inputs
 where the state is an input, such as the header pressure), in the record's display units and
 formatted as the report formats it, so the sketch and the results table cannot disagree.
 Pressures are absolute as the record holds them, with the gauge value beside them.
@@ -10,90 +11,21 @@ Pressures are absolute as the record holds them, with the gauge value beside the
 
 from __future__ import annotations
 
-import html
-from dataclasses import dataclass, field
-
-from .display import convert, display_record, format_number, pressure_basis
+from .display import convert, display_record, format_number
 from ..units.formatting import unit_label as format_unit
-
-INK = "#1d2327"
-STEAM = "#2b6a99"
-WATER = "#2f6b3a"
-WIDTH = 760
-
-
-@dataclass(frozen=True)
-class Reading:
-    """One number on the sketch: where it comes from in the record and how it reads."""
-
-    section: str          # "results" or "inputs"
-    key: str
-    text: str             # e.g. "16.992 bar(a) · 16 bar(g)", "230 °C", "4500 kg/h"
-
-
-@dataclass(frozen=True)
-class Point:
-    """A numbered state point: its name and readings (pressure, temperature, flow as known)."""
-
-    number: str
-    name: str
-    readings: tuple = field(default_factory=tuple)
-
-
-def _entry(record, section, key):
-    entry = record.get(section, {}).get(key)
-    if not isinstance(entry, dict) or not isinstance(entry.get("value"), (int, float)) \
-            or isinstance(entry.get("value"), bool):
-        return None
-    return entry
-
-
-def _number(entry):
-    """The number as the report shows it (display_record's figures), else formatted for its unit."""
-    return entry.get("shown") or format_number(entry["value"], entry.get("unit", ""))
-
-
-def _unit(shown, section, key, entry):
-    return entry.get("shown_unit") or format_unit(entry.get("unit", ""), pressure_basis(shown, section, key))
-
-
-def _reading(shown, section, key):
-    """A non-pressure reading, or None when the record does not hold it."""
-    entry = _entry(shown, section, key)
-    if entry is None:
-        return None
-    return Reading(section, key, f"{_number(entry)} {_unit(shown, section, key, entry)}".strip())
-
-
-def _pressure(shown, raw, section, key):
-    """An absolute pressure with its gauge value beside it: '16.992 bar(a) · 16 bar(g)'."""
-    entry = _entry(shown, section, key)
-    raw_entry = _entry(raw, section, key)
-    if entry is None or raw_entry is None:
-        return None
-    absolute = f"{_number(entry)} {_unit(shown, section, key, entry)}"
-    atmosphere = raw.get("site", {}).get("atmospheric_pressure", {}).get("value")
-    if raw_entry.get("unit") != "bar" or not isinstance(atmosphere, (int, float)):
-        return Reading(section, key, absolute)
-    system = raw.get("site", {}).get("display_units", "SI")
-    gauge, unit = convert(raw_entry["value"] - atmosphere, "bar", system)
-    gauge_unit = "psig" if unit == "psi" else f"{unit}(g)"
-    return Reading(section, key, f"{absolute} · {format_number(round(gauge, 6), unit, trim=True)} {gauge_unit}")
-
-
-def _suffixed(reading, note):
-    return None if reading is None else Reading(reading.section, reading.key, f"{reading.text} ({note})")
-
-
-def _point(number, name, *readings):
-    return Point(number, name, tuple(r for r in readings if r is not None))
-
-
-def _header_name(raw, key, fallback):
-    given = raw.get("inputs", {}).get(key, {}).get("given", "")
-    if isinstance(given, str) and given.startswith("header:"):
-        return f"{given.split(':', 1)[1].split('=')[0].strip()} header"
-    return fallback
+from .sketch_parts import INK, WATER, WIDTH, Point, Reading
+from .sketch_parts import box as _box
+from .sketch_parts import entry_of as _entry
+from .sketch_parts import escaped as _esc
+from .sketch_parts import header_name as _header_name
+from .sketch_parts import label as _label
+from .sketch_parts import pipe as _pipe
+from .sketch_parts import point_of as _point
+from .sketch_parts import pressure_of as _pressure
+from .sketch_parts import reading_of as _reading
+from .sketch_parts import suffixed as _suffixed
+from .sketch_parts import valve as _valve
+from .sketch_main import draw_steam_main, steam_main_points
 
 
 def letdown_points(shown, raw):
@@ -195,7 +127,8 @@ def exchanger_points(shown, raw, earlier=False):
     ]
 
 
-POINTS = {"letdown": letdown_points, "flash": flash_points, "exchanger": exchanger_points}
+POINTS = {"letdown": letdown_points, "flash": flash_points, "exchanger": exchanger_points,
+          "steam_main": steam_main_points}
 
 
 def sketch_points(record, shown=None, earlier=False):
@@ -209,62 +142,6 @@ def sketch_points(record, shown=None, earlier=False):
         return []
     shown = shown if shown is not None else display_record(record)
     return exchanger_points(shown, record, earlier) if maker is exchanger_points else maker(shown, record)
-
-
-# -- drawing ------------------------------------------------------------------------------
-
-def _esc(text):
-    return html.escape(str(text), quote=True)
-
-
-def _pipe(points, colour=STEAM, width=3):
-    """A pipe along the given points, with an arrowhead at its end."""
-    path = " ".join(f"{x},{y}" for x, y in points)
-    (x0, y0), (x1, y1) = points[-2], points[-1]
-    if x1 != x0:
-        s = 1 if x1 > x0 else -1
-        head = f"{x1},{y1} {x1 - 9 * s},{y1 - 5} {x1 - 9 * s},{y1 + 5}"
-    else:
-        s = 1 if y1 > y0 else -1
-        head = f"{x1},{y1} {x1 - 5},{y1 - 9 * s} {x1 + 5},{y1 - 9 * s}"
-    return [f'<polyline points="{path}" fill="none" stroke="{colour}" stroke-width="{width}"/>',
-            f'<polygon points="{head}" fill="{colour}"/>']
-
-
-def _box(x, y, w, h, label, sub=""):
-    out = [f'<rect x="{x}" y="{y}" width="{w}" height="{h}" rx="6" fill="#f4f6f7" stroke="{INK}" stroke-width="1.5"/>',
-           f'<text x="{x + w / 2:g}" y="{y + h / 2 + (0 if sub else 4):g}" text-anchor="middle" font-weight="bold">'
-           f"{_esc(label)}</text>"]
-    if sub:
-        out.append(f'<text x="{x + w / 2:g}" y="{y + h / 2 + 15:g}" text-anchor="middle" font-size="10">{_esc(sub)}</text>')
-    return out
-
-
-def _valve(x, y, label):
-    """A control valve: two triangles point to point, an actuator stem and its name below."""
-    return [f'<polygon points="{x - 16},{y - 11} {x + 16},{y + 11} {x + 16},{y - 11} {x - 16},{y + 11}" '
-            f'fill="#ffffff" stroke="{INK}" stroke-width="1.5"/>',
-            f'<line x1="{x}" y1="{y}" x2="{x}" y2="{y - 22}" stroke="{INK}" stroke-width="1.5"/>',
-            f'<rect x="{x - 10}" y="{y - 32}" width="20" height="10" fill="#ffffff" stroke="{INK}" stroke-width="1.5"/>',
-            f'<text x="{x}" y="{y + 27}" text-anchor="middle" font-size="10">{_esc(label)}</text>']
-
-
-def _tag(x, y, number):
-    return [f'<circle cx="{x}" cy="{y}" r="9" fill="{INK}"/>',
-            f'<text x="{x}" y="{y + 4}" text-anchor="middle" fill="#ffffff" font-size="10" font-weight="bold">'
-            f"{_esc(number)}</text>"]
-
-
-def _label(x, y, point, anchor="start"):
-    """A point's tag, name and readings, one per line, from (x, y) downwards."""
-    tag_x = x + 9 if anchor == "start" else x - 9
-    text_x = x + 23 if anchor == "start" else x - 23
-    out = _tag(tag_x, y - 4, point.number)
-    out.append(f'<text x="{text_x}" y="{y}" text-anchor="{anchor}" font-weight="bold">{_esc(point.name)}</text>')
-    for line, reading in enumerate(point.readings, start=1):
-        out.append(f'<text x="{text_x}" y="{y + 15 * line}" text-anchor="{anchor}" class="reading" '
-                   f'data-key="{_esc(reading.section)}.{_esc(reading.key)}">{_esc(reading.text)}</text>')
-    return out
 
 
 def _letdown(points, raw):
@@ -341,8 +218,9 @@ def _exchanger(points, raw, earlier=False):
     return out, 275
 
 
-DRAWINGS = {"letdown": _letdown, "flash": _flash, "exchanger": _exchanger}
-TITLES = {"letdown": "Let-down station", "flash": "Flash-steam recovery", "exchanger": "Steam heater"}
+DRAWINGS = {"letdown": _letdown, "flash": _flash, "exchanger": _exchanger, "steam_main": draw_steam_main}
+TITLES = {"letdown": "Let-down station", "flash": "Flash-steam recovery", "exchanger": "Steam heater",
+          "steam_main": "Steam main and condensate return"}
 
 
 def sketch_svg(record, shown=None, earlier=False):

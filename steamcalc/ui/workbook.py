@@ -21,7 +21,7 @@ from ..calcs import get_calculation
 from ..properties.engines import remembering_states
 from ..render.display import display_record, pressure_basis
 from ..errors import RecordConflictError, SteamcalcError
-from ..records.record import write_record
+from ..records.record import IssuedRecords, write_record
 from ..render.report import RENDERERS, format_number, format_unit, render_markdown
 from ..records.build import record_for_case
 from ..cases.site import case_site, flatten_inputs, is_file_name_part, load_case, parse_inputs
@@ -176,7 +176,9 @@ class Workbook:
         if progress is not None:
             progress.step(f"computing {self.case.id} ({self.calc.TITLE.lower()}) on IF97")
         try:
-            inputs, given = parse_inputs(self.calc.Inputs, self.form.values(), self.site)
+            # A linked record (a main's supply let-down) is read from the case's links folder or the record folder.
+            inputs, given = parse_inputs(self.calc.Inputs, self.form.values(), self.site, self.case.path,
+                                         IssuedRecords(self.record_folder))
             self.case = dataclasses.replace(self.case, uncertainty={**self.form.tolerances(), **self._settings})
             with remembering_states(self._states):
                 record, result = record_for_case(self.case, self.site, inputs=inputs, given=given,

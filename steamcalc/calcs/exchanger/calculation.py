@@ -206,6 +206,27 @@ class Inputs:
         "number", "Cubic expansion coefficient of the process liquid, per K", "For thermal relief of a liquid other "
         "than water (water's comes from IF97), in 1/K.", example="0.0007", section="overpressure",
         key="expansion_coefficient")
+    relief_valve_type: str | None = input_field(
+        "text", "Tube-rupture relief valve type", "conventional, balanced-bellows or pilot; conventional when not "
+        "given.", example="conventional", section="overpressure", key="valve_type")
+    discharge_size: str | None = input_field(
+        "nominal_size", "Tube-rupture relief discharge pipe size", "Nominal size of the tube-rupture relief valve's "
+        "discharge pipe (schedule 40).", example="DN100", section="overpressure")
+    discharge_length: float | None = input_field(
+        "length", "Tube-rupture relief discharge pipe length", "Straight length of that discharge pipe to its open "
+        "end.", example="6 m", section="overpressure")
+    discharge_fittings_k: float | None = input_field(
+        "number", "Tube-rupture relief discharge fittings K", "Sum of the loss coefficients of that pipe's fittings "
+        "and exit.", example="1.5", section="overpressure")
+    thermal_discharge_size: str | None = input_field(
+        "nominal_size", "Thermal relief discharge pipe size", "Nominal size of the thermal relief valve's discharge "
+        "pipe (schedule 40).", example="DN25", section="overpressure")
+    thermal_discharge_length: float | None = input_field(
+        "length", "Thermal relief discharge pipe length", "Straight length of that discharge pipe to its open end.",
+        example="3 m", section="overpressure")
+    thermal_discharge_fittings_k: float | None = input_field(
+        "number", "Thermal relief discharge fittings K", "Sum of the loss coefficients of that pipe's fittings and "
+        "exit.", example="1.5", section="overpressure")
 
     def __post_init__(self):
         check_fields(self)

@@ -30,6 +30,8 @@ from ...errors import InputError, OutOfRangeError
 from ...properties.steam import SteamState
 from ...units.amounts import Phrase
 from ..overpressure import CAUTIONS, relieving_pressure, select_orifice, steam_relief_area
+from .discharge import check_discharge_inputs, thermal_relief_discharge, tube_rupture_discharge
+from .reverse_rupture import reverse_rupture
 
 NAME = "Tube rupture"
 #: What this module adds to a record, for the kind's BASIS_CHANGES (a record of an earlier release lacks it).
@@ -76,6 +78,7 @@ def check_overpressure_inputs(inputs):
         raise InputError("a test pressure is not below the design pressure", field="overpressure.test_pressure",
                          value=inputs.process_side_test_pressure,
                          fix="give the process side's hydrostatic test pressure from its nameplate or test record")
+    check_discharge_inputs(inputs)
     if inputs.process_expansion_coefficient is not None and not inputs.process_expansion_coefficient > 0.0:
         raise InputError("a liquid's cubic expansion coefficient is above zero",
                          field="overpressure.expansion_coefficient", value=inputs.process_expansion_coefficient,
@@ -103,16 +106,14 @@ def add_overpressure(inputs, steam_side_heat, process_pressure, site, result):
     result.cautions.extend(c for c in CAUTIONS if c not in result.cautions)
     atm = site.atmospheric_pressure
     _tube_rupture(inputs, atm, result)
-    _thermal_relief(inputs, steam_side_heat, process_pressure, result)
+    _thermal_relief(inputs, steam_side_heat, process_pressure, atm, result)
 
 
 def _tube_rupture(inputs, atm, result):
     high, low = inputs.steam_side_design_pressure, inputs.process_side_design_pressure
     if low > high:
-        result.check(f"{NAME}: process side the higher", "warn", Phrase.of(
-            "the process side's design pressure {low:.4g} is above the steam side's {high:.4g}: a rupture would send "
-            "process liquid into the steam space, a case this calculation does not size; the engineer of record "
-            "assesses it", low=(low / 1e5, "bar"), high=(high / 1e5, "bar")))
+        # Process liquid into the steam space: the steam side's relief case.
+        reverse_rupture(inputs, atm, result)
     basis = inputs.rupture_basis or "test pressure"
     # Compared as absolute pressures: the codes' fractions apply to gauge pressures, so each is taken of the
     # pressure above the atmosphere and the atmosphere added back.
@@ -197,7 +198,11 @@ def _tube_rupture(inputs, atm, result):
     governing, area = (("displaced liquid", area_liquid) if area_liquid > area_steam else (f"steam ({method})",
                                                                                            area_steam))
     result.add(f"{PREFIX}_governing_case", f"{NAME}: governing relief flow", governing)
-    select_orifice(result, PREFIX, NAME, area, load if governing.startswith("steam") else displaced)
+    if select_orifice(result, PREFIX, NAME, area, load if governing.startswith("steam") else displaced) is None:
+        return
+    tube_rupture_discharge(inputs, result, NAME, atm=atm, set_pressure=low,
+                           orifice_area=result.value(f"{PREFIX}_orifice_area"), steam=relieving, steam_flow=load,
+                           steam_area=area_steam, liquid=liquid, liquid_flow=displaced, liquid_area=area_liquid)
 
 
 def _supply_enthalpy(inputs, pressure):
@@ -212,7 +217,7 @@ def _supply_enthalpy(inputs, pressure):
     return SteamState.from_p_dryness(pressure, 1.0).enthalpy
 
 
-def _thermal_relief(inputs, heat, process_pressure, result):
+def _thermal_relief(inputs, heat, process_pressure, atm, result):
     name = "Thermal relief"
     t = inputs.process_outlet_temperature
     if inputs.process_cp is None:
@@ -240,3 +245,4 @@ def _thermal_relief(inputs, heat, process_pressure, result):
         f"a thermal relief valve of the usual minimum size, {THERMAL_MINIMUM_SIZE} (common practice), passes "
         "{flow:.1f} many times over; fit one wherever the process side can be blocked in with the steam on",
         flow=(flow * 3600e3, "L/h")))
+    thermal_relief_discharge(inputs, result, name, atm=atm)

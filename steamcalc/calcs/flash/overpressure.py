@@ -21,7 +21,7 @@ from ...properties.steam import SteamState
 from ...units.amounts import Phrase
 from ..overpressure import (
     CAUTIONS, VALVE_TYPES, discharge_section, flashing_relief_area, relieving_pressure, select_orifice,
-    steam_relief_area,
+    steam_relief_area, two_phase_discharge_section,
 )
 
 NAME = "Vessel relief"
@@ -66,6 +66,7 @@ def check_overpressure_inputs(inputs):
     if inputs.discharge_fittings_k is not None and inputs.discharge_fittings_k < 0.0:
         raise InputError("a sum of loss coefficients cannot be negative", field="overpressure.discharge_fittings_k",
                          value=inputs.discharge_fittings_k, fix="give the sum of the fittings' K, 0 or more")
+    _check_discharge_inputs(inputs)
     if inputs.max_upstream_pressure is not None and inputs.max_upstream_pressure < inputs.condensate_pressure:
         raise InputError(
             f"the highest upstream pressure {inputs.max_upstream_pressure / 1e5:.4g} bar(a) is below the condensate "
@@ -73,6 +74,21 @@ def check_overpressure_inputs(inputs):
             value=inputs.max_upstream_pressure,
             fix="give the highest pressure the condensate source can reach (its relief set pressure, or the steam "
                 "supply's), or leave it out for the condensate pressure")
+
+
+def _check_discharge_inputs(inputs):
+    if inputs.discharge_length is not None and inputs.discharge_length < 0.0:
+        raise InputError("a pipe length cannot be negative", field="overpressure.discharge_length",
+                         value=inputs.discharge_length, fix="give the straight length to the open end in m, 0 or more")
+    given = {"discharge_size": inputs.discharge_size, "discharge_length": inputs.discharge_length,
+             "discharge_fittings_k": inputs.discharge_fittings_k}
+    if any(v is not None for v in given.values()):
+        for key, example in (("discharge_size", '"DN100"'), ("discharge_length", '"6 m"')):
+            if given[key] is None:
+                other = next(k for k, v in given.items() if v is not None)
+                raise InputError(f"the relief discharge pipe is given without its {key.split('_')[1]}",
+                                 field=f"overpressure.{key}", value=f"{other} = {given[other]}",
+                                 fix=f"add {key} = {example} to [inputs.overpressure], or remove {other}")
 
 
 def add_overpressure(inputs, inlet, site, result):
@@ -123,18 +139,21 @@ def add_overpressure(inputs, inlet, site, result):
                             "pressure-equipment codes (fire, and cases outside this calculation)")
         return
     governing = max(cases, key=lambda case: cases[case][0])
-    area, load, method, enthalpy = cases[governing]
+    # The last item is what leaves the valve: the steam's enthalpy (J/kg), or the two-phase mixture's state.
+    area, load, method, leaving = cases[governing]
     result.add("vessel_relief_governing_case", f"{NAME}: governing case", f"{governing} ({method})")
     rated = select_orifice(result, PREFIX, NAME, area, load)
     if rated is None:
         return
-    if enthalpy is None:
-        result.check(f"{NAME}: discharge line", "warn",
-                     "two-phase discharge: the built-up back pressure and reaction force of a flashing discharge are "
-                     "not computed here; size the discharge line for two-phase flow with the engineer of record")
+    if isinstance(leaving, SteamState):
+        # A two-phase load: the case carries the mixture's relieving state.
+        two_phase_discharge_section(result, PREFIX, NAME, valve_type=inputs.relief_valve_type or "conventional",
+                                    set_pressure=set_pressure, atm=atm, rated_flow_kg_h=rated, relieving=leaving,
+                                    size=inputs.discharge_size, length=inputs.discharge_length,
+                                    fittings_k=inputs.discharge_fittings_k)
         return
     discharge_section(result, PREFIX, NAME, valve_type=inputs.relief_valve_type or "conventional",
-                      set_pressure=set_pressure, atm=atm, rated_flow_kg_h=rated, enthalpy=enthalpy,
+                      set_pressure=set_pressure, atm=atm, rated_flow_kg_h=rated, enthalpy=leaving,
                       size=inputs.discharge_size, length=inputs.discharge_length,
                       fittings_k=inputs.discharge_fittings_k)
 
@@ -178,4 +197,4 @@ def _failed_open(inputs, inlet, p_r, liquid, vapour, atm, result, cases):
     result.add("vessel_relief_failed_open_load", "Relief load, inlet failed open (two-phase)", load, "kg/h")
     area, method, sized = flashing_relief_area(result, name, mixture, load, atm)
     result.add("vessel_relief_omega", f"{name}: omega parameter", sized.omega.omega)
-    cases["inlet fails open, vessel filling (two-phase)"] = (area, load, method, None)
+    cases["inlet fails open, vessel filling (two-phase)"] = (area, load, method, mixture)

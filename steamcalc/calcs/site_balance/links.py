@@ -9,21 +9,19 @@ the run writes its records to, so that a whole site run into another folder find
 item's own ``revision`` wins over ``[inputs.links] revision``; a revision with no record there is refused naming
 the item and where its revision came from. Its kind is checked, its digests
 recomputed, and the balance's record keeps its id, revision, kind and content digest, so that
-``verify`` can check the file still holds the record the balance used (:func:`link_problems`). The
-calculation itself never reads a file: everything it uses is copied into the balance's inputs.
+``verify`` can check the file still holds the record the balance used (:func:`link_problems`). Finding and
+reading a linked record, and checking a record's links, are shared with the other kinds that link records
+(:mod:`steamcalc.calcs.links`). The calculation itself never reads a file: everything it uses is copied
+into the balance's inputs.
 """
 
 from __future__ import annotations
 
-import re
-from pathlib import Path
-
-from ...errors import InputError, SteamcalcError
+from ...errors import InputError
 from ...units.quantities import from_record_unit
+from ..links import DEFAULT_FOLDER, find_linked_record, link_problems, link_states, stale_links
 from .items import Link
 
-#: The links folder when the case does not name one: where ``steamcalc run`` puts records by default.
-DEFAULT_FOLDER = "../records"
 #: Relative difference between a linked record's pressure and the balance's header above which they are
 #: not the same header.
 PRESSURE_MATCH = 0.005
@@ -32,9 +30,6 @@ PRESSURE_MATCH = 0.005
 #: How the refusals name an item of each section of the case file.
 _ITEM_WORDS = {"letdown": "let-down", "user": "user", "flash": "flash vessel"}
 
-#: An id or revision as it stands in a record's file name.
-_FILE_NAME_PART = re.compile(r"^[A-Za-z0-9_-][A-Za-z0-9._-]{0,79}\Z")
-
 
 class Links:
     """Resolves the ``record = ...`` of a balance's items against the links folder."""
@@ -42,7 +37,7 @@ class Links:
     def __init__(self, table, case_path, site, read_record=None):
         self.table = table or {}
         self.read_record = read_record
-        self.case_dir = None if case_path is None else Path(case_path).parent
+        self.case_path = case_path
         self.site = site
         folder = self.table.get("folder", DEFAULT_FOLDER)
         if not isinstance(folder, str):
@@ -59,46 +54,20 @@ class Links:
         record_id, revision = row["record"], row.get("revision", self.revision)
         own = "revision" in row             # the item names its own revision, over [inputs.links] revision
         item = f"{_ITEM_WORDS.get(where.partition('[')[0], 'item')} {row.get('name')!r}"
-        if not isinstance(record_id, str) or not _FILE_NAME_PART.match(record_id):
-            raise InputError("a record id holds only letters, digits, '.', '_' and '-'", field=f"{where}.record",
-                             value=record_id, fix='e.g. record = "LD-01"')
-        if not isinstance(revision, str) or not _FILE_NAME_PART.match(revision):
-            raise InputError(f"the revision of linked record {record_id} is not given", field=f"{where}.revision",
-                             value=revision, fix='give [inputs.links] revision = "A" (or revision on the item)')
-        if self.case_dir is None or self.read_record is None:
-            raise InputError(f"linked record {record_id} is read only when the balance runs from its case file",
-                             field=f"{where}.record", value=record_id,
-                             fix="run the balance with steamcalc run or its workbook")
-        relative = Path(self.folder) / f"{record_id}_rev{revision}.json"
-        path = self.case_dir / relative
-        if not path.is_file():
-            for folder in getattr(self.read_record, "also_in", ()):
-                if (folder / relative.name).is_file():
-                    path = folder / relative.name
-                    break
-        if not path.is_file():
+
+        def missing(path):
             if own:
-                raise InputError(f"linked record {record_id} revision {revision} is not at {path} (named by {item}, "
-                                 "at the revision it gives)", field=f"{where}.revision", value=revision,
-                                 fix=f"issue {record_id} revision {revision} first (steamcalc run on its case file), "
-                                     f"or give {item} the revision of an issued {record_id}")
-            raise InputError(f"linked record {record_id} revision {revision} is not at {path} (named by {item}, at "
-                             "[inputs.links] revision)", field=f"{where}.record", value=record_id,
-                             fix=f"issue it first (steamcalc run on {record_id}'s case file puts it in the site's "
-                                 "records folder), or set [inputs.links] folder and revision to where it is, or give "
-                                 f"{item} a revision of its own")
-        try:
-            record = self.read_record(path)
-        except SteamcalcError as exc:
-            raise InputError(f"linked record {record_id} revision {revision} cannot be used: {exc.explained()}",
-                             field=f"{where}.record", value=record_id,
-                             fix=exc.fix or "re-issue the linked record") from None
-        if record.get("kind") != kind:
-            raise InputError(f"linked record {record_id} is a {record.get('kind')} record, not a {kind} record",
-                             field=f"{where}.record", value=record_id, fix=f"link a {kind} record here")
-        if record.get("id") != record_id or str(record.get("revision")) != revision:
-            raise InputError(f"the file {relative} holds record {record.get('id')} revision {record.get('revision')}",
-                             field=f"{where}.record", value=record_id, fix="link the file that holds this record")
+                return InputError(f"linked record {record_id} revision {revision} is not at {path} (named by {item}, "
+                                  "at the revision it gives)", field=f"{where}.revision", value=revision,
+                                  fix=f"issue {record_id} revision {revision} first (steamcalc run on its case "
+                                      f"file), or give {item} the revision of an issued {record_id}")
+            return InputError(f"linked record {record_id} revision {revision} is not at {path} (named by {item}, at "
+                              "[inputs.links] revision)", field=f"{where}.record", value=record_id,
+                              fix=f"issue it first (steamcalc run on {record_id}'s case file puts it in the site's "
+                                  "records folder), or set [inputs.links] folder and revision to where it is, or give "
+                                  f"{item} a revision of its own")
+        record = find_linked_record(record_id, revision, kind, folder=self.folder, case_path=self.case_path,
+                                    read_record=self.read_record, where=where, missing=missing)
         link = Link(record_id=record_id, revision=revision, kind=kind, content_digest=record["content_digest"])
         return record, link
 
@@ -156,78 +125,4 @@ class Links:
         return dict(values, link=link)
 
 
-def link_states(record, record_path, read_record):
-    """Each link of a balance record against the files beside it: ``(state, text)`` per linked record.
-
-    ``state`` is ``"holds"`` (the file holds the record the balance used), ``"changed"`` (another content digest,
-    another kind, or a file that cannot be read), ``"missing"`` (no file beside the record) or ``"superseded"``
-    (it holds, but another revision of the record lies beside it).
-
-    Parameters
-    ----------
-    record : dict
-        A balance record.
-    record_path : str or Path or None
-        Where the record was read from (None: every link is missing).
-    read_record : callable
-        Reads a record file, refusing one whose digests do not match (from the records layer).
-    """
-    links = {}
-    for key, entry in record.get("inputs", {}).items():
-        head, dot, name = key.rpartition(".link.")
-        if dot and isinstance(entry, dict):
-            links.setdefault(head, {})[name] = entry.get("value")
-    base = Path(record_path).parent if record_path is not None else None
-    states = []
-    for item, link in links.items():
-        record_id, revision, digest = link.get("record_id"), link.get("revision"), link.get("content_digest")
-        what = f"linked record {record_id} revision {revision} ({item})"
-        file_name = f"{record_id}_rev{revision}.json"
-        path = None if base is None else base / file_name
-        if path is None or not path.is_file():
-            states.append(("missing", f"{what}: no {file_name} beside this record"))
-            continue
-        try:
-            linked = read_record(path)
-        except SteamcalcError as exc:
-            states.append(("changed", f"{what}: {file_name} cannot be used: {exc.message}"))
-            continue
-        if linked.get("kind") != link.get("kind"):
-            states.append(("changed", f"{what}: {file_name} is now a {linked.get('kind')} record, the balance linked a "
-                                      f"{link.get('kind')} record"))
-        elif linked.get("content_digest") != digest:
-            states.append(("changed", f"{what}: {file_name} has changed since the balance used it (content digest "
-                                      f"now {linked.get('content_digest')}, the balance used {digest}); re-issue the "
-                                      "balance"))
-        else:
-            others = sorted(p.name[len(record_id) + 4:-5] for p in base.glob(f"{record_id}_rev*.json")
-                            if p.name != file_name)
-            if others:
-                states.append(("superseded", f"{what}: revision {', '.join(others)} of {record_id} lies beside it; "
-                                             "re-issue the balance on the current revision"))
-            else:
-                states.append(("holds", f"{what}: holds"))
-    return states
-
-
-def stale_links(record, record_path, read_record):
-    """What makes a balance record stale: each linked record changed, missing or superseded, one line each."""
-    return [text for state, text in link_states(record, record_path, read_record) if state != "holds"]
-
-
-def link_problems(record, record_path, read_record):
-    """What no longer holds of a balance record's links, for ``verify``: ``(problems, notes)``.
-
-    A linked file that holds another record (changed, another kind, unreadable) is a problem and fails the
-    verification; one that is not beside the record is noted as not checked, and a later revision beside it
-    is noted (``register`` marks the balance stale for either).
-    """
-    problems, notes = [], []
-    for state, text in link_states(record, record_path, read_record):
-        if state == "changed":
-            problems.append(text)
-        elif state == "missing":
-            notes.append(text.replace(": no ", ": not checked - no ", 1))
-        elif state == "superseded":
-            notes.append(text)
-    return problems, notes
+__all__ = ["DEFAULT_FOLDER", "PRESSURE_MATCH", "Links", "link_states", "stale_links", "link_problems"]

@@ -17,6 +17,8 @@ from ...units.rows import Column
 from ..base import Result, check_fields, full_record_wanted, input_field
 from .economics import OPTION_COLUMNS, check_options, report_economics
 from .report import report_main, report_return, report_traps
+from .supply import linked_record_problems, supply_source
+from .supply import main_stale_links as stale_links
 
 KIND = "steam_main"
 TITLE = "Steam main, drip legs, traps and condensate return"
@@ -56,7 +58,8 @@ class Inputs:
     """Inputs of a steam main and its condensate return; values in SI (Pa absolute, K, kg/s, m, s)."""
 
     supply_pressure: float = input_field(
-        "pressure", "Supply pressure", "Pressure of the header (or the let-down's outlet) feeding the main.",
+        "pressure", "Supply pressure", "Pressure of the header feeding the main; leave it out when a let-down record "
+        "feeds it ([inputs.supply_link]).",
         example="header:MP", required=True)
     steam_flow: float = input_field(
         "mass_flow", "Steam flow", "Steam the main carries to its users.", example="750 kg/h", required=True,
@@ -64,6 +67,22 @@ class Inputs:
     supply_temperature: float | None = input_field(
         "temperature", "Supply temperature", "Leave empty for saturated steam; give it when superheated.",
         example="185 °C")
+    supply_link_record_id: str | None = input_field(
+        "text", "Supply let-down record", "An issued let-down record whose outlet (after its desuperheater) feeds "
+        "the main instead of a header: its outlet pressure and temperature become the supply.", example="LD-01",
+        section="supply_link", key="record")
+    supply_link_revision: str | None = input_field(
+        "text", "Supply record's revision", "Revision of the linked let-down record.", example="B",
+        section="supply_link", key="revision")
+    supply_link_folder: str | None = input_field(
+        "text", "Supply record's folder", "Folder of the linked record, relative to the case file; the site's "
+        "records folder when not given.", example="../records", section="supply_link", key="folder")
+    supply_link_kind: str | None = input_field(
+        "text", "Supply record's kind", "Filled in from the linked record when the main runs (give it only to pin "
+        "it).", example="letdown", section="supply_link", key="kind")
+    supply_link_content_digest: str | None = input_field(
+        "text", "Supply record's content digest", "Filled in from the linked record when the main runs (give it "
+        "only to pin the record you checked).", example="sha256:...", section="supply_link", key="content_digest")
     segments: tuple | None = input_field(
         "rows", "Segments", "The main's straight runs in order from the header: length, size, schedule, fittings K "
         "and rise (a fall below zero).", example='[{length = "75 m", size = "DN80"}]', required=True,
@@ -169,6 +188,12 @@ class Inputs:
         if self.supply_pressure <= 0.0:
             raise InputError("must be above zero", field="supply_pressure")
 
+    @classmethod
+    def linked_values(cls, values, given, site, case_path=None, read_record=None):
+        """The supply from a linked let-down record (:func:`.supply.linked_supply`), when the case names one."""
+        from .supply import linked_supply
+        return linked_supply(values, given, case_path, read_record)
+
     @property
     def main_segments(self):
         from .main import Segment
@@ -232,6 +257,9 @@ def calculate(inputs, site):
         f"Gauge pressures converted with the site atmosphere of {site.atmospheric_pressure / 1e5:.5g} bar(a)",
         "Insulation conductivity straight through the maker's figures at 50 °C and 150 °C mean temperature",
     ])
+    source = supply_source(inputs)
+    if source is not None:
+        result.assumptions.append(source)
     result.cautions.extend(CAUTIONS)
     supply = _supply_state(inputs)
     flows, drips = report_main(inputs, site, supply, result)
@@ -245,4 +273,4 @@ def calculate(inputs, site):
     return result
 
 
-__all__ = ["KIND", "TITLE", "WORKBOOK", "Inputs", "calculate", "Phrase"]
+__all__ = ["KIND", "TITLE", "WORKBOOK", "Inputs", "calculate", "linked_record_problems", "stale_links", "Phrase"]

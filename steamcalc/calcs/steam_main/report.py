@@ -2,6 +2,9 @@
 
 from __future__ import annotations
 
+import dataclasses
+import math
+
 from ...equipment.line_loss import DROP_LIMIT_PER_100M
 from ...equipment.piping import MAX_FLASHING_CONDENSATE_VELOCITY, flow_area
 from ...errors import InputError
@@ -20,6 +23,13 @@ from .return_line import METHOD_REFERENCE, return_flow, return_size_needed, wate
 def _insulation(inputs):
     return Insulation(inputs.insulation_thickness, inputs.conductivity_50, inputs.conductivity_150,
                       inputs.jacket_emissivity)
+
+
+def _limit_source(inputs, name, given, default):
+    """A check's source: the input limit, or "common practice" when the limit is the input's default (compared
+    within 1e-9: a limit read back from a record in its record unit is the default to the last digit or so)."""
+    field = next(f for f in dataclasses.fields(inputs) if f.name == name)
+    return default if math.isclose(getattr(inputs, name), field.default, rel_tol=1e-9) else given
 
 
 def report_main(inputs, site, supply, result):
@@ -65,7 +75,9 @@ def report_main(inputs, site, supply, result):
         result.check_limit(f"Segment {n}: steam velocity", (f.velocity, "m/s"),
                            [("<=", (inputs.velocity_limit, "m/s"), "warn")],
                            lambda s, f=f: Phrase.of("{v:.1f} against the limit {lim:.0f}", v=(f.velocity, "m/s"),
-                                                    lim=(inputs.velocity_limit, "m/s")), source="the input velocity limit")
+                                                    lim=(inputs.velocity_limit, "m/s")), source=_limit_source(
+                               inputs, "velocity_limit", "the input velocity limit",
+                               "common practice for saturated steam (the limit when none is given)"))
         if inputs.insulation_thickness > 0.0:
             result.check_limit(f"Segment {n}: jacket touch temperature", (f.loss.surface_temperature - 273.15, "degC"),
                                [("<=", (TOUCH_SAFE_SURFACE, "degC"), "warn")],
@@ -251,7 +263,8 @@ def report_return(inputs, drips, result):
                        [("<=", (inputs.return_drop_limit / 1e5, "bar"), "warn")],
                        lambda s: "within the stated drop limit" if s == "pass" else
                        "above the stated drop limit: the traps' back pressure rises; a larger line lowers it",
-                       source="the input drop limit")
+                       source=_limit_source(inputs, "return_drop_limit", "the input drop limit",
+                                            "common practice (the limit when none is given)"))
     needed = return_size_needed(sources, inputs.receiver_pressure, inputs.return_schedule, inputs.return_length,
                                 inputs.lift, MAX_FLASHING_CONDENSATE_VELOCITY, inputs.return_drop_limit)
     if needed is not None:

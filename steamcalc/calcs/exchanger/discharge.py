@@ -1,0 +1,155 @@
+"""The heater's relief valves' discharge lines: the built-up back pressure against the valve's limit and the
+reaction force, for the tube-rupture relief (its steam and its displaced liquid) and the thermal relief.
+
+Each pipe carries its valve's rated flow, not the relief load: a spring-loaded valve, once open, passes its
+capacity (API 520 Part II, 5.3.1; common practice). Steam flows isothermally (the conservative basis of
+:mod:`steamcalc.equipment.discharge_line`); liquid below its atmospheric boiling point by Darcy-Weisbach
+(incompressible); hot liquid that flashes in the pipe as liquid down to its saturation pressure and as a
+homogeneous two-phase mixture by the omega equation below it (:mod:`steamcalc.equipment.two_phase_line`).
+"""
+
+from __future__ import annotations
+
+import math
+
+from ...equipment.line_loss import line_pressure_drop
+from ...equipment.piping import flow_area
+from ...equipment.relief import API526_AREAS_IN2, MM2_PER_IN2
+from ...equipment.two_phase_relief import KD_SUBCOOLED, isentropic_flux
+from ...errors import InputError
+from ...properties.steam import SteamState, dynamic_viscosity
+from ..overpressure import (
+    VALVE_TYPES, back_pressure_check, discharge_diameter, discharge_section, relieving_pressure,
+    two_phase_discharge_section,
+)
+
+#: The outlet pipes: the case-file key of the size, and the inputs in the words of the form.
+TUBE_KEYS = ("overpressure.discharge_size", "the tube-rupture relief discharge pipe's size and length")
+THERMAL_KEYS = ("overpressure.thermal_discharge_size", "the thermal relief discharge pipe's size and length")
+#: The usual smallest thermal relief valve is taken with an API 526 D orifice (common practice): its liquid capacity
+#: is what its outlet pipe carries.
+THERMAL_ORIFICE = "D"
+#: Effective coefficient of discharge for liquid, API 520 Part I (preliminary sizing).
+KD_LIQUID = 0.65
+
+
+def check_discharge_inputs(inputs):
+    """Refusals of the heater's outlet-pipe inputs that need no calculation (from ``Inputs.__post_init__``)."""
+    if inputs.relief_valve_type is not None and inputs.relief_valve_type not in VALVE_TYPES:
+        raise InputError(f"unknown relief valve type '{inputs.relief_valve_type}'", field="overpressure.valve_type",
+                         value=inputs.relief_valve_type, fix=f"use one of {', '.join(VALVE_TYPES)}")
+    for prefix, example in (("", '"DN100"'), ("thermal_", '"DN25"')):
+        keys = {name: f"{prefix}discharge_{name}" for name in ("size", "length", "fittings_k")}
+        given = {name: getattr(inputs, key) for name, key in keys.items()}
+        for name in ("length", "fittings_k"):
+            if given[name] is not None and given[name] < 0.0:
+                raise InputError("a pipe length or a sum of loss coefficients cannot be negative",
+                                 field=f"overpressure.{keys[name]}", value=given[name],
+                                 fix="give the straight length in m and the sum of the fittings' K, 0 or more")
+        if any(v is not None for v in given.values()):
+            other = next(keys[n] for n, v in given.items() if v is not None)
+            for name, sample in (("size", example), ("length", '"6 m"')):
+                if given[name] is None:
+                    raise InputError(f"a relief discharge pipe is given without its {name}",
+                                     field=f"overpressure.{keys[name]}", value=f"{other} = {getattr(inputs, other)}",
+                                     fix=f"add {keys[name]} = {sample} to [inputs.overpressure], or remove {other}")
+    if inputs.thermal_discharge_size is not None and inputs.process_cp is not None:
+        raise InputError("the thermal relief's discharge line needs the liquid's viscosity, known here for water only",
+                         field="overpressure.thermal_discharge_size", value=inputs.thermal_discharge_size,
+                         fix="remove the thermal relief discharge pipe for a liquid other than water (its line is "
+                             "for the relief system's designer)")
+
+
+def tube_rupture_discharge(inputs, result, name, *, atm, set_pressure, orifice_area, steam, steam_flow, steam_area,
+                           liquid, liquid_flow, liquid_area):
+    """The tube-rupture relief valve's outlet pipe: the steam and the displaced liquid, each at the selected
+    orifice's rated flow for it (flows kg/h, areas mm²)."""
+    if discharge_diameter(result, name, inputs.discharge_size, inputs.discharge_length, None, TUBE_KEYS) is None:
+        return
+    pipe = dict(valve_type=inputs.relief_valve_type or "conventional", set_pressure=set_pressure, atm=atm,
+                size=inputs.discharge_size, length=inputs.discharge_length, fittings_k=inputs.discharge_fittings_k,
+                keys=TUBE_KEYS)
+    discharge_section(result, "tube_rupture_steam", f"{name}, steam", rated_flow_kg_h=steam_flow * orifice_area /
+                      steam_area, enthalpy=steam.enthalpy, **pipe)
+    liquid_discharge_section(result, "tube_rupture_liquid", f"{name}, displaced liquid",
+                             rated_flow_kg_h=liquid_flow * orifice_area / liquid_area, liquid=liquid, **pipe)
+
+
+def thermal_relief_discharge(inputs, result, name, *, atm):
+    """The thermal relief valve's outlet pipe, carrying the liquid capacity of its orifice at the relieving pressure
+    (the process side's design pressure plus 10 %)."""
+    if discharge_diameter(result, name, inputs.thermal_discharge_size, inputs.thermal_discharge_length, None,
+                          THERMAL_KEYS) is None:
+        return
+    set_pressure = inputs.process_side_design_pressure
+    p_r = relieving_pressure(set_pressure, atm, result, "thermal_relief", name)
+    saturation = SteamState.from_p_dryness(p_r, 0.0).temperature
+    liquid = SteamState.from_pT(p_r, min(inputs.process_outlet_temperature, saturation - 1.0))
+    area = dict(API526_AREAS_IN2)[THERMAL_ORIFICE] * MM2_PER_IN2
+    if liquid.temperature > SteamState.from_p_dryness(atm, 0.0).temperature:
+        # Hot liquid flashes in the nozzle: its flux by direct integration on IF97 (API 520 Part I annex B).
+        flux = isentropic_flux(liquid, atm).mass_flux
+        rated = KD_SUBCOOLED * area * 1e-6 * flux * 3600.0
+        result.work(f"{name}: flashing-liquid capacity of the valve ({THERMAL_ORIFICE} orifice)",
+                    "W = Kd·A·G, G by direct integration of the isentrope on IF97  [API 520 Part I annexes B and C]",
+                    "Kd*A*G", rated, "kg/h", Kd=(KD_SUBCOOLED, ""), A=(area, "mm**2"), G=(flux, "kg/(m**2*s)"))
+    else:
+        rated = KD_LIQUID * area * 1e-6 * math.sqrt(2.0 * liquid.density * (p_r - atm)) * 3600.0
+        result.work(f"{name}: liquid capacity of the valve ({THERMAL_ORIFICE} orifice)",
+                    "W = Kd·A·√(2ρ(P1 − p_atm))  [API 520 Part I liquid equation, Kw = Kv = 1]",
+                    "Kd*A*sqrt(2*rho*(P1 - p_atm))", rated, "kg/h", Kd=(KD_LIQUID, ""), A=(area, "mm**2"),
+                    rho=(liquid.density, "kg/m**3"), P1=(p_r / 1e5, "bar"), p_atm=(atm / 1e5, "bar"))
+    result.assumptions.append(f"{name}: the valve's outlet pipe carries the capacity of an API 526 "
+                              f"{THERMAL_ORIFICE} orifice at the relieving pressure, far above the expansion flow: "
+                              "the valve may open fully (common practice)")
+    liquid_discharge_section(result, "thermal_relief", name, valve_type="conventional", set_pressure=set_pressure,
+                             atm=atm, rated_flow_kg_h=rated, liquid=liquid, size=inputs.thermal_discharge_size,
+                             length=inputs.thermal_discharge_length, fittings_k=inputs.thermal_discharge_fittings_k,
+                             keys=THERMAL_KEYS)
+
+
+def liquid_discharge_section(result, prefix, name, *, valve_type, set_pressure, atm, rated_flow_kg_h, liquid, size,
+                             length, fittings_k, keys):
+    """Built-up back pressure of a liquid discharge against the valve's limit, and the reaction force.
+
+    Liquid hotter than its boiling point at the atmosphere flashes in the pipe: it goes to
+    :func:`steamcalc.calcs.overpressure.two_phase_discharge_section` with its relieving state.
+    """
+    if liquid.temperature > SteamState.from_p_dryness(atm, 0.0).temperature:
+        result.assumptions.append(f"{name}: the liquid ({liquid.temperature - 273.15:.1f} °C) boils at the "
+                                  "atmosphere: it flashes in the discharge pipe once below its saturation pressure, "
+                                  "and is taken as a homogeneous two-phase mixture from there")
+        two_phase_discharge_section(result, prefix, name, valve_type=valve_type, set_pressure=set_pressure, atm=atm,
+                                    rated_flow_kg_h=rated_flow_kg_h, relieving=liquid, size=size, length=length,
+                                    fittings_k=fittings_k, keys=keys)
+        return
+    diameter = discharge_diameter(result, name, size, length, None, keys)
+    if diameter is None:
+        return
+    flow, fittings_k = rated_flow_kg_h / 3600.0, fittings_k or 0.0
+    # The liquid at the pipe: its density and viscosity at the atmosphere, the temperature held.
+    pipe = SteamState.from_pT(atm, liquid.temperature)
+    viscosity = dynamic_viscosity(pipe.temperature, pipe.density)
+    line = line_pressure_drop(flow, pipe.density, viscosity, diameter, length, fittings_k)
+    area = flow_area(diameter)
+    flux = flow / area
+    outlet = atm + line.pressure_drop
+    result.work(f"{name}: built-up back pressure (liquid)",
+                "p1 = p_atm + (f·L/D + ΣK)·G²/(2ρ), f by Colebrook  [Darcy-Weisbach, Crane TP-410]",
+                "p_atm + (f*L/D + K)*G**2/(2*rho)", outlet / 1e5, "bar", p_atm=(atm / 1e5, "bar"),
+                f=(line.friction_factor, ""), L=(length, "m"), D=(diameter * 1e3, "mm"), K=(fittings_k, ""),
+                G=(flux, "kg/(m**2*s)"), rho=(pipe.density, "kg/m**3"))
+    result.add(f"{prefix}_built_up_back_pressure", f"{name}: built-up back pressure at the valve outlet",
+               outlet / 1e5, "bar")
+    share = 100.0 * (outlet - atm) / (set_pressure - atm)
+    result.work(f"{name}: built-up back pressure, of the gauge set pressure", "share = (p1 − p_atm) / (p_set − p_atm)",
+                "(p1 - p_atm)/(p_set - p_atm)", share, "percent", p1=(outlet / 1e5, "bar"), p_atm=(atm / 1e5, "bar"),
+                p_set=(set_pressure / 1e5, "bar"))
+    result.add(f"{prefix}_built_up_back_pressure_fraction", f"{name}: built-up back pressure, of the gauge set "
+               "pressure", share, "percent")
+    back_pressure_check(result, name, valve_type, outlet, set_pressure, atm)
+    force = flux * flux * area / pipe.density
+    result.work(f"{name}: reaction force at the discharge (liquid)",
+                "F = G²·A/ρ  [momentum at the open exit, API 520 Part II, 4.4.1.1]", "G**2*A/rho", force, "N",
+                G=(flux, "kg/(m**2*s)"), A=(area * 1e6, "mm**2"), rho=(pipe.density, "kg/m**3"))
+    result.add(f"{prefix}_reaction_force", f"{name}: reaction force at the open discharge", force, "N")

@@ -1,0 +1,45 @@
+"""The demo main SM-01 says what the issue's demo is (the return from HX-01's trap and the drip traps to FL-01's
+vessel), and the figures it takes from common practice are marked so in its record."""
+
+from pathlib import Path
+
+import pytest
+
+from steamcalc.cases.site import case_site, load_case
+from steamcalc.records.build import record_for_case
+
+CASES = Path(__file__).resolve().parent.parent / "workbooks" / "demo_site" / "cases"
+
+
+@pytest.fixture(scope="module")
+def record():
+    case = load_case(CASES / "SM-01.toml")
+    return record_for_case(case, case_site(case), with_uncertainty=False)[0]
+
+
+def test_the_demo_return_runs_from_the_heaters_and_drip_traps_to_the_flash_vessel(record):
+    note = next(a for a in record["assumptions"] if "return line" in a)
+    assert note.startswith("Engineer's note: ") and "HX-01's trap" in note and "drip traps" in note
+    assert "FL-01's flash vessel" in note
+    assert "CIP water heater" in record["title"] and "flash vessel" in record["title"]
+
+
+def test_limits_left_at_their_defaults_are_marked_common_practice(record):
+    """SM-01 gives no velocity limit and no return-line drop limit: the checks against them say common practice."""
+    assert record["inputs"]["velocity_limit"]["given"] == "(default)"
+    assert record["inputs"]["return_drop_limit"]["given"] == "(default)"
+    sources = {c["name"]: c.get("source", "") for c in record["checks"]}
+    for name in ("Segment 1: steam velocity", "Segment 3: steam velocity", "Return line friction drop"):
+        assert sources[name].startswith("common practice"), (name, sources[name])
+    for name in ("Segment 1: jacket touch temperature", "Main pressure drop per 100 m",
+                 "Return line homogeneous velocity"):
+        assert sources[name] == "common practice", name
+    labels = [r["label"] for r in record["results"].values()]
+    assert "Drip leg 1: pocket size and depth (common practice)" in labels
+    assert "Drip trap types to consider (common practice)" in labels
+    # A limit the case gives is the input's, not common practice.
+    case = load_case(CASES / "SM-01.toml")
+    case.inputs["velocity_limit"] = "30 m/s"
+    given = record_for_case(case, case_site(case), with_uncertainty=False)[0]
+    assert {c["name"]: c.get("source") for c in given["checks"]}["Segment 1: steam velocity"] == \
+        "the input velocity limit"
