@@ -148,7 +148,7 @@ def us_label(label):
 #: takes the start of ``m/s``. A pressure keeps its basis: gauge stays gauge.
 _TEXT_UNITS = [
     ("kJ/(kg·K)", "kJ/(kg*K)"), ("kW/(m²·K)", "kW/(m**2*K)"), ("m²·K/kW", "m**2*K/kW"), ("kg/(m² s)", "kg/(m**2*s)"),
-    ("kg/(m²·s)", "kg/(m**2*s)"), ("bar difference", "bar~d"), ("kPa difference", "kPa~d"), ("bar(a)", "bar~a"),
+    ("kg/(m²·s)", "kg/(m**2*s)"), ("bar difference per 100 m", "bar_per_100m"), ("bar difference", "bar~d"), ("kPa difference", "kPa~d"), ("bar(a)", "bar~a"),
     ("bar(g)", "bar~g"), ("kPa(a)", "kPa~a"), ("kPa(g)", "kPa~g"), ("kg/m³", "kg/m**3"), ("m³/s", "m**3/s"),
     ("m³/h", "m**3/h"), ("kJ/kg", "kJ/kg"), ("kg/h", "kg/h"), ("kg/s", "kg/s"), ("kW/K", "kW/K"),
     ("W/(m·K)", "W/(m*K)"), ("W/m", "W/m"), ("m/s", "m/s"),
@@ -200,6 +200,8 @@ def us_text(text):
     'x = (224.27 − 50.65) psia / 224.27 psia'
     >>> us_text("T3 = 138.78 °C + 10.00 K in DN80")
     'T3 = 281.80 °F + 18.00 °F in NPS 3'
+    >>> us_text("limit 0.5 bar difference per 100 m (common practice)")
+    'limit 2.2 psi difference per 100 ft (common practice)'
     """
     if not isinstance(text, str):
         return text
@@ -562,7 +564,7 @@ def verify_table(comparisons, record=None, relative_tolerance=1e-6, absolute_tol
 
 #: Units as tables and headings write them that :data:`_TEXT_UNITS` does not list, and their pint names.
 _WRITTEN_EXTRA = {"%": "percent", "dB(A)": "dB", "°F": "degF", "psia": "psi~a", "psig": "psi~g",
-                  "psi difference": "psi~d", "kJ/(kg·K)": "kJ/(kg*K)"}
+                  "psi difference": "psi~d", "kJ/(kg·K)": "kJ/(kg*K)", "psi difference per 100 ft": "psi_per_100ft"}
 _BASIS_WORDS = {"a": "absolute", "g": "gauge", "d": "difference"}
 
 

@@ -20,7 +20,7 @@ US_UNITS = {
     "kW/K": "Btu/(h*delta_degF)", "kW/(m**2*K)": "Btu/(h*ft**2*delta_degF)", "kJ/(kg*K)": "Btu/(lb*delta_degF)",
     "t": "short_ton", "kg/m**3": "lb/ft**3", "m**2*K/kW": "h*ft**2*delta_degF/Btu", "m**3/h": "gallon/minute",
     "m**3/s": "ft**3/s", "N": "lbf", "kg/(m**2*s)": "lb/(ft**2*s)", "Pa": "lb/(ft*s**2)",
-    "W/m": "Btu/(h*ft)", "W/(m*K)": "Btu/(h*ft*delta_degF)", "MWh": "MMBtu",
+    "W/m": "Btu/(h*ft)", "W/(m*K)": "Btu/(h*ft*delta_degF)", "MWh": "MMBtu", "bar_per_100m": "psi_per_100ft",
 }
 
 #: A unit as people write it, for units whose written form is not the pint name made typographic.
@@ -31,6 +31,8 @@ _UNIT_WORDS = {
     "Btu/(lb*delta_degF)": "Btu/(lb·°F)", "h*ft**2*delta_degF/Btu": "h·ft²·°F/Btu", "lb/(ft*s**2)": "lb/(ft·s²)",
     "kg/(m**2*s)": "kg/(m²·s)", "lb/(ft**2*s)": "lb/(ft²·s)", "Btu/(h*ft)": "Btu/(h·ft)",
     "Btu/(h*ft*delta_degF)": "Btu/(h·ft·°F)",
+    # A line's pressure gradient: a pressure difference per length of pipe, so it carries the difference basis.
+    "bar_per_100m": "bar difference per 100 m", "psi_per_100ft": "psi difference per 100 ft",
     # Every sound level steamcalc records is an A-weighted sound pressure level (IEC 60534-8-3's L_pAe; limits are
     # read only as dB(A)). pint has no A-weighting, so records keep "dB" and every view writes dB(A).
     "dB": "dB(A)",
@@ -60,8 +62,8 @@ def unit_label(unit, basis="absolute"):
     ('bar(a)', 'psia', 'bar difference')
     >>> unit_label("m**3/h"), unit_label("percent"), unit_label("kW/(m**2*K)"), unit_label("delta_degF")
     ('m³/h', '%', 'kW/(m²·K)', '°F')
-    >>> unit_label("dB")
-    'dB(A)'
+    >>> unit_label("dB"), unit_label("bar_per_100m"), unit_label("psi_per_100ft")
+    ('dB(A)', 'bar difference per 100 m', 'psi difference per 100 ft')
     """
     if unit is None:
         return ""

@@ -20,6 +20,11 @@ from ..errors import UnitError
 ureg = pint.UnitRegistry()
 # A million Btu: the unit US plants buy fuel in (the Btu as pint defines it, the International Table Btu).
 ureg.define("MMBtu = 1e6 * Btu")
+# A line's pressure gradient as the trade states it: a pressure difference per 100 m of pipe (SI records), per
+# 100 ft (US views). Units of their own, so that a gradient converts as one quantity, never as a pressure
+# beside a length written in words.
+ureg.define("bar_per_100m = bar / (100 * meter)")
+ureg.define("psi_per_100ft = psi / (100 * foot)")
 Q_ = ureg.Quantity
 
 #: Standard atmosphere at sea level, Pa (ISO 2533:1975).
@@ -47,6 +52,7 @@ SI_UNITS = {
     "volume_flow": "m**3/s",
     "density": "kg/m**3",
     "time": "s",
+    "pressure_gradient": "Pa/m",
     "dimensionless": "",
 }
 
@@ -70,6 +76,7 @@ RECORD_UNITS = {
     "volume_flow": "m**3/h",
     "density": "kg/m**3",
     "time": "min",
+    "pressure_gradient": "bar_per_100m",
     "dimensionless": "",
 }
 

@@ -11,11 +11,12 @@ from ...equipment.line_loss import COMPRESSIBLE_FRACTION, DROP_LIMIT_PER_100M
 from ...equipment.piping import pipe_inner_diameter
 from ...properties.steam import SteamState
 from ...units.amounts import Amount, Phrase
+from ...units.quantities import RECORD_UNITS, to_record_unit
 from .equipment import DEFAULT_SCHEDULE, case_inlet_pressure, flow_cases, line_drop, relief_set_pressure
 
 
 def line_loss_section(inputs, result):
-    """Inlet and outlet line pressure drops at the maximum flow, and per 100 m."""
+    """Inlet and outlet line pressure drops at the maximum flow, and their gradients (per 100 m of line)."""
     schedule = inputs.schedule or DEFAULT_SCHEDULE
     case = "maximum" if inputs.max_flow is not None else "normal"
     flow = dict(flow_cases(inputs))[case]
@@ -38,7 +39,6 @@ def line_loss_section(inputs, result):
     for key, label, state, mass_flow, size, length, k in lines:
         field = f"lines.{key}_size"
         loss = line_drop(state, mass_flow, size, schedule, length, k, field)
-        per_100m = loss.pressure_drop * 100.0 / length
         # f comes from Colebrook's implicit equation (an operand); the Darcy–Weisbach product is the arithmetic.
         result.work(f"{label} pressure drop",
                     "Δp = (f·L/D + ΣK)·ρv²/2, 1/√f = −2 log10(ε/(3.7D) + 2.51/(Re√f))",
@@ -46,7 +46,8 @@ def line_loss_section(inputs, result):
                     L=(length, "m"), D=(1000 * pipe_inner_diameter(size, schedule, field=field), "mm"),
                     sum_K=(k or 0.0, ""), rho=(state.density, "kg/m**3"), v=(loss.velocity, "m/s"))
         result.add(f"{key}_line_pressure_drop", f"{label} pressure drop ({case} flow)", loss.pressure_drop / 1e5, "bar")
-        result.add(f"{key}_line_pressure_drop_per_100m", f"{label} pressure drop per 100 m", per_100m / 1e5, "bar")
+        gradient = _gradient(loss.pressure_drop / length)
+        result.add(f"{key}_line_pressure_drop_per_100m", f"{label} pressure gradient", gradient.value, gradient.unit)
         _line_drop_check(label, size, state.pressure, loss.pressure_drop, length, result)
 
 
@@ -54,22 +55,28 @@ def _bar_difference(pascals):
     return Amount(pascals / 1e5, "bar", "difference")
 
 
+def _gradient(pascals_per_metre):
+    """A line's pressure gradient (Pa/m) as the record keeps it: bar difference per 100 m, a unit of its own
+    that views convert by pint (psi difference per 100 ft)."""
+    return Amount(to_record_unit(pascals_per_metre, "pressure_gradient"), RECORD_UNITS["pressure_gradient"])
+
+
 def _line_drop_check(label, size, pressure, drop, length, result):
     """The line's drop against the two limits on it: a tenth of the line's pressure, beyond which the
     incompressible form understates it, and the gradient limit over the line's length (common practice)."""
     loss, valid_up_to = _bar_difference(drop), _bar_difference(COMPRESSIBLE_FRACTION * pressure)
     over_length = _bar_difference(DROP_LIMIT_PER_100M * length / 100.0)
-    per_100m, gradient_limit = _bar_difference(drop * 100.0 / length), _bar_difference(DROP_LIMIT_PER_100M)
+    gradient, gradient_limit = _gradient(drop / length), _gradient(DROP_LIMIT_PER_100M / 100.0)
     if drop > COMPRESSIBLE_FRACTION * pressure:
         detail = Phrase.of(f"{{loss:.3f}} is over {100 * COMPRESSIBLE_FRACTION:g} % of {{pressure:.4g}}: the "
                            "incompressible Darcy–Weisbach form understates it; enlarge the line",
                            loss=loss, pressure=Amount(pressure / 1e5, "bar"))
     elif drop * 100.0 / length > DROP_LIMIT_PER_100M:
-        detail = Phrase.of(f"{{per_100m:.2f}} per 100 m in {size} exceeds {{limit:g}} (common practice): consider "
-                           "the next size up", per_100m=per_100m, limit=gradient_limit)
+        detail = Phrase.of(f"{{gradient:.2f}} in {size} exceeds {{limit:g}} (common practice): consider "
+                           "the next size up", gradient=gradient, limit=gradient_limit)
     else:
-        detail = Phrase.of("{loss:.3f}, {per_100m:.2f} per 100 m (limit {limit:g}, common practice)",
-                           loss=loss, per_100m=per_100m, limit=gradient_limit)
+        detail = Phrase.of("{loss:.3f}, {gradient:.2f} (limit {limit:g}, common practice)",
+                           loss=loss, gradient=gradient, limit=gradient_limit)
     result.check_limit(f"{label} pressure drop", loss, [("<=", valid_up_to, "warn"), ("<=", over_length, "warn")],
                        detail, source="common practice")
 

@@ -37,7 +37,7 @@ def letdown_sections(inputs, result):
             continue
         row = {"line": label, "size": size}
         for name, heading, unit in (("velocity", "velocity", "m/s"), ("line_pressure_drop", "pressure drop", "bar difference"),
-                                    ("line_pressure_drop_per_100m", "per 100 m", "bar difference")):
+                                    ("line_pressure_drop_per_100m", "pressure gradient", "bar difference per 100 m")):
             if f"{key}_{name}" in result.values:
                 row[f"{heading}, {unit}"] = result.value(f"{key}_{name}")
         lines.append(row)

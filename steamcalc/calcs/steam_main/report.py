@@ -95,10 +95,12 @@ def report_main(inputs, site, supply, result):
     if last.outlet.dryness is not None:
         result.add("main_outlet_dryness", "Dryness at the user", last.outlet.dryness)
     result.add("main_max_velocity", "Highest velocity in the main", max(f.velocity for f in flows), "m/s")
-    per_100 = drop / length * 100.0
-    result.check_limit("Main pressure drop per 100 m", (per_100 / 1e5, "bar"),
-                       [("<=", (DROP_LIMIT_PER_100M / 1e5, "bar"), "warn")],
-                       "steam mains are commonly sized for a pressure drop of no more than 0.5 bar difference in each 100 m", source="common practice")
+    # The gradient and its limit in a unit of their own (bar difference per 100 m, psi difference per 100 ft in US
+    # views); 1 Pa/m = 10⁻³ bar difference per 100 m.
+    gradient, gradient_limit = (drop / length / 1e3, "bar_per_100m"), (DROP_LIMIT_PER_100M / 1e5, "bar_per_100m")
+    result.check_limit("Main pressure gradient", gradient, [("<=", gradient_limit, "warn")],
+                       Phrase.of("{gradient:.2g}; steam mains are commonly sized for a pressure gradient of no more "
+                                 "than {limit:g}", gradient=gradient, limit=gradient_limit), source="common practice")
     needed = size_needed(inputs.steam_flow, supply, inputs.main_segments[0].schedule, inputs.velocity_limit,
                          DROP_LIMIT_PER_100M)
     if needed is None:
