@@ -186,3 +186,27 @@ def test_demo_cases_show_the_overpressure_sections(case_id, calculate, expected)
     for key, value in expected.items():
         assert result.value(key) == value
     assert any("certified two-phase capacity" in c for c in result.cautions)
+
+
+@pytest.mark.parametrize("text, per_kelvin, source", [
+    ("700 ppm/K", 7.0e-4, "1 ppm = 1e-6 (SI Brochure, 9th ed.)"),
+    ("389 ppm/°F", 389e-6 * 1.8, "1 °F difference = 5/9 K (NIST SP 811, B.9)"),
+    ("0.07 %/K", 7.0e-4, "1 % = 1e-2"),
+])
+def test_expansion_coefficient_is_a_quantity_with_its_unit(text, per_kelvin, source):
+    """The process liquid's expansion coefficient is typed with its unit, like every other quantity."""
+    from steamcalc.calcs.base import input_fields
+    from steamcalc.units.quantities import parse_quantity
+
+    kind = next(f.metadata["kind"] for f in input_fields(HeaterInputs) if f.name == "process_expansion_coefficient")
+    assert kind == "expansion_coefficient"
+    assert parse_quantity(text, "overpressure.expansion_coefficient", kind) == pytest.approx(per_kelvin, rel=1e-12)
+
+
+def test_expansion_coefficient_without_a_unit_is_refused_with_the_fix():
+    from steamcalc.errors import UnitError
+    from steamcalc.units.quantities import parse_quantity
+
+    with pytest.raises(UnitError) as caught:
+        parse_quantity("0.0007", "overpressure.expansion_coefficient", "expansion_coefficient")
+    assert caught.value.field == "overpressure.expansion_coefficient" and "ppm/K" in caught.value.fix

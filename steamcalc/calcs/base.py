@@ -44,7 +44,7 @@ def full_record_wanted():
 INPUT_KINDS = ("pressure", "pressure_difference", "length", "temperature", "temperature_difference", "mass_flow",
                "velocity", "flow_coefficient", "specific_heat", "heat_transfer_coefficient", "fouling_resistance", "area",
                "volume_flow", "density", "time", "fraction", "number", "flag", "nominal_size", "text", "pressure_list",
-               "dimensionless", "thermal_conductivity", "rows")
+               "dimensionless", "thermal_conductivity", "rows", "expansion_coefficient")
 _PLAIN_KINDS = ("fraction", "number", "flag", "nominal_size", "text")
 _RAW_KINDS = ("flag", "nominal_size", "text")
 

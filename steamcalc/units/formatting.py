@@ -30,7 +30,7 @@ _UNIT_WORDS = {
     "Btu/(h*delta_degF)": "Btu/(h·°F)", "Btu/(h*ft**2*delta_degF)": "Btu/(h·ft²·°F)",
     "Btu/(lb*delta_degF)": "Btu/(lb·°F)", "h*ft**2*delta_degF/Btu": "h·ft²·°F/Btu", "lb/(ft*s**2)": "lb/(ft·s²)",
     "kg/(m**2*s)": "kg/(m²·s)", "lb/(ft**2*s)": "lb/(ft²·s)", "Btu/(h*ft)": "Btu/(h·ft)",
-    "Btu/(h*ft*delta_degF)": "Btu/(h·ft·°F)",
+    "Btu/(h*ft*delta_degF)": "Btu/(h·ft·°F)", "1/delta_degF": "1/°F",
     # A line's pressure gradient: a pressure difference per length of pipe, so it carries the difference basis.
     "bar_per_100m": "bar difference per 100 m", "psi_per_100ft": "psi difference per 100 ft",
     # Every sound level steamcalc records is an A-weighted sound pressure level (IEC 60534-8-3's L_pAe; limits are

@@ -53,6 +53,7 @@ SI_UNITS = {
     "density": "kg/m**3",
     "time": "s",
     "pressure_gradient": "Pa/m",
+    "expansion_coefficient": "1/K",
     "dimensionless": "",
 }
 
@@ -77,6 +78,7 @@ RECORD_UNITS = {
     "density": "kg/m**3",
     "time": "min",
     "pressure_gradient": "bar_per_100m",
+    "expansion_coefficient": "1/K",
     "dimensionless": "",
 }
 
@@ -105,6 +107,8 @@ QUANTITY_BOUNDS = {
     "dimensionless": (1e-12, 1e6),
     "temperature": (1e-3, 1e4),
     "time": (1e-3, 1e7),
+    # liquids' cubic expansion coefficients run from ~1e-4 (water near 20 °C) to ~2e-3 1/K (light solvents)
+    "expansion_coefficient": (1e-7, 0.1),
 }
 
 #: Examples in error messages and placeholders, in the spelling people write (all of them are read).
@@ -126,6 +130,7 @@ _EXAMPLES = {
     "volume_flow": "'12 m³/h'",
     "density": "'1030 kg/m³'",
     "time": "'1 min' or '60 s'",
+    "expansion_coefficient": "'700 ppm/K'",
 }
 
 _NUMBER = r"[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?"

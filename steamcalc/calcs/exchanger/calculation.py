@@ -203,8 +203,9 @@ class Inputs:
         "length", "Shell inside diameter", "Bore of the heater's shell (checks the tube size against it).",
         example="273 mm", section="overpressure", positive=True)
     process_expansion_coefficient: float | None = input_field(
-        "number", "Cubic expansion coefficient of the process liquid, per K", "For thermal relief of a liquid other "
-        "than water (water's comes from IF97), in 1/K.", example="0.0007", section="overpressure",
+        "expansion_coefficient", "Cubic expansion coefficient of the process liquid", "For thermal relief of a "
+        "liquid other than water (water's comes from IF97): the maker's or a handbook's figure at the relieving "
+        "temperature, in ppm/K (e.g. '700 ppm/K').", example="700 ppm/K", section="overpressure",
         key="expansion_coefficient")
     relief_valve_type: str | None = input_field(
         "text", "Tube-rupture relief valve type", "conventional, balanced-bellows or pilot; conventional when not "
