@@ -210,3 +210,31 @@ def test_expansion_coefficient_without_a_unit_is_refused_with_the_fix():
     with pytest.raises(UnitError) as caught:
         parse_quantity("0.0007", "overpressure.expansion_coefficient", "expansion_coefficient")
     assert caught.value.field == "overpressure.expansion_coefficient" and "ppm/K" in caught.value.fix
+
+
+def test_a_heater_record_with_its_liquids_expansion_coefficient_issues_and_verifies(tmp_path):
+    """Run from a case file with a liquid other than water: the coefficient is kept in ppm/K, shown in ppm/°F on
+    a US view (1 K = 1.8 °F difference, NIST SP 811), and the record verifies."""
+    import json
+    import shutil
+    from pathlib import Path
+
+    from steamcalc.cli import main
+    from steamcalc.render.report import render_markdown
+
+    demo = Path(__file__).resolve().parents[1] / "workbooks" / "demo_site"
+    shutil.copy(demo / "site.toml", tmp_path / "site.toml")
+    (tmp_path / "cases").mkdir()
+    text = (demo / "cases" / "HX-01.toml").read_text(encoding="utf-8")
+    text = text.replace('id = "HX-01"', 'id = "HX-09"').replace(
+        'process_fluid = "water"', 'process_cp = "2.1 kJ/(kg·K)"\nprocess_density = "850 kg/m³"')
+    text = text.replace("[inputs.overpressure]\n", '[inputs.overpressure]\nexpansion_coefficient = "900 ppm/K"\n')
+    (tmp_path / "cases" / "HX-09.toml").write_text(text, encoding="utf-8")
+    assert main(["run", str(tmp_path / "cases" / "HX-09.toml")]) in (0, 1)
+    path = next((tmp_path / "records").glob("HX-09_rev*.json"))
+    record = json.loads(path.read_text(encoding="utf-8"))
+    assert record["inputs"]["process_expansion_coefficient"]["value"] == pytest.approx(900.0)
+    assert record["inputs"]["process_expansion_coefficient"]["unit"] == "ppm/K"
+    assert main(["verify", str(path)]) == 0
+    record["site"]["display_units"] = "US"
+    assert "| 500 | ppm/°F |" in render_markdown(record)

@@ -21,6 +21,7 @@ US_UNITS = {
     "t": "short_ton", "kg/m**3": "lb/ft**3", "m**2*K/kW": "h*ft**2*delta_degF/Btu", "m**3/h": "gallon/minute",
     "m**3/s": "ft**3/s", "N": "lbf", "kg/(m**2*s)": "lb/(ft**2*s)", "Pa": "lb/(ft*s**2)",
     "W/m": "Btu/(h*ft)", "W/(m*K)": "Btu/(h*ft*delta_degF)", "MWh": "MMBtu", "bar_per_100m": "psi_per_100ft",
+    "ppm/K": "ppm/delta_degF",
 }
 
 #: A unit as people write it, for units whose written form is not the pint name made typographic.
@@ -30,7 +31,7 @@ _UNIT_WORDS = {
     "Btu/(h*delta_degF)": "Btu/(h·°F)", "Btu/(h*ft**2*delta_degF)": "Btu/(h·ft²·°F)",
     "Btu/(lb*delta_degF)": "Btu/(lb·°F)", "h*ft**2*delta_degF/Btu": "h·ft²·°F/Btu", "lb/(ft*s**2)": "lb/(ft·s²)",
     "kg/(m**2*s)": "kg/(m²·s)", "lb/(ft**2*s)": "lb/(ft²·s)", "Btu/(h*ft)": "Btu/(h·ft)",
-    "Btu/(h*ft*delta_degF)": "Btu/(h·ft·°F)", "1/delta_degF": "1/°F",
+    "Btu/(h*ft*delta_degF)": "Btu/(h·ft·°F)", "ppm/delta_degF": "ppm/°F",
     # A line's pressure gradient: a pressure difference per length of pipe, so it carries the difference basis.
     "bar_per_100m": "bar difference per 100 m", "psi_per_100ft": "psi difference per 100 ft",
     # Every sound level steamcalc records is an A-weighted sound pressure level (IEC 60534-8-3's L_pAe; limits are

@@ -78,7 +78,7 @@ RECORD_UNITS = {
     "density": "kg/m**3",
     "time": "min",
     "pressure_gradient": "bar_per_100m",
-    "expansion_coefficient": "1/K",
+    "expansion_coefficient": "ppm/K",
     "dimensionless": "",
 }
 
