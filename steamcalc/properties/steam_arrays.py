@@ -82,18 +82,41 @@ def _refuse_outside(name, values, low, high, scale, unit, where):
                               limits=(float(low_i / scale), float(high_i / scale), unit))
 
 
-def _states_from_p_and(pressure, value, key, name, unit):
+#: Below this pressure (Pa; T_s 7 degC) a state between its saturated liquid and vapour is still held to the 0 degC end
+#: of the range; above it h_f (s_f) lies clear of h (s) at 0 degC: 29 kJ/kg (0.1 kJ/(kg K)) or more.
+_TRIPLE_NEIGHBOURHOOD = 1000.0
+
+
+def _refuse_outside_range(p, p_mpa, v_kj, oid, name, unit, proven_low, proven_high):
+    """Refuse a value outside IF97's range at its pressure: from h (s) at 0 degC up to h (s) at 800 degC.
+
+    A bound is evaluated only where the value is not already known within it: h and s rise with temperature at a
+    given pressure, so a value between the saturated liquid's and the saturated vapour's (``proven_low``,
+    ``proven_high``: each row's side that holds) is above the 0 degC end and below the 800 degC end. The refusal, when
+    there is one, names the same row with the same limits as the bounds evaluated everywhere.
+    """
+    where = "IF97 regions 1-4 at its pressure (0 degC to 800 degC)"
+    low, high = np.full(p.size, -np.inf), np.full(p.size, np.inf)
+    need_low, need_high = ~proven_low, ~proven_high
+    if need_low.any():
+        low[need_low] = _each(_if97.pt, p_mpa[need_low].tolist(), MIN_TEMPERATURE - 273.15, oid)
+    if need_high.any():
+        high[need_high] = _each(_if97.pt, p_mpa[need_high].tolist(), MAX_TEMPERATURE - 273.15, oid)
+    if not ((v_kj >= low) & (v_kj <= high)).all():
+        # Both bounds of every row, as the refusal quotes them.
+        p_all = p_mpa.tolist()
+        _refuse_outside(name, v_kj, _each(_if97.pt, p_all, MIN_TEMPERATURE - 273.15, oid),
+                        _each(_if97.pt, p_all, MAX_TEMPERATURE - 273.15, oid), 1.0, unit, where)
+
+
+def _states_from_p_and(pressure, value, key, name, unit, saturation_temperature=None, other_wanted=True):
     p, v = np.broadcast_arrays(np.atleast_1d(np.asarray(pressure, dtype=float)),
                                np.atleast_1d(np.asarray(value, dtype=float)))
     p, v = p.astype(float).ravel(), v.astype(float).ravel()
     _refuse_outside("pressure", p, MIN_PRESSURE, MAX_PRESSURE, 1e5, "bar(a)",
                     "IF97 regions 1-3 (0.00611213 to 1000 bar(a))")
     oid, other_oid = (_H, _S) if key == "h" else (_S, _H)
-    p_mpa = (p / 1e6).tolist()
     v_kj = v / 1e3
-    low = _each(_if97.pt, p_mpa, MIN_TEMPERATURE - 273.15, oid)
-    high = _each(_if97.pt, p_mpa, MAX_TEMPERATURE - 273.15, oid)
-    _refuse_outside(name, v_kj, low, high, 1.0, unit, "IF97 regions 1-4 at its pressure (0 degC to 800 degC)")
     n = p.size
     temperature = np.empty(n)
     other = np.empty(n)
@@ -107,9 +130,15 @@ def _states_from_p_and(pressure, value, key, name, unit):
     vapour_v = np.full(n, -np.inf)
     if sub.any():
         p_sub = (p[sub] / 1e6).tolist()
-        t_sat[sub] = _each(_if97.px2t, p_sub, 0.0) + 273.15
+        if saturation_temperature is None:
+            t_sat[sub] = _each(_if97.px2t, p_sub, 0.0) + 273.15
+        else:   # the caller's, from saturation_temperatures() at these pressures: the same numbers
+            t_sat[sub] = np.broadcast_to(np.asarray(saturation_temperature, dtype=float), p.shape)[sub]
         liquid_v[sub] = _each(_if97.px, p_sub, 0.0, oid)
         vapour_v[sub] = _each(_if97.px, p_sub, 1.0, oid)
+    _refuse_outside_range(p, p / 1e6, v_kj, oid, name, unit,
+                          proven_low=sub & (v_kj >= liquid_v) & (p >= _TRIPLE_NEIGHBOURHOOD),
+                          proven_high=sub & (v_kj <= vapour_v))
     wet = sub & (v_kj >= liquid_v) & (v_kj <= vapour_v)
     single = ~wet & ~scalar
     if single.any():
@@ -140,7 +169,10 @@ def _states_from_p_and(pressure, value, key, name, unit):
         region3 |= (t > REGION13_TEMPERATURE) & (t <= 863.15) & (ps * 1e6 > boundary_23_pressure(t))
         index = np.flatnonzero(single)
         temperature[index] = t
-        other[index] = _each(_if97.pt, ps.tolist(), (t - 273.15).tolist(), other_oid) * 1e3
+        if other_wanted:
+            other[index] = _each(_if97.pt, ps.tolist(), (t - 273.15).tolist(), other_oid) * 1e3
+        else:
+            other[index] = np.nan
         vapour = single.copy()
         vapour[index] = (ps * 1e6 <= CRITICAL_PRESSURE) & (t > ts)
         phase[vapour & single] = SUPERHEATED_VAPOUR
@@ -168,13 +200,18 @@ def _states_from_p_and(pressure, value, key, name, unit):
                        dryness=dryness, phase=phase)
 
 
-def states_ph(pressure, enthalpy):
+def states_ph(pressure, enthalpy, *, saturation_temperature=None, with_entropy=True):
     """States over arrays of absolute pressure (Pa) and specific enthalpy (J/kg).
 
     Parameters
     ----------
     pressure, enthalpy : array_like
         Broadcast together; pressure Pa (absolute), enthalpy J/kg.
+    saturation_temperature : array_like, optional
+        :func:`saturation_temperatures` of ``pressure`` (K), when the caller has it already: not evaluated again.
+    with_entropy : bool
+        False when the caller needs no entropy: single-phase states then hold NaN for it, and are solved without
+        that last evaluation.
 
     Returns
     -------
@@ -192,11 +229,13 @@ def states_ph(pressure, enthalpy):
     >>> [round(float(x), 4) for x in s.dryness], [int(c) for c in s.phase]
     ([0.701, 1.0], [2, 4])
     """
-    return _states_from_p_and(pressure, enthalpy, "h", "enthalpy", "kJ/kg")
+    return _states_from_p_and(pressure, enthalpy, "h", "enthalpy", "kJ/kg", saturation_temperature, with_entropy)
 
 
-def states_ps(pressure, entropy):
+def states_ps(pressure, entropy, *, saturation_temperature=None):
     """States over arrays of absolute pressure (Pa) and specific entropy (J/(kg K)).
+
+    ``saturation_temperature`` as for :func:`states_ph`.
 
     References
     ----------
@@ -209,7 +248,7 @@ def states_ps(pressure, entropy):
     >>> round(float(s.dryness[0]), 3)
     0.941
     """
-    return _states_from_p_and(pressure, entropy, "s", "entropy", "kJ/(kg K)")
+    return _states_from_p_and(pressure, entropy, "s", "entropy", "kJ/(kg K)", saturation_temperature)
 
 
 def saturation_arrays(pressure):

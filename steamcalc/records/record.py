@@ -126,10 +126,31 @@ def build_record(*, kind, case_id, revision, title, prepared_by, site, inputs_ta
     }
     if uncertainty is not None:
         record["uncertainty"] = uncertainty
-    record["content_digest"] = compute_content_digest(record)
-    record["digest"] = compute_digest(record)
+    record["content_digest"], record["digest"] = _both_digests(record)
     validate_record(record)
     return record
+
+
+def _both_digests(record):
+    """:func:`compute_content_digest` and then :func:`compute_digest` of a record being built, each section's
+    canonical text written once for both (the same text: canonical JSON of a table is its sorted keys' parts).
+
+    Examples
+    --------
+    >>> record = {"kind": "letdown", "created": "2026-01-01T00:00:00Z", "results": {"b": 1.5, "a": [1, "é"]}}
+    >>> content, whole = _both_digests(record)
+    >>> content == compute_content_digest(record), whole == compute_digest(dict(record, content_digest=content))
+    (True, True)
+    """
+    parts = {key: f"{canonical_json(key)}:{canonical_json(value)}" for key, value in record.items()
+             if key not in ("digest", "content_digest")}
+
+    def digest(keys):
+        return _sha256("{" + ",".join(parts[key] for key in sorted(keys)) + "}")
+
+    content = digest(key for key in parts if key not in _NOT_CONTENT)
+    parts["content_digest"] = f"{canonical_json('content_digest')}:{canonical_json(content)}"
+    return content, digest(parts)
 
 
 def record_stem(record):

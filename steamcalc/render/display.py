@@ -276,6 +276,8 @@ def _in_sentence(label):
 
 
 _E_NOTATION = re.compile(r"(?<![\w.])(\d+(?:\.\d+)?)[eE]([+-]?)(\d+)(?![\w.])")
+_E_HINT = re.compile(r"\d[eE]")   # what every e-notation number holds: a digit, then the e
+_CO2 = re.compile(r"\bCO2\b")
 _SUPERSCRIPT = str.maketrans("-0123456789", "⁻⁰¹²³⁴⁵⁶⁷⁸⁹")
 
 
@@ -300,7 +302,10 @@ def trade_text(text):
     """
     if not isinstance(text, str):
         return text
-    return _E_NOTATION.sub(_powers_of_ten, re.sub(r"\bCO2\b", "CO₂", text))
+    # Most texts hold neither: the cheap tests spare them both substitutions (this runs for every label shown).
+    if "CO2" in text:
+        text = _CO2.sub("CO₂", text)
+    return _E_NOTATION.sub(_powers_of_ten, text) if _E_HINT.search(text) else text
 
 
 def _show_entry(entry, key, calc, system, basis, label, equation="", trim=False):
@@ -381,17 +386,49 @@ def _show_uncertainty(section, record, calc, system, labels):
     section["coverage_shown"] = f"{coverage * 100:g}"
 
 
-def _plain_copy(value):
-    """A copy of JSON data (tables, lists, numbers, text): what deepcopy does for a record, without its memo."""
-    if isinstance(value, dict):
-        return {key: _plain_copy(item) for key, item in value.items()}
-    if isinstance(value, list):
-        return [_plain_copy(item) for item in value]
-    return value
+def _copied_entries(table):
+    """A table of entries (inputs, results, bands, tolerances) whose entries the display writes into: each entry a
+    new dict, its values shared (the display replaces them, never changes them in place)."""
+    if not isinstance(table, dict):
+        return table
+    return {key: dict(entry) if isinstance(entry, dict) else entry for key, entry in table.items()}
+
+
+def _shown_copy(record):
+    """The record's sections as :func:`display_record` writes into them: new dicts for what it writes (each input,
+    result, step with its value, check, and the uncertainty section with its bands and tolerances); everything it
+    only reads (provenance, cautions, references, figures, operands, signatures) shared with the record, unchanged."""
+    shown = dict(record)
+    for section in ("inputs", "results"):
+        if section in shown:
+            shown[section] = _copied_entries(shown[section])
+    if isinstance(shown.get("steps"), list):
+        shown["steps"] = [_shown_step(step) for step in shown["steps"]]
+    if isinstance(shown.get("checks"), list):
+        shown["checks"] = [dict(check) if isinstance(check, dict) else check for check in shown["checks"]]
+    if isinstance(shown.get("uncertainty"), dict):
+        section = shown["uncertainty"] = dict(shown["uncertainty"])
+        for part in ("bands", "tolerances"):
+            if part in section:
+                section[part] = _copied_entries(section[part])
+    return shown
+
+
+def _shown_step(step):
+    if not isinstance(step, dict):
+        return step
+    step = dict(step)
+    if isinstance(step.get("value"), dict):
+        step["value"] = dict(step["value"])
+    return step
 
 
 def display_record(record):
     """A copy of a record with every value ready to show: label, number text, unit text.
+
+    The copy has tables of its own where the display writes (inputs, results, steps, checks, the
+    uncertainty bands and tolerances); what it only reads (figure data, operands, provenance,
+    cautions) it shares with the record: treat the copy as read-only, as every view does.
 
     Each input and result gains ``label`` (the trade's words), ``shown`` (the number to the
     figures its quantity calls for; fractions the trade states in % in %; yes/no) and
@@ -404,8 +441,8 @@ def display_record(record):
     system = system if system in SYSTEMS else "SI"
     calc = _calculation(record)
     labels = _input_labels(calc)
-    # Figure data is drawn from the record as it stands (render.figure_spec): shared, not copied.
-    shown = {key: value if key == "figures" else _plain_copy(value) for key, value in record.items()}
+    # New dicts only where the display writes; what it only reads (figure data, operands, provenance) is shared.
+    shown = _shown_copy(record)
     differences = {"inputs": _difference_inputs(calc),
                    "results": set(getattr(calc, "PRESSURE_DIFFERENCE_RESULTS", ()))}
     for section in ("inputs", "results"):

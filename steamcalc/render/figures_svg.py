@@ -87,8 +87,7 @@ class _Axis:
         self.log = spec.get("type") == "log"
         self.title = _get(spec, "title", "text") or ""
         self.dtick = spec.get("dtick") if spec.get("tickmode") == "linear" else None
-        data = [self.transform(v) for v in values]
-        data = [v for v in data if v is not None and math.isfinite(v)]
+        data = [t for t in map(self.transform, values) if t is not None and math.isfinite(t)]
         if spec.get("range") is not None:
             self.low, self.high = float(spec["range"][0]), float(spec["range"][1])
         elif data:
@@ -109,8 +108,15 @@ class _Axis:
 
     def pixel(self, value):
         """Pixel position of a data value (None when it cannot be drawn on this axis)."""
-        t = self.transform(value)
-        if t is None or not math.isfinite(t):
+        # transform() written out: this runs for every point of every trace.
+        if value is None or isinstance(value, str):
+            return None
+        t = float(value)
+        if self.log:
+            if not t > 0:
+                return None
+            t = math.log10(t)
+        if not math.isfinite(t):
             return None
         return self.pixel_low + (t - self.low) / (self.high - self.low) * (self.pixel_high - self.pixel_low)
 
@@ -354,8 +360,10 @@ def _trace(trace, index, x_axis, y_axis, clip):
         for point in points + [(None, None)]:   # a point that cannot be drawn breaks the line
             if None in point:
                 if len(run) > 1:
+                    # Each coordinate as _f writes it: one decimal, and "-0.0" (only ever a whole number) as "0.0".
+                    points_text = " ".join(f"{a:.1f},{b:.1f}" for a, b in run).replace("-0.0", "0.0")
                     out.append(f'<polyline fill="none" stroke="{_esc(colour)}" stroke-width="{_line_width(trace):g}"'
-                               f'{_dash(trace)} points="{" ".join(f"{_f(a)},{_f(b)}" for a, b in run)}"/>')
+                               f'{_dash(trace)} points="{points_text}"/>')
                 run = []
             else:
                 run.append(point)

@@ -47,8 +47,12 @@ _PRESSURE_UNITS = {"bar": "bar", "psi": "psi", "kPa": "kPa", "MPa": "MPa"}
 CV_PER_KV = float(Q_(1.0, "m**3/h").to("gallon/minute").magnitude / math.sqrt(Q_(1.0, "bar").to("psi").magnitude))
 
 
+_CURRENCY = re.compile(r"[A-Z]{3}")
+
+
 def _currency(unit):
-    return isinstance(unit, str) and re.fullmatch(r"[A-Z]{3}", unit) is not None
+    # The length first: nearly every unit is not three letters long, and this runs for every number shown.
+    return isinstance(unit, str) and len(unit) == 3 and _CURRENCY.fullmatch(unit) is not None
 
 
 def unit_label(unit, basis="absolute"):

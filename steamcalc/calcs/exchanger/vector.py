@@ -168,7 +168,7 @@ def _steam_states(x, size):
         h, t = _supply_state(x, supply, size)
         throttled = p != supply
         if throttled.any():
-            state = states_ph(p[throttled], h[throttled])
+            state = states_ph(p[throttled], h[throttled], with_entropy=False)   # its temperature only
             t = t.copy()
             t[throttled] = state.temperature
     elif x["steam_temperature"] is not None or x["steam_superheat"] is not None:
@@ -270,7 +270,7 @@ def _zones(inputs, x, s, flow, duty, steam_side, steam_flow, water, kept, size):
         pressure, h_in = water
         out = np.full(size, np.nan)
         if kept.any():
-            out[kept] = states_ph(pressure[kept], h_in[kept] + heat[kept] / flow[kept]).temperature
+            out[kept] = states_ph(pressure[kept], h_in[kept] + heat[kept] / flow[kept], with_entropy=False).temperature
         return out
 
     t_a = process_temperature(q_sub * scale)

@@ -111,12 +111,12 @@ def sample_results(inputs, site, columns, size, keys):
     ([203.2, 203.66], [True, True, False])
     """
     x = _Sampled(inputs, {name: np.asarray(column, dtype=float) for name, column in columns.items()})
-    answered = _screen(x, size)
+    answered, t_sat2 = _screen(x, size)
     values = np.full((size, len(keys)), np.nan)
     rows = np.flatnonzero(answered)
     if rows.size:
         subset = _Sampled(inputs, {name: column[rows] for name, column in x._columns.items()})
-        results, kept = _results(subset, rows.size)
+        results, kept = _results(subset, rows.size, t_sat2[rows])
         for j, key in enumerate(keys):
             values[rows, j] = results[key]
         kept &= np.all(np.isfinite(values[rows]), axis=1)
@@ -159,7 +159,8 @@ def _inlet_steam_ok(x, t_sat, size):
 
 
 def _screen(x, size):
-    """Rows ``calculate()`` gives a result for (conservatively: some it would answer are left out)."""
+    """Rows ``calculate()`` gives a result for (conservatively: some it would answer are left out), and T_s (K) at
+    the outlet pressure of every row screened in."""
     p1, p2 = _full(x.inlet_pressure, size), _full(x.outlet_pressure, size)
     ok = (p2 < p1) & _subcritical(p1) & _subcritical(p2)
     t_sat2 = _saturation(p2, ok)
@@ -175,7 +176,7 @@ def _screen(x, size):
         ok &= (target - t_sat2 > SATURATION_TOLERANCE) & (target <= MAX_TEMPERATURE)
         ok &= (water_t < target) & (water_t >= MIN_TEMPERATURE) & (water_p > p2) & _subcritical(water_p)
         ok &= water_t < _saturation(water_p, ok) - SATURATION_TOLERANCE
-    return ok
+    return ok, t_sat2
 
 
 def _target_temperature(x, t_sat2, size):
@@ -197,13 +198,13 @@ def _inlet_properties(x, pressure, size, wanted=_INLET):
     return properties_pT(pressure, _inlet_temperature(x, t_sat, size), wanted)
 
 
-def _results(x, size):
-    """The banded results of screened rows, and the rows still answered (inlet lines that fit)."""
+def _results(x, size, t_sat2):
+    """The banded results of screened rows (``t_sat2``: T_s at their outlet pressure, K, as the screen found it),
+    and the rows still answered (inlet lines that fit)."""
     p1, p2, flow = _full(x.inlet_pressure, size), _full(x.outlet_pressure, size), _full(x.mass_flow, size)
     line = x.inlet_length is not None and x.inlet_size is not None
     inlet = _inlet_properties(x, p1, size, _INLET[:4] if line else _INLET)
-    t_sat2 = saturation_temperatures(p2)
-    throttled = states_ph(p2, inlet.enthalpy)
+    throttled = states_ph(p2, inlet.enthalpy, saturation_temperature=t_sat2, with_entropy=False)
     superheated = ~np.isin(throttled.phase, _TWO_PHASE)
     throttled_superheat = np.where(superheated, throttled.temperature - t_sat2, 0.0)
     results = {"throttled_temperature": throttled.temperature - 273.15}
@@ -221,7 +222,7 @@ def _results(x, size):
     results["outlet_superheat"] = outlet_superheat
     kv, kept = _valve_kv(x, inlet, p2, size, line)
     results["valve_kv"] = kv
-    isentropic = states_ps(p2, inlet.entropy)
+    isentropic = states_ps(p2, inlet.entropy, saturation_temperature=t_sat2)
     efficiency = _given_or(x.isentropic_efficiency, DEFAULT_TURBINE_EFFICIENCY)
     results["recoverable_power"] = flow * efficiency * (inlet.enthalpy - isentropic.enthalpy) / 1e3
     return results, kept
@@ -266,7 +267,7 @@ def _valve_inlet(x, upstream, pressure, drop, line):
         dryness = _full(x.inlet_dryness, pressure.size)
         return _ValveInlet(pressure, upstream.density), _two_phase_kappa(pressure, upstream.temperature, dryness)
     valve_p = pressure - drop
-    state = states_ph(valve_p, upstream.enthalpy)
+    state = states_ph(valve_p, upstream.enthalpy, with_entropy=False)   # its temperature, phase and dryness
     two_phase = np.isin(state.phase, _TWO_PHASE)
     density, kappa = np.empty(valve_p.size), np.empty(valve_p.size)
     single = ~two_phase

@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from functools import lru_cache
 
 from ...errors import NotConvergedError
 
@@ -73,9 +74,16 @@ def air_properties(temperature, pressure):
     >>> round(k, 5), round(nu * 1e6, 3), round(pr, 3)
     (0.02638, 15.75, 0.707)
     """
+    return _air_properties(float(temperature), float(pressure))
+
+
+@lru_cache(maxsize=4096)
+def _air_properties(temperature, pressure):
+    # Kept per process: iapws solves the air's density at each call (a few ms), and one line's balances and the
+    # economics and charts built on them ask again for the same film temperatures (184 asks, 63 distinct, in SM-01).
     from iapws.humidAir import Air
 
-    air = Air(T=float(temperature), P=float(pressure) / 1e6)
+    air = Air(T=temperature, P=pressure / 1e6)
     return float(air.k), float(air.mu / air.rho), float(air.Prandt)
 
 
