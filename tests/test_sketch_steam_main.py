@@ -20,7 +20,7 @@ from tests.test_sketch import CASES, SVG, _readings
 EXPECTED = {
     "results.supply_pressure", "results.supply_temperature", "inputs.steam_flow",
     *(f"results.segment_{n}_{what}" for n in (1, 2, 3) for what in ("velocity", "outlet_pressure", "heat_loss")),
-    "results.main_outlet_pressure", "results.main_outlet_temperature", "results.main_outlet_dryness",
+    "results.main_outlet_pressure", "results.main_outlet_temperature",   # superheated at the user: no dryness
     *(f"results.drip_{n}_{what}" for n in (1, 2) for what in ("position", "trap_capacity", "trap_differential")),
     "inputs.heater_condensate_flow", "results.heater_trap_capacity", "results.heater_trap_differential",
     "inputs.receiver_pressure", "results.return_flow", "results.return_flash_fraction", "results.return_velocity",

@@ -31,7 +31,7 @@ def test_limits_left_at_their_defaults_are_marked_common_practice(record):
     sources = {c["name"]: c.get("source", "") for c in record["checks"]}
     for name in ("Segment 1: steam velocity", "Segment 3: steam velocity", "Return line friction drop"):
         assert sources[name].startswith("common practice"), (name, sources[name])
-    for name in ("Segment 1: jacket touch temperature", "Main pressure drop per 100 m",
+    for name in ("Segment 1: jacket touch temperature", "Main pressure gradient",
                  "Return line homogeneous velocity"):
         assert sources[name] == "common practice", name
     labels = [r["label"] for r in record["results"].values()]

@@ -20,10 +20,11 @@ def _main_case(link):
     """SM-01's main fed from a let-down record instead of the MP header; its return to a vented receiver."""
     text = (DEMO / "cases" / "SM-01.toml").read_text(encoding="utf-8")
     text = text.replace('id = "SM-01"', 'id = "SM-L"')
-    text = text.replace('supply_pressure = "header:MP"          # saturated at the MP header\n', "")
+    text = "".join(line for line in text.splitlines(keepends=True)
+                   if not line.startswith(("supply_pressure = ", "supply_superheat = ")))
     text = text.replace('receiver_pressure = "header:LP"', 'receiver_pressure = "0.3 bar(g)"')
     text = text.replace('heater_trap_pressure = "4 bar(g)"', 'heater_trap_pressure = "1.5 bar(g)"')
-    assert 'supply_pressure' not in text and 'receiver_pressure = "0.3 bar(g)"' in text
+    assert 'supply_pressure' not in text and 'supply_superheat' not in text and 'receiver_pressure = "0.3 bar(g)"' in text
     return text.replace("[inputs.insulation]\n", f"[inputs.supply_link]\n{link}\n\n[inputs.insulation]\n", 1)
 
 

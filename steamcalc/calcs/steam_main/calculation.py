@@ -25,7 +25,8 @@ TITLE = "Steam main, drip legs, traps and condensate return"
 WORKBOOK = "steam_main.ipynb"
 PERCENT_VALUES = ("return_flash_fraction",)
 #: Results that are pressure differences (shown "bar", never "bar(a)"); each drip trap's differential too.
-PRESSURE_DIFFERENCE_RESULTS = ("main_pressure_drop", "return_friction_drop", "heater_trap_differential") + tuple(
+PRESSURE_DIFFERENCE_RESULTS = ("main_pressure_drop", "return_friction_drop", "return_warmup_friction_drop",
+                               "heater_trap_differential") + tuple(
     f"drip_{n}_trap_differential" for n in range(1, 100))
 SUMMARY_RESULTS = ("main_outlet_pressure", "main_pressure_drop", "main_max_velocity", "main_size_needed",
                    "heat_loss_total", "running_load_total", "warmup_load_total", "drip_points",
@@ -53,6 +54,12 @@ CAUTIONS = (
 )
 
 
+#: Closest drip-leg spacing accepted, m: below it the figure is a slip (mm for m), and the main would be all legs.
+MIN_DRIP_SPACING = 5.0
+#: Highest wind speed accepted, m/s: above a hurricane's the figure is a slip (km/h for m/s).
+MAX_WIND_SPEED = 60.0
+
+
 @dataclass(frozen=True)
 class Inputs:
     """Inputs of a steam main and its condensate return; values in SI (Pa absolute, K, kg/s, m, s)."""
@@ -65,8 +72,13 @@ class Inputs:
         "mass_flow", "Steam flow", "Steam the main carries to its users.", example="750 kg/h", required=True,
         positive=True)
     supply_temperature: float | None = input_field(
-        "temperature", "Supply temperature", "Leave empty for saturated steam; give it when superheated.",
+        "temperature", "Supply temperature", "Leave empty for saturated steam; give it (or supply_superheat) when "
+        "superheated.",
         example="185 °C")
+    supply_superheat: float | None = input_field(
+        "temperature_difference", "Supply superheat", "Superheat of the supply steam above saturation at the supply "
+        "pressure (a header fed by a let-down without desuperheating carries some); or give supply_temperature.",
+        example="38 K")
     supply_link_record_id: str | None = input_field(
         "text", "Supply let-down record", "An issued let-down record whose outlet (after its desuperheater) feeds "
         "the main instead of a header: its outlet pressure and temperature become the supply.", example="LD-01",
@@ -155,6 +167,26 @@ class Inputs:
 
     def __post_init__(self):
         check_fields(self)
+        if self.supply_superheat is not None:
+            if self.supply_temperature is not None:
+                raise InputError("the supply state is given twice, as supply_temperature and as supply_superheat",
+                                 field="supply_superheat", value=f"{self.supply_superheat:g} K",
+                                 fix="keep one: supply_temperature or supply_superheat (kelvin above saturation at "
+                                     "the supply pressure)")
+            if not self.supply_superheat > 0.0:
+                raise InputError("a supply superheat must be above 0 K", field="supply_superheat",
+                                 value=f"{self.supply_superheat:g} K", fix="leave it out for dry saturated steam")
+        if self.wind_speed < 0.0:
+            raise InputError("a wind speed cannot be below zero", field="wind_speed", value=f"{self.wind_speed:g} m/s",
+                             fix='give the air speed across the main, "0 m/s" for still air indoors')
+        if self.wind_speed > MAX_WIND_SPEED:
+            raise InputError(f"is above any design wind for a pipe rack ({MAX_WIND_SPEED:g} m/s)", field="wind_speed",
+                             value=f"{self.wind_speed:g} m/s", limits=(0, MAX_WIND_SPEED, "m/s"),
+                             fix="give the wind speed in m/s (a km/h figure is 3.6 times too large)")
+        if self.drip_spacing < MIN_DRIP_SPACING:
+            raise InputError(f"drip legs closer than {MIN_DRIP_SPACING:g} m apart are not a design",
+                             field="drip_spacing", value=f"{self.drip_spacing:g} m",
+                             fix="give the spacing in metres, 30 to 50 m on level runs (common practice)")
         if self.insulation_thickness < 0.0:
             raise InputError("insulation cannot be thinner than zero", field="insulation.thickness",
                              value=f"{self.insulation_thickness * 1000:g} mm",
@@ -201,6 +233,9 @@ class Inputs:
 
 
 def _supply_state(inputs):
+    if inputs.supply_superheat is not None:
+        saturated = SteamState.from_p_dryness(inputs.supply_pressure, 1.0)
+        return SteamState.from_pT(inputs.supply_pressure, saturated.temperature + inputs.supply_superheat)
     if inputs.supply_temperature is None:
         return SteamState.from_p_dryness(inputs.supply_pressure, 1.0)
     state = SteamState.from_pT(inputs.supply_pressure, inputs.supply_temperature)
@@ -262,6 +297,12 @@ def calculate(inputs, site):
         result.assumptions.append(source)
     result.cautions.extend(CAUTIONS)
     supply = _supply_state(inputs)
+    if inputs.ambient_temperature >= supply.temperature - 1.0:
+        raise InputError(f"the air at {inputs.ambient_temperature - 273.15:.1f} °C is not below the supply steam's "
+                         f"{supply.temperature - 273.15:.1f} °C: the main cannot lose heat to it",
+                         field="ambient_temperature", value=f"{inputs.ambient_temperature - 273.15:g} °C",
+                         fix="give the air temperature around the main in °C (e.g. \"15 degC\"), and check the "
+                             "supply pressure's basis (bar(g) or bar(a))")
     flows, drips = report_main(inputs, site, supply, result)
     options = report_economics(inputs, site, flows, result)
     report_traps(inputs, flows, drips, result)

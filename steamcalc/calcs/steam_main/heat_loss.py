@@ -160,7 +160,8 @@ def surface_loss(pipe_outer_diameter, steam_temperature, ambient, wind, pressure
     pressure : float
         Atmospheric pressure, Pa.
     insulation : Insulation, optional
-        With a thickness of zero the line is bare, its steel at the insulation's jacket emissivity.
+        With a thickness of zero the line is bare: its steel radiates at :data:`BARE_STEEL_EMISSIVITY`, never
+        at the jacket's emissivity (there is no jacket).
 
     Returns
     -------
@@ -186,9 +187,8 @@ def surface_loss(pipe_outer_diameter, steam_temperature, ambient, wind, pressure
     from scipy.optimize import brentq
 
     if insulation is None or insulation.thickness == 0.0:
-        emissivity = BARE_STEEL_EMISSIVITY if insulation is None else insulation.emissivity
-        h_c, h_r, nu, forced = outside_coefficient(pipe_outer_diameter, steam_temperature, ambient, emissivity, wind,
-                                                   pressure)
+        h_c, h_r, nu, forced = outside_coefficient(pipe_outer_diameter, steam_temperature, ambient,
+                                                   BARE_STEEL_EMISSIVITY, wind, pressure)
         loss = math.pi * pipe_outer_diameter * (h_c + h_r) * (steam_temperature - ambient)
         return SurfaceLoss(loss, steam_temperature, h_c, h_r, nu, 0.0, pipe_outer_diameter, forced)
     outer = pipe_outer_diameter + 2.0 * insulation.thickness

@@ -76,7 +76,7 @@ def _friction(mass_flow, state, d_in, segment):
 
 def segment_flows(segments, inlet, mass_flow, ambient, wind, atmosphere, insulation):
     """Walk the main from its inlet state: one :class:`SegmentFlow` per segment."""
-    flows, state = [], inlet
+    flows, state, lost = [], inlet, 0.0
     for index, segment in enumerate(segments):
         where = f"segments[{index}]"
         d_in, wall = pipe_dimensions(segment.size, segment.schedule, f"{where}.size")
@@ -91,6 +91,15 @@ def segment_flows(segments, inlet, mass_flow, ambient, wind, atmosphere, insulat
         loss = surface_loss(d_out, state.temperature, ambient, wind, atmosphere, insulation)
         bare = surface_loss(d_out, state.temperature, ambient, wind, atmosphere)
         heat = loss.heat_loss * segment.length
+        lost += heat
+        water = SteamState.from_p_dryness(p_out, 0.0)
+        if state.enthalpy - heat / mass_flow <= water.enthalpy:
+            need = lost / (inlet.enthalpy - water.enthalpy)
+            raise InputError(f"the main's heat loss condenses all the steam: the first {index + 1} segment(s) lose "
+                             f"{lost / 1e3:.3g} kW, more than {mass_flow * 3600:.4g} kg/h of steam gives up in "
+                             "condensing", field="steam_flow", value=f"{mass_flow * 3600:.4g} kg/h",
+                             fix=f"give the steam flow the user draws, well above the {need * 3600:.3g} kg/h the "
+                                 "heat loss alone condenses; or insulate the main (thicker insulation)")
         try:
             outlet = SteamState.from_ph(p_out, state.enthalpy - heat / mass_flow)
         except OutOfRangeError as exc:

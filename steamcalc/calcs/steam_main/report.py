@@ -14,7 +14,7 @@ from ..economics import annual_fuel_energy, annual_value, missing_site_data
 from .heat_loss import GRAVITY, TOUCH_SAFE_SURFACE, Insulation
 from .loads import (
     DRIP_TRAP_TYPES, HEATER_TRAP_TYPES, INSULATION_DENSITY, INSULATION_SPECIFIC_HEAT, STEEL_DENSITY,
-    STEEL_SPECIFIC_HEAT, DripPoint, drip_positions, leg_size, segment_loads, warmup_mass,
+    STEEL_SPECIFIC_HEAT, DripPoint, drip_positions, leg_size, segment_loads, superheat_given_up, warmup_mass,
 )
 from .main import segment_flows, size_needed
 from .return_line import METHOD_REFERENCE, return_flow, return_size_needed, water_alone_size
@@ -81,7 +81,12 @@ def report_main(inputs, site, supply, result):
         if inputs.insulation_thickness > 0.0:
             result.check_limit(f"Segment {n}: jacket touch temperature", (f.loss.surface_temperature - 273.15, "degC"),
                                [("<=", (TOUCH_SAFE_SURFACE, "degC"), "warn")],
-                               "a jacket within reach stays cool enough to touch briefly", source="common practice")
+                               lambda s, f=f: Phrase.of(
+                                   "the jacket at {t:.0f} is within the touch limit of {lim:.0f}: cool enough to touch "
+                                   "briefly" if s == "pass" else "the jacket at {t:.0f} is above the touch limit of "
+                                   "{lim:.0f}: it burns on touch; thicken the insulation or guard the line where it "
+                                   "is within reach", t=(f.loss.surface_temperature - 273.15, "degC"),
+                                   lim=(TOUCH_SAFE_SURFACE, "degC")), source="common practice")
         else:
             result.check(f"Segment {n}: bare main", "warn", Phrase.of(
                 "a bare main at {t:.0f} burns on touch and loses {q:.0f}; insulate it", t=(f.inlet.temperature - 273.15,
@@ -99,8 +104,10 @@ def report_main(inputs, site, supply, result):
     # views); 1 Pa/m = 10⁻³ bar difference per 100 m.
     gradient, gradient_limit = (drop / length / 1e3, "bar_per_100m"), (DROP_LIMIT_PER_100M / 1e5, "bar_per_100m")
     result.check_limit("Main pressure gradient", gradient, [("<=", gradient_limit, "warn")],
-                       Phrase.of("{gradient:.2g}; steam mains are commonly sized for a pressure gradient of no more "
-                                 "than {limit:g}", gradient=gradient, limit=gradient_limit), source="common practice")
+                       lambda s: Phrase.of("{gradient:.2g}, within the {limit:g} steam mains are commonly sized for"
+                                           if s == "pass" else "{gradient:.2g}, above the {limit:g} steam mains are "
+                                           "commonly sized for: a larger size lowers it", gradient=gradient,
+                                           limit=gradient_limit), source="common practice")
     needed = size_needed(inputs.steam_flow, supply, inputs.main_segments[0].schedule, inputs.velocity_limit,
                          DROP_LIMIT_PER_100M)
     if needed is None:
@@ -115,6 +122,35 @@ def report_main(inputs, site, supply, result):
     _annual(site, heat, result)
     drips = _drips(inputs, flows, supply, result)
     return flows, drips
+
+
+#: Lowest dryness fraction of steam reaching a user, before its last drip leg (common practice: steam for
+#: process heating is kept at 0.95 dry or better; wetter steam carries slugs a drip pocket does not catch).
+MIN_DRYNESS_AT_USER = 0.95
+
+
+def _delivered(inputs, flows, running, result):
+    """The steam the user receives, and the dryness check at the end of the main."""
+    last = flows[-1].outlet
+    delivered = inputs.steam_flow - running
+    result.work("Steam delivered to the user", "ṁ_u = ṁ − Σ ṁ_r", "m - m_r", delivered * 3600, "kg/h",
+                m=(inputs.steam_flow * 3600, "kg/h"), m_r=(running * 3600, "kg/h"))
+    result.add("steam_delivered", "Steam delivered to the user (steam flow less the drips' running load)",
+               delivered * 3600, "kg/h")
+    result.assumptions.append("Steam flow basis: the steam flow is what leaves the supply; the drip legs take the "
+                              "condensate the main makes, so the user receives the steam flow less the running load")
+    if last.dryness is None:
+        result.notice("Steam at the user", Phrase.of("the steam reaches the user superheated, {sh:.1f} above "
+                                                     "saturation: no condensate forms in the main while it runs",
+                                                     sh=(last.superheat or 0.0, "K")))
+        return
+    result.check_limit("Dryness at the user", (last.dryness, ""), [(">=", (MIN_DRYNESS_AT_USER, ""), "warn")],
+                       lambda s: Phrase.of("the steam reaches the end of the main at dryness {x:.3f}, not below "
+                                           "{lim:.2f}" if s == "pass" else "the steam reaches the end of the main "
+                                           "at dryness {x:.3f}, below {lim:.2f}: the last drip leg cannot catch "
+                                           "all that water; more steam flow, thicker insulation or a separator "
+                                           "before the user", x=(last.dryness, ""), lim=(MIN_DRYNESS_AT_USER, "")),
+                       source="common practice")
 
 
 def _annual(site, heat, result):
@@ -134,28 +170,52 @@ def _annual(site, heat, result):
     result.add("annual_heat_loss_cost", "Fuel cost a year of the heat loss", money, currency)
 
 
+def _latent(pressure):
+    """Latent heat at a pressure, J/kg (IF97)."""
+    return SteamState.from_p_dryness(pressure, 1.0).enthalpy - SteamState.from_p_dryness(pressure, 0.0).enthalpy
+
+
 def _drips(inputs, flows, supply, result):
-    sat = SteamState.from_p_dryness(supply.pressure, 1.0)
-    latent = sat.enthalpy - SteamState.from_p_dryness(supply.pressure, 0.0).enthalpy
-    loads = [segment_loads(f, sat.temperature, inputs.ambient_temperature, latent, inputs.warmup_time) for f in flows]
+    warm_to = supply.temperature
+    loads = [segment_loads(f, warm_to, inputs.ambient_temperature, _latent(f.inlet.pressure), inputs.warmup_time)
+             for f in flows]
     first = flows[0]
+    latent = _latent(first.inlet.pressure)
     steel, insulation = warmup_mass(first)
-    result.work("Segment 1: steel and insulation to heat", "Q_w = M_s c_s (T_sat − T_a) + M_i c_i (T_sat − T_a)/2",
-                "M_s*c_s*(T_sat - T_a) + M_i*c_i*(T_sat - T_a)/2",
-                (steel * STEEL_SPECIFIC_HEAT + insulation * INSULATION_SPECIFIC_HEAT / 2)
-                * (sat.temperature - inputs.ambient_temperature) / 1e3, "kJ",
+    heat_to_warm = (steel * STEEL_SPECIFIC_HEAT + insulation * INSULATION_SPECIFIC_HEAT / 2) * (
+        warm_to - inputs.ambient_temperature) / 1e3
+    result.work("Segment 1: steel and insulation to heat", "Q_w = M_s c_s (T_1 − T_a) + M_i c_i (T_1 − T_a)/2",
+                "M_s*c_s*(T_1 - T_a) + M_i*c_i*(T_1 - T_a)/2", heat_to_warm, "kJ",
                 M_s=(steel, "kg"), c_s=(STEEL_SPECIFIC_HEAT / 1e3, "kJ/(kg*K)"), M_i=(insulation, "kg"),
-                c_i=(INSULATION_SPECIFIC_HEAT / 1e3, "kJ/(kg*K)"), T_sat=(sat.temperature, "K"),
+                c_i=(INSULATION_SPECIFIC_HEAT / 1e3, "kJ/(kg*K)"), T_1=(warm_to, "K"),
                 T_a=(inputs.ambient_temperature, "K"))
-    result.work("Segment 1: warm-up load", "ṁ_w = Q_w / (h_fg · t_w) + ṁ_r / 2", "Q_w/(h_fg*t_w) + m_r/2",
-                loads[0][1] * 3600, "kg/h", Q_w=((steel * STEEL_SPECIFIC_HEAT + insulation * INSULATION_SPECIFIC_HEAT / 2)
-                                                * (sat.temperature - inputs.ambient_temperature) / 1e3, "kJ"),
-                h_fg=(latent / 1e3, "kJ/kg"), t_w=(inputs.warmup_time / 60, "min"), m_r=(loads[0][0] * 3600, "kg/h"))
+    result.work("Segment 1: warm-up load", "ṁ_w = Q_w / (h_fg · t_w) + q'·L / (2 h_fg)", "Q_w/(h_fg*t_w) + q*L/(2*h_fg)",
+                loads[0][1] * 3600, "kg/h", Q_w=(heat_to_warm, "kJ"), h_fg=(latent / 1e3, "kJ/kg"),
+                t_w=(inputs.warmup_time / 60, "min"), q=(first.loss.heat_loss, "W/m"), L=(first.segment.length, "m"))
+    for f, (running, _) in zip(flows, loads):
+        given_up = superheat_given_up(f)
+        n = f.index + 1
+        if given_up > 0.0:
+            h_g = SteamState.from_p_dryness(f.inlet.pressure, 1.0).enthalpy
+            result.work(f"Segment {n}: superheat the steam gives up before it condenses", "Q_sh = min(q'·L, ṁ (h_1 − h_g))",
+                        "min(q*L, m*(h1 - h_g))", given_up, "W", q=(f.loss.heat_loss, "W/m"), L=(f.segment.length, "m"),
+                        m=(inputs.steam_flow * 3600, "kg/h"), h1=(f.inlet.enthalpy / 1e3, "kJ/kg"),
+                        h_g=(h_g / 1e3, "kJ/kg"))
+        if running > 0.0:
+            result.work(f"Segment {n}: running condensate load", "ṁ_r = (q'·L − Q_sh) / h_fg", "(q*L - Q_sh)/h_fg",
+                        running * 3600, "kg/h", q=(f.loss.heat_loss, "W/m"), L=(f.segment.length, "m"),
+                        Q_sh=(given_up, "W"), h_fg=(_latent(f.inlet.pressure) / 1e3, "kJ/kg"))
     result.assumptions.append(f"Warm-up: carbon steel {STEEL_DENSITY:g} kg/m³ at {STEEL_SPECIFIC_HEAT / 1e3:g} kJ/(kg·K), "
                               f"mineral wool {INSULATION_DENSITY:g} kg/m³ at {INSULATION_SPECIFIC_HEAT / 1e3:g} kJ/(kg·K) "
-                              "heated on average to half the rise, plus half the running loss (common practice)")
+                              "heated on average to half the rise, from the air to the supply steam's temperature, all "
+                              "of it condensing at the latent heat, plus half the heat loss as condensate (common "
+                              "practice; conservative for superheated steam)")
+    result.assumptions.append("Running load: the heat loss condenses steam only once the steam has given up its "
+                              "superheat (Q_sh, the steam flow times its enthalpy above saturation at the segment's "
+                              "inlet); a main whose steam stays superheated to the user makes no running condensate")
     result.add("running_load_total", "Running condensate load of the main", sum(r for r, _ in loads) * 3600, "kg/h")
     result.add("warmup_load_total", "Warm-up condensate load of the main", sum(w for _, w in loads) * 3600, "kg/h")
+    _delivered(inputs, flows, sum(r for r, _ in loads), result)
     positions = drip_positions(flows, inputs.drip_spacing)
     drips, start = [], 0.0
     bounds = []
@@ -182,21 +242,68 @@ def _drips(inputs, flows, supply, result):
                    f"{size}, {depth * 1000:.0f} mm deep")
         start = distance
     result.add("drip_points", "Drip legs on the main", len(drips))
-    result.notice("Drip leg positions", Phrase.of("drip legs at the foot of each riser, at most {s:.0f} apart along "
-                                                  "level runs, and at the end of the main", s=(inputs.drip_spacing, "m")))
+    result.notice("Drip leg positions", Phrase.of("drip legs at the foot of each riser and at each low point where the "
+                                                  "main starts to rise, at most {s:.0f} apart along every run that is "
+                                                  "not a riser (level, falling or gently rising), and at the end of "
+                                                  "the main", s=(inputs.drip_spacing, "m")))
     return drips
 
 
-def _back_pressure(inputs):
+def _running_sources(inputs, drips):
+    """The return line's inflows when the main runs: (flow kg/s, trap inlet pressure Pa), the empty ones left out."""
+    sources = [(d.running_load, d.pressure) for d in drips if d.running_load > 0.0]
+    if inputs.heater_condensate_flow is not None:
+        sources.append((inputs.heater_condensate_flow, inputs.heater_trap_pressure))
+    return sources
+
+
+def _warmup_sources(drips):
+    """The return line's inflows while the main warms up: the drip traps at their warm-up loads (the heater is not
+    yet in service)."""
+    return [(d.warmup_load, d.pressure) for d in drips if d.warmup_load > 0.0]
+
+
+def _back_pressure(inputs, drips, result):
+    """Back pressure at the traps, Pa(a): the receiver, the lift as a column of water, and the return line's
+    friction drop at running flow (the whole line's drop taken at every trap: conservative)."""
     if inputs.receiver_pressure is None:
-        return None
+        return None, None
     water = SteamState.from_p_dryness(inputs.receiver_pressure, 0.0)
-    return inputs.receiver_pressure + water.density * GRAVITY * inputs.lift
+    lift_head = water.density * GRAVITY * inputs.lift
+    sources = _running_sources(inputs, drips)
+    friction = 0.0
+    if sources:
+        friction = return_flow(sources, inputs.receiver_pressure, inputs.return_size, inputs.return_schedule,
+                               inputs.return_length, inputs.lift).friction_drop
+    back = inputs.receiver_pressure + lift_head + friction
+    result.work("Back pressure at the traps", "p_b = p_r + ρ_f g H + Δp_line", "p_r + rho_f*g*H + dp_line", back / 1e5,
+                "bar", p_r=(inputs.receiver_pressure / 1e5, "bar"), rho_f=(water.density, "kg/m**3"),
+                g=(GRAVITY, "m/s**2"), H=(inputs.lift, "m"), dp_line=(friction / 1e5, "bar", "difference"))
+    result.add("trap_back_pressure", "Back pressure at the traps (receiver, lift and the return line's drop)",
+               back / 1e5, "bar")
+    result.assumptions.append("Trap back pressure: the receiver's pressure, plus the lift as a column of saturated "
+                              "water at the receiver, plus the whole friction drop of the condensate return at running "
+                              "flow, taken at every trap (conservative)")
+    return back, inputs.receiver_pressure + lift_head
+
+
+def _trap_differential(inputs, name, key, inlet, back, static, consequence, fix, result):
+    """A trap's differential pressure; refused when the receiver and lift alone stand above its inlet (the input is
+    wrong), a failing check when the return line's drop takes the rest (the line is too small)."""
+    if inlet <= static:
+        raise InputError(f"the receiver with its lift ({static / 1e5:.4g} bar(a)) stands above the {name.lower()}'s "
+                         f"inlet ({inlet / 1e5:.4g} bar(a)): {consequence}", field="return_line.receiver_pressure",
+                         value=f"{inputs.receiver_pressure / 1e5:.4g} bar(a)", fix=fix)
+    result.add(key, f"{name}: differential pressure", (inlet - back) / 1e5, "bar")
+    if inlet <= back:
+        result.check(f"{name}: differential pressure", "fail", Phrase.of(
+            "the condensate return's friction drop raises the back pressure to {b:.3f}, above the trap's inlet "
+            f"{{p:.3f}}: {consequence}; a larger return line lowers it", b=(back / 1e5, "bar"), p=(inlet / 1e5, "bar")))
 
 
 def report_traps(inputs, flows, drips, result):
     """The capacity each drip trap and the heater's trap must pass at its differential pressure."""
-    back = _back_pressure(inputs)
+    back, static = _back_pressure(inputs, drips, result)
     factor = inputs.trap_safety_factor
     for d in drips:
         result.work(f"Drip trap {d.number}: capacity needed", "ṁ_trap = SF · max(ṁ_w, ṁ_r)", "SF*max(m_w, m_r)",
@@ -205,25 +312,17 @@ def report_traps(inputs, flows, drips, result):
         result.add(f"drip_{d.number}_trap_capacity", f"Drip trap {d.number}: capacity needed",
                    factor * max(d.warmup_load, d.running_load) * 3600, "kg/h")
         if back is not None:
-            if d.pressure <= back:
-                raise InputError(f"the receiver with its lift ({back / 1e5:.4g} bar(a)) stands above drip trap "
-                                 f"{d.number}'s inlet ({d.pressure / 1e5:.4g} bar(a)): it cannot discharge",
-                                 field="return_line.receiver_pressure", value=f"{inputs.receiver_pressure / 1e5:.4g} bar(a)",
-                                 fix="give a receiver at a lower pressure, or a smaller lift")
-            result.add(f"drip_{d.number}_trap_differential", f"Drip trap {d.number}: differential pressure",
-                       (d.pressure - back) / 1e5, "bar")
+            _trap_differential(inputs, f"Drip trap {d.number}", f"drip_{d.number}_trap_differential", d.pressure,
+                               back, static, "it cannot discharge", "give a receiver at a lower pressure, or a "
+                               "smaller lift", result)
     result.add("drip_trap_types", "Drip trap types to consider (common practice)", "; ".join(DRIP_TRAP_TYPES))
     if inputs.heater_condensate_flow is not None:
-        if inputs.heater_trap_pressure <= back:
-            raise InputError(f"the receiver with its lift ({back / 1e5:.4g} bar(a)) stands above the heater trap's "
-                             f"inlet ({inputs.heater_trap_pressure / 1e5:.4g} bar(a)): the heater would waterlog",
-                             field="return_line.receiver_pressure",
-                             value=f"{inputs.receiver_pressure / 1e5:.4g} bar(a)",
-                             fix="give a receiver at a lower pressure, a smaller lift, or drain the heater by a pump-trap")
         result.add("heater_trap_capacity", "Heater trap: capacity needed", factor * inputs.heater_condensate_flow * 3600,
                    "kg/h")
-        result.add("heater_trap_differential", "Heater trap: differential pressure",
-                   (inputs.heater_trap_pressure - back) / 1e5, "bar")
+        if back is not None:
+            _trap_differential(inputs, "Heater trap", "heater_trap_differential", inputs.heater_trap_pressure, back,
+                               static, "the heater would waterlog", "give a receiver at a lower pressure, a smaller "
+                               "lift, or drain the heater by a pump-trap", result)
         result.add("heater_trap_types", "Heater trap types to consider (common practice)", "; ".join(HEATER_TRAP_TYPES))
         if inputs.lift > 0.0:
             result.check("Condensate lifted after a modulating heater", "warn", Phrase.of(
@@ -233,13 +332,19 @@ def report_traps(inputs, flows, drips, result):
 
 
 def report_return(inputs, drips, result):
-    """The return line: flash, two-phase drop and velocity, and the size the flash needs."""
-    sources = [(d.running_load, d.pressure) for d in drips]
-    if inputs.heater_condensate_flow is not None:
-        sources.append((inputs.heater_condensate_flow, inputs.heater_trap_pressure))
-    flow = return_flow(sources, inputs.receiver_pressure, inputs.return_size, inputs.return_schedule,
-                       inputs.return_length, inputs.lift)
-    total = sum(m for m, _ in sources)
+    """The return line: flash, two-phase drop and velocity at running flow and at warm-up, and the size the
+    governing case needs."""
+    sources = _running_sources(inputs, drips)
+    warm = _warmup_sources(drips)
+    args = (inputs.receiver_pressure, inputs.return_size, inputs.return_schedule, inputs.return_length, inputs.lift)
+    cases = [(name, src, return_flow(src, *args)) for name, src in (("running", sources), ("warm-up", warm)) if src]
+    if not cases:
+        result.notice("Return line", "no condensate reaches the return line: the main makes none and no heater "
+                      "drains into it")
+        return
+    governing, gov_sources, gov_flow = max(cases, key=lambda c: (c[2].friction_drop, c[2].velocity))
+    name, src, flow = cases[0]
+    total = sum(m for m, _ in src)
     result.references.append(METHOD_REFERENCE)
     h_fg = flow.vapour.enthalpy - flow.liquid.enthalpy
     result.work("Return: flash fraction at the receiver", "x = (h_mix − h_f(p_r)) / h_fg(p_r)", "(h_mix - h_f)/h_fg",
@@ -252,24 +357,52 @@ def report_return(inputs, drips, result):
     result.work("Return: two-phase friction drop (Müller-Steinhagen and Heck)", "Δp = MSH(ṁ, x, ρ_f, ρ_g, μ_f, μ_g, d, L)",
                 "Muller_Steinhagen_Heck(m, x, d, L)", flow.friction_drop / 1e5, "bar", m=(total * 3600, "kg/h"),
                 x=(flow.dryness, ""), d=(flow.inner_diameter * 1000, "mm"), L=(inputs.return_length, "m"))
-    result.add("return_flow", "Return line flow", total * 3600, "kg/h")
-    result.add("return_flash_fraction", "Flash fraction in the return line", flow.dryness)
-    result.add("return_flash_steam", "Flash steam in the return line", flow.dryness * total * 3600, "kg/h")
-    result.add("return_velocity", "Return line homogeneous velocity", flow.velocity, "m/s")
-    result.add("return_friction_drop", "Return line friction drop", flow.friction_drop / 1e5, "bar")
-    result.add("return_volume_ratio", "Flashing flow's volume over water alone", flow.velocity / flow.water_velocity)
-    result.check_limit("Return line homogeneous velocity", (flow.velocity, "m/s"),
+    result.add("return_flow", f"Return line flow ({name})", total * 3600, "kg/h")
+    result.add("return_flash_fraction", f"Flash fraction in the return line ({name})", flow.dryness)
+    result.add("return_flash_steam", f"Flash steam in the return line ({name})", flow.dryness * total * 3600, "kg/h")
+    result.add("return_velocity", f"Return line homogeneous velocity ({name})", flow.velocity, "m/s")
+    result.add("return_friction_drop", f"Return line friction drop ({name})", flow.friction_drop / 1e5, "bar")
+    result.add("return_volume_ratio", f"Flashing flow's volume over water alone ({name})",
+               flow.velocity / flow.water_velocity)
+    for other, other_src, other_flow in cases[1:]:
+        result.add("return_warmup_flow", f"Return line flow ({other})", sum(m for m, _ in other_src) * 3600, "kg/h")
+        result.add("return_warmup_velocity", f"Return line homogeneous velocity ({other})", other_flow.velocity,
+                   "m/s")
+        result.add("return_warmup_friction_drop", f"Return line friction drop ({other})",
+                   other_flow.friction_drop / 1e5, "bar")
+    result.add("return_governing_case", "Return line case that governs its size (the larger drop)", governing)
+    result.notice("Return line cases", "the return is worked running (the drips' running loads and the heater's "
+                  "condensate) and warming up (the drip traps at their warm-up loads, the heater not yet in service); "
+                  f"the {governing} case, with the larger drop, governs the size" if len(cases) > 1 else
+                  f"the return is worked for the {governing} case only: the other has no flow")
+    result.check_limit("Return line homogeneous velocity", (gov_flow.velocity, "m/s"),
                        [("<=", (MAX_FLASHING_CONDENSATE_VELOCITY, "m/s"), "fail")],
-                       "flashing condensate above this velocity erodes the line and hammers", source="common practice")
-    result.check_limit("Return line friction drop", (flow.friction_drop / 1e5, "bar"),
+                       lambda s: Phrase.of(f"{{v:.1f}} ({governing}) {'within' if s == 'pass' else 'above'} the {{lim:.0f}}"
+                                           " that flashing condensate may reach: above it the line erodes and hammers",
+                                           v=(gov_flow.velocity, "m/s"), lim=(MAX_FLASHING_CONDENSATE_VELOCITY, "m/s")),
+                       source="common practice")
+    result.check_limit("Return line friction drop", (gov_flow.friction_drop / 1e5, "bar"),
                        [("<=", (inputs.return_drop_limit / 1e5, "bar"), "warn")],
-                       lambda s: "within the stated drop limit" if s == "pass" else
-                       "above the stated drop limit: the traps' back pressure rises; a larger line lowers it",
+                       lambda s: f"within the stated drop limit ({governing})" if s == "pass" else
+                       f"above the stated drop limit ({governing}): the traps' back pressure rises; a larger line "
+                       "lowers it",
                        source=_limit_source(inputs, "return_drop_limit", "the input drop limit",
                                             "common practice (the limit when none is given)"))
-    needed = return_size_needed(sources, inputs.receiver_pressure, inputs.return_schedule, inputs.return_length,
-                                inputs.lift, MAX_FLASHING_CONDENSATE_VELOCITY, inputs.return_drop_limit)
-    if needed is not None:
+    needed = None
+    for _, case_sources, _ in cases:
+        found = return_size_needed(case_sources, inputs.receiver_pressure, inputs.return_schedule,
+                                   inputs.return_length, inputs.lift, MAX_FLASHING_CONDENSATE_VELOCITY,
+                                   inputs.return_drop_limit)
+        if found is None:
+            needed = None
+            break
+        if needed is None or found[1].inner_diameter > needed[1].inner_diameter:
+            needed = found
+    if needed is None:
+        result.check("Return line size for the limits", "fail", Phrase.of(
+            "no standard size up to DN600 keeps the return within {v:.0f} and the drop limit; split the return or "
+            "lower the receiver's pressure", v=(MAX_FLASHING_CONDENSATE_VELOCITY, "m/s")))
+    else:
         result.add("return_size_needed", "Smallest return size within the velocity and drop limits", needed[0])
         area_ratio = flow_area(needed[1].inner_diameter) / flow_area(flow.inner_diameter)
         result.check_limit("Return line area against the area the flash needs", (area_ratio, ""), [("<=", (1.0, ""), "fail")],

@@ -23,7 +23,7 @@ SATURATED_SUPERHEAT = 1e-6
 
 
 def _refuse_both(values, record_id):
-    for name in ("supply_pressure", "supply_temperature"):
+    for name in ("supply_pressure", "supply_temperature", "supply_superheat"):
         if values.get(name) is not None:
             raise InputError(f"{name} comes from the linked let-down record {record_id}; it is not given twice",
                              field=name, fix=f"leave {name} out, or drop [inputs.supply_link] and feed the main "
