@@ -81,6 +81,7 @@ header = "MP"
 load = "420 kW"
 condensate_return = 1.0
 return_temperature = "110 degC"
+condensate_to = "deaerator"
 
 [[inputs.user]]
 name = "Evaporator"

@@ -54,7 +54,7 @@ def test_deaerator_steam_against_iapws95_by_hand(vent, returned, t_return, blowd
                     deaerator=Deaerator(pressure=p_da, steam_header="LP", vent_fraction=vent),
                     load_cases=YEAR, letdowns=(Letdown(name="L", source="HP", target="LP"),),
                     users=(User(name="U", header="LP", flows=(("all year", user),), return_fraction=returned,
-                                return_temperature=t_return if returned else None),))
+                                return_temperature=t_return if returned else None, condensate_to="cooled"),))
     r = calculate(inputs, SITE)
     h_s, h_fw, h_v = _cool(11e5, Q=1), _cool(p_da, Q=0), _cool(p_da, Q=1)
     h_mu, h_r = _cool(ATM, T=288.15), _cool(2.5e5, T=t_return)

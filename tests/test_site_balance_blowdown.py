@@ -42,7 +42,7 @@ def _inputs(flash_header=None, approach=None, effectiveness=None, blowdown=0.05,
                   deaerator=Deaerator(pressure=1.2e5, steam_header="LP", vent_fraction=vent),
                   load_cases=YEAR, letdowns=(Letdown(name="L", source="HP", target="LP"),),
                   users=(User(name="U", header="LP", flows=(("all year", 2.0),), return_fraction=0.5,
-                              return_temperature=353.15),))
+                              return_temperature=353.15, condensate_to="cooled"),))
 
 
 # Flash of saturated blowdown water: x = (h_f(p_boiler) - h_f(p_flash)) / (h_g(p_flash) - h_f(p_flash)).
@@ -130,9 +130,9 @@ def test_headers_deaerator_and_recovery_close_with_the_other_if97_engine(engine)
                     load_cases=YEAR, letdowns=(Letdown(name="A", source="HP", target="MP"),
                                                Letdown(name="B", source="MP", target="LP")),
                     users=(User(name="M", header="MP", flows=(("all year", 1.0),), return_fraction=0.8,
-                                return_temperature=363.15),
+                                return_temperature=363.15, condensate_to="cooled"),
                            User(name="U", header="LP", flows=(("all year", 2.0),), return_fraction=0.5,
-                                return_temperature=353.15)))
+                                return_temperature=353.15, condensate_to="cooled")))
     r = calculate(inputs, site)
     b = r.states["balances"]["all year"]
     assert b.blowdown_flash_steam > 0.0 and b.blowdown_heat_recovered > 0.0

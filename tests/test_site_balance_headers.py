@@ -118,7 +118,7 @@ def test_header_diagram_closes_with_vents_shortfalls_and_spray(boiler_flow, letd
                     load_cases=YEAR, letdowns=letdowns,
                     users=(User(name="Dryer", header="HP", flows=(("all year", 0.5),)),
                            User(name="Press", header="MP", flows=(("all year", 0.3),), return_fraction=0.5,
-                                return_temperature=353.15),
+                                return_temperature=353.15, condensate_to="cooled"),
                            User(name="Tracing", header="LP", flows=(("all year", 0.2),))))
     result = calculate(inputs, SITE)
     figure = next(f for f in figures(inputs, SITE, result.states["balances"])

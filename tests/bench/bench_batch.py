@@ -28,7 +28,8 @@ def make_cases(folder, count=500):
         template = templates[i % len(templates)]
         # Without the Monte Carlo table: this measures the batch machinery, not the bands.
         text = re.sub(r"\[uncertainty\].*?(?=^\[|\Z)", "", template.read_text(), flags=re.S | re.M)
-        case_id = f"{template.stem}-{i:03d}"
+        # The first round keeps the demo ids, so that the site balance's copies find the records they link.
+        case_id = template.stem if i < len(templates) else f"{template.stem}-{i:03d}"
         text = text.replace(f'id = "{template.stem}"', f'id = "{case_id}"')
         path = folder / "cases" / f"{case_id}.toml"
         path.write_text(text)

@@ -20,6 +20,7 @@ from .figures import figures
 from .inputs import Inputs, checked_against_site
 from .links import link_problems as linked_record_problems
 from .links import stale_links
+from .returns import add_return_notes, return_flash_checks, return_flash_results, return_steps
 from .solver import MAX_SWEEPS, TOLERANCE, fixed_states, solve_case
 from .steps import case_steps
 from .turbines import add_turbine_notes, add_turbine_year, closing_turbine, turbine_case_results
@@ -49,9 +50,19 @@ CAUTIONS = (
 )
 
 
+#: Blowdown, as a share of the boiler's feedwater, above which a balance warns (common practice).
+BLOWDOWN_LIMIT = 0.10
+
+
 def _efficiency(inputs, site):
-    if inputs.boiler.efficiency is not None:
-        return inputs.boiler.efficiency
+    efficiency = inputs.boiler.efficiency
+    if efficiency is not None:
+        if not 0.0 < efficiency <= 1.0:
+            # The fuel is the heat over the efficiency: at zero there is no answer, above one there is no boiler.
+            raise InputError("a boiler efficiency lies above 0 and at most 1", field="boiler.efficiency",
+                             value=efficiency, limits=(0, 1, ""),
+                             fix="give the steam heat out over the fuel in, e.g. 0.86")
+        return efficiency
     if site.boiler_efficiency is not None:
         return site.boiler_efficiency
     raise InputError("the boiler efficiency is not given", field="boiler.efficiency",
@@ -87,6 +98,10 @@ def calculate(inputs, site):
     .. math:: \\dot m_s = \\frac{\\dot m_{fw}(h_{fw} - h_{mu}) - \\sum \\dot m_r (h_r - h_{mu})}
               {h_s - h_{mu} - v (h_v - h_{mu})}, \\quad
               \\dot m_{mu} = \\dot m_{fw} + v \\dot m_s - \\sum \\dot m_r - \\dot m_s
+
+    With the vent stated as a fraction :math:`w` of the feedwater instead, :math:`\\dot m_s (h_s - h_{mu}) =
+    \\dot m_{fw}(h_{fw} - h_{mu}) + w \\dot m_{fw} (h_v - h_{mu}) - \\sum \\dot m_r (h_r - h_{mu})`. Condensate to a
+    vented receiver returns less its flash to the site atmosphere (:mod:`.returns`).
 
     Blowdown from the dissolved-solids balance of the boiler, :math:`\\dot m_{fw} c_{fw} = \\dot m_{bd} c_{bw}`
     with :math:`\\dot m_{fw} = \\dot m_{steam} + \\dot m_{bd}`: :math:`\\dot m_{bd} = \\dot m_{steam}
@@ -131,14 +146,20 @@ def calculate(inputs, site):
         "Users condense their steam to saturated liquid at the header pressure; a user given a duty takes that "
         "duty over the enthalpy of the header's steam less that of saturated water at the header pressure",
         "Feedwater leaves the deaerator saturated at its pressure; feed-pump work is neglected",
-        "The deaerator vents the stated fraction of its heating steam, as saturated steam at its pressure",
+        ("The deaerator vents the stated fraction of its feedwater, as saturated steam at its pressure, whatever "
+         "heating steam it takes" if inputs.deaerator.vent_of_feedwater is not None else
+         "The deaerator vents the stated fraction of its heating steam (not of its feedwater: the vent falls with "
+         "the heating steam when hot returns heat the feedwater), as saturated steam at its pressure"),
         "Blowdown leaves the boiler as saturated water at the boiler pressure",
-        "Flash steam above a header's demand is vented: only the flash steam the header takes displaces boiler steam",
+        "Flash steam above a header's demand is vented: only the flash steam the header takes displaces boiler "
+        "steam; when a header vents, its vent is shared among the flash steam flowing into it in proportion to "
+        "each flow, so the flash steam credited adds up to the flash steam less the vent",
         f"Each load case solved by successive substitution until no flow or header enthalpy changes by more than "
         f"{TOLERANCE:.0e} (relative) between sweeps; at most {MAX_SWEEPS} sweeps, else the case is refused",
         f"Gauge pressures converted with the site atmosphere of {site.atmospheric_pressure / 1e5:.5g} bar(a)",
     ])
     result.cautions.extend(CAUTIONS)
+    add_return_notes(result, inputs, site)
     add_turbine_notes(result, inputs)
     states = fixed_states(inputs, site)
     balances = {}
@@ -147,9 +168,11 @@ def calculate(inputs, site):
         balances[case.name] = b
         _case_results(result, inputs, site, b, efficiency, case)
         case_steps(result, inputs, site, b, efficiency, case)
+        return_steps(result, inputs, site, b, case.name)
         turbine_steps_and_checks(result, inputs, b, case.name)
         check_closures(result, inputs, site, b)
     _case_checks(result, inputs, site, balances)
+    return_flash_checks(result, inputs, balances)
     totals = annual_totals(result, inputs, site, balances, efficiency, "")
     electricity = add_turbine_year(result, inputs, site, balances)
     _blowdown_year(result, inputs, balances)
@@ -158,6 +181,9 @@ def calculate(inputs, site):
         alt = {c.name: solve_case(inputs, site, c.name, states, inputs.without) for c in inputs.load_cases}
         for case in inputs.load_cases:
             _case_results(result, inputs, site, alt[case.name], efficiency, case, prefix="what_if.")
+        # The what-if is a balance the site may run: it meets the same limits, named for it.
+        _case_checks(result, inputs, site, alt, f"Without {', '.join(inputs.without)}, ")
+        return_flash_checks(result, inputs, alt, f"Without {', '.join(inputs.without)}, ")
         alternative = annual_totals(result, inputs, site, alt, efficiency, "what_if_")
         add_turbine_year(result, inputs, site, alt, "what_if_", electricity)
         add_comparison(result, inputs, site, totals, alternative)
@@ -235,10 +261,11 @@ def _case_results(result, inputs, site, b, efficiency, case, prefix=""):
     for name, flow in b.user_flows.items():
         result.add(f"{c}.{name}.steam_flow", f"{what}: {name} steam", flow * 3600, "kg/h")
     turbine_case_results(result, inputs, b, c, what)
+    return_flash_results(result, b, c, what)
     for f in inputs.flashes:
         if f.name in b.flash_steam:
             steam = b.flash_steam[f.name]
-            used = max(0.0, steam - b.vents.get(f.target, 0.0))
+            used = flash_used(b, f.target, steam)
             result.add(f"{c}.{f.name}.flash_steam_flow", f"{what}: flash vessel {f.name} steam", steam * 3600, "kg/h")
             result.add(f"{c}.{f.name}.flash_steam_used", f"{what}: flash vessel {f.name} steam the {f.target} header "
                        "takes", used * 3600, "kg/h")
@@ -268,8 +295,25 @@ def _blowdown_year(result, inputs, balances):
 
 
 def blowdown_flash_used(b, header):
-    """Blowdown flash steam the header takes, kg/s: what the header vents is not credited (as for flash vessels)."""
-    return max(0.0, b.blowdown_flash_steam - b.vents.get(header, 0.0))
+    """Blowdown flash steam the header takes, kg/s: its share of the header's vent is not credited
+    (:func:`flash_used`)."""
+    return flash_used(b, header, b.blowdown_flash_steam)
+
+
+def flash_used(b, header, steam):
+    """The part of ``steam`` (kg/s of flash steam into ``header``) the header takes: the header's vent is shared
+    among all the flash steam flowing in (flash vessels and blowdown flash) in proportion to each flow.
+
+    .. math:: \\dot m_{used} = \\dot m \\left(1 - \\frac{\\min(V, \\sum \\dot m_{flash})}{\\sum \\dot m_{flash}}\\right)
+
+    so the flash steam credited adds up to the flash steam less the vent (common practice for crediting
+    recovered flash steam: only what displaces live steam counts).
+    """
+    flashed = sum(m for name, m, _ in b.inflows.get(header, ())
+                  if name.startswith("flash vessel ") or name == "blowdown flash steam")
+    if steam <= 0.0 or flashed <= 0.0:
+        return 0.0
+    return steam * (1.0 - min(b.vents.get(header, 0.0), flashed) / flashed)
 
 
 def blowdown_heat_saved(b):
@@ -282,9 +326,11 @@ def blowdown_heat_saved(b):
     return flash + b.blowdown_heat_recovered
 
 
-def _case_checks(result, inputs, site, balances):
+def _case_checks(result, inputs, site, balances, what=""):
+    """The checks of a set of solved load cases; ``what`` begins each check's name ("Without FL-01, ")."""
     boiler = inputs.boiler
-    for name, b in balances.items():
+    for case_name, b in balances.items():
+        name = f"{what}{case_name}"
         if boiler.capacity is not None:
             result.check_limit(f"{name}: boiler within its rating", (b.boiler_steam * 3600, "kg/h"),
                                [("<=", (boiler.capacity * 3600, "kg/h"), "fail")],
@@ -292,6 +338,17 @@ def _case_checks(result, inputs, site, balances):
                                    "boiler steam {steam:.0f} " + ("within" if status == "pass" else "beyond") +
                                    " its maximum continuous rating {rating:.0f}", steam=(b.boiler_steam * 3600, "kg/h"),
                                    rating=(boiler.capacity * 3600, "kg/h")), source="the boiler's rating (input)")
+        if b.boiler_steam > 0.0:
+            share = b.blowdown / (b.boiler_steam + b.blowdown)
+            result.check_limit(f"{name}: boiler blowdown rate", (share * 100, "%"),
+                               [("<=", (BLOWDOWN_LIMIT * 100, "%"), "warn")],
+                               lambda status, b=b, share=share: Phrase.of(
+                                   "blowdown {blowdown:.0f} is {share:.1f} of the boiler's feedwater" + (
+                                       "" if status == "pass" else ": beyond what a boiler is run at; check the "
+                                       "dissolved-solids figures (same measure, the boiler-water limit well above the "
+                                       "feedwater's) or treat the feedwater better"),
+                                   blowdown=(b.blowdown * 3600, "kg/h"), share=(share * 100, "%")),
+                               source="common practice: blowdown seldom above 10 % of the feedwater")
         result.check_limit(f"{name}: deaerator needs heating steam", (b.deaerator_flash_vent * 3600, "kg/h"),
                            [("<=", (0.0, "kg/h"), "warn")],
                            lambda status, b=b: Phrase.of("the deaerator takes {steam:.0f} of heating steam",
@@ -301,10 +358,15 @@ def _case_checks(result, inputs, site, balances):
                                "no steam and {vent:.0f} flashes off at its vent; cool the returns or use the flash",
                                vent=(b.deaerator_flash_vent * 3600, "kg/h")))
         for h, short in b.shortfalls.items():
+            unreturned = "" if b.returns_not_taken <= 0.0 else (
+                "; its users cannot return the condensate of steam they do not get, so {kept:.0f} of returns is "
+                "not counted and the make-up is the water actually supplied")
             result.check_limit(f"{name}: {h} header supplied", (short * 3600, "kg/h"), [("<=", (0.0, "kg/h"), "fail")],
                                Phrase.of("the " + h + " header is short by {short:.1f}: nothing feeds it "
-                                         "(no let-down into it, or the boiler's fixed flow is too small)",
-                                         short=(short * 3600, "kg/h")))
+                                         "(no let-down into it, or the boiler's fixed flow is too small)" + unreturned +
+                                         "; this load case's figures are no basis for design",
+                                         short=(short * 3600, "kg/h"),
+                                         **({"kept": (b.returns_not_taken * 3600, "kg/h")} if unreturned else {})))
         for ld in inputs.letdowns:
             steam = b.letdown_steam.get(ld.name)
             if steam is None or steam == 0.0:
@@ -327,7 +389,7 @@ def _case_checks(result, inputs, site, balances):
             steam = b.flash_steam.get(f.name)
             if steam is None or steam == 0.0:
                 continue
-            vented = min(steam, b.vents.get(f.target, 0.0))
+            vented = steam - flash_used(b, f.target, steam)
             result.check_limit(f"{name}: flash vessel {f.name} steam taken by the {f.target} header",
                                (vented * 3600, "kg/h"), [("<=", (0.0, "kg/h"), "warn")],
                                lambda status, f=f, steam=steam, vented=vented: Phrase.of(
@@ -342,13 +404,14 @@ def _case_checks(result, inputs, site, balances):
         letdowns = [n for n, b in balances.items()
                     if any(ld.target == h and b.letdown_steam.get(ld.name, 0.0) > 0.0 for ld in inputs.letdowns)]
         if vents and letdowns:
-            result.check(f"{h} header vents in one load case and lets down in another", "warn",
+            result.check(f"{what}{h} header vents in one load case and lets down in another", "warn",
                          f"it vents in {', '.join(vents)} and is made up by let-down in {', '.join(letdowns)}: steam "
                          "let down in one season is thrown away in the other; look for a user or a back-pressure "
                          "turbine that evens it out, and set the vent and let-down controls apart so they never "
                          "work at once")
         elif vents:
             worst = max(balances[n].vents[h] for n in vents)
-            result.check_limit(f"{h} header does not vent", (worst * 3600, "kg/h"), [("<=", (0.0, "kg/h"), "warn")],
+            result.check_limit(f"{what}{h} header does not vent", (worst * 3600, "kg/h"),
+                               [("<=", (0.0, "kg/h"), "warn")],
                                Phrase.of("the " + h + " header vents up to {vent:.0f} (" + ", ".join(vents) + ")",
                                          vent=(worst * 3600, "kg/h")))

@@ -16,7 +16,7 @@ from ...errors import InputError
 from ..base import input_field
 from . import reading
 from .blowdown import RECOVERY, has_recovery
-from .items import items_from_record, record_table
+from .items import RETURN_ROUTES, items_from_record, record_table
 from .links import Links
 from .turbine_reading import check_turbine_network, check_turbines_against_site, read_turbines
 
@@ -141,6 +141,11 @@ def _check_network(inputs):
                 path.append(child)
                 stack.append((child, iter(graph.get(child, ()))))
     names = {u.name for u in inputs.users}
+    for u in inputs.users:
+        if u.condensate_to not in RETURN_ROUTES:
+            raise InputError(f"user {u.name}'s condensate cannot go to {u.condensate_to!r}",
+                             field=f"user.{u.name}.condensate_to", value=u.condensate_to,
+                             fix="write one of: " + ", ".join(f'"{r}"' for r in RETURN_ROUTES))
     owner = {}
     for section, items in (("letdown", inputs.letdowns), ("user", inputs.users), ("flash", inputs.flashes),
                            ("turbine", inputs.turbines)):
@@ -202,7 +207,17 @@ def checked_against_site(inputs, site):
                          f"{inputs.boiler.header} at {p_boiler_header / 1e5:.4g} bar(a)", field="boiler.pressure",
                          fix="give the boiler's working pressure, at or above its header's")
     check_turbines_against_site(inputs, headers)
+    if inputs.deaerator.vent_of_feedwater is not None and inputs.deaerator.vent_fraction:
+        raise InputError("the deaerator's vent is given both of its heating steam and of its feedwater",
+                         field="deaerator.vent_of_feedwater", fix="keep one basis for the vent")
     boiler = inputs.boiler
+    if boiler.blowdown_fraction is None and (boiler.feedwater_tds is None or boiler.boiler_water_tds is None or
+                                             boiler.feedwater_tds >= boiler.boiler_water_tds):
+        raise InputError(f"feedwater dissolved solids {boiler.feedwater_tds} are not below the boiler-water limit "
+                         f"{boiler.boiler_water_tds}: no blowdown could hold it", field="boiler.feedwater_tds",
+                         value=boiler.feedwater_tds,
+                         fix="give both in the same measure, feedwater below the boiler-water limit, or a "
+                             "blowdown_fraction")
     if boiler.blowdown_cooler_approach is not None and boiler.blowdown_cooler_effectiveness is not None:
         raise InputError("the blowdown cooler is given both an approach temperature and an effectiveness",
                          field="boiler.blowdown_cooler_effectiveness", fix="keep one way of stating the cooler")

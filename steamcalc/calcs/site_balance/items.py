@@ -21,6 +21,11 @@ from ...units.quantities import RECORD_UNITS, from_record_unit, to_record_unit
 NAME_PATTERN = re.compile(r"^[A-Za-z0-9][A-Za-z0-9 _()+/-]{0,39}\Z")
 #: Kinds held as given (no unit).
 _RAW = ("text", "names")
+#: Where a user's returned condensate goes (the user's ``condensate_to``): the first is the default.
+#: "vented receiver": a receiver open to the site atmosphere, where the condensate's flash from the header's
+#: saturation is lost; "cooled": cooled below its atmospheric boiling point before a vented receiver, so none
+#: flashes; "deaerator": returned under pressure straight into the deaerator, whose energy balance takes its flash.
+RETURN_ROUTES = ("vented receiver", "cooled", "deaerator")
 #: Record units where the record unit of the kind would be awkward (hours of a load case, not minutes).
 _UNIT_OVERRIDES = {"hours": "h"}
 
@@ -94,12 +99,14 @@ class Boiler:
 
 @dataclass(frozen=True)
 class Deaerator:
-    """The deaerator: its pressure, the header its steam comes from, the share of that steam vented."""
+    """The deaerator: its pressure, the header its steam comes from, its vent as a share of that steam
+    (``vent_fraction``) or of the feedwater it delivers (``vent_of_feedwater``, which then replaces it)."""
 
     pressure: float = item_field("pressure", "pressure")
     steam_header: str = item_field("text", "heating-steam header")
     vent_fraction: float = item_field("fraction", "vent, fraction of the heating steam")
     makeup_temperature: float | None = item_field("temperature", "make-up water temperature")
+    vent_of_feedwater: float | None = item_field("fraction", "vent, fraction of the feedwater")
 
 
 @dataclass(frozen=True)
@@ -132,7 +139,14 @@ class User:
     duties: tuple = ()    # ((load case, W), ...)
     return_fraction: float = item_field("fraction", "condensate returned, fraction", 0.0)
     return_temperature: float | None = item_field("temperature", "condensate return temperature")
+    condensate_to: str = item_field("text", "condensate returned to (vented receiver, cooled, deaerator)",
+                                    RETURN_ROUTES[0])
     link: Link | None = None
+
+    @property
+    def return_flashes_off(self):
+        """Whether the returned condensate loses its flash at an atmospheric (vented) receiver."""
+        return self.condensate_to == RETURN_ROUTES[0]
 
     def load(self, case):
         """``("flow", kg/s)`` or ``("duty", W)`` in a load case (zero when the case gives none)."""

@@ -5,12 +5,14 @@ The case file holds::
     [inputs.boiler]        header, pressure, temperature, flow ("balances the site" or a flow), capacity,
                            efficiency, blowdown_fraction or feedwater_tds with boiler_water_tds,
                            blowdown_flash_header, blowdown_cooler_approach or blowdown_cooler_effectiveness
-    [inputs.deaerator]     pressure, steam_header, vent_fraction, makeup_temperature
+    [inputs.deaerator]     pressure, steam_header, vent_fraction (of the heating steam) or vent_of_feedwater,
+                           makeup_temperature
     [[inputs.load_case]]   name, hours
     [[inputs.letdown]]     name, from, to, target_superheat or target_temperature, water_temperature,
                            water_pressure, max_flow, min_flow, record
     [[inputs.user]]        name, header, load (a flow or a duty, or a table of them by load case),
-                           condensate_return, return_temperature, record
+                           condensate_return, return_temperature, condensate_to ("vented receiver", the
+                           default, "cooled" or "deaerator"), record
     [[inputs.flash]]       name, condensate_of, to, record
     [[inputs.turbine]]     name, from, to, flow ("balances the exhaust header" or a flow), max_flow,
                            isentropic_efficiency, generator_efficiency (:mod:`.turbine_reading`)
@@ -30,18 +32,19 @@ import math
 from ...errors import CaseFileError, InputError, UnitError
 from ...units.quantities import parse_amount, parse_pressure, parse_quantity
 from .blowdown import RECOVERY
-from .items import NAME_PATTERN, Boiler, Deaerator, Flash, Letdown, LoadCase, User
+from .items import NAME_PATTERN, RETURN_ROUTES, Boiler, Deaerator, Flash, Letdown, LoadCase, User
 
 SECTIONS = ("boiler", "deaerator", "load_case", "letdown", "user", "flash", "turbine", "what_if", "links")
 KEYS = {
     "boiler": ("header", "pressure", "temperature", "flow", "capacity", "efficiency", "blowdown_fraction",
                "feedwater_tds", "boiler_water_tds", "blowdown_flash_header", "blowdown_cooler_approach",
                "blowdown_cooler_effectiveness"),
-    "deaerator": ("pressure", "steam_header", "vent_fraction", "makeup_temperature"),
+    "deaerator": ("pressure", "steam_header", "vent_fraction", "vent_of_feedwater", "makeup_temperature"),
     "load_case": ("name", "hours"),
     "letdown": ("name", "from", "to", "target_superheat", "target_temperature", "water_temperature",
                 "water_pressure", "max_flow", "min_flow", "record", "revision"),
-    "user": ("name", "header", "load", "condensate_return", "return_temperature", "record", "revision"),
+    "user": ("name", "header", "load", "condensate_return", "return_temperature", "condensate_to", "record",
+             "revision"),
     "flash": ("name", "condensate_of", "to", "record", "revision"),
     "turbine": ("name", "from", "to", "flow", "max_flow", "isentropic_efficiency", "generator_efficiency"),
     "what_if": ("without",),
@@ -202,10 +205,14 @@ def read_deaerator(row, site, given):
                          f"({site.atmospheric_pressure / 1e5:.4g} bar(a)): air would leak in, not be vented",
                          field="deaerator.pressure", value=row.get("pressure"),
                          fix='give its working pressure, above atmospheric, e.g. "0.2 bar(g)"')
+    if "vent_fraction" in row and "vent_of_feedwater" in row:
+        raise InputError("give vent_fraction (of the heating steam) or vent_of_feedwater, not both",
+                         field="deaerator.vent_of_feedwater", fix="keep one basis for the vent")
     for key in KEYS["deaerator"]:
         _given(given, f"deaerator.{key}", row, key)
     return Deaerator(pressure=pressure, steam_header=_header(row, "steam_header", where, site),
                      vent_fraction=_fraction(row, "vent_fraction", where, 0.0, below_one=True),
+                     vent_of_feedwater=_fraction(row, "vent_of_feedwater", where, below_one=True),
                      makeup_temperature=_quantity(row, "makeup_temperature", where, "temperature"))
 
 
@@ -301,6 +308,17 @@ def _loads(row, where, case_names):
     return tuple(flows), tuple(duties)
 
 
+def _route(row, where):
+    """Where the user's condensate goes: one of :data:`~.items.RETURN_ROUTES` (default the vented receiver)."""
+    route = row.get("condensate_to", RETURN_ROUTES[0])
+    if not isinstance(route, str) or route.strip().lower() not in RETURN_ROUTES:
+        raise InputError("is not a place the condensate can go", field=f"{where}.condensate_to", value=route,
+                         fix="write one of: " + ", ".join(f'"{r}"' for r in RETURN_ROUTES) + ' ("vented receiver": '
+                             'its flash is lost at the site atmosphere; "cooled": cooled below boiling before the '
+                             'receiver; "deaerator": returned under pressure into the deaerator)')
+    return route.strip().lower()
+
+
 def read_users(rows, site, given, case_names, links):
     users = []
     for i, row in enumerate(rows):
@@ -308,7 +326,8 @@ def read_users(rows, site, given, case_names, links):
         name = _name(row, where)
         values = dict(name=name, header=_header(row, "header", where, site),
                       return_fraction=_fraction(row, "condensate_return", where, 0.0),
-                      return_temperature=_quantity(row, "return_temperature", where, "temperature"))
+                      return_temperature=_quantity(row, "return_temperature", where, "temperature"),
+                      condensate_to=_route(row, where))
         if "record" in row:
             values = links.user(values, row, where, case_names)
             for case in case_names:
@@ -324,6 +343,7 @@ def read_users(rows, site, given, case_names, links):
         _given(given, f"user.{name}.return_fraction", row, "condensate_return")
         _given(given, f"user.{name}.return_temperature", row, "return_temperature")
         _given(given, f"user.{name}.header", row, "header")
+        _given(given, f"user.{name}.condensate_to", row, "condensate_to")
         users.append(User(**values))
     _unique(users, "user")
     return tuple(users)

@@ -17,8 +17,8 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 
 from ...errors import InputError, NotConvergedError, OutOfRangeError
-from ...properties.steam import SteamState, saturation_temperature
-from .blowdown import RECOVERY, cooler_heat, flash_fraction, recovery_states, without_recovery
+from ...properties.steam import CRITICAL_PRESSURE, SteamState, saturation_temperature
+from .blowdown import RECOVERY, cooler_heat, flash_fraction, has_recovery, recovery_states, without_recovery
 from .turbines import expansion
 
 #: Largest relative change of any flow or header enthalpy between two sweeps of a solved case.
@@ -47,6 +47,8 @@ class CaseBalance:
     blowdown_residual: float = 0.0                         # to the cooler or drain, kg/s
     blowdown_heat_recovered: float = 0.0                   # by the make-up water in the cooler, W
     returns: dict = field(default_factory=dict)            # name -> (kg/s, SteamState)
+    return_flash_fraction: dict = field(default_factory=dict)  # user -> flash fraction at its vented receiver
+    return_flash_vented: dict = field(default_factory=dict)    # user -> kg/s flashed off at its vented receiver
     user_flows: dict = field(default_factory=dict)         # user -> kg/s
     flash_steam: dict = field(default_factory=dict)        # flash -> kg/s
     flash_residual: dict = field(default_factory=dict)     # flash -> kg/s
@@ -62,6 +64,7 @@ class CaseBalance:
     header_states: dict = field(default_factory=dict)      # header -> SteamState
     inflows: dict = field(default_factory=dict)            # header -> [(name, kg/s, SteamState)]
     outflows: dict = field(default_factory=dict)           # header -> [(name, kg/s)]
+    returns_not_taken: float = 0.0                         # kg/s of returns a short site cannot take
     deaerator_header: str = ""
     sweeps: int = 0
     last_change: float = 0.0
@@ -79,6 +82,13 @@ def fixed_states(inputs, site):
     """The states that do not change between sweeps: boiler steam, feedwater, make-up, vent, blowdown, spray water."""
     boiler, da = inputs.boiler, inputs.deaerator
     states = {}
+    if boiler.pressure >= CRITICAL_PRESSURE:
+        raise InputError(f"a boiler at {boiler.pressure / 1e5:.5g} bar(a) is at or above the critical pressure "
+                         f"{CRITICAL_PRESSURE / 1e5:.5g} bar(a) (IAPWS-IF97): it has no boiling water, so no blowdown "
+                         "and no saturated steam", field="boiler.pressure", value=f"{boiler.pressure / 1e5:.5g} bar(a)",
+                         limits=(0, CRITICAL_PRESSURE / 1e5, "bar(a)"),
+                         fix="give the drum boiler's working pressure, below the critical pressure")
+    states["blowdown"] = _state(lambda: SteamState.from_p_dryness(boiler.pressure, 0.0), "boiler.pressure")
     if boiler.temperature is None:
         states["boiler_steam"] = SteamState.from_p_dryness(boiler.pressure, 1.0)
     else:
@@ -90,7 +100,6 @@ def fixed_states(inputs, site):
                              fix="give the superheated steam temperature, or leave it out for saturated steam")
     states["feedwater"] = SteamState.from_p_dryness(da.pressure, 0.0)
     states["deaerator_vent"] = SteamState.from_p_dryness(da.pressure, 1.0)
-    states["blowdown"] = SteamState.from_p_dryness(boiler.pressure, 0.0)
     makeup_t = da.makeup_temperature if da.makeup_temperature is not None else site.makeup_water_temperature
     if makeup_t is None:
         raise InputError("the make-up water temperature is not given", field="deaerator.makeup_temperature",
@@ -111,8 +120,22 @@ def fixed_states(inputs, site):
                              field=f"letdown.{ld.name}.water_temperature", fix="give the feed-pump water temperature")
         states[f"spray:{ld.name}"] = water
         p_out = site.headers[ld.target]
-        t_out = ld.target_temperature if ld.target_temperature is not None else \
-            saturation_temperature(p_out) + ld.target_superheat
+        t_sat = saturation_temperature(p_out)
+        if ld.target_temperature is None and ld.target_superheat <= 0.0:
+            raise InputError(f"let-down {ld.name} desuperheated to {ld.target_superheat:g} K of superheat: a spray "
+                             "desuperheater cannot bring steam to saturation (its water would stay unevaporated)",
+                             field=f"letdown.{ld.name}.target_superheat", value=f"{ld.target_superheat:g} K",
+                             fix='give a superheat above zero, e.g. "10 K" (common practice), or leave the '
+                                 "desuperheater out for a throttling let-down")
+        if ld.target_temperature is not None and ld.target_temperature <= t_sat:
+            raise InputError(f"let-down {ld.name} desuperheated to {ld.target_temperature - 273.15:.2f} °C, at or "
+                             f"below saturation at its {ld.target} header ({t_sat - 273.15:.2f} °C at "
+                             f"{p_out / 1e5:.4g} bar(a)): a spray desuperheater cannot reach it",
+                             field=f"letdown.{ld.name}.target_temperature",
+                             value=f"{ld.target_temperature - 273.15:.2f} °C",
+                             fix=f"give a temperature above {t_sat - 273.15:.1f} °C (e.g. 10 K above it, common "
+                                 "practice), or target_superheat")
+        t_out = ld.target_temperature if ld.target_temperature is not None else t_sat + ld.target_superheat
         states[f"target:{ld.name}"] = _state(lambda: SteamState.from_pT(p_out, t_out),
                                              f"letdown.{ld.name}.target_temperature")
     for user in inputs.users:
@@ -127,9 +150,61 @@ def fixed_states(inputs, site):
                                  f"saturation at its header ({saturation_temperature(p_u) - 273.15:.2f} °C)",
                                  field=f"user.{user.name}.return_temperature",
                                  fix="give a temperature at or below the header's saturation temperature")
+            if user.condensate_to != "deaerator":
+                # An open receiver (or the cooler ahead of it) holds water at most at its boiling point.
+                p_r = site.atmospheric_pressure
+                if user.return_temperature > saturation_temperature(p_r):
+                    t_boil = saturation_temperature(p_r) - 273.15
+                    raise InputError(f"condensate of {user.name} at {user.return_temperature - 273.15:.2f} °C is "
+                                     f"above its boiling point at the site atmosphere ({t_boil:.2f} °C at "
+                                     f"{p_r / 1e5:.4g} bar(a)): a {user.condensate_to} return cannot hold it",
+                                     field=f"user.{user.name}.return_temperature",
+                                     fix="give the temperature of the water leaving the receiver, or write "
+                                         'condensate_to = "deaerator" for a return under pressure into the deaerator')
             states[f"return:{user.name}"] = _state(lambda: SteamState.from_pT(p_u, min(
                 user.return_temperature, saturation_temperature(p_u) - 1e-6)), f"user.{user.name}.return_temperature")
+    _check_vent(boiler, da, states)
     return recovery_states(boiler, site.headers, da.pressure, states)
+
+
+def _check_vent(boiler, da, states):
+    """Refuse a blowdown or a deaerator vent so large that no balance exists.
+
+    Each kg of heating steam :math:`D` gives :math:`h_s - h_{mu} - v (h_v - h_{mu})` to the feedwater, and every kg
+    of steam the boiler raises (this heating steam among it) needs :math:`(1 + k)(h_{fw} - h_{mu})`, less at most
+    :math:`k (h_{bd} - h_{mu})` recovered from its blowdown when it has a blowdown recovery. With :math:`h_s` at
+    most the boiler steam's enthalpy, no finite :math:`D` closes the deaerator unless the first exceeds the second:
+    the blowdown is refused when even a deaerator without vent could not, else the vent.
+    """
+    h_mu = states["makeup"].enthalpy
+    k = boiler.blowdown_of_steam
+    v, w = _vent_bases(da)
+    recovered = k * (states["blowdown"].enthalpy - h_mu) if has_recovery(boiler) else 0.0
+    latent = states["deaerator_vent"].enthalpy - h_mu
+    needs = (1 + k) * (states["feedwater"].enthalpy - h_mu) - recovered
+    if states["boiler_steam"].enthalpy - h_mu <= needs:
+        by_fraction = boiler.blowdown_fraction is not None
+        raise InputError(f"a blowdown of {k:.3g} kg per kg of steam takes more heat from the feedwater than the steam "
+                         "raised can give back in the deaerator: no balance exists",
+                         field="boiler.blowdown_fraction" if by_fraction else "boiler.feedwater_tds",
+                         value=boiler.blowdown_fraction if by_fraction else boiler.feedwater_tds,
+                         fix="check the blowdown figures (the boiler-water limit well above the feedwater's, in the "
+                             "same measure); blowdown is seldom above a tenth of the feedwater (common practice)")
+    needs += (1 + k) * w * latent
+    if w > 0.0 and states["boiler_steam"].enthalpy - h_mu <= needs:
+        raise InputError(f"a deaerator venting {w:g} of its feedwater needs more heating steam than the boiler can "
+                         "raise: no balance exists", field="deaerator.vent_of_feedwater", value=w,
+                         fix="give the vent as a fraction of the feedwater: a few thousandths or less "
+                             "(common practice)")
+    gives = states["boiler_steam"].enthalpy - h_mu - v * latent
+    if gives <= needs:
+        limit = (states["boiler_steam"].enthalpy - h_mu - needs) / (states["deaerator_vent"].enthalpy - h_mu)
+        raise InputError(f"a deaerator venting {da.vent_fraction:g} of its heating steam vents more than the steam "
+                         "leaves to heat the feedwater: no balance exists (the heating steam would grow without end); "
+                         f"here the vent must be below {limit:.3g}", field="deaerator.vent_fraction",
+                         value=da.vent_fraction, limits=(0, round(limit, 3), ""),
+                         fix="give the vent as a fraction of the heating steam: a few hundredths or less "
+                             "(common practice)")
 
 
 def _change(new, old):
@@ -138,6 +213,42 @@ def _change(new, old):
         scale = max(abs(value), FLOW_SCALE if key[0] == "m" else 1.0)
         worst = max(worst, abs(value - old.get(key, 0.0)) / scale)
     return worst
+
+
+def _vent_bases(da):
+    """(v, w): the deaerator's vent as a fraction of its heating steam and of its feedwater (one of them zero)."""
+    if da.vent_of_feedwater is not None:
+        return 0.0, da.vent_of_feedwater
+    return da.vent_fraction, 0.0
+
+
+def _capped_returns(b, h_steam, h_fw, h_mu, h_v, vents, returned, heat_returned):
+    """Scale the returns of a short site so that they close the deaerator with no make-up; the deaerator steam.
+
+    With make-up zero and a vent :math:`V = v D + w F`, the deaerator's mass balance
+    :math:`R' = F (1 + w) - (1 - v) D` and energy balance :math:`D (h_s - h_{mu}) = F (h_{fw} - h_{mu}) +
+    V (h_v - h_{mu}) - R' c - Q_{bd}` (:math:`c` the returns' mean enthalpy above make-up) give
+    :math:`D = (F (h_{fw} - h_{mu} + w (h_v - h_{mu}) - (1 + w) c) - Q_{bd}) / (h_s - h_{mu} - v (h_v - h_{mu}) -
+    (1 - v) c)`; when that is negative the deaerator takes no steam and the surplus heat flashes off at its vent.
+    """
+    v, w = vents
+    c, a, latent = heat_returned / returned, h_fw - h_mu, h_v - h_mu
+    f = b.feedwater
+    steam = ((f * (a + w * latent - (1 + w) * c) - b.blowdown_heat_recovered)
+             / (h_steam - h_mu - v * latent - (1 - v) * c))
+    if steam >= 0.0:
+        kept = f * (1 + w) - (1.0 - v) * steam
+        b.deaerator_vent, b.deaerator_flash_vent = v * steam + w * f, 0.0
+    else:
+        steam = 0.0
+        b.deaerator_vent = (f * (c - a) + b.blowdown_heat_recovered) / (latent - c)
+        b.deaerator_flash_vent = b.deaerator_vent - w * f
+        kept = f + b.deaerator_vent
+    scale = max(0.0, kept) / returned
+    b.returns = {name: (m * scale, state) for name, (m, state) in b.returns.items()}
+    b.returns_not_taken = returned - max(0.0, kept)
+    b.deaerator_steam, b.makeup = steam, 0.0
+    return steam
 
 
 def solve_case(inputs, site, case, states, out_of_service=()):
@@ -293,24 +404,36 @@ def solve_case(inputs, site, case, states, out_of_service=()):
         for u in users:
             if u.return_fraction > 0.0 and u.name not in flashed_users:
                 state = states[f"return:{u.name}"]
-                b.returns[f"condensate of {u.name}"] = (u.return_fraction * b.user_flows[u.name], state)
+                condensate = u.return_fraction * b.user_flows[u.name]
+                if u.return_flashes_off:
+                    x = flash_fraction(liquid[u.header].enthalpy, site.atmospheric_pressure)
+                    b.return_flash_fraction[u.name] = x
+                    b.return_flash_vented[u.name] = x * condensate
+                    condensate -= x * condensate
+                b.returns[f"condensate of {u.name}"] = (condensate, state)
         for f in flashes:
             b.returns[f"residual condensate of {f.name}"] = (b.flash_residual[f.name], liquid[f.target])
         returned = sum(m for m, _ in b.returns.values())
         heat_returned = sum(m * (s.enthalpy - h_mu) for m, s in b.returns.values())
         h_steam = h_header[da.steam_header]
-        needed = b.feedwater * (h_fw - h_mu) - heat_returned - b.blowdown_heat_recovered
+        v, w = _vent_bases(da)
+        fixed_vent = w * b.feedwater             # a vent stated on the feedwater does not follow the heating steam
+        needed = b.feedwater * (h_fw - h_mu) - heat_returned - b.blowdown_heat_recovered + fixed_vent * (h_v - h_mu)
         if needed >= 0.0:
-            deaerator_steam = needed / (h_steam - h_mu - da.vent_fraction * (h_v - h_mu))
-            b.deaerator_vent = da.vent_fraction * deaerator_steam
+            deaerator_steam = needed / (h_steam - h_mu - v * (h_v - h_mu))
+            b.deaerator_vent = v * deaerator_steam + fixed_vent
         else:
             # The returns bring more heat than the feedwater needs: the deaerator takes no steam, and the surplus
             # flashes off at its vent as saturated steam.
             deaerator_steam = 0.0
             b.deaerator_flash_vent = -needed / (h_v - h_mu)
-            b.deaerator_vent = b.deaerator_flash_vent
+            b.deaerator_vent = b.deaerator_flash_vent + fixed_vent
         b.deaerator_steam = deaerator_steam
         b.makeup = b.feedwater + b.deaerator_vent - returned - deaerator_steam
+        if b.makeup < 0.0 and b.shortfalls:
+            # A header nobody supplies: its users cannot get their steam, so they cannot return its condensate. The
+            # returns are taken as the water actually supplied can give back (no make-up), the rest unreturned.
+            deaerator_steam = _capped_returns(b, h_steam, h_fw, h_mu, h_v, (v, w), returned, heat_returned)
         blowdown, makeup = b.blowdown, b.makeup
         now = {"m_boiler": b.boiler_steam, "m_deaerator": deaerator_steam, "m_blowdown": b.blowdown,
                "m_makeup": b.makeup, "q_blowdown_cooler": b.blowdown_heat_recovered,
@@ -327,14 +450,14 @@ def solve_case(inputs, site, case, states, out_of_service=()):
             f"{b.last_change:.1e}, tolerance {TOLERANCE:.0e})", field=f"load_case.{case}", value=b.last_change,
             fix="check for a loop the balance cannot close (a deaerator on a header fed only through it), or "
                 "split the load case")
-    if b.makeup < 0.0:
+    if b.makeup < -FLOW_SCALE * 1e-3:
         raise InputError(f"load case {case!r}: the condensate returned exceeds the feedwater by "
                          f"{-b.makeup * 3600:.1f} kg/h", field=f"load_case.{case}",
                          fix="check the users' returned fractions: the site cannot return more water than it uses")
     for h in headers:
         b.header_states[h] = SteamState.from_ph(headers[h], h_header[h])
     b.makeup_state = states["makeup"]
-    if b.blowdown_heat_recovered > 0.0:
+    if b.blowdown_heat_recovered > 0.0 and b.makeup > 0.0:
         b.makeup_state = SteamState.from_ph(states["makeup_cooler_pressure"],
                                             h_mu + b.blowdown_heat_recovered / b.makeup)
     b.states = states

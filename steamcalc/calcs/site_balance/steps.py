@@ -63,24 +63,33 @@ def case_steps(result, inputs, site, b, efficiency, case):
     heat_returned = sum(m * (s.enthalpy - h_mu) for m, s in b.returns.values())
     h_r = h_mu + heat_returned / returned if returned > 0.0 else h_mu
     steam_state = b.header_states[inputs.deaerator.steam_header]
-    if b.blowdown_heat_recovered > 0.0:
-        result.work(f"{c}: deaerator heating steam", "m_s = (m_fw·(h_fw − h_mu) − m_r·(h_r − h_mu) − Q_bd) / "
+    da = inputs.deaerator
+    operands = dict(m_fw=_kg_h(b.feedwater), h_fw=_kj(states["feedwater"]), h_mu=_kj(states["makeup"]),
+                    m_r=_kg_h(returned), h_r=(h_r / 1e3, "kJ/kg"), h_s=_kj(steam_state),
+                    h_v=_kj(states["deaerator_vent"]))
+    cooler = " − Q_bd" if b.blowdown_heat_recovered > 0.0 else ""
+    if cooler:
+        operands["Q_bd"] = (b.blowdown_heat_recovered / 1e3, "kW")
+    if b.deaerator_steam > 0.0 and da.vent_of_feedwater is not None:
+        result.work(f"{c}: deaerator heating steam", f"m_s = (m_fw·(h_fw − h_mu) + w·m_fw·(h_v − h_mu) − "
+                    f"m_r·(h_r − h_mu){cooler}) / (h_s − h_mu)",
+                    f"(m_fw*(h_fw - h_mu) + w*m_fw*(h_v - h_mu) - m_r*(h_r - h_mu){cooler.replace(' − ', ' - ')})"
+                    "/(h_s - h_mu)", b.deaerator_steam * 3600, "kg/h", w=(da.vent_of_feedwater, ""), **operands)
+    elif b.deaerator_steam > 0.0:
+        result.work(f"{c}: deaerator heating steam", f"m_s = (m_fw·(h_fw − h_mu) − m_r·(h_r − h_mu){cooler}) / "
                     "(h_s − h_mu − v·(h_v − h_mu))",
-                    "(m_fw*(h_fw - h_mu) - m_r*(h_r - h_mu) - Q_bd)/(h_s - h_mu - v*(h_v - h_mu))",
-                    b.deaerator_steam * 3600, "kg/h", m_fw=_kg_h(b.feedwater), h_fw=_kj(states["feedwater"]),
-                    h_mu=_kj(states["makeup"]), m_r=_kg_h(returned), h_r=(h_r / 1e3, "kJ/kg"),
-                    Q_bd=(b.blowdown_heat_recovered / 1e3, "kW"), h_s=_kj(steam_state),
-                    v=(inputs.deaerator.vent_fraction, ""), h_v=_kj(states["deaerator_vent"]))
+                    f"(m_fw*(h_fw - h_mu) - m_r*(h_r - h_mu){cooler.replace(' − ', ' - ')})"
+                    "/(h_s - h_mu - v*(h_v - h_mu))", b.deaerator_steam * 3600, "kg/h", v=(da.vent_fraction, ""),
+                    **operands)
+    if b.returns_not_taken > 0.0:
+        # A short site: no make-up, the returns taken are what the feedwater and vent leave room for.
+        result.work(f"{c}: condensate returns the deaerator can take (no make-up)", "m_r = m_fw + m_v − m_s",
+                    "m_fw + m_v - m_s", returned * 3600, "kg/h", m_fw=_kg_h(b.feedwater),
+                    m_v=_kg_h(b.deaerator_vent), m_s=_kg_h(b.deaerator_steam))
     else:
-        result.work(f"{c}: deaerator heating steam", "m_s = (m_fw·(h_fw − h_mu) − m_r·(h_r − h_mu)) / "
-                    "(h_s − h_mu − v·(h_v − h_mu))",
-                    "(m_fw*(h_fw - h_mu) - m_r*(h_r - h_mu))/(h_s - h_mu - v*(h_v - h_mu))",
-                    b.deaerator_steam * 3600, "kg/h", m_fw=_kg_h(b.feedwater), h_fw=_kj(states["feedwater"]),
-                    h_mu=_kj(states["makeup"]), m_r=_kg_h(returned), h_r=(h_r / 1e3, "kJ/kg"), h_s=_kj(steam_state),
-                    v=(inputs.deaerator.vent_fraction, ""), h_v=_kj(states["deaerator_vent"]))
-    result.work(f"{c}: make-up water", "m_mu = m_fw + v·m_s − m_r − m_s", "m_fw + v*m_s - m_r - m_s",
-                b.makeup * 3600, "kg/h", m_fw=_kg_h(b.feedwater), v=(inputs.deaerator.vent_fraction, ""),
-                m_s=_kg_h(b.deaerator_steam), m_r=_kg_h(returned))
+        result.work(f"{c}: make-up water", "m_mu = m_fw + m_v − m_r − m_s", "m_fw + m_v - m_r - m_s",
+                    b.makeup * 3600, "kg/h", m_fw=_kg_h(b.feedwater), m_v=_kg_h(b.deaerator_vent),
+                    m_s=_kg_h(b.deaerator_steam), m_r=_kg_h(returned))
     heat = (b.boiler_steam * (states["boiler_steam"].enthalpy - states["feedwater"].enthalpy)
             + b.blowdown * (states["blowdown"].enthalpy - states["feedwater"].enthalpy))
     result.work(f"{c}: boiler fuel input", "P = (m_steam·(h_steam − h_fw) + m_bd·(h_bd − h_fw)) / η",
