@@ -46,9 +46,10 @@ def test_thermal_relief_line_by_hand():
     """Source: the D orifice's liquid capacity W = Kd·A·√(2ρΔp) (API 520 Part I liquid equation) found again by
     fluids.safety_valve.API520_A_l (its area for that flow is the D orifice's, within 0.2 %: the standard's
     11.78 and its water density differ from the exact form); Darcy-Weisbach with iapws (IF97) water at 85 °C and
-    fluids' Colebrook; the reaction force G²·A/ρ by hand."""
-    result = calculate(Inputs(**HEATER, **THERMAL_PIPE), Site())
-    p_r = g(3.0) + 0.3 * BAR
+    fluids' Colebrook; the reaction force G²·A/ρ by hand. The process side is designed for 10 bar(g), so its water
+    does not boil under the 8 bar(g) steam (188 °C against 175 °C, IF97) and the valve relieves liquid."""
+    result = calculate(Inputs(**{**HEATER, "process_side_design_pressure": g(10.0)}, **THERMAL_PIPE), Site())
+    p_r = g(10.0) + 1.0 * BAR
     relieving = IAPWS97(P=p_r / 1e6, T=358.15)
     flow = 0.65 * D_ORIFICE * 1e-6 * math.sqrt(2 * relieving.rho * (p_r - ATM))
     assert _step(result, "Thermal relief: liquid capacity of the valve (D orifice)").value == pytest.approx(
@@ -96,12 +97,27 @@ def test_pipe_too_small_for_a_t_orifice_fails():
 
 def test_flashing_thermal_relief_goes_two_phase():
     """Source: IF97 saturation at the atmosphere (99.97 °C): water at 130 °C flashes in the valve and the pipe,
-    its capacity by direct integration (API 520 Part I annex B) and its line by the omega method."""
-    result = calculate(Inputs(**{**HEATER, "process_outlet_temperature": 403.15, "process_pressure": g(2.5)},
-                              **THERMAL_PIPE), Site())
+    its capacity by direct integration (API 520 Part I annex B) and its line by the omega method (process side
+    designed for 10 bar(g): the water does not boil under the 8 bar(g) steam; a DN50 pipe, as water at 130 °C
+    relieved from 11 bar(g) flashes to far more volume than from the 3.3 bar(g) of a lower design)."""
+    result = calculate(Inputs(**{**HEATER, "process_outlet_temperature": 403.15, "process_pressure": g(2.5),
+                                 "process_side_design_pressure": g(10.0)},
+                              **{**THERMAL_PIPE, "thermal_discharge_size": "DN50"}), Site())
     assert _step(result, "Thermal relief: flashing-liquid capacity of the valve (D orifice)").value > 0
     assert _step(result, "Thermal relief: built-up back pressure (two-phase)").value > ATM / BAR
     assert result.value("thermal_relief_reaction_force") > 0
+
+
+def test_boiling_process_water_relieves_vapour_through_its_thermal_pipe():
+    """Source: IF97 saturation (water at 4.31 bar(a) boils at 146 °C, 8 bar(g) steam condenses at 175 °C): the
+    thermal relief is vapour generation φ/h_fg, sized as steam (API 520 Part I), its pipe by isothermal flow; a
+    D orifice cannot pass it (the check warns)."""
+    result = calculate(Inputs(**HEATER, **THERMAL_PIPE), Site())
+    latent = IAPWS97(P=(g(3.0) + 0.3 * BAR) / 1e6, x=1).h - IAPWS97(P=(g(3.0) + 0.3 * BAR) / 1e6, x=0).h
+    assert result.value("thermal_relief_vapour_load") == pytest.approx(
+        result.value("steam_side_heat") / latent * 3600, rel=1e-6)
+    assert _check(result, "Thermal relief: minimum size").status == "warn"
+    assert result.value("thermal_relief_built_up_back_pressure") > ATM / BAR
 
 
 def test_no_pipes_are_notices():

@@ -12,8 +12,8 @@ from __future__ import annotations
 from ..equipment.discharge_line import back_pressure_limit, built_up_back_pressure
 from ..equipment.piping import flow_area, pipe_inner_diameter
 from ..equipment.relief import (
-    API526_AREAS_IN2, DEFAULT_KD, MM2_PER_IN2, MOLAR_MASS_WATER, api526_orifice, direct_integration_area,
-    direct_integration_flux, reaction_force, steam_equation_area,
+    API526_AREAS_IN2, DEFAULT_KD, INLET_LOSS_LIMIT, MM2_PER_IN2, MOLAR_MASS_WATER, api526_orifice,
+    direct_integration_area, direct_integration_flux, reaction_force, steam_equation_area,
 )
 from ..equipment.two_phase_line import pipe_omega, two_phase_back_pressure, two_phase_reaction_force
 from ..equipment.two_phase_relief import CERTIFIED_CAPACITY, size_flashing_relief
@@ -21,6 +21,10 @@ from ..errors import OutOfRangeError
 from ..properties.steam import SteamState, dynamic_viscosity, saturation_pressure
 from ..units.amounts import Phrase
 
+#: Pa, water's critical pressure (IAPWS R7-97).
+WATER_CRITICAL_PRESSURE = 22.064e6
+#: Reduced pressure above which the omega method is flagged as near the critical point (see _omega_range).
+OMEGA_REDUCED_PRESSURE_LIMIT = 0.5
 #: Overpressure of a single relief valve in a non-fire case, fraction of the gauge set pressure (API 520 Part I).
 DEFAULT_OVERPRESSURE = 0.10
 DEFAULT_SCHEDULE = "40"
@@ -48,32 +52,49 @@ def relieving_pressure(set_pressure, atm, result, prefix, name):
     return p_r
 
 
-def steam_relief_area(result, name, relieving, flow_kg_h, back):
-    """Required area (mm²) for dry or wet steam: direct integration on IF97, and the steam equation for dry steam
-    in critical flow; the larger governs. Returns ``(area, method)``."""
+def steam_relief_area(result, name, relieving, flow_kg_h, back, kb=1.0):
+    """Required area (mm²) for dry or wet steam: direct integration on IF97 down to the back pressure ``back``
+    (Pa; critical or subcritical flow as the isentrope gives), and the steam equation for dry steam in critical
+    flow; the larger governs. ``kb`` is the balanced-bellows back-pressure correction (API 520 Part I figure 31),
+    1 for other valves. Returns ``(area, method)``."""
     nozzle = direct_integration_flux(relieving, back)
-    area_di = direct_integration_area(flow_kg_h, nozzle, DEFAULT_KD)
+    area_di = direct_integration_area(flow_kg_h, nozzle, DEFAULT_KD, kb)
+    throat = ("" if nozzle.choked else
+              ", p_t the back pressure (subcritical flow: the back pressure is above the pressure of the largest flux)")
     result.work(f"{name}: mass flux, direct integration",
-                "G = ρ(p_t, s0)·√(2(h0 − h(p_t, s0)))  [API 520 Part I annex B, IF97]",
+                f"G = ρ(p_t, s0)·√(2(h0 − h(p_t, s0))){throat}  [API 520 Part I annex B, IF97]",
                 "isentropic_flux(P1, h1, p_t)", nozzle.mass_flux, "kg/(m**2*s)",
                 P1=(relieving.pressure / 1e5, "bar"), h1=(relieving.enthalpy / 1e3, "kJ/kg"),
                 p_t=(nozzle.throat_pressure / 1e5, "bar"))
-    result.work(f"{name}: required area, direct integration", "A = W / (Kd·G)", "W/(Kd*G)", area_di, "mm**2",
-                W=(flow_kg_h, "kg/h"), Kd=(DEFAULT_KD, ""), G=(nozzle.mass_flux, "kg/(m**2*s)"))
+    if kb == 1.0:
+        result.work(f"{name}: required area, direct integration", "A = W / (Kd·G)", "W/(Kd*G)", area_di, "mm**2",
+                    W=(flow_kg_h, "kg/h"), Kd=(DEFAULT_KD, ""), G=(nozzle.mass_flux, "kg/(m**2*s)"))
+    else:
+        result.work(f"{name}: required area, direct integration", "A = W / (Kd·Kb·G)", "W/(Kd*Kb*G)", area_di,
+                    "mm**2", W=(flow_kg_h, "kg/h"), Kd=(DEFAULT_KD, ""), Kb=(kb, ""),
+                    G=(nozzle.mass_flux, "kg/(m**2*s)"))
     if not (nozzle.choked and relieving.phase != "wet"):
         return area_di, "direct integration"
-    area_se, kn, ksh = steam_equation_area(flow_kg_h, relieving.pressure, relieving.temperature, DEFAULT_KD)
-    result.work(f"{name}: required area, API 520 steam equation",
-                "A = 190.5·W / (P1·Kd·KN·KSH)  [mm², kg/h, kPa(a)]", "190.5*W/(P1*Kd*KN*KSH)", area_se, "mm**2",
-                units_fixed=True, W=(flow_kg_h, "kg/h"), P1=(relieving.pressure / 1e3, "kPa"), Kd=(DEFAULT_KD, ""),
-                KN=(kn, ""), KSH=(ksh, ""))
+    area_se, kn, ksh = steam_equation_area(flow_kg_h, relieving.pressure, relieving.temperature, DEFAULT_KD, kb)
+    if kb == 1.0:
+        result.work(f"{name}: required area, API 520 steam equation",
+                    "A = 190.5·W / (P1·Kd·KN·KSH)  [mm², kg/h, kPa(a)]", "190.5*W/(P1*Kd*KN*KSH)", area_se, "mm**2",
+                    units_fixed=True, W=(flow_kg_h, "kg/h"), P1=(relieving.pressure / 1e3, "kPa"),
+                    Kd=(DEFAULT_KD, ""), KN=(kn, ""), KSH=(ksh, ""))
+    else:
+        result.work(f"{name}: required area, API 520 steam equation",
+                    "A = 190.5·W / (P1·Kd·Kb·KN·KSH)  [mm², kg/h, kPa(a)]", "190.5*W/(P1*Kd*Kb*KN*KSH)", area_se,
+                    "mm**2", units_fixed=True, W=(flow_kg_h, "kg/h"), P1=(relieving.pressure / 1e3, "kPa"),
+                    Kd=(DEFAULT_KD, ""), Kb=(kb, ""), KN=(kn, ""), KSH=(ksh, ""))
     return (area_se, "API 520 steam equation") if area_se > area_di else (area_di, "direct integration")
 
 
-def flashing_relief_area(result, name, inlet, flow_kg_h, back):
+def flashing_relief_area(result, name, inlet, flow_kg_h, back, kb=1.0):
     """Required area (mm²) of a two-phase or flashing-liquid load by the omega method and by direct integration,
-    both on IF97; the larger governs. Returns ``(area, method, FlashingRelief)``."""
-    sized = size_flashing_relief(inlet, back, flow_kg_h)
+    both on IF97, down to the back pressure ``back`` (Pa: the omega method's subcritical flux when it is above
+    the critical pressure, API 520 Part I annex C); the larger governs. ``kb``: the balanced-bellows correction
+    (API 520 Part I figure 31), 1 for other valves. Returns ``(area, method, FlashingRelief)``."""
+    sized = size_flashing_relief(inlet, back, flow_kg_h, kb=kb)
     flow = sized.omega
     result.work(f"{name}: omega parameter (two-point, IF97)", "ω = 9·(v9/v0 − 1)  [API 520 Part I annex C]",
                 "9*(v9/v0 - 1)", flow.omega, v9=(sized.second_volume, "m**3/kg"), v0=(1.0 / inlet.density, "m**3/kg"))
@@ -93,15 +114,46 @@ def flashing_relief_area(result, name, inlet, flow_kg_h, back):
                 "G = ρ(p_t, s0)·√(2(h0 − h(p_t, s0)))  [API 520 Part I annex B]", "isentropic_flux(p0, h0, p_t)",
                 sized.direct.mass_flux, "kg/(m**2*s)", p0=(inlet.pressure / 1e5, "bar"),
                 h0=(inlet.enthalpy / 1e3, "kJ/kg"), p_t=(sized.direct.throat_pressure / 1e5, "bar"))
-    result.work(f"{name}: required area, omega method", "A = W / (Kd·G)", "W/(Kd*G)", sized.area_omega, "mm**2",
-                W=(flow_kg_h, "kg/h"), Kd=(sized.kd, ""), G=(flow.mass_flux, "kg/(m**2*s)"))
-    result.work(f"{name}: required area, direct integration", "A = W / (Kd·G)", "W/(Kd*G)", sized.area_direct,
-                "mm**2", W=(flow_kg_h, "kg/h"), Kd=(sized.kd, ""), G=(sized.direct.mass_flux, "kg/(m**2*s)"))
+    for method, area, flux in (("omega method", sized.area_omega, flow.mass_flux),
+                               ("direct integration", sized.area_direct, sized.direct.mass_flux)):
+        if kb == 1.0:
+            result.work(f"{name}: required area, {method}", "A = W / (Kd·G)", "W/(Kd*G)", area, "mm**2",
+                        W=(flow_kg_h, "kg/h"), Kd=(sized.kd, ""), G=(flux, "kg/(m**2*s)"))
+        else:
+            result.work(f"{name}: required area, {method}", "A = W / (Kd·Kb·G)", "W/(Kd*Kb*G)", area, "mm**2",
+                        W=(flow_kg_h, "kg/h"), Kd=(sized.kd, ""), Kb=(kb, ""), G=(flux, "kg/(m**2*s)"))
+    _omega_range(result, name, inlet.pressure)
     load = "two-phase" if flow.region == "two-phase" else "subcooled"
-    result.assumptions.append(
-        f"{name}: Kd = {sized.kd} for preliminary sizing of a {load}"
-        " load (API 520 Part I annex C); the maker's certified two-phase coefficient governs")
+    note = (f"{name}: Kd = {sized.kd} for preliminary sizing of a {load}"
+            " load (API 520 Part I annex C); the maker's certified two-phase coefficient governs")
+    if note not in result.assumptions:
+        result.assumptions.append(note)
     return sized.area, sized.governing, sized
+
+
+def _omega_range(result, name, pressure):
+    """A warning when the omega method is used near water's thermodynamic critical point."""
+    reduced = pressure / WATER_CRITICAL_PRESSURE
+    check = f"{name.split(',')[0]}: omega method range"
+    if reduced <= OMEGA_REDUCED_PRESSURE_LIMIT or any(c.name == check for c in result.checks):
+        return
+    result.check(check, "warn", Phrase.of(
+        "the relieving pressure {p:.4g} is {reduced:.2f} of water's critical pressure {pc:.5g}: near the "
+        "thermodynamic critical point the two-point omega parameter no longer represents the expansion; the direct "
+        "integration on IF97 is the better guide, and the maker's certified capacity governs",
+        p=(pressure / 1e5, "bar"), reduced=(reduced, ""), pc=(WATER_CRITICAL_PRESSURE / 1e5, "bar")))
+    result.assumptions.append(
+        f"{check}: the omega method is taken to hold up to a reduced pressure of {OMEGA_REDUCED_PRESSURE_LIMIT:g} "
+        "(API 520 Part I annex C asks for a system away from the thermodynamic critical point; the figure "
+        f"{OMEGA_REDUCED_PRESSURE_LIMIT:g} is not confirmed against the standard's text)")
+
+
+def inlet_loss_notice(result, name):
+    """The relief valve's inlet pressure loss, which these kinds do not compute: a notice of the rule."""
+    result.notice(f"{name}: relief inlet pressure loss", Phrase.of(
+        "not assessed: the relief valve's inlet pipe is not among the inputs; its pressure loss at the valve's "
+        "rated flow must stay below {limit:g} of the gauge set pressure (API 520 Part II, 7.3.1), for the relief "
+        "system's designer to check", limit=(100.0 * INLET_LOSS_LIMIT, "percent")), act=True)
 
 
 def select_orifice(result, prefix, name, area, flow_kg_h):
@@ -119,26 +171,35 @@ def select_orifice(result, prefix, name, area, flow_kg_h):
     letter, orifice_area = orifice
     result.add(f"{prefix}_orifice", f"{name}: API 526 orifice (smallest large enough)", letter)
     result.add(f"{prefix}_orifice_area", f"{name}: effective area of the {letter} orifice", orifice_area, "mm**2")
-    result.check_limit(f"{name}: relief orifice", (area, "mm**2"), [("<=", (orifice_area, "mm**2"), "fail")],
-                       Phrase.of(f"{letter} orifice, {{orifice:.0f}} effective (API 526) for {{area:.0f}} required; "
-                                 "the maker's certified capacity governs", orifice=(orifice_area, "mm**2"),
-                                 area=(area, "mm**2")), source="API 526")
+    # The smallest orifice large enough always holds the required area: a statement, not a check that could fail.
+    result.notice(f"{name}: relief orifice",
+                  Phrase.of(f"{letter} orifice, {{orifice:.0f}} effective (API 526) for {{area:.0f}} required; "
+                            "the maker's certified capacity governs", orifice=(orifice_area, "mm**2"),
+                            area=(area, "mm**2")))
     return flow_kg_h * orifice_area / area
 
 
 def discharge_section(result, prefix, name, *, valve_type, set_pressure, atm, rated_flow_kg_h, enthalpy, size,
-                      length, fittings_k, schedule=None, keys=DISCHARGE_KEYS):
+                      length, fittings_k, schedule=None, keys=DISCHARGE_KEYS, relieving_temperature=None):
     """Built-up back pressure in the discharge pipe against the valve's limit, and the reaction force at its exit.
 
-    ``enthalpy`` (J/kg) is the steam's, throttled through the valve into the pipe at constant enthalpy.
+    ``enthalpy`` (J/kg) is the steam's, throttled through the valve into the pipe at constant enthalpy. The reaction
+    force takes ``relieving_temperature`` (K), the let-down's basis (steam cools as it throttles, so the relieving
+    temperature gives the larger force); without it, the throttled steam's.
     """
     diameter = discharge_diameter(result, name, size, length, schedule, keys)
     if diameter is None:
-        return
+        return None
     flow = rated_flow_kg_h / 3600.0
     outlet = SteamState.from_ph(atm, enthalpy)
     viscosity = dynamic_viscosity(outlet.temperature, outlet.density)
-    line = built_up_back_pressure(flow, outlet.temperature, diameter, length, fittings_k or 0.0, atm, viscosity)
+    try:
+        line = built_up_back_pressure(flow, outlet.temperature, diameter, length, fittings_k or 0.0, atm, viscosity,
+                                      relieving_pressure=set_pressure + DEFAULT_OVERPRESSURE * (set_pressure - atm))
+    except OutOfRangeError as exc:
+        result.check(f"{name}: built-up back pressure", "fail",
+                     f"{exc.message} ({size}, {length:g} m); fix: {exc.fix}")
+        return None
     result.work(f"{name}: built-up back pressure",
                 "p1 = root of p1² − p2² − G²·(R·T/M)·(f·L/D + ΣK + 2·ln(p1/p2)), isothermal flow, with "
                 "p2 = max(p_atm, G·√(RT/M))",
@@ -152,16 +213,18 @@ def discharge_section(result, prefix, name, *, valve_type, set_pressure, atm, ra
     kappa = SteamState.from_pT(atm, max(outlet.temperature, SteamState.from_p_dryness(atm, 1.0).temperature + 1e-3)
                                ).isentropic_exponent
     exit_area = flow_area(diameter) * 1e6
-    force, p_exit = reaction_force(rated_flow_kg_h, outlet.temperature, kappa, exit_area, atm)
+    t_force = relieving_temperature if relieving_temperature is not None else outlet.temperature
+    force, p_exit = reaction_force(rated_flow_kg_h, t_force, kappa, exit_area, atm)
     result.work(f"{name}: reaction force at the discharge",
                 "F = 129.41·W·√(kT/((k+1)M)) + 10⁻³·A_o·P2,  T = T1 + 273.15  "
                 "[API 520 Part II, 4.4.1.1, eq. (1); "
                 "N, kg/s, °C, kg/kmol, mm², kPa(g)]",
                 "129.41*W*sqrt(k*(T1 + 273.15)/((k + 1)*M)) + 0.001*A_o*P2", force, "N", units_fixed=True,
-                W=(flow, "kg/s"), k=(kappa, ""), T1=(outlet.temperature - 273.15, "degC"),
+                W=(flow, "kg/s"), k=(kappa, ""), T1=(t_force - 273.15, "degC"),
                 M=(MOLAR_MASS_WATER, "kg/kmol"),
                 A_o=(exit_area, "mm**2"), P2=(p_exit / 1e3, "kPa", "difference"))
     result.add(f"{prefix}_reaction_force", f"{name}: reaction force at the open discharge", force, "N")
+    return line.outlet_pressure
 
 
 def discharge_diameter(result, name, size, length, schedule, keys=DISCHARGE_KEYS):
@@ -176,24 +239,28 @@ def discharge_diameter(result, name, size, length, schedule, keys=DISCHARGE_KEYS
     return pipe_inner_diameter(size, schedule or DEFAULT_SCHEDULE, field=keys[0])
 
 
-def back_pressure_check(result, name, valve_type, outlet_pressure, set_pressure, atm, extra=""):
-    """The built-up back pressure as a share of the gauge set pressure, against the limit of the valve type."""
+def back_pressure_check(result, name, valve_type, outlet_pressure, set_pressure, atm, extra="", label=None):
+    """The built-up back pressure as a share of the gauge set pressure, against the limit of the valve type: a
+    warning above the limit, a failure at the gauge set pressure (the valve cannot pass its flow)."""
     fraction, basis = back_pressure_limit(valve_type)
     share = (100.0 * (outlet_pressure - atm) / (set_pressure - atm), "percent")
     limit = (100.0 * fraction, "percent")
+    remedy = ("enlarge or shorten the discharge line, or use a balanced-bellows or pilot-operated valve (the maker's "
+              "limit governs)" if valve_type == "conventional" else
+              "enlarge or shorten the discharge line; the maker's limit for this valve governs")
     # At the gauge set pressure the valve cannot pass its flow at all: a failure, not a warning.
     return result.check_limit(
-        f"{name}: built-up back pressure", share, [("<=", limit, "warn"), ("<", (100.0, "percent"), "fail")],
+        label or f"{name}: built-up back pressure", share,
+        [("<=", limit, "warn"), ("<", (100.0, "percent"), "fail")],
         lambda status: Phrase.of(
             f"{{share:.1f}} of the gauge set pressure, within {{limit:g}} ({valve_type} valve){extra}"
             if status == "pass" else
-            f"{{share:.1f}} of the gauge set pressure, above {{limit:g}} ({valve_type} valve){extra}: enlarge or "
-            "shorten the discharge line, or use a balanced-bellows or pilot-operated valve (the maker's limit "
-            "governs)" if status == "warn" else
+            f"{{share:.1f}} of the gauge set pressure, above {{limit:g}} ({valve_type} valve){extra}: {remedy}"
+            if status == "warn" else
             f"{{share:.1f}} of the gauge set pressure, far above {{limit:g}} ({valve_type} valve){extra}: at the "
             "set pressure the valve cannot pass its flow; enlarge the discharge line (at least the valve's outlet "
             "size) or shorten it", share=share, limit=limit),
-        source=basis)
+        source=basis + "; at 100 % of the gauge set pressure the valve cannot open against it (common practice)")
 
 
 def two_phase_discharge_section(result, prefix, name, *, valve_type, set_pressure, atm, rated_flow_kg_h, relieving,
@@ -206,7 +273,7 @@ def two_phase_discharge_section(result, prefix, name, *, valve_type, set_pressur
     """
     diameter = discharge_diameter(result, name, size, length, schedule, keys)
     if diameter is None:
-        return
+        return None
     flow = rated_flow_kg_h / 3600.0
     fittings_k = fittings_k or 0.0
     # A subcooled liquid flashes from its saturation pressure; above it the pipe carries liquid.
@@ -236,7 +303,7 @@ def two_phase_discharge_section(result, prefix, name, *, valve_type, set_pressur
     except OutOfRangeError as exc:
         result.check(f"{name}: built-up back pressure", "fail",
                      f"{exc.message} ({size}, {length:g} m); fix: {exc.fix}")
-        return
+        return None
     result.work(f"{name}: built-up back pressure (two-phase)",
                 "p1 = root of ∫[p2, p1] 2/(G²·v)·(1 − G²·ω·p0·v0/p²) dp = f·L/D + ΣK,  v = v0·(ω·(p0/p − 1) + 1),  "
                 "p2 = max(p_atm, G·√(ω·p0·v0)), f by Colebrook at Re_lo = G·D/μ_l"
@@ -266,3 +333,4 @@ def two_phase_discharge_section(result, prefix, name, *, valve_type, set_pressur
                 v_e=(line.exit_volume, "m**3/kg"), A=(area * 1e6, "mm**2"), p_e=(line.exit_pressure / 1e5, "bar"),
                 p_atm=(atm / 1e5, "bar"))
     result.add(f"{prefix}_reaction_force", f"{name}: reaction force at the open discharge", force, "N")
+    return line.outlet_pressure

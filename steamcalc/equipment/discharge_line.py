@@ -16,7 +16,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from ..errors import InputError
+from ..errors import InputError, OutOfRangeError
 from .line_loss import STEEL_ROUGHNESS
 from .relief import CONVENTIONAL_BACK_PRESSURE_LIMIT, MOLAR_MASS_WATER, R_UNIVERSAL
 
@@ -46,7 +46,7 @@ class DischargeLine:
 
 
 def built_up_back_pressure(mass_flow, temperature, inner_diameter, length, fittings_k, atmospheric_pressure,
-                           viscosity, molar_mass=MOLAR_MASS_WATER, roughness=STEEL_ROUGHNESS):
+                           viscosity, molar_mass=MOLAR_MASS_WATER, roughness=STEEL_ROUGHNESS, relieving_pressure=None):
     """Pressure at the relief valve outlet from the flow through its discharge pipe.
 
     Parameters
@@ -69,6 +69,10 @@ def built_up_back_pressure(mass_flow, temperature, inner_diameter, length, fitti
         kg/kmol (water 18.015).
     roughness : float
         m (commercial steel by default).
+    relieving_pressure : float, optional
+        Pa (absolute) at the valve inlet. When given, a pipe that would choke at its exit at or above it is
+        refused (:class:`~steamcalc.errors.OutOfRangeError`): no outlet pressure below the relieving pressure
+        passes the flow, as the two-phase line refuses it.
 
     Returns
     -------
@@ -116,6 +120,12 @@ def built_up_back_pressure(mass_flow, temperature, inner_diameter, length, fitti
     resistance = friction * length / inner_diameter + fittings_k
     choked_exit = flux * math.sqrt(gas)
     exit_pressure = max(atmospheric_pressure, choked_exit)
+    if relieving_pressure is not None and exit_pressure >= relieving_pressure:
+        raise OutOfRangeError(
+            f"the discharge pipe chokes at {exit_pressure / 1e5:.4g} bar(a), not below the relieving pressure "
+            f"{relieving_pressure / 1e5:.4g} bar(a): its bore is far too small for the flow", field="discharge_size",
+            value=f"{inner_diameter * 1e3:.1f} mm",
+            fix="give a larger discharge pipe (at least the valve's outlet)")
     c = flux * flux * gas
 
     def residual(p1):

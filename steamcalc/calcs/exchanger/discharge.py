@@ -63,29 +63,43 @@ def check_discharge_inputs(inputs):
 def tube_rupture_discharge(inputs, result, name, *, atm, set_pressure, orifice_area, steam, steam_flow, steam_area,
                            liquid, liquid_flow, liquid_area):
     """The tube-rupture relief valve's outlet pipe: the steam and the displaced liquid, each at the selected
-    orifice's rated flow for it (flows kg/h, areas mm²)."""
+    orifice's rated flow for it (flows kg/h, areas mm²). Returns the two built-up back pressures (Pa, steam's
+    first), or None when the pipe is not given or cannot pass a flow."""
     if discharge_diameter(result, name, inputs.discharge_size, inputs.discharge_length, None, TUBE_KEYS) is None:
-        return
+        return None
     pipe = dict(valve_type=inputs.relief_valve_type or "conventional", set_pressure=set_pressure, atm=atm,
                 size=inputs.discharge_size, length=inputs.discharge_length, fittings_k=inputs.discharge_fittings_k,
                 keys=TUBE_KEYS)
-    discharge_section(result, "tube_rupture_steam", f"{name}, steam", rated_flow_kg_h=steam_flow * orifice_area /
-                      steam_area, enthalpy=steam.enthalpy, **pipe)
-    liquid_discharge_section(result, "tube_rupture_liquid", f"{name}, displaced liquid",
-                             rated_flow_kg_h=liquid_flow * orifice_area / liquid_area, liquid=liquid, **pipe)
+    steam_back = discharge_section(result, "tube_rupture_steam", f"{name}, steam",
+                                   rated_flow_kg_h=steam_flow * orifice_area / steam_area, enthalpy=steam.enthalpy,
+                                   relieving_temperature=steam.temperature, **pipe)
+    liquid_back = liquid_discharge_section(result, "tube_rupture_liquid", f"{name}, displaced liquid",
+                                           rated_flow_kg_h=liquid_flow * orifice_area / liquid_area, liquid=liquid,
+                                           **pipe)
+    if steam_back is None or liquid_back is None:
+        return None
+    return steam_back, liquid_back
 
 
-def thermal_relief_discharge(inputs, result, name, *, atm):
-    """The thermal relief valve's outlet pipe, carrying the liquid capacity of its orifice at the relieving pressure
-    (the process side's design pressure plus 10 %)."""
-    if discharge_diameter(result, name, inputs.thermal_discharge_size, inputs.thermal_discharge_length, None,
-                          THERMAL_KEYS) is None:
-        return
+def thermal_relief_capacity(inputs, result, name, *, atm):
+    """The relieving pressure of the thermal relief (the process side's design pressure plus 10 %) and the capacity
+    of the usual minimum valve, an API 526 D orifice, for the liquid at the process outlet temperature.
+
+    Returns ``(p_r Pa, liquid SteamState or None for a liquid other than water, capacity kg/h, density kg/m³)``.
+    """
     set_pressure = inputs.process_side_design_pressure
     p_r = relieving_pressure(set_pressure, atm, result, "thermal_relief", name)
+    area = dict(API526_AREAS_IN2)[THERMAL_ORIFICE] * MM2_PER_IN2
+    if inputs.process_cp is not None:
+        density = inputs.process_density
+        rated = KD_LIQUID * area * 1e-6 * math.sqrt(2.0 * density * (p_r - atm)) * 3600.0
+        result.work(f"{name}: liquid capacity of the valve ({THERMAL_ORIFICE} orifice)",
+                    "W = Kd·A·√(2ρ(P1 − p_atm))  [API 520 Part I liquid equation, Kw = Kv = 1]",
+                    "Kd*A*sqrt(2*rho*(P1 - p_atm))", rated, "kg/h", Kd=(KD_LIQUID, ""), A=(area, "mm**2"),
+                    rho=(density, "kg/m**3"), P1=(p_r / 1e5, "bar"), p_atm=(atm / 1e5, "bar"))
+        return p_r, None, rated, density
     saturation = SteamState.from_p_dryness(p_r, 0.0).temperature
     liquid = SteamState.from_pT(p_r, min(inputs.process_outlet_temperature, saturation - 1.0))
-    area = dict(API526_AREAS_IN2)[THERMAL_ORIFICE] * MM2_PER_IN2
     if liquid.temperature > SteamState.from_p_dryness(atm, 0.0).temperature:
         # Hot liquid flashes in the nozzle: its flux by direct integration on IF97 (API 520 Part I annex B).
         flux = isentropic_flux(liquid, atm).mass_flux
@@ -99,13 +113,22 @@ def thermal_relief_discharge(inputs, result, name, *, atm):
                     "W = Kd·A·√(2ρ(P1 − p_atm))  [API 520 Part I liquid equation, Kw = Kv = 1]",
                     "Kd*A*sqrt(2*rho*(P1 - p_atm))", rated, "kg/h", Kd=(KD_LIQUID, ""), A=(area, "mm**2"),
                     rho=(liquid.density, "kg/m**3"), P1=(p_r / 1e5, "bar"), p_atm=(atm / 1e5, "bar"))
+    return p_r, liquid, rated, liquid.density
+
+
+def thermal_relief_discharge(inputs, result, name, *, atm, liquid, rated):
+    """The thermal relief valve's outlet pipe, carrying the capacity ``rated`` (kg/h) of its orifice for the liquid
+    at the relieving pressure."""
+    if discharge_diameter(result, name, inputs.thermal_discharge_size, inputs.thermal_discharge_length, None,
+                          THERMAL_KEYS) is None:
+        return
     result.assumptions.append(f"{name}: the valve's outlet pipe carries the capacity of an API 526 "
-                              f"{THERMAL_ORIFICE} orifice at the relieving pressure, far above the expansion flow: "
-                              "the valve may open fully (common practice)")
-    liquid_discharge_section(result, "thermal_relief", name, valve_type="conventional", set_pressure=set_pressure,
-                             atm=atm, rated_flow_kg_h=rated, liquid=liquid, size=inputs.thermal_discharge_size,
-                             length=inputs.thermal_discharge_length, fittings_k=inputs.thermal_discharge_fittings_k,
-                             keys=THERMAL_KEYS)
+                              f"{THERMAL_ORIFICE} orifice at the relieving pressure: the valve may open fully "
+                              "(common practice)")
+    liquid_discharge_section(result, "thermal_relief", name, valve_type="conventional",
+                             set_pressure=inputs.process_side_design_pressure, atm=atm, rated_flow_kg_h=rated,
+                             liquid=liquid, size=inputs.thermal_discharge_size, length=inputs.thermal_discharge_length,
+                             fittings_k=inputs.thermal_discharge_fittings_k, keys=THERMAL_KEYS)
 
 
 def liquid_discharge_section(result, prefix, name, *, valve_type, set_pressure, atm, rated_flow_kg_h, liquid, size,
@@ -119,13 +142,12 @@ def liquid_discharge_section(result, prefix, name, *, valve_type, set_pressure, 
         result.assumptions.append(f"{name}: the liquid ({liquid.temperature - 273.15:.1f} °C) boils at the "
                                   "atmosphere: it flashes in the discharge pipe once below its saturation pressure, "
                                   "and is taken as a homogeneous two-phase mixture from there")
-        two_phase_discharge_section(result, prefix, name, valve_type=valve_type, set_pressure=set_pressure, atm=atm,
-                                    rated_flow_kg_h=rated_flow_kg_h, relieving=liquid, size=size, length=length,
-                                    fittings_k=fittings_k, keys=keys)
-        return
+        return two_phase_discharge_section(result, prefix, name, valve_type=valve_type, set_pressure=set_pressure,
+                                           atm=atm, rated_flow_kg_h=rated_flow_kg_h, relieving=liquid, size=size,
+                                           length=length, fittings_k=fittings_k, keys=keys)
     diameter = discharge_diameter(result, name, size, length, None, keys)
     if diameter is None:
-        return
+        return None
     flow, fittings_k = rated_flow_kg_h / 3600.0, fittings_k or 0.0
     # The liquid at the pipe: its density and viscosity at the atmosphere, the temperature held.
     pipe = SteamState.from_pT(atm, liquid.temperature)
@@ -153,3 +175,4 @@ def liquid_discharge_section(result, prefix, name, *, valve_type, set_pressure, 
                 "F = G²·A/ρ  [momentum at the open exit, API 520 Part II, 4.4.1.1]", "G**2*A/rho", force, "N",
                 G=(flux, "kg/(m**2*s)"), A=(area * 1e6, "mm**2"), rho=(pipe.density, "kg/m**3"))
     result.add(f"{prefix}_reaction_force", f"{name}: reaction force at the open discharge", force, "N")
+    return outlet

@@ -16,21 +16,29 @@ open) with no friction credited (conservative), into the process side at its rel
 process side is full of liquid: its relief device first passes the liquid the steam displaces (the steam's
 volume flow, no condensation credited) and then the steam; both are sized, the larger governs.
 
-**Thermal relief.** Process liquid blocked in with the steam on expands at
-:math:`q = \\alpha_v \\phi / (\\rho c_p)`; a relief valve of the usual minimum size (NPS ¾ × NPS 1, common
-practice) passes it many times over.
+**Thermal relief.** Process liquid blocked in with the steam on heats towards the steam's saturation temperature
+and expands at :math:`q = \\alpha_v \\phi / (\\rho c_p)`, α_v the largest over that range (water: IF97); the flow
+is checked against the liquid capacity of a valve of the usual minimum size (NPS ¾ × NPS 1 with a D orifice,
+common practice). Water that boils at its relieving pressure below the steam's saturation temperature generates
+vapour at φ/h_fg, sized as steam.
 """
 
 from __future__ import annotations
 
 import math
 
-from ...equipment.relief import direct_integration_flux
+from ...equipment.relief import API526_AREAS_IN2, MM2_PER_IN2, direct_integration_flux
 from ...errors import InputError, OutOfRangeError
 from ...properties.steam import SteamState
 from ...units.amounts import Phrase
-from ..overpressure import CAUTIONS, relieving_pressure, select_orifice, steam_relief_area
-from .discharge import check_discharge_inputs, thermal_relief_discharge, tube_rupture_discharge
+from ..overpressure import (
+    CAUTIONS, discharge_section, inlet_loss_notice, relieving_pressure, select_orifice, steam_relief_area,
+)
+from ..relief_back_pressure import Sizing, balanced_kb, critical_flow_check, size_at_built_up_back_pressure
+from .discharge import (
+    THERMAL_KEYS, THERMAL_ORIFICE, check_discharge_inputs, thermal_relief_capacity, thermal_relief_discharge,
+    tube_rupture_discharge,
+)
 from .reverse_rupture import reverse_rupture
 
 NAME = "Tube rupture"
@@ -43,8 +51,7 @@ RUPTURE_BASES = ("test pressure", "10/13")
 TEST_PRESSURE_RATIO = 1.3
 #: Effective coefficient of discharge for preliminary liquid relief sizing, API 520 Part I (liquid equation).
 KD_LIQUID = 0.65
-#: The usual smallest thermal relief valve (common practice); it passes any thermal-expansion load of a heater
-#: many times over.
+#: The usual smallest thermal relief valve (common practice); its capacity is checked against the expansion flow.
 THERMAL_MINIMUM_SIZE = "NPS 3/4 × NPS 1 (DN20 × DN25)"
 
 
@@ -142,9 +149,12 @@ def _tube_rupture(inputs, atm, result):
     if quantity[0] >= limit[0]:
         result.notice(f"{NAME}: no relief case", Phrase.of(
             why + f" ({source})" + ": the process side holds the steam side's design pressure within its test "
-            "pressure, so a "
-            "ruptured tube does not overpressure it and needs no relief device for this case", low=quantity,
-            limit=limit))
+            "pressure, so a ruptured tube does not overpressure it and needs no relief device for this case, "
+            "provided the piping and equipment connected to the process side, upstream and downstream up to their "
+            "isolation, are tested to at least the same pressure (API 521, tube rupture); steam breaking into a "
+            "liquid-full side can also raise a short pressure surge above the steady pressure, which this "
+            "comparison does not cover (common practice: the engineer of record judges it for long tubes, high "
+            "pressure differences and stiff liquid systems)", low=quantity, limit=limit))
         result.add(f"{PREFIX}_relief_needed", f"{NAME}: relief device needed", "no")
         return
     result.add(f"{PREFIX}_relief_needed", f"{NAME}: relief device needed", "yes")
@@ -181,28 +191,69 @@ def _tube_rupture(inputs, atm, result):
                               "highest steam pressure (the supply's with the control valve failed open), isentropic "
                               "nozzle flow on IF97 with no friction in the tube (conservative)")
     relieving = SteamState.from_ph(p_r, steam.enthalpy)
-    area_steam, method = steam_relief_area(result, f"{NAME}, steam", relieving, load, atm)
     # Liquid displaced at the steam's volume flow, then relieved as liquid (API 520 Part I liquid equation).
-    from fluids.safety_valve import API520_A_l
-
     liquid = SteamState.from_pT(p_r, min(inputs.process_outlet_temperature, relieving.saturation_temperature - 1.0))
     displaced = load / relieving.density * liquid.density
     result.work(f"{NAME}: liquid displaced by the steam", "m_l = W·ρ_l/ρ_steam(P1)", "W*rho_l/rho_s", displaced,
                 "kg/h", W=(load, "kg/h"), rho_l=(liquid.density, "kg/m**3"), rho_s=(relieving.density, "kg/m**3"))
-    area_liquid = API520_A_l(displaced / 3600.0, liquid.density, p_r, atm, 0.1, Kd=KD_LIQUID, Kw=1.0, Kv=1.0) * 1e6
-    result.work(f"{NAME}: required area, displaced liquid",
-                "A = 11.78·Q/(Kd·Kw·Kv)·√(G_l/(P1 − P2))  [API 520 Part I liquid equation; mm², L/min, kPa]",
-                "11.78*Q/Kd*sqrt(G_l/(P1 - P2))", area_liquid, "mm**2", units_fixed=True,
-                Q=(displaced / liquid.density / 60.0 * 1e3, "L/min"), Kd=(KD_LIQUID, ""),
-                G_l=(liquid.density / 999.0, ""), P1=(p_r / 1e3, "kPa"), P2=(atm / 1e3, "kPa"))
-    governing, area = (("displaced liquid", area_liquid) if area_liquid > area_steam else (f"steam ({method})",
-                                                                                           area_steam))
-    result.add(f"{PREFIX}_governing_case", f"{NAME}: governing relief flow", governing)
-    if select_orifice(result, PREFIX, NAME, area, load if governing.startswith("steam") else displaced) is None:
+    valve_type = inputs.relief_valve_type or "conventional"
+    critical = direct_integration_flux(relieving, atm).throat_pressure
+
+    def sizer(res, back):
+        steam_back, liquid_back = back if back is not None else (atm, atm)
+        suffix = "" if back is None else ", at the built-up back pressure"
+        kb = balanced_kb(valve_type, low, None if back is None else steam_back, atm)
+        area_steam, method = steam_relief_area(res, f"{NAME}, steam{suffix}", relieving, load, steam_back, kb)
+        area_liquid, kw = _liquid_area(res, f"{NAME}{suffix}", valve_type, low, atm, p_r, liquid, displaced,
+                                         liquid_back)
+        governing, area = (("displaced liquid", area_liquid) if area_liquid > area_steam
+                           else (f"steam ({method})", area_steam))
+        return Sizing(area, displaced if governing == "displaced liquid" else load, governing, p_r, critical,
+                      steam_back, kb, (area_steam, area_liquid))
+
+    def discharge(res, orifice_area, sizing):
+        area_steam, area_liquid = sizing.detail
+        return tube_rupture_discharge(inputs, res, NAME, atm=atm, set_pressure=low, orifice_area=orifice_area,
+                                      steam=relieving, steam_flow=load, steam_area=area_steam, liquid=liquid,
+                                      liquid_flow=displaced, liquid_area=area_liquid)
+
+    first = sizer(result, None)
+    sizing, _ = size_at_built_up_back_pressure(result, NAME, valve_type=valve_type, set_pressure=low, atm=atm,
+                                               sizer=sizer, discharge=discharge)
+    if sizing is not first and sizing.method != first.method:
+        result.notice(f"{NAME}: governing flow at the built-up back pressure", sizing.method)
+    result.add(f"{PREFIX}_governing_case", f"{NAME}: governing relief flow", sizing.method)
+    if select_orifice(result, PREFIX, NAME, sizing.area, sizing.flow_kg_h) is None:
         return
-    tube_rupture_discharge(inputs, result, NAME, atm=atm, set_pressure=low,
-                           orifice_area=result.value(f"{PREFIX}_orifice_area"), steam=relieving, steam_flow=load,
-                           steam_area=area_steam, liquid=liquid, liquid_flow=displaced, liquid_area=area_liquid)
+    inlet_loss_notice(result, NAME)
+    built = discharge(result, result.value(f"{PREFIX}_orifice_area"), sizing)
+    critical_flow_check(result, f"{NAME}, steam", sizing, None if built is None else built[0])
+
+
+def _liquid_area(result, name, valve_type, set_pressure, atm, p_r, liquid, flow_kg_h, back):
+    """Required area (mm²) of the displaced liquid by API 520 Part I's liquid equation, P2 the back pressure ``back``
+    (Pa), Kw of a balanced-bellows valve from figure 32 (``fluids.safety_valve.API520_W``); ``(area, Kw)``."""
+    from fluids.safety_valve import API520_A_l, API520_W
+
+    kw = 1.0
+    if valve_type == "balanced-bellows":
+        # fluids reads figure 32 with the standard atmosphere: give it the same gauge pressures.
+        kw = float(API520_W(101325.0 + set_pressure - atm, 101325.0 + back - atm))
+    area = API520_A_l(flow_kg_h / 3600.0, liquid.density, p_r, back, 0.1, Kd=KD_LIQUID, Kw=kw, Kv=1.0) * 1e6
+    operands = dict(Q=(flow_kg_h / liquid.density / 60.0 * 1e3, "L/min"), Kd=(KD_LIQUID, ""),
+                    G_l=(liquid.density / 999.0, ""), P1=(p_r / 1e3, "kPa"), P2=(back / 1e3, "kPa"))
+    if kw == 1.0:
+        result.work(f"{name}: required area, displaced liquid",
+                    "A = 11.78·Q/(Kd·Kw·Kv)·√(G_l/(P1 − P2)), Kw = Kv = 1, P2 the back pressure at the valve outlet  "
+                    "[API 520 Part I liquid equation; mm², L/min, kPa]",
+                    "11.78*Q/Kd*sqrt(G_l/(P1 - P2))", area, "mm**2", units_fixed=True, **operands)
+    else:
+        result.work(f"{name}: required area, displaced liquid",
+                    "A = 11.78·Q/(Kd·Kw·Kv)·√(G_l/(P1 − P2)), Kv = 1, Kw of the balanced bellows (API 520 Part I "
+                    "figure 32), P2 the back pressure at the valve outlet  [API 520 Part I liquid equation; mm², "
+                    "L/min, kPa]", "11.78*Q/(Kd*Kw)*sqrt(G_l/(P1 - P2))", area, "mm**2", units_fixed=True, Kw=(kw, ""),
+                    **operands)
+    return area, kw
 
 
 def _supply_enthalpy(inputs, pressure):
@@ -219,30 +270,118 @@ def _supply_enthalpy(inputs, pressure):
 
 def _thermal_relief(inputs, heat, process_pressure, atm, result):
     name = "Thermal relief"
-    t = inputs.process_outlet_temperature
+    highest = max(p for p in (inputs.steam_pressure, inputs.control_valve_supply_pressure) if p is not None)
+    t_steam = SteamState.from_p_dryness(highest, 1.0).temperature
+    p_r, liquid, capacity, valve_density = thermal_relief_capacity(inputs, result, name, atm=atm)
     if inputs.process_cp is None:
-        p = process_pressure
-        warm, cool = SteamState.from_pT(p, t + 0.5), SteamState.from_pT(p, t - 0.5)
-        water = SteamState.from_pT(p, t)
-        alpha = -(warm.density - cool.density) / water.density
-        density, cp = water.density, water.cp
-        result.work(f"{name}: cubic expansion coefficient of the water (IF97)",
-                    "α_v = −(1/ρ)·(ρ(T + 0.5 K) − ρ(T − 0.5 K))/(1 K)", "-(rho_hot - rho_cold)/(rho*dT)",
-                    alpha * 1e6,
-                    "ppm/K", rho_hot=(warm.density, "kg/m**3"), rho_cold=(cool.density, "kg/m**3"),
-                    rho=(water.density, "kg/m**3"), dT=(1.0, "K"))
+        t_boil = SteamState.from_p_dryness(p_r, 0.0).temperature
+        result.work(f"{name}: saturation temperature of the steam at its highest pressure (IF97)", "T_s = T_sat(p_s)",
+                    "T_sat(p_s)", t_steam - 273.15, "degC", p_s=(highest / 1e5, "bar"))
+        result.work(f"{name}: saturation temperature of the process water at its relieving pressure (IF97)",
+                    "T_b = T_sat(P1)", "T_sat(P1)", t_boil - 273.15, "degC", P1=(p_r / 1e5, "bar"))
+        result.assumptions.append(
+            f"{name}: blocked in with the steam on, the process liquid heats towards the steam's saturation "
+            "temperature at the highest steam pressure (the supply's, the control valve failed open); a supply's "
+            "superheat adds little heat at a higher wall temperature and is not counted (common practice)")
+        if t_steam > t_boil:
+            _boiling(inputs, heat, p_r, t_steam, t_boil, atm, result, name)
+            return
+        alpha, density, cp = _largest_expansion(p_r, inputs.process_outlet_temperature,
+                                                min(t_steam, t_boil - 1.0), result, name)
     else:
         alpha, density, cp = inputs.process_expansion_coefficient, inputs.process_density, inputs.process_cp
+        result.assumptions.append(f"{name}: the expansion coefficient given is taken as the largest over the "
+                                  "temperatures the blocked-in liquid reaches (up to the steam's), as API 521 asks; "
+                                  "a liquid that boils below the steam's temperature at the relieving pressure "
+                                  "generates vapour, for the engineer of record to size")
     flow = alpha * heat / (density * cp)
     result.work(f"{name}: expansion flow of the blocked-in process liquid",
                 "q = α_v·φ/(ρ·c_p)  [API 521, hydraulic expansion]", "alpha*phi/(rho*c_p)", flow * 3600e3, "L/h",
                 alpha=(alpha * 1e6, "ppm/K"), phi=(heat / 1e3, "kW"), rho=(density, "kg/m**3"),
                 c_p=(cp / 1e3, "kJ/(kg*K)"))
     result.add("thermal_relief_flow", f"{name}: expansion flow with the steam on", flow * 3600e3, "L/h")
-    result.assumptions.append(f"{name}: the full steam-side heat goes into the blocked-in process liquid at its outlet "
-                              "temperature (the largest expansion); the steam is not isolated")
-    result.notice(f"{name}: minimum size", Phrase.of(
-        f"a thermal relief valve of the usual minimum size, {THERMAL_MINIMUM_SIZE} (common practice), passes "
-        "{flow:.1f} many times over; fit one wherever the process side can be blocked in with the steam on",
-        flow=(flow * 3600e3, "L/h")))
-    thermal_relief_discharge(inputs, result, name, atm=atm)
+    result.assumptions.append(f"{name}: the full steam-side heat goes into the blocked-in process liquid, its "
+                              "expansion coefficient the largest over the temperatures it reaches; the steam is not "
+                              "isolated")
+    capacity_l_h = capacity / valve_density * 1e3
+    result.check_limit(
+        f"{name}: minimum size", (flow * 3600e3, "L/h"), [("<=", (capacity_l_h, "L/h"), "warn")],
+        lambda status: Phrase.of(
+            f"a thermal relief valve of the usual minimum size, {THERMAL_MINIMUM_SIZE} (common practice), taken "
+            "with an API 526 D orifice, passes {capacity:.0f} of the liquid at its relieving pressure, above the "
+            "expansion flow {flow:.1f}; fit one wherever the process side can be blocked in with the steam on"
+            if status == "pass" else
+            f"the expansion flow {{flow:.1f}} exceeds the {{capacity:.0f}} that a valve of the usual minimum size, "
+            f"{THERMAL_MINIMUM_SIZE} (common practice) with a D orifice, passes: size the thermal relief valve for "
+            "the expansion flow (API 520 Part I liquid equation), or keep the process side from being blocked in "
+            "with the steam on", flow=(flow * 3600e3, "L/h"), capacity=(capacity_l_h, "L/h")),
+        source="API 520 Part I liquid equation (D orifice, API 526; Kd 0.65); the minimum size common practice")
+    if liquid is not None:
+        thermal_relief_discharge(inputs, result, name, atm=atm, liquid=liquid, rated=capacity)
+
+
+def _largest_expansion(pressure, t_low, t_high, result, name):
+    """Water's cubic expansion coefficient on IF97, the largest from ``t_low`` to ``t_high`` (K) at ``pressure``
+    (Pa); with the density and c_p there. Returns ``(α 1/K, ρ kg/m³, c_p J/(kg K))``."""
+    temperatures = [t_low + (t_high - t_low) * i / 8 for i in range(9)] if t_high > t_low else [t_low]
+
+    def expansion(t):
+        warm, cool = SteamState.from_pT(pressure, t + 0.5), SteamState.from_pT(pressure, t - 0.5)
+        water = SteamState.from_pT(pressure, t)
+        return -(warm.density - cool.density) / water.density, warm, cool, water
+
+    t = max(temperatures, key=lambda t: expansion(t)[0])
+    alpha, warm, cool, water = expansion(t)
+    result.work(f"{name}: cubic expansion coefficient of the water (IF97), the largest from the outlet temperature "
+                "to the blocked-in temperature",
+                f"α_v = −(1/ρ)·(ρ(T + 0.5 K) − ρ(T − 0.5 K))/(1 K) at T = {t - 273.15:.1f} °C, the largest of 9 "
+                f"temperatures from {t_low - 273.15:.1f} °C to {t_high - 273.15:.1f} °C at the relieving pressure",
+                "-(rho_hot - rho_cold)/(rho*dT)", alpha * 1e6, "ppm/K", rho_hot=(warm.density, "kg/m**3"),
+                rho_cold=(cool.density, "kg/m**3"), rho=(water.density, "kg/m**3"), dT=(1.0, "K"))
+    return alpha, water.density, water.cp
+
+
+def _boiling(inputs, heat, p_r, t_steam, t_boil, atm, result, name):
+    """Blocked-in process water that boils under the steam: vapour generated at φ/h_fg, relieved as steam."""
+    from ...equipment.relief import api526_orifice
+
+    liquid, vapour = SteamState.from_p_dryness(p_r, 0.0), SteamState.from_p_dryness(p_r, 1.0)
+    latent = vapour.enthalpy - liquid.enthalpy
+    load = heat / latent * 3600.0
+    result.notice(f"{name}: the process water boils", Phrase.of(
+        "the steam condenses at {ts:.1f}, above the {tb:.1f} at which the blocked-in water boils at its relieving "
+        "pressure {p:.4g}: the relief case is vapour generation, not liquid expansion (API 521, blocked-in liquid "
+        "under a heat source)", ts=(t_steam - 273.15, "degC"), tb=(t_boil - 273.15, "degC"), p=(p_r / 1e5, "bar")),
+        act=True)
+    result.work(f"{name}: vapour generated by the steam-side heat", "W = φ/h_fg(P1)", "phi/h_fg", load, "kg/h",
+                phi=(heat / 1e3, "kW"), h_fg=(latent / 1e3, "kJ/kg"))
+    result.add("thermal_relief_vapour_load", f"{name}: vapour generated, blocked in with the steam on", load, "kg/h")
+    result.assumptions.append(f"{name}: the full steam-side heat boils the blocked-in water at its relieving pressure "
+                              "(no credit for the liquid's sensible heat-up or for heat losses: conservative)")
+    area, _ = steam_relief_area(result, f"{name}, vapour", vapour, load, atm)
+    minimum = dict(API526_AREAS_IN2)[THERMAL_ORIFICE] * MM2_PER_IN2
+    orifice = api526_orifice(area)
+    result.add("thermal_relief_required_area", f"{name}: required effective area (vapour)", area, "mm**2")
+    result.add("thermal_relief_orifice", f"{name}: API 526 orifice for the vapour", orifice[0] if orifice else
+               "larger than T")
+    capacity = load * minimum / area
+    result.check_limit(
+        f"{name}: minimum size", (area, "mm**2"), [("<=", (minimum, "mm**2"), "warn")],
+        lambda status: Phrase.of(
+            f"the vapour load {{load:.0f}} needs {{area:.0f}}, within the D orifice's {{minimum:.0f}} of a valve of "
+            f"the usual minimum size, {THERMAL_MINIMUM_SIZE} (common practice)" if status == "pass" else
+            f"the vapour load {{load:.0f}} needs {{area:.0f}} ({orifice[0] if orifice else 'larger than T'} "
+            f"orifice, API 526): a valve of the usual minimum size, {THERMAL_MINIMUM_SIZE} (common practice) with "
+            "a D orifice ({minimum:.0f}), passes only {capacity:.0f} of steam; size the relief valve for the vapour, "
+            "or keep the "
+            "process side from being blocked in with the steam on", load=(load, "kg/h"), area=(area, "mm**2"),
+            minimum=(minimum, "mm**2"), capacity=(capacity, "kg/h")),
+        source="API 520 Part I steam sizing, API 526 orifices; the minimum size common practice")
+    if orifice is not None:
+        rated = load * max(orifice[1], minimum) / area
+        discharge_section(result, "thermal_relief", name, valve_type="conventional",
+                          set_pressure=inputs.process_side_design_pressure, atm=atm, rated_flow_kg_h=rated,
+                          enthalpy=vapour.enthalpy, relieving_temperature=vapour.temperature,
+                          size=inputs.thermal_discharge_size,
+                          length=inputs.thermal_discharge_length, fittings_k=inputs.thermal_discharge_fittings_k,
+                          keys=THERMAL_KEYS)

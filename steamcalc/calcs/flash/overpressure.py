@@ -16,13 +16,16 @@ governs. Without a design pressure the record says the overpressure case was not
 
 from __future__ import annotations
 
+from ...equipment.relief import direct_integration_flux
 from ...errors import InputError, OutOfRangeError
 from ...properties.steam import SteamState
 from ...units.amounts import Phrase
 from ..overpressure import (
-    CAUTIONS, VALVE_TYPES, discharge_section, flashing_relief_area, relieving_pressure, select_orifice,
+    CAUTIONS, VALVE_TYPES, discharge_section, flashing_relief_area, inlet_loss_notice, relieving_pressure,
+    select_orifice,
     steam_relief_area, two_phase_discharge_section,
 )
+from ..relief_back_pressure import Sizing, balanced_kb, critical_flow_check, size_at_built_up_back_pressure
 
 NAME = "Vessel relief"
 #: What this module adds to a record, for the kind's BASIS_CHANGES (a record of an earlier release lacks it).
@@ -140,22 +143,42 @@ def add_overpressure(inputs, inlet, site, result):
         return
     governing = max(cases, key=lambda case: cases[case][0])
     # The last item is what leaves the valve: the steam's enthalpy (J/kg), or the two-phase mixture's state.
-    area, load, method, leaving = cases[governing]
+    area, load, method, leaving = cases[governing][:4]
     result.add("vessel_relief_governing_case", f"{NAME}: governing case", f"{governing} ({method})")
-    rated = select_orifice(result, PREFIX, NAME, area, load)
+    valve_type = inputs.relief_valve_type or "conventional"
+    pipe = dict(valve_type=valve_type, set_pressure=set_pressure, atm=atm, size=inputs.discharge_size,
+                length=inputs.discharge_length, fittings_k=inputs.discharge_fittings_k)
+    two_phase = isinstance(leaving, SteamState)
+    if two_phase:
+        critical = cases[governing][4]
+    else:
+        critical = direct_integration_flux(vapour, atm).throat_pressure
+
+    def sizer(res, back):
+        kb = balanced_kb(valve_type, set_pressure, back, atm)
+        name = f"{NAME}, {governing}" + ("" if back is None else ", at the built-up back pressure")
+        if two_phase:
+            case_area, case_method, _ = flashing_relief_area(res, name, leaving, load, back or atm, kb)
+        else:
+            case_area, case_method = steam_relief_area(res, name, vapour, load, back or atm, kb)
+        return Sizing(case_area, load, case_method, p_r, critical, back or atm, kb)
+
+    def discharge(res, orifice_area, sizing):
+        rated = sizing.flow_kg_h * orifice_area / sizing.area
+        if two_phase:
+            return two_phase_discharge_section(res, PREFIX, NAME, rated_flow_kg_h=rated, relieving=leaving, **pipe)
+        return discharge_section(res, PREFIX, NAME, rated_flow_kg_h=rated, enthalpy=vapour.enthalpy,
+                                 relieving_temperature=vapour.temperature, **pipe)
+
+    # The atmospheric sizing of each case is written above; a discharge line adds the passes at its back pressure.
+    sizing, _ = size_at_built_up_back_pressure(result, NAME, valve_type=valve_type, set_pressure=set_pressure,
+                                               atm=atm, sizer=sizer, discharge=discharge)
+    rated = select_orifice(result, PREFIX, NAME, sizing.area, load)
     if rated is None:
         return
-    if isinstance(leaving, SteamState):
-        # A two-phase load: the case carries the mixture's relieving state.
-        two_phase_discharge_section(result, PREFIX, NAME, valve_type=inputs.relief_valve_type or "conventional",
-                                    set_pressure=set_pressure, atm=atm, rated_flow_kg_h=rated, relieving=leaving,
-                                    size=inputs.discharge_size, length=inputs.discharge_length,
-                                    fittings_k=inputs.discharge_fittings_k)
-        return
-    discharge_section(result, PREFIX, NAME, valve_type=inputs.relief_valve_type or "conventional",
-                      set_pressure=set_pressure, atm=atm, rated_flow_kg_h=rated, enthalpy=leaving,
-                      size=inputs.discharge_size, length=inputs.discharge_length,
-                      fittings_k=inputs.discharge_fittings_k)
+    inlet_loss_notice(result, NAME)
+    built = discharge(result, result.value(f"{PREFIX}_orifice_area"), sizing)
+    critical_flow_check(result, NAME, sizing, built)
 
 
 def _failed_open(inputs, inlet, p_r, liquid, vapour, atm, result, cases):
@@ -197,4 +220,7 @@ def _failed_open(inputs, inlet, p_r, liquid, vapour, atm, result, cases):
     result.add("vessel_relief_failed_open_load", "Relief load, inlet failed open (two-phase)", load, "kg/h")
     area, method, sized = flashing_relief_area(result, name, mixture, load, atm)
     result.add("vessel_relief_omega", f"{name}: omega parameter", sized.omega.omega)
-    cases["inlet fails open, vessel filling (two-phase)"] = (area, load, method, mixture)
+    # The critical pressure of the nozzle flow: η_c·p0 (two-phase), or η_s·p0 (subcooled liquid flashing at the
+    # throat), API 520 Part I annex C.
+    critical = sized.omega.critical_ratio * mixture.pressure
+    cases["inlet fails open, vessel filling (two-phase)"] = (area, load, method, mixture, critical)

@@ -10,11 +10,11 @@ along the pipe (isothermal flow, the conservative basis of :mod:`steamcalc.equip
 
 from __future__ import annotations
 
-from ...equipment.discharge_line import back_pressure_limit, built_up_back_pressure
+from ...equipment.discharge_line import built_up_back_pressure
 from ...equipment.piping import flow_area
-from ...errors import InputError
+from ...errors import InputError, OutOfRangeError
 from ...properties.steam import SteamState, dynamic_viscosity
-from ...units.amounts import Phrase
+from ..overpressure import back_pressure_check
 
 #: What this module adds to a record, for the kind's BASIS_CHANGES (a record of an earlier release lacks it).
 DISCHARGE_PATTERNS = ("Relief discharge line*", "Relief built-up back pressure*", "relief_built_up_back_pressure",
@@ -40,7 +40,7 @@ def check_discharge_inputs(inputs):
 
 
 def discharge_line_section(inputs, *, relieving_enthalpy, rated_flow_kg_h, set_pressure, atm, valve_type, diameter,
-                           result):
+                           result, relieving_pressure=None):
     """Built-up back pressure in the relief valve's outlet pipe as a step, a result and a check against the limit.
 
     Parameters
@@ -51,6 +51,8 @@ def discharge_line_section(inputs, *, relieving_enthalpy, rated_flow_kg_h, set_p
         kg/h, the selected orifice's rated flow.
     set_pressure, atm : float
         Pa (absolute): the valve's set pressure and the atmosphere the pipe discharges to.
+    relieving_pressure : float, optional
+        Pa (absolute): a pipe choking at its exit at or above it is refused (a failed check).
     valve_type : str
         conventional, balanced-bellows or pilot: sets the limit.
     diameter : float
@@ -75,7 +77,12 @@ def discharge_line_section(inputs, *, relieving_enthalpy, rated_flow_kg_h, set_p
     flow = rated_flow_kg_h / 3600.0
     pipe = SteamState.from_ph(atm, relieving_enthalpy)
     viscosity = dynamic_viscosity(pipe.temperature, pipe.density)
-    line = built_up_back_pressure(flow, pipe.temperature, diameter, length, fittings_k, atm, viscosity)
+    try:
+        line = built_up_back_pressure(flow, pipe.temperature, diameter, length, fittings_k, atm, viscosity,
+                                      relieving_pressure=relieving_pressure)
+    except OutOfRangeError as exc:
+        result.check("Relief built-up back pressure", "fail", f"{exc.message} ({length:g} m); fix: {exc.fix}")
+        return
     result.assumptions.append(
         f"Relief discharge line: {inputs.relief_discharge_size or 'at the valve outlet size'}, "
         f"{inputs.relief_discharge_length:g} m straight"
@@ -101,15 +108,8 @@ def discharge_line_section(inputs, *, relieving_enthalpy, rated_flow_kg_h, set_p
                "percent")
     result.add("relief_discharge_exit_velocity", "Steam velocity at the discharge pipe's exit", line.exit_velocity,
                "m/s")
-    fraction, basis = back_pressure_limit(valve_type)
-    share_amount, limit = (share, "percent"), (100.0 * fraction, "percent")
     choked = " (the exit choked at the isothermal limit)" if line.exit_choked else ""
-    result.check_limit(
-        "Relief built-up back pressure", share_amount, [("<=", limit, "warn")],
-        lambda status: Phrase.of(
-            f"{{share:.1f}} of the gauge set pressure, within {{limit:g}} ({valve_type} valve){choked}"
-            if status == "pass" else
-            f"{{share:.1f}} of the gauge set pressure, above {{limit:g}} ({valve_type} valve){choked}: the valve "
-            "may not reach its capacity or may chatter; enlarge or shorten the discharge pipe, or use a "
-            "balanced-bellows or pilot-operated valve (the maker's limit governs)", share=share_amount, limit=limit),
-        source=basis)
+    # The rule the flash and heater valves keep: a warning above the valve type's limit, a failure at the gauge set
+    # pressure, where the valve cannot pass its flow.
+    back_pressure_check(result, "Relief", valve_type, line.outlet_pressure, set_pressure, atm, choked,
+                        label="Relief built-up back pressure")

@@ -202,7 +202,8 @@ def relief_section(inputs, inlet, site, result):
                 M=(MOLAR_MASS_WATER, "kg/kmol"), A_o=(outlet_area, "mm**2"), P2=(p_exit / 1e3, "kPa", "difference"))
     result.add("relief_reaction_force", "Reaction force of the open discharge", force, "N")
     discharge_line_section(inputs, relieving_enthalpy=upstream.enthalpy, rated_flow_kg_h=rated_flow, set_pressure=p_set,
-                           atm=atm, valve_type=valve_type, diameter=diameter, result=result)
+                           atm=atm, valve_type=valve_type, diameter=diameter, result=result,
+                           relieving_pressure=p_relieve)
 
 
 def _back_pressure_check(valve_type, gauge_back, kb_note, result):
