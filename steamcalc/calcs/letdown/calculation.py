@@ -444,7 +444,10 @@ def _dryness(state):
     return 1.0 if state.dryness is None else state.dryness
 
 
-def _inlet_state(inputs, result):
+def inlet_state(inputs, result):
+    """The station's inlet state from its inputs, and the inlet's saturation temperature (K; None above the
+    critical pressure); its worked steps go to ``result``. A range error names the input that set the state
+    (the site balance sizes a linked station's valve from the same state)."""
     given = next(n for n in ("inlet_temperature", "inlet_superheat", "inlet_dryness")
                  if getattr(inputs, n) is not None)
     try:
@@ -567,7 +570,7 @@ def calculate(inputs, site):
             f"outlet pressure {bar_a(p2)} is not below the inlet pressure {bar_a(p1)}",
             field="outlet_pressure", fix="a let-down lowers the pressure: check the pressures and their basis")
 
-    inlet, t_sat1 = _inlet_state(inputs, result)
+    inlet, t_sat1 = inlet_state(inputs, result)
     if t_sat1 is not None:
         result.add("inlet_saturation_temperature", "Inlet saturation temperature", t_sat1 - 273.15, "degC")
     result.add("inlet_temperature", "Inlet temperature", inlet.temperature - 273.15, "degC")

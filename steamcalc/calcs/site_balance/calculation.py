@@ -25,6 +25,7 @@ from .solver import MAX_SWEEPS, TOLERANCE, fixed_states, solve_case
 from .steps import case_steps
 from .turbines import add_turbine_notes, add_turbine_year, closing_turbine, turbine_case_results
 from .turbines import turbine_steps_and_checks
+from .valve_checks import header_pressure_checks, letdown_valve_checks
 
 KIND = "balance"
 TITLE = "Site steam balance"
@@ -172,6 +173,8 @@ def calculate(inputs, site):
         turbine_steps_and_checks(result, inputs, b, case.name)
         check_closures(result, inputs, site, b)
     _case_checks(result, inputs, site, balances)
+    letdown_valve_checks(result, inputs, balances)
+    header_pressure_checks(result, inputs, site)
     return_flash_checks(result, inputs, balances)
     totals = annual_totals(result, inputs, site, balances, efficiency, "")
     electricity = add_turbine_year(result, inputs, site, balances)
@@ -183,6 +186,7 @@ def calculate(inputs, site):
             _case_results(result, inputs, site, alt[case.name], efficiency, case, prefix="what_if.")
         # The what-if is a balance the site may run: it meets the same limits, named for it.
         _case_checks(result, inputs, site, alt, f"Without {', '.join(inputs.without)}, ")
+        letdown_valve_checks(result, inputs, alt, f"Without {', '.join(inputs.without)}, ", "what_if.")
         return_flash_checks(result, inputs, alt, f"Without {', '.join(inputs.without)}, ")
         alternative = annual_totals(result, inputs, site, alt, efficiency, "what_if_")
         add_turbine_year(result, inputs, site, alt, "what_if_", electricity)

@@ -122,6 +122,23 @@ class Letdown:
     water_pressure: float | None = item_field("pressure", "spray water pressure")
     max_flow: float | None = item_field("mass_flow", "valve maximum flow")
     min_flow: float | None = item_field("mass_flow", "valve minimum flow")
+    # The station as its linked let-down record states it: pressures, inlet steam, valve and inlet line, for the
+    # valve's Kv and travel at the balance's flow and the header-pressure check (:mod:`.valve_checks`).
+    inlet_pressure: float | None = item_field("pressure", "station inlet pressure (linked record)")
+    outlet_pressure: float | None = item_field("pressure", "station outlet pressure (linked record)")
+    inlet_temperature: float | None = item_field("temperature", "inlet steam temperature (linked record)")
+    inlet_superheat: float | None = item_field("temperature_difference", "inlet steam superheat (linked record)")
+    inlet_dryness: float | None = item_field("fraction", "inlet steam dryness fraction (linked record)")
+    rated_kv: float | None = item_field("flow_coefficient", "valve rated Kv (Kvs)")
+    xt: float | None = item_field("fraction", "valve pressure differential ratio factor xT")
+    characteristic: str | None = item_field("text", "valve inherent characteristic")
+    rangeability: float | None = item_field("number", "valve inherent rangeability")
+    valve_size: str | None = item_field("text", "valve size")
+    inlet_size: str | None = item_field("text", "inlet line size")
+    outlet_size: str | None = item_field("text", "outlet line size")
+    schedule: str | None = item_field("text", "pipe schedule")
+    inlet_length: float | None = item_field("length", "inlet line length")
+    inlet_fittings_k: float | None = item_field("number", "inlet line fittings K")
     link: Link | None = None
 
     @property
@@ -141,6 +158,7 @@ class User:
     return_temperature: float | None = item_field("temperature", "condensate return temperature")
     condensate_to: str = item_field("text", "condensate returned to (vented receiver, cooled, deaerator)",
                                     RETURN_ROUTES[0])
+    steam_pressure: float | None = item_field("pressure", "heater's steam supply pressure (linked record)")
     link: Link | None = None
 
     @property
@@ -166,6 +184,8 @@ class Flash:
     name: str = item_field("text", "name")
     from_user: str = item_field("text", "condensate of user")
     target: str = item_field("text", "flash steam to header")
+    condensate_pressure: float | None = item_field("pressure", "condensate pressure (linked record)")
+    flash_pressure: float | None = item_field("pressure", "flash pressure (linked record)")
     link: Link | None = None
 
 

@@ -1,8 +1,9 @@
 """Links from a balance to issued records: read once, when the case is read, and held by digest.
 
 An item of a balance may name an issued record (``record = "LD-01"``) instead of stating its data: the
-record's inputs define the station (a let-down's desuperheater and valve range, a heater's steam flow)
-and the balance sets its flow. The record is read from the links folder (``[inputs.links] folder``,
+record's inputs define the station (a let-down's desuperheater, valve and pressures, a heater's steam flow)
+and the balance sets its flow. A record's pressures are copied, not matched here: the balance's checks hold
+them against its headers and flag a record issued for another header pressure. The record is read from the links folder (``[inputs.links] folder``,
 relative to the case file; the site's ``records`` folder by default) at the revision the item or
 ``[inputs.links] revision`` names, as ``<id>_rev<revision>.json`` (or, when it is not there, from the folder
 the run writes its records to, so that a whole site run into another folder finds what it has just issued). An
@@ -22,9 +23,30 @@ from ...units.quantities import from_record_unit
 from ..links import DEFAULT_FOLDER, find_linked_record, link_problems, link_states, stale_links
 from .items import Link
 
-#: Relative difference between a linked record's pressure and the balance's header above which they are
-#: not the same header.
-PRESSURE_MATCH = 0.005
+#: What a balance copies from a linked let-down record, with each value's quantity kind: the desuperheater and
+#: valve range the balance solves with, and the station's pressures, inlet steam, valve and inlet line that its
+#: checks size the valve at the balance's flow with and hold against the headers (:mod:`.valve_checks`).
+LETDOWN_COPIED = {"target_superheat": "temperature_difference", "target_temperature": "temperature",
+                  "water_temperature": "temperature", "water_pressure": "pressure", "max_flow": "mass_flow",
+                  "min_flow": "mass_flow", "inlet_pressure": "pressure", "outlet_pressure": "pressure",
+                  "inlet_temperature": "temperature", "inlet_superheat": "temperature_difference",
+                  "inlet_dryness": "fraction", "rated_kv": "flow_coefficient", "xt": "fraction",
+                  "characteristic": "text", "rangeability": "number", "valve_size": "text", "inlet_size": "text",
+                  "outlet_size": "text", "schedule": "text", "inlet_length": "length", "inlet_fittings_k": "number"}
+#: The pressures a balance copies from a linked flash record and a linked heater record (held against the headers).
+FLASH_COPIED = ("condensate_pressure", "flash_pressure")
+USER_COPIED = ("steam_pressure",)
+
+
+def _copied(record, key, kind):
+    """A linked record's input in SI (text as it is), None when the record does not give it."""
+    entry = record["inputs"].get(key)
+    if entry is None:
+        return None
+    if kind == "text":
+        return entry["value"]
+    return from_record_unit(entry["value"], entry["unit"], "dimensionless" if kind in ("fraction", "number")
+                            else kind)
 
 
 #: How the refusals name an item of each section of the case file.
@@ -71,18 +93,6 @@ class Links:
         link = Link(record_id=record_id, revision=revision, kind=kind, content_digest=record["content_digest"])
         return record, link
 
-    def _same_header(self, record, key, header, where, what):
-        entry = record["inputs"].get(key)
-        if entry is None:
-            return
-        pressure = from_record_unit(entry["value"], entry["unit"], "pressure")
-        header_pressure = self.site.headers[header]
-        if abs(pressure - header_pressure) > PRESSURE_MATCH * header_pressure:
-            raise InputError(f"linked record {record['id']} has its {what} at {pressure / 1e5:.4g} bar(a), but the "
-                             f"balance's {header} header is at {header_pressure / 1e5:.4g} bar(a)",
-                             field=f"{where}.record", value=record["id"],
-                             fix="link the record made for this header, or re-issue it at the site's header pressure")
-
     @staticmethod
     def _refuse_both(row, where, keys, record_id):
         for key in keys:
@@ -96,33 +106,26 @@ class Links:
         self._refuse_both(row, where, ("target_superheat", "target_temperature", "water_temperature",
                                        "water_pressure", "max_flow", "min_flow"), row["record"])
         record, link = self._resolve(row, where, "letdown")
-        self._same_header(record, "inlet_pressure", values["source"], where, "inlet")
-        self._same_header(record, "outlet_pressure", values["target"], where, "outlet")
-        kinds = {"target_superheat": "temperature_difference", "target_temperature": "temperature",
-                 "water_temperature": "temperature", "water_pressure": "pressure", "max_flow": "mass_flow",
-                 "min_flow": "mass_flow"}
         values = dict(values, link=link)
-        for key, kind in kinds.items():
-            entry = record["inputs"].get(key)
-            if entry is not None:
-                values[key] = from_record_unit(entry["value"], entry["unit"], kind)
+        for key, kind in LETDOWN_COPIED.items():
+            value = _copied(record, key, kind)
+            if value is not None:
+                values[key] = value
         return values
 
     def user(self, values, row, where, case_names):
         """A user's steam flow, in every load case, from its linked heater record."""
         self._refuse_both(row, where, ("load",), row["record"])
         record, link = self._resolve(row, where, "exchanger")
-        self._same_header(record, "steam_pressure", values["header"], where, "steam supply")
         entry = record["results"]["steam_flow"]
         flow = from_record_unit(entry["value"], entry["unit"], "mass_flow")
-        return dict(values, link=link, flows=tuple((case, flow) for case in case_names), duties=())
+        return dict(values, link=link, flows=tuple((case, flow) for case in case_names), duties=(),
+                    steam_pressure=_copied(record, "steam_pressure", "pressure"))
 
     def flash(self, values, row, where, user):
         """A flash vessel's station from its linked flash record; the balance sets its flow."""
         record, link = self._resolve(row, where, "flash")
-        self._same_header(record, "condensate_pressure", user.header, where, "condensate")
-        self._same_header(record, "flash_pressure", values["target"], where, "flash vessel")
-        return dict(values, link=link)
+        return dict(values, link=link, **{key: _copied(record, key, "pressure") for key in FLASH_COPIED})
 
 
-__all__ = ["DEFAULT_FOLDER", "PRESSURE_MATCH", "Links", "link_states", "stale_links", "link_problems"]
+__all__ = ["DEFAULT_FOLDER", "LETDOWN_COPIED", "FLASH_COPIED", "USER_COPIED", "Links", "link_states", "stale_links", "link_problems"]

@@ -33,6 +33,7 @@ from ...errors import CaseFileError, InputError, UnitError
 from ...units.quantities import parse_amount, parse_pressure, parse_quantity
 from .blowdown import RECOVERY
 from .items import NAME_PATTERN, RETURN_ROUTES, Boiler, Deaerator, Flash, Letdown, LoadCase, User
+from .links import FLASH_COPIED, LETDOWN_COPIED
 
 SECTIONS = ("boiler", "deaerator", "load_case", "letdown", "user", "flash", "turbine", "what_if", "links")
 KEYS = {
@@ -267,8 +268,7 @@ def read_letdowns(rows, site, given, links):
             _given(given, f"letdown.{name}.{ {'from': 'source', 'to': 'target'}.get(key, key)}", row, key)
         if "record" in row:
             values = links.letdown(values, row, where)
-            for key in ("target_superheat", "target_temperature", "water_temperature", "water_pressure", "max_flow",
-                        "min_flow"):
+            for key in LETDOWN_COPIED:
                 if values.get(key) is not None:
                     given[f"letdown.{name}.{key}"] = f"from linked record {values['link'].record_id} rev " \
                                                      f"{values['link'].revision}"
@@ -333,6 +333,9 @@ def read_users(rows, site, given, case_names, links):
             for case in case_names:
                 given[f"user.{name}.load.{case}"] = f"steam flow of linked record {values['link'].record_id} rev " \
                                                     f"{values['link'].revision}"
+            if values.get("steam_pressure") is not None:
+                given[f"user.{name}.steam_pressure"] = f"from linked record {values['link'].record_id} rev " \
+                                                       f"{values['link'].revision}"
         else:
             values["flows"], values["duties"] = _loads(row, where, case_names)
         raw = row.get("load")
@@ -362,6 +365,10 @@ def read_flashes(rows, site, given, users, links):
         values = dict(name=name, from_user=source, target=_header(row, "to", where, site))
         if "record" in row:
             values = links.flash(values, row, where, names[source])
+            for key in FLASH_COPIED:
+                if values.get(key) is not None:
+                    given[f"flash.{name}.{key}"] = f"from linked record {values['link'].record_id} rev " \
+                                                   f"{values['link'].revision}"
         given[f"flash.{name}.from_user"] = source
         given[f"flash.{name}.target"] = row["to"]
         flashes.append(Flash(**values))
