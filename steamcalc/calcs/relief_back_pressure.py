@@ -14,7 +14,7 @@ when the pipe is not given or cannot pass the flow.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 from ..equipment.relief import api526_orifice, back_pressure_correction
 from ..errors import InputError
@@ -101,6 +101,25 @@ def size_at_built_up_back_pressure(result, name, *, valve_type, set_pressure, at
     ``[(back Pa or None, Kb, letter or None)]``; the discharge line is not written (the caller selects the
     orifice and writes it).
     """
+    given_sizer, atmospheric_sizing = sizer, []
+
+    def sizer(res, back):
+        # A pass that can only give the atmospheric sizing again is not worked again (each works the isentrope
+        # on IF97): the atmosphere's own sizing, asked for twice, and a back pressure below the throat pressure of
+        # critical flow with no Kb, which leaves the flux, and so the area, as it was. Steps go only to a
+        # throwaway result here; the caller's result always gets its steps worked.
+        if atmospheric_sizing and res is not result:
+            first = atmospheric_sizing[0]
+            if back is None:
+                return first
+            if not isinstance(back, tuple) and back <= first.critical_pressure and \
+                    balanced_kb(valve_type, set_pressure, back, atm) == 1.0:
+                return replace(first, back=back)
+        sizing = given_sizer(res, back)
+        if back is None and not atmospheric_sizing:
+            atmospheric_sizing.append(sizing)
+        return sizing
+
     passes, back = [], None
     usable_limit = set_pressure  # at the set pressure the valve cannot pass its flow: no sizing beyond it
     stopped = ""
