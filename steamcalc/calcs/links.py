@@ -74,9 +74,14 @@ def find_linked_record(record_id, revision, kind, *, folder, case_path, read_rec
     if not isinstance(record_id, str) or not _FILE_NAME_PART.match(record_id):
         raise InputError("a record id holds only letters, digits, '.', '_' and '-'", field=f"{where}.record",
                          value=record_id, fix='e.g. record = "LD-01"')
-    if not isinstance(revision, str) or not _FILE_NAME_PART.match(revision):
+    if revision is None:
         raise InputError(f"the revision of linked record {record_id} is not given", field=f"{where}.revision",
-                         value=revision, fix=revision_fix)
+                         fix=revision_fix)
+    if not isinstance(revision, str) or not _FILE_NAME_PART.match(revision):
+        # (the record's id is left out of the message: its digits would hide a revision given as a number)
+        raise InputError("a linked record's revision must be a name in quotes, of letters, digits, '.', '_' and "
+                         "'-'", field=f"{where}.revision", value=revision,
+                         fix='e.g. revision = "B"')
     if case_path is None or read_record is None:
         raise InputError(f"linked record {record_id} is read only when {holder} runs from its case file",
                          field=f"{where}.record", value=record_id,

@@ -90,6 +90,13 @@ def check_overpressure_inputs(inputs):
         raise InputError("a liquid's cubic expansion coefficient is above zero",
                          field="overpressure.expansion_coefficient", value=inputs.process_expansion_coefficient,
                          fix="give it per kelvin, e.g. 0.0007 for a light oil")
+    if inputs.process_expansion_coefficient is not None and inputs.process_cp is None:
+        raise InputError("the process liquid is water, whose expansion coefficient comes from IF97 over the "
+                         "temperatures the blocked-in water reaches: a figure given here would not be used",
+                         field="overpressure.expansion_coefficient",
+                         value=f"{inputs.process_expansion_coefficient * 1e6:g} ppm/K",
+                         fix="remove expansion_coefficient, or give process_cp and process_density for a liquid "
+                             "other than water")
     if process_design is not None and inputs.process_cp is not None and (
             inputs.process_expansion_coefficient is None or
             (inputs.process_density is None)):
@@ -156,6 +163,10 @@ def _tube_rupture(inputs, atm, result):
             "comparison does not cover (common practice: the engineer of record judges it for long tubes, high "
             "pressure differences and stiff liquid systems)", low=quantity, limit=limit))
         result.add(f"{PREFIX}_relief_needed", f"{NAME}: relief device needed", "no")
+        if inputs.discharge_size is not None or inputs.discharge_length is not None:
+            result.notice(f"{NAME}: discharge pipe not assessed", "the tube-rupture discharge pipe given "
+                          "(overpressure.discharge_size, discharge_length) is not assessed: no relief device is "
+                          "needed for a ruptured tube here")
         return
     result.add(f"{PREFIX}_relief_needed", f"{NAME}: relief device needed", "yes")
     result.notice(f"{NAME}: a relief case", Phrase.of(why + f" ({source})" + ": the process side is not protected "

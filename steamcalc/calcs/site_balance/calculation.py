@@ -162,6 +162,7 @@ def calculate(inputs, site):
     result.cautions.extend(CAUTIONS)
     add_return_notes(result, inputs, site)
     add_turbine_notes(result, inputs)
+    _deaerator_vent_check(result, inputs.deaerator)
     states = fixed_states(inputs, site)
     balances = {}
     for case in inputs.load_cases:
@@ -419,3 +420,22 @@ def _case_checks(result, inputs, site, balances, what=""):
                                [("<=", (0.0, "kg/h"), "warn")],
                                Phrase.of("the " + h + " header vents up to {vent:.0f} (" + ", ".join(vents) + ")",
                                          vent=(worst * 3600, "kg/h")))
+
+
+#: A deaerator's vent stated on its feedwater above which the figure is more likely a slip than a vent, %
+#: (common practice: a deaerator vents a few tenths of a per cent of its feedwater or less).
+DEAERATOR_VENT_LIMIT = 1.0
+
+
+def _deaerator_vent_check(result, deaerator):
+    """A vent stated as a share of the feedwater against what a deaerator vents."""
+    if deaerator.vent_of_feedwater is None:
+        return
+    share = (deaerator.vent_of_feedwater * 100, "%")
+    result.check_limit("Deaerator vent", share, [("<=", (DEAERATOR_VENT_LIMIT, "%"), "warn")],
+                       lambda status: Phrase.of(
+                           "{share:.3g} of the feedwater vented" + (
+                               ", within the {limit:g} a deaerator vents" if status == "pass" else ", beyond the {limit:g} a deaerator vents: check the figure "
+                               "(a fraction of the feedwater, not a percentage); the steam vented is lost with it"),
+                           share=share, limit=(DEAERATOR_VENT_LIMIT, "%")),
+                       source="common practice: a deaerator vents a few tenths of a per cent of its feedwater or less")

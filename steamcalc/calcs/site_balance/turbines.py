@@ -21,6 +21,11 @@ from ..letdown.turbine import DEFAULT_GENERATOR_EFFICIENCY, turbine_exhaust_enth
 #: Below this exhaust dryness a turbine's last blades erode and its users get wet steam (common practice:
 #: back-pressure machines are laid out for at most about 10 % moisture at the exhaust).
 MIN_EXHAUST_DRYNESS = 0.90
+#: Isentropic efficiencies back-pressure turbines reach: about 0.3 for a small single-stage machine to about 0.85
+#: for a multistage one (common practice); outside it the figure is more likely a slip than a machine.
+ISENTROPIC_EFFICIENCY_RANGE = (0.30, 0.90)
+#: Mechanical (gearbox) and generator efficiency together of a turbine set (common practice).
+GENERATOR_EFFICIENCY_RANGE = (0.85, 0.99)
 SOURCE = "Isentropic efficiency of a turbine, h2 = h1 − η_s·(h1 − h2s), h2s = h(p2, s1) (any " \
          "engineering-thermodynamics text); states by IAPWS-IF97"
 
@@ -109,6 +114,10 @@ def add_turbine_notes(result, inputs):
                               "at the exhaust header's pressure; shaft power = steam flow × (h1 − h2); the boiler "
                               "makes up the shaft work, so the fuel stated includes the turbines' share")
     for t in inputs.turbines:
+        _efficiency_check(result, f"Turbine {t.name}: isentropic efficiency", t.isentropic_efficiency,
+                          ISENTROPIC_EFFICIENCY_RANGE)
+        _efficiency_check(result, f"Turbine {t.name}: mechanical and generator efficiency", generator_efficiency(t),
+                          GENERATOR_EFFICIENCY_RANGE)
         if t.generator_efficiency is None:
             result.assumptions.append(f"Turbine {t.name}: mechanical and generator efficiency "
                                       f"{DEFAULT_GENERATOR_EFFICIENCY} (gearbox and generator of a small set, "
@@ -118,6 +127,18 @@ def add_turbine_notes(result, inputs):
             result.assumptions.append(f"Turbine {t.name} passes the steam the {t.target} header needs{limit}, "
                                       "ahead of any let-down into that header (its governor holds the exhaust "
                                       "pressure)")
+
+
+def _efficiency_check(result, name, efficiency, bounds):
+    """An efficiency against the range such machines reach: outside it, a warning that it is likely a slip."""
+    low, high = bounds
+    result.check_limit(name, (efficiency, ""), [(">=", (low, ""), "warn"), ("<=", (high, ""), "warn")],
+                       lambda status: Phrase.of(
+                           "{eta:.3g}, within {low:g} to {high:g}, the range such machines reach" if status == "pass"
+                           else "{eta:.3g} is outside {low:g} to {high:g}, the range such machines reach: check the "
+                                "figure (a fraction, not a percentage) against the maker's data",
+                           eta=(efficiency, ""), low=(low, ""), high=(high, "")),
+                       source="common practice")
 
 
 def turbine_case_results(result, inputs, b, c, what):

@@ -187,6 +187,12 @@ class Inputs:
             raise InputError(f"drip legs closer than {MIN_DRIP_SPACING:g} m apart are not a design",
                              field="drip_spacing", value=f"{self.drip_spacing:g} m",
                              fix="give the spacing in metres, 30 to 50 m on level runs (common practice)")
+        for i, segment in enumerate(self.main_segments):
+            if abs(segment.rise) > segment.length:
+                raise InputError(f"segment {i + 1} rises or falls {abs(segment.rise):g} m over its {segment.length:g} m "
+                                 "length: a run cannot climb more than its own length", field=f"segments[{i}].rise",
+                                 value=f"{segment.rise:g} m", fix="give the height gained from the segment's start to "
+                                 "its end (a fall below zero), no more than its length")
         if self.insulation_thickness < 0.0:
             raise InputError("insulation cannot be thinner than zero", field="insulation.thickness",
                              value=f"{self.insulation_thickness * 1000:g} mm",
