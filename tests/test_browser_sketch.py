@@ -118,7 +118,10 @@ def test_save_case_button_writes_a_new_file_and_never_overwrites(lab, browser):
     assert written.read_text(encoding="utf-8") == saved_text
     assert (cases / "FL-01.toml").read_bytes() == original
     offer = page.locator(f"{PANEL} .steamcalc-save-case-next").first
-    assert offer.is_visible() and "revision D" in offer.inner_text()
+    # The offer is sent before the account above (steamcalc/ui/save_case.py); waited for all the same, as a
+    # browser may draw two changes in one frame or the next.
+    offer.wait_for(state="visible", timeout=30_000)
+    assert "revision D" in offer.inner_text()
     cell.screenshot(path=str(SHOTS / "15-11-save-case.png"))
 
     # Taking the offer raises the Revision box to D and saves FL-01_revD.toml.

@@ -59,15 +59,17 @@ class CaseSaver:
     def _on_click(self):
         text = self.save()
         colour = "#a3201b" if text.startswith("not saved") else "#2f6b3a"
-        self.status.value = f"<span style='color:{colour}'>{html.escape(text)}</span>"
         wb = self.workbook
         self._next = None
+        # The offer is set before the account under the button: the browser draws the widgets' changes in the
+        # order they are sent, so by the time the account reads "not saved" its offer is already shown.
         if text.startswith("not saved") and wb.error is None:
             self._next = free_revision(wb.case.path.parent, wb.case.id, wb.case.revision)
             self.next_button.description = f"Save as revision {self._next}"
             self.next_button.layout.display = None
         else:
             self.next_button.layout.display = "none"
+        self.status.value = f"<span style='color:{colour}'>{html.escape(text)}</span>"
 
     def _save_as_next(self):
         if self._next is None:
