@@ -45,6 +45,15 @@ class DischargeLine:
     exit_velocity: float      #: m/s at the pipe exit
 
 
+def check_pipe_run(length, fittings_k):
+    """Refuse a discharge line with a negative straight length (m) or sum of fittings' K (shared by the steam and
+    the two-phase line)."""
+    if length < 0.0 or fittings_k < 0.0:
+        raise InputError("a discharge line's length and fittings' K cannot be negative",
+                         field="discharge_length" if length < 0.0 else "discharge_fittings_k",
+                         value=min(length, fittings_k), fix="give the straight length in m and the sum of K, 0 or more")
+
+
 def built_up_back_pressure(mass_flow, temperature, inner_diameter, length, fittings_k, atmospheric_pressure,
                            viscosity, molar_mass=MOLAR_MASS_WATER, roughness=STEEL_ROUGHNESS, relieving_pressure=None):
     """Pressure at the relief valve outlet from the flow through its discharge pipe.
@@ -108,10 +117,7 @@ def built_up_back_pressure(mass_flow, temperature, inner_diameter, length, fitti
         if not (math.isfinite(value) and value > 0.0):
             raise InputError(f"the discharge line's {name} must be above zero", field=f"discharge line {name}",
                              value=value)
-    if length < 0.0 or fittings_k < 0.0:
-        raise InputError("a discharge line's length and fittings' K cannot be negative",
-                         field="discharge_length" if length < 0.0 else "discharge_fittings_k",
-                         value=min(length, fittings_k), fix="give the straight length in m and the sum of K, 0 or more")
+    check_pipe_run(length, fittings_k)
     area = math.pi * inner_diameter ** 2 / 4.0
     flux = mass_flow / area
     gas = R_UNIVERSAL * temperature / molar_mass   # p/ρ, J/kg

@@ -28,6 +28,7 @@ import math
 from dataclasses import dataclass
 
 from ..errors import InputError, OutOfRangeError
+from .discharge_line import check_pipe_run
 from .line_loss import STEEL_ROUGHNESS
 
 
@@ -189,10 +190,7 @@ def two_phase_back_pressure(mass_flow, inner_diameter, length, fittings_k, atmos
         if not (math.isfinite(value) and value > 0.0):
             raise InputError(f"the two-phase discharge line's {name} must be above zero",
                              field=f"discharge line {name}", value=value)
-    if length < 0.0 or fittings_k < 0.0:
-        raise InputError("a discharge line's length and fittings' K cannot be negative",
-                         field="discharge_length" if length < 0.0 else "discharge_fittings_k",
-                         value=min(length, fittings_k), fix="give the straight length in m and the sum of K, 0 or more")
+    check_pipe_run(length, fittings_k)
     area = math.pi * inner_diameter ** 2 / 4.0
     flux = mass_flow / area
     reynolds = flux * inner_diameter / liquid_viscosity
