@@ -1,4 +1,24 @@
-"""Case texts shared by the site-balance tests: a small site and a balance on it (invented figures)."""
+"""Case texts shared by the site-balance tests: a small site and a balance on it (invented figures); and the
+small two-header site the hand-worked balances use, with the IAPWS-95 enthalpy they are worked with."""
+
+from CoolProp.CoolProp import PropsSI
+
+from steamcalc.calcs.site_balance.items import LoadCase
+from steamcalc.cases.site import Site
+
+ATM = 1.01325e5
+#: HP 11 bar(a), LP 2.5 bar(a): the site of the balances worked by hand.
+HAND_SITE = Site(atmospheric_pressure=ATM, makeup_water_temperature=288.15, boiler_efficiency=0.86,
+                 headers={"HP": 11e5, "LP": 2.5e5})
+YEAR = (LoadCase("all year", 8000 * 3600.0),)
+
+
+def coolprop_enthalpy(p, **state):
+    """Specific enthalpy, J/kg, from IAPWS-95 through CoolProp: at pressure ``p`` (Pa) and ``Q`` or ``T`` (K)."""
+    if "Q" in state:
+        return PropsSI("H", "P", p, "Q", state["Q"], "Water")
+    return PropsSI("H", "P", p, "T", state["T"], "Water")
+
 
 SITE = """
 [site]

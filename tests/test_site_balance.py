@@ -13,26 +13,17 @@ from steamcalc.calcs.site_balance.calculation import Inputs, calculate
 from steamcalc.calcs.site_balance.closure import deaerator_streams, header_streams, relative_residual
 from steamcalc.calcs.site_balance.comparison import comparison_rows
 from steamcalc.calcs.site_balance.figures import sankey_links
-from steamcalc.calcs.site_balance.items import Boiler, Deaerator, Letdown, LoadCase, User
+from steamcalc.calcs.site_balance.items import Boiler, Deaerator, Letdown, User
 from steamcalc.cases.site import Site, case_inputs, case_site, load_case
 from steamcalc.cli import main
 from steamcalc.errors import NotConvergedError
 from steamcalc.records.record import compute_content_digest, compute_digest, read_intact_record
-from tests.site_balance_cases import CASE, write_site
+from tests.site_balance_cases import ATM, CASE, HAND_SITE, YEAR, coolprop_enthalpy, write_site
 
-ATM = 1.01325e5
 REPO = Path(__file__).resolve().parents[1]
 DEMO = REPO / "workbooks" / "demo_site"
-SITE = Site(atmospheric_pressure=ATM, makeup_water_temperature=288.15, boiler_efficiency=0.86,
-            headers={"HP": 11e5, "LP": 2.5e5})
-YEAR = (LoadCase("all year", 8000 * 3600.0),)
-
-
-def _cool(p, **state):
-    """Specific enthalpy, J/kg, from IAPWS-95 through CoolProp."""
-    if "Q" in state:
-        return PropsSI("H", "P", p, "Q", state["Q"], "Water")
-    return PropsSI("H", "P", p, "T", state["T"], "Water")
+SITE = HAND_SITE
+_cool = coolprop_enthalpy
 
 
 # Deaerator mass and energy balance worked by hand with IAPWS-95 (CoolProp): the LP header holds HP saturated
