@@ -80,9 +80,14 @@ def run_cases(paths, site_override=None, out_override=None, progress=True, worke
             for number, path in enumerate(paths)]
 
 
-def _ignore_interrupt():
+def _start_worker():
     # Workers leave Ctrl-C to the main process, which stops them all at once; the main process's SIGTERM and
     # SIGHUP handlers (which turn them into Ctrl-C) are not theirs: a worker the pool terminates just ends.
+    from ..properties.engines import remember_states_from_now
+
+    # A batch's cases share states (a site's headers, a sweep's inlet): a worker evaluates each once. Every case
+    # is still computed in full; remembering changes no value.
+    remember_states_from_now()
     signal.signal(signal.SIGINT, signal.SIG_IGN)
     for name in ("SIGTERM", "SIGHUP"):
         if hasattr(signal, name):
@@ -93,7 +98,7 @@ def _run_parallel(paths, site_override, out_override, force, workers, outcomes, 
     import multiprocessing
 
     workers = workers or min(len(paths), os.cpu_count() or 1)
-    pool = multiprocessing.get_context().Pool(workers, initializer=_ignore_interrupt)
+    pool = multiprocessing.get_context().Pool(workers, initializer=_start_worker)
     try:
         pending = {n: pool.apply_async(run_one, (p, site_override, out_override, force)) for n, p in enumerate(paths)}
         while pending:

@@ -6,6 +6,7 @@ from ..calcs import get_calculation
 from ..calcs.base import to_record_inputs
 from ..cases.site import case_inputs, case_site, load_case
 from ..errors import SteamcalcError
+from ..properties.engines import remembering_states
 from .record import IssuedRecords, build_record
 
 
@@ -32,7 +33,10 @@ def record_for_case(case, site, *, inputs=None, given=None, created=None, with_u
     if inputs is None:
         inputs, given = case_inputs(case, site, read_record=IssuedRecords(record_folder))
     try:
-        result = calc.calculate(inputs, site)
+        # A calculation evaluates many states more than once (a header's saturation in each load case, a valve's
+        # outlet in each sizing pass): within one case each is evaluated once, with the very same values.
+        with remembering_states():
+            result = calc.calculate(inputs, site)
         uncertainty = None
         if case.uncertainty and with_uncertainty:
             from ..runs.uncertainty import add_sample_check, parse_coverage, parse_tolerances, run_uncertainty

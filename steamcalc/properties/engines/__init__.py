@@ -106,7 +106,9 @@ def remembering_states(memory=None):
     share its headers' states; a workbook recomputing after one input changed — with nothing changed in what is
     computed: an engine function's value depends on its arguments alone. An exception is never remembered (it is
     raised again by evaluating again). The memory is the block's own and is forgotten when it ends, unless the
-    caller gives its own (an empty dict it keeps, to remember across blocks).
+    caller gives its own (an empty dict it keeps, to remember across blocks). A block inside a block that
+    remembers, and gives no memory of its own, keeps to the outer block's memory (one case of a batch, one record
+    of a register).
 
     Examples
     --------
@@ -114,12 +116,27 @@ def remembering_states(memory=None):
     ...     first = engine_module().saturation_temperature(1e5)
     ...     engine_module().saturation_temperature(1e5) == first
     True
+    >>> outer = {}
+    >>> with remembering_states(outer):
+    ...     with remembering_states():
+    ...         _ = engine_module().saturation_temperature(2e5)
+    >>> len(outer)
+    1
     """
+    if memory is None:
+        memory = _REMEMBERED.get()
     token = _REMEMBERED.set({} if memory is None else memory)
     try:
         yield
     finally:
         _REMEMBERED.reset(token)
+
+
+def remember_states_from_now():
+    """From now on, in this context, each engine evaluates a state once: for a batch's worker process, whose whole
+    life is one batch, so that its cases share their headers' and inlets' states (:func:`remembering_states`,
+    without an end; the memory keeps at most :data:`MAX_REMEMBERED` states)."""
+    _REMEMBERED.set({})
 
 
 def current_engine():
@@ -150,4 +167,4 @@ def engine_description(name):
 
 
 __all__ = ["ENGINES", "FAST_ENGINE", "REFERENCE_ENGINE", "check_engine", "current_engine", "engine_description",
-           "engine_module", "other_engine", "using_engine"]
+           "engine_module", "other_engine", "remember_states_from_now", "remembering_states", "using_engine"]
