@@ -43,8 +43,20 @@ def format_unit(unit, basis="absolute"):
 
 # Characters Markdown gives a meaning inline (emphasis, code, links, images, raw HTML, tables,
 # strike-through, maths in some viewers); user text in the Markdown record has them escaped.
-_MD_SPECIAL = re.compile(r"([\\`*_{}\[\]<>|~#!$&])")
-_CONTROL = re.compile("[\x00-\x08\x0b-\x1f\x7f-\x9f\u202a-\u202e\u2066-\u2069]")
+_MD_SPECIAL = "\\`*_{}[]<>|~#!$&"
+_CONTROL_CHARACTERS = [chr(c) for c in [*range(0x00, 0x09), *range(0x0b, 0x20), *range(0x7f, 0xa0),
+                                        *range(0x202a, 0x202f), *range(0x2066, 0x206a)]]
+_LINE_BREAKS = re.compile(r"[\r\n]+")
+# One pass of str.translate (this runs for every cell of every Markdown record): a tab becomes a space, a control
+# or direction-override character goes, a Markdown character gets its backslash.
+_MD_TABLE = str.maketrans({"\t": " ", **{c: None for c in _CONTROL_CHARACTERS},
+                           **{c: "\\" + c for c in _MD_SPECIAL}})
+_CODE_TABLE = str.maketrans({"\t": " ", **{c: None for c in _CONTROL_CHARACTERS}})
+
+
+def _one_line(text):
+    text = str(text)
+    return _LINE_BREAKS.sub(" ", text) if "\n" in text or "\r" in text else text
 
 
 def _md(text):
@@ -54,15 +66,24 @@ def _md(text):
     --------
     >>> _md("<b>x</b> [link](javascript:y) *a*|b")
     '\\\\<b\\\\>x\\\\</b\\\\> \\\\[link\\\\](javascript:y) \\\\*a\\\\*\\\\|b'
+    >>> _md("two\\r\\n\\nlines\\tand a\\u202eturn")
+    'two lines and aturn'
     """
-    text = _CONTROL.sub("", re.sub(r"[\r\n]+", " ", str(text).replace("\t", " ")))
-    return _MD_SPECIAL.sub(r"\\\1", text)
+    return _one_line(text).translate(_MD_TABLE)
 
 
 def _code(text):
-    """Text as a Markdown code span: fenced with more backticks than it holds, on one line."""
-    text = _CONTROL.sub("", re.sub(r"[\r\n]+", " ", str(text).replace("\t", " ")))
-    longest = max((len(run) for run in re.findall(r"`+", text)), default=0)
+    """Text as a Markdown code span: fenced with more backticks than it holds, on one line.
+
+    Examples
+    --------
+    >>> _code("h2 = h1"), _code("a `b` c"), _code("`x")
+    ('`h2 = h1`', '``a `b` c``', '`` `x ``')
+    """
+    text = _one_line(text).translate(_CODE_TABLE)
+    if "`" not in text:
+        return f"`{text}`"
+    longest = max(len(run) for run in re.findall(r"`+", text))
     fence = "`" * (longest + 1)
     pad = " " if text.startswith("`") or text.endswith("`") else ""
     return f"{fence}{pad}{text}{pad}{fence}"
