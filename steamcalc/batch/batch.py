@@ -59,17 +59,14 @@ def run_cases(paths, site_override=None, out_override=None, progress=True, worke
     try:
         # Cases that link issued records (a site balance) run after the rest, so that the records they link are
         # issued first when a whole site folder is run.
-        for phase in link_phases(paths):
-            found = {}
-            try:
-                if len(phase) < PARALLEL_FROM:
-                    for number, path in enumerate(paths[n] for n in phase):
-                        found[number] = run_one(path, site_override, out_override, force)
-                        bar.update(1)
-                else:
-                    _run_parallel([paths[n] for n in phase], site_override, out_override, force, workers, found, bar)
-            finally:
-                outcomes.update({phase[number]: outcome for number, outcome in found.items()})
+        phases = link_phases(paths)
+        if len(paths) < PARALLEL_FROM:
+            for phase in phases:
+                for number in phase:
+                    outcomes[number] = run_one(paths[number], site_override, out_override, force)
+                    bar.update(1)
+        else:
+            _run_parallel(paths, phases, site_override, out_override, force, workers, outcomes, bar)
     except KeyboardInterrupt:
         pass
     finally:
@@ -94,19 +91,21 @@ def _start_worker():
             signal.signal(getattr(signal, name), signal.SIG_DFL)
 
 
-def _run_parallel(paths, site_override, out_override, force, workers, outcomes, bar):
+def _run_parallel(paths, phases, site_override, out_override, force, workers, outcomes, bar):
+    """Run the phases one after the other on one pool of workers (each keeps what it imported and remembered)."""
     import multiprocessing
 
     workers = workers or min(len(paths), os.cpu_count() or 1)
     pool = multiprocessing.get_context().Pool(workers, initializer=_start_worker)
     try:
-        pending = {n: pool.apply_async(run_one, (p, site_override, out_override, force)) for n, p in enumerate(paths)}
-        while pending:
-            for number in [n for n, r in pending.items() if r.ready()]:
-                outcomes[number] = pending.pop(number).get()
-                bar.update(1)
-            if pending:
-                time.sleep(0.05)
+        for phase in phases:
+            pending = {n: pool.apply_async(run_one, (paths[n], site_override, out_override, force)) for n in phase}
+            while pending:
+                for number in [n for n, r in pending.items() if r.ready()]:
+                    outcomes[number] = pending.pop(number).get()
+                    bar.update(1)
+                if pending:
+                    time.sleep(0.05)
         pool.close()
     except BaseException:
         # Ctrl-C: stop the workers now rather than when their cases end. Signalling them first
