@@ -411,9 +411,8 @@ def write_record(record, out_dir, renderers=None, force=False):
                     fix="raise the revision in the case file ([case] revision) to issue a new record; "
                         "the existing record is kept as it is")
             stale = []
-            for suffix, render in renderers.items():
+            for suffix, text in _drawn_reports(renderers, existing).items():
                 report = out_dir / f"{stem}{suffix}"
-                text = render(existing)
                 if report.exists() and _same_text(report, text):
                     continue
                 _refuse_foreign(report, force, is_own_output)
@@ -425,9 +424,16 @@ def write_record(record, out_dir, renderers=None, force=False):
             _refuse_foreign(report, force, is_own_output)
         # Render everything before writing anything; the JSON moves into place first.
         files = [(json_path.name, record_text(record))]
-        files += [(f"{stem}{suffix}", render(record)) for suffix, render in renderers.items()]
+        files += [(f"{stem}{suffix}", text) for suffix, text in _drawn_reports(renderers, record).items()]
         issue_set(out_dir, stem, files)
     return paths, "written"
+
+
+def _drawn_reports(renderers, record):
+    """``{suffix: text}`` of a record's reports: drawn together when the renderers can share their work."""
+    if hasattr(renderers, "draw"):
+        return renderers.draw(record)
+    return {suffix: render(record) for suffix, render in renderers.items()}
 
 
 def _same_case(a, b):

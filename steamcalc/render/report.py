@@ -191,6 +191,18 @@ def render_markdown(record, shown=None):
     return _environment(False).get_template("record.md.j2").render(**_context(record, shown=shown))
 
 
+class Reports(dict):
+    """Suffix -> function drawing a record's report (``record -> text``), that draws them all at once with one
+    display of the record (:meth:`draw`), the part both reports share."""
+
+    def draw(self, record):
+        """``{suffix: text}`` of every report of a record."""
+        from .display import display_record
+
+        shown = display_record(record)
+        return {suffix: render(record, shown=shown) for suffix, render in self.items()}
+
+
 #: The layout releases 0.2 and 0.3 drew a record's reports in, before the first page for the checker.
 EARLIER_LAYOUTS = {".html": "record_earlier.html.j2", ".md": "record_earlier.md.j2"}
 
@@ -210,4 +222,4 @@ def render_diff_html(old, new, rows):
     return _environment(True).get_template("diff.html.j2").render(old=old, new=new, rows=rows)
 
 
-RENDERERS = {".html": render_html, ".md": render_markdown}
+RENDERERS = Reports({".html": render_html, ".md": render_markdown})

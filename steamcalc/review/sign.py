@@ -87,5 +87,5 @@ def write_signed(path, signed):
     at any instant leaves the old set or the new one (:mod:`steamcalc.records.issuing`).
     """
     path = Path(path)
-    reports = [(path.with_suffix(suffix).name, render(signed)) for suffix, render in RENDERERS.items()]
+    reports = [(path.with_suffix(suffix).name, text) for suffix, text in RENDERERS.draw(signed).items()]
     issue_set(path.parent, path.stem, [(path.name, record_text(signed))] + reports)
