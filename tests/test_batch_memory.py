@@ -72,3 +72,34 @@ def test_outside_a_worker_nothing_is_remembered_after_a_block_ends():
     with remembering_states():
         engine_module().saturation_temperature(4.5e5)
     assert not hasattr(engine_module(), "_remembered")
+
+
+def test_a_worker_reads_a_linked_record_again_from_its_memory_and_an_edited_copy_is_still_refused(issued, tmp_path):
+    from steamcalc.errors import RecordError
+    from steamcalc.records import record as records
+    from steamcalc.records.record import read_intact_record, remember_intact_records_from_now
+
+    folder, _ = issued
+    source = folder / "LD-01_revB.json"
+    copy = tmp_path / source.name
+    copy.write_text(source.read_text(encoding="utf-8"), encoding="utf-8")
+
+    def in_a_worker():
+        remember_intact_records_from_now()
+        first = read_intact_record(copy)
+        checked = []
+        real = records._record_from_text
+        records._record_from_text = lambda *a, **k: checked.append(1) or real(*a, **k)
+        try:
+            again = read_intact_record(copy)
+            # The title edited: the text is new, so it is read and checked afresh, and its digest refuses it.
+            copy.write_text(copy.read_text(encoding="utf-8").replace('"title": "', '"title": "Edited ', 1),
+                            encoding="utf-8")
+            with pytest.raises(RecordError, match="digest does not match"):
+                read_intact_record(copy)
+        finally:
+            records._record_from_text = real
+        return first, again, checked
+
+    first, again, checked = contextvars.copy_context().run(in_a_worker)
+    assert again == first and checked == [1]

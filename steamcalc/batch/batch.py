@@ -81,10 +81,12 @@ def _start_worker():
     # Workers leave Ctrl-C to the main process, which stops them all at once; the main process's SIGTERM and
     # SIGHUP handlers (which turn them into Ctrl-C) are not theirs: a worker the pool terminates just ends.
     from ..properties.engines import remember_states_from_now
+    from ..records.record import remember_intact_records_from_now
 
     # A batch's cases share states (a site's headers, a sweep's inlet): a worker evaluates each once. Every case
-    # is still computed in full; remembering changes no value.
+    # is still computed in full; remembering changes no value. Its site balances read the same linked records.
     remember_states_from_now()
+    remember_intact_records_from_now()
     signal.signal(signal.SIGINT, signal.SIG_IGN)
     for name in ("SIGTERM", "SIGHUP"):
         if hasattr(signal, name):

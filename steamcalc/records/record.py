@@ -17,6 +17,7 @@ Two digests are kept:
 
 from __future__ import annotations
 
+import contextvars
 import copy
 import hashlib
 import json
@@ -171,11 +172,16 @@ def load_record(path, known_valid=None):
     the parts that later steps rely on are type-checked, so an edited or crafted record is
     refused by name instead of failing somewhere later.
     """
+    return _record_from_text(_record_file_text(path), Path(path), known_valid)
+
+
+def _record_file_text(path):
     from ..cases.inputfiles import MAX_RECORD_FILE, read_text_file
 
-    path = Path(path)
-    text = read_text_file(path, "record file", MAX_RECORD_FILE, RecordError)
+    return read_text_file(path, "record file", MAX_RECORD_FILE, RecordError)
 
+
+def _record_from_text(text, path, known_valid=None):
     def refuse(number):   # steamcalc never writes one; later arithmetic and the digest would fail on it
         raise RecordError(f"not a record steamcalc issued: it holds the number {number[:20]}, which is not "
                           "finite or lies beyond a double", source=path, fix="re-issue the record from its case file")
@@ -226,11 +232,30 @@ def read_intact_record(path):
     RecordError
         The file is not a record, or it was edited after it was issued.
     """
-    record = load_record(path)
+    text = _record_file_text(path)
+    known = _INTACT_TEXTS.get()
+    key = hashlib.sha256(text.encode("utf-8")).digest() if known is not None else None
+    if key is not None and key in known:
+        # The very text read before, whole and intact: the same record (its checks passed on this text).
+        return json.loads(text)
+    record = _record_from_text(text, Path(path))
     if record.get("content_digest") != compute_content_digest(record) or record.get("digest") != compute_digest(record):
         raise RecordError("its digest does not match its content: the file was edited after it was issued",
                           source=path, fix="re-issue the record from its case file, or link the copy that was issued")
+    if key is not None:
+        known.add(key)
     return record
+
+
+#: In a context that remembers them (a batch's worker), the SHA-256 of each record text read whole and intact.
+_INTACT_TEXTS = contextvars.ContextVar("steamcalc_intact_records", default=None)
+
+
+def remember_intact_records_from_now():
+    """From now on, in this context, a record text read before whole and intact (:func:`read_intact_record`) is
+    not checked again: for a batch's worker process, whose site balances read the same linked records case after
+    case. The text is read and compared by its SHA-256 every time, so an edited file is read and checked afresh."""
+    _INTACT_TEXTS.set(set())
 
 
 class IssuedRecords:
