@@ -78,8 +78,6 @@ def run_cases(paths, site_override=None, out_override=None, progress=True, worke
 
 
 def _start_worker():
-    # Workers leave Ctrl-C to the main process, which stops them all at once; the main process's SIGTERM and
-    # SIGHUP handlers (which turn them into Ctrl-C) are not theirs: a worker the pool terminates just ends.
     from ..properties.engines import remember_states_from_now
     from ..records.record import remember_intact_records_from_now
 
@@ -87,6 +85,8 @@ def _start_worker():
     # is still computed in full; remembering changes no value. Its site balances read the same linked records.
     remember_states_from_now()
     remember_intact_records_from_now()
+    # Workers leave Ctrl-C to the main process, which stops them all at once; the main process's SIGTERM and
+    # SIGHUP handlers (which turn them into Ctrl-C) are not theirs: a worker the pool terminates just ends.
     signal.signal(signal.SIGINT, signal.SIG_IGN)
     for name in ("SIGTERM", "SIGHUP"):
         if hasattr(signal, name):
