@@ -93,3 +93,52 @@ def test_ctrl_c_stops_every_worker_without_a_traceback():
     assert "Traceback" not in err, err
     with pytest.raises(ProcessLookupError):   # no worker left behind in the group
         os.killpg(process.pid, 0)
+
+
+AT_THE_FORK = textwrap.dedent("""
+    import multiprocessing.process, os, signal, sys
+    from steamcalc.review.forked import map_forked
+    start = multiprocessing.process.BaseProcess.start
+    def start_then_ctrl_c(self):
+        start(self)
+        os.killpg(0, signal.SIGINT)   # the worst instant: the worker is still in Python's start-up after the fork
+    multiprocessing.process.BaseProcess.start = start_then_ctrl_c
+    try:
+        map_forked(lambda i: i, 200, 2)
+        print("finished", flush=True)
+    except KeyboardInterrupt:
+        print("interrupted", flush=True)
+        sys.exit(130)
+""")
+
+
+def test_ctrl_c_the_instant_a_worker_is_forked_interrupts_the_parent_and_no_worker_prints_a_traceback():
+    # Ctrl-C is held while the parent forks; the worker lets it through only once it ignores it.
+    done = subprocess.run([sys.executable, "-c", AT_THE_FORK], capture_output=True, text=True, cwd=ROOT,
+                          start_new_session=True, timeout=120)
+    assert (done.returncode, done.stdout.strip()) == (130, "interrupted"), done.stderr
+    assert "Traceback" not in done.stderr, done.stderr
+
+
+BATCH_AT_THE_FORK = textwrap.dedent("""
+    import multiprocessing.process, os, signal, sys
+    from pathlib import Path
+    from steamcalc.batch.batch import run_cases
+    start = multiprocessing.process.BaseProcess.start
+    def start_then_ctrl_c(self):
+        start(self)
+        os.killpg(0, signal.SIGINT)
+    multiprocessing.process.BaseProcess.start = start_then_ctrl_c
+    cases = sorted(Path(sys.argv[1]).glob("*.toml"))
+    outcomes = run_cases(cases, out_override=sys.argv[2], progress=False)
+    print("not run:", sum(o.interrupted for o in outcomes), "of", len(outcomes), flush=True)
+""")
+
+
+def test_ctrl_c_the_instant_a_batch_worker_starts_stops_the_batch_without_a_traceback(tmp_path):
+    cases = ROOT / "workbooks" / "demo_site" / "cases"
+    done = subprocess.run([sys.executable, "-c", BATCH_AT_THE_FORK, str(cases), str(tmp_path / "records")],
+                          capture_output=True, text=True, cwd=ROOT, start_new_session=True, timeout=300)
+    assert "Traceback" not in done.stderr, done.stderr
+    count = len(list(cases.glob("*.toml")))
+    assert done.stdout.strip() == f"not run: {count} of {count}", (done.stdout, done.stderr)

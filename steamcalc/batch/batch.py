@@ -80,6 +80,7 @@ def run_cases(paths, site_override=None, out_override=None, progress=True, worke
 def _start_worker():
     from ..properties.engines import remember_states_from_now
     from ..records.record import remember_intact_records_from_now
+    from ..review.forked import interrupts_held
 
     # A batch's cases share states (a site's headers, a sweep's inlet): a worker evaluates each once. Every case
     # is still computed in full; remembering changes no value. Its site balances read the same linked records.
@@ -91,14 +92,23 @@ def _start_worker():
     for name in ("SIGTERM", "SIGHUP"):
         if hasattr(signal, name):
             signal.signal(getattr(signal, name), signal.SIG_DFL)
+    interrupts_held(False)   # held by the parent while it started this worker (see _run_parallel)
 
 
 def _run_parallel(paths, phases, site_override, out_override, force, workers, outcomes, bar):
     """Run the phases one after the other on one pool of workers (each keeps what it imported and remembered)."""
     import multiprocessing
 
+    from ..review.forked import interrupts_held
+
     workers = workers or min(len(paths), os.cpu_count() or 1)
-    pool = multiprocessing.get_context().Pool(workers, initializer=_start_worker)
+    # Ctrl-C is held while the workers start: one that came in the instant after a fork would interrupt the new
+    # worker before it ignores it, in Python's own start-up code, and print a traceback. It arrives here after.
+    interrupts_held(True)
+    try:
+        pool = multiprocessing.get_context().Pool(workers, initializer=_start_worker)
+    finally:
+        interrupts_held(False)
     try:
         for phase in phases:
             pending = {n: pool.apply_async(run_one, (paths[n], site_override, out_override, force)) for n in phase}

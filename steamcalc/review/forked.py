@@ -58,6 +58,7 @@ def _child(work, share, sender):
         number = getattr(signal, name, None)
         if number is not None:
             signal.signal(number, signal.SIG_DFL)
+    interrupts_held(False)   # a Ctrl-C held since the fork is dropped now: this worker ignores it
     try:
         answers = [(i, work(i)) for i in share]
         sender.send(("done", answers))
@@ -65,6 +66,17 @@ def _child(work, share, sender):
         sender.send(("error", _error_parts(exc)))
     finally:
         sender.close()
+
+
+def interrupts_held(held):
+    """Hold Ctrl-C (SIGINT) back from this thread, or let it through again (what was held arrives then).
+
+    The parent holds it while it forks: a worker starts with it held and lets it through only once it ignores it.
+    Otherwise a Ctrl-C in the instant after a fork interrupts the new worker in Python's own start-up code,
+    which prints a traceback. Where signals cannot be held (no ``pthread_sigmask``), nothing is done.
+    """
+    if hasattr(signal, "pthread_sigmask"):
+        signal.pthread_sigmask(signal.SIG_BLOCK if held else signal.SIG_UNBLOCK, {signal.SIGINT})
 
 
 def map_forked(work, count, workers):
@@ -96,12 +108,16 @@ def map_forked(work, count, workers):
     children = []
     answers = {}
     try:
-        for share in shares[1:]:
-            receiver, sender = context.Pipe(duplex=False)
-            process = context.Process(target=_child, args=(work, share, sender), daemon=True)
-            process.start()
-            sender.close()
-            children.append((process, receiver))
+        interrupts_held(True)
+        try:
+            for share in shares[1:]:
+                receiver, sender = context.Pipe(duplex=False)
+                process = context.Process(target=_child, args=(work, share, sender), daemon=True)
+                process.start()
+                sender.close()
+                children.append((process, receiver))
+        finally:
+            interrupts_held(False)   # a Ctrl-C held meanwhile arrives here, in the parent
         for i in shares[0]:
             answers[i] = work(i)
         for process, receiver in children:
