@@ -16,7 +16,8 @@ from ...units.amounts import Phrase
 from ...units.rows import Column
 from ..base import Result, check_fields, full_record_wanted, input_field
 from .economics import OPTION_COLUMNS, check_options, report_economics
-from .report import report_main, report_return, report_traps
+from .report import report_main
+from .report_condensate import report_return, report_traps
 from .supply import linked_record_problems, supply_source
 from .supply import main_stale_links as stale_links
 
