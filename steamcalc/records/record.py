@@ -88,6 +88,25 @@ def compute_content_digest(record):
     return _sha256(canonical_json({k: v for k, v in record.items() if k not in _NOT_CONTENT}))
 
 
+def digests_hold(record):
+    """``(digest holds, content digest holds)`` for a record as it stands: :func:`compute_digest` and
+    :func:`compute_content_digest` compared with what it states, each section's canonical text written once for both.
+
+    Examples
+    --------
+    >>> record = {"kind": "letdown", "created": "2026-01-01T00:00:00Z", "results": {"b": 1.5}}
+    >>> record["content_digest"] = compute_content_digest(record)
+    >>> record["digest"] = compute_digest(record)
+    >>> digests_hold(record), digests_hold(dict(record, created="2026-01-02T00:00:00Z"))
+    ((True, True), (False, True))
+    """
+    parts = {key: f"{canonical_json(key)}:{canonical_json(value)}" for key, value in record.items() if key != "digest"}
+    keys = sorted(parts)
+    content = _sha256("{" + ",".join(parts[key] for key in keys if key not in _NOT_CONTENT) + "}")
+    whole = _sha256("{" + ",".join(parts[key] for key in keys) + "}")
+    return whole == record.get("digest"), content == record.get("content_digest")
+
+
 def build_record(*, kind, case_id, revision, title, prepared_by, site, inputs_table, result,
                  notes=(), created=None, uncertainty=None):
     """Assemble a record dictionary from a calculation's result.
@@ -239,7 +258,7 @@ def read_intact_record(path):
         # The very text read before, whole and intact: the same record (its checks passed on this text).
         return json.loads(text)
     record = _record_from_text(text, Path(path))
-    if record.get("content_digest") != compute_content_digest(record) or record.get("digest") != compute_digest(record):
+    if not all(digests_hold(record)):
         raise RecordError("its digest does not match its content: the file was edited after it was issued",
                           source=path, fix="re-issue the record from its case file, or link the copy that was issued")
     if key is not None:

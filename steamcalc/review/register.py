@@ -386,10 +386,9 @@ def register_row(path, record, *, trusted, case=None, site_path=None, later_revi
 
 def _intact(record):
     """Both the record's digests hold (its every byte and its engineering content are as issued)."""
-    from ..records.record import compute_content_digest, compute_digest
+    from ..records.record import digests_hold
 
-    return compute_digest(record) == record.get("digest") and \
-        compute_content_digest(record) == record.get("content_digest")
+    return all(digests_hold(record))
 
 
 def _verification(record, intact, memory):
