@@ -300,3 +300,21 @@ def test_the_what_if_table_shows_the_turbines_electricity():
     row = rows["electricity the turbines generate a year"]
     assert row["balance"] > 0 and row["what-if"] == 0.0
     assert row["difference"] == pytest.approx(-row["balance"], rel=1e-12)
+
+
+def test_the_what_if_checks_each_running_turbines_exhaust_dryness_too():
+    """A what-if is a balance the site may run: a turbine still running in it gets its exhaust-dryness check, named
+    for the what-if; one taken out of service gets none."""
+    turbine = Turbine(name="TG", source="HP", target="LP", isentropic_efficiency=0.75, flow=1.5,
+                      generator_efficiency=0.93)
+    inputs, site = _balance(17e5, None, 2e5, turbine)   # a wet exhaust (the table's second row)
+    second_user = User(name="U2", header="LP", flows=(("all year", 0.2),))
+    running = calculate(Inputs(**{**inputs.__dict__, "users": inputs.users + (second_user,), "without": ("U2",)}),
+                        site)
+    checks = {c.name: c for c in running.checks}
+    base, what_if = checks["all year: turbine TG exhaust dryness"], checks["Without U2, all year: turbine TG exhaust dryness"]
+    # The users' flows do not reach the HP header's state: the same wet exhaust, the same verdict, a check not a notice.
+    assert what_if.status == base.status and what_if.kind == base.kind != "notice"
+    assert running.value("all year.TG.exhaust_dryness") < 1.0
+    stopped = calculate(Inputs(**{**inputs.__dict__, "without": ("TG",)}), site)
+    assert not [c for c in stopped.checks if c.name.startswith("Without TG") and "exhaust dryness" in c.name]

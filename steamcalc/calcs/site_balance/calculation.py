@@ -24,7 +24,7 @@ from .returns import add_return_notes, return_flash_checks, return_flash_results
 from .solver import MAX_SWEEPS, TOLERANCE, fixed_states, solve_case
 from .steps import case_steps
 from .turbines import add_turbine_notes, add_turbine_year, closing_turbine, turbine_case_results
-from .turbines import turbine_steps_and_checks
+from .turbines import turbine_dryness_checks, turbine_steps_and_checks
 from .valve_checks import header_pressure_checks, letdown_valve_checks
 
 KIND = "balance"
@@ -187,6 +187,8 @@ def calculate(inputs, site):
             _case_results(result, inputs, site, alt[case.name], efficiency, case, prefix="what_if.")
         # The what-if is a balance the site may run: it meets the same limits, named for it.
         _case_checks(result, inputs, site, alt, f"Without {', '.join(inputs.without)}, ")
+        for case in inputs.load_cases:
+            turbine_dryness_checks(result, inputs, alt[case.name], f"Without {', '.join(inputs.without)}, {case.name}")
         letdown_valve_checks(result, inputs, alt, f"Without {', '.join(inputs.without)}, ", "what_if.")
         return_flash_checks(result, inputs, alt, f"Without {', '.join(inputs.without)}, ")
         alternative = annual_totals(result, inputs, site, alt, efficiency, "what_if_")

@@ -171,7 +171,6 @@ def turbine_steps_and_checks(result, inputs, b, c):
             continue
         x = b.turbine_expansion[t.name]
         shaft, electric = turbine_power(b, t)
-        drop_s = x.inlet.enthalpy - x.isentropic.enthalpy
         result.work(f"{c}: turbine {t.name} exhaust enthalpy",
                     "h2 = h1 − η_s·(h1 − h2s),  h2s = h(p2, s1)  [IF97]", "h1 - eta_s*(h1 - h2s)", x.exhaust.enthalpy / 1e3, "kJ/kg", h1=_kj(x.inlet.enthalpy),
                     eta_s=(t.isentropic_efficiency, ""), h2s=_kj(x.isentropic.enthalpy))
@@ -179,21 +178,35 @@ def turbine_steps_and_checks(result, inputs, b, c):
                     m=(flow * 3600, "kg/h"), h1=_kj(x.inlet.enthalpy), h2=_kj(x.exhaust.enthalpy))
         result.work(f"{c}: turbine {t.name} electric power", "P_e = η_g·P", "eta_g*P", electric / 1e3, "kW",
                     eta_g=(generator_efficiency(t), ""), P=(shaft / 1e3, "kW"))
-        dryness = x.exhaust_dryness
-        name = f"{c}: turbine {t.name} exhaust dryness"
-        if x.exhaust.phase == "wet":
-            result.check_limit(name, (dryness, ""), [(">=", (MIN_EXHAUST_DRYNESS, ""), "warn")],
-                               lambda status, dryness=dryness, t=t: Phrase.of(
-                                   "wet exhaust into the " + t.target + " header, dryness {dryness:.3f}" +
-                                   (", not below {limit:.2f} (common practice)" if status == "pass" else
-                                    ", below {limit:.2f} (common practice): the last blades erode and the users "
-                                    "get wet steam; give the inlet more superheat or a separator after the turbine"),
-                                   dryness=(dryness, ""), limit=(MIN_EXHAUST_DRYNESS, "")), source="common practice")
-        else:
-            result.notice(name, Phrase.of("dry exhaust into the " + t.target + " header at {temperature:.1f}, "
-                                          "{superheat:.1f} superheat (isentropic drop {drop:.1f})",
-                                          temperature=(x.exhaust.temperature - 273.15, "degC"),
-                                          superheat=(max(x.exhaust.superheat, 0.0), "K"), drop=_kj(drop_s)))
+        exhaust_dryness_check(result, t, x, c)
+
+
+def turbine_dryness_checks(result, inputs, b, c):
+    """The exhaust-dryness check of each turbine that runs in the solved load case ``b`` (named ``c``), alone: for
+    the what-if, whose header states (and so the turbines' exhausts) may differ from the load case's."""
+    for t in sorted(inputs.turbines, key=lambda t: t.name):
+        if b.turbine_flow.get(t.name, 0.0) > 0.0:
+            exhaust_dryness_check(result, t, b.turbine_expansion[t.name], c)
+
+
+def exhaust_dryness_check(result, t, x, c):
+    """A wet exhaust checked against the dryness the last blades and the users take; a dry one stated."""
+    dryness = x.exhaust_dryness
+    drop_s = x.inlet.enthalpy - x.isentropic.enthalpy
+    name = f"{c}: turbine {t.name} exhaust dryness"
+    if x.exhaust.phase == "wet":
+        result.check_limit(name, (dryness, ""), [(">=", (MIN_EXHAUST_DRYNESS, ""), "warn")],
+                           lambda status: Phrase.of(
+                               "wet exhaust into the " + t.target + " header, dryness {dryness:.3f}" +
+                               (", not below {limit:.2f} (common practice)" if status == "pass" else
+                                ", below {limit:.2f} (common practice): the last blades erode and the users "
+                                "get wet steam; give the inlet more superheat or a separator after the turbine"),
+                               dryness=(dryness, ""), limit=(MIN_EXHAUST_DRYNESS, "")), source="common practice")
+    else:
+        result.notice(name, Phrase.of("dry exhaust into the " + t.target + " header at {temperature:.1f}, "
+                                      "{superheat:.1f} superheat (isentropic drop {drop:.1f})",
+                                      temperature=(x.exhaust.temperature - 273.15, "degC"),
+                                      superheat=(max(x.exhaust.superheat, 0.0), "K"), drop=_kj(drop_s)))
 
 
 def add_turbine_year(result, inputs, site, balances, prefix="", base=None):
