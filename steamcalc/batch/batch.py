@@ -107,9 +107,12 @@ def _run_parallel(paths, phases, site_override, out_override, force, workers, ou
     interrupts_held(True)
     try:
         pool = multiprocessing.get_context().Pool(workers, initializer=_start_worker)
-    finally:
+    except BaseException:
         interrupts_held(False)
+        raise
     try:
+        # A Ctrl-C held while the workers started arrives here, where it stops them (below), not before.
+        interrupts_held(False)
         for phase in phases:
             pending = {n: pool.apply_async(run_one, (paths[n], site_override, out_override, force)) for n in phase}
             while pending:
@@ -120,10 +123,9 @@ def _run_parallel(paths, phases, site_override, out_override, force, workers, ou
                     time.sleep(0.05)
         pool.close()
     except BaseException:
-        # Ctrl-C: stop the workers now rather than when their cases end. Signalling them first
-        # spares the pool's own shutdown waiting on workers that are deep in a calculation.
-        for process in getattr(pool, "_pool", ()):
-            process.terminate()
+        # Ctrl-C: stop the workers now rather than when their cases end (the pool's terminate signals them at
+        # once, busy or not). They are not signalled before it: a worker waiting for its next case holds the
+        # pool's queue lock, and one killed then never lets it go, so the pool's shutdown waited for ever.
         pool.terminate()
         raise
     finally:

@@ -85,7 +85,9 @@ class _Remembering:
         remembered, engine = self._remembered, self._module.NAME
 
         def evaluate(*args):
-            key = (engine, name, args)
+            # Equal arguments of another type or sign of zero (100000 and 1e5, 0.0 and -0.0) can give values of
+            # another type or sign (an engine may pass an argument through): their exact spellings keep them apart.
+            key = (engine, name, args, tuple(map(repr, args)))
             try:
                 return remembered[key]
             except KeyError:
