@@ -100,11 +100,19 @@ def digests_hold(record):
     >>> digests_hold(record), digests_hold(dict(record, created="2026-01-02T00:00:00Z"))
     ((True, True), (False, True))
     """
-    parts = {key: f"{canonical_json(key)}:{canonical_json(value)}" for key, value in record.items() if key != "digest"}
-    keys = sorted(parts)
-    content = _sha256("{" + ",".join(parts[key] for key in keys if key not in _NOT_CONTENT) + "}")
-    whole = _sha256("{" + ",".join(parts[key] for key in keys) + "}")
-    return whole == record.get("digest"), content == record.get("content_digest")
+    parts = _section_texts(record, ("digest",))
+    content = _digest_of(parts, [key for key in parts if key not in _NOT_CONTENT])
+    return _digest_of(parts, parts) == record.get("digest"), content == record.get("content_digest")
+
+
+def _section_texts(record, leave_out):
+    """Each section's canonical JSON as ``"key":value``: canonical JSON of a table is its sorted keys' parts."""
+    return {key: f"{canonical_json(key)}:{canonical_json(value)}" for key, value in record.items()
+            if key not in leave_out}
+
+
+def _digest_of(parts, keys):
+    return _sha256("{" + ",".join(parts[key] for key in sorted(keys)) + "}")
 
 
 def build_record(*, kind, case_id, revision, title, prepared_by, site, inputs_table, result,
@@ -164,15 +172,10 @@ def _both_digests(record):
     >>> content == compute_content_digest(record), whole == compute_digest(dict(record, content_digest=content))
     (True, True)
     """
-    parts = {key: f"{canonical_json(key)}:{canonical_json(value)}" for key, value in record.items()
-             if key not in ("digest", "content_digest")}
-
-    def digest(keys):
-        return _sha256("{" + ",".join(parts[key] for key in sorted(keys)) + "}")
-
-    content = digest(key for key in parts if key not in _NOT_CONTENT)
+    parts = _section_texts(record, ("digest", "content_digest"))
+    content = _digest_of(parts, [key for key in parts if key not in _NOT_CONTENT])
     parts["content_digest"] = f"{canonical_json('content_digest')}:{canonical_json(content)}"
-    return content, digest(parts)
+    return content, _digest_of(parts, parts)
 
 
 def record_stem(record):
