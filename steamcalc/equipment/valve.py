@@ -47,6 +47,11 @@ def _smaller(a, b):
     return min(a, b)
 
 
+def _all(condition):
+    """Every element holds: a plain truth as it is (numpy's all() on one value costs more than the sizing)."""
+    return condition if isinstance(condition, (bool, np.bool_)) else bool(np.all(condition))
+
+
 def _sqrt(value):
     return np.sqrt(value) if isinstance(value, np.ndarray) else math.sqrt(value)
 
@@ -196,7 +201,7 @@ def size_steam_valve(mass_flow, p1, p2, density1, kappa, xt, valve_d=None, inlet
     >>> [round(float(kv), 2) for kv in size_steam_valve(np.array([4500.0, 2250.0]), 1700.0, 350.0, 7.5, 1.30, 0.70).kv]
     [23.46, 11.73]
     """
-    if not np.all(p2 < p1):
+    if not _all(p2 < p1):
         raise InputError("the valve's outlet pressure must be below its inlet pressure", field="outlet_pressure")
     x = (p1 - p2) / p1
     f_gamma = specific_heat_ratio_factor(kappa)
@@ -211,14 +216,14 @@ def size_steam_valve(mass_flow, p1, p2, density1, kappa, xt, valve_d=None, inlet
         if valve_d is None or (inlet_d is None and outlet_d is None):
             kv = new_kv
             break
-        if kv is not None and np.all(abs(new_kv - kv) <= 1e-10 * new_kv):
+        if kv is not None and _all(abs(new_kv - kv) <= 1e-10 * new_kv):
             kv = new_kv
             converged = True
             break
         kv = new_kv
         with np.errstate(invalid="ignore"):   # an undefined Fp is refused below, by name
             fp, xtp = piping_factors(kv, valve_d, inlet_d, outlet_d, xt)
-    if not (converged and np.all(np.isfinite(kv)) and np.all(np.isfinite(fp)) and np.all(np.asarray(xtp) > 0.0)):
+    if not (converged and _all(np.isfinite(kv)) and _all(np.isfinite(fp)) and _all(np.asarray(xtp) > 0.0)):
         _refuse_undefined_fp()
     x_choked = f_gamma * xtp
     return ValveSizing(kv=kv, cv=kv_to_cv(kv), x=x, x_choked=x_choked, choked=x >= x_choked,

@@ -229,11 +229,13 @@ def _record_from_text(text, path, known_valid=None):
             table[key] = value
         return table
 
-    try:
-        data = json.loads(text, parse_constant=refuse, parse_float=finite_float, parse_int=bounded_int,
-                          object_pairs_hook=one_value_per_key)
-    except (json.JSONDecodeError, RecursionError) as exc:
-        raise RecordError(f"not a JSON file: {exc}", source=path) from None
+    data = _canonical_data(text)
+    if data is None:
+        try:
+            data = json.loads(text, parse_constant=refuse, parse_float=finite_float, parse_int=bounded_int,
+                              object_pairs_hook=one_value_per_key)
+        except (json.JSONDecodeError, RecursionError) as exc:
+            raise RecordError(f"not a JSON file: {exc}", source=path) from None
     if not isinstance(data, dict) or data.get("schema") not in READABLE_SCHEMAS:
         raise RecordError(f"not a steamcalc record (schema is not one of {', '.join(READABLE_SCHEMAS)})",
                           source=path, field="schema")
@@ -244,6 +246,29 @@ def _record_from_text(text, path, known_valid=None):
     if known_valid is None or not known_valid(data):
         validate_record(data, source=path)
     return data
+
+
+def _canonical_data(text):
+    """The data of a record text exactly as :func:`record_text` writes it, read by orjson; None for any other text.
+
+    A text that orjson reads and writes back to the very same characters holds no key twice (the second would be
+    lost in the writing), no NaN or infinity (orjson refuses both when reading) and no integer beyond a double
+    (read as a float, it is written differently). Any other text (hand-edited, written by an earlier release,
+    or not JSON at all) is read by the standard library, which names what is wrong.
+
+    Examples
+    --------
+    >>> _canonical_data(record_text({"id": "LD-01", "value": 5e-05}))
+    {'id': 'LD-01', 'value': 5e-05}
+    >>> _canonical_data('{"id": "LD-01", "id": "LD-02"}') is None
+    True
+    """
+    try:
+        data = orjson.loads(text)
+        same = isinstance(data, dict) and orjson.dumps(data, option=orjson.OPT_INDENT_2).decode("utf-8") + "\n" == text
+    except (orjson.JSONDecodeError, RecursionError, TypeError):
+        return None
+    return data if same else None
 
 
 def read_intact_record(path):

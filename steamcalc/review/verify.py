@@ -116,6 +116,8 @@ def _points(figure):
 
 def _walk(old, new, path, found):
     """Collect (path, abs_diff, rel_diff) for numbers and (path, None, None) for anything else that differs."""
+    if old == new:   # equal throughout (the usual case), so nothing differs: compared once, in C
+        return
     if isinstance(old, bool) or isinstance(new, bool) or not (
             isinstance(old, (int, float)) and isinstance(new, (int, float))):
         if isinstance(old, dict) and isinstance(new, dict):

@@ -503,12 +503,12 @@ def parse_quantity(text, field, kind):
             f"write it in kelvin, '{number * 5 / 9:.4g} K' (a difference of 1 °F is 5/9 K)",
         )
     try:
-        quantity = Q_(number, _unit(unit))
+        _unit(unit)
     except Exception:
         raise UnitError(f"unit '{unit}' is not known", field=field, value=text, fix=f"e.g. {example}") from None
     si_unit = SI_UNITS[kind]
     try:
-        value = quantity.to(_unit(si_unit)).magnitude
+        value = convert(number, unit, si_unit)
     except pint.DimensionalityError:
         raise UnitError(
             f"'{text}' is not a {kind.replace('_', ' ')}", field=field, value=text,
@@ -561,7 +561,33 @@ def to_record_unit(value_si, kind):
     """
     if kind == "dimensionless":
         return float(value_si)
-    return float(Q_(value_si, _unit(SI_UNITS[kind])).to(_unit(RECORD_UNITS[kind])).magnitude)
+    return float(convert(value_si, SI_UNITS[kind], RECORD_UNITS[kind]))
+
+
+def convert(value, unit, target):
+    """``value`` in ``unit`` converted to ``target`` (unit names), as pint converts it, to the last bit.
+
+    Between units without an offset pint multiplies by one conversion factor: that factor is found once per
+    pair (pint's own, its conversion of 1.0) and the value multiplied by it here, which is pint's arithmetic
+    without the Quantity made around it on every call. A temperature with an offset (degC, degF) goes through pint.
+
+    Examples
+    --------
+    >>> convert(17.01325, "bar", "Pa"), convert(230.0, "degC", "K")
+    (1701325.0, 503.15)
+    """
+    factor = _factor(unit, target)
+    if factor is None:
+        return Q_(value, _unit(unit)).to(_unit(target)).magnitude
+    return value * factor
+
+
+@functools.lru_cache(maxsize=1024)
+def _factor(unit, target):
+    """pint's factor from ``unit`` to ``target``; None when either has an offset."""
+    if not (Q_(1.0, _unit(unit))._is_multiplicative and Q_(1.0, _unit(target))._is_multiplicative):
+        return None
+    return Q_(1.0, _unit(unit)).to(_unit(target)).magnitude
 
 
 @functools.lru_cache(maxsize=1024)
@@ -585,7 +611,7 @@ def from_record_unit(value, unit, kind):
     if not is_plain_unit(unit):
         raise UnitError("a record unit must be a plain unit name", field=kind, value=unit)
     try:
-        return float(Q_(value, _unit(unit)).to(_unit(SI_UNITS[kind])).magnitude)
+        return float(convert(value, unit, SI_UNITS[kind]))
     except Exception:
         raise UnitError(f"the record unit '{unit}' is not a unit of {kind.replace('_', ' ')}", field=kind,
                         value=unit) from None
