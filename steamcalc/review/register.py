@@ -50,6 +50,8 @@ class RegisterRow:
     path: str = ""
     #: What the reader should know that does not make the record stale (two case files giving one id).
     warnings: list = field(default_factory=list)
+    #: The inputs where the case file now differs from the record (empty: none), None with no case file.
+    case_changes: list = field(default=None, repr=False, compare=False)
 
     @property
     def current(self):
@@ -343,19 +345,10 @@ def register_row(path, record, *, trusted, case=None, site_path=None, later_revi
                      + (" (its claims do not hold)" if legacy[1] else ""))
     row.signatures = "; ".join(texts) or "not signed"
 
-    if later_revision is not None:
-        row.superseded = f"by revision {later_revision}"
-        row.stale.append(f"superseded by revision {later_revision}")
-    if case is not None:
-        changes = _case_changes(record, case)
-        row.case_file = "same" if not changes else "edited after issue: " + ", ".join(changes)
-        if changes and later_revision is None:
-            row.stale.append("case edited after issue")
-        elif changes:
-            row.case_file = "later revision"
+    row.case_changes = _case_changes(record, case) if case is not None else None
     if case_warning:
         row.warnings.append(case_warning)
-        row.case_file += f"; warning: {case_warning}"
+    revision_columns(row, later_revision)
     if site_path is not None:
         try:
             changes = _site_changes(record, site_path)
@@ -382,6 +375,34 @@ def register_row(path, record, *, trusted, case=None, site_path=None, later_revi
     if differ:
         row.stale.append("companions do not match")
     return row
+
+
+#: What :func:`revision_columns` puts at the head of a row's reasons for not being current.
+_SUPERSEDED, _CASE_EDITED = "superseded by revision ", "case edited after issue"
+
+
+def revision_columns(row, later_revision):
+    """Set the columns a later revision of the same id decides: ``superseded``, and ``case_file`` (a case file
+    edited after issue makes only the latest revision stale; an earlier one reads "later revision"). Setting them
+    again with another answer replaces the first, so a register may find the later revisions after its rows."""
+    row.stale = [t for t in row.stale if not (t.startswith(_SUPERSEDED) or t == _CASE_EDITED)]
+    front = []
+    row.superseded = "no" if later_revision is None else f"by revision {later_revision}"
+    if later_revision is not None:
+        front.append(f"{_SUPERSEDED}{later_revision}")
+    changes = row.case_changes
+    if changes is None:
+        row.case_file = "no case file found"
+    elif not changes:
+        row.case_file = "same"
+    elif later_revision is None:
+        row.case_file = "edited after issue: " + ", ".join(changes)
+        front.append(_CASE_EDITED)
+    else:
+        row.case_file = "later revision"
+    for warning in row.warnings:
+        row.case_file += f"; warning: {warning}"
+    row.stale[:0] = front
 
 
 def _intact(record):
@@ -452,8 +473,11 @@ def build_register(folder, trusted_dir=None, recompute=True, remember=False, wor
                                  "issue the records first with steamcalc run")
     trusted = resolve_trust(records_dir, trusted_dir, site_dir).keys
     memory = RegisterMemory.open() if recompute and remember else None
-    records, unreadable, intact = [], [], []
-    for path in files:
+    cases = _cases_by_id(site_dir)
+    site_file = site_dir / "site.toml" if site_dir else None
+
+    def read(path):
+        """``(record, both digests hold)``, or ``(the unreadable file's row, None)``."""
         whole = []
 
         def known_valid(data):
@@ -464,52 +488,55 @@ def build_register(folder, trusted_dir=None, recompute=True, remember=False, wor
         try:
             record = load_record(path, known_valid=known_valid)
         except SteamcalcError as exc:
-            unreadable.append(RegisterRow(json=path.name, verification=f"not a readable record ({exc.message})",
-                                          valid=False, stale=["not a readable record"], path=str(path)))
-            continue
-        records.append((path, record))
-        intact.append(whole[0])
-    # An edited file (its digest broken) supersedes no intact revision; an id with none intact keeps its
-    # highest revision as the latest. (Either digest broken: the record is edited.)
-    with_intact = {record["id"] for (_, record), ok in zip(records, intact) if ok}
-    latest = {}
-    for (_, record), ok in zip(records, intact):
-        rev = str(record["revision"])
-        if not ok and record["id"] in with_intact:
-            continue
-        if record["id"] not in latest or revision_order(rev) > revision_order(latest[record["id"]]):
-            latest[record["id"]] = rev
-    cases = _cases_by_id(site_dir)
-    site_file = site_dir / "site.toml" if site_dir else None
-    # A site's records share its headers' states: each is evaluated once for the whole register, and every
-    # record is still recomputed in full (remembering changes no value, only how often it is evaluated).
+            return RegisterRow(json=path.name, verification=f"not a readable record ({exc.message})", valid=False,
+                               stale=["not a readable record"], path=str(path)), None
+        return record, whole[0]
+
+    # Each record is read, recomputed and drawn where its row is made, as if it were the latest revision of its
+    # id; which revision is the latest is known once every file is read, and the rows it supersedes are then
+    # marked (revision_columns). A site's records share its headers' states: each is evaluated once in each
+    # process, and every record is still recomputed in full (remembering changes no value, only how often).
     def row(i):
-        (path, record), whole = records[i], intact[i]
+        record, whole = read(files[i])
+        if whole is None:
+            return record, None, None
         case, case_warning = case_for_record(record, cases.get(record["id"], []))
         if case is not None and case.site_path is not None:
             site_path = case.site_path
         else:
             site_path = site_file
-        top = latest[record["id"]]
-        later = None if revision_order(str(record["revision"])) >= revision_order(top) else top
-        return register_row(path, record, trusted=trusted, case=case, site_path=site_path, later_revision=later,
-                            recompute=recompute, case_warning=case_warning, memory=memory, intact=whole)
+        answer = register_row(files[i], record, trusted=trusted, case=case, site_path=site_path,
+                              later_revision=None, recompute=recompute, case_warning=case_warning, memory=memory,
+                              intact=whole)
+        return answer, whole, str(record["revision"])
 
     with remembering_states():
-        # Records are recomputed in forked copies of this process when it may (the memory is kept in one
-        # process, so a register that remembers stays in it). One record of each kind is recomputed here
-        # first, so that every copy starts with that kind's code imported and the site's states evaluated.
-        shared = workers > 1 and memory is None and recompute
-        first = {}
-        for i, (_, record) in enumerate(records):
-            first.setdefault(record.get("kind"), i)
-        warm = sorted(first.values()) if shared else []
-        done = {i: row(i) for i in warm}
-        rest = [i for i in range(len(records)) if i not in done]
-        count = usable_workers(len(rest), workers) if shared else 1
-        for i, answer in zip(rest, map_forked(lambda k: row(rest[k]), len(rest), count)):
-            done[i] = answer
-        rows = [done[i] for i in range(len(records))]
+        # Records are read and recomputed in forked copies of this process when it may (the memory is kept in
+        # one process, so a register that remembers stays in it). The first is done here first, so that the
+        # copies start with what it imported (the property engine, the reports' templates) instead of each
+        # importing its own.
+        shared = workers > 1 and memory is None and recompute and len(files) > 1
+        answers = [row(0)] if shared else []
+        rest = len(files) - len(answers)
+        count = usable_workers(rest, workers) if shared else 1
+        answers += map_forked(lambda k: row(k + len(files) - rest), rest, count)
+    readable = [(answer, whole, revision) for answer, whole, revision in answers if whole is not None]
+    unreadable = [answer for answer, whole, _ in answers if whole is None]
+    # An edited file (its digest broken) supersedes no intact revision; an id with none intact keeps its
+    # highest revision as the latest. (Either digest broken: the record is edited.)
+    with_intact = {answer.id for answer, whole, _ in readable if whole}
+    latest = {}
+    for answer, whole, revision in readable:
+        if not whole and answer.id in with_intact:
+            continue
+        if answer.id not in latest or revision_order(revision) > revision_order(latest[answer.id]):
+            latest[answer.id] = revision
+    rows = []
+    for answer, _, revision in readable:
+        top = latest[answer.id]
+        if revision_order(revision) < revision_order(top):
+            revision_columns(answer, top)
+        rows.append(answer)
     if memory is not None:
         memory.save()
     rows.sort(key=lambda r: (r.id, revision_order(r.revision)))
