@@ -256,16 +256,18 @@ def _same_input(a, b):
     return x == y
 
 
-def _site_changes(record, site_path):
+def _site_changes(record, site_path, site_record=None):
+    """The site data keys where the site file now differs from the record's; ``site_record`` (path -> the site
+    file's data as a record holds it) when the caller reads each site file once for many records."""
     from ..cases.site import load_site
 
-    now = load_site(site_path).to_record()
+    now = site_record(site_path) if site_record is not None else load_site(site_path).to_record()
     then = record.get("site", {})
     return [k for k in sorted(set(now) | set(then)) if now.get(k) != then.get(k)]
 
 
 def register_row(path, record, *, trusted, case=None, site_path=None, later_revision=None, recompute=True,
-                 case_warning=None, memory=None, intact=None):
+                 case_warning=None, memory=None, intact=None, site_record=None):
     """The register's row for one record.
 
     Parameters
@@ -291,6 +293,8 @@ def register_row(path, record, *, trusted, case=None, site_path=None, later_revi
         is not recomputed again, a report whose digest it knows is not drawn again.
     intact : bool, optional
         Both the record's digests hold, when the caller has checked them already.
+    site_record : callable, optional
+        Path -> the site file's data as a record holds it, when the caller reads each site file once.
     """
     from ..records.record import provenance
     from .verify import check_companions, verify_record
@@ -351,7 +355,7 @@ def register_row(path, record, *, trusted, case=None, site_path=None, later_revi
     revision_columns(row, later_revision)
     if site_path is not None:
         try:
-            changes = _site_changes(record, site_path)
+            changes = _site_changes(record, site_path, site_record)
         except SteamcalcError as exc:
             changes = [f"unreadable ({exc.message})"]
         row.site_data = "same" if not changes else "differs: " + ", ".join(changes)
@@ -403,6 +407,26 @@ def revision_columns(row, later_revision):
     for warning in row.warnings:
         row.case_file += f"; warning: {warning}"
     row.stale[:0] = front
+
+
+def _site_records():
+    """Path -> the site file's data as a record holds it, each file read once (its refusal too), for one register."""
+    from ..cases.site import load_site
+
+    read = {}
+
+    def site_record(path):
+        key = str(path)
+        if key not in read:
+            try:
+                read[key] = (load_site(path).to_record(), None)
+            except SteamcalcError as exc:
+                read[key] = (None, exc)
+        data, refusal = read[key]
+        if refusal is not None:
+            raise refusal
+        return data
+    return site_record
 
 
 def _intact(record):
@@ -475,6 +499,7 @@ def build_register(folder, trusted_dir=None, recompute=True, remember=False, wor
     memory = RegisterMemory.open() if recompute and remember else None
     cases = _cases_by_id(site_dir)
     site_file = site_dir / "site.toml" if site_dir else None
+    site_record = _site_records()
 
     def read(path):
         """``(record, both digests hold)``, or ``(the unreadable file's row, None)``."""
@@ -507,7 +532,7 @@ def build_register(folder, trusted_dir=None, recompute=True, remember=False, wor
             site_path = site_file
         answer = register_row(files[i], record, trusted=trusted, case=case, site_path=site_path,
                               later_revision=None, recompute=recompute, case_warning=case_warning, memory=memory,
-                              intact=whole)
+                              intact=whole, site_record=site_record)
         return answer, whole, str(record["revision"])
 
     with remembering_states():

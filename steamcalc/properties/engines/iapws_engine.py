@@ -7,6 +7,7 @@ caller's (:mod:`steamcalc.properties.steam`). It imports neither the fast engine
 
 from __future__ import annotations
 
+from functools import lru_cache
 from importlib import metadata
 
 from iapws import iapws97 as _if97
@@ -22,8 +23,9 @@ LIBRARY = "iapws"
 DESCRIPTION = "iapws (pure Python IAPWS-IF97; engine of issued records)"
 
 
+@lru_cache(maxsize=1)
 def version():
-    """The iapws package's version."""
+    """The iapws package's version (read once per process)."""
     return metadata.version(LIBRARY)
 
 

@@ -22,6 +22,7 @@ IAPWS SR5-05(2016).
 
 from __future__ import annotations
 
+from functools import lru_cache
 from importlib import metadata
 
 import seuif97 as _if97
@@ -46,8 +47,9 @@ _MAX_STEPS = 12
 _TO_CELSIUS = 273.15
 
 
+@lru_cache(maxsize=1)
 def version():
-    """The seuif97 package's version."""
+    """The seuif97 package's version (read once per process)."""
     return metadata.version(LIBRARY)
 
 
