@@ -221,7 +221,10 @@ def size_steam_valve(mass_flow, p1, p2, density1, kappa, xt, valve_d=None, inlet
             converged = True
             break
         kv = new_kv
-        with np.errstate(invalid="ignore"):   # an undefined Fp is refused below, by name
+        if isinstance(kv, np.ndarray):
+            with np.errstate(invalid="ignore"):   # an undefined Fp is refused below, by name
+                fp, xtp = piping_factors(kv, valve_d, inlet_d, outlet_d, xt)
+        else:   # plain floats: numpy's error state is not theirs (and costs more than the factors)
             fp, xtp = piping_factors(kv, valve_d, inlet_d, outlet_d, xt)
     if not (converged and _all(np.isfinite(kv)) and _all(np.isfinite(fp)) and _all(np.asarray(xtp) > 0.0)):
         _refuse_undefined_fp()

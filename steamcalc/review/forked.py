@@ -13,6 +13,7 @@ Ctrl-C).
 
 from __future__ import annotations
 
+import gc
 import multiprocessing
 import os
 import signal
@@ -107,6 +108,11 @@ def map_forked(work, count, workers):
     shares = [list(range(k, count, workers)) for k in range(workers)]
     children = []
     answers = {}
+    # What exists before the fork (every module imported, every state evaluated) is set aside from the
+    # garbage collector, in the parent and in each copy, for the length of the work: the collector then
+    # traverses only what the work makes (a tenth of a register's time went to traversing the rest again and
+    # again), and a copy's collections do not touch, and so copy, the pages it shares with the parent.
+    gc.freeze()
     try:
         interrupts_held(True)
         try:
@@ -135,4 +141,5 @@ def map_forked(work, count, workers):
                 process.terminate()
             process.join()
             receiver.close()
+        gc.unfreeze()
     return [answers[i] for i in range(count)]
