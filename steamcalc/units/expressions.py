@@ -252,6 +252,31 @@ def written_step(equation, expression, operands, target, system="SI", units_fixe
     ...              Amount(4716.5, "kg/h"))
     'm_3 = 4,500 kg/h + 216.5 kg/h'
     """
-    text = substituted(parse(expression), operands, system, target, units_fixed)
+    exact = [_exact(a) for a in operands.values()] + [_exact(target)]
+    if None in exact:
+        return _written_step(equation, expression, tuple(operands.items()), target, system, units_fixed)
+    return _written_remembered(equation, expression, tuple(zip(operands, exact[:-1])), exact[-1], system, units_fixed)
+
+
+def _exact(item):
+    """An amount as a key that tells apart what its writing may tell apart (0.0 and -0.0, 1 and 1.0); None
+    for anything else (a subclass, another type), which is written without being remembered."""
+    if item is None:
+        return ()
+    if type(item) is not Amount:
+        return None
+    return repr(item.value), item.value, item.unit, item.basis, item.role
+
+
+@lru_cache(maxsize=8192)
+def _written_remembered(equation, expression, operands, target, system, units_fixed):
+    # A step is written the same wherever it comes from: a site's records share most of theirs (the states of
+    # its headers), and verify and the reports write each one again.
+    return _written_step(equation, expression, tuple((symbol, Amount(*key[1:])) for symbol, key in operands),
+                         Amount(*target[1:]) if target else None, system, units_fixed)
+
+
+def _written_step(equation, expression, operands, target, system, units_fixed):
+    text = substituted(parse(expression), dict(operands), system, target, units_fixed)
     lhs = equation.split(" = ", 1)[0] if " = " in equation else ""
     return f"{lhs} = {text}" if lhs and lhs != text else text
