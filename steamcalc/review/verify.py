@@ -14,6 +14,7 @@ from __future__ import annotations
 
 import ast
 import functools
+import json
 import re
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -21,7 +22,7 @@ from pathlib import Path
 from ..properties.engines import REFERENCE_ENGINE, check_engine
 from ..calcs import get_calculation
 from ..errors import SteamcalcError
-from ..records.record import digests_hold as both_digests_hold, provenance
+from ..records.record import canonical_json, digests_hold as both_digests_hold, provenance
 from ..runs.runner import recompute, recompute_uncertainty
 from ..runs.uncertainty import add_sample_check
 from ..units.amounts import Amount, Limit, text_of, verdict
@@ -343,17 +344,18 @@ def given_changes(record):
     """
     import dataclasses
 
-    from ..calcs.base import input_fields, to_record_inputs
-    from ..cases.site import Site, parse_inputs
+    from ..calcs.base import input_fields
+    from ..cases.site import Site
 
     try:
         calc = get_calculation(record.get("kind"))
-        site = Site.from_record(record["site"])
+        Site.from_record(record["site"])   # a site that does not read: the recomputation says why
     except (SteamcalcError, KeyError, TypeError, ValueError):
         return []   # the recomputation says why it cannot run
     fields = {f.name: f for f in input_fields(calc.Inputs)}
     headers = record["site"].get("headers", {}) if isinstance(record["site"].get("headers"), dict) else {}
     changes = []
+    site_text = None
     for name, entry in record.get("inputs", {}).items():
         f = fields.get(name)
         if f is None or not isinstance(entry, dict) or "given" not in entry:
@@ -363,21 +365,14 @@ def given_changes(record):
         if not isinstance(given, str):
             changes.append(f"{where}: its text as given is not text ({given!r})")
             continue
-        probe = _probe(calc.KIND, name)
-        header = None
-        try:
-            if given == "(default)":
-                if f.default is None or f.default is dataclasses.MISSING:
-                    changes.append(f"{where}: given as '(default)', but the input has no default; the record "
-                                   f"holds {_shown_value(entry, absolute)}")
-                    continue
-                value = f.default
-            else:
-                raw, header = _given_raw(given, kind, record["site"], name)
-                value = getattr(parse_inputs(probe, {name: raw}, site)[0], name)
-            read = to_record_inputs(probe(**{name: value}), {})[name]
-        except (SteamcalcError, TypeError, ValueError, ArithmeticError) as exc:
-            reason = exc.message if isinstance(exc, SteamcalcError) else str(exc)
+        if given == "(default)" and (f.default is None or f.default is dataclasses.MISSING):
+            changes.append(f"{where}: given as '(default)', but the input has no default; the record "
+                           f"holds {_shown_value(entry, absolute)}")
+            continue
+        if site_text is None:
+            site_text = canonical_json(record["site"])
+        read, header, reason = _read_given(calc.KIND, name, given, site_text)
+        if reason is not None:
             changes.append(f"{where}: its text as given, {given!r}, does not read as a value ({reason}); the record "
                            f"holds {_shown_value(entry, absolute)}")
             continue
@@ -389,6 +384,37 @@ def given_changes(record):
             changes.append(f"{where}: its text as given says header {header[0]} is {header[1]}, but the record's "
                            f"site has header {header[0]} at {_shown_value(headers[header[0]], True)}")
     return changes
+
+
+@functools.lru_cache(maxsize=4096)
+def _read_given(kind, name, given, site_text):
+    """``(read, header, reason)``: what an input's text as given reads as on a record's site (``site_text``, its
+    canonical JSON), as a record entry; the header it names; or why it does not read. The same text on the same
+    site reads the same: a site's records share most of theirs, so each is read once per process."""
+    from ..calcs.base import input_fields, to_record_inputs
+    from ..cases.site import Site, parse_inputs
+
+    site_record = json.loads(site_text)
+    probe = _probe(kind, name)
+    header = None
+    try:
+        if given == "(default)":
+            field = next(f for f in input_fields(get_calculation(kind).Inputs) if f.name == name)
+            value = field.default
+        else:
+            raw, header = _given_raw(given, _field_kind(kind, name), site_record, name)
+            value = getattr(parse_inputs(probe, {name: raw}, Site.from_record(site_record))[0], name)
+        read = to_record_inputs(probe(**{name: value}), {})[name]
+    except (SteamcalcError, TypeError, ValueError, ArithmeticError) as exc:
+        return None, None, exc.message if isinstance(exc, SteamcalcError) else str(exc)
+    return read, header, None
+
+
+def _field_kind(kind, name):
+    """The quantity kind of input ``name`` of a calculation kind (its field's metadata)."""
+    from ..calcs.base import input_fields
+
+    return next(f for f in input_fields(get_calculation(kind).Inputs) if f.name == name).metadata["kind"]
 
 
 def _basis_change(calc, text):
