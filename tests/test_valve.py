@@ -191,3 +191,13 @@ def test_demo_letdown_records_carry_equipment_keys(tmp_path, demo_site_dir):
         record = json.loads((site / "records" / f"{case}_revB.json").read_text())
         assert all(k in record["results"] for k in keys), case
         assert main(["verify", str(site / "records" / f"{case}_revB.json")]) == 0
+
+
+@pytest.mark.parametrize("arguments", [
+    (1e5, 1700.0, 350.0, 7.5, 1.3, 0.7, 50.0, 25.0, 25.0),    # a valve twice the bore of its pipes
+    (1e12, 1700.0, 350.0, 7.5, 1.3, 0.7, 50.0, 80.0, 80.0),   # a flow far beyond the size
+])
+def test_a_geometry_the_reducer_equations_do_not_hold_is_refused_by_name(arguments):
+    # Found by an independent review: these ended in a bare ValueError (a square root of a negative).
+    with pytest.raises(InputError, match="piping geometry factor Fp has no value"):
+        size_steam_valve(*arguments)

@@ -205,6 +205,21 @@ def size_steam_valve(mass_flow, p1, p2, density1, kappa, xt, valve_d=None, inlet
         raise InputError("the valve's outlet pressure must be below its inlet pressure", field="outlet_pressure")
     x = (p1 - p2) / p1
     f_gamma = specific_heat_ratio_factor(kappa)
+    try:
+        kv, fp, xtp, converged = _kv_and_piping_factors(mass_flow, p1, x, density1, f_gamma, xt, valve_d, inlet_d,
+                                                        outlet_d)
+    except (ArithmeticError, ValueError):   # plain floats: a square root of a negative, a division by zero
+        _refuse_undefined_fp()
+    if not (converged and _all(np.isfinite(kv)) and _all(np.isfinite(fp)) and _all(np.asarray(xtp) > 0.0)):
+        _refuse_undefined_fp()
+    x_choked = f_gamma * xtp
+    return ValveSizing(kv=kv, cv=kv_to_cv(kv), x=x, x_choked=x_choked, choked=x >= x_choked,
+                       expansion_factor=1.0 - _smaller(x, x_choked) / (3.0 * x_choked), piping_factor=fp, xtp=xtp)
+
+
+def _kv_and_piping_factors(mass_flow, p1, x, density1, f_gamma, xt, valve_d, inlet_d, outlet_d):
+    """Kv, Fp and xTP by fixed-point iteration on Kv (IEC 60534-2-1 equations (8), (2)-(6), (18)), and whether it
+    converged: ``(kv, fp, xtp, converged)``."""
     fp, xtp = 1.0, xt
     kv = None
     converged = valve_d is None or (inlet_d is None and outlet_d is None)
@@ -221,16 +236,12 @@ def size_steam_valve(mass_flow, p1, p2, density1, kappa, xt, valve_d=None, inlet
             converged = True
             break
         kv = new_kv
-        if isinstance(kv, np.ndarray):
+        if isinstance(kv, (np.ndarray, np.generic)):
             with np.errstate(invalid="ignore"):   # an undefined Fp is refused below, by name
                 fp, xtp = piping_factors(kv, valve_d, inlet_d, outlet_d, xt)
-        else:   # plain floats: numpy's error state is not theirs (and costs more than the factors)
+        else:   # Python floats: numpy's error state is not theirs (and costs more than the factors)
             fp, xtp = piping_factors(kv, valve_d, inlet_d, outlet_d, xt)
-    if not (converged and _all(np.isfinite(kv)) and _all(np.isfinite(fp)) and _all(np.asarray(xtp) > 0.0)):
-        _refuse_undefined_fp()
-    x_choked = f_gamma * xtp
-    return ValveSizing(kv=kv, cv=kv_to_cv(kv), x=x, x_choked=x_choked, choked=x >= x_choked,
-                       expansion_factor=1.0 - _smaller(x, x_choked) / (3.0 * x_choked), piping_factor=fp, xtp=xtp)
+    return kv, fp, xtp, converged
 
 
 def valve_flow(kv, p1, p2, density1, kappa, xt, piping_factor=1.0):

@@ -244,7 +244,7 @@ def _record_from_text(text, path, known_valid=None):
             raise RecordError("the record has no '%s'" % key, field=key, source=path)
     _check_record_shape(data, path)
     if known_valid is None or not known_valid(data):
-        validate_record(data, source=path)
+        validate_record(data, source=path, from_text=True)
     return data
 
 

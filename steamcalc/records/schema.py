@@ -13,6 +13,7 @@ This module imports no other part of steamcalc but its errors, unit names, step 
 from __future__ import annotations
 
 import json
+import math
 import reprlib
 from functools import lru_cache
 from importlib import resources
@@ -201,6 +202,10 @@ def _follows_schema(record):
         return False
 
 
+#: What a refusal says of a NaN or an infinity (JSON has neither).
+NOT_FINITE = "holds a number that is not finite (NaN or an infinity), which JSON cannot hold"
+
+
 def _gate_problem(record):
     """Where the Rust validator refuses a record the Python one passes (a NaN, which JSON cannot hold, is the one
     case known): ``(field, what is wrong, value)``, so that no record passes either one's reading of the schema."""
@@ -211,10 +216,18 @@ def _gate_problem(record):
     if error is None:   # a value it could not read as JSON (a Python object)
         return None, "holds a value that JSON cannot hold", None
     field = ".".join(str(part) for part in error.instance_path) or None
-    return field, f"breaks the schema: {error.message}", _excerpt(error.instance)
+    value = record
+    try:
+        for part in error.instance_path:
+            value = value[part]
+    except (KeyError, IndexError, TypeError):
+        value = error.instance
+    if isinstance(value, float) and not math.isfinite(value):   # the Rust validator reads it as null
+        return field, NOT_FINITE, _excerpt(value)
+    return field, f"breaks the schema: {error.message}", _excerpt(value)
 
 
-def validate_record(record, source=None):
+def validate_record(record, source=None, from_text=False):
     """Check a record against the record schema.
 
     Parameters
@@ -223,6 +236,9 @@ def validate_record(record, source=None):
         A record as built (:func:`steamcalc.records.record.build_record`) or as read from its file.
     source : str or Path, optional
         The record's file, named in the error.
+    from_text : bool
+        The record was just read from JSON text (it holds JSON's own values only), so the compiled validator's
+        yes is enough; a record being built is held to both validators.
 
     Raises
     ------
@@ -241,14 +257,19 @@ def validate_record(record, source=None):
     """
     follows = _follows_schema(record)
     try:
-        if not follows:
+        # A record read from its file holds JSON's own values only, and the compiled validator's yes stands; a
+        # record being built may hold Python values that it reads as JSON (a Decimal, an Enum member), so
+        # both validators must pass it.
+        if not follows or not from_text:
             _validator()(record)
     except fastjsonschema.JsonSchemaValueException as error:
         field, what, value = _explained(error)
     else:
-        problem = _gate_problem(record) if not follows else (
-            _figure_problem(record.get("figures") or ()) or _step_problem(record.get("steps") or ())
-            if isinstance(record, dict) else None)
+        problem = _gate_problem(record) if not follows else None
+        if problem is not None and not from_text and problem[1] != NOT_FINITE:
+            problem = None   # a Python value of a record being built that fastjsonschema takes (a numpy float)
+        if problem is None and isinstance(record, dict):
+            problem = _figure_problem(record.get("figures") or ()) or _step_problem(record.get("steps") or ())
         if problem is None:
             return
         field, what, value = problem

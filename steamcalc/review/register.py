@@ -9,6 +9,7 @@ every signature on it is valid and made with a trusted key.
 
 from __future__ import annotations
 
+import copy
 import csv
 import html
 import io
@@ -421,10 +422,11 @@ def _site_records():
             try:
                 read[key] = (load_site(path).to_record(), None)
             except SteamcalcError as exc:
-                read[key] = (None, exc)
+                read[key] = (None, exc.with_traceback(None))
         data, refusal = read[key]
         if refusal is not None:
-            raise refusal
+            # A copy each time: an exception raised again keeps every frame it passed through, each record's.
+            raise copy.copy(refusal)
         return data
     return site_record
 
