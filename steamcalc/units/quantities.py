@@ -285,6 +285,12 @@ def is_plain_unit(unit):
     """
     if not isinstance(unit, str) or len(unit) > MAX_QUANTITY_TEXT:
         return False
+    return _plain(unit)
+
+
+@functools.lru_cache(maxsize=1024)
+def _plain(unit):
+    # A record names a handful of units hundreds of times: each spelling is read once per process.
     position, depth, previous = 0, 0, "start"
     while position < len(unit):
         if unit[position:].strip() == "":
