@@ -28,7 +28,7 @@ from ..errors import CaseFileError, InputError, SteamcalcError, UnitError
 from ..units.amounts import Limit, Phrase, amount, text_of, verdict
 from ..units.quantities import RECORD_UNITS, from_record_unit, parse_quantity, to_record_unit
 from ..calcs.base import numbers_only
-from ..properties.engines import FAST_ENGINE, engine_description, using_engine
+from ..properties.engines import FAST_ENGINE, engine_description, states_not_remembered, using_engine
 
 DEFAULT_SAMPLES = 2000
 DEFAULT_SEED = 1
@@ -235,14 +235,16 @@ def run_uncertainty(calc, inputs, site, tolerances, samples=DEFAULT_SAMPLES, see
     vector = _vector_path(calc, inputs, tolerances, keys, engine) if vectorised else None
     with using_engine(engine), numbers_only():
         pending = _vector_samples(vector, inputs, site, draws, samples, keys, table)
-        for i in pending:
-            # Python floats, not numpy scalars: those would slow every property call.
-            row = {name: column[i].item() for name, column in draws.items()}
-            try:
-                table[i] = _sample_values(calc.calculate(make(**{**unchanged, **row}), site), keys)
-            except SteamcalcError as exc:
-                reason = exc.message.split(":")[0][:80]
-                failures[reason] = failures.get(reason, 0) + 1
+        # Each sample's states are its own: remembered, they would only push the shared ones out of a worker's memory.
+        with states_not_remembered():
+            for i in pending:
+                # Python floats, not numpy scalars: those would slow every property call.
+                row = {name: column[i].item() for name, column in draws.items()}
+                try:
+                    table[i] = _sample_values(calc.calculate(make(**{**unchanged, **row}), site), keys)
+                except SteamcalcError as exc:
+                    reason = exc.message.split(":")[0][:80]
+                    failures[reason] = failures.get(reason, 0) + 1
         sensitivity = _one_at_a_time(calc, inputs, site, tolerances, keys, vector)
     units = {k: nominal_result.values[k].unit for k in keys}
     tail = round((1.0 - coverage) / 2.0 * 100.0, 9)

@@ -134,6 +134,27 @@ def remembering_states(memory=None):
         _REMEMBERED.reset(token)
 
 
+@contextlib.contextmanager
+def states_not_remembered():
+    """Within this block, in this context only, no state is remembered nor taken from memory: for states that are
+    each evaluated once (Monte Carlo samples worked one by one), which would otherwise push the states that are
+    shared (a site's headers) out of a long-lived memory, oldest first.
+
+    Examples
+    --------
+    >>> with remembering_states() as _:
+    ...     with states_not_remembered():
+    ...         _ = engine_module().saturation_temperature(3e5)
+    ...     _REMEMBERED.get()
+    {}
+    """
+    token = _REMEMBERED.set(None)
+    try:
+        yield
+    finally:
+        _REMEMBERED.reset(token)
+
+
 def remember_states_from_now():
     """From now on, in this context, each engine evaluates a state once: for a batch's worker process, whose whole
     life is one batch, so that its cases share their headers' and inlets' states (:func:`remembering_states`,
@@ -169,4 +190,5 @@ def engine_description(name):
 
 
 __all__ = ["ENGINES", "FAST_ENGINE", "REFERENCE_ENGINE", "check_engine", "current_engine", "engine_description",
-           "engine_module", "other_engine", "remember_states_from_now", "remembering_states", "using_engine"]
+           "engine_module", "other_engine", "remember_states_from_now", "remembering_states", "states_not_remembered",
+           "using_engine"]
