@@ -526,7 +526,7 @@ def build_register(folder, trusted_dir=None, recompute=True, remember=False, wor
     def row(i):
         record, whole = read(files[i])
         if whole is None:
-            return record, None, None
+            return record, None
         case, case_warning = case_for_record(record, cases.get(record["id"], []))
         if case is not None and case.site_path is not None:
             site_path = case.site_path
@@ -535,7 +535,7 @@ def build_register(folder, trusted_dir=None, recompute=True, remember=False, wor
         answer = register_row(files[i], record, trusted=trusted, case=case, site_path=site_path,
                               later_revision=None, recompute=recompute, case_warning=case_warning, memory=memory,
                               intact=whole, site_record=site_record)
-        return answer, whole, str(record["revision"])
+        return answer, whole
 
     with remembering_states():
         # Records are read and recomputed in forked copies of this process when it may (the memory is kept in
@@ -544,24 +544,24 @@ def build_register(folder, trusted_dir=None, recompute=True, remember=False, wor
         # importing its own.
         shared = workers > 1 and memory is None and recompute and len(files) > 1
         answers = [row(0)] if shared else []
-        rest = len(files) - len(answers)
-        count = usable_workers(rest, workers) if shared else 1
-        answers += map_forked(lambda k: row(k + len(files) - rest), rest, count)
-    readable = [(answer, whole, revision) for answer, whole, revision in answers if whole is not None]
-    unreadable = [answer for answer, whole, _ in answers if whole is None]
+        done = len(answers)
+        count = usable_workers(len(files) - done, workers) if shared else 1
+        answers += map_forked(lambda k: row(done + k), len(files) - done, count)
+    readable = [(answer, whole) for answer, whole in answers if whole is not None]
+    unreadable = [answer for answer, whole in answers if whole is None]
     # An edited file (its digest broken) supersedes no intact revision; an id with none intact keeps its
     # highest revision as the latest. (Either digest broken: the record is edited.)
-    with_intact = {answer.id for answer, whole, _ in readable if whole}
+    with_intact = {answer.id for answer, whole in readable if whole}
     latest = {}
-    for answer, whole, revision in readable:
+    for answer, whole in readable:
         if not whole and answer.id in with_intact:
             continue
-        if answer.id not in latest or revision_order(revision) > revision_order(latest[answer.id]):
-            latest[answer.id] = revision
+        if answer.id not in latest or revision_order(answer.revision) > revision_order(latest[answer.id]):
+            latest[answer.id] = answer.revision
     rows = []
-    for answer, _, revision in readable:
+    for answer, _ in readable:
         top = latest[answer.id]
-        if revision_order(revision) < revision_order(top):
+        if revision_order(answer.revision) < revision_order(top):
             revision_columns(answer, top)
         rows.append(answer)
     if memory is not None:

@@ -396,25 +396,18 @@ def _read_given(kind, name, given, site_text):
 
     site_record = json.loads(site_text)
     probe = _probe(kind, name)
+    field = next(f for f in input_fields(get_calculation(kind).Inputs) if f.name == name)
     header = None
     try:
         if given == "(default)":
-            field = next(f for f in input_fields(get_calculation(kind).Inputs) if f.name == name)
             value = field.default
         else:
-            raw, header = _given_raw(given, _field_kind(kind, name), site_record, name)
+            raw, header = _given_raw(given, field.metadata["kind"], site_record, name)
             value = getattr(parse_inputs(probe, {name: raw}, Site.from_record(site_record))[0], name)
         read = to_record_inputs(probe(**{name: value}), {})[name]
     except (SteamcalcError, TypeError, ValueError, ArithmeticError) as exc:
         return None, None, exc.message if isinstance(exc, SteamcalcError) else str(exc)
     return read, header, None
-
-
-def _field_kind(kind, name):
-    """The quantity kind of input ``name`` of a calculation kind (its field's metadata)."""
-    from ..calcs.base import input_fields
-
-    return next(f for f in input_fields(get_calculation(kind).Inputs) if f.name == name).metadata["kind"]
 
 
 def _basis_change(calc, text):
