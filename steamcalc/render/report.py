@@ -52,6 +52,10 @@ _LINE_BREAKS = re.compile(r"[\r\n]+")
 _MD_TABLE = str.maketrans({"\t": " ", **{c: None for c in _CONTROL_CHARACTERS},
                            **{c: "\\" + c for c in _MD_SPECIAL}})
 _CODE_TABLE = str.maketrans({"\t": " ", **{c: None for c in _CONTROL_CHARACTERS}})
+# Most cells (numbers, units, labels) hold none of those characters: one search in C finds that, and the
+# translation (a dictionary look-up per character) is left for the texts that need it.
+_MD_ANY = re.compile("[" + "".join(re.escape(chr(c)) for c in _MD_TABLE) + "\r\n]")
+_CODE_ANY = re.compile("[" + "".join(re.escape(chr(c)) for c in _CODE_TABLE) + "\r\n`]")
 
 
 def _one_line(text):
@@ -69,7 +73,8 @@ def _md(text):
     >>> _md("two\\r\\n\\nlines\\tand a\\u202eturn")
     'two lines and aturn'
     """
-    return _one_line(text).translate(_MD_TABLE)
+    text = str(text)
+    return _one_line(text).translate(_MD_TABLE) if _MD_ANY.search(text) else text
 
 
 def _code(text):
@@ -80,6 +85,9 @@ def _code(text):
     >>> _code("h2 = h1"), _code("a `b` c"), _code("`x")
     ('`h2 = h1`', '``a `b` c``', '`` `x ``')
     """
+    text = str(text)
+    if _CODE_ANY.search(text) is None:
+        return f"`{text}`"
     text = _one_line(text).translate(_CODE_TABLE)
     if "`" not in text:
         return f"`{text}`"
