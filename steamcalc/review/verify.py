@@ -14,6 +14,7 @@ from __future__ import annotations
 
 import ast
 import functools
+import hashlib
 import json
 import re
 from dataclasses import dataclass, field
@@ -371,7 +372,8 @@ def given_changes(record):
             continue
         if site_text is None:
             site_text = canonical_json(record["site"])
-        read, header, reason = _read_given(calc.KIND, name, given, site_text)
+            site_key = hashlib.sha256(site_text.encode("utf-8")).digest()
+        read, header, reason = _read_given(calc.KIND, name, given, site_text, site_key)
         if reason is not None:
             changes.append(f"{where}: its text as given, {given!r}, does not read as a value ({reason}); the record "
                            f"holds {_shown_value(entry, absolute)}")
@@ -386,11 +388,33 @@ def given_changes(record):
     return changes
 
 
-@functools.lru_cache(maxsize=4096)
-def _read_given(kind, name, given, site_text):
+#: Most readings of texts as given :func:`_read_given` keeps; beyond it the oldest are forgotten.
+MAX_GIVEN_READINGS = 4096
+#: Texts as given longer than this are kept in that memory by their SHA-256, not in full.
+_LONGEST_KEPT_TEXT = 256
+_GIVEN_READINGS = {}
+
+
+def _read_given(kind, name, given, site_text, site_key):
     """``(read, header, reason)``: what an input's text as given reads as on a record's site (``site_text``, its
-    canonical JSON), as a record entry; the header it names; or why it does not read. The same text on the same
-    site reads the same: a site's records share most of theirs, so each is read once per process."""
+    canonical JSON, whose SHA-256 is ``site_key``), as a record entry; the header it names; or why it does not
+    read. The same text on the same site reads the same: a site's records share most of theirs, so each is read
+    once per process. The memory holds each site by its digest and a long text by its digest, so a folder of
+    records with very large sites or texts costs it no more than ordinary ones."""
+    text_key = given if len(given) <= _LONGEST_KEPT_TEXT else hashlib.sha256(given.encode("utf-8")).digest()
+    key = (kind, name, text_key, site_key)
+    try:
+        return _GIVEN_READINGS[key]
+    except KeyError:
+        pass
+    found = _read_given_afresh(kind, name, given, site_text)
+    if len(_GIVEN_READINGS) >= MAX_GIVEN_READINGS:
+        del _GIVEN_READINGS[next(iter(_GIVEN_READINGS))]
+    _GIVEN_READINGS[key] = found
+    return found
+
+
+def _read_given_afresh(kind, name, given, site_text):
     from ..calcs.base import input_fields, to_record_inputs
     from ..cases.site import Site, parse_inputs
 
