@@ -10,6 +10,7 @@ The kinds' own load cases are in :mod:`steamcalc.calcs.flash.overpressure` and
 from __future__ import annotations
 
 from ..equipment.discharge_line import back_pressure_limit, built_up_back_pressure
+from ..equipment.line_loss import line_pressure_drop
 from ..equipment.piping import flow_area, pipe_inner_diameter
 from ..equipment.relief import (
     API526_AREAS_IN2, DEFAULT_KD, INLET_LOSS_LIMIT, MM2_PER_IN2, MOLAR_MASS_WATER, api526_orifice,
@@ -17,7 +18,7 @@ from ..equipment.relief import (
 )
 from ..equipment.two_phase_line import pipe_omega, two_phase_back_pressure, two_phase_reaction_force
 from ..equipment.two_phase_relief import CERTIFIED_CAPACITY, size_flashing_relief
-from ..errors import OutOfRangeError
+from ..errors import InputError, OutOfRangeError
 from ..properties.steam import SteamState, dynamic_viscosity, saturation_pressure
 from ..units.amounts import Phrase
 
@@ -148,12 +149,102 @@ def _omega_range(result, name, pressure):
         f"{OMEGA_REDUCED_PRESSURE_LIMIT:g} is not confirmed against the standard's text)")
 
 
-def inlet_loss_notice(result, name):
-    """The relief valve's inlet pressure loss, which these kinds do not compute: a notice of the rule."""
+def inlet_loss_notice(result, name, why="the relief valve's inlet pipe is not among the inputs"):
+    """The relief valve's inlet pressure loss, when it is not computed: a notice of the rule, saying why."""
     result.notice(f"{name}: relief inlet pressure loss", Phrase.of(
-        "not assessed: the relief valve's inlet pipe is not among the inputs; its pressure loss at the valve's "
+        f"not assessed: {why}; its pressure loss at the valve's "
         "rated flow must stay below {limit:g} of the gauge set pressure (API 520 Part II, 7.3.1), for the relief "
         "system's designer to check", limit=(100.0 * INLET_LOSS_LIMIT, "percent")), act=True)
+
+
+#: The case-file keys of a relief valve's inlet pipe, in ``[inputs.overpressure]``.
+INLET_KEYS = ("overpressure.inlet_size", "overpressure.inlet_length")
+
+
+def check_inlet_pipe_inputs(size, length, fittings_k):
+    """Refusals of a relief valve's inlet-pipe inputs (``[inputs.overpressure]`` inlet_size, inlet_length,
+    inlet_fittings_k): the size and the length together, and no negative sum of loss coefficients."""
+    if fittings_k is not None and fittings_k < 0.0:
+        raise InputError("a sum of loss coefficients cannot be negative", field="overpressure.inlet_fittings_k",
+                         value=fittings_k, fix="give the sum of the inlet pipe's K (entry, fittings), 0 or more")
+    given = {"inlet_size": size, "inlet_length": length, "inlet_fittings_k": fittings_k}
+    if any(v is not None for v in given.values()):
+        for key, example in (("inlet_size", '"DN80"'), ("inlet_length", '"0.5 m"')):
+            if given[key] is None:
+                other = next(k for k, v in given.items() if v is not None)
+                raise InputError(f"the relief valve's inlet pipe is given without its {key.split('_')[1]}",
+                                 field=f"overpressure.{key}", value=f"{other} = {given[other]}",
+                                 fix=f"add {key} = {example} to [inputs.overpressure], or remove {other}")
+
+
+def relief_inlet_loss(result, prefix, name, *, state, rated_flow_kg_h, set_pressure, atm, size, length, fittings_k,
+                      fluid="steam"):
+    """The relief valve's inlet pressure loss at its rated flow against 3 % of the gauge set pressure.
+
+    Darcy–Weisbach with the Colebrook friction factor, the fluid at its relieving state throughout the short inlet
+    pipe (schedule 40); a notice of the rule when the pipe is not given.
+
+    Parameters
+    ----------
+    result : steamcalc.calcs.base.Result
+    prefix, name : str
+        Result-key prefix and the relief valve's name in the record.
+    state : steamcalc.properties.steam.SteamState
+        The single-phase fluid entering the pipe at the relieving pressure (steam, or liquid water).
+    rated_flow_kg_h : float
+        The selected orifice's rated flow, kg/h (API 520 Part II, 7.3.1: the loss at the rated capacity).
+    set_pressure, atm : float
+        Set pressure and the site's atmosphere, Pa (absolute).
+    size : str or None
+        The inlet pipe's nominal size; ``length`` (m) its straight length; ``fittings_k`` the sum of its loss
+        coefficients (entry, fittings), 0 when not given.
+    fluid : str
+        What flows, in words ("steam", "liquid").
+
+    Returns
+    -------
+    float or None
+        The loss as a share of the gauge set pressure (fraction), or None when the pipe is not given.
+
+    References
+    ----------
+    API 520 Part II (2015), 7.3.1: the inlet pressure loss at the rated capacity within 3 % of the set pressure
+    (gauge). Colebrook (1939) with Darcy–Weisbach for the line; IAPWS R12-08 for the viscosity.
+    """
+    if size is None or length is None:
+        inlet_loss_notice(result, name)
+        return None
+    diameter = pipe_inner_diameter(size, DEFAULT_SCHEDULE, field=INLET_KEYS[0])
+    flow = rated_flow_kg_h / 3600.0
+    loss = line_pressure_drop(flow, state.density, dynamic_viscosity(state.temperature, state.density), diameter,
+                              length, fittings_k or 0.0)
+    fraction = loss.pressure_drop / (set_pressure - atm)
+    result.work(f"{name}: inlet pressure loss at the rated flow ({fluid})",
+                "Δp = (f·L/D + ΣK)·ρ·v²/2  at the rated flow (Darcy–Weisbach, Colebrook friction factor)",
+                "(f*L/D + K)*rho*v*v/2", loss.pressure_drop / 1e5, "bar",
+                f=(loss.friction_factor, ""), L=(length, "m"), D=(diameter * 1e3, "mm"), K=(fittings_k or 0.0, ""),
+                rho=(state.density, "kg/m**3"), v=(loss.velocity, "m/s"))
+    result.work(f"{name}: inlet loss, of the gauge set pressure", "loss = Δp / (p_set − p_atm)",
+                "dp/(p_set - p_atm)", 100.0 * fraction, "percent", dp=(loss.pressure_drop / 1e5, "bar", "difference"),
+                p_set=(set_pressure / 1e5, "bar"), p_atm=(atm / 1e5, "bar"))
+    result.add(f"{prefix}_inlet_loss_fraction", f"{name}: inlet loss, of the gauge set pressure", 100.0 * fraction,
+               "percent")
+    share, limit = (100.0 * fraction, "percent"), (100.0 * INLET_LOSS_LIMIT, "percent")
+    # A loss of the whole gauge set pressure or more leaves nothing to drive the rated flow: a failure, not a warning.
+    result.check_limit(
+        f"{name}: relief inlet pressure loss", share, [("<=", limit, "warn"), ("<", (100.0, "percent"), "fail")],
+        lambda status: Phrase.of(
+            "{loss:.1f} of the gauge set pressure at the rated flow, within {limit:g} (API 520 Part II, 7.3.1)"
+            if status == "pass" else
+            "{loss:.1f} of the gauge set pressure at the rated flow, above {limit:g} (API 520 Part II, 7.3.1): the "
+            "valve may chatter; enlarge or shorten the inlet pipe, or have the relief system's designer confirm it "
+            "with the maker" if status == "warn" else
+            "{loss:.1f} of the gauge set pressure at the rated flow, far above {limit:g} (API 520 Part II, 7.3.1): "
+            "the inlet pipe alone would take the whole set pressure, so the valve cannot pass its rated flow; enlarge "
+            "the inlet pipe (at least the valve's inlet size) or shorten it", loss=share, limit=limit),
+        source="API 520 Part II, 7.3.1; at 100 % of the gauge set pressure no pressure is left to drive the flow "
+               "(common practice)")
+    return fraction
 
 
 def select_orifice(result, prefix, name, area, flow_kg_h):

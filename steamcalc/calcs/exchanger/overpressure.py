@@ -32,7 +32,8 @@ from ...errors import InputError, OutOfRangeError
 from ...properties.steam import SteamState
 from ...units.amounts import Phrase
 from ..overpressure import (
-    CAUTIONS, discharge_section, inlet_loss_notice, relieving_pressure, select_orifice, steam_relief_area,
+    CAUTIONS, check_inlet_pipe_inputs, discharge_section, relief_inlet_loss, relieving_pressure, select_orifice,
+    steam_relief_area,
 )
 from ..relief_back_pressure import Sizing, balanced_kb, critical_flow_check, size_at_built_up_back_pressure
 from .discharge import (
@@ -86,6 +87,7 @@ def check_overpressure_inputs(inputs):
                          value=inputs.process_side_test_pressure,
                          fix="give the process side's hydrostatic test pressure from its nameplate or test record")
     check_discharge_inputs(inputs)
+    check_inlet_pipe_inputs(inputs.relief_inlet_size, inputs.relief_inlet_length, inputs.relief_inlet_fittings_k)
     if inputs.process_expansion_coefficient is not None and not inputs.process_expansion_coefficient > 0.0:
         raise InputError("a liquid's cubic expansion coefficient is above zero",
                          field="overpressure.expansion_coefficient", value=inputs.process_expansion_coefficient,
@@ -167,6 +169,10 @@ def _tube_rupture(inputs, atm, result):
             result.notice(f"{NAME}: discharge pipe not assessed", "the tube-rupture discharge pipe given "
                           "(overpressure.discharge_size, discharge_length) is not assessed: no relief device is "
                           "needed for a ruptured tube here")
+        if inputs.relief_inlet_size is not None:
+            result.notice(f"{NAME}: inlet pipe not assessed", "the tube-rupture relief inlet pipe given "
+                          "(overpressure.inlet_size, inlet_length) is not assessed: no relief device is needed for a "
+                          "ruptured tube here")
         return
     result.add(f"{PREFIX}_relief_needed", f"{NAME}: relief device needed", "yes")
     result.notice(f"{NAME}: a relief case", Phrase.of(why + f" ({source})" + ": the process side is not protected "
@@ -234,9 +240,13 @@ def _tube_rupture(inputs, atm, result):
     if sizing is not first and sizing.method != first.method:
         result.notice(f"{NAME}: governing flow at the built-up back pressure", sizing.method)
     result.add(f"{PREFIX}_governing_case", f"{NAME}: governing relief flow", sizing.method)
-    if select_orifice(result, PREFIX, NAME, sizing.area, sizing.flow_kg_h) is None:
+    rated = select_orifice(result, PREFIX, NAME, sizing.area, sizing.flow_kg_h)
+    if rated is None:
         return
-    inlet_loss_notice(result, NAME)
+    liquid_governs = sizing.method == "displaced liquid"
+    relief_inlet_loss(result, PREFIX, NAME, state=liquid if liquid_governs else relieving, rated_flow_kg_h=rated,
+                      set_pressure=low, atm=atm, size=inputs.relief_inlet_size, length=inputs.relief_inlet_length,
+                      fittings_k=inputs.relief_inlet_fittings_k, fluid="displaced liquid" if liquid_governs else "steam")
     built = discharge(result, result.value(f"{PREFIX}_orifice_area"), sizing)
     critical_flow_check(result, f"{NAME}, steam", sizing, None if built is None else built[0])
 

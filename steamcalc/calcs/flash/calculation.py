@@ -119,6 +119,16 @@ class Inputs:
     relief_valve_type: str | None = input_field(
         "text", "Relief valve type", "conventional, balanced-bellows or pilot; conventional when not given.",
         example="conventional", section="overpressure", key="valve_type")
+    relief_inlet_size: str | None = input_field(
+        "nominal_size", "Relief inlet pipe size", "Nominal size of the pipe from the vessel to the relief valve "
+        "(schedule 40); with its length, the inlet pressure loss is checked against 3 % of the set pressure.",
+        example="DN80", section="overpressure", key="inlet_size")
+    relief_inlet_length: float | None = input_field(
+        "length", "Relief inlet pipe length", "Straight length of the pipe from the vessel to the relief valve.",
+        example="0.5 m", section="overpressure", positive=True, key="inlet_length")
+    relief_inlet_fittings_k: float | None = input_field(
+        "number", "Relief inlet fittings K", "Sum of the loss coefficients of the relief inlet pipe (entry, "
+        "fittings); 0 when not given.", example="0.5", section="overpressure", key="inlet_fittings_k")
     discharge_size: str | None = input_field(
         "nominal_size", "Relief discharge pipe size", "Nominal size of the relief valve's discharge pipe "
         "(schedule 40).", example="DN100", section="overpressure")

@@ -21,9 +21,8 @@ from ...errors import InputError, OutOfRangeError
 from ...properties.steam import SteamState
 from ...units.amounts import Phrase
 from ..overpressure import (
-    CAUTIONS, VALVE_TYPES, discharge_section, flashing_relief_area, inlet_loss_notice, relieving_pressure,
-    select_orifice,
-    steam_relief_area, two_phase_discharge_section,
+    CAUTIONS, VALVE_TYPES, check_inlet_pipe_inputs, discharge_section, flashing_relief_area, inlet_loss_notice,
+    relief_inlet_loss, relieving_pressure, select_orifice, steam_relief_area, two_phase_discharge_section,
 )
 from ..relief_back_pressure import Sizing, balanced_kb, critical_flow_check, size_at_built_up_back_pressure
 
@@ -38,7 +37,8 @@ def check_overpressure_inputs(inputs):
     """Refusals of the overpressure inputs that need no calculation (called from ``Inputs.__post_init__``)."""
     design = inputs.vessel_design_pressure
     others = [name for name in ("relief_set_pressure", "inlet_capacity", "max_upstream_pressure", "relief_valve_type",
-                                "discharge_size", "discharge_length", "discharge_fittings_k", "level_held")
+                                "discharge_size", "discharge_length", "discharge_fittings_k", "level_held",
+                                "relief_inlet_size", "relief_inlet_length", "relief_inlet_fittings_k")
               if getattr(inputs, name) is not None]
     if design is None:
         if others:
@@ -70,6 +70,7 @@ def check_overpressure_inputs(inputs):
         raise InputError("a sum of loss coefficients cannot be negative", field="overpressure.discharge_fittings_k",
                          value=inputs.discharge_fittings_k, fix="give the sum of the fittings' K, 0 or more")
     _check_discharge_inputs(inputs)
+    check_inlet_pipe_inputs(inputs.relief_inlet_size, inputs.relief_inlet_length, inputs.relief_inlet_fittings_k)
     if inputs.max_upstream_pressure is not None and inputs.max_upstream_pressure < inputs.condensate_pressure:
         raise InputError(
             f"the highest upstream pressure {inputs.max_upstream_pressure / 1e5:.4g} bar(a) is below the condensate "
@@ -176,7 +177,16 @@ def add_overpressure(inputs, inlet, site, result):
     rated = select_orifice(result, PREFIX, NAME, sizing.area, load)
     if rated is None:
         return
-    inlet_loss_notice(result, NAME)
+    if two_phase and inputs.relief_inlet_size is not None:
+        # The pipe then carries the filling vessel's flashing mixture, whose loss needs a two-phase line method.
+        inlet_loss_notice(result, NAME, "the governing case relieves a flashing two-phase mixture, whose inlet loss "
+                                        "this release does not compute (a homogeneous two-phase line method is needed)")
+    elif not two_phase:
+        relief_inlet_loss(result, PREFIX, NAME, state=vapour, rated_flow_kg_h=rated, set_pressure=set_pressure,
+                          atm=atm, size=inputs.relief_inlet_size, length=inputs.relief_inlet_length,
+                          fittings_k=inputs.relief_inlet_fittings_k)
+    else:
+        inlet_loss_notice(result, NAME)
     built = discharge(result, result.value(f"{PREFIX}_orifice_area"), sizing)
     critical_flow_check(result, NAME, sizing, built)
 
