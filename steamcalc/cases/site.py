@@ -588,9 +588,12 @@ def _pressure_or_header(raw, field_name, site):
 
 
 def _positive_number(value, field_name):
-    if isinstance(value, bool) or not isinstance(value, (int, float)) or not math.isfinite(value) or value <= 0:
+    if isinstance(value, bool) or not isinstance(value, (int, float)) or not math.isfinite(value):
         raise InputError("must be a plain, finite number above zero", field=field_name, value=_shown(value),
                          fix="write it without quotes or units")
+    if value <= 0:   # a number, but not one this input takes: the fix is another number, or none
+        raise InputError("must be a plain, finite number above zero", field=field_name, value=_shown(value),
+                         fix="give a number above zero, or leave the key out where the input is optional")
     return float(value)
 
 

@@ -34,6 +34,11 @@ MM2_PER_IN2 = 645.16
 #: agrees); used as the open discharge when none is given.
 API526_OUTLET_NPS = {"D": 2.0, "E": 2.0, "F": 2.0, "G": 2.5, "H": 3.0, "J": 3.0, "K": 4.0, "L": 4.0,
                      "M": 6.0, "N": 6.0, "P": 6.0, "Q": 8.0, "R": 8.0, "T": 10.0}
+#: Smallest API 526 inlet size of each orifice letter, inch, from the same combinations (1D2, 1.5F2, 3K4, 6Q8, ...;
+#: recalled from memory, not confirmed against the standard's text): an inlet pipe narrower than it is narrower
+#: than any API 526 valve of that orifice.
+API526_INLET_NPS = {"D": 1.0, "E": 1.0, "F": 1.5, "G": 1.5, "H": 1.5, "J": 2.0, "K": 3.0, "L": 3.0,
+                    "M": 4.0, "N": 4.0, "P": 4.0, "Q": 6.0, "R": 6.0, "T": 8.0}
 #: Effective coefficient of discharge for preliminary sizing, API 520 Part I (10th ed.) 5.2.
 DEFAULT_KD = 0.975
 VALVE_TYPES = ("conventional", "balanced-bellows", "pilot")

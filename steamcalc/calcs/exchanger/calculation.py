@@ -219,7 +219,8 @@ class Inputs:
         "tube-rupture relief valve.", example="0.5 m", section="overpressure", positive=True, key="inlet_length")
     relief_inlet_fittings_k: float | None = input_field(
         "number", "Tube-rupture relief inlet fittings K", "Sum of the loss coefficients of that inlet pipe (entry, "
-        "fittings); 0 when not given.", example="0.5", section="overpressure", key="inlet_fittings_k")
+        "fittings), above zero; none counted when not given.", example="0.5", section="overpressure",
+        key="inlet_fittings_k")
     discharge_size: str | None = input_field(
         "nominal_size", "Tube-rupture relief discharge pipe size", "Nominal size of the tube-rupture relief valve's "
         "discharge pipe (schedule 40).", example="DN100", section="overpressure")

@@ -32,7 +32,7 @@ from ...errors import InputError, OutOfRangeError
 from ...properties.steam import SteamState
 from ...units.amounts import Phrase
 from ..overpressure import (
-    CAUTIONS, check_inlet_pipe_inputs, discharge_section, relief_inlet_loss, relieving_pressure, select_orifice,
+    CAUTIONS, check_inlet_pipe_inputs, discharge_section, inlet_pipe_not_assessed, relief_inlet_loss, relieving_pressure, select_orifice,
     steam_relief_area,
 )
 from ..relief_back_pressure import Sizing, balanced_kb, critical_flow_check, size_at_built_up_back_pressure
@@ -169,10 +169,8 @@ def _tube_rupture(inputs, atm, result):
             result.notice(f"{NAME}: discharge pipe not assessed", "the tube-rupture discharge pipe given "
                           "(overpressure.discharge_size, discharge_length) is not assessed: no relief device is "
                           "needed for a ruptured tube here")
-        if inputs.relief_inlet_size is not None:
-            result.notice(f"{NAME}: inlet pipe not assessed", "the tube-rupture relief inlet pipe given "
-                          "(overpressure.inlet_size, inlet_length) is not assessed: no relief device is needed for a "
-                          "ruptured tube here")
+        inlet_pipe_not_assessed(result, NAME, inputs.relief_inlet_size,
+                                "no relief device is needed for a ruptured tube here")
         return
     result.add(f"{PREFIX}_relief_needed", f"{NAME}: relief device needed", "yes")
     result.notice(f"{NAME}: a relief case", Phrase.of(why + f" ({source})" + ": the process side is not protected "

@@ -22,7 +22,7 @@ from ...properties.steam import SteamState
 from ...units.amounts import Phrase
 from ..overpressure import (
     CAUTIONS, VALVE_TYPES, check_inlet_pipe_inputs, discharge_section, flashing_relief_area, inlet_loss_notice,
-    relief_inlet_loss, relieving_pressure, select_orifice, steam_relief_area, two_phase_discharge_section,
+    inlet_pipe_not_assessed, relief_inlet_loss, relieving_pressure, select_orifice, steam_relief_area, two_phase_discharge_section,
 )
 from ..relief_back_pressure import Sizing, balanced_kb, critical_flow_check, size_at_built_up_back_pressure
 
@@ -141,6 +141,10 @@ def add_overpressure(inputs, inlet, site, result):
     if not cases:
         result.notice(NAME, "no relief load in the cases assessed; a relief device is still required by most "
                             "pressure-equipment codes (fire, and cases outside this calculation)")
+        inlet_pipe_not_assessed(result, NAME, inputs.relief_inlet_size, "no relief load in the cases assessed")
+        if inputs.discharge_size is not None:
+            result.notice(f"{NAME}: discharge pipe not assessed", "the relief discharge pipe given (overpressure."
+                          "discharge_size, discharge_length) is not assessed: no relief load in the cases assessed")
         return
     governing = max(cases, key=lambda case: cases[case][0])
     # The last item is what leaves the valve: the steam's enthalpy (J/kg), or the two-phase mixture's state.
