@@ -279,3 +279,15 @@ def test_a_heater_record_with_its_inlet_pipe_writes_the_new_steps_so_they_reprod
     assert main(["verify", str(path)]) == 0
     problems = written_step_problems(record)
     assert all("steam through two open tube ends" in p for p in problems), problems
+
+
+@pytest.mark.parametrize("pipe", ['discharge_size = "DN50"\ndischarge_length = "6 m"\ndischarge_fittings_k = 1e308',
+                                  'discharge_size = "DN50"\ndischarge_length = "6 m"\ndischarge_fittings_k = 5e3'],
+                         ids=["1e308", "5000"])
+def test_any_fittings_k_beyond_a_line_is_refused_by_name(tmp_path, capsys, pipe):
+    """Found beside the inlet pipe: the discharge pipe's K of 1e308 ended in "unexpected error ValueError ... This is
+    a fault in steamcalc". Every ``*fittings_k`` input is held to 0 to 1000 (common practice: a long main is some
+    tens of velocity heads)."""
+    code, _, err = run_case_text(tmp_path, capsys, FLASH_CASE.format(design=DESIGN, pipe=pipe))
+    assert "fault in steamcalc" not in err and "unexpected error" not in err, err
+    assert code == 2 and "overpressure.discharge_fittings_k" in err and "0 to 1000" in err, err

@@ -105,10 +105,15 @@ def field_path(f):
 
 #: Smallest positive coefficient or efficiency (a fraction field declared positive) accepted.
 MIN_POSITIVE_FRACTION = 0.01
+#: Largest sum of loss coefficients a line's fittings input takes (any ``*fittings_k``): a long main with many
+#: bends and valves is some tens of velocity heads (common practice); beyond this it is a slip, and the
+#: arithmetic of the loss would overflow.
+MAX_FITTINGS_K = 1000.0
 
 
 def check_fields(inputs):
-    """The checks every Inputs class shares: required fields given, positive fields above zero.
+    """The checks every Inputs class shares: required fields given, positive fields above zero, a sum of fittings'
+    loss coefficients (``*fittings_k``) at most :data:`MAX_FITTINGS_K`.
 
     Called first in each ``Inputs.__post_init__``; the kind's own checks follow.
     """
@@ -122,6 +127,11 @@ def check_fields(inputs):
         if f.metadata["positive"] and value <= 0.0:
             raise InputError(f"{f.metadata['label'].lower()} must be above zero", field=field_path(f),
                              fix=f"give a {f.metadata['label'].lower()} above zero")
+        if f.name.endswith("fittings_k") and isinstance(value, (int, float)) and not value <= MAX_FITTINGS_K:
+            raise InputError(f"a sum of loss coefficients of {value:g} is beyond any line's fittings",
+                             field=field_path(f), value=value, limits=(0.0, MAX_FITTINGS_K, ""),
+                             fix="give the sum of the fittings' K (each elbow about 0.3 to 0.75, an open exit 1), "
+                                 f"e.g. {f.metadata['example']}")
         # A positive coefficient or efficiency below 1 % is a slip (a percent typed as a fraction twice,
         # a stray exponent), and the sizing would divide by its square.
         if f.metadata["positive"] and f.metadata["kind"] == "fraction" and value < MIN_POSITIVE_FRACTION:
