@@ -18,12 +18,13 @@ from __future__ import annotations
 
 import math
 import re
+from functools import lru_cache
 
 from ..units.formatting import (CV_PER_KV, SYSTEMS, US_UNITS,  # noqa: F401  (the rules, shown here)
                                  _group, format_number, format_quantity, unit_label)
 from ..units.amounts import Amount, Phrase
 from ..units.expressions import written_step
-from ..units.quantities import Q_
+from ..units.quantities import convert as convert_units
 
 def _calculation(record):
     from ..calcs import get_calculation
@@ -41,6 +42,14 @@ def shown_in_percent(calc, key, label=""):
     step (no key) matches by its label naming the entry ("Stall load, clean U").
     """
     names = getattr(calc, "PERCENT_VALUES", ())
+    if type(names) is tuple and all(type(name) is str for name in names) and type(key) is str and \
+            type(label) is str and len(label) <= 200:
+        return _in_percent(names, key, label)   # the same question for each entry of each record of a kind
+    return _in_percent.__wrapped__(names, key, label)
+
+
+@lru_cache(maxsize=1024)
+def _in_percent(names, key, label):
     if key:
         return any(key == name or key.endswith("_" + name) for name in names)
     text = str(label).lower()
@@ -95,6 +104,8 @@ def nps_text(text):
     """
     if not isinstance(text, str):
         return text
+    if "DN" not in text and "(NPS" not in text:
+        return text   # neither pattern can match (most texts): spares both substitutions
     text = _DN.sub(lambda m: f"NPS {_NPS_TEXT[int(m.group(1))]}" if int(m.group(1)) in _NPS_TEXT else m.group(0),
                    text)
     # A text that gives NPS sizes with their DN beside them in brackets says them once in US display.
@@ -128,7 +139,7 @@ def convert(value, unit, system, key=None, label=""):
     if unit not in US_UNITS:
         return value, unit
     target = US_UNITS[unit]
-    return float(Q_(value, unit).to(target).magnitude), target
+    return float(convert_units(value, unit, target)), target
 
 
 def us_label(label):
@@ -141,7 +152,8 @@ def us_label(label):
     """
     if not isinstance(label, str):
         return label
-    return re.sub(r"\bKv(s?)\b", r"Cv\1", us_text(label))
+    label = us_text(label)
+    return _KV_WORD.sub(r"Cv\1", label) if "Kv" in label else label
 
 
 #: Units written in texts (steps, checks) and their pint names, longest first so that ``m`` never
@@ -177,12 +189,50 @@ def _us_number(number_text, unit):
     if unit == "K" and value >= 200:
         shown, target = value * 1.8, "degR"   # an absolute temperature: kelvin to rankine
     else:
-        shown, target = Q_(value, unit).to(US_UNITS[unit]).magnitude, US_UNITS[unit]
+        shown, target = convert_units(value, unit, US_UNITS[unit]), US_UNITS[unit]
     if shown == 0:
         return number_text, target
     digits = _figures_of(number_text) - 1 - math.floor(math.log10(abs(shown)))
     text = f"{shown:.{max(digits, 0)}f}"
     return (_group(text) if "," in number_text or abs(shown) >= 1e4 else text), target
+
+
+_CLAUSE = re.compile(r"(;\s*|,\s+)")
+_KV_CHAIN = re.compile(rf"((?<![\w.,]){_NUM}(?:(?:\s+and\s+|\s*[−→]\s*){_NUM})*)\s?m³/h")
+_KV_CHAIN_PARTS = re.compile(r"(\s+and\s+|\s*[−→]\s*)")
+_KV_WORD = re.compile(r"\bKv(s?)\b")
+_CHAIN_PARTS = re.compile(r"(\s*[−→]\s*|\s+(?:and|to)\s+)")
+_DIGIT = re.compile(r"\d")
+
+
+def _to_cv(match):
+    # A chain of numbers in m³/h that are Kv values, as Cv values (no unit), each to the figures it was written with.
+    parts = _KV_CHAIN_PARTS.split(match.group(1))
+    for i in range(0, len(parts), 2):
+        value = float(parts[i].replace(",", "")) * CV_PER_KV
+        digits = _figures_of(parts[i]) - 1 - math.floor(math.log10(abs(value))) if value else 0
+        parts[i] = f"{value:.{max(digits, 0)}f}"
+    return "".join(parts)
+
+
+def _flow_coefficients(clause):
+    # In a clause naming a Kv, each number in m³/h is a Kv: it becomes a Cv (no unit) and Kv is named Cv.
+    if "Kv" not in clause or "m³/h" not in clause:
+        return clause
+    return _KV_WORD.sub(r"Cv\1", _KV_CHAIN.sub(_to_cv, clause))
+
+
+def _us_quantity(match):
+    unit = _TEXT_PINT[match.group("unit")]
+    pint_unit, _, basis = unit.partition("~")
+    parts = _CHAIN_PARTS.split(match.group("chain"))
+    target = None
+    for i in range(0, len(parts), 2):
+        parts[i], target = _us_number(parts[i], pint_unit)
+    written = _US_PRESSURE[basis] if basis else unit_label(target)
+    if target == "degR":
+        written = "°R"
+    return f"{''.join(parts)}{match.group('close')} {written}"
 
 
 def us_text(text):
@@ -202,41 +252,19 @@ def us_text(text):
     'T3 = 281.80 °F + 18.00 °F in NPS 3'
     >>> us_text("limit 0.5 bar difference per 100 m (common practice)")
     'limit 2.2 psi difference per 100 ft (common practice)'
+    >>> us_text("Rated Kv in m³/h"), us_text("Rated Kv, in m³/h"), us_text("Outlet temperature")
+    ('Rated Cv in m³/h', 'Rated Kv, in m³/h', 'Outlet temperature')
     """
     if not isinstance(text, str):
         return text
-
-    def flow_coefficients(clause):
-        # In a clause naming a Kv, each number in m³/h is a Kv: it becomes a Cv (no unit) and Kv is named Cv.
-        if "Kv" not in clause or "m³/h" not in clause:
-            return clause
-
-        def to_cv(match):
-            parts = re.split(r"(\s+and\s+|\s*[−→]\s*)", match.group(1))
-            for i in range(0, len(parts), 2):
-                value = float(parts[i].replace(",", "")) * CV_PER_KV
-                digits = _figures_of(parts[i]) - 1 - math.floor(math.log10(abs(value))) if value else 0
-                parts[i] = f"{value:.{max(digits, 0)}f}"
-            return "".join(parts)
-
-        clause = re.sub(rf"((?<![\w.,]){_NUM}(?:(?:\s+and\s+|\s*[−→]\s*){_NUM})*)\s?m³/h", to_cv, clause)
-        return re.sub(r"\bKv(s?)\b", r"Cv\1", clause)
-
-    text = "".join(flow_coefficients(part) for part in re.split(r"(;\s*|,\s+)", text))
-
-    def replace(match):
-        unit = _TEXT_PINT[match.group("unit")]
-        pint_unit, _, basis = unit.partition("~")
-        parts = re.split(r"(\s*[−→]\s*|\s+(?:and|to)\s+)", match.group("chain"))
-        target = None
-        for i in range(0, len(parts), 2):
-            parts[i], target = _us_number(parts[i], pint_unit)
-        written = _US_PRESSURE[basis] if basis else unit_label(target)
-        if target == "degR":
-            written = "°R"
-        return f"{''.join(parts)}{match.group('close')} {written}"
-
-    return nps_text(_TEXT_QUANTITY.sub(replace, text))
+    kv = "Kv" in text and "m³/h" in text
+    # Most labels hold no digit: no quantity, DN size or Kv value to convert, and (without a Kv in m³/h or an NPS
+    # size written twice) nothing to rename.
+    if not kv and "NPS" not in text and _DIGIT.search(text) is None:
+        return text
+    if kv:
+        text = "".join(_flow_coefficients(part) for part in _CLAUSE.split(text))
+    return nps_text(_TEXT_QUANTITY.sub(_us_quantity, text))
 
 
 # --- the record as shown -----------------------------------------------------------------------
@@ -317,14 +345,16 @@ def _show_entry(entry, key, calc, system, basis, label, equation="", trim=False)
         unit = converted[0][1] if converted else unit
         entry["shown"] = ", ".join(format_number(v, unit, trim) for v in values)
     else:
-        if unit == "" and isinstance(value, (int, float)) and not isinstance(value, bool) and \
-                shown_in_percent(calc, key, label):
+        number = type(value) is float or (isinstance(value, (int, float)) and not isinstance(value, bool))
+        if number and unit == "" and shown_in_percent(calc, key, label):
             value, unit = value * 100.0, "percent"
-        value, unit = convert(value, unit, system, key, label)
-        entry["shown"] = format_number(value, unit, trim)
+        if system != "SI":
+            value, unit = convert(value, unit, system, key, label)
+            number = isinstance(value, (int, float)) and not isinstance(value, bool)
+        shown = format_number(value, unit, trim)
         # A text value (a size, a drip leg "NPS 3, 700 mm deep", rows of a list) with its quantities in US units.
-        entry["shown"] = us_text(entry["shown"]) if system == "US" else entry["shown"]
-        if isinstance(value, (int, float)) and not isinstance(value, bool):
+        entry["shown"] = us_text(shown) if system == "US" else shown
+        if number:
             entry["value"] = value
     entry["unit"] = unit
     entry["shown_unit"] = unit_label(unit, basis)

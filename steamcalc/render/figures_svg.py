@@ -65,11 +65,10 @@ def nice_ticks(low, high, target=6, dtick=None):
     return ticks
 
 
-def _tick_text(value, ticks):
-    """A tick label with as many decimals as the tick step needs."""
+def _tick_decimals(ticks):
+    """The decimals the tick step needs."""
     step = min((b - a for a, b in zip(ticks, ticks[1:])), default=1.0) or 1.0
-    decimals = next(d for d in range(12) if abs(round(step, d) - step) <= 1e-9 * step or d == 11)
-    return f"{value:,.{decimals}f}"
+    return next(d for d in range(12) if abs(round(step, d) - step) <= 1e-9 * step or d == 11)
 
 
 def _log_ticks(low, high):
@@ -87,7 +86,7 @@ class _Axis:
         self.log = spec.get("type") == "log"
         self.title = _get(spec, "title", "text") or ""
         self.dtick = spec.get("dtick") if spec.get("tickmode") == "linear" else None
-        data = [t for t in map(self.transform, values) if t is not None and math.isfinite(t)]
+        data = [t for t in self._transformed(values) if t is not None and math.isfinite(t)]
         if spec.get("range") is not None:
             self.low, self.high = float(spec["range"][0]), float(spec["range"][1])
         elif data:
@@ -105,6 +104,33 @@ class _Axis:
         if self.log:
             return math.log10(value) if value > 0 else None
         return value
+
+    def _transformed(self, values):
+        """:meth:`transform` of each value, in one loop (a chart's every point passes here)."""
+        floats = [None if value is None or isinstance(value, str) else float(value) for value in values]
+        if self.log:
+            log10 = math.log10
+            return [None if t is None or not t > 0 else log10(t) for t in floats]
+        return floats
+
+    def pixels(self, values):
+        """:meth:`pixel` of each value, in one loop, with the same arithmetic."""
+        low, span = self.low, self.high - self.low
+        base, extent = self.pixel_low, self.pixel_high - self.pixel_low
+        isfinite, log, log10 = math.isfinite, self.log, math.log10
+        out = []
+        for value in values:
+            if value is None or isinstance(value, str):
+                out.append(None)
+                continue
+            t = float(value)
+            if log:
+                if not t > 0:
+                    out.append(None)
+                    continue
+                t = log10(t)
+            out.append(base + (t - low) / span * extent if isfinite(t) else None)
+        return out
 
     def pixel(self, value):
         """Pixel position of a data value (None when it cannot be drawn on this axis)."""
@@ -129,7 +155,8 @@ class _Axis:
             values = _log_ticks(self.low, self.high)
             return [(v, f"{v:g}") for v in values]
         values = nice_ticks(self.low, self.high, dtick=self.dtick)
-        return [(v, _tick_text(v, values)) for v in values]
+        decimals = _tick_decimals(values)   # the same for every tick: found once
+        return [(v, f"{v:,.{decimals}f}") for v in values]
 
 
 def _trace_colour(trace, index):
@@ -353,7 +380,9 @@ def _marker(x, y, size, colour):
 def _trace(trace, index, x_axis, y_axis, clip):
     colour = _trace_colour(trace, index)
     mode = _mode(trace)
-    points = [(x_axis.pixel(x), y_axis.pixel(y)) for x, y in zip(_seq(trace.get("x")), _seq(trace.get("y")))]
+    xs, ys = _seq(trace.get("x")), _seq(trace.get("y"))
+    n = min(len(xs), len(ys))   # as zip pairs them
+    points = list(zip(x_axis.pixels(xs[:n]), y_axis.pixels(ys[:n])))
     out = [f'<g clip-path="url(#{_esc(clip)})">']
     if "lines" in mode:
         run = []
@@ -361,7 +390,7 @@ def _trace(trace, index, x_axis, y_axis, clip):
             if None in point:
                 if len(run) > 1:
                     # Each coordinate as _f writes it: one decimal, and "-0.0" (only ever a whole number) as "0.0".
-                    points_text = " ".join(f"{a:.1f},{b:.1f}" for a, b in run).replace("-0.0", "0.0")
+                    points_text = " ".join([f"{a:.1f},{b:.1f}" for a, b in run]).replace("-0.0", "0.0")
                     out.append(f'<polyline fill="none" stroke="{_esc(colour)}" stroke-width="{_line_width(trace):g}"'
                                f'{_dash(trace)} points="{points_text}"/>')
                 run = []
@@ -369,7 +398,9 @@ def _trace(trace, index, x_axis, y_axis, clip):
                 run.append(point)
     size = float(_get(trace, "marker", "size") or 6.0)
     if "markers" in mode:
-        out.extend(_marker(x, y, size, colour) for x, y in points if None not in (x, y))
+        # _marker written out, its radius and colour written once for the trace's every point.
+        tail = f'" r="{_f(size / 2)}" fill="{_esc(colour)}"/>'
+        out.extend(f'<circle cx="{_f(x)}" cy="{_f(y)}{tail}' for x, y in points if None not in (x, y))
     if "text" in mode and trace.get("text") is not None:
         text = trace["text"]
         texts = [text] * len(points) if isinstance(text, str) else list(text)

@@ -3,10 +3,10 @@ valves, tags and labels (SVG text, escaped). Every number is read from the recor
 
 from __future__ import annotations
 
-import html
 from dataclasses import dataclass, field
 
 from .display import convert, format_number, pressure_basis
+from .svg_text import _esc
 from ..units.formatting import unit_label as format_unit
 
 INK = "#1d2327"
@@ -90,7 +90,7 @@ def header_name(raw, key, fallback):
 
 
 def escaped(text):
-    return html.escape(str(text), quote=True)
+    return _esc(text)   # html.escape(str(text), quote=True), sparing the texts with nothing to escape
 
 
 def pipe(points, colour=STEAM, width=3):

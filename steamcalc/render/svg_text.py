@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import html
+import re
 
 #: Width of a chart drawing, px.
 WIDTH = 720.0
@@ -20,6 +21,15 @@ def _f(value):
     return "0.0" if text == "-0.0" else text
 
 
+#: What html.escape (quote=True) replaces; most texts of a drawing (numbers, colours, ids) hold none of them.
+_SPECIAL = re.compile("[&<>\"']")
+
+
 def _esc(text):
-    """Text escaped for SVG markup and attributes."""
-    return html.escape(str(text), quote=True)
+    """Text escaped for SVG markup and attributes (as ``html.escape(text, quote=True)``).
+
+    >>> _esc("Flash steam, kg/h"), _esc("<a & 'b'>")
+    ('Flash steam, kg/h', '&lt;a &amp; &#x27;b&#x27;&gt;')
+    """
+    text = str(text)
+    return text if _SPECIAL.search(text) is None else html.escape(text, quote=True)

@@ -6,6 +6,7 @@ units so that a layer below the views (the uncertainty summary) writes numbers t
 
 from __future__ import annotations
 
+import functools
 import math
 import re
 
@@ -55,6 +56,25 @@ def _currency(unit):
     return isinstance(unit, str) and len(unit) == 3 and _CURRENCY.fullmatch(unit) is not None
 
 
+def _unit_words(unit, basis):
+    """The rule of :func:`unit_label`."""
+    if unit is None:
+        return ""
+    if unit in _PRESSURE_UNITS:
+        if basis == "difference":
+            return f"{unit} difference"
+        return "psia" if unit == "psi" else f"{unit}(a)"
+    if unit in _UNIT_WORDS:
+        return _UNIT_WORDS[unit]
+    text = unit.replace("**2", "²").replace("**3", "³").replace("**4", "⁴").replace("^2", "²").replace("^3", "³")
+    text = text.replace("degC", "°C").replace("degF", "°F").replace("*", "·")
+    return text
+
+
+# Every number shown asks for its unit's words, and a record has a few dozen units among hundreds of numbers.
+_unit_words_of = functools.lru_cache(maxsize=512)(_unit_words)
+
+
 def unit_label(unit, basis="absolute"):
     """A display unit as people write it; a pressure always carries its basis.
 
@@ -70,17 +90,9 @@ def unit_label(unit, basis="absolute"):
     >>> unit_label("dB"), unit_label("bar_per_100m"), unit_label("psi_per_100ft")
     ('dB(A)', 'bar difference per 100 m', 'psi difference per 100 ft')
     """
-    if unit is None:
-        return ""
-    if unit in _PRESSURE_UNITS:
-        if basis == "difference":
-            return f"{unit} difference"
-        return "psia" if unit == "psi" else f"{unit}(a)"
-    if unit in _UNIT_WORDS:
-        return _UNIT_WORDS[unit]
-    text = unit.replace("**2", "²").replace("**3", "³").replace("**4", "⁴").replace("^2", "²").replace("^3", "³")
-    text = text.replace("degC", "°C").replace("degF", "°F").replace("*", "·")
-    return text
+    if type(unit) is str and type(basis) is str and len(unit) <= 64:
+        return _unit_words_of(unit, basis)
+    return _unit_words(unit, basis)
 
 
 format_unit = unit_label
@@ -98,9 +110,15 @@ _FIGURES = {
     "percent": ("percent", 0),
 }
 DEFAULT_FIGURES = 4
+_DEFAULT_RULE = ("figures", DEFAULT_FIGURES)
 
 
 def _group(text):
+    end = text.find(".")
+    head = text if end < 0 else text[:end]
+    # Most numbers have at most three figures before the point: nothing to group (a sign aside).
+    if len(head) - head.startswith("-") <= 3 and not head.startswith("--"):
+        return text
     whole, dot, decimals = text.partition(".")
     sign = "-" if whole.startswith("-") else ""
     whole = whole.lstrip("-")
@@ -130,6 +148,13 @@ def format_number(value, unit="", trim=False):
     >>> format_number(None), format_number(13909.65, "kg/h"), format_number(2.114, "bar")
     ('—', '13,910', '2.114')
     """
+    if type(value) is float and type(unit) is str and len(unit) != 3 and math.isfinite(value) and value != 0:
+        # Most numbers shown: the rules below for these cases, written out.
+        rule = _FIGURES.get(unit)
+        if rule is None:
+            return _to_four_figures(value, trim)
+        if rule[0] == "decimals":   # never the percent unit, whose rule is its own
+            return _group(f"{value:.{rule[1]}f}")
     if value is None:
         return "—"
     if isinstance(value, bool):
@@ -140,8 +165,10 @@ def format_number(value, unit="", trim=False):
         return str(value)
     if value == 0:
         return "0"
-    rule, n = _FIGURES.get(unit, ("figures", DEFAULT_FIGURES))
-    if _currency(unit):
+    rule, n = _FIGURES.get(unit, _DEFAULT_RULE)
+    if type(unit) is str and len(unit) != 3:
+        pass   # not a currency (_currency's own first test, without its call: this runs for every number shown)
+    elif _currency(unit):
         rule, n = "decimals", 0
     if rule == "percent":
         # 74.6 %, 7.4 %, 0.53 %: one decimal, two figures below 1 %, none from 100 %.
@@ -157,6 +184,22 @@ def format_number(value, unit="", trim=False):
     if float(value).is_integer():
         return _group(f"{value:.0f}")   # a whole number as typed (25 m, 63 m³/h), no invented zeros
     digits = n - 1 - math.floor(math.log10(abs(value)))
+    text = f"{value:.{max(digits, 0)}f}"
+    if trim and "." in text:
+        text = text.rstrip("0").rstrip(".")
+    return _group(text)
+
+
+def _to_four_figures(value, trim):
+    """:func:`format_number` of a finite, non-zero float in a unit with the default rule and no currency."""
+    size = abs(value)
+    if size >= 1000:
+        return _group(f"{value:.0f}")
+    if size < 1e-3:
+        return f"{value:.{DEFAULT_FIGURES - 1}e}".replace("e-0", "e-")
+    if value.is_integer():
+        return f"{value:.0f}"   # under 1000: nothing to group
+    digits = DEFAULT_FIGURES - 1 - math.floor(math.log10(size))
     text = f"{value:.{max(digits, 0)}f}"
     if trim and "." in text:
         text = text.rstrip("0").rstrip(".")
