@@ -104,13 +104,24 @@ def test_without_the_pipe_the_notice_is_as_before():
     assert check.detail.text("SI").startswith("not assessed: the relief valve's inlet pipe is not among the inputs")
 
 
-def test_a_two_phase_governing_case_says_the_loss_is_not_computed():
-    result = flash(FlashInputs(**FLASH, inlet_capacity=8 / 3.6, relief_inlet_size="DN80", relief_inlet_length=0.5),
-                   Site())
+def test_a_two_phase_governing_case_works_the_mixtures_loss():
+    """The filling vessel relieves a flashing mixture: its inlet pipe's loss by homogeneous flow and the omega
+    equation (API 520 Part I annex C; Leung 1996), with the inlet pipe's own omega as a step."""
+    result = flash(FlashInputs(**FLASH, inlet_capacity=8 / 3.6, relief_inlet_size="DN80", relief_inlet_length=0.5,
+                               relief_inlet_fittings_k=0.5), Site())
     assert "two-phase" in result.value("vessel_relief_governing_case")
+    assert _check(result, "Vessel relief: relief inlet pressure loss").status == "pass"
+    labels = [s.label for s in result.steps]
+    assert "Vessel relief: omega parameter of the inlet pipe (IF97, constant enthalpy)" in labels
+    assert "Vessel relief: inlet pressure loss at the rated flow (two-phase mixture)" in labels
+    assert 0.0 < result.value("vessel_relief_inlet_loss_fraction") < 3.0
+
+
+def test_a_two_phase_inlet_pipe_that_chokes_fails():
+    result = flash(FlashInputs(**FLASH, inlet_capacity=8 / 3.6, relief_inlet_size="DN80", relief_inlet_length=90.0,
+                               relief_inlet_fittings_k=50.0), Site())
     check = _check(result, "Vessel relief: relief inlet pressure loss")
-    assert check.kind == "notice" and "flashing two-phase mixture" in check.detail.text("SI")
-    assert "vessel_relief_inlet_loss_fraction" not in result.values
+    assert check.status == "fail" and "chokes" in str(check.detail)
 
 
 def test_no_tube_rupture_case_says_the_inlet_pipe_is_not_assessed():
@@ -165,6 +176,19 @@ def test_a_flash_record_with_its_inlet_pipe_issues_verifies_and_writes_its_steps
     path = tmp_path / "out" / "FL-T_revA.json"
     record = json.loads(path.read_text())
     assert record["inputs"]["relief_inlet_size"]["given"] == "DN80"
+    assert "vessel_relief_inlet_loss_fraction" in record["results"]
+    assert written_step_problems(record) == []
+    assert main(["verify", str(path)]) == 0
+    assert "VERIFIED" in capsys.readouterr().out
+
+
+def test_a_two_phase_flash_record_with_its_inlet_pipe_issues_and_verifies(tmp_path, capsys):
+    code, out, err = run_case_text(tmp_path, capsys, FLASH_CASE.format(
+        pipe='inlet_capacity = "8 t/h"\ninlet_size = "DN80"\ninlet_length = "0.5 m"\ninlet_fittings_k = 0.5'))
+    assert code == 0, err
+    path = tmp_path / "out" / "FL-T_revA.json"
+    record = json.loads(path.read_text())
+    assert "two-phase" in record["results"]["vessel_relief_governing_case"]["value"]
     assert "vessel_relief_inlet_loss_fraction" in record["results"]
     assert written_step_problems(record) == []
     assert main(["verify", str(path)]) == 0

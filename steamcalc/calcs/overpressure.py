@@ -18,7 +18,9 @@ from ..equipment.relief import (
     API526_AREAS_IN2, API526_INLET_NPS, DEFAULT_KD, INLET_LOSS_LIMIT, MM2_PER_IN2, MOLAR_MASS_WATER, api526_orifice,
     direct_integration_area, direct_integration_flux, reaction_force, steam_equation_area,
 )
-from ..equipment.two_phase_line import pipe_omega, two_phase_back_pressure, two_phase_reaction_force
+from ..equipment.two_phase_line import (
+    pipe_omega, two_phase_back_pressure, two_phase_inlet_pressure, two_phase_reaction_force,
+)
 from ..equipment.two_phase_relief import CERTIFIED_CAPACITY, size_flashing_relief
 from ..errors import InputError, OutOfRangeError
 from ..properties.steam import SteamState, dynamic_viscosity, saturation_pressure
@@ -202,7 +204,8 @@ def relief_inlet_loss(result, prefix, name, *, state, rated_flow_kg_h, set_press
     """The relief valve's inlet pressure loss at its rated flow against 3 % of the gauge set pressure.
 
     Darcy–Weisbach with the Colebrook friction factor, the fluid at its relieving state throughout the short inlet
-    pipe (schedule 40, commercial steel); a notice of the rule when the pipe is not given. The pipe's bore is held
+    pipe (schedule 40, commercial steel), or a two-phase mixture's homogeneous flow by the omega equation; a notice
+    of the rule when the pipe is not given. The pipe's bore is held
     against the valve's: a pipe narrower than the smallest API 526 inlet of the selected orifice fails.
 
     Parameters
@@ -212,7 +215,8 @@ def relief_inlet_loss(result, prefix, name, *, state, rated_flow_kg_h, set_press
     prefix, name : str
         Result-key prefix and the relief valve's name in the record.
     state : steamcalc.properties.steam.SteamState
-        The single-phase fluid entering the pipe at the relieving pressure (steam, or liquid water).
+        The fluid entering the pipe at the relieving pressure: steam or liquid water (Darcy–Weisbach), or a
+        flashing two-phase mixture (homogeneous flow, omega equation: :func:`two_phase_inlet_pressure`).
     rated_flow_kg_h : float
         The selected orifice's rated flow, kg/h (API 520 Part II, 7.3.1: the loss at the rated capacity).
     set_pressure, atm : float
@@ -232,7 +236,7 @@ def relief_inlet_loss(result, prefix, name, *, state, rated_flow_kg_h, set_press
     ----------
     API 520 Part II (2015), 7.3.1: the inlet pressure loss at the rated capacity within 3 % of the set pressure
     (gauge). API 526 for the orifice letters. Colebrook (1939) with Darcy–Weisbach for the line; IAPWS R12-08
-    for the viscosity.
+    for the viscosity; API 520 Part I annex C and Leung (1996) for a two-phase mixture.
     """
     if size is None or length is None:
         inlet_loss_notice(result, name)
@@ -248,29 +252,27 @@ def relief_inlet_loss(result, prefix, name, *, state, rated_flow_kg_h, set_press
                               "capacity, when it is larger, governs the loss")
     letter = result.value(f"{prefix}_orifice")
     _inlet_bore_check(result, name, letter, size, diameter)
-    flow = rated_flow_kg_h / 3600.0
-    loss = line_pressure_drop(flow, state.density, dynamic_viscosity(state.temperature, state.density), diameter,
-                              length, fittings_k or 0.0)
     result.add(f"{prefix}_inlet_rated_flow", f"{name}: rated flow through the inlet pipe ({fluid})", rated_flow_kg_h,
                "kg/h")
     result.work(f"{name}: velocity in the inlet pipe at the rated flow", "v = W/(ρ·π·D²/4)",
-                "W/(rho*pi*D**2/4)", loss.velocity, "m/s", W=(rated_flow_kg_h, "kg/h"),
-                rho=(state.density, "kg/m**3"), pi=(math.pi, ""), D=(diameter * 1e3, "mm"))
-    result.work(f"{name}: inlet pressure loss at the rated flow ({fluid})",
-                "Δp = (f·L/D + ΣK)·ρ·v²/2  at the rated flow (Darcy–Weisbach, Colebrook friction factor)",
-                "(f*L/D + K)*rho*v*v/2", loss.pressure_drop / 1e5, "bar",
-                f=(loss.friction_factor, ""), L=(length, "m"), D=(diameter * 1e3, "mm"), K=(fittings_k or 0.0, ""),
-                rho=(state.density, "kg/m**3"), v=(loss.velocity, "m/s"))
-    fraction = loss.pressure_drop / (set_pressure - atm)
+                "W/(rho*pi*D**2/4)", rated_flow_kg_h / 3600.0 / state.density / flow_area(diameter), "m/s",
+                W=(rated_flow_kg_h, "kg/h"), rho=(state.density, "kg/m**3"), pi=(math.pi, ""),
+                D=(diameter * 1e3, "mm"))
+    two_phase = state.dryness is not None and 0.0 < state.dryness < 1.0
+    drop = (_two_phase_inlet_drop if two_phase else _inlet_drop)(result, name, fluid, state, rated_flow_kg_h,
+                                                                  diameter, length, fittings_k or 0.0)
+    if drop is None:
+        return None
+    fraction = drop / (set_pressure - atm)
     result.work(f"{name}: inlet loss, of the gauge set pressure", "loss = Δp / (p_set − p_atm)",
-                "dp/(p_set - p_atm)", 100.0 * fraction, "percent", dp=(loss.pressure_drop / 1e5, "bar", "difference"),
+                "dp/(p_set - p_atm)", 100.0 * fraction, "percent", dp=(drop / 1e5, "bar", "difference"),
                 p_set=(set_pressure / 1e5, "bar"), p_atm=(atm / 1e5, "bar"))
     result.add(f"{prefix}_inlet_loss_fraction", f"{name}: inlet loss, of the gauge set pressure", 100.0 * fraction,
                "percent")
     share, limit = (100.0 * fraction, "percent"), (100.0 * INLET_LOSS_LIMIT, "percent")
     shown = ".1f" if share[0] >= 0.1 else ".2g"
     compressible = ""
-    if fluid == "steam" and loss.pressure_drop > INCOMPRESSIBLE_SHARE * state.pressure:
+    if fluid == "steam" and drop > INCOMPRESSIBLE_SHARE * state.pressure:
         compressible = (f"; the loss is more than {100 * INCOMPRESSIBLE_SHARE:g} % of the relieving pressure, where "
                         "Darcy–Weisbach at the inlet density understates a steam pipe's loss (the steam expands "
                         "along it: compressible flow)")
@@ -291,6 +293,52 @@ def relief_inlet_loss(result, prefix, name, *, state, rated_flow_kg_h, set_press
         source="API 520 Part II, 7.3.1; at 100 % of the gauge set pressure no pressure is left to drive the flow "
                "(common practice)")
     return fraction
+
+
+def _inlet_drop(result, name, fluid, state, rated_flow_kg_h, diameter, length, fittings_k):
+    """Pa lost along the inlet pipe by a single-phase fluid (Darcy–Weisbach at the relieving state), as a step."""
+    loss = line_pressure_drop(rated_flow_kg_h / 3600.0, state.density,
+                              dynamic_viscosity(state.temperature, state.density), diameter, length, fittings_k)
+    result.work(f"{name}: inlet pressure loss at the rated flow ({fluid})",
+                "Δp = (f·L/D + ΣK)·ρ·v²/2  at the rated flow (Darcy–Weisbach, Colebrook friction factor)",
+                "(f*L/D + K)*rho*v*v/2", loss.pressure_drop / 1e5, "bar",
+                f=(loss.friction_factor, ""), L=(length, "m"), D=(diameter * 1e3, "mm"), K=(fittings_k, ""),
+                rho=(state.density, "kg/m**3"), v=(loss.velocity, "m/s"))
+    return loss.pressure_drop
+
+
+def _two_phase_inlet_drop(result, name, fluid, state, rated_flow_kg_h, diameter, length, fittings_k):
+    """Pa lost along the inlet pipe by a flashing two-phase mixture (homogeneous, omega equation fitted through the
+    relieving state and the mixture expanded at constant enthalpy to 90 % of its pressure), as steps; None, with a
+    failing check, when the pipe cannot pass the flow before it chokes."""
+    p0, v0 = state.pressure, 1.0 / state.density
+    expanded = SteamState.from_ph(0.9 * p0, state.enthalpy)
+    omega = pipe_omega(p0, v0, 0.9 * p0, 1.0 / expanded.density)
+    liquid = SteamState.from_p_dryness(p0, 0.0)
+    result.assumptions.append(
+        f"{name}: the inlet pipe carries the rated flow as a homogeneous two-phase mixture in equilibrium (no slip), "
+        "its volume by the omega equation through the relieving state and the mixture expanded at constant enthalpy "
+        "to 90 % of the relieving pressure (IF97; the two points of API 520 Part I annex C, along an adiabatic pipe); "
+        "friction by Colebrook at the liquid-only Reynolds number (saturated liquid at the relieving pressure: the "
+        "larger friction, conservative) (Leung, 1996)")
+    result.work(f"{name}: omega parameter of the inlet pipe (IF97, constant enthalpy)",
+                "ω_in = (v_9/v0 − 1)/(p0/p_9 − 1),  p_9 = 0.9·p0  [omega equation through the two points]",
+                "(v_9/v0 - 1)/(p0/p_9 - 1)", omega, v_9=(1.0 / expanded.density, "m**3/kg"), v0=(v0, "m**3/kg"),
+                p0=(p0 / 1e5, "bar"), p_9=(0.9 * p0 / 1e5, "bar"))
+    try:
+        inlet = two_phase_inlet_pressure(rated_flow_kg_h / 3600.0, diameter, length, fittings_k, omega, p0, v0,
+                                         dynamic_viscosity(liquid.temperature, liquid.density))
+    except OutOfRangeError as exc:
+        result.check(f"{name}: relief inlet pressure loss", "fail", f"{exc.message}; fix: {exc.fix}")
+        return None
+    drop = p0 - inlet.valve_inlet_pressure
+    result.work(f"{name}: inlet pressure loss at the rated flow ({fluid})",
+                "Δp = p0 − p2,  p2 = root of ∫[p2, p0] 2/(G²·v)·(1 − G²·ω·p0·v0/p²) dp = f·L/D + ΣK,  "
+                "v = v0·(ω·(p0/p − 1) + 1), f by Colebrook at Re_lo = G·D/μ_l  [API 520 Part I annex C; Leung (1996)]",
+                "omega_inlet(G, omega, p0, v0, f, L, D, K)", drop / 1e5, "bar",
+                G=(inlet.mass_flux, "kg/(m**2*s)"), omega=(omega, ""), p0=(p0 / 1e5, "bar"), v0=(v0, "m**3/kg"),
+                f=(inlet.friction_factor, ""), L=(length, "m"), D=(diameter * 1e3, "mm"), K=(fittings_k, ""))
+    return drop
 
 
 def _inlet_bore_check(result, name, letter, size, diameter):

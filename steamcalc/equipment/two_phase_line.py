@@ -249,3 +249,97 @@ def two_phase_reaction_force(line, inner_diameter, atmospheric_pressure):
     """
     area = math.pi * inner_diameter ** 2 / 4.0
     return line.mass_flux ** 2 * line.exit_volume * area + (line.exit_pressure - atmospheric_pressure) * area
+
+
+@dataclass(frozen=True)
+class TwoPhaseInlet:
+    """Homogeneous two-phase flow along a relief valve's inlet pipe, omega equation of state."""
+
+    valve_inlet_pressure: float   #: Pa (absolute) at the valve inlet
+    friction_factor: float        #: Darcy, Colebrook at the liquid-only Reynolds number
+    reynolds: float               #: liquid-only Reynolds number G·D/μ_l
+    resistance: float             #: f·L/D + ΣK, velocity heads
+    mass_flux: float              #: kg/(m² s)
+
+
+def two_phase_inlet_pressure(mass_flow, inner_diameter, length, fittings_k, omega, reference_pressure,
+                             reference_volume, liquid_viscosity, roughness=STEEL_ROUGHNESS):
+    """Pressure at a relief valve's inlet after a flashing two-phase flow along its inlet pipe.
+
+    The mixture enters the pipe at the relieving pressure :math:`p_0` (volume :math:`v_0`) and flows
+    homogeneously, in equilibrium, to the valve; the pressure :math:`p_2` at the valve solves the momentum
+    balance of :func:`line_resistance` from the other end,
+
+    .. math:: \\int_{p_2}^{p_0} \\frac{2}{G^2 v(p)}\\left(1 - \\frac{G^2 \\omega p_0 v_0}{p^2}\\right) dp
+              = \\frac{f L}{D} + \\sum K
+
+    between :math:`p_0` and the choking pressure :math:`G\\sqrt{\\omega p_0 v_0}` (Brent). A resistance beyond
+    what the flux can pass before it chokes is refused.
+
+    Parameters
+    ----------
+    mass_flow : float
+        kg/s through the pipe (the valve's rated flow).
+    inner_diameter, length : float
+        m.
+    fittings_k : float
+        Sum of the entrance's and fittings' loss coefficients, velocity heads.
+    omega : float
+        ω of the mixture over the pipe's pressure range, above zero.
+    reference_pressure : float
+        Pa (absolute): the relieving pressure, where the mixture enters the pipe.
+    reference_volume : float
+        m³/kg there.
+    liquid_viscosity : float
+        Pa·s of the liquid, for the liquid-only Reynolds number (the larger friction: conservative).
+    roughness : float
+        m (commercial steel by default).
+
+    Returns
+    -------
+    TwoPhaseInlet
+
+    References
+    ----------
+    API Standard 520 Part I, 10th ed. (2020), annex C (the omega equation of state); Leung (1996), as for
+    :func:`two_phase_back_pressure`; Colebrook (1939).
+
+    Examples
+    --------
+    >>> inlet = two_phase_inlet_pressure(2.22, 0.0779, 0.5, 0.5, 3.71, 7.68e5, 0.00732, 2.8e-4)
+    >>> round((7.68e5 - inlet.valve_inlet_pressure) / 1e5, 4)
+    0.005
+    """
+    from fluids.friction import Colebrook
+    from scipy.optimize import brentq
+
+    for name, value in (("mass flow", mass_flow), ("inner diameter", inner_diameter), ("omega", omega),
+                        ("reference pressure", reference_pressure), ("reference volume", reference_volume),
+                        ("liquid viscosity", liquid_viscosity)):
+        if not (math.isfinite(value) and value > 0.0):
+            raise InputError(f"the two-phase inlet pipe's {name} must be above zero",
+                             field=f"inlet pipe {name}", value=value)
+    if length < 0.0 or fittings_k < 0.0:
+        raise InputError("an inlet pipe's length and fittings' K cannot be negative",
+                         field="inlet_length" if length < 0.0 else "inlet_fittings_k", value=min(length, fittings_k),
+                         fix="give the straight length in m and the sum of K, 0 or more")
+    area = math.pi * inner_diameter ** 2 / 4.0
+    flux = mass_flow / area
+    reynolds = flux * inner_diameter / liquid_viscosity
+    friction = float(Colebrook(reynolds, roughness / inner_diameter))
+    resistance = friction * length / inner_diameter + fittings_k
+    choking = flux * math.sqrt(omega * reference_pressure * reference_volume)
+    if resistance == 0.0:
+        return TwoPhaseInlet(reference_pressure, friction, reynolds, resistance, flux)
+
+    def residual(p2):
+        return line_resistance(reference_pressure, p2, flux, omega, reference_pressure, reference_volume) - resistance
+
+    if choking >= reference_pressure or residual(choking) < 0.0:
+        raise OutOfRangeError(
+            f"the inlet pipe's resistance ({resistance:.3g} velocity heads) is more than the flashing flow can pass "
+            f"from {reference_pressure / 1e5:.4g} bar(a) before it chokes: the valve could not receive its rated flow",
+            field="inlet_size", value=f"{inner_diameter * 1e3:.1f} mm",
+            fix="give a larger or shorter inlet pipe (at least the valve's inlet)")
+    pressure = float(brentq(residual, choking, reference_pressure, xtol=1e-6, rtol=1e-12))
+    return TwoPhaseInlet(pressure, friction, reynolds, resistance, flux)

@@ -21,7 +21,7 @@ from ...errors import InputError, OutOfRangeError
 from ...properties.steam import SteamState
 from ...units.amounts import Phrase
 from ..overpressure import (
-    CAUTIONS, VALVE_TYPES, check_inlet_pipe_inputs, discharge_section, flashing_relief_area, inlet_loss_notice,
+    CAUTIONS, VALVE_TYPES, check_inlet_pipe_inputs, discharge_section, flashing_relief_area,
     inlet_pipe_not_assessed, relief_inlet_loss, relieving_pressure, select_orifice, steam_relief_area, two_phase_discharge_section,
 )
 from ..relief_back_pressure import Sizing, balanced_kb, critical_flow_check, size_at_built_up_back_pressure
@@ -181,16 +181,11 @@ def add_overpressure(inputs, inlet, site, result):
     rated = select_orifice(result, PREFIX, NAME, sizing.area, load)
     if rated is None:
         return
-    if two_phase and inputs.relief_inlet_size is not None:
-        # The pipe then carries the filling vessel's flashing mixture, whose loss needs a two-phase line method.
-        inlet_loss_notice(result, NAME, "the governing case relieves a flashing two-phase mixture, whose inlet loss "
-                                        "this release does not compute (a homogeneous two-phase line method is needed)")
-    elif not two_phase:
-        relief_inlet_loss(result, PREFIX, NAME, state=vapour, rated_flow_kg_h=rated, set_pressure=set_pressure,
-                          atm=atm, size=inputs.relief_inlet_size, length=inputs.relief_inlet_length,
-                          fittings_k=inputs.relief_inlet_fittings_k)
-    else:
-        inlet_loss_notice(result, NAME)
+    # The filling vessel's inflow reaches the valve as it is at the relieving pressure: flashing, or still liquid.
+    fluid = "steam" if not two_phase else "liquid" if leaving.dryness is None else "two-phase mixture"
+    relief_inlet_loss(result, PREFIX, NAME, state=leaving if two_phase else vapour, rated_flow_kg_h=rated,
+                      set_pressure=set_pressure, atm=atm, size=inputs.relief_inlet_size,
+                      length=inputs.relief_inlet_length, fittings_k=inputs.relief_inlet_fittings_k, fluid=fluid)
     built = discharge(result, result.value(f"{PREFIX}_orifice_area"), sizing)
     critical_flow_check(result, NAME, sizing, built)
 
