@@ -5,11 +5,16 @@ rendering of its record (drawn from the record alone), the schema check as readi
 ``verify``; each printed as a ratio to the calculation. It also counts how many times ``verify`` runs the calculation on each engine.
 The design targets: HTML rendering at most 0.5x the calculation; one calculation per engine per verify.
 
-    python tests/bench/bench_record.py
+    python tests/bench/bench_record.py [--parts]
+
+``--parts`` then prints, per case, what the HTML page's time is made of, each as a share of the calculation: the
+record's display (numbers and units written), the sketch and charts (SVG), and the template (the page around
+them, with both made already). The three add up to about the whole page.
 """
 
 import re
 import shutil
+import sys
 import tempfile
 from pathlib import Path
 
@@ -20,7 +25,9 @@ from steamcalc.cases.site import case_inputs, case_site, load_case
 from steamcalc.records.build import record_for_case
 from steamcalc.records.record import IssuedRecords, load_record, write_record
 from steamcalc.records.schema import validate_record
-from steamcalc.render.report import RENDERERS, render_html, render_markdown
+from steamcalc.render.display import display_record
+from steamcalc.render.figures_svg import record_figures
+from steamcalc.render.report import RENDERERS, _context, _environment, render_html, render_markdown
 from steamcalc.review.verify import verify_file
 
 DEMO = Path(__file__).resolve().parents[2] / "workbooks" / "demo_site"
@@ -67,3 +74,13 @@ if __name__ == "__main__":
             print(f"  {case.id:<7} {calc_s * 1e3:>8.1f} {html_s * 1e3:>8.1f} {html_s / calc_s:>9.2f} "
                   f"{md_s / calc_s:>8.2f} {schema_s / calc_s:>11.2f} {verify_s / calc_s:>11.2f} "
                   f"{str(tuple(counts)):>30}")
+            if "--parts" in sys.argv:
+                shown = display_record(loaded)
+                drawn = record_figures(loaded, shown)
+                context = dict(_context(loaded, shown=shown), record_figures=lambda: drawn)
+                page = _environment(True).get_template("record.html.j2")
+                parts = {"display": median_seconds(lambda: display_record(loaded), repeat=9),
+                         "sketch and charts": median_seconds(lambda: record_figures(loaded, shown), repeat=9),
+                         "template": median_seconds(lambda: page.render(**context), repeat=9)}
+                print("          HTML by part, of the calculation: " + ", ".join(
+                    f"{name} {seconds / calc_s:.2f} ({seconds * 1e3:.2f} ms)" for name, seconds in parts.items()))
