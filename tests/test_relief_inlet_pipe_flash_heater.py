@@ -89,11 +89,22 @@ def test_tube_rupture_relief_inlet_loss_of_the_displaced_liquid_by_hand():
 
 
 def test_a_loss_of_the_whole_set_pressure_fails():
-    """At 100 % of the gauge set pressure no pressure is left to drive the flow (common practice)."""
-    result = heater(HeaterInputs(**HEATER, relief_inlet_size="DN25", relief_inlet_length=1.0), Site())
-    assert result.value("tube_rupture_inlet_loss_fraction") > 100
-    check = _check(result, "Tube rupture: relief inlet pressure loss")
+    """At 100 % of the gauge set pressure no pressure is left to drive the flow (common practice): steam through a
+    narrow pipe under a D-orifice valve."""
+    result = flash(FlashInputs(**FLASH, relief_inlet_size="DN15", relief_inlet_length=40.0,
+                               relief_inlet_fittings_k=20.0), Site())
+    assert result.value("vessel_relief_inlet_loss_fraction") > 100
+    check = _check(result, "Vessel relief: relief inlet pressure loss")
     assert check.status == "fail" and "cannot pass its rated flow" in check.detail.text("SI")
+
+
+def test_a_liquid_that_would_fall_below_its_saturation_pressure_flashes_and_here_chokes():
+    """The heater's displaced liquid (85 °C) through DN25 under a Q-orifice valve: by Darcy–Weisbach it would lose
+    hundreds of bar, far below its saturation pressure, so it flashes in the pipe; the flashing flow chokes before
+    the valve, which cannot receive its rated flow (API 520 Part I annex C, C.2.3)."""
+    result = heater(HeaterInputs(**HEATER, relief_inlet_size="DN25", relief_inlet_length=1.0), Site())
+    check = _check(result, "Tube rupture: relief inlet pressure loss")
+    assert check.status == "fail" and "could not receive its rated flow" in str(check.detail)
 
 
 def test_without_the_pipe_the_notice_is_as_before():
@@ -193,3 +204,11 @@ def test_a_two_phase_flash_record_with_its_inlet_pipe_issues_and_verifies(tmp_pa
     assert written_step_problems(record) == []
     assert main(["verify", str(path)]) == 0
     assert "VERIFIED" in capsys.readouterr().out
+
+
+def test_a_load_beyond_the_t_orifice_says_the_inlet_pipe_is_not_assessed():
+    """Found in review: with no single API 526 orifice large enough, a given inlet pipe vanished without a word."""
+    result = flash(FlashInputs(**FLASH, inlet_capacity=1000 / 3.6, relief_inlet_size="DN200", relief_inlet_length=1.0),
+                   Site())
+    assert result.value("vessel_relief_orifice") == "larger than T"
+    assert _check(result, "Vessel relief: inlet pipe not assessed").kind == "notice"

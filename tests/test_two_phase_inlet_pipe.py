@@ -48,3 +48,21 @@ def test_a_pipe_the_flow_cannot_pass_before_it_chokes_is_refused_by_name():
 def test_no_resistance_no_loss():
     inlet = two_phase_inlet_pressure(1.0, 0.0779, 0.0, 0.0, 2.0, 6.0e5, 0.02, 2.0e-4)
     assert inlet.valve_inlet_pressure == 6.0e5
+
+
+def test_a_subcooled_liquid_flows_as_liquid_to_its_saturation_pressure_then_flashes():
+    """Above its saturation pressure p0 the liquid loses N·G²·v0/2 (Darcy–Weisbach); beyond, the rest of the
+    resistance is the flashing flow's from p0 (API 520 Part I annex C, C.2.3), continuous where the two meet."""
+    mass_flow, diameter, p0, v0, omega = 3.0, 0.0525, 6.0e5, 0.0011, 8.0
+    flux = mass_flow / (math.pi * diameter ** 2 / 4)
+    short = two_phase_inlet_pressure(mass_flow, diameter, 1.0, 0.5, omega, p0, v0, 2.0e-4, liquid_from=6.5e5)
+    assert short.valve_inlet_pressure == pytest.approx(6.5e5 - short.resistance * flux * flux * v0 / 2, rel=1e-12)
+    # Entering exactly at its saturation pressure, it flashes from the start: the same as the two-phase inflow.
+    at_saturation = two_phase_inlet_pressure(mass_flow, diameter, 3.0, 2.0, omega, p0, v0, 2.0e-4, liquid_from=p0)
+    flashing = two_phase_inlet_pressure(mass_flow, diameter, 3.0, 2.0, omega, p0, v0, 2.0e-4)
+    assert at_saturation.valve_inlet_pressure == pytest.approx(flashing.valve_inlet_pressure, rel=1e-12)
+    # Entering just above it, the first velocity heads are the liquid's, which expands no more: the valve sees a
+    # higher pressure, and the pipe loses less than the mixture flashing from the start.
+    above = two_phase_inlet_pressure(mass_flow, diameter, 3.0, 2.0, omega, p0, v0, 2.0e-4, liquid_from=p0 + 500.0)
+    assert above.valve_inlet_pressure > flashing.valve_inlet_pressure
+    assert p0 + 500.0 - above.valve_inlet_pressure < p0 - flashing.valve_inlet_pressure

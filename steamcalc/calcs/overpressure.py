@@ -23,7 +23,7 @@ from ..equipment.two_phase_line import (
 )
 from ..equipment.two_phase_relief import CERTIFIED_CAPACITY, size_flashing_relief
 from ..errors import InputError, OutOfRangeError
-from ..properties.steam import SteamState, dynamic_viscosity, saturation_pressure
+from ..properties.steam import SteamState, dynamic_viscosity, saturation_pressure, saturation_temperature
 from ..units.amounts import Phrase
 
 #: Pa, water's critical pressure (IAPWS R7-97).
@@ -259,6 +259,8 @@ def relief_inlet_loss(result, prefix, name, *, state, rated_flow_kg_h, set_press
                 W=(rated_flow_kg_h, "kg/h"), rho=(state.density, "kg/m**3"), pi=(math.pi, ""),
                 D=(diameter * 1e3, "mm"))
     two_phase = state.dryness is not None and 0.0 < state.dryness < 1.0
+    if not two_phase and _flashes_in_pipe(state, rated_flow_kg_h, diameter, length, fittings_k or 0.0):
+        two_phase, fluid = True, f"{fluid}, flashing in the pipe"
     drop = (_two_phase_inlet_drop if two_phase else _inlet_drop)(result, name, fluid, state, rated_flow_kg_h,
                                                                   diameter, length, fittings_k or 0.0)
     if drop is None:
@@ -307,37 +309,60 @@ def _inlet_drop(result, name, fluid, state, rated_flow_kg_h, diameter, length, f
     return loss.pressure_drop
 
 
+def _flashes_in_pipe(state, rated_flow_kg_h, diameter, length, fittings_k):
+    """A liquid whose Darcy–Weisbach loss along the pipe would take it below its saturation pressure: it flashes
+    there, and its loss is the flashing flow's (a subcooled liquid close to saturation)."""
+    if state.dryness is not None or state.temperature >= saturation_temperature(state.pressure):
+        return False   # wet or superheated steam
+    loss = line_pressure_drop(rated_flow_kg_h / 3600.0, state.density,
+                              dynamic_viscosity(state.temperature, state.density), diameter, length, fittings_k)
+    return state.pressure - loss.pressure_drop < saturation_pressure(state.temperature)
+
+
 def _two_phase_inlet_drop(result, name, fluid, state, rated_flow_kg_h, diameter, length, fittings_k):
     """Pa lost along the inlet pipe by a flashing two-phase mixture (homogeneous, omega equation fitted through the
     relieving state and the mixture expanded at constant enthalpy to 90 % of its pressure), as steps; None, with a
-    failing check, when the pipe cannot pass the flow before it chokes."""
-    p0, v0 = state.pressure, 1.0 / state.density
+    failing check, when the pipe cannot pass the flow before it chokes. A subcooled liquid flows as liquid down to
+    its saturation pressure and flashes from there (its omega fitted from the saturation pressure)."""
+    subcooled = state.dryness is None
+    p0, v0 = (saturation_pressure(state.temperature) if subcooled else state.pressure), 1.0 / state.density
     expanded = SteamState.from_ph(0.9 * p0, state.enthalpy)
     omega = pipe_omega(p0, v0, 0.9 * p0, 1.0 / expanded.density)
-    liquid = SteamState.from_p_dryness(p0, 0.0)
+    liquid = SteamState.from_p_dryness(state.pressure, 0.0)
     result.assumptions.append(
-        f"{name}: the inlet pipe carries the rated flow as a homogeneous two-phase mixture in equilibrium (no slip), "
-        "its volume by the omega equation through the relieving state and the mixture expanded at constant enthalpy "
-        "to 90 % of the relieving pressure (IF97; the two points of API 520 Part I annex C, along an adiabatic pipe); "
-        "friction by Colebrook at the liquid-only Reynolds number (saturated liquid at the relieving pressure: the "
-        "larger friction, conservative) (Leung, 1996)")
+        f"{name}: the inlet pipe carries the rated flow as a homogeneous two-phase mixture in equilibrium (no slip)"
+        + (", liquid down to its saturation pressure," if subcooled else ",")
+        + " its volume by the omega equation through the "
+        + ("liquid at its saturation pressure" if subcooled else "relieving state")
+        + " and the mixture expanded at constant enthalpy to 90 % of that pressure (IF97; the two points of API 520 "
+        "Part I annex C, along an adiabatic pipe); friction by Colebrook at the liquid-only Reynolds number "
+        "(saturated liquid at the relieving pressure: the larger friction, conservative) (Leung, 1996)")
     result.work(f"{name}: omega parameter of the inlet pipe (IF97, constant enthalpy)",
                 "ω_in = (v_9/v0 − 1)/(p0/p_9 − 1),  p_9 = 0.9·p0  [omega equation through the two points]",
                 "(v_9/v0 - 1)/(p0/p_9 - 1)", omega, v_9=(1.0 / expanded.density, "m**3/kg"), v0=(v0, "m**3/kg"),
                 p0=(p0 / 1e5, "bar"), p_9=(0.9 * p0 / 1e5, "bar"))
     try:
         inlet = two_phase_inlet_pressure(rated_flow_kg_h / 3600.0, diameter, length, fittings_k, omega, p0, v0,
-                                         dynamic_viscosity(liquid.temperature, liquid.density))
+                                         dynamic_viscosity(liquid.temperature, liquid.density),
+                                         liquid_from=state.pressure if subcooled else None)
     except OutOfRangeError as exc:
         result.check(f"{name}: relief inlet pressure loss", "fail", f"{exc.message}; fix: {exc.fix}")
         return None
-    drop = p0 - inlet.valve_inlet_pressure
-    result.work(f"{name}: inlet pressure loss at the rated flow ({fluid})",
-                "Δp = p0 − p2,  p2 = root of ∫[p2, p0] 2/(G²·v)·(1 − G²·ω·p0·v0/p²) dp = f·L/D + ΣK,  "
-                "v = v0·(ω·(p0/p − 1) + 1), f by Colebrook at Re_lo = G·D/μ_l  [API 520 Part I annex C; Leung (1996)]",
-                "omega_inlet(G, omega, p0, v0, f, L, D, K)", drop / 1e5, "bar",
-                G=(inlet.mass_flux, "kg/(m**2*s)"), omega=(omega, ""), p0=(p0 / 1e5, "bar"), v0=(v0, "m**3/kg"),
-                f=(inlet.friction_factor, ""), L=(length, "m"), D=(diameter * 1e3, "mm"), K=(fittings_k, ""))
+    drop = state.pressure - inlet.valve_inlet_pressure
+    operands = dict(G=(inlet.mass_flux, "kg/(m**2*s)"), omega=(omega, ""), p0=(p0 / 1e5, "bar"), v0=(v0, "m**3/kg"),
+                    f=(inlet.friction_factor, ""), L=(length, "m"), D=(diameter * 1e3, "mm"), K=(fittings_k, ""))
+    if subcooled:
+        result.work(f"{name}: inlet pressure loss at the rated flow ({fluid})",
+                    "Δp = p1 − p2: liquid from p1 to its saturation pressure p0 over N_l = 2·(p1 − p0)/(G²·v0) "
+                    "velocity heads, then p2 = root of ∫[p2, p0] 2/(G²·v)·(1 − G²·ω·p0·v0/p²) dp = f·L/D + ΣK − N_l, "
+                    "v = v0·(ω·(p0/p − 1) + 1), f by Colebrook at Re_lo = G·D/μ_l  [API 520 Part I annex C, C.2.3; "
+                    "Leung (1996)]", "omega_inlet_subcooled(G, omega, p1, p0, v0, f, L, D, K)", drop / 1e5, "bar",
+                    p1=(state.pressure / 1e5, "bar"), **operands)
+    else:
+        result.work(f"{name}: inlet pressure loss at the rated flow ({fluid})",
+                    "Δp = p0 − p2,  p2 = root of ∫[p2, p0] 2/(G²·v)·(1 − G²·ω·p0·v0/p²) dp = f·L/D + ΣK,  "
+                    "v = v0·(ω·(p0/p − 1) + 1), f by Colebrook at Re_lo = G·D/μ_l  [API 520 Part I annex C; "
+                    "Leung (1996)]", "omega_inlet(G, omega, p0, v0, f, L, D, K)", drop / 1e5, "bar", **operands)
     return drop
 
 

@@ -263,7 +263,7 @@ class TwoPhaseInlet:
 
 
 def two_phase_inlet_pressure(mass_flow, inner_diameter, length, fittings_k, omega, reference_pressure,
-                             reference_volume, liquid_viscosity, roughness=STEEL_ROUGHNESS):
+                             reference_volume, liquid_viscosity, roughness=STEEL_ROUGHNESS, liquid_from=None):
     """Pressure at a relief valve's inlet after a flashing two-phase flow along its inlet pipe.
 
     The mixture enters the pipe at the relieving pressure :math:`p_0` (volume :math:`v_0`) and flows
@@ -294,6 +294,12 @@ def two_phase_inlet_pressure(mass_flow, inner_diameter, length, fittings_k, omeg
         Pa·s of the liquid, for the liquid-only Reynolds number (the larger friction: conservative).
     roughness : float
         m (commercial steel by default).
+    liquid_from : float, optional
+        Pa (absolute), for a subcooled liquid whose ``reference_pressure`` is its saturation pressure: the
+        relieving pressure it enters the pipe at. Down to the saturation pressure the pipe carries liquid of
+        volume ``reference_volume`` (Darcy–Weisbach, :math:`N_l = 2(p_{in} - p_0)/(G^2 v_0)`); the rest of the
+        resistance is the flashing flow's (API 520 Part I annex C, C.2.3: the omega equation of a subcooled
+        liquid holds below its saturation pressure).
 
     Returns
     -------
@@ -329,16 +335,24 @@ def two_phase_inlet_pressure(mass_flow, inner_diameter, length, fittings_k, omeg
     friction = float(Colebrook(reynolds, roughness / inner_diameter))
     resistance = friction * length / inner_diameter + fittings_k
     choking = flux * math.sqrt(omega * reference_pressure * reference_volume)
+    entering = reference_pressure if liquid_from is None else liquid_from
     if resistance == 0.0:
-        return TwoPhaseInlet(reference_pressure, friction, reynolds, resistance, flux)
+        return TwoPhaseInlet(entering, friction, reynolds, resistance, flux)
+    flashing = resistance
+    if liquid_from is not None:
+        liquid = 2.0 * (liquid_from - reference_pressure) / (flux * flux * reference_volume)
+        if resistance <= liquid:   # the pipe ends before the liquid reaches its saturation pressure
+            return TwoPhaseInlet(liquid_from - resistance * flux * flux * reference_volume / 2.0, friction, reynolds,
+                                 resistance, flux)
+        flashing = resistance - liquid
 
     def residual(p2):
-        return line_resistance(reference_pressure, p2, flux, omega, reference_pressure, reference_volume) - resistance
+        return line_resistance(reference_pressure, p2, flux, omega, reference_pressure, reference_volume) - flashing
 
     if choking >= reference_pressure or residual(choking) < 0.0:
         raise OutOfRangeError(
             f"the inlet pipe's resistance ({resistance:.3g} velocity heads) is more than the flashing flow can pass "
-            f"from {reference_pressure / 1e5:.4g} bar(a) before it chokes: the valve could not receive its rated flow",
+            f"from {entering / 1e5:.4g} bar(a) before it chokes: the valve could not receive its rated flow",
             field="inlet_size", value=f"{inner_diameter * 1e3:.1f} mm",
             fix="give a larger or shorter inlet pipe (at least the valve's inlet)")
     pressure = float(brentq(residual, choking, reference_pressure, xtol=1e-6, rtol=1e-12))

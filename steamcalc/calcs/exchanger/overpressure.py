@@ -240,6 +240,7 @@ def _tube_rupture(inputs, atm, result):
     result.add(f"{PREFIX}_governing_case", f"{NAME}: governing relief flow", sizing.method)
     rated = select_orifice(result, PREFIX, NAME, sizing.area, sizing.flow_kg_h)
     if rated is None:
+        inlet_pipe_not_assessed(result, NAME, inputs.relief_inlet_size, "no single API 526 orifice passes the load")
         return
     liquid_governs = sizing.method == "displaced liquid"
     relief_inlet_loss(result, PREFIX, NAME, state=liquid if liquid_governs else relieving, rated_flow_kg_h=rated,

@@ -180,6 +180,7 @@ def add_overpressure(inputs, inlet, site, result):
                                                atm=atm, sizer=sizer, discharge=discharge)
     rated = select_orifice(result, PREFIX, NAME, sizing.area, load)
     if rated is None:
+        inlet_pipe_not_assessed(result, NAME, inputs.relief_inlet_size, "no single API 526 orifice passes the load")
         return
     # The filling vessel's inflow reaches the valve as it is at the relieving pressure: flashing, or still liquid.
     fluid = "steam" if not two_phase else "liquid" if leaving.dryness is None else "two-phase mixture"
