@@ -182,12 +182,19 @@ def check_inlet_pipe_inputs(size, length, fittings_k):
                          limits=(0.0, MAX_INLET_FITTINGS_K, ""),
                          fix="give the sum of the inlet pipe's K (a square-edged entrance 0.5, each elbow about "
                              "0.3 to 0.75), or leave it out for none")
-    given = {"inlet_size": size, "inlet_length": length, "inlet_fittings_k": fittings_k}
+    refuse_half_pipe("the relief valve's inlet pipe", {"inlet_size": size, "inlet_length": length,
+                                                       "inlet_fittings_k": fittings_k},
+                     (("inlet_size", '"DN80"'), ("inlet_length", '"0.5 m"')))
+
+
+def refuse_half_pipe(what, given, needed):
+    """Refuse a pipe of ``[inputs.overpressure]`` given in part: ``given`` its keys and values (None: not given),
+    ``needed`` the (key, example) pairs that must come together once any key is given."""
     if any(v is not None for v in given.values()):
-        for key, example in (("inlet_size", '"DN80"'), ("inlet_length", '"0.5 m"')):
+        for key, example in needed:
             if given[key] is None:
                 other = next(k for k, v in given.items() if v is not None)
-                raise InputError(f"the relief valve's inlet pipe is given without its {key.split('_')[1]}",
+                raise InputError(f"{what} is given without its {key.split('_')[1]}",
                                  field=f"overpressure.{key}", value=f"{other} = {given[other]}",
                                  fix=f"add {key} = {example} to [inputs.overpressure], or remove {other}")
 

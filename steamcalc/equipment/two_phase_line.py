@@ -116,6 +116,28 @@ def line_resistance(outlet_pressure, exit_pressure, mass_flux, omega, reference_
     return value
 
 
+def _refuse_unphysical(pipe, mass_flow, inner_diameter, omega, reference_pressure, reference_volume,
+                       liquid_viscosity):
+    """Refuse a two-phase pipe's figure that is not finite and above zero, by name."""
+    for name, value in (("mass flow", mass_flow), ("inner diameter", inner_diameter), ("omega", omega),
+                        ("reference pressure", reference_pressure), ("reference volume", reference_volume),
+                        ("liquid viscosity", liquid_viscosity)):
+        if not (math.isfinite(value) and value > 0.0):
+            raise InputError(f"the two-phase {pipe}'s {name} must be above zero", field=f"{pipe} {name}",
+                             value=value)
+
+
+def _pipe_flow(mass_flow, inner_diameter, length, fittings_k, liquid_viscosity, roughness):
+    """``(G, Re_lo, f, N)``: mass flux (kg/(m² s)), liquid-only Reynolds number, Colebrook's friction factor at it, and
+    the pipe's velocity heads f·L/D + ΣK."""
+    from fluids.friction import Colebrook
+
+    flux = mass_flow / (math.pi * inner_diameter ** 2 / 4.0)
+    reynolds = flux * inner_diameter / liquid_viscosity
+    friction = float(Colebrook(reynolds, roughness / inner_diameter))
+    return flux, reynolds, friction, friction * length / inner_diameter + fittings_k
+
+
 def two_phase_back_pressure(mass_flow, inner_diameter, length, fittings_k, atmospheric_pressure, omega,
                             reference_pressure, reference_volume, liquid_viscosity, roughness=STEEL_ROUGHNESS,
                             liquid_up_to=None):
@@ -181,21 +203,13 @@ def two_phase_back_pressure(mass_flow, inner_diameter, length, fittings_k, atmos
     >>> round(line.outlet_pressure / 1e5, 3), line.exit_choked, round(line.exit_pressure / 1e5, 3)
     (3.481, True, 1.481)
     """
-    from fluids.friction import Colebrook
     from scipy.optimize import brentq
 
-    for name, value in (("mass flow", mass_flow), ("inner diameter", inner_diameter), ("omega", omega),
-                        ("reference pressure", reference_pressure), ("reference volume", reference_volume),
-                        ("liquid viscosity", liquid_viscosity)):
-        if not (math.isfinite(value) and value > 0.0):
-            raise InputError(f"the two-phase discharge line's {name} must be above zero",
-                             field=f"discharge line {name}", value=value)
+    _refuse_unphysical("discharge line", mass_flow, inner_diameter, omega, reference_pressure, reference_volume,
+                       liquid_viscosity)
     check_pipe_run(length, fittings_k)
-    area = math.pi * inner_diameter ** 2 / 4.0
-    flux = mass_flow / area
-    reynolds = flux * inner_diameter / liquid_viscosity
-    friction = float(Colebrook(reynolds, roughness / inner_diameter))
-    resistance = friction * length / inner_diameter + fittings_k
+    flux, reynolds, friction, resistance = _pipe_flow(mass_flow, inner_diameter, length, fittings_k,
+                                                      liquid_viscosity, roughness)
     choked_exit = flux * math.sqrt(omega * reference_pressure * reference_volume)
     exit_pressure = max(atmospheric_pressure, choked_exit)
     if exit_pressure >= reference_pressure:
@@ -316,24 +330,16 @@ def two_phase_inlet_pressure(mass_flow, inner_diameter, length, fittings_k, omeg
     >>> round((7.68e5 - inlet.valve_inlet_pressure) / 1e5, 4)
     0.005
     """
-    from fluids.friction import Colebrook
     from scipy.optimize import brentq
 
-    for name, value in (("mass flow", mass_flow), ("inner diameter", inner_diameter), ("omega", omega),
-                        ("reference pressure", reference_pressure), ("reference volume", reference_volume),
-                        ("liquid viscosity", liquid_viscosity)):
-        if not (math.isfinite(value) and value > 0.0):
-            raise InputError(f"the two-phase inlet pipe's {name} must be above zero",
-                             field=f"inlet pipe {name}", value=value)
+    _refuse_unphysical("inlet pipe", mass_flow, inner_diameter, omega, reference_pressure, reference_volume,
+                       liquid_viscosity)
     if length < 0.0 or fittings_k < 0.0:
         raise InputError("an inlet pipe's length and fittings' K cannot be negative",
                          field="inlet_length" if length < 0.0 else "inlet_fittings_k", value=min(length, fittings_k),
                          fix="give the straight length in m and the sum of K, 0 or more")
-    area = math.pi * inner_diameter ** 2 / 4.0
-    flux = mass_flow / area
-    reynolds = flux * inner_diameter / liquid_viscosity
-    friction = float(Colebrook(reynolds, roughness / inner_diameter))
-    resistance = friction * length / inner_diameter + fittings_k
+    flux, reynolds, friction, resistance = _pipe_flow(mass_flow, inner_diameter, length, fittings_k,
+                                                      liquid_viscosity, roughness)
     choking = flux * math.sqrt(omega * reference_pressure * reference_volume)
     entering = reference_pressure if liquid_from is None else liquid_from
     if resistance == 0.0:

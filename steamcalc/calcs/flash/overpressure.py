@@ -22,7 +22,8 @@ from ...properties.steam import SteamState
 from ...units.amounts import Phrase
 from ..overpressure import (
     CAUTIONS, VALVE_TYPES, check_inlet_pipe_inputs, discharge_section, flashing_relief_area,
-    inlet_pipe_not_assessed, relief_inlet_loss, relieving_pressure, select_orifice, steam_relief_area, two_phase_discharge_section,
+    inlet_pipe_not_assessed, refuse_half_pipe, relief_inlet_loss, relieving_pressure, select_orifice,
+    steam_relief_area, two_phase_discharge_section,
 )
 from ..relief_back_pressure import Sizing, balanced_kb, critical_flow_check, size_at_built_up_back_pressure
 
@@ -84,15 +85,10 @@ def _check_discharge_inputs(inputs):
     if inputs.discharge_length is not None and inputs.discharge_length < 0.0:
         raise InputError("a pipe length cannot be negative", field="overpressure.discharge_length",
                          value=inputs.discharge_length, fix="give the straight length to the open end in m, 0 or more")
-    given = {"discharge_size": inputs.discharge_size, "discharge_length": inputs.discharge_length,
-             "discharge_fittings_k": inputs.discharge_fittings_k}
-    if any(v is not None for v in given.values()):
-        for key, example in (("discharge_size", '"DN100"'), ("discharge_length", '"6 m"')):
-            if given[key] is None:
-                other = next(k for k, v in given.items() if v is not None)
-                raise InputError(f"the relief discharge pipe is given without its {key.split('_')[1]}",
-                                 field=f"overpressure.{key}", value=f"{other} = {given[other]}",
-                                 fix=f"add {key} = {example} to [inputs.overpressure], or remove {other}")
+    refuse_half_pipe("the relief discharge pipe", {"discharge_size": inputs.discharge_size,
+                                                   "discharge_length": inputs.discharge_length,
+                                                   "discharge_fittings_k": inputs.discharge_fittings_k},
+                     (("discharge_size", '"DN100"'), ("discharge_length", '"6 m"')))
 
 
 def add_overpressure(inputs, inlet, site, result):
