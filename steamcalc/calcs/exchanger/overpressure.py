@@ -31,10 +31,8 @@ from ...equipment.relief import API526_AREAS_IN2, MM2_PER_IN2, direct_integratio
 from ...errors import InputError, OutOfRangeError
 from ...properties.steam import SteamState
 from ...units.amounts import Phrase
-from ..overpressure import (
-    CAUTIONS, check_inlet_pipe_inputs, discharge_section, inlet_pipe_not_assessed, relief_inlet_loss, relieving_pressure, select_orifice,
-    steam_relief_area,
-)
+from ..overpressure import CAUTIONS, discharge_section, relieving_pressure, select_orifice, steam_relief_area
+from ..relief_inlet import check_inlet_pipe_inputs, inlet_pipe_not_assessed, relief_inlet_loss
 from ..relief_back_pressure import Sizing, balanced_kb, critical_flow_check, size_at_built_up_back_pressure
 from .discharge import (
     THERMAL_KEYS, THERMAL_ORIFICE, check_discharge_inputs, thermal_relief_capacity, thermal_relief_discharge,

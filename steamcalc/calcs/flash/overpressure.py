@@ -21,10 +21,10 @@ from ...errors import InputError, OutOfRangeError
 from ...properties.steam import SteamState
 from ...units.amounts import Phrase
 from ..overpressure import (
-    CAUTIONS, VALVE_TYPES, check_inlet_pipe_inputs, discharge_section, flashing_relief_area,
-    inlet_pipe_not_assessed, refuse_half_pipe, relief_inlet_loss, relieving_pressure, select_orifice,
-    steam_relief_area, two_phase_discharge_section,
+    CAUTIONS, VALVE_TYPES, discharge_section, flashing_relief_area, refuse_half_pipe, relieving_pressure,
+    select_orifice, steam_relief_area, two_phase_discharge_section,
 )
+from ..relief_inlet import check_inlet_pipe_inputs, inlet_pipe_not_assessed, relief_inlet_loss
 from ..relief_back_pressure import Sizing, balanced_kb, critical_flow_check, size_at_built_up_back_pressure
 
 NAME = "Vessel relief"
