@@ -78,8 +78,8 @@ def relief_inlet_loss(result, prefix, name, *, state, rated_flow_kg_h, set_press
 
     Darcy–Weisbach with the Colebrook friction factor, the fluid at its relieving state throughout the short inlet
     pipe (schedule 40, commercial steel), or a two-phase mixture's homogeneous flow by the omega equation; a notice
-    of the rule when the pipe is not given. The pipe's bore is held
-    against the valve's: a pipe narrower than the smallest API 526 inlet of the selected orifice fails.
+    of the rule when the pipe is not given. The pipe's bore is held against the valve's: a pipe narrower than the
+    smallest API 526 inlet of the selected orifice fails.
 
     Parameters
     ----------
@@ -119,10 +119,9 @@ def relief_inlet_loss(result, prefix, name, *, state, rated_flow_kg_h, set_press
         result.assumptions.append(f"{name}: no loss coefficients given for the inlet pipe (overpressure."
                                   "inlet_fittings_k): its entrance and fittings are not counted (a square-edged "
                                   "entrance alone is K 0.5, common practice)")
-    result.assumptions.append(f"{name}: the inlet pipe's loss by Darcy–Weisbach at the relieving state, friction by "
-                              "Colebrook for commercial steel (roughness 0.045 mm, common practice), at the "
-                              "selected orifice's rated flow (API 520 Part II, 7.3.1); the maker's certified "
-                              "capacity, when it is larger, governs the loss")
+    result.assumptions.append(f"{name}: the inlet pipe's loss at the selected orifice's rated flow (API 520 Part II, "
+                              "7.3.1), friction by Colebrook for commercial steel (roughness 0.045 mm, common "
+                              "practice); the maker's certified capacity, when it is larger, governs the loss")
     letter = result.value(f"{prefix}_orifice")
     _inlet_bore_check(result, name, letter, size, diameter)
     result.add(f"{prefix}_inlet_rated_flow", f"{name}: rated flow through the inlet pipe ({fluid})", rated_flow_kg_h,
