@@ -130,11 +130,17 @@ def relief_inlet_loss(result, prefix, name, *, state, rated_flow_kg_h, set_press
                 "W/(rho*pi*D**2/4)", rated_flow_kg_h / 3600.0 / state.density / flow_area(diameter), "m/s",
                 W=(rated_flow_kg_h, "kg/h"), rho=(state.density, "kg/m**3"), pi=(math.pi, ""),
                 D=(diameter * 1e3, "mm"))
-    two_phase = state.dryness is not None and 0.0 < state.dryness < 1.0
-    if not two_phase and _flashes_in_pipe(state, rated_flow_kg_h, diameter, length, fittings_k or 0.0):
-        two_phase, fluid = True, f"{fluid}, flashing in the pipe"
-    drop = (_two_phase_inlet_drop if two_phase else _inlet_drop)(result, name, fluid, state, rated_flow_kg_h,
-                                                                  diameter, length, fittings_k or 0.0)
+    fittings_k = fittings_k or 0.0
+    if state.dryness is not None and 0.0 < state.dryness < 1.0:
+        drop = _two_phase_inlet_drop(result, name, fluid, state, rated_flow_kg_h, diameter, length, fittings_k)
+    else:
+        loss = line_pressure_drop(rated_flow_kg_h / 3600.0, state.density,
+                                  dynamic_viscosity(state.temperature, state.density), diameter, length, fittings_k)
+        if _flashes_in_pipe(state, loss.pressure_drop):
+            drop = _two_phase_inlet_drop(result, name, f"{fluid}, flashing in the pipe", state, rated_flow_kg_h,
+                                         diameter, length, fittings_k)
+        else:
+            drop = _inlet_drop(result, name, fluid, state, loss, diameter, length, fittings_k)
     if drop is None:
         return None
     fraction = drop / (set_pressure - atm)
@@ -169,10 +175,9 @@ def relief_inlet_loss(result, prefix, name, *, state, rated_flow_kg_h, set_press
     return fraction
 
 
-def _inlet_drop(result, name, fluid, state, rated_flow_kg_h, diameter, length, fittings_k):
-    """Pa lost along the inlet pipe by a single-phase fluid (Darcy–Weisbach at the relieving state), as a step."""
-    loss = line_pressure_drop(rated_flow_kg_h / 3600.0, state.density,
-                              dynamic_viscosity(state.temperature, state.density), diameter, length, fittings_k)
+def _inlet_drop(result, name, fluid, state, loss, diameter, length, fittings_k):
+    """Pa lost along the inlet pipe by a single-phase fluid (``loss``: Darcy–Weisbach at the relieving state), as a
+    step."""
     result.work(f"{name}: inlet pressure loss at the rated flow ({fluid})",
                 "Δp = (f·L/D + ΣK)·ρ·v²/2  at the rated flow (Darcy–Weisbach, Colebrook friction factor)",
                 "(f*L/D + K)*rho*v*v/2", loss.pressure_drop / 1e5, "bar",
@@ -181,14 +186,12 @@ def _inlet_drop(result, name, fluid, state, rated_flow_kg_h, diameter, length, f
     return loss.pressure_drop
 
 
-def _flashes_in_pipe(state, rated_flow_kg_h, diameter, length, fittings_k):
-    """A liquid whose Darcy–Weisbach loss along the pipe would take it below its saturation pressure: it flashes
-    there, and its loss is the flashing flow's (a subcooled liquid close to saturation)."""
+def _flashes_in_pipe(state, darcy_drop):
+    """A liquid whose Darcy–Weisbach loss along the pipe (``darcy_drop``, Pa) would take it below its saturation
+    pressure: it flashes there, and its loss is the flashing flow's (a subcooled liquid close to saturation)."""
     if state.dryness is not None or state.temperature >= saturation_temperature(state.pressure):
         return False   # wet or superheated steam
-    loss = line_pressure_drop(rated_flow_kg_h / 3600.0, state.density,
-                              dynamic_viscosity(state.temperature, state.density), diameter, length, fittings_k)
-    return state.pressure - loss.pressure_drop < saturation_pressure(state.temperature)
+    return state.pressure - darcy_drop < saturation_pressure(state.temperature)
 
 
 def _two_phase_inlet_drop(result, name, fluid, state, rated_flow_kg_h, diameter, length, fittings_k):
@@ -200,7 +203,7 @@ def _two_phase_inlet_drop(result, name, fluid, state, rated_flow_kg_h, diameter,
     p0, v0 = (saturation_pressure(state.temperature) if subcooled else state.pressure), 1.0 / state.density
     expanded = SteamState.from_ph(0.9 * p0, state.enthalpy)
     omega = pipe_omega(p0, v0, 0.9 * p0, 1.0 / expanded.density)
-    liquid = SteamState.from_p_dryness(state.pressure, 0.0)
+    liquid = state if subcooled else SteamState.from_p_dryness(state.pressure, 0.0)
     result.assumptions.append(
         f"{name}: the inlet pipe carries the rated flow as a homogeneous two-phase mixture in equilibrium (no slip)"
         + (", liquid down to its saturation pressure," if subcooled else ",")
@@ -208,7 +211,8 @@ def _two_phase_inlet_drop(result, name, fluid, state, rated_flow_kg_h, diameter,
         + ("liquid at its saturation pressure" if subcooled else "relieving state")
         + " and the mixture expanded at constant enthalpy to 90 % of that pressure (IF97; the two points of API 520 "
         "Part I annex C, along an adiabatic pipe); friction by Colebrook at the liquid-only Reynolds number "
-        "(saturated liquid at the relieving pressure: the larger friction, conservative) (Leung, 1996)")
+        + ("(the liquid as it enters" if subcooled else "(saturated liquid at the relieving pressure")
+        + ": the larger friction, conservative) (Leung, 1996)")
     result.work(f"{name}: omega parameter of the inlet pipe (IF97, constant enthalpy)",
                 "ω_in = (v_9/v0 − 1)/(p0/p_9 − 1),  p_9 = 0.9·p0  [omega equation through the two points]",
                 "(v_9/v0 - 1)/(p0/p_9 - 1)", omega, v_9=(1.0 / expanded.density, "m**3/kg"), v0=(v0, "m**3/kg"),
