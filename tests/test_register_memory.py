@@ -169,3 +169,30 @@ def test_a_record_not_remembered_is_still_checked_against_the_schema(site):
     rows = {row.json: row for row in build_register(site, remember=True)}
     row = rows["LD-02_revB.json"]
     assert row.verification.startswith("not a readable record") and not row.valid
+
+
+def test_forked_workers_remember_what_they_verified(site, monkeypatch, verifications):
+    """Workers forked by the register send what their copy of the memory learnt back with their rows: the memory
+    the parent writes holds every record, and a later run in one process recomputes none of them."""
+    import sys
+
+    from steamcalc.review import forked
+
+    if sys.platform == "win32":
+        pytest.skip("forked workers are a POSIX facility")
+    monkeypatch.setattr(forked, "SMALLEST_SHARE", 1)   # the demo site's few records shared over two workers
+    alone = _rows(build_register(site, remember=False))
+    n = len(verifications)
+    # The issuing fixture's progress bar leaves a monitor thread behind, which would keep the register in one process.
+    monkeypatch.setattr(forked.threading, "active_count", lambda: 1)
+    assert forked.usable_workers(n - 1, 2) == 2
+    shared = _rows(build_register(site, remember=True, workers=2))
+    memory = json.loads((register_memory.cache_folder() / register_memory.FILE_NAME).read_text("utf-8"))
+    assert len(memory["records"]) == n == len(alone)
+    assert all(entry.get("status") and set(entry.get("reports", {})) == {".html", ".md"}
+               for entry in memory["records"].values())
+    assert n < len(verifications) < 2 * n   # the parent made its share; the workers made theirs out of its sight
+    before = len(verifications)
+    again = _rows(build_register(site, remember=True))
+    assert len(verifications) == before   # nothing recomputed: every record remembered, by parent and workers
+    assert alone == shared == again

@@ -136,6 +136,22 @@ class RegisterMemory:
         self._entries.setdefault(key, {}).setdefault("reports", {})[suffix] = text_digest(text)
         self._changed = True
 
+    def learnt(self, record, intact):
+        """``(key, entry)``: what the memory holds of this record now, for a forked worker to send to the parent
+        (:meth:`absorb`), or None when it holds nothing of it."""
+        key = self._key(record, intact)
+        entry = self._entries.get(key)
+        return (key, entry) if isinstance(entry, dict) else None
+
+    def absorb(self, learnt):
+        """Take what a forked worker's copy of this memory learnt of one record (:meth:`learnt`)."""
+        if learnt is None:
+            return
+        key, entry = learnt
+        if self._entries.get(key) != entry:
+            self._entries[key] = entry
+            self._changed = True
+
     def save(self):
         """Write the memory when it learnt something (through a temporary file and a rename); a memory that cannot
         be written is left as it was."""

@@ -526,7 +526,7 @@ def build_register(folder, trusted_dir=None, recompute=True, remember=False, wor
     def row(i):
         record, whole = read(files[i])
         if whole is None:
-            return record, None
+            return record, None, None
         case, case_warning = case_for_record(record, cases.get(record["id"], []))
         if case is not None and case.site_path is not None:
             site_path = case.site_path
@@ -535,20 +535,24 @@ def build_register(folder, trusted_dir=None, recompute=True, remember=False, wor
         answer = register_row(files[i], record, trusted=trusted, case=case, site_path=site_path,
                               later_revision=None, recompute=recompute, case_warning=case_warning, memory=memory,
                               intact=whole, site_record=site_record)
-        return answer, whole
+        # What a forked copy's memory learnt of this record goes back with the row; the parent keeps it.
+        return answer, whole, None if memory is None else memory.learnt(record, whole)
 
     with remembering_states():
-        # Records are read and recomputed in forked copies of this process when it may (the memory is kept in
-        # one process, so a register that remembers stays in it). The first is done here first, so that the
-        # copies start with what it imported (the property engine, the reports' templates) instead of each
-        # importing its own.
-        shared = workers > 1 and memory is None and recompute and len(files) > 1
+        # Records are read and recomputed in forked copies of this process when it may; each copy starts with the
+        # memory as it was read, and what it learns comes back with its rows. The first is done here first, so
+        # that the copies start with what it imported (the property engine, the reports' templates) instead of
+        # each importing its own.
+        shared = workers > 1 and recompute and len(files) > 1
         answers = [row(0)] if shared else []
         done = len(answers)
         count = usable_workers(len(files) - done, workers) if shared else 1
         answers += map_forked(lambda k: row(done + k), len(files) - done, count)
-    readable = [(answer, whole) for answer, whole in answers if whole is not None]
-    unreadable = [answer for answer, whole in answers if whole is None]
+    if memory is not None:
+        for _, _, learnt in answers:
+            memory.absorb(learnt)
+    readable = [(answer, whole) for answer, whole, _ in answers if whole is not None]
+    unreadable = [answer for answer, whole, _ in answers if whole is None]
     # An edited file (its digest broken) supersedes no intact revision; an id with none intact keeps its
     # highest revision as the latest. (Either digest broken: the record is edited.)
     with_intact = {answer.id for answer, whole in readable if whole}
