@@ -223,7 +223,7 @@ def discharge_section(result, prefix, name, *, valve_type, set_pressure, atm, ra
     force, p_exit = reaction_force(rated_flow_kg_h, t_force, kappa, exit_area, atm)
     result.work(f"{name}: reaction force at the discharge",
                 "F = 129.41·W·√(kT/((k+1)M)) + 10⁻³·A_o·P2,  T = T1 + 273.15  "
-                "[API 520 Part II, 4.4.1.1, eq. (1); "
+                "[API 520 Part II, open-discharge reaction force; "
                 "N, kg/s, °C, kg/kmol, mm², kPa(g)]",
                 "129.41*W*sqrt(k*(T1 + 273.15)/((k + 1)*M)) + 0.001*A_o*P2", force, "N", units_fixed=True,
                 W=(flow, "kg/s"), k=(kappa, ""), T1=(t_force - 273.15, "degC"),
@@ -334,7 +334,7 @@ def two_phase_discharge_section(result, prefix, name, *, valve_type, set_pressur
     area = flow_area(diameter)
     force = two_phase_reaction_force(line, diameter, atm)
     result.work(f"{name}: reaction force at the discharge (two-phase)",
-                "F = G²·v_e·A + (p_e − p_atm)·A  [momentum and pressure at the open exit, API 520 Part II, 4.4.1.1]",
+                "F = G²·v_e·A + (p_e − p_atm)·A  [momentum and pressure at the open exit, API 520 Part II, open-discharge reaction force]",
                 "G**2*v_e*A + (p_e - p_atm)*A", force, "N", G=(line.mass_flux, "kg/(m**2*s)"),
                 v_e=(line.exit_volume, "m**3/kg"), A=(area * 1e6, "mm**2"), p_e=(line.exit_pressure / 1e5, "bar"),
                 p_atm=(atm / 1e5, "bar"))

@@ -1,5 +1,5 @@
 """The relief valve's inlet pipe, for the flash vessel's and the heater's relief valves: its loss at the valve's rated
-flow against 3 % of the gauge set pressure (API 520 Part II, 7.3.1), and its bore against the valve's inlet.
+flow against 3 % of the gauge set pressure (API 520 Part II, inlet piping), and its bore against the valve's inlet.
 
 Steam and liquid by Darcy–Weisbach at the relieving state; a flashing two-phase mixture, or a liquid that would fall
 below its saturation pressure along the pipe, by homogeneous flow and the omega equation of state
@@ -24,7 +24,7 @@ def inlet_loss_notice(result, name, why="the relief valve's inlet pipe is not am
     """The relief valve's inlet pressure loss, when it is not computed: a notice of the rule, saying why."""
     result.notice(f"{name}: relief inlet pressure loss", Phrase.of(
         f"not assessed: {why}; its pressure loss at the valve's "
-        "rated flow must stay below {limit:g} of the gauge set pressure (API 520 Part II, 7.3.1), for the relief "
+        "rated flow must stay below {limit:g} of the gauge set pressure (API 520 Part II, inlet piping), for the relief "
         "system's designer to check", limit=(100.0 * INLET_LOSS_LIMIT, "percent")), act=True)
 
 
@@ -91,7 +91,7 @@ def relief_inlet_loss(result, prefix, name, *, state, rated_flow_kg_h, set_press
         The fluid entering the pipe at the relieving pressure: steam or liquid water (Darcy–Weisbach), or a
         flashing two-phase mixture (homogeneous flow, omega equation: :func:`two_phase_inlet_pressure`).
     rated_flow_kg_h : float
-        The selected orifice's rated flow, kg/h (API 520 Part II, 7.3.1: the loss at the rated capacity).
+        The selected orifice's rated flow, kg/h (API 520 Part II, inlet piping: the loss at the rated capacity).
     set_pressure, atm : float
         Set pressure and the site's atmosphere, Pa (absolute).
     size : str or None
@@ -107,8 +107,9 @@ def relief_inlet_loss(result, prefix, name, *, state, rated_flow_kg_h, set_press
 
     References
     ----------
-    API 520 Part II (2015), 7.3.1: the inlet pressure loss at the rated capacity within 3 % of the set pressure
-    (gauge). API 526 for the orifice letters. Colebrook (1939) with Darcy–Weisbach for the line; IAPWS R12-08
+    API 520 Part II, inlet piping: the non-recoverable inlet pressure loss at the rated capacity within 3 % of the set
+    pressure (gauge), as quoted in the Valve Selection Handbook (Zappe), p. 271 (the clause, 7.3.1 of the 2015
+    edition, from memory). API 526 for the orifice letters. Colebrook (1939) with Darcy–Weisbach for the line; IAPWS R12-08
     for the viscosity; API 520 Part I annex C and Leung (1996) for a two-phase mixture.
     """
     if size is None or length is None:
@@ -120,7 +121,7 @@ def relief_inlet_loss(result, prefix, name, *, state, rated_flow_kg_h, set_press
                                   "inlet_fittings_k): its entrance and fittings are not counted (a square-edged "
                                   "entrance alone is K 0.5, common practice)")
     result.assumptions.append(f"{name}: the inlet pipe's loss at the selected orifice's rated flow (API 520 Part II, "
-                              "7.3.1), friction by Colebrook for commercial steel (roughness 0.045 mm, common "
+                              "inlet piping), friction by Colebrook for commercial steel (roughness 0.045 mm, common "
                               "practice); the maker's certified capacity, when it is larger, governs the loss")
     letter = result.value(f"{prefix}_orifice")
     _inlet_bore_check(result, name, letter, size, diameter)
@@ -161,16 +162,16 @@ def relief_inlet_loss(result, prefix, name, *, state, rated_flow_kg_h, set_press
         f"{name}: relief inlet pressure loss", share, [("<=", limit, "warn"), ("<", (100.0, "percent"), "fail")],
         lambda status: Phrase.of(
             f"{{loss:{shown}}} of the gauge set pressure at the rated flow, within {{limit:g}} (API 520 Part II, "
-            "7.3.1)" if status == "pass" else
+            "inlet piping)" if status == "pass" else
             f"{{loss:{shown}}} of the gauge set pressure at the rated flow, above {{limit:g}} (API 520 Part II, "
-            f"7.3.1){compressible}: the valve may chatter, and above its blowdown (the maker's figure, often 7 % "
+            f"inlet piping){compressible}: the valve may chatter, and above its blowdown (the maker's figure, often 7 % "
             "to 10 %) it will: enlarge or shorten the inlet pipe, or have the relief system's designer justify it "
             "with the maker" if status == "warn" else
             f"{{loss:{shown}}} of the gauge set pressure at the rated flow, far above {{limit:g}} (API 520 Part II, "
-            f"7.3.1){compressible}: the inlet pipe alone would take the whole set pressure, so the valve cannot pass "
+            f"inlet piping){compressible}: the inlet pipe alone would take the whole set pressure, so the valve cannot pass "
             "its rated flow; enlarge the inlet pipe (at least the valve's inlet size) or shorten it",
             loss=share, limit=limit),
-        source="API 520 Part II, 7.3.1; at 100 % of the gauge set pressure no pressure is left to drive the flow "
+        source="API 520 Part II, inlet piping; at 100 % of the gauge set pressure no pressure is left to drive the flow "
                "(common practice)")
     return fraction
 

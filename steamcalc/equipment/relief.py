@@ -34,9 +34,9 @@ MM2_PER_IN2 = 645.16
 #: agrees); used as the open discharge when none is given.
 API526_OUTLET_NPS = {"D": 2.0, "E": 2.0, "F": 2.0, "G": 2.5, "H": 3.0, "J": 3.0, "K": 4.0, "L": 4.0,
                      "M": 6.0, "N": 6.0, "P": 6.0, "Q": 8.0, "R": 8.0, "T": 10.0}
-#: Smallest API 526 inlet size of each orifice letter, inch, from the same combinations (1D2, 1.5F2, 3K4, 6Q8, ...;
-#: recalled from memory, not confirmed against the standard's text): an inlet pipe narrower than it is narrower
-#: than any API 526 valve of that orifice.
+#: Smallest API 526 inlet size of each orifice letter, inch, from the same Table 5-1 (1D2, 1.5F2, 3K4, 6Q8, ...: every
+#: letter's smallest inlet agrees; the table names no edition of API 526): an inlet pipe narrower than it is
+#: narrower than any API 526 valve of that orifice.
 API526_INLET_NPS = {"D": 1.0, "E": 1.0, "F": 1.5, "G": 1.5, "H": 1.5, "J": 2.0, "K": 3.0, "L": 3.0,
                     "M": 4.0, "N": 4.0, "P": 4.0, "Q": 6.0, "R": 6.0, "T": 8.0}
 #: Effective coefficient of discharge for preliminary sizing, API 520 Part I (10th ed.) 5.2.
@@ -45,7 +45,8 @@ VALVE_TYPES = ("conventional", "balanced-bellows", "pilot")
 #: Built-up back pressure a conventional valve tolerates, fraction of gauge set pressure at 10 %
 #: overpressure (API 520 Part I, 5.3.3).
 CONVENTIONAL_BACK_PRESSURE_LIMIT = 0.10
-#: Inlet loss limit, fraction of gauge set pressure (API 520 Part II, 7.3.1: the 3 % rule).
+#: Inlet loss limit, fraction of gauge set pressure: the 3 % rule of API 520 Part II for inlet piping, as quoted in
+#: the Valve Selection Handbook (Zappe), p. 271 (the clause, 7.3.1 of the 2015 edition, from memory).
 INLET_LOSS_LIMIT = 0.03
 MOLAR_MASS_WATER = 18.015268  # kg/kmol, IAPWS R6-95
 R_UNIVERSAL = 8314.462618  # J/(kmol K)
@@ -394,7 +395,8 @@ def reaction_force(mass_flow_kg_h, relieving_temperature, kappa, outlet_area_mm2
 
     References
     ----------
-    API Standard 520 Part II, Installation, 7th ed. (2020), 4.4.1.1, equation (1).
+    API Standard 520 Part II, Installation, 7th ed. (2020): the reaction force of an open discharge (clause
+    4.4.1.1, equation (1), from memory).
 
     Examples
     --------

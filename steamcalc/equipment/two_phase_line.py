@@ -252,8 +252,8 @@ def two_phase_reaction_force(line, inner_diameter, atmospheric_pressure):
 
     References
     ----------
-    API Standard 520 Part II, 7th ed. (2020), 4.4.1.1 (the reaction force of an open discharge: momentum
-    plus pressure at the exit; its equation (1) is the ideal-gas form of the same balance).
+    API Standard 520 Part II, 7th ed. (2020): the reaction force of an open discharge (clause 4.4.1.1, from memory):
+    momentum plus pressure at the exit; its equation (1) is the ideal-gas form of the same balance.
 
     Examples
     --------

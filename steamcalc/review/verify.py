@@ -27,6 +27,7 @@ from ..records.record import canonical_json, digests_hold as both_digests_hold, 
 from ..runs.runner import recompute, recompute_uncertainty
 from ..runs.uncertainty import add_sample_check
 from ..units.amounts import Amount, Limit, text_of, verdict
+from .rewordings import as_worded_now, rewording_note
 
 #: Relative tolerance on recomputed numbers; IF97 evaluations are deterministic, so
 #: this only absorbs floating-point differences between platforms and library builds.
@@ -204,6 +205,9 @@ def verify_record(record, engine=REFERENCE_ENGINE, path=None, digests_hold=False
     now = provenance()
     then = record.get("provenance", {})
     result.version_changes = {k: (then.get(k), v) for k, v in now.items() if then.get(k) != v}
+    # A statement a later release words otherwise (listed in .rewordings) is compared in today's words, and said.
+    record, reworded = as_worded_now(record)
+    result.notes.extend(rewording_note(r) for r in reworded)
     try:
         fresh = recompute(record, engine=engine)
     except (SteamcalcError, KeyError, TypeError, ValueError) as exc:

@@ -172,7 +172,7 @@ def liquid_discharge_section(result, prefix, name, *, valve_type, set_pressure, 
     back_pressure_check(result, name, valve_type, outlet, set_pressure, atm)
     force = flux * flux * area / pipe.density
     result.work(f"{name}: reaction force at the discharge (liquid)",
-                "F = G²·A/ρ  [momentum at the open exit, API 520 Part II, 4.4.1.1]", "G**2*A/rho", force, "N",
+                "F = G²·A/ρ  [momentum at the open exit, API 520 Part II, open-discharge reaction force]", "G**2*A/rho", force, "N",
                 G=(flux, "kg/(m**2*s)"), A=(area * 1e6, "mm**2"), rho=(pipe.density, "kg/m**3"))
     result.add(f"{prefix}_reaction_force", f"{name}: reaction force at the open discharge", force, "N")
     return outlet

@@ -250,6 +250,6 @@ def _inlet_loss(inputs, relieving, rated_flow, p_set, atm, schedule, result):
         "Relief inlet loss", loss_amount, [("<=", limit, "warn")],
         lambda status: Phrase.of(
             "{loss:.1f} of the gauge set pressure, within {limit:g} (API 520 Part II)" if status == "pass" else
-            "{loss:.1f} of the gauge set pressure, above {limit:g} (API 520 Part II, 7.3.1): the valve may chatter; "
+            "{loss:.1f} of the gauge set pressure, above {limit:g} (API 520 Part II, inlet piping): the valve may chatter; "
             "enlarge or shorten the inlet line", loss=loss_amount, limit=limit),
         source="API 520 Part II")

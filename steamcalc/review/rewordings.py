@@ -1,0 +1,127 @@
+"""Statements a release words otherwise than the releases before it, so that their records keep verifying.
+
+A record's statements (check details and their phrases, step equations, warnings, assumptions) are compared
+with what the calculation issues today. When a release rewords a statement without changing any number or
+verdict — a source cited more exactly, say — a record of an earlier release would otherwise read as edited.
+Each such change is listed here, exactly: the words as the earlier releases wrote them, the words now, and the
+release that changed them. ``verify`` compares such a record as if worded now and lists each rewording it
+applied among its notes, naming the release; any other difference is still a difference.
+
+Only a listed text, and only in a record issued before the release that changed it, is taken as reworded; the
+record's digests are checked on the record as it stands, before any of this.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+
+@dataclass(frozen=True)
+class Rewording:
+    """One statement's words, changed by a release.
+
+    Parameters
+    ----------
+    since : str
+        The steamcalc release that writes ``now`` (records of earlier releases wrote ``before``).
+    before : str
+        The exact text earlier releases wrote (a part of a statement).
+    now : str
+        The exact text this release writes in its place.
+    why : str
+        What changed, for the note ``verify`` prints.
+    """
+
+    since: str
+    before: str
+    now: str
+    why: str
+
+
+#: Every rewording since release 0.3.0, oldest first.
+REWORDINGS = (
+    Rewording("0.3.1", "API 520 Part II, 7.3.1", "API 520 Part II, inlet piping",
+              "the inlet-loss rule cited by its subject: its clause number was not confirmed against the "
+              "standard's text"),
+    Rewording("0.3.1", "API 520 Part II, 4.4.1.1, eq. (1)", "API 520 Part II, open-discharge reaction force",
+              "the reaction-force equation cited by its subject: its clause number was not confirmed against the "
+              "standard's text"),
+    Rewording("0.3.1", "API 520 Part II, 4.4.1.1", "API 520 Part II, open-discharge reaction force",
+              "the reaction-force equation cited by its subject: its clause number was not confirmed against the "
+              "standard's text"),
+)
+
+#: The parts of a record that hold the calculation's statements (never the engineer's own words or inputs).
+STATEMENT_SECTIONS = ("steps", "checks", "warnings", "assumptions", "references", "cautions")
+
+
+def release(version):
+    """A release's number as a tuple that orders releases (``"0.3.1"`` -> ``(0, 3, 1)``); None when unreadable.
+
+    Examples
+    --------
+    >>> release("0.3.1") > release("0.3.0"), release("0.10.0") > release("0.9.2"), release("dev")
+    (True, True, None)
+    """
+    try:
+        return tuple(int(part) for part in str(version).split("."))
+    except ValueError:
+        return None
+
+
+def _worded_now(value, applied, rewordings):
+    if isinstance(value, str):
+        for rewording in rewordings:
+            if rewording.before in value:
+                value = value.replace(rewording.before, rewording.now)
+                applied.setdefault(rewording, None)
+        return value
+    if isinstance(value, list):
+        return [_worded_now(v, applied, rewordings) for v in value]
+    if isinstance(value, dict):
+        return {k: _worded_now(v, applied, rewordings) for k, v in value.items()}
+    return value
+
+
+def as_worded_now(record):
+    """The record with its statements in this release's words, and the rewordings that took.
+
+    Parameters
+    ----------
+    record : dict
+        A record as read.
+
+    Returns
+    -------
+    (dict, list of Rewording)
+        The record itself and an empty list when no rewording applies (a record of this release, or one whose
+        statements hold none of the earlier words); else a copy whose statement sections are reworded.
+
+    Examples
+    --------
+    >>> old = {"provenance": {"steamcalc": "0.3.0"}, "warnings": ["loss 4 % (API 520 Part II, 7.3.1)"]}
+    >>> new, applied = as_worded_now(old)
+    >>> new["warnings"][0], [r.since for r in applied]
+    ('loss 4 % (API 520 Part II, inlet piping)', ['0.3.1'])
+    >>> as_worded_now(dict(old, provenance={"steamcalc": "0.3.1"}))[1]
+    []
+    """
+    issued_by = release((record.get("provenance") or {}).get("steamcalc")) if isinstance(
+        record.get("provenance"), dict) else None
+    rewordings = [r for r in REWORDINGS if issued_by is None or issued_by < release(r.since)]
+    if not rewordings:
+        return record, []
+    applied = {}
+    copy = dict(record)
+    for section in STATEMENT_SECTIONS:
+        if section in copy:
+            copy[section] = _worded_now(copy[section], applied, rewordings)
+    if not applied:
+        return record, []
+    return copy, list(applied)
+
+
+def rewording_note(rewording):
+    """What ``verify`` notes of a rewording it applied."""
+    return (f"worded otherwise since steamcalc {rewording.since} ({rewording.why}): {rewording.before!r} is now "
+            f"{rewording.now!r}; the numbers and verdicts are compared as before")
