@@ -209,14 +209,18 @@ class Inputs:
         key="expansion_coefficient")
     relief_valve_type: str | None = input_field(
         "text", "Tube-rupture relief valve type", "conventional, balanced-bellows or pilot; conventional when not "
-        "given.", example="conventional", section="overpressure", key="valve_type")
+        "given. The tube-rupture valve is on the lower-pressure side: the process side's, or the steam side's when "
+        "the process side has the higher design pressure.", example="conventional", section="overpressure",
+        key="valve_type")
     relief_inlet_size: str | None = input_field(
-        "nominal_size", "Tube-rupture relief inlet pipe size", "Nominal size of the pipe from the process side to the "
-        "tube-rupture relief valve (schedule 40); with its length, the inlet pressure loss is checked against 3 % of "
+        "nominal_size", "Tube-rupture relief inlet pipe size", "Nominal size of the pipe to the tube-rupture relief "
+        "valve from the side it protects (the process side, or the steam side when the process side has the higher "
+        "design pressure; schedule 40); with its length, the inlet pressure loss is checked against 3 % of "
         "the set pressure.", example="DN80", section="overpressure", key="inlet_size")
     relief_inlet_length: float | None = input_field(
-        "length", "Tube-rupture relief inlet pipe length", "Straight length of the pipe from the process side to the "
-        "tube-rupture relief valve.", example="0.5 m", section="overpressure", positive=True, key="inlet_length")
+        "length", "Tube-rupture relief inlet pipe length", "Straight length of the pipe to the tube-rupture relief "
+        "valve from the side it protects.", example="0.5 m", section="overpressure", positive=True,
+        key="inlet_length")
     relief_inlet_fittings_k: float | None = input_field(
         "number", "Tube-rupture relief inlet fittings K", "Sum of the loss coefficients of that inlet pipe (entry, "
         "fittings), above zero; none counted when not given.", example="0.5", section="overpressure",

@@ -61,24 +61,94 @@ def check_discharge_inputs(inputs):
 
 
 def tube_rupture_discharge(inputs, result, name, *, atm, set_pressure, orifice_area, steam, steam_flow, steam_area,
-                           liquid, liquid_flow, liquid_area):
-    """The tube-rupture relief valve's outlet pipe: the steam and the displaced liquid, each at the selected
-    orifice's rated flow for it (flows kg/h, areas mm²). Returns the two built-up back pressures (Pa, steam's
+                           liquid, liquid_flow, liquid_area, prefix="tube_rupture",
+                           fluids=("steam", "displaced liquid")):
+    """The tube-rupture relief valve's outlet pipe: the steam and the liquid, each at the selected orifice's rated
+    flow for it (flows kg/h, areas mm²). ``prefix`` and ``fluids`` (the steam's and the liquid's words) name the
+    valve's results and steps: the forward valve's by default, the reverse valve's
+    (:mod:`steamcalc.calcs.exchanger.reverse_valve`) its own. Returns the two built-up back pressures (Pa, steam's
     first), or None when the pipe is not given or cannot pass a flow."""
     if discharge_diameter(result, name, inputs.discharge_size, inputs.discharge_length, None, TUBE_KEYS) is None:
         return None
     pipe = dict(valve_type=inputs.relief_valve_type or "conventional", set_pressure=set_pressure, atm=atm,
                 size=inputs.discharge_size, length=inputs.discharge_length, fittings_k=inputs.discharge_fittings_k,
                 keys=TUBE_KEYS)
-    steam_back = discharge_section(result, "tube_rupture_steam", f"{name}, steam",
+    steam_back = discharge_section(result, f"{prefix}_steam", f"{name}, {fluids[0]}",
                                    rated_flow_kg_h=steam_flow * orifice_area / steam_area, enthalpy=steam.enthalpy,
                                    relieving_temperature=steam.temperature, **pipe)
-    liquid_back = liquid_discharge_section(result, "tube_rupture_liquid", f"{name}, displaced liquid",
+    liquid_back = liquid_discharge_section(result, f"{prefix}_liquid", f"{name}, {fluids[1]}",
                                            rated_flow_kg_h=liquid_flow * orifice_area / liquid_area, liquid=liquid,
                                            **pipe)
     if steam_back is None or liquid_back is None:
         return None
     return steam_back, liquid_back
+
+
+def discharge_pipe_not_assessed(result, name, inputs, why):
+    """A notice that the tube-rupture discharge pipe given is not assessed, and why (nothing when none was given)."""
+    if inputs.discharge_size is not None or inputs.discharge_length is not None:
+        result.notice(f"{name}: discharge pipe not assessed", "the tube-rupture discharge pipe given "
+                      f"(overpressure.discharge_size, discharge_length) is not assessed: {why}")
+
+
+#: The conditions the liquid equation's step states (the reverse valve's first pass at the atmosphere keeps the
+#: words of the records that came before its back pressure).
+LIQUID_AREA_CONDITIONS = ", Kw = Kv = 1, P2 the back pressure at the valve outlet"
+
+
+def liquid_relief_area(result, name, *, valve_type, set_pressure, atm, relieving_pressure, density, flow_kg_h, back,
+                       fluid="displaced liquid", conditions=LIQUID_AREA_CONDITIONS):
+    """Required area of a liquid relief by API 520 Part I's liquid equation, as a step.
+
+    .. math:: A = \\frac{11.78\\,Q}{K_d K_w K_v}\\sqrt{\\frac{G_l}{P_1 - P_2}}
+
+    (mm², Q in L/min, P in kPa), Kv = 1 (a liquid of water's viscosity), Kw 1 for a conventional or pilot valve and
+    of figure 32 for a balanced bellows (``fluids.safety_valve.API520_W``).
+
+    Parameters
+    ----------
+    name, fluid : str
+        The step's name and the liquid in words (``"<name>: required area, <fluid>"``).
+    valve_type : str
+        ``conventional``, ``balanced-bellows`` or ``pilot``.
+    set_pressure, atm, relieving_pressure, back : float
+        Pa (absolute): the set pressure, the atmosphere, the relieving pressure P1 and the back pressure P2.
+    density : float
+        The liquid's density at the valve, kg/m³.
+    flow_kg_h : float
+        The liquid's flow, kg/h.
+    conditions : str
+        The conditions written after the equation in the step (with Kw = 1).
+
+    Returns
+    -------
+    tuple of float
+        ``(area mm², Kw)``.
+
+    References
+    ----------
+    API Standard 520 Part I (2020), liquid sizing equation (Kd 0.65 for preliminary sizing) and figure 32.
+    """
+    from fluids.safety_valve import API520_A_l, API520_W
+
+    kw = 1.0
+    if valve_type == "balanced-bellows":
+        # fluids reads figure 32 with the standard atmosphere: give it the same gauge pressures.
+        kw = float(API520_W(101325.0 + set_pressure - atm, 101325.0 + back - atm))
+    area = API520_A_l(flow_kg_h / 3600.0, density, relieving_pressure, back, 0.1, Kd=KD_LIQUID, Kw=kw, Kv=1.0) * 1e6
+    operands = dict(Q=(flow_kg_h / density / 60.0 * 1e3, "L/min"), Kd=(KD_LIQUID, ""), G_l=(density / 999.0, ""),
+                    P1=(relieving_pressure / 1e3, "kPa"), P2=(back / 1e3, "kPa"))
+    if kw == 1.0:
+        result.work(f"{name}: required area, {fluid}",
+                    f"A = 11.78·Q/(Kd·Kw·Kv)·√(G_l/(P1 − P2)){conditions}  [API 520 Part I liquid equation; mm², "
+                    "L/min, kPa]", "11.78*Q/Kd*sqrt(G_l/(P1 - P2))", area, "mm**2", units_fixed=True, **operands)
+    else:
+        result.work(f"{name}: required area, {fluid}",
+                    "A = 11.78·Q/(Kd·Kw·Kv)·√(G_l/(P1 − P2)), Kv = 1, Kw of the balanced bellows (API 520 Part I "
+                    "figure 32), P2 the back pressure at the valve outlet  [API 520 Part I liquid equation; mm², "
+                    "L/min, kPa]", "11.78*Q/(Kd*Kw)*sqrt(G_l/(P1 - P2))", area, "mm**2", units_fixed=True, Kw=(kw, ""),
+                    **operands)
+    return area, kw
 
 
 def thermal_relief_capacity(inputs, result, name, *, atm):

@@ -35,8 +35,8 @@ from ..overpressure import CAUTIONS, discharge_section, relieving_pressure, sele
 from ..relief_inlet import check_inlet_pipe_inputs, inlet_pipe_not_assessed, relief_inlet_loss
 from ..relief_back_pressure import Sizing, balanced_kb, critical_flow_check, size_at_built_up_back_pressure
 from .discharge import (
-    THERMAL_KEYS, THERMAL_ORIFICE, check_discharge_inputs, thermal_relief_capacity, thermal_relief_discharge,
-    tube_rupture_discharge,
+    THERMAL_KEYS, THERMAL_ORIFICE, check_discharge_inputs, discharge_pipe_not_assessed, liquid_relief_area,
+    thermal_relief_capacity, thermal_relief_discharge, tube_rupture_discharge,
 )
 from .reverse_rupture import reverse_rupture
 
@@ -48,8 +48,6 @@ PREFIX = "tube_rupture"
 RUPTURE_BASES = ("test pressure", "10/13")
 #: Hydrostatic test pressure over design pressure, ASME BPVC VIII-1 UG-99(b) (stress ratio taken as 1).
 TEST_PRESSURE_RATIO = 1.3
-#: Effective coefficient of discharge for preliminary liquid relief sizing, API 520 Part I (liquid equation).
-KD_LIQUID = 0.65
 #: The usual smallest thermal relief valve (common practice); its capacity is checked against the expansion flow.
 THERMAL_MINIMUM_SIZE = "NPS 3/4 × NPS 1 (DN20 × DN25)"
 
@@ -125,9 +123,9 @@ def add_overpressure(inputs, steam_side_heat, process_pressure, site, result):
 
 def _tube_rupture(inputs, atm, result):
     high, low = inputs.steam_side_design_pressure, inputs.process_side_design_pressure
-    if low > high:
-        # Process liquid into the steam space: the steam side's relief case.
-        reverse_rupture(inputs, atm, result)
+    # Process liquid into the steam space: the steam side's relief case. Its valve, when it needs one, is the
+    # heater's tube-rupture valve, and the pipes given are its own.
+    reverse_valve = low > high and reverse_rupture(inputs, atm, result)
     basis = inputs.rupture_basis or "test pressure"
     # Compared as absolute pressures: the codes' fractions apply to gauge pressures, so each is taken of the
     # pressure above the atmosphere and the atmosphere added back.
@@ -163,12 +161,10 @@ def _tube_rupture(inputs, atm, result):
             "comparison does not cover (common practice: the engineer of record judges it for long tubes, high "
             "pressure differences and stiff liquid systems)", low=quantity, limit=limit))
         result.add(f"{PREFIX}_relief_needed", f"{NAME}: relief device needed", "no")
-        if inputs.discharge_size is not None or inputs.discharge_length is not None:
-            result.notice(f"{NAME}: discharge pipe not assessed", "the tube-rupture discharge pipe given "
-                          "(overpressure.discharge_size, discharge_length) is not assessed: no relief device is "
-                          "needed for a ruptured tube here")
-        inlet_pipe_not_assessed(result, NAME, inputs.relief_inlet_size,
-                                "no relief device is needed for a ruptured tube here")
+        if not reverse_valve:
+            discharge_pipe_not_assessed(result, NAME, inputs, "no relief device is needed for a ruptured tube here")
+            inlet_pipe_not_assessed(result, NAME, inputs.relief_inlet_size,
+                                    "no relief device is needed for a ruptured tube here")
         return
     result.add(f"{PREFIX}_relief_needed", f"{NAME}: relief device needed", "yes")
     result.notice(f"{NAME}: a relief case", Phrase.of(why + f" ({source})" + ": the process side is not protected "
@@ -217,8 +213,9 @@ def _tube_rupture(inputs, atm, result):
         suffix = "" if back is None else ", at the built-up back pressure"
         kb = balanced_kb(valve_type, low, None if back is None else steam_back, atm)
         area_steam, method = steam_relief_area(res, f"{NAME}, steam{suffix}", relieving, load, steam_back, kb)
-        area_liquid, kw = _liquid_area(res, f"{NAME}{suffix}", valve_type, low, atm, p_r, liquid, displaced,
-                                         liquid_back)
+        area_liquid, _ = liquid_relief_area(res, f"{NAME}{suffix}", valve_type=valve_type, set_pressure=low, atm=atm,
+                                            relieving_pressure=p_r, density=liquid.density, flow_kg_h=displaced,
+                                            back=liquid_back)
         governing, area = (("displaced liquid", area_liquid) if area_liquid > area_steam
                            else (f"steam ({method})", area_steam))
         return Sizing(area, displaced if governing == "displaced liquid" else load, governing, p_r, critical,
@@ -246,32 +243,6 @@ def _tube_rupture(inputs, atm, result):
                       fittings_k=inputs.relief_inlet_fittings_k, fluid="displaced liquid" if liquid_governs else "steam")
     built = discharge(result, result.value(f"{PREFIX}_orifice_area"), sizing)
     critical_flow_check(result, f"{NAME}, steam", sizing, None if built is None else built[0])
-
-
-def _liquid_area(result, name, valve_type, set_pressure, atm, p_r, liquid, flow_kg_h, back):
-    """Required area (mm²) of the displaced liquid by API 520 Part I's liquid equation, P2 the back pressure ``back``
-    (Pa), Kw of a balanced-bellows valve from figure 32 (``fluids.safety_valve.API520_W``); ``(area, Kw)``."""
-    from fluids.safety_valve import API520_A_l, API520_W
-
-    kw = 1.0
-    if valve_type == "balanced-bellows":
-        # fluids reads figure 32 with the standard atmosphere: give it the same gauge pressures.
-        kw = float(API520_W(101325.0 + set_pressure - atm, 101325.0 + back - atm))
-    area = API520_A_l(flow_kg_h / 3600.0, liquid.density, p_r, back, 0.1, Kd=KD_LIQUID, Kw=kw, Kv=1.0) * 1e6
-    operands = dict(Q=(flow_kg_h / liquid.density / 60.0 * 1e3, "L/min"), Kd=(KD_LIQUID, ""),
-                    G_l=(liquid.density / 999.0, ""), P1=(p_r / 1e3, "kPa"), P2=(back / 1e3, "kPa"))
-    if kw == 1.0:
-        result.work(f"{name}: required area, displaced liquid",
-                    "A = 11.78·Q/(Kd·Kw·Kv)·√(G_l/(P1 − P2)), Kw = Kv = 1, P2 the back pressure at the valve outlet  "
-                    "[API 520 Part I liquid equation; mm², L/min, kPa]",
-                    "11.78*Q/Kd*sqrt(G_l/(P1 - P2))", area, "mm**2", units_fixed=True, **operands)
-    else:
-        result.work(f"{name}: required area, displaced liquid",
-                    "A = 11.78·Q/(Kd·Kw·Kv)·√(G_l/(P1 − P2)), Kv = 1, Kw of the balanced bellows (API 520 Part I "
-                    "figure 32), P2 the back pressure at the valve outlet  [API 520 Part I liquid equation; mm², "
-                    "L/min, kPa]", "11.78*Q/(Kd*Kw)*sqrt(G_l/(P1 - P2))", area, "mm**2", units_fixed=True, Kw=(kw, ""),
-                    **operands)
-    return area, kw
 
 
 def _supply_enthalpy(inputs, pressure):

@@ -11,7 +11,9 @@ from the process side's design pressure (the highest it is designed to reach: co
 at its relieving pressure P1, no friction in the tube credited. The steam side's relief device first passes the
 steam the liquid displaces (the liquid's volume flow, no condensation credited), then the liquid (below the
 steam's saturation temperature, as the heater cannot heat it further, so it does not flash at the steam side's
-relieving pressure); both are sized and the larger governs.
+relieving pressure); both are sized and the larger governs. That valve is the heater's one tube-rupture valve
+(the forward case needs none when this one is a relief case): its type, discharge pipe and inlet pipe are the
+``[inputs.overpressure]`` ones, assessed in :mod:`steamcalc.calcs.exchanger.reverse_valve`.
 """
 
 from __future__ import annotations
@@ -20,19 +22,21 @@ import math
 
 from ...properties.steam import SteamState
 from ...units.amounts import Phrase
-from ..overpressure import relieving_pressure, select_orifice, steam_relief_area
+from ..overpressure import relieving_pressure
+from ..relief_inlet import inlet_pipe_not_assessed
+from .discharge import discharge_pipe_not_assessed
+from .reverse_valve import NAME, PREFIX, reverse_valve
 
-NAME = "Tube rupture, process side the higher"
-PREFIX = "tube_rupture_reverse"
 #: Discharge coefficient of a sharp-edged orifice for a clean tube break (common practice).
 CD_BREAK = 0.61
-#: Effective coefficient of discharge for liquid, API 520 Part I (preliminary sizing).
-KD_LIQUID = 0.65
 TEST_PRESSURE_RATIO = 1.3
 
 
 def reverse_rupture(inputs, atm, result):
-    """The steam side's relief case for a ruptured tube when the process side has the higher design pressure."""
+    """The steam side's relief case for a ruptured tube when the process side has the higher design pressure.
+
+    Returns True when the steam side needs a relief device for it (sized or not): the tube-rupture pipes given
+    are then that valve's."""
     high, low = inputs.process_side_design_pressure, inputs.steam_side_design_pressure
     basis = inputs.rupture_basis or "test pressure"
     if basis == "10/13":
@@ -53,7 +57,7 @@ def reverse_rupture(inputs, atm, result):
         result.notice(f"{NAME}: no relief case", Phrase.of(
             why + f" ({source}): a ruptured tube does not overpressure the steam side", **phrase))
         result.add(f"{PREFIX}_relief_needed", f"{NAME}: steam-side relief device needed", "no")
-        return
+        return False
     result.add(f"{PREFIX}_relief_needed", f"{NAME}: steam-side relief device needed", "yes")
     result.notice(f"{NAME}: a relief case", Phrase.of(
         why + f" ({source}): process liquid entering through a ruptured tube can overpressure the steam side; its "
@@ -61,7 +65,10 @@ def reverse_rupture(inputs, atm, result):
     if inputs.tube_inside_diameter is None:
         result.check(f"{NAME}: relief load", "warn", "not sized: give the tube inside diameter among the "
                                                        "overpressure inputs")
-        return
+        why = "the steam side's relief load is not sized (give overpressure.tube_inside_diameter)"
+        discharge_pipe_not_assessed(result, NAME, inputs, why)
+        inlet_pipe_not_assessed(result, NAME, inputs.relief_inlet_size, why)
+        return True
     p_r = relieving_pressure(low, atm, result, PREFIX, NAME)
     density = (SteamState.from_pT(high, inputs.process_outlet_temperature).density if inputs.process_cp is None
                else inputs.process_density)
@@ -80,20 +87,6 @@ def reverse_rupture(inputs, atm, result):
     displaced = load / density * vapour.density
     result.work(f"{NAME}: steam displaced by the liquid", "m_s = W·ρ_steam(P1)/ρ_l", "W*rho_s/rho_l", displaced,
                 "kg/h", W=(load, "kg/h"), rho_s=(vapour.density, "kg/m**3"), rho_l=(density, "kg/m**3"))
-    area_steam, method = steam_relief_area(result, f"{NAME}, displaced steam", vapour, displaced, atm)
-    from fluids.safety_valve import API520_A_l
-
-    # The heater cannot heat its liquid above the steam's saturation temperature, which is at most the steam
-    # side's at its relieving pressure: the liquid does not flash there, and is relieved as liquid.
-    area_liquid = API520_A_l(load / 3600.0, density, p_r, atm, 0.1, Kd=KD_LIQUID, Kw=1.0, Kv=1.0) * 1e6
-    result.work(f"{NAME}: required area, liquid",
-                "A = 11.78·Q/(Kd·Kw·Kv)·√(G_l/(P1 − P2))  [API 520 Part I liquid equation; mm², L/min, kPa]",
-                "11.78*Q/Kd*sqrt(G_l/(P1 - P2))", area_liquid, "mm**2", units_fixed=True,
-                Q=(load / density / 60.0 * 1e3, "L/min"), Kd=(KD_LIQUID, ""), G_l=(density / 999.0, ""),
-                P1=(p_r / 1e3, "kPa"), P2=(atm / 1e3, "kPa"))
-    if area_liquid > area_steam:
-        governing, area, flow = "process liquid (API 520 liquid equation)", area_liquid, load
-    else:
-        governing, area, flow = f"displaced steam ({method})", area_steam, displaced
-    result.add(f"{PREFIX}_governing_case", f"{NAME}: governing relief flow", governing)
-    select_orifice(result, PREFIX, NAME, area, flow)
+    reverse_valve(inputs, atm, result, relieving_pressure=p_r, load=load, density=density, vapour=vapour,
+                  displaced=displaced)
+    return True

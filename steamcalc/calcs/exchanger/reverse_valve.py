@@ -1,0 +1,138 @@
+"""The steam side's tube-rupture relief valve, when the process side has the higher design pressure.
+
+The load (process liquid through a ruptured tube, and the steam it displaces first) is worked in
+:mod:`steamcalc.calcs.exchanger.reverse_rupture`. This valve is the heater's one tube-rupture valve, on the
+steam side: it honours the ``[inputs.overpressure]`` inputs the process side's valve does
+(:mod:`steamcalc.calcs.exchanger.overpressure`), with the same functions:
+
+* the valve type: Kb of a balanced bellows for the steam (API 520 Part I figure 31), Kw for the liquid (figure 32),
+  at the built-up back pressure;
+* the discharge pipe: each fluid at the selected orifice's rated flow for it (the displaced steam by isothermal
+  flow, the liquid by Darcy–Weisbach, or as a flashing mixture when it boils at the atmosphere), the valve sized
+  again at the back pressures they build up
+  (:func:`steamcalc.calcs.relief_back_pressure.size_at_built_up_back_pressure`);
+* the inlet pipe: its loss at the rated flow of the governing fluid against 3 % of the gauge set pressure (API 520
+  Part II, inlet piping, as :mod:`steamcalc.calcs.relief_inlet` cites it): the process liquid subcooled at the steam
+  side's relieving pressure (the heater cannot heat it above the steam's saturation temperature there), or the
+  displaced steam, saturated at that pressure.
+
+With none of them given the record is as it was before the valve honoured them: the valve sized discharging to the
+atmosphere, and nothing said of pipes not given.
+"""
+
+from __future__ import annotations
+
+from ...equipment.relief import direct_integration_flux
+from ...properties.steam import SteamState
+from ..overpressure import select_orifice, steam_relief_area
+from ..relief_back_pressure import Sizing, balanced_kb, critical_flow_check, size_at_built_up_back_pressure
+from ..relief_inlet import inlet_pipe_not_assessed, relief_inlet_loss
+from .discharge import discharge_pipe_not_assessed, liquid_relief_area, tube_rupture_discharge
+
+NAME = "Tube rupture, process side the higher"
+PREFIX = "tube_rupture_reverse"
+#: The two fluids the valve passes, in the record's words: the steam first, then the liquid.
+FLUIDS = ("displaced steam", "process liquid")
+LIQUID_GOVERNS = "process liquid (API 520 liquid equation)"
+#: Why a pipe of a valve for a liquid other than water is not assessed.
+NOT_WATER = ("the process liquid's viscosity is known here for water only: its pipes are for the relief system's "
+             "designer")
+
+
+def reverse_valve(inputs, atm, result, *, relieving_pressure, load, density, vapour, displaced):
+    """Size the steam side's relief valve for the process liquid and the steam it displaces, with its pipes.
+
+    Parameters
+    ----------
+    inputs : steamcalc.calcs.exchanger.calculation.Inputs
+        The heater's inputs: the steam side's design pressure is the set pressure; the valve type and the pipes
+        of ``[inputs.overpressure]``.
+    atm : float
+        The site's atmosphere, Pa.
+    result : steamcalc.calcs.base.Result
+        Receives the steps, results and checks.
+    relieving_pressure : float
+        P1, Pa (absolute): the set pressure plus 10 %.
+    load, density : float
+        The process liquid through the break, kg/h, at its density, kg/m³ (as sized: at the process side's design
+        pressure).
+    vapour : steamcalc.properties.steam.SteamState
+        Saturated steam at P1; ``displaced`` its flow, kg/h.
+
+    References
+    ----------
+    API Standard 520 Part I (2020): the steam equation, direct integration (annex B), the liquid equation,
+    figures 31 and 32. API 520 Part II, inlet piping: the inlet loss within 3 % of the gauge set pressure (as
+    :func:`steamcalc.calcs.relief_inlet.relief_inlet_loss` cites it). API 526 for the orifices.
+    """
+    set_pressure, p_r = inputs.steam_side_design_pressure, relieving_pressure
+    valve_type = inputs.relief_valve_type or "conventional"
+    water = inputs.process_cp is None
+    # The liquid reaches the valve at the steam side's relieving pressure, below its saturation there.
+    liquid = (SteamState.from_pT(p_r, min(inputs.process_outlet_temperature, vapour.temperature - 1.0)) if water
+              else None)
+    critical = direct_integration_flux(vapour, atm).throat_pressure
+
+    def sizer(res, back):
+        steam_back, liquid_back = back if back is not None else (atm, atm)
+        suffix = "" if back is None else ", at the built-up back pressure"
+        kb = balanced_kb(valve_type, set_pressure, None if back is None else steam_back, atm)
+        area_steam, method = steam_relief_area(res, f"{NAME}, {FLUIDS[0]}{suffix}", vapour, displaced, steam_back, kb)
+        # The first pass, at the atmosphere, keeps the words of the records made before the valve had a back pressure.
+        words = {} if back is not None else {"conditions": ""}
+        area_liquid, _ = liquid_relief_area(res, f"{NAME}{suffix}", valve_type=valve_type, set_pressure=set_pressure,
+                                            atm=atm, relieving_pressure=p_r, density=density, flow_kg_h=load,
+                                            back=liquid_back, fluid="liquid", **words)
+        if area_liquid > area_steam:
+            return Sizing(area_liquid, load, LIQUID_GOVERNS, p_r, critical, steam_back, kb, (area_steam, area_liquid))
+        return Sizing(area_steam, displaced, f"{FLUIDS[0]} ({method})", p_r, critical, steam_back, kb,
+                      (area_steam, area_liquid))
+
+    def discharge(res, orifice_area, sizing):
+        area_steam, area_liquid = sizing.detail
+        return tube_rupture_discharge(inputs, res, NAME, atm=atm, set_pressure=set_pressure, orifice_area=orifice_area,
+                                      steam=vapour, steam_flow=displaced, steam_area=area_steam, liquid=liquid,
+                                      liquid_flow=load, liquid_area=area_liquid, prefix=PREFIX, fluids=FLUIDS)
+
+    piped = inputs.discharge_size is not None
+    if piped and not water:
+        discharge_pipe_not_assessed(result, NAME, inputs, NOT_WATER)
+        piped = False
+    first = sizer(result, None)
+    sizing = first
+    if piped:
+        sizing, _ = size_at_built_up_back_pressure(result, NAME, valve_type=valve_type, set_pressure=set_pressure,
+                                                   atm=atm, sizer=sizer, discharge=discharge)
+        if sizing is not first and sizing.method != first.method:
+            result.notice(f"{NAME}: governing flow at the built-up back pressure", sizing.method)
+    result.add(f"{PREFIX}_governing_case", f"{NAME}: governing relief flow", sizing.method)
+    rated = select_orifice(result, PREFIX, NAME, sizing.area, sizing.flow_kg_h)
+    if rated is None:
+        why = "no single API 526 orifice passes the load"
+        if piped:
+            discharge_pipe_not_assessed(result, NAME, inputs, why)
+        inlet_pipe_not_assessed(result, NAME, inputs.relief_inlet_size, why)
+        return
+    _inlet_pipe(inputs, result, sizing, rated, liquid, vapour, set_pressure, atm)
+    if piped:
+        built = discharge(result, result.value(f"{PREFIX}_orifice_area"), sizing)
+        critical_flow_check(result, f"{NAME}, {FLUIDS[0]}", sizing, None if built is None else built[0])
+
+
+def _inlet_pipe(inputs, result, sizing, rated, liquid, vapour, set_pressure, atm):
+    """The inlet pipe's loss at the rated flow of the governing fluid, when the pipe is given (a record without it
+    says nothing of it, as before)."""
+    if inputs.relief_inlet_size is None:
+        return
+    liquid_governs = sizing.method == LIQUID_GOVERNS
+    if liquid_governs and liquid is None:
+        inlet_pipe_not_assessed(result, NAME, inputs.relief_inlet_size, NOT_WATER)
+        return
+    if liquid_governs:
+        result.assumptions.append(f"{NAME}: the inlet pipe carries the process liquid at the steam side's relieving "
+                                  "pressure and the process outlet temperature, subcooled there (the heater cannot "
+                                  "heat it above the steam's saturation temperature)")
+    relief_inlet_loss(result, PREFIX, NAME, state=liquid if liquid_governs else vapour, rated_flow_kg_h=rated,
+                      set_pressure=set_pressure, atm=atm, size=inputs.relief_inlet_size,
+                      length=inputs.relief_inlet_length, fittings_k=inputs.relief_inlet_fittings_k,
+                      fluid=FLUIDS[1] if liquid_governs else FLUIDS[0])
