@@ -196,3 +196,35 @@ def test_forked_workers_remember_what_they_verified(site, monkeypatch, verificat
     again = _rows(build_register(site, remember=True))
     assert len(verifications) == before   # nothing recomputed: every record remembered, by parent and workers
     assert alone == shared == again
+
+
+def test_two_runs_remembering_at_once_keep_each_others_entries(tmp_path):
+    """Each save reads the file again under its lock and adds its own entries: the last writer no longer wins."""
+    from steamcalc.review.memory import RegisterMemory
+
+    first, second = RegisterMemory.open(tmp_path), RegisterMemory.open(tmp_path)   # both read an empty memory
+    first.absorb(("sha256:a", {"status": "pass", "failing": []}))
+    second.absorb(("sha256:b", {"status": "warn", "failing": []}))
+    first.save()
+    second.save()
+    again = RegisterMemory.open(tmp_path)
+    assert again.verified({"digest": "sha256:a"}, True) == ("pass", [])
+    assert again.verified({"digest": "sha256:b"}, True) == ("warn", [])
+
+
+def test_a_temporary_file_a_killed_run_left_is_swept_and_a_fresh_one_kept(tmp_path):
+    import os
+    import time
+
+    from steamcalc.review.memory import FILE_NAME, LEFT_BEHIND_SECONDS, RegisterMemory
+
+    old, fresh = tmp_path / f".{FILE_NAME}.killed.part", tmp_path / f".{FILE_NAME}.running.part"
+    old.write_text("{half", "utf-8")
+    fresh.write_text("{half", "utf-8")
+    then = time.time() - LEFT_BEHIND_SECONDS - 60
+    os.utime(old, (then, then))
+    memory = RegisterMemory.open(tmp_path)
+    memory.absorb(("sha256:a", {"status": "pass", "failing": []}))
+    memory.save()
+    assert not old.exists() and fresh.exists()
+    assert RegisterMemory.open(tmp_path).verified({"digest": "sha256:a"}, True) == ("pass", [])

@@ -30,6 +30,10 @@ LIBRARIES = ("iapws", "seuif97", "numpy", "scipy", "fluids", "ht", "pint", "jinj
              "cryptography", "plotly")
 #: Most records the memory keeps (the oldest entries go first).
 MAX_ENTRIES = 20_000
+#: How long a save waits for another run's save to finish, seconds (then this run's memory is simply not kept).
+LOCK_SECONDS = 30
+#: Age from which a temporary file of the memory is taken as left behind by a killed run, seconds.
+LEFT_BEHIND_SECONDS = 3600
 
 
 def cache_folder():
@@ -149,23 +153,56 @@ class RegisterMemory:
             return
         key, entry = learnt
         if self._entries.get(key) != entry:
+            # Moved to the end, as the newest: the oldest entries are the ones dropped when the memory is full.
+            self._entries.pop(key, None)
             self._entries[key] = entry
             self._changed = True
 
     def save(self):
-        """Write the memory when it learnt something (through a temporary file and a rename); a memory that cannot
-        be written is left as it was."""
+        """Write the memory when it learnt something (through a temporary file and a rename, under a lock beside it);
+        a memory that cannot be written is left as it was.
+
+        What another run wrote meanwhile, for the same software, is kept: the file is read again under the lock and
+        this run's entries added to it, so two registers remembering at once lose nothing of each other's.
+        A temporary file a killed run left behind (an hour old or more) is removed.
+        """
         if not self._changed or self.path is None:
             return
+        from filelock import FileLock, Timeout
+
         from ..errors import SteamcalcError
         from ..records.record import write_text_atomic
 
-        entries = self._entries
-        if len(entries) > MAX_ENTRIES:
-            entries = dict(list(entries.items())[-MAX_ENTRIES:])
         try:
-            write_text_atomic(self.path, json.dumps({"software": self.software, "records": entries},
-                                                    separators=(",", ":")))
-        except (SteamcalcError, OSError):
+            with FileLock(str(self.path) + ".lock", timeout=LOCK_SECONDS):
+                entries = dict(self._stored_entries())
+                for key, entry in self._entries.items():
+                    entries.pop(key, None)
+                    entries[key] = entry
+                if len(entries) > MAX_ENTRIES:
+                    entries = dict(list(entries.items())[-MAX_ENTRIES:])
+                write_text_atomic(self.path, json.dumps({"software": self.software, "records": entries},
+                                                        separators=(",", ":")))
+                self._sweep_left_behind()
+        except (SteamcalcError, OSError, Timeout):
             return
         self._changed = False
+
+    def _stored_entries(self):
+        """The entries the file holds now for this software (none when it is absent, unreadable or another's)."""
+        try:
+            stored = json.loads(self.path.read_text("utf-8"))
+            entries = stored["records"] if stored.get("software") == self.software else {}
+        except (OSError, ValueError, KeyError, TypeError, AttributeError):
+            return {}
+        return entries if isinstance(entries, dict) else {}
+
+    def _sweep_left_behind(self):
+        import time
+
+        for part in self.path.parent.glob(f".{self.path.name}.*.part"):
+            try:
+                if time.time() - part.stat().st_mtime >= LEFT_BEHIND_SECONDS:
+                    part.unlink()
+            except OSError:
+                pass

@@ -53,6 +53,11 @@ REWORDINGS = (
 
 #: The parts of a record that hold the calculation's statements (never the engineer's own words or inputs).
 STATEMENT_SECTIONS = ("steps", "checks", "warnings", "assumptions", "references", "cautions")
+#: The texts the calculation writes in each step and each check (a check's phrase template besides); nothing else
+#: of a step or a check is reworded, so data of any shape beside them is left as it is.
+STATEMENT_TEXTS = {"steps": ("label", "equation", "substituted"), "checks": ("name", "detail", "source")}
+#: How an assumption that is the engineer's own note begins (``records.record``): never reworded.
+ENGINEERS_NOTE = "Engineer's note: "
 
 
 def release(version):
@@ -69,18 +74,29 @@ def release(version):
         return None
 
 
-def _worded_now(value, applied, rewordings):
-    if isinstance(value, str):
-        for rewording in rewordings:
-            if rewording.before in value:
-                value = value.replace(rewording.before, rewording.now)
-                applied.setdefault(rewording, None)
-        return value
-    if isinstance(value, list):
-        return [_worded_now(v, applied, rewordings) for v in value]
-    if isinstance(value, dict):
-        return {k: _worded_now(v, applied, rewordings) for k, v in value.items()}
-    return value
+def _worded_now(text, applied, rewordings):
+    if not isinstance(text, str) or text.startswith(ENGINEERS_NOTE):
+        return text
+    for rewording in rewordings:
+        if rewording.before in text:
+            text = text.replace(rewording.before, rewording.now)
+            applied.setdefault(rewording, None)
+    return text
+
+
+def _entry_worded_now(section, entry, applied, rewordings):
+    """A statement list's text, or a step's or check's texts, in this release's words."""
+    if section not in STATEMENT_TEXTS:
+        return _worded_now(entry, applied, rewordings)
+    if not isinstance(entry, dict):
+        return entry
+    copy = dict(entry)
+    for key in STATEMENT_TEXTS[section]:
+        if key in copy:
+            copy[key] = _worded_now(copy[key], applied, rewordings)
+    if section == "checks" and isinstance(copy.get("phrase"), dict) and "template" in copy["phrase"]:
+        copy["phrase"] = dict(copy["phrase"], template=_worded_now(copy["phrase"]["template"], applied, rewordings))
+    return copy
 
 
 def as_worded_now(record):
@@ -108,14 +124,15 @@ def as_worded_now(record):
     """
     issued_by = release((record.get("provenance") or {}).get("steamcalc")) if isinstance(
         record.get("provenance"), dict) else None
-    rewordings = [r for r in REWORDINGS if issued_by is None or issued_by < release(r.since)]
+    # A release that does not read ("dev", "0.3.1+local") is not known to be earlier: no allowance.
+    rewordings = [r for r in REWORDINGS if issued_by is not None and issued_by < release(r.since)]
     if not rewordings:
         return record, []
     applied = {}
     copy = dict(record)
     for section in STATEMENT_SECTIONS:
-        if section in copy:
-            copy[section] = _worded_now(copy[section], applied, rewordings)
+        if isinstance(copy.get(section), list):
+            copy[section] = [_entry_worded_now(section, entry, applied, rewordings) for entry in copy[section]]
     if not applied:
         return record, []
     return copy, list(applied)
