@@ -2,8 +2,8 @@
 
 ``tests/archive/v0_2/`` holds the demo site's records as steamcalc 0.2 issued them (schema
 ``steamcalc.record/1``, no figure data), with the HTML and Markdown that release drew;
-``tests/archive/v0_3/`` those of this release (schema 3: steps and checks kept as amounts), kept for the
-releases after it; ``tests/archive/v0_3_schema2/`` those of this release's intermediate layout (schema 2: figure
+``tests/archive/v0_3/`` those of release 0.3.0 (schema 3: steps and checks kept as amounts; release 0.3.1
+rewords some of their statements, steamcalc.review.rewordings); ``tests/archive/v0_3_schema2/`` those of this release's intermediate layout (schema 2: figure
 data, steps and checks as text), which this release still reads. Each must verify:
 its digests intact, every result, check and statement reproduced, and its reports either matching what this
 release draws or reported as drawn by the release that issued the record — never as edited.
