@@ -1,7 +1,7 @@
 """Drawing a record's reports faster changes none of their bytes.
 
 ``tests/test_render_same_bytes.json`` holds the SHA-256 of every report the code drew before the drawing was
-made faster: for each archived record (``tests/archive/v0_2``, ``v0_3``, ``v0_3_schema2``), in its own display
+made faster: for each archived record (every folder of ``tests/archive``), in its own display
 units and with its site's ``display_units`` set to ``"US"``, the HTML and Markdown record (drawn one by one and
 both at once, as ``verify`` and ``register`` draw them) and the layout releases 0.2 and 0.3 drew them in
 (``render_earlier``). Each must be drawn to the very same bytes (source: the reports as drawn by the code of

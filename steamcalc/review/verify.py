@@ -252,10 +252,15 @@ def verify_record(record, engine=REFERENCE_ENGINE, path=None, digests_hold=False
     result.check_changes += recorded_verdict_changes(record.get("checks", []))
     result.recomputed_status = fresh.status
     result.recomputed_failing = [c.name for c in fresh.checks if c.status == "fail"]
-    result.statement_changes = _statement_changes(record, fresh, result.notes)
+    # A later release's change of basis that this recomputation shows (a record of schema 3 of an earlier release):
+    # its steps are matched by label, and what the change explains is listed as changed, naming the release.
+    later = release_basis_changes(record, fresh)
+    result.statement_changes = _statement_changes(record, fresh, result.notes, later)
     result.statement_changes += given_changes(record)
     if _earlier(record):
         _by_later_bases(record, result)
+    elif later:
+        _by_later_bases(record, result, later)
     _check_links(record, path, result)
     return result
 
@@ -438,28 +443,62 @@ def _read_given_afresh(kind, name, given, site_text):
     return read, header, None
 
 
-def _basis_change(calc, text):
-    """(release, why) of the basis change of this release that ``text`` (a key, label or statement) falls under."""
+def _basis_change(calc, text, changes=None):
+    """(release, why) of the basis change that ``text`` (a key, label or statement) falls under: among ``changes``
+    (entries of the kind's ``BASIS_CHANGES``), or all of them."""
     from fnmatch import fnmatchcase
 
-    for release, why, patterns in getattr(calc, "BASIS_CHANGES", ()):
+    for change in (getattr(calc, "BASIS_CHANGES", ()) if changes is None else changes):
+        release, why, patterns = change[:3]
         if any(fnmatchcase(str(text), pattern) for pattern in patterns):
             return release, why
     return None
 
 
-def _by_later_bases(record, result):
+def release_basis_changes(record, fresh):
+    """The basis changes of releases after the one that issued a record of schema 3 that its recomputation shows.
+
+    An entry of a kind's ``BASIS_CHANGES`` may name, as a fourth item, a pattern over the recomputed steps' labels:
+    the change applies to a record of an earlier release only when the recomputation takes the changed path (a
+    step of that label), so a record the change does not touch is held to every word as before. A record whose
+    release does not read gets none (:func:`steamcalc.review.rewordings.release`).
+    """
+    from fnmatch import fnmatchcase
+
+    from .rewordings import release
+
+    if _earlier(record) or not isinstance(record.get("provenance"), dict):
+        return []
+    issued_by = release(record["provenance"].get("steamcalc"))
+    try:
+        calc = get_calculation(record.get("kind"))
+    except SteamcalcError:
+        return []
+    if issued_by is None:
+        return []
+    labels = [step.label for step in fresh.steps]
+    return [change for change in getattr(calc, "BASIS_CHANGES", ())
+            if len(change) > 3 and release(change[0]) is not None and issued_by < release(change[0])
+            and any(fnmatchcase(label, change[3]) for label in labels)]
+
+
+def _by_later_bases(record, result, changes=None):
     """Differences of an earlier release's record that a later release's change of basis explains.
 
     Each stays listed, as a note naming the release and the change; what no declared change explains
-    stays a difference. Only records of the schemas before the change (1 and 2) are read this way.
+    stays a difference. Records of the schemas before the change (1 and 2) are read this way against every
+    change; a record of schema 3 against ``changes``, those of :func:`release_basis_changes`.
     """
     try:
         calc = get_calculation(record.get("kind"))
     except SteamcalcError:
         return
+
+    def basis(calc, text):
+        return _basis_change(calc, text, changes)
+
     for c in result.comparisons:
-        change = c.verdict in ("differs", "new", "missing") and _basis_change(calc, c.key)
+        change = c.verdict in ("differs", "new", "missing") and basis(calc, c.key)
         if change:
             c.verdict = "changed"
             result.notes.append(f"{c.key}: recorded {c.recorded}, recomputed {c.recomputed}: changed by release "
@@ -469,7 +508,9 @@ def _by_later_bases(record, result):
         # "recorded: NAME = ..." / "step 'LABEL': ..." / "warnings: not issued 'TEXT'"
         name = re.sub(r"^(?:recorded|recomputed): ", "", line).split(" = ")[0]
         label = re.match(r"step '([^']*)'", line)
-        return _basis_change(calc, label.group(1) if label else name)
+        return basis(calc, label.group(1) if label else name)
+    # The release named when a line is explained by the change of its checks (the status) or a statement.
+    note = BASIS_NOTE if changes is None else f"{changes[0][0]} (its basis changed; see the results' notes)"
     kept = []
     for line in result.check_changes:
         change = explained(line)
@@ -482,13 +523,13 @@ def _by_later_bases(record, result):
         section, _, rest = line.partition(": ")
         if section == "status" and explained_checks and not result.check_changes:
             # The status follows the checks: when every check that changed is a declared change of basis, so is it.
-            result.notes.append(f"{line}: changed by release {BASIS_NOTE}")
+            result.notes.append(f"{line}: changed by release {note}")
             continue
         parts = _QUOTED.findall(rest) if section in (
             "warnings", "assumptions") else []
-        if parts and all(_basis_change(calc, ast.literal_eval(text)) or _basis_change(
+        if parts and all(basis(calc, ast.literal_eval(text)) or basis(
                 calc, ast.literal_eval(text).split(":")[0]) for _, text in parts):
-            result.notes.append(f"{line}: changed by release {BASIS_NOTE}")
+            result.notes.append(f"{line}: changed by release {note}")
         elif line.startswith("step ") and explained(line):
             change = explained(line)
             result.notes.append(f"{line}: changed by release {change[0]} ({change[1]})")
@@ -603,7 +644,7 @@ def _labelled(steps):
     return keyed
 
 
-def _earlier_step_changes(old_steps, new_steps, notes):
+def _earlier_step_changes(old_steps, new_steps, notes, since="0.3"):
     """An earlier release's worked steps (text only) against this release's, matched by label.
 
     Release 0.3 writes the steps from amounts, with equations that state the step's value on their
@@ -616,17 +657,60 @@ def _earlier_step_changes(old_steps, new_steps, notes):
         b = new.get(key)
         if b is None:
             notes is not None and notes.append(f"step {key[0]!r}: recorded by the earlier release, no longer a "
-                                               "worked step since steamcalc 0.3")
+                                               f"worked step since steamcalc {since}")
             continue
         if a.get("equation") != b.get("equation") and notes is not None:
-            notes.append(f"step {key[0]!r}: its equation is written otherwise since steamcalc 0.3 "
+            notes.append(f"step {key[0]!r}: its equation is written otherwise since steamcalc {since} "
                          f"(recorded {a.get('equation')!r}, now {b.get('equation')!r}); its value is compared")
         if (a.get("value") is None) != (b.get("value") is None) or (
                 a.get("value") is not None and _compare("", _step_value(a["value"]), b["value"]).verdict != "same"):
             changes.append(f"step {key[0]!r}: the record's value is not the calculation's")
     added = [key[0] for key in new if key not in old]
     if added and notes is not None:
-        notes.append(f"steps worked since steamcalc 0.3 that the record does not have: {', '.join(map(repr, added))}")
+        notes.append(f"steps worked since steamcalc {since} that the record does not have: {', '.join(map(repr, added))}")
+    return changes
+
+
+def _same_step(a, b):
+    """A recorded step and a recomputed one alike: their data within the tolerance, their texts alike."""
+    found = []
+    _walk({k: a.get(k) for k in _STEP_DATA}, {k: b.get(k) for k in _STEP_DATA}, "", found)
+    texts_differ = bool(found) or any(not same_text(a.get(k), b.get(k)) for k in ("label", "equation", "substituted"))
+    value_differs = (a.get("value") is None) != (b.get("value") is None) or (
+        a.get("value") is not None and _compare("", a["value"], b["value"]).verdict != "same")
+    return not (texts_differ or value_differs)
+
+
+def _steps_under_later_basis(old_steps, new_steps, later, notes):
+    """A schema-3 record's steps against today's when a later release changed a basis it shows, matched by label.
+
+    A step under the change (its label in the change's patterns) is a note when it differs, was added or is gone;
+    every other step must be as the calculation writes it, word for word, as for any record.
+    """
+    from fnmatch import fnmatchcase
+
+    def under(label):
+        return any(fnmatchcase(str(label), pattern) for change in later for pattern in change[2])
+
+    old, new = _labelled(old_steps), _labelled(new_steps)
+    release = later[0][0]
+    changes, changed = [], []
+    for key, a in old.items():
+        b = new.get(key)
+        if b is not None and _same_step(a, b):
+            continue
+        if under(key[0]):
+            changed.append(key[0])
+        else:
+            changes.append(f"step {key[0]!r}: " + ("not a step of this release" if b is None else
+                                                    "the record's text or value is not the calculation's"))
+    added = [key[0] for key in new if key not in old]
+    changes += [f"step {label!r}: a step of this release the record does not have" for label in added
+                if not under(label)]
+    changed += [label for label in added if under(label)]
+    if changed and notes is not None:
+        notes.append(f"steps changed, added or gone by the change of basis of release {release}: "
+                     + ", ".join(map(repr, changed)))
     return changes
 
 
@@ -696,8 +780,9 @@ def _step_value(value):
     return value
 
 
-def _statement_changes(record, fresh, notes=None):
-    """The record's status and statements against what the calculation issues today."""
+def _statement_changes(record, fresh, notes=None, later=()):
+    """The record's status and statements against what the calculation issues today (``later``: the basis changes
+    of :func:`release_basis_changes`, under which the steps are matched by label)."""
     changes = []
     if record.get("status") != fresh.status:
         changes.append(f"status: recorded {record.get('status')!r}, recomputed {fresh.status!r}")
@@ -719,6 +804,9 @@ def _statement_changes(record, fresh, notes=None):
     new_steps = [s.to_record() for s in fresh.steps]
     if _earlier(record):
         changes.extend(_earlier_step_changes(old_steps, new_steps, notes))
+        return changes
+    if later:
+        changes.extend(_steps_under_later_basis(old_steps, new_steps, later, notes))
         return changes
     if len(old_steps) != len(new_steps):
         changes.append(f"steps: {len(old_steps)} recorded, {len(new_steps)} recomputed")

@@ -61,6 +61,10 @@ BASIS_CHANGES = (
      ("area_margin",)),
     ("0.3", "the heater's tube-rupture and thermal-relief cases, or a statement that they were not assessed",
      OVERPRESSURE_PATTERNS),
+    # Applies to a record of 0.3.0 only when its recomputation sizes a flashing liquid (the fourth item).
+    ("0.3.1", "a water hotter than its boiling point at the tube-rupture valve's outlet flashes in the nozzle: it is "
+     "sized by API 520 Part I annex C (the omega method and direct integration, the larger governing), where the "
+     "liquid equation undersized the valve", ("Tube rupture*", "tube_rupture_*"), "Tube rupture*flashing in the valve*"),
 )
 #: Groups of inputs of which at most one is given (the calculation refuses two of a group); the forms use them.
 ALTERNATIVE_INPUTS = (("process_flow", "process_volume_flow"), ("process_fluid", "process_cp"),

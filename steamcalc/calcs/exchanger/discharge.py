@@ -19,7 +19,7 @@ from ...equipment.two_phase_relief import KD_SUBCOOLED, isentropic_flux
 from ...errors import InputError
 from ...properties.steam import SteamState, dynamic_viscosity
 from ..overpressure import (
-    VALVE_TYPES, back_pressure_check, discharge_diameter, discharge_section, relieving_pressure,
+    VALVE_TYPES, back_pressure_check, discharge_diameter, discharge_section, flashing_relief_area, relieving_pressure,
     two_phase_discharge_section,
 )
 
@@ -97,8 +97,9 @@ LIQUID_AREA_CONDITIONS = ", Kw = Kv = 1, P2 the back pressure at the valve outle
 
 
 def liquid_relief_area(result, name, *, valve_type, set_pressure, atm, relieving_pressure, density, flow_kg_h, back,
-                       fluid="displaced liquid", conditions=LIQUID_AREA_CONDITIONS):
-    """Required area of a liquid relief by API 520 Part I's liquid equation, as a step.
+                       fluid="displaced liquid", conditions=LIQUID_AREA_CONDITIONS, liquid=None, kb=1.0):
+    """Required area of a liquid relief by API 520 Part I's liquid equation, as a step; of a water hotter than its
+    boiling point at the back pressure, by the flashing-liquid methods of annex C.
 
     .. math:: A = \\frac{11.78\\,Q}{K_d K_w K_v}\\sqrt{\\frac{G_l}{P_1 - P_2}}
 
@@ -119,18 +120,37 @@ def liquid_relief_area(result, name, *, valve_type, set_pressure, atm, relieving
         The liquid's flow, kg/h.
     conditions : str
         The conditions written after the equation in the step (with Kw = 1).
+    liquid : SteamState, optional
+        The water at the valve inlet (the relieving pressure, its temperature). Hotter than its boiling point at the
+        back pressure, it flashes in the valve's nozzle, where the liquid equation does not hold: it is sized by the
+        omega method for subcooled liquid and by direct integration on IF97, the larger governing
+        (:func:`steamcalc.calcs.overpressure.flashing_relief_area`). None: a liquid other than water, by the liquid
+        equation.
+    kb : float
+        The balanced-bellows correction of a flashing liquid (API 520 Part I figure 31; 1 for other valves).
 
     Returns
     -------
     tuple of float
-        ``(area mm², Kw)``.
+        ``(area mm², Kw)`` (Kw 1 for a flashing liquid).
 
     References
     ----------
-    API Standard 520 Part I (2020), liquid sizing equation (Kd 0.65 for preliminary sizing) and figure 32.
+    API Standard 520 Part I (2020), liquid sizing equation (Kd 0.65 for preliminary sizing) and figure 32; annex C
+    (subcooled liquid that flashes: the omega method) and annex B (direct integration).
     """
     from fluids.safety_valve import API520_A_l, API520_W
 
+    if liquid is not None and liquid.temperature > SteamState.from_p_dryness(back, 0.0).temperature:
+        # A water above its boiling point at the valve's outlet flashes in the nozzle: choked two-phase flow passes
+        # less than the liquid equation says, so the liquid equation would undersize the valve.
+        area, _, _ = flashing_relief_area(result, f"{name}, {fluid} flashing in the valve", liquid, flow_kg_h, back,
+                                          1.0 if kb is None else kb)
+        note = (f"{name}: the {fluid} is hotter than its boiling point at the valve's outlet, so it flashes in the "
+                "nozzle: sized by API 520 Part I annex C, not by the liquid equation")
+        if note not in result.assumptions:
+            result.assumptions.append(note)
+        return area, 1.0
     kw = 1.0
     if valve_type == "balanced-bellows":
         # fluids reads figure 32 with the standard atmosphere: give it the same gauge pressures.

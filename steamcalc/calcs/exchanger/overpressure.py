@@ -215,7 +215,9 @@ def _tube_rupture(inputs, atm, result):
         area_steam, method = steam_relief_area(res, f"{NAME}, steam{suffix}", relieving, load, steam_back, kb)
         area_liquid, _ = liquid_relief_area(res, f"{NAME}{suffix}", valve_type=valve_type, set_pressure=low, atm=atm,
                                             relieving_pressure=p_r, density=liquid.density, flow_kg_h=displaced,
-                                            back=liquid_back)
+                                            back=liquid_back, liquid=liquid,
+                                            kb=balanced_kb(valve_type, low, None if back is None else liquid_back,
+                                                           atm))
         governing, area = (("displaced liquid", area_liquid) if area_liquid > area_steam
                            else (f"steam ({method})", area_steam))
         return Sizing(area, displaced if governing == "displaced liquid" else load, governing, p_r, critical,

@@ -82,7 +82,9 @@ def reverse_valve(inputs, atm, result, *, relieving_pressure, load, density, vap
         words = {} if back is not None else {"conditions": ""}
         area_liquid, _ = liquid_relief_area(res, f"{NAME}{suffix}", valve_type=valve_type, set_pressure=set_pressure,
                                             atm=atm, relieving_pressure=p_r, density=density, flow_kg_h=load,
-                                            back=liquid_back, fluid="liquid", **words)
+                                            back=liquid_back, fluid="liquid", liquid=liquid,
+                                            kb=balanced_kb(valve_type, set_pressure,
+                                                           None if back is None else liquid_back, atm), **words)
         if area_liquid > area_steam:
             return Sizing(area_liquid, load, LIQUID_GOVERNS, p_r, critical, steam_back, kb, (area_steam, area_liquid))
         return Sizing(area_steam, displaced, f"{FLUIDS[0]} ({method})", p_r, critical, steam_back, kb,
