@@ -161,6 +161,9 @@ def test_the_run_index_carries_the_register_columns(site):
     # The site balance links LD-02's superseded revision and is refused for it (tests/test_site_balance.py):
     # this test is about the index columns of the records that issue.
     (site / "cases" / "SB-01.toml").unlink()
+    # The main takes its steam flow from HX-01's record: its case issues it first (the fixture removed it).
+    shutil.copy(Path(__file__).resolve().parent.parent / "workbooks" / "demo_site" / "cases" / "HX-01.toml",
+                site / "cases")
     assert main(["run", "--quiet", str(site / "cases")]) == 0
     rows = {r["json"]: r for r in csv.DictReader((site / "records" / "index.csv").open())}
     assert rows["LD-02_revB.json"]["current"] == "no: superseded by revision C"

@@ -6,7 +6,7 @@ import json
 import pytest
 
 from steamcalc.cli import main
-from steamcalc.ui.site_balance import _MISSING_LINK
+from steamcalc.ui.linked_cases import _MISSING_LINK
 from tests.case_helpers import run_case_text
 from tests.site_balance_cases import CASE, write_site
 

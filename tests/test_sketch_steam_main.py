@@ -27,18 +27,18 @@ EXPECTED = {
 }
 
 
-def _record(**site_changes):
+def _record(records, **site_changes):
     case = load_case(CASES / "SM-01.toml")
     site = case_site(case)
     if site_changes:
         site = dataclasses.replace(site, **site_changes)
-    record, _ = record_for_case(case, site, with_uncertainty=False)
+    record, _ = record_for_case(case, site, with_uncertainty=False, record_folder=records)
     return record
 
 
 @pytest.fixture(scope="module")
-def record():
-    return _record()
+def record(demo_linked_records):
+    return _record(demo_linked_records)
 
 
 def test_sketch_numbers_are_the_records(record):
@@ -105,8 +105,8 @@ def test_a_main_from_a_let_down_record_and_without_a_return(record):
     ET.fromstring(svg)
 
 
-def test_us_display_shows_psia_nps_and_feet():
-    record = _record(display_units="US")
+def test_us_display_shows_psia_nps_and_feet(demo_linked_records):
+    record = _record(demo_linked_records, display_units="US")
     readings = dict(_readings(sketch_svg(record)))
     assert readings["results.supply_pressure"].endswith("psig") and "psia · " in readings["results.supply_pressure"]
     assert readings["results.segment_1_velocity"].endswith("ft/s (steam)")
@@ -133,7 +133,13 @@ def test_sketch_is_plain_svg_and_escapes_record_text(record):
 def test_workbook_shows_the_main_sketch(tmp_path):
     from steamcalc.ui.workbook import Workbook
 
-    wb = Workbook(CASES / "SM-01.toml", tmp_path / "records")
+    wb = Workbook(CASES / "SM-01.toml", tmp_path / "records")   # HX-01, whose steam flow SM-01 takes, issued first
+    assert wb.issued == ["HX-01 rev B issued from HX-01.toml (it was not in records/)"]
     assert "Steam main and condensate return SM-01" in wb.sketch_view().value
+    # A steam flow typed beside the heater link is refused until the link is cleared; then it is the sketch's.
     wb.form.boxes["steam_flow"].value = "800 kg/h"
+    assert wb.error is not None and "not given twice" in wb.error
+    wb.form.boxes["load_link_revision"].value = ""
+    wb.form.boxes["load_link_record_id"].value = ""
+    assert wb.error is None
     assert 'data-key="inputs.steam_flow">800 kg/h<' in wb.sketch_view().value

@@ -12,9 +12,9 @@ CASES = Path(__file__).resolve().parent.parent / "workbooks" / "demo_site" / "ca
 
 
 @pytest.fixture(scope="module")
-def record():
+def record(demo_linked_records):
     case = load_case(CASES / "SM-01.toml")
-    return record_for_case(case, case_site(case), with_uncertainty=False)[0]
+    return record_for_case(case, case_site(case), with_uncertainty=False, record_folder=demo_linked_records)[0]
 
 
 def test_the_demo_return_runs_from_the_heaters_and_drip_traps_to_the_flash_vessel(record):
@@ -24,7 +24,7 @@ def test_the_demo_return_runs_from_the_heaters_and_drip_traps_to_the_flash_vesse
     assert "CIP water heater" in record["title"] and "flash vessel" in record["title"]
 
 
-def test_limits_left_at_their_defaults_are_marked_common_practice(record):
+def test_limits_left_at_their_defaults_are_marked_common_practice(record, demo_linked_records):
     """SM-01 gives no velocity limit and no return-line drop limit: the checks against them say common practice."""
     assert record["inputs"]["velocity_limit"]["given"] == "(default)"
     assert record["inputs"]["return_drop_limit"]["given"] == "(default)"
@@ -40,6 +40,6 @@ def test_limits_left_at_their_defaults_are_marked_common_practice(record):
     # A limit the case gives is the input's, not common practice.
     case = load_case(CASES / "SM-01.toml")
     case.inputs["velocity_limit"] = "30 m/s"
-    given = record_for_case(case, case_site(case), with_uncertainty=False)[0]
+    given = record_for_case(case, case_site(case), with_uncertainty=False, record_folder=demo_linked_records)[0]
     assert {c["name"]: c.get("source") for c in given["checks"]}["Segment 1: steam velocity"] == \
         "the input velocity limit"

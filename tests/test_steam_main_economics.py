@@ -2,6 +2,7 @@
 tables, the chosen thickness against a hand calculation over the candidates, the checks, and the refusals."""
 
 import json
+import shutil
 from pathlib import Path
 
 import pytest
@@ -99,12 +100,14 @@ def test_options_read_back_from_the_record_text():
     assert parse_rows(rows_text(rows, OPTION_COLUMNS), "insulation.options", OPTION_COLUMNS) == rows
 
 
-def test_demo_case_economic_thickness(tmp_path, capsys):
+def test_demo_case_economic_thickness(tmp_path, capsys, demo_linked_records):
     """SM-01 lists six candidates; its 50 mm lies within one step of the economic 65 mm (invented demo costs)."""
     text = DEMO.read_text().replace('site = "../site.toml"', f'site = "{DEMO.parent.parent / "site.toml"}"')
+    (tmp_path / "out").mkdir()
+    shutil.copy(demo_linked_records / "HX-01_revB.json", tmp_path / "out")   # the heater SM-01 takes its flow from
     code, _, err = run_case_text(tmp_path, capsys, text, name="SM-01.toml")
     assert code == 0, err
-    record = json.loads(next((tmp_path / "out").glob("*.json")).read_text())
+    record = json.loads((tmp_path / "out" / "SM-01_revA.json").read_text())
     text = json.dumps(record)
     assert "economic_thickness" in text and "Installed thickness against the economic thickness" in text
 

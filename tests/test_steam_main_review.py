@@ -101,9 +101,9 @@ def test_running_load_once_the_steam_reaches_saturation_by_hand():
 
 # --- 13: SM-01 takes the MP header's superheat, as HX-01 does --------------------------------------------------------
 @pytest.fixture(scope="module")
-def demo():
+def demo(demo_linked_records):
     case = load_case(CASES / "SM-01.toml")
-    return record_for_case(case, case_site(case), with_uncertainty=False)[0]
+    return record_for_case(case, case_site(case), with_uncertainty=False, record_folder=demo_linked_records)[0]
 
 
 def test_demo_main_carries_the_headers_superheat(demo, monkeypatch):
@@ -117,8 +117,9 @@ def test_demo_main_carries_the_headers_superheat(demo, monkeypatch):
     assert res["segment_1_heat_loss"]["value"] == pytest.approx(hand, rel=1e-4), "hand calculation"
     assert res["segment_1_heat_loss"]["value"] == pytest.approx(75.5, abs=0.1)
     assert res["running_load_total"]["value"] == 0.0
-    assert res["steam_delivered"]["value"] == pytest.approx(710.3)
-    assert demo["inputs"]["steam_flow"]["given"] == "710.3 kg/h"
+    assert res["steam_delivered"]["value"] == pytest.approx(710.3, abs=0.05)
+    # The steam flow is HX-01 revision B's, read from its record ([inputs.load_link]), no longer a copied figure.
+    assert demo["inputs"]["steam_flow"]["given"].startswith("710.3") and demo["inputs"]["load_link_record_id"]["value"] == "HX-01"
 
 
 # --- 14: the touch check says the value and the limit, worded by its verdict ----------------------------------------

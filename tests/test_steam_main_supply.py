@@ -30,10 +30,12 @@ def _main_case(link):
 
 @pytest.fixture(scope="module")
 def site(tmp_path_factory):
-    """The demo site in a folder of its own, LD-01 (revision B) and FL-01 issued into its records folder."""
+    """The demo site in a folder of its own, LD-01 (revision B), FL-01 and HX-01 (whose steam flow SM-01 takes)
+    issued into its records folder."""
     folder = tmp_path_factory.mktemp("supply") / "demo_site"
     shutil.copytree(DEMO, folder, ignore=shutil.ignore_patterns("records"))
-    assert main(["run", str(folder / "cases" / "LD-01.toml"), str(folder / "cases" / "FL-01.toml"), "--quiet"]) in (0, 1)
+    assert main(["run", *(str(folder / "cases" / f"{name}.toml") for name in ("LD-01", "FL-01", "HX-01")),
+                 "--quiet"]) in (0, 1)
     return folder
 
 

@@ -1,7 +1,8 @@
 """Links from one record to another issued record: found once, when the case is read, and held by digest.
 
 A kind may take part of its inputs from an issued record (the site balance's let-downs, users and flash
-vessels; a steam main's supply from a let-down's outlet). The linked record is read from a links folder
+vessels; a steam main's supply from a let-down's outlet and its steam flow from a heater's, each a
+:class:`FlatLink` taken by :func:`take_flat_link`). The linked record is read from a links folder
 (relative to the case file; the site's ``records`` folder by default) at a named revision, as
 ``<id>_rev<revision>.json`` (or, when it is not there, from the folder the run writes its records to, so that
 a whole site run into another folder finds what it has just issued). Its kind is checked, its digests
@@ -15,6 +16,7 @@ record that was used (:func:`link_problems`) and ``register`` can mark the linki
 from __future__ import annotations
 
 import re
+from dataclasses import dataclass
 from pathlib import Path
 
 from ..errors import InputError, SteamcalcError
@@ -107,12 +109,17 @@ def find_linked_record(record_id, revision, kind, *, folder, case_path, read_rec
                          field=f"{where}.record", value=record_id,
                          fix=exc.fix or "re-issue the linked record") from None
     if record.get("kind") != kind:
-        raise InputError(f"linked record {record_id} is a {record.get('kind')} record, not a {kind} record",
-                         field=f"{where}.record", value=record_id, fix=f"link a {kind} record here")
+        raise InputError(f"linked record {record_id} is {_a(record.get('kind'))} record, not {_a(kind)} record",
+                         field=f"{where}.record", value=record_id, fix=f"link {_a(kind)} record here")
     if record.get("id") != record_id or str(record.get("revision")) != revision:
         raise InputError(f"the file {relative} holds record {record.get('id')} revision {record.get('revision')}",
                          field=f"{where}.record", value=record_id, fix="link the file that holds this record")
     return record
+
+
+def _a(kind):
+    """A kind with its article: ``"a letdown"``, ``"an exchanger"``."""
+    return f"{'an' if str(kind)[:1] in 'aeiou' else 'a'} {kind}"
 
 
 def record_links(record):
@@ -166,8 +173,8 @@ def link_states(record, record_path, read_record, holder="the balance"):
             states.append(("changed", f"{what}: {file_name} cannot be used: {exc.message}"))
             continue
         if linked.get("kind") != link.get("kind"):
-            states.append(("changed", f"{what}: {file_name} is now a {linked.get('kind')} record, {holder} linked a "
-                                      f"{link.get('kind')} record"))
+            states.append(("changed", f"{what}: {file_name} is now {_a(linked.get('kind'))} record, {holder} linked "
+                                      f"{_a(link.get('kind'))} record"))
         elif linked.get("content_digest") != digest:
             states.append(("changed", f"{what}: {file_name} has changed since {holder} used it (content digest "
                                       f"now {linked.get('content_digest')}, {holder} used {digest}); re-issue "
@@ -206,5 +213,102 @@ def link_problems(record, record_path, read_record, holder="the balance"):
     return problems, notes
 
 
+@dataclass(frozen=True)
+class FlatLink:
+    """One link of a kind of flat inputs: ``[inputs.<item>_link]``, kept as the inputs ``<item>_link_<name>``.
+
+    Parameters
+    ----------
+    item : str
+        The link's name in the case file and the record (``"supply"``: ``[inputs.supply_link]``).
+    kind : str
+        The kind the linked record must be (``"letdown"``).
+    words : str
+        The linked record in words, for refusals (``"let-down record"``).
+    example : str
+        A record id for the fixes (``"LD-01"``).
+    replaces : tuple of str
+        The inputs the link gives: each refused when the case gives it too.
+    instead : str
+        What to do instead of linking, for the fix of an input given twice (``"feed the main from a header"``).
+    holder : str
+        The linking calculation in words.
+    """
+
+    item: str
+    kind: str
+    words: str
+    example: str
+    replaces: tuple
+    instead: str
+    holder: str = "the main"
+
+    @property
+    def table(self):
+        """The case-file table of the link: ``[inputs.supply_link]``."""
+        return f"[inputs.{self.item}_link]"
+
+    def value(self, values, name):
+        """The link's own input ``name`` (one of ``record_id``, ``revision``, ``folder``, ``kind``, ``content_digest``)."""
+        return values.get(f"{self.item}_link_{name}")
+
+
+def _pinned(link, values, name, found, record_id):
+    """A kind or content digest given in the case file pins the link: the file must still hold it."""
+    pinned = link.value(values, name)
+    if pinned is not None and pinned != found:
+        raise InputError(f"linked record {record_id} has {name.replace('_', ' ')} {found}, not the {pinned} the case "
+                         "file pins", field=f"{link.item}_link.{name}", value=pinned,
+                         fix=f"re-check {link.holder} against the re-issued {record_id} and give {name} = \"{found}\", "
+                             f"or leave {name} out")
+
+
+def take_flat_link(link, values, given, case_path, read_record):
+    """The record a kind of flat inputs links (``[inputs.<item>_link]``), found, checked and kept in its inputs.
+
+    Refuses a link's revision, folder, kind or digest given without its record, an input the link gives given
+    too (``link.replaces``), and a kind or content digest pinned in the case file that the record no longer has;
+    finds the record with :func:`find_linked_record`. The caller copies what it uses from the record.
+
+    Parameters
+    ----------
+    link : FlatLink
+        The link.
+    values, given : dict
+        The parsed input values (SI) and their texts as given, by field name.
+    case_path : str or Path or None
+        The case file; the links folder is relative to it.
+    read_record : callable or None
+        Reads a record file, refusing one whose digests do not match (from the records layer).
+
+    Returns
+    -------
+    tuple
+        ``(record, values, given)``: the linked record (None when the case links none) and the inputs with the
+        link's revision, kind and content digest kept.
+    """
+    record_id = link.value(values, "record_id")
+    if record_id is None:
+        for name in ("revision", "folder", "kind", "content_digest"):
+            if link.value(values, name) is not None:
+                raise InputError(f"a linked {link.words}'s {name.replace('_', ' ')} is given without the record",
+                                 field=f"{link.item}_link.record", fix=f'give record = "{link.example}" in '
+                                                                       f"{link.table}, or remove {link.table}")
+        return None, values, given
+    for name in link.replaces:
+        if values.get(name) is not None:
+            raise InputError(f"{name} comes from the linked {link.words} {record_id}; it is not given twice",
+                             field=name, fix=f"leave {name} out, or drop {link.table} and {link.instead}")
+    revision = link.value(values, "revision")
+    record = find_linked_record(record_id, revision, link.kind, folder=link.value(values, "folder") or DEFAULT_FOLDER,
+                                case_path=case_path, read_record=read_record, where=f"{link.item}_link",
+                                holder=link.holder, links_table=link.table,
+                                revision_fix=f'give revision = "B" in {link.table}')
+    _pinned(link, values, "kind", record["kind"], record_id)
+    _pinned(link, values, "content_digest", record["content_digest"], record_id)
+    kept = {f"{link.item}_link_kind": record["kind"], f"{link.item}_link_content_digest": record["content_digest"]}
+    return record, dict(values, **{f"{link.item}_link_revision": revision}, **kept), dict(given, **kept)
+
+
 __all__ = ["DEFAULT_FOLDER", "LINK_NAMES", "find_linked_record", "record_links", "link_states", "stale_links",
-           "link_problems"]
+           "link_problems", "FlatLink", "take_flat_link"]

@@ -9,7 +9,6 @@ that cannot run is shown as its error, by file and field, never a traceback.
 from __future__ import annotations
 
 import html
-import re
 from pathlib import Path
 
 from ..calcs.site_balance.comparison import comparison_rows
@@ -22,6 +21,7 @@ from ..render.display import convert, record_system, shown_check
 from ..render.header_svg import header_svg
 from ..render.report import RENDERERS, format_unit
 from .charts import shown_rows
+from .linked_cases import MAX_ISSUED, issue_missing_link
 
 
 class BalanceBook:
@@ -52,20 +52,15 @@ class BalanceBook:
         """The balance's record; a linked record not issued yet is issued first from its case file beside the
         balance's (as ``steamcalc run`` on the site folder would), and said so in :attr:`issued`."""
         site = case_site(self.case)
-        for _ in range(50):
+        for _ in range(MAX_ISSUED):
             try:
                 self.record, _ = record_for_case(self.case, site, record_folder=self.record_folder)
                 return
             except InputError as exc:
-                missing = _MISSING_LINK.match(exc.message)
-                case_path = missing and _linked_case_file(self.case_file.parent, missing["id"], missing["revision"])
-                if case_path is None:
+                issued = issue_missing_link(exc, self.case_file.parent)
+                if issued is None:
                     raise
-                linked = load_case(case_path)
-                record, _ = record_for_case(linked, case_site(linked))
-                write_record(record, Path(missing["path"]).parent, RENDERERS)
-                self.issued.append(f"{linked.id} rev {linked.revision} issued from {case_path.name} "
-                                   f"(it was not in {Path(missing['path']).parent.name}/)")
+                self.issued.append(issued)
 
     def _rows(self, keys):
         results = self.record["results"]
@@ -195,23 +190,3 @@ class BalanceBook:
         except SteamcalcError as exc:
             return f"not saved: {exc}"
         return f"saved: {name}, {paths[0]}" if status == "written" else f"unchanged, kept: {name}, {paths[0]}"
-
-
-_MISSING_LINK = re.compile(r"^linked record (?P<id>\S+) revision (?P<revision>\S+) is not at (?P<path>.+?)"
-                           r"(?: \(named by .+\))?$")
-
-
-def _linked_case_file(folder, record_id, revision):
-    """The case file beside the balance's that issues ``record_id`` at ``revision`` (ID_revR.toml, else ID.toml
-    when it holds that revision), or None."""
-    for name in (f"{record_id}_rev{revision}.toml", f"{record_id}.toml"):
-        path = Path(folder) / name
-        if not path.is_file():
-            continue
-        try:
-            case = load_case(path)
-        except SteamcalcError:
-            return None
-        if case.id == record_id and str(case.revision) == revision:
-            return path
-    return None

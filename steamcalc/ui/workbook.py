@@ -29,6 +29,7 @@ from ..runs.uncertainty import SETTINGS
 from .charts import figure_json, record_chart_json, table_for, tornado_chart
 from .feedback import STALE_CLASS, STALE_STYLE, STALE_TEXT, SummaryView, file_link
 from .forms import CaseForm, alternatives_for
+from .linked_cases import issue_linked_records
 from .progress import ProgressLine
 from .save_case import CaseSaver
 from .sketch_view import SketchView
@@ -94,6 +95,13 @@ class Workbook:
         self.calc = get_calculation(self.case.kind)
         self.record_folder = Path(record_folder)
         flat = flatten_inputs(self.calc.Inputs, self.case.inputs)
+        #: Records the case links that were not issued yet, issued first into the record folder (as a site run would).
+        self.issued = []
+        if hasattr(self.calc, "linked_record_problems"):
+            self._progress.step("issuing the records the case links that are not issued yet")
+            self.issued = issue_linked_records(
+                lambda: parse_inputs(self.calc.Inputs, flat, self.site, self.case.path, IssuedRecords(self.record_folder)),
+                Path(self.case.path).parent, self.record_folder)
         self._progress.step(f"building the form ({len(flat)} inputs given)")
         self._settings = {k: v for k, v in self.case.uncertainty.items() if k in SETTINGS}
         self.form = CaseForm(self.calc.Inputs, flat, headers=tuple(self.site.headers),
@@ -131,6 +139,7 @@ class Workbook:
         self._save_button.add_class("steamcalc-save")
         self._save_status = widgets.HTML(layout=widgets.Layout(flex="1 1 auto", min_width="0", width="auto"))
         self._save_status.add_class("steamcalc-save-status")
+        self._save_status.value = "".join(f"<div>{html.escape(line)}</div>" for line in self.issued)
         self._save_button.on_click(lambda _: self._on_save())
         # Offered when the revision already holds another record: raise the Revision box to the next free one and
         # save (as the case-file save offers).

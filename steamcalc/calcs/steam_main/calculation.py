@@ -16,6 +16,7 @@ from ...units.amounts import Phrase
 from ...units.rows import Column
 from ..base import Result, check_fields, full_record_wanted, input_field
 from .economics import OPTION_COLUMNS, check_options, report_economics
+from .load import load_source
 from .report import report_main
 from .report_condensate import report_return, report_traps
 from .supply import linked_record_problems, supply_source
@@ -70,8 +71,8 @@ class Inputs:
         "feeds it ([inputs.supply_link]).",
         example="header:MP", required=True)
     steam_flow: float = input_field(
-        "mass_flow", "Steam flow", "Steam the main carries to its users.", example="750 kg/h", required=True,
-        positive=True)
+        "mass_flow", "Steam flow", "Steam the main carries to its users; leave it out when a heater record gives "
+        "it ([inputs.load_link]).", example="750 kg/h", required=True, positive=True)
     supply_temperature: float | None = input_field(
         "temperature", "Supply temperature", "Leave empty for saturated steam; give it (or supply_superheat) when "
         "superheated.",
@@ -96,6 +97,21 @@ class Inputs:
     supply_link_content_digest: str | None = input_field(
         "text", "Supply record's content digest", "Filled in from the linked record when the main runs (give it "
         "only to pin the record you checked).", example="sha256:...", section="supply_link", key="content_digest")
+    load_link_record_id: str | None = input_field(
+        "text", "Heater record", "An issued steam-heater record whose steam flow at design duty is the main's steam "
+        "flow, instead of a figure copied from it.", example="HX-01", section="load_link", key="record")
+    load_link_revision: str | None = input_field(
+        "text", "Heater record's revision", "Revision of the linked heater record.", example="B",
+        section="load_link", key="revision")
+    load_link_folder: str | None = input_field(
+        "text", "Heater record's folder", "Folder of the linked heater record, relative to the case file; the site's "
+        "records folder when not given.", example="../records", section="load_link", key="folder")
+    load_link_kind: str | None = input_field(
+        "text", "Heater record's kind", "Filled in from the linked record when the main runs (give it only to pin "
+        "it).", example="exchanger", section="load_link", key="kind")
+    load_link_content_digest: str | None = input_field(
+        "text", "Heater record's content digest", "Filled in from the linked record when the main runs (give it "
+        "only to pin the record you checked).", example="sha256:...", section="load_link", key="content_digest")
     segments: tuple | None = input_field(
         "rows", "Segments", "The main's straight runs in order from the header: length, size, schedule, fittings K "
         "and rise (a fall below zero).", example='[{length = "75 m", size = "DN80"}]', required=True,
@@ -229,9 +245,11 @@ class Inputs:
 
     @classmethod
     def linked_values(cls, values, given, site, case_path=None, read_record=None):
-        """The supply from a linked let-down record (:func:`.supply.linked_supply`), when the case names one."""
+        """The supply from a linked let-down record (:func:`.supply.linked_supply`) and the steam flow from a linked
+        heater record (:func:`.load.linked_load`), when the case names them."""
+        from .load import linked_load
         from .supply import linked_supply
-        return linked_supply(values, given, case_path, read_record)
+        return linked_load(*linked_supply(values, given, case_path, read_record), case_path, read_record)
 
     @property
     def main_segments(self):
@@ -299,9 +317,9 @@ def calculate(inputs, site):
         f"Gauge pressures converted with the site atmosphere of {site.atmospheric_pressure / 1e5:.5g} bar(a)",
         "Insulation conductivity straight through the maker's figures at 50 °C and 150 °C mean temperature",
     ])
-    source = supply_source(inputs)
-    if source is not None:
-        result.assumptions.append(source)
+    for source in (supply_source(inputs), load_source(inputs)):
+        if source is not None:
+            result.assumptions.append(source)
     result.cautions.extend(CAUTIONS)
     supply = _supply_state(inputs)
     if inputs.ambient_temperature >= supply.temperature - 1.0:

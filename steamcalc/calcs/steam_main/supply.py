@@ -2,7 +2,7 @@
 
 ``[inputs.supply_link] record = "LD-01", revision = "B"`` names the let-down record whose outlet (after its
 desuperheater, if it has one) feeds the main. The record is found and checked as the site balance finds its
-linked records (:func:`steamcalc.calcs.links.find_linked_record`); its outlet pressure (the let-down's
+linked records (:func:`steamcalc.calcs.links.take_flat_link`, as the main's load link is); its outlet pressure (the let-down's
 ``outlet_pressure`` input) and outlet temperature (its ``outlet_temperature`` result, when superheated) are
 copied into the main's ``supply_pressure`` and ``supply_temperature``, and the link is kept as four inputs
 (``supply_link_record_id``, ``_revision``, ``_kind``, ``_content_digest``), so that ``verify`` and
@@ -13,31 +13,17 @@ from __future__ import annotations
 
 from ...errors import InputError
 from ...units.quantities import from_record_unit
-from ..links import DEFAULT_FOLDER, find_linked_record, link_problems, stale_links
+from ..links import FlatLink, link_problems, stale_links, take_flat_link
 
 #: The linked record's kind: a main is fed from a let-down's outlet.
 SUPPLY_KIND = "letdown"
 HOLDER = "the main"
+#: The supply link: a let-down record whose outlet gives the main's supply state.
+SUPPLY_LINK = FlatLink(item="supply", kind=SUPPLY_KIND, words="let-down record", example="LD-01",
+                       replaces=("supply_pressure", "supply_temperature", "supply_superheat"),
+                       instead="feed the main from a header", holder=HOLDER)
 #: Outlet superheat below which the let-down's outlet is taken as saturated steam, K.
 SATURATED_SUPERHEAT = 1e-6
-
-
-def _refuse_both(values, record_id):
-    for name in ("supply_pressure", "supply_temperature", "supply_superheat"):
-        if values.get(name) is not None:
-            raise InputError(f"{name} comes from the linked let-down record {record_id}; it is not given twice",
-                             field=name, fix=f"leave {name} out, or drop [inputs.supply_link] and feed the main "
-                                             "from a header")
-
-
-def _pinned(values, name, found, record_id):
-    """A kind or content digest given in the case file pins the link: the file must still hold it."""
-    given = values.get(f"supply_link_{name}")
-    if given is not None and given != found:
-        raise InputError(f"linked record {record_id} has {name.replace('_', ' ')} {found}, not the {given} the case "
-                         "file pins", field=f"supply_link.{name}", value=given,
-                         fix=f"re-check the main against the re-issued {record_id} and give {name} = \"{found}\", "
-                             f"or leave {name} out")
 
 
 def linked_supply(values, given, case_path, read_record):
@@ -58,22 +44,10 @@ def linked_supply(values, given, case_path, read_record):
         ``(values, given)`` with ``supply_pressure``, ``supply_temperature`` (absent for a saturated outlet)
         and the link's four inputs added.
     """
-    record_id = values.get("supply_link_record_id")
-    if record_id is None:
-        for name in ("revision", "folder", "kind", "content_digest"):
-            if values.get(f"supply_link_{name}") is not None:
-                raise InputError(f"a supply record's {name.replace('_', ' ')} is given without the record",
-                                 field="supply_link.record", fix='give record = "LD-01" in [inputs.supply_link], '
-                                                                 "or remove [inputs.supply_link]")
+    record, values, given = take_flat_link(SUPPLY_LINK, values, given, case_path, read_record)
+    if record is None:
         return values, given
-    _refuse_both(values, record_id)
-    revision = values.get("supply_link_revision")
-    record = find_linked_record(record_id, revision, SUPPLY_KIND, folder=values.get("supply_link_folder") or
-                                DEFAULT_FOLDER, case_path=case_path, read_record=read_record, where="supply_link",
-                                holder=HOLDER, links_table="[inputs.supply_link]",
-                                revision_fix='give revision = "B" in [inputs.supply_link]')
-    _pinned(values, "kind", record["kind"], record_id)
-    _pinned(values, "content_digest", record["content_digest"], record_id)
+    record_id, revision = values["supply_link_record_id"], values["supply_link_revision"]
     try:
         entry = record["inputs"]["outlet_pressure"]
         pressure = from_record_unit(entry["value"], entry["unit"], "pressure")
@@ -91,10 +65,8 @@ def linked_supply(values, given, case_path, read_record):
                          "the main is calculated from dry steam", field="supply_link.record", value=record_id,
                          fix="link a let-down whose outlet is saturated or superheated (its desuperheater's "
                              "target above saturation), or feed the main from a header")
-    values = dict(values, supply_pressure=pressure, supply_link_revision=revision, supply_link_kind=record["kind"],
-                  supply_link_content_digest=record["content_digest"])
-    given = dict(given, supply_pressure=f"{pressure / 1e5:.12g} bar(a)", supply_link_kind=record["kind"],
-                 supply_link_content_digest=record["content_digest"])
+    values = dict(values, supply_pressure=pressure)
+    given = dict(given, supply_pressure=f"{pressure / 1e5:.12g} bar(a)")
     if superheat is not None and superheat > SATURATED_SUPERHEAT:
         values["supply_temperature"] = temperature
         given["supply_temperature"] = f"{temperature - 273.15:.12g} degC"
