@@ -172,12 +172,17 @@ def test_a_huge_fittings_k_is_refused_by_name_not_an_internal_fault(tmp_path, ca
     assert code == 2 and "overpressure.inlet_fittings_k" in err, err
 
 
-def test_a_fittings_k_of_zero_is_refused_with_a_fix_that_fits(tmp_path, capsys):
-    """A sum of loss coefficients is above zero when given, and left out for none (the field's help says so): a
-    zero is refused by name, and the fix says what to do, not "write it without quotes or units"."""
+def test_a_fittings_k_of_zero_is_taken_and_a_negative_refused_with_a_fix_that_fits(tmp_path, capsys):
+    """A sum of loss coefficients is 0 or more (a pipe with no fittings; the Inputs' checks and the "0 to 1000" range
+    of every ``*fittings_k`` say so): a zero is taken, a negative refused by name, and the fix says what to do, not
+    "write it without quotes or units"."""
     code, _, err = run_case_text(tmp_path, capsys, FLASH_CASE.format(
         design=DESIGN, pipe='inlet_size = "DN80"\ninlet_length = "0.5 m"\ninlet_fittings_k = 0'))
-    assert code == 2 and "overpressure.inlet_fittings_k" in err, err
+    assert code == 0 and "inlet_fittings_k" not in err, err
+    (tmp_path / "negative").mkdir()
+    code, _, err = run_case_text(tmp_path / "negative", capsys, FLASH_CASE.format(
+        design=DESIGN, pipe='inlet_size = "DN80"\ninlet_length = "0.5 m"\ninlet_fittings_k = -0.5'))
+    assert code == 2 and "overpressure.inlet_fittings_k" in err and "0 or more" in err, err
     assert "leave the key out" in err and "without quotes" not in err
 
 

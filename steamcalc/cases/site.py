@@ -546,7 +546,8 @@ def parse_inputs(inputs_class, flat, site, case_path=None, read_record=None):
         elif kind == "fraction":
             values[f.name] = _fraction(raw, where)
         elif kind == "number":
-            values[f.name] = _positive_number(raw, where)
+            # A sum of loss coefficients may be 0 (no fittings), as the Inputs' own checks and their range say.
+            values[f.name] = _positive_number(raw, where, zero=f.name.endswith("fittings_k"))
         elif kind == "flag":
             values[f.name] = _flag(raw, where)
         elif kind in ("nominal_size", "text"):
@@ -587,13 +588,15 @@ def _pressure_or_header(raw, field_name, site):
     return parse_pressure(raw, field_name, site.atmospheric_pressure)
 
 
-def _positive_number(value, field_name):
+def _positive_number(value, field_name, zero=False):
+    """A plain finite number above zero (``zero``: 0 or more)."""
+    wanted = "0 or more" if zero else "above zero"
     if isinstance(value, bool) or not isinstance(value, (int, float)) or not math.isfinite(value):
-        raise InputError("must be a plain, finite number above zero", field=field_name, value=_shown(value),
+        raise InputError(f"must be a plain, finite number {wanted}", field=field_name, value=_shown(value),
                          fix="write it without quotes or units")
-    if value <= 0:   # a number, but not one this input takes: the fix is another number, or none
-        raise InputError("must be a plain, finite number above zero", field=field_name, value=_shown(value),
-                         fix="give a number above zero, or leave the key out where the input is optional")
+    if value < 0 or (value == 0 and not zero):   # a number, but not one this input takes: another number, or none
+        raise InputError(f"must be a plain, finite number {wanted}", field=field_name, value=_shown(value),
+                         fix=f"give a number {wanted}, or leave the key out where the input is optional")
     return float(value)
 
 

@@ -31,7 +31,7 @@ from .capacity import add_capacity, find_capacity
 from .control import add_control, check_control_inputs
 from .figures import figures
 from .overpressure import RECORD_PATTERNS as OVERPRESSURE_PATTERNS
-from .overpressure import add_overpressure, check_overpressure_inputs
+from .overpressure import add_overpressure, check_design_pressures, check_overpressure_inputs
 from .supply import steam_states, steam_steps, supply_state
 from .zones import ARRANGEMENTS, ZONE_NAMES, add_zones, f_factor, lmtd, service_u  # noqa: F401
 
@@ -227,7 +227,7 @@ class Inputs:
         key="inlet_length")
     relief_inlet_fittings_k: float | None = input_field(
         "number", "Tube-rupture relief inlet fittings K", "Sum of the loss coefficients of that inlet pipe (entry, "
-        "fittings), above zero; none counted when not given.", example="0.5", section="overpressure",
+        "fittings), 0 or more; none counted when not given.", example="0.5", section="overpressure",
         key="inlet_fittings_k")
     discharge_size: str | None = input_field(
         "nominal_size", "Tube-rupture relief discharge pipe size", "Nominal size of the tube-rupture relief valve's "
@@ -442,6 +442,7 @@ def calculate(inputs, site):
         f"Gauge pressures converted with the site atmosphere of {site.atmospheric_pressure / 1e5:.5g} bar(a)",
     ])
     result.cautions.extend(CAUTIONS)
+    check_design_pressures(inputs, site.atmospheric_pressure)
     arrangement = inputs.arrangement or "counterflow"
     t_in, t_out = inputs.process_inlet_temperature, inputs.process_outlet_temperature
 

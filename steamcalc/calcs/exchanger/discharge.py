@@ -18,6 +18,7 @@ from ...equipment.relief import API526_AREAS_IN2, MM2_PER_IN2
 from ...equipment.two_phase_relief import KD_SUBCOOLED, isentropic_flux
 from ...errors import InputError
 from ...properties.steam import SteamState, dynamic_viscosity
+from ...units.amounts import Phrase
 from ..overpressure import (
     VALVE_TYPES, back_pressure_check, discharge_diameter, discharge_section, flashing_relief_area, relieving_pressure,
     two_phase_discharge_section,
@@ -226,7 +227,8 @@ def liquid_discharge_section(result, prefix, name, *, valve_type, set_pressure, 
     """Built-up back pressure of a liquid discharge against the valve's limit, and the reaction force.
 
     Liquid hotter than its boiling point at the atmosphere flashes in the pipe: it goes to
-    :func:`steamcalc.calcs.overpressure.two_phase_discharge_section` with its relieving state.
+    :func:`steamcalc.calcs.overpressure.two_phase_discharge_section` with its relieving state. A line whose back
+    pressure at the rated flow would reach the set pressure fails with no figure, and None is returned.
     """
     if liquid.temperature > SteamState.from_p_dryness(atm, 0.0).temperature:
         result.assumptions.append(f"{name}: the liquid ({liquid.temperature - 273.15:.1f} °C) boils at the "
@@ -246,6 +248,16 @@ def liquid_discharge_section(result, prefix, name, *, valve_type, set_pressure, 
     area = flow_area(diameter)
     flux = flow / area
     outlet = atm + line.pressure_drop
+    if outlet >= set_pressure:
+        # No valve passes its rated flow against a back pressure at its set pressure: the figure the rated flow would
+        # give is no back pressure the valve sees, so none is given (as the steam's and the two-phase line's).
+        resistance = line.friction_factor * length / diameter + fittings_k
+        result.check(f"{name}: built-up back pressure", "fail", Phrase.of(
+            f"the discharge pipe's resistance ({resistance:.3g} velocity heads, {size}, {length:g} m) would raise the "
+            "back pressure to the set pressure {p_set:.4g} or above at the valve's rated flow: the valve could not "
+            "pass its flow, and no back pressure or reaction force is given; fix: give a larger or shorter discharge "
+            "pipe (at least the valve's outlet)", p_set=(set_pressure / 1e5, "bar")))
+        return None
     result.work(f"{name}: built-up back pressure (liquid)",
                 "p1 = p_atm + (f·L/D + ΣK)·G²/(2ρ), f by Colebrook  [Darcy-Weisbach, Crane TP-410]",
                 "p_atm + (f*L/D + K)*G**2/(2*rho)", outlet / 1e5, "bar", p_atm=(atm / 1e5, "bar"),

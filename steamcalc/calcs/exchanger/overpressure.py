@@ -31,7 +31,10 @@ from ...equipment.relief import API526_AREAS_IN2, MM2_PER_IN2, direct_integratio
 from ...errors import InputError, OutOfRangeError
 from ...properties.steam import SteamState
 from ...units.amounts import Phrase
-from ..overpressure import CAUTIONS, discharge_section, relieving_pressure, select_orifice, steam_relief_area
+from ..overpressure import (
+    CAUTIONS, DEFAULT_OVERPRESSURE, WATER_CRITICAL_PRESSURE, discharge_section, relieving_pressure, select_orifice,
+    steam_relief_area,
+)
 from ..relief_inlet import check_inlet_pipe_inputs, inlet_pipe_not_assessed, relief_inlet_loss
 from ..relief_back_pressure import Sizing, balanced_kb, critical_flow_check, size_at_built_up_back_pressure
 from .discharge import (
@@ -104,6 +107,46 @@ def check_overpressure_inputs(inputs):
             field=f"overpressure.{missing}" if missing == "expansion_coefficient" else "process_density",
             fix="give [inputs.overpressure] expansion_coefficient (per K, from the liquid's data sheet) and "
                 "process_density, or remove process_side_design_pressure to leave the overpressure unassessed")
+
+
+def check_design_pressures(inputs, atm):
+    """Refusals of the two sides' design pressures that need the site's atmosphere ``atm`` (Pa), from ``calculate``
+    before any working.
+
+    A side designed for the atmosphere or for vacuum alone (0 bar(g) or less) is refused rather than assessed: the
+    relief valve of a side is set at its design pressure, and a valve set at or below the atmosphere cannot open to
+    it, so no relief case can be sized there (the sizing equations divide by the gauge set pressure). A side open to
+    the atmosphere is protected by its vent, and a shell rated for vacuum states an internal design pressure as well
+    (internal and external pressure are separate design conditions: ASME BPVC VIII-1 UG-21 and UG-28, from
+    memory). Water's relief is worked on IF97 below its critical pressure: a process side whose relieving pressure
+    (set + 10 %) is at or above it is refused too.
+    """
+    for side, pressure in (("steam", inputs.steam_side_design_pressure),
+                           ("process", inputs.process_side_design_pressure)):
+        if pressure is not None and pressure <= atm:
+            raise InputError(
+                f"the {side} side's design pressure {pressure / 1e5:.4g} bar(a) ({(pressure - atm) / 1e5:.4g} bar(g)) is "
+                "not above the atmosphere: a relief valve set there could not open, and no relief case can be sized "
+                "at it",
+                field=f"overpressure.{side}_side_design_pressure", value=pressure,
+                fix=f"give the {side} side's internal design pressure from the nameplate (above 0 bar(g); a shell "
+                    "also rated for vacuum states both, e.g. 3.5 bar(g) and full vacuum), or remove "
+                    "steam_side_design_pressure and process_side_design_pressure to leave the overpressure unassessed "
+                    "(a side open to the atmosphere is protected by its vent)")
+    pressure = inputs.process_side_design_pressure
+    if pressure is not None and inputs.process_cp is None:
+        highest = (WATER_CRITICAL_PRESSURE + DEFAULT_OVERPRESSURE * atm) / (1.0 + DEFAULT_OVERPRESSURE)
+        if pressure >= highest:
+            raise InputError(
+                f"the process side's design pressure {pressure / 1e5:.4g} bar(a) ({(pressure - atm) / 1e5:.4g} bar(g)) "
+                "puts its relieving pressure "
+                f"(set + 10 %) at or above water's critical pressure {WATER_CRITICAL_PRESSURE / 1e5:.5g} bar(a), "
+                "where the thermal relief's boiling and liquid states (IF97) end",
+                field="overpressure.process_side_design_pressure", value=pressure,
+                limits=(0.0, (highest - atm) / 1e5, "bar(g)"),
+                fix="check the design pressure (and its gauge or absolute basis); a process side designed this high "
+                    "is for the relief system's designer: remove steam_side_design_pressure and "
+                    "process_side_design_pressure to leave the overpressure unassessed")
 
 
 def add_overpressure(inputs, steam_side_heat, process_pressure, site, result):

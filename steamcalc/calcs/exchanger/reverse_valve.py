@@ -11,10 +11,12 @@ steam side: it honours the ``[inputs.overpressure]`` inputs the process side's v
   flow, the liquid by Darcy–Weisbach, or as a flashing mixture when it boils at the atmosphere), the valve sized
   again at the back pressures they build up
   (:func:`steamcalc.calcs.relief_back_pressure.size_at_built_up_back_pressure`);
-* the inlet pipe: its loss at the rated flow of the governing fluid against 3 % of the gauge set pressure (API 520
-  Part II, inlet piping, as :mod:`steamcalc.calcs.relief_inlet` cites it): the process liquid subcooled at the steam
-  side's relieving pressure (the heater cannot heat it above the steam's saturation temperature there), or the
-  displaced steam, saturated at that pressure.
+* the discharge pipe's size against the valve's outlet, as the let-down's relief valve
+  (:mod:`steamcalc.calcs.relief_outlet`);
+* the inlet pipe: the loss of each fluid at the selected orifice's rated flow for it, the larger against 3 % of the
+  gauge set pressure (API 520 Part II, inlet piping, as :mod:`steamcalc.calcs.relief_inlet` cites it): the displaced
+  steam, saturated at the relieving pressure, and the process liquid subcooled there (the heater cannot heat it
+  above the steam's saturation temperature).
 
 With none of them given the record is as it was before the valve honoured them: the valve sized discharging to the
 atmosphere, and nothing said of pipes not given.
@@ -22,12 +24,17 @@ atmosphere, and nothing said of pipes not given.
 
 from __future__ import annotations
 
+import math
+
 from ...equipment.relief import direct_integration_flux
 from ...properties.steam import SteamState
-from ..overpressure import select_orifice, steam_relief_area
+from ...units.amounts import Phrase
+from ..base import Result
+from ..overpressure import DEFAULT_SCHEDULE, select_orifice, steam_relief_area
 from ..relief_back_pressure import Sizing, balanced_kb, critical_flow_check, size_at_built_up_back_pressure
 from ..relief_inlet import inlet_pipe_not_assessed, relief_inlet_loss
-from .discharge import discharge_pipe_not_assessed, liquid_relief_area, tube_rupture_discharge
+from ..relief_outlet import narrow_outlet_warning, valve_outlet_pipe
+from .discharge import TUBE_KEYS, discharge_pipe_not_assessed, liquid_relief_area, tube_rupture_discharge
 
 NAME = "Tube rupture, process side the higher"
 PREFIX = "tube_rupture_reverse"
@@ -115,26 +122,59 @@ def reverse_valve(inputs, atm, result, *, relieving_pressure, load, density, vap
             discharge_pipe_not_assessed(result, NAME, inputs, why)
         inlet_pipe_not_assessed(result, NAME, inputs.relief_inlet_size, why)
         return
-    _inlet_pipe(inputs, result, sizing, rated, liquid, vapour, set_pressure, atm)
+    if inputs.discharge_size is not None:
+        # The outlet pipe against the valve's outlet, as the let-down's relief valve (its bore needs no viscosity).
+        _, described, narrower = valve_outlet_pipe(result.value(f"{PREFIX}_orifice"), inputs.discharge_size,
+                                                   DEFAULT_SCHEDULE, TUBE_KEYS[0])
+        if narrower:
+            narrow_outlet_warning(result, f"{NAME}: discharge line size", described)
+    _inlet_pipe(inputs, result, sizing, liquid, vapour, set_pressure, atm, (displaced, load))
     if piped:
         built = discharge(result, result.value(f"{PREFIX}_orifice_area"), sizing)
         critical_flow_check(result, f"{NAME}, {FLUIDS[0]}", sizing, None if built is None else built[0])
 
 
-def _inlet_pipe(inputs, result, sizing, rated, liquid, vapour, set_pressure, atm):
-    """The inlet pipe's loss at the rated flow of the governing fluid, when the pipe is given (a record without it
-    says nothing of it, as before)."""
+def _inlet_pipe(inputs, result, sizing, liquid, vapour, set_pressure, atm, flows):
+    """The inlet pipe's loss for each fluid the valve passes, each at the selected orifice's rated flow for it: the
+    displaced steam first, then the liquid, through the same pipe. The larger loss is held against 3 % of the gauge
+    set pressure (the check, as the forward valve's); the other's steps are kept, and a notice gives both. A record
+    without the pipe says nothing of it, as before."""
     if inputs.relief_inlet_size is None:
         return
-    liquid_governs = sizing.method == LIQUID_GOVERNS
-    if liquid_governs and liquid is None:
+    if liquid is None:
         inlet_pipe_not_assessed(result, NAME, inputs.relief_inlet_size, NOT_WATER)
         return
-    if liquid_governs:
-        result.assumptions.append(f"{NAME}: the inlet pipe carries the process liquid at the steam side's relieving "
-                                  "pressure and the process outlet temperature, subcooled there (the heater cannot "
-                                  "heat it above the steam's saturation temperature)")
-    relief_inlet_loss(result, PREFIX, NAME, state=liquid if liquid_governs else vapour, rated_flow_kg_h=rated,
-                      set_pressure=set_pressure, atm=atm, size=inputs.relief_inlet_size,
-                      length=inputs.relief_inlet_length, fittings_k=inputs.relief_inlet_fittings_k,
-                      fluid=FLUIDS[1] if liquid_governs else FLUIDS[0])
+    orifice_area, letter = result.value(f"{PREFIX}_orifice_area"), result.value(f"{PREFIX}_orifice")
+    # The rated flow of each: its flow times the selected orifice's area over the area it needs (as select_orifice).
+    rated = {fluid: flow * orifice_area / area for fluid, (flow, area) in zip(FLUIDS, zip(flows, sizing.detail))}
+    states = dict(zip(FLUIDS, (vapour, liquid)))
+
+    def inlet_loss(res, name, fluid):
+        return relief_inlet_loss(res, PREFIX, name, state=states[fluid], rated_flow_kg_h=rated[fluid],
+                                 set_pressure=set_pressure, atm=atm, size=inputs.relief_inlet_size,
+                                 length=inputs.relief_inlet_length, fittings_k=inputs.relief_inlet_fittings_k,
+                                 fluid=fluid)
+
+    shares, trials = {}, {fluid: Result() for fluid in FLUIDS}
+    for fluid, trial in trials.items():
+        trial.add(f"{PREFIX}_orifice", "", letter)
+        shares[fluid] = inlet_loss(trial, f"{NAME}, {fluid}", fluid)
+    # A pipe that cannot pass a fluid's flow at all (None: it chokes) is the worse.
+    worse = max(FLUIDS, key=lambda fluid: math.inf if shares[fluid] is None else shares[fluid])
+    other = FLUIDS[1 - FLUIDS.index(worse)]
+    result.assumptions.append(f"{NAME}: the inlet pipe carries the process liquid at the steam side's relieving "
+                              "pressure and the process outlet temperature, subcooled there (the heater cannot heat it "
+                              "above the steam's saturation temperature)")
+    inlet_loss(result, NAME, worse)
+    result.steps.extend(trials[other].steps)   # the other fluid's steps, named by it
+    if shares[other] is None:   # neither passes its flow: the other's failure is said too
+        result.checks.extend(c for c in trials[other].checks if c.status == "fail")
+        return
+    shown = ".1f" if shares[other] >= 0.001 else ".2g"
+    result.add(f"{PREFIX}_inlet_loss_fraction_{other.split()[-1]}", f"{NAME}: inlet loss of the {other}, of the "
+               "gauge set pressure", 100.0 * shares[other], "percent")
+    result.notice(f"{NAME}: relief inlet pressure loss of each fluid", Phrase.of(
+        f"the valve passes the displaced steam first and then the process liquid through the same inlet pipe, each "
+        f"at the selected orifice's rated flow for it: the {other} loses {{other:{shown}}} of the gauge set pressure at "
+        f"{{flow:.0f}}, no more than the {worse}, whose loss is the one held against the limit (API 520 Part II, "
+        "inlet piping)", other=(100.0 * shares[other], "percent"), flow=(rated[other], "kg/h")))

@@ -128,7 +128,7 @@ class Inputs:
         example="0.5 m", section="overpressure", positive=True, key="inlet_length")
     relief_inlet_fittings_k: float | None = input_field(
         "number", "Relief inlet fittings K", "Sum of the loss coefficients of the relief inlet pipe (entry, "
-        "fittings), above zero; none counted when not given.", example="0.5", section="overpressure",
+        "fittings), 0 or more; none counted when not given.", example="0.5", section="overpressure",
         key="inlet_fittings_k")
     discharge_size: str | None = input_field(
         "nominal_size", "Relief discharge pipe size", "Nominal size of the relief valve's discharge pipe "

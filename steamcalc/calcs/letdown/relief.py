@@ -7,15 +7,16 @@ Called by :func:`steamcalc.calcs.letdown.calculation.calculate` after the relief
 
 from __future__ import annotations
 
-from ...equipment.piping import DN_TO_NPS, flow_area, pipe_inner_diameter
+from ...equipment.piping import flow_area, pipe_inner_diameter
 from ...equipment.relief import (
-    API526_AREAS_IN2, API526_OUTLET_NPS, CONVENTIONAL_BACK_PRESSURE_LIMIT, DEFAULT_KD, INLET_LOSS_LIMIT,
+    API526_AREAS_IN2, CONVENTIONAL_BACK_PRESSURE_LIMIT, DEFAULT_KD, INLET_LOSS_LIMIT,
     MM2_PER_IN2, MOLAR_MASS_WATER, api526_orifice,
     back_pressure_correction, direct_integration_area, direct_integration_flux, reaction_force, steam_equation_area,
 )
 from ...errors import OutOfRangeError
 from ...properties.steam import SteamState
 from ...units.amounts import Phrase
+from ..relief_outlet import narrow_outlet_warning, valve_outlet_pipe
 from .discharge import discharge_line_section
 from .equipment import (
     DEFAULT_SCHEDULE, inlet_state_at, line_drop, relief_set_pressure, sizing_kappa, upstream_relieving_pressure,
@@ -34,21 +35,6 @@ RELIEF_CAUTIONS = (
     "the selection.",
     "The relief valve's discharge must go to a safe place, with its reaction force carried by the supports.",
 )
-
-
-def _discharge_diameter(inputs, letter, schedule):
-    """Inner diameter (m) of the relief valve's outlet pipe, its description, and whether it is narrower than the
-    valve's outlet."""
-    nps = API526_OUTLET_NPS[letter]
-    dn = next(d for d, n in DN_TO_NPS.items() if n == nps)
-    outlet = (f"DN{dn} (the smallest outlet API 526 pairs with the {letter} orifice: its inlet × orifice × outlet sizes "
-              "as tabulated in the Valve Selection Handbook, Table 5-1)")
-    valve_outlet = pipe_inner_diameter(f"DN{dn}", schedule)
-    if inputs.relief_discharge_size is None:
-        return valve_outlet, outlet, False
-    diameter = pipe_inner_diameter(inputs.relief_discharge_size, schedule, field="relief.discharge_size")
-    return diameter, f"{inputs.relief_discharge_size} (given), on the valve's outlet {outlet}", \
-        diameter < valve_outlet * (1.0 - 1e-9)
 
 
 #: Gauge pressure below which the usual pressure-vessel codes do not apply: 15 psig = 1.034 bar (ASME BPVC VIII-1,
@@ -183,12 +169,10 @@ def relief_section(inputs, inlet, site, result):
     schedule = inputs.schedule or DEFAULT_SCHEDULE
     _inlet_loss(inputs, relieving, rated_flow, p_set, atm, schedule, result)
     kappa = sizing_kappa(relieving)
-    diameter, described, narrower = _discharge_diameter(inputs, letter, schedule)
+    diameter, described, narrower = valve_outlet_pipe(letter, inputs.relief_discharge_size, schedule,
+                                                      "relief.discharge_size")
     if narrower:
-        result.check("Relief discharge line size", "warn",
-                     f"the outlet pipe {described} is narrower than the valve's outlet: it raises the built-up back "
-                     "pressure and the reaction force; run it at the outlet size or larger (common practice; the "
-                     "valve maker's installation instructions govern)")
+        narrow_outlet_warning(result, "Relief discharge line size", described)
     outlet_area = flow_area(diameter) * 1e6
     force, p_exit = reaction_force(rated_flow, relieving.temperature, kappa, outlet_area, atm)
     result.assumptions.append(f"Relief reaction force: open discharge through {described}")
