@@ -133,7 +133,12 @@ def test_sketch_is_plain_svg_and_escapes_record_text(record):
 def test_workbook_shows_the_main_sketch(tmp_path):
     from steamcalc.ui.workbook import Workbook
 
-    wb = Workbook(CASES / "SM-01.toml", tmp_path / "records")   # HX-01, whose steam flow SM-01 takes, issued first
+    import shutil
+
+    # A copy of the demo site without its records (a run of the workbooks may have left some in the repository's).
+    site = tmp_path / "site"
+    shutil.copytree(CASES.parent, site, ignore=shutil.ignore_patterns("records"))
+    wb = Workbook(site / "cases" / "SM-01.toml", tmp_path / "records")   # HX-01, whose flow SM-01 takes, issued first
     assert wb.issued == ["HX-01 rev B issued from HX-01.toml (it was not in records/)"]
     assert "Steam main and condensate return SM-01" in wb.sketch_view().value
     # A steam flow typed beside the heater link is refused until the link is cleared; then it is the sketch's.
