@@ -107,3 +107,9 @@ def test_rewordings_are_in_release_order_and_name_a_later_release():
     assert [release(r.since) for r in REWORDINGS] == sorted(release(r.since) for r in REWORDINGS)
     assert all(release(r.since) > (0, 3, 0) for r in REWORDINGS)
     assert len({(r.before, r.since) for r in REWORDINGS}) == len(REWORDINGS)
+
+
+def test_the_omega_steps_words_now_are_the_calculations():
+    from steamcalc.calcs.overpressure import OMEGA_EQUATION
+
+    assert any(r.now == OMEGA_EQUATION for r in REWORDINGS)

@@ -91,6 +91,11 @@ def steam_relief_area(result, name, relieving, flow_kg_h, back, kb=1.0):
     return (area_se, "API 520 steam equation") if area_se > area_di else (area_di, "direct integration")
 
 
+#: The omega parameter's step: the second state as equipment.two_phase_relief finds it (SECOND_POINT).
+OMEGA_EQUATION = ("ω = 9·(v9/v0 − 1), v9 after an isentropic flash to 0.9·p0 (a two-phase inlet) or to 0.9·p_s, 90 % of "
+                  "the saturation pressure (a subcooled inlet)  [API 520 Part I annex C]")
+
+
 def flashing_relief_area(result, name, inlet, flow_kg_h, back, kb=1.0):
     """Required area (mm²) of a two-phase or flashing-liquid load by the omega method and by direct integration,
     both on IF97, down to the back pressure ``back`` (Pa: the omega method's subcritical flux when it is above
@@ -98,7 +103,7 @@ def flashing_relief_area(result, name, inlet, flow_kg_h, back, kb=1.0):
     (API 520 Part I figure 31), 1 for other valves. Returns ``(area, method, FlashingRelief)``."""
     sized = size_flashing_relief(inlet, back, flow_kg_h, kb=kb)
     flow = sized.omega
-    result.work(f"{name}: omega parameter (two-point, IF97)", "ω = 9·(v9/v0 − 1)  [API 520 Part I annex C]",
+    result.work(f"{name}: omega parameter (two-point, IF97)", OMEGA_EQUATION,
                 "9*(v9/v0 - 1)", flow.omega, v9=(sized.second_volume, "m**3/kg"), v0=(1.0 / inlet.density, "m**3/kg"))
     if flow.region == "two-phase":
         result.work(f"{name}: critical pressure ratio",

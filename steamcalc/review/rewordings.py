@@ -49,6 +49,9 @@ REWORDINGS = (
     Rewording("0.3.1", "API 520 Part II, 4.4.1.1", "API 520 Part II, open-discharge reaction force",
               "the reaction-force equation cited by its subject: its clause number was not confirmed against the "
               "standard's text"),
+    Rewording("0.3.1", "ω = 9·(v9/v0 − 1)  [API 520 Part I annex C]", "ω = 9·(v9/v0 − 1), v9 after an isentropic "
+              "flash to 0.9·p0 (a two-phase inlet) or to 0.9·p_s, 90 % of the saturation pressure (a subcooled inlet)  "
+              "[API 520 Part I annex C]", "the omega parameter's step says where and how its second state is found"),
 )
 
 #: The parts of a record that hold the calculation's statements (never the engineer's own words or inputs).

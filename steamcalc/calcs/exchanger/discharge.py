@@ -142,16 +142,21 @@ def liquid_relief_area(result, name, *, valve_type, set_pressure, atm, relieving
     """
     from fluids.safety_valve import API520_A_l, API520_W
 
-    if liquid is not None and liquid.temperature > SteamState.from_p_dryness(back, 0.0).temperature:
+    flashing = None
+    if flashes_in_valve(liquid, back):
         # A water above its boiling point at the valve's outlet flashes in the nozzle: choked two-phase flow passes
         # less than the liquid equation says, so the liquid equation would undersize the valve.
-        area, _, _ = flashing_relief_area(result, f"{name}, {fluid} flashing in the valve", liquid, flow_kg_h, back,
-                                          1.0 if kb is None else kb)
+        flashing, _, _ = flashing_relief_area(result, f"{name}, {fluid} flashing in the valve", liquid, flow_kg_h,
+                                              back, 1.0 if kb is None else kb)
         note = (f"{name}: the {fluid} is hotter than its boiling point at the valve's outlet, so it flashes in the "
-                "nozzle: sized by API 520 Part I annex C, not by the liquid equation")
+                "nozzle: sized by API 520 Part I annex C, not by the liquid equation"
+                + ("" if valve_type != "balanced-bellows" else
+                   "; of a balanced-bellows valve, by the larger of annex C's area (Kb of figure 31) and the liquid "
+                   "equation's (Kw of figure 32), so that the area never falls as the liquid starts to flash"))
         if note not in result.assumptions:
             result.assumptions.append(note)
-        return area, 1.0
+        if valve_type != "balanced-bellows":
+            return flashing, 1.0
     kw = 1.0
     if valve_type == "balanced-bellows":
         # fluids reads figure 32 with the standard atmosphere: give it the same gauge pressures.
@@ -169,7 +174,13 @@ def liquid_relief_area(result, name, *, valve_type, set_pressure, atm, relieving
                     "figure 32), P2 the back pressure at the valve outlet  [API 520 Part I liquid equation; mm², "
                     "L/min, kPa]", "11.78*Q/(Kd*Kw)*sqrt(G_l/(P1 - P2))", area, "mm**2", units_fixed=True, Kw=(kw, ""),
                     **operands)
-    return area, kw
+    return (area, kw) if flashing is None or area >= flashing else (flashing, kw)
+
+
+def flashes_in_valve(liquid, back):
+    """A water hotter than its boiling point at the back pressure ``back`` (Pa): it flashes in the valve's nozzle.
+    False for None (a liquid other than water, whose boiling point is not known here)."""
+    return liquid is not None and liquid.temperature > SteamState.from_p_dryness(back, 0.0).temperature
 
 
 def thermal_relief_capacity(inputs, result, name, *, atm):

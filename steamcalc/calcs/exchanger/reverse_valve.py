@@ -34,13 +34,16 @@ from ..overpressure import DEFAULT_SCHEDULE, select_orifice, steam_relief_area
 from ..relief_back_pressure import Sizing, balanced_kb, critical_flow_check, size_at_built_up_back_pressure
 from ..relief_inlet import inlet_pipe_not_assessed, relief_inlet_loss
 from ..relief_outlet import narrow_outlet_warning, valve_outlet_pipe
-from .discharge import TUBE_KEYS, discharge_pipe_not_assessed, liquid_relief_area, tube_rupture_discharge
+from .discharge import (
+    TUBE_KEYS, discharge_pipe_not_assessed, flashes_in_valve, liquid_relief_area, tube_rupture_discharge,
+)
 
 NAME = "Tube rupture, process side the higher"
 PREFIX = "tube_rupture_reverse"
 #: The two fluids the valve passes, in the record's words: the steam first, then the liquid.
 FLUIDS = ("displaced steam", "process liquid")
 LIQUID_GOVERNS = "process liquid (API 520 liquid equation)"
+LIQUID_FLASHING_GOVERNS = "process liquid flashing in the valve (API 520 Part I annex C)"
 #: Why a pipe of a valve for a liquid other than water is not assessed.
 NOT_WATER = ("the process liquid's viscosity is known here for water only: its pipes are for the relief system's "
              "designer")
@@ -93,7 +96,8 @@ def reverse_valve(inputs, atm, result, *, relieving_pressure, load, density, vap
                                             kb=balanced_kb(valve_type, set_pressure,
                                                            None if back is None else liquid_back, atm), **words)
         if area_liquid > area_steam:
-            return Sizing(area_liquid, load, LIQUID_GOVERNS, p_r, critical, steam_back, kb, (area_steam, area_liquid))
+            governs = LIQUID_FLASHING_GOVERNS if flashes_in_valve(liquid, liquid_back) else LIQUID_GOVERNS
+            return Sizing(area_liquid, load, governs, p_r, critical, steam_back, kb, (area_steam, area_liquid))
         return Sizing(area_steam, displaced, f"{FLUIDS[0]} ({method})", p_r, critical, steam_back, kb,
                       (area_steam, area_liquid))
 
