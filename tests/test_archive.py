@@ -5,7 +5,8 @@
 ``tests/archive/v0_3/`` those of release 0.3.0 (schema 3: steps and checks kept as amounts; release 0.3.1
 rewords some of their statements, steamcalc.review.rewordings); ``tests/archive/v0_3_hot_liquid/`` two heater
 records of release 0.3.0 whose tube-rupture valve release 0.3.1 sizes for a flashing liquid (the change of basis
-listed with its release: tests/test_hot_liquid_relief.py), with the case files they were issued from; ``tests/archive/v0_3_schema2/`` those of this release's intermediate layout (schema 2: figure
+listed with its release: tests/test_hot_liquid_relief.py), with the case files they were issued from; ``tests/archive/v0_3_1/`` those of
+this release, kept for the releases after it; ``tests/archive/v0_3_schema2/`` those of this release's intermediate layout (schema 2: figure
 data, steps and checks as text), which this release still reads. Each must verify:
 its digests intact, every result, check and statement reproduced, and its reports either matching what this
 release draws or reported as drawn by the release that issued the record — never as edited.
