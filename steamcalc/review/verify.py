@@ -644,7 +644,7 @@ def _labelled(steps):
     return keyed
 
 
-def _earlier_step_changes(old_steps, new_steps, notes, since="0.3"):
+def _earlier_step_changes(old_steps, new_steps, notes):
     """An earlier release's worked steps (text only) against this release's, matched by label.
 
     Release 0.3 writes the steps from amounts, with equations that state the step's value on their
@@ -657,17 +657,17 @@ def _earlier_step_changes(old_steps, new_steps, notes, since="0.3"):
         b = new.get(key)
         if b is None:
             notes is not None and notes.append(f"step {key[0]!r}: recorded by the earlier release, no longer a "
-                                               f"worked step since steamcalc {since}")
+                                               "worked step since steamcalc 0.3")
             continue
         if a.get("equation") != b.get("equation") and notes is not None:
-            notes.append(f"step {key[0]!r}: its equation is written otherwise since steamcalc {since} "
+            notes.append(f"step {key[0]!r}: its equation is written otherwise since steamcalc 0.3 "
                          f"(recorded {a.get('equation')!r}, now {b.get('equation')!r}); its value is compared")
         if (a.get("value") is None) != (b.get("value") is None) or (
                 a.get("value") is not None and _compare("", _step_value(a["value"]), b["value"]).verdict != "same"):
             changes.append(f"step {key[0]!r}: the record's value is not the calculation's")
     added = [key[0] for key in new if key not in old]
     if added and notes is not None:
-        notes.append(f"steps worked since steamcalc {since} that the record does not have: {', '.join(map(repr, added))}")
+        notes.append(f"steps worked since steamcalc 0.3 that the record does not have: {', '.join(map(repr, added))}")
     return changes
 
 
@@ -811,12 +811,7 @@ def _statement_changes(record, fresh, notes=None, later=()):
     if len(old_steps) != len(new_steps):
         changes.append(f"steps: {len(old_steps)} recorded, {len(new_steps)} recomputed")
     for i, (a, b) in enumerate(zip(old_steps, new_steps), 1):
-        found = []
-        _walk({k: a.get(k) for k in _STEP_DATA}, {k: b.get(k) for k in _STEP_DATA}, "", found)
-        texts_differ = bool(found) or any(not same_text(a.get(k), b.get(k)) for k in ("label", "equation", "substituted"))
-        value_differs = (a.get("value") is None) != (b.get("value") is None) or (
-            a.get("value") is not None and _compare("", a["value"], b["value"]).verdict != "same")
-        if texts_differ or value_differs:
+        if not _same_step(a, b):
             changes.append(f"step {i} ({b.get('label')}): the record's text or value is not the calculation's")
     return changes
 
