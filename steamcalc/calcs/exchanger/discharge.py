@@ -92,6 +92,12 @@ def discharge_pipe_not_assessed(result, name, inputs, why):
                       f"(overpressure.discharge_size, discharge_length) is not assessed: {why}")
 
 
+def flashes_in_valve(liquid, back):
+    """A water hotter than its boiling point at the back pressure ``back`` (Pa): it flashes in the valve's nozzle.
+    False for None (a liquid other than water, whose boiling point is not known here)."""
+    return liquid is not None and liquid.temperature > SteamState.from_p_dryness(back, 0.0).temperature
+
+
 #: The conditions the liquid equation's step states (the reverse valve's first pass at the atmosphere keeps the
 #: words of the records that came before its back pressure).
 LIQUID_AREA_CONDITIONS = ", Kw = Kv = 1, P2 the back pressure at the valve outlet"
@@ -133,7 +139,7 @@ def liquid_relief_area(result, name, *, valve_type, set_pressure, atm, relieving
     Returns
     -------
     tuple of float
-        ``(area mm², Kw)`` (Kw 1 for a flashing liquid).
+        ``(area mm², Kw)`` (Kw 1 for a flashing liquid in a valve other than a balanced bellows).
 
     References
     ----------
@@ -177,12 +183,6 @@ def liquid_relief_area(result, name, *, valve_type, set_pressure, atm, relieving
     return (area, kw) if flashing is None or area >= flashing else (flashing, kw)
 
 
-def flashes_in_valve(liquid, back):
-    """A water hotter than its boiling point at the back pressure ``back`` (Pa): it flashes in the valve's nozzle.
-    False for None (a liquid other than water, whose boiling point is not known here)."""
-    return liquid is not None and liquid.temperature > SteamState.from_p_dryness(back, 0.0).temperature
-
-
 def thermal_relief_capacity(inputs, result, name, *, atm):
     """The relieving pressure of the thermal relief (the process side's design pressure plus 10 %) and the capacity
     of the usual minimum valve, an API 526 D orifice, for the liquid at the process outlet temperature.
@@ -202,7 +202,7 @@ def thermal_relief_capacity(inputs, result, name, *, atm):
         return p_r, None, rated, density
     saturation = SteamState.from_p_dryness(p_r, 0.0).temperature
     liquid = SteamState.from_pT(p_r, min(inputs.process_outlet_temperature, saturation - 1.0))
-    if liquid.temperature > SteamState.from_p_dryness(atm, 0.0).temperature:
+    if flashes_in_valve(liquid, atm):
         # Hot liquid flashes in the nozzle: its flux by direct integration on IF97 (API 520 Part I annex B).
         flux = isentropic_flux(liquid, atm).mass_flux
         rated = KD_SUBCOOLED * area * 1e-6 * flux * 3600.0
