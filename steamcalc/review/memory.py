@@ -74,6 +74,16 @@ def text_digest(text):
     return "sha256:" + hashlib.sha256(text.encode("utf-8")).hexdigest()
 
 
+def _stored_entries(path, software):
+    """The entries the memory file holds for ``software`` (none when it is absent, unreadable or another's)."""
+    try:
+        stored = json.loads(Path(path).read_text("utf-8"))
+        entries = stored["records"] if stored.get("software") == software else {}
+    except (OSError, ValueError, KeyError, TypeError, AttributeError):
+        return {}
+    return entries if isinstance(entries, dict) else {}
+
+
 class RegisterMemory:
     """The outcomes remembered for the software in use; made by :meth:`open` for one register run.
 
@@ -97,14 +107,7 @@ class RegisterMemory:
         written by other software."""
         path = Path(folder or cache_folder()) / FILE_NAME
         software = software_fingerprint()
-        try:
-            stored = json.loads(path.read_text("utf-8"))
-            entries = stored["records"] if stored.get("software") == software else {}
-            if not isinstance(entries, dict):
-                entries = {}
-        except (OSError, ValueError, KeyError, TypeError, AttributeError):
-            entries = {}
-        return cls(path, software, entries)
+        return cls(path, software, _stored_entries(path, software))
 
     @staticmethod
     def _key(record, intact):
@@ -175,7 +178,7 @@ class RegisterMemory:
 
         try:
             with FileLock(str(self.path) + ".lock", timeout=LOCK_SECONDS):
-                entries = dict(self._stored_entries())
+                entries = dict(_stored_entries(self.path, self.software))
                 for key, entry in self._entries.items():
                     entries.pop(key, None)
                     entries[key] = entry
@@ -187,15 +190,6 @@ class RegisterMemory:
         except (SteamcalcError, OSError, Timeout):
             return
         self._changed = False
-
-    def _stored_entries(self):
-        """The entries the file holds now for this software (none when it is absent, unreadable or another's)."""
-        try:
-            stored = json.loads(self.path.read_text("utf-8"))
-            entries = stored["records"] if stored.get("software") == self.software else {}
-        except (OSError, ValueError, KeyError, TypeError, AttributeError):
-            return {}
-        return entries if isinstance(entries, dict) else {}
 
     def _sweep_left_behind(self):
         import time
