@@ -119,3 +119,52 @@ def _open_and_run_all(browser, url, notebook):
 
 def _results_text(page):
     return page.locator(f"{PANEL} .steamcalc-results").first.inner_text()
+
+
+def page_state(page, root=None):
+    """What the page shows when a wait ran out, for the failure message: JupyterLab's open tabs and which is in
+    front, the kernel's status, how many steamcalc boxes are in the whole page and in the notebook in front,
+    any widget that failed to display, and the end of the JupyterLab server's log."""
+    try:
+        state = page.evaluate(
+            "() => { const app = window.jupyterapp; const shell = app && app.shell;"
+            " const current = shell && shell.currentWidget;"
+            " const kernel = current && current.sessionContext && current.sessionContext.session"
+            "   && current.sessionContext.session.kernel;"
+            " const tabs = shell ? Array.from(shell.widgets('main')).map(w => w.title.label) : [];"
+            " return {tabs, current: current ? current.title.label : null,"
+            "  kernel: kernel ? kernel.status : 'none',"
+            "  boxes_in_page: document.querySelectorAll('.steamcalc-input').length,"
+            f"  boxes_in_front: document.querySelectorAll('{PANEL} .steamcalc-input').length,"
+            "  widget_errors: Array.from(document.querySelectorAll('.jp-OutputArea-output'))"
+            "    .filter(o => o.innerText.includes('Error displaying widget')).length}; }")
+    except Exception as error:   # the page itself may be gone: say so rather than hide the first failure
+        state = {"page": f"could not be read ({type(error).__name__}: {error})"}
+    log = ""
+    if root is not None and (Path(root) / "lab.log").exists():
+        log = (Path(root) / "lab.log").read_text(errors="replace")[-1500:]
+    return f"page state: {state}; end of the JupyterLab log:\n{log}"
+
+
+def wait_in_front(page, selector, root=None, shot=None, timeout=None):
+    """Wait for ``selector`` to be in the page; when the wait runs out, an AssertionError that says what the page
+    showed instead (and a screenshot at ``shot``), not playwright's bare timeout."""
+    try:
+        page.wait_for_selector(selector, state="attached", **({"timeout": timeout} if timeout else {}))
+    except Exception as error:
+        if shot is not None:
+            try:
+                page.screenshot(path=str(shot), full_page=True)
+            except Exception:
+                pass
+        raise AssertionError(f"{selector} did not appear ({type(error).__name__}); "
+                             + page_state(page, root)) from None
+
+
+def wait_for_box(page, name, root=None, shot=None):
+    """The input box ``name`` of the notebook in front, once it is in the page (see :func:`wait_in_front`)."""
+    selector = f"{PANEL} .steamcalc-input-{name} input"
+    wait_in_front(page, selector, root, shot)
+    box = page.locator(selector).first
+    box.scroll_into_view_if_needed()
+    return box

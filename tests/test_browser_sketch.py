@@ -7,7 +7,7 @@ import tomllib
 
 
 from steamcalc.render.display import display_record
-from tests.browser_support import ARTIFACTS, PANEL, _open_and_run_all, browser, lab  # noqa: F401
+from tests.browser_support import ARTIFACTS, PANEL, _open_and_run_all, browser, lab, wait_for_box, wait_in_front  # noqa: F401
 
 SHOTS = ARTIFACTS / "sketch"
 
@@ -35,7 +35,7 @@ def test_sketch_in_the_workbook_shows_the_records_numbers(lab, browser):
     SHOTS.mkdir(parents=True, exist_ok=True)
     page = _open_and_run_all(browser, url, "letdown.ipynb")
     # Run All in a kernel just started: on a busy machine this once took more than 120 s (a wait, not a measure).
-    page.wait_for_selector(f"{PANEL} .steamcalc-sketch-view svg", timeout=300_000)
+    wait_in_front(page, f"{PANEL} .steamcalc-sketch-view svg", root, SHOTS / "15-10-no-sketch.png", timeout=300_000)
     record = _wait_for_record(page, root / "workbooks" / "demo_site" / "records" / "LD-01_revB.json")
     shown = display_record(record)
     sketch = page.locator(f"{PANEL} .steamcalc-sketch-view").first
@@ -50,7 +50,7 @@ def test_sketch_in_the_workbook_shows_the_records_numbers(lab, browser):
     sketch.screenshot(path=str(SHOTS / "15-10-sketch.png"))
 
     # The sketch follows an input change, as the results do.
-    box = page.locator(f"{PANEL} .steamcalc-input-mass_flow input").first
+    box = wait_for_box(page, "mass_flow", root, shot=SHOTS / "15-10-no-mass-flow-box.png")
     box.fill("5.0 t/h")
     box.press("Enter")
     page.wait_for_function(
