@@ -274,6 +274,10 @@ def back_pressure_check(result, name, valve_type, outlet_pressure, set_pressure,
         source=basis + "; at 100 % of the gauge set pressure the valve cannot open against it (common practice)")
 
 
+#: The step a discharge line of liquid carried to its exit writes (the pattern BASIS_CHANGES names it by).
+LIQUID_TO_EXIT_STEP = "*: built-up back pressure (liquid to the pipe's exit, flashing there)"
+
+
 def two_phase_discharge_section(result, prefix, name, *, valve_type, set_pressure, atm, rated_flow_kg_h, relieving,
                                 size, length, fittings_k, schedule=None, keys=DISCHARGE_KEYS):
     """Built-up back pressure of a flashing two-phase discharge (homogeneous flow, omega equation of state) against
@@ -315,15 +319,25 @@ def two_phase_discharge_section(result, prefix, name, *, valve_type, set_pressur
         result.check(f"{name}: built-up back pressure", "fail",
                      f"{exc.message} ({size}, {length:g} m); fix: {exc.fix}")
         return None
-    result.work(f"{name}: built-up back pressure (two-phase)",
-                "p1 = root of ∫[p2, p1] 2/(G²·v)·(1 − G²·ω·p0·v0/p²) dp = f·L/D + ΣK,  v = v0·(ω·(p0/p − 1) + 1),  "
-                "p2 = max(p_atm, G·√(ω·p0·v0)), f by Colebrook at Re_lo = G·D/μ_l"
-                + (", liquid above p0 (its saturation pressure): + (N − N(p0))·G²·v0/2" if subcooled else "")
-                + "  [API 520 Part I annex C; Leung (1996)]",
-                "omega_line(G, omega, p0, v0, f, L, D, K, p2)", line.outlet_pressure / 1e5, "bar",
-                G=(line.mass_flux, "kg/(m**2*s)"), omega=(omega, ""), p0=(p0 / 1e5, "bar"), v0=(v0, "m**3/kg"),
-                f=(line.friction_factor, ""), L=(length, "m"), D=(diameter * 1e3, "mm"), K=(fittings_k, ""),
-                p2=(line.exit_pressure / 1e5, "bar"))
+    if line.liquid_to_exit:
+        result.work(f"{name}: built-up back pressure (liquid to the pipe's exit, flashing there)",
+                    "p1 = p0 + (f·L/D + ΣK)·G²·v0/2,  the liquid flashing at the exit at p0, its saturation pressure: "
+                    "the omega critical pressure G·√(ω·p0·v0) is not below p0, so the mixture cannot carry the flux "
+                    "below it and the liquid chokes there, f by Colebrook at Re_lo = G·D/μ_l  [API 520 Part I annex "
+                    "C, subcooled liquid choking at its saturation pressure; Darcy-Weisbach]",
+                    "p0 + (f*L/D + K)*G**2*v0/2", line.outlet_pressure / 1e5, "bar",
+                    p0=(p0 / 1e5, "bar"), f=(line.friction_factor, ""), L=(length, "m"), D=(diameter * 1e3, "mm"),
+                    K=(fittings_k, ""), G=(line.mass_flux, "kg/(m**2*s)"), v0=(v0, "m**3/kg"))
+    else:
+        result.work(f"{name}: built-up back pressure (two-phase)",
+                    "p1 = root of ∫[p2, p1] 2/(G²·v)·(1 − G²·ω·p0·v0/p²) dp = f·L/D + ΣK,  v = v0·(ω·(p0/p − 1) + 1),  "
+                    "p2 = max(p_atm, G·√(ω·p0·v0)), f by Colebrook at Re_lo = G·D/μ_l"
+                    + (", liquid above p0 (its saturation pressure): + (N − N(p0))·G²·v0/2" if subcooled else "")
+                    + "  [API 520 Part I annex C; Leung (1996)]",
+                    "omega_line(G, omega, p0, v0, f, L, D, K, p2)", line.outlet_pressure / 1e5, "bar",
+                    G=(line.mass_flux, "kg/(m**2*s)"), omega=(omega, ""), p0=(p0 / 1e5, "bar"), v0=(v0, "m**3/kg"),
+                    f=(line.friction_factor, ""), L=(length, "m"), D=(diameter * 1e3, "mm"), K=(fittings_k, ""),
+                    p2=(line.exit_pressure / 1e5, "bar"))
     result.add(f"{prefix}_built_up_back_pressure", f"{name}: built-up back pressure at the valve outlet",
                line.outlet_pressure / 1e5, "bar")
     share = 100.0 * (line.outlet_pressure - atm) / (set_pressure - atm)
@@ -334,7 +348,8 @@ def two_phase_discharge_section(result, prefix, name, *, valve_type, set_pressur
                "pressure", share, "percent")
     result.add(f"{prefix}_discharge_exit_velocity", f"{name}: mixture velocity at the discharge pipe's exit",
                line.exit_velocity, "m/s")
-    choked = " (the exit choked at the omega critical flux)" if line.exit_choked else ""
+    choked = (" (liquid the whole length, flashing at the exit, choked at its saturation pressure)" if line.liquid_to_exit
+              else " (the exit choked at the omega critical flux)" if line.exit_choked else "")
     back_pressure_check(result, name, valve_type, line.outlet_pressure, set_pressure, atm, choked)
     area = flow_area(diameter)
     force = two_phase_reaction_force(line, diameter, atm)

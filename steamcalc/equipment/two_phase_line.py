@@ -45,6 +45,8 @@ class TwoPhaseLine:
     mass_flux: float          #: kg/(m² s)
     exit_volume: float        #: m³/kg at the pipe exit
     exit_velocity: float      #: m/s at the pipe exit
+    #: a subcooled liquid carried as liquid the whole length, flashing at the exit (choked at its saturation pressure)
+    liquid_to_exit: bool = False
 
 
 def omega_volume(pressure, omega, reference_pressure, reference_volume):
@@ -188,7 +190,12 @@ def two_phase_back_pressure(mass_flow, inner_diameter, length, fittings_k, atmos
     the second being the omega method's critical (choking) pressure for the flux G. For a subcooled
     liquid the resistance left where the pressure reaches its saturation pressure p_s is taken by the
     liquid, :math:`p_1 = p_s + (N - N(p_s))\\,G^2 v_0/2` (API 520 Part I annex C, C.2.3.1: the omega
-    equation of a subcooled liquid holds below p_s).
+    equation of a subcooled liquid holds below p_s). When the omega critical pressure
+    :math:`G\\sqrt{\\omega p_s v_0}` is at or above p_s, the mixture could not carry the flux anywhere below
+    p_s: the liquid stays liquid the whole length and flashes at the exit, choked there at p_s, so
+    :math:`p_1 = p_s + (f L/D + \\sum K)\\,G^2 v_0/2` (the high-subcooling case of annex C, C.2.3.1, where the flow
+    chokes at the saturation pressure; the same limit as the integral's, reached continuously). A mixture that is
+    two-phase from the valve (no ``liquid_up_to``) is refused there instead: its bore is far too small.
 
     References
     ----------
@@ -212,6 +219,15 @@ def two_phase_back_pressure(mass_flow, inner_diameter, length, fittings_k, atmos
                                                       liquid_viscosity, roughness)
     choked_exit = flux * math.sqrt(omega * reference_pressure * reference_volume)
     exit_pressure = max(atmospheric_pressure, choked_exit)
+    relieving = reference_pressure if liquid_up_to is None else liquid_up_to
+    if exit_pressure >= reference_pressure and liquid_up_to is not None:
+        # A subcooled liquid whose flux is above what the flashing mixture could carry at its saturation pressure
+        # stays liquid the whole length (a liquid does not choke) and flashes at the exit, choked there at its
+        # saturation pressure: the pipe's resistance is all the liquid's.
+        outlet = reference_pressure + resistance * flux * flux * reference_volume / 2.0
+        _refuse_at_relieving(outlet, relieving, resistance, inner_diameter)
+        return TwoPhaseLine(outlet, reference_pressure, reference_pressure > atmospheric_pressure, friction, reynolds,
+                            resistance, flux, reference_volume, flux * reference_volume, liquid_to_exit=True)
     if exit_pressure >= reference_pressure:
         raise OutOfRangeError(
             f"the discharge pipe chokes at {exit_pressure / 1e5:.4g} bar(a), not below the pressure "
@@ -222,7 +238,6 @@ def two_phase_back_pressure(mass_flow, inner_diameter, length, fittings_k, atmos
     def residual(p1):
         return line_resistance(p1, exit_pressure, flux, omega, reference_pressure, reference_volume) - resistance
 
-    relieving = reference_pressure if liquid_up_to is None else liquid_up_to
     if resistance == 0.0:
         outlet = exit_pressure
     elif residual(reference_pressure) >= 0.0:
@@ -232,15 +247,19 @@ def two_phase_back_pressure(mass_flow, inner_diameter, length, fittings_k, atmos
     else:
         # The rest of the pipe, upstream of the flashing point, carries liquid.
         outlet = reference_pressure - residual(reference_pressure) * flux * flux * reference_volume / 2.0
+    _refuse_at_relieving(outlet, relieving, resistance, inner_diameter)
+    exit_volume = omega_volume(exit_pressure, omega, reference_pressure, reference_volume)
+    return TwoPhaseLine(outlet, exit_pressure, choked_exit > atmospheric_pressure, friction, reynolds, resistance,
+                        flux, exit_volume, flux * exit_volume)
+
+
+def _refuse_at_relieving(outlet, relieving, resistance, inner_diameter):
     if outlet >= relieving:
         raise OutOfRangeError(
             f"the discharge pipe's resistance ({resistance:.3g} velocity heads) would raise the back pressure "
             f"to the relieving pressure {relieving / 1e5:.4g} bar(a): the valve could not pass its flow",
             field="discharge_size", value=f"{inner_diameter * 1e3:.1f} mm",
             fix="give a larger or shorter discharge pipe")
-    exit_volume = omega_volume(exit_pressure, omega, reference_pressure, reference_volume)
-    return TwoPhaseLine(outlet, exit_pressure, choked_exit > atmospheric_pressure, friction, reynolds, resistance,
-                        flux, exit_volume, flux * exit_volume)
 
 
 def two_phase_reaction_force(line, inner_diameter, atmospheric_pressure):

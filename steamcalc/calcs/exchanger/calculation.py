@@ -32,6 +32,7 @@ from .control import add_control, check_control_inputs
 from .figures import figures
 from .overpressure import RECORD_PATTERNS as OVERPRESSURE_PATTERNS
 from .overpressure import add_overpressure, check_design_pressures, check_overpressure_inputs
+from ..overpressure import LIQUID_TO_EXIT_STEP
 from .supply import steam_states, steam_steps, supply_state
 from .zones import ARRANGEMENTS, ZONE_NAMES, add_zones, f_factor, lmtd, service_u  # noqa: F401
 
@@ -65,6 +66,11 @@ BASIS_CHANGES = (
     ("0.3.1", "a water hotter than its boiling point at the tube-rupture valve's outlet flashes in the nozzle: it is "
      "sized by API 520 Part I annex C (the omega method and direct integration, the larger governing), where the "
      "liquid equation undersized the valve", ("Tube rupture*", "tube_rupture_*"), "Tube rupture*flashing in the valve*"),
+    # Applies to a record of an earlier release only when its recomputation carries the liquid to the pipe's exit.
+    ("0.3.2", "a hot liquid whose flux the flashing mixture could not carry below its saturation pressure stays liquid "
+     "the length of the discharge pipe and flashes at its exit, choked there at its saturation pressure; the pipe "
+     "was called far too small and the record failed", ("Tube rupture*", "tube_rupture_*", "Thermal relief*",
+                                                      "thermal_relief_*"), LIQUID_TO_EXIT_STEP),
 )
 #: Groups of inputs of which at most one is given (the calculation refuses two of a group); the forms use them.
 ALTERNATIVE_INPUTS = (("process_flow", "process_volume_flow"), ("process_fluid", "process_cp"),

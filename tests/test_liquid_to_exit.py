@@ -1,0 +1,143 @@
+"""A hot liquid carried to the discharge pipe's exit, flashing there (release 0.3.2).
+
+A tube-rupture or thermal relief valve passing water a little above its boiling point at the atmosphere called a
+generous discharge pipe "far too small" and failed the record: the omega equation's choking pressure G·√(ω·p0·v0),
+taken from the liquid's saturation pressure p0, lay above p0, where the pipe still carries liquid, which does not
+choke. Release 0.3.2 carries the liquid the whole length and lets it flash at the exit, choked there at its
+saturation pressure: p1 = p0 + (f·L/D + ΣK)·G²·v0/2. Records of 0.3.1 that the change touches keep verifying, the
+change listed with its release; nothing else passes for it.
+
+Sources: API 520 Part I annex C, subcooled liquid (the flow chokes at the saturation pressure when the subcooling is
+high); Darcy-Weisbach with Colebrook's friction factor, worked here by hand with iapws (IF97) and fluids, not with
+steamcalc's functions. The record in tests/archive/v0_3_1_flashing_exit was issued by release 0.3.1's code (commit
+5d3eda1, its version in the provenance) from the case file beside it.
+"""
+
+import json
+import math
+import shutil
+from pathlib import Path
+
+import pytest
+from fluids.friction import Colebrook
+from iapws import IAPWS97
+
+from steamcalc.calcs.exchanger.calculation import Inputs, calculate
+from steamcalc.cases.site import Site
+from steamcalc.cli import main
+from steamcalc.equipment.two_phase_line import two_phase_back_pressure
+from steamcalc.errors import OutOfRangeError
+from steamcalc.review.verify import verify_file
+
+from .case_helpers import forged_copy
+
+ATM = 101325.0
+BAR = 1e5
+ARCHIVE = Path(__file__).resolve().parent / "archive" / "v0_3_1_flashing_exit"
+CHANGE = "changed by release 0.3.2"
+STEP = "Tube rupture, displaced liquid: built-up back pressure (liquid to the pipe's exit, flashing there)"
+
+
+def g(bar_gauge):
+    return ATM + bar_gauge * BAR
+
+
+#: The archived case: steam side 16 bar(g) over a process side designed for 8 bar(g); water displaced at the process
+#: outlet temperature through a Q orifice's rated flow into DN300 × 20 m (K 2) to the atmosphere.
+HEATER = dict(steam_pressure=g(12.0), process_flow=12 / 3.6, process_inlet_temperature=353.15, process_pressure=g(6.0),
+              steam_side_design_pressure=g(16.0), process_side_design_pressure=g(8.0), tube_inside_diameter=0.0157,
+              discharge_size="DN300", discharge_length=20.0, discharge_fittings_k=2.0)
+
+
+def _back_pressure(outlet_celsius):
+    result = calculate(Inputs(**HEATER, process_outlet_temperature=273.15 + outlet_celsius), Site())
+    return result, result.value("tube_rupture_liquid_built_up_back_pressure")
+
+
+def test_the_line_of_water_at_101_degc_is_liquid_to_its_exit_and_matches_a_hand_calculation():
+    result, back = _back_pressure(101.0)
+    assert not any(c.status == "fail" for c in result.checks if c.name.startswith("Tube rupture"))
+    assert STEP in [s.label for s in result.steps]
+    # By hand: the mass flux of the Q orifice's rated flow as the step states it, through DN300 schedule 40 (bore
+    # 303.2 mm, ASME B36.10M, from memory); liquid at the relieving pressure and 101 °C; Colebrook at the liquid-only
+    # Reynolds number of saturated liquid at the atmosphere (the record's basis); flashing at the saturation pressure
+    # at 101 °C.
+    step = next(s for s in result.steps if s.label == STEP)
+    operands = dict(step.operands)
+    bore = 0.3032
+    assert operands["D"].value == pytest.approx(bore * 1e3, abs=0.05)
+    flux = operands["G"].value
+    p1 = g(8.0) + 0.1 * 8.0 * BAR
+    liquid = IAPWS97(P=p1 / 1e6, T=374.15)
+    viscosity = IAPWS97(P=ATM / 1e6, x=0).mu
+    friction = Colebrook(flux * bore / viscosity, 4.5e-5 / bore)
+    p_sat = IAPWS97(T=374.15, x=0).P * 1e6
+    by_hand = p_sat + (friction * 20.0 / bore + 2.0) * flux ** 2 / liquid.rho / 2
+    assert back == pytest.approx(by_hand / BAR, rel=2e-4)
+
+
+def test_the_back_pressure_rises_without_a_jump_as_the_water_passes_its_boiling_point():
+    """Below 100 °C the liquid leaves at the atmosphere; from its boiling point it flashes at the exit, at its
+    saturation pressure: the step between them is that pressure less the atmosphere's (below 0.001 bar here)."""
+    temperatures = [99.0, 99.9, 100.0, 100.1, 100.5, 101.0, 103.0]
+    pressures = [_back_pressure(t)[1] for t in temperatures]
+    steps = [b - a for a, b in zip(pressures, pressures[1:])]
+    assert max(abs(s) for s in steps[:2]) < 1e-3   # 99.0 → 99.9 → 100.0 °C: liquid at the exit, then just flashing
+    assert all(s > 0 for s in steps[2:])           # flashing at the exit: the saturation pressure rises with it
+    assert max(steps) < 0.1                        # 101 → 103 °C, the largest interval
+
+
+def test_the_omega_line_and_the_liquid_line_meet_where_the_critical_pressure_reaches_p0():
+    """Just below the switch the omega integral from a choked exit at about p0 gives the same outlet pressure as the
+    liquid carried to the exit (continuity of the two branches)."""
+    args = dict(inner_diameter=0.1, length=30.0, fittings_k=1.5, atmospheric_pressure=ATM, omega=40.0,
+                reference_pressure=1.3e5, reference_volume=0.00105, liquid_viscosity=2.8e-4, liquid_up_to=9.0e5)
+    critical_flux = 1.3e5 / math.sqrt(40.0 * 1.3e5 * 0.00105)
+    area = math.pi * 0.1 ** 2 / 4
+    below = two_phase_back_pressure(critical_flux * area * (1 - 1e-7), **args)
+    above = two_phase_back_pressure(critical_flux * area * (1 + 1e-7), **args)
+    assert not below.liquid_to_exit and above.liquid_to_exit
+    assert above.outlet_pressure == pytest.approx(below.outlet_pressure, rel=1e-5)
+
+
+def test_a_mixture_two_phase_from_the_valve_is_still_refused_when_the_pipe_chokes_above_its_pressure():
+    with pytest.raises(OutOfRangeError, match="far too small"):
+        two_phase_back_pressure(50.0, 0.05, 10.0, 1.0, ATM, 5.0, 3.0e5, 0.02, 2.8e-4)
+
+
+def test_a_0_3_1_record_the_change_touches_verifies_and_names_it(tmp_path, capsys):
+    for companion in ARCHIVE.glob("HX-FX_revA.*"):
+        shutil.copy(companion, tmp_path / companion.name)
+    record = json.loads((tmp_path / "HX-FX_revA.json").read_text("utf-8"))
+    assert record["provenance"]["steamcalc"] == "0.3.1" and record["status"] == "fail"
+    assert main(["verify", str(tmp_path / "HX-FX_revA.json")]) == 0
+    said = capsys.readouterr().out
+    assert "verdict: VERIFIED" in said and CHANGE in said and "flashes at its exit" in said
+
+
+def test_a_0_3_1_record_the_change_touches_is_still_held_to_everything_else(tmp_path):
+    def edit(record):
+        record["results"]["duty"]["value"] *= 1.01
+    forged = forged_copy(ARCHIVE / "HX-FX_revA.json", edit, tmp_path)
+    _, _, outcome, _ = verify_file(forged)
+    assert not outcome.ok and any(c.key == "duty" and c.verdict == "differs" for c in outcome.comparisons)
+
+
+def test_a_0_3_1_record_the_change_does_not_touch_gets_no_allowance(tmp_path, capsys):
+    """Water at 95 °C leaves the pipe as liquid at the atmosphere in both releases: an edited back pressure in a
+    record claiming 0.3.1 is a difference, not a change of basis."""
+    case = tmp_path / "HX-FY.toml"
+    case.write_text((ARCHIVE / "HX-FX.toml").read_text("utf-8").replace('id = "HX-FX"', 'id = "HX-FY"')
+                    .replace('"101 degC"', '"95 degC"'))
+    assert main(["run", str(case), "--out", str(tmp_path / "out")]) in (0, 1)
+    capsys.readouterr()
+
+    def edit(record):
+        record["provenance"]["steamcalc"] = "0.3.1"
+        record["results"]["tube_rupture_liquid_built_up_back_pressure"]["value"] *= 0.9
+    forged = forged_copy(tmp_path / "out" / "HX-FY_revA.json", edit, tmp_path)
+    _, _, outcome, _ = verify_file(forged)
+    assert not outcome.ok
+    assert any(c.key == "tube_rupture_liquid_built_up_back_pressure" and c.verdict == "differs"
+               for c in outcome.comparisons)
+    assert not any(CHANGE in note for note in outcome.notes)
