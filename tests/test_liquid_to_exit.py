@@ -9,7 +9,7 @@ change listed with its release; nothing else passes for it.
 
 Sources: API 520 Part I annex C, subcooled liquid (the flow chokes at the saturation pressure when the subcooling is
 high); Darcy-Weisbach with Colebrook's friction factor, worked here by hand with iapws (IF97) and fluids, not with
-steamcalc's functions. The record in tests/archive/v0_3_1_flashing_exit was issued by release 0.3.1's code (commit
+steamcalc's functions. The record in tests/archive/v0_3_1_bases was issued by release 0.3.1's code (commit
 5d3eda1, its version in the provenance) from the case file beside it.
 """
 
@@ -33,7 +33,7 @@ from .case_helpers import forged_copy
 
 ATM = 101325.0
 BAR = 1e5
-ARCHIVE = Path(__file__).resolve().parent / "archive" / "v0_3_1_flashing_exit"
+ARCHIVE = Path(__file__).resolve().parent / "archive" / "v0_3_1_bases"
 CHANGE = "changed by release 0.3.2"
 STEP = "Tube rupture, displaced liquid: built-up back pressure (liquid to the pipe's exit, flashing there)"
 

@@ -33,6 +33,7 @@ from .figures import figures
 from .overpressure import RECORD_PATTERNS as OVERPRESSURE_PATTERNS
 from .overpressure import add_overpressure, check_design_pressures, check_overpressure_inputs
 from ..overpressure import LIQUID_TO_EXIT_STEP
+from .overpressure import NAME as TUBE_RUPTURE
 from .supply import steam_states, steam_steps, supply_state
 from .zones import ARRANGEMENTS, ZONE_NAMES, add_zones, f_factor, lmtd, service_u  # noqa: F401
 
@@ -54,6 +55,8 @@ PERCENT_VALUES = ("area_margin", "stall_load_fraction", "stall_load_fraction_fou
 SUMMARY_RESULTS = ("duty", "steam_flow", "required_area", "area_margin", "control_valve_kv", "control_valve_travel", "stall_load_fraction", "vacuum_load_fraction", "capacity_margin")
 #: Bases this release changed, so that verify lists what a record of an earlier release differs by, and why,
 #: instead of calling it edited: patterns (fnmatch) over result keys, step labels, check names and statements.
+#: The forward tube-rupture valve's warning of a discharge pipe narrower than its outlet (release 0.3.2).
+NARROW_OUTLET_CHECK = f"{TUBE_RUPTURE}: discharge line size"
 BASIS_CHANGES = (
     ("0.3", "the steam's state is given at its supply (a superheated header) and carried into the valve, the zones "
      "and the steam flow; the heater's capacity at the supply pressure is reported",
@@ -71,6 +74,8 @@ BASIS_CHANGES = (
      "the length of the discharge pipe and flashes at its exit, choked there at its saturation pressure; the pipe "
      "was called far too small and the record failed", ("Tube rupture*", "tube_rupture_*", "Thermal relief*",
                                                       "thermal_relief_*"), LIQUID_TO_EXIT_STEP),
+    ("0.3.2", "a tube-rupture discharge pipe narrower than the outlet API 526 pairs with the valve's orifice is warned "
+     "of, as the let-down's relief valve's and the reverse valve's are", (NARROW_OUTLET_CHECK + "*",), NARROW_OUTLET_CHECK),
 )
 #: Groups of inputs of which at most one is given (the calculation refuses two of a group); the forms use them.
 ALTERNATIVE_INPUTS = (("process_flow", "process_volume_flow"), ("process_fluid", "process_cp"),

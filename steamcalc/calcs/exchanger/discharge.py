@@ -20,9 +20,10 @@ from ...errors import InputError
 from ...properties.steam import SteamState, dynamic_viscosity
 from ...units.amounts import Phrase
 from ..overpressure import (
-    VALVE_TYPES, back_pressure_check, discharge_diameter, discharge_section, flashing_relief_area, relieving_pressure,
-    two_phase_discharge_section,
+    DEFAULT_SCHEDULE, VALVE_TYPES, back_pressure_check, discharge_diameter, discharge_section, flashing_relief_area,
+    relieving_pressure, two_phase_discharge_section,
 )
+from ..relief_outlet import narrow_outlet_warning, valve_outlet_pipe
 
 #: The outlet pipes: the case-file key of the size, and the inputs in the words of the form.
 TUBE_KEYS = ("overpressure.discharge_size", "the tube-rupture relief discharge pipe's size and length")
@@ -83,6 +84,17 @@ def tube_rupture_discharge(inputs, result, name, *, atm, set_pressure, orifice_a
     if steam_back is None or liquid_back is None:
         return None
     return steam_back, liquid_back
+
+
+def outlet_size_check(result, prefix, name, size):
+    """A warning when the tube-rupture valve's discharge pipe ``size`` is narrower than the outlet API 526 pairs with
+    the selected orifice (``<prefix>_orifice``), as for the let-down's relief valve; nothing when no pipe is given."""
+    if size is not None:
+        # Its bore needs no viscosity: a pipe of a liquid other than water is held to it too.
+        _, described, narrower = valve_outlet_pipe(result.value(f"{prefix}_orifice"), size, DEFAULT_SCHEDULE,
+                                                   TUBE_KEYS[0])
+        if narrower:
+            narrow_outlet_warning(result, f"{name}: discharge line size", described)
 
 
 def discharge_pipe_not_assessed(result, name, inputs, why):

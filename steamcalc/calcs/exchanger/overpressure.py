@@ -39,7 +39,7 @@ from ..relief_inlet import check_inlet_pipe_inputs, inlet_pipe_not_assessed, rel
 from ..relief_back_pressure import Sizing, balanced_kb, critical_flow_check, size_at_built_up_back_pressure
 from .discharge import (
     THERMAL_KEYS, THERMAL_ORIFICE, check_discharge_inputs, discharge_pipe_not_assessed, liquid_relief_area,
-    thermal_relief_capacity, thermal_relief_discharge, tube_rupture_discharge,
+    outlet_size_check, thermal_relief_capacity, thermal_relief_discharge, tube_rupture_discharge,
 )
 from .reverse_rupture import reverse_rupture
 
@@ -282,6 +282,7 @@ def _tube_rupture(inputs, atm, result):
     if rated is None:
         inlet_pipe_not_assessed(result, NAME, inputs.relief_inlet_size, "no single API 526 orifice passes the load")
         return
+    outlet_size_check(result, PREFIX, NAME, inputs.discharge_size)
     liquid_governs = sizing.method == "displaced liquid"
     relief_inlet_loss(result, PREFIX, NAME, state=liquid if liquid_governs else relieving, rated_flow_kg_h=rated,
                       set_pressure=low, atm=atm, size=inputs.relief_inlet_size, length=inputs.relief_inlet_length,

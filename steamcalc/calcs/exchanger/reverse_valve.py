@@ -30,12 +30,11 @@ from ...equipment.relief import direct_integration_flux
 from ...properties.steam import SteamState
 from ...units.amounts import Phrase
 from ..base import Result
-from ..overpressure import DEFAULT_SCHEDULE, select_orifice, steam_relief_area
+from ..overpressure import select_orifice, steam_relief_area
 from ..relief_back_pressure import Sizing, balanced_kb, critical_flow_check, size_at_built_up_back_pressure
 from ..relief_inlet import inlet_pipe_not_assessed, relief_inlet_loss
-from ..relief_outlet import narrow_outlet_warning, valve_outlet_pipe
 from .discharge import (
-    TUBE_KEYS, discharge_pipe_not_assessed, flashes_in_valve, liquid_relief_area, tube_rupture_discharge,
+    discharge_pipe_not_assessed, flashes_in_valve, liquid_relief_area, outlet_size_check, tube_rupture_discharge,
 )
 
 NAME = "Tube rupture, process side the higher"
@@ -126,12 +125,7 @@ def reverse_valve(inputs, atm, result, *, relieving_pressure, load, density, vap
             discharge_pipe_not_assessed(result, NAME, inputs, why)
         inlet_pipe_not_assessed(result, NAME, inputs.relief_inlet_size, why)
         return
-    if inputs.discharge_size is not None:
-        # The outlet pipe against the valve's outlet, as the let-down's relief valve (its bore needs no viscosity).
-        _, described, narrower = valve_outlet_pipe(result.value(f"{PREFIX}_orifice"), inputs.discharge_size,
-                                                   DEFAULT_SCHEDULE, TUBE_KEYS[0])
-        if narrower:
-            narrow_outlet_warning(result, f"{NAME}: discharge line size", described)
+    outlet_size_check(result, PREFIX, NAME, inputs.discharge_size)
     _inlet_pipe(inputs, result, sizing, liquid, vapour, set_pressure, atm, (displaced, load))
     if piped:
         built = discharge(result, result.value(f"{PREFIX}_orifice_area"), sizing)

@@ -1,0 +1,72 @@
+"""The heater's forward tube-rupture valve: a discharge pipe narrower than the valve's outlet is warned of (release
+0.3.2), as the let-down's relief valve's and the reverse tube-rupture valve's are; before, it passed silently.
+
+Sources: API 526 (orifice letters and valve sizes): the smallest outlet paired with each letter as tabulated in the
+Valve Selection Handbook, Table 5-1 (the Q orifice: 6Q8, an NPS 8 outlet, DN200); a pipe at least the valve's outlet
+size is common practice (the valve makers' installation instructions govern). The record of release 0.3.1 in
+tests/archive/v0_3_1_bases was issued by that release's code (commit 5d3eda1) from the case file beside it.
+"""
+
+import json
+import shutil
+from pathlib import Path
+
+import pytest
+
+from steamcalc.calcs.exchanger.calculation import NARROW_OUTLET_CHECK, Inputs, calculate
+from steamcalc.cases.site import Site
+from steamcalc.cli import main
+from steamcalc.review.verify import verify_file
+
+from .case_helpers import forged_copy
+from .test_liquid_to_exit import HEATER
+
+ARCHIVE = Path(__file__).resolve().parent / "archive" / "v0_3_1_bases"
+CHANGE = "changed by release 0.3.2"
+
+
+def _outlet_checks(size, outlet_celsius=95.0):
+    result = calculate(Inputs(**dict(HEATER, discharge_size=size), process_outlet_temperature=273.15 + outlet_celsius),
+                       Site())
+    assert result.value("tube_rupture_orifice") == "Q"
+    return [c for c in result.checks if c.name == NARROW_OUTLET_CHECK]
+
+
+@pytest.mark.parametrize("size, warned", [("DN100", True), ("DN150", True), ("DN200", False), ("DN300", False)])
+def test_a_pipe_narrower_than_the_q_orifices_dn200_outlet_is_warned_of(size, warned):
+    checks = _outlet_checks(size)
+    assert [c.status for c in checks] == (["warn"] if warned else [])
+    if warned:
+        assert f"the outlet pipe {size} (given), on the valve's outlet DN200" in checks[0].detail
+
+
+def test_a_0_3_1_record_with_a_narrow_pipe_verifies_and_names_the_change(tmp_path, capsys):
+    for companion in ARCHIVE.glob("HX-NO_revA.*"):
+        shutil.copy(companion, tmp_path / companion.name)
+    record = json.loads((tmp_path / "HX-NO_revA.json").read_text("utf-8"))
+    assert record["provenance"]["steamcalc"] == "0.3.1"
+    assert not any(c["name"] == NARROW_OUTLET_CHECK for c in record["checks"])
+    assert main(["verify", str(tmp_path / "HX-NO_revA.json")]) == 0
+    said = capsys.readouterr().out
+    assert "verdict: VERIFIED" in said and CHANGE in said and "narrower than the outlet API 526 pairs" in said
+
+
+def test_a_0_3_1_record_with_a_wide_pipe_gets_no_allowance_for_a_planted_warning(tmp_path, capsys):
+    """The change applies only where the recomputation warns: a warning of a narrow pipe planted in a record whose
+    pipe is wide (its digests recomputed) is a difference."""
+    case = tmp_path / "HX-NW.toml"
+    case.write_text((ARCHIVE / "HX-NO.toml").read_text("utf-8").replace('id = "HX-NO"', 'id = "HX-NW"')
+                    .replace('"DN150"', '"DN200"'))
+    assert main(["run", str(case), "--out", str(tmp_path / "out")]) in (0, 1)
+    capsys.readouterr()
+    planted = (f"{NARROW_OUTLET_CHECK}: the outlet pipe DN150 (given) is narrower than the valve's outlet: run it "
+               "at the outlet size or larger")
+
+    def edit(record):
+        record["provenance"]["steamcalc"] = "0.3.1"
+        record["warnings"].append(planted)
+    forged = forged_copy(tmp_path / "out" / "HX-NW_revA.json", edit, tmp_path)
+    _, _, outcome, _ = verify_file(forged)
+    assert not outcome.ok
+    assert any(planted[:40] in line for line in outcome.statement_changes)
+    assert not any(CHANGE in note for note in outcome.notes)
