@@ -8,7 +8,7 @@ records of release 0.3.0 whose tube-rupture valve release 0.3.1 sizes for a flas
 listed with its release: tests/test_hot_liquid_relief.py), with the case files they were issued from; ``tests/archive/v0_3_1/`` those of
 release 0.3.1; ``tests/archive/v0_3_1_bases/`` heater records of 0.3.1 whose basis release 0.3.2 changed, with their case files:
 a discharge line carried as liquid to its exit (tests/test_liquid_to_exit.py) and a tube-rupture discharge pipe
-narrower than the valve's outlet, now warned of (tests/test_tube_rupture_outlet_size.py); ``tests/archive/v0_3_2/`` those of
+narrower than the valve's outlet, now warned of (tests/test_tube_rupture_pipes.py); ``tests/archive/v0_3_2/`` those of
 this release, kept for the releases after it; ``tests/archive/v0_3_schema2/`` those of this release's intermediate layout (schema 2: figure
 data, steps and checks as text), which this release still reads. Each must verify:
 its digests intact, every result, check and statement reproduced, and its reports either matching what this

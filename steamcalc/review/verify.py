@@ -459,9 +459,9 @@ def release_basis_changes(record, fresh):
     """The basis changes of releases after the one that issued a record of schema 3 that its recomputation shows.
 
     An entry of a kind's ``BASIS_CHANGES`` may name, as a fourth item, a pattern over the recomputed steps' labels
-    and checks' names: the change applies to a record of an earlier release only when the recomputation takes the
-    changed path (a step or a check of that name), so a record the change does not touch is held to every word as
-    before. A record whose
+    and checks' names (each also as "name: detail"): the change applies to a record of an earlier release only when
+    the recomputation takes the changed path (a step or a check of that name, or of those words), so a record the
+    change does not touch is held to every word as before. A record whose
     release does not read gets none (:func:`steamcalc.review.rewordings.release`).
     """
     from fnmatch import fnmatchcase
@@ -477,7 +477,9 @@ def release_basis_changes(record, fresh):
         return []
     if issued_by is None:
         return []
-    labels = [step.label for step in fresh.steps] + [check.name for check in fresh.checks]
+    # A check is met by its name, and by its name and words ("NAME: detail"), for a path only its words tell apart.
+    labels = [step.label for step in fresh.steps] + [check.name for check in fresh.checks] + [
+        f"{check.name}: {text_of(check.detail)}" for check in fresh.checks]
     return [change for change in getattr(calc, "BASIS_CHANGES", ())
             if len(change) > 3 and release(change[0]) is not None and issued_by < release(change[0])
             and any(fnmatchcase(label, change[3]) for label in labels)]

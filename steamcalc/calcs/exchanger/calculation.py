@@ -34,6 +34,7 @@ from .overpressure import RECORD_PATTERNS as OVERPRESSURE_PATTERNS
 from .overpressure import add_overpressure, check_design_pressures, check_overpressure_inputs
 from ..overpressure import LIQUID_TO_EXIT_STEP
 from .overpressure import NAME as TUBE_RUPTURE
+from .reverse_valve import NAME as REVERSE_NAME
 from .supply import steam_states, steam_steps, supply_state
 from .zones import ARRANGEMENTS, ZONE_NAMES, add_zones, f_factor, lmtd, service_u  # noqa: F401
 
@@ -76,6 +77,11 @@ BASIS_CHANGES = (
                                                       "thermal_relief_*"), LIQUID_TO_EXIT_STEP),
     ("0.3.2", "a tube-rupture discharge pipe narrower than the outlet API 526 pairs with the valve's orifice is warned "
      "of, as the let-down's relief valve's and the reverse valve's are", (NARROW_OUTLET_CHECK + "*",), NARROW_OUTLET_CHECK),
+    # Two changes of one kind, each applied only where the recomputation states it.
+    *(("0.3.2", "the reverse tube-rupture valve's " + pipe + ", when not given, is stated as not assessed (the rule "
+       "left for the relief system's designer), as the forward valve's is", (check + "*",), check + ": not assessed*")
+      for pipe, check in (("discharge pipe", f"{REVERSE_NAME}: discharge line"),
+                          ("inlet pipe", f"{REVERSE_NAME}: relief inlet pressure loss"))),
 )
 #: Groups of inputs of which at most one is given (the calculation refuses two of a group); the forms use them.
 ALTERNATIVE_INPUTS = (("process_flow", "process_volume_flow"), ("process_fluid", "process_cp"),

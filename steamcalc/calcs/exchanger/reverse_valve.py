@@ -30,11 +30,12 @@ from ...equipment.relief import direct_integration_flux
 from ...properties.steam import SteamState
 from ...units.amounts import Phrase
 from ..base import Result
-from ..overpressure import select_orifice, steam_relief_area
+from ..overpressure import discharge_diameter, select_orifice, steam_relief_area
 from ..relief_back_pressure import Sizing, balanced_kb, critical_flow_check, size_at_built_up_back_pressure
-from ..relief_inlet import inlet_pipe_not_assessed, relief_inlet_loss
+from ..relief_inlet import inlet_loss_notice, inlet_pipe_not_assessed, relief_inlet_loss
 from .discharge import (
-    discharge_pipe_not_assessed, flashes_in_valve, liquid_relief_area, outlet_size_check, tube_rupture_discharge,
+    TUBE_KEYS, discharge_pipe_not_assessed, flashes_in_valve, liquid_relief_area, outlet_size_check,
+    tube_rupture_discharge,
 )
 
 NAME = "Tube rupture, process side the higher"
@@ -126,6 +127,9 @@ def reverse_valve(inputs, atm, result, *, relieving_pressure, load, density, vap
         inlet_pipe_not_assessed(result, NAME, inputs.relief_inlet_size, why)
         return
     outlet_size_check(result, PREFIX, NAME, inputs.discharge_size)
+    if inputs.discharge_size is None:
+        # Said, as the forward valve says it: the relief system's designer then knows it is still to be checked.
+        discharge_diameter(result, NAME, None, None, None, TUBE_KEYS)
     _inlet_pipe(inputs, result, sizing, liquid, vapour, set_pressure, atm, (displaced, load))
     if piped:
         built = discharge(result, result.value(f"{PREFIX}_orifice_area"), sizing)
@@ -135,9 +139,10 @@ def reverse_valve(inputs, atm, result, *, relieving_pressure, load, density, vap
 def _inlet_pipe(inputs, result, sizing, liquid, vapour, set_pressure, atm, flows):
     """The inlet pipe's loss for each fluid the valve passes, each at the selected orifice's rated flow for it: the
     displaced steam first, then the liquid, through the same pipe. The larger loss is held against 3 % of the gauge
-    set pressure (the check, as the forward valve's); the other's steps are kept, and a notice gives both. A record
-    without the pipe says nothing of it, as before."""
+    set pressure (the check, as the forward valve's); the other's steps are kept, and a notice gives both. Without
+    the pipe, a notice of the rule, as the forward valve gives (since release 0.3.2)."""
     if inputs.relief_inlet_size is None:
+        inlet_loss_notice(result, NAME)
         return
     if liquid is None:
         inlet_pipe_not_assessed(result, NAME, inputs.relief_inlet_size, NOT_WATER)

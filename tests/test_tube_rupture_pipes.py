@@ -1,10 +1,13 @@
-"""The heater's forward tube-rupture valve: a discharge pipe narrower than the valve's outlet is warned of (release
-0.3.2), as the let-down's relief valve's and the reverse tube-rupture valve's are; before, it passed silently.
+"""The heater's tube-rupture valves' pipes, release 0.3.2: the forward valve warns of a discharge pipe narrower than
+the valve's outlet, as the let-down's relief valve and the reverse valve do (before, it passed silently); the reverse
+valve states its discharge and inlet pipes not assessed when they are not given, as the forward valve does (before,
+it said nothing of them).
 
 Sources: API 526 (orifice letters and valve sizes): the smallest outlet paired with each letter as tabulated in the
 Valve Selection Handbook, Table 5-1 (the Q orifice: 6Q8, an NPS 8 outlet, DN200); a pipe at least the valve's outlet
-size is common practice (the valve makers' installation instructions govern). The record of release 0.3.1 in
-tests/archive/v0_3_1_bases was issued by that release's code (commit 5d3eda1) from the case file beside it.
+size is common practice (the valve makers' installation instructions govern); the inlet loss within 3 % of the gauge
+set pressure, API 520 Part II (inlet piping). The records of release 0.3.1 in tests/archive/v0_3_1_bases were issued
+by that release's code (commit 5d3eda1) from the case files beside them.
 """
 
 import json
@@ -13,7 +16,7 @@ from pathlib import Path
 
 import pytest
 
-from steamcalc.calcs.exchanger.calculation import NARROW_OUTLET_CHECK, Inputs, calculate
+from steamcalc.calcs.exchanger.calculation import NARROW_OUTLET_CHECK, REVERSE_NAME, Inputs, calculate
 from steamcalc.cases.site import Site
 from steamcalc.cli import main
 from steamcalc.review.verify import verify_file
@@ -66,6 +69,42 @@ def test_a_0_3_1_record_with_a_wide_pipe_gets_no_allowance_for_a_planted_warning
         record["provenance"]["steamcalc"] = "0.3.1"
         record["warnings"].append(planted)
     forged = forged_copy(tmp_path / "out" / "HX-NW_revA.json", edit, tmp_path)
+    _, _, outcome, _ = verify_file(forged)
+    assert not outcome.ok
+    assert any(planted[:40] in line for line in outcome.statement_changes)
+    assert not any(CHANGE in note for note in outcome.notes)
+
+
+def test_a_0_3_1_reverse_valve_record_without_pipes_verifies_with_the_two_notices_listed(tmp_path, capsys):
+    for companion in ARCHIVE.glob("HX-RN_revA.*"):
+        shutil.copy(companion, tmp_path / companion.name)
+    record = json.loads((tmp_path / "HX-RN_revA.json").read_text("utf-8"))
+    assert record["provenance"]["steamcalc"] == "0.3.1"
+    assert not any(c["name"].startswith(REVERSE_NAME + ": ") and "not assessed" in json.dumps(c)
+                   for c in record["checks"])
+    assert main(["verify", str(tmp_path / "HX-RN_revA.json")]) == 0
+    said = capsys.readouterr().out
+    assert "verdict: VERIFIED" in said
+    for pipe in ("discharge pipe", "inlet pipe"):
+        assert f"the reverse tube-rupture valve's {pipe}, when not given, is stated as not assessed" in said
+
+
+def test_a_0_3_1_reverse_valve_record_with_its_pipes_gets_no_allowance_for_a_planted_notice(tmp_path, capsys):
+    """With both pipes given the recomputation states neither as not assessed: the allowance does not open, and a
+    notice planted in the record (digests recomputed) is a difference. (The water leaves at 90 °C, below its boiling
+    point: no other change of 0.3.2 applies to this record.)"""
+    case = tmp_path / "HX-RP.toml"
+    case.write_text((ARCHIVE / "HX-RN.toml").read_text("utf-8").replace('id = "HX-RN"', 'id = "HX-RP"')
+                    .replace('"110 degC"', '"90 degC"')
+                    + 'discharge_size = "DN80"\ndischarge_length = "10 m"\ninlet_size = "DN50"\ninlet_length = "1 m"\n')
+    assert main(["run", str(case), "--out", str(tmp_path / "out")]) in (0, 1)
+    capsys.readouterr()
+    planted = f"{REVERSE_NAME}: relief inlet pressure loss: not assessed: the relief valve's inlet pipe is not given"
+
+    def edit(record):
+        record["provenance"]["steamcalc"] = "0.3.1"
+        record["warnings"].append(planted)
+    forged = forged_copy(tmp_path / "out" / "HX-RP_revA.json", edit, tmp_path)
     _, _, outcome, _ = verify_file(forged)
     assert not outcome.ok
     assert any(planted[:40] in line for line in outcome.statement_changes)
