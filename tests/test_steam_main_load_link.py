@@ -155,3 +155,43 @@ def test_a_heater_record_that_states_no_steam_flow_is_refused(site, tmp_path, ca
     forged = forged_copy(site / "records" / "HX-01_revB.json", lambda r: r["results"].pop("steam_flow"), tmp_path)
     _refused(site, capsys, _case(LINK + f'folder = "{forged.parent.as_posix()}"\n'), "load_link.record",
              ["linked heater record HX-01 revision B states no steam flow", "re-issue HX-01"])
+
+
+def test_the_heaters_condensate_into_the_return_line_is_the_same_records(issued):
+    """Source: HX-01 revision B's own record (its "Condensate flow" result): the demo main's return line gives the
+    heater's trap but not its flow, which is taken from the record the link names, and the record says so."""
+    _, record, heater = issued
+    assert record["inputs"]["heater_condensate_flow"]["value"] == heater["results"]["condensate_flow"]["value"]
+    assert record["inputs"]["load_link_condensate"]["value"] == "the heater record's condensate flow at design duty"
+    assert any("the heater's condensate into the return line: the same record's condensate flow" in a
+               for a in record["assumptions"])
+
+
+def test_a_condensate_flow_given_beside_the_link_is_kept_and_not_said_to_be_the_records(site, capsys):
+    """A return line sized for another flow (the engineer's own figure) keeps it: the link gives the steam flow only."""
+    text = _case(LINK).replace('id = "SM-BAD"', 'id = "SM-OWN"').replace(
+        'heater_trap_pressure = "4 bar(g)"', 'heater_trap_pressure = "4 bar(g)"\nheater_condensate_flow = "900 kg/h"')
+    case = site / "cases" / "SM-OWN.toml"
+    case.write_text(text, encoding="utf-8")
+    assert main(["run", str(case), "--quiet"]) in (0, 1), capsys.readouterr().err
+    record = json.loads((site / "records" / "SM-OWN_revA.json").read_text(encoding="utf-8"))
+    assert record["inputs"]["heater_condensate_flow"]["given"] == "900 kg/h"
+    assert (record["inputs"].get("load_link_condensate") or {}).get("value") is None
+    assert not any("condensate into the return line" in a for a in record["assumptions"])
+    assert main(["verify", str(site / "records" / "SM-OWN_revA.json")]) == 0
+
+
+def test_a_load_link_condensate_typed_into_the_case_is_not_believed(site, capsys):
+    """The link's condensate entry is filled in when the main runs: typed beside a flow of the engineer's own, it
+    does not make the record say the flow is the heater record's."""
+    typed = 'revision = "B"\ncondensate = "the heater record\'s condensate flow at design duty"\n'
+    text = _case(LINK.replace('revision = "B"\n', typed)).replace(
+        'id = "SM-BAD"', 'id = "SM-TYPED"').replace(
+        'heater_trap_pressure = "4 bar(g)"', 'heater_trap_pressure = "4 bar(g)"\nheater_condensate_flow = "900 kg/h"')
+    case = site / "cases" / "SM-TYPED.toml"
+    case.write_text(text, encoding="utf-8")
+    assert main(["run", str(case), "--quiet"]) in (0, 1), capsys.readouterr().err
+    record = json.loads((site / "records" / "SM-TYPED_revA.json").read_text(encoding="utf-8"))
+    assert record["inputs"]["heater_condensate_flow"]["value"] == pytest.approx(900.0)   # kg/h, as records keep it
+    assert (record["inputs"].get("load_link_condensate") or {}).get("value") is None
+    assert not any("condensate into the return line" in a for a in record["assumptions"])

@@ -112,6 +112,10 @@ class Inputs:
     load_link_content_digest: str | None = input_field(
         "text", "Heater record's content digest", "Filled in from the linked record when the main runs (give it "
         "only to pin the record you checked).", example="sha256:...", section="load_link", key="content_digest")
+    load_link_condensate: str | None = input_field(
+        "text", "Heater record's condensate", "Filled in when the main runs: the heater record's result taken as the "
+        "heater's condensate into the return line, when the return line gives the heater's trap but not its flow.",
+        example="the heater record's condensate flow at design duty", section="load_link", key="condensate")
     segments: tuple | None = input_field(
         "rows", "Segments", "The main's straight runs in order from the header: length, size, schedule, fittings K "
         "and rise (a fall below zero).", example='[{length = "75 m", size = "DN80"}]', required=True,

@@ -20,6 +20,10 @@ from ..links import FlatLink, take_flat_link
 LOAD_KIND = "exchanger"
 #: The heater's result the main takes: its steam flow at the design duty.
 HEATER_STEAM_FLOW = "steam_flow"
+#: The heater's result the return line takes, when the case gives the heater's trap but not its condensate flow.
+HEATER_CONDENSATE_FLOW = "condensate_flow"
+#: What the link's condensate entry says when the heater record's condensate flow was taken (the record's words).
+CONDENSATE_TAKEN = "the heater record's condensate flow at design duty"
 #: The load link: a heater record whose design steam flow is the main's.
 LOAD_LINK = FlatLink(item="load", kind=LOAD_KIND, words="heater record", example="HX-01", replaces=("steam_flow",),
                      instead="give the main's steam_flow", holder="the main")
@@ -41,7 +45,8 @@ def linked_load(values, given, case_path, read_record):
     -------
     tuple
         ``(values, given)`` with ``steam_flow`` (kg/s; given as the heater record states it, in its unit) and the
-        link's four inputs added.
+        link's four inputs added; with ``heater_condensate_flow`` too (the heater's ``condensate_flow`` result) when
+        the case gives the heater's trap in its return line but not that flow (one given is kept: release 0.3.2).
     """
     record, values, given = take_flat_link(LOAD_LINK, values, given, case_path, read_record)
     if record is None:
@@ -54,8 +59,24 @@ def linked_load(values, given, case_path, read_record):
         raise InputError(f"linked heater record {record_id} revision {revision} states no steam flow",
                          field="load_link.record", value=record_id,
                          fix=f"re-issue {record_id} with this release of steamcalc") from None
-    return (dict(values, steam_flow=flow),
-            dict(given, steam_flow=f"{entry['value']:.12g} {entry['unit']}"))
+    values, given = dict(values, steam_flow=flow), dict(given, steam_flow=f"{entry['value']:.12g} {entry['unit']}")
+    # Filled in here only, so that the record says where the condensate came from only when it came from the link.
+    values.pop("load_link_condensate", None)
+    given.pop("load_link_condensate", None)
+    if values.get("heater_trap_pressure") is not None and values.get("heater_condensate_flow") is None:
+        # The heater's trap drains into the main's return line: its condensate is the same record's, not a copy.
+        try:
+            entry = record["results"][HEATER_CONDENSATE_FLOW]
+            condensate = from_record_unit(entry["value"], entry["unit"], "mass_flow")
+        except (KeyError, TypeError, UnitError):
+            raise InputError(f"linked heater record {record_id} revision {revision} states no condensate flow",
+                             field="return_line.heater_condensate_flow", value=record_id,
+                             fix=f"give heater_condensate_flow in [inputs.return_line], or re-issue {record_id} with "
+                                 "this release of steamcalc") from None
+        values["heater_condensate_flow"] = condensate
+        given["heater_condensate_flow"] = f"{entry['value']:.12g} {entry['unit']}"
+        values["load_link_condensate"] = given["load_link_condensate"] = CONDENSATE_TAKEN
+    return values, given
 
 
 def load_source(inputs):
@@ -65,7 +86,9 @@ def load_source(inputs):
     return (f"Steam flow: the steam flow at design duty of heater record {inputs.load_link_record_id} revision "
             f"{inputs.load_link_revision}, content digest {inputs.load_link_content_digest} (its design process flow "
             "and temperatures, heat-loss allowance included), as that record states it; not the larger flow at "
-            "the largest process flow the heater's installed area takes")
+            "the largest process flow the heater's installed area takes"
+            + ("; the heater's condensate into the return line: the same record's condensate flow at design duty"
+               if inputs.load_link_condensate else ""))
 
 
 __all__ = ["linked_load", "load_source", "LOAD_KIND", "LOAD_LINK"]
