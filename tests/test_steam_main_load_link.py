@@ -195,3 +195,26 @@ def test_a_load_link_condensate_typed_into_the_case_is_not_believed(site, capsys
     assert record["inputs"]["heater_condensate_flow"]["value"] == pytest.approx(900.0)   # kg/h, as records keep it
     assert (record["inputs"].get("load_link_condensate") or {}).get("value") is None
     assert not any("condensate into the return line" in a for a in record["assumptions"])
+
+
+def test_a_main_that_says_its_condensate_is_the_heater_records_when_it_is_not_fails_verify(site, tmp_path, capsys):
+    """SM-OWN sizes its return for 900 kg/h of its own; made to say that flow is HX-01's (its link's condensate entry
+    and assumption planted, digests recomputed), it reproduces from its own inputs, but HX-01 revision B beside it
+    states 710.3 kg/h: a difference naming the input (before, VERIFIED)."""
+    from steamcalc.calcs.steam_main.load import CONDENSATE_TAKEN
+
+    if not (site / "records" / "SM-OWN_revA.json").exists():
+        test_a_condensate_flow_given_beside_the_link_is_kept_and_not_said_to_be_the_records(site, capsys)
+    out = _beside(site, tmp_path / "records", "SM-OWN_revA.json", "HX-01_revB.json")
+
+    def claim(record):
+        record["inputs"]["load_link_condensate"] = {"value": CONDENSATE_TAKEN, "unit": "", "given": CONDENSATE_TAKEN}
+        record["assumptions"] = [a + "; the heater's condensate into the return line: the same record's condensate "
+                                 "flow at design duty" if a.startswith("Steam flow:") else a
+                                 for a in record["assumptions"]]
+    shutil.copy(forged_copy(out / "SM-OWN_revA.json", claim, tmp_path), out / "SM-OWN_revA.json")
+    capsys.readouterr()
+    assert main(["verify", str(out / "SM-OWN_revA.json")]) == 1
+    said = capsys.readouterr().out
+    assert "input heater_condensate_flow: the main holds '900 kg/h' as heater record HX-01 revision B's " \
+           "condensate_flow, which states 710.309 kg/h" in said, said

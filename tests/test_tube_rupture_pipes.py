@@ -109,3 +109,36 @@ def test_a_0_3_1_reverse_valve_record_with_its_pipes_gets_no_allowance_for_a_pla
     assert not outcome.ok
     assert any(planted[:40] in line for line in outcome.statement_changes)
     assert not any(CHANGE in note for note in outcome.notes)
+
+
+def _forged_0_3_1(tmp_path, name, edit):
+    """A 0.3.1 record of the archive edited as a forger would, its digests recomputed: its verification."""
+    _, _, outcome, error = verify_file(forged_copy(ARCHIVE / name, edit, tmp_path))
+    assert error is None, error
+    return outcome
+
+
+def test_a_status_the_records_own_checks_do_not_give_is_not_explained_by_the_change(tmp_path):
+    """HX-NO (0.3.1) states warnings besides the narrow outlet's: a status edited to pass, which the change of 0.3.2
+    (a warning added) would otherwise explain, is a difference (before, VERIFIED)."""
+    outcome = _forged_0_3_1(tmp_path, "HX-NO_revA.json", lambda r: r.update(status="pass"))
+    assert not outcome.ok and "status: recorded 'pass', recomputed 'warn'" in outcome.differences()
+
+
+@pytest.mark.parametrize("name, section, text", [
+    ("HX-RN_revA.json", "assumptions", f"{REVERSE_NAME}: discharge line: checked by the vendor, adequate"),
+    ("HX-RN_revA.json", "assumptions", f"{REVERSE_NAME}: relief inlet pressure loss: 1.2 % of the set pressure"),
+    ("HX-NO_revA.json", "warnings", f"{NARROW_OUTLET_CHECK}: the pipe is wide enough"),
+])
+def test_a_statement_planted_under_a_change_that_only_adds_is_a_difference(tmp_path, name, section, text):
+    """The changes of 0.3.2 only add a check and its warning: a statement the record holds that the recomputation does
+    not issue is not theirs to explain (before, VERIFIED with a note)."""
+    outcome = _forged_0_3_1(tmp_path, name, lambda r: r[section].append(text))
+    assert not outcome.ok and any(text in line for line in outcome.differences()), outcome.differences()
+
+
+def test_a_narrow_outlet_check_planted_as_passing_is_a_difference(tmp_path):
+    """A 0.3.1 record cannot hold the check 0.3.2 adds: one planted as passing is a difference (before, VERIFIED)."""
+    planted = {"name": NARROW_OUTLET_CHECK, "status": "pass", "detail": "the pipe is wide enough", "kind": "notice"}
+    outcome = _forged_0_3_1(tmp_path, "HX-NO_revA.json", lambda r: r["checks"].append(planted))
+    assert not outcome.ok and any("the pipe is wide enough" in line for line in outcome.differences())

@@ -13,6 +13,7 @@ record's digests are checked on the record as it stands, before any of this.
 
 from __future__ import annotations
 
+import re
 from dataclasses import dataclass
 
 
@@ -66,15 +67,24 @@ ENGINEERS_NOTE = "Engineer's note: "
 def release(version):
     """A release's number as a tuple that orders releases (``"0.3.1"`` -> ``(0, 3, 1)``); None when unreadable.
 
+    Only a number as steamcalc writes one reads: two or three parts of ASCII digits, none with a leading zero, and
+    nothing around them (a record whose provenance was written otherwise gets no allowance of a later release).
+
     Examples
     --------
     >>> release("0.3.1") > release("0.3.0"), release("0.10.0") > release("0.9.2"), release("dev")
     (True, True, None)
+    >>> [release(v) for v in ("0", " 0.3.1", "0.3.1\\n", "0.03.1", "0.3.1.99", "\\u0660.3.1", "-1.3")]
+    [None, None, None, None, None, None, None]
     """
-    try:
-        return tuple(int(part) for part in str(version).split("."))
-    except ValueError:
+    text = str(version)
+    if _RELEASE.fullmatch(text) is None:
         return None
+    return tuple(int(part) for part in text.split("."))
+
+
+#: A release number as steamcalc writes it: 0.3 or 0.3.1 (ASCII digits, no leading zeros).
+_RELEASE = re.compile(r"(?:0|[1-9][0-9]*)(?:\.(?:0|[1-9][0-9]*)){1,2}", re.ASCII)
 
 
 def _worded_now(text, applied, rewordings):

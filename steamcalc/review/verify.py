@@ -443,12 +443,21 @@ def _read_given_afresh(kind, name, given, site_text):
     return read, header, None
 
 
-def _basis_change(calc, text, changes=None):
+#: The fifth item of a ``BASIS_CHANGES`` entry that only adds to a record (a check, a statement, a result): a record
+#: of an earlier release lacks what it matches, and can hold none of it, so only what the recomputation adds is
+#: explained by it; what the record holds that the recomputation does not issue stays a difference.
+ADDS_ONLY = "adds only"
+
+
+def _basis_change(calc, text, changes=None, added=True):
     """(release, why) of the basis change that ``text`` (a key, label or statement) falls under: among ``changes``
-    (entries of the kind's ``BASIS_CHANGES``), or all of them."""
+    (entries of the kind's ``BASIS_CHANGES``), or all of them. ``added`` is False for what the record holds and
+    the recomputation does not give: no change that only adds (:data:`ADDS_ONLY`) explains it."""
     from fnmatch import fnmatchcase
 
     for change in (getattr(calc, "BASIS_CHANGES", ()) if changes is None else changes):
+        if not added and len(change) > 4 and change[4] == ADDS_ONLY:
+            continue
         release, why, patterns = change[:3]
         if any(fnmatchcase(str(text), pattern) for pattern in patterns):
             return release, why
@@ -461,7 +470,8 @@ def release_basis_changes(record, fresh):
     An entry of a kind's ``BASIS_CHANGES`` may name, as a fourth item, a pattern over the recomputed steps' labels
     and checks' names (each also as "name: detail"): the change applies to a record of an earlier release only when
     the recomputation takes the changed path (a step or a check of that name, or of those words), so a record the
-    change does not touch is held to every word as before. A record whose
+    change does not touch is held to every word as before. A fifth item :data:`ADDS_ONLY` marks a change that only
+    adds: it explains nothing the record holds that the recomputation does not issue. A record whose
     release does not read gets none (:func:`steamcalc.review.rewordings.release`).
     """
     from fnmatch import fnmatchcase
@@ -497,11 +507,11 @@ def _by_later_bases(record, result, changes=None):
     except SteamcalcError:
         return
 
-    def basis(calc, text):
-        return _basis_change(calc, text, changes)
+    def basis(calc, text, added=True):
+        return _basis_change(calc, text, changes, added)
 
     for c in result.comparisons:
-        change = c.verdict in ("differs", "new", "missing") and basis(calc, c.key)
+        change = c.verdict in ("differs", "new", "missing") and basis(calc, c.key, c.verdict == "new")
         if change:
             c.verdict = "changed"
             result.notes.append(f"{c.key}: recorded {c.recorded}, recomputed {c.recomputed}: changed by release "
@@ -511,7 +521,9 @@ def _by_later_bases(record, result, changes=None):
         # "recorded: NAME = ..." / "step 'LABEL': ..." / "warnings: not issued 'TEXT'"
         name = re.sub(r"^(?:recorded|recomputed): ", "", line).split(" = ")[0]
         label = re.match(r"step '([^']*)'", line)
-        return basis(calc, label.group(1) if label else name)
+        # What the recomputation adds ("recomputed: ...", a step the record does not have), or what the record holds.
+        added = line.startswith("recomputed: ") or line.endswith("a step of this release the record does not have")
+        return basis(calc, label.group(1) if label else name, added)
     # The release named when a line is explained by the change of its checks (the status) or a statement.
     note = BASIS_NOTE if changes is None else f"{changes[0][0]} (its basis changed; see the results' notes)"
     kept = []
@@ -524,14 +536,15 @@ def _by_later_bases(record, result, changes=None):
     kept = []
     for line in result.statement_changes:
         section, _, rest = line.partition(": ")
-        if section == "status" and explained_checks and not result.check_changes:
+        if section == "status" and explained_checks and not result.check_changes and \
+                record.get("status") == _worst_status(record.get("checks", [])):
             # The status follows the checks: when every check that changed is a declared change of basis, so is it.
             result.notes.append(f"{line}: changed by release {note}")
             continue
         parts = _QUOTED.findall(rest) if section in (
             "warnings", "assumptions") else []
-        if parts and all(basis(calc, ast.literal_eval(text)) or basis(
-                calc, ast.literal_eval(text).split(":")[0]) for _, text in parts):
+        if parts and all(basis(calc, ast.literal_eval(text), how == "missing") or basis(
+                calc, ast.literal_eval(text).split(":")[0], how == "missing") for how, text in parts):
             result.notes.append(f"{line}: changed by release {note}")
         elif line.startswith("step ") and explained(line):
             change = explained(line)
@@ -539,6 +552,13 @@ def _by_later_bases(record, result, changes=None):
         else:
             kept.append(line)
     result.statement_changes = kept
+
+
+def _worst_status(checks):
+    """The status a record's own checks give (``fail`` over ``warn`` over ``pass``): a record's status that a later
+    release's change of basis explains must still be the one its checks state."""
+    statuses = {c.get("status") for c in checks if isinstance(c, dict)}
+    return "fail" if "fail" in statuses else "warn" if "warn" in statuses else "pass"
 
 
 #: A statement as _statement_changes quotes it: "missing 'text'" or 'not issued "text"'.
@@ -692,8 +712,10 @@ def _steps_under_later_basis(old_steps, new_steps, later, notes):
     """
     from fnmatch import fnmatchcase
 
-    def under(label):
-        return any(fnmatchcase(str(label), pattern) for change in later for pattern in change[2])
+    def under(label, added=False):
+        # A step the record holds that differs or is gone is under no change that only adds (ADDS_ONLY).
+        return any(fnmatchcase(str(label), pattern) for change in later for pattern in change[2]
+                   if added or not (len(change) > 4 and change[4] == ADDS_ONLY))
 
     old, new = _labelled(old_steps), _labelled(new_steps)
     release = later[0][0]
@@ -709,8 +731,8 @@ def _steps_under_later_basis(old_steps, new_steps, later, notes):
                                                     "the record's text or value is not the calculation's"))
     added = [key[0] for key in new if key not in old]
     changes += [f"step {label!r}: a step of this release the record does not have" for label in added
-                if not under(label)]
-    changed += [label for label in added if under(label)]
+                if not under(label, True)]
+    changed += [label for label in added if under(label, True)]
     if changed and notes is not None:
         notes.append(f"steps changed, added or gone by the change of basis of release {release}: "
                      + ", ".join(map(repr, changed)))

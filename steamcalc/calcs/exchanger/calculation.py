@@ -58,6 +58,9 @@ SUMMARY_RESULTS = ("duty", "steam_flow", "required_area", "area_margin", "contro
 #: instead of calling it edited: patterns (fnmatch) over result keys, step labels, check names and statements.
 #: The forward tube-rupture valve's warning of a discharge pipe narrower than its outlet (release 0.3.2).
 NARROW_OUTLET_CHECK = f"{TUBE_RUPTURE}: discharge line size"
+#: An entry's fifth item: the change only adds (a check, a statement); a record of an earlier release holds none of
+#: it, so verify explains only what the recomputation adds (steamcalc.review.verify.ADDS_ONLY: the same words).
+ADDS_ONLY = "adds only"
 BASIS_CHANGES = (
     ("0.3", "the steam's state is given at its supply (a superheated header) and carried into the valve, the zones "
      "and the steam flow; the heater's capacity at the supply pressure is reported",
@@ -76,10 +79,12 @@ BASIS_CHANGES = (
      "was called far too small and the record failed", ("Tube rupture*", "tube_rupture_*", "Thermal relief*",
                                                       "thermal_relief_*"), LIQUID_TO_EXIT_STEP),
     ("0.3.2", "a tube-rupture discharge pipe narrower than the outlet API 526 pairs with the valve's orifice is warned "
-     "of, as the let-down's relief valve's and the reverse valve's are", (NARROW_OUTLET_CHECK + "*",), NARROW_OUTLET_CHECK),
+     "of, as the let-down's relief valve's and the reverse valve's are", (NARROW_OUTLET_CHECK + "*",), NARROW_OUTLET_CHECK,
+     ADDS_ONLY),
     # Two changes of one kind, each applied only where the recomputation states it.
     *(("0.3.2", "the reverse tube-rupture valve's " + pipe + ", when not given, is stated as not assessed (the rule "
-       "left for the relief system's designer), as the forward valve's is", (check + "*",), check + ": not assessed*")
+       "left for the relief system's designer), as the forward valve's is", (check + "*",), check + ": not assessed*",
+       ADDS_ONLY)
       for pipe, check in (("discharge pipe", f"{REVERSE_NAME}: discharge line"),
                           ("inlet pipe", f"{REVERSE_NAME}: relief inlet pressure loss"))),
 )

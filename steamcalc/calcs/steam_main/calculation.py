@@ -16,10 +16,11 @@ from ...units.amounts import Phrase
 from ...units.rows import Column
 from ..base import Result, check_fields, full_record_wanted, input_field
 from .economics import OPTION_COLUMNS, check_options, report_economics
-from .load import load_source
+from .load import load_link_value_problems, load_source
 from .report import report_main
 from .report_condensate import report_return, report_traps
-from .supply import linked_record_problems, supply_source
+from .supply import linked_record_problems as supply_link_problems
+from .supply import supply_source
 from .supply import main_stale_links as stale_links
 
 KIND = "steam_main"
@@ -341,6 +342,13 @@ def calculate(inputs, site):
         from .figures import figures
         result.figures.extend(figures(inputs, site, flows, drips, result, options))
     return result
+
+
+def linked_record_problems(record, record_path, read_record):
+    """What no longer holds of a main's links, for ``verify``: ``(problems, notes)``; the flows it took from its
+    heater record against that record too (:func:`.load.load_link_value_problems`)."""
+    problems, notes = supply_link_problems(record, record_path, read_record)
+    return problems + load_link_value_problems(record, record_path, read_record), notes
 
 
 __all__ = ["KIND", "TITLE", "WORKBOOK", "Inputs", "calculate", "linked_record_problems", "stale_links", "Phrase"]
