@@ -144,3 +144,32 @@ def test_a_supply_pressure_given_beside_the_link_is_refused(site, capsys):
 def test_a_pinned_digest_the_file_no_longer_holds_is_refused(site, capsys):
     _refused(site, capsys, 'record = "LD-01"\nrevision = "B"\ncontent_digest = "sha256:0000"',
              "supply_link.content_digest", ["not the sha256:0000 the case file pins"])
+
+
+def test_a_main_that_says_its_supply_is_the_let_downs_when_it_is_not_fails_verify(site, issued, tmp_path, capsys):
+    """Found by an independent attack on the heater link, tried here on the supply link: a main issued from a supply
+    of its own (7 bar(g), 20 K superheat) made to say it is fed from LD-01 revision B (the link's inputs and its
+    sentence planted, digests recomputed) reproduces from its own inputs, and LD-01's file beside it is the one
+    named; but LD-01 states another outlet. Expected: a difference naming the input (before, VERIFIED)."""
+    from tests.case_helpers import forged_copy
+
+    _, linked, _ = issued
+    text = _main_case('record = "LD-01"\nrevision = "B"').replace('id = "SM-L"', 'id = "SM-OWN"')
+    text = text.split("[inputs.supply_link]")[0] + "[inputs.insulation]" + text.split("[inputs.insulation]", 1)[1]
+    text = text.replace("[inputs]\n", '[inputs]\nsupply_pressure = "7 bar(g)"\nsupply_superheat = "20 K"\n', 1)
+    code, _, err = _run(site, text, capsys, name="SM-OWN")
+    assert code in (0, 1), err
+
+    def claim(record):
+        for key, entry in linked["inputs"].items():
+            if key.startswith("supply_link_"):
+                record["inputs"][key] = entry
+        record["assumptions"] = [a for a in linked["assumptions"] if a.startswith("Supply: ")] + record["assumptions"]
+    out = tmp_path / "records"
+    out.mkdir()
+    shutil.copy(site / "records" / "LD-01_revB.json", out / "LD-01_revB.json")
+    shutil.copy(forged_copy(site / "records" / "SM-OWN_revA.json", claim, tmp_path), out / "SM-OWN_revA.json")
+    assert main(["verify", str(out / "SM-OWN_revA.json")]) == 1
+    said = capsys.readouterr().out
+    assert "input supply_pressure: the record holds '7 bar(g)' as let-down record LD-01 revision B's outlet_pressure" \
+        in said, said

@@ -310,5 +310,77 @@ def take_flat_link(link, values, given, case_path, read_record):
     return record, dict(values, **{f"{link.item}_link_revision": revision}, **kept), dict(given, **kept)
 
 
+
+#: Relative difference within which a value a record took from a linked record is the one that record states (the
+#: value is read in the linked record's unit and written back: only the last bits may differ).
+TAKEN_TOLERANCE = 1e-9
+
+
+def taken_value_problems(record, record_path, read_record, link, taken, words):
+    """What a record says it took from a linked record beside it that that record does not state.
+
+    The link's digest check (:func:`link_problems`) shows the linked file is the record used; this shows each value
+    taken is that record's. A record whose inputs were edited, its results recomputed from them and its digests
+    written again, would otherwise keep saying they are the linked record's.
+
+    Parameters
+    ----------
+    record : dict
+        The linking record.
+    record_path : str or Path or None
+        Where it was read from; the linked record is looked for beside it (None: nothing is checked).
+    read_record : callable
+        Reads a record file, refusing one whose digests do not match (from the records layer).
+    link : str
+        The link's inputs' prefix (``"load_link"``: ``load_link_record_id``, ``_revision``, ``_content_digest``).
+    taken : sequence of tuple
+        ``(input name, section, key, quantity kind)``: the record's input and where the linked record states it
+        (``"inputs"`` or ``"results"``). An input the record does not hold is skipped.
+    words : str
+        The linked record in words (``"heater record"``).
+
+    Returns
+    -------
+    list of str
+        One line per value that is not what the linked record states; nothing when the linked record is not
+        beside the record or is another record (the link's own check says so).
+    """
+    from ..units.quantities import from_record_unit
+
+    inputs = record.get("inputs", {}) if isinstance(record.get("inputs"), dict) else {}
+
+    def value(name):
+        entry = inputs.get(name)
+        return entry.get("value") if isinstance(entry, dict) else None
+
+    record_id, revision = value(f"{link}_record_id"), value(f"{link}_revision")
+    if record_id is None or record_path is None:
+        return []
+    path = Path(record_path).parent / f"{record_id}_rev{revision}.json"
+    try:
+        linked = read_record(path) if path.is_file() else None
+    except SteamcalcError:
+        linked = None
+    if not isinstance(linked, dict) or linked.get("content_digest") != value(f"{link}_content_digest"):
+        return []
+    problems = []
+    for name, section, key, kind in taken:
+        entry = inputs.get(name)
+        if entry is None:
+            continue
+        source = (linked.get(section) or {}).get(key)
+        try:
+            kept = from_record_unit(entry["value"], entry["unit"], kind)
+            stated = from_record_unit(source["value"], source["unit"], kind)
+            same = abs(kept - stated) <= TAKEN_TOLERANCE * abs(stated)
+        except (KeyError, TypeError, ValueError, SteamcalcError):
+            same, stated = False, None
+        if not same:
+            shown = "nothing" if stated is None else f"{source['value']:.6g} {source['unit']}"
+            held = entry.get("given") if isinstance(entry, dict) else None
+            problems.append(f"input {name}: the record holds {held!r} as {words} {record_id} revision {revision}'s "
+                            f"{key}, which states {shown}; re-issue it from its case file")
+    return problems
+
 __all__ = ["DEFAULT_FOLDER", "LINK_NAMES", "find_linked_record", "record_links", "link_states", "stale_links",
            "link_problems", "FlatLink", "take_flat_link"]

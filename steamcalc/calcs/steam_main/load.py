@@ -14,7 +14,7 @@ from __future__ import annotations
 
 from ...errors import InputError, UnitError
 from ...units.quantities import from_record_unit
-from ..links import FlatLink, take_flat_link
+from ..links import FlatLink, take_flat_link, taken_value_problems
 
 #: The linked record's kind: the steam heater the main feeds.
 LOAD_KIND = "exchanger"
@@ -79,74 +79,40 @@ def linked_load(values, given, case_path, read_record):
     return values, given
 
 
-#: Relative difference within which a flow the main keeps is the one its heater record states (the main keeps the
-#: record's number, read in its unit and written back: only the last bits may differ).
-TAKEN_TOLERANCE = 1e-9
-
-
 def load_link_value_problems(record, record_path, read_record):
-    """What a main says it took from its linked heater record that the record beside it does not state.
-
-    The link's digest check (:func:`steamcalc.calcs.links.link_problems`) shows the heater record is the one the
-    main used; this shows the main's ``steam_flow``, and its ``heater_condensate_flow`` when ``load_link_condensate``
-    says it is the heater record's, are that record's ``steam_flow`` and ``condensate_flow``. A main whose inputs
-    were edited, and its results recomputed from them, would otherwise keep saying they are the heater's.
+    """What a main says it took from its linked heater record that the record beside it does not state: its
+    ``steam_flow``, and its ``heater_condensate_flow`` when ``load_link_condensate`` says it is the heater record's
+    (:func:`steamcalc.calcs.links.taken_value_problems`); and a ``load_link_condensate`` the main does not write.
 
     Parameters
     ----------
     record : dict
         The main's record.
     record_path : str or Path or None
-        Where it was read from (None: nothing is checked; the link's check notes the heater record as not found).
+        Where it was read from.
     read_record : callable
         Reads a record file, refusing one whose digests do not match (from the records layer).
 
     Returns
     -------
     list of str
-        One line per input that is not what the heater record states.
     """
-    from pathlib import Path
-
-    from ...errors import SteamcalcError
-
-    inputs = record.get("inputs", {})
+    inputs = record.get("inputs", {}) if isinstance(record.get("inputs"), dict) else {}
 
     def value(name):
         entry = inputs.get(name)
         return entry.get("value") if isinstance(entry, dict) else None
 
-    record_id, revision, claim = value("load_link_record_id"), value("load_link_revision"), value("load_link_condensate")
-    if record_id is None:
-        return [] if claim is None else [f"input load_link_condensate says {claim!r}, but the main links no heater "
-                                         "record"]
-    path = None if record_path is None else Path(record_path).parent / f"{record_id}_rev{revision}.json"
-    try:
-        heater = read_record(path) if path is not None and path.is_file() else None
-    except SteamcalcError:
-        heater = None   # the link's own check says why it cannot be used
-    if heater is None or heater.get("content_digest") != value("load_link_content_digest"):
-        return []       # not beside it, or another record: the link's own check says so
-    taken = [("steam_flow", HEATER_STEAM_FLOW)]
+    claim, linked = value("load_link_condensate"), value("load_link_record_id")
     problems = []
+    if claim is not None and not linked:
+        problems.append(f"input load_link_condensate says {claim!r}, but the main links no heater record")
+    elif claim is not None and claim != CONDENSATE_TAKEN:
+        problems.append(f"input load_link_condensate says {claim!r}; the main writes only {CONDENSATE_TAKEN!r}")
+    taken = [("steam_flow", "results", HEATER_STEAM_FLOW, "mass_flow")]
     if claim is not None:
-        if claim != CONDENSATE_TAKEN:
-            problems.append(f"input load_link_condensate says {claim!r}; the main writes only {CONDENSATE_TAKEN!r}")
-        taken.append(("heater_condensate_flow", HEATER_CONDENSATE_FLOW))
-    for name, key in taken:
-        entry, source = inputs.get(name), heater.get("results", {}).get(key)
-        try:
-            kept = from_record_unit(entry["value"], entry["unit"], "mass_flow")
-            stated = from_record_unit(source["value"], source["unit"], "mass_flow")
-            same = abs(kept - stated) <= TAKEN_TOLERANCE * abs(stated)
-        except (KeyError, TypeError, UnitError):
-            same, stated = False, None
-        if not same:
-            shown = "no such result" if stated is None else f"{source['value']:.6g} {source['unit']}"
-            held = entry.get("given") if isinstance(entry, dict) else None
-            problems.append(f"input {name}: the main holds {held!r} as heater record {record_id} revision {revision}'s "
-                            f"{key}, which states {shown}; re-issue the main from its case file")
-    return problems
+        taken.append(("heater_condensate_flow", "results", HEATER_CONDENSATE_FLOW, "mass_flow"))
+    return problems + taken_value_problems(record, record_path, read_record, "load_link", taken, "heater record")
 
 
 def load_source(inputs):

@@ -13,7 +13,7 @@ from __future__ import annotations
 
 from ...errors import InputError
 from ...units.quantities import from_record_unit
-from ..links import FlatLink, link_problems, stale_links, take_flat_link
+from ..links import FlatLink, link_problems, stale_links, take_flat_link, taken_value_problems
 
 #: The linked record's kind: a main is fed from a let-down's outlet.
 SUPPLY_KIND = "letdown"
@@ -74,8 +74,14 @@ def linked_supply(values, given, case_path, read_record):
 
 
 def linked_record_problems(record, record_path, read_record):
-    """What no longer holds of a main's supply link, for ``verify``: ``(problems, notes)``."""
-    return link_problems(record, record_path, read_record, HOLDER)
+    """What no longer holds of a main's supply link, for ``verify``: ``(problems, notes)``; the supply pressure and
+    temperature it took against the let-down record beside it too
+    (:func:`steamcalc.calcs.links.taken_value_problems`)."""
+    problems, notes = link_problems(record, record_path, read_record, HOLDER)
+    taken = [("supply_pressure", "inputs", "outlet_pressure", "pressure"),
+             ("supply_temperature", "results", "outlet_temperature", "temperature")]
+    return problems + taken_value_problems(record, record_path, read_record, "supply_link", taken, "let-down record"), \
+        notes
 
 
 def main_stale_links(record, record_path, read_record):
