@@ -181,7 +181,8 @@ class Inputs:
         "pressure_difference", "Return line drop limit", "Largest friction drop allowed in the return line.",
         example="0.3 bar", section="return_line", key="drop_limit", default=0.3e5, positive=True)
     heater_condensate_flow: float | None = input_field(
-        "mass_flow", "Heater condensate", "Condensate of the heater the main feeds, into the same return line.",
+        "mass_flow", "Heater condensate", "Condensate of the heater the main feeds, into the same return line; "
+        "left empty with a heater record linked, that record's condensate flow at design duty is taken.",
         example="750 kg/h", section="return_line", key="heater_condensate_flow", positive=True)
     heater_trap_pressure: float | None = input_field(
         "pressure", "Heater trap inlet pressure", "Pressure in the heater's steam space at the trap, at the "
