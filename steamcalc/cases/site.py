@@ -555,7 +555,9 @@ def parse_inputs(inputs_class, flat, site, case_path=None, read_record=None):
                 raw = f"{raw:g}"
             if not isinstance(raw, str):
                 raise InputError("must be text" + (", such as 'DN80' or '3 in'" if kind == "nominal_size" else ""),
-                                 field=where, value=raw)
+                                 field=where, value=raw,
+                                 fix=(f'write it in quotes, e.g. {where.rsplit(".", 1)[-1]} = '
+                                      f'"{f.metadata.get("example") or ("DN80" if kind == "nominal_size" else "...")}"'))
             values[f.name] = raw.strip()
         elif kind == "rows":
             from ..units.rows import parse_rows, rows_given
