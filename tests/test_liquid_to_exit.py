@@ -141,3 +141,85 @@ def test_a_0_3_1_record_the_change_does_not_touch_gets_no_allowance(tmp_path, ca
     assert any(c.key == "tube_rupture_liquid_built_up_back_pressure" and c.verdict == "differs"
                for c in outcome.comparisons)
     assert not any(CHANGE in note for note in outcome.notes)
+
+
+@pytest.mark.parametrize("key", ["tube_rupture_flow", "tube_rupture_relieving_pressure", "thermal_relief_vapour_load",
+                                 "thermal_relief_required_area"])
+def test_the_change_does_not_excuse_what_comes_before_the_line_or_another_valve(tmp_path, key):
+    """Found by a checker: in a record of 0.3.1 the change touches, the allowance named every 'tube_rupture_*' and
+    'thermal_relief_*' figure, so the steam through the break, the relieving pressure, or the thermal relief's (whose
+    line the change does not touch: its water boils) could be edited by half and the record still VERIFIED. The
+    change explains only what the discharge line and the sizing at its back pressure write."""
+    def edit(record):
+        record["results"][key]["value"] *= 0.5
+    forged = forged_copy(ARCHIVE / "HX-FX_revA.json", edit, tmp_path)
+    _, _, outcome, _ = verify_file(forged)
+    assert not outcome.ok and any(c.key == key and c.verdict == "differs" for c in outcome.comparisons)
+
+
+def test_a_flash_vessels_relief_load_is_not_excused_by_the_change(tmp_path):
+    """A flash vessel filling with 105 °C condensate relieves liquid that reaches the pipe's exit (DN50 × 5 m): a
+    record claiming 0.3.1 with its relief load halved is a difference, not the change of basis."""
+    from steamcalc.calcs.flash.calculation import Inputs as FlashInputs
+    from steamcalc.calcs.flash.calculation import calculate as flash
+
+    inputs = FlashInputs(condensate_pressure=g(12.0), condensate_flow=3.2 / 3.6, condensate_temperature=378.15,
+                         flash_pressure=g(0.5), vessel_design_pressure=g(7.0), inlet_capacity=9 / 3.6,
+                         level_held=False, discharge_size="DN50", discharge_length=5.0, discharge_fittings_k=1.0)
+    assert any(s.label == "Vessel relief: built-up back pressure (liquid to the pipe's exit, flashing there)"
+               for s in flash(inputs, Site()).steps)
+    case = tmp_path / "FL-FX.toml"
+    case.write_text('[case]\nkind = "flash"\nid = "FL-FX"\ntitle = "t"\nrevision = "A"\nprepared_by = "t"\n\n'
+                    '[inputs]\ncondensate_pressure = "12 bar(g)"\ncondensate_flow = "3.2 t/h"\n'
+                    'condensate_temperature = "105 degC"\nflash_pressure = "0.5 bar(g)"\n\n[inputs.overpressure]\n'
+                    'design_pressure = "7 bar(g)"\ninlet_capacity = "9 t/h"\nlevel_held = false\n'
+                    'discharge_size = "DN50"\ndischarge_length = "5 m"\ndischarge_fittings_k = 1.0\n', "utf-8")
+    assert main(["run", str(case), "--out", str(tmp_path / "out")]) in (0, 1)
+
+    def edit(record):
+        record["provenance"]["steamcalc"] = "0.3.1"
+        record["results"]["vessel_relief_failed_open_load"]["value"] *= 0.5
+    forged = forged_copy(tmp_path / "out" / "FL-FX_revA.json", edit, tmp_path)
+    _, _, outcome, _ = verify_file(forged)
+    assert not outcome.ok
+    assert any(c.key == "vessel_relief_failed_open_load" and c.verdict == "differs" for c in outcome.comparisons)
+
+
+@pytest.mark.parametrize("residual, verified", [("1.1e-15", True), ("2.0e-04", False)])
+def test_a_touched_records_other_checks_are_compared_within_the_tolerance(tmp_path, residual, verified):
+    """Found by a checker: a 0.3.1 flash record the change touches (105 °C condensate, DN50 × 5 m) failed to verify on
+    its energy balance, recorded 'residual 1.9e-15' and recomputed '2.1e-15': the change adds checks, and with their
+    count changed the others were compared word for word. A residual at round-off is no difference; one of 2e-4 is."""
+    def edit(record):
+        for check in record["checks"]:
+            if check["name"] == "Heater energy balance (independent)":
+                check["detail"] = check["detail"].replace("residual 7.9e-16", f"residual {residual}")
+    forged = forged_copy(ARCHIVE / "HX-FX_revA.json", edit, tmp_path)
+    assert any(f"residual {residual}" in c["detail"] for c in json.loads(forged.read_text("utf-8"))["checks"])
+    _, _, outcome, _ = verify_file(forged)
+    assert outcome.ok is verified
+
+
+def test_a_record_the_earlier_release_did_not_fail_gets_no_allowance_when_its_inputs_are_changed(tmp_path, capsys):
+    """Found by an independent checker: a record the change does not touch (water at 140 °C, DN300 × 40 m, a mixture
+    in the pipe), relabelled 0.3.1 with its discharge pipe changed to DN150 (digests recomputed), recomputed on the
+    new path and verified, the figures of the DN300 pipe shown as changed by release 0.3.2. Expected: the allowance
+    asks for what 0.3.1 wrote on that path, the line's failure ("far too small"); without it, a difference."""
+    case = tmp_path / "HX-FO.toml"
+    case.write_text((ARCHIVE / "HX-FX.toml").read_text("utf-8").replace('id = "HX-FX"', 'id = "HX-FO"')
+                    .replace('"101 degC"', '"140 degC"').replace('discharge_length = "20 m"', 'discharge_length = "40 m"'))
+    assert main(["run", str(case), "--out", str(tmp_path / "out")]) in (0, 1)
+    capsys.readouterr()
+
+    def edit(record):
+        record["provenance"]["steamcalc"] = "0.3.1"
+        record["inputs"]["discharge_size"].update(value="DN150", given="DN150")
+    forged = forged_copy(tmp_path / "out" / "HX-FO_revA.json", edit, tmp_path)
+    # The pipe as issued has a mixture in it; DN150 carries the liquid to its exit (the changed path).
+    for size, on_path in (("DN300", False), ("DN150", True)):
+        result = calculate(Inputs(**dict(HEATER, discharge_size=size, discharge_length=40.0),
+                                  process_outlet_temperature=413.15), Site())
+        assert (STEP in [s.label for s in result.steps]) is on_path
+    _, _, outcome, _ = verify_file(forged)
+    assert not outcome.ok
+    assert not any("hot liquid whose flux" in note for note in outcome.notes)

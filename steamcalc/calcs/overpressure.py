@@ -278,6 +278,30 @@ def back_pressure_check(result, name, valve_type, outlet_pressure, set_pressure,
 LIQUID_TO_EXIT_STEP = "*: built-up back pressure (liquid to the pipe's exit, flashing there)"
 
 
+#: Why release 0.3.2 changed a discharge line's basis (the words verify gives a record of an earlier release).
+LIQUID_TO_EXIT_WHY = (
+    "a hot liquid whose flux the flashing mixture could not carry below its saturation pressure stays liquid the "
+    "length of the discharge pipe and flashes at its exit, choked there at its saturation pressure; the pipe was "
+    "called far too small and the record failed")
+
+
+def liquid_to_exit_change(release, name, prefix, resized=True, why=LIQUID_TO_EXIT_WHY):
+    """An entry of a kind's ``BASIS_CHANGES`` for one relief valve whose discharge line a release carries as liquid to
+    its exit: gated on that valve's own step (``name`` + :data:`LIQUID_TO_EXIT_STEP`), and naming only what the line
+    and the valve's sizing at its back pressure write (``resized``: the valve is sized again at it). What comes
+    before the line (the relief load, the relieving pressure, the case) and the other valves are held as for any
+    record: the change does not explain them. The record must also hold the earlier release's failure of that line,
+    "far too small" (the sixth item): the earlier release failed exactly the lines this release carries as liquid, so
+    a record without it was not touched by the change (one whose inputs were changed since is held to every word)."""
+    line = (f"{name}*: built-up back pressure*", f"{name}*: reaction force at the discharge*",
+            f"{prefix}_*built_up_back_pressure*", f"{prefix}_*discharge_exit_velocity", f"{prefix}_*reaction_force")
+    sizing = (f"{name}*at the built-up back pressure*", f"{name}*: relief orifice", f"{name}*: discharge line size",
+              f"{name}*: *inlet*", f"{prefix}_*required_area", f"{prefix}_*orifice", f"{prefix}_*orifice_area",
+              f"{prefix}_*governing_case", f"{prefix}_*inlet_*")
+    return (release, why, line + (sizing if resized else ()), name + LIQUID_TO_EXIT_STEP, None,
+            f"{name}*: built-up back pressure: *far too small*")
+
+
 def two_phase_discharge_section(result, prefix, name, *, valve_type, set_pressure, atm, rated_flow_kg_h, relieving,
                                 size, length, fittings_k, schedule=None, keys=DISCHARGE_KEYS):
     """Built-up back pressure of a flashing two-phase discharge (homogeneous flow, omega equation of state) against

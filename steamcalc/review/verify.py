@@ -243,6 +243,12 @@ def verify_record(record, engine=REFERENCE_ENGINE, path=None, digests_hold=False
         if len(old_checks) == len(new_checks) and all(
                 a[:2] == b[:2] and same_text(a[2], b[2]) for a, b in zip(old_checks, new_checks)):
             new_checks = old_checks  # the same checks, their numbers equal within the tolerance
+        else:
+            # Checks a later release's basis adds or drops change their count: each recomputed check is still taken
+            # as recorded when a recorded one of its name and status says the same within the tolerance (a residual
+            # of 1.9e-15 recomputed as 2.1e-15 is no difference).
+            new_checks = [next((a for a in old_checks if a[:2] == b[:2] and same_text(a[2], b[2])), b)
+                          for b in new_checks]
         if old_checks != new_checks:
             result.check_changes = [f"recorded: {n} = {s} ({d})" for n, s, d in old_checks
                                     if (n, s, d) not in new_checks] + \
@@ -471,7 +477,9 @@ def release_basis_changes(record, fresh):
     and checks' names (each also as "name: detail"): the change applies to a record of an earlier release only when
     the recomputation takes the changed path (a step or a check of that name, or of those words), so a record the
     change does not touch is held to every word as before. A fifth item :data:`ADDS_ONLY` marks a change that only
-    adds: it explains nothing the record holds that the recomputation does not issue. A record whose
+    adds: it explains nothing the record holds that the recomputation does not issue. A sixth, a pattern over the
+    record's own checks as "name: detail", asks for what the earlier release wrote on the changed path (its symptom):
+    a record that does not hold it gets no allowance of that change. A record whose
     release does not read gets none (:func:`steamcalc.review.rewordings.release`).
     """
     from fnmatch import fnmatchcase
@@ -490,9 +498,13 @@ def release_basis_changes(record, fresh):
     # A check is met by its name, and by its name and words ("NAME: detail"), for a path only its words tell apart.
     labels = [step.label for step in fresh.steps] + [check.name for check in fresh.checks] + [
         f"{check.name}: {text_of(check.detail)}" for check in fresh.checks]
+    # The record's own checks as "name: detail", for an entry that also asks what the earlier release wrote.
+    held = [f"{c.get('name')}: {c.get('detail')}" for c in record.get("checks", []) if isinstance(c, dict)
+            and isinstance(c.get("detail"), str)]
     return [change for change in getattr(calc, "BASIS_CHANGES", ())
             if len(change) > 3 and release(change[0]) is not None and issued_by < release(change[0])
-            and any(fnmatchcase(label, change[3]) for label in labels)]
+            and any(fnmatchcase(label, change[3]) for label in labels)
+            and (len(change) < 6 or change[5] is None or any(fnmatchcase(text, change[5]) for text in held))]
 
 
 def _by_later_bases(record, result, changes=None):

@@ -32,7 +32,7 @@ from .control import add_control, check_control_inputs
 from .figures import figures
 from .overpressure import RECORD_PATTERNS as OVERPRESSURE_PATTERNS
 from .overpressure import add_overpressure, check_design_pressures, check_overpressure_inputs
-from ..overpressure import LIQUID_TO_EXIT_STEP
+from ..overpressure import liquid_to_exit_change
 from .overpressure import NAME as TUBE_RUPTURE
 from .reverse_valve import NAME as REVERSE_NAME
 from .supply import steam_states, steam_steps, supply_state
@@ -73,11 +73,10 @@ BASIS_CHANGES = (
     ("0.3.1", "a water hotter than its boiling point at the tube-rupture valve's outlet flashes in the nozzle: it is "
      "sized by API 520 Part I annex C (the omega method and direct integration, the larger governing), where the "
      "liquid equation undersized the valve", ("Tube rupture*", "tube_rupture_*"), "Tube rupture*flashing in the valve*"),
-    # Applies to a record of an earlier release only when its recomputation carries the liquid to the pipe's exit.
-    ("0.3.2", "a hot liquid whose flux the flashing mixture could not carry below its saturation pressure stays liquid "
-     "the length of the discharge pipe and flashes at its exit, choked there at its saturation pressure; the pipe "
-     "was called far too small and the record failed", ("Tube rupture*", "tube_rupture_*", "Thermal relief*",
-                                                      "thermal_relief_*"), LIQUID_TO_EXIT_STEP),
+    # Each applies to a record of an earlier release only when its recomputation carries that valve's liquid to the
+    # pipe's exit, and only to what the line and the sizing at its back pressure write.
+    liquid_to_exit_change("0.3.2", "Tube rupture", "tube_rupture"),
+    liquid_to_exit_change("0.3.2", "Thermal relief", "thermal_relief", resized=False),
     ("0.3.2", "a tube-rupture discharge pipe narrower than the outlet API 526 pairs with the valve's orifice is warned "
      "of, as the let-down's relief valve's and the reverse valve's are", (NARROW_OUTLET_CHECK + "*",), NARROW_OUTLET_CHECK,
      ADDS_ONLY),

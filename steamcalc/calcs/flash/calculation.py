@@ -24,7 +24,7 @@ from .figures import figures
 from .fraction import flash_fraction
 from .overpressure import RECORD_PATTERNS as OVERPRESSURE_PATTERNS
 from .overpressure import add_overpressure, check_overpressure_inputs
-from ..overpressure import LIQUID_TO_EXIT_STEP
+from ..overpressure import liquid_to_exit_change
 from .vessel import REFERENCES as VESSEL_REFERENCES
 from .vessel import vessel_assumptions, vessels
 
@@ -41,10 +41,9 @@ PERCENT_VALUES = ("flash_fraction",)
 BASIS_CHANGES = (
     ("0.3", "the flash vessel's overpressure cases (failed-open inlet, blocked vapour outlet) and its relief valve, "
      "or a statement that they were not assessed", OVERPRESSURE_PATTERNS),
-    # Applies to a record of an earlier release only when its recomputation carries the liquid to the pipe's exit.
-    ("0.3.2", "a hot liquid whose flux the flashing mixture could not carry below its saturation pressure stays liquid "
-     "the length of the discharge pipe and flashes at its exit, choked there at its saturation pressure; the pipe "
-     "was called far too small and the record failed", ("Vessel relief*", "vessel_relief_*"), LIQUID_TO_EXIT_STEP),
+    # Applies to a record of an earlier release only when its recomputation carries the liquid to the pipe's exit,
+    # and only to what the line and the sizing at its back pressure write.
+    liquid_to_exit_change("0.3.2", "Vessel relief", "vessel_relief"),
 )
 SUMMARY_RESULTS = ("flash_fraction", "flash_steam_flow", "vented_flash_steam_flow", "residual_condensate_flow", "recovered_heat_rate", "annual_cost_saving", "annual_total_saving", "vessel_diameter", "vessel_height")
 
