@@ -7,7 +7,8 @@ rewords some of their statements, steamcalc.review.rewordings); ``tests/archive/
 records of release 0.3.0 whose tube-rupture valve release 0.3.1 sizes for a flashing liquid (the change of basis
 listed with its release: tests/test_hot_liquid_relief.py), with the case files they were issued from; ``tests/archive/v0_3_1/`` those of
 release 0.3.1; ``tests/archive/v0_3_1_bases/`` heater records of 0.3.1 whose basis release 0.3.2 changed, with their case files:
-a discharge line carried as liquid to its exit (tests/test_liquid_to_exit.py) and a tube-rupture discharge pipe
+a discharge line carried as liquid to its exit and one whose liquid flashes on its isenthalp (both
+tests/test_liquid_to_exit.py), a tube-rupture discharge pipe
 narrower than the valve's outlet, now warned of (tests/test_tube_rupture_pipes.py); ``tests/archive/v0_3_2/`` those of
 this release, kept for the releases after it; ``tests/archive/v0_3_schema2/`` those of this release's intermediate layout (schema 2: figure
 data, steps and checks as text), which this release still reads. Each must verify:

@@ -67,6 +67,57 @@ def omega_volume(pressure, omega, reference_pressure, reference_volume):
     return reference_volume * (omega * (reference_pressure / pressure - 1.0) + 1.0)
 
 
+def flash_pressure(enthalpy, temperature, pressure):
+    """Pressure at which a liquid kept at its enthalpy, as its pressure falls along a pipe, begins to flash, Pa.
+
+    .. math:: h_f(p_f) = h_1
+
+    A compressed liquid at :math:`(p_1, T_1)` holds a little more enthalpy than the saturated liquid at
+    :math:`T_1`, so on its isenthalp it reaches saturation above :math:`p_s(T_1)`: at 101 °C and 9.8 bar(a),
+    1.057 against 1.051 bar(a). An adiabatic pipe keeps the enthalpy; this is where the liquid carried down a
+    discharge pipe flashes.
+
+    Parameters
+    ----------
+    enthalpy : float
+        J/kg of the liquid.
+    temperature, pressure : float
+        K and Pa (absolute) of the liquid: the search runs from its saturation pressure up to its pressure.
+
+    Returns
+    -------
+    float
+
+    References
+    ----------
+    IAPWS-IF97 (saturated liquid's enthalpy, region 4 and region 1); the flash point of a subcooled liquid in
+    API 520 Part I annex C is taken at the liquid's saturation pressure; here at its enthalpy (homogeneous
+    equilibrium along an adiabatic pipe).
+
+    Examples
+    --------
+    >>> from steamcalc.properties.steam import SteamState
+    >>> liquid = SteamState.from_pT(9.8e5, 374.15)
+    >>> round(flash_pressure(liquid.enthalpy, liquid.temperature, liquid.pressure) / 1e5, 4)
+    1.0567
+    """
+    from scipy.optimize import brentq
+
+    from ..properties.steam import SteamState, saturation_pressure
+
+    def excess(p):
+        return SteamState.from_p_dryness(p, 0.0).enthalpy - enthalpy
+
+    low = saturation_pressure(temperature)
+    if excess(low) >= 0.0:
+        return low
+    if excess(pressure) <= 0.0:
+        raise InputError("the liquid is not below its boiling point at its pressure: it does not flash as a "
+                         "liquid carried down the pipe", field="discharge line flash point", value=pressure,
+                         fix="check the relieving state: a saturated or two-phase mixture is sized as two-phase")
+    return float(brentq(excess, low, pressure, xtol=1e-3, rtol=1e-12))
+
+
 def pipe_omega(reference_pressure, reference_volume, exit_pressure, exit_volume):
     """ω of a discharge pipe: the omega equation through the relieving state and the exit state.
 

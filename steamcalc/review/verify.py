@@ -477,9 +477,9 @@ def release_basis_changes(record, fresh):
     and checks' names (each also as "name: detail"): the change applies to a record of an earlier release only when
     the recomputation takes the changed path (a step or a check of that name, or of those words), so a record the
     change does not touch is held to every word as before. A fifth item :data:`ADDS_ONLY` marks a change that only
-    adds: it explains nothing the record holds that the recomputation does not issue. A sixth, a pattern over the
-    record's own checks as "name: detail", asks for what the earlier release wrote on the changed path (its symptom):
-    a record that does not hold it gets no allowance of that change. A record whose
+    adds: it explains nothing the record holds that the recomputation does not issue. A sixth, a pattern (or a tuple
+    of them) over the record's own checks as "name: detail" and steps as "label: equation", asks for what the
+    earlier release wrote on the changed path (its symptom): a record that holds none gets no allowance of it. A record whose
     release does not read gets none (:func:`steamcalc.review.rewordings.release`).
     """
     from fnmatch import fnmatchcase
@@ -500,11 +500,17 @@ def release_basis_changes(record, fresh):
         f"{check.name}: {text_of(check.detail)}" for check in fresh.checks]
     # The record's own checks as "name: detail", for an entry that also asks what the earlier release wrote.
     held = [f"{c.get('name')}: {c.get('detail')}" for c in record.get("checks", []) if isinstance(c, dict)
-            and isinstance(c.get("detail"), str)]
+            and isinstance(c.get("detail"), str)] + [
+        f"{s.get('label')}: {s.get('equation')}" for s in record.get("steps", []) if isinstance(s, dict)]
+
+    def symptom(change):
+        if len(change) < 6 or change[5] is None:
+            return True
+        patterns = (change[5],) if isinstance(change[5], str) else change[5]
+        return any(fnmatchcase(text, pattern) for text in held for pattern in patterns)
     return [change for change in getattr(calc, "BASIS_CHANGES", ())
             if len(change) > 3 and release(change[0]) is not None and issued_by < release(change[0])
-            and any(fnmatchcase(label, change[3]) for label in labels)
-            and (len(change) < 6 or change[5] is None or any(fnmatchcase(text, change[5]) for text in held))]
+            and any(fnmatchcase(label, change[3]) for label in labels) and symptom(change)]
 
 
 def _by_later_bases(record, result, changes=None):

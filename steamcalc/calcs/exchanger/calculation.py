@@ -32,7 +32,7 @@ from .control import add_control, check_control_inputs
 from .figures import figures
 from .overpressure import RECORD_PATTERNS as OVERPRESSURE_PATTERNS
 from .overpressure import add_overpressure, check_design_pressures, check_overpressure_inputs
-from ..overpressure import liquid_to_exit_change
+from ..overpressure import flash_point_change, liquid_to_exit_change
 from .overpressure import NAME as TUBE_RUPTURE
 from .reverse_valve import NAME as REVERSE_NAME
 from .supply import steam_states, steam_steps, supply_state
@@ -77,6 +77,8 @@ BASIS_CHANGES = (
     # pipe's exit, and only to what the line and the sizing at its back pressure write.
     liquid_to_exit_change("0.3.2", "Tube rupture", "tube_rupture"),
     liquid_to_exit_change("0.3.2", "Thermal relief", "thermal_relief", resized=False),
+    flash_point_change("0.3.2", "Tube rupture", "tube_rupture"),
+    flash_point_change("0.3.2", "Thermal relief", "thermal_relief", resized=False),
     ("0.3.2", "a tube-rupture discharge pipe narrower than the outlet API 526 pairs with the valve's orifice is warned "
      "of, as the let-down's relief valve's and the reverse valve's are", (NARROW_OUTLET_CHECK + "*",), NARROW_OUTLET_CHECK,
      ADDS_ONLY),

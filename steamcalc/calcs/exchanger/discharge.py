@@ -249,11 +249,13 @@ def liquid_discharge_section(result, prefix, name, *, valve_type, set_pressure, 
                              length, fittings_k, keys):
     """Built-up back pressure of a liquid discharge against the valve's limit, and the reaction force.
 
-    Liquid hotter than its boiling point at the atmosphere flashes in the pipe: it goes to
+    Liquid whose enthalpy is above the saturated liquid's at the atmosphere flashes in the pipe: it goes to
     :func:`steamcalc.calcs.overpressure.two_phase_discharge_section` with its relieving state. A line whose back
     pressure at the rated flow would reach the set pressure fails with no figure, and None is returned.
     """
-    if liquid.temperature > SteamState.from_p_dryness(atm, 0.0).temperature:
+    # It flashes in the pipe when its enthalpy, which the pipe keeps, is above the saturated liquid's at the
+    # atmosphere (a compressed liquid a little below 100 °C already is).
+    if liquid.enthalpy > SteamState.from_p_dryness(atm, 0.0).enthalpy:
         result.assumptions.append(f"{name}: the liquid ({liquid.temperature - 273.15:.1f} °C) boils at the "
                                   "atmosphere: it flashes in the discharge pipe once below its saturation pressure, "
                                   "and is taken as a homogeneous two-phase mixture from there")

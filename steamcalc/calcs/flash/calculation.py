@@ -24,7 +24,7 @@ from .figures import figures
 from .fraction import flash_fraction
 from .overpressure import RECORD_PATTERNS as OVERPRESSURE_PATTERNS
 from .overpressure import add_overpressure, check_overpressure_inputs
-from ..overpressure import liquid_to_exit_change
+from ..overpressure import flash_point_change, liquid_to_exit_change
 from .vessel import REFERENCES as VESSEL_REFERENCES
 from .vessel import vessel_assumptions, vessels
 
@@ -44,6 +44,7 @@ BASIS_CHANGES = (
     # Applies to a record of an earlier release only when its recomputation carries the liquid to the pipe's exit,
     # and only to what the line and the sizing at its back pressure write.
     liquid_to_exit_change("0.3.2", "Vessel relief", "vessel_relief"),
+    flash_point_change("0.3.2", "Vessel relief", "vessel_relief"),
 )
 SUMMARY_RESULTS = ("flash_fraction", "flash_steam_flow", "vented_flash_steam_flow", "residual_condensate_flow", "recovered_heat_rate", "annual_cost_saving", "annual_total_saving", "vessel_diameter", "vessel_height")
 
