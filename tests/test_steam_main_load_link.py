@@ -216,5 +216,5 @@ def test_a_main_that_says_its_condensate_is_the_heater_records_when_it_is_not_fa
     capsys.readouterr()
     assert main(["verify", str(out / "SM-OWN_revA.json")]) == 1
     said = capsys.readouterr().out
-    assert "input heater_condensate_flow: the record holds '900 kg/h' as heater record HX-01 revision B's " \
+    assert "input heater_condensate_flow: the record holds 900 kg/h as heater record HX-01 revision B's " \
            "condensate_flow, which states 710.309 kg/h" in said, said

@@ -171,5 +171,6 @@ def test_a_main_that_says_its_supply_is_the_let_downs_when_it_is_not_fails_verif
     shutil.copy(forged_copy(site / "records" / "SM-OWN_revA.json", claim, tmp_path), out / "SM-OWN_revA.json")
     assert main(["verify", str(out / "SM-OWN_revA.json")]) == 1
     said = capsys.readouterr().out
-    assert "input supply_pressure: the record holds '7 bar(g)' as let-down record LD-01 revision B's outlet_pressure" \
+    assert "input supply_pressure: the record holds 7.99181 bar (given as '7 bar(g)') as let-down record LD-01 " \
+        "revision B's outlet_pressure" \
         in said, said

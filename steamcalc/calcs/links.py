@@ -20,6 +20,7 @@ from dataclasses import dataclass
 from pathlib import Path
 
 from ..errors import InputError, SteamcalcError
+from ..units.quantities import from_record_unit
 
 #: The links folder when the case does not name one: where ``steamcalc run`` puts records by default.
 DEFAULT_FOLDER = "../records"
@@ -316,12 +317,13 @@ def take_flat_link(link, values, given, case_path, read_record):
 TAKEN_TOLERANCE = 1e-9
 
 
-def taken_value_problems(record, record_path, read_record, link, taken, words):
+def taken_value_problems(record, record_path, read_record, link, taken, words, holder="the record"):
     """What a record says it took from a linked record beside it that that record does not state.
 
     The link's digest check (:func:`link_problems`) shows the linked file is the record used; this shows each value
     taken is that record's. A record whose inputs were edited, its results recomputed from them and its digests
-    written again, would otherwise keep saying they are the linked record's.
+    written again, would otherwise keep saying they are the linked record's. Numbers are compared in SI within
+    :data:`TAKEN_TOLERANCE` (relative), texts exactly.
 
     Parameters
     ----------
@@ -332,28 +334,28 @@ def taken_value_problems(record, record_path, read_record, link, taken, words):
     read_record : callable
         Reads a record file, refusing one whose digests do not match (from the records layer).
     link : str
-        The link's inputs' prefix (``"load_link"``: ``load_link_record_id``, ``_revision``, ``_content_digest``).
+        The link as :func:`record_links` names it: ``"load"`` (the inputs ``load_link_record_id``, ``_revision``,
+        ``_content_digest``) or ``"letdown.LD-01"`` (``letdown.LD-01.link.record_id``, ...).
     taken : sequence of tuple
         ``(input name, section, key, quantity kind)``: the record's input and where the linked record states it
-        (``"inputs"`` or ``"results"``). An input the record does not hold is skipped.
+        (``"inputs"`` or ``"results"``); the kind is a kind of
+        :data:`~steamcalc.units.quantities.SI_UNITS`, or ``"fraction"`` or ``"number"`` (no unit), or ``"text"``
+        (compared exactly). An input the record does not hold is skipped.
     words : str
         The linked record in words (``"heater record"``).
+    holder : str
+        The linking record in words, for the line and its fix (``"the balance"``).
 
     Returns
     -------
     list of str
-        One line per value that is not what the linked record states; nothing when the linked record is not
-        beside the record or is another record (the link's own check says so).
+        One line per value that is not what the linked record states, naming the input, the value held (and its
+        text as given), the value stated and the fix; nothing when the linked record is not beside the record or
+        is another record (the link's own check says so).
     """
-    from ..units.quantities import from_record_unit
-
     inputs = record.get("inputs", {}) if isinstance(record.get("inputs"), dict) else {}
-
-    def value(name):
-        entry = inputs.get(name)
-        return entry.get("value") if isinstance(entry, dict) else None
-
-    record_id, revision = value(f"{link}_record_id"), value(f"{link}_revision")
+    kept_link = record_links(record).get(link, {})
+    record_id, revision = kept_link.get("record_id"), kept_link.get("revision")
     if record_id is None or record_path is None:
         return []
     path = Path(record_path).parent / f"{record_id}_rev{revision}.json"
@@ -361,26 +363,47 @@ def taken_value_problems(record, record_path, read_record, link, taken, words):
         linked = read_record(path) if path.is_file() else None
     except SteamcalcError:
         linked = None
-    if not isinstance(linked, dict) or linked.get("content_digest") != value(f"{link}_content_digest"):
+    if not isinstance(linked, dict) or linked.get("content_digest") != kept_link.get("content_digest"):
         return []
     problems = []
     for name, section, key, kind in taken:
         entry = inputs.get(name)
         if entry is None:
             continue
-        source = (linked.get(section) or {}).get(key)
-        try:
-            kept = from_record_unit(entry["value"], entry["unit"], kind)
-            stated = from_record_unit(source["value"], source["unit"], kind)
-            same = abs(kept - stated) <= TAKEN_TOLERANCE * abs(stated)
-        except (KeyError, TypeError, ValueError, SteamcalcError):
-            same, stated = False, None
-        if not same:
-            shown = "nothing" if stated is None else f"{source['value']:.6g} {source['unit']}"
-            held = entry.get("given") if isinstance(entry, dict) else None
-            problems.append(f"input {name}: the record holds {held!r} as {words} {record_id} revision {revision}'s "
-                            f"{key}, which states {shown}; re-issue it from its case file")
+        source = (linked.get(section) or {}).get(key) if isinstance(linked.get(section), dict) else None
+        if _same_taken(entry, source, kind):
+            continue
+        stated = "nothing" if not isinstance(source, dict) or "value" not in source else _shown(source)
+        held = _shown(entry) if isinstance(entry, dict) else repr(entry)
+        given = entry.get("given") if isinstance(entry, dict) else None
+        if isinstance(given, str) and given != held:
+            held += f" (given as {given!r})"
+        problems.append(f"input {name}: {holder} holds {held} as {words} {record_id} revision {revision}'s "
+                        f"{key}, which states {stated}; re-issue {holder} from its case file")
     return problems
 
+
+def _same_taken(entry, source, kind):
+    """Whether a value a record holds as taken is the one the linked record states (:func:`taken_value_problems`)."""
+    if not isinstance(entry, dict) or not isinstance(source, dict):
+        return False
+    if kind == "text":
+        return isinstance(entry.get("value"), str) and entry.get("value") == source.get("value")
+    kind = "dimensionless" if kind in ("fraction", "number") else kind
+    try:
+        kept = from_record_unit(entry["value"], entry.get("unit", ""), kind)
+        stated = from_record_unit(source["value"], source.get("unit", ""), kind)
+    except (KeyError, TypeError, ValueError, SteamcalcError):
+        return False
+    return abs(kept - stated) <= TAKEN_TOLERANCE * abs(stated)
+
+
+def _shown(entry):
+    """A record entry's value and unit in words: ``"3.49181 bar"``, ``"'DN80'"``."""
+    value, unit = entry.get("value"), entry.get("unit") or ""
+    text = f"{value:.6g}" if isinstance(value, (int, float)) and not isinstance(value, bool) else repr(value)
+    return f"{text} {unit}".rstrip()
+
+
 __all__ = ["DEFAULT_FOLDER", "LINK_NAMES", "find_linked_record", "record_links", "link_states", "stale_links",
-           "link_problems", "FlatLink", "take_flat_link"]
+           "link_problems", "FlatLink", "take_flat_link", "taken_value_problems", "TAKEN_TOLERANCE"]

@@ -298,7 +298,7 @@ def register_row(path, record, *, trusted, case=None, site_path=None, later_revi
         Path -> the site file's data as a record holds it, when the caller reads each site file once.
     """
     from ..records.record import provenance
-    from .verify import check_companions, verify_record
+    from .verify import check_companions, linked_record_findings, verify_record
     from ..signing.keys import short_fingerprint
     from ..signing.signatures import NAME_TYPED, check_signatures, name_only_signoff
 
@@ -327,6 +327,12 @@ def register_row(path, record, *, trusted, case=None, site_path=None, later_revi
     stale = _stale_links(record, path)
     if stale:   # a balance whose linked records changed, went missing or were superseded
         row.verification = f"STALE: {'; '.join(stale)}"
+        row.valid = False
+    # Values it holds as taken from a linked record beside it that that record does not state (a changed linked
+    # file is already stale): asked here, where the record lies, whether or not the memory knows the record.
+    wrong = [p for p in linked_record_findings(record, path)[0] if p not in stale]
+    if wrong:
+        row.verification = "; ".join(([row.verification] if stale else []) + [f"NOT AS LINKED: {'; '.join(wrong)}"])
         row.valid = False
     texts = []
     status = (outcome.recomputed_status if outcome is not None else None) or record.get("status")

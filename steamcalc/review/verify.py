@@ -273,18 +273,28 @@ def verify_record(record, engine=REFERENCE_ENGINE, path=None, digests_hold=False
 
 def _check_links(record, path, result):
     """A record that links others (the site balance): each linked file must still hold what it used."""
+    problems, notes = linked_record_findings(record, path)
+    result.statement_changes += problems
+    result.notes += notes
+
+
+def linked_record_findings(record, path):
+    """What no longer holds of a record's links (a kind with ``linked_record_problems``): ``(problems, notes)``.
+
+    A problem fails the verification: a linked file that holds another record, or a value the record holds as
+    taken from a linked record beside it that that record does not state. Where the record lies decides what is
+    beside it, so ``register`` asks this of every record, remembered as verified or not. Empty for other kinds.
+    """
     try:
         calc = get_calculation(record.get("kind"))
     except SteamcalcError:
-        return
+        return [], []
     check = getattr(calc, "linked_record_problems", None)
     if check is None:
-        return
+        return [], []
     from ..records.record import read_intact_record
 
-    problems, notes = check(record, path, read_intact_record)
-    result.statement_changes += problems
-    result.notes += notes
+    return check(record, path, read_intact_record)
 
 
 #: What ``verify`` shows as the engineer's own words: stored text that no calculation makes, so nothing to

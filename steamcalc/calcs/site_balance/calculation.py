@@ -18,7 +18,7 @@ from .closure import check_closures
 from .comparison import add_comparison, annual_totals
 from .figures import figures
 from .inputs import Inputs, checked_against_site
-from .links import link_problems as linked_record_problems
+from .links import balance_link_problems as linked_record_problems
 from .links import stale_links
 from .returns import add_return_notes, return_flash_checks, return_flash_results, return_steps
 from .solver import MAX_SWEEPS, TOLERANCE, fixed_states, solve_case

@@ -10,7 +10,8 @@ the run writes its records to, so that a whole site run into another folder find
 item's own ``revision`` wins over ``[inputs.links] revision``; a revision with no record there is refused naming
 the item and where its revision came from. Its kind is checked, its digests
 recomputed, and the balance's record keeps its id, revision, kind and content digest, so that
-``verify`` can check the file still holds the record the balance used (:func:`link_problems`). Finding and
+``verify`` can check the file still holds the record the balance used, and that every value the balance holds as
+copied from it is the one it states (:func:`balance_link_problems`). Finding and
 reading a linked record, and checking a record's links, are shared with the other kinds that link records
 (:mod:`steamcalc.calcs.links`). The calculation itself never reads a file: everything it uses is copied
 into the balance's inputs.
@@ -20,7 +21,8 @@ from __future__ import annotations
 
 from ...errors import InputError
 from ...units.quantities import from_record_unit
-from ..links import DEFAULT_FOLDER, find_linked_record, link_problems, link_states, stale_links
+from ..links import (DEFAULT_FOLDER, find_linked_record, link_problems, link_states, record_links, stale_links,
+                     taken_value_problems)
 from .items import Link
 
 #: What a balance copies from a linked let-down record, with each value's quantity kind: the desuperheater and
@@ -47,6 +49,10 @@ def _copied(record, key, kind):
         return entry["value"]
     return from_record_unit(entry["value"], entry["unit"], "dimensionless" if kind in ("fraction", "number")
                             else kind)
+
+
+#: A user's steam flow in each load case (its inputs ``user.<name>.load.<case>``) is this result of its heater record.
+USER_FLOW_RESULT = "steam_flow"
 
 
 #: How the refusals name an item of each section of the case file.
@@ -117,7 +123,7 @@ class Links:
         """A user's steam flow, in every load case, from its linked heater record."""
         self._refuse_both(row, where, ("load",), row["record"])
         record, link = self._resolve(row, where, "exchanger")
-        entry = record["results"]["steam_flow"]
+        entry = record["results"][USER_FLOW_RESULT]
         flow = from_record_unit(entry["value"], entry["unit"], "mass_flow")
         return dict(values, link=link, flows=tuple((case, flow) for case in case_names), duties=(),
                     steam_pressure=_copied(record, "steam_pressure", "pressure"))
@@ -128,4 +134,52 @@ class Links:
         return dict(values, link=link, **{key: _copied(record, key, "pressure") for key in FLASH_COPIED})
 
 
-__all__ = ["DEFAULT_FOLDER", "LETDOWN_COPIED", "FLASH_COPIED", "USER_COPIED", "Links", "link_states", "stale_links", "link_problems"]
+def _taken(record, item):
+    """What a balance's linked ``item`` (``"letdown.LD-01"``) holds as copied from its record: ``(input, section,
+    key, kind)`` for :func:`~steamcalc.calcs.links.taken_value_problems`, with the linked record in words."""
+    section = item.partition(".")[0]
+    if section == "letdown":
+        return [(f"{item}.{key}", "inputs", key, kind) for key, kind in LETDOWN_COPIED.items()], "let-down record"
+    if section == "flash":
+        return [(f"{item}.{key}", "inputs", key, "pressure") for key in FLASH_COPIED], "flash record"
+    if section == "user":
+        loads = [(key, "results", USER_FLOW_RESULT, "mass_flow") for key in record.get("inputs", {})
+                 if key.startswith(f"{item}.load.")]
+        return [(f"{item}.{key}", "inputs", key, "pressure") for key in USER_COPIED] + loads, "heater record"
+    return [], "record"
+
+
+def balance_link_problems(record, record_path, read_record):
+    """What no longer holds of a balance's links, for ``verify``: ``(problems, notes)``.
+
+    Each linked file must still hold the record the balance used (:func:`~steamcalc.calcs.links.link_problems`),
+    and every value the balance holds as copied from a linked record beside it must be the one that record states
+    (:func:`~steamcalc.calcs.links.taken_value_problems`): a balance whose copied inputs were edited, its results
+    recomputed from them and its digests written again, reproduces from its own inputs and its linked files are
+    unchanged, so only this comparison shows it. A linked record not beside the balance is only noted.
+
+    Parameters
+    ----------
+    record : dict
+        The balance's record.
+    record_path : str or Path or None
+        Where it was read from; its linked records are looked for beside it.
+    read_record : callable
+        Reads a record file, refusing one whose digests do not match (from the records layer).
+
+    Returns
+    -------
+    tuple of list of str
+        The problems (each fails the verification) and the notes.
+    """
+    problems, notes = link_problems(record, record_path, read_record)
+    if not isinstance(record.get("inputs"), dict):
+        return problems, notes
+    for item in record_links(record):
+        taken, words = _taken(record, item)
+        problems += taken_value_problems(record, record_path, read_record, item, taken, words, holder="the balance")
+    return problems, notes
+
+
+__all__ = ["DEFAULT_FOLDER", "LETDOWN_COPIED", "FLASH_COPIED", "USER_COPIED", "USER_FLOW_RESULT", "Links",
+           "link_states", "stale_links", "link_problems", "balance_link_problems"]

@@ -112,7 +112,7 @@ def load_link_value_problems(record, record_path, read_record):
     taken = [("steam_flow", "results", HEATER_STEAM_FLOW, "mass_flow")]
     if claim is not None:
         taken.append(("heater_condensate_flow", "results", HEATER_CONDENSATE_FLOW, "mass_flow"))
-    return problems + taken_value_problems(record, record_path, read_record, "load_link", taken, "heater record")
+    return problems + taken_value_problems(record, record_path, read_record, "load", taken, "heater record")
 
 
 def load_source(inputs):

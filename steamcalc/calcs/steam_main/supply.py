@@ -80,7 +80,7 @@ def linked_record_problems(record, record_path, read_record):
     problems, notes = link_problems(record, record_path, read_record, HOLDER)
     taken = [("supply_pressure", "inputs", "outlet_pressure", "pressure"),
              ("supply_temperature", "results", "outlet_temperature", "temperature")]
-    return problems + taken_value_problems(record, record_path, read_record, "supply_link", taken, "let-down record"), \
+    return problems + taken_value_problems(record, record_path, read_record, "supply", taken, "let-down record"), \
         notes
 
 
