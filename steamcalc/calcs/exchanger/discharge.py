@@ -12,17 +12,14 @@ from __future__ import annotations
 
 import math
 
-from ...equipment.line_loss import line_pressure_drop
-from ...equipment.piping import flow_area
 from ...equipment.relief import API526_AREAS_IN2, MM2_PER_IN2
 from ...equipment.two_phase_relief import KD_SUBCOOLED, isentropic_flux
 from ...errors import InputError
-from ...properties.steam import SteamState, dynamic_viscosity
-from ...units.amounts import Phrase
+from ...properties.steam import SteamState
 from ..overpressure import (
-    DEFAULT_SCHEDULE, VALVE_TYPES, back_pressure_check, discharge_diameter, discharge_section, flashing_relief_area,
-    relieving_pressure, two_phase_discharge_section,
+    DEFAULT_SCHEDULE, VALVE_TYPES, discharge_diameter, discharge_section, flashing_relief_area, relieving_pressure,
 )
+from ..relief_liquid_line import liquid_discharge_section
 from ..relief_outlet import narrow_outlet_warning, valve_outlet_pipe
 
 #: The outlet pipes: the case-file key of the size, and the inputs in the words of the form.
@@ -243,63 +240,3 @@ def thermal_relief_discharge(inputs, result, name, *, atm, liquid, rated):
                              set_pressure=inputs.process_side_design_pressure, atm=atm, rated_flow_kg_h=rated,
                              liquid=liquid, size=inputs.thermal_discharge_size, length=inputs.thermal_discharge_length,
                              fittings_k=inputs.thermal_discharge_fittings_k, keys=THERMAL_KEYS)
-
-
-def liquid_discharge_section(result, prefix, name, *, valve_type, set_pressure, atm, rated_flow_kg_h, liquid, size,
-                             length, fittings_k, keys):
-    """Built-up back pressure of a liquid discharge against the valve's limit, and the reaction force.
-
-    Liquid whose enthalpy is above the saturated liquid's at the atmosphere flashes in the pipe: it goes to
-    :func:`steamcalc.calcs.overpressure.two_phase_discharge_section` with its relieving state. A line whose back
-    pressure at the rated flow would reach the set pressure fails with no figure, and None is returned.
-    """
-    # It flashes in the pipe when its enthalpy, which the pipe keeps, is above the saturated liquid's at the
-    # atmosphere (a compressed liquid a little below 100 °C already is).
-    if liquid.enthalpy > SteamState.from_p_dryness(atm, 0.0).enthalpy:
-        result.assumptions.append(f"{name}: the liquid ({liquid.temperature - 273.15:.1f} °C) boils at the "
-                                  "atmosphere: it flashes in the discharge pipe once below its saturation pressure, "
-                                  "and is taken as a homogeneous two-phase mixture from there")
-        return two_phase_discharge_section(result, prefix, name, valve_type=valve_type, set_pressure=set_pressure,
-                                           atm=atm, rated_flow_kg_h=rated_flow_kg_h, relieving=liquid, size=size,
-                                           length=length, fittings_k=fittings_k, keys=keys)
-    diameter = discharge_diameter(result, name, size, length, None, keys)
-    if diameter is None:
-        return None
-    flow, fittings_k = rated_flow_kg_h / 3600.0, fittings_k or 0.0
-    # The liquid at the pipe: its density and viscosity at the atmosphere, the temperature held.
-    pipe = SteamState.from_pT(atm, liquid.temperature)
-    viscosity = dynamic_viscosity(pipe.temperature, pipe.density)
-    line = line_pressure_drop(flow, pipe.density, viscosity, diameter, length, fittings_k)
-    area = flow_area(diameter)
-    flux = flow / area
-    outlet = atm + line.pressure_drop
-    if outlet >= set_pressure:
-        # No valve passes its rated flow against a back pressure at its set pressure: the figure the rated flow would
-        # give is no back pressure the valve sees, so none is given (as the steam's and the two-phase line's).
-        resistance = line.friction_factor * length / diameter + fittings_k
-        result.check(f"{name}: built-up back pressure", "fail", Phrase.of(
-            f"the discharge pipe's resistance ({resistance:.3g} velocity heads, {size}, {length:g} m) would raise the "
-            "back pressure to the set pressure {p_set:.4g} or above at the valve's rated flow: the valve could not "
-            "pass its flow, and no back pressure or reaction force is given; fix: give a larger or shorter discharge "
-            "pipe (at least the valve's outlet)", p_set=(set_pressure / 1e5, "bar")))
-        return None
-    result.work(f"{name}: built-up back pressure (liquid)",
-                "p1 = p_atm + (f·L/D + ΣK)·G²/(2ρ), f by Colebrook  [Darcy-Weisbach, Crane TP-410]",
-                "p_atm + (f*L/D + K)*G**2/(2*rho)", outlet / 1e5, "bar", p_atm=(atm / 1e5, "bar"),
-                f=(line.friction_factor, ""), L=(length, "m"), D=(diameter * 1e3, "mm"), K=(fittings_k, ""),
-                G=(flux, "kg/(m**2*s)"), rho=(pipe.density, "kg/m**3"))
-    result.add(f"{prefix}_built_up_back_pressure", f"{name}: built-up back pressure at the valve outlet",
-               outlet / 1e5, "bar")
-    share = 100.0 * (outlet - atm) / (set_pressure - atm)
-    result.work(f"{name}: built-up back pressure, of the gauge set pressure", "share = (p1 − p_atm) / (p_set − p_atm)",
-                "(p1 - p_atm)/(p_set - p_atm)", share, "percent", p1=(outlet / 1e5, "bar"), p_atm=(atm / 1e5, "bar"),
-                p_set=(set_pressure / 1e5, "bar"))
-    result.add(f"{prefix}_built_up_back_pressure_fraction", f"{name}: built-up back pressure, of the gauge set "
-               "pressure", share, "percent")
-    back_pressure_check(result, name, valve_type, outlet, set_pressure, atm)
-    force = flux * flux * area / pipe.density
-    result.work(f"{name}: reaction force at the discharge (liquid)",
-                "F = G²·A/ρ  [momentum at the open exit, API 520 Part II, open-discharge reaction force]", "G**2*A/rho", force, "N",
-                G=(flux, "kg/(m**2*s)"), A=(area * 1e6, "mm**2"), rho=(pipe.density, "kg/m**3"))
-    result.add(f"{prefix}_reaction_force", f"{name}: reaction force at the open discharge", force, "N")
-    return outlet

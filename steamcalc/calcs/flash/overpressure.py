@@ -24,6 +24,7 @@ from ..overpressure import (
     CAUTIONS, VALVE_TYPES, discharge_section, flashing_relief_area, refuse_half_pipe, relieving_pressure,
     select_orifice, steam_relief_area, two_phase_discharge_section,
 )
+from ..relief_liquid_line import flashes_in_pipe, liquid_discharge_section
 from ..relief_inlet import check_inlet_pipe_inputs, inlet_pipe_not_assessed, relief_inlet_loss
 from ..relief_back_pressure import Sizing, balanced_kb, critical_flow_check, size_at_built_up_back_pressure
 
@@ -166,6 +167,9 @@ def add_overpressure(inputs, inlet, site, result):
 
     def discharge(res, orifice_area, sizing):
         rated = sizing.flow_kg_h * orifice_area / sizing.area
+        if two_phase and leaving.dryness is None and not flashes_in_pipe(leaving, atm):
+            # Liquid below its boiling point at the atmosphere (a vessel under vacuum) does not flash in the pipe.
+            return liquid_discharge_section(res, PREFIX, NAME, rated_flow_kg_h=rated, liquid=leaving, **pipe)
         if two_phase:
             return two_phase_discharge_section(res, PREFIX, NAME, rated_flow_kg_h=rated, relieving=leaving, **pipe)
         return discharge_section(res, PREFIX, NAME, rated_flow_kg_h=rated, enthalpy=vapour.enthalpy,
