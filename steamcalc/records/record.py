@@ -46,14 +46,16 @@ _NOT_CONTENT = ("created", "provenance", "digest", "content_digest", "checked_by
 
 @lru_cache(maxsize=1)
 def _versions():
-    versions = {}
-    for name in _PROVENANCE_PACKAGES:
+    from .. import __version__
+
+    # steamcalc's own version is the code's that runs (a checkout on the path may differ from the installed
+    # package's metadata: the record must name the release that computed it); the libraries' are their metadata.
+    versions = {"steamcalc": __version__}
+    for name in _PROVENANCE_PACKAGES[1:]:
         try:
             versions[name] = metadata.version(name)
         except metadata.PackageNotFoundError:
-            if name == "steamcalc":
-                from .. import __version__
-                versions[name] = __version__
+            pass
     versions["python"] = platform.python_version()
     return versions
 
