@@ -51,32 +51,32 @@ def linked_load(values, given, case_path, read_record):
     record, values, given = take_flat_link(LOAD_LINK, values, given, case_path, read_record)
     if record is None:
         return values, given
-    record_id, revision = values["load_link_record_id"], values["load_link_revision"]
-    try:
-        entry = record["results"][HEATER_STEAM_FLOW]
-        flow = from_record_unit(entry["value"], entry["unit"], "mass_flow")
-    except (KeyError, TypeError, UnitError):
-        raise InputError(f"linked heater record {record_id} revision {revision} states no steam flow",
-                         field="load_link.record", value=record_id,
-                         fix=f"re-issue {record_id} with this release of steamcalc") from None
-    values, given = dict(values, steam_flow=flow), dict(given, steam_flow=f"{entry['value']:.12g} {entry['unit']}")
+    record_id = values["load_link_record_id"]
+    flow, text = _heater_flow(record, HEATER_STEAM_FLOW, "steam flow", "load_link.record",
+                              f"re-issue {record_id} with this release of steamcalc")
+    values, given = dict(values, steam_flow=flow), dict(given, steam_flow=text)
     # Filled in here only, so that the record says where the condensate came from only when it came from the link.
     values.pop("load_link_condensate", None)
     given.pop("load_link_condensate", None)
     if values.get("heater_trap_pressure") is not None and values.get("heater_condensate_flow") is None:
         # The heater's trap drains into the main's return line: its condensate is the same record's, not a copy.
-        try:
-            entry = record["results"][HEATER_CONDENSATE_FLOW]
-            condensate = from_record_unit(entry["value"], entry["unit"], "mass_flow")
-        except (KeyError, TypeError, UnitError):
-            raise InputError(f"linked heater record {record_id} revision {revision} states no condensate flow",
-                             field="return_line.heater_condensate_flow", value=record_id,
-                             fix=f"give heater_condensate_flow in [inputs.return_line], or re-issue {record_id} with "
-                                 "this release of steamcalc") from None
-        values["heater_condensate_flow"] = condensate
-        given["heater_condensate_flow"] = f"{entry['value']:.12g} {entry['unit']}"
+        values["heater_condensate_flow"], given["heater_condensate_flow"] = _heater_flow(
+            record, HEATER_CONDENSATE_FLOW, "condensate flow", "return_line.heater_condensate_flow",
+            f"give heater_condensate_flow in [inputs.return_line], or re-issue {record_id} with this release of "
+            "steamcalc")
         values["load_link_condensate"] = given["load_link_condensate"] = CONDENSATE_TAKEN
     return values, given
+
+
+def _heater_flow(record, key, words, field, fix):
+    """A flow the linked heater record states: ``(kg/s, the text as given: the record's number in its unit)``;
+    refused, naming ``field``, when the record does not state it."""
+    try:
+        entry = record["results"][key]
+        return from_record_unit(entry["value"], entry["unit"], "mass_flow"), f"{entry['value']:.12g} {entry['unit']}"
+    except (KeyError, TypeError, UnitError):
+        raise InputError(f"linked heater record {record.get('id')} revision {record.get('revision')} states no "
+                         f"{words}", field=field, value=record.get("id"), fix=fix) from None
 
 
 def load_link_value_problems(record, record_path, read_record):
