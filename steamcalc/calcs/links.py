@@ -311,7 +311,6 @@ def take_flat_link(link, values, given, case_path, read_record):
     return record, dict(values, **{f"{link.item}_link_revision": revision}, **kept), dict(given, **kept)
 
 
-
 #: Relative difference within which a value a record took from a linked record is the one that record states (the
 #: value is read in the linked record's unit and written back: only the last bits may differ).
 TAKEN_TOLERANCE = 1e-9
