@@ -108,3 +108,16 @@ def test_a_0_3_0_record_the_change_does_not_touch_gets_no_allowance(tmp_path, ca
     assert not outcome.ok
     assert any(c.key == "tube_rupture_required_area" and c.verdict == "differs" for c in outcome.comparisons)
     assert not any(CHANGE in note for note in outcome.notes)
+
+
+@pytest.mark.parametrize("key", ["tube_rupture_flow", "tube_rupture_relieving_pressure"])
+def test_the_0_3_1_allowance_does_not_cover_the_break_flow_or_the_relieving_pressure(tmp_path, key):
+    """Found by an independent checker of release 0.3.2: the allowance of 0.3.1's change named every "Tube rupture*"
+    and "tube_rupture_*" figure, so a 0.3.0 record it touched verified with the break's flow or the relieving pressure
+    halved (digests recomputed). The change sizes the valve (at the atmosphere and at its back pressure) and its lines
+    anew; the flow through the break and the relieving pressure come before it. Expected: a difference."""
+    def edit(record):
+        record["results"][key]["value"] *= 0.5
+    forged = forged_copy(ARCHIVE / "HX-FH_revA.json", edit, tmp_path)
+    _, _, outcome, _ = verify_file(forged)
+    assert not outcome.ok and any(c.key == key and c.verdict == "differs" for c in outcome.comparisons)

@@ -61,6 +61,11 @@ NARROW_OUTLET_CHECK = f"{TUBE_RUPTURE}: discharge line size"
 #: An entry's fifth item: the change only adds (a check, a statement); a record of an earlier release holds none of
 #: it, so verify explains only what the recomputation adds (steamcalc.review.verify.ADDS_ONLY: the same words).
 ADDS_ONLY = "adds only"
+#: What sizing a hot liquid flashing in the valve (release 0.3.1) changes: the valve's sizing, at the atmosphere and
+#: at its back pressure, and its lines; not the break's flow, the relieving pressure or the thermal relief.
+FLASHING_IN_VALVE_PATTERNS = liquid_to_exit_change("0.3.1", TUBE_RUPTURE, "tube_rupture")[2] + (
+    "Tube rupture*flashing in the valve*", "Tube rupture*: required area*",
+    "Tube rupture*hotter than its boiling point at the valve's outlet*")
 BASIS_CHANGES = (
     ("0.3", "the steam's state is given at its supply (a superheated header) and carried into the valve, the zones "
      "and the steam flow; the heater's capacity at the supply pressure is reported",
@@ -72,7 +77,7 @@ BASIS_CHANGES = (
     # Applies to a record of 0.3.0 only when its recomputation sizes a flashing liquid (the fourth item).
     ("0.3.1", "a water hotter than its boiling point at the tube-rupture valve's outlet flashes in the nozzle: it is "
      "sized by API 520 Part I annex C (the omega method and direct integration, the larger governing), where the "
-     "liquid equation undersized the valve", ("Tube rupture*", "tube_rupture_*"), "Tube rupture*flashing in the valve*"),
+     "liquid equation undersized the valve", FLASHING_IN_VALVE_PATTERNS, "Tube rupture*flashing in the valve*"),
     # Each applies to a record of an earlier release only when its recomputation carries that valve's liquid to the
     # pipe's exit, and only to what the line and the sizing at its back pressure write.
     liquid_to_exit_change("0.3.2", "Tube rupture", "tube_rupture"),
