@@ -19,6 +19,10 @@ from ..units.amounts import Amount, Limit, Phrase, amount, text_of, verdict
 from ..units.expressions import names, parse, written_step
 from ..units.quantities import RECORD_UNITS, from_record_unit, to_record_unit
 
+#: The fifth item of a kind's ``BASIS_CHANGES`` entry whose change only adds to a record (a check, a statement): a
+#: record of an earlier release holds none of it, so ``verify`` explains only what the recomputation adds.
+ADDS_ONLY = "adds only"
+
 #: Whether this context wants the full record (steps, checks and the equipment sections that feed
 #: no banded result) or numbers only: Monte Carlo samples keep only the banded results.
 _NUMBERS_ONLY = ContextVar("steamcalc_numbers_only", default=False)

@@ -304,8 +304,7 @@ def flash_point_change(release, name, prefix, resized=True):
     return (release, FLASH_POINT_WHY, patterns, name + FLASH_POINT_STEP, None,
             (f"{name}*: built-up back pressure (two-phase): *liquid above p0 (its saturation pressure)*",
              f"{name}*: built-up back pressure (liquid): *",
-             f"{name}*: built-up back pressure: *far too small*",
-             f"{name}*: built-up back pressure (liquid to the pipe's exit, flashing there): *its saturation pressure*"))
+             f"{name}*: built-up back pressure: *far too small*"))
 
 
 def liquid_to_exit_change(release, name, prefix, resized=True, why=LIQUID_TO_EXIT_WHY):

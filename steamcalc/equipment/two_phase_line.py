@@ -45,7 +45,7 @@ class TwoPhaseLine:
     mass_flux: float          #: kg/(m² s)
     exit_volume: float        #: m³/kg at the pipe exit
     exit_velocity: float      #: m/s at the pipe exit
-    #: a subcooled liquid carried as liquid the whole length, flashing at the exit (choked at its saturation pressure)
+    #: a subcooled liquid carried as liquid the whole length, flashing at the exit (choked at the reference pressure)
     liquid_to_exit: bool = False
 
 
@@ -211,8 +211,8 @@ def two_phase_back_pressure(mass_flow, inner_diameter, length, fittings_k, atmos
     omega : float
         ω of the mixture in the pipe (:func:`pipe_omega`), above zero.
     reference_pressure : float
-        Pa (absolute), p_0 of the omega equation: the relieving pressure (two-phase inlet) or the
-        saturation pressure (subcooled liquid).
+        Pa (absolute), p_0 of the omega equation: the relieving pressure (two-phase inlet) or, for a subcooled
+        liquid, where it flashes: its saturation pressure, or the one on its isenthalp (:func:`flash_pressure`).
     reference_volume : float
         m³/kg at ``reference_pressure``.
     liquid_viscosity : float
@@ -272,9 +272,9 @@ def two_phase_back_pressure(mass_flow, inner_diameter, length, fittings_k, atmos
     exit_pressure = max(atmospheric_pressure, choked_exit)
     relieving = reference_pressure if liquid_up_to is None else liquid_up_to
     if exit_pressure >= reference_pressure and liquid_up_to is not None:
-        # A subcooled liquid whose flux is above what the flashing mixture could carry at its saturation pressure
-        # stays liquid the whole length (a liquid does not choke) and flashes at the exit, choked there at its
-        # saturation pressure: the pipe's resistance is all the liquid's.
+        # A subcooled liquid whose flux is above what the flashing mixture could carry at its flash point (the
+        # reference pressure) stays liquid the whole length (a liquid does not choke) and flashes at the exit, choked
+        # there at that pressure: the pipe's resistance is all the liquid's.
         outlet = reference_pressure + resistance * flux * flux * reference_volume / 2.0
         _refuse_at_relieving(outlet, relieving, resistance, inner_diameter)
         return TwoPhaseLine(outlet, reference_pressure, reference_pressure > atmospheric_pressure, friction, reynolds,

@@ -22,6 +22,7 @@ from pathlib import Path
 
 from ..properties.engines import REFERENCE_ENGINE, check_engine
 from ..calcs import get_calculation
+from ..calcs.base import ADDS_ONLY
 from ..errors import SteamcalcError
 from ..records.record import canonical_json, digests_hold as both_digests_hold, provenance
 from ..runs.runner import recompute, recompute_uncertainty
@@ -459,10 +460,6 @@ def _read_given_afresh(kind, name, given, site_text):
     return read, header, None
 
 
-#: The fifth item of a ``BASIS_CHANGES`` entry that only adds to a record (a check, a statement, a result): a record
-#: of an earlier release lacks what it matches, and can hold none of it, so only what the recomputation adds is
-#: explained by it; what the record holds that the recomputation does not issue stays a difference.
-ADDS_ONLY = "adds only"
 
 
 def _basis_change(calc, text, changes=None, added=True):
@@ -489,8 +486,8 @@ def release_basis_changes(record, fresh):
     change does not touch is held to every word as before. A fifth item :data:`ADDS_ONLY` marks a change that only
     adds: it explains nothing the record holds that the recomputation does not issue. A sixth, a pattern (or a tuple
     of them) over the record's own checks as "name: detail" and steps as "label: equation", asks for what the
-    earlier release wrote on the changed path (its symptom): a record that holds none gets no allowance of it. A record whose
-    release does not read gets none (:func:`steamcalc.review.rewordings.release`).
+    earlier release wrote on the changed path (its symptom): a record that holds none gets no allowance of it. A
+    record whose release does not read gets none (:func:`steamcalc.review.rewordings.release`).
     """
     from fnmatch import fnmatchcase
 

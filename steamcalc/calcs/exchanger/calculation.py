@@ -24,7 +24,7 @@ from ...properties.steam import REFERENCE as IF97_REFERENCE
 from ...properties.steam import SteamState, saturation_pressure
 from ..balance import Stream, check_energy_balance
 from ...units.amounts import Phrase
-from ..base import Result, check_fields, full_record_wanted, input_field
+from ..base import ADDS_ONLY, Result, check_fields, full_record_wanted, input_field
 from .turndown import (LOADS, STALL_REMEDIES, add_turndown, required_saturation_temperature,  # noqa: F401
                                  stall_load, stall_pressure)
 from .capacity import add_capacity, find_capacity
@@ -58,9 +58,6 @@ SUMMARY_RESULTS = ("duty", "steam_flow", "required_area", "area_margin", "contro
 #: instead of calling it edited: patterns (fnmatch) over result keys, step labels, check names and statements.
 #: The forward tube-rupture valve's warning of a discharge pipe narrower than its outlet (release 0.3.2).
 NARROW_OUTLET_CHECK = f"{TUBE_RUPTURE}: discharge line size"
-#: An entry's fifth item: the change only adds (a check, a statement); a record of an earlier release holds none of
-#: it, so verify explains only what the recomputation adds (steamcalc.review.verify.ADDS_ONLY: the same words).
-ADDS_ONLY = "adds only"
 #: What sizing a hot liquid flashing in the valve (release 0.3.1) changes: the valve's sizing, at the atmosphere and
 #: at its back pressure, and its lines; not the break's flow, the relieving pressure or the thermal relief.
 FLASHING_IN_VALVE_PATTERNS = liquid_to_exit_change("0.3.1", TUBE_RUPTURE, "tube_rupture")[2] + (
