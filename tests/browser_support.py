@@ -161,9 +161,21 @@ def wait_in_front(page, selector, root=None, shot=None, timeout=None):
                              + page_state(page, root)) from None
 
 
+def scroll_to_cell(page, source):
+    """Bring the first cell of the notebook in front whose source holds ``source`` into view. JupyterLab may keep a
+    cell far out of view out of the page (its windowed notebook), whatever the setting says: a run here found the
+    form's boxes gone from the page, none in it at all, after the sketch below them was scrolled into view."""
+    page.evaluate(
+        "async (text) => { const panel = window.jupyterapp.shell.currentWidget; const nb = panel && panel.content;"
+        " if (!nb) return; const i = nb.widgets.findIndex(c => c.model.sharedModel.getSource().includes(text));"
+        " if (i >= 0 && nb.scrollToItem) { await nb.scrollToItem(i, 'start'); } }", source)
+
+
 def wait_for_box(page, name, root=None, shot=None):
-    """The input box ``name`` of the notebook in front, once it is in the page (see :func:`wait_in_front`)."""
+    """The input box ``name`` of the notebook in front, once it is in the page (see :func:`wait_in_front`); its
+    form's cell is brought into view first (:func:`scroll_to_cell`)."""
     selector = f"{PANEL} .steamcalc-input-{name} input"
+    scroll_to_cell(page, "form_view()")
     wait_in_front(page, selector, root, shot)
     box = page.locator(selector).first
     box.scroll_into_view_if_needed()
