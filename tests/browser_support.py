@@ -107,6 +107,7 @@ def _open_and_run_all(browser, url, notebook):
     # Every wait of the page as long as the longest a loaded 2-core CI machine needs: playwright's own 30 s
     # for a locator ran out once while the kernel computed the bands and the suite ran beside it.
     page.set_default_timeout(PAGE_TIMEOUT_MS)
+    watch_console(page)
     page.goto(f"{url}/lab/tree/workbooks/{notebook}?reset", timeout=90_000)
     page.wait_for_selector(".jp-NotebookPanel", timeout=90_000)
     page.wait_for_function(
@@ -115,6 +116,31 @@ def _open_and_run_all(browser, url, notebook):
         " return k && k.status === 'idle'; }", timeout=90_000)
     page.evaluate("window.jupyterapp.commands.execute('notebook:run-all-cells')")
     return page
+
+
+def watch_console(page):
+    """Keep the page's console errors and warnings (and uncaught errors) for a failure's message: a widget that
+    does not display says why only there."""
+    seen = []
+    page.on("console", lambda m: seen.append(f"{m.type}: {m.text[:300]}") if m.type in ("error", "warning") else None)
+    page.on("pageerror", lambda e: seen.append(f"uncaught: {str(e)[:300]}"))
+    page.steamcalc_console = seen
+    return seen
+
+
+def console_text(page):
+    """The last console errors and warnings of a page watched by :func:`watch_console`."""
+    seen = getattr(page, "steamcalc_console", None)
+    if seen is None:
+        return "console: not watched"
+    return "console: " + (" | ".join(seen[-12:]) if seen else "nothing")
+
+
+def no_widget_failures(page, root=None):
+    """Assert the page shows no traceback and no widget that failed to display; the message says what the page
+    and its console showed."""
+    body = page.locator("body").inner_text()
+    assert "Traceback" not in body and "Error displaying widget" not in body, page_state(page, root)
 
 
 def _results_text(page):
@@ -137,13 +163,15 @@ def page_state(page, root=None):
             "  boxes_in_page: document.querySelectorAll('.steamcalc-input').length,"
             f"  boxes_in_front: document.querySelectorAll('{PANEL} .steamcalc-input').length,"
             "  widget_errors: Array.from(document.querySelectorAll('.jp-OutputArea-output'))"
-            "    .filter(o => o.innerText.includes('Error displaying widget')).length}; }")
+            "    .filter(o => o.innerText.includes('Error displaying widget')).length,"
+            "  widgets_loading: Array.from(document.querySelectorAll('.jp-OutputArea-output'))"
+            "    .filter(o => o.innerText.trim() === 'Loading widget...').length}; }")
     except Exception as error:   # the page itself may be gone: say so rather than hide the first failure
         state = {"page": f"could not be read ({type(error).__name__}: {error})"}
     log = ""
     if root is not None and (Path(root) / "lab.log").exists():
         log = (Path(root) / "lab.log").read_text(errors="replace")[-1500:]
-    return f"page state: {state}; end of the JupyterLab log:\n{log}"
+    return f"page state: {state}; {console_text(page)}; end of the JupyterLab log:\n{log}"
 
 
 def wait_in_front(page, selector, root=None, shot=None, timeout=None):

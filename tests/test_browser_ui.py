@@ -11,7 +11,7 @@ import json
 import shutil
 import urllib.request
 
-from tests.browser_support import ARTIFACTS, PANEL, _open_and_run_all, browser, lab  # noqa: F401
+from tests.browser_support import ARTIFACTS, PANEL, _open_and_run_all, browser, no_widget_failures, lab  # noqa: F401
 
 SHOTS = ARTIFACTS / "ui"
 
@@ -47,8 +47,7 @@ def _type(page, field, text):
 
 
 def _no_tracebacks(page):
-    body = page.locator("body").inner_text()
-    assert "Traceback" not in body and "Error displaying widget" not in body
+    no_widget_failures(page)
 
 
 def test_flash_refused_input_beside_its_box_stale_views_and_the_cascade_example(lab, browser):

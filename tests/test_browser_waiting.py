@@ -7,7 +7,7 @@ is shown, never asserted (a busy CI machine). Screenshots go to tests/_artifacts
 
 import pytest
 
-from tests.browser_support import ARTIFACTS, PANEL, _open_and_run_all, _results_text, browser, lab  # noqa: F401
+from tests.browser_support import ARTIFACTS, PANEL, _open_and_run_all, _results_text, browser, no_widget_failures, lab  # noqa: F401
 
 SHOTS = ARTIFACTS / "waiting"
 FORM_WORKBOOKS = {"letdown.ipynb": "LD-01", "flash_recovery.ipynb": "FL-01", "exchanger_duty.ipynb": "HX-01",
@@ -15,8 +15,7 @@ FORM_WORKBOOKS = {"letdown.ipynb": "LD-01", "flash_recovery.ipynb": "FL-01", "ex
 
 
 def _no_tracebacks(page):
-    body = page.locator("body").inner_text()
-    assert "Traceback" not in body and "Error displaying widget" not in body
+    no_widget_failures(page)
 
 
 @pytest.mark.parametrize("notebook", list(FORM_WORKBOOKS))
