@@ -1,3 +1,3 @@
 """steamcalc: steam-system calculation records on IAPWS-IF97."""
 
-__version__ = "0.3.2"
+__version__ = "0.3.3"

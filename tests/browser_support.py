@@ -122,8 +122,8 @@ def watch_console(page):
     """Keep the page's console errors and warnings (and uncaught errors) for a failure's message: a widget that
     does not display says why only there."""
     seen = []
-    page.on("console", lambda m: seen.append(f"{m.type}: {m.text[:300]}") if m.type in ("error", "warning") else None)
-    page.on("pageerror", lambda e: seen.append(f"uncaught: {str(e)[:300]}"))
+    page.on("console", lambda m: seen.append(f"{m.type}: {m.text[:600]}") if m.type in ("error", "warning") else None)
+    page.on("pageerror", lambda e: seen.append(f"uncaught: {str(e)[:600]}"))
     page.steamcalc_console = seen
     return seen
 
@@ -133,7 +133,11 @@ def console_text(page):
     seen = getattr(page, "steamcalc_console", None)
     if seen is None:
         return "console: not watched"
-    return "console: " + (" | ".join(seen[-12:]) if seen else "nothing")
+    if not seen:
+        return "console: nothing"
+    # The first messages say what went wrong first; the last what the page ended with.
+    shown = seen if len(seen) <= 12 else seen[:6] + [f"... {len(seen) - 12} more ..."] + seen[-6:]
+    return "console: " + " | ".join(shown)
 
 
 def no_widget_failures(page, root=None):

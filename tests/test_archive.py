@@ -10,7 +10,7 @@ release 0.3.1; ``tests/archive/v0_3_1_bases/`` heater records of 0.3.1 whose bas
 a discharge line carried as liquid to its exit and one whose liquid flashes on its isenthalp (both
 tests/test_liquid_to_exit.py), a tube-rupture discharge pipe
 narrower than the valve's outlet, now warned of (tests/test_tube_rupture_pipes.py); ``tests/archive/v0_3_2/`` those of
-this release, kept for the releases after it; ``tests/archive/v0_3_schema2/`` those of this release's intermediate layout (schema 2: figure
+release 0.3.2; ``tests/archive/v0_3_3/`` those of this release, kept for the releases after it; ``tests/archive/v0_3_schema2/`` those of this release's intermediate layout (schema 2: figure
 data, steps and checks as text), which this release still reads. Each must verify:
 its digests intact, every result, check and statement reproduced, and its reports either matching what this
 release draws or reported as drawn by the release that issued the record — never as edited.

@@ -20,6 +20,14 @@ def flashes_in_pipe(liquid, atm):
     return liquid.enthalpy > SteamState.from_p_dryness(atm, 0.0).enthalpy
 
 
+#: What a liquid line that flashes assumes (since release 0.3.3: the flash point on the liquid's isenthalp, which
+#: the step beside it gives, not "its saturation pressure" at its temperature).
+FLASHING_LIQUID_WORDS = ("is above its boiling point at the atmosphere: it flashes where the pressure in the discharge "
+                         "pipe falls to the saturation pressure at its enthalpy (its flash point, a step below; at the "
+                         "pipe's exit when the pipe carries it that far as liquid), and is taken as a homogeneous "
+                         "two-phase mixture from there")
+
+
 def liquid_discharge_section(result, prefix, name, *, valve_type, set_pressure, atm, rated_flow_kg_h, liquid, size,
                              length, fittings_k, keys=DISCHARGE_KEYS):
     """Built-up back pressure of a liquid discharge against the valve's limit, and the reaction force.
@@ -29,9 +37,7 @@ def liquid_discharge_section(result, prefix, name, *, valve_type, set_pressure, 
     pressure at the rated flow would reach the set pressure fails with no figure, and None is returned.
     """
     if flashes_in_pipe(liquid, atm):
-        result.assumptions.append(f"{name}: the liquid ({liquid.temperature - 273.15:.1f} °C) boils at the "
-                                  "atmosphere: it flashes in the discharge pipe once below its saturation pressure, "
-                                  "and is taken as a homogeneous two-phase mixture from there")
+        result.assumptions.append(f"{name}: the liquid ({liquid.temperature - 273.15:.1f} °C) {FLASHING_LIQUID_WORDS}")
         return two_phase_discharge_section(result, prefix, name, valve_type=valve_type, set_pressure=set_pressure,
                                            atm=atm, rated_flow_kg_h=rated_flow_kg_h, relieving=liquid, size=size,
                                            length=length, fittings_k=fittings_k, keys=keys)

@@ -53,6 +53,13 @@ REWORDINGS = (
     Rewording("0.3.1", "ω = 9·(v9/v0 − 1)  [API 520 Part I annex C]", "ω = 9·(v9/v0 − 1), v9 after an isentropic "
               "flash to 0.9·p0 (a two-phase inlet) or to 0.9·p_s, 90 % of the saturation pressure (a subcooled inlet)  "
               "[API 520 Part I annex C]", "the omega parameter's step says where and how its second state is found"),
+    Rewording("0.3.3", "boils at the atmosphere: it flashes in the discharge pipe once below its saturation pressure, "
+              "and is taken as a homogeneous two-phase mixture from there",
+              "is above its boiling point at the atmosphere: it flashes where the pressure in the discharge pipe falls "
+              "to the saturation pressure at its enthalpy (its flash point, a step below; at the pipe's exit when the "
+              "pipe carries it that far as liquid), and is taken as a homogeneous two-phase mixture from there",
+              "a hot liquid's discharge line says where it flashes as its step computes it (on its isenthalp, since "
+              "0.3.2), not at its saturation pressure"),
 )
 
 #: The parts of a record that hold the calculation's statements (never the engineer's own words or inputs).
