@@ -24,6 +24,36 @@ ROOT = Path(__file__).resolve().parent.parent
 ARTIFACTS = ROOT / "tests" / "_artifacts" / "browser"
 
 
+#: Each running lab's folder by its address, so that a failure's message can quote the lab's log.
+LAB_ROOTS = {}
+
+#: Run in the page before JupyterLab starts: keeps what the kernel's connection went through (connecting,
+#: connected, disconnected; busy, idle, restarting) and counts the widget messages it carried, so that a widget
+#: that never displays can be told from a connection that dropped under it.
+KERNEL_WATCH = """
+window.steamcalcKernel = {events: [], comm_open: 0, comm_close: 0, display: 0};
+(function hook() {
+  try {
+    const app = window.jupyterapp; const w = app && app.shell.currentWidget;
+    const k = w && w.sessionContext && w.sessionContext.session && w.sessionContext.session.kernel;
+    if (k && k.steamcalcWatched) return;
+    if (k) {
+      k.steamcalcWatched = true;
+      const seen = window.steamcalcKernel; const at = () => Math.round(performance.now());
+      k.connectionStatusChanged.connect((_, s) => seen.events.push(`${at()} ms connection ${s}`));
+      k.statusChanged.connect((_, s) => { if (s !== 'busy' && s !== 'idle') seen.events.push(`${at()} ms kernel ${s}`); });
+      k.anyMessage.connect((_, a) => { const t = a.msg.header.msg_type;
+        if (a.direction === 'recv' && t === 'comm_open') seen.comm_open++;
+        if (t === 'comm_close') { seen.comm_close++; seen.events.push(`${at()} ms comm_close ${a.direction}`); }
+        if (a.direction === 'recv' && t === 'display_data') seen.display++;
+        if (t === 'comm_info_request' || t === 'comm_info_reply') seen.events.push(`${at()} ms ${t}`); });
+    }
+  } catch (e) {}
+  setTimeout(hook, 5);
+})();
+"""
+
+
 def _missing():
     try:
         import playwright.sync_api  # noqa: F401
@@ -76,6 +106,7 @@ def lab(tmp_path_factory):
     else:
         server.terminate()
         pytest.fail("JupyterLab did not start: " + (root / "lab.log").read_text()[-2000:])
+    LAB_ROOTS[url] = root
     yield url, root
     server.terminate()
     try:
@@ -108,6 +139,7 @@ def _open_and_run_all(browser, url, notebook):
     # for a locator ran out once while the kernel computed the bands and the suite ran beside it.
     page.set_default_timeout(PAGE_TIMEOUT_MS)
     watch_console(page)
+    page.add_init_script(KERNEL_WATCH)
     page.goto(f"{url}/lab/tree/workbooks/{notebook}?reset", timeout=90_000)
     page.wait_for_selector(".jp-NotebookPanel", timeout=90_000)
     page.wait_for_function(
@@ -169,10 +201,13 @@ def page_state(page, root=None):
             "  widget_errors: Array.from(document.querySelectorAll('.jp-OutputArea-output'))"
             "    .filter(o => o.innerText.includes('Error displaying widget')).length,"
             "  widgets_loading: Array.from(document.querySelectorAll('.jp-OutputArea-output'))"
-            "    .filter(o => o.innerText.trim() === 'Loading widget...').length}; }")
+            "    .filter(o => o.innerText.trim() === 'Loading widget...').length,"
+            "  kernel_watch: window.steamcalcKernel || null}; }")
     except Exception as error:   # the page itself may be gone: say so rather than hide the first failure
         state = {"page": f"could not be read ({type(error).__name__}: {error})"}
     log = ""
+    if root is None:
+        root = next((folder for address, folder in LAB_ROOTS.items() if page.url.startswith(address)), None)
     if root is not None and (Path(root) / "lab.log").exists():
         log = (Path(root) / "lab.log").read_text(errors="replace")[-1500:]
     return f"page state: {state}; {console_text(page)}; end of the JupyterLab log:\n{log}"

@@ -17,6 +17,7 @@ import math
 import re
 
 import ipywidgets as widgets
+from ipywidgets.widgets.widget_string import HTMLStyle, TextStyle
 
 from ..calcs.base import input_fields
 from ..units.formatting import US_UNITS, format_number, unit_label
@@ -182,6 +183,25 @@ def example_in(example, kind, system="SI"):
     return f"{_example_number(value)} {us_unit}"
 
 
+class _SharedLooks:
+    """The layout and style models the widgets of one form share.
+
+    Each widget otherwise brings a layout and a style model of its own: a let-down form was some 1,350 widget
+    models, and Run All sent them with about 560 updates at once; a busy machine's Jupyter server can fall behind
+    such a burst (a widget then never displays). Shared, it is about a third of that. None of these is changed
+    after it is made (a widget whose layout changes, such as a button shown only after a refusal, has its own).
+    """
+
+    def __init__(self):
+        self.label = widgets.Layout(width=_LABEL_WIDTH)
+        self.box = widgets.Layout(width="19em")
+        self.tolerance = widgets.Layout(width="9em")
+        self.message = widgets.Layout(max_width="36em")
+        self.plain = widgets.Layout()
+        self.html = HTMLStyle()
+        self.text = TextStyle()
+
+
 class CaseForm:
     """Text boxes for every input of a kind, grouped by case-file section.
 
@@ -223,6 +243,7 @@ class CaseForm:
         # The box last edited, and the one a standing refusal is blamed on (with that refusal's field and message).
         self._edited = self._blamed = self._refusal_key = None
         groups = {}
+        looks = _SharedLooks()
         header_note = f" Site headers: {', '.join('header:' + h for h in headers)}." if headers else ""
         for f in input_fields(inputs_class):
             meta = f.metadata
@@ -239,46 +260,45 @@ class CaseForm:
             # description puts it on the label only).
             label = widgets.HTML(f"<label class='steamcalc-label' title='{html.escape(tooltip, quote=True)}' "
                                  f"style='display:block;text-align:right;padding-right:8px'>"
-                                 f"{html.escape(meta['label'])}</label>", layout=widgets.Layout(width=_LABEL_WIDTH))
-            label.add_class(f"steamcalc-label-{f.name}")
+                                 f"{html.escape(meta['label'])}</label>", layout=looks.label, style=looks.html,
+                                 _dom_classes=(f"steamcalc-label-{f.name}",))
             box = widgets.Text(
                 value="" if raw is None else str(raw), placeholder=f"e.g. {example_in(meta['example'], meta['kind'], system)}",
-                tooltip=tooltip, continuous_update=False, layout=widgets.Layout(width="19em"),
+                tooltip=tooltip, continuous_update=False, layout=looks.box, style=looks.text,
+                _dom_classes=("steamcalc-input", f"steamcalc-input-{f.name}"),
             )
-            box.add_class("steamcalc-input")
-            box.add_class(f"steamcalc-input-{f.name}")
             self.boxes[f.name] = box
-            message = widgets.HTML(layout=widgets.Layout(max_width="36em"))
-            message.add_class(MESSAGE_CLASS)
-            message.add_class(f"{MESSAGE_CLASS}-{f.name}")
+            message = widgets.HTML(layout=looks.message, style=looks.html,
+                                   _dom_classes=(MESSAGE_CLASS, f"{MESSAGE_CLASS}-{f.name}"))
             self.messages[f.name] = message
             line = (f"<span class='{HELP_CLASS}-text'>{html.escape(help_text)}</span>"
                     + (f" <b class='steamcalc-alternative'>{html.escape(alternative)}</b>" if alternative else ""))
             described = widgets.HTML(f"<div style='margin:-4px 0 6px {_LABEL_WIDTH};font-size:85%;"
-                                     f"color:#555;line-height:1.25'>{line}</div>")
-            described.add_class(HELP_CLASS)
-            described.add_class(f"{HELP_CLASS}-{f.name}")
+                                     f"color:#555;line-height:1.25'>{line}</div>", layout=looks.plain,
+                                     style=looks.html, _dom_classes=(HELP_CLASS, f"{HELP_CLASS}-{f.name}"))
             self.help[f.name] = described
             row = [label, box]
             if meta["kind"] in _DIFFERENCE_KINDS:
                 tol = tolerances.get(f.name, "")
                 tolerance = widgets.Text(value="" if tol is None else str(tol), placeholder="± tolerance",
-                                         continuous_update=False, layout=widgets.Layout(width="9em"),
-                                         tooltip="± tolerance for the uncertainty bands: e.g. '0.3 bar', '5 K', '5 %'")
-                tolerance.add_class(f"steamcalc-tol-{f.name}")
+                                         continuous_update=False, layout=looks.tolerance, style=looks.text,
+                                         tooltip="± tolerance for the uncertainty bands: e.g. '0.3 bar', '5 K', '5 %'",
+                                         _dom_classes=(f"steamcalc-tol-{f.name}",))
                 self.tolerance_boxes[f.name] = tolerance
                 row.append(tolerance)
             row.append(message)
-            groups.setdefault(meta["section"], []).append(widgets.VBox([widgets.HBox(row), described]))
+            groups.setdefault(meta["section"], []).append(
+                widgets.VBox([widgets.HBox(row, layout=looks.plain), described], layout=looks.plain))
         for name, box in self.boxes.items():
             if name in self.alternatives:
                 box.observe(lambda change, name=name: self._alternative_given(name, change), names="value")
         children = []
         for section, boxes in groups.items():
             if section is not None:
-                children.append(widgets.HTML(f"<b>{section.replace('_', ' ').capitalize()}</b> <i>(leave empty if none)</i>"))
+                children.append(widgets.HTML(f"<b>{section.replace('_', ' ').capitalize()}</b> <i>(leave empty if none)</i>",
+                                             layout=looks.plain, style=looks.html))
             children.extend(boxes)
-        self.view = widgets.VBox(children)
+        self.view = widgets.VBox(children, layout=looks.plain)
 
     # -- alternatives ----------------------------------------------------------------
     def alternative_note(self, name):
