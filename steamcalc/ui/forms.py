@@ -187,8 +187,8 @@ class _SharedLooks:
     """The layout and style models the widgets of one form share.
 
     Each widget otherwise brings a layout and a style model of its own: a let-down form was some 1,350 widget
-    models, and Run All sent them with about 560 updates at once; a busy machine's Jupyter server can fall behind
-    such a burst (a widget then never displays). Shared, it is about a third of that. None of these is changed
+    models, and Run All sent them with about 560 updates at once, all of which the server and the browser carry
+    before the page settles. Shared, it is about a third of that. None of these is changed
     after it is made (a widget whose layout changes, such as a button shown only after a refusal, has its own).
     """
 
