@@ -29,9 +29,12 @@ LAB_ROOTS = {}
 
 #: Run in the page before JupyterLab starts: keeps what the kernel's connection went through (connecting,
 #: connected, disconnected; busy, idle, restarting) and counts the widget messages it carried, so that a widget
-#: that never displays can be told from a connection that dropped under it.
+#: that never displays can be told from a connection that dropped under it. It also marks when the notebook's
+#: widget manager has asked the kernel for the widgets it already holds (its first restore: a comm_info reply, or
+#: the widget states, for a kernel that has imported ipywidgets): Run All waits for that, so that the cells' new
+#: widgets never arrive while the manager is still taking in that answer.
 KERNEL_WATCH = """
-window.steamcalcKernel = {events: [], comm_open: 0, comm_close: 0, display: 0};
+window.steamcalcKernel = {events: [], comm_open: 0, comm_close: 0, display: 0, widgets_restored: false};
 (function hook() {
   try {
     const app = window.jupyterapp; const w = app && app.shell.currentWidget;
@@ -46,7 +49,10 @@ window.steamcalcKernel = {events: [], comm_open: 0, comm_close: 0, display: 0};
         if (a.direction === 'recv' && t === 'comm_open') seen.comm_open++;
         if (t === 'comm_close') { seen.comm_close++; seen.events.push(`${at()} ms comm_close ${a.direction}`); }
         if (a.direction === 'recv' && t === 'display_data') seen.display++;
-        if (t === 'comm_info_request' || t === 'comm_info_reply') seen.events.push(`${at()} ms ${t}`); });
+        if (t === 'comm_info_request' || t === 'comm_info_reply') seen.events.push(`${at()} ms ${t}`);
+        const method = a.msg.content && a.msg.content.data && a.msg.content.data.method;
+        if (a.direction === 'recv' && (t === 'comm_info_reply' || (t === 'comm_msg' && method === 'update_states'))) {
+          seen.widgets_restored = true; } });
     }
   } catch (e) {}
   setTimeout(hook, 5);
@@ -146,6 +152,13 @@ def _open_and_run_all(browser, url, notebook):
         "() => { const w = window.jupyterapp && window.jupyterapp.shell.currentWidget;"
         " const k = w && w.sessionContext && w.sessionContext.session && w.sessionContext.session.kernel;"
         " return k && k.status === 'idle'; }", timeout=90_000)
+    # The widget manager's first restore answered (KERNEL_WATCH), then Run All: an event, not a pause.
+    try:
+        page.wait_for_function("() => window.steamcalcKernel && window.steamcalcKernel.widgets_restored",
+                               timeout=90_000)
+    except Exception as error:
+        raise AssertionError(f"the notebook's widget manager never asked the kernel for its widgets "
+                             f"({type(error).__name__}); " + page_state(page)) from None
     page.evaluate("window.jupyterapp.commands.execute('notebook:run-all-cells')")
     return page
 
