@@ -44,7 +44,8 @@ window.steamcalcKernel = {events: [], comm_open: 0, comm_close: 0, display: 0, w
       k.steamcalcWatched = true;
       const seen = window.steamcalcKernel; const at = () => Math.round(performance.now());
       k.connectionStatusChanged.connect((_, s) => seen.events.push(`${at()} ms connection ${s}`));
-      k.statusChanged.connect((_, s) => { if (s !== 'busy' && s !== 'idle') seen.events.push(`${at()} ms kernel ${s}`); });
+      k.statusChanged.connect((_, s) => {
+        if (s !== 'busy' && s !== 'idle') seen.events.push(`${at()} ms kernel ${s}`); });
       k.anyMessage.connect((_, a) => { const t = a.msg.header.msg_type;
         if (a.direction === 'recv' && t === 'comm_open') seen.comm_open++;
         if (t === 'comm_close') { seen.comm_close++; seen.events.push(`${at()} ms comm_close ${a.direction}`); }

@@ -11,7 +11,8 @@ import json
 import shutil
 import urllib.request
 
-from tests.browser_support import ARTIFACTS, PANEL, _open_and_run_all, browser, no_widget_failures, lab  # noqa: F401
+from tests.browser_support import (  # noqa: F401 (browser and lab are fixtures)
+    ARTIFACTS, PANEL, _open_and_run_all, browser, lab, no_widget_failures)
 
 SHOTS = ARTIFACTS / "ui"
 
@@ -44,10 +45,6 @@ def _type(page, field, text):
     box.scroll_into_view_if_needed()
     box.fill(text)
     box.press("Enter")
-
-
-def _no_tracebacks(page):
-    no_widget_failures(page)
 
 
 def test_flash_refused_input_beside_its_box_stale_views_and_the_cascade_example(lab, browser):
@@ -119,7 +116,7 @@ def test_flash_refused_input_beside_its_box_stale_views_and_the_cascade_example(
     stages = page.locator(f"{PANEL} .steamcalc-table").first
     stages.scroll_into_view_if_needed()
     stages.screenshot(path=str(shots / "15-2-cascade-stage-table.png"))
-    _no_tracebacks(page)
+    no_widget_failures(page)
     page.close()
 
 
@@ -216,7 +213,7 @@ def test_letdown_help_alternatives_bands_computing_and_save_feedback(lab, browse
     _wait_text(page, ".steamcalc-save-status", "Unchanged, kept")
     assert status.inner_text() != written and "steamcalc-save-unchanged" in status.get_attribute("class")
     page.screenshot(path=str(shots / "15-14-save-second-press.png"))
-    _no_tracebacks(page)
+    no_widget_failures(page)
     page.close()
 
 
@@ -292,5 +289,5 @@ def test_review_compare_non_record_file_and_failed_verdict(lab, browser):
     assert "verdict: FAILED" in _text(page, ".steamcalc-review-summary")    # the summary at the top follows
     verdict.scroll_into_view_if_needed()
     page.screenshot(path=str(shots / "15-14-verdict-failed.png"))
-    _no_tracebacks(page)
+    no_widget_failures(page)
     page.close()

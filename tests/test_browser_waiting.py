@@ -7,15 +7,12 @@ is shown, never asserted (a busy CI machine). Screenshots go to tests/_artifacts
 
 import pytest
 
-from tests.browser_support import ARTIFACTS, PANEL, _open_and_run_all, _results_text, browser, no_widget_failures, lab  # noqa: F401
+from tests.browser_support import (  # noqa: F401 (browser and lab are fixtures)
+    ARTIFACTS, PANEL, _open_and_run_all, _results_text, browser, lab, no_widget_failures)
 
 SHOTS = ARTIFACTS / "waiting"
 FORM_WORKBOOKS = {"letdown.ipynb": "LD-01", "flash_recovery.ipynb": "FL-01", "exchanger_duty.ipynb": "HX-01",
                   "steam_main.ipynb": "SM-01"}
-
-
-def _no_tracebacks(page):
-    no_widget_failures(page)
 
 
 @pytest.mark.parametrize("notebook", list(FORM_WORKBOOKS))
@@ -32,7 +29,7 @@ def test_run_all_shows_a_progress_line_then_what_it_took(lab, browser, notebook)
     page.screenshot(path=str(SHOTS / f"{notebook[:-6]}-progress-done.png"))
     assert " s" in line.inner_text()
     page.wait_for_selector(f"{PANEL} .steamcalc-results")
-    _no_tracebacks(page)
+    no_widget_failures(page)
     page.close()
 
 
@@ -51,7 +48,7 @@ def test_enter_updates_the_results(lab, browser):
         f"(before) => document.querySelector('{PANEL} .steamcalc-results').innerText !== before", arg=before)
     assert "4,800" in _results_text(page)
     page.locator(f"{PANEL} .steamcalc-results").first.screenshot(path=str(SHOTS / "letdown-after-enter.png"))
-    _no_tracebacks(page)
+    no_widget_failures(page)
     page.close()
 
 
@@ -66,5 +63,5 @@ def test_the_site_balance_workbook_opens_on_a_fresh_site(lab, browser):
     page.locator(f"{PANEL} .js-plotly-plot").first.scroll_into_view_if_needed()
     page.screenshot(path=str(SHOTS / "site-balance-sankey.png"))
     assert (root / "workbooks" / "demo_site" / "records" / "LD-01_revB.json").exists()
-    _no_tracebacks(page)
+    no_widget_failures(page)
     page.close()

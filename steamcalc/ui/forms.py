@@ -295,8 +295,8 @@ class CaseForm:
         children = []
         for section, boxes in groups.items():
             if section is not None:
-                children.append(widgets.HTML(f"<b>{section.replace('_', ' ').capitalize()}</b> <i>(leave empty if none)</i>",
-                                             layout=looks.plain, style=looks.html))
+                heading = f"<b>{section.replace('_', ' ').capitalize()}</b> <i>(leave empty if none)</i>"
+                children.append(widgets.HTML(heading, layout=looks.plain, style=looks.html))
             children.extend(boxes)
         self.view = widgets.VBox(children, layout=looks.plain)
 
